@@ -1,0 +1,265 @@
+// Package config builds corvane's service configuration from command-line flags
+// and CORVANE_* environment variables.
+//
+// A Config is a plain value: no globals, no package state. Flags win over the
+// environment, the environment wins over the defaults. String redacts secrets,
+// so a Config may be logged.
+package config
+
+import (
+	"errors"
+	"flag"
+	"fmt"
+	"net/url"
+	"strconv"
+	"strings"
+	"time"
+)
+
+// Defaults.
+const (
+	DefaultAddr            = "127.0.0.1:8080"
+	DefaultDatabase        = "./corvane.db"
+	DefaultMaxBodyBytes    = 1 << 20   // 1 MiB for JSON bodies
+	DefaultMaxImportBytes  = 256 << 20 // 256 MiB for CSV imports
+	DefaultPageSize        = 100
+	DefaultMaxPageSize     = 1000
+	DefaultShutdownTimeout = 30 * time.Second
+	DefaultReadTimeout     = 5 * time.Minute // large CSV uploads
+	DefaultWriteTimeout    = 5 * time.Minute // large CSV exports
+)
+
+// Config is the service configuration.
+type Config struct {
+	// Addr is the TCP address to listen on, host:port. Port 0 picks a free port.
+	Addr string
+	// DatabaseURL is a postgres:// (or postgresql://) URL, or a SQLite file path.
+	DatabaseURL string
+	// Demo loads the fictional demo programme at start when it is not there yet.
+	Demo bool
+	// MaxBodyBytes limits JSON request bodies.
+	MaxBodyBytes int64
+	// MaxImportBytes limits CSV import bodies.
+	MaxImportBytes int64
+	// DefaultPageSize and MaxPageSize bound list pages (?limit=).
+	DefaultPageSize int
+	MaxPageSize     int
+	// ReadTimeout and WriteTimeout bound one request on the HTTP server.
+	ReadTimeout  time.Duration
+	WriteTimeout time.Duration
+	// ShutdownTimeout bounds the wait for in-flight requests on SIGINT/SIGTERM.
+	ShutdownTimeout time.Duration
+	// LogFormat is "text" or "json"; LogLevel is debug, info, warn or error.
+	LogFormat string
+	LogLevel  string
+}
+
+// Default returns the configuration used when nothing is set.
+func Default() Config {
+	return Config{
+		Addr:            DefaultAddr,
+		DatabaseURL:     DefaultDatabase,
+		MaxBodyBytes:    DefaultMaxBodyBytes,
+		MaxImportBytes:  DefaultMaxImportBytes,
+		DefaultPageSize: DefaultPageSize,
+		MaxPageSize:     DefaultMaxPageSize,
+		ReadTimeout:     DefaultReadTimeout,
+		WriteTimeout:    DefaultWriteTimeout,
+		ShutdownTimeout: DefaultShutdownTimeout,
+		LogFormat:       "text",
+		LogLevel:        "info",
+	}
+}
+
+// Environment variable names, each matching a flag.
+const (
+	EnvAddr            = "CORVANE_ADDR"
+	EnvDatabaseURL     = "CORVANE_DATABASE_URL"
+	EnvDemo            = "CORVANE_DEMO"
+	EnvMaxBodyBytes    = "CORVANE_MAX_BODY_BYTES"
+	EnvMaxImportBytes  = "CORVANE_MAX_IMPORT_BYTES"
+	EnvPageSize        = "CORVANE_PAGE_SIZE"
+	EnvMaxPageSize     = "CORVANE_MAX_PAGE_SIZE"
+	EnvReadTimeout     = "CORVANE_READ_TIMEOUT"
+	EnvWriteTimeout    = "CORVANE_WRITE_TIMEOUT"
+	EnvShutdownTimeout = "CORVANE_SHUTDOWN_TIMEOUT"
+	EnvLogFormat       = "CORVANE_LOG_FORMAT"
+	EnvLogLevel        = "CORVANE_LOG_LEVEL"
+)
+
+// FromEnv returns the defaults overridden by the CORVANE_* variables that getenv
+// reports as non-empty. A value that cannot be parsed is an error naming the variable.
+func FromEnv(getenv func(string) string) (Config, error) {
+	c := Default()
+	if getenv == nil {
+		return c, nil
+	}
+	var errs []error
+	str := func(name string, dst *string) {
+		if v := strings.TrimSpace(getenv(name)); v != "" {
+			*dst = v
+		}
+	}
+	i64 := func(name string, dst *int64) {
+		if v := strings.TrimSpace(getenv(name)); v != "" {
+			n, err := strconv.ParseInt(v, 10, 64)
+			if err != nil {
+				errs = append(errs, fmt.Errorf("environment %s=%q: not an integer", name, v))
+				return
+			}
+			*dst = n
+		}
+	}
+	inum := func(name string, dst *int) {
+		var n int64 = int64(*dst)
+		i64(name, &n)
+		*dst = int(n)
+	}
+	dur := func(name string, dst *time.Duration) {
+		if v := strings.TrimSpace(getenv(name)); v != "" {
+			d, err := time.ParseDuration(v)
+			if err != nil {
+				errs = append(errs, fmt.Errorf("environment %s=%q: not a duration such as 30s", name, v))
+				return
+			}
+			*dst = d
+		}
+	}
+	str(EnvAddr, &c.Addr)
+	str(EnvDatabaseURL, &c.DatabaseURL)
+	if v := strings.TrimSpace(getenv(EnvDemo)); v != "" {
+		b, err := strconv.ParseBool(v)
+		if err != nil {
+			errs = append(errs, fmt.Errorf("environment %s=%q: not true or false", EnvDemo, v))
+		}
+		c.Demo = b
+	}
+	i64(EnvMaxBodyBytes, &c.MaxBodyBytes)
+	i64(EnvMaxImportBytes, &c.MaxImportBytes)
+	inum(EnvPageSize, &c.DefaultPageSize)
+	inum(EnvMaxPageSize, &c.MaxPageSize)
+	dur(EnvReadTimeout, &c.ReadTimeout)
+	dur(EnvWriteTimeout, &c.WriteTimeout)
+	dur(EnvShutdownTimeout, &c.ShutdownTimeout)
+	str(EnvLogFormat, &c.LogFormat)
+	str(EnvLogLevel, &c.LogLevel)
+	return c, errors.Join(errs...)
+}
+
+// Bind adds the service flags to fs, with c's current values as defaults, so
+// that parsing fs overrides c. Call it on a Config built by [FromEnv].
+func (c *Config) Bind(fs *flag.FlagSet) {
+	fs.StringVar(&c.Addr, "addr", c.Addr, "listen address host:port (env "+EnvAddr+")")
+	fs.StringVar(&c.DatabaseURL, "db", c.DatabaseURL, "postgres:// URL or SQLite file path (env "+EnvDatabaseURL+")")
+	fs.BoolVar(&c.Demo, "demo", c.Demo, "load the fictional demo programme if it is not there (env "+EnvDemo+")")
+	fs.Int64Var(&c.MaxBodyBytes, "max-body-bytes", c.MaxBodyBytes, "largest JSON request body (env "+EnvMaxBodyBytes+")")
+	fs.Int64Var(&c.MaxImportBytes, "max-import-bytes", c.MaxImportBytes, "largest CSV import body (env "+EnvMaxImportBytes+")")
+	fs.IntVar(&c.DefaultPageSize, "page-size", c.DefaultPageSize, "default list page size (env "+EnvPageSize+")")
+	fs.IntVar(&c.MaxPageSize, "max-page-size", c.MaxPageSize, "largest list page size (env "+EnvMaxPageSize+")")
+	fs.DurationVar(&c.ReadTimeout, "read-timeout", c.ReadTimeout, "longest time to read one request (env "+EnvReadTimeout+")")
+	fs.DurationVar(&c.WriteTimeout, "write-timeout", c.WriteTimeout, "longest time to write one response (env "+EnvWriteTimeout+")")
+	fs.DurationVar(&c.ShutdownTimeout, "shutdown-timeout", c.ShutdownTimeout, "longest wait for in-flight requests at shutdown (env "+EnvShutdownTimeout+")")
+	fs.StringVar(&c.LogFormat, "log-format", c.LogFormat, "text or json (env "+EnvLogFormat+")")
+	fs.StringVar(&c.LogLevel, "log-level", c.LogLevel, "debug, info, warn or error (env "+EnvLogLevel+")")
+}
+
+// Validate reports every field that cannot be used, naming each.
+func (c Config) Validate() error {
+	var errs []error
+	if c.Addr == "" {
+		errs = append(errs, errors.New("addr: empty"))
+	} else if _, port, ok := strings.Cut(c.Addr, ":"); !ok || port == "" {
+		errs = append(errs, fmt.Errorf("addr %q: want host:port", c.Addr))
+	}
+	if strings.TrimSpace(c.DatabaseURL) == "" {
+		errs = append(errs, errors.New("db: empty"))
+	} else if c.IsPostgres() {
+		if _, err := url.Parse(c.DatabaseURL); err != nil {
+			errs = append(errs, fmt.Errorf("db: not a valid URL: %s", redactURLError(err)))
+		}
+	}
+	if c.MaxBodyBytes <= 0 {
+		errs = append(errs, fmt.Errorf("max-body-bytes %d: must be positive", c.MaxBodyBytes))
+	}
+	if c.MaxImportBytes <= 0 {
+		errs = append(errs, fmt.Errorf("max-import-bytes %d: must be positive", c.MaxImportBytes))
+	}
+	if c.MaxPageSize <= 0 {
+		errs = append(errs, fmt.Errorf("max-page-size %d: must be positive", c.MaxPageSize))
+	}
+	if c.DefaultPageSize <= 0 || c.DefaultPageSize > c.MaxPageSize {
+		errs = append(errs, fmt.Errorf("page-size %d: must be in 1..max-page-size (%d)", c.DefaultPageSize, c.MaxPageSize))
+	}
+	if c.ShutdownTimeout <= 0 {
+		errs = append(errs, fmt.Errorf("shutdown-timeout %s: must be positive", c.ShutdownTimeout))
+	}
+	switch c.LogFormat {
+	case "text", "json":
+	default:
+		errs = append(errs, fmt.Errorf("log-format %q: want text or json", c.LogFormat))
+	}
+	switch strings.ToLower(c.LogLevel) {
+	case "debug", "info", "warn", "error":
+	default:
+		errs = append(errs, fmt.Errorf("log-level %q: want debug, info, warn or error", c.LogLevel))
+	}
+	return errors.Join(errs...)
+}
+
+// IsPostgres reports whether DatabaseURL names a PostgreSQL server rather than a
+// SQLite file.
+func (c Config) IsPostgres() bool { return IsPostgresURL(c.DatabaseURL) }
+
+// IsPostgresURL reports whether s is a postgres:// or postgresql:// URL.
+func IsPostgresURL(s string) bool {
+	l := strings.ToLower(strings.TrimSpace(s))
+	return strings.HasPrefix(l, "postgres://") || strings.HasPrefix(l, "postgresql://")
+}
+
+// String describes c with the database password (in the user information or a
+// password= query parameter) replaced by "xxxxx".
+func (c Config) String() string {
+	return fmt.Sprintf("addr=%s db=%s demo=%t max-body-bytes=%d max-import-bytes=%d page-size=%d max-page-size=%d read-timeout=%s write-timeout=%s shutdown-timeout=%s log-format=%s log-level=%s",
+		c.Addr, RedactDatabaseURL(c.DatabaseURL), c.Demo, c.MaxBodyBytes, c.MaxImportBytes,
+		c.DefaultPageSize, c.MaxPageSize, c.ReadTimeout, c.WriteTimeout, c.ShutdownTimeout, c.LogFormat, c.LogLevel)
+}
+
+// RedactDatabaseURL returns s with any password hidden. A SQLite path is
+// returned unchanged; a PostgreSQL URL that does not parse is hidden whole,
+// since it may still hold a secret.
+func RedactDatabaseURL(s string) string {
+	if !IsPostgresURL(s) {
+		return s
+	}
+	u, err := url.Parse(s)
+	if err != nil {
+		return "postgres://(unparsable URL hidden)"
+	}
+	if u.User != nil {
+		if _, has := u.User.Password(); has {
+			u.User = url.UserPassword(u.User.Username(), "xxxxx")
+		}
+	}
+	q := u.Query()
+	changed := false
+	for k := range q {
+		switch strings.ToLower(k) {
+		case "password", "sslpassword", "sslkey":
+			q.Set(k, "xxxxx")
+			changed = true
+		}
+	}
+	if changed {
+		u.RawQuery = q.Encode()
+	}
+	return u.String()
+}
+
+// redactURLError keeps url.Parse's reason but drops the URL it quotes.
+func redactURLError(err error) string {
+	var ue *url.Error
+	if errors.As(err, &ue) {
+		return ue.Err.Error()
+	}
+	return "invalid"
+}
