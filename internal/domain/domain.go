@@ -1,0 +1,230 @@
+// Package domain holds corvane's service entities, their validation rules, the
+// error type with kinds, and the contract every store implements.
+//
+// domain imports only the standard library. Entities are plain values; the
+// business rules that span several entities (derived values, imports,
+// authorisation) live in package service, never in a store.
+//
+// Angles follow the project's conventions (design/conventions.md): azimuths
+// clockwise from north in [0, 360) (360 is accepted and stored as 0), hole dip
+// negative below horizontal, core angles alpha in [0, 90] and beta, gamma in
+// [0, 360). Lengths are in the project's unit (m or ft).
+package domain
+
+import (
+	"encoding/json"
+	"time"
+)
+
+// Vocabularies of the conventions a project records its core angles in. The
+// words are those of the convert command line.
+const (
+	RefLineBottom = "bottom" // bottom-of-hole reference line (default)
+	RefLineTop    = "top"    // top-of-hole reference line
+
+	BetaApexDownHole = "downhole" // beta measured to the down-hole apex (default)
+	BetaApexUpHole   = "uphole"
+
+	GammaClockwise     = "clockwise" // default
+	GammaAnticlockwise = "anticlockwise"
+
+	UnitMetre = "m"
+	UnitFoot  = "ft"
+
+	AzimuthTrue     = "true"
+	AzimuthGrid     = "grid"
+	AzimuthMagnetic = "magnetic"
+)
+
+// Project is one drilling programme and the conventions its data are recorded in.
+type Project struct {
+	ID          int64  `json:"id"`
+	Name        string `json:"name"`
+	Description string `json:"description"`
+	// RefLine is the orientation reference line: "bottom" or "top".
+	RefLine string `json:"ref_line"`
+	// BetaApex is the ellipse apex beta is measured to: "downhole" or "uphole".
+	BetaApex string `json:"beta_apex"`
+	// GammaSense is the sense gamma is measured in: "clockwise" or "anticlockwise".
+	GammaSense string `json:"gamma_sense"`
+	// LengthUnit is "m" or "ft".
+	LengthUnit string `json:"length_unit"`
+	// OutputAzimuthRef is the north reference of derived azimuths: "grid" or "true".
+	OutputAzimuthRef string `json:"output_azimuth_ref"`
+	// Declination is the default magnetic declination in degrees, positive
+	// when magnetic north is east of true north (true = magnetic + D).
+	Declination float64 `json:"declination"`
+	// Convergence is the default grid convergence in degrees, positive when
+	// grid north is east of true north (grid = true - C).
+	Convergence float64   `json:"convergence"`
+	Version     int64     `json:"version"`
+	CreatedAt   time.Time `json:"created_at"`
+	UpdatedAt   time.Time `json:"updated_at"`
+}
+
+// TypeCode is one word of a project's structure vocabulary, e.g. "BD" for
+// bedding. Measurements must use a code of their project's vocabulary.
+type TypeCode struct {
+	ProjectID   int64  `json:"project_id"`
+	Code        string `json:"code"`
+	Description string `json:"description"`
+	// Kind is "plane" or "line"; a line type expects gamma on its measurements.
+	Kind string `json:"kind"`
+}
+
+// Hole is a drill hole: its collar and its planned direction.
+type Hole struct {
+	ID        int64   `json:"id"`
+	ProjectID int64   `json:"project_id"`
+	Name      string  `json:"name"` // the hole id used in files, e.g. "TM001"; unique in a project
+	East      float64 `json:"easting"`
+	North     float64 `json:"northing"`
+	Elevation float64 `json:"elevation"`
+	// Azimuth and Dip of the collar; dip negative below horizontal. The collar
+	// direction acts as the survey station at depth 0 when the survey has none.
+	Azimuth    float64   `json:"azimuth"`
+	Dip        float64   `json:"dip"`
+	FinalDepth float64   `json:"final_depth"`
+	CRS        string    `json:"crs"`      // coordinate system label, e.g. "EPSG:32750"; free text
+	Started    string    `json:"started"`  // YYYY-MM-DD or empty
+	Finished   string    `json:"finished"` // YYYY-MM-DD or empty
+	Version    int64     `json:"version"`
+	CreatedAt  time.Time `json:"created_at"`
+	UpdatedAt  time.Time `json:"updated_at"`
+}
+
+// Station is one survey station: measured depth along the hole, azimuth, dip.
+type Station struct {
+	Depth   float64 `json:"depth"`
+	Azimuth float64 `json:"azimuth"`
+	Dip     float64 `json:"dip"`
+}
+
+// SurveySet is the whole survey of one hole. It is always replaced as a whole.
+type SurveySet struct {
+	HoleID int64 `json:"hole_id"`
+	// AzimuthRef is the north the station azimuths were measured from:
+	// "true", "grid" or "magnetic".
+	AzimuthRef string `json:"azimuth_ref"`
+	SurveyDate string `json:"survey_date"` // YYYY-MM-DD or empty
+	// Declination overrides the project's default declination for a magnetic
+	// survey; nil means use the project's.
+	Declination *float64  `json:"declination"`
+	Stations    []Station `json:"stations"`
+	Version     int64     `json:"version"`
+	UpdatedAt   time.Time `json:"updated_at"`
+}
+
+// Run confidence ratings, best first.
+var Confidences = []string{"good", "fair", "poor", "none"}
+
+// Run is one orientation run: the core between two depths oriented from one
+// orientation mark.
+type Run struct {
+	ID     int64   `json:"id"`
+	HoleID int64   `json:"hole_id"`
+	From   float64 `json:"from"`
+	To     float64 `json:"to"`
+	// Confidence is the mark-confidence rating, one of [Confidences]; "none"
+	// means the run cannot be used for orientation.
+	Confidence string `json:"confidence"`
+	// Mismatch is the angle in degrees seen between the marks across the run
+	// break; nil when not measured.
+	Mismatch  *float64  `json:"mismatch"`
+	Comment   string    `json:"comment"`
+	Version   int64     `json:"version"`
+	CreatedAt time.Time `json:"created_at"`
+	UpdatedAt time.Time `json:"updated_at"`
+}
+
+// Measurement is one structure measured on oriented core. Derived values are
+// not part of it: the service computes them on every read.
+type Measurement struct {
+	ID        int64   `json:"id"`
+	ProjectID int64   `json:"project_id"`
+	HoleID    int64   `json:"hole_id"`
+	Depth     float64 `json:"depth"`
+	Alpha     float64 `json:"alpha"`
+	Beta      float64 `json:"beta"`
+	// Gamma locates a lineation on the plane; nil for a plane alone.
+	Gamma             *float64  `json:"gamma"`
+	TypeCode          string    `json:"type"`
+	ApparentThickness *float64  `json:"apparent_thickness"`
+	Comment           string    `json:"comment"`
+	LoggedBy          string    `json:"logged_by"`
+	LoggedAt          time.Time `json:"logged_at"`
+	Version           int64     `json:"version"`
+	CreatedAt         time.Time `json:"created_at"`
+	UpdatedAt         time.Time `json:"updated_at"`
+}
+
+// Audit actions.
+const (
+	ActionCreate = "create"
+	ActionUpdate = "update"
+	ActionDelete = "delete"
+)
+
+// AuditEntry records who created, changed or deleted what and when.
+type AuditEntry struct {
+	ID        int64           `json:"id"`
+	ProjectID int64           `json:"project_id"`
+	ActorName string          `json:"actor"`
+	TokenID   int64           `json:"token_id"` // 0 for the local command line
+	Entity    string          `json:"entity"`   // "project", "hole", "survey", "run", "measurement", "type_code", "token"
+	EntityID  string          `json:"entity_id"`
+	Action    string          `json:"action"`
+	At        time.Time       `json:"at"`
+	Before    json.RawMessage `json:"before,omitempty"`
+	After     json.RawMessage `json:"after,omitempty"`
+}
+
+// Role is what a token may do in its project. Roles are ordered:
+// read < log < admin; a higher role may do all a lower one may.
+type Role string
+
+// The roles.
+const (
+	RoleRead  Role = "read"  // read everything in the project
+	RoleLog   Role = "log"   // also create, change and delete measurements and runs
+	RoleAdmin Role = "admin" // also projects, holes, surveys, vocabulary, imports of any kind
+)
+
+// Rank orders roles; an unknown role ranks 0.
+func (r Role) Rank() int {
+	switch r {
+	case RoleRead:
+		return 1
+	case RoleLog:
+		return 2
+	case RoleAdmin:
+		return 3
+	}
+	return 0
+}
+
+// AllProjects as a token's ProjectID makes it valid in every project (a site
+// token); only such a token with the admin role may create projects.
+const AllProjects int64 = 0
+
+// Token is an API token. The secret itself is never stored: Hash is the hex
+// SHA-256 of the secret. The secrets are 32 random bytes, so a fast hash is
+// the right one (no password stretching is needed against guessing).
+type Token struct {
+	ID        int64     `json:"id"`
+	ProjectID int64     `json:"project_id"` // AllProjects (0) for a site token
+	Name      string    `json:"name"`
+	Role      Role      `json:"role"`
+	Hash      string    `json:"-"`
+	CreatedAt time.Time `json:"created_at"`
+}
+
+// Idempotency remembers the result of a request made with an idempotency key,
+// so a retry returns the first result and writes nothing.
+type Idempotency struct {
+	ProjectID   int64           `json:"project_id"`
+	Key         string          `json:"key"`
+	RequestHash string          `json:"request_hash"` // hex SHA-256 of what was asked
+	Result      json.RawMessage `json:"result"`
+	CreatedAt   time.Time       `json:"created_at"`
+}

@@ -1,0 +1,137 @@
+package domain
+
+import (
+	"context"
+	"time"
+)
+
+// Page asks for one page of a list. Lists are ordered by ID ascending and
+// paged by keyset: After is the last ID of the previous page (0 for the first
+// page), Limit the page size (the store caps it at [MaxLimit]; 0 means
+// [DefaultLimit]). A page shorter than Limit is the last.
+type Page struct {
+	Limit int
+	After int64
+}
+
+// Page size bounds.
+const (
+	DefaultLimit = 100
+	MaxLimit     = 1000
+)
+
+// Norm returns p with Limit set to the default or capped at the maximum.
+func (p Page) Norm() Page {
+	if p.Limit <= 0 {
+		p.Limit = DefaultLimit
+	}
+	if p.Limit > MaxLimit {
+		p.Limit = MaxLimit
+	}
+	if p.After < 0 {
+		p.After = 0
+	}
+	return p
+}
+
+// MeasurementFilter selects measurements of one project. Zero fields do not
+// filter. Depth bounds and dates are inclusive.
+type MeasurementFilter struct {
+	ProjectID  int64
+	HoleIDs    []int64
+	MinDepth   *float64
+	MaxDepth   *float64
+	TypeCodes  []string
+	LoggedFrom *time.Time
+	LoggedTo   *time.Time
+}
+
+// Store is the persistence contract. Both stores (SQLite and PostgreSQL)
+// implement it and pass the one conformance suite in package storetest.
+//
+// Rules every implementation keeps:
+//   - ctx first; every public method owns its transaction unless the Store is
+//     the one handed to an [Store.InTx] callback, which runs in that transaction;
+//   - a missing row is a NotFound *Error, never a zero value with a nil error;
+//   - a unique or foreign-key clash is a Conflict *Error;
+//   - Create methods set ID, Version = 1 and the timestamps on the value passed;
+//   - Update and Delete methods take the version the caller last saw and fail
+//     with PreconditionFailed when the row has moved on (NotFound when it is
+//     gone); Update bumps Version and sets UpdatedAt on the value passed;
+//   - lists follow [Page]; filters are SQL parameters, never spliced text.
+//
+// A Store is safe for concurrent use.
+type Store interface {
+	// Ping checks the database is reachable.
+	Ping(ctx context.Context) error
+	// Close releases the database handle.
+	Close() error
+	// InTx runs fn in one transaction with a Store bound to it. The
+	// transaction commits when fn returns nil and rolls back otherwise.
+	// Calling InTx on a bound Store runs fn in the same transaction.
+	InTx(ctx context.Context, fn func(ctx context.Context, tx Store) error) error
+
+	CreateProject(ctx context.Context, p *Project) error
+	GetProject(ctx context.Context, id int64) (Project, error)
+	GetProjectByName(ctx context.Context, name string) (Project, error)
+	ListProjects(ctx context.Context, page Page) ([]Project, error)
+	UpdateProject(ctx context.Context, p *Project, ifVersion int64) error
+	// DeleteProject deletes the project and everything in it.
+	DeleteProject(ctx context.Context, id, ifVersion int64) error
+
+	// PutTypeCode creates or replaces a vocabulary entry.
+	PutTypeCode(ctx context.Context, tc TypeCode) error
+	ListTypeCodes(ctx context.Context, projectID int64) ([]TypeCode, error)
+	// DeleteTypeCode fails with Conflict while measurements use the code.
+	DeleteTypeCode(ctx context.Context, projectID int64, code string) error
+
+	CreateHole(ctx context.Context, h *Hole) error
+	GetHole(ctx context.Context, id int64) (Hole, error)
+	GetHoleByName(ctx context.Context, projectID int64, name string) (Hole, error)
+	ListHoles(ctx context.Context, projectID int64, page Page) ([]Hole, error)
+	UpdateHole(ctx context.Context, h *Hole, ifVersion int64) error
+	// DeleteHole deletes the hole with its survey, runs and measurements.
+	DeleteHole(ctx context.Context, id, ifVersion int64) error
+
+	// GetSurvey returns the hole's survey set; NotFound when it has none.
+	GetSurvey(ctx context.Context, holeID int64) (SurveySet, error)
+	// PutSurvey replaces the hole's whole survey set. ifVersion is the version
+	// last seen, or 0 to create a set where none exists (PreconditionFailed
+	// when one does). On success s.Version is the new version.
+	PutSurvey(ctx context.Context, s *SurveySet, ifVersion int64) error
+	DeleteSurvey(ctx context.Context, holeID, ifVersion int64) error
+
+	CreateRun(ctx context.Context, r *Run) error
+	GetRun(ctx context.Context, id int64) (Run, error)
+	// ListRuns lists the hole's runs ordered by From depth (all of them; a
+	// hole has few).
+	ListRuns(ctx context.Context, holeID int64) ([]Run, error)
+	UpdateRun(ctx context.Context, r *Run, ifVersion int64) error
+	DeleteRun(ctx context.Context, id, ifVersion int64) error
+
+	CreateMeasurement(ctx context.Context, m *Measurement) error
+	// CreateMeasurements inserts many rows at once (PostgreSQL: by COPY). It
+	// sets IDs on ms only when the store can do so cheaply; callers that need
+	// IDs use CreateMeasurement.
+	CreateMeasurements(ctx context.Context, ms []Measurement) (int, error)
+	GetMeasurement(ctx context.Context, id int64) (Measurement, error)
+	ListMeasurements(ctx context.Context, f MeasurementFilter, page Page) ([]Measurement, error)
+	CountMeasurements(ctx context.Context, f MeasurementFilter) (int64, error)
+	UpdateMeasurement(ctx context.Context, m *Measurement, ifVersion int64) error
+	DeleteMeasurement(ctx context.Context, id, ifVersion int64) error
+
+	AppendAudit(ctx context.Context, e *AuditEntry) error
+	ListAudit(ctx context.Context, projectID int64, page Page) ([]AuditEntry, error)
+
+	CreateToken(ctx context.Context, t *Token) error
+	// TokenByHash returns the token with the given hex SHA-256; NotFound if none.
+	TokenByHash(ctx context.Context, hash string) (Token, error)
+	ListTokens(ctx context.Context, projectID int64) ([]Token, error)
+	DeleteToken(ctx context.Context, id int64) error
+
+	// GetIdempotency returns the remembered result for (projectID, key);
+	// NotFound when none.
+	GetIdempotency(ctx context.Context, projectID int64, key string) (Idempotency, error)
+	// PutIdempotency remembers a result; Conflict when the key is taken.
+	PutIdempotency(ctx context.Context, r Idempotency) error
+}

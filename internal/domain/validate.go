@@ -1,0 +1,226 @@
+package domain
+
+import (
+	"math"
+	"regexp"
+	"slices"
+	"strconv"
+	"strings"
+	"time"
+)
+
+func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
+
+// checkAzimuth validates an azimuth in [0, 360] and folds 360 to 0.
+func checkAzimuth(field string, a *float64) *Error {
+	if !finite(*a) || *a < 0 || *a > 360 {
+		return FieldErr(field, "%s must be an azimuth in [0, 360], got %v", field, *a)
+	}
+	if *a == 360 {
+		*a = 0
+	}
+	return nil
+}
+
+func checkRange(field string, x, lo, hi float64) *Error {
+	if !finite(x) || x < lo || x > hi {
+		return FieldErr(field, "%s must be in [%v, %v], got %v", field, lo, hi, x)
+	}
+	return nil
+}
+
+func checkFinite(field string, x float64) *Error {
+	if !finite(x) {
+		return FieldErr(field, "%s must be a finite number, got %v", field, x)
+	}
+	return nil
+}
+
+func checkOneOf(field, v string, allowed ...string) *Error {
+	if !slices.Contains(allowed, v) {
+		return FieldErr(field, "%s must be one of %s, got %q", field, strings.Join(allowed, ", "), v)
+	}
+	return nil
+}
+
+// CheckDate validates an optional calendar date in YYYY-MM-DD form.
+func CheckDate(field, s string) *Error {
+	if s == "" {
+		return nil
+	}
+	if _, err := time.Parse(time.DateOnly, s); err != nil {
+		return FieldErr(field, "%s must be a date YYYY-MM-DD, got %q", field, s)
+	}
+	return nil
+}
+
+var codeRe = regexp.MustCompile(`^[A-Za-z0-9_.\-]{1,32}$`)
+
+// Normalize fills p's empty conventions with the defaults (bottom, downhole,
+// clockwise, m, grid) and validates it.
+func (p *Project) Normalize() error {
+	p.Name = strings.TrimSpace(p.Name)
+	def := func(s *string, d string) {
+		if *s == "" {
+			*s = d
+		}
+	}
+	def(&p.RefLine, RefLineBottom)
+	def(&p.BetaApex, BetaApexDownHole)
+	def(&p.GammaSense, GammaClockwise)
+	def(&p.LengthUnit, UnitMetre)
+	def(&p.OutputAzimuthRef, AzimuthGrid)
+	switch {
+	case p.Name == "" || len(p.Name) > 200:
+		return FieldErr("name", "name must be 1 to 200 characters")
+	}
+	for _, e := range []*Error{
+		checkOneOf("ref_line", p.RefLine, RefLineBottom, RefLineTop),
+		checkOneOf("beta_apex", p.BetaApex, BetaApexDownHole, BetaApexUpHole),
+		checkOneOf("gamma_sense", p.GammaSense, GammaClockwise, GammaAnticlockwise),
+		checkOneOf("length_unit", p.LengthUnit, UnitMetre, UnitFoot),
+		checkOneOf("output_azimuth_ref", p.OutputAzimuthRef, AzimuthGrid, AzimuthTrue),
+		checkRange("declination", p.Declination, -180, 180),
+		checkRange("convergence", p.Convergence, -90, 90),
+	} {
+		if e != nil {
+			return e
+		}
+	}
+	return nil
+}
+
+// Normalize validates tc; Kind defaults to "plane".
+func (tc *TypeCode) Normalize() error {
+	tc.Code = strings.TrimSpace(tc.Code)
+	if !codeRe.MatchString(tc.Code) {
+		return FieldErr("code", "code must be 1 to 32 letters, digits or _ . -, got %q", tc.Code)
+	}
+	if tc.Kind == "" {
+		tc.Kind = "plane"
+	}
+	if e := checkOneOf("kind", tc.Kind, "plane", "line"); e != nil {
+		return e
+	}
+	return nil
+}
+
+// Normalize validates h and folds azimuth 360 to 0.
+func (h *Hole) Normalize() error {
+	h.Name = strings.TrimSpace(h.Name)
+	if h.Name == "" || len(h.Name) > 64 {
+		return FieldErr("name", "hole name must be 1 to 64 characters, got %q", h.Name)
+	}
+	for _, e := range []*Error{
+		checkFinite("easting", h.East),
+		checkFinite("northing", h.North),
+		checkFinite("elevation", h.Elevation),
+		checkAzimuth("azimuth", &h.Azimuth),
+		checkRange("dip", h.Dip, -90, 90),
+		checkRange("final_depth", h.FinalDepth, 0, 1e5),
+		CheckDate("started", h.Started),
+		CheckDate("finished", h.Finished),
+	} {
+		if e != nil {
+			return e
+		}
+	}
+	if h.Started != "" && h.Finished != "" && h.Finished < h.Started {
+		return FieldErr("finished", "finished %s is before started %s", h.Finished, h.Started)
+	}
+	return nil
+}
+
+// Normalize validates s: a known azimuth reference, finite stations with
+// strictly increasing depths from 0, azimuths in [0, 360], dips in [-90, 90].
+// Field names locate the bad station, e.g. "stations[3].dip".
+func (s *SurveySet) Normalize() error {
+	if s.AzimuthRef == "" {
+		s.AzimuthRef = AzimuthTrue
+	}
+	if e := checkOneOf("azimuth_ref", s.AzimuthRef, AzimuthTrue, AzimuthGrid, AzimuthMagnetic); e != nil {
+		return e
+	}
+	if e := CheckDate("survey_date", s.SurveyDate); e != nil {
+		return e
+	}
+	if s.Declination != nil {
+		if e := checkRange("declination", *s.Declination, -180, 180); e != nil {
+			return e
+		}
+	}
+	for i := range s.Stations {
+		st := &s.Stations[i]
+		f := func(name string) string { return "stations[" + strconv.Itoa(i) + "]." + name }
+		if e := checkRange(f("depth"), st.Depth, 0, 1e5); e != nil {
+			return e
+		}
+		if e := checkAzimuth(f("azimuth"), &st.Azimuth); e != nil {
+			return e
+		}
+		if e := checkRange(f("dip"), st.Dip, -90, 90); e != nil {
+			return e
+		}
+		if i > 0 && st.Depth <= s.Stations[i-1].Depth {
+			return FieldErr(f("depth"), "station depths must strictly increase: %v follows %v", st.Depth, s.Stations[i-1].Depth)
+		}
+	}
+	return nil
+}
+
+// Normalize validates r: 0 <= From < To, a known confidence, mismatch in [0, 180].
+func (r *Run) Normalize() error {
+	if r.Confidence == "" {
+		r.Confidence = "good"
+	}
+	for _, e := range []*Error{
+		checkRange("from", r.From, 0, 1e5),
+		checkRange("to", r.To, 0, 1e5),
+		checkOneOf("confidence", r.Confidence, Confidences...),
+	} {
+		if e != nil {
+			return e
+		}
+	}
+	if r.To <= r.From {
+		return FieldErr("to", "to (%v) must be greater than from (%v)", r.To, r.From)
+	}
+	if r.Mismatch != nil {
+		if e := checkRange("mismatch", *r.Mismatch, 0, 180); e != nil {
+			return e
+		}
+	}
+	return nil
+}
+
+// Normalize validates m: depth >= 0, alpha in [0, 90], beta and gamma in
+// [0, 360] (360 folded to 0), a type code, apparent thickness >= 0.
+func (m *Measurement) Normalize() error {
+	m.TypeCode = strings.TrimSpace(m.TypeCode)
+	for _, e := range []*Error{
+		checkRange("depth", m.Depth, 0, 1e5),
+		checkRange("alpha", m.Alpha, 0, 90),
+		checkAzimuth("beta", &m.Beta),
+	} {
+		if e != nil {
+			return e
+		}
+	}
+	if m.Gamma != nil {
+		if e := checkAzimuth("gamma", m.Gamma); e != nil {
+			return e
+		}
+	}
+	if m.TypeCode == "" {
+		return FieldErr("type", "type is required (a code of the project's vocabulary)")
+	}
+	if m.ApparentThickness != nil {
+		if e := checkRange("apparent_thickness", *m.ApparentThickness, 0, 1e5); e != nil {
+			return e
+		}
+	}
+	if len(m.Comment) > 2000 {
+		return FieldErr("comment", "comment is longer than 2000 characters")
+	}
+	return nil
+}
