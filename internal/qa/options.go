@@ -1,0 +1,137 @@
+package qa
+
+// Options are the thresholds and choices of a QA run. A zero field takes its
+// default (see [DefaultOptions]); every default is stated with where it comes
+// from.
+type Options struct {
+	// Feet reports whether depths are in feet; dogleg severity is then per
+	// 100 ft instead of per 30 m.
+	Feet bool `json:"feet,omitempty"`
+
+	// ConfidentRatings are the run confidence ratings counted as oriented
+	// with confidence; UnusableRatings are those meaning the mark cannot be
+	// used. Compared without regard to case. Defaults: good, fair; none,
+	// unusable (the vocabulary of corvane's demo data).
+	ConfidentRatings []string `json:"confident_ratings"`
+	UnusableRatings  []string `json:"unusable_ratings"`
+	// MismatchTolerance, degrees: mark mismatch across a run break beyond it
+	// is flagged. Default 10 (common practice, from memory; adjust to the
+	// programme's own standard).
+	MismatchTolerance float64 `json:"mismatch_tolerance"`
+
+	// PersistentType is the structure type treated as a persistent fabric
+	// (for example bedding); empty skips the mark-rotation check.
+	PersistentType string `json:"persistent_type,omitempty"`
+	// Reference is "neighbours" (default: the fabric in the nearest
+	// Neighbours runs on each side, the run itself left out) or "hole" (the
+	// hole-wide fabric, the run itself left out).
+	Reference  string `json:"reference"`
+	Neighbours int    `json:"neighbours"` // default 3
+	// RotationThreshold, degrees: a run is flagged when |offset| exceeds it,
+	// its 95% interval excludes 0 and it rests on at least MinRunCount
+	// measurements. Defaults 15 and 5.
+	RotationThreshold float64 `json:"rotation_threshold"`
+	MinRunCount       int     `json:"min_run_count"`
+	// FabricMisfit, degrees: a measurement whose pole stays further than this
+	// from the reference after the best rotation about the core axis is left
+	// out of the estimate (not the same fabric). Default 20.
+	FabricMisfit float64 `json:"fabric_misfit"`
+
+	// PickWindow is the depth window for matching picks to core
+	// measurements once the depth shift is applied (default 0.3, in the
+	// project's length unit); MaxDepthShift bounds the shift search (default
+	// 3) and ShiftStep is its grid step (default 0.01).
+	PickWindow    float64 `json:"pick_window"`
+	MaxDepthShift float64 `json:"max_depth_shift"`
+	ShiftStep     float64 `json:"shift_step"`
+
+	// DoglegThreshold is the dogleg severity in degrees per 30 m (or per 100
+	// ft) above which an interval is flagged. Default 3 (common practice).
+	DoglegThreshold float64 `json:"dogleg_threshold"`
+	// OutlierFactor and OutlierFloor: a station is flagged when its
+	// leave-one-out residual exceeds the hole's median residual by more than
+	// OutlierFactor times the robust scatter (1.4826 x MAD) and is above
+	// OutlierFloor degrees. Defaults 5 and 1.
+	OutlierFactor float64 `json:"outlier_factor"`
+	OutlierFloor  float64 `json:"outlier_floor"`
+	// GapThreshold: a gap between stations (or from the collar to the first
+	// station) longer than this is flagged. Default 60 (twice the usual 30 m
+	// survey interval, common practice).
+	GapThreshold float64 `json:"gap_threshold"`
+	// ShortTolerance: a survey whose last station is more than this above
+	// the final depth is flagged. Default 30.
+	ShortTolerance float64 `json:"short_tolerance"`
+	// CollarTolerance, degrees: the first station may differ from the collar
+	// direction by this plus the dogleg threshold over its depth. Default 5.
+	CollarTolerance float64 `json:"collar_tolerance"`
+
+	// HighAlpha: measurements with alpha at or above it are noted (beta
+	// poorly defined). Default 85.
+	HighAlpha float64 `json:"high_alpha"`
+	// NearVertical, degrees from vertical: a hole steeper than this at a
+	// measurement cannot be oriented reliably by gravity. Default 5.
+	NearVertical float64 `json:"near_vertical"`
+
+	// DigitMinCount, DigitP and DigitShare05: a logger's alpha or beta values
+	// are flagged for digit preference when there are at least DigitMinCount
+	// of them, the chi-square p-value is below DigitP and the share of 0s and
+	// 5s is at least DigitShare05. Defaults 50, 0.001, 0.3 (0.2 expected).
+	DigitMinCount int     `json:"digit_min_count"`
+	DigitP        float64 `json:"digit_p"`
+	DigitShare05  float64 `json:"digit_share_0_5"`
+	// BetaZeroP and BetaZeroShare: beta 0/360 in bulk is flagged when the
+	// binomial p-value is below BetaZeroP and the share at least
+	// BetaZeroShare. Defaults 0.001 and 0.01 (1/360 = 0.0028 expected).
+	BetaZeroP     float64 `json:"beta_zero_p"`
+	BetaZeroShare float64 `json:"beta_zero_share"`
+}
+
+// DefaultOptions returns the options with every default filled in.
+func DefaultOptions() Options {
+	var o Options
+	return o.withDefaults()
+}
+
+func (o Options) withDefaults() Options {
+	if len(o.ConfidentRatings) == 0 {
+		o.ConfidentRatings = []string{"good", "fair"}
+	}
+	if len(o.UnusableRatings) == 0 {
+		o.UnusableRatings = []string{"none", "unusable"}
+	}
+	def := func(p *float64, v float64) {
+		if *p == 0 {
+			*p = v
+		}
+	}
+	defi := func(p *int, v int) {
+		if *p == 0 {
+			*p = v
+		}
+	}
+	def(&o.MismatchTolerance, 10)
+	if o.Reference == "" {
+		o.Reference = "neighbours"
+	}
+	defi(&o.Neighbours, 3)
+	def(&o.RotationThreshold, 15)
+	defi(&o.MinRunCount, 5)
+	def(&o.FabricMisfit, 20)
+	def(&o.PickWindow, 0.3)
+	def(&o.MaxDepthShift, 3)
+	def(&o.ShiftStep, 0.01)
+	def(&o.DoglegThreshold, 3)
+	def(&o.OutlierFactor, 5)
+	def(&o.OutlierFloor, 1)
+	def(&o.GapThreshold, 60)
+	def(&o.ShortTolerance, 30)
+	def(&o.CollarTolerance, 5)
+	def(&o.HighAlpha, 85)
+	def(&o.NearVertical, 5)
+	defi(&o.DigitMinCount, 50)
+	def(&o.DigitP, 0.001)
+	def(&o.DigitShare05, 0.3)
+	def(&o.BetaZeroP, 0.001)
+	def(&o.BetaZeroShare, 0.01)
+	return o
+}

@@ -1,0 +1,143 @@
+package qa
+
+import (
+	"math"
+
+	"gonum.org/v1/gonum/mat"
+
+	"corvane/internal/geom"
+)
+
+// rotateAbout returns v rotated by angle degrees about the unit axis k,
+// right-handed (Rodrigues' rotation formula):
+// v cos t + (k x v) sin t + k (k.v)(1 - cos t).
+//
+// A right-handed rotation about the down-hole direction h looks clockwise
+// when looking down-hole, the sense in which beta grows, so rotating a
+// measurement's normal about h by t is the same as adding t to its beta
+// under every reference-line and apex convention: the apex direction is
+// d = R_h(beta) r (or its reverse), hence d(beta + t) = R_h(t) d(beta).
+func rotateAbout(v, k geom.Vec3, angle float64) geom.Vec3 {
+	s, c := math.Sincos(geom.Rad(angle))
+	return v.Scale(c).Add(k.Cross(v).Scale(s)).Add(k.Scale(k.Dot(v) * (1 - c)))
+}
+
+// downHole returns v or -v, whichever has a non-negative component along h.
+func downHole(v, h geom.Vec3) geom.Vec3 {
+	if v.Dot(h) < 0 {
+		return v.Neg()
+	}
+	return v
+}
+
+// minAxisAngle is the smallest angle in degrees between a pole and the core
+// axis for which a rotation about the axis is still defined well enough to
+// use: a pole within 10 degrees of the axis (alpha >= 80) barely moves when
+// the core turns.
+const minAxisAngle = 10.0
+
+// betaOffset returns the rotation about the down-hole unit vector h, in
+// degrees in (-180, 180], that brings the plane normal n as close as possible
+// to the axis p (both axial), and the angular misfit that remains after it,
+// which no rotation about h can remove: |angle(n, h) - angle(p, h)|, the
+// difference of the two planes' alpha angles.
+//
+// Rotating n about h sweeps a cone around h; the nearest point of that cone to
+// p lies in the half-plane through h and p, so the offset is the signed angle
+// about h from the part of n perpendicular to h to the part of p perpendicular
+// to h (closed form; no search needed).
+//
+// ok is false when n or p lies within [minAxisAngle] of the core axis, where
+// the offset is undefined or dominated by noise.
+func betaOffset(h, n, p geom.Vec3) (offset, residual float64, ok bool) {
+	n = downHole(n, h)
+	p = downHole(p, h)
+	nh, ph := n.Dot(h), p.Dot(h)
+	nPerp := n.Sub(h.Scale(nh))
+	pPerp := p.Sub(h.Scale(ph))
+	an := geom.Deg(math.Atan2(nPerp.Norm(), nh)) // angle from the axis
+	ap := geom.Deg(math.Atan2(pPerp.Norm(), ph))
+	residual = math.Abs(an - ap)
+	if an < minAxisAngle || ap < minAxisAngle {
+		return 0, residual, false
+	}
+	offset = geom.Deg(math.Atan2(h.Dot(nPerp.Cross(pPerp)), nPerp.Dot(pPerp)))
+	return offset, residual, true
+}
+
+// tensor is a running sum of outer products v v^T of unit vectors (the
+// orientation tensor of Scheidegger (1965) before division by the count).
+type tensor struct {
+	a [6]float64 // xx, xy, xz, yy, yz, zz
+	n int
+}
+
+func (t *tensor) add(v geom.Vec3) {
+	t.a[0] += v.X * v.X
+	t.a[1] += v.X * v.Y
+	t.a[2] += v.X * v.Z
+	t.a[3] += v.Y * v.Y
+	t.a[4] += v.Y * v.Z
+	t.a[5] += v.Z * v.Z
+	t.n++
+}
+
+func (t *tensor) addTensor(u tensor) {
+	for i := range t.a {
+		t.a[i] += u.a[i]
+	}
+	t.n += u.n
+}
+
+// principal returns the lower-hemisphere unit eigenvector of the largest
+// eigenvalue of the orientation tensor (the mean axis of axial data,
+// Scheidegger 1965; Woodcock 1977) and that eigenvalue divided by the count
+// (1 when all axes agree, 1/3 for uniform axes). ok is false for an empty
+// tensor or a failed decomposition.
+func (t tensor) principal() (axis geom.Vec3, s1 float64, ok bool) {
+	if t.n == 0 {
+		return geom.Vec3{}, 0, false
+	}
+	m := mat.NewSymDense(3, []float64{
+		t.a[0], t.a[1], t.a[2],
+		t.a[1], t.a[3], t.a[4],
+		t.a[2], t.a[4], t.a[5],
+	})
+	var es mat.EigenSym
+	if !es.Factorize(m, true) {
+		return geom.Vec3{}, 0, false
+	}
+	vals := es.Values(nil) // ascending
+	var vecs mat.Dense
+	es.VectorsTo(&vecs)
+	v := geom.Vec3{X: vecs.At(0, 2), Y: vecs.At(1, 2), Z: vecs.At(2, 2)}.Unit().Lower()
+	return v, vals[2] / float64(t.n), true
+}
+
+// offsetSample is one measurement's contribution to a run's rotation estimate.
+type offsetSample struct {
+	h, n geom.Vec3 // down-hole direction and plane normal at the measurement
+}
+
+// estimateRotation returns the circular mean (see [CircMean]) of the
+// per-measurement beta offsets that bring each sample's normal onto the
+// reference axis ref, using only samples whose remaining misfit after the
+// best rotation is at most maxMisfit degrees (the others cannot be the same
+// fabric under any rotation of the mark) and whose offset is defined (see
+// [betaOffset]). It also returns the number of samples left out.
+//
+// The circular mean of the offsets is the rotation that maximises the sum of
+// cosines of the offset errors, the circular analogue of least squares.
+func estimateRotation(samples []offsetSample, ref geom.Vec3, maxMisfit float64, buf []float64) (CircularMean, int, []float64) {
+	buf = buf[:0]
+	excluded := 0
+	for _, s := range samples {
+		off, res, ok := betaOffset(s.h, s.n, ref)
+		if !ok || res > maxMisfit {
+			excluded++
+			continue
+		}
+		buf = append(buf, off)
+	}
+	return CircMean(buf), excluded, buf
+}
