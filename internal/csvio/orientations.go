@@ -1,0 +1,177 @@
+package csvio
+
+import (
+	"encoding/csv"
+	"errors"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+
+	"corvane/internal/domain"
+	"corvane/internal/geom"
+)
+
+// OrientationRow is one measurement read by [ReadOrientations]: a plane, a
+// line, or both (a plane with a lineation on it), with the hole direction at
+// its depth when the file gives it.
+type OrientationRow struct {
+	Line   int    // line number in the file, from 1 (the header is line 1)
+	HoleID string // hole_id column, "" when absent
+	Type   string // type column (e.g. "bedding", "joint"), "" when absent
+
+	HasPlane bool
+	Plane    geom.Plane // from dip, dip_direction
+
+	HasLine bool
+	LineDir geom.Line // from line_trend, line_plunge
+
+	HasHole bool
+	Hole    geom.Vec3 // down-hole unit vector from hole_azimuth, hole_dip (negative down)
+}
+
+// Orientation columns, matched case-insensitively after trimming spaces.
+const (
+	colDip          = "dip"
+	colDipDirection = "dip_direction"
+	colLineTrend    = "line_trend"
+	colLinePlunge   = "line_plunge"
+	colHoleAzimuth  = "hole_azimuth"
+	colHoleDip      = "hole_dip"
+	colType         = "type"
+	colHoleID       = "hole_id"
+)
+
+// ReadOrientations reads planes and lines from a CSV file whose header has
+// dip and dip_direction and/or line_trend and line_plunge (the columns
+// `corvane convert` writes; other columns such as hole_azimuth, hole_dip,
+// type and hole_id are used when present, and any further ones are ignored).
+// Header names are matched without regard to case. Lines starting with # are
+// comments. name is the file name used in messages.
+//
+// A row that cannot be used (a value that is not a number, out of range, half
+// of a pair missing, or no plane and no line at all) is left out and
+// reported in problems as a domain.Invalid error located at its file, line
+// and column; the other rows are still returned. err is non-nil only when the
+// file as a whole cannot be read: no header, or neither column pair present.
+func ReadOrientations(r io.Reader, name string) (rows []OrientationRow, problems []*domain.Error, err error) {
+	cr := csv.NewReader(r)
+	cr.Comment = '#'
+	cr.FieldsPerRecord = -1
+	cr.TrimLeadingSpace = true
+	header, err := cr.Read()
+	if err == io.EOF {
+		return nil, nil, domain.Errorf(domain.Invalid, "empty file, want a header line").At(domain.Location{File: name, Line: 1})
+	}
+	if err != nil {
+		return nil, nil, domain.Errorf(domain.Invalid, "reading the header: %w", err).At(domain.Location{File: name})
+	}
+	headerLine, _ := cr.FieldPos(0)
+	col := map[string]int{}
+	for i, h := range header {
+		h = strings.ToLower(strings.TrimSpace(strings.TrimPrefix(h, "\ufeff")))
+		if _, dup := col[h]; dup && h != "" {
+			return nil, nil, domain.Errorf(domain.Invalid, "column %q appears twice in the header", h).At(domain.Location{File: name, Line: headerLine})
+		}
+		col[h] = i
+	}
+	has := func(c string) bool { _, ok := col[c]; return ok }
+	planes := has(colDip) && has(colDipDirection)
+	lines := has(colLineTrend) && has(colLinePlunge)
+	if !planes && !lines {
+		return nil, nil, domain.Errorf(domain.Invalid,
+			"header has neither dip and dip_direction nor line_trend and line_plunge columns").At(domain.Location{File: name, Line: headerLine})
+	}
+	hole := has(colHoleAzimuth) && has(colHoleDip)
+
+	for {
+		rec, rerr := cr.Read()
+		if rerr == io.EOF {
+			break
+		}
+		if rerr != nil {
+			var pe *csv.ParseError
+			if errors.As(rerr, &pe) {
+				problems = append(problems, domain.Errorf(domain.Invalid, "%v", pe.Err).At(domain.Location{File: name, Line: pe.Line}))
+				continue
+			}
+			return rows, problems, domain.Errorf(domain.Invalid, "reading: %w", rerr).At(domain.Location{File: name})
+		}
+		line, _ := cr.FieldPos(0)
+		row := OrientationRow{Line: line}
+		loc := func(c string) domain.Location { return domain.Location{File: name, Line: line, Column: c} }
+		cell := func(c string) string {
+			i, ok := col[c]
+			if !ok || i >= len(rec) {
+				return ""
+			}
+			return strings.TrimSpace(rec[i])
+		}
+		var bad *domain.Error
+		// num parses the named column as a number in [lo, hi]; ok is false for an empty cell.
+		num := func(c string, lo, hi float64) (v float64, ok bool) {
+			s := cell(c)
+			if s == "" || bad != nil {
+				return 0, false
+			}
+			v, perr := strconv.ParseFloat(s, 64)
+			if perr != nil || math.IsNaN(v) || math.IsInf(v, 0) {
+				bad = domain.Errorf(domain.Invalid, "%q is not a number", s).At(loc(c))
+				return 0, false
+			}
+			if v < lo || v > hi {
+				bad = domain.Errorf(domain.Invalid, "%s %v is outside [%v, %v]", c, v, lo, hi).At(loc(c))
+				return 0, false
+			}
+			return v, true
+		}
+		pair := func(a, b string, alo, ahi, blo, bhi float64) (x, y float64, ok bool) {
+			x, okx := num(a, alo, ahi)
+			y, oky := num(b, blo, bhi)
+			if bad != nil {
+				return 0, 0, false
+			}
+			if okx != oky {
+				missing, given := a, b
+				if okx {
+					missing, given = b, a
+				}
+				bad = domain.Errorf(domain.Invalid, "%s is empty but %s is given", missing, given).At(loc(missing))
+				return 0, 0, false
+			}
+			return x, y, okx
+		}
+		if planes {
+			dip, dd, ok := pair(colDip, colDipDirection, 0, 90, 0, 360)
+			if ok {
+				row.HasPlane = true
+				row.Plane = geom.Plane{Dip: dip, DipDirection: geom.NormAzimuth(dd)}
+			}
+		}
+		if lines {
+			tr, pl, ok := pair(colLineTrend, colLinePlunge, 0, 360, 0, 90)
+			if ok {
+				row.HasLine = true
+				row.LineDir = geom.Line{Trend: geom.NormAzimuth(tr), Plunge: pl}
+			}
+		}
+		if hole {
+			az, dip, ok := pair(colHoleAzimuth, colHoleDip, 0, 360, -90, 90)
+			if ok {
+				row.HasHole = true
+				row.Hole = geom.HoleDirection(az, dip)
+			}
+		}
+		if bad == nil && !row.HasPlane && !row.HasLine {
+			bad = domain.Errorf(domain.Invalid, "no plane and no line on this row").At(domain.Location{File: name, Line: line})
+		}
+		if bad != nil {
+			problems = append(problems, bad)
+			continue
+		}
+		row.Type = cell(colType)
+		row.HoleID = cell(colHoleID)
+		rows = append(rows, row)
+	}
+	return rows, problems, nil
+}
