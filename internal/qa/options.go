@@ -1,9 +1,16 @@
 package qa
 
+import "corvane/internal/coreangle"
+
 // Options are the thresholds and choices of a QA run. A zero field takes its
 // default (see [DefaultOptions]); every default is stated with where it comes
 // from.
 type Options struct {
+	// Convention is the project's core-angle convention (reference line,
+	// beta apex). The zero value is bottom-of-hole line, beta to the
+	// down-hole apex. The report states it as text.
+	Convention coreangle.Convention `json:"-"`
+
 	// Feet reports whether depths are in feet; dogleg severity is then per
 	// 100 ft instead of per 30 m.
 	Feet bool `json:"feet,omitempty"`

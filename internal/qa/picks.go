@@ -1,6 +1,7 @@
 package qa
 
 import (
+	"fmt"
 	"math"
 	"sort"
 
@@ -115,4 +116,119 @@ func misfitStats(xs []float64) MisfitStats {
 		P90:    s[int(math.Ceil(0.9*float64(len(s))))-1],
 		Max:    s[len(s)-1],
 	}
+}
+
+// pickChecks compares the hole's core measurements (all types) with its
+// reference picks: depth shift, matching, misfit per hole and per run, the
+// beta offset each run's matches imply, and the items left unmatched.
+func pickChecks(h *holeData, o Options) []Finding {
+	var out []Finding
+	id := h.c.HoleID
+	hr := h.report
+	var picks []pickItem
+	for _, p := range h.picks {
+		if math.IsNaN(p.Depth) || p.Depth < 0 || !(p.Dip >= 0 && p.Dip <= 90) || !(p.DipDirection >= 0 && p.DipDirection <= 360) {
+			out = append(out, Finding{Check: CheckMeasurementInvalid, Severity: SeverityWarning, HoleID: id, Depth: p.Depth, Source: "picks", Line: p.Line,
+				Message: fmt.Sprintf("pick left out: depth %g, dip %g (0..90), dip direction %g (0..360)", p.Depth, p.Dip, p.DipDirection)})
+			continue
+		}
+		picks = append(picks, pickItem{depth: p.Depth, n: geom.Plane{Dip: p.Dip, DipDirection: p.DipDirection}.Normal(), line: p.Line})
+	}
+	var core []coreItem
+	for _, x := range h.ms {
+		if x.ok {
+			core = append(core, coreItem{depth: x.m.Depth, n: x.n, h: x.h, run: x.run, line: x.m.Line})
+		}
+	}
+	if len(picks) == 0 {
+		return out
+	}
+	w := o.PickWindow
+	s := estimateShift(picks, core, o.MaxDepthShift, o.ShiftStep, w)
+	match := matchPicks(picks, core, s, w)
+	var dz []float64
+	for i, c := range match {
+		if c >= 0 {
+			dz = append(dz, core[c].depth-(picks[i].depth+s))
+		}
+	}
+	if len(dz) > 0 {
+		s += median(dz)
+		match = matchPicks(picks, core, s, w)
+	}
+
+	hp := &HolePicks{Shift: s, Picks: len(picks)}
+	nr := len(h.runs)
+	runMis := make([][]float64, nr)
+	runOff := make([][]float64, nr)
+	runExcl := make([]int, nr)
+	var all []float64
+	used := make([]bool, len(core))
+	for i, c := range match {
+		p := picks[i]
+		if c < 0 {
+			hp.UnmatchedPicks = append(hp.UnmatchedPicks, Unmatched{Line: p.line, Depth: p.depth})
+			continue
+		}
+		used[c] = true
+		ci := core[c]
+		mis := geom.AxialAngle(p.n, ci.n)
+		all = append(all, mis)
+		hp.Matches = append(hp.Matches, PickMatch{PickLine: p.line, MeasurementLine: ci.line, PickDepth: p.depth, CoreDepth: ci.depth, Misfit: mis})
+		if ci.run < 0 {
+			continue
+		}
+		runMis[ci.run] = append(runMis[ci.run], mis)
+		if off, res, ok := betaOffset(ci.h, ci.n, p.n); ok && res <= o.FabricMisfit {
+			runOff[ci.run] = append(runOff[ci.run], off)
+		} else {
+			runExcl[ci.run]++
+		}
+	}
+	hp.Matched = len(all)
+	hp.Misfit = misfitStats(all)
+	lo, hi := math.Inf(1), math.Inf(-1)
+	for _, p := range picks {
+		lo, hi = math.Min(lo, p.depth+s-w), math.Max(hi, p.depth+s+w)
+	}
+	for i, c := range core {
+		if !used[i] && c.depth >= lo && c.depth <= hi {
+			hp.UnmatchedCore++
+			hp.UnmatchedCoreItems = append(hp.UnmatchedCoreItems, Unmatched{Line: c.line, Depth: c.depth})
+		}
+	}
+	hr.Picks = hp
+
+	if math.Abs(s) >= o.ShiftStep {
+		out = append(out, Finding{Check: CheckPickShift, Severity: SeverityInfo, HoleID: id, Depth: 0, Size: s, Source: "picks",
+			Message: fmt.Sprintf("the picks' depth scale differs from the core's by a constant %+.2f (core depth = pick depth %+.2f), estimated from %d matches", s, s, hp.Matched)})
+	}
+	if len(hp.UnmatchedPicks) > 0 {
+		out = append(out, Finding{Check: CheckPickUnmatched, Severity: SeverityInfo, HoleID: id, Depth: hp.UnmatchedPicks[0].Depth,
+			Size: float64(len(hp.UnmatchedPicks)), Source: "picks",
+			Message: fmt.Sprintf("%d of %d picks found no core measurement within %.2f after the depth shift; %d core measurements in the picked interval found no pick",
+				len(hp.UnmatchedPicks), len(picks), w, hp.UnmatchedCore)})
+	}
+	for r := 0; r < nr; r++ {
+		if len(runMis[r]) == 0 {
+			continue
+		}
+		rp := &RunPicks{Misfit: misfitStats(runMis[r])}
+		if len(runOff[r]) > 0 {
+			cm := CircMean(runOff[r])
+			e := &RotationEstimate{Offset: cm.Mean, SE: cm.SE, HalfWidth95: cm.HalfWidth95, Rbar: cm.Rbar, N: cm.N, Excluded: runExcl[r],
+				ReferenceN: cm.N, RefSource: "picks"}
+			e.Flagged = cm.N >= o.MinRunCount && math.Abs(cm.Mean) > o.RotationThreshold && cm.Excludes0()
+			rp.Offset = e
+			if e.Flagged {
+				run := h.runs[r]
+				out = append(out, Finding{Check: CheckPickOffset, Severity: SeverityFlag, HoleID: id, Depth: run.From, DepthTo: run.To,
+					Size: math.Abs(e.Offset), Unit: "deg", Source: "runs", Line: run.Line,
+					Message: fmt.Sprintf("run %.2f-%.2f: %d matched reference picks imply a beta offset of %+.1f deg +- %.1f (95%%); median misfit %.1f deg",
+						run.From, run.To, cm.N, e.Offset, e.HalfWidth95, rp.Misfit.Median)})
+			}
+		}
+		hr.Runs[r].Picks = rp
+	}
+	return out
 }

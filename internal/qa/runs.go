@@ -62,7 +62,7 @@ func (c *Coverage) shares() {
 // runChecks fills the hole's run reports and coverage from runs sorted by
 // From, and returns findings on overlaps, runs past the final depth and mark
 // mismatches.
-func runChecks(c Collar, runs []Run, o Options, hr *HoleReport) []Finding {
+func runChecks(c Collar, runs []OrientationRun, o Options, hr *HoleReport) []Finding {
 	var out []Finding
 	var all, conf, unus [][2]float64
 	hr.Runs = make([]RunReport, len(runs))
@@ -107,7 +107,7 @@ func runChecks(c Collar, runs []Run, o Options, hr *HoleReport) []Finding {
 // runAt returns the index of the run containing depth (From <= depth <= To)
 // in runs sorted by From, preferring the later run at a shared boundary;
 // -1 when none.
-func runAt(runs []Run, depth float64) int {
+func runAt(runs []OrientationRun, depth float64) int {
 	// First run with From > depth; candidates are before it.
 	k := sort.Search(len(runs), func(i int) bool { return runs[i].From > depth })
 	for i := k - 1; i >= 0 && i >= k-3; i-- {

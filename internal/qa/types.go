@@ -33,11 +33,11 @@ type Station struct {
 	Line     int     `json:"line,omitempty"`
 }
 
-// Run is one orientation run: the core between From and To carries one
+// OrientationRun is one orientation run: the core between From and To carries one
 // orientation mark. Confidence is the logger's rating of the mark; Mismatch
 // is the angle in degrees seen between this run's mark and the previous
 // run's across the break at From (nil when not recorded).
-type Run struct {
+type OrientationRun struct {
 	HoleID     string   `json:"hole_id"`
 	From       float64  `json:"from"`
 	To         float64  `json:"to"`
@@ -77,12 +77,12 @@ type MagneticZone struct {
 
 // Input is everything one QA run looks at. Nothing in it is changed.
 type Input struct {
-	Collars       []Collar       `json:"collars"`
-	Surveys       []Station      `json:"surveys"`
-	Runs          []Run          `json:"runs"`
-	Measurements  []Measurement  `json:"measurements"`
-	Picks         []Pick         `json:"picks,omitempty"`
-	MagneticZones []MagneticZone `json:"magnetic_zones,omitempty"`
+	Collars       []Collar         `json:"collars"`
+	Surveys       []Station        `json:"surveys"`
+	Runs          []OrientationRun `json:"runs"`
+	Measurements  []Measurement    `json:"measurements"`
+	Picks         []Pick           `json:"picks,omitempty"`
+	MagneticZones []MagneticZone   `json:"magnetic_zones,omitempty"`
 }
 
 // Severity of a finding.
@@ -308,11 +308,14 @@ type Summary struct {
 
 // Report is the result of [Run].
 type Report struct {
-	Caution  string         `json:"caution"`
-	Options  Options        `json:"options"`
-	Summary  Summary        `json:"summary"`
-	Holes    []HoleReport   `json:"holes"`
-	Digits   []DigitTest    `json:"digit_preference"`
-	BetaZero []BetaZeroTest `json:"beta_zero"`
-	Findings []Finding      `json:"findings"`
+	Caution string `json:"caution"`
+	// Convention is the core-angle convention the measurements were read
+	// with, in the command-line words.
+	Convention string         `json:"convention"`
+	Options    Options        `json:"options"`
+	Summary    Summary        `json:"summary"`
+	Holes      []HoleReport   `json:"holes"`
+	Digits     []DigitTest    `json:"digit_preference"`
+	BetaZero   []BetaZeroTest `json:"beta_zero"`
+	Findings   []Finding      `json:"findings"`
 }
