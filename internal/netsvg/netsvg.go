@@ -1,0 +1,434 @@
+// Package netsvg draws lower-hemisphere nets and rose diagrams as SVG
+// documents written to an io.Writer.
+//
+// The sheets are meant for reports: a white background, black line work,
+// text in a plain sans-serif face, set colours from the Okabe-Ito palette
+// (Okabe & Ito 2008, "Color Universal Design", a palette published to stay
+// distinguishable with common colour-vision deficiencies) and a different
+// marker shape for each set, so that a greyscale print still tells them apart.
+// Density fills use a light-to-dark ramp whose lightness falls steadily, so the
+// order of the levels survives greyscale printing too.
+//
+// netsvg imports only the standard library and corvane's math packages.
+package netsvg
+
+import (
+	"bufio"
+	"encoding/xml"
+	"fmt"
+	"io"
+	"math"
+	"strings"
+
+	"corvane/internal/geom"
+	"corvane/internal/projection"
+)
+
+// Okabe-Ito colours in the order sets use them (black is last and is also the
+// colour of line work).
+var setColours = []string{"#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9", "#F0E442", "#000000"}
+
+// densityRamp runs from light to dark with falling lightness.
+var densityRamp = []string{"#f3f0df", "#d4e4c4", "#a3cdb3", "#6fb0a6", "#46899a", "#2f6488", "#27426d", "#1c2549"}
+
+// shapes cycles with the colours; 8 sets get 8 different pairs.
+var shapes = []string{"circle", "square", "triangle", "diamond", "down", "hexagon", "star", "cross"}
+
+// Mark is a pole or a line to plot. Set is the index into Net.Sets, or -1.
+type Mark struct {
+	Axis geom.Vec3
+	Set  int
+}
+
+// PlaneMark is a plane drawn as a great circle.
+type PlaneMark struct {
+	Plane geom.Plane
+	Set   int
+}
+
+// SetMark is a set's mean axis with its cone of confidence (degrees; 0 or NaN
+// for none), drawn as a large marker and a small circle.
+type SetMark struct {
+	Name  string
+	Mean  geom.Vec3
+	Cone  float64
+	Count int
+	Lines bool // a set of lines rather than poles
+}
+
+// Net is everything one net sheet shows.
+type Net struct {
+	Projection projection.Kind
+	Title      string
+	Subtitle   string // e.g. the input file
+	Poles      []Mark // poles of planes
+	Planes     []PlaneMark
+	Lines      []Mark
+	Sets       []SetMark
+	Density    *Contours // nil for none
+	Notes      []string  // further lines for the side panel (counts, weighting)
+	Caution    string    // printed at the foot of the sheet
+}
+
+// sheet geometry in SVG user units (1/96 inch)
+const (
+	sheetW  = 860.0
+	sheetH  = 660.0
+	netCX   = 315.0
+	netCY   = 335.0
+	netR    = 250.0
+	panelX  = 620.0
+	fontCSS = "font-family:'DejaVu Sans',Helvetica,Arial,sans-serif"
+)
+
+type svgw struct {
+	w   *bufio.Writer
+	err error
+}
+
+func (s *svgw) printf(format string, args ...any) {
+	if s.err != nil {
+		return
+	}
+	_, s.err = fmt.Fprintf(s.w, format, args...)
+}
+
+func esc(t string) string {
+	var b strings.Builder
+	_ = xml.EscapeText(&b, []byte(t))
+	return b.String()
+}
+
+func netXY(p projection.Point) (float64, float64) {
+	return netCX + netR*p.X, netCY - netR*p.Y
+}
+
+func pathOf(pts []projection.Point, closed bool) string {
+	var b strings.Builder
+	for i, p := range pts {
+		x, y := netXY(p)
+		if i == 0 {
+			fmt.Fprintf(&b, "M%.2f %.2f", x, y)
+		} else {
+			fmt.Fprintf(&b, "L%.2f %.2f", x, y)
+		}
+	}
+	if closed {
+		b.WriteString("Z")
+	}
+	return b.String()
+}
+
+// marker writes a marker of the given shape centred at (x, y) with size r.
+func (s *svgw) marker(shape string, x, y, r float64, attrs string) {
+	switch shape {
+	case "circle":
+		s.printf(`<circle cx="%.2f" cy="%.2f" r="%.2f" %s/>`+"\n", x, y, r, attrs)
+	case "square":
+		q := r * 0.89
+		s.printf(`<rect x="%.2f" y="%.2f" width="%.2f" height="%.2f" %s/>`+"\n", x-q, y-q, 2*q, 2*q, attrs)
+	default:
+		var pts [][2]float64
+		poly := func(n int, rot, rr float64) {
+			for k := 0; k < n; k++ {
+				a := rot + 2*math.Pi*float64(k)/float64(n)
+				pts = append(pts, [2]float64{x + rr*math.Sin(a), y - rr*math.Cos(a)})
+			}
+		}
+		switch shape {
+		case "triangle":
+			poly(3, 0, r*1.25)
+		case "down":
+			poly(3, math.Pi, r*1.25)
+		case "diamond":
+			poly(4, 0, r*1.2)
+		case "hexagon":
+			poly(6, math.Pi/6, r*1.05)
+		case "star":
+			for k := 0; k < 10; k++ {
+				rr := r * 1.35
+				if k%2 == 1 {
+					rr = r * 0.6
+				}
+				a := math.Pi * float64(k) / 5
+				pts = append(pts, [2]float64{x + rr*math.Sin(a), y - rr*math.Cos(a)})
+			}
+		case "cross":
+			w := r * 0.45
+			for _, p := range [][2]float64{{-w, -r}, {w, -r}, {w, -w}, {r, -w}, {r, w}, {w, w}, {w, r}, {-w, r}, {-w, w}, {-r, w}, {-r, -w}, {-w, -w}} {
+				pts = append(pts, [2]float64{x + p[0]*1.2, y + p[1]*1.2})
+			}
+		}
+		var b strings.Builder
+		for i, p := range pts {
+			if i > 0 {
+				b.WriteByte(' ')
+			}
+			fmt.Fprintf(&b, "%.2f,%.2f", p[0], p[1])
+		}
+		s.printf(`<polygon points="%s" %s/>`+"\n", b.String(), attrs)
+	}
+}
+
+func setStyle(i int) (colour, shape string) {
+	if i < 0 {
+		return "#6b6b6b", "circle"
+	}
+	return setColours[i%len(setColours)], shapes[i%len(shapes)]
+}
+
+// WriteNet writes the net n as a complete SVG document to w.
+func WriteNet(w io.Writer, n Net) error {
+	s := &svgw{w: bufio.NewWriter(w)}
+	s.printf(`<?xml version="1.0" encoding="UTF-8"?>` + "\n")
+	s.printf(`<svg xmlns="http://www.w3.org/2000/svg" width="%.0f" height="%.0f" viewBox="0 0 %.0f %.0f" style="%s">`+"\n",
+		sheetW, sheetH, sheetW, sheetH, fontCSS)
+	title := n.Title
+	if title == "" {
+		title = "Net"
+	}
+	s.printf("<title>%s</title>\n", esc(title))
+	s.printf(`<rect width="100%%" height="100%%" fill="#ffffff"/>` + "\n")
+	s.printf(`<defs><clipPath id="primitive"><circle cx="%.2f" cy="%.2f" r="%.2f"/></clipPath></defs>`+"\n", netCX, netCY, netR)
+
+	// Density fills, clipped to the primitive circle.
+	if c := n.Density; c != nil && len(c.Levels) > 0 {
+		s.printf(`<g id="density" clip-path="url(#primitive)" fill-rule="evenodd">` + "\n")
+		for k, lvl := range c.Levels {
+			rs := rings(c.Grid, c.Extent, lvl)
+			if len(rs) == 0 {
+				continue
+			}
+			var d strings.Builder
+			for _, r := range rs {
+				d.WriteString(pathOf(r, true))
+			}
+			s.printf(`<path d="%s" fill="%s" stroke="#3a3a3a" stroke-width="0.4" stroke-opacity="0.6"><title>&#8805; %s %s</title></path>`+"\n",
+				d.String(), rampColour(k, len(c.Levels)), fmtNum(lvl), esc(c.Unit))
+		}
+		s.printf("</g>\n")
+	}
+
+	// Primitive circle, centre cross, tick ring and north mark.
+	s.printf(`<circle cx="%.2f" cy="%.2f" r="%.2f" fill="none" stroke="#000" stroke-width="1.3"/>`+"\n", netCX, netCY, netR)
+	s.printf(`<path d="M%.2f %.2fh12M%.2f %.2fv12" stroke="#000" stroke-width="0.8"/>`+"\n", netCX-6, netCY, netCX, netCY-6)
+	s.printf(`<g id="ticks" stroke="#000" stroke-width="0.8">` + "\n")
+	for a := 0; a < 360; a += 10 {
+		l := 5.0
+		if a%30 == 0 {
+			l = 9
+		}
+		sa, ca := math.Sincos(geom.Rad(float64(a)))
+		s.printf(`<line x1="%.2f" y1="%.2f" x2="%.2f" y2="%.2f"/>`+"\n",
+			netCX+netR*sa, netCY-netR*ca, netCX+(netR+l)*sa, netCY-(netR+l)*ca)
+	}
+	s.printf("</g>\n")
+	s.printf(`<g font-size="10" fill="#444" text-anchor="middle">` + "\n")
+	for a := 30; a < 360; a += 30 {
+		sa, ca := math.Sincos(geom.Rad(float64(a)))
+		s.printf(`<text x="%.2f" y="%.2f">%03d</text>`+"\n", netCX+(netR+20)*sa, netCY-(netR+20)*ca+3.5, a)
+	}
+	s.printf("</g>\n")
+	// north mark: a solid arrowhead above the primitive and the letter N
+	s.printf(`<path d="M%.2f %.2fl-6 12h12z" fill="#000"/>`+"\n", netCX, netCY-netR-24)
+	s.printf(`<text x="%.2f" y="%.2f" font-size="15" font-weight="bold" text-anchor="middle">N</text>`+"\n", netCX, netCY-netR-29)
+
+	// Great circles.
+	if len(n.Planes) > 0 {
+		s.printf(`<g id="planes" fill="none" stroke-width="0.7">` + "\n")
+		for _, pm := range n.Planes {
+			col, _ := setStyle(pm.Set)
+			if pm.Set < 0 {
+				col = "#8a8a8a"
+			}
+			s.printf(`<path d="%s" stroke="%s"/>`+"\n", pathOf(n.Projection.GreatCircle(pm.Plane, 90), false), col)
+		}
+		s.printf("</g>\n")
+	}
+
+	// Poles (filled) and lines (open).
+	if len(n.Poles) > 0 {
+		s.printf(`<g id="poles" stroke="#ffffff" stroke-width="0.6">` + "\n")
+		for _, m := range n.Poles {
+			col, shape := setStyle(m.Set)
+			x, y := netXY(n.Projection.Project(m.Axis))
+			r := 3.2
+			if m.Set < 0 {
+				r = 2.4
+			}
+			s.marker(shape, x, y, r, fmt.Sprintf(`fill="%s"`, col))
+		}
+		s.printf("</g>\n")
+	}
+	if len(n.Lines) > 0 {
+		s.printf(`<g id="lines" fill="#ffffff" stroke-width="1.3">` + "\n")
+		for _, m := range n.Lines {
+			col, shape := setStyle(m.Set)
+			x, y := netXY(n.Projection.Project(m.Axis))
+			s.marker(shape, x, y, 3.4, fmt.Sprintf(`stroke="%s"`, col))
+		}
+		s.printf("</g>\n")
+	}
+
+	// Set means and cones.
+	if len(n.Sets) > 0 {
+		s.printf(`<g id="sets">` + "\n")
+		for i, st := range n.Sets {
+			col, shape := setStyle(i)
+			if st.Cone > 0 && !math.IsNaN(st.Cone) {
+				parts, closed := n.Projection.SmallCircle(st.Mean, st.Cone, 180)
+				for _, p := range parts {
+					d := pathOf(p, closed)
+					s.printf(`<path d="%s" fill="none" stroke="#ffffff" stroke-width="3.6"/>`+"\n", d)
+					s.printf(`<path d="%s" fill="none" stroke="%s" stroke-width="1.6"/>`+"\n", d, col)
+				}
+			}
+			x, y := netXY(n.Projection.Project(st.Mean))
+			s.marker(shape, x, y, 6.5, fmt.Sprintf(`fill="%s" stroke="#000" stroke-width="1.4"`, col))
+			s.printf(`<text x="%.2f" y="%.2f" font-size="12" font-weight="bold" stroke="#fff" stroke-width="3" paint-order="stroke">%s</text>`+"\n",
+				x+9, y-8, esc(st.Name))
+		}
+		s.printf("</g>\n")
+	}
+
+	s.panel(n)
+	s.printf("</svg>\n")
+	if s.err != nil {
+		return s.err
+	}
+	return s.w.Flush()
+}
+
+func rampColour(k, n int) string {
+	if n <= 1 {
+		return densityRamp[len(densityRamp)/2]
+	}
+	i := int(math.Round(float64(k) * float64(len(densityRamp)-1) / float64(n-1)))
+	return densityRamp[i]
+}
+
+func fmtNum(v float64) string {
+	if v == math.Trunc(v) {
+		return fmt.Sprintf("%.0f", v)
+	}
+	return strings.TrimRight(strings.TrimRight(fmt.Sprintf("%.2f", v), "0"), ".")
+}
+
+// panel writes the side panel: title, projection, counts, sets, density
+// legend, and the caution at the foot of the sheet.
+func (s *svgw) panel(n Net) {
+	y := 40.0
+	line := func(size float64, weight, text string) {
+		s.printf(`<text x="%.1f" y="%.1f" font-size="%.0f"%s>%s</text>`+"\n", panelX, y, size, weight, esc(text))
+		y += size + 6
+	}
+	s.printf(`<text x="24" y="34" font-size="18" font-weight="bold">%s</text>`+"\n", esc(orDefault(n.Title, "Net")))
+	if n.Subtitle != "" {
+		s.printf(`<text x="24" y="54" font-size="11" fill="#444">%s</text>`+"\n", esc(n.Subtitle))
+	}
+	line(13, ` font-weight="bold"`, "Lower hemisphere")
+	line(12, "", n.Projection.String()+" projection")
+	y += 6
+	if len(n.Poles) > 0 {
+		line(11, "", fmt.Sprintf("%d poles to planes", len(n.Poles)))
+	}
+	if len(n.Planes) > 0 {
+		line(11, "", fmt.Sprintf("%d great circles", len(n.Planes)))
+	}
+	if len(n.Lines) > 0 {
+		line(11, "", fmt.Sprintf("%d lines", len(n.Lines)))
+	}
+	for _, note := range n.Notes {
+		line(11, "", note)
+	}
+	// symbol key
+	if len(n.Poles) > 0 || len(n.Lines) > 0 {
+		y += 4
+		if len(n.Poles) > 0 {
+			s.marker("circle", panelX+5, y-4, 3.2, `fill="#6b6b6b"`)
+			s.printf(`<text x="%.1f" y="%.1f" font-size="11">pole (filled)</text>`+"\n", panelX+16, y)
+			y += 16
+		}
+		if len(n.Lines) > 0 {
+			s.marker("circle", panelX+5, y-4, 3.4, `fill="#fff" stroke="#6b6b6b" stroke-width="1.3"`)
+			s.printf(`<text x="%.1f" y="%.1f" font-size="11">line (open)</text>`+"\n", panelX+16, y)
+			y += 16
+		}
+	}
+	if len(n.Sets) > 0 {
+		y += 8
+		line(12, ` font-weight="bold"`, "Sets: mean and 95% cone")
+		for i, st := range n.Sets {
+			col, shape := setStyle(i)
+			s.marker(shape, panelX+7, y-4, 5.5, fmt.Sprintf(`fill="%s" stroke="#000" stroke-width="1.2"`, col))
+			t, p := geom.LineOf(st.Mean).Trend, geom.LineOf(st.Mean).Plunge
+			desc := fmt.Sprintf("%s  n=%d  %03.0f/%02.0f", st.Name, st.Count, t, p)
+			if !st.Lines {
+				pl := geom.PlaneOf(st.Mean)
+				desc = fmt.Sprintf("%s  n=%d  plane %02.0f/%03.0f", st.Name, st.Count, pl.Dip, pl.DipDirection)
+			}
+			if st.Cone > 0 && !math.IsNaN(st.Cone) {
+				desc += fmt.Sprintf("  \u00b1%.1f\u00b0", st.Cone)
+			}
+			s.printf(`<text x="%.1f" y="%.1f" font-size="11">%s</text>`+"\n", panelX+18, y, esc(desc))
+			y += 17
+		}
+		if len(n.Sets) > 0 && !n.Sets[0].Lines {
+			line(9, ` fill="#444"`, "plane = dip/dip direction of the mean pole")
+		}
+	}
+	if c := n.Density; c != nil && len(c.Levels) > 0 {
+		y += 10
+		line(12, ` font-weight="bold"`, "Density of poles")
+		line(10, ` fill="#444"`, c.Method)
+		unit := c.Unit
+		if unit == "MUD" {
+			unit = "multiples of uniform density"
+		}
+		line(10, ` fill="#444"`, "contours in "+unit)
+		for k := len(c.Levels) - 1; k >= 0; k-- {
+			lo := c.Levels[k]
+			label := "\u2265 " + fmtNum(lo)
+			if k < len(c.Levels)-1 {
+				label = fmtNum(lo) + " \u2013 " + fmtNum(c.Levels[k+1])
+			}
+			s.printf(`<rect x="%.1f" y="%.1f" width="22" height="13" fill="%s" stroke="#3a3a3a" stroke-width="0.5"/>`+"\n",
+				panelX, y-11, rampColour(k, len(c.Levels)))
+			s.printf(`<text x="%.1f" y="%.1f" font-size="11">%s</text>`+"\n", panelX+30, y, esc(label))
+			y += 16
+		}
+		mt, mp := geom.LineOf(c.MaxAt).Trend, geom.LineOf(c.MaxAt).Plunge
+		line(10, ` fill="#444"`, fmt.Sprintf("maximum %s at %03.0f/%02.0f", fmtNum(math.Round(c.Max*100)/100), mt, mp))
+	}
+	if n.Caution != "" {
+		s.wrapped(24, sheetH-38, 112, 9.5, n.Caution)
+	}
+}
+
+// wrapped writes text broken into lines of at most width characters.
+func (s *svgw) wrapped(x, y float64, width int, size float64, text string) {
+	words := strings.Fields(text)
+	var cur string
+	for _, w := range words {
+		if cur != "" && len(cur)+1+len(w) > width {
+			s.printf(`<text x="%.1f" y="%.1f" font-size="%.1f" fill="#333" font-style="italic">%s</text>`+"\n", x, y, size, esc(cur))
+			y += size + 4
+			cur = w
+			continue
+		}
+		if cur != "" {
+			cur += " "
+		}
+		cur += w
+	}
+	if cur != "" {
+		s.printf(`<text x="%.1f" y="%.1f" font-size="%.1f" fill="#333" font-style="italic">%s</text>`+"\n", x, y, size, esc(cur))
+	}
+}
+
+func orDefault(s, d string) string {
+	if s == "" {
+		return d
+	}
+	return s
+}
