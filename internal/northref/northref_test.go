@@ -213,3 +213,28 @@ func BenchmarkCorrections(b *testing.B) {
 		_, _ = Corrections("EPSG:32750", 391250, 6465480, 312, d, true, true)
 	}
 }
+
+// FuzzParseCRS: a label is either refused with a crs error or gives a valid
+// zone whose canonical label parses back to the same thing.
+func FuzzParseCRS(f *testing.F) {
+	for _, s := range []string{"EPSG:32750", "epsg:32601", "EPSG:32700", "EPSG:4326", "", "EPSG:-32750", "EPSG: 32750"} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		c, err := ParseCRS(s)
+		if err != nil {
+			var e *Error
+			if !errors.As(err, &e) || e.Field != FieldCRS {
+				t.Fatalf("ParseCRS(%q): %v is not a crs error", s, err)
+			}
+			return
+		}
+		if c.Zone.Valid() != nil {
+			t.Fatalf("ParseCRS(%q) accepted zone %v", s, c.Zone)
+		}
+		c2, err := ParseCRS(c.String())
+		if err != nil || c2 != c {
+			t.Fatalf("ParseCRS(%q) = %v does not round trip: %v %v", s, c, c2, err)
+		}
+	})
+}

@@ -27,8 +27,8 @@ func isLeap(y int) bool { return y%4 == 0 && (y%100 != 0 || y%400 == 0) }
 
 // ParseDate reads a date given either as YYYY-MM-DD (turned into a decimal
 // year by [DecimalYear]) or as a decimal year such as "2027.5". Surrounding
-// spaces are ignored. A decimal year must lie in 1900..2200 so that a
-// day or month typed alone is not taken for a year. Errors quote the text.
+// spaces are ignored. The year must lie in 1900..2200, so that a day or
+// month typed alone is not taken for a year. Errors quote the text.
 func ParseDate(s string) (float64, error) {
 	s = strings.TrimSpace(s)
 	if s == "" {
@@ -38,6 +38,9 @@ func ParseDate(s string) (float64, error) {
 		t, err := time.Parse("2006-01-02", s)
 		if err != nil {
 			return 0, fmt.Errorf("date %q is not a valid YYYY-MM-DD calendar date", s)
+		}
+		if t.Year() < 1900 || t.Year() > 2200 {
+			return 0, fmt.Errorf("date %q is outside the years 1900..2200", s)
 		}
 		return DecimalYear(t), nil
 	}

@@ -249,3 +249,41 @@ func BenchmarkAt(b *testing.B) {
 		_, _ = m.At(-31.95, 115.86, 0.03, 2026.4)
 	}
 }
+
+// FuzzParseDate: any text either fails or gives a year in 1900..2200 that a
+// second parse of its own decimal form reproduces.
+func FuzzParseDate(f *testing.F) {
+	for _, s := range []string{"2025-01-01", "2027.5", "2028-02-29", "-2025-01-01", "1e3", "2025-1-1", " 2026 "} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		y, err := ParseDate(s)
+		if err != nil {
+			return
+		}
+		if y < 1900 || y > 2200 || math.IsNaN(y) {
+			t.Fatalf("ParseDate(%q) = %v", s, y)
+		}
+		y2, err := ParseDate(strconv.FormatFloat(y, 'f', -1, 64))
+		if err != nil || y2 != y {
+			t.Fatalf("ParseDate(%q) = %v does not reparse: %v %v", s, y, y2, err)
+		}
+	})
+}
+
+// FuzzParse: the coefficient parser never panics and, when it accepts a
+// file, every coefficient up to the model degree is present.
+func FuzzParse(f *testing.F) {
+	f.Add(string(wmm2025))
+	f.Add("2025.0 X\n1 0 1 0 0 0\n1 1 1 1 0 0\n")
+	f.Add("2025.0 X\n1 0 1 0 0 0\n")
+	f.Fuzz(func(t *testing.T, s string) {
+		m, err := Parse(strings.NewReader(s))
+		if err != nil {
+			return
+		}
+		if m.MaxDeg < 1 || len(m.g) != idx(m.MaxDeg, m.MaxDeg)+1 {
+			t.Fatalf("accepted model of degree %d with %d coefficients", m.MaxDeg, len(m.g))
+		}
+	})
+}
