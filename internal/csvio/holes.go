@@ -1,0 +1,304 @@
+package csvio
+
+import (
+	"io"
+	"math"
+	"strconv"
+	"strings"
+	"time"
+
+	"corvane/internal/desurvey"
+)
+
+// CollarRow is one row of a collars file.
+type CollarRow struct {
+	Line   int // line in the file (the header is line 1)
+	HoleID string
+	// Collar holds easting, northing, elevation, azimuth, dip and final depth.
+	Collar desurvey.Collar
+	// Declination and GridConvergence are the optional per-hole corrections
+	// in degrees; NaN when the cell is empty or the column absent.
+	Declination, GridConvergence float64
+	// AzimuthRef is the reference of the collar azimuth: "true", "grid",
+	// "magnetic", or "" when not given.
+	AzimuthRef string
+	// CRS is the coordinate system label of the collar (e.g. EPSG:32750), ""
+	// when not given.
+	CRS string
+}
+
+// CollarColumns are the required columns of a collars file.
+var CollarColumns = []string{ColHoleID, ColEasting, ColNorthing, ColElevation, ColAzimuth, ColDip, ColDepth}
+
+// ReadCollars reads a whole collars file: required columns hole_id, easting,
+// northing, elevation, azimuth (0..360), dip (-90..90, negative down) and
+// depth (> 0); optional declination, grid_convergence, azimuth_reference and
+// crs. Hole ids must be unique (compared exactly, after trimming spaces).
+//
+// file names the file in messages. A missing column or broken CSV is an
+// error at once; bad rows are all reported, one problem each, in one error
+// (see the package doc). On error no rows are returned.
+func ReadCollars(r io.Reader, file string) ([]CollarRow, error) {
+	cr := newReader(r)
+	h, err := readHeader(cr, file, CollarColumns...)
+	if err != nil {
+		return nil, err
+	}
+	var rows []CollarRow
+	c := collect{file: file}
+	seen := map[string]int{}
+	for {
+		rec, err := cr.Read()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return nil, parseErr(file, err)
+		}
+		line, _ := cr.FieldPos(0)
+		rw := row{file: file, line: line, h: h, rec: rec}
+		if len(rec) != len(h.Names) {
+			rw.fail("", "row has %d fields, the header has %d", len(rec), len(h.Names))
+			c.add(rw.bad)
+			continue
+		}
+		cw := CollarRow{Line: line, HoleID: rw.cell(ColHoleID)}
+		if cw.HoleID == "" {
+			rw.fail(ColHoleID, "hole_id is empty")
+		} else if prev, dup := seen[cw.HoleID]; dup {
+			rw.fail(ColHoleID, "hole %q is already on line %d", cw.HoleID, prev)
+		}
+		var ok bool
+		cw.Collar.East, _ = rw.num(ColEasting, true)
+		cw.Collar.North, _ = rw.num(ColNorthing, true)
+		cw.Collar.Elevation, _ = rw.num(ColElevation, true)
+		cw.Collar.Azimuth, ok = rw.num(ColAzimuth, true)
+		rw.inRange(ColAzimuth, cw.Collar.Azimuth, ok, 0, 360)
+		cw.Collar.Dip, ok = rw.num(ColDip, true)
+		rw.inRange(ColDip, cw.Collar.Dip, ok, -90, 90)
+		cw.Collar.Depth, ok = rw.num(ColDepth, true)
+		if ok && cw.Collar.Depth <= 0 {
+			rw.fail(ColDepth, "depth %g must be greater than 0", cw.Collar.Depth)
+		}
+		cw.Declination, ok = rw.num(ColDeclination, false)
+		rw.inRange(ColDeclination, cw.Declination, ok, -180, 180)
+		cw.GridConvergence, ok = rw.num(ColGridConvergence, false)
+		rw.inRange(ColGridConvergence, cw.GridConvergence, ok, -180, 180)
+		if ref, err := ParseAzimuthRef(rw.cell(ColAzimuthRef)); err != nil {
+			rw.fail(ColAzimuthRef, "%v", err)
+		} else {
+			cw.AzimuthRef = ref
+		}
+		cw.CRS = rw.cell(ColCRS)
+		if rw.bad != nil {
+			c.add(rw.bad)
+			continue
+		}
+		seen[cw.HoleID] = line
+		rows = append(rows, cw)
+	}
+	if err := c.err("collar"); err != nil {
+		return nil, err
+	}
+	return rows, nil
+}
+
+// SurveyRow is one row of a surveys file.
+type SurveyRow struct {
+	Line    int
+	HoleID  string
+	Station desurvey.Station
+	// AzimuthRef is "true", "grid", "magnetic", or "" when not given.
+	AzimuthRef string
+	// Date is the survey date (survey_date column, YYYY-MM-DD); zero when
+	// not given.
+	Date time.Time
+}
+
+// SurveyColumns are the required columns of a surveys file.
+var SurveyColumns = []string{ColHoleID, ColDepth, ColAzimuth, ColDip}
+
+// ReadSurveys reads a whole surveys file: hole_id, depth (>= 0), azimuth
+// (0..360) and dip (-90..90); optional azimuth_reference and survey_date.
+// The stations of each hole must come in strictly increasing depth order (the
+// holes may be interleaved). Errors as for [ReadCollars].
+func ReadSurveys(r io.Reader, file string) ([]SurveyRow, error) {
+	cr := newReader(r)
+	h, err := readHeader(cr, file, SurveyColumns...)
+	if err != nil {
+		return nil, err
+	}
+	type last struct {
+		depth float64
+		line  int
+	}
+	prev := map[string]last{}
+	var rows []SurveyRow
+	c := collect{file: file}
+	for {
+		rec, err := cr.Read()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return nil, parseErr(file, err)
+		}
+		line, _ := cr.FieldPos(0)
+		rw := row{file: file, line: line, h: h, rec: rec}
+		if len(rec) != len(h.Names) {
+			rw.fail("", "row has %d fields, the header has %d", len(rec), len(h.Names))
+			c.add(rw.bad)
+			continue
+		}
+		s := SurveyRow{Line: line, HoleID: rw.cell(ColHoleID)}
+		if s.HoleID == "" {
+			rw.fail(ColHoleID, "hole_id is empty")
+		}
+		var ok bool
+		s.Station.Depth, ok = rw.num(ColDepth, true)
+		if ok && s.Station.Depth < 0 {
+			rw.fail(ColDepth, "depth %g is negative", s.Station.Depth)
+		}
+		if p, seen := prev[s.HoleID]; ok && seen && rw.bad == nil {
+			if s.Station.Depth == p.depth {
+				rw.fail(ColDepth, "depth %g of hole %q repeats line %d", s.Station.Depth, s.HoleID, p.line)
+			} else if s.Station.Depth < p.depth {
+				rw.fail(ColDepth, "depth %g of hole %q is less than %g on line %d: stations must be sorted by depth", s.Station.Depth, s.HoleID, p.depth, p.line)
+			}
+		}
+		s.Station.Azimuth, ok = rw.num(ColAzimuth, true)
+		rw.inRange(ColAzimuth, s.Station.Azimuth, ok, 0, 360)
+		s.Station.Dip, ok = rw.num(ColDip, true)
+		rw.inRange(ColDip, s.Station.Dip, ok, -90, 90)
+		if ref, err := ParseAzimuthRef(rw.cell(ColAzimuthRef)); err != nil {
+			rw.fail(ColAzimuthRef, "%v", err)
+		} else {
+			s.AzimuthRef = ref
+		}
+		if d := rw.cell(ColSurveyDate); d != "" {
+			t, err := time.Parse(time.DateOnly, d)
+			if err != nil {
+				rw.fail(ColSurveyDate, "survey_date %q is not a date YYYY-MM-DD", d)
+			}
+			s.Date = t
+		}
+		if rw.bad != nil {
+			c.add(rw.bad)
+			continue
+		}
+		prev[s.HoleID] = last{s.Station.Depth, line}
+		rows = append(rows, s)
+	}
+	if err := c.err("survey"); err != nil {
+		return nil, err
+	}
+	return rows, nil
+}
+
+// Run confidence ratings, best first. A run rated ConfidenceNone is unusable:
+// its orientation line is not to be trusted at all.
+const (
+	ConfidenceGood = "good" // marks consistent across the run and with its neighbours
+	ConfidenceFair = "fair" // usable, with small mismatches or a doubtful break
+	ConfidencePoor = "poor" // usable with care; treat its orientations as suspect
+	ConfidenceNone = "none" // unusable: no orientation line
+)
+
+// Confidences lists the confidence vocabulary, best first.
+var Confidences = []string{ConfidenceGood, ConfidenceFair, ConfidencePoor, ConfidenceNone}
+
+// RunRow is one orientation run: the core from From to To (measured depths)
+// oriented by one orientation mark.
+type RunRow struct {
+	Line       int
+	HoleID     string
+	From, To   float64
+	Confidence string // one of Confidences
+	// Mismatch is the angle in degrees (0..180) around the core between this
+	// run's orientation line and the one carried across the join from the run
+	// above; NaN when not measured.
+	Mismatch float64
+}
+
+// RunColumns are the required columns of a runs file.
+var RunColumns = []string{ColHoleID, ColFrom, ColTo, ColConfidence}
+
+// ReadRuns reads a whole runs file: hole_id, from, to (0 <= from < to),
+// confidence (good, fair, poor or none, any case) and optional mismatch
+// (0..180 degrees). Errors as for [ReadCollars].
+func ReadRuns(r io.Reader, file string) ([]RunRow, error) {
+	cr := newReader(r)
+	h, err := readHeader(cr, file, RunColumns...)
+	if err != nil {
+		return nil, err
+	}
+	var rows []RunRow
+	c := collect{file: file}
+	for {
+		rec, err := cr.Read()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return nil, parseErr(file, err)
+		}
+		line, _ := cr.FieldPos(0)
+		rw := row{file: file, line: line, h: h, rec: rec}
+		if len(rec) != len(h.Names) {
+			rw.fail("", "row has %d fields, the header has %d", len(rec), len(h.Names))
+			c.add(rw.bad)
+			continue
+		}
+		run := RunRow{Line: line, HoleID: rw.cell(ColHoleID)}
+		if run.HoleID == "" {
+			rw.fail(ColHoleID, "hole_id is empty")
+		}
+		var okF, okT, ok bool
+		run.From, okF = rw.num(ColFrom, true)
+		if okF && run.From < 0 {
+			rw.fail(ColFrom, "from %g is negative", run.From)
+		}
+		run.To, okT = rw.num(ColTo, true)
+		if okF && okT && run.To <= run.From {
+			rw.fail(ColTo, "to %g is not greater than from %g", run.To, run.From)
+		}
+		conf := strings.ToLower(rw.cell(ColConfidence))
+		switch conf {
+		case ConfidenceGood, ConfidenceFair, ConfidencePoor, ConfidenceNone:
+			run.Confidence = conf
+		default:
+			rw.fail(ColConfidence, "confidence %q is not one of %s", rw.cell(ColConfidence), strings.Join(Confidences, ", "))
+		}
+		run.Mismatch, ok = rw.num(ColMismatch, false)
+		rw.inRange(ColMismatch, run.Mismatch, ok, 0, 180)
+		if rw.bad != nil {
+			c.add(rw.bad)
+			continue
+		}
+		rows = append(rows, run)
+	}
+	if err := c.err("run"); err != nil {
+		return nil, err
+	}
+	return rows, nil
+}
+
+// FormatFloat formats v with prec decimals, writing -0 as 0 and NaN as "".
+func FormatFloat(v float64, prec int) string {
+	return string(AppendFloat(nil, v, prec))
+}
+
+// AppendFloat appends v with prec decimals to b, writing values that round to
+// zero as unsigned zero and NaN as nothing.
+func AppendFloat(b []byte, v float64, prec int) []byte {
+	if math.IsNaN(v) {
+		return b
+	}
+	if prec >= 0 && prec < len(halfUnit) && math.Abs(v) < halfUnit[prec] {
+		v = 0
+	}
+	return strconv.AppendFloat(b, v, 'f', prec, 64)
+}
+
+
+var halfUnit = [...]float64{0.5, 0.05, 0.005, 0.0005, 0.00005, 0.000005, 0.0000005, 0.00000005, 0.000000005, 0.0000000005}

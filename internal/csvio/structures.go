@@ -1,0 +1,249 @@
+package csvio
+
+import (
+	"bufio"
+	"encoding/csv"
+	"io"
+	"math"
+	"strings"
+	"unicode"
+	"unicode/utf8"
+
+	"corvane/internal/domain"
+)
+
+// StructureColumns are the required columns of a structures file.
+var StructureColumns = []string{ColHoleID, ColDepth, ColAlpha, ColBeta}
+
+// StructureRow is one measurement row read by a [StructureReader]. It is
+// valid until the next call of Next.
+type StructureRow struct {
+	Line   int
+	Record []string // all cells of the row as read, in header order
+	HoleID string
+	Depth  float64
+	Alpha  float64
+	Beta   float64
+	// Gamma is the lineation angle; HasGamma is false (and Gamma NaN) when
+	// the gamma column is absent or the cell empty.
+	Gamma    float64
+	HasGamma bool
+	// Thickness is the apparent (along-core) thickness from the
+	// apparent_thickness or thickness column; NaN when absent or empty.
+	Thickness    float64
+	HasThickness bool
+	// Err is the row's first problem (a value that is not a number, out of
+	// range, missing, or a row with the wrong number of fields), nil when the
+	// row is good. A bad row keeps its place in the stream.
+	Err *domain.Error
+}
+
+// StructureReader streams the rows of a structures file: required columns
+// hole_id, depth (>= 0), alpha (0..90), beta (0..360), optional gamma
+// (0..360, empty when there is no lineation) and apparent_thickness or
+// thickness (>= 0); any further columns are carried in Record. Memory use
+// does not grow with the number of rows.
+type StructureReader struct {
+	Header *Header
+	cr     *csv.Reader
+	file   string
+	iHole, iDepth, iAlpha, iBeta, iGamma, iThick int
+	row    StructureRow
+}
+
+// NewStructureReader reads the header of a structures file. file names it in
+// messages. A missing column or an unreadable header is an error.
+func NewStructureReader(r io.Reader, file string) (*StructureReader, error) {
+	cr := newReader(r)
+	h, err := readHeader(cr, file, StructureColumns...)
+	if err != nil {
+		return nil, err
+	}
+	s := &StructureReader{Header: h, cr: cr, file: file,
+		iHole: h.Index(ColHoleID), iDepth: h.Index(ColDepth), iAlpha: h.Index(ColAlpha),
+		iBeta: h.Index(ColBeta), iGamma: h.Index(ColGamma), iThick: h.Index(ColApparentThick)}
+	if s.iThick < 0 {
+		s.iThick = h.Index(ColThickness)
+	}
+	return s, nil
+}
+
+// HasThickness reports whether the file has an apparent_thickness or
+// thickness column.
+func (s *StructureReader) HasThickness() bool { return s.iThick >= 0 }
+
+// ThicknessColumn returns the name of the thickness column, "" when none.
+func (s *StructureReader) ThicknessColumn() string {
+	if s.iThick < 0 {
+		return ""
+	}
+	return s.Header.Names[s.iThick]
+}
+
+// Next returns the next row, io.EOF after the last, or a located error when
+// the file cannot be read on (broken CSV). Problems of a single row are in
+// the row's Err, not in the returned error.
+func (s *StructureReader) Next() (*StructureRow, error) {
+	rec, err := s.cr.Read()
+	if err == io.EOF {
+		return nil, io.EOF
+	}
+	if err != nil {
+		return nil, parseErr(s.file, err)
+	}
+	line, _ := s.cr.FieldPos(0)
+	r := &s.row
+	*r = StructureRow{Line: line, Record: rec, Gamma: math.NaN(), Thickness: math.NaN()}
+	if len(rec) != len(s.Header.Names) {
+		r.Err = invalid(s.file, line, "", "row has %d fields, the header has %d", len(rec), len(s.Header.Names))
+		return r, nil
+	}
+	r.HoleID = strings.TrimSpace(rec[s.iHole])
+	if r.HoleID == "" {
+		r.Err = invalid(s.file, line, s.Header.Names[s.iHole], "hole_id is empty")
+		return r, nil
+	}
+	var ok bool
+	if r.Depth, ok = s.num(r, s.iDepth, true); ok && r.Depth < 0 {
+		s.fail(r, s.iDepth, "depth %g is negative", r.Depth)
+	}
+	if r.Alpha, ok = s.num(r, s.iAlpha, true); ok && !(r.Alpha >= 0 && r.Alpha <= 90) {
+		s.fail(r, s.iAlpha, "alpha %g is outside 0..90", r.Alpha)
+	}
+	if r.Beta, ok = s.num(r, s.iBeta, true); ok && !(r.Beta >= 0 && r.Beta <= 360) {
+		s.fail(r, s.iBeta, "beta %g is outside 0..360", r.Beta)
+	}
+	if s.iGamma >= 0 {
+		if r.Gamma, r.HasGamma = s.num(r, s.iGamma, false); r.HasGamma && !(r.Gamma >= 0 && r.Gamma <= 360) {
+			s.fail(r, s.iGamma, "gamma %g is outside 0..360", r.Gamma)
+		}
+	}
+	if s.iThick >= 0 {
+		if r.Thickness, r.HasThickness = s.num(r, s.iThick, false); r.HasThickness && r.Thickness < 0 {
+			s.fail(r, s.iThick, "%s %g is negative", s.Header.Names[s.iThick], r.Thickness)
+		}
+	}
+	return r, nil
+}
+
+// fail records a problem in column i unless the row already has one.
+func (s *StructureReader) fail(r *StructureRow, i int, format string, args ...any) {
+	if r.Err == nil {
+		r.Err = invalid(s.file, r.Line, s.Header.Names[i], format, args...)
+	}
+}
+
+// num parses cell i of the current row. The first problem is kept in r.Err.
+func (s *StructureReader) num(r *StructureRow, i int, required bool) (float64, bool) {
+	c := strings.TrimSpace(r.Record[i])
+	if c == "" {
+		if required && r.Err == nil {
+			r.Err = invalid(s.file, r.Line, s.Header.Names[i], "%s is empty", s.Header.Names[i])
+		}
+		return math.NaN(), false
+	}
+	v, msg := ParseNumber(c)
+	if msg != "" {
+		if r.Err == nil {
+			r.Err = invalid(s.file, r.Line, s.Header.Names[i], "%s %s", s.Header.Names[i], msg)
+		}
+		return math.NaN(), false
+	}
+	return v, true
+}
+
+// Writer writes CSV rows field by field with the quoting rules of
+// encoding/csv (comma separator, "\n" line ends), without building a
+// []string per row. Numbers are appended directly. Call Flush at the end.
+type Writer struct {
+	w     *bufio.Writer
+	first bool
+	buf   []byte
+}
+
+// NewWriter returns a Writer on w with a 64 KiB buffer.
+func NewWriter(w io.Writer) *Writer {
+	return &Writer{w: bufio.NewWriterSize(w, 64<<10), first: true, buf: make([]byte, 0, 64)}
+}
+
+func (w *Writer) sep() {
+	if !w.first {
+		w.w.WriteByte(',')
+	}
+	w.first = false
+}
+
+// String writes one text field, quoted when it needs to be.
+func (w *Writer) String(s string) {
+	w.sep()
+	if !fieldNeedsQuotes(s) {
+		w.w.WriteString(s)
+		return
+	}
+	w.w.WriteByte('"')
+	for len(s) > 0 {
+		i := strings.IndexAny(s, "\"\r\n")
+		if i < 0 {
+			i = len(s)
+		}
+		w.w.WriteString(s[:i])
+		s = s[i:]
+		if len(s) > 0 {
+			switch s[0] {
+			case '"':
+				w.w.WriteString(`""`)
+			case '\r':
+				w.w.WriteByte('\r')
+			case '\n':
+				w.w.WriteByte('\n')
+			}
+			s = s[1:]
+		}
+	}
+	w.w.WriteByte('"')
+}
+
+// Float writes v with prec decimals, or an empty field for NaN (see
+// [AppendFloat]).
+func (w *Writer) Float(v float64, prec int) {
+	w.sep()
+	w.buf = AppendFloat(w.buf[:0], v, prec)
+	w.w.Write(w.buf)
+}
+
+// Empty writes an empty field.
+func (w *Writer) Empty() { w.sep() }
+
+// Strings writes each of fields as a text field.
+func (w *Writer) Strings(fields []string) {
+	for _, f := range fields {
+		w.String(f)
+	}
+}
+
+// EndRow ends the current row.
+func (w *Writer) EndRow() {
+	w.w.WriteByte('\n')
+	w.first = true
+}
+
+// Flush writes any buffered data and returns the first write error.
+func (w *Writer) Flush() error { return w.w.Flush() }
+
+// fieldNeedsQuotes is encoding/csv's rule for the comma separator.
+func fieldNeedsQuotes(field string) bool {
+	if field == "" {
+		return false
+	}
+	if field == `\.` {
+		return true
+	}
+	for i := 0; i < len(field); i++ {
+		switch field[i] {
+		case ',', '"', '\r', '\n':
+			return true
+		}
+	}
+	r1, _ := utf8.DecodeRuneInString(field)
+	return unicode.IsSpace(r1)
+}

@@ -1,0 +1,253 @@
+// Package csvio reads and writes corvane's CSV files: collars, surveys,
+// orientation runs and structure measurements as inputs, the converter's
+// output, and orientation tables for the statistics commands.
+//
+// Common rules of the input files: the first line is a header; names are
+// matched without regard to case or surrounding spaces (a leading byte-order
+// mark is ignored); columns may come in any order; extra columns are kept and
+// carried through where the format says so. Numbers are decimal with a point;
+// an empty cell is a missing value; "NaN" and infinities are rejected.
+//
+// Problems are *domain.Error values of kind Invalid located at the file,
+// line and column. Readers of the small files (collars, surveys, runs) read
+// the whole file and report every bad row, one problem per row, as the
+// Problems of a single error; the structure reader streams and reports each
+// bad row with the row.
+package csvio
+
+import (
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"strconv"
+	"strings"
+
+	"corvane/internal/domain"
+)
+
+// Column names of the input files.
+const (
+	ColHoleID          = "hole_id"
+	ColEasting         = "easting"
+	ColNorthing        = "northing"
+	ColElevation       = "elevation"
+	ColAzimuth         = "azimuth"
+	ColDip             = "dip"
+	ColDepth           = "depth"
+	ColDeclination     = "declination"
+	ColGridConvergence = "grid_convergence"
+	ColAzimuthRef      = "azimuth_reference"
+	ColCRS             = "crs"
+	ColSurveyDate      = "survey_date"
+	ColAlpha           = "alpha"
+	ColBeta            = "beta"
+	ColGamma           = "gamma"
+	ColThickness       = "thickness"
+	ColApparentThick   = "apparent_thickness"
+	ColFrom            = "from"
+	ColTo              = "to"
+	ColConfidence      = "confidence"
+	ColMismatch        = "mismatch"
+)
+
+// Azimuth references accepted in an azimuth_reference column.
+const (
+	RefTrue     = "true"
+	RefGrid     = "grid"
+	RefMagnetic = "magnetic"
+)
+
+// maxProblems caps the row problems a whole-file reader collects.
+const maxProblems = 1000
+
+// Header is a parsed header line.
+type Header struct {
+	File  string   // file name used in messages
+	Names []string // the names as written (trimmed, byte-order mark removed)
+	idx   map[string]int
+}
+
+// Index returns the position of the named column (matched without regard
+// to case), or -1.
+func (h *Header) Index(name string) int {
+	if i, ok := h.idx[strings.ToLower(name)]; ok {
+		return i
+	}
+	return -1
+}
+
+// Has reports whether the header has the named column.
+func (h *Header) Has(name string) bool { return h.Index(name) >= 0 }
+
+func newReader(r io.Reader) *csv.Reader {
+	cr := csv.NewReader(r)
+	cr.FieldsPerRecord = -1
+	cr.ReuseRecord = true
+	return cr
+}
+
+// readHeader reads and checks the header line: not empty, no duplicate or
+// empty names, all required columns present.
+func readHeader(cr *csv.Reader, file string, required ...string) (*Header, error) {
+	rec, err := cr.Read()
+	if err == io.EOF {
+		return nil, invalid(file, 1, "", "empty file: want a header line with columns %s", strings.Join(required, ", "))
+	}
+	if err != nil {
+		return nil, parseErr(file, err)
+	}
+	h := &Header{File: file, Names: make([]string, len(rec)), idx: make(map[string]int, len(rec))}
+	for i, n := range rec {
+		if i == 0 {
+			n = strings.TrimPrefix(n, "\ufeff")
+		}
+		n = strings.TrimSpace(n)
+		h.Names[i] = n
+		k := strings.ToLower(n)
+		if k == "" {
+			return nil, invalid(file, 1, "", "header column %d has no name", i+1)
+		}
+		if _, dup := h.idx[k]; dup {
+			return nil, invalid(file, 1, n, "column %q appears twice in the header", n)
+		}
+		h.idx[k] = i
+	}
+	for _, c := range required {
+		if !h.Has(c) {
+			return nil, invalid(file, 1, c, "missing column %q (the header has %s)", c, strings.Join(h.Names, ", "))
+		}
+	}
+	return h, nil
+}
+
+func invalid(file string, line int, col string, format string, args ...any) *domain.Error {
+	return domain.Errorf(domain.Invalid, format, args...).At(domain.Location{File: file, Line: line, Column: col})
+}
+
+// parseErr turns an encoding/csv error into a located error.
+func parseErr(file string, err error) *domain.Error {
+	var pe *csv.ParseError
+	if errors.As(err, &pe) {
+		return invalid(file, pe.Line, "", "broken CSV at column %d: %v", pe.Column, pe.Err)
+	}
+	return domain.Errorf(domain.Invalid, "reading: %w", err).At(domain.Location{File: file})
+}
+
+// collect gathers row problems of a whole-file reader.
+type collect struct {
+	file     string
+	problems []*domain.Error
+	more     int
+}
+
+func (c *collect) add(e *domain.Error) {
+	if len(c.problems) < maxProblems {
+		c.problems = append(c.problems, e)
+	} else {
+		c.more++
+	}
+}
+
+// err returns nil when there were no problems, else one error listing them.
+func (c *collect) err(what string) error {
+	if len(c.problems) == 0 {
+		return nil
+	}
+	n := len(c.problems) + c.more
+	e := &domain.Error{Kind: domain.Invalid, Loc: domain.Location{File: c.file}, Problems: c.problems}
+	if n == 1 {
+		first := c.problems[0]
+		e.Loc, e.Msg = first.Loc, first.Msg
+		return e
+	}
+	e.Msg = fmt.Sprintf("%d bad %s rows, the first at %s: %s", n, what, c.problems[0].Loc, c.problems[0].Msg)
+	return e
+}
+
+// Report writes err to w: the message, and then each row problem on its own
+// line when err lists several.
+func Report(w io.Writer, err error) {
+	var de *domain.Error
+	if errors.As(err, &de) && len(de.Problems) > 1 {
+		fmt.Fprintf(w, "%d problems in %s:\n", len(de.Problems), de.Loc.File)
+		for _, p := range de.Problems {
+			fmt.Fprintf(w, "  %v\n", p)
+		}
+		return
+	}
+	fmt.Fprintln(w, err)
+}
+
+// row reads cells of one record and records the first problem.
+type row struct {
+	file string
+	line int
+	h    *Header
+	rec  []string
+	bad  *domain.Error
+}
+
+func (r *row) fail(col, format string, args ...any) {
+	if r.bad == nil {
+		r.bad = invalid(r.file, r.line, col, format, args...)
+	}
+}
+
+// cell returns the trimmed cell of the named column, "" when absent.
+func (r *row) cell(col string) string {
+	i := r.h.Index(col)
+	if i < 0 || i >= len(r.rec) {
+		return ""
+	}
+	return strings.TrimSpace(r.rec[i])
+}
+
+// num parses a number; ok is false when the cell is empty or bad (a bad cell
+// records a problem; an empty one records a problem only when required).
+func (r *row) num(col string, required bool) (v float64, ok bool) {
+	s := r.cell(col)
+	if s == "" {
+		if required {
+			r.fail(col, "%s is empty", col)
+		}
+		return math.NaN(), false
+	}
+	v, msg := ParseNumber(s)
+	if msg != "" {
+		r.fail(col, "%s %s", col, msg)
+		return math.NaN(), false
+	}
+	return v, true
+}
+
+// inRange checks lo <= v <= hi for a parsed value.
+func (r *row) inRange(col string, v float64, ok bool, lo, hi float64) {
+	if ok && (v < lo || v > hi) {
+		r.fail(col, "%s %g is outside %g..%g", col, v, lo, hi)
+	}
+}
+
+// ParseNumber parses a decimal number cell (already trimmed). msg is "" on
+// success, else a short reason such as `"abc" is not a number`.
+func ParseNumber(s string) (v float64, msg string) {
+	v, err := strconv.ParseFloat(s, 64)
+	if err != nil {
+		return math.NaN(), fmt.Sprintf("%q is not a number", s)
+	}
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return math.NaN(), fmt.Sprintf("%q is not a finite number", s)
+	}
+	return v, ""
+}
+
+// ParseAzimuthRef parses true, grid or magnetic (any case). "" is returned
+// unchanged (no reference given).
+func ParseAzimuthRef(s string) (string, error) {
+	switch t := strings.ToLower(strings.TrimSpace(s)); t {
+	case "", RefTrue, RefGrid, RefMagnetic:
+		return t, nil
+	}
+	return "", fmt.Errorf("%q is not an azimuth reference (want true, grid or magnetic)", s)
+}

@@ -1,0 +1,242 @@
+package csvio
+
+import (
+	"bytes"
+	"encoding/csv"
+	"errors"
+	"io"
+	"math"
+	"strings"
+	"testing"
+
+	"corvane/internal/domain"
+)
+
+func problems(t *testing.T, err error) []*domain.Error {
+	t.Helper()
+	var de *domain.Error
+	if !errors.As(err, &de) {
+		t.Fatalf("error %v (%T) is not a *domain.Error", err, err)
+	}
+	if len(de.Problems) == 0 {
+		return []*domain.Error{de}
+	}
+	return de.Problems
+}
+
+func TestReadCollars(t *testing.T) {
+	in := "\ufeffHole_ID, Easting ,NORTHING,elevation,dip,azimuth,depth,declination,crs,site\n" +
+		"TM001,512000.5,6123000,410.2,-60,45,250.5,1.5,EPSG:32750,north\n" +
+		"TM002,512100,6123100,412,-75,360,300,,,\n"
+	rows, err := ReadCollars(strings.NewReader(in), "c.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rows) != 2 || rows[0].HoleID != "TM001" || rows[0].Collar.East != 512000.5 || rows[0].Collar.Dip != -60 ||
+		rows[0].Collar.Azimuth != 45 || rows[0].Collar.Depth != 250.5 || rows[0].Declination != 1.5 || rows[0].CRS != "EPSG:32750" || rows[0].Line != 2 {
+		t.Fatalf("rows = %+v", rows)
+	}
+	if !math.IsNaN(rows[1].Declination) || !math.IsNaN(rows[1].GridConvergence) || rows[1].Line != 3 {
+		t.Fatalf("row 2 = %+v", rows[1])
+	}
+}
+
+func TestReadCollarsErrors(t *testing.T) {
+	_, err := ReadCollars(strings.NewReader("hole_id,easting,northing,elevation,azimuth,depth\nA,1,2,3,4,5\n"), "c.csv")
+	if err == nil || !strings.Contains(err.Error(), `c.csv:line 1`) || !strings.Contains(err.Error(), `missing column "dip"`) {
+		t.Fatalf("missing column: %v", err)
+	}
+	in := "hole_id,easting,northing,elevation,azimuth,dip,depth\n" +
+		"A,1,2,3,4,-60,100\n" +
+		"B,x,2,3,4,-60,100\n" + // text in a number
+		"C,1,2,3,400,-60,100\n" + // azimuth out of range
+		"A,1,2,3,4,-60,100\n" + // duplicate
+		"D,1,2,3,4,-60,0\n" + // depth 0
+		"E,1,2,3,4,NaN,10\n" + // NaN
+		"F,1,2\n" // short row
+	_, err = ReadCollars(strings.NewReader(in), "c.csv")
+	ps := problems(t, err)
+	want := []struct {
+		line int
+		col  string
+		msg  string
+	}{{3, "easting", `"x" is not a number`}, {4, "azimuth", "outside 0..360"}, {5, "hole_id", "already on line 2"},
+		{6, "depth", "greater than 0"}, {7, "dip", "not a finite number"}, {8, "", "3 fields"}}
+	if len(ps) != len(want) {
+		t.Fatalf("problems: %v", err)
+	}
+	for i, w := range want {
+		if ps[i].Loc.File != "c.csv" || ps[i].Loc.Line != w.line || ps[i].Loc.Column != w.col || !strings.Contains(ps[i].Msg, w.msg) {
+			t.Errorf("problem %d = %v, want line %d column %q %q", i, ps[i], w.line, w.col, w.msg)
+		}
+	}
+	var buf bytes.Buffer
+	Report(&buf, err)
+	if strings.Count(buf.String(), "\n") != 7 {
+		t.Errorf("report:\n%s", buf.String())
+	}
+	_, err = ReadCollars(strings.NewReader("hole_id,easting,northing,elevation,azimuth,dip,depth\n\"A,1\n"), "c.csv")
+	if err == nil || !strings.Contains(err.Error(), "c.csv:line 2") || !strings.Contains(err.Error(), "broken CSV") {
+		t.Fatalf("broken CSV: %v", err)
+	}
+	if _, err := ReadCollars(strings.NewReader(""), "c.csv"); err == nil {
+		t.Fatal("empty file accepted")
+	}
+	if _, err := ReadCollars(strings.NewReader("hole_id,HOLE_ID\n"), "c.csv"); err == nil || !strings.Contains(err.Error(), "twice") {
+		t.Fatalf("duplicate column: %v", err)
+	}
+}
+
+func TestReadSurveys(t *testing.T) {
+	in := "hole_id,depth,azimuth,dip,azimuth_reference,survey_date\n" +
+		"A,0,45,-60,magnetic,2026-03-01\n" +
+		"B,0,10,-70,,\n" +
+		"A,30,46,-59,Grid,\n"
+	rows, err := ReadSurveys(strings.NewReader(in), "s.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rows) != 3 || rows[0].AzimuthRef != "magnetic" || rows[0].Date.Year() != 2026 || rows[2].AzimuthRef != "grid" || !rows[1].Date.IsZero() {
+		t.Fatalf("rows = %+v", rows)
+	}
+	bad := "hole_id,depth,azimuth,dip,azimuth_reference,survey_date\n" +
+		"A,10,45,-60,,\n" +
+		"A,10,45,-60,,\n" + // duplicate depth
+		"A,5,45,-60,,\n" + // unsorted
+		"A,20,45,-60,north,\n" +
+		"A,30,45,-60,,01/02/2026\n"
+	_, err = ReadSurveys(strings.NewReader(bad), "s.csv")
+	ps := problems(t, err)
+	if len(ps) != 4 || !strings.Contains(ps[0].Msg, "repeats line 2") || ps[0].Loc.Column != "depth" ||
+		!strings.Contains(ps[1].Msg, "sorted by depth") || ps[1].Loc.Line != 4 ||
+		ps[2].Loc.Column != "azimuth_reference" || ps[3].Loc.Column != "survey_date" {
+		t.Fatalf("problems: %v", ps)
+	}
+}
+
+func TestReadRuns(t *testing.T) {
+	in := "hole_id,from,to,confidence,mismatch\nA,0,3,good,2.5\nA,3,6,NONE,\nA,6,6,fair,\nA,9,12,great,\nA,12,15,poor,200\n"
+	_, err := ReadRuns(strings.NewReader(in), "r.csv")
+	ps := problems(t, err)
+	if len(ps) != 3 || ps[0].Loc.Column != "to" || ps[1].Loc.Column != "confidence" || ps[2].Loc.Column != "mismatch" {
+		t.Fatalf("problems: %v", ps)
+	}
+	rows, err := ReadRuns(strings.NewReader("hole_id,from,to,confidence\nA,0,3,Good\n"), "r.csv")
+	if err != nil || len(rows) != 1 || rows[0].Confidence != "good" || !math.IsNaN(rows[0].Mismatch) {
+		t.Fatal(rows, err)
+	}
+}
+
+func TestStructureReader(t *testing.T) {
+	in := "Type,HOLE_ID,depth,alpha,beta,gamma,apparent_thickness\n" +
+		"joint,A,10.5,45,120,,0.3\n" +
+		"\"fault, main\",A,11,45,120,33,\n" +
+		"x,A,12,95,120,,\n" +
+		"x,A,12,45,abc,,\n" +
+		"x,,12,45,20,,\n" +
+		"x,A,12,45\n" +
+		"x,A,12,45,20,361,\n" +
+		"x,A,-1,45,20,,\n" +
+		"x,A,1,,20,,\n"
+	sr, err := NewStructureReader(strings.NewReader(in), "m.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if !sr.HasThickness() || sr.ThicknessColumn() != "apparent_thickness" {
+		t.Fatal("thickness column")
+	}
+	wantErr := []string{"", "", "alpha", "beta", "HOLE_ID", // the name as written in the file
+		"", "gamma", "depth", "alpha"}
+	for i, w := range wantErr {
+		r, err := sr.Next()
+		if err != nil {
+			t.Fatal(err)
+		}
+		if r.Line != i+2 {
+			t.Errorf("row %d line %d", i, r.Line)
+		}
+		switch {
+		case w == "" && i < 2:
+			if r.Err != nil {
+				t.Errorf("row %d: %v", i, r.Err)
+			}
+		case r.Err == nil:
+			t.Errorf("row %d: no error, want one on %q", i, w)
+		case r.Err.Loc.Column != w || r.Err.Loc.Line != i+2 || r.Err.Loc.File != "m.csv":
+			t.Errorf("row %d: %v, want column %q", i, r.Err, w)
+		}
+		if i == 0 && (r.HasGamma || !r.HasThickness || r.Thickness != 0.3 || r.Depth != 10.5 || r.Record[0] != "joint") {
+			t.Errorf("row 0 = %+v", r)
+		}
+		if i == 1 && (!r.HasGamma || r.Gamma != 33 || r.HasThickness || r.Record[0] != "fault, main") {
+			t.Errorf("row 1 = %+v", r)
+		}
+	}
+	if _, err := sr.Next(); err != io.EOF {
+		t.Fatalf("end: %v", err)
+	}
+	sr, _ = NewStructureReader(strings.NewReader("hole_id,depth,alpha,beta\nA,1,2,3\nA,\"1,2,3\n"), "m.csv")
+	sr.Next()
+	if _, err := sr.Next(); err == nil || !strings.Contains(err.Error(), "m.csv:line 3") {
+		t.Fatalf("broken CSV: %v", err)
+	}
+	if _, err := NewStructureReader(strings.NewReader("hole_id,depth,alpha\n"), "m.csv"); err == nil || !strings.Contains(err.Error(), `"beta"`) {
+		t.Fatalf("missing beta: %v", err)
+	}
+}
+
+// The writer must produce what encoding/csv reads back (the standard library is
+// the reference here), for awkward fields too.
+func TestWriterRoundTrip(t *testing.T) {
+	rows := [][]string{{"a", "b,c", `say "hi"`, "", " lead", "multi\nline", `\.`, "tr\r\nx", "ü"}, {"1"}}
+	var buf bytes.Buffer
+	w := NewWriter(&buf)
+	for _, r := range rows {
+		w.Strings(r)
+		w.EndRow()
+	}
+	w.Float(-0.0001, 3)
+	w.Float(math.NaN(), 2)
+	w.Float(12.3456, 2)
+	w.Empty()
+	w.EndRow()
+	if err := w.Flush(); err != nil {
+		t.Fatal(err)
+	}
+	cr := csv.NewReader(bytes.NewReader(buf.Bytes()))
+	cr.FieldsPerRecord = -1
+	got, err := cr.ReadAll()
+	if err != nil {
+		t.Fatal(err, buf.String())
+	}
+	rows[0][7] = "tr\nx" // encoding/csv reads \r\n inside quotes as \n
+	want := append(rows, []string{"0.000", "", "12.35", ""})
+	for i := range want {
+		if strings.Join(got[i], "|") != strings.Join(want[i], "|") {
+			t.Errorf("row %d: %q, want %q", i, got[i], want[i])
+		}
+	}
+	// And the same bytes as encoding/csv writes for the text rows.
+	var ref bytes.Buffer
+	cw := csv.NewWriter(&ref)
+	cw.WriteAll(rows[:1])
+	var mine bytes.Buffer
+	w = NewWriter(&mine)
+	w.Strings(rows[0])
+	w.EndRow()
+	w.Flush()
+	if ref.String() != mine.String() {
+		t.Errorf("writer %q, encoding/csv %q", mine.String(), ref.String())
+	}
+}
+
+func TestParseAzimuthRef(t *testing.T) {
+	for in, want := range map[string]string{"TRUE": "true", " grid ": "grid", "Magnetic": "magnetic", "": ""} {
+		if got, err := ParseAzimuthRef(in); err != nil || got != want {
+			t.Errorf("%q -> %q %v", in, got, err)
+		}
+	}
+	if _, err := ParseAzimuthRef("mag"); err == nil {
+		t.Error("mag accepted")
+	}
+}
