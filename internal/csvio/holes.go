@@ -300,5 +300,4 @@ func AppendFloat(b []byte, v float64, prec int) []byte {
 	return strconv.AppendFloat(b, v, 'f', prec, 64)
 }
 
-
 var halfUnit = [...]float64{0.5, 0.05, 0.005, 0.0005, 0.00005, 0.000005, 0.0000005, 0.00000005, 0.000000005, 0.0000000005}

@@ -44,11 +44,11 @@ type StructureRow struct {
 // thickness (>= 0); any further columns are carried in Record. Memory use
 // does not grow with the number of rows.
 type StructureReader struct {
-	Header *Header
-	cr     *csv.Reader
-	file   string
+	Header                                       *Header
+	cr                                           *csv.Reader
+	file                                         string
 	iHole, iDepth, iAlpha, iBeta, iGamma, iThick int
-	row    StructureRow
+	row                                          StructureRow
 }
 
 // NewStructureReader reads the header of a structures file. file names it in
