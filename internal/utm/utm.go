@@ -261,11 +261,10 @@ func Inverse(z Zone, easting, northing float64) (Geo, error) {
 	if z.South {
 		y -= FalseNorthingSouth
 	}
-	lat, dl := tmInverse(easting-FalseEasting, y)
+	lat, dl, gam, k := tmInverse(easting-FalseEasting, y)
 	if math.IsNaN(lat) || math.IsNaN(dl) || math.Abs(dl) > MaxOffset {
 		return Geo{}, fmt.Errorf("easting %v, northing %v is outside the accurate range of UTM zone %v", easting, northing, z)
 	}
-	_, _, gam, k := tmForward(lat, dl)
 	lon := math.Remainder(z.CentralMeridian()+dl, 360)
 	if lon == 180 {
 		lon = -180
@@ -274,21 +273,36 @@ func Inverse(z Zone, easting, northing float64) (Geo, error) {
 }
 
 // tmInverse returns latitude and longitude from the central meridian
-// (degrees) for x, y in metres without false origins (Karney 2011, eqs. 11, 15-21).
-func tmInverse(x, y float64) (lat, dl float64) {
+// (degrees) for x, y in metres without false origins, with the convergence
+// (degrees) and scale there, computed from the inverse series directly
+// (Karney 2011, eqs. 11, 15-21, 27-28).
+func tmInverse(x, y float64) (lat, dl, gamma, k float64) {
 	xi := y / (K0 * rectA)
 	eta := x / (K0 * rectA)
 	xip, etap := xi, eta
+	pp, qp := 1.0, 0.0
 	for j := 1; j <= 6; j++ {
 		b := beta[j-1]
-		s2, c2 := math.Sincos(2 * float64(j) * xi)
-		xip -= b * s2 * math.Cosh(2*float64(j)*eta)
-		etap -= b * c2 * math.Sinh(2*float64(j)*eta)
+		jj := 2 * float64(j)
+		s2, c2 := math.Sincos(jj * xi)
+		sh, ch := math.Sinh(jj*eta), math.Cosh(jj*eta)
+		xip -= b * s2 * ch
+		etap -= b * c2 * sh
+		pp -= jj * b * c2 * ch
+		qp += jj * b * s2 * sh
 	}
 	sxip, cxip := math.Sincos(xip)
-	shetap := math.Sinh(etap)
-	taup := sxip / math.Hypot(shetap, cxip)
+	shetap, chetap := math.Sinh(etap), math.Cosh(etap)
+	r := math.Hypot(shetap, cxip)
+	taup := sxip / r
 	lam := math.Atan2(shetap, cxip)
 	tau := tauf(taup)
-	return math.Atan(tau) * 180 / math.Pi, lam * 180 / math.Pi
+	phi := math.Atan(tau)
+
+	// Convergence: gamma' = atan(tan xi' tanh eta'), gamma'' = atan2(q, p).
+	gamma = (math.Atan2(sxip*shetap, cxip*chetap) + math.Atan2(qp, pp)) * 180 / math.Pi
+	// Scale: k = K0 (A/a) sqrt(1 - e^2 sin^2 phi) sqrt(1 + tau^2) sqrt(sinh^2 eta' + cos^2 xi') / sqrt(p^2 + q^2).
+	sphi := math.Sin(phi)
+	k = K0 * rectA / A * math.Sqrt(1-e2*sphi*sphi) * math.Hypot(1, tau) * r / math.Hypot(pp, qp)
+	return phi * 180 / math.Pi, lam * 180 / math.Pi, gamma, k
 }
