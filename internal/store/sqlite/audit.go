@@ -1,0 +1,58 @@
+package sqlite
+
+import (
+	"context"
+	"database/sql"
+	"time"
+
+	"corvane/internal/domain"
+)
+
+const (
+	insertAudit = `INSERT INTO audit_log (project_id, actor, token_id, entity, entity_id, action, at, before, after)
+	VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?) RETURNING id`
+	listAudit = `SELECT id, project_id, actor, token_id, entity, entity_id, action, at, before, after
+	FROM audit_log WHERE project_id = ? AND id > ? ORDER BY id LIMIT ?`
+)
+
+func nullJSON(b []byte) any {
+	if len(b) == 0 {
+		return nil
+	}
+	return string(b)
+}
+
+// AppendAudit records e and sets its ID (and its time when zero).
+func (s *Store) AppendAudit(ctx context.Context, e *domain.AuditEntry) error {
+	if e.At.IsZero() {
+		e.At = now()
+	}
+	e.At = e.At.UTC().Truncate(time.Microsecond)
+	return s.write(ctx, func(q querier) error {
+		return translate(q.QueryRowContext(ctx, insertAudit, e.ProjectID, e.ActorName, e.TokenID, e.Entity, e.EntityID,
+			e.Action, micro(e.At), nullJSON(e.Before), nullJSON(e.After)).Scan(&e.ID))
+	})
+}
+
+// ListAudit returns one page of the project's audit trail, oldest first.
+func (s *Store) ListAudit(ctx context.Context, projectID int64, page domain.Page) ([]domain.AuditEntry, error) {
+	page = page.Norm()
+	rows, err := s.read().QueryContext(ctx, listAudit, projectID, page.After, page.Limit)
+	if err != nil {
+		return nil, translate(err)
+	}
+	return collect(rows, func(r scanner) (domain.AuditEntry, error) {
+		var e domain.AuditEntry
+		var at int64
+		var before, after sql.NullString
+		err := r.Scan(&e.ID, &e.ProjectID, &e.ActorName, &e.TokenID, &e.Entity, &e.EntityID, &e.Action, &at, &before, &after)
+		e.At = fromMicro(at)
+		if before.Valid {
+			e.Before = []byte(before.String)
+		}
+		if after.Valid {
+			e.After = []byte(after.String)
+		}
+		return e, err
+	})
+}

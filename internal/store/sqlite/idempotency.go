@@ -1,0 +1,36 @@
+package sqlite
+
+import (
+	"context"
+
+	"corvane/internal/domain"
+)
+
+const (
+	selectIdempotency = `SELECT project_id, key, request_hash, result, created_at FROM idempotency_keys WHERE project_id = ? AND key = ?`
+	insertIdempotency = `INSERT INTO idempotency_keys (project_id, key, request_hash, result, created_at) VALUES (?, ?, ?, ?, ?)`
+)
+
+// GetIdempotency returns the remembered result for (projectID, key).
+func (s *Store) GetIdempotency(ctx context.Context, projectID int64, key string) (domain.Idempotency, error) {
+	var r domain.Idempotency
+	var res string
+	var c int64
+	err := s.read().QueryRowContext(ctx, selectIdempotency, projectID, key).Scan(&r.ProjectID, &r.Key, &r.RequestHash, &res, &c)
+	if err != nil {
+		return r, one(err, "idempotency key", key)
+	}
+	r.Result, r.CreatedAt = []byte(res), fromMicro(c)
+	return r, nil
+}
+
+// PutIdempotency remembers r; Conflict when the key is taken.
+func (s *Store) PutIdempotency(ctx context.Context, r domain.Idempotency) error {
+	if r.CreatedAt.IsZero() {
+		r.CreatedAt = now()
+	}
+	return s.write(ctx, func(q querier) error {
+		_, err := q.ExecContext(ctx, insertIdempotency, r.ProjectID, r.Key, r.RequestHash, string(r.Result), micro(r.CreatedAt))
+		return translate(err)
+	})
+}

@@ -1,0 +1,169 @@
+package sqlite
+
+import (
+	"context"
+	"database/sql"
+	"strings"
+	"time"
+
+	"corvane/internal/domain"
+)
+
+const measurementCols = `id, project_id, hole_id, depth, alpha, beta, gamma, type_code, apparent_thickness,
+	comment, logged_by, logged_at, version, created_at, updated_at`
+
+const (
+	insertMeasurement = `INSERT INTO measurements (project_id, hole_id, depth, alpha, beta, gamma, type_code,
+	apparent_thickness, comment, logged_by, logged_at, version, created_at, updated_at)
+	VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1, ?, ?) RETURNING id`
+	selectMeasurement = `SELECT ` + measurementCols + ` FROM measurements WHERE id = ?`
+	updateMeasurement = `UPDATE measurements SET hole_id = ?, depth = ?, alpha = ?, beta = ?, gamma = ?,
+	type_code = ?, apparent_thickness = ?, comment = ?, logged_by = ?, logged_at = ?,
+	version = version + 1, updated_at = ? WHERE id = ? AND version = ? RETURNING version`
+	deleteMeasurement = `DELETE FROM measurements WHERE id = ? AND version = ?`
+)
+
+func scanMeasurement(r scanner) (domain.Measurement, error) {
+	var m domain.Measurement
+	var g, th sql.NullFloat64
+	var l, c, u int64
+	err := r.Scan(&m.ID, &m.ProjectID, &m.HoleID, &m.Depth, &m.Alpha, &m.Beta, &g, &m.TypeCode, &th,
+		&m.Comment, &m.LoggedBy, &l, &m.Version, &c, &u)
+	m.Gamma, m.ApparentThickness = floatPtr(g), floatPtr(th)
+	m.LoggedAt, m.CreatedAt, m.UpdatedAt = fromMicro(l), fromMicro(c), fromMicro(u)
+	return m, err
+}
+
+// where builds the WHERE clause of a measurement filter with ? placeholders.
+func where(f domain.MeasurementFilter) (string, []any) {
+	var b strings.Builder
+	args := []any{f.ProjectID}
+	b.WriteString(" WHERE project_id = ?")
+	if len(f.HoleIDs) > 0 {
+		b.WriteString(" AND hole_id IN (?" + strings.Repeat(", ?", len(f.HoleIDs)-1) + ")")
+		for _, id := range f.HoleIDs {
+			args = append(args, id)
+		}
+	}
+	if f.MinDepth != nil {
+		b.WriteString(" AND depth >= ?")
+		args = append(args, *f.MinDepth)
+	}
+	if f.MaxDepth != nil {
+		b.WriteString(" AND depth <= ?")
+		args = append(args, *f.MaxDepth)
+	}
+	if len(f.TypeCodes) > 0 {
+		b.WriteString(" AND type_code IN (?" + strings.Repeat(", ?", len(f.TypeCodes)-1) + ")")
+		for _, c := range f.TypeCodes {
+			args = append(args, c)
+		}
+	}
+	if f.LoggedFrom != nil {
+		b.WriteString(" AND logged_at >= ?")
+		args = append(args, micro(*f.LoggedFrom))
+	}
+	if f.LoggedTo != nil {
+		b.WriteString(" AND logged_at <= ?")
+		args = append(args, micro(*f.LoggedTo))
+	}
+	return b.String(), args
+}
+
+func insertOne(ctx context.Context, q querier, m *domain.Measurement, t time.Time) error {
+	m.LoggedAt = m.LoggedAt.UTC().Truncate(time.Microsecond)
+	err := q.QueryRowContext(ctx, insertMeasurement, m.ProjectID, m.HoleID, m.Depth, m.Alpha, m.Beta, nullFloat(m.Gamma),
+		m.TypeCode, nullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, micro(m.LoggedAt), micro(t), micro(t)).Scan(&m.ID)
+	if err != nil {
+		return translate(err)
+	}
+	m.Version, m.CreatedAt, m.UpdatedAt = 1, t, t
+	return nil
+}
+
+// CreateMeasurement inserts m and sets its ID, version and timestamps.
+func (s *Store) CreateMeasurement(ctx context.Context, m *domain.Measurement) error {
+	t := now()
+	return s.write(ctx, func(q querier) error { return insertOne(ctx, q, m, t) })
+}
+
+// CreateMeasurements inserts all of ms in one transaction with a prepared
+// statement, setting their IDs.
+func (s *Store) CreateMeasurements(ctx context.Context, ms []domain.Measurement) (int, error) {
+	t := now()
+	err := s.write(ctx, func(q querier) error {
+		tx := q.(*sql.Tx)
+		stmt, err := tx.PrepareContext(ctx, insertMeasurement)
+		if err != nil {
+			return translate(err)
+		}
+		defer stmt.Close()
+		for i := range ms {
+			m := &ms[i]
+			m.LoggedAt = m.LoggedAt.UTC().Truncate(time.Microsecond)
+			err := stmt.QueryRowContext(ctx, m.ProjectID, m.HoleID, m.Depth, m.Alpha, m.Beta, nullFloat(m.Gamma),
+				m.TypeCode, nullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, micro(m.LoggedAt), micro(t), micro(t)).Scan(&m.ID)
+			if err != nil {
+				return translate(err)
+			}
+			m.Version, m.CreatedAt, m.UpdatedAt = 1, t, t
+		}
+		return nil
+	})
+	if err != nil {
+		return 0, err
+	}
+	return len(ms), nil
+}
+
+// GetMeasurement returns the measurement with the given ID.
+func (s *Store) GetMeasurement(ctx context.Context, id int64) (domain.Measurement, error) {
+	m, err := scanMeasurement(s.read().QueryRowContext(ctx, selectMeasurement, id))
+	return m, one(err, "measurement", id)
+}
+
+// ListMeasurements returns one page of the measurements that pass f, by ID.
+func (s *Store) ListMeasurements(ctx context.Context, f domain.MeasurementFilter, page domain.Page) ([]domain.Measurement, error) {
+	page = page.Norm()
+	w, args := where(f)
+	args = append(args, page.After, page.Limit)
+	rows, err := s.read().QueryContext(ctx, `SELECT `+measurementCols+` FROM measurements`+w+` AND id > ? ORDER BY id LIMIT ?`, args...)
+	if err != nil {
+		return nil, translate(err)
+	}
+	return collect(rows, scanMeasurement)
+}
+
+// CountMeasurements counts the measurements that pass f.
+func (s *Store) CountMeasurements(ctx context.Context, f domain.MeasurementFilter) (int64, error) {
+	w, args := where(f)
+	var n int64
+	err := s.read().QueryRowContext(ctx, `SELECT count(*) FROM measurements`+w, args...).Scan(&n)
+	return n, translate(err)
+}
+
+// UpdateMeasurement writes m over the row at version ifVersion.
+func (s *Store) UpdateMeasurement(ctx context.Context, m *domain.Measurement, ifVersion int64) error {
+	t := now()
+	m.LoggedAt = m.LoggedAt.UTC().Truncate(time.Microsecond)
+	return s.write(ctx, func(q querier) error {
+		err := q.QueryRowContext(ctx, updateMeasurement, m.HoleID, m.Depth, m.Alpha, m.Beta, nullFloat(m.Gamma),
+			m.TypeCode, nullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, micro(m.LoggedAt),
+			micro(t), m.ID, ifVersion).Scan(&m.Version)
+		if err == sql.ErrNoRows {
+			return versionGone(ctx, q, "measurements", "measurement", m.ID, ifVersion)
+		}
+		if err != nil {
+			return translate(err)
+		}
+		m.UpdatedAt = t
+		return nil
+	})
+}
+
+// DeleteMeasurement deletes the measurement.
+func (s *Store) DeleteMeasurement(ctx context.Context, id, ifVersion int64) error {
+	return s.write(ctx, func(q querier) error {
+		return deleteVersioned(ctx, q, deleteMeasurement, "measurements", "measurement", id, ifVersion)
+	})
+}

@@ -1,0 +1,317 @@
+// Package sqlite implements the [domain.Store] contract on an embedded SQLite
+// database file (modernc.org/sqlite, pure Go, through database/sql), so the
+// service runs on a fresh machine with nothing else installed.
+//
+// The file is opened in WAL mode with foreign keys on and a busy timeout.
+// Writers are serialised in the process: all writes go through one connection
+// that starts IMMEDIATE transactions, while reads use a pool of connections
+// that see the last committed state. Times are stored as microseconds since
+// the Unix epoch, UTC.
+package sqlite
+
+import (
+	"context"
+	"database/sql"
+	"errors"
+	"fmt"
+	"net/url"
+	"runtime"
+	"strings"
+	"time"
+
+	"github.com/golang-migrate/migrate/v4"
+	msqlite "github.com/golang-migrate/migrate/v4/database/sqlite"
+	"github.com/golang-migrate/migrate/v4/source/iofs"
+	"modernc.org/sqlite"
+	sqlite3 "modernc.org/sqlite/lib"
+
+	"corvane/internal/domain"
+	"corvane/migrations"
+)
+
+// querier is what *sql.DB and *sql.Tx have in common.
+type querier interface {
+	ExecContext(ctx context.Context, query string, args ...any) (sql.Result, error)
+	QueryContext(ctx context.Context, query string, args ...any) (*sql.Rows, error)
+	QueryRowContext(ctx context.Context, query string, args ...any) *sql.Row
+}
+
+// Store is the SQLite store. The zero value is not usable; call [Open].
+// A Store is safe for concurrent use; one bound to a transaction (inside
+// [Store.InTx]) is not, like the transaction itself.
+type Store struct {
+	w  *sql.DB // one connection, IMMEDIATE transactions: the single writer
+	r  *sql.DB // readers
+	tx *sql.Tx // set when bound to a transaction
+}
+
+var _ domain.Store = (*Store)(nil)
+
+// dsn builds the driver DSN for path with the pragmas every connection needs.
+func dsn(path string, immediate bool) string {
+	v := url.Values{}
+	v.Add("_pragma", "busy_timeout(10000)")
+	v.Add("_pragma", "journal_mode(WAL)")
+	v.Add("_pragma", "foreign_keys(1)")
+	v.Add("_pragma", "synchronous(NORMAL)")
+	if immediate {
+		v.Add("_txlock", "immediate")
+	}
+	if strings.HasPrefix(path, "file:") {
+		if strings.Contains(path, "?") {
+			return path + "&" + v.Encode()
+		}
+		return path + "?" + v.Encode()
+	}
+	return "file:" + path + "?" + v.Encode()
+}
+
+// Path returns the file path of a database URL: "sqlite://path", "sqlite:path",
+// "file:path" or a plain path.
+func Path(databaseURL string) string {
+	for _, p := range []string{"sqlite://", "sqlite3://", "sqlite:"} {
+		if strings.HasPrefix(databaseURL, p) {
+			return strings.TrimPrefix(databaseURL, p)
+		}
+	}
+	return databaseURL
+}
+
+// Open opens (creating if needed) the database file at path. It does not
+// migrate; call [Migrate] first.
+func Open(ctx context.Context, path string) (*Store, error) {
+	path = Path(path)
+	w, err := sql.Open("sqlite", dsn(path, true))
+	if err != nil {
+		return nil, fmt.Errorf("opening %s: %w", path, err)
+	}
+	w.SetMaxOpenConns(1)
+	w.SetMaxIdleConns(1)
+	w.SetConnMaxLifetime(0)
+	r, err := sql.Open("sqlite", dsn(path, false))
+	if err != nil {
+		w.Close()
+		return nil, fmt.Errorf("opening %s: %w", path, err)
+	}
+	n := max(4, runtime.GOMAXPROCS(0))
+	r.SetMaxOpenConns(n)
+	r.SetMaxIdleConns(n)
+	s := &Store{w: w, r: r}
+	if err := s.Ping(ctx); err != nil {
+		s.Close()
+		return nil, fmt.Errorf("opening %s: %w", path, err)
+	}
+	return s, nil
+}
+
+// Migrate moves the schema of the database file at path: steps > 0 applies
+// that many up migrations, steps < 0 rolls that many back, steps == 0 applies
+// all up migrations. It gives migrate its own handle (migrate closes it).
+func Migrate(path string, steps int) error {
+	m, err := newMigrate(Path(path))
+	if err != nil {
+		return err
+	}
+	defer m.Close()
+	switch {
+	case steps == 0:
+		err = m.Up()
+	default:
+		err = m.Steps(steps)
+	}
+	if errors.Is(err, migrate.ErrNoChange) {
+		return nil
+	}
+	return err
+}
+
+// MigrateDownAll rolls back every migration.
+func MigrateDownAll(path string) error {
+	m, err := newMigrate(Path(path))
+	if err != nil {
+		return err
+	}
+	defer m.Close()
+	if err := m.Down(); err != nil && !errors.Is(err, migrate.ErrNoChange) {
+		return err
+	}
+	return nil
+}
+
+// Version reports the schema version of the database file and whether a
+// failed migration left it dirty. A database with no migrations has version 0.
+func Version(path string) (version uint, dirty bool, err error) {
+	m, err := newMigrate(Path(path))
+	if err != nil {
+		return 0, false, err
+	}
+	defer m.Close()
+	v, d, err := m.Version()
+	if errors.Is(err, migrate.ErrNilVersion) {
+		return 0, false, nil
+	}
+	return v, d, err
+}
+
+func newMigrate(path string) (*migrate.Migrate, error) {
+	src, err := iofs.New(migrations.SQLite, "sqlite")
+	if err != nil {
+		return nil, err
+	}
+	db, err := sql.Open("sqlite", dsn(path, false))
+	if err != nil {
+		return nil, err
+	}
+	drv, err := msqlite.WithInstance(db, &msqlite.Config{})
+	if err != nil {
+		db.Close()
+		return nil, fmt.Errorf("migrating %s: %w", path, err)
+	}
+	m, err := migrate.NewWithInstance("iofs", src, "sqlite", drv)
+	if err != nil {
+		drv.Close()
+		return nil, fmt.Errorf("migrating %s: %w", path, err)
+	}
+	return m, nil
+}
+
+// Ping checks both handles.
+func (s *Store) Ping(ctx context.Context) error {
+	if err := s.w.PingContext(ctx); err != nil {
+		return err
+	}
+	return s.r.PingContext(ctx)
+}
+
+// Close closes the database. Closing a transaction-bound Store does nothing.
+func (s *Store) Close() error {
+	if s.tx != nil {
+		return nil
+	}
+	return errors.Join(s.r.Close(), s.w.Close())
+}
+
+// InTx runs fn in one IMMEDIATE transaction on the writer connection.
+func (s *Store) InTx(ctx context.Context, fn func(ctx context.Context, tx domain.Store) error) error {
+	if s.tx != nil {
+		return fn(ctx, s)
+	}
+	tx, err := s.w.BeginTx(ctx, nil)
+	if err != nil {
+		return translate(err)
+	}
+	bound := &Store{w: s.w, r: s.r, tx: tx}
+	if err := fn(ctx, bound); err != nil {
+		tx.Rollback()
+		return err
+	}
+	if err := tx.Commit(); err != nil {
+		return translate(err)
+	}
+	return nil
+}
+
+// read returns the querier for reads: the transaction when bound, else the
+// reader pool.
+func (s *Store) read() querier {
+	if s.tx != nil {
+		return s.tx
+	}
+	return s.r
+}
+
+// write runs fn in the bound transaction or in a new one on the writer.
+func (s *Store) write(ctx context.Context, fn func(q querier) error) error {
+	if s.tx != nil {
+		return fn(s.tx)
+	}
+	tx, err := s.w.BeginTx(ctx, nil)
+	if err != nil {
+		return translate(err)
+	}
+	if err := fn(tx); err != nil {
+		tx.Rollback()
+		return err
+	}
+	return translate(tx.Commit())
+}
+
+// translate turns driver errors into *domain.Error once: constraint
+// violations become Conflict, sql.ErrNoRows NotFound, the rest Internal.
+func translate(err error) error {
+	if err == nil {
+		return nil
+	}
+	var de *domain.Error
+	if errors.As(err, &de) {
+		return err
+	}
+	if errors.Is(err, sql.ErrNoRows) {
+		return domain.Errorf(domain.NotFound, "not found")
+	}
+	var se *sqlite.Error
+	if errors.As(err, &se) {
+		switch se.Code() {
+		case sqlite3.SQLITE_CONSTRAINT_UNIQUE, sqlite3.SQLITE_CONSTRAINT_PRIMARYKEY:
+			return domain.Errorf(domain.Conflict, "already exists: %w", err)
+		case sqlite3.SQLITE_CONSTRAINT_FOREIGNKEY:
+			return domain.Errorf(domain.Conflict, "refers to a missing row or is still referenced: %w", err)
+		case sqlite3.SQLITE_CONSTRAINT_CHECK, sqlite3.SQLITE_CONSTRAINT_NOTNULL:
+			return domain.Errorf(domain.Invalid, "breaks a rule of the schema: %w", err)
+		}
+	}
+	return domain.Errorf(domain.Internal, "sqlite: %w", err)
+}
+
+// notFound returns a NotFound error naming the entity and key.
+func notFound(entity string, key any) error {
+	return domain.Errorf(domain.NotFound, "%s %v not found", entity, key)
+}
+
+// one translates the error of a single-row read, naming what was missing.
+func one(err error, entity string, key any) error {
+	if errors.Is(err, sql.ErrNoRows) {
+		return notFound(entity, key)
+	}
+	return translate(err)
+}
+
+// versionGone explains why a version-checked update or delete touched no
+// row: the row is missing (NotFound) or has another version.
+func versionGone(ctx context.Context, q querier, table, entity string, id any, ifVersion int64) error {
+	var v int64
+	err := q.QueryRowContext(ctx, "SELECT version FROM "+table+" WHERE "+keyCol(table)+" = ?", id).Scan(&v)
+	if err != nil {
+		return one(err, entity, id)
+	}
+	return domain.Errorf(domain.PreconditionFailed, "%s %v is at version %d, not %d: reload and retry", entity, id, v, ifVersion)
+}
+
+func keyCol(table string) string {
+	if table == "survey_sets" {
+		return "hole_id"
+	}
+	return "id"
+}
+
+func now() time.Time { return time.Now().UTC().Truncate(time.Microsecond) }
+
+func micro(t time.Time) int64 { return t.UnixMicro() }
+
+func fromMicro(us int64) time.Time { return time.UnixMicro(us).UTC() }
+
+// nullFloat converts an optional float for a query argument.
+func nullFloat(p *float64) any {
+	if p == nil {
+		return nil
+	}
+	return *p
+}
+
+func floatPtr(n sql.NullFloat64) *float64 {
+	if !n.Valid {
+		return nil
+	}
+	v := n.Float64
+	return &v
+}

@@ -1,0 +1,99 @@
+package sqlite
+
+import (
+	"context"
+	"database/sql"
+
+	"corvane/internal/domain"
+)
+
+const (
+	selectSurveySet  = `SELECT hole_id, azimuth_ref, survey_date, declination, version, updated_at FROM survey_sets WHERE hole_id = ?`
+	selectStations   = `SELECT depth, azimuth, dip FROM survey_stations WHERE hole_id = ? ORDER BY depth`
+	insertSurveySet  = `INSERT INTO survey_sets (hole_id, azimuth_ref, survey_date, declination, version, updated_at) VALUES (?, ?, ?, ?, 1, ?)`
+	updateSurveySet  = `UPDATE survey_sets SET azimuth_ref = ?, survey_date = ?, declination = ?, version = version + 1, updated_at = ? WHERE hole_id = ? AND version = ? RETURNING version`
+	deleteStations   = `DELETE FROM survey_stations WHERE hole_id = ?`
+	insertStation    = `INSERT INTO survey_stations (hole_id, depth, azimuth, dip) VALUES (?, ?, ?, ?)`
+	deleteSurveySet  = `DELETE FROM survey_sets WHERE hole_id = ? AND version = ?`
+	surveySetVersion = `SELECT version FROM survey_sets WHERE hole_id = ?`
+)
+
+// GetSurvey returns the hole's survey set with its stations in depth order.
+func (s *Store) GetSurvey(ctx context.Context, holeID int64) (domain.SurveySet, error) {
+	var ss domain.SurveySet
+	q := s.read()
+	if s.tx == nil {
+		// Read the set and its stations from one snapshot.
+		tx, err := s.r.BeginTx(ctx, &sql.TxOptions{ReadOnly: true})
+		if err != nil {
+			return ss, translate(err)
+		}
+		defer tx.Rollback()
+		q = tx
+	}
+	var decl sql.NullFloat64
+	var u int64
+	err := q.QueryRowContext(ctx, selectSurveySet, holeID).Scan(&ss.HoleID, &ss.AzimuthRef, &ss.SurveyDate, &decl, &ss.Version, &u)
+	if err != nil {
+		return ss, one(err, "survey of hole", holeID)
+	}
+	ss.Declination, ss.UpdatedAt = floatPtr(decl), fromMicro(u)
+	rows, err := q.QueryContext(ctx, selectStations, holeID)
+	if err != nil {
+		return ss, translate(err)
+	}
+	ss.Stations, err = collect(rows, func(r scanner) (domain.Station, error) {
+		var st domain.Station
+		err := r.Scan(&st.Depth, &st.Azimuth, &st.Dip)
+		return st, err
+	})
+	return ss, err
+}
+
+// PutSurvey replaces the hole's whole survey set in one transaction.
+func (s *Store) PutSurvey(ctx context.Context, ss *domain.SurveySet, ifVersion int64) error {
+	t := now()
+	return s.write(ctx, func(q querier) error {
+		var cur int64
+		err := q.QueryRowContext(ctx, surveySetVersion, ss.HoleID).Scan(&cur)
+		switch {
+		case err == sql.ErrNoRows:
+			if ifVersion != 0 {
+				return domain.Errorf(domain.PreconditionFailed, "hole %d has no survey at version %d", ss.HoleID, ifVersion)
+			}
+			if _, err := q.ExecContext(ctx, insertSurveySet, ss.HoleID, ss.AzimuthRef, ss.SurveyDate, nullFloat(ss.Declination), micro(t)); err != nil {
+				if domain.IsKind(translate(err), domain.Conflict) {
+					return notFound("hole", ss.HoleID)
+				}
+				return translate(err)
+			}
+			ss.Version = 1
+		case err != nil:
+			return translate(err)
+		default:
+			if ifVersion != cur {
+				return domain.Errorf(domain.PreconditionFailed, "survey of hole %d is at version %d, not %d: reload and retry", ss.HoleID, cur, ifVersion)
+			}
+			if err := q.QueryRowContext(ctx, updateSurveySet, ss.AzimuthRef, ss.SurveyDate, nullFloat(ss.Declination), micro(t), ss.HoleID, ifVersion).Scan(&ss.Version); err != nil {
+				return translate(err)
+			}
+			if _, err := q.ExecContext(ctx, deleteStations, ss.HoleID); err != nil {
+				return translate(err)
+			}
+		}
+		for _, st := range ss.Stations {
+			if _, err := q.ExecContext(ctx, insertStation, ss.HoleID, st.Depth, st.Azimuth, st.Dip); err != nil {
+				return translate(err)
+			}
+		}
+		ss.UpdatedAt = t
+		return nil
+	})
+}
+
+// DeleteSurvey removes the hole's survey set.
+func (s *Store) DeleteSurvey(ctx context.Context, holeID, ifVersion int64) error {
+	return s.write(ctx, func(q querier) error {
+		return deleteVersioned(ctx, q, deleteSurveySet, "survey_sets", "survey of hole", holeID, ifVersion)
+	})
+}

@@ -1,0 +1,607 @@
+// Package storetest is the one conformance suite every [domain.Store]
+// implementation must pass. A store's own test calls [Run] with a function
+// that returns a fresh, migrated, empty store for each subtest.
+package storetest
+
+import (
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"sync"
+	"sync/atomic"
+	"testing"
+	"time"
+
+	"github.com/google/go-cmp/cmp"
+
+	"corvane/internal/domain"
+)
+
+// Run runs the conformance suite. newStore must return an empty store with
+// the current schema; the suite closes it.
+func Run(t *testing.T, newStore func(t *testing.T) domain.Store) {
+	tests := []struct {
+		name string
+		fn   func(t *testing.T, s domain.Store)
+	}{
+		{"Projects", testProjects},
+		{"TypeCodes", testTypeCodes},
+		{"Holes", testHoles},
+		{"Survey", testSurvey},
+		{"Runs", testRuns},
+		{"Measurements", testMeasurements},
+		{"MeasurementFilters", testMeasurementFilters},
+		{"Transactions", testTransactions},
+		{"Audit", testAudit},
+		{"Tokens", testTokens},
+		{"Idempotency", testIdempotency},
+		{"Cascade", testCascade},
+		{"ConcurrentWriters", testConcurrentWriters},
+	}
+	for _, tc := range tests {
+		t.Run(tc.name, func(t *testing.T) {
+			s := newStore(t)
+			t.Cleanup(func() { s.Close() })
+			tc.fn(t, s)
+		})
+	}
+}
+
+func ctx(t *testing.T) context.Context { return t.Context() }
+
+func wantKind(t *testing.T, err error, k domain.Kind, what string) {
+	t.Helper()
+	if err == nil {
+		t.Fatalf("%s: got nil error, want %v", what, k)
+	}
+	var e *domain.Error
+	if !errors.As(err, &e) {
+		t.Fatalf("%s: error %v (%T) is not a *domain.Error", what, err, err)
+	}
+	if e.Kind != k {
+		t.Fatalf("%s: kind %v (%v), want %v", what, e.Kind, err, k)
+	}
+}
+
+func must(t *testing.T, err error) {
+	t.Helper()
+	if err != nil {
+		t.Fatal(err)
+	}
+}
+
+func diff(t *testing.T, what string, want, got any) {
+	t.Helper()
+	if d := cmp.Diff(want, got); d != "" {
+		t.Errorf("%s mismatch (-want +got):\n%s", what, d)
+	}
+}
+
+func f64(v float64) *float64 { return &v }
+
+func st(depth, azimuth, dip float64) domain.Station {
+	return domain.Station{Depth: depth, Azimuth: azimuth, Dip: dip}
+}
+
+func newProject(t *testing.T, s domain.Store, name string) domain.Project {
+	t.Helper()
+	p := domain.Project{Name: name}
+	must(t, p.Normalize())
+	must(t, s.CreateProject(ctx(t), &p))
+	must(t, s.PutTypeCode(ctx(t), domain.TypeCode{ProjectID: p.ID, Code: "BD", Description: "bedding", Kind: "plane"}))
+	must(t, s.PutTypeCode(ctx(t), domain.TypeCode{ProjectID: p.ID, Code: "JN", Description: "joint", Kind: "plane"}))
+	return p
+}
+
+func newHole(t *testing.T, s domain.Store, projectID int64, name string) domain.Hole {
+	t.Helper()
+	h := domain.Hole{ProjectID: projectID, Name: name, East: 500100.5, North: 7100200.25, Elevation: 412.5,
+		Azimuth: 45, Dip: -60, FinalDepth: 300, CRS: "EPSG:32750", Started: "2026-03-01"}
+	must(t, s.CreateHole(ctx(t), &h))
+	return h
+}
+
+func testProjects(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	p := domain.Project{Name: "Tallowmere", Description: "fictional prospect", RefLine: "top", BetaApex: "uphole",
+		GammaSense: "anticlockwise", LengthUnit: "ft", OutputAzimuthRef: "true", Declination: 1.5, Convergence: -0.75}
+	must(t, s.CreateProject(c, &p))
+	if p.ID == 0 || p.Version != 1 || p.CreatedAt.IsZero() || !p.CreatedAt.Equal(p.UpdatedAt) {
+		t.Fatalf("create did not set id/version/times: %+v", p)
+	}
+	got, err := s.GetProject(c, p.ID)
+	must(t, err)
+	diff(t, "GetProject", p, got)
+	got, err = s.GetProjectByName(c, "Tallowmere")
+	must(t, err)
+	diff(t, "GetProjectByName", p, got)
+
+	_, err = s.GetProject(c, p.ID+1000)
+	wantKind(t, err, domain.NotFound, "missing project")
+	dup := domain.Project{Name: "Tallowmere", RefLine: "bottom", BetaApex: "downhole", GammaSense: "clockwise", LengthUnit: "m", OutputAzimuthRef: "grid"}
+	wantKind(t, s.CreateProject(c, &dup), domain.Conflict, "duplicate project name")
+
+	p.Description = "changed"
+	must(t, s.UpdateProject(c, &p, 1))
+	if p.Version != 2 {
+		t.Fatalf("version after update = %d, want 2", p.Version)
+	}
+	got, _ = s.GetProject(c, p.ID)
+	diff(t, "after update", p, got)
+	stale := p
+	stale.Description = "lost update"
+	wantKind(t, s.UpdateProject(c, &stale, 1), domain.PreconditionFailed, "stale update")
+	got, _ = s.GetProject(c, p.ID)
+	if got.Description != "changed" {
+		t.Errorf("stale update wrote %q", got.Description)
+	}
+	missing := p
+	missing.ID = 99999
+	wantKind(t, s.UpdateProject(c, &missing, 1), domain.NotFound, "update of missing project")
+
+	// Keyset pages.
+	for i := range 4 {
+		q := domain.Project{Name: fmt.Sprintf("P%d", i)}
+		must(t, q.Normalize())
+		must(t, s.CreateProject(c, &q))
+	}
+	page1, err := s.ListProjects(c, domain.Page{Limit: 3})
+	must(t, err)
+	page2, err := s.ListProjects(c, domain.Page{Limit: 3, After: page1[len(page1)-1].ID})
+	must(t, err)
+	if len(page1) != 3 || len(page2) != 2 || page2[0].ID <= page1[2].ID {
+		t.Fatalf("pages: %d then %d", len(page1), len(page2))
+	}
+	wantKind(t, s.DeleteProject(c, p.ID, 1), domain.PreconditionFailed, "stale delete")
+	must(t, s.DeleteProject(c, p.ID, 2))
+	_, err = s.GetProject(c, p.ID)
+	wantKind(t, err, domain.NotFound, "deleted project")
+	wantKind(t, s.DeleteProject(c, p.ID, 2), domain.NotFound, "delete twice")
+}
+
+func testTypeCodes(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	p := newProject(t, s, "vocab")
+	must(t, s.PutTypeCode(c, domain.TypeCode{ProjectID: p.ID, Code: "BD", Description: "bedding plane", Kind: "plane"}))
+	must(t, s.PutTypeCode(c, domain.TypeCode{ProjectID: p.ID, Code: "LN", Description: "lineation", Kind: "line"}))
+	got, err := s.ListTypeCodes(c, p.ID)
+	must(t, err)
+	diff(t, "vocabulary", []domain.TypeCode{
+		{ProjectID: p.ID, Code: "BD", Description: "bedding plane", Kind: "plane"},
+		{ProjectID: p.ID, Code: "JN", Description: "joint", Kind: "plane"},
+		{ProjectID: p.ID, Code: "LN", Description: "lineation", Kind: "line"},
+	}, got)
+	h := newHole(t, s, p.ID, "H1")
+	m := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: 10, Alpha: 30, Beta: 100, TypeCode: "JN", LoggedAt: time.Now()}
+	must(t, s.CreateMeasurement(c, &m))
+	wantKind(t, s.DeleteTypeCode(c, p.ID, "JN"), domain.Conflict, "delete code in use")
+	must(t, s.DeleteTypeCode(c, p.ID, "LN"))
+	wantKind(t, s.DeleteTypeCode(c, p.ID, "LN"), domain.NotFound, "delete missing code")
+	bad := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: 10, Alpha: 30, Beta: 100, TypeCode: "NOPE", LoggedAt: time.Now()}
+	wantKind(t, s.CreateMeasurement(c, &bad), domain.Conflict, "measurement with unknown code")
+}
+
+func testHoles(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	p := newProject(t, s, "holes")
+	q := newProject(t, s, "other")
+	h := newHole(t, s, p.ID, "TM001")
+	got, err := s.GetHole(c, h.ID)
+	must(t, err)
+	diff(t, "GetHole", h, got)
+	got, err = s.GetHoleByName(c, p.ID, "TM001")
+	must(t, err)
+	diff(t, "GetHoleByName", h, got)
+	_, err = s.GetHoleByName(c, q.ID, "TM001")
+	wantKind(t, err, domain.NotFound, "hole in other project")
+	dup := domain.Hole{ProjectID: p.ID, Name: "TM001", Dip: -90}
+	wantKind(t, s.CreateHole(c, &dup), domain.Conflict, "duplicate hole name")
+	newHole(t, s, q.ID, "TM001") // the same name in another project is fine
+	orphan := domain.Hole{ProjectID: 424242, Name: "X", Dip: -90}
+	wantKind(t, s.CreateHole(c, &orphan), domain.Conflict, "hole of missing project")
+
+	h.Dip, h.Finished = -55.5, "2026-03-09"
+	must(t, s.UpdateHole(c, &h, 1))
+	got, _ = s.GetHole(c, h.ID)
+	diff(t, "updated hole", h, got)
+	wantKind(t, s.UpdateHole(c, &h, 1), domain.PreconditionFailed, "stale hole update")
+	for i := range 3 {
+		newHole(t, s, p.ID, fmt.Sprintf("TM10%d", i))
+	}
+	all, err := s.ListHoles(c, p.ID, domain.Page{})
+	must(t, err)
+	if len(all) != 4 {
+		t.Fatalf("ListHoles: %d holes, want 4", len(all))
+	}
+	must(t, s.DeleteHole(c, h.ID, h.Version))
+	_, err = s.GetHole(c, h.ID)
+	wantKind(t, err, domain.NotFound, "deleted hole")
+}
+
+func testSurvey(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	p := newProject(t, s, "survey")
+	h := newHole(t, s, p.ID, "S1")
+	_, err := s.GetSurvey(c, h.ID)
+	wantKind(t, err, domain.NotFound, "no survey yet")
+	ss := domain.SurveySet{HoleID: h.ID, AzimuthRef: "magnetic", SurveyDate: "2026-03-05", Declination: f64(2.25),
+		Stations: []domain.Station{st(0, 45, -60), st(50, 46.5, -59), st(100, 48, -58.25)}}
+	must(t, s.PutSurvey(c, &ss, 0))
+	if ss.Version != 1 {
+		t.Fatalf("first survey version %d", ss.Version)
+	}
+	got, err := s.GetSurvey(c, h.ID)
+	must(t, err)
+	diff(t, "GetSurvey", ss, got)
+	again := ss
+	wantKind(t, s.PutSurvey(c, &again, 0), domain.PreconditionFailed, "create over existing survey")
+
+	// Replace as a whole: fewer stations, other reference.
+	repl := domain.SurveySet{HoleID: h.ID, AzimuthRef: "true", Stations: []domain.Station{st(0, 44, -61), st(120, 50, -57)}}
+	must(t, s.PutSurvey(c, &repl, 1))
+	got, _ = s.GetSurvey(c, h.ID)
+	diff(t, "replaced survey", repl, got)
+	wantKind(t, s.PutSurvey(c, &repl, 1), domain.PreconditionFailed, "stale survey")
+	none := domain.SurveySet{HoleID: 777777, AzimuthRef: "true"}
+	wantKind(t, s.PutSurvey(c, &none, 0), domain.NotFound, "survey of missing hole")
+	must(t, s.DeleteSurvey(c, h.ID, 2))
+	_, err = s.GetSurvey(c, h.ID)
+	wantKind(t, err, domain.NotFound, "deleted survey")
+}
+
+func testRuns(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	p := newProject(t, s, "runs")
+	h := newHole(t, s, p.ID, "R1")
+	r2 := domain.Run{HoleID: h.ID, From: 3, To: 6, Confidence: "fair", Comment: "broken zone"}
+	r1 := domain.Run{HoleID: h.ID, From: 0, To: 3, Confidence: "good", Mismatch: f64(4.5)}
+	must(t, s.CreateRun(c, &r2))
+	must(t, s.CreateRun(c, &r1))
+	got, err := s.GetRun(c, r1.ID)
+	must(t, err)
+	diff(t, "GetRun", r1, got)
+	list, err := s.ListRuns(c, h.ID)
+	must(t, err)
+	diff(t, "runs by depth", []domain.Run{r1, r2}, list)
+	r2.Confidence, r2.Mismatch = "poor", f64(12)
+	must(t, s.UpdateRun(c, &r2, 1))
+	got, _ = s.GetRun(c, r2.ID)
+	diff(t, "updated run", r2, got)
+	wantKind(t, s.DeleteRun(c, r2.ID, 1), domain.PreconditionFailed, "stale run delete")
+	must(t, s.DeleteRun(c, r2.ID, 2))
+	_, err = s.GetRun(c, r2.ID)
+	wantKind(t, err, domain.NotFound, "deleted run")
+}
+
+func testMeasurements(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	p := newProject(t, s, "meas")
+	h := newHole(t, s, p.ID, "M1")
+	logged := time.Date(2026, 3, 2, 10, 30, 15, 123456789, time.FixedZone("AWST", 8*3600))
+	m := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: 12.34, Alpha: 35, Beta: 210.5, Gamma: f64(80),
+		TypeCode: "BD", ApparentThickness: f64(0.12), Comment: "sharp contact", LoggedBy: "ana", LoggedAt: logged}
+	must(t, s.CreateMeasurement(c, &m))
+	if !m.LoggedAt.Equal(logged.Truncate(time.Microsecond)) {
+		t.Errorf("logged_at kept as %v, want %v to the microsecond", m.LoggedAt, logged)
+	}
+	got, err := s.GetMeasurement(c, m.ID)
+	must(t, err)
+	diff(t, "GetMeasurement", m, got)
+	plain := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: 13, Alpha: 60, Beta: 0, TypeCode: "JN", LoggedAt: logged}
+	must(t, s.CreateMeasurement(c, &plain))
+	got, _ = s.GetMeasurement(c, plain.ID)
+	if got.Gamma != nil || got.ApparentThickness != nil {
+		t.Errorf("nil optionals came back as %v, %v", got.Gamma, got.ApparentThickness)
+	}
+	m.Alpha, m.Gamma = 36, nil
+	must(t, s.UpdateMeasurement(c, &m, 1))
+	got, _ = s.GetMeasurement(c, m.ID)
+	diff(t, "updated measurement", m, got)
+	wantKind(t, s.UpdateMeasurement(c, &m, 1), domain.PreconditionFailed, "stale measurement update")
+	wantKind(t, s.DeleteMeasurement(c, m.ID, 1), domain.PreconditionFailed, "stale measurement delete")
+	must(t, s.DeleteMeasurement(c, m.ID, 2))
+	_, err = s.GetMeasurement(c, m.ID)
+	wantKind(t, err, domain.NotFound, "deleted measurement")
+
+	bulk := make([]domain.Measurement, 250)
+	for i := range bulk {
+		bulk[i] = domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: float64(i), Alpha: float64(i % 90), Beta: float64(i % 360),
+			TypeCode: "JN", LoggedBy: "bulk", LoggedAt: logged}
+		if i%2 == 0 {
+			bulk[i].Gamma = f64(float64(i % 180))
+		}
+	}
+	n, err := s.CreateMeasurements(c, bulk)
+	must(t, err)
+	if n != 250 {
+		t.Fatalf("CreateMeasurements wrote %d, want 250", n)
+	}
+	cnt, err := s.CountMeasurements(c, domain.MeasurementFilter{ProjectID: p.ID})
+	must(t, err)
+	if cnt != 251 {
+		t.Fatalf("count %d, want 251", cnt)
+	}
+	// Page through everything: no row lost or repeated.
+	seen := map[int64]bool{}
+	var after int64
+	for {
+		page, err := s.ListMeasurements(c, domain.MeasurementFilter{ProjectID: p.ID}, domain.Page{Limit: 40, After: after})
+		must(t, err)
+		for _, x := range page {
+			if seen[x.ID] {
+				t.Fatalf("measurement %d on two pages", x.ID)
+			}
+			seen[x.ID] = true
+		}
+		if len(page) < 40 {
+			break
+		}
+		after = page[len(page)-1].ID
+	}
+	if len(seen) != 251 {
+		t.Fatalf("paged %d rows, want 251", len(seen))
+	}
+	// A bulk batch with one bad row writes nothing.
+	bad := []domain.Measurement{
+		{ProjectID: p.ID, HoleID: h.ID, Depth: 1, Alpha: 1, Beta: 1, TypeCode: "JN", LoggedAt: logged},
+		{ProjectID: p.ID, HoleID: h.ID, Depth: 2, Alpha: 1, Beta: 1, TypeCode: "UNKNOWN", LoggedAt: logged},
+	}
+	if _, err := s.CreateMeasurements(c, bad); err == nil {
+		t.Fatal("bulk insert with an unknown type code succeeded")
+	}
+	cnt, _ = s.CountMeasurements(c, domain.MeasurementFilter{ProjectID: p.ID})
+	if cnt != 251 {
+		t.Fatalf("failed bulk insert left rows behind: count %d", cnt)
+	}
+}
+
+func testMeasurementFilters(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	p := newProject(t, s, "filters")
+	other := newProject(t, s, "elsewhere")
+	h1 := newHole(t, s, p.ID, "F1")
+	h2 := newHole(t, s, p.ID, "F2")
+	ho := newHole(t, s, other.ID, "F1")
+	day := func(d int) time.Time { return time.Date(2026, 3, d, 12, 0, 0, 0, time.UTC) }
+	rows := []domain.Measurement{
+		{HoleID: h1.ID, Depth: 5, TypeCode: "BD", LoggedAt: day(1)},
+		{HoleID: h1.ID, Depth: 15, TypeCode: "JN", LoggedAt: day(2)},
+		{HoleID: h1.ID, Depth: 25, TypeCode: "JN", LoggedAt: day(3)},
+		{HoleID: h2.ID, Depth: 15, TypeCode: "BD", LoggedAt: day(4)},
+		{HoleID: h2.ID, Depth: 35, TypeCode: "JN", LoggedAt: day(5)},
+	}
+	for i := range rows {
+		rows[i].ProjectID, rows[i].Alpha, rows[i].Beta = p.ID, 45, 90
+		must(t, s.CreateMeasurement(c, &rows[i]))
+	}
+	o := domain.Measurement{ProjectID: other.ID, HoleID: ho.ID, Depth: 15, Alpha: 1, Beta: 1, TypeCode: "JN", LoggedAt: day(2)}
+	must(t, s.CreateMeasurement(c, &o))
+	from, to := day(2), day(4)
+	cases := []struct {
+		name string
+		f    domain.MeasurementFilter
+		want []int
+	}{
+		{"project only", domain.MeasurementFilter{}, []int{0, 1, 2, 3, 4}},
+		{"one hole", domain.MeasurementFilter{HoleIDs: []int64{h2.ID}}, []int{3, 4}},
+		{"depth range inclusive", domain.MeasurementFilter{MinDepth: f64(15), MaxDepth: f64(25)}, []int{1, 2, 3}},
+		{"types", domain.MeasurementFilter{TypeCodes: []string{"BD"}}, []int{0, 3}},
+		{"logged range inclusive", domain.MeasurementFilter{LoggedFrom: &from, LoggedTo: &to}, []int{1, 2, 3}},
+		{"all together", domain.MeasurementFilter{HoleIDs: []int64{h1.ID, h2.ID}, MinDepth: f64(10), TypeCodes: []string{"JN", "BD"}, LoggedTo: &to}, []int{1, 2, 3}},
+	}
+	for _, tc := range cases {
+		tc.f.ProjectID = p.ID
+		got, err := s.ListMeasurements(c, tc.f, domain.Page{})
+		must(t, err)
+		var ids, want []int64
+		for _, g := range got {
+			ids = append(ids, g.ID)
+		}
+		for _, i := range tc.want {
+			want = append(want, rows[i].ID)
+		}
+		diff(t, tc.name, want, ids)
+		n, err := s.CountMeasurements(c, tc.f)
+		must(t, err)
+		if n != int64(len(tc.want)) {
+			t.Errorf("%s: count %d, want %d", tc.name, n, len(tc.want))
+		}
+	}
+	// Filter values are parameters, never SQL text.
+	got, err := s.ListMeasurements(c, domain.MeasurementFilter{ProjectID: p.ID, TypeCodes: []string{"BD' OR '1'='1"}}, domain.Page{})
+	must(t, err)
+	if len(got) != 0 {
+		t.Errorf("a quote in a filter value matched %d rows", len(got))
+	}
+}
+
+func testTransactions(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	p := newProject(t, s, "tx")
+	boom := errors.New("boom")
+	err := s.InTx(c, func(c context.Context, tx domain.Store) error {
+		h := domain.Hole{ProjectID: p.ID, Name: "ROLLED", Dip: -90}
+		if err := tx.CreateHole(c, &h); err != nil {
+			return err
+		}
+		if _, err := tx.GetHole(c, h.ID); err != nil { // reads see the transaction's own writes
+			return fmt.Errorf("read own write: %w", err)
+		}
+		// Nested InTx joins the same transaction.
+		return tx.InTx(c, func(c context.Context, tx2 domain.Store) error {
+			r := domain.Run{HoleID: h.ID, From: 0, To: 3, Confidence: "good"}
+			if err := tx2.CreateRun(c, &r); err != nil {
+				return err
+			}
+			return boom
+		})
+	})
+	if !errors.Is(err, boom) {
+		t.Fatalf("InTx returned %v, want the callback's error", err)
+	}
+	_, err = s.GetHoleByName(c, p.ID, "ROLLED")
+	wantKind(t, err, domain.NotFound, "hole of a rolled-back transaction")
+	must(t, s.InTx(c, func(c context.Context, tx domain.Store) error {
+		h := domain.Hole{ProjectID: p.ID, Name: "KEPT", Dip: -90}
+		return tx.CreateHole(c, &h)
+	}))
+	if _, err := s.GetHoleByName(c, p.ID, "KEPT"); err != nil {
+		t.Fatalf("committed hole: %v", err)
+	}
+}
+
+func testAudit(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	p := newProject(t, s, "audit")
+	at := time.Date(2026, 3, 1, 8, 0, 0, 0, time.UTC)
+	e1 := domain.AuditEntry{ProjectID: p.ID, ActorName: "ana", TokenID: 3, Entity: "hole", EntityID: "7", Action: "create", At: at,
+		After: json.RawMessage(`{"name":"TM001","dip":-60}`)}
+	e2 := domain.AuditEntry{ProjectID: p.ID, ActorName: "ben", Entity: "hole", EntityID: "7", Action: "delete", At: at.Add(time.Hour),
+		Before: json.RawMessage(`{"name":"TM001","dip":-60}`)}
+	must(t, s.AppendAudit(c, &e1))
+	must(t, s.AppendAudit(c, &e2))
+	got, err := s.ListAudit(c, p.ID, domain.Page{})
+	must(t, err)
+	if len(got) != 2 {
+		t.Fatalf("%d audit entries, want 2", len(got))
+	}
+	// JSON documents compare by meaning (PostgreSQL re-serialises jsonb).
+	jsonEq := cmp.Comparer(func(a, b json.RawMessage) bool {
+		if len(a) == 0 || len(b) == 0 {
+			return len(a) == len(b)
+		}
+		var x, y any
+		return json.Unmarshal(a, &x) == nil && json.Unmarshal(b, &y) == nil && cmp.Equal(x, y)
+	})
+	if d := cmp.Diff([]domain.AuditEntry{e1, e2}, got, jsonEq); d != "" {
+		t.Errorf("audit trail (-want +got):\n%s", d)
+	}
+	page, _ := s.ListAudit(c, p.ID, domain.Page{After: e1.ID})
+	if len(page) != 1 || page[0].ID != e2.ID {
+		t.Errorf("audit paging: %+v", page)
+	}
+}
+
+func testTokens(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	p := newProject(t, s, "tokens")
+	tk := domain.Token{ProjectID: p.ID, Name: "rig 2 logger", Role: domain.RoleLog, Hash: "aa11"}
+	site := domain.Token{ProjectID: domain.AllProjects, Name: "site admin", Role: domain.RoleAdmin, Hash: "bb22"}
+	must(t, s.CreateToken(c, &tk))
+	must(t, s.CreateToken(c, &site))
+	got, err := s.TokenByHash(c, "aa11")
+	must(t, err)
+	diff(t, "project token", tk, got)
+	got, err = s.TokenByHash(c, "bb22")
+	must(t, err)
+	diff(t, "site token", site, got)
+	_, err = s.TokenByHash(c, "cc33")
+	wantKind(t, err, domain.NotFound, "unknown token")
+	dup := domain.Token{ProjectID: p.ID, Name: "again", Role: domain.RoleRead, Hash: "aa11"}
+	wantKind(t, s.CreateToken(c, &dup), domain.Conflict, "duplicate token hash")
+	list, err := s.ListTokens(c, p.ID)
+	must(t, err)
+	diff(t, "project tokens", []domain.Token{tk}, list)
+	list, err = s.ListTokens(c, domain.AllProjects)
+	must(t, err)
+	diff(t, "site tokens", []domain.Token{site}, list)
+	must(t, s.DeleteToken(c, tk.ID))
+	_, err = s.TokenByHash(c, "aa11")
+	wantKind(t, err, domain.NotFound, "revoked token")
+}
+
+func testIdempotency(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	p := newProject(t, s, "idem")
+	_, err := s.GetIdempotency(c, p.ID, "k1")
+	wantKind(t, err, domain.NotFound, "unknown key")
+	r := domain.Idempotency{ProjectID: p.ID, Key: "k1", RequestHash: "abc", Result: json.RawMessage(`{"created":3}`)}
+	must(t, s.PutIdempotency(c, r))
+	got, err := s.GetIdempotency(c, p.ID, "k1")
+	must(t, err)
+	var res map[string]int
+	if json.Unmarshal(got.Result, &res) != nil || res["created"] != 3 || got.RequestHash != "abc" {
+		t.Errorf("remembered %+v", got)
+	}
+	wantKind(t, s.PutIdempotency(c, r), domain.Conflict, "key taken")
+}
+
+func testCascade(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	p := newProject(t, s, "cascade")
+	h := newHole(t, s, p.ID, "C1")
+	ss := domain.SurveySet{HoleID: h.ID, AzimuthRef: "true", Stations: []domain.Station{st(0, 10, -60)}}
+	must(t, s.PutSurvey(c, &ss, 0))
+	r := domain.Run{HoleID: h.ID, From: 0, To: 3, Confidence: "good"}
+	must(t, s.CreateRun(c, &r))
+	m := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: 1, Alpha: 10, Beta: 10, TypeCode: "BD", LoggedAt: time.Now()}
+	must(t, s.CreateMeasurement(c, &m))
+	tk := domain.Token{ProjectID: p.ID, Name: "x", Role: domain.RoleRead, Hash: "ff"}
+	must(t, s.CreateToken(c, &tk))
+	must(t, s.DeleteProject(c, p.ID, p.Version))
+	_, err := s.GetHole(c, h.ID)
+	wantKind(t, err, domain.NotFound, "hole of deleted project")
+	_, err = s.GetSurvey(c, h.ID)
+	wantKind(t, err, domain.NotFound, "survey of deleted project")
+	_, err = s.GetRun(c, r.ID)
+	wantKind(t, err, domain.NotFound, "run of deleted project")
+	_, err = s.GetMeasurement(c, m.ID)
+	wantKind(t, err, domain.NotFound, "measurement of deleted project")
+	_, err = s.TokenByHash(c, "ff")
+	wantKind(t, err, domain.NotFound, "token of deleted project")
+}
+
+func testConcurrentWriters(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	p := newProject(t, s, "concurrent")
+	h := newHole(t, s, p.ID, "W1")
+	const workers, each = 8, 25
+	var wg sync.WaitGroup
+	errs := make(chan error, workers*each)
+	for w := range workers {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i := range each {
+				m := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: float64(w*each + i), Alpha: 45, Beta: 90, TypeCode: "JN", LoggedAt: time.Now()}
+				if err := s.CreateMeasurement(c, &m); err != nil {
+					errs <- err
+				}
+			}
+		}()
+	}
+	wg.Wait()
+	close(errs)
+	for err := range errs {
+		t.Fatalf("concurrent insert: %v", err)
+	}
+	n, err := s.CountMeasurements(c, domain.MeasurementFilter{ProjectID: p.ID})
+	must(t, err)
+	if n != workers*each {
+		t.Fatalf("count %d after concurrent inserts, want %d", n, workers*each)
+	}
+	// Writers racing with the same version: exactly one wins.
+	var wins, lost atomic.Int32
+	for i := range 4 {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			hh := h
+			hh.CRS = fmt.Sprintf("writer %d", i)
+			err := s.UpdateHole(c, &hh, 1)
+			switch {
+			case err == nil:
+				wins.Add(1)
+			case domain.IsKind(err, domain.PreconditionFailed):
+				lost.Add(1)
+			default:
+				t.Errorf("racing update: %v", err)
+			}
+		}()
+	}
+	wg.Wait()
+	if wins.Load() != 1 || lost.Load() != 3 {
+		t.Fatalf("racing updates: %d won, %d refused; want 1 and 3", wins.Load(), lost.Load())
+	}
+}

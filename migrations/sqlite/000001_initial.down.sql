@@ -1,0 +1,10 @@
+DROP TABLE IF EXISTS idempotency_keys;
+DROP TABLE IF EXISTS api_tokens;
+DROP TABLE IF EXISTS audit_log;
+DROP TABLE IF EXISTS measurements;
+DROP TABLE IF EXISTS runs;
+DROP TABLE IF EXISTS survey_stations;
+DROP TABLE IF EXISTS survey_sets;
+DROP TABLE IF EXISTS holes;
+DROP TABLE IF EXISTS type_codes;
+DROP TABLE IF EXISTS projects;
