@@ -70,6 +70,7 @@ func Run(in Input, opt Options) Report {
 	rep := Report{Caution: Caution, Options: o, Convention: conv.String()}
 	var findings []Finding
 	add := func(f ...Finding) { findings = append(findings, f...) }
+	add(in.Problems...)
 
 	holes := map[string]*holeData{}
 	var order []*holeData

@@ -83,6 +83,9 @@ type Input struct {
 	Measurements  []Measurement    `json:"measurements"`
 	Picks         []Pick           `json:"picks,omitempty"`
 	MagneticZones []MagneticZone   `json:"magnetic_zones,omitempty"`
+	// Problems are findings made while reading the inputs (for example rows
+	// that could not be parsed); they are carried into the report as given.
+	Problems []Finding `json:"problems,omitempty"`
 }
 
 // Severity of a finding.
