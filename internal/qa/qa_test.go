@@ -63,7 +63,7 @@ func roundTo(x, step float64) float64 { return math.Round(x/step) * step }
 // measurements: bedding 040/50 and a joint set 200/75 as true planes, 3 deg
 // of noise, turned into alpha/beta by the engine's inverse (coreangle.Angles)
 // on the clean path, with the injected mark errors added to beta.
-func (s synthHole) build(t *testing.T, r *rand.Rand, in *Input) {
+func (s synthHole) build(t testing.TB, r *rand.Rand, in *Input) {
 	t.Helper()
 	c := Collar{HoleID: s.id, East: 1000, North: 2000, Elevation: 300, Azimuth: s.az, Dip: s.dip, Depth: s.depth}
 	in.Collars = append(in.Collars, c)
