@@ -134,7 +134,7 @@ func runNet(_ context.Context, env *Env, args []string) int {
 	if n.Title == "" {
 		n.Title = "Net: " + filepath.Base(in.file)
 	}
-	n.Subtitle = in.file
+	n.Subtitle = filepath.Base(in.file)
 	if c.typ != "" {
 		n.Subtitle += "  (type " + c.typ + ")"
 	}

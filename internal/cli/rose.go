@@ -79,7 +79,7 @@ func runRose(_ context.Context, env *Env, args []string) int {
 	if err != nil {
 		return fail(err)
 	}
-	r := netsvg.Rose{BinWidth: *bin, Caution: statsCaution, Subtitle: in.file}
+	r := netsvg.Rose{BinWidth: *bin, Caution: statsCaution, Subtitle: filepath.Base(in.file)}
 	r.Title = *title
 	if r.Title == "" {
 		r.Title = "Rose: " + filepath.Base(in.file)

@@ -73,9 +73,9 @@ type Net struct {
 // sheet geometry in SVG user units (1/96 inch)
 const (
 	sheetW  = 860.0
-	sheetH  = 660.0
+	sheetH  = 690.0
 	netCX   = 315.0
-	netCY   = 335.0
+	netCY   = 355.0
 	netR    = 250.0
 	panelX  = 620.0
 	fontCSS = "font-family:'DejaVu Sans',Helvetica,Arial,sans-serif"
@@ -235,7 +235,7 @@ func WriteNet(w io.Writer, n Net) error {
 
 	// Great circles.
 	if len(n.Planes) > 0 {
-		s.printf(`<g id="planes" fill="none" stroke-width="0.7">` + "\n")
+		s.printf(`<g id="planes" fill="none" stroke-width="0.5" stroke-opacity="0.6">` + "\n")
 		for _, pm := range n.Planes {
 			col, _ := setStyle(pm.Set)
 			if pm.Set < 0 {
@@ -273,6 +273,15 @@ func WriteNet(w io.Writer, n Net) error {
 	// Set means and cones.
 	if len(n.Sets) > 0 {
 		s.printf(`<g id="sets">` + "\n")
+		for i, st := range n.Sets {
+			col, _ := setStyle(i)
+			if !st.Lines {
+				// the mean plane of a set of poles, as a broad great circle
+				d := pathOf(n.Projection.GreatCircle(geom.PlaneOf(st.Mean), 180), false)
+				s.printf(`<path d="%s" fill="none" stroke="#ffffff" stroke-width="4.2"/>`+"\n", d)
+				s.printf(`<path d="%s" fill="none" stroke="%s" stroke-width="2.2" stroke-dasharray="9 3"/>`+"\n", d, col)
+			}
+		}
 		for i, st := range n.Sets {
 			col, shape := setStyle(i)
 			if st.Cone > 0 && !math.IsNaN(st.Cone) {
@@ -374,7 +383,8 @@ func (s *svgw) panel(n Net) {
 			y += 17
 		}
 		if len(n.Sets) > 0 && !n.Sets[0].Lines {
-			line(9, ` fill="#444"`, "plane = dip/dip direction of the mean pole")
+			line(9, ` fill="#444"`, "plane = dip/dip direction of the mean pole,")
+			line(9, ` fill="#444"`, "drawn as a dashed great circle")
 		}
 	}
 	if c := n.Density; c != nil && len(c.Levels) > 0 {
