@@ -130,3 +130,16 @@ func TestParse(t *testing.T) {
 		t.Error("want error")
 	}
 }
+
+// TestOnePercentCap: the 1% area counting cap has half-angle 8.1096 degrees
+// (1 - cos theta = 0.01) and radius 0.1 on the equal-area net of radius 1
+// (references README section 4; the equal-area property).
+func TestOnePercentCap(t *testing.T) {
+	theta := geom.Deg(math.Acos(1 - 0.01))
+	if math.Abs(theta-8.1096) > 5e-5 {
+		t.Errorf("theta = %v", theta)
+	}
+	if r := EqualArea.Radius(theta); math.Abs(r-0.1) > 1e-12 {
+		t.Errorf("equal-area radius of the 1%% cap = %v, want 0.1", r)
+	}
+}
