@@ -1,0 +1,354 @@
+package cli
+
+import (
+	"context"
+	"encoding/json"
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"math"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+
+	"corvane/internal/coreangle"
+	"corvane/internal/csvio"
+	"corvane/internal/qa"
+	"corvane/internal/qa/qapage"
+)
+
+func init() {
+	register(command{
+		name:    "qa",
+		summary: "check orientation marks, surveys and measurements; JSON or an HTML page",
+		run:     runQA,
+	})
+}
+
+const qaUsage = `Usage:
+  corvane qa --collars C.csv --surveys S.csv --structures M.csv --runs R.csv
+             [--picks P.csv] [--persistent TYPE] [--format json|html] [-o OUT]
+             [--mismatch-tolerance DEG] [--magnetic-zone HOLE:FROM-TO ...]
+
+Checks a programme's oriented core and surveys and reports what it finds; it changes
+nothing. Inputs are the files of corvane convert plus the orientation runs
+(hole_id, from, to, confidence, mismatch) and, optionally, reference picks of the same
+holes from another source (hole_id, depth, dip, dip_direction).
+
+  runs and marks      oriented length and share per hole; measurements outside runs or
+                      in unusable runs; mark mismatch across run breaks
+  mark rotation       with --persistent TYPE: each run's rotation about the core axis
+                      (a beta offset) that brings TYPE onto the fabric of its neighbours
+  reference picks     depth shift, matches, misfit per hole and run, implied offsets
+  surveys             dogleg severity, leave-one-out outliers, gaps, short surveys,
+                      first station against the collar, magnetic shots in magnetic zones
+  measurements        alpha >= 85, near-vertical holes, past the final depth,
+                      duplicates, beta 0/360 in bulk, round-number preference per logger
+                      (structures column logged_by; type from the column type)
+
+Survey azimuths are brought to the output reference (--output-reference, default grid)
+with the collars' declination and grid_convergence columns or --declination and
+--grid-convergence, as corvane convert does.
+
+QA flags guide a geologist's judgement and do not replace it. Suggested corrections are
+suggestions: the logged values are never changed. Where orientations feed slope or
+excavation design, follow local codes and licensed practice.
+
+Exit status: 0 when the report was written, 1 when it was written but some input rows
+could not be read (they are listed in the report), 2 for bad options or unreadable files.
+
+Options:
+`
+
+type zoneFlags []qa.MagneticZone
+
+func (z *zoneFlags) String() string { return fmt.Sprint(len(*z)) }
+
+// Set parses HOLE:FROM-TO.
+func (z *zoneFlags) Set(s string) error {
+	i := strings.LastIndex(s, ":")
+	if i <= 0 {
+		return fmt.Errorf("magnetic zone %q: want HOLE:FROM-TO", s)
+	}
+	hole, span := s[:i], s[i+1:]
+	j := strings.Index(span, "-")
+	if j <= 0 {
+		return fmt.Errorf("magnetic zone %q: want HOLE:FROM-TO", s)
+	}
+	from, err1 := strconv.ParseFloat(span[:j], 64)
+	to, err2 := strconv.ParseFloat(span[j+1:], 64)
+	if err1 != nil || err2 != nil || math.IsNaN(from) || math.IsNaN(to) || from < 0 || to < from {
+		return fmt.Errorf("magnetic zone %q: FROM and TO must be depths with FROM <= TO", s)
+	}
+	*z = append(*z, qa.MagneticZone{HoleID: hole, From: from, To: to})
+	return nil
+}
+
+func runQA(_ context.Context, env *Env, args []string) int {
+	fs := flag.NewFlagSet("qa", flag.ContinueOnError)
+	fs.SetOutput(env.Stderr)
+	fs.Usage = func() {
+		fmt.Fprint(env.Stderr, qaUsage)
+		fs.PrintDefaults()
+	}
+	def := qa.DefaultOptions()
+	collars := fs.String("collars", "", "collars CSV (required)")
+	surveys := fs.String("surveys", "", "surveys CSV (required)")
+	structures := fs.String("structures", "", "structures CSV (required)")
+	runsF := fs.String("runs", "", "orientation runs CSV (required)")
+	picks := fs.String("picks", "", "reference picks CSV (optional)")
+	persistent := fs.String("persistent", "", "structure type to treat as a persistent fabric for the mark-rotation check (e.g. bedding)")
+	format := fs.String("format", "json", "output format: json or html")
+	out := fs.String("o", "", "output file (default standard output)")
+	title := fs.String("title", "Oriented core QA", "title of the HTML page")
+	refLine := fs.String("reference-line", "bottom", "orientation line: bottom or top of hole")
+	betaApex := fs.String("beta-apex", "downhole", "beta measured to the downhole or uphole apex")
+	outRef := fs.String("output-reference", "grid", "north reference of the checks: grid or true")
+	decl := fs.Float64("declination", math.NaN(), "magnetic declination for every hole, degrees east (collar column declination wins)")
+	conv := fs.Float64("grid-convergence", math.NaN(), "grid convergence for every hole, degrees (collar column grid_convergence wins)")
+	feet := fs.Bool("feet", false, "depths in feet: dogleg severity per 100 ft")
+	var zones zoneFlags
+	fs.Var(&zones, "magnetic-zone", "HOLE:FROM-TO where magnetic surveys are unreliable (repeatable)")
+	o := def
+	fs.Float64Var(&o.MismatchTolerance, "mismatch-tolerance", def.MismatchTolerance, "mark mismatch across a run break to flag, degrees (common practice)")
+	fs.StringVar(&o.Reference, "reference", def.Reference, "fabric reference for mark rotation: neighbours or hole")
+	fs.IntVar(&o.Neighbours, "neighbours", def.Neighbours, "runs on each side forming the neighbours' reference")
+	fs.Float64Var(&o.RotationThreshold, "rotation-threshold", def.RotationThreshold, "beta offset to flag, degrees")
+	fs.IntVar(&o.MinRunCount, "min-run-count", def.MinRunCount, "measurements a run's flag must rest on")
+	fs.Float64Var(&o.DoglegThreshold, "dogleg-threshold", def.DoglegThreshold, "dogleg severity to flag, degrees per 30 m (per 100 ft with --feet)")
+	fs.Float64Var(&o.GapThreshold, "gap-threshold", def.GapThreshold, "survey gap to flag, length units")
+	fs.Float64Var(&o.PickWindow, "pick-window", def.PickWindow, "depth window for matching picks, length units")
+	fs.Float64Var(&o.MaxDepthShift, "max-depth-shift", def.MaxDepthShift, "largest depth shift between picks and core searched, length units")
+	if err := fs.Parse(args); err != nil {
+		if errors.Is(err, flag.ErrHelp) {
+			return ExitOK
+		}
+		return ExitUsage
+	}
+	if fs.NArg() > 0 {
+		fmt.Fprintf(env.Stderr, "corvane qa: unexpected argument %q\n", fs.Arg(0))
+		return ExitUsage
+	}
+	for _, req := range []struct{ name, v string }{{"--collars", *collars}, {"--surveys", *surveys}, {"--structures", *structures}, {"--runs", *runsF}} {
+		if req.v == "" {
+			fmt.Fprintf(env.Stderr, "corvane qa: %s is required\n", req.name)
+			return ExitUsage
+		}
+	}
+	if *format != "json" && *format != "html" {
+		fmt.Fprintf(env.Stderr, "corvane qa: --format %q: want json or html\n", *format)
+		return ExitUsage
+	}
+	if o.Reference != "neighbours" && o.Reference != "hole" {
+		fmt.Fprintf(env.Stderr, "corvane qa: --reference %q: want neighbours or hole\n", o.Reference)
+		return ExitUsage
+	}
+	if *outRef != "grid" && *outRef != "true" {
+		fmt.Fprintf(env.Stderr, "corvane qa: --output-reference %q: want grid or true\n", *outRef)
+		return ExitUsage
+	}
+	var err error
+	if o.Convention.RefLine, err = coreangle.ParseRefLine(*refLine); err != nil {
+		fmt.Fprintf(env.Stderr, "corvane qa: --reference-line: %v\n", err)
+		return ExitUsage
+	}
+	if o.Convention.BetaApex, err = coreangle.ParseApex(*betaApex); err != nil {
+		fmt.Fprintf(env.Stderr, "corvane qa: --beta-apex: %v\n", err)
+		return ExitUsage
+	}
+	o.PersistentType = strings.TrimSpace(*persistent)
+	o.Feet = *feet
+
+	in, rejected, err := readQAInput(*collars, *surveys, *structures, *runsF, *picks, *outRef, *decl, *conv, env.Stderr)
+	if err != nil {
+		csvio.Report(env.Stderr, err)
+		return ExitUsage
+	}
+	in.MagneticZones = zones
+	rep := qa.Run(in, o)
+
+	write := func(w io.Writer) error {
+		if *format == "html" {
+			return qapage.Write(w, rep, *title)
+		}
+		enc := json.NewEncoder(w)
+		enc.SetIndent("", "  ")
+		return enc.Encode(rep)
+	}
+	if *out == "" {
+		err = write(env.Stdout)
+	} else {
+		err = writeFileAtomic(*out, write)
+	}
+	if err != nil {
+		fmt.Fprintf(env.Stderr, "corvane qa: %v\n", err)
+		return ExitUsage
+	}
+	fmt.Fprintf(env.Stderr, "corvane qa: %d holes, %d measurements: %d flags, %d warnings, %d runs with a suspect mark\n",
+		rep.Summary.Holes, rep.Summary.Measurements, rep.Summary.BySeverity[qa.SeverityFlag], rep.Summary.BySeverity[qa.SeverityWarning], rep.Summary.RunsFlagged)
+	if rejected > 0 {
+		return ExitRows
+	}
+	return ExitOK
+}
+
+// writeFileAtomic writes through a temporary file in the target's directory
+// and renames it into place, so a failure leaves no partial output.
+func writeFileAtomic(path string, write func(io.Writer) error) error {
+	f, err := os.CreateTemp(filepath.Dir(path), ".corvane-qa-*")
+	if err != nil {
+		return err
+	}
+	tmp := f.Name()
+	if err := write(f); err != nil {
+		f.Close()
+		os.Remove(tmp)
+		return err
+	}
+	if err := f.Close(); err != nil {
+		os.Remove(tmp)
+		return err
+	}
+	return os.Rename(tmp, path)
+}
+
+// readQAInput reads the files. Whole-file problems (missing files or
+// columns, bad collar, survey, run or pick rows) are errors; bad structure
+// rows become findings in the report and are counted in rejected.
+func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl, conv float64, stderr io.Writer) (in qa.Input, rejected int, err error) {
+	open := func(name string) (*os.File, error) {
+		f, err := os.Open(name)
+		if err != nil {
+			return nil, fmt.Errorf("%s: %w", name, err)
+		}
+		return f, nil
+	}
+	f, err := open(collars)
+	if err != nil {
+		return in, 0, err
+	}
+	crows, err := csvio.ReadCollars(f, collars)
+	f.Close()
+	if err != nil {
+		return in, 0, err
+	}
+	type corr struct{ decl, conv float64 }
+	corrs := map[string]corr{}
+	for _, c := range crows {
+		in.Collars = append(in.Collars, qa.Collar{HoleID: c.HoleID, East: c.Collar.East, North: c.Collar.North, Elevation: c.Collar.Elevation,
+			Azimuth: c.Collar.Azimuth, Dip: c.Collar.Dip, Depth: c.Collar.Depth, Line: c.Line})
+		k := corr{c.Declination, c.GridConvergence}
+		if math.IsNaN(k.decl) {
+			k.decl = decl
+		}
+		if math.IsNaN(k.conv) {
+			k.conv = conv
+		}
+		corrs[c.HoleID] = k
+	}
+
+	if f, err = open(surveys); err != nil {
+		return in, 0, err
+	}
+	srows, err := csvio.ReadSurveys(f, surveys)
+	f.Close()
+	if err != nil {
+		return in, 0, err
+	}
+	warned := map[string]bool{}
+	for _, s := range srows {
+		az := s.Station.Azimuth
+		k := corrs[s.HoleID]
+		need := func(v float64, what string) float64 {
+			if math.IsNaN(v) {
+				if !warned[s.HoleID+what] {
+					warned[s.HoleID+what] = true
+					fmt.Fprintf(stderr, "corvane qa: %s line %d: hole %s needs a %s to bring %s azimuths to %s north; none given, taken as 0\n",
+						surveys, s.Line, s.HoleID, what, s.AzimuthRef, outRef)
+				}
+				return 0
+			}
+			return v
+		}
+		// true = magnetic + declination; grid = true - convergence.
+		switch {
+		case s.AzimuthRef == csvio.RefMagnetic && outRef == "grid":
+			az = az + need(k.decl, "declination") - need(k.conv, "grid convergence")
+		case s.AzimuthRef == csvio.RefMagnetic && outRef == "true":
+			az += need(k.decl, "declination")
+		case s.AzimuthRef == csvio.RefTrue && outRef == "grid":
+			az -= need(k.conv, "grid convergence")
+		case s.AzimuthRef == csvio.RefGrid && outRef == "true":
+			az += need(k.conv, "grid convergence")
+		}
+		in.Surveys = append(in.Surveys, qa.Station{HoleID: s.HoleID, Depth: s.Station.Depth, Azimuth: az, Dip: s.Station.Dip,
+			Magnetic: s.AzimuthRef == csvio.RefMagnetic, Line: s.Line})
+	}
+
+	if f, err = open(runs); err != nil {
+		return in, 0, err
+	}
+	rrows, err := csvio.ReadRuns(f, runs)
+	f.Close()
+	if err != nil {
+		return in, 0, err
+	}
+	for _, r := range rrows {
+		run := qa.OrientationRun{HoleID: r.HoleID, From: r.From, To: r.To, Confidence: r.Confidence, Line: r.Line}
+		if !math.IsNaN(r.Mismatch) {
+			m := r.Mismatch
+			run.Mismatch = &m
+		}
+		in.Runs = append(in.Runs, run)
+	}
+
+	if picks != "" {
+		if f, err = open(picks); err != nil {
+			return in, 0, err
+		}
+		prows, err := csvio.ReadPicks(f, picks)
+		f.Close()
+		if err != nil {
+			return in, 0, err
+		}
+		for _, p := range prows {
+			in.Picks = append(in.Picks, qa.Pick{HoleID: p.HoleID, Depth: p.Depth, Dip: p.Dip, DipDirection: p.DipDirection, Line: p.Line})
+		}
+	}
+
+	if f, err = open(structures); err != nil {
+		return in, 0, err
+	}
+	defer f.Close()
+	sr, err := csvio.NewStructureReader(f, structures)
+	if err != nil {
+		return in, 0, err
+	}
+	iType, iLogger := sr.Header.Index("type"), sr.Header.Index("logged_by")
+	cell := func(rec []string, i int) string {
+		if i < 0 || i >= len(rec) {
+			return ""
+		}
+		return strings.TrimSpace(rec[i])
+	}
+	for {
+		row, err := sr.Next()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return in, 0, err
+		}
+		if row.Err != nil {
+			rejected++
+			in.Problems = append(in.Problems, qa.Finding{Check: qa.CheckMeasurementInvalid, Severity: qa.SeverityFlag, HoleID: row.HoleID,
+				Depth: row.Depth, Source: "structures", Line: row.Line, Message: "row not read: " + row.Err.Error()})
+			continue
+		}
+		in.Measurements = append(in.Measurements, qa.Measurement{HoleID: row.HoleID, Depth: row.Depth, Alpha: row.Alpha, Beta: row.Beta,
+			Type: cell(row.Record, iType), Logger: cell(row.Record, iLogger), Line: row.Line})
+	}
+	return in, rejected, nil
+}

@@ -1,0 +1,120 @@
+package cli
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"fmt"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+
+	"corvane/internal/coreangle"
+	"corvane/internal/desurvey"
+	"corvane/internal/geom"
+	"corvane/internal/qa"
+)
+
+// writeQAFiles writes a small fictional programme: hole KW1 (azimuth 070,
+// dip -60, 60 m, straight), runs of 3 m, six bedding planes 040/50 per run
+// turned into alpha/beta by the engine's inverse; run 8 (24-27 m) logged with
+// its mark 40 deg off; one row with text in alpha.
+func writeQAFiles(t *testing.T, dir string) {
+	t.Helper()
+	w := func(name, s string) {
+		if err := os.WriteFile(filepath.Join(dir, name), []byte(s), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	w("collars.csv", "hole_id,easting,northing,elevation,azimuth,dip,depth\nKW1,500,800,120,70,-60,60\n")
+	w("surveys.csv", "hole_id,depth,azimuth,dip,azimuth_reference\nKW1,30,70,-60,grid\nKW1,60,70,-60,grid\n")
+	path, err := desurvey.New(desurvey.Collar{Azimuth: 70, Dip: -60, Depth: 60}, []desurvey.Station{{Depth: 30, Azimuth: 70, Dip: -60}, {Depth: 60, Azimuth: 70, Dip: -60}}, desurvey.MinimumCurvature)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var runs, st strings.Builder
+	runs.WriteString("hole_id,from,to,confidence,mismatch\n")
+	st.WriteString("hole_id,depth,alpha,beta,type,logged_by\n")
+	plane := geom.Plane{Dip: 50, DipDirection: 40}
+	for k := 0; k < 20; k++ {
+		fmt.Fprintf(&runs, "KW1,%d,%d,good,2\n", 3*k, 3*k+3)
+		for j := 0; j < 6; j++ {
+			d := float64(3*k) + 0.25 + 0.45*float64(j)
+			p, _ := path.At(d)
+			// small deterministic scatter of the plane, a few degrees
+			pl := geom.Plane{Dip: plane.Dip + float64((j*7+k)%5) - 2, DipDirection: plane.DipDirection + float64((j*3+k*5)%7) - 3}
+			a, b, _ := coreangle.Angles(p.Dir, pl, coreangle.Convention{})
+			if k == 8 {
+				b = geom.NormAzimuth(b + 40)
+			}
+			fmt.Fprintf(&st, "KW1,%.2f,%.1f,%.1f,bedding,ann\n", d, a, b)
+		}
+	}
+	st.WriteString("KW1,59.5,abc,10,joint,ann\n")
+	w("runs.csv", runs.String())
+	w("structures.csv", st.String())
+}
+
+func TestQACommand(t *testing.T) {
+	dir := t.TempDir()
+	writeQAFiles(t, dir)
+	args := func(extra ...string) []string {
+		return append([]string{"qa", "--collars", filepath.Join(dir, "collars.csv"), "--surveys", filepath.Join(dir, "surveys.csv"),
+			"--structures", filepath.Join(dir, "structures.csv"), "--runs", filepath.Join(dir, "runs.csv"), "--persistent", "bedding"}, extra...)
+	}
+	var out, errb bytes.Buffer
+	code := Main(context.Background(), args(), nil, &out, &errb, func(string) string { return "" })
+	if code != ExitRows {
+		t.Fatalf("exit %d, want %d (one bad row); stderr: %s", code, ExitRows, errb.String())
+	}
+	var rep qa.Report
+	if err := json.Unmarshal(out.Bytes(), &rep); err != nil {
+		t.Fatal(err)
+	}
+	var rot, bad []qa.Finding
+	for _, f := range rep.Findings {
+		switch f.Check {
+		case qa.CheckMarkRotation:
+			rot = append(rot, f)
+		case qa.CheckMeasurementInvalid:
+			bad = append(bad, f)
+		}
+	}
+	if len(rot) != 1 || rot[0].Depth != 24 || rot[0].Size < 36 || rot[0].Size > 44 {
+		t.Errorf("mark rotation findings %+v, want one at 24 of about 40 deg", rot)
+	}
+	if len(bad) != 1 || bad[0].Line != 122 || !strings.Contains(bad[0].Message, "alpha") {
+		t.Errorf("bad-row findings %+v, want line 122 naming alpha", bad)
+	}
+
+	// HTML to a file.
+	html := filepath.Join(dir, "qa.html")
+	out.Reset()
+	errb.Reset()
+	if code := Main(context.Background(), args("--format", "html", "-o", html, "--title", "Kestrel Wells"), nil, &out, &errb, func(string) string { return "" }); code != ExitRows {
+		t.Fatalf("html: exit %d: %s", code, errb.String())
+	}
+	page, err := os.ReadFile(html)
+	if err != nil || !bytes.Contains(page, []byte("Kestrel Wells")) || !bytes.Contains(page, []byte("do not replace it")) {
+		t.Errorf("html page: %v, %d bytes", err, len(page))
+	}
+}
+
+func TestQACommandUsage(t *testing.T) {
+	for _, a := range [][]string{
+		{"qa"},
+		{"qa", "--collars", "x", "--surveys", "y", "--structures", "z", "--runs", "r", "--format", "pdf"},
+		{"qa", "--magnetic-zone", "KW1:30"},
+		{"qa", "--collars", "/nonexistent/c.csv", "--surveys", "y", "--structures", "z", "--runs", "r"},
+	} {
+		var out, errb bytes.Buffer
+		if code := Main(context.Background(), a, nil, &out, &errb, func(string) string { return "" }); code != ExitUsage || errb.Len() == 0 {
+			t.Errorf("%v: exit %d, stderr %q", a, code, errb.String())
+		}
+	}
+	var z zoneFlags
+	if err := z.Set("TM-001:12.5-30"); err != nil || z[0] != (qa.MagneticZone{HoleID: "TM-001", From: 12.5, To: 30}) {
+		t.Errorf("zone %v %v", z, err)
+	}
+}
