@@ -59,3 +59,33 @@ func TestReadOrientationsWholeFile(t *testing.T) {
 		}
 	}
 }
+
+// FuzzReadOrientations: any input either fails as a whole or yields rows whose
+// values are in range, each with a line number, and never panics.
+func FuzzReadOrientations(f *testing.F) {
+	f.Add("dip,dip_direction\n30,120\n")
+	f.Add("LINE_TREND,line_plunge,hole_azimuth,hole_dip\n10,20,30,-40\n\"x\n")
+	f.Add("dip,dip_direction,line_trend,line_plunge\n,,,\n90,360,360,90\n")
+	f.Fuzz(func(t *testing.T, in string) {
+		rows, problems, err := ReadOrientations(strings.NewReader(in), "f.csv")
+		if err != nil {
+			return
+		}
+		for _, r := range rows {
+			if r.Line < 2 || (!r.HasPlane && !r.HasLine) {
+				t.Fatalf("bad row %+v", r)
+			}
+			if r.HasPlane && !(r.Plane.Dip >= 0 && r.Plane.Dip <= 90 && r.Plane.DipDirection >= 0 && r.Plane.DipDirection < 360) {
+				t.Fatalf("plane out of range %+v", r.Plane)
+			}
+			if r.HasLine && !(r.LineDir.Plunge >= 0 && r.LineDir.Plunge <= 90 && r.LineDir.Trend >= 0 && r.LineDir.Trend < 360) {
+				t.Fatalf("line out of range %+v", r.LineDir)
+			}
+		}
+		for _, p := range problems {
+			if p.Loc.File != "f.csv" || p.Loc.Line < 1 {
+				t.Fatalf("problem without location: %v", p)
+			}
+		}
+	})
+}
