@@ -13,7 +13,7 @@ func programme(b testing.TB, holes, perRun int) Input {
 	r := rand.New(rand.NewPCG(51, 52))
 	var in Input
 	for i := 0; i < holes; i++ {
-		synthHole{id: fmt.Sprintf("H%03d", i), az: float64((i*37+10)%340), dip: -50 - float64(i%25), flatten: 1, depth: 300, runLen: 3, perRun: perRun,
+		synthHole{id: fmt.Sprintf("H%03d", i), az: float64((i*37 + 10) % 340), dip: -50 - float64(i%25), flatten: 1, depth: 300, runLen: 3, perRun: perRun,
 			rotations: map[int]float64{i % 100: 30, (i + 50) % 100: -20}}.build(b, r, &in)
 	}
 	for _, m := range in.Measurements {

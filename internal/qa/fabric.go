@@ -139,12 +139,12 @@ func rotationChecks(h *holeData, conv coreangle.Convention, o Options) []Finding
 			}
 			nb := geom.NormAzimuth(x.m.Beta + e.Offset)
 			pl, _ := coreangle.Plane(x.h, x.m.Alpha, nb, conv)
-			rr.Suggestions = append(rr.Suggestions, Suggestion{Line: x.m.Line, Depth: x.m.Depth, Type: x.m.Type,
+			rr.Suggestions = append(rr.Suggestions, Suggestion{Line: x.m.Line, ID: x.m.ID, Depth: x.m.Depth, Type: x.m.Type,
 				Alpha: x.m.Alpha, Beta: x.m.Beta, SuggestedBeta: nb,
 				Dip: x.plane.Dip, DipDirection: x.plane.DipDirection, SuggestedDip: pl.Dip, SuggestedDipDirection: pl.DipDirection})
 		}
 		out = append(out, Finding{Check: CheckMarkRotation, Severity: SeverityFlag, HoleID: h.c.HoleID, Depth: run.From, DepthTo: run.To,
-			Size: math.Abs(e.Offset), Unit: "deg", Source: "runs", Line: run.Line,
+			Size: math.Abs(e.Offset), Unit: "deg", Source: "runs", Line: run.Line, ID: run.ID,
 			Message: fmt.Sprintf("run %.2f-%.2f: its %s fits the %s fabric (%03.0f/%02.0f, %d poles) only after turning the core %+.1f deg +- %.1f (95%%) about its axis, from %d measurements; median misfit %.1f -> %.1f deg. The mark is likely off: suggested betas = logged beta %+.1f (not applied)",
 				run.From, run.To, o.PersistentType, map[string]string{"neighbours": "neighbouring runs'", "hole": "hole-wide"}[e.RefSource],
 				e.Reference.Trend, e.Reference.Plunge, e.ReferenceN, e.Offset, e.HalfWidth95, e.N, e.MisfitBefore, e.MisfitAfter, e.Offset)})

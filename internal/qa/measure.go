@@ -37,7 +37,7 @@ func measurementChecks(h *holeData, conv coreangle.Convention, o Options, logger
 				msg = err.Error()
 			}
 			out = append(out, Finding{Check: CheckMeasurementInvalid, Severity: SeverityFlag, HoleID: id, Depth: m.Depth,
-				Source: "structures", Line: m.Line, Logger: m.Logger, Message: "measurement not checked: " + msg})
+				Source: "structures", Line: m.Line, ID: m.ID, Logger: m.Logger, Message: "measurement not checked: " + msg})
 			continue
 		}
 		name := strings.TrimSpace(m.Logger)
@@ -54,14 +54,14 @@ func measurementChecks(h *holeData, conv coreangle.Convention, o Options, logger
 
 		if m.Depth > h.c.Depth {
 			out = append(out, Finding{Check: CheckPastFinalDepth, Severity: SeverityFlag, HoleID: id, Depth: m.Depth,
-				Size: m.Depth - h.c.Depth, Source: "structures", Line: m.Line, Logger: m.Logger,
+				Size: m.Depth - h.c.Depth, Source: "structures", Line: m.Line, ID: m.ID, Logger: m.Logger,
 				Message: fmt.Sprintf("measurement at %.2f lies %.2f past the final depth %.2f", m.Depth, m.Depth-h.c.Depth, h.c.Depth)})
 			continue
 		}
 		pt, err := h.path.At(m.Depth)
 		if err != nil {
 			out = append(out, Finding{Check: CheckMeasurementInvalid, Severity: SeverityFlag, HoleID: id, Depth: m.Depth,
-				Source: "structures", Line: m.Line, Logger: m.Logger, Message: "measurement not checked: " + err.Error()})
+				Source: "structures", Line: m.Line, ID: m.ID, Logger: m.Logger, Message: "measurement not checked: " + err.Error()})
 			continue
 		}
 		x.h = pt.Dir
@@ -81,7 +81,7 @@ func measurementChecks(h *holeData, conv coreangle.Convention, o Options, logger
 		}
 		if m.Alpha >= o.HighAlpha {
 			out = append(out, Finding{Check: CheckHighAlpha, Severity: SeverityInfo, HoleID: id, Depth: m.Depth, Size: m.Alpha, Unit: "deg",
-				Source: "structures", Line: m.Line, Logger: m.Logger,
+				Source: "structures", Line: m.Line, ID: m.ID, Logger: m.Logger,
 				Message: fmt.Sprintf("alpha %.1f >= %.0f: the trace is nearly a circle and beta, hence the dip direction, is poorly defined", m.Alpha, o.HighAlpha)})
 		}
 	}
@@ -114,7 +114,7 @@ func measurementChecks(h *holeData, conv coreangle.Convention, o Options, logger
 		cnt := j - i + 1
 		hr.OutsideRuns += cnt
 		out = append(out, Finding{Check: CheckOutsideRun, Severity: SeverityWarning, HoleID: id, Depth: x.m.Depth, DepthTo: h.ms[j].m.Depth,
-			Size: float64(cnt), Source: "structures", Line: x.m.Line,
+			Size: float64(cnt), Source: "structures", Line: x.m.Line, ID: x.m.ID,
 			Message: fmt.Sprintf("%d measurements between %.2f and %.2f lie outside any orientation run: their beta has no mark to refer to", cnt, x.m.Depth, h.ms[j].m.Depth)})
 		i = j
 	}
@@ -122,7 +122,7 @@ func measurementChecks(h *holeData, conv coreangle.Convention, o Options, logger
 		if n > 0 {
 			run := h.runs[r]
 			out = append(out, Finding{Check: CheckUnusableRun, Severity: SeverityWarning, HoleID: id, Depth: run.From, DepthTo: run.To,
-				Size: float64(n), Source: "runs", Line: run.Line,
+				Size: float64(n), Source: "runs", Line: run.Line, ID: run.ID,
 				Message: fmt.Sprintf("%d measurements lie in the run %.2f-%.2f rated %q (unusable): their orientations cannot be trusted", n, run.From, run.To, run.Confidence)})
 		}
 	}
@@ -138,11 +138,11 @@ func measurementChecks(h *holeData, conv coreangle.Convention, o Options, logger
 				ma, mb := h.ms[a].m, h.ms[b].m
 				if ma.Alpha == mb.Alpha && ma.Beta == mb.Beta && strings.EqualFold(ma.Type, mb.Type) {
 					out = append(out, Finding{Check: CheckDuplicate, Severity: SeverityFlag, HoleID: id, Depth: mb.Depth,
-						Source: "structures", Line: mb.Line, Logger: mb.Logger,
+						Source: "structures", Line: mb.Line, ID: mb.ID, Logger: mb.Logger,
 						Message: fmt.Sprintf("measurement at %.2f (alpha %g, beta %g) repeats the one on line %d", mb.Depth, mb.Alpha, mb.Beta, ma.Line)})
 				} else if a == i && b == i+1 {
 					out = append(out, Finding{Check: CheckDuplicateDepth, Severity: SeverityInfo, HoleID: id, Depth: mb.Depth,
-						Size: float64(j - i + 1), Source: "structures", Line: mb.Line,
+						Size: float64(j - i + 1), Source: "structures", Line: mb.Line, ID: mb.ID,
 						Message: fmt.Sprintf("%d measurements share the depth %.2f: check that they are distinct structures", j-i+1, mb.Depth)})
 				}
 			}

@@ -14,6 +14,7 @@ type coreItem struct {
 	n, h  geom.Vec3 // true pole and down-hole direction
 	run   int       // index in the hole's runs, -1 outside any run
 	line  int
+	id    int64
 }
 
 // pickItem is a reference pick.
@@ -137,7 +138,7 @@ func pickChecks(h *holeData, o Options) []Finding {
 	var core []coreItem
 	for _, x := range h.ms {
 		if x.ok {
-			core = append(core, coreItem{depth: x.m.Depth, n: x.n, h: x.h, run: x.run, line: x.m.Line})
+			core = append(core, coreItem{depth: x.m.Depth, n: x.n, h: x.h, run: x.run, line: x.m.Line, id: x.m.ID})
 		}
 	}
 	if len(picks) == 0 {
@@ -174,7 +175,7 @@ func pickChecks(h *holeData, o Options) []Finding {
 		ci := core[c]
 		mis := geom.AxialAngle(p.n, ci.n)
 		all = append(all, mis)
-		hp.Matches = append(hp.Matches, PickMatch{PickLine: p.line, MeasurementLine: ci.line, PickDepth: p.depth, CoreDepth: ci.depth, Misfit: mis})
+		hp.Matches = append(hp.Matches, PickMatch{PickLine: p.line, MeasurementLine: ci.line, MeasurementID: ci.id, PickDepth: p.depth, CoreDepth: ci.depth, Misfit: mis})
 		if ci.run < 0 {
 			continue
 		}
@@ -223,7 +224,7 @@ func pickChecks(h *holeData, o Options) []Finding {
 			if e.Flagged {
 				run := h.runs[r]
 				out = append(out, Finding{Check: CheckPickOffset, Severity: SeverityFlag, HoleID: id, Depth: run.From, DepthTo: run.To,
-					Size: math.Abs(e.Offset), Unit: "deg", Source: "runs", Line: run.Line,
+					Size: math.Abs(e.Offset), Unit: "deg", Source: "runs", Line: run.Line, ID: run.ID,
 					Message: fmt.Sprintf("run %.2f-%.2f: %d matched reference picks imply a beta offset of %+.1f deg +- %.1f (95%%); median misfit %.1f deg",
 						run.From, run.To, cm.N, e.Offset, e.HalfWidth95, rp.Misfit.Median)})
 			}

@@ -68,7 +68,7 @@ func runChecks(c Collar, runs []OrientationRun, o Options, hr *HoleReport) []Fin
 	hr.Runs = make([]RunReport, len(runs))
 	for i, r := range runs {
 		cl := classify(r.Confidence, o)
-		hr.Runs[i] = RunReport{From: r.From, To: r.To, Confidence: r.Confidence, Class: cl, Mismatch: r.Mismatch, Line: r.Line}
+		hr.Runs[i] = RunReport{From: r.From, To: r.To, Confidence: r.Confidence, Class: cl, Mismatch: r.Mismatch, Line: r.Line, ID: r.ID}
 		iv := [2]float64{r.From, r.To}
 		all = append(all, iv)
 		switch cl {
@@ -79,17 +79,17 @@ func runChecks(c Collar, runs []OrientationRun, o Options, hr *HoleReport) []Fin
 		}
 		if i > 0 && r.From < runs[i-1].To {
 			out = append(out, Finding{Check: CheckRunOverlap, Severity: SeverityWarning, HoleID: c.HoleID,
-				Depth: r.From, DepthTo: math.Min(r.To, runs[i-1].To), Size: math.Min(r.To, runs[i-1].To) - r.From, Source: "runs", Line: r.Line,
+				Depth: r.From, DepthTo: math.Min(r.To, runs[i-1].To), Size: math.Min(r.To, runs[i-1].To) - r.From, Source: "runs", Line: r.Line, ID: r.ID,
 				Message: fmt.Sprintf("run %.2f-%.2f overlaps the run %.2f-%.2f", r.From, r.To, runs[i-1].From, runs[i-1].To)})
 		}
 		if r.To > c.Depth {
 			out = append(out, Finding{Check: CheckRunPastDepth, Severity: SeverityWarning, HoleID: c.HoleID,
-				Depth: r.From, DepthTo: r.To, Size: r.To - c.Depth, Source: "runs", Line: r.Line,
+				Depth: r.From, DepthTo: r.To, Size: r.To - c.Depth, Source: "runs", Line: r.Line, ID: r.ID,
 				Message: fmt.Sprintf("run %.2f-%.2f ends %.2f past the final depth %.2f", r.From, r.To, r.To-c.Depth, c.Depth)})
 		}
 		if r.Mismatch != nil && math.Abs(*r.Mismatch) > o.MismatchTolerance {
 			out = append(out, Finding{Check: CheckMismatch, Severity: SeverityFlag, HoleID: c.HoleID,
-				Depth: r.From, Size: math.Abs(*r.Mismatch), Unit: "deg", Source: "runs", Line: r.Line,
+				Depth: r.From, Size: math.Abs(*r.Mismatch), Unit: "deg", Source: "runs", Line: r.Line, ID: r.ID,
 				Message: fmt.Sprintf("orientation marks disagree by %.1f deg across the run break at %.2f (tolerance %.1f deg): one of the two marks is suspect",
 					math.Abs(*r.Mismatch), r.From, o.MismatchTolerance)})
 		}

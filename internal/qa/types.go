@@ -44,6 +44,7 @@ type OrientationRun struct {
 	Confidence string   `json:"confidence"`
 	Mismatch   *float64 `json:"mismatch,omitempty"`
 	Line       int      `json:"line,omitempty"`
+	ID         int64    `json:"id,omitempty"` // store id, when the run comes from one
 }
 
 // Measurement is one structure measurement as logged on the core.
@@ -55,6 +56,7 @@ type Measurement struct {
 	Type   string  `json:"type,omitempty"`
 	Logger string  `json:"logged_by,omitempty"`
 	Line   int     `json:"line,omitempty"`
+	ID     int64   `json:"id,omitempty"` // store id, when the measurement comes from one
 }
 
 // Pick is an orientation of the same hole from another source (for example
@@ -135,6 +137,7 @@ type Finding struct {
 	Unit     string  `json:"unit,omitempty"`
 	Source   string  `json:"source,omitempty"` // input set: collars, surveys, runs, structures, picks
 	Line     int     `json:"line,omitempty"`   // line in that input, when known
+	ID       int64   `json:"id,omitempty"`     // store id of the run or measurement, when known
 	Logger   string  `json:"logged_by,omitempty"`
 	Message  string  `json:"message"`
 }
@@ -177,6 +180,7 @@ type RotationEstimate struct {
 // It is a suggestion only: the logged values are not changed.
 type Suggestion struct {
 	Line                  int     `json:"line,omitempty"`
+	ID                    int64   `json:"id,omitempty"`
 	Depth                 float64 `json:"depth"`
 	Type                  string  `json:"type,omitempty"`
 	Alpha                 float64 `json:"alpha"`
@@ -204,6 +208,7 @@ type RunReport struct {
 	Confidence   string   `json:"confidence"`
 	Class        string   `json:"class"` // "confident", "other" or "unusable"
 	Mismatch     *float64 `json:"mismatch,omitempty"`
+	ID           int64    `json:"id,omitempty"`
 	Measurements int      `json:"measurements"`
 	Persistent   int      `json:"persistent"` // measurements of the persistent type
 	Line         int      `json:"line,omitempty"`
@@ -225,6 +230,7 @@ type RunPicks struct {
 type PickMatch struct {
 	PickLine        int     `json:"pick_line,omitempty"`
 	MeasurementLine int     `json:"measurement_line,omitempty"`
+	MeasurementID   int64   `json:"measurement_id,omitempty"`
 	PickDepth       float64 `json:"pick_depth"`
 	CoreDepth       float64 `json:"core_depth"`
 	Misfit          float64 `json:"misfit"` // degrees between the poles
