@@ -288,16 +288,39 @@ func FormatFloat(v float64, prec int) string {
 	return string(AppendFloat(nil, v, prec))
 }
 
-// AppendFloat appends v with prec decimals to b, writing values that round to
-// zero as unsigned zero and NaN as nothing.
+// AppendFloat appends v with prec decimals (0..9) to b: the value scaled by
+// 10^prec and rounded half away from zero, so values that round to zero
+// are written as unsigned zero; NaN is written as nothing. Values too large
+// for that (|v| 10^prec >= 2^53) and infinities are formatted by strconv.
 func AppendFloat(b []byte, v float64, prec int) []byte {
 	if math.IsNaN(v) {
 		return b
 	}
-	if prec >= 0 && prec < len(halfUnit) && math.Abs(v) < halfUnit[prec] {
+	if prec < 0 || prec >= len(pow10) {
+		return strconv.AppendFloat(b, v, 'f', prec, 64)
+	}
+	s := math.Round(math.Abs(v) * pow10[prec])
+	if !(s < 1<<53) {
+		return strconv.AppendFloat(b, v, 'f', prec, 64)
+	}
+	n := uint64(s)
+	if n == 0 {
 		v = 0
 	}
-	return strconv.AppendFloat(b, v, 'f', prec, 64)
+	if v < 0 {
+		b = append(b, '-')
+	}
+	p := uint64(pow10[prec])
+	b = strconv.AppendUint(b, n/p, 10)
+	if prec == 0 {
+		return b
+	}
+	b = append(b, '.')
+	f := n % p
+	for d := p / 10; d > 0; d /= 10 {
+		b = append(b, byte('0'+f/d%10))
+	}
+	return b
 }
 
-var halfUnit = [...]float64{0.5, 0.05, 0.005, 0.0005, 0.00005, 0.000005, 0.0000005, 0.00000005, 0.000000005, 0.0000000005}
+var pow10 = [...]float64{1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9}

@@ -6,6 +6,8 @@ import (
 	"errors"
 	"io"
 	"math"
+	"math/rand/v2"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -238,5 +240,39 @@ func TestParseAzimuthRef(t *testing.T) {
 	}
 	if _, err := ParseAzimuthRef("mag"); err == nil {
 		t.Error("mag accepted")
+	}
+}
+
+// AppendFloat agrees with strconv's fixed format except on exact ties.
+func TestAppendFloat(t *testing.T) {
+	for _, c := range []struct {
+		v    float64
+		prec int
+		want string
+	}{{0, 2, "0.00"}, {-0.004, 2, "0.00"}, {-0.006, 2, "-0.01"}, {359.999, 2, "360.00"}, {12.3456, 3, "12.346"},
+		{-90, 0, "-90"}, {6123456.789, 3, "6123456.789"}, {0.05, 1, "0.1"}, {1e20, 2, "100000000000000000000.00"}, {math.Inf(-1), 2, "-Inf"}, {7.0001, 9, "7.000100000"}} {
+		if got := string(AppendFloat(nil, c.v, c.prec)); got != c.want {
+			t.Errorf("AppendFloat(%v, %d) = %q, want %q", c.v, c.prec, got, c.want)
+		}
+	}
+	if FormatFloat(math.NaN(), 2) != "" {
+		t.Error("NaN not empty")
+	}
+	r := rand.New(rand.NewPCG(1, 1))
+	for i := 0; i < 100000; i++ {
+		v := (r.Float64() - 0.5) * math.Pow(10, float64(r.IntN(12)))
+		prec := r.IntN(7)
+		got := string(AppendFloat(nil, v, prec))
+		want := strconv.FormatFloat(v, 'f', prec, 64)
+		if want == "-0"+strings.TrimPrefix(want, "-0") && strings.Trim(want, "-0.") == "" {
+			want = strings.TrimPrefix(want, "-")
+		}
+		if got != want {
+			// Only a tie after scaling may differ: check the scaled value is within 1e-6 of .5.
+			s := math.Abs(v) * math.Pow10(prec)
+			if math.Abs(s-math.Floor(s)-0.5) > 1e-6 {
+				t.Fatalf("AppendFloat(%v, %d) = %q, strconv %q", v, prec, got, want)
+			}
+		}
 	}
 }

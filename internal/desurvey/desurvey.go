@@ -128,6 +128,21 @@ type Interval struct {
 // hole's final depth.
 var ErrPastEnd = errors.New("depth past the hole's final depth")
 
+// StationError is a problem with one survey station given to [NewWith].
+type StationError struct {
+	Index int // position of the station in the slice given to NewWith, from 0
+	Depth float64
+	Msg   string
+}
+
+func (e *StationError) Error() string {
+	return fmt.Sprintf("station %d at depth %g: %s", e.Index+1, e.Depth, e.Msg)
+}
+
+func stationErr(i int, depth float64, format string, args ...any) error {
+	return &StationError{Index: i, Depth: depth, Msg: fmt.Sprintf(format, args...)}
+}
+
 // Path is a desurveyed hole. Build it with [New] or [NewWith].
 type Path struct {
 	opt   Options
@@ -151,8 +166,9 @@ func New(c Collar, st []Station, m Method) (*Path, error) {
 // to at most the collar's final depth, azimuths in [0, 360] and dips in
 // [-90, 90]. If no station is at depth 0, the collar's azimuth and dip act as
 // the station at depth 0. Two consecutive stations with opposite directions
-// (a dogleg of 180 degrees) have no defined arc and are an error. Errors name
-// the station by its index in st and its depth.
+// (a dogleg of 180 degrees) have no defined arc and are an error. Problems
+// with a station are *[StationError] values naming it by its index in st and
+// its depth.
 func NewWith(c Collar, st []Station, o Options) (*Path, error) {
 	if o.Method < MinimumCurvature || o.Method > Tangential {
 		return nil, fmt.Errorf("unknown desurvey method %d", int(o.Method))
@@ -190,33 +206,34 @@ func NewWith(c Collar, st []Station, o Options) (*Path, error) {
 	}
 	for i, s := range st {
 		if math.IsNaN(s.Depth) || math.IsInf(s.Depth, 0) {
-			return nil, fmt.Errorf("station %d: depth is not a finite number", i+1)
+			return nil, stationErr(i, s.Depth, "depth is not a finite number")
 		}
 		if s.Depth < 0 {
-			return nil, fmt.Errorf("station %d: depth %g is negative", i+1, s.Depth)
+			return nil, stationErr(i, s.Depth, "depth is negative")
 		}
 		if len(p.md) > 0 && s.Depth <= p.md[len(p.md)-1] {
 			prev := p.md[len(p.md)-1]
 			if s.Depth == prev {
-				return nil, fmt.Errorf("station %d: depth %g repeats the previous station", i+1, s.Depth)
+				return nil, stationErr(i, s.Depth, "depth repeats the previous station")
 			}
-			return nil, fmt.Errorf("station %d: depth %g is not greater than the previous depth %g (stations must be sorted by depth)", i+1, s.Depth, prev)
+			return nil, stationErr(i, s.Depth, "depth is not greater than the previous depth %g (stations must be sorted by depth)", prev)
 		}
 		if s.Depth > c.Depth {
-			return nil, fmt.Errorf("station %d: depth %g is past the hole's final depth %g", i+1, s.Depth, c.Depth)
+			return nil, stationErr(i, s.Depth, "depth is past the hole's final depth %g", c.Depth)
 		}
 		if err := checkDirection(s.Azimuth, s.Dip); err != nil {
-			return nil, fmt.Errorf("station %d at depth %g: %w", i+1, s.Depth, err)
+			return nil, stationErr(i, s.Depth, "%v", err)
 		}
 		p.md = append(p.md, s.Depth)
 		p.dir = append(p.dir, geom.HoleDirection(s.Azimuth, s.Dip))
 	}
 	p.pos = append(p.pos, geom.Vec3{X: c.East, Y: c.North, Z: c.Elevation})
+	offset := len(p.md) - len(st) // 1 when the collar acts as the station at 0
 	for i := 0; i+1 < len(p.md); i++ {
 		t1, t2 := p.dir[i], p.dir[i+1]
 		sum := t1.Add(t2).Norm()
 		if sum < 1e-9 {
-			return nil, fmt.Errorf("stations at depths %g and %g point in opposite directions: no arc joins them", p.md[i], p.md[i+1])
+			return nil, stationErr(i+1-offset, p.md[i+1], "its direction is opposite to the one at depth %g: no arc joins them", p.md[i])
 		}
 		dl := 2 * math.Atan2(t2.Sub(t1).Norm(), sum)
 		rf := ratioFactor(dl)

@@ -227,6 +227,7 @@ func TestNewValidation(t *testing.T) {
 		{c, []Station{{10, 0, -95}}, "dip -95"},
 		{c, []Station{{10, 361, -60}}, "azimuth 361"},
 		{c, []Station{{10, math.NaN(), -60}}, "azimuth NaN"},
+		{c, []Station{{0, 0, -60}, {10, 180, 60}}, "station 2 at depth 10"},
 		{c, []Station{{math.Inf(1), 0, -60}}, "finite"},
 		{c, []Station{{-1, 0, -60}}, "negative"},
 		{c, []Station{{120, 0, -60}}, "past the hole's final depth"},
@@ -238,6 +239,10 @@ func TestNewValidation(t *testing.T) {
 		if err == nil || !strings.Contains(err.Error(), tc.want) {
 			t.Errorf("%+v %+v: err = %v, want %q", tc.c, tc.st, err, tc.want)
 		}
+	}
+	var se *StationError
+	if _, err := New(c, []Station{{10, 0, -60}, {5, 0, -60}}, MinimumCurvature); !errors.As(err, &se) || se.Index != 1 || se.Depth != 5 {
+		t.Errorf("station error %#v", err)
 	}
 	// A station at depth 0 replaces the collar direction.
 	p, err := New(c, []Station{{0, 200, -45}}, MinimumCurvature)

@@ -1,0 +1,308 @@
+package convert
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+
+	"corvane/internal/coreangle"
+	"corvane/internal/csvio"
+	"corvane/internal/desurvey"
+	"corvane/internal/domain"
+	"corvane/internal/geom"
+)
+
+// Measurement is one core-angle measurement to convert.
+type Measurement struct {
+	HoleID string
+	Depth  float64
+	Alpha  float64
+	Beta   float64
+	// Gamma is used when HasGamma.
+	Gamma    float64
+	HasGamma bool
+	// Thickness is the apparent (along-core) thickness, used when
+	// HasThickness.
+	Thickness    float64
+	HasThickness bool
+}
+
+// Result is a converted measurement.
+type Result struct {
+	Hole *Hole
+	// Point is the hole at the measurement depth: position (E, N, Elev) and
+	// down-hole direction.
+	Point desurvey.Point
+	// HoleAzimuth and HoleDip give the hole direction at the depth (dip
+	// negative downward), in the output reference.
+	HoleAzimuth, HoleDip float64
+	// Plane is the measured plane; in a vertical hole its DipDirection is NaN.
+	Plane geom.Plane
+	// Line is the lineation when HasLine; in a vertical hole its Trend is NaN.
+	Line    geom.Line
+	HasLine bool
+	// TrueThickness is apparent thickness x sin(alpha), NaN without thickness.
+	TrueThickness float64
+	Warn          coreangle.Warn
+}
+
+// Pole returns the lower-hemisphere pole of the plane. In a vertical hole its
+// trend is NaN.
+func (r *Result) Pole() geom.Line {
+	if math.IsNaN(r.Plane.DipDirection) {
+		return geom.Line{Trend: math.NaN(), Plunge: 90 - r.Plane.Dip}
+	}
+	return r.Plane.Pole()
+}
+
+// Orient converts one measurement. Errors are *domain.Error of kind Invalid
+// naming the field (Loc.Column): an unknown hole or a hole with a problem
+// (hole_id), a depth outside the hole (depth), an angle out of range (alpha,
+// beta, gamma). It does not allocate when it succeeds.
+func (hs *Holes) Orient(m Measurement) (Result, error) {
+	h := hs.holes[m.HoleID]
+	return hs.orient(h, &m)
+}
+
+func (hs *Holes) orient(h *Hole, m *Measurement) (Result, error) {
+	if h == nil {
+		return Result{}, fieldErr(csvio.ColHoleID, "unknown hole %q (not in the collars)", m.HoleID)
+	}
+	if h.Err != nil {
+		return Result{Hole: h}, fieldErr(csvio.ColHoleID, "%s", h.Err.Error())
+	}
+	if err := coreangle.CheckAngles(m.Alpha, m.Beta, m.Gamma, m.HasGamma); err != nil {
+		var ae *coreangle.AngleError
+		errors.As(err, &ae)
+		return Result{Hole: h}, fieldErr(ae.Field, "%v", err)
+	}
+	if math.IsNaN(m.Depth) || math.IsInf(m.Depth, 0) || m.Depth < 0 {
+		return Result{Hole: h}, fieldErr(csvio.ColDepth, "depth %g is outside the hole", m.Depth)
+	}
+	if m.Depth > h.Path.Depth() {
+		return Result{Hole: h}, fieldErr(csvio.ColDepth, "depth %g is past the final depth %g of hole %q", m.Depth, h.Path.Depth(), h.ID)
+	}
+	pt, err := h.Path.At(m.Depth)
+	if err != nil {
+		return Result{Hole: h}, fieldErr(csvio.ColDepth, "%v", err)
+	}
+	c := hs.opt.Convention
+	r := Result{Hole: h, Point: pt, TrueThickness: math.NaN()}
+	r.HoleAzimuth, r.HoleDip = pt.Dir.AzimuthDip()
+	r.Plane, r.Warn = coreangle.Plane(pt.Dir, m.Alpha, m.Beta, c)
+	if m.HasGamma {
+		r.Line, _ = coreangle.Line(pt.Dir, m.Alpha, m.Beta, m.Gamma, c)
+		r.HasLine = true
+	}
+	if pt.Extrapolated {
+		r.Warn |= coreangle.Extrapolated
+	}
+	if m.HasThickness {
+		r.TrueThickness = coreangle.TrueThickness(m.Thickness, m.Alpha)
+	}
+	return r, nil
+}
+
+func fieldErr(col, format string, args ...any) *domain.Error {
+	e := domain.Errorf(domain.Invalid, format, args...)
+	e.Loc.Column = col
+	return e
+}
+
+// Output columns appended after the input columns, in order. ColTrueThickness
+// is present only when the input has a thickness column.
+const (
+	ColHoleAzimuth       = "hole_azimuth"
+	ColHoleDip           = "hole_dip"
+	ColEasting           = "easting"
+	ColNorthing          = "northing"
+	ColElevation         = "elevation"
+	ColDip               = "dip"
+	ColDipDirection      = "dip_direction"
+	ColStrike            = "strike"
+	ColLineTrend         = "line_trend"
+	ColLinePlunge        = "line_plunge"
+	ColWarnings          = "warnings"
+	ColPoleTrend         = "pole_trend"
+	ColPolePlunge        = "pole_plunge"
+	ColTrueThickness     = "true_thickness"
+	ColAzimuthReference  = "azimuth_reference"
+	ColDeclination       = "declination"
+	ColDeclinationSource = "declination_source"
+	ColGridConvergence   = "grid_convergence"
+	ColConvergenceSource = "convergence_source"
+	ColError             = "error"
+)
+
+// OutputColumns returns the columns Convert appends to the input columns.
+func OutputColumns(thickness bool) []string {
+	cols := []string{ColHoleAzimuth, ColHoleDip, ColEasting, ColNorthing, ColElevation, ColDip, ColDipDirection,
+		ColStrike, ColLineTrend, ColLinePlunge, ColWarnings, ColPoleTrend, ColPolePlunge}
+	if thickness {
+		cols = append(cols, ColTrueThickness)
+	}
+	return append(cols, ColAzimuthReference, ColDeclination, ColDeclinationSource, ColGridConvergence, ColConvergenceSource, ColError)
+}
+
+// Decimals written in the output: angles to 0.01 degree, positions and
+// thicknesses to 0.001 of the length unit, corrections to 0.001 degree.
+const (
+	angleDecimals      = 2
+	lengthDecimals     = 3
+	correctionDecimals = 3
+)
+
+// Summary counts the rows of a conversion.
+type Summary struct {
+	Rows      int // structure rows written
+	BadRows   int // rows written with an error
+	WarnRows  int // rows written with at least one warning
+	Extrapols int // rows below the last survey station of their hole
+}
+
+// Convert streams the structures file from r to w: one output row per input
+// row, in input order, with the input columns followed by [OutputColumns].
+// A row that cannot be converted keeps its place with empty results and a
+// message naming file, line and column in the error column; Summary.BadRows
+// counts them. An error is returned, and the output must be discarded, when
+// the file cannot be read as a whole (missing column, broken CSV, an input
+// column named like an output column) or when writing fails; ctx is checked
+// every few thousand rows.
+func (hs *Holes) Convert(ctx context.Context, r io.Reader, w io.Writer) (Summary, error) {
+	var sum Summary
+	file := nameOr(hs.opt.StructuresFile, "structures")
+	sr, err := csvio.NewStructureReader(r, file)
+	if err != nil {
+		return sum, err
+	}
+	thick := sr.HasThickness()
+	outCols := OutputColumns(thick)
+	for _, c := range outCols {
+		if i := sr.Header.Index(c); i >= 0 {
+			return sum, domain.Errorf(domain.Invalid, "input column %q has the name of an output column; rename it", sr.Header.Names[i]).
+				At(domain.Location{File: file, Line: 1, Column: sr.Header.Names[i]})
+		}
+	}
+	cw := csvio.NewWriter(w)
+	cw.Strings(sr.Header.Names)
+	cw.Strings(outCols)
+	cw.EndRow()
+	outRef := hs.opt.Output.String()
+	var last *Hole
+	var m Measurement
+	for {
+		row, err := sr.Next()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return sum, err
+		}
+		if sum.Rows&4095 == 0 {
+			if err := ctx.Err(); err != nil {
+				return sum, err
+			}
+		}
+		sum.Rows++
+		writeRecord(cw, row.Record, len(sr.Header.Names))
+		if row.Err != nil {
+			sum.BadRows++
+			writeEmpty(cw, len(outCols)-1)
+			cw.String(row.Err.Error())
+			cw.EndRow()
+			continue
+		}
+		if last == nil || last.ID != row.HoleID {
+			last = hs.holes[row.HoleID]
+		}
+		m = Measurement{HoleID: row.HoleID, Depth: row.Depth, Alpha: row.Alpha, Beta: row.Beta,
+			Gamma: row.Gamma, HasGamma: row.HasGamma, Thickness: row.Thickness, HasThickness: row.HasThickness}
+		res, err := hs.orient(last, &m)
+		if err != nil {
+			sum.BadRows++
+			writeEmpty(cw, len(outCols)-1)
+			var de *domain.Error
+			errors.As(err, &de)
+			col := de.Loc.Column
+			if i := sr.Header.Index(col); i >= 0 {
+				col = sr.Header.Names[i]
+			}
+			cw.String(de.At(domain.Location{File: file, Line: row.Line, Column: col}).Error())
+			cw.EndRow()
+			continue
+		}
+		if res.Warn != 0 || res.Hole.Caution != "" {
+			sum.WarnRows++
+		}
+		if res.Point.Extrapolated {
+			sum.Extrapols++
+		}
+		writeResult(cw, &res, thick, outRef)
+		cw.EndRow()
+	}
+	if err := cw.Flush(); err != nil {
+		return sum, fmt.Errorf("writing the output: %w", err)
+	}
+	return sum, nil
+}
+
+// writeRecord writes the input cells, padded or cut to the header's width so
+// the output stays rectangular (such a row carries an error).
+func writeRecord(cw *csvio.Writer, rec []string, n int) {
+	if len(rec) > n {
+		rec = rec[:n]
+	}
+	cw.Strings(rec)
+	writeEmpty(cw, n-len(rec))
+}
+
+func writeEmpty(cw *csvio.Writer, n int) {
+	for i := 0; i < n; i++ {
+		cw.Empty()
+	}
+}
+
+func writeResult(cw *csvio.Writer, r *Result, thick bool, outRef string) {
+	cw.Float(r.HoleAzimuth, angleDecimals)
+	cw.Float(r.HoleDip, angleDecimals)
+	cw.Float(r.Point.Pos.X, lengthDecimals)
+	cw.Float(r.Point.Pos.Y, lengthDecimals)
+	cw.Float(r.Point.Pos.Z, lengthDecimals)
+	cw.Float(r.Plane.Dip, angleDecimals)
+	cw.Float(r.Plane.DipDirection, angleDecimals)
+	if math.IsNaN(r.Plane.DipDirection) {
+		cw.Empty()
+	} else {
+		cw.Float(r.Plane.Strike(), angleDecimals)
+	}
+	if r.HasLine {
+		cw.Float(r.Line.Trend, angleDecimals)
+		cw.Float(r.Line.Plunge, angleDecimals)
+	} else {
+		cw.Empty()
+		cw.Empty()
+	}
+	h := r.Hole
+	if h.Caution == "" {
+		cw.String(r.Warn.String())
+	} else if r.Warn == 0 {
+		cw.String(h.Caution)
+	} else {
+		cw.String(r.Warn.String() + "; " + h.Caution)
+	}
+	pole := r.Pole()
+	cw.Float(pole.Trend, angleDecimals)
+	cw.Float(pole.Plunge, angleDecimals)
+	if thick {
+		cw.Float(r.TrueThickness, lengthDecimals)
+	}
+	cw.String(outRef)
+	d := h.Declination(r.Point.Depth)
+	cw.Float(d.Value, correctionDecimals)
+	cw.String(string(d.Source))
+	cw.Float(h.Convergence.Value, correctionDecimals)
+	cw.String(string(h.Convergence.Source))
+	cw.Empty() // error
+}

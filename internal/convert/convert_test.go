@@ -1,0 +1,445 @@
+package convert
+
+import (
+	"bytes"
+	"context"
+	"encoding/csv"
+	"errors"
+	"fmt"
+	"io"
+	"math"
+	"math/rand/v2"
+	"runtime"
+	"strconv"
+	"strings"
+	"testing"
+	"time"
+
+	"corvane/internal/coreangle"
+	"corvane/internal/desurvey"
+	"corvane/internal/domain"
+	"corvane/internal/geom"
+	"corvane/internal/northref"
+)
+
+func near(a, b, tol float64) bool { return math.Abs(a-b) <= tol }
+
+const collarsCSV = `hole_id,easting,northing,elevation,azimuth,dip,depth
+H1,1000,2000,300,0,-60,200
+V1,1100,2000,300,0,-90,100
+`
+
+const surveysCSV = `hole_id,depth,azimuth,dip
+H1,0,0,-60
+H1,100,0,-60
+`
+
+func load(t *testing.T, collars, surveys string, opt Options) *Holes {
+	t.Helper()
+	opt.CollarsFile, opt.SurveysFile = "c.csv", "s.csv"
+	hs, err := Load(strings.NewReader(collars), strings.NewReader(surveys), opt)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return hs
+}
+
+// run converts structures and returns the output as maps by column name.
+func run(t *testing.T, hs *Holes, structures string) ([]map[string]string, Summary) {
+	t.Helper()
+	var out bytes.Buffer
+	sum, err := hs.Convert(context.Background(), strings.NewReader(structures), &out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	recs, err := csv.NewReader(&out).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	var rows []map[string]string
+	for _, r := range recs[1:] {
+		m := map[string]string{}
+		for i, c := range recs[0] {
+			m[c] = r[i]
+		}
+		rows = append(rows, m)
+	}
+	return rows, sum
+}
+
+func num(t *testing.T, s string) float64 {
+	t.Helper()
+	v, err := strconv.ParseFloat(s, 64)
+	if err != nil {
+		t.Fatalf("%q: %v", s, err)
+	}
+	return v
+}
+
+// The derived cases of references/README.md section 2 (hole 000/-60), run through
+// the whole converter; positions on a straight hole are collar + depth x direction.
+func TestConvertDerivedCases(t *testing.T) {
+	hs := load(t, collarsCSV, surveysCSV, Options{})
+	in := "Type,HOLE_ID,depth,alpha,beta,gamma,note\n" +
+		"joint,H1,50,45,90,,a\n" +
+		"joint,h1,50,45,90,,unknown hole (ids are exact)\n" +
+		"joint,H1,50,45,270,,b\n" +
+		"bedding,H1,150,30,180,90,\"x, y\"\n"
+	rows, sum := run(t, hs, in)
+	if sum.Rows != 4 || sum.BadRows != 1 || sum.Extrapols != 1 {
+		t.Fatalf("summary %+v", sum)
+	}
+	r := rows[0]
+	if !near(num(t, r["dip"]), 52.2, 0.05) || !near(num(t, r["dip_direction"]), 243.4, 0.05) || r["note"] != "a" || r["Type"] != "joint" {
+		t.Errorf("row 1 %v, want 243.4/52.2", r)
+	}
+	if !near(num(t, r["strike"]), 153.43, 0.01) || !near(num(t, r["pole_trend"]), 63.43, 0.01) || !near(num(t, r["pole_plunge"]), 90-52.24, 0.01) {
+		t.Errorf("row 1 strike/pole %v", r)
+	}
+	if !near(num(t, r["easting"]), 1000, 1e-3) || !near(num(t, r["northing"]), 2025, 1e-3) || !near(num(t, r["elevation"]), 300-50*math.Sin(geom.Rad(60)), 1e-3) {
+		t.Errorf("row 1 position %v", r)
+	}
+	if r["hole_azimuth"] != "0.00" || r["hole_dip"] != "-60.00" || r["azimuth_reference"] != "grid" || r["warnings"] != "" || r["error"] != "" || r["line_trend"] != "" {
+		t.Errorf("row 1 %v", r)
+	}
+	if r["declination_source"] != "none" || r["convergence_source"] != "none" || r["declination"] != "" {
+		t.Errorf("row 1 corrections %v", r)
+	}
+	if e := rows[1]["error"]; !strings.Contains(e, `structures:line 3, column "HOLE_ID"`) || !strings.Contains(e, `unknown hole "h1"`) || rows[1]["dip"] != "" {
+		t.Errorf("row 2 error %q", e)
+	}
+	if !near(num(t, rows[2]["dip_direction"]), 116.6, 0.05) {
+		t.Errorf("row 3 %v, want 116.6/52.2", rows[2])
+	}
+	r = rows[3]
+	// Below the last station (100): extrapolated straight on, warned.
+	if !near(num(t, r["dip"]), 30, 1e-9) || r["dip_direction"] != "0.00" || !strings.Contains(r["warnings"], "extrapolated") {
+		t.Errorf("row 4 %v", r)
+	}
+	// gamma 90 on plane 000/30 in this hole is the horizontal strike line (hand-derived, see coreangle tests).
+	if r["line_plunge"] != "0.00" || !(r["line_trend"] == "90.00" || r["line_trend"] == "270.00") || r["note"] != "x, y" {
+		t.Errorf("row 4 line %v", r)
+	}
+}
+
+// Common practice: in a vertical hole dip = 90 - alpha and there is no dip direction.
+func TestConvertVerticalHole(t *testing.T) {
+	hs := load(t, collarsCSV, surveysCSV, Options{})
+	rows, _ := run(t, hs, "hole_id,depth,alpha,beta,gamma\nV1,20,70,123,10\n")
+	r := rows[0]
+	if r["dip"] != "20.00" || r["dip_direction"] != "" || r["strike"] != "" || r["pole_trend"] != "" || r["pole_plunge"] != "70.00" || r["line_trend"] != "" || r["line_plunge"] == "" {
+		t.Errorf("vertical hole row %v", r)
+	}
+	if !strings.Contains(r["warnings"], "vertical hole") || r["error"] != "" {
+		t.Errorf("warnings %q error %q", r["warnings"], r["error"])
+	}
+}
+
+func TestConvertRowErrors(t *testing.T) {
+	hs := load(t, collarsCSV, surveysCSV, Options{})
+	in := "hole_id,depth,alpha,beta,gamma,thickness\n" +
+		"H1,10,95,10,,\n" +
+		"H1,10,45,abc,,\n" +
+		"H1,10,45,10,400,\n" +
+		"H1,250,45,10,,\n" +
+		"H1,NaN,45,10,,\n" +
+		"NOPE,10,45,10,,\n" +
+		"H1,10,45,10,,-1\n" +
+		"H1,10,45\n" +
+		"H1,10,90,360,360,2\n"
+	rows, sum := run(t, hs, in)
+	want := []string{`line 2, column "alpha": alpha 95 is outside 0..90`, `line 3, column "beta": beta "abc" is not a number`,
+		`line 4, column "gamma"`, `line 5, column "depth": depth 250 is past the final depth 200`, `line 6, column "depth"`,
+		`line 7, column "hole_id": unknown hole "NOPE"`, `line 8, column "thickness"`, `line 9: row has 3 fields`, ``}
+	if sum.BadRows != 8 || len(rows) != 9 {
+		t.Fatalf("summary %+v rows %d", sum, len(rows))
+	}
+	for i, w := range want {
+		e := rows[i]["error"]
+		if (w == "") != (e == "") || !strings.Contains(e, w) {
+			t.Errorf("row %d error %q, want %q", i+2, e, w)
+		}
+		if w != "" && (rows[i]["dip"] != "" || rows[i]["easting"] != "") {
+			t.Errorf("row %d has results despite an error", i+2)
+		}
+	}
+	// Common practice: true thickness = apparent x sin(alpha).
+	if rows[8]["true_thickness"] != "2.000" || !strings.Contains(rows[8]["warnings"], "alpha >= 85") {
+		t.Errorf("last row %v", rows[8])
+	}
+}
+
+func TestConvertWholeFileErrors(t *testing.T) {
+	hs := load(t, collarsCSV, surveysCSV, Options{})
+	var out bytes.Buffer
+	for _, c := range []struct{ in, want string }{
+		{"hole_id,depth,alpha\nH1,1,2\n", `missing column "beta"`},
+		{"hole_id,depth,alpha,beta,Dip\nH1,1,2,3,4\n", `"Dip" has the name of an output column`},
+		{"hole_id,depth,alpha,beta\nH1,1,2,3\nH1,\"1,2,3\n", "structures:line 3"},
+	} {
+		_, err := hs.Convert(context.Background(), strings.NewReader(c.in), &out)
+		if err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%q: %v, want %q", c.in, err, c.want)
+		}
+	}
+	for _, c := range []struct{ collars, surveys, want string }{
+		{"hole_id,easting,northing,elevation,azimuth,depth\n", surveysCSV, `c.csv:line 1, column "dip"`},
+		{collarsCSV, "hole_id,depth,azimuth,dip\nH1,10,0,-60\nH1,5,0,-60\n", `s.csv:line 3, column "depth"`},
+		{collarsCSV, "hole_id,depth,azimuth,dip\nH1,10,0,-60\nH1,10,0,-60\n", "repeats line 2"},
+		{collarsCSV, "hole_id,depth,azimuth,dip\nX9,10,0,-60\n", `s.csv:line 2, column "hole_id": survey of hole "X9"`},
+		{collarsCSV, "hole_id,depth,azimuth,dip\nH1,10,0,-60\nH1,300,0,-60\n", `s.csv:line 3, column "depth": hole "H1": station 2 at depth 300`},
+	} {
+		_, err := Load(strings.NewReader(c.collars), strings.NewReader(c.surveys), Options{CollarsFile: "c.csv", SurveysFile: "s.csv"})
+		if err == nil || !strings.Contains(err.Error(), c.want) {
+			t.Errorf("%v, want %q", err, c.want)
+		}
+	}
+}
+
+// conventions.md: true = magnetic + D, grid = true - C.
+func TestAzimuthReferences(t *testing.T) {
+	collars := "hole_id,easting,northing,elevation,azimuth,dip,depth,declination,grid_convergence\n" +
+		"M1,1000,2000,300,0,-60,200,10,2\n" + // per-hole numbers
+		"M2,1000,2000,300,0,-60,200,,\n" + // numbers for all
+		"T1,1000,2000,300,0,-60,200,,\n"
+	surveys := "hole_id,depth,azimuth,dip,azimuth_reference\n" +
+		"M1,0,40,-60,magnetic\nM2,0,40,-60,magnetic\nT1,0,40,-60,true\n"
+	st := "hole_id,depth,alpha,beta\nM1,10,45,90\nM2,10,45,90\nT1,10,45,90\n"
+	for _, c := range []struct {
+		out        Reference
+		want       [3]float64
+		dsrc, csrc [3]string
+	}{
+		{Grid, [3]float64{40 + 10 - 2, 40 + 5 - 1, 40 - 1}, [3]string{"given", "given", "none"}, [3]string{"given", "given", "given"}},
+		{True, [3]float64{40 + 10, 40 + 5, 40}, [3]string{"given", "given", "none"}, [3]string{"none", "none", "none"}},
+	} {
+		hs := load(t, collars, surveys, Options{Output: c.out, Declination: Given{5, true}, GridConvergence: Given{1, true}})
+		rows, sum := run(t, hs, st)
+		if sum.BadRows != 0 {
+			t.Fatalf("%v", rows)
+		}
+		for i, r := range rows {
+			if !near(num(t, r["hole_azimuth"]), c.want[i], 1e-9) || r["azimuth_reference"] != c.out.String() ||
+				r["declination_source"] != c.dsrc[i] || r["convergence_source"] != c.csrc[i] {
+				t.Errorf("%v row %d: %v, want azimuth %v", c.out, i, r, c.want[i])
+			}
+			// The plane turns with the hole: same alpha/beta, dip direction offset by the azimuth.
+			want, _ := coreangle.Plane(geom.HoleDirection(c.want[i], -60), 45, 90, coreangle.Convention{})
+			if !near(num(t, r["dip_direction"]), want.DipDirection, 0.006) {
+				t.Errorf("%v row %d dip direction %v, want %v", c.out, i, r["dip_direction"], want.DipDirection)
+			}
+		}
+	}
+}
+
+// Corrections computed by package northref when none are given, checked against
+// calling northref directly; given numbers win; a hole that cannot be placed
+// gets a per-hole error naming it.
+func TestComputedCorrections(t *testing.T) {
+	collars := "hole_id,easting,northing,elevation,azimuth,dip,depth,crs,declination\n" +
+		"C1,400000,6500000,350,0,-60,200,EPSG:32750,\n" +
+		"C2,400000,6500000,350,0,-60,200,,\n" +
+		"C3,400000,6500000,350,0,-60,200,LOCAL,4.5\n"
+	surveys := "hole_id,depth,azimuth,dip,azimuth_reference,survey_date\n" +
+		"C1,0,40,-60,magnetic,2026-05-01\nC1,100,41,-60,magnetic,2026-05-02\n" +
+		"C2,0,40,-60,magnetic,2026-05-01\n" +
+		"C3,0,40,-60,magnetic,\n"
+	res, err := northref.Corrections("EPSG:32750", 400000, 6500000, 350, time.Date(2026, 5, 1, 0, 0, 0, 0, time.UTC), true, true)
+	if err != nil {
+		t.Fatal(err)
+	}
+	hs := load(t, collars, surveys, Options{Output: True})
+	rows, sum := run(t, hs, "hole_id,depth,alpha,beta\nC1,50,45,90\nC2,50,45,90\nC3,50,45,90\n")
+	if sum.BadRows != 1 {
+		t.Fatalf("summary %+v: %v", sum, rows)
+	}
+	r := rows[0]
+	if r["declination_source"] != "computed" || !near(num(t, r["declination"]), res.Declination, 0.0005) || r["convergence_source"] != "none" {
+		t.Errorf("C1 %v, want declination %v computed", r, res.Declination)
+	}
+	if e := rows[1]["error"]; !strings.Contains(e, `hole "C2"`) || !strings.Contains(e, "crs") {
+		t.Errorf("C2 error %q", e)
+	}
+	if rows[2]["declination_source"] != "given" || rows[2]["declination"] != "4.500" {
+		t.Errorf("C3 %v", rows[2])
+	}
+	// Grid output also needs the convergence, computed from the collar.
+	hs = load(t, collars, surveys, Options{})
+	rows, _ = run(t, hs, "hole_id,depth,alpha,beta\nC1,50,45,90\n")
+	if rows[0]["convergence_source"] != "computed" || !near(num(t, rows[0]["grid_convergence"]), res.Convergence, 0.0005) {
+		t.Errorf("C1 grid %v, want convergence %v", rows[0], res.Convergence)
+	}
+	// Depth 50 is halfway between magnetic stations 40 and 41: about 40.5 magnetic.
+	wantAz := geom.NormAzimuth(40.5 + res.Declination - res.Convergence)
+	if !near(num(t, rows[0]["hole_azimuth"]), wantAz, 0.02) {
+		t.Errorf("C1 grid azimuth %v, want about %v", rows[0]["hole_azimuth"], wantAz)
+	}
+	// NoCompute: the hole has an error instead.
+	hs = load(t, collars, surveys, Options{NoCompute: true})
+	rows, _ = run(t, hs, "hole_id,depth,alpha,beta\nC1,50,45,90\n")
+	if !strings.Contains(rows[0]["error"], "need a") {
+		t.Errorf("NoCompute: %v", rows[0])
+	}
+}
+
+// Property: structures forward-modelled from known true planes and lines with the
+// inverse (coreangle.Angles, Gamma) on a curving desurveyed hole convert back to
+// those planes and lines within the output rounding, under every convention.
+func TestConvertRoundTrip(t *testing.T) {
+	r := rand.New(rand.NewPCG(21, 22))
+	collars := "hole_id,easting,northing,elevation,azimuth,dip,depth\nR1,500,600,100,30,-55,400\n"
+	var sv strings.Builder
+	sv.WriteString("hole_id,depth,azimuth,dip\n")
+	st := []desurvey.Station{}
+	for d := 0.0; d <= 300; d += 30 {
+		s := desurvey.Station{Depth: d, Azimuth: 30 + d/20, Dip: -55 + d/30}
+		st = append(st, s)
+		fmt.Fprintf(&sv, "R1,%g,%g,%g\n", s.Depth, s.Azimuth, s.Dip)
+	}
+	path, err := desurvey.New(desurvey.Collar{East: 500, North: 600, Elevation: 100, Azimuth: 30, Dip: -55, Depth: 400}, st, desurvey.MinimumCurvature)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, conv := range []coreangle.Convention{{}, {RefLine: coreangle.Top, BetaApex: coreangle.UpHole, GammaSense: coreangle.Anticlockwise}} {
+		hs := load(t, collars, sv.String(), Options{Convention: conv})
+		var in strings.Builder
+		in.WriteString("hole_id,depth,alpha,beta,gamma\n")
+		type truth struct {
+			p geom.Plane
+			l geom.Line
+		}
+		var want []truth
+		for len(want) < 300 {
+			depth := r.Float64() * 390
+			pt, _ := path.At(depth)
+			p := geom.Plane{Dip: 5 + r.Float64()*85, DipDirection: r.Float64() * 360}
+			th := r.Float64() * math.Pi
+			lv := p.DipVector().Scale(math.Cos(th)).Add(p.Normal().Cross(p.DipVector()).Scale(math.Sin(th)))
+			l := geom.LineOf(lv)
+			a, b, w := coreangle.Angles(pt.Dir, p, conv)
+			if w.Has(coreangle.AlphaHigh) || a < 1 {
+				continue
+			}
+			g, err := coreangle.Gamma(pt.Dir, p, l, conv)
+			if err != nil {
+				t.Fatal(err)
+			}
+			fmt.Fprintf(&in, "R1,%.17g,%.17g,%.17g,%.17g\n", depth, a, b, g)
+			want = append(want, truth{p, l})
+		}
+		rows, sum := run(t, hs, in.String())
+		if sum.BadRows != 0 {
+			t.Fatalf("bad rows: %+v", sum)
+		}
+		for i, row := range rows {
+			got := geom.Plane{Dip: num(t, row["dip"]), DipDirection: num(t, row["dip_direction"])}
+			if a := geom.AxialAngle(got.Normal(), want[i].p.Normal()); a > 0.01 {
+				t.Fatalf("%v row %d: plane %+v, want %+v", conv, i, got, want[i].p)
+			}
+			gl := geom.Line{Trend: num(t, row["line_trend"]), Plunge: num(t, row["line_plunge"])}
+			if a := geom.AxialAngle(gl.Vec(), want[i].l.Vec()); a > 0.01 {
+				t.Fatalf("%v row %d: line %+v, want %+v", conv, i, gl, want[i].l)
+			}
+		}
+	}
+}
+
+// genReader produces n structure rows on the fly; before reporting the end it
+// records the live heap, so a test can see whether memory grows with n.
+type genReader struct {
+	n, i  int
+	buf   bytes.Buffer
+	heap  uint64
+	holes int
+}
+
+func (g *genReader) Read(p []byte) (int, error) {
+	for g.buf.Len() < len(p) && g.i <= g.n {
+		if g.i == 0 {
+			g.buf.WriteString("hole_id,depth,alpha,beta,gamma,type\n")
+		} else {
+			fmt.Fprintf(&g.buf, "G%d,%d.5,%d,%d,%d,joint\n", g.i%g.holes, g.i%190, g.i%90, g.i%360, g.i%7*50)
+		}
+		g.i++
+	}
+	if g.buf.Len() == 0 {
+		if g.heap == 0 {
+			runtime.GC()
+			var ms runtime.MemStats
+			runtime.ReadMemStats(&ms)
+			g.heap = ms.HeapAlloc
+		}
+		return 0, io.EOF
+	}
+	return g.buf.Read(p)
+}
+
+func genHoles(t testing.TB, n int) *Holes {
+	var c, s strings.Builder
+	c.WriteString("hole_id,easting,northing,elevation,azimuth,dip,depth\n")
+	s.WriteString("hole_id,depth,azimuth,dip\n")
+	for i := 0; i < n; i++ {
+		fmt.Fprintf(&c, "G%d,%d,%d,300,%d,-60,200\n", i, 1000+i*10, 5000, (i*37)%360)
+		for d := 0; d <= 180; d += 30 {
+			fmt.Fprintf(&s, "G%d,%d,%d,%g\n", i, d, (i*37+d/10)%360, -60+float64(d)/30)
+		}
+	}
+	hs, err := Load(strings.NewReader(c.String()), strings.NewReader(s.String()), Options{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	return hs
+}
+
+// Streaming: the live heap at the end of the input does not grow with the number
+// of rows (20,000 vs 200,000 rows).
+func TestConvertMemoryFlat(t *testing.T) {
+	if testing.Short() {
+		t.Skip("short")
+	}
+	hs := genHoles(t, 50)
+	heap := func(n int) uint64 {
+		g := &genReader{n: n, holes: 50}
+		sum, err := hs.Convert(context.Background(), g, io.Discard)
+		if err != nil || sum.Rows != n {
+			t.Fatal(err, sum)
+		}
+		return g.heap
+	}
+	small, large := heap(20000), heap(200000)
+	if large > small+1<<20 {
+		t.Fatalf("live heap grows with rows: %d bytes at 20k rows, %d at 200k", small, large)
+	}
+}
+
+func TestConvertCancel(t *testing.T) {
+	hs := genHoles(t, 5)
+	ctx, cancel := context.WithCancel(context.Background())
+	cancel()
+	_, err := hs.Convert(ctx, &genReader{n: 10000, holes: 5}, io.Discard)
+	if !errors.Is(err, context.Canceled) {
+		t.Fatalf("err = %v", err)
+	}
+}
+
+func TestOrient(t *testing.T) {
+	hs := load(t, collarsCSV, surveysCSV, Options{})
+	res, err := hs.Orient(Measurement{HoleID: "H1", Depth: 50, Alpha: 20, Beta: 180})
+	if err != nil || !near(res.Plane.Dip, 40, 1e-9) || !near(res.Plane.DipDirection, 0, 1e-9) {
+		t.Fatalf("%+v %v, want 000/40 (references/README.md derived case)", res.Plane, err)
+	}
+	_, err = hs.Orient(Measurement{HoleID: "H1", Depth: 50, Alpha: 20, Beta: 400})
+	var de *domain.Error
+	if !errors.As(err, &de) || de.Loc.Column != "beta" {
+		t.Fatalf("err = %v", err)
+	}
+	if n := testing.AllocsPerRun(100, func() { _, _ = hs.Orient(Measurement{HoleID: "H1", Depth: 50, Alpha: 20, Beta: 180}) }); n != 0 {
+		t.Fatalf("Orient allocates %v", n)
+	}
+	if hs.Hole("H1") == nil || len(hs.List()) != 2 {
+		t.Fatal("accessors")
+	}
+	if _, err := ParseReference("north"); err == nil {
+		t.Fatal("bad reference accepted")
+	}
+}
