@@ -1,0 +1,141 @@
+package service
+
+import (
+	"context"
+	"fmt"
+	"strconv"
+
+	"corvane/internal/domain"
+)
+
+// MaxConvertMeasurements bounds one stateless conversion request.
+const MaxConvertMeasurements = 100000
+
+// ConvertRequest is a whole small programme to convert without storing
+// anything: conventions, collars, surveys and measurements.
+type ConvertRequest struct {
+	Conventions  Conventions          `json:"conventions"`
+	Collars      []ConvertCollar      `json:"collars"`
+	Surveys      []ConvertSurvey      `json:"surveys"`
+	Measurements []ConvertMeasurement `json:"measurements"`
+}
+
+// ConvertCollar is a hole's collar (dip negative down).
+type ConvertCollar struct {
+	HoleID     string  `json:"hole_id"`
+	East       float64 `json:"easting"`
+	North      float64 `json:"northing"`
+	Elevation  float64 `json:"elevation"`
+	Azimuth    float64 `json:"azimuth"`
+	Dip        float64 `json:"dip"`
+	FinalDepth float64 `json:"final_depth"`
+}
+
+// ConvertSurvey is the survey set of one hole.
+type ConvertSurvey struct {
+	HoleID      string           `json:"hole_id"`
+	AzimuthRef  string           `json:"azimuth_ref"` // true, grid or magnetic; default true
+	Declination *float64         `json:"declination"` // overrides the conventions' declination
+	Stations    []domain.Station `json:"stations"`
+}
+
+// ConvertMeasurement is one core-angle measurement.
+type ConvertMeasurement struct {
+	HoleID            string   `json:"hole_id"`
+	Depth             float64  `json:"depth"`
+	Alpha             float64  `json:"alpha"`
+	Beta              float64  `json:"beta"`
+	Gamma             *float64 `json:"gamma"`
+	Type              string   `json:"type"`
+	ApparentThickness *float64 `json:"apparent_thickness"`
+}
+
+// ConvertResult is one converted measurement, in request order.
+type ConvertResult struct {
+	HoleID  string  `json:"hole_id"`
+	Depth   float64 `json:"depth"`
+	Type    string  `json:"type"`
+	Derived Derived `json:"derived"`
+}
+
+// ConvertResponse holds the results in request order; Conventions echoes the
+// conventions used, defaults filled in.
+type ConvertResponse struct {
+	Conventions Conventions     `json:"conventions"`
+	Results     []ConvertResult `json:"results"`
+}
+
+// Convert converts measurements without storing anything. Any authenticated
+// caller may use it. Collars and surveys must be valid as a whole (Invalid,
+// naming the field, e.g. "collars[2].dip"); a measurement that cannot be
+// converted (unknown hole, depth past the end, angle out of range) gets its
+// own Derived.Error and the others are still converted.
+func (s *Service) Convert(ctx context.Context, req ConvertRequest) (ConvertResponse, error) {
+	var resp ConvertResponse
+	if _, ok := ActorFrom(ctx); !ok {
+		return resp, domain.Errorf(domain.Unauthorized, "a bearer token is required")
+	}
+	if len(req.Measurements) > MaxConvertMeasurements {
+		return resp, domain.FieldErr("measurements", "at most %d measurements per request, got %d", MaxConvertMeasurements, len(req.Measurements))
+	}
+	c := req.Conventions
+	if err := c.normalize(); err != nil {
+		return resp, prefixField(err, "conventions.")
+	}
+	resp.Conventions = c
+	surveys := map[string]*domain.SurveySet{}
+	for i, sv := range req.Surveys {
+		ss := domain.SurveySet{AzimuthRef: sv.AzimuthRef, Declination: sv.Declination, Stations: sv.Stations}
+		if err := ss.Normalize(); err != nil {
+			return resp, prefixField(err, "surveys["+strconv.Itoa(i)+"].")
+		}
+		if _, dup := surveys[sv.HoleID]; dup {
+			return resp, domain.FieldErr("surveys["+strconv.Itoa(i)+"].hole_id", "a second survey for hole %q", sv.HoleID)
+		}
+		surveys[sv.HoleID] = &ss
+	}
+	models := map[string]*holeModel{}
+	for i, cl := range req.Collars {
+		h := domain.Hole{Name: cl.HoleID, East: cl.East, North: cl.North, Elevation: cl.Elevation,
+			Azimuth: cl.Azimuth, Dip: cl.Dip, FinalDepth: cl.FinalDepth}
+		if err := h.Normalize(); err != nil {
+			return resp, prefixField(err, "collars["+strconv.Itoa(i)+"].")
+		}
+		if _, dup := models[h.Name]; dup {
+			return resp, domain.FieldErr("collars["+strconv.Itoa(i)+"].hole_id", "hole %q appears twice", h.Name)
+		}
+		models[h.Name] = newHoleModel(c, h, surveys[h.Name], nil)
+	}
+	for id := range surveys {
+		if models[id] == nil {
+			return resp, domain.FieldErr("surveys", "survey for hole %q, which is not in the collars", id)
+		}
+	}
+	resp.Results = make([]ConvertResult, len(req.Measurements))
+	for i, m := range req.Measurements {
+		r := ConvertResult{HoleID: m.HoleID, Depth: m.Depth, Type: m.Type}
+		dm := domain.Measurement{Depth: m.Depth, Alpha: m.Alpha, Beta: m.Beta, Gamma: m.Gamma, ApparentThickness: m.ApparentThickness, TypeCode: "x"}
+		hm := models[m.HoleID]
+		switch err := dm.Normalize(); {
+		case hm == nil:
+			r.Derived = Derived{AzimuthRef: c.OutputAzimuthRef, Warnings: []string{}, Error: fmt.Sprintf("unknown hole %q (not in the collars)", m.HoleID)}
+		case err != nil:
+			r.Derived = Derived{AzimuthRef: c.OutputAzimuthRef, Warnings: []string{}, Error: err.Error()}
+		default:
+			r.Derived = hm.derive(dm.Depth, dm.Alpha, dm.Beta, dm.Gamma, dm.ApparentThickness)
+		}
+		resp.Results[i] = r
+	}
+	return resp, nil
+}
+
+// prefixField prefixes the field of an Invalid *domain.Error.
+func prefixField(err error, prefix string) error {
+	if e, ok := err.(*domain.Error); ok {
+		c := *e
+		c.Loc.Field = prefix + c.Loc.Field
+		c.Msg = prefix + c.Msg
+		return &c
+	}
+	return err
+}

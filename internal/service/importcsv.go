@@ -1,0 +1,515 @@
+package service
+
+import (
+	"context"
+	"crypto/sha256"
+	"encoding/hex"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"hash"
+	"io"
+	"math"
+	"strings"
+	"time"
+
+	"corvane/internal/csvio"
+	"corvane/internal/domain"
+)
+
+// Import kinds: the CSV files the service accepts, with the converter's
+// column names (package csvio).
+const (
+	ImportCollars      = "collars"      // hole_id, easting, northing, elevation, azimuth, dip, depth [, crs]
+	ImportSurveys      = "surveys"      // hole_id, depth, azimuth, dip [, azimuth_reference, survey_date]
+	ImportRuns         = "runs"         // hole_id, from, to, confidence [, mismatch]
+	ImportMeasurements = "measurements" // hole_id, depth, alpha, beta, type [, gamma, apparent_thickness, comment, logged_by, logged_at]
+)
+
+// MaxReportedProblems bounds the row problems listed in one error.
+const MaxReportedProblems = 1000
+
+// importBatch is the number of measurement rows written per store call.
+const importBatch = 5000
+
+// ImportRequest is one CSV file to import.
+type ImportRequest struct {
+	Kind string    // one of the Import* kinds
+	File string    // file name used in messages; default "<kind>.csv"
+	Body io.Reader // the CSV text
+	// DryRun checks everything, including holes and type codes in the
+	// store, and writes nothing.
+	DryRun bool
+	// IdempotencyKey, when not empty, makes a retry of the same request
+	// return the first result and write nothing. The same key with another
+	// body is a Conflict.
+	IdempotencyKey string
+}
+
+// ImportResult reports an import.
+type ImportResult struct {
+	Kind   string `json:"kind"`
+	File   string `json:"file"`
+	DryRun bool   `json:"dry_run"`
+	// Rows is the number of data rows read.
+	Rows int `json:"rows"`
+	// Created and Updated count holes (collars), survey sets (surveys),
+	// runs or measurements.
+	Created int `json:"created"`
+	Updated int `json:"updated"`
+	// Replayed is true when the result is the remembered one of an earlier
+	// request with the same idempotency key; nothing was written this time.
+	Replayed bool `json:"replayed"`
+}
+
+// Import reads a CSV file of one kind into the project, all or nothing: when
+// any row is bad nothing is written and the Invalid error lists every bad row
+// (up to MaxReportedProblems) with its file, line, column and reason in
+// Problems. Collars and surveys need the admin role, runs and measurements
+// the log role. Collars update holes of the same name; a survey file replaces
+// the whole survey set of each hole it names; runs and measurements are
+// added. One audit entry records each import.
+func (s *Service) Import(ctx context.Context, projectID int64, req ImportRequest) (ImportResult, error) {
+	res := ImportResult{Kind: req.Kind, File: req.File, DryRun: req.DryRun}
+	if res.File == "" {
+		res.File = req.Kind + ".csv"
+	}
+	role := domain.RoleLog
+	switch req.Kind {
+	case ImportCollars, ImportSurveys:
+		role = domain.RoleAdmin
+	case ImportRuns, ImportMeasurements:
+	default:
+		return res, domain.FieldErr("kind", "import kind must be collars, surveys, runs or measurements, got %q", req.Kind)
+	}
+	p, a, err := s.project(ctx, s.store, projectID, role)
+	if err != nil {
+		return res, err
+	}
+	if req.Body == nil {
+		return res, domain.Errorf(domain.Invalid, "%s: empty request body", res.File)
+	}
+	h := sha256.New()
+	fmt.Fprintf(h, "%s\x00%t\x00", req.Kind, req.DryRun)
+	body := io.TeeReader(req.Body, h)
+	key := req.IdempotencyKey
+	if key != "" && !req.DryRun {
+		if len(key) > 200 {
+			return res, domain.FieldErr("idempotency_key", "idempotency key is longer than 200 characters")
+		}
+		if prev, err := s.store.GetIdempotency(ctx, projectID, key); err == nil {
+			if _, err := io.Copy(io.Discard, body); err != nil {
+				return res, domain.Errorf(domain.Invalid, "%s: reading the body: %w", res.File, err)
+			}
+			return replay(prev, sum(h))
+		} else if !domain.IsKind(err, domain.NotFound) {
+			return res, err
+		}
+	}
+	err = s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
+		var err error
+		switch req.Kind {
+		case ImportCollars:
+			err = importCollars(ctx, st, p, body, &res)
+		case ImportSurveys:
+			err = importSurveys(ctx, st, p, body, &res)
+		case ImportRuns:
+			err = importRuns(ctx, st, p, body, &res)
+		case ImportMeasurements:
+			err = s.importMeasurements(ctx, st, p, a, body, &res)
+		}
+		if err != nil {
+			return err
+		}
+		if req.DryRun {
+			return errDryRun
+		}
+		if err := audit(ctx, st, a, projectID, "import", res.File, domain.ActionCreate, nil, res); err != nil {
+			return err
+		}
+		if key == "" {
+			return nil
+		}
+		if _, err := io.Copy(io.Discard, body); err != nil {
+			return domain.Errorf(domain.Invalid, "%s: reading the body: %w", res.File, err)
+		}
+		out, _ := json.Marshal(res)
+		return st.PutIdempotency(ctx, domain.Idempotency{ProjectID: projectID, Key: key, RequestHash: sum(h), Result: out})
+	})
+	switch {
+	case errors.Is(err, errDryRun):
+		return res, nil
+	case key != "" && domain.IsKind(err, domain.Conflict):
+		// Another request with the same key committed first.
+		if prev, gerr := s.store.GetIdempotency(ctx, projectID, key); gerr == nil {
+			return replay(prev, sum(h))
+		}
+		return res, err
+	case err != nil:
+		return res, err
+	}
+	return res, nil
+}
+
+var errDryRun = errors.New("dry run: roll back")
+
+func sum(h hash.Hash) string { return hex.EncodeToString(h.Sum(nil)) }
+
+func replay(prev domain.Idempotency, hash string) (ImportResult, error) {
+	var res ImportResult
+	if prev.RequestHash != hash {
+		return res, domain.Errorf(domain.Conflict, "idempotency key %q was used for a different request", prev.Key)
+	}
+	if err := json.Unmarshal(prev.Result, &res); err != nil {
+		return res, domain.Errorf(domain.Internal, "remembered result of key %q: %w", prev.Key, err)
+	}
+	res.Replayed = true
+	return res, nil
+}
+
+// problems gathers row problems, keeping the first MaxReportedProblems.
+type problems struct {
+	file string
+	list []*domain.Error
+	n    int
+}
+
+func (ps *problems) add(line int, column, format string, args ...any) {
+	ps.n++
+	if len(ps.list) < MaxReportedProblems {
+		e := domain.Errorf(domain.Invalid, format, args...)
+		e.Loc = domain.Location{File: ps.file, Line: line, Column: column}
+		ps.list = append(ps.list, e)
+	}
+}
+
+func (ps *problems) addErr(e *domain.Error) {
+	ps.n++
+	if len(ps.list) < MaxReportedProblems {
+		ps.list = append(ps.list, e)
+	}
+}
+
+// err returns the all-or-nothing error, or nil when there were no problems.
+func (ps *problems) err() error {
+	if ps.n == 0 {
+		return nil
+	}
+	msg := fmt.Sprintf("%d bad rows; nothing was imported", ps.n)
+	if ps.n == 1 {
+		msg = "1 bad row; nothing was imported"
+	}
+	if ps.n > len(ps.list) {
+		msg += fmt.Sprintf(" (the first %d are listed)", len(ps.list))
+	}
+	return &domain.Error{Kind: domain.Invalid, Msg: msg, Loc: domain.Location{File: ps.file}, Problems: ps.list}
+}
+
+// fileErr makes sure a reader's error names the file and is Invalid.
+func fileErr(file string, err error) error {
+	var e *domain.Error
+	if errors.As(err, &e) {
+		return err
+	}
+	return &domain.Error{Kind: domain.Invalid, Msg: err.Error(), Loc: domain.Location{File: file}}
+}
+
+func importCollars(ctx context.Context, st domain.Store, p domain.Project, body io.Reader, res *ImportResult) error {
+	rows, err := csvio.ReadCollars(body, res.File)
+	if err != nil {
+		return fileErr(res.File, err)
+	}
+	res.Rows = len(rows)
+	ps := &problems{file: res.File}
+	for _, r := range rows {
+		h := domain.Hole{ProjectID: p.ID, Name: r.HoleID, East: r.Collar.East, North: r.Collar.North, Elevation: r.Collar.Elevation,
+			Azimuth: r.Collar.Azimuth, Dip: r.Collar.Dip, FinalDepth: r.Collar.Depth, CRS: r.CRS}
+		if err := h.Normalize(); err != nil {
+			var e *domain.Error
+			errors.As(err, &e)
+			ps.add(r.Line, e.Loc.Field, "%s", e.Msg)
+			continue
+		}
+		old, err := st.GetHoleByName(ctx, p.ID, h.Name)
+		switch {
+		case err == nil:
+			h.ID, h.Started, h.Finished = old.ID, old.Started, old.Finished
+			if err := st.UpdateHole(ctx, &h, old.Version); err != nil {
+				return err
+			}
+			res.Updated++
+		case domain.IsKind(err, domain.NotFound):
+			if err := st.CreateHole(ctx, &h); err != nil {
+				return err
+			}
+			res.Created++
+		default:
+			return err
+		}
+	}
+	return ps.err()
+}
+
+func importSurveys(ctx context.Context, st domain.Store, p domain.Project, body io.Reader, res *ImportResult) error {
+	rows, err := csvio.ReadSurveys(body, res.File)
+	if err != nil {
+		return fileErr(res.File, err)
+	}
+	res.Rows = len(rows)
+	ps := &problems{file: res.File}
+	type set struct {
+		ss   domain.SurveySet
+		line int
+		hole domain.Hole
+	}
+	var order []string
+	sets := map[string]*set{}
+	for _, r := range rows {
+		s := sets[r.HoleID]
+		if s == nil {
+			h, err := st.GetHoleByName(ctx, p.ID, r.HoleID)
+			if domain.IsKind(err, domain.NotFound) {
+				ps.add(r.Line, csvio.ColHoleID, "no hole %q in the project (import its collar first)", r.HoleID)
+				continue
+			}
+			if err != nil {
+				return err
+			}
+			ref := r.AzimuthRef
+			if ref == "" {
+				ref = domain.AzimuthTrue
+			}
+			s = &set{ss: domain.SurveySet{HoleID: h.ID, AzimuthRef: ref}, line: r.Line, hole: h}
+			if !r.Date.IsZero() {
+				s.ss.SurveyDate = r.Date.Format(time.DateOnly)
+			}
+			sets[r.HoleID] = s
+			order = append(order, r.HoleID)
+		}
+		if r.AzimuthRef != "" && r.AzimuthRef != s.ss.AzimuthRef {
+			ps.add(r.Line, csvio.ColAzimuthRef, "hole %s mixes azimuth references %s and %s; one survey set has one reference", r.HoleID, s.ss.AzimuthRef, r.AzimuthRef)
+			continue
+		}
+		if r.Station.Depth > s.hole.FinalDepth {
+			ps.add(r.Line, csvio.ColDepth, "station depth %v is past the final depth %v of hole %s", r.Station.Depth, s.hole.FinalDepth, r.HoleID)
+			continue
+		}
+		s.ss.Stations = append(s.ss.Stations, domain.Station{Depth: r.Station.Depth, Azimuth: r.Station.Azimuth, Dip: r.Station.Dip})
+	}
+	if err := ps.err(); err != nil {
+		return err
+	}
+	for _, id := range order {
+		s := sets[id]
+		if err := s.ss.Normalize(); err != nil {
+			ps.add(s.line, "", "hole %s: %v", id, err)
+			continue
+		}
+		cur, err := st.GetSurvey(ctx, s.ss.HoleID)
+		var v int64
+		switch {
+		case err == nil:
+			v = cur.Version
+			res.Updated++
+		case domain.IsKind(err, domain.NotFound):
+			res.Created++
+		default:
+			return err
+		}
+		if err := st.PutSurvey(ctx, &s.ss, v); err != nil {
+			return err
+		}
+	}
+	return ps.err()
+}
+
+func importRuns(ctx context.Context, st domain.Store, p domain.Project, body io.Reader, res *ImportResult) error {
+	rows, err := csvio.ReadRuns(body, res.File)
+	if err != nil {
+		return fileErr(res.File, err)
+	}
+	res.Rows = len(rows)
+	ps := &problems{file: res.File}
+	holes := map[string]int64{}
+	for _, r := range rows {
+		id, ok := holes[r.HoleID]
+		if !ok {
+			h, err := st.GetHoleByName(ctx, p.ID, r.HoleID)
+			if domain.IsKind(err, domain.NotFound) {
+				ps.add(r.Line, csvio.ColHoleID, "no hole %q in the project", r.HoleID)
+				continue
+			}
+			if err != nil {
+				return err
+			}
+			id, holes[r.HoleID] = h.ID, h.ID
+		}
+		run := domain.Run{HoleID: id, From: r.From, To: r.To, Confidence: r.Confidence}
+		if !math.IsNaN(r.Mismatch) {
+			mm := r.Mismatch
+			run.Mismatch = &mm
+		}
+		if err := run.Normalize(); err != nil {
+			var e *domain.Error
+			errors.As(err, &e)
+			ps.add(r.Line, e.Loc.Field, "%s", e.Msg)
+			continue
+		}
+		if ps.n > 0 {
+			continue // keep checking, stop writing
+		}
+		if err := st.CreateRun(ctx, &run); err != nil {
+			return err
+		}
+		res.Created++
+	}
+	if err := ps.err(); err != nil {
+		res.Created = 0
+		return err
+	}
+	return nil
+}
+
+// Extra columns of a measurements file.
+const (
+	colType     = "type"
+	colComment  = "comment"
+	colLoggedBy = "logged_by"
+	colLoggedAt = "logged_at"
+)
+
+// parseLoggedAt accepts RFC 3339 or a plain date (midnight UTC).
+func parseLoggedAt(s string) (time.Time, bool) {
+	if t, err := time.Parse(time.RFC3339Nano, s); err == nil {
+		return t, true
+	}
+	if t, err := time.Parse(time.DateOnly, s); err == nil {
+		return t, true
+	}
+	return time.Time{}, false
+}
+
+func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p domain.Project, a Actor, body io.Reader, res *ImportResult) error {
+	sr, err := csvio.NewStructureReader(body, res.File)
+	if err != nil {
+		return fileErr(res.File, err)
+	}
+	iType, iComment, iBy, iAt := sr.Header.Index(colType), sr.Header.Index(colComment), sr.Header.Index(colLoggedBy), sr.Header.Index(colLoggedAt)
+	if iType < 0 {
+		return &domain.Error{Kind: domain.Invalid, Msg: `missing column "type" (a code of the project's vocabulary)`, Loc: domain.Location{File: res.File, Line: 1}}
+	}
+	vocab, err := st.ListTypeCodes(ctx, p.ID)
+	if err != nil {
+		return err
+	}
+	codes := map[string]bool{}
+	for _, tc := range vocab {
+		codes[tc.Code] = true
+	}
+	holes := map[string]domain.Hole{}
+	ps := &problems{file: res.File}
+	now := s.now()
+	batch := make([]domain.Measurement, 0, importBatch)
+	flush := func() error {
+		if len(batch) == 0 || ps.n > 0 || res.DryRun {
+			batch = batch[:0]
+			return nil
+		}
+		n, err := st.CreateMeasurements(ctx, batch)
+		res.Created += n
+		batch = batch[:0]
+		return err
+	}
+	for {
+		if res.Rows%4096 == 0 {
+			if err := ctx.Err(); err != nil {
+				return err
+			}
+		}
+		r, err := sr.Next()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return fileErr(res.File, err)
+		}
+		res.Rows++
+		if r.Err != nil {
+			ps.addErr(r.Err)
+			continue
+		}
+		cell := func(i int) string {
+			if i < 0 || i >= len(r.Record) {
+				return ""
+			}
+			return strings.TrimSpace(r.Record[i])
+		}
+		h, ok := holes[r.HoleID]
+		if !ok {
+			h, err = st.GetHoleByName(ctx, p.ID, r.HoleID)
+			if domain.IsKind(err, domain.NotFound) {
+				ps.add(r.Line, csvio.ColHoleID, "no hole %q in the project", r.HoleID)
+				continue
+			}
+			if err != nil {
+				return err
+			}
+			holes[r.HoleID] = h
+		}
+		m := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: r.Depth, Alpha: r.Alpha, Beta: r.Beta,
+			TypeCode: cell(iType), Comment: cell(iComment), LoggedBy: cell(iBy), LoggedAt: now}
+		if r.HasGamma {
+			g := r.Gamma
+			m.Gamma = &g
+		}
+		if r.HasThickness {
+			th := r.Thickness
+			m.ApparentThickness = &th
+		}
+		if m.LoggedBy == "" {
+			m.LoggedBy = a.Name
+		}
+		if v := cell(iAt); v != "" {
+			t, ok := parseLoggedAt(v)
+			if !ok {
+				ps.add(r.Line, colLoggedAt, "logged_at %q is not a date (YYYY-MM-DD) or an RFC 3339 time", v)
+				continue
+			}
+			m.LoggedAt = t
+		}
+		if !codes[m.TypeCode] {
+			ps.add(r.Line, colType, "type %q is not in the project's vocabulary", m.TypeCode)
+			continue
+		}
+		if err := m.Normalize(); err != nil {
+			var e *domain.Error
+			errors.As(err, &e)
+			ps.add(r.Line, e.Loc.Field, "%s", e.Msg)
+			continue
+		}
+		if m.Depth > h.FinalDepth {
+			ps.add(r.Line, csvio.ColDepth, "depth %v is past the final depth %v of hole %s", m.Depth, h.FinalDepth, h.Name)
+			continue
+		}
+		if ps.n > 0 || res.DryRun {
+			if res.DryRun && ps.n == 0 {
+				res.Created++
+			}
+			continue
+		}
+		batch = append(batch, m)
+		if len(batch) == importBatch {
+			if err := flush(); err != nil {
+				return err
+			}
+		}
+	}
+	if err := flush(); err != nil {
+		return err
+	}
+	if err := ps.err(); err != nil {
+		res.Created = 0
+		return err
+	}
+	return nil
+}

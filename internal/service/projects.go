@@ -1,0 +1,150 @@
+package service
+
+import (
+	"context"
+
+	"corvane/internal/domain"
+)
+
+// CreateProject creates a project (site admin only) with its conventions;
+// empty conventions take the defaults (bottom, downhole, clockwise, m, grid).
+func (s *Service) CreateProject(ctx context.Context, p domain.Project) (domain.Project, error) {
+	a, err := allow(ctx, domain.AllProjects, domain.RoleAdmin)
+	if err != nil {
+		return p, err
+	}
+	if a.ProjectID != domain.AllProjects {
+		return p, domain.Errorf(domain.Forbidden, "only a site token may create projects")
+	}
+	if err := p.Normalize(); err != nil {
+		return p, err
+	}
+	err = s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
+		if err := st.CreateProject(ctx, &p); err != nil {
+			return err
+		}
+		return audit(ctx, st, a, p.ID, "project", p.ID, domain.ActionCreate, nil, p)
+	})
+	return p, err
+}
+
+// GetProject returns a project (role read).
+func (s *Service) GetProject(ctx context.Context, id int64) (domain.Project, error) {
+	p, _, err := s.project(ctx, s.store, id, domain.RoleRead)
+	return p, err
+}
+
+// ListProjects lists the projects the caller may read: every project for a
+// site token, its own for a project token.
+func (s *Service) ListProjects(ctx context.Context, pg domain.Page) (List[domain.Project], error) {
+	a, ok := ActorFrom(ctx)
+	if !ok {
+		return List[domain.Project]{}, domain.Errorf(domain.Unauthorized, "a bearer token is required")
+	}
+	if a.ProjectID != domain.AllProjects {
+		var items []domain.Project
+		if pg.After < a.ProjectID {
+			p, err := s.store.GetProject(ctx, a.ProjectID)
+			if err != nil {
+				return List[domain.Project]{}, err
+			}
+			items = append(items, p)
+		}
+		return List[domain.Project]{Items: append([]domain.Project{}, items...)}, nil
+	}
+	ps, err := s.store.ListProjects(ctx, pg)
+	if err != nil {
+		return List[domain.Project]{}, err
+	}
+	return page(ps, pg, func(p domain.Project) int64 { return p.ID }), nil
+}
+
+// UpdateProject replaces a project's name, description and conventions
+// (admin). Derived values follow at once: they are computed on read.
+func (s *Service) UpdateProject(ctx context.Context, id, ifVersion int64, p domain.Project) (domain.Project, error) {
+	if err := p.Normalize(); err != nil {
+		return p, err
+	}
+	err := s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
+		before, a, err := s.project(ctx, st, id, domain.RoleAdmin)
+		if err != nil {
+			return err
+		}
+		p.ID, p.CreatedAt = id, before.CreatedAt
+		if err := st.UpdateProject(ctx, &p, ifVersion); err != nil {
+			return err
+		}
+		return audit(ctx, st, a, id, "project", id, domain.ActionUpdate, before, p)
+	})
+	return p, err
+}
+
+// DeleteProject deletes a project and everything in it (site admin only).
+func (s *Service) DeleteProject(ctx context.Context, id, ifVersion int64) error {
+	return s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
+		before, a, err := s.project(ctx, st, id, domain.RoleAdmin)
+		if err != nil {
+			return err
+		}
+		if a.ProjectID != domain.AllProjects {
+			return domain.Errorf(domain.Forbidden, "only a site token may delete projects")
+		}
+		if err := st.DeleteProject(ctx, id, ifVersion); err != nil {
+			return err
+		}
+		return audit(ctx, st, a, id, "project", id, domain.ActionDelete, before, nil)
+	})
+}
+
+// PutTypeCode adds or replaces a word of the project's vocabulary (admin).
+func (s *Service) PutTypeCode(ctx context.Context, projectID int64, tc domain.TypeCode) (domain.TypeCode, error) {
+	tc.ProjectID = projectID
+	if err := tc.Normalize(); err != nil {
+		return tc, err
+	}
+	err := s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
+		_, a, err := s.project(ctx, st, projectID, domain.RoleAdmin)
+		if err != nil {
+			return err
+		}
+		if err := st.PutTypeCode(ctx, tc); err != nil {
+			return err
+		}
+		return audit(ctx, st, a, projectID, "type_code", tc.Code, domain.ActionUpdate, nil, tc)
+	})
+	return tc, err
+}
+
+// ListTypeCodes returns the project's vocabulary (read).
+func (s *Service) ListTypeCodes(ctx context.Context, projectID int64) ([]domain.TypeCode, error) {
+	if _, _, err := s.project(ctx, s.store, projectID, domain.RoleRead); err != nil {
+		return nil, err
+	}
+	return s.store.ListTypeCodes(ctx, projectID)
+}
+
+// DeleteTypeCode removes a word of the vocabulary (admin); Conflict while in use.
+func (s *Service) DeleteTypeCode(ctx context.Context, projectID int64, code string) error {
+	return s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
+		_, a, err := s.project(ctx, st, projectID, domain.RoleAdmin)
+		if err != nil {
+			return err
+		}
+		if err := st.DeleteTypeCode(ctx, projectID, code); err != nil {
+			return err
+		}
+		return audit(ctx, st, a, projectID, "type_code", code, domain.ActionDelete, nil, nil)
+	})
+}
+
+// ListAudit returns one page of the project's audit trail, oldest first (admin).
+func (s *Service) ListAudit(ctx context.Context, projectID int64, pg domain.Page) (List[domain.AuditEntry], error) {
+	if _, _, err := s.project(ctx, s.store, projectID, domain.RoleAdmin); err != nil {
+		return List[domain.AuditEntry]{}, err
+	}
+	es, err := s.store.ListAudit(ctx, projectID, pg)
+	if err != nil {
+		return List[domain.AuditEntry]{}, err
+	}
+	return page(es, pg, func(e domain.AuditEntry) int64 { return e.ID }), nil
+}
