@@ -109,10 +109,13 @@ func rotationChecks(h *holeData, conv coreangle.Convention, o Options) []Finding
 	}
 
 	var out []Finding
+	used, total := 0, 0
 	for r, e := range est {
 		if e == nil {
 			continue
 		}
+		used += e.N
+		total += len(samples[r])
 		axis := geom.FromTrendPlunge(e.Reference.Trend, e.Reference.Plunge)
 		var before, after []float64
 		for _, s := range samples[r] {
@@ -148,6 +151,11 @@ func rotationChecks(h *holeData, conv coreangle.Convention, o Options) []Finding
 			Message: fmt.Sprintf("run %.2f-%.2f: its %s fits the %s fabric (%03.0f/%02.0f, %d poles) only after turning the core %+.1f deg +- %.1f (95%%) about its axis, from %d measurements; median misfit %.1f -> %.1f deg. The mark is likely off: suggested betas = logged beta %+.1f (not applied)",
 				run.From, run.To, o.PersistentType, map[string]string{"neighbours": "neighbouring runs'", "hole": "hole-wide"}[e.RefSource],
 				e.Reference.Trend, e.Reference.Plunge, e.ReferenceN, e.Offset, e.HalfWidth95, e.N, e.MisfitBefore, e.MisfitAfter, e.Offset)})
+	}
+	if total > 0 && 2*used < total {
+		out = append(out, Finding{Check: CheckMarkRotation, Severity: SeverityInfo, HoleID: h.c.HoleID, Size: float64(total - used), Source: "structures",
+			Message: fmt.Sprintf("only %d of %d %s measurements could be used for the mark-rotation check: the others lie within %.0f deg of the core axis, show the fabric at an alpha below %.0f deg (ambiguous by a half turn), or do not fit the fabric",
+				used, total, o.PersistentType, minAxisAngle, minRefAlpha)})
 	}
 	return out
 }

@@ -43,6 +43,7 @@ type synthHole struct {
 	rotations map[int]float64 // run index -> mark error added to logged beta
 	logger    func(run int) string
 	round     func(run int) float64 // rounding step of logged angles
+	conv      coreangle.Convention
 }
 
 type synthOut struct {
@@ -105,7 +106,7 @@ func (s synthHole) build(t testing.TB, r *rand.Rand, in *Input) {
 				t.Fatal(err)
 			}
 			pl := geom.PlaneOf(noisy(n, 3, r))
-			a, b, _ := coreangle.Angles(pt.Dir, pl, coreangle.Convention{})
+			a, b, _ := coreangle.Angles(pt.Dir, pl, s.conv)
 			b = geom.NormAzimuth(b + s.rotations[k])
 			if step > 0 {
 				a, b = math.Min(roundTo(a, step), 90), geom.NormAzimuth(roundTo(b, step))
@@ -337,5 +338,65 @@ func TestRunFindsInjectedFaults(t *testing.T) {
 	}
 	if !strings.Contains(rep.Caution, "judgement") {
 		t.Error("caution missing")
+	}
+}
+
+// Clean holes in other directions and under the other conventions raise
+// no flag and no warning either.
+func TestRunCleanHolesOtherGeometries(t *testing.T) {
+	r := rand.New(rand.NewPCG(61, 62))
+	for _, c := range []struct {
+		az, dip float64
+		conv    coreangle.Convention
+	}{
+		{200, -75, coreangle.Convention{}},
+		{330, -45, coreangle.Convention{RefLine: coreangle.Top}},
+		{110, -65, coreangle.Convention{BetaApex: coreangle.UpHole}},
+		{15, -50, coreangle.Convention{RefLine: coreangle.Top, BetaApex: coreangle.UpHole}},
+		{85, -70, coreangle.Convention{}},
+	} {
+		var in Input
+		synthHole{id: "G", az: c.az, dip: c.dip, flatten: 1, depth: 240, runLen: 3, perRun: 6, conv: c.conv}.build(t, r, &in)
+		rep := Run(in, Options{PersistentType: "bedding", Convention: c.conv})
+		note := false
+		for _, f := range rep.Findings {
+			if f.Severity != SeverityInfo {
+				t.Errorf("%v/%v %v: %s: %s", c.az, c.dip, c.conv, f.Check, f.Message)
+			}
+			note = note || f.Check == CheckMarkRotation
+		}
+		// Hole 015/-50 meets the bedding (pole 220/40) at alpha of about 3
+		// deg: a half turn of the core would look the same, so no rotation
+		// can be estimated, and the report says so.
+		if want := c.az == 15; note != want {
+			t.Errorf("%v/%v: note on unusable fabric = %v, want %v", c.az, c.dip, note, want)
+		}
+	}
+}
+
+// Two neighbouring runs with the same mark error, under the top-line and
+// up-hole-apex convention, with either reference: both are found and both
+// estimates are within 5 deg (the second pass keeps each out of the other's
+// reference). Here the bedding pole lies 25 deg from the core axis, which
+// magnifies 3 deg of pole noise to about 7 deg per offset (1/sin 25), hence
+// the wider tolerance than in TestRunFindsInjectedFaults.
+func TestRunAdjacentRotatedRuns(t *testing.T) {
+	conv := coreangle.Convention{RefLine: coreangle.Top, BetaApex: coreangle.UpHole}
+	for _, ref := range []string{"neighbours", "hole"} {
+		r := rand.New(rand.NewPCG(71, 72))
+		var in Input
+		synthHole{id: "A2", az: 250, dip: -55, flatten: 1, depth: 150, runLen: 3, perRun: 6, conv: conv,
+			rotations: map[int]float64{20: 30, 21: 30, 35: -60}}.build(t, r, &in)
+		rep := Run(in, Options{PersistentType: "bedding", Convention: conv, Reference: ref})
+		hr := holeReport(t, rep, "A2")
+		for k, e := range map[int]float64{20: 30, 21: 30, 35: -60} {
+			est := hr.Runs[k].Rotation
+			if est == nil || !est.Flagged || math.Abs(wrap180(est.Offset+e)) > 5 {
+				t.Errorf("%s: run %d (error %+v): %+v", ref, k, e, est)
+			}
+		}
+		if rep.Summary.RunsFlagged != 3 {
+			t.Errorf("%s: %d runs flagged, want 3", ref, rep.Summary.RunsFlagged)
+		}
 	}
 }

@@ -36,6 +36,14 @@ func downHole(v, h geom.Vec3) geom.Vec3 {
 // the core turns.
 const minAxisAngle = 10.0
 
+// minRefAlpha is the smallest alpha in degrees the reference plane may show
+// on the core for an offset to be computed. A plane nearly containing the
+// core axis looks the same after a half turn (beta and beta + 180 give almost
+// the same plane), so below this the offset is ambiguous by 180 degrees.
+// Between this and a few times the measurement noise an occasional
+// measurement still flips by a half turn; [estimateRotation] trims those.
+const minRefAlpha = 5.0
+
 // betaOffset returns the rotation about the down-hole unit vector h, in
 // degrees in (-180, 180], that brings the plane normal n as close as possible
 // to the axis p (both axial), and the angular misfit that remains after it,
@@ -45,10 +53,12 @@ const minAxisAngle = 10.0
 // Rotating n about h sweeps a cone around h; the nearest point of that cone to
 // p lies in the half-plane through h and p, so the offset is the signed angle
 // about h from the part of n perpendicular to h to the part of p perpendicular
-// to h (closed form; no search needed).
+// to h (closed form; no search needed). Both normals are taken with a
+// non-negative component along h (the sense alpha is measured in).
 //
 // ok is false when n or p lies within [minAxisAngle] of the core axis, where
-// the offset is undefined or dominated by noise.
+// the offset is undefined or dominated by noise, and when p's plane shows an
+// alpha below [minRefAlpha], where it is ambiguous by a half turn.
 func betaOffset(h, n, p geom.Vec3) (offset, residual float64, ok bool) {
 	n = downHole(n, h)
 	p = downHole(p, h)
@@ -58,7 +68,7 @@ func betaOffset(h, n, p geom.Vec3) (offset, residual float64, ok bool) {
 	an := geom.Deg(math.Atan2(nPerp.Norm(), nh)) // angle from the axis
 	ap := geom.Deg(math.Atan2(pPerp.Norm(), ph))
 	residual = math.Abs(an - ap)
-	if an < minAxisAngle || ap < minAxisAngle {
+	if an < minAxisAngle || ap < minAxisAngle || 90-ap < minRefAlpha {
 		return 0, residual, false
 	}
 	offset = geom.Deg(math.Atan2(h.Dot(nPerp.Cross(pPerp)), nPerp.Dot(pPerp)))
@@ -127,7 +137,10 @@ type offsetSample struct {
 // [betaOffset]). It also returns the number of samples left out.
 //
 // The circular mean of the offsets is the rotation that maximises the sum of
-// cosines of the offset errors, the circular analogue of least squares.
+// cosines of the offset errors, the circular analogue of least squares. One
+// trimming pass follows: offsets more than 90 degrees from the first mean
+// (a plane at low alpha whose apex flipped to the other end, or a stray
+// measurement) are left out and the mean is taken again.
 func estimateRotation(samples []offsetSample, ref geom.Vec3, maxMisfit float64, buf []float64) (CircularMean, int, []float64) {
 	buf = buf[:0]
 	excluded := 0
@@ -139,5 +152,19 @@ func estimateRotation(samples []offsetSample, ref geom.Vec3, maxMisfit float64, 
 		}
 		buf = append(buf, off)
 	}
-	return CircMean(buf), excluded, buf
+	m := CircMean(buf)
+	if m.N > 2 {
+		kept := buf[:0]
+		for _, off := range buf {
+			if math.Abs(wrap180(off-m.Mean)) <= 90 {
+				kept = append(kept, off)
+			}
+		}
+		if len(kept) < m.N && len(kept) > 0 {
+			excluded += m.N - len(kept)
+			buf = kept
+			m = CircMean(buf)
+		}
+	}
+	return m, excluded, buf
 }

@@ -156,7 +156,7 @@ func TestBetaOffsetRecoversRotation(t *testing.T) {
 	for k := 0; k < 500; k++ {
 		h := geom.FromTrendPlunge(360*r.Float64(), 20+60*r.Float64())
 		n := geom.FromTrendPlunge(360*r.Float64(), 90*r.Float64())
-		if geom.AxialAngle(n, h) < 15 {
+		if a := geom.AxialAngle(n, h); a < 15 || a > 75 {
 			continue
 		}
 		want := wrap180(360 * r.Float64())
@@ -172,6 +172,12 @@ func TestBetaOffsetRecoversRotation(t *testing.T) {
 	h := geom.HoleDirection(0, -60)
 	if _, _, ok := betaOffset(h, h, geom.FromTrendPlunge(10, 10)); ok {
 		t.Error("pole along the core axis should give no offset")
+	}
+	// A reference plane nearly containing the core axis (alpha 3) is
+	// ambiguous by a half turn.
+	nearAxisPlane := rotateAbout(h, geom.Vec3{X: 1}, 87)
+	if _, _, ok := betaOffset(h, geom.FromTrendPlunge(90, 30), nearAxisPlane); ok {
+		t.Error("reference at alpha 3 should give no offset")
 	}
 }
 

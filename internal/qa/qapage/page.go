@@ -270,7 +270,7 @@ func writeStrip(b *strings.Builder, h *qa.HoleReport, fs []qa.Finding) {
 	}
 	for _, run := range h.Runs {
 		e := run.Rotation
-		if e == nil {
+		if e == nil || e.N == 0 {
 			continue
 		}
 		v := math.Max(-60, math.Min(60, e.Offset))
