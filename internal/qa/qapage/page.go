@@ -295,11 +295,16 @@ func writeStrip(b *strings.Builder, h *qa.HoleReport, fs []qa.Finding) {
 	}
 	// Flags lane.
 	label(yFlags+laneFlags/2+4, "flags")
-	for _, f := range fs {
+	lastX := math.Inf(-1)
+	for _, f := range fs { // sorted by depth: nudge markers that would overlap
 		if f.Severity == qa.SeverityInfo || f.HoleID == "" {
 			continue
 		}
 		cx := x(f.Depth)
+		if cx < lastX+11 {
+			cx = lastX + 11
+		}
+		lastX = cx
 		title := fmt.Sprintf("<title>%s at %.1f: %s</title>", esc(f.Check), f.Depth, esc(f.Message))
 		if f.DepthTo > f.Depth {
 			fmt.Fprintf(b, `<line x1="%.1f" x2="%.1f" y1="%.1f" y2="%.1f" stroke="%s" stroke-width="2"/>`, cx, x(f.DepthTo), yFlags+laneFlags-3, yFlags+laneFlags-3, colInk)
@@ -360,6 +365,21 @@ func netSVG(title string, poles []qa.Pole, ref qa.Pole, filled bool) string {
 		q := projection.EqualArea.ProjectLine(geom.Line{Trend: p.Trend, Plunge: p.Plunge})
 		return cx + netR*q.X, cy - netR*q.Y
 	}
+	// The reference fabric: its plane as a dashed great circle and its pole
+	// as a ring with a cross, drawn under the measurements.
+	refPlane := geom.PlaneOf(geom.FromTrendPlunge(ref.Trend, ref.Plunge))
+	var gc strings.Builder
+	for i, q := range projection.EqualArea.GreatCircle(refPlane, 90) {
+		cmd := "L"
+		if i == 0 {
+			cmd = "M"
+		}
+		fmt.Fprintf(&gc, "%s%.1f %.1f", cmd, cx+netR*q.X, cy-netR*q.Y)
+	}
+	fmt.Fprintf(&b, `<path d="%s" fill="none" stroke="%s" stroke-dasharray="4 3"/>`, gc.String(), colMuted)
+	x, y := pt(ref)
+	fmt.Fprintf(&b, `<circle cx="%.1f" cy="%.1f" r="9" fill="none" stroke="%s" stroke-width="1.4"/><path d="M%.1f %.1fh18M%.1f %.1fv18" stroke="%s" stroke-width="0.8"/>`,
+		x, y, colInk, x-9, y, x, y-9, colInk)
 	for _, p := range poles {
 		x, y := pt(p)
 		if filled {
@@ -368,9 +388,6 @@ func netSVG(title string, poles []qa.Pole, ref qa.Pole, filled bool) string {
 			fmt.Fprintf(&b, `<circle cx="%.1f" cy="%.1f" r="2.8" fill="none" stroke="%s" stroke-width="1.2"/>`, x, y, colVermil)
 		}
 	}
-	x, y := pt(ref)
-	fmt.Fprintf(&b, `<circle cx="%.1f" cy="%.1f" r="6" fill="none" stroke="%s" stroke-width="1.4"/><path d="M%.1f %.1fh10M%.1f %.1fv10" stroke="%s" stroke-width="1.4"/>`,
-		x, y, colInk, x-5, y, x, y-5, colInk)
 	fmt.Fprintf(&b, `<text x="%.1f" y="%.1f" text-anchor="middle">%s</text>`, cx, cy+netR+16, esc(title))
 	b.WriteString("</svg>")
 	return b.String()
@@ -389,7 +406,8 @@ func writeNets(b *strings.Builder, h *qa.HoleReport, r qa.Report) {
 	fmt.Fprintf(b, "<h3>Runs with a suspect mark: %s poles before and after the suggested correction</h3>", esc(r.Options.PersistentType))
 	b.WriteString(`<div class="legend"><svg width="12" height="12"><circle cx="6" cy="6" r="3" fill="none" stroke="` + colVermil + `" stroke-width="1.2"/></svg>as logged` +
 		`<svg width="12" height="12"><path d="M6 2.5l3.2 3.2l-3.2 3.2l-3.2-3.2z" fill="` + colBlue + `" stroke="` + colInk + `" stroke-width="0.6"/></svg>with the suggested beta offset` +
-		`<svg width="14" height="14"><circle cx="7" cy="7" r="6" fill="none" stroke="` + colInk + `" stroke-width="1.4"/><path d="M2 7h10M7 2v10" stroke="` + colInk + `"/></svg>reference fabric pole` +
+		`<svg width="20" height="20"><circle cx="10" cy="10" r="8" fill="none" stroke="` + colInk + `" stroke-width="1.4"/><path d="M2 10h16M10 2v16" stroke="` + colInk + `" stroke-width="0.8"/></svg>reference fabric pole` +
+		`<svg width="26" height="12"><path d="M1 6h24" stroke="` + colMuted + `" stroke-dasharray="4 3"/></svg>its plane` +
 		`&nbsp; lower-hemisphere equal-area nets, north up</div>`)
 	b.WriteString("<div class=\"nets\">")
 	for _, run := range flagged {
