@@ -1,0 +1,215 @@
+package cli
+
+import (
+	"context"
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"os"
+	"path/filepath"
+	"strconv"
+
+	"corvane/internal/convert"
+	"corvane/internal/coreangle"
+	"corvane/internal/csvio"
+	"corvane/internal/desurvey"
+)
+
+func init() {
+	register(command{
+		name:    "convert",
+		summary: "desurvey holes and convert alpha/beta/gamma in CSV files to true orientations",
+		run:     runConvert,
+	})
+}
+
+const convertUsage = `Usage:
+  corvane convert --collars C.csv --surveys S.csv --structures M.csv [-o OUT.csv] [options]
+
+Desurveys every hole from its collar and survey stations (minimum curvature unless
+--method says otherwise) and converts each structure row's alpha, beta and gamma at its
+depth into a true plane (dip, dip direction, right-hand strike, pole) and lineation
+(plunge, trend).
+
+Input files have a header; names are case-insensitive and columns may come in any order.
+  collars:    hole_id, easting, northing, elevation, azimuth, dip, depth
+              optional: declination, grid_convergence, azimuth_reference, crs
+  surveys:    hole_id, depth, azimuth, dip   (stations of a hole in increasing depth)
+              optional: azimuth_reference (true, grid or magnetic), survey_date (YYYY-MM-DD)
+  structures: hole_id, depth, alpha, beta
+              optional: gamma (empty when there is no lineation), apparent_thickness or
+              thickness; any other columns are carried through to the output.
+Dips are negative downward. alpha 0..90, beta and gamma 0..360.
+
+The output has one row per structure row, in input order: the input columns, then
+hole_azimuth, hole_dip, easting, northing, elevation, dip, dip_direction, strike,
+line_trend, line_plunge, warnings, pole_trend, pole_plunge, [true_thickness],
+azimuth_reference, declination, declination_source, grid_convergence,
+convergence_source, error.
+
+Azimuths: true = magnetic + declination; grid = true - grid_convergence. A survey
+azimuth without azimuth_reference is taken to be in the output reference. Corrections
+come from the collar's columns, else from --declination / --grid-convergence, else are
+computed from the collar's crs (EPSG:326NN / EPSG:327NN) and the survey date (World
+Magnetic Model 2025); the *_source columns say which (given, computed or none).
+
+Exit status: 0 all rows converted; 1 some rows have a message in the error column
+(all rows are still written); 2 bad options or a file that cannot be read as a whole
+(nothing is written).
+
+Orientations feed geological models and slope or excavation design: check the warnings
+and QA, and base any design on local codes and the judgement of a licensed practitioner.
+
+Options:
+`
+
+type floatFlag struct{ g *convert.Given }
+
+func (f floatFlag) String() string {
+	if f.g == nil || !f.g.Set {
+		return ""
+	}
+	return strconv.FormatFloat(f.g.Value, 'g', -1, 64)
+}
+
+func (f floatFlag) Set(s string) error {
+	v, msg := csvio.ParseNumber(s)
+	if msg != "" {
+		return errors.New(msg)
+	}
+	if v < -180 || v > 180 {
+		return fmt.Errorf("%g is outside -180..180", v)
+	}
+	*f.g = convert.Given{Value: v, Set: true}
+	return nil
+}
+
+func runConvert(ctx context.Context, env *Env, args []string) int {
+	fs := flag.NewFlagSet("convert", flag.ContinueOnError)
+	fs.SetOutput(env.Stderr)
+	fs.Usage = func() {
+		fmt.Fprint(env.Stderr, convertUsage)
+		fs.PrintDefaults()
+	}
+	collars := fs.String("collars", "", "collars CSV file (required)")
+	surveys := fs.String("surveys", "", "surveys CSV file (required)")
+	structures := fs.String("structures", "", "structures CSV file (required; - for standard input)")
+	out := fs.String("o", "", "output CSV file (default standard output)")
+	refLine := fs.String("reference-line", "bottom", "orientation reference line: bottom or top")
+	apex := fs.String("beta-apex", "downhole", "ellipse apex beta is measured to: downhole or uphole")
+	sense := fs.String("gamma-sense", "clockwise", "sense of gamma looking along the down-hole plane normal: clockwise or anticlockwise")
+	outRef := fs.String("output-reference", "grid", "north reference of output azimuths: grid or true")
+	method := fs.String("method", "minimum-curvature", "desurvey method: minimum-curvature, balanced-tangential or tangential")
+	feet := fs.Bool("feet", false, "lengths are in feet (dogleg severity per 100 ft; elevations converted for the magnetic model)")
+	noCompute := fs.Bool("no-computed-corrections", false, "never compute declination or grid convergence; holes that need one get an error")
+	var opt convert.Options
+	fs.Var(floatFlag{&opt.Declination}, "declination", "magnetic declination in degrees for holes whose collar gives none (true = magnetic + D)")
+	fs.Var(floatFlag{&opt.GridConvergence}, "grid-convergence", "grid convergence in degrees for holes whose collar gives none (grid = true - C)")
+	if err := fs.Parse(args); err != nil {
+		if errors.Is(err, flag.ErrHelp) {
+			return ExitOK
+		}
+		return ExitUsage
+	}
+	usageErr := func(format string, a ...any) int {
+		fmt.Fprintf(env.Stderr, "corvane convert: "+format+"\n", a...)
+		return ExitUsage
+	}
+	if fs.NArg() > 0 {
+		return usageErr("unexpected argument %q", fs.Arg(0))
+	}
+	if *collars == "" || *surveys == "" || *structures == "" {
+		return usageErr("--collars, --surveys and --structures are required (see corvane convert -h)")
+	}
+	var err error
+	if opt.Convention.RefLine, err = coreangle.ParseRefLine(*refLine); err != nil {
+		return usageErr("--reference-line: %v", err)
+	}
+	if opt.Convention.BetaApex, err = coreangle.ParseApex(*apex); err != nil {
+		return usageErr("--beta-apex: %v", err)
+	}
+	if opt.Convention.GammaSense, err = coreangle.ParseSense(*sense); err != nil {
+		return usageErr("--gamma-sense: %v", err)
+	}
+	if opt.Output, err = convert.ParseReference(*outRef); err != nil || opt.Output == convert.Magnetic {
+		return usageErr("--output-reference %q: want grid or true", *outRef)
+	}
+	if opt.Method, err = desurvey.ParseMethod(*method); err != nil {
+		return usageErr("--method: %v", err)
+	}
+	if *feet {
+		opt.Unit = desurvey.Feet
+	}
+	opt.NoCompute = *noCompute
+	opt.CollarsFile, opt.SurveysFile, opt.StructuresFile = *collars, *surveys, *structures
+
+	cf, err := os.Open(*collars)
+	if err != nil {
+		return usageErr("%v", err)
+	}
+	defer cf.Close()
+	sf, err := os.Open(*surveys)
+	if err != nil {
+		return usageErr("%v", err)
+	}
+	defer sf.Close()
+	var in io.Reader = env.Stdin
+	if *structures != "-" {
+		f, err := os.Open(*structures)
+		if err != nil {
+			return usageErr("%v", err)
+		}
+		defer f.Close()
+		in = f
+	}
+	holes, err := convert.Load(cf, sf, opt)
+	if err != nil {
+		fmt.Fprint(env.Stderr, "corvane convert: ")
+		csvio.Report(env.Stderr, err)
+		return ExitUsage
+	}
+
+	// Write to a temporary file first: a file that turns out to be unreadable
+	// half-way leaves no partial output behind.
+	dir := os.TempDir()
+	if *out != "" {
+		dir = filepath.Dir(*out)
+	}
+	tmp, err := os.CreateTemp(dir, ".corvane-convert-*.csv")
+	if err != nil {
+		return usageErr("%v", err)
+	}
+	defer os.Remove(tmp.Name()) // no-op after a successful rename
+	sum, err := holes.Convert(ctx, in, tmp)
+	if err != nil {
+		tmp.Close()
+		fmt.Fprint(env.Stderr, "corvane convert: ")
+		csvio.Report(env.Stderr, err)
+		return ExitUsage
+	}
+	if *out != "" {
+		if err := tmp.Close(); err != nil {
+			return usageErr("%v", err)
+		}
+		if err := os.Rename(tmp.Name(), *out); err != nil {
+			return usageErr("%v", err)
+		}
+	} else {
+		if _, err := tmp.Seek(0, io.SeekStart); err != nil {
+			tmp.Close()
+			return usageErr("%v", err)
+		}
+		_, err := io.Copy(env.Stdout, tmp)
+		tmp.Close()
+		if err != nil {
+			return usageErr("writing the output: %v", err)
+		}
+	}
+	fmt.Fprintf(env.Stderr, "corvane convert: %d rows (%d with warnings, %d below the last survey station), %d with errors; azimuths referenced to %v north, convention %v\n",
+		sum.Rows, sum.WarnRows, sum.Extrapols, sum.BadRows, opt.Output, opt.Convention)
+	if sum.BadRows > 0 {
+		return ExitRows
+	}
+	return ExitOK
+}
