@@ -115,7 +115,7 @@ func runNet(_ context.Context, env *Env, args []string) int {
 	lines := buildGroup(in, "lines", w)
 	hasSets := so.auto > 0 || len(so.windows) > 0
 	for _, g := range []*orientGroup{planes, lines} {
-		if len(g.axes) == 0 || !hasSets {
+		if len(g.axes) == 0 || !hasSets || !c.setsApply(in, g.kind) {
 			continue
 		}
 		if err := g.assignSets(so); err != nil {
@@ -143,7 +143,7 @@ func runNet(_ context.Context, env *Env, args []string) int {
 	lineOffset := 0
 	if want["sets"] {
 		addSets := func(g *orientGroup, ofLines bool) {
-			if len(g.axes) == 0 {
+			if len(g.axes) == 0 || (hasSets && g.assign == nil) {
 				return
 			}
 			if g.assign == nil {

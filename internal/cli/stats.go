@@ -36,7 +36,8 @@ const spreadFormula = "angular standard deviation sqrt(sum w_i d_i^2 / (N - 1)),
 
 const statsUsage = `Usage:
   corvane stats --in FILE [--sets auto:N | --set NAME:TREND/PLUNGE:CONE ...]
-                [--weighting terzaghi[:CAP]] [--type TYPE] [--of planes|lines|both] [-o OUT.json]
+                [--sets-on planes|lines|both] [--weighting terzaghi[:CAP]] [--type TYPE]
+                [--of planes|lines|both] [-o OUT.json]
 
 Reads planes (columns dip, dip_direction) and/or lines (line_trend, line_plunge) from a
 CSV such as the one corvane convert writes (header names in any case; hole_azimuth and
@@ -54,6 +55,8 @@ Sets:
                                  in several windows joins the nearest centre. Repeatable.
   --sets auto:N                  N sets by k-means on axes (see "set_method" in the output),
                                  deterministic for a given --seed.
+  --sets-on planes|lines|both    what the sets apply to: by default the planes (their
+                                 poles), or the lines when the file has no planes.
 
 Weighting:
   --weighting terzaghi[:CAP]     Terzaghi (1965) weight 1/|cos delta| for each plane, delta
@@ -435,6 +438,7 @@ func groupReport(g *orientGroup) *jGroup {
 // orientFlags are the flags shared by stats, net and rose.
 type orientFlags struct {
 	in, out, typ, of, weighting, sets string
+	setsOn                            string
 	windows                           windowFlags
 	seed                              uint64
 }
@@ -448,6 +452,7 @@ func (c *orientFlags) register(fs *flag.FlagSet, withSets bool) {
 		fs.StringVar(&c.sets, "sets", "", "auto:N for N sets by k-means on axes")
 		fs.Var(&c.windows, "set", "a set window NAME:TREND/PLUNGE:CONE (repeatable; for planes the centre is the pole)")
 		fs.Uint64Var(&c.seed, "seed", 1, "seed for --sets auto:N")
+		fs.StringVar(&c.setsOn, "sets-on", "", "planes, lines or both: what sets apply to (default planes, or lines when there are no planes)")
 	}
 }
 
@@ -459,7 +464,31 @@ func (c *orientFlags) setOptions() (setOptions, error) {
 	if n > 0 && len(c.windows) > 0 {
 		return setOptions{}, errors.New("give either --sets auto:N or --set windows, not both")
 	}
+	switch c.setsOn {
+	case "", "planes", "lines", "both":
+	default:
+		return setOptions{}, fmt.Errorf("--sets-on %q: want planes, lines or both", c.setsOn)
+	}
 	return setOptions{auto: n, windows: c.windows, seed: c.seed}, nil
+}
+
+// setsApply reports whether sets are formed for the kind ("planes" or
+// "lines") of the input, following --sets-on.
+func (c *orientFlags) setsApply(in *orientInput, kind string) bool {
+	switch c.setsOn {
+	case "both":
+		return true
+	case "planes", "lines":
+		return c.setsOn == kind
+	}
+	hasPlanes := false
+	for _, r := range in.rows {
+		if r.HasPlane {
+			hasPlanes = true
+			break
+		}
+	}
+	return kind == "planes" == hasPlanes
 }
 
 // openOut returns the writer for -o (stdout when empty) and a close function.
@@ -545,8 +574,10 @@ func runStats(_ context.Context, env *Env, args []string) int {
 		if len(g.axes) == 0 {
 			continue
 		}
-		if err := g.assignSets(so); err != nil {
-			return fail(err)
+		if c.setsApply(in, kind) {
+			if err := g.assignSets(so); err != nil {
+				return fail(err)
+			}
 		}
 		if kind == "planes" {
 			rep.Planes = groupReport(g)

@@ -344,3 +344,47 @@ func TestNetAndRoseOnDemo(t *testing.T) {
 		t.Error("bad --bin accepted")
 	}
 }
+
+// TestSetsOn: sets apply to planes by default, to lines with --sets-on lines
+// or when the file has no planes.
+func TestSetsOn(t *testing.T) {
+	p := writeTemp(t, "demo.csv", demoOrientationsCSV(7))
+	type groups struct {
+		Planes *struct {
+			Sets []json.RawMessage `json:"sets"`
+		} `json:"planes"`
+		Lines *struct {
+			Sets []json.RawMessage `json:"sets"`
+		} `json:"lines"`
+	}
+	for _, c := range []struct {
+		on            string
+		planes, lines int
+	}{{"", 2, 0}, {"lines", 0, 2}, {"both", 2, 2}} {
+		args := []string{"stats", "--in", p, "--sets", "auto:2"}
+		if c.on != "" {
+			args = append(args, "--sets-on", c.on)
+		}
+		code, out, errOut := runCmd(t, args...)
+		if code != ExitOK {
+			t.Fatalf("%v: exit %d %s", args, code, errOut)
+		}
+		var g groups
+		if err := json.Unmarshal([]byte(out), &g); err != nil {
+			t.Fatal(err)
+		}
+		if len(g.Planes.Sets) != c.planes || len(g.Lines.Sets) != c.lines {
+			t.Errorf("--sets-on %q: %d plane sets, %d line sets", c.on, len(g.Planes.Sets), len(g.Lines.Sets))
+		}
+	}
+	lines := writeTemp(t, "l.csv", "line_trend,line_plunge\n10,20\n12,22\n200,40\n205,41\n")
+	code, out, _ := runCmd(t, "stats", "--in", lines, "--sets", "auto:2")
+	var g groups
+	_ = json.Unmarshal([]byte(out), &g)
+	if code != ExitOK || g.Lines == nil || len(g.Lines.Sets) != 2 {
+		t.Errorf("lines-only file: exit %d, %s", code, out)
+	}
+	if code, _, _ := runCmd(t, "stats", "--in", lines, "--sets-on", "poles"); code != ExitUsage {
+		t.Error("bad --sets-on accepted")
+	}
+}

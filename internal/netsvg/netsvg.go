@@ -284,7 +284,7 @@ func WriteNet(w io.Writer, n Net) error {
 		}
 		for i, st := range n.Sets {
 			col, shape := setStyle(i)
-			if st.Cone > 0 && !math.IsNaN(st.Cone) {
+			if st.Cone > 0 && st.Cone < 90 {
 				parts, closed := n.Projection.SmallCircle(st.Mean, st.Cone, 180)
 				for _, p := range parts {
 					d := pathOf(p, closed)
