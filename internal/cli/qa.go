@@ -12,9 +12,11 @@ import (
 	"path/filepath"
 	"strconv"
 	"strings"
+	"time"
 
 	"corvane/internal/coreangle"
 	"corvane/internal/csvio"
+	"corvane/internal/northref"
 	"corvane/internal/qa"
 	"corvane/internal/qa/qapage"
 )
@@ -234,19 +236,63 @@ func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl,
 	if err != nil {
 		return in, 0, err
 	}
-	type corr struct{ decl, conv float64 }
-	corrs := map[string]corr{}
+	// Azimuth corrections, as corvane convert applies them: the collar's
+	// columns, then the value for all holes, then computed from the collar's
+	// crs and the survey date (package northref).
+	collarRow := map[string]csvio.CollarRow{}
+	for _, c := range crows {
+		collarRow[c.HoleID] = c
+	}
+	warned := map[string]bool{}
+	correction := func(hole, what string, line int, date time.Time) float64 {
+		c := collarRow[hole]
+		given, all := c.Declination, decl
+		if what == "grid convergence" {
+			given, all = c.GridConvergence, conv
+		}
+		if !math.IsNaN(given) {
+			return given
+		}
+		if !math.IsNaN(all) {
+			return all
+		}
+		res, err := northref.Corrections(c.CRS, c.Collar.East, c.Collar.North, c.Collar.Elevation, date, what == "declination", what == "grid convergence")
+		if err == nil {
+			if what == "declination" {
+				return res.Declination
+			}
+			return res.Convergence
+		}
+		if !warned[hole+what] {
+			warned[hole+what] = true
+			fmt.Fprintf(stderr, "corvane qa: hole %s (line %d) needs a %s to bring its azimuths to %s north and it cannot be computed (%v); taken as 0: give it in the collar's column or for all holes\n",
+				hole, line, what, outRef, err)
+		}
+		return 0
+	}
+	// toOut brings azimuth az of reference ref ("" = already the output
+	// reference) to the output reference: true = magnetic + declination,
+	// grid = true - convergence.
+	toOut := func(hole string, az float64, ref string, line int, date time.Time) float64 {
+		if ref == "" || ref == outRef {
+			return az
+		}
+		t := az
+		switch ref {
+		case csvio.RefMagnetic:
+			t += correction(hole, "declination", line, date)
+		case csvio.RefGrid:
+			t += correction(hole, "grid convergence", line, date)
+		}
+		if outRef == "grid" {
+			t -= correction(hole, "grid convergence", line, date)
+		}
+		return t
+	}
+	firstDate := map[string]time.Time{}
 	for _, c := range crows {
 		in.Collars = append(in.Collars, qa.Collar{HoleID: c.HoleID, East: c.Collar.East, North: c.Collar.North, Elevation: c.Collar.Elevation,
 			Azimuth: c.Collar.Azimuth, Dip: c.Collar.Dip, Depth: c.Collar.Depth, Line: c.Line})
-		k := corr{c.Declination, c.GridConvergence}
-		if math.IsNaN(k.decl) {
-			k.decl = decl
-		}
-		if math.IsNaN(k.conv) {
-			k.conv = conv
-		}
-		corrs[c.HoleID] = k
 	}
 
 	if f, err = open(surveys); err != nil {
@@ -257,34 +303,16 @@ func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl,
 	if err != nil {
 		return in, 0, err
 	}
-	warned := map[string]bool{}
 	for _, s := range srows {
-		az := s.Station.Azimuth
-		k := corrs[s.HoleID]
-		need := func(v float64, what string) float64 {
-			if math.IsNaN(v) {
-				if !warned[s.HoleID+what] {
-					warned[s.HoleID+what] = true
-					fmt.Fprintf(stderr, "corvane qa: %s line %d: hole %s needs a %s to bring %s azimuths to %s north; none given, taken as 0\n",
-						surveys, s.Line, s.HoleID, what, s.AzimuthRef, outRef)
-				}
-				return 0
-			}
-			return v
+		if _, ok := firstDate[s.HoleID]; !ok && !s.Date.IsZero() {
+			firstDate[s.HoleID] = s.Date
 		}
-		// true = magnetic + declination; grid = true - convergence.
-		switch {
-		case s.AzimuthRef == csvio.RefMagnetic && outRef == "grid":
-			az = az + need(k.decl, "declination") - need(k.conv, "grid convergence")
-		case s.AzimuthRef == csvio.RefMagnetic && outRef == "true":
-			az += need(k.decl, "declination")
-		case s.AzimuthRef == csvio.RefTrue && outRef == "grid":
-			az -= need(k.conv, "grid convergence")
-		case s.AzimuthRef == csvio.RefGrid && outRef == "true":
-			az += need(k.conv, "grid convergence")
-		}
-		in.Surveys = append(in.Surveys, qa.Station{HoleID: s.HoleID, Depth: s.Station.Depth, Azimuth: az, Dip: s.Station.Dip,
-			Magnetic: s.AzimuthRef == csvio.RefMagnetic, Line: s.Line})
+		in.Surveys = append(in.Surveys, qa.Station{HoleID: s.HoleID, Depth: s.Station.Depth, Azimuth: toOut(s.HoleID, s.Station.Azimuth, s.AzimuthRef, s.Line, s.Date),
+			Dip: s.Station.Dip, Magnetic: s.AzimuthRef == csvio.RefMagnetic, Line: s.Line})
+	}
+	for i := range in.Collars {
+		c := collarRow[in.Collars[i].HoleID]
+		in.Collars[i].Azimuth = toOut(c.HoleID, c.Collar.Azimuth, c.AzimuthRef, c.Line, firstDate[c.HoleID])
 	}
 
 	if f, err = open(runs); err != nil {

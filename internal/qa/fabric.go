@@ -96,7 +96,7 @@ func rotationChecks(h *holeData, conv coreangle.Convention, o Options) []Finding
 			var cm CircularMean
 			var excl int
 			cm, excl, buf = estimateRotation(samples[r], axis, o.FabricMisfit, buf)
-			e := &RotationEstimate{Offset: cm.Mean, SE: cm.SE, HalfWidth95: cm.HalfWidth95, Rbar: cm.Rbar, N: cm.N, Excluded: excl,
+			e := &RotationEstimate{Offset: cm.Mean, SE: finiteOr(cm.SE, -1), HalfWidth95: cm.HalfWidth95, Rbar: cm.Rbar, N: cm.N, Excluded: excl,
 				Reference: poleOf(axis), ReferenceN: ref.n, RefSource: src}
 			e.Flagged = cm.N >= o.MinRunCount && math.Abs(cm.Mean) > o.RotationThreshold && cm.Excludes0()
 			est[r] = e
@@ -158,4 +158,12 @@ func rotationChecks(h *holeData, conv coreangle.Convention, o Options) []Finding
 				used, total, o.PersistentType, minAxisAngle, minRefAlpha)})
 	}
 	return out
+}
+
+// finiteOr returns v, or def when v is not finite (JSON has no infinities).
+func finiteOr(v, def float64) float64 {
+	if math.IsNaN(v) || math.IsInf(v, 0) {
+		return def
+	}
+	return v
 }

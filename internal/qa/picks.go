@@ -217,7 +217,7 @@ func pickChecks(h *holeData, o Options) []Finding {
 		rp := &RunPicks{Misfit: misfitStats(runMis[r])}
 		if len(runOff[r]) > 0 {
 			cm := CircMean(runOff[r])
-			e := &RotationEstimate{Offset: cm.Mean, SE: cm.SE, HalfWidth95: cm.HalfWidth95, Rbar: cm.Rbar, N: cm.N, Excluded: runExcl[r],
+			e := &RotationEstimate{Offset: cm.Mean, SE: finiteOr(cm.SE, -1), HalfWidth95: cm.HalfWidth95, Rbar: cm.Rbar, N: cm.N, Excluded: runExcl[r],
 				ReferenceN: cm.N, RefSource: "picks"}
 			e.Flagged = cm.N >= o.MinRunCount && math.Abs(cm.Mean) > o.RotationThreshold && cm.Excludes0()
 			rp.Offset = e

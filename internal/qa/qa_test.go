@@ -1,6 +1,7 @@
 package qa
 
 import (
+	"encoding/json"
 	"math"
 	"math/rand/v2"
 	"strings"
@@ -178,8 +179,8 @@ func TestRunCleanHoleRaisesNoFlag(t *testing.T) {
 }
 
 // A faulty hole: two runs with mark errors of +35 and -25 deg, a shifted
-// survey shot, reference picks on a depth scale 0.8 shorter, a bad mismatch,
-// an unusable run, a logger who rounds to 5 deg, a duplicate row and a depth
+// survey shot, reference picks on a depth scale 0.8 shorter, a bad mismatch
+// on a run rated good (flag) and on one rated poor (warning), an unusable run, a logger who rounds to 5 deg, a duplicate row and a depth
 // past the end. QA finds each fault, and only those.
 func TestRunFindsInjectedFaults(t *testing.T) {
 	r := rand.New(rand.NewPCG(41, 42))
@@ -233,6 +234,8 @@ func TestRunFindsInjectedFaults(t *testing.T) {
 	// Runs: mismatch 25 deg at run 70; run 90 unusable.
 	big := 25.0
 	in.Runs[70].Mismatch = &big
+	in.Runs[71].Mismatch = &big // rated poor: a warning, not a flag
+	in.Runs[71].Confidence = "poor"
 	in.Runs[90].Confidence = "none"
 	// A duplicated row and a depth past the end.
 	dup := in.Measurements[5]
@@ -274,7 +277,7 @@ func TestRunFindsInjectedFaults(t *testing.T) {
 		CheckPickOffset:      {120},
 		CheckSurveyOutlier:   {150},
 		CheckMagneticZone:    {240},
-		CheckMismatch:        {210},
+		CheckMismatch:        {210, 213},
 		CheckUnusableRun:     {270},
 		CheckDuplicate:       {in.Measurements[5].Depth},
 		CheckPastFinalDepth:  {305},
@@ -305,6 +308,11 @@ func TestRunFindsInjectedFaults(t *testing.T) {
 					t.Errorf("unexpected %s at %v: %s", c, ds, f.Message)
 				}
 			}
+		}
+	}
+	for _, f := range rep.Findings {
+		if f.Check == CheckMismatch && (f.Depth == 213) != (f.Severity == SeverityWarning) {
+			t.Errorf("mismatch at %v: severity %s", f.Depth, f.Severity)
 		}
 	}
 	for _, d := range rep.Digits {
@@ -358,6 +366,9 @@ func TestRunCleanHolesOtherGeometries(t *testing.T) {
 		var in Input
 		synthHole{id: "G", az: c.az, dip: c.dip, flatten: 1, depth: 240, runLen: 3, perRun: 6, conv: c.conv}.build(t, r, &in)
 		rep := Run(in, Options{PersistentType: "bedding", Convention: c.conv})
+		if _, err := json.Marshal(rep); err != nil {
+			t.Errorf("%v/%v: report does not marshal: %v", c.az, c.dip, err)
+		}
 		note := false
 		for _, f := range rep.Findings {
 			if f.Severity != SeverityInfo {

@@ -88,10 +88,16 @@ func runChecks(c Collar, runs []OrientationRun, o Options, hr *HoleReport) []Fin
 				Message: fmt.Sprintf("run %.2f-%.2f ends %.2f past the final depth %.2f", r.From, r.To, r.To-c.Depth, c.Depth)})
 		}
 		if r.Mismatch != nil && math.Abs(*r.Mismatch) > o.MismatchTolerance {
-			out = append(out, Finding{Check: CheckMismatch, Severity: SeverityFlag, HoleID: c.HoleID,
+			// A mismatch the logger has already answered with a low rating
+			// is a warning; on a run still rated confident it is a flag.
+			sev, tail := SeverityWarning, fmt.Sprintf("; the run is rated %q, consistent with that", r.Confidence)
+			if cl == ClassConfident {
+				sev, tail = SeverityFlag, fmt.Sprintf(", yet the run is rated %q: one of the two marks is suspect", r.Confidence)
+			}
+			out = append(out, Finding{Check: CheckMismatch, Severity: sev, HoleID: c.HoleID,
 				Depth: r.From, Size: math.Abs(*r.Mismatch), Unit: "deg", Source: "runs", Line: r.Line, ID: r.ID,
-				Message: fmt.Sprintf("orientation marks disagree by %.1f deg across the run break at %.2f (tolerance %.1f deg): one of the two marks is suspect",
-					math.Abs(*r.Mismatch), r.From, o.MismatchTolerance)})
+				Message: fmt.Sprintf("orientation marks disagree by %.1f deg across the run break at %.2f (tolerance %.1f deg)%s",
+					math.Abs(*r.Mismatch), r.From, o.MismatchTolerance, tail)})
 		}
 	}
 	hr.Coverage = Coverage{

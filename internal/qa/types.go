@@ -155,7 +155,7 @@ type RotationEstimate struct {
 	// every logged beta of the run brings the run onto the reference. The
 	// mark itself is estimated to be off by -Offset.
 	Offset      float64 `json:"beta_offset"`
-	SE          float64 `json:"standard_error"` // degrees; circular standard error
+	SE          float64 `json:"standard_error"` // degrees; circular standard error, -1 when undefined
 	HalfWidth95 float64 `json:"half_width_95"`  // degrees
 	Rbar        float64 `json:"mean_resultant_length"`
 	N           int     `json:"n"`        // measurements the estimate rests on
