@@ -1,0 +1,117 @@
+// data.js: reads of a programme the views share: surveys, runs, hole paths,
+// live conversion, measurement lists. Everything derived comes from the server.
+
+import { get, getAll, request, query, ApiError } from "./api.js";
+
+const surveys = new Map();
+
+// survey returns the hole's survey set, or null when it has none.
+export async function survey(pid, holeId, fresh = false) {
+  const key = `${pid}/${holeId}`;
+  if (!fresh && surveys.has(key)) return surveys.get(key);
+  let s = null;
+  try {
+    const r = await request("GET", `/v1/projects/${pid}/holes/${holeId}/survey`);
+    s = { ...r.data, etag: r.etag };
+  } catch (e) {
+    if (!(e instanceof ApiError && e.status === 404)) throw e;
+  }
+  surveys.set(key, s);
+  return s;
+}
+
+export async function runs(pid, holeId) {
+  const r = await get(`/v1/projects/${pid}/holes/${holeId}/runs`);
+  return (r.items || []).sort((a, b) => a.from - b.from);
+}
+
+// conventions is the body part of a conversion that carries the project's
+// conventions, so the page converts exactly as the stored data are.
+export function conventions(project) {
+  return {
+    ref_line: project.ref_line,
+    beta_apex: project.beta_apex,
+    gamma_sense: project.gamma_sense,
+    length_unit: project.length_unit,
+    output_azimuth_ref: project.output_azimuth_ref,
+    declination: project.declination,
+    convergence: project.convergence,
+  };
+}
+
+function collarOf(hole) {
+  return {
+    hole_id: hole.name, easting: hole.easting, northing: hole.northing, elevation: hole.elevation,
+    azimuth: hole.azimuth, dip: hole.dip, final_depth: hole.final_depth,
+  };
+}
+
+function surveyOf(hole, s) {
+  if (!s || !s.stations || !s.stations.length) return [];
+  return [{ hole_id: hole.name, azimuth_ref: s.azimuth_ref, declination: s.declination, stations: s.stations }];
+}
+
+// convert asks the server to convert measurements of one hole without
+// storing anything.
+export async function convert(p, hole, s, measurements, signal) {
+  const body = {
+    conventions: conventions(p.project),
+    collars: [collarOf(hole)],
+    surveys: surveyOf(hole, s),
+    measurements: measurements.map((m) => ({ hole_id: hole.name, ...m })),
+  };
+  const r = await request("POST", "/v1/convert", { body, signal });
+  return r.data.results || [];
+}
+
+let pathRoute = null; // null: not tried yet; true/false: the server has it
+
+// holePath returns the desurveyed path of a hole as points
+// {depth, easting, northing, elevation}: from the path route when the server
+// has one, else by converting positions at regular depths (nothing stored).
+export async function holePath(p, hole, step) {
+  step = step || Math.max(2, hole.final_depth / 60);
+  if (pathRoute !== false) {
+    try {
+      const r = await get(`/v1/projects/${p.id}/holes/${hole.id}/path${query({ step })}`);
+      pathRoute = true;
+      return (r.items || r.points || []).filter((q) => Number.isFinite(q.easting));
+    } catch (e) {
+      if (!(e instanceof ApiError && (e.status === 404 || e.status === 405))) throw e;
+      pathRoute = false;
+    }
+  }
+  const s = await survey(p.id, hole.id);
+  const depths = [];
+  for (let d = 0; d < hole.final_depth; d += step) depths.push(d);
+  depths.push(hole.final_depth);
+  const res = await convert(p, hole, s, depths.map((depth) => ({ depth, alpha: 45, beta: 0 })));
+  return res
+    .filter((r) => r.derived && Number.isFinite(r.derived.easting))
+    .map((r) => ({ depth: r.depth, easting: r.derived.easting, northing: r.derived.northing, elevation: r.derived.elevation }));
+}
+
+// measurements lists a project's measurements over a filter (all pages).
+export function measurements(pid, filter = {}) {
+  return getAll(`/v1/projects/${pid}/measurements`, filter);
+}
+
+let qaRoute = null;
+
+// qaReport returns the QA report of the programme (or one hole), or null when
+// the server offers no QA.
+export async function qaReport(pid, holeId) {
+  if (qaRoute === false) return null;
+  try {
+    const r = await get(holeId ? `/v1/projects/${pid}/holes/${holeId}/qa` : `/v1/projects/${pid}/qa`);
+    qaRoute = true;
+    return r;
+  } catch (e) {
+    if (e instanceof ApiError && (e.status === 404 || e.status === 405) && (qaRoute === null || !holeId)) {
+      // a 404 on the programme route means the server has no QA
+      if (!holeId) qaRoute = false;
+      return null;
+    }
+    throw e;
+  }
+}

@@ -1,0 +1,94 @@
+// qa.js: the QA report of the programme and of each hole, every flag linked
+// to the measurement, run or survey station it concerns. QA changes nothing:
+// it points at data worth a second look.
+
+import { h, fmt, clear, notAvailable, problemText } from "./dom.js";
+import { qaReport } from "./data.js";
+
+const SEVERITY = { flag: "Flag", warning: "Warning", info: "Note" };
+const ORDER = { flag: 0, warning: 1, info: 2 };
+
+// linkFor returns where a finding points: the measurement or run by its store
+// id, the survey station by depth, else the hole.
+export function linkFor(pid, holeId, f) {
+  const base = `#/p/${pid}/hole/${holeId}`;
+  switch (f.source) {
+    case "structures":
+      return f.id ? { href: `${base}?m=${f.id}`, text: `measurement ${f.id}` } : { href: base, text: `measurements near ${fmt(f.depth, 2)}` };
+    case "surveys":
+      return { href: `${base}?station=${f.depth}`, text: `survey station at ${fmt(f.depth, 1)}` };
+    case "runs":
+      return { href: base, text: f.id ? `run ${f.id}` : `run at ${fmt(f.depth, 1)}` };
+    default:
+      return { href: base, text: "hole" };
+  }
+}
+
+export async function qaView(ctx) {
+  const { p, host, params } = ctx;
+  const unit = p.unit;
+  host.append(h("h1", {}, "Quality checks"));
+  const onlyHole = params.get("hole") || "";
+  const holeSel = h("select", { id: "qa-hole" }, h("option", { value: "" }, "whole programme"), p.holes.map((x) => h("option", { value: x.name, selected: x.name === onlyHole }, x.name)));
+  holeSel.addEventListener("change", () => ctx.go(`#/p/${p.id}/qa` + (holeSel.value ? `?hole=${encodeURIComponent(holeSel.value)}` : "")));
+  host.append(h("div", { class: "title-row" }, h("label", { for: "qa-hole" }, "Show"), holeSel));
+  const body = h("div", {}, h("p", { class: "loading" }, "Running the checks\u2026"));
+  host.append(body);
+
+  let rep;
+  try {
+    const ho = p.holes.find((x) => x.name === onlyHole);
+    rep = await qaReport(p.id, ho ? ho.id : undefined);
+  } catch (e) {
+    clear(body).append(h("p", { class: "msg bad" }, "QA could not be read: " + problemText(e)));
+    return;
+  }
+  if (!ctx.isCurrent()) return;
+  if (!rep) {
+    clear(body).append(notAvailable("QA reports"));
+    return;
+  }
+  const byName = new Map(p.holes.map((x) => [x.name, x]));
+  const findings = (rep.findings || []).filter((f) => !onlyHole || !f.hole_id || f.hole_id === onlyHole);
+  const sum = rep.summary || {};
+  const sev = sum.by_severity || {};
+  const cov = sum.coverage || {};
+  clear(body).append(
+    h("p", { class: "caution", id: "qa-caution" }, rep.caution || "QA flags guide judgement; they do not replace it."),
+    h("section", { class: "card" }, h("h2", {}, onlyHole ? `Summary: ${onlyHole}` : "Summary"),
+      h("dl", { class: "summary" },
+        h("dt", {}, "Holes"), h("dd", {}, sum.holes ?? "\u2013"),
+        h("dt", {}, "Measurements"), h("dd", {}, sum.measurements ?? "\u2013"),
+        h("dt", {}, "Runs"), h("dd", {}, sum.runs ?? "\u2013"),
+        h("dt", {}, "Oriented core"), h("dd", {}, cov.oriented_share != null ? `${Math.round(cov.oriented_share * 100)}% (confident ${Math.round((cov.confident_share || 0) * 100)}%)` : "\u2013"),
+        h("dt", {}, "Flags"), h("dd", { id: "qa-count-flag" }, sev.flag ?? 0),
+        h("dt", {}, "Warnings"), h("dd", {}, sev.warning ?? 0),
+        h("dt", {}, "Notes"), h("dd", {}, sev.info ?? 0),
+        h("dt", {}, "Runs flagged for mark rotation"), h("dd", {}, sum.runs_flagged ?? 0))));
+
+  const groups = new Map();
+  for (const f of findings) {
+    const k = f.hole_id || "";
+    if (!groups.has(k)) groups.set(k, []);
+    groups.get(k).push(f);
+  }
+  const keys = [...groups.keys()].sort((a, b) => (a === "" ? -1 : b === "" ? 1 : a.localeCompare(b, undefined, { numeric: true })));
+  if (!keys.length) body.append(h("p", { class: "ok" }, "No findings."));
+  for (const k of keys) {
+    const list = groups.get(k).sort((a, b) => (ORDER[a.severity] ?? 3) - (ORDER[b.severity] ?? 3) || a.depth - b.depth);
+    const ho = byName.get(k);
+    body.append(h("section", { class: "card qa-hole", "data-hole": k },
+      h("h2", {}, k ? (ho ? h("a", { href: `#/p/${p.id}/hole/${ho.id}` }, `Hole ${k}`) : `Hole ${k}`) : "Programme-wide"),
+      h("div", { class: "scroll" }, h("table", { class: "data findings" },
+        h("thead", {}, h("tr", {}, ["Severity", `Depth (${unit})`, "Check", "Finding", "Concerns"].map((t) => h("th", { scope: "col" }, t)))),
+        h("tbody", {}, list.map((f) => {
+          const link = ho ? linkFor(p.id, ho.id, f) : null;
+          return h("tr", { class: `sev-${f.severity}` },
+            h("td", {}, h("span", { class: `badge ${f.severity}` }, SEVERITY[f.severity] || f.severity)),
+            h("td", { class: "num" }, k ? fmt(f.depth, 2) + (f.depth_to ? `\u2013${fmt(f.depth_to, 2)}` : "") : ""),
+            h("td", {}, h("code", {}, f.check)),
+            h("td", {}, f.message, f.logged_by ? ` (${f.logged_by})` : ""),
+            h("td", {}, link ? h("a", { href: link.href, class: "concerns" }, link.text) : ""));
+        }))))));
+  }
+}
