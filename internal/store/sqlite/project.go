@@ -21,6 +21,9 @@ const (
 	gamma_sense = ?, length_unit = ?, output_azimuth_ref = ?, declination = ?, convergence = ?,
 	version = version + 1, updated_at = ? WHERE id = ? AND version = ? RETURNING version`
 	deleteProject = `DELETE FROM projects WHERE id = ? AND version = ?`
+	// Measurements go first: they refer to both holes and the vocabulary,
+	// which the project's deletion cascades to in no guaranteed order.
+	deleteProjectMeasurements = `DELETE FROM measurements WHERE project_id = ? AND EXISTS (SELECT 1 FROM projects WHERE id = ? AND version = ?)`
 )
 
 type scanner interface{ Scan(dest ...any) error }
@@ -90,6 +93,10 @@ func (s *Store) UpdateProject(ctx context.Context, p *domain.Project, ifVersion 
 // DeleteProject deletes the project and, by cascade, everything in it.
 func (s *Store) DeleteProject(ctx context.Context, id, ifVersion int64) error {
 	return s.write(ctx, func(q querier) error {
+		_, err := q.ExecContext(ctx, deleteProjectMeasurements, id, id, ifVersion)
+		if err != nil {
+			return translate(err)
+		}
 		return deleteVersioned(ctx, q, deleteProject, "projects", "project", id, ifVersion)
 	})
 }

@@ -1,0 +1,258 @@
+// Package postgres implements the [domain.Store] contract on PostgreSQL
+// through a pgx/v5 connection pool, for deployments shared by a whole team.
+// Bulk measurement loads use COPY into a staging table.
+package postgres
+
+import (
+	"context"
+	"errors"
+	"fmt"
+	"net/url"
+	"strings"
+	"time"
+
+	"github.com/golang-migrate/migrate/v4"
+	_ "github.com/golang-migrate/migrate/v4/database/pgx/v5" // registers the pgx5 scheme
+	"github.com/golang-migrate/migrate/v4/source/iofs"
+	"github.com/jackc/pgx/v5"
+	"github.com/jackc/pgx/v5/pgconn"
+	"github.com/jackc/pgx/v5/pgxpool"
+
+	"corvane/internal/domain"
+	"corvane/migrations"
+)
+
+// querier is what the pool and a transaction have in common.
+type querier interface {
+	Exec(ctx context.Context, sql string, args ...any) (pgconn.CommandTag, error)
+	Query(ctx context.Context, sql string, args ...any) (pgx.Rows, error)
+	QueryRow(ctx context.Context, sql string, args ...any) pgx.Row
+	CopyFrom(ctx context.Context, table pgx.Identifier, cols []string, src pgx.CopyFromSource) (int64, error)
+}
+
+// Store is the PostgreSQL store. It is safe for concurrent use; one bound to
+// a transaction (inside [Store.InTx]) is not.
+type Store struct {
+	pool *pgxpool.Pool
+	tx   pgx.Tx
+}
+
+var _ domain.Store = (*Store)(nil)
+
+// Open connects a pool to the database at url (postgres://...). It does not
+// migrate; call [Migrate] first.
+func Open(ctx context.Context, url string) (*Store, error) {
+	cfg, err := pgxpool.ParseConfig(url)
+	if err != nil {
+		return nil, fmt.Errorf("database URL: %w", err)
+	}
+	pool, err := pgxpool.NewWithConfig(ctx, cfg)
+	if err != nil {
+		return nil, fmt.Errorf("connecting to PostgreSQL: %w", err)
+	}
+	pctx, cancel := context.WithTimeout(ctx, 10*time.Second)
+	defer cancel()
+	if err := pool.Ping(pctx); err != nil {
+		pool.Close()
+		return nil, fmt.Errorf("connecting to PostgreSQL: %w", err)
+	}
+	return &Store{pool: pool}, nil
+}
+
+// migrateURL turns a postgres:// URL into the pgx5:// URL of migrate's driver.
+func migrateURL(u string) string {
+	for _, p := range []string{"postgresql://", "postgres://"} {
+		if strings.HasPrefix(u, p) {
+			return "pgx5://" + strings.TrimPrefix(u, p)
+		}
+	}
+	return u
+}
+
+func newMigrate(dbURL string) (*migrate.Migrate, error) {
+	src, err := iofs.New(migrations.Postgres, "postgres")
+	if err != nil {
+		return nil, err
+	}
+	// migrate opens (and on Close closes) its own connection from the URL.
+	m, err := migrate.NewWithSourceInstance("iofs", src, migrateURL(dbURL))
+	if err != nil {
+		return nil, fmt.Errorf("migrating %s: %w", Redact(dbURL), err)
+	}
+	return m, nil
+}
+
+// Migrate moves the schema: steps > 0 applies that many up migrations, steps
+// < 0 rolls that many back, steps == 0 applies all up migrations.
+func Migrate(dbURL string, steps int) error {
+	m, err := newMigrate(dbURL)
+	if err != nil {
+		return err
+	}
+	defer m.Close()
+	if steps == 0 {
+		err = m.Up()
+	} else {
+		err = m.Steps(steps)
+	}
+	if errors.Is(err, migrate.ErrNoChange) {
+		return nil
+	}
+	return err
+}
+
+// MigrateDownAll rolls back every migration.
+func MigrateDownAll(dbURL string) error {
+	m, err := newMigrate(dbURL)
+	if err != nil {
+		return err
+	}
+	defer m.Close()
+	if err := m.Down(); err != nil && !errors.Is(err, migrate.ErrNoChange) {
+		return err
+	}
+	return nil
+}
+
+// Version reports the schema version and whether a failed migration left it
+// dirty; 0 when no migration has run.
+func Version(dbURL string) (version uint, dirty bool, err error) {
+	m, err := newMigrate(dbURL)
+	if err != nil {
+		return 0, false, err
+	}
+	defer m.Close()
+	v, d, err := m.Version()
+	if errors.Is(err, migrate.ErrNilVersion) {
+		return 0, false, nil
+	}
+	return v, d, err
+}
+
+// Redact returns u with any password replaced by "xxxxx".
+func Redact(u string) string {
+	p, err := url.Parse(u)
+	if err != nil {
+		return "(unparsable database URL)"
+	}
+	return p.Redacted()
+}
+
+// Ping checks the database answers.
+func (s *Store) Ping(ctx context.Context) error { return s.pool.Ping(ctx) }
+
+// Close closes the pool. Closing a transaction-bound Store does nothing.
+func (s *Store) Close() error {
+	if s.tx == nil {
+		s.pool.Close()
+	}
+	return nil
+}
+
+// InTx runs fn in one transaction (read committed) with a Store bound to it.
+func (s *Store) InTx(ctx context.Context, fn func(ctx context.Context, tx domain.Store) error) error {
+	if s.tx != nil {
+		return fn(ctx, s)
+	}
+	tx, err := s.pool.Begin(ctx)
+	if err != nil {
+		return translate(err)
+	}
+	if err := fn(ctx, &Store{pool: s.pool, tx: tx}); err != nil {
+		tx.Rollback(context.WithoutCancel(ctx))
+		return err
+	}
+	return translate(tx.Commit(ctx))
+}
+
+func (s *Store) read() querier {
+	if s.tx != nil {
+		return s.tx
+	}
+	return s.pool
+}
+
+// write runs fn in the bound transaction or in a new one.
+func (s *Store) write(ctx context.Context, fn func(q querier) error) error {
+	if s.tx != nil {
+		return fn(s.tx)
+	}
+	tx, err := s.pool.Begin(ctx)
+	if err != nil {
+		return translate(err)
+	}
+	if err := fn(tx); err != nil {
+		tx.Rollback(context.WithoutCancel(ctx))
+		return err
+	}
+	return translate(tx.Commit(ctx))
+}
+
+// translate turns driver errors into *domain.Error once.
+func translate(err error) error {
+	if err == nil {
+		return nil
+	}
+	var de *domain.Error
+	if errors.As(err, &de) {
+		return err
+	}
+	if errors.Is(err, pgx.ErrNoRows) {
+		return domain.Errorf(domain.NotFound, "not found")
+	}
+	var pe *pgconn.PgError
+	if errors.As(err, &pe) {
+		switch pe.Code {
+		case "23505":
+			return domain.Errorf(domain.Conflict, "already exists: %w", err)
+		case "23503":
+			return domain.Errorf(domain.Conflict, "refers to a missing row or is still referenced: %w", err)
+		case "23514", "23502", "22P02", "22003":
+			return domain.Errorf(domain.Invalid, "breaks a rule of the schema: %w", err)
+		}
+	}
+	return domain.Errorf(domain.Internal, "postgres: %w", err)
+}
+
+func notFound(entity string, key any) error {
+	return domain.Errorf(domain.NotFound, "%s %v not found", entity, key)
+}
+
+func one(err error, entity string, key any) error {
+	if errors.Is(err, pgx.ErrNoRows) {
+		return notFound(entity, key)
+	}
+	return translate(err)
+}
+
+func versionGone(ctx context.Context, q querier, table, entity string, id any, ifVersion int64) error {
+	var v int64
+	err := q.QueryRow(ctx, "SELECT version FROM "+table+" WHERE "+keyCol(table)+" = $1", id).Scan(&v)
+	if err != nil {
+		return one(err, entity, id)
+	}
+	return domain.Errorf(domain.PreconditionFailed, "%s %v is at version %d, not %d: reload and retry", entity, id, v, ifVersion)
+}
+
+func keyCol(table string) string {
+	if table == "survey_sets" {
+		return "hole_id"
+	}
+	return "id"
+}
+
+func now() time.Time { return time.Now().UTC().Truncate(time.Microsecond) }
+
+func nullFloat(p *float64) any {
+	if p == nil {
+		return nil
+	}
+	return *p
+}
+
+func derefID(p *int64) int64 {
+	if p == nil {
+		return domain.AllProjects
+	}
+	return *p
+}

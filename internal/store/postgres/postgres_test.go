@@ -1,0 +1,45 @@
+package postgres_test
+
+import (
+	"os"
+	"testing"
+
+	"corvane/internal/domain"
+	"corvane/internal/pgtest"
+	"corvane/internal/store/postgres"
+	"corvane/internal/store/storetest"
+)
+
+func TestMain(m *testing.M) {
+	os.Exit(pgtest.Main(m, func(url string) error { return postgres.Migrate(url, 0) }))
+}
+
+func TestConformance(t *testing.T) {
+	storetest.Run(t, func(t *testing.T) domain.Store {
+		s, err := postgres.Open(t.Context(), pgtest.DB(t))
+		if err != nil {
+			t.Fatal(err)
+		}
+		return s
+	})
+}
+
+func TestMigrateUpDownVersion(t *testing.T) {
+	url := pgtest.DB(t) // already migrated from the template
+	v, dirty, err := postgres.Version(url)
+	if err != nil || v != 1 || dirty {
+		t.Fatalf("template copy: version %d dirty %v err %v", v, dirty, err)
+	}
+	if err := postgres.MigrateDownAll(url); err != nil {
+		t.Fatal(err)
+	}
+	if v, _, _ = postgres.Version(url); v != 0 {
+		t.Fatalf("after down: version %d", v)
+	}
+	if err := postgres.Migrate(url, 0); err != nil {
+		t.Fatal(err)
+	}
+	if v, _, _ = postgres.Version(url); v != 1 {
+		t.Fatalf("after up: version %d", v)
+	}
+}
