@@ -204,6 +204,11 @@ func writeFileAtomic(path string, write func(io.Writer) error) error {
 		return err
 	}
 	tmp := f.Name()
+	if err := f.Chmod(0o644); err != nil {
+		f.Close()
+		os.Remove(tmp)
+		return err
+	}
 	if err := write(f); err != nil {
 		f.Close()
 		os.Remove(tmp)
