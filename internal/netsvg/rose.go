@@ -78,11 +78,9 @@ func WriteRose(w io.Writer, r Rose) error {
 	s.printf("<title>%s</title>\n", esc(orDefault(r.Title, "Rose diagram")))
 	s.printf(`<rect width="100%%" height="100%%" fill="#ffffff"/>` + "\n")
 	// ring values: round counts
+	// the largest petal reaches the outer circle; rings at round counts below it
 	ringStep := niceStep(maxC / 4)
 	rmax := maxC
-	if ringStep > 0 {
-		rmax = math.Ceil(maxC/ringStep) * ringStep
-	}
 	scale := func(c float64) float64 {
 		if rmax <= 0 {
 			return 0
@@ -90,7 +88,7 @@ func WriteRose(w io.Writer, r Rose) error {
 		return netR * math.Sqrt(c/rmax)
 	}
 	s.printf(`<g id="rings" fill="none" stroke="#9a9a9a" stroke-width="0.6" stroke-dasharray="3 3">` + "\n")
-	for c := ringStep; ringStep > 0 && c <= rmax+1e-9; c += ringStep {
+	for c := ringStep; ringStep > 0 && c <= 0.9*rmax; c += ringStep {
 		s.printf(`<circle cx="%.2f" cy="%.2f" r="%.2f"/>`+"\n", netCX, netCY, scale(c))
 	}
 	s.printf("</g>\n")
@@ -111,7 +109,7 @@ func WriteRose(w io.Writer, r Rose) error {
 	s.printf("</g>\n")
 	// ring labels along the east-north-east radius
 	s.printf(`<g font-size="9.5" fill="#444">` + "\n")
-	for c := ringStep; ringStep > 0 && c <= rmax+1e-9; c += ringStep {
+	for c := ringStep; ringStep > 0 && c <= 0.9*rmax; c += ringStep {
 		a := geom.Rad(75)
 		s.printf(`<text x="%.2f" y="%.2f" stroke="#fff" stroke-width="2.5" paint-order="stroke">%s</text>`+"\n",
 			netCX+scale(c)*math.Sin(a)+2, netCY-scale(c)*math.Cos(a)-2, fmtNum(c))
@@ -157,6 +155,7 @@ func WriteRose(w io.Writer, r Rose) error {
 	txt(11, "", fmt.Sprintf("%d values, %s\u00b0 bins", len(r.Azimuths), fmtNum(bw)))
 	txt(11, "", "petal area proportional to count")
 	txt(11, "", fmt.Sprintf("largest petal %s", fmtNum(math.Round(maxC*100)/100)))
+	txt(11, "", "outer circle: largest petal")
 	txt(11, "", "dashed rings: counts as labelled")
 	for _, n := range r.Notes {
 		txt(11, "", n)
