@@ -411,3 +411,59 @@ func TestRunAdjacentRotatedRuns(t *testing.T) {
 		}
 	}
 }
+
+// Coverage and the per-measurement checks on a hand-built near-vertical
+// hole: lengths by hand, one finding per stretch outside the runs.
+func TestRunCoverageAndMeasurementChecks(t *testing.T) {
+	in := Input{
+		Collars: []Collar{{HoleID: "V1", Azimuth: 90, Dip: -88, Depth: 100}},
+		Surveys: []Station{{HoleID: "V1", Depth: 50, Azimuth: 90, Dip: -88}, {HoleID: "V1", Depth: 100, Azimuth: 90, Dip: -88}},
+		Runs: []OrientationRun{
+			{HoleID: "V1", From: 0, To: 30, Confidence: "good"},
+			{HoleID: "V1", From: 30, To: 40, Confidence: "none"},
+			{HoleID: "V1", From: 50, To: 100, Confidence: "poor"},
+			{HoleID: "V1", From: 90, To: 95, Confidence: "Fair"}, // overlaps
+		},
+		Measurements: []Measurement{
+			{HoleID: "V1", Depth: 10, Alpha: 40, Beta: 100, Line: 2},
+			{HoleID: "V1", Depth: 35, Alpha: 40, Beta: 100, Line: 3},
+			{HoleID: "V1", Depth: 45, Alpha: 40, Beta: 100, Line: 4},
+			{HoleID: "V1", Depth: 46, Alpha: 86, Beta: 100, Line: 5},
+			{HoleID: "V1", Depth: 60, Alpha: 40, Beta: 100, Line: 6},
+			{HoleID: "V1", Depth: 60, Alpha: 40, Beta: 100, Line: 7},
+			{HoleID: "V1", Depth: 105, Alpha: 40, Beta: 100, Line: 8},
+			{HoleID: "V1", Depth: 20, Alpha: 95, Beta: 100, Line: 9},
+			{HoleID: "NOPE", Depth: 20, Alpha: 45, Beta: 100, Line: 10},
+		},
+	}
+	rep := Run(in, Options{})
+	hr := holeReport(t, rep, "V1")
+	want := Coverage{Length: 100, Oriented: 90, Confident: 35, Unusable: 10, OrientedShare: 0.9, ConfidentShare: 0.35}
+	if hr.Coverage != want {
+		t.Errorf("coverage %+v, want %+v", hr.Coverage, want)
+	}
+	got := map[string][]Finding{}
+	for _, f := range rep.Findings {
+		got[f.Check] = append(got[f.Check], f)
+	}
+	one := func(check string, depth, size float64) {
+		t.Helper()
+		fs := got[check]
+		if len(fs) != 1 || fs[0].Depth != depth || fs[0].Size != size {
+			t.Errorf("%s: %+v, want one at %v of size %v", check, fs, depth, size)
+		}
+	}
+	one(CheckOutsideRun, 45, 2)
+	one(CheckUnusableRun, 30, 1)
+	one(CheckNearVertical, 10, 6) // at 10, 35, 45, 46, 60 and 60: the hole is 2 deg off vertical
+	one(CheckHighAlpha, 46, 86)
+	one(CheckPastFinalDepth, 105, 5)
+	one(CheckDuplicate, 60, 0)
+	one(CheckRunOverlap, 90, 5)
+	if fs := got[CheckMeasurementInvalid]; len(fs) != 1 || fs[0].Line != 9 || !strings.Contains(fs[0].Message, "alpha") {
+		t.Errorf("invalid: %+v", fs)
+	}
+	if fs := got[CheckUnknownHole]; len(fs) != 1 || fs[0].HoleID != "NOPE" || !strings.Contains(fs[0].Message, "1 structures rows") {
+		t.Errorf("unknown hole: %+v", fs)
+	}
+}
