@@ -33,7 +33,8 @@ func writeQAFiles(t *testing.T, dir string) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	var runs, st strings.Builder
+	var runs, st, picks strings.Builder
+	picks.WriteString("hole_id,depth,dip,dip_direction\n")
 	runs.WriteString("hole_id,from,to,confidence,mismatch\n")
 	st.WriteString("hole_id,depth,alpha,beta,type,logged_by\n")
 	plane := geom.Plane{Dip: 50, DipDirection: 40}
@@ -49,10 +50,14 @@ func writeQAFiles(t *testing.T, dir string) {
 				b = geom.NormAzimuth(b + 40)
 			}
 			fmt.Fprintf(&st, "KW1,%.2f,%.1f,%.1f,bedding,ann\n", d, a, b)
+			if k >= 4 && k < 12 && j%2 == 0 { // picks on a depth scale 0.5 shorter
+				fmt.Fprintf(&picks, "KW1,%.2f,%.1f,%.1f\n", d-0.5, pl.Dip, pl.DipDirection)
+			}
 		}
 	}
 	st.WriteString("KW1,59.5,abc,10,joint,ann\n")
 	w("runs.csv", runs.String())
+	w("picks.csv", picks.String())
 	w("structures.csv", st.String())
 }
 
@@ -61,7 +66,8 @@ func TestQACommand(t *testing.T) {
 	writeQAFiles(t, dir)
 	args := func(extra ...string) []string {
 		return append([]string{"qa", "--collars", filepath.Join(dir, "collars.csv"), "--surveys", filepath.Join(dir, "surveys.csv"),
-			"--structures", filepath.Join(dir, "structures.csv"), "--runs", filepath.Join(dir, "runs.csv"), "--persistent", "bedding"}, extra...)
+			"--structures", filepath.Join(dir, "structures.csv"), "--runs", filepath.Join(dir, "runs.csv"), "--persistent", "bedding",
+			"--picks", filepath.Join(dir, "picks.csv"), "--magnetic-zone", "KW1:25-35"}, extra...)
 	}
 	var out, errb bytes.Buffer
 	code := Main(context.Background(), args(), nil, &out, &errb, func(string) string { return "" })
@@ -83,6 +89,9 @@ func TestQACommand(t *testing.T) {
 	}
 	if len(rot) != 1 || rot[0].Depth != 24 || rot[0].Size < 36 || rot[0].Size > 44 {
 		t.Errorf("mark rotation findings %+v, want one at 24 of about 40 deg", rot)
+	}
+	if p := rep.Holes[0].Picks; p == nil || p.Matched != 24 || p.Shift < 0.49 || p.Shift > 0.51 {
+		t.Errorf("picks %+v, want 24 matched with a shift of 0.5", p)
 	}
 	if len(bad) != 1 || bad[0].Line != 122 || !strings.Contains(bad[0].Message, "alpha") {
 		t.Errorf("bad-row findings %+v, want line 122 naming alpha", bad)
