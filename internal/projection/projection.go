@@ -226,6 +226,17 @@ func (k Kind) SmallCircle(a geom.Vec3, half float64, n int) (parts [][]Point, cl
 		}
 		cur = append(cur, p)
 	}
-	flush()
+	// The loop ends back at pts[start], where the first part began: the last
+	// run is only [crossing, pts[start]]; put its crossing at the head of the
+	// first part instead of leaving a separate stub.
+	if len(parts) > 0 && len(cur) == 2 {
+		x := cur[0]
+		if curUp {
+			x = x.Neg()
+		}
+		parts[0] = append([]Point{k.ProjectDirected(x)}, parts[0]...)
+	} else {
+		flush()
+	}
 	return parts, false
 }

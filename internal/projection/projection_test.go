@@ -143,3 +143,24 @@ func TestOnePercentCap(t *testing.T) {
 		t.Errorf("equal-area radius of the 1%% cap = %v, want 0.1", r)
 	}
 }
+
+// TestSmallCircleParts: a cone crossing the horizontal once on each side
+// gives exactly two parts (one about each end of the axis), each starting
+// and ending on the primitive circle.
+func TestSmallCircleParts(t *testing.T) {
+	for _, k := range []Kind{EqualArea, EqualAngle} {
+		for _, n := range []int{36, 90, 181} {
+			parts, closed := k.SmallCircle(geom.FromTrendPlunge(75, 4), 12, n)
+			if closed || len(parts) != 2 {
+				t.Fatalf("%v n=%d: closed=%v, %d parts", k, n, closed, len(parts))
+			}
+			for _, part := range parts {
+				for _, end := range []Point{part[0], part[len(part)-1]} {
+					if r := math.Hypot(end.X, end.Y); math.Abs(r-1) > 1e-9 {
+						t.Errorf("%v n=%d: part ends at radius %v", k, n, r)
+					}
+				}
+			}
+		}
+	}
+}
