@@ -565,6 +565,9 @@ func runStats(_ context.Context, env *Env, args []string) int {
 			CapSource: "default 2.924 = 1/cos 70: Brady & Brown (2004), citing Goodman (1976), correct only for delta <= 70",
 			AppliesTo: "planes; lines are unweighted",
 		}
+		if w.cap != dirstat.DefaultTerzaghiCap {
+			rep.Weighting.CapSource = "given with --weighting; the default would be 2.924 = 1/cos 70 (Brady & Brown 2004, citing Goodman 1976)"
+		}
 	}
 	for _, kind := range []string{"planes", "lines"} {
 		if c.of != "both" && c.of != kind {
@@ -594,6 +597,7 @@ func runStats(_ context.Context, env *Env, args []string) int {
 	}
 	enc := json.NewEncoder(out)
 	enc.SetIndent("", "  ")
+	enc.SetEscapeHTML(false)
 	if err := enc.Encode(rep); err != nil {
 		closeOut()
 		return fail(err)
