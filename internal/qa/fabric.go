@@ -120,8 +120,10 @@ func rotationChecks(h *holeData, conv coreangle.Convention, o Options) []Finding
 		var before, after []float64
 		for _, s := range samples[r] {
 			rot := rotateAbout(s.n, s.h, e.Offset)
-			e.Before = append(e.Before, poleOf(s.n))
-			e.After = append(e.After, poleOf(rot))
+			if e.Flagged {
+				e.Before = append(e.Before, poleOf(s.n))
+				e.After = append(e.After, poleOf(rot))
+			}
 			if _, res, ok := betaOffset(s.h, s.n, axis); ok && res <= o.FabricMisfit {
 				before = append(before, geom.AxialAngle(s.n, axis))
 				after = append(after, geom.AxialAngle(rot, axis))

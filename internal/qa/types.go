@@ -171,7 +171,8 @@ type RotationEstimate struct {
 	MisfitAfter  float64 `json:"median_misfit_after"`
 	Flagged      bool    `json:"flagged"`
 	// Before and After are the run's persistent-fabric poles as logged and as
-	// they would be with the suggested correction.
+	// they would be with the suggested correction; given for flagged runs
+	// only, to keep reports of large programmes small.
 	Before []Pole `json:"poles_before,omitempty"`
 	After  []Pole `json:"poles_after,omitempty"`
 }

@@ -97,6 +97,7 @@ func Write(w io.Writer, r qa.Report, title string) error {
 	fmt.Fprintf(&b, "<div class=\"caution\" role=\"note\"><strong>Read this first</strong>%s</div>", esc(r.Caution))
 
 	writeSummary(&b, r)
+	writeIndex(&b, r)
 	writeLegend(&b)
 	for i := range r.Holes {
 		writeHole(&b, &r.Holes[i], r)
@@ -139,6 +140,26 @@ func writeSummary(b *strings.Builder, r qa.Report) {
 		}
 		b.WriteString("</table></details>")
 	}
+}
+
+// writeIndex lists the holes with their coverage and counts, linked to
+// their sections.
+func writeIndex(b *strings.Builder, r qa.Report) {
+	if len(r.Holes) == 0 {
+		return
+	}
+	b.WriteString("<details open><summary>Holes</summary><table><tr><th>hole</th><th>depth</th><th>oriented</th><th>with confidence</th><th>measurements</th><th>runs with a suspect mark</th><th>flags</th><th>warnings</th></tr>")
+	for _, h := range r.Holes {
+		suspect := 0
+		for _, run := range h.Runs {
+			if run.Rotation != nil && run.Rotation.Flagged {
+				suspect++
+			}
+		}
+		fmt.Fprintf(b, "<tr><td><a href=\"#hole-%s\">%s</a></td><td class=\"n\">%.1f</td><td class=\"n\">%s</td><td class=\"n\">%s</td><td class=\"n\">%d</td><td class=\"n\">%d</td><td class=\"n\">%d</td><td class=\"n\">%d</td></tr>",
+			esc(h.HoleID), esc(h.HoleID), h.Depth, pct(h.Coverage.OrientedShare), pct(h.Coverage.ConfidentShare), h.Measurements, suspect, h.Flags, h.Warnings)
+	}
+	b.WriteString("</table></details>")
 }
 
 func swatch(fill, stroke string) string {

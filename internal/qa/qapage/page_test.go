@@ -55,7 +55,7 @@ func TestWritePage(t *testing.T) {
 			t.Errorf("page contains %q", bad)
 		}
 	}
-	for _, want := range []string{"do not replace it", "KW-01 &lt;test&gt;", "run rotated &amp; &lt;odd&gt;", "as logged", "suggested", "round-number preference", "Reference picks"} {
+	for _, want := range []string{"do not replace it", "KW-01 &lt;test&gt;", "run rotated &amp; &lt;odd&gt;", "as logged", "suggested", "round-number preference", "Reference picks", `href="#hole-KW-01 &lt;test&gt;"`} {
 		if !strings.Contains(page, want) {
 			t.Errorf("page lacks %q", want)
 		}
