@@ -3,8 +3,6 @@ package qa
 import (
 	"math"
 
-	"gonum.org/v1/gonum/mat"
-
 	"corvane/internal/geom"
 )
 
@@ -103,25 +101,45 @@ func (t *tensor) addTensor(u tensor) {
 // eigenvalue of the orientation tensor (the mean axis of axial data,
 // Scheidegger 1965; Woodcock 1977) and that eigenvalue divided by the count
 // (1 when all axes agree, 1/3 for uniform axes). ok is false for an empty
-// tensor or a failed decomposition.
+// tensor.
+//
+// The eigenvector is found by power iteration on the 3x3 tensor, started
+// from its largest column, which converges at the rate S2/S1 per step: fast
+// for any fabric worth using as a reference, and without allocation (the
+// tests compare it with gonum's symmetric eigendecomposition).
 func (t tensor) principal() (axis geom.Vec3, s1 float64, ok bool) {
 	if t.n == 0 {
 		return geom.Vec3{}, 0, false
 	}
-	m := mat.NewSymDense(3, []float64{
-		t.a[0], t.a[1], t.a[2],
-		t.a[1], t.a[3], t.a[4],
-		t.a[2], t.a[4], t.a[5],
-	})
-	var es mat.EigenSym
-	if !es.Factorize(m, true) {
+	a := t.a
+	mul := func(v geom.Vec3) geom.Vec3 {
+		return geom.Vec3{
+			X: a[0]*v.X + a[1]*v.Y + a[2]*v.Z,
+			Y: a[1]*v.X + a[3]*v.Y + a[4]*v.Z,
+			Z: a[2]*v.X + a[4]*v.Y + a[5]*v.Z,
+		}
+	}
+	cols := [3]geom.Vec3{{X: a[0], Y: a[1], Z: a[2]}, {X: a[1], Y: a[3], Z: a[4]}, {X: a[2], Y: a[4], Z: a[5]}}
+	v := cols[0]
+	for _, c := range cols[1:] {
+		if c.Norm() > v.Norm() {
+			v = c
+		}
+	}
+	if v.Norm() == 0 {
 		return geom.Vec3{}, 0, false
 	}
-	vals := es.Values(nil) // ascending
-	var vecs mat.Dense
-	es.VectorsTo(&vecs)
-	v := geom.Vec3{X: vecs.At(0, 2), Y: vecs.At(1, 2), Z: vecs.At(2, 2)}.Unit().Lower()
-	return v, vals[2] / float64(t.n), true
+	v = v.Unit()
+	for i := 0; i < 500; i++ {
+		w := mul(v).Unit()
+		d := w.Sub(v).Norm()
+		v = w
+		if d < 1e-13 {
+			break
+		}
+	}
+	lambda := v.Dot(mul(v))
+	return v.Lower(), lambda / float64(t.n), true
 }
 
 // offsetSample is one measurement's contribution to a run's rotation estimate.
