@@ -109,7 +109,7 @@ func TestIntegratesToCount(t *testing.T) {
 		if e.brute {
 			t.Fatal("expected the indexed path")
 		}
-		near(t, m.String()+" integral N=5000", integrate(e, 450, 900), 5000, 0.005*5000)
+		near(t, m.String()+" integral N=5000", integrate(e, 300, 600), 5000, 0.005*5000)
 	}
 }
 
