@@ -82,7 +82,10 @@ type Hole struct {
 	Elevation float64 `json:"elevation"`
 	// Azimuth and Dip of the collar; dip negative below horizontal. The collar
 	// direction acts as the survey station at depth 0 when the survey has none.
-	Azimuth    float64   `json:"azimuth"`
+	Azimuth float64 `json:"azimuth"`
+	// AzimuthRef is the north the collar azimuth is given against: "grid"
+	// (the default, matching the collar coordinates), "true" or "magnetic".
+	AzimuthRef string    `json:"azimuth_ref"`
 	Dip        float64   `json:"dip"`
 	FinalDepth float64   `json:"final_depth"`
 	CRS        string    `json:"crs"`      // coordinate system label, e.g. "EPSG:32750"; free text

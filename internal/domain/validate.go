@@ -111,6 +111,12 @@ func (h *Hole) Normalize() error {
 	if h.Name == "" || len(h.Name) > 64 {
 		return FieldErr("name", "hole name must be 1 to 64 characters, got %q", h.Name)
 	}
+	if h.AzimuthRef == "" {
+		h.AzimuthRef = AzimuthGrid
+	}
+	if e := checkOneOf("azimuth_ref", h.AzimuthRef, AzimuthGrid, AzimuthTrue, AzimuthMagnetic); e != nil {
+		return e
+	}
 	for _, e := range []*Error{
 		checkFinite("easting", h.East),
 		checkFinite("northing", h.North),

@@ -124,24 +124,28 @@ type holeModel struct {
 }
 
 // newHoleModel builds the path of h from its survey set ss (nil when the
-// hole has none). The collar azimuth is taken in the survey's reference
-// when there is a survey and in the output reference otherwise.
+// hole has none). Station azimuths are in the set's reference, the collar
+// azimuth in the hole's own; a magnetic one uses the set's declination when
+// it has one and the project's otherwise.
 func newHoleModel(c Conventions, h domain.Hole, ss *domain.SurveySet, runs []domain.Run) *holeModel {
 	m := &holeModel{name: h.Name, conv: c, core: c.core(), runs: runs, depth: h.FinalDepth}
-	ref, decl := c.OutputAzimuthRef, c.Declination
+	decl := c.Declination
 	var stations []desurvey.Station
 	if ss != nil {
-		ref = ss.AzimuthRef
 		if ss.Declination != nil {
 			decl = *ss.Declination
 		}
 		stations = make([]desurvey.Station, len(ss.Stations))
 		for i, st := range ss.Stations {
-			stations[i] = desurvey.Station{Depth: st.Depth, Azimuth: toOutput(st.Azimuth, ref, c.OutputAzimuthRef, decl, c.Convergence), Dip: st.Dip}
+			stations[i] = desurvey.Station{Depth: st.Depth, Azimuth: toOutput(st.Azimuth, ss.AzimuthRef, c.OutputAzimuthRef, decl, c.Convergence), Dip: st.Dip}
 		}
 	}
+	href := h.AzimuthRef
+	if href == "" {
+		href = domain.AzimuthGrid
+	}
 	col := desurvey.Collar{East: h.East, North: h.North, Elevation: h.Elevation,
-		Azimuth: toOutput(h.Azimuth, ref, c.OutputAzimuthRef, decl, c.Convergence), Dip: h.Dip, Depth: h.FinalDepth}
+		Azimuth: toOutput(h.Azimuth, href, c.OutputAzimuthRef, decl, c.Convergence), Dip: h.Dip, Depth: h.FinalDepth}
 	opt := desurvey.Options{Method: desurvey.MinimumCurvature}
 	if c.LengthUnit == domain.UnitFoot {
 		opt.Unit = desurvey.Feet

@@ -223,7 +223,7 @@ func importCollars(ctx context.Context, st domain.Store, p domain.Project, body 
 	ps := &problems{file: res.File}
 	for _, r := range rows {
 		h := domain.Hole{ProjectID: p.ID, Name: r.HoleID, East: r.Collar.East, North: r.Collar.North, Elevation: r.Collar.Elevation,
-			Azimuth: r.Collar.Azimuth, Dip: r.Collar.Dip, FinalDepth: r.Collar.Depth, CRS: r.CRS}
+			Azimuth: r.Collar.Azimuth, AzimuthRef: r.AzimuthRef, Dip: r.Collar.Dip, FinalDepth: r.Collar.Depth, CRS: r.CRS}
 		if err := h.Normalize(); err != nil {
 			var e *domain.Error
 			errors.As(err, &e)
@@ -305,6 +305,7 @@ func importSurveys(ctx context.Context, st domain.Store, p domain.Project, body 
 			ps.add(s.line, "", "hole %s: %v", id, err)
 			continue
 		}
+		fillDeclination(&s.ss, s.hole)
 		cur, err := st.GetSurvey(ctx, s.ss.HoleID)
 		var v int64
 		switch {

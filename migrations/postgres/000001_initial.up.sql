@@ -30,6 +30,7 @@ CREATE TABLE holes (
     northing    DOUBLE PRECISION NOT NULL,
     elevation   DOUBLE PRECISION NOT NULL,
     azimuth     DOUBLE PRECISION NOT NULL,
+    azimuth_ref TEXT NOT NULL DEFAULT 'grid' CHECK (azimuth_ref IN ('true', 'grid', 'magnetic')),
     dip         DOUBLE PRECISION NOT NULL,
     final_depth DOUBLE PRECISION NOT NULL,
     crs         TEXT NOT NULL DEFAULT '',

@@ -31,6 +31,7 @@ CREATE TABLE holes (
     northing    REAL NOT NULL,
     elevation   REAL NOT NULL,
     azimuth     REAL NOT NULL,
+    azimuth_ref TEXT NOT NULL DEFAULT 'grid' CHECK (azimuth_ref IN ('true', 'grid', 'magnetic')),
     dip         REAL NOT NULL,
     final_depth REAL NOT NULL,
     crs         TEXT NOT NULL DEFAULT '',

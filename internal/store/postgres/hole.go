@@ -9,26 +9,26 @@ import (
 	"corvane/internal/domain"
 )
 
-const holeCols = `id, project_id, name, easting, northing, elevation, azimuth, dip, final_depth,
+const holeCols = `id, project_id, name, easting, northing, elevation, azimuth, azimuth_ref, dip, final_depth,
 	crs, started, finished, version, created_at, updated_at`
 
 const (
-	insertHole = `INSERT INTO holes (project_id, name, easting, northing, elevation, azimuth, dip,
+	insertHole = `INSERT INTO holes (project_id, name, easting, northing, elevation, azimuth, azimuth_ref, dip,
 	final_depth, crs, started, finished, version, created_at, updated_at)
-	VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, 1, $12, $13) RETURNING id`
+	VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, 1, $13, $14) RETURNING id`
 	selectHole       = `SELECT ` + holeCols + ` FROM holes WHERE id = $1`
 	selectHoleByName = `SELECT ` + holeCols + ` FROM holes WHERE project_id = $1 AND name = $2`
 	listHoles        = `SELECT ` + holeCols + ` FROM holes WHERE project_id = $1 AND id > $2 ORDER BY id LIMIT $3`
 	updateHole       = `UPDATE holes SET name = $1, easting = $2, northing = $3, elevation = $4, azimuth = $5,
-	dip = $6, final_depth = $7, crs = $8, started = $9, finished = $10, version = version + 1, updated_at = $11
-	WHERE id = $12 AND version = $13 RETURNING version`
+	azimuth_ref = $6, dip = $7, final_depth = $8, crs = $9, started = $10, finished = $11, version = version + 1, updated_at = $12
+	WHERE id = $13 AND version = $14 RETURNING version`
 	deleteHole = `DELETE FROM holes WHERE id = $1 AND version = $2`
 )
 
 func scanHole(r scanner) (domain.Hole, error) {
 	var h domain.Hole
 	var c, u time.Time
-	err := r.Scan(&h.ID, &h.ProjectID, &h.Name, &h.East, &h.North, &h.Elevation, &h.Azimuth, &h.Dip,
+	err := r.Scan(&h.ID, &h.ProjectID, &h.Name, &h.East, &h.North, &h.Elevation, &h.Azimuth, &h.AzimuthRef, &h.Dip,
 		&h.FinalDepth, &h.CRS, &h.Started, &h.Finished, &h.Version, &c, &u)
 	h.CreatedAt, h.UpdatedAt = c.UTC(), u.UTC()
 	return h, err
@@ -39,7 +39,7 @@ func (s *Store) CreateHole(ctx context.Context, h *domain.Hole) error {
 	t := now()
 	return s.write(ctx, func(q querier) error {
 		err := q.QueryRow(ctx, insertHole, h.ProjectID, h.Name, h.East, h.North, h.Elevation, h.Azimuth,
-			h.Dip, h.FinalDepth, h.CRS, h.Started, h.Finished, t, t).Scan(&h.ID)
+			h.AzimuthRef, h.Dip, h.FinalDepth, h.CRS, h.Started, h.Finished, t, t).Scan(&h.ID)
 		if err != nil {
 			return translate(err)
 		}
@@ -74,7 +74,7 @@ func (s *Store) ListHoles(ctx context.Context, projectID int64, page domain.Page
 func (s *Store) UpdateHole(ctx context.Context, h *domain.Hole, ifVersion int64) error {
 	t := now()
 	return s.write(ctx, func(q querier) error {
-		err := q.QueryRow(ctx, updateHole, h.Name, h.East, h.North, h.Elevation, h.Azimuth, h.Dip,
+		err := q.QueryRow(ctx, updateHole, h.Name, h.East, h.North, h.Elevation, h.Azimuth, h.AzimuthRef, h.Dip,
 			h.FinalDepth, h.CRS, h.Started, h.Finished, t, h.ID, ifVersion).Scan(&h.Version)
 		if err == pgx.ErrNoRows {
 			return versionGone(ctx, q, "holes", "hole", h.ID, ifVersion)

@@ -96,7 +96,7 @@ func newProject(t *testing.T, s domain.Store, name string) domain.Project {
 
 func newHole(t *testing.T, s domain.Store, projectID int64, name string) domain.Hole {
 	t.Helper()
-	h := domain.Hole{ProjectID: projectID, Name: name, East: 500100.5, North: 7100200.25, Elevation: 412.5,
+	h := domain.Hole{AzimuthRef: "true", ProjectID: projectID, Name: name, East: 500100.5, North: 7100200.25, Elevation: 412.5,
 		Azimuth: 45, Dip: -60, FinalDepth: 300, CRS: "EPSG:32750", Started: "2026-03-01"}
 	must(t, s.CreateHole(ctx(t), &h))
 	return h
@@ -195,10 +195,10 @@ func testHoles(t *testing.T, s domain.Store) {
 	diff(t, "GetHoleByName", h, got)
 	_, err = s.GetHoleByName(c, q.ID, "TM001")
 	wantKind(t, err, domain.NotFound, "hole in other project")
-	dup := domain.Hole{ProjectID: p.ID, Name: "TM001", Dip: -90}
+	dup := domain.Hole{AzimuthRef: "grid", ProjectID: p.ID, Name: "TM001", Dip: -90}
 	wantKind(t, s.CreateHole(c, &dup), domain.Conflict, "duplicate hole name")
 	newHole(t, s, q.ID, "TM001") // the same name in another project is fine
-	orphan := domain.Hole{ProjectID: 424242, Name: "X", Dip: -90}
+	orphan := domain.Hole{AzimuthRef: "grid", ProjectID: 424242, Name: "X", Dip: -90}
 	wantKind(t, s.CreateHole(c, &orphan), domain.Conflict, "hole of missing project")
 
 	h.Dip, h.Finished = -55.5, "2026-03-09"
@@ -421,7 +421,7 @@ func testTransactions(t *testing.T, s domain.Store) {
 	p := newProject(t, s, "tx")
 	boom := errors.New("boom")
 	err := s.InTx(c, func(c context.Context, tx domain.Store) error {
-		h := domain.Hole{ProjectID: p.ID, Name: "ROLLED", Dip: -90}
+		h := domain.Hole{AzimuthRef: "grid", ProjectID: p.ID, Name: "ROLLED", Dip: -90}
 		if err := tx.CreateHole(c, &h); err != nil {
 			return err
 		}
@@ -443,7 +443,7 @@ func testTransactions(t *testing.T, s domain.Store) {
 	_, err = s.GetHoleByName(c, p.ID, "ROLLED")
 	wantKind(t, err, domain.NotFound, "hole of a rolled-back transaction")
 	must(t, s.InTx(c, func(c context.Context, tx domain.Store) error {
-		h := domain.Hole{ProjectID: p.ID, Name: "KEPT", Dip: -90}
+		h := domain.Hole{AzimuthRef: "grid", ProjectID: p.ID, Name: "KEPT", Dip: -90}
 		return tx.CreateHole(c, &h)
 	}))
 	if _, err := s.GetHoleByName(c, p.ID, "KEPT"); err != nil {
