@@ -34,7 +34,10 @@ func TestNormalizeRejects(t *testing.T) {
 		{"hole dip", func() error { h := Hole{Name: "A", Dip: -91}; return h.Normalize() }, "dip"},
 		{"hole azimuth", func() error { h := Hole{Name: "A", Azimuth: 361}; return h.Normalize() }, "azimuth"},
 		{"hole name", func() error { h := Hole{}; return h.Normalize() }, "name"},
-		{"hole dates", func() error { h := Hole{Name: "A", Started: "2026-02-01", Finished: "2026-01-01"}; return h.Normalize() }, "finished"},
+		{"hole dates", func() error {
+			h := Hole{Name: "A", Started: "2026-02-01", Finished: "2026-01-01"}
+			return h.Normalize()
+		}, "finished"},
 		{"alpha", func() error { m := Measurement{Alpha: 91, TypeCode: "BD"}; return m.Normalize() }, "alpha"},
 		{"gamma", func() error { m := Measurement{Alpha: 10, Gamma: &g, TypeCode: "BD"}; return m.Normalize() }, "gamma"},
 		{"type", func() error { m := Measurement{Alpha: 10}; return m.Normalize() }, "type"},
