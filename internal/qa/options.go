@@ -56,11 +56,17 @@ type Options struct {
 	// ft) above which an interval is flagged. Default 3 (common practice).
 	DoglegThreshold float64 `json:"dogleg_threshold"`
 	// OutlierFactor and OutlierFloor: a station is flagged when its
-	// leave-one-out residual exceeds the hole's median residual by more than
-	// OutlierFactor times the robust scatter (1.4826 x MAD) and is above
-	// OutlierFloor degrees. Defaults 5 and 1.
+	// leave-one-out residual exceeds OutlierFactor times the median residual
+	// of the hole's other stations (its neighbours left out) and is above
+	// OutlierFloor degrees. Defaults 4 (about 4.7 standard deviations for
+	// normal shot errors, whose residuals are Rayleigh distributed) and 1.
 	OutlierFactor float64 `json:"outlier_factor"`
 	OutlierFloor  float64 `json:"outlier_floor"`
+	// NominalResidual, degrees, stands in for the median residual of a hole
+	// with too few stations to show its own (fewer than three besides the
+	// station and its neighbours). Default 0.5 (a typical single-shot
+	// precision, from memory).
+	NominalResidual float64 `json:"nominal_residual"`
 	// GapThreshold: a gap between stations (or from the collar to the first
 	// station) longer than this is flagged. Default 60 (twice the usual 30 m
 	// survey interval, common practice).
@@ -128,8 +134,9 @@ func (o Options) withDefaults() Options {
 	def(&o.MaxDepthShift, 3)
 	def(&o.ShiftStep, 0.01)
 	def(&o.DoglegThreshold, 3)
-	def(&o.OutlierFactor, 5)
+	def(&o.OutlierFactor, 4)
 	def(&o.OutlierFloor, 1)
+	def(&o.NominalResidual, 0.5)
 	def(&o.GapThreshold, 60)
 	def(&o.ShortTolerance, 30)
 	def(&o.CollarTolerance, 5)

@@ -126,6 +126,16 @@ func surveyChecks(c Collar, stations []Station, zones []MagneticZone, o Options,
 	}
 
 	// Leave-one-out: each station against the arc through its neighbours.
+	// The residuals are angles, positive, roughly Rayleigh distributed for
+	// normal shot errors (median 1.18 sigma), so the hole's own scatter is
+	// measured by the median residual, which stays stable for the few
+	// stations of a hole where a median absolute deviation would not; a
+	// station is flagged beyond OutlierFactor times that median (4: about
+	// 4.7 sigma). A shot off the path also lifts its two neighbours'
+	// residuals (to about half its own), so each station is judged against
+	// the median of the other stations, its neighbours left out; with fewer
+	// than three such stations the hole cannot show its own scatter and
+	// o.NominalResidual stands in for that median.
 	res, pred := looResiduals(depths, dirs)
 	var inner []float64
 	for _, r := range res {
@@ -133,21 +143,32 @@ func surveyChecks(c Collar, stations []Station, zones []MagneticZone, o Options,
 			inner = append(inner, r)
 		}
 	}
-	scale, med := robustScale(inner)
+	scaleAll, medAll := robustScale(inner)
 	if len(inner) > 0 {
-		hr.ScatterMAD = scale
+		hr.ScatterMAD = scaleAll
+		hr.MedianResidual = medAll
 	}
+	var others []float64
 	for i, r := range res {
 		hr.Stations[i].Residual = r
 		if r < 0 || len(inner) < 3 {
 			continue
 		}
-		limit := med + o.OutlierFactor*scale
+		others = others[:0]
+		for j, q := range res {
+			if q >= 0 && (j < i-1 || j > i+1) {
+				others = append(others, q)
+			}
+		}
+		ref := o.NominalResidual
+		if len(others) >= 3 {
+			ref = median(others)
+		}
+		limit := o.OutlierFactor * ref
 		if r <= limit || r <= o.OutlierFloor {
 			continue
 		}
-		// A shot off the path also pulls its neighbours' predictions; name
-		// only the station that stands out most locally.
+		// Name only the station that stands out most locally.
 		if (i > 0 && res[i-1] > r) || (i+1 < n && res[i+1] > r) {
 			continue
 		}
@@ -155,8 +176,8 @@ func surveyChecks(c Collar, stations []Station, zones []MagneticZone, o Options,
 		da := wrap180(stations[i].Azimuth - pa)
 		out = append(out, Finding{Check: CheckSurveyOutlier, Severity: SeverityFlag, HoleID: c.HoleID,
 			Depth: depths[i], Size: r, Unit: "deg", Source: "surveys", Line: stations[i].Line,
-			Message: fmt.Sprintf("station at %.1f is %.2f deg off the path through its neighbours (azimuth %+.2f, dip %+.2f deg); the hole's own scatter is %.2f deg (median %.2f + %.0f x %.2f robust scale)",
-				depths[i], r, da, stations[i].Dip-pd, med, med, o.OutlierFactor, scale)})
+			Message: fmt.Sprintf("station at %.1f is %.2f deg off the path through its neighbours (azimuth %+.2f, dip %+.2f deg); the other stations' median residual is %.2f deg, the limit %.2f deg",
+				depths[i], r, da, stations[i].Dip-pd, ref, math.Max(limit, o.OutlierFloor))})
 	}
 
 	// Gaps, from the collar to the first station and between stations.

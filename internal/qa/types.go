@@ -296,10 +296,12 @@ type HoleReport struct {
 	Stations     []StationReport `json:"stations"`
 	// ScatterMAD is the hole's robust scatter of leave-one-out residuals
 	// (1.4826 x median absolute deviation, degrees).
-	ScatterMAD float64    `json:"survey_scatter"`
-	Picks      *HolePicks `json:"picks,omitempty"`
-	Flags      int        `json:"flags"`
-	Warnings   int        `json:"warnings"`
+	ScatterMAD float64 `json:"survey_scatter"`
+	// MedianResidual is the median leave-one-out residual (degrees).
+	MedianResidual float64    `json:"survey_median_residual"`
+	Picks          *HolePicks `json:"picks,omitempty"`
+	Flags          int        `json:"flags"`
+	Warnings       int        `json:"warnings"`
 }
 
 // Summary is the programme-wide picture.
