@@ -54,7 +54,31 @@ func (r *Result) Pole() geom.Line {
 	if math.IsNaN(r.Plane.DipDirection) {
 		return geom.Line{Trend: math.NaN(), Plunge: 90 - r.Plane.Dip}
 	}
-	return r.Plane.Pole()
+	return geom.Line{Trend: fold(r.Plane.DipDirection + 180), Plunge: 90 - r.Plane.Dip}
+}
+
+// fold brings an azimuth in [-360, 720) into [0, 360) without math.Mod; it
+// agrees with geom.NormAzimuth there.
+func fold(a float64) float64 {
+	if a >= 360 {
+		a -= 360
+	} else if a < 0 {
+		a += 360
+		if a >= 360 {
+			a = 0
+		}
+	}
+	return a
+}
+
+// azimuthDip is geom.Vec3.AzimuthDip for a unit vector, without math.Mod.
+func azimuthDip(v geom.Vec3) (az, dip float64) {
+	h := math.Sqrt(v.X*v.X + v.Y*v.Y)
+	dip = geom.Deg(math.Atan2(v.Z, h))
+	if h == 0 {
+		return 0, dip
+	}
+	return fold(geom.Deg(math.Atan2(v.X, v.Y))), dip
 }
 
 // Orient converts one measurement. Errors are *domain.Error of kind Invalid
@@ -90,7 +114,7 @@ func (hs *Holes) orient(h *Hole, m *Measurement) (Result, error) {
 	}
 	c := hs.opt.Convention
 	r := Result{Hole: h, Point: pt, TrueThickness: math.NaN()}
-	r.HoleAzimuth, r.HoleDip = pt.Dir.AzimuthDip()
+	r.HoleAzimuth, r.HoleDip = azimuthDip(pt.Dir)
 	r.Plane, r.Warn = coreangle.Plane(pt.Dir, m.Alpha, m.Beta, c)
 	if m.HasGamma {
 		r.Line, _ = coreangle.Line(pt.Dir, m.Alpha, m.Beta, m.Gamma, c)
@@ -189,58 +213,61 @@ func (hs *Holes) Convert(ctx context.Context, r io.Reader, w io.Writer) (Summary
 	cw.Strings(sr.Header.Names)
 	cw.Strings(outCols)
 	cw.EndRow()
-	outRef := hs.opt.Output.String()
+	// Reading and parsing run in their own goroutine, a batch of rows ahead
+	// of the conversion and writing; a few batches circulate, so memory stays
+	// bounded.
+	batches := readAhead(sr)
+	defer batches.stop()
+	var tail []byte // scratch for rows whose corrections vary with depth
 	var last *Hole
 	var m Measurement
-	for {
-		row, err := sr.Next()
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
+	for b := range batches.full {
+		if err := ctx.Err(); err != nil {
 			return sum, err
 		}
-		if sum.Rows&4095 == 0 {
-			if err := ctx.Err(); err != nil {
-				return sum, err
+		for i := range b.rows {
+			row := &b.rows[i]
+			sum.Rows++
+			writeRecord(cw, row.Record, len(sr.Header.Names))
+			if row.Err != nil {
+				sum.BadRows++
+				writeEmpty(cw, len(outCols)-1)
+				cw.String(row.Err.Error())
+				cw.EndRow()
+				continue
 			}
-		}
-		sum.Rows++
-		writeRecord(cw, row.Record, len(sr.Header.Names))
-		if row.Err != nil {
-			sum.BadRows++
-			writeEmpty(cw, len(outCols)-1)
-			cw.String(row.Err.Error())
-			cw.EndRow()
-			continue
-		}
-		if last == nil || last.ID != row.HoleID {
-			last = hs.holes[row.HoleID]
-		}
-		m = Measurement{HoleID: row.HoleID, Depth: row.Depth, Alpha: row.Alpha, Beta: row.Beta,
-			Gamma: row.Gamma, HasGamma: row.HasGamma, Thickness: row.Thickness, HasThickness: row.HasThickness}
-		res, err := hs.orient(last, &m)
-		if err != nil {
-			sum.BadRows++
-			writeEmpty(cw, len(outCols)-1)
-			var de *domain.Error
-			errors.As(err, &de)
-			col := de.Loc.Column
-			if i := sr.Header.Index(col); i >= 0 {
-				col = sr.Header.Names[i]
+			if last == nil || last.ID != row.HoleID {
+				last = hs.holes[row.HoleID]
 			}
-			cw.String(de.At(domain.Location{File: file, Line: row.Line, Column: col}).Error())
+			m = Measurement{HoleID: row.HoleID, Depth: row.Depth, Alpha: row.Alpha, Beta: row.Beta,
+				Gamma: row.Gamma, HasGamma: row.HasGamma, Thickness: row.Thickness, HasThickness: row.HasThickness}
+			res, err := hs.orient(last, &m)
+			if err != nil {
+				sum.BadRows++
+				writeEmpty(cw, len(outCols)-1)
+				var de *domain.Error
+				errors.As(err, &de)
+				col := de.Loc.Column
+				if i := sr.Header.Index(col); i >= 0 {
+					col = sr.Header.Names[i]
+				}
+				cw.String(de.At(domain.Location{File: file, Line: row.Line, Column: col}).Error())
+				cw.EndRow()
+				continue
+			}
+			if res.Warn != 0 || res.Hole.Caution != "" {
+				sum.WarnRows++
+			}
+			if res.Point.Extrapolated {
+				sum.Extrapols++
+			}
+			tail = writeResult(cw, &res, thick, tail)
 			cw.EndRow()
-			continue
 		}
-		if res.Warn != 0 || res.Hole.Caution != "" {
-			sum.WarnRows++
+		if b.err != nil {
+			return sum, b.err
 		}
-		if res.Point.Extrapolated {
-			sum.Extrapols++
-		}
-		writeResult(cw, &res, thick, outRef)
-		cw.EndRow()
+		batches.free <- b
 	}
 	if err := cw.Flush(); err != nil {
 		return sum, fmt.Errorf("writing the output: %w", err)
@@ -264,7 +291,7 @@ func writeEmpty(cw *csvio.Writer, n int) {
 	}
 }
 
-func writeResult(cw *csvio.Writer, r *Result, thick bool, outRef string) {
+func writeResult(cw *csvio.Writer, r *Result, thick bool, scratch []byte) []byte {
 	cw.Float(r.HoleAzimuth, angleDecimals)
 	cw.Float(r.HoleDip, angleDecimals)
 	cw.Float(r.Point.Pos.X, lengthDecimals)
@@ -275,7 +302,7 @@ func writeResult(cw *csvio.Writer, r *Result, thick bool, outRef string) {
 	if math.IsNaN(r.Plane.DipDirection) {
 		cw.Empty()
 	} else {
-		cw.Float(r.Plane.Strike(), angleDecimals)
+		cw.Float(fold(r.Plane.DipDirection-90), angleDecimals)
 	}
 	if r.HasLine {
 		cw.Float(r.Line.Trend, angleDecimals)
@@ -298,11 +325,85 @@ func writeResult(cw *csvio.Writer, r *Result, thick bool, outRef string) {
 	if thick {
 		cw.Float(r.TrueThickness, lengthDecimals)
 	}
-	cw.String(outRef)
-	d := h.Declination(r.Point.Depth)
-	cw.Float(d.Value, correctionDecimals)
-	cw.String(string(d.Source))
-	cw.Float(h.Convergence.Value, correctionDecimals)
-	cw.String(string(h.Convergence.Source))
+	if h.tail != nil {
+		cw.Raw(h.tail)
+	} else {
+		scratch = h.appendTail(scratch[:0], r.Hole.out, h.Declination(r.Point.Depth))
+		cw.Raw(scratch)
+	}
 	cw.Empty() // error
+	return scratch
 }
+
+// batchRows is the number of rows read ahead in one batch.
+const batchRows = 512
+
+// batch is a run of parsed rows; Record slices point into fields.
+type batch struct {
+	rows   []csvio.StructureRow
+	fields []string
+	spans  []int
+	err    error // the read error that ended the input, if any
+}
+
+type pipe struct {
+	full chan *batch
+	free chan *batch
+	done chan struct{}
+}
+
+// readAhead starts a goroutine that fills batches from sr. The consumer
+// ranges over full, returns each batch to free, and calls stop when done.
+func readAhead(sr *csvio.StructureReader) *pipe {
+	const inFlight = 4
+	p := &pipe{full: make(chan *batch, inFlight), free: make(chan *batch, inFlight), done: make(chan struct{})}
+	for i := 0; i < inFlight; i++ {
+		p.free <- &batch{}
+	}
+	go func() {
+		defer close(p.full)
+		for {
+			var b *batch
+			select {
+			case b = <-p.free:
+			case <-p.done:
+				return
+			}
+			b.rows, b.fields, b.spans, b.err = b.rows[:0], b.fields[:0], b.spans[:0], nil
+			end := false
+			for len(b.rows) < batchRows {
+				row, err := sr.Next()
+				if err == io.EOF {
+					end = true
+					break
+				}
+				if err != nil {
+					b.err, end = err, true
+					break
+				}
+				b.spans = append(b.spans, len(b.fields))
+				b.fields = append(b.fields, row.Record...)
+				b.rows = append(b.rows, *row)
+			}
+			for i := range b.rows {
+				to := len(b.fields)
+				if i+1 < len(b.spans) {
+					to = b.spans[i+1]
+				}
+				b.rows[i].Record = b.fields[b.spans[i]:to:to]
+			}
+			select {
+			case p.full <- b:
+			case <-p.done:
+				return
+			}
+			if end {
+				return
+			}
+		}
+	}()
+	return p
+}
+
+// stop ends the reading goroutine (after its current row).
+func (p *pipe) stop() { close(p.done) }

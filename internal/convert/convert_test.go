@@ -392,7 +392,7 @@ func genHoles(t testing.TB, n int) *Holes {
 }
 
 // Streaming: the live heap at the end of the input does not grow with the number
-// of rows (20,000 vs 200,000 rows).
+// of rows (10,000 vs 100,000 rows).
 func TestConvertMemoryFlat(t *testing.T) {
 	if testing.Short() {
 		t.Skip("short")
@@ -406,9 +406,9 @@ func TestConvertMemoryFlat(t *testing.T) {
 		}
 		return g.heap
 	}
-	small, large := heap(20000), heap(200000)
+	small, large := heap(10000), heap(100000)
 	if large > small+1<<20 {
-		t.Fatalf("live heap grows with rows: %d bytes at 20k rows, %d at 200k", small, large)
+		t.Fatalf("live heap grows with rows: %d bytes at 10k rows, %d at 100k", small, large)
 	}
 }
 
@@ -441,5 +441,40 @@ func TestOrient(t *testing.T) {
 	}
 	if _, err := ParseReference("north"); err == nil {
 		t.Fatal("bad reference accepted")
+	}
+}
+
+// The fast helpers agree with package geom.
+func TestFastHelpersMatchGeom(t *testing.T) {
+	r := rand.New(rand.NewPCG(30, 31))
+	for i := 0; i < 100000; i++ {
+		a := r.Float64()*1080 - 360
+		if a >= 720 {
+			continue
+		}
+		if fold(a) != geom.NormAzimuth(a) && !near(fold(a), geom.NormAzimuth(a), 1e-12) {
+			t.Fatalf("fold(%v) = %v, NormAzimuth %v", a, fold(a), geom.NormAzimuth(a))
+		}
+		v := geom.Vec3{X: r.NormFloat64(), Y: r.NormFloat64(), Z: r.NormFloat64()}.Unit()
+		az1, d1 := azimuthDip(v)
+		az2, d2 := v.AzimuthDip()
+		if !near(az1, az2, 1e-12) || !near(d1, d2, 1e-12) {
+			t.Fatalf("azimuthDip(%v) = %v %v, geom %v %v", v, az1, d1, az2, d2)
+		}
+		p := geom.Plane{Dip: r.Float64() * 90, DipDirection: r.Float64() * 360}
+		res := Result{Plane: p}
+		if pl, want := res.Pole(), p.Pole(); !near(pl.Trend, want.Trend, 1e-12) || pl.Plunge != want.Plunge {
+			t.Fatalf("pole %v, geom %v", pl, want)
+		}
+		if !near(fold(p.DipDirection-90), p.Strike(), 1e-12) {
+			t.Fatal("strike")
+		}
+	}
+	for _, v := range []geom.Vec3{{Z: -1}, {Z: 1}, {X: 1}, {Y: -1}} {
+		az1, d1 := azimuthDip(v)
+		az2, d2 := v.AzimuthDip()
+		if az1 != az2 || d1 != d2 {
+			t.Fatalf("%v: %v %v vs %v %v", v, az1, d1, az2, d2)
+		}
 	}
 }

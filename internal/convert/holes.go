@@ -117,7 +117,11 @@ type Hole struct {
 	// Caution is a warning about the hole's corrections (e.g. near a
 	// magnetic pole), "" when none.
 	Caution string
-	decl    []declAt // declination by station depth, sorted; one entry when constant
+	decl    []declAt  // declination by station depth, sorted; one entry when constant
+	out     Reference // the output reference
+	// tail is the formatted reference and correction columns when they are
+	// the same on every row of the hole, nil otherwise.
+	tail []byte
 }
 
 type declAt struct {
@@ -207,6 +211,7 @@ func Build(crows []csvio.CollarRow, srows []csvio.SurveyRow, opt Options) (*Hole
 			problems = append(problems, bad)
 			continue
 		}
+		h.tail = h.formatTail(opt.Output)
 		hs.holes[h.ID] = h
 		hs.order = append(hs.order, h)
 	}
@@ -217,6 +222,30 @@ func Build(crows []csvio.CollarRow, srows []csvio.SurveyRow, opt Options) (*Hole
 		return nil, &domain.Error{Kind: domain.Invalid, Msg: fmt.Sprintf("%d problems in the collars and surveys, the first at %s: %s", len(problems), problems[0].Loc, problems[0].Msg), Problems: problems}
 	}
 	return hs, nil
+}
+
+// formatTail formats the columns azimuth_reference, declination,
+// declination_source, grid_convergence, convergence_source when they do not
+// vary with depth.
+func (h *Hole) formatTail(out Reference) []byte {
+	for _, d := range h.decl {
+		if d.c != h.decl[0].c && !(math.IsNaN(d.c.Value) && math.IsNaN(h.decl[0].c.Value)) {
+			return nil
+		}
+	}
+	return h.appendTail(nil, out, h.Declination(0))
+}
+
+func (h *Hole) appendTail(b []byte, out Reference, d Correction) []byte {
+	b = append(b, out.String()...)
+	b = append(b, ',')
+	b = csvio.AppendFloat(b, d.Value, correctionDecimals)
+	b = append(b, ',')
+	b = append(b, d.Source...)
+	b = append(b, ',')
+	b = csvio.AppendFloat(b, h.Convergence.Value, correctionDecimals)
+	b = append(b, ',')
+	return append(b, h.Convergence.Source...)
 }
 
 func nameOr(s, def string) string {
@@ -259,7 +288,7 @@ func toOutput(az float64, from, out Reference, d, c float64) float64 {
 // a missing correction is set as h.Err.
 func (hs *Holes) build(c csvio.CollarRow, st []csvio.SurveyRow, cf, sf string) (*Hole, *domain.Error) {
 	opt := hs.opt
-	h := &Hole{ID: c.HoleID, Line: c.Line, Convergence: Correction{Value: math.NaN(), Source: northref.SourceNone}}
+	h := &Hole{ID: c.HoleID, Line: c.Line, out: opt.Output, Convergence: Correction{Value: math.NaN(), Source: northref.SourceNone}}
 	ref := func(s string) Reference {
 		if s == "" {
 			return opt.Output

@@ -288,7 +288,7 @@ func FormatFloat(v float64, prec int) string {
 	return string(AppendFloat(nil, v, prec))
 }
 
-// AppendFloat appends v with prec decimals (0..9) to b: the value scaled by
+// AppendFloat appends v with prec decimals (0..9; others go to strconv) to b: the value scaled by
 // 10^prec and rounded half away from zero, so values that round to zero
 // are written as unsigned zero; NaN is written as nothing. Values too large
 // for that (|v| 10^prec >= 2^53) and infinities are formatted by strconv.
@@ -296,7 +296,7 @@ func AppendFloat(b []byte, v float64, prec int) []byte {
 	if math.IsNaN(v) {
 		return b
 	}
-	if prec < 0 || prec >= len(pow10) {
+	if prec < 0 || prec > 9 {
 		return strconv.AppendFloat(b, v, 'f', prec, 64)
 	}
 	s := math.Round(math.Abs(v) * pow10[prec])
@@ -310,17 +310,27 @@ func AppendFloat(b []byte, v float64, prec int) []byte {
 	if v < 0 {
 		b = append(b, '-')
 	}
-	p := uint64(pow10[prec])
-	b = strconv.AppendUint(b, n/p, 10)
-	if prec == 0 {
-		return b
+	// Digits from the right into a small array: fraction, point, integer.
+	var d [24]byte
+	i := len(d)
+	for k := 0; k < prec; k++ {
+		i--
+		d[i] = byte('0' + n%10)
+		n /= 10
 	}
-	b = append(b, '.')
-	f := n % p
-	for d := p / 10; d > 0; d /= 10 {
-		b = append(b, byte('0'+f/d%10))
+	if prec > 0 {
+		i--
+		d[i] = '.'
 	}
-	return b
+	for {
+		i--
+		d[i] = byte('0' + n%10)
+		n /= 10
+		if n == 0 {
+			break
+		}
+	}
+	return append(b, d[i:]...)
 }
 
-var pow10 = [...]float64{1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9}
+var pow10 = [...]float64{1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15}

@@ -1,7 +1,6 @@
 package csvio
 
 import (
-	"bufio"
 	"encoding/csv"
 	"io"
 	"math"
@@ -154,21 +153,25 @@ func (s *StructureReader) num(r *StructureRow, i int, required bool) (float64, b
 
 // Writer writes CSV rows field by field with the quoting rules of
 // encoding/csv (comma separator, "\n" line ends), without building a
-// []string per row. Numbers are appended directly. Call Flush at the end.
+// []string per row. Numbers are appended directly. It buffers about 64 KiB;
+// call Flush at the end. Write errors are sticky and returned by Flush.
 type Writer struct {
-	w     *bufio.Writer
-	first bool
+	w     io.Writer
 	buf   []byte
+	first bool
+	err   error
 }
 
-// NewWriter returns a Writer on w with a 64 KiB buffer.
+const writerFlushAt = 64 << 10
+
+// NewWriter returns a Writer on w.
 func NewWriter(w io.Writer) *Writer {
-	return &Writer{w: bufio.NewWriterSize(w, 64<<10), first: true, buf: make([]byte, 0, 64)}
+	return &Writer{w: w, first: true, buf: make([]byte, 0, writerFlushAt+4096)}
 }
 
 func (w *Writer) sep() {
 	if !w.first {
-		w.w.WriteByte(',')
+		w.buf = append(w.buf, ',')
 	}
 	w.first = false
 }
@@ -177,38 +180,32 @@ func (w *Writer) sep() {
 func (w *Writer) String(s string) {
 	w.sep()
 	if !fieldNeedsQuotes(s) {
-		w.w.WriteString(s)
+		w.buf = append(w.buf, s...)
 		return
 	}
-	w.w.WriteByte('"')
-	for len(s) > 0 {
-		i := strings.IndexAny(s, "\"\r\n")
-		if i < 0 {
-			i = len(s)
-		}
-		w.w.WriteString(s[:i])
-		s = s[i:]
-		if len(s) > 0 {
-			switch s[0] {
-			case '"':
-				w.w.WriteString(`""`)
-			case '\r':
-				w.w.WriteByte('\r')
-			case '\n':
-				w.w.WriteByte('\n')
-			}
-			s = s[1:]
+	w.buf = append(w.buf, '"')
+	for i := 0; i < len(s); i++ {
+		if s[i] == '"' {
+			w.buf = append(w.buf, '"', '"')
+		} else {
+			w.buf = append(w.buf, s[i])
 		}
 	}
-	w.w.WriteByte('"')
+	w.buf = append(w.buf, '"')
+}
+
+// Raw writes pre-formatted bytes as one or more fields; the caller is
+// responsible for separators inside and quoting.
+func (w *Writer) Raw(b []byte) {
+	w.sep()
+	w.buf = append(w.buf, b...)
 }
 
 // Float writes v with prec decimals, or an empty field for NaN (see
 // [AppendFloat]).
 func (w *Writer) Float(v float64, prec int) {
 	w.sep()
-	w.buf = AppendFloat(w.buf[:0], v, prec)
-	w.w.Write(w.buf)
+	w.buf = AppendFloat(w.buf, v, prec)
 }
 
 // Empty writes an empty field.
@@ -223,26 +220,45 @@ func (w *Writer) Strings(fields []string) {
 
 // EndRow ends the current row.
 func (w *Writer) EndRow() {
-	w.w.WriteByte('\n')
+	w.buf = append(w.buf, '\n')
 	w.first = true
+	if len(w.buf) >= writerFlushAt {
+		w.flush()
+	}
+}
+
+func (w *Writer) flush() {
+	if w.err == nil && len(w.buf) > 0 {
+		_, w.err = w.w.Write(w.buf)
+	}
+	w.buf = w.buf[:0]
 }
 
 // Flush writes any buffered data and returns the first write error.
-func (w *Writer) Flush() error { return w.w.Flush() }
+func (w *Writer) Flush() error {
+	w.flush()
+	return w.err
+}
+
+// needsQuote marks the bytes that force quoting anywhere in a field.
+var needsQuote = [256]bool{',': true, '"': true, '\r': true, '\n': true}
 
 // fieldNeedsQuotes is encoding/csv's rule for the comma separator.
 func fieldNeedsQuotes(field string) bool {
 	if field == "" {
 		return false
 	}
+	for i := 0; i < len(field); i++ {
+		if needsQuote[field[i]] {
+			return true
+		}
+	}
 	if field == `\.` {
 		return true
 	}
-	for i := 0; i < len(field); i++ {
-		switch field[i] {
-		case ',', '"', '\r', '\n':
-			return true
-		}
+	c := field[0]
+	if c < utf8.RuneSelf {
+		return c == ' ' || c == '\t' || c == '\v' || c == '\f' || c == 0x85 || c == 0xA0
 	}
 	r1, _ := utf8.DecodeRuneInString(field)
 	return unicode.IsSpace(r1)

@@ -276,3 +276,40 @@ func TestAppendFloat(t *testing.T) {
 		}
 	}
 }
+
+// The fast decimal path gives bit-for-bit what strconv.ParseFloat gives.
+func TestParseSimpleMatchesStrconv(t *testing.T) {
+	r := rand.New(rand.NewPCG(3, 3))
+	check := func(s string) {
+		got, msg := ParseNumber(s)
+		want, err := strconv.ParseFloat(s, 64)
+		if err != nil || math.IsInf(want, 0) || math.IsNaN(want) {
+			if msg == "" {
+				t.Fatalf("%q accepted as %v", s, got)
+			}
+			return
+		}
+		if msg != "" || math.Float64bits(got) != math.Float64bits(want) {
+			t.Fatalf("%q: %v (%q), strconv %v", s, got, msg, want)
+		}
+	}
+	for _, s := range []string{"0", "-0", "+1", ".5", "5.", "00012.5000", "999999999999999", "9999999999999999", "0.000000000000001",
+		"123456.789012345", "1e5", "-", ".", "1..2", "1.2.3", "abc", "0x10", "inf", "NaN", "1_000", "6652443.283"} {
+		check(s)
+	}
+	for i := 0; i < 200000; i++ {
+		digits := r.IntN(17) + 1
+		var b strings.Builder
+		if r.IntN(3) == 0 {
+			b.WriteByte('-')
+		}
+		dot := r.IntN(digits + 1)
+		for k := 0; k < digits; k++ {
+			if k == dot {
+				b.WriteByte('.')
+			}
+			b.WriteByte(byte('0' + r.IntN(10)))
+		}
+		check(b.String())
+	}
+}
