@@ -118,7 +118,7 @@ func surveyChecks(c Collar, stations []Station, zones []MagneticZone, o Options,
 		hr.Stations[i].DLS = dls
 		if dls > o.DoglegThreshold {
 			out = append(out, Finding{Check: CheckDogleg, Severity: SeverityWarning, HoleID: c.HoleID,
-				Depth: prevD, DepthTo: depths[i], Size: dls, Unit: unit, Source: "surveys", Line: stations[i].Line,
+				Depth: prevD, DepthTo: depths[i], Size: dls, Unit: unit, Source: "surveys", Line: stations[i].Line, Station: i + 1,
 				Message: fmt.Sprintf("dogleg severity %.2f %s between %.1f and %.1f exceeds %.2f %s (dogleg %.2f deg)",
 					dls, unit, prevD, depths[i], o.DoglegThreshold, unit, dl)})
 		}
@@ -175,7 +175,7 @@ func surveyChecks(c Collar, stations []Station, zones []MagneticZone, o Options,
 		pa, pd := pred[i].AzimuthDip()
 		da := wrap180(stations[i].Azimuth - pa)
 		out = append(out, Finding{Check: CheckSurveyOutlier, Severity: SeverityFlag, HoleID: c.HoleID,
-			Depth: depths[i], Size: r, Unit: "deg", Source: "surveys", Line: stations[i].Line,
+			Depth: depths[i], Size: r, Unit: "deg", Source: "surveys", Line: stations[i].Line, Station: i + 1,
 			Message: fmt.Sprintf("station at %.1f is %.2f deg off the path through its neighbours (azimuth %+.2f, dip %+.2f deg); the other stations' median residual is %.2f deg, the limit %.2f deg",
 				depths[i], r, da, stations[i].Dip-pd, ref, math.Max(limit, o.OutlierFloor))})
 	}
@@ -185,7 +185,7 @@ func surveyChecks(c Collar, stations []Station, zones []MagneticZone, o Options,
 	for i := range stations {
 		if g := depths[i] - prevD; g > o.GapThreshold {
 			out = append(out, Finding{Check: CheckSurveyGap, Severity: SeverityWarning, HoleID: c.HoleID,
-				Depth: prevD, DepthTo: depths[i], Size: g, Source: "surveys", Line: stations[i].Line,
+				Depth: prevD, DepthTo: depths[i], Size: g, Source: "surveys", Line: stations[i].Line, Station: i + 1,
 				Message: fmt.Sprintf("%.1f without a survey station between %.1f and %.1f (more than %.1f)", g, prevD, depths[i], o.GapThreshold)})
 		}
 		prevD = depths[i]
@@ -195,7 +195,7 @@ func surveyChecks(c Collar, stations []Station, zones []MagneticZone, o Options,
 	last := stations[n-1]
 	if short := c.Depth - last.Depth; short > o.ShortTolerance {
 		out = append(out, Finding{Check: CheckSurveyShort, Severity: SeverityWarning, HoleID: c.HoleID,
-			Depth: last.Depth, DepthTo: c.Depth, Size: short, Source: "surveys", Line: last.Line,
+			Depth: last.Depth, DepthTo: c.Depth, Size: short, Source: "surveys", Line: last.Line, Station: n,
 			Message: fmt.Sprintf("last station at %.1f is %.1f short of the final depth %.1f: the path below is extrapolated straight", last.Depth, short, c.Depth)})
 	}
 
@@ -205,20 +205,20 @@ func surveyChecks(c Collar, stations []Station, zones []MagneticZone, o Options,
 	allowed := o.CollarTolerance + o.DoglegThreshold*first.Depth/per
 	if ang > allowed {
 		out = append(out, Finding{Check: CheckCollarDisagree, Severity: SeverityFlag, HoleID: c.HoleID,
-			Depth: first.Depth, Size: ang, Unit: "deg", Source: "surveys", Line: first.Line,
+			Depth: first.Depth, Size: ang, Unit: "deg", Source: "surveys", Line: first.Line, Station: 1,
 			Message: fmt.Sprintf("first station at %.1f (azimuth %.1f, dip %.1f) is %.1f deg from the collar direction (azimuth %.1f, dip %.1f); at most %.1f deg expected",
 				first.Depth, geom.NormAzimuth(first.Azimuth), first.Dip, ang, geom.NormAzimuth(c.Azimuth), c.Dip, allowed)})
 	}
 
 	// Magnetic shots in magnetic zones.
-	for _, s := range stations {
+	for si, s := range stations {
 		if !s.Magnetic {
 			continue
 		}
 		for _, z := range zones {
 			if s.Depth >= z.From && s.Depth <= z.To {
 				out = append(out, Finding{Check: CheckMagneticZone, Severity: SeverityFlag, HoleID: c.HoleID,
-					Depth: s.Depth, Size: s.Azimuth, Unit: "deg", Source: "surveys", Line: s.Line,
+					Depth: s.Depth, Size: s.Azimuth, Unit: "deg", Source: "surveys", Line: s.Line, Station: si + 1,
 					Message: fmt.Sprintf("magnetic survey shot at %.1f lies in the magnetic zone %.1f-%.1f: its azimuth %.1f cannot be trusted", s.Depth, z.From, z.To, geom.NormAzimuth(s.Azimuth))})
 				break
 			}

@@ -58,8 +58,8 @@ func TestSurveyShiftedShot(t *testing.T) {
 	var hr HoleReport
 	fs := surveyChecks(c, st, nil, DefaultOptions(), &hr)
 	out := checks(fs, CheckSurveyOutlier)
-	if len(out) != 1 || out[0].Depth != 210 {
-		t.Fatalf("outliers %+v, want one at 210", out)
+	if len(out) != 1 || out[0].Depth != 210 || out[0].Station != 7 {
+		t.Fatalf("outliers %+v, want one at 210, station 7", out)
 	}
 	if out[0].Size < 1.5 || out[0].Size > 2.5 {
 		t.Errorf("size %v deg, want about 2.5 cos(dip)", out[0].Size)

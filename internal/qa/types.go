@@ -135,9 +135,10 @@ type Finding struct {
 	DepthTo  float64 `json:"depth_to,omitempty"` // end of an interval finding
 	Size     float64 `json:"size"`               // the measured quantity that triggered it
 	Unit     string  `json:"unit,omitempty"`
-	Source   string  `json:"source,omitempty"` // input set: collars, surveys, runs, structures, picks
-	Line     int     `json:"line,omitempty"`   // line in that input, when known
-	ID       int64   `json:"id,omitempty"`     // store id of the run or measurement, when known
+	Source   string  `json:"source,omitempty"`  // input set: collars, surveys, runs, structures, picks
+	Line     int     `json:"line,omitempty"`    // line in that input, when known
+	ID       int64   `json:"id,omitempty"`      // store id of the run or measurement, when known
+	Station  int     `json:"station,omitempty"` // survey findings: 1-based index of the station in the hole's survey sorted by depth
 	Logger   string  `json:"logged_by,omitempty"`
 	Message  string  `json:"message"`
 }
