@@ -1,0 +1,112 @@
+package service_test
+
+import (
+	"bytes"
+	"encoding/xml"
+	"io"
+	"math"
+	"strings"
+	"testing"
+
+	"corvane/internal/demo"
+	"corvane/internal/domain"
+	"corvane/internal/geom"
+	"corvane/internal/service"
+)
+
+// Three planes dipping 30, 40 and 50 toward 000 (alpha 30, 20, 10 at beta 180
+// in a hole 000/-60: dip = 60 - alpha there, by conventions.md and the
+// references README cases) have poles 10 degrees apart on one vertical
+// plane. Exact geometry: the mean pole is the middle one, R = 1 + 2 cos 10,
+// and Fisher's (1953) k = (N - 1)/(N - R).
+func TestStatisticsExactGeometry(t *testing.T) {
+	s, ctx := newService(t)
+	p, h := programme(t, s, ctx, domain.Project{})
+	for _, a := range []float64{30, 20, 10} {
+		must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 20, Alpha: a, Beta: 180, TypeCode: "BD"}))
+	}
+	must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 20, Alpha: 45, Beta: 90, TypeCode: "JN"}))
+	res := must(s.Statistics(ctx, p.ID, service.StatsQuery{MeasurementQuery: service.MeasurementQuery{Types: []string{"BD"}}, Weighting: true}))
+	if res.Matched != 3 || len(res.Groups) != 1 || res.Groups[0].Name != "BD" || res.Caution == "" {
+		t.Fatalf("result %+v", res)
+	}
+	u := res.Groups[0].Unweighted
+	near(t, "mean dip", u.MeanDip, 40, 1e-9)
+	near(t, "mean dip direction", u.MeanDipDirection, 0, 1e-9)
+	wantR := 1 + 2*math.Cos(10*math.Pi/180)
+	near(t, "R", u.R, wantR, 1e-9)
+	near(t, "k", u.K, 2/(3-wantR), 1e-6)
+	if w := res.Groups[0].Weighted; w == nil || w.Count != 3 {
+		t.Fatalf("weighted summary missing: %+v", w)
+	}
+	_, err := s.Statistics(ctx, p.ID, service.StatsQuery{Sets: 99})
+	wantKind(t, err, domain.Invalid, "too many sets")
+}
+
+// The demo's structure sets are drawn around known mean planes (package
+// demo); the per-type statistics of the loaded demo must find them again to
+// within a few degrees (the generator adds noise and sampling bias).
+func TestStatisticsRecoverDemoSets(t *testing.T) {
+	s, ctx := newService(t)
+	p, _, err := s.LoadDemo(ctx)
+	if err != nil {
+		t.Fatal(err)
+	}
+	d := demo.Programme()
+	res := must(s.Statistics(ctx, p.ID, service.StatsQuery{}))
+	byType := map[string]service.Summary{}
+	for _, g := range res.Groups {
+		if g.Kind == "planes" {
+			byType[g.Name] = g.Unweighted
+		}
+	}
+	checked := 0
+	for _, set := range d.Sets {
+		sm, ok := byType[set.Type]
+		if !ok || set.Type == "joint" { // two joint sets share one type code
+			continue
+		}
+		got := geom.Plane{Dip: *sm.MeanDip, DipDirection: *sm.MeanDipDirection}
+		if a := geom.AxialAngle(got.Normal(), set.Mean.Normal()); a > 6 {
+			t.Errorf("type %s: mean plane %.1f/%.1f is %.1f degrees from the set's %.1f/%.1f",
+				set.Type, got.DipDirection, got.Dip, a, set.Mean.DipDirection, set.Mean.Dip)
+		}
+		checked++
+	}
+	if checked == 0 {
+		t.Fatal("no demo set checked")
+	}
+	// Two automatic sets split the joints apart from bedding and faults.
+	auto := must(s.Statistics(ctx, p.ID, service.StatsQuery{Sets: 4}))
+	if len(auto.Groups) < 4 {
+		t.Errorf("automatic sets: %d groups", len(auto.Groups))
+	}
+}
+
+func TestNetIsWellFormedSVG(t *testing.T) {
+	s, ctx := newService(t)
+	p, _, err := s.LoadDemo(ctx)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var buf bytes.Buffer
+	if err := s.Net(ctx, p.ID, service.NetQuery{Density: true, Planes: true}, &buf); err != nil {
+		t.Fatal(err)
+	}
+	dec := xml.NewDecoder(bytes.NewReader(buf.Bytes()))
+	for {
+		if _, err := dec.Token(); err == io.EOF {
+			break
+		} else if err != nil {
+			t.Fatalf("net is not well-formed XML: %v", err)
+		}
+	}
+	out := buf.String()
+	for _, want := range []string{"<svg", "bedding", "fault", p.Name} {
+		if !strings.Contains(out, want) {
+			t.Errorf("net lacks %q", want)
+		}
+	}
+	err = s.Net(ctx, p.ID, service.NetQuery{Projection: "mercator"}, io.Discard)
+	wantKind(t, err, domain.Invalid, "unknown projection")
+}
