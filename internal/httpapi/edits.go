@@ -51,16 +51,24 @@ func ifMatch(c *gin.Context) (int64, error) {
 // decodeJSON reads a JSON body into v: Content-Type must be JSON, unknown
 // fields are refused, the body is capped at the server's limit.
 func (s *Server) decodeJSON(c *gin.Context, v any) error {
+	return s.decodeJSONLimit(c, v, s.opt.MaxBodyBytes)
+}
+
+// decodeJSONLimit is decodeJSON with a body limit of n bytes.
+func (s *Server) decodeJSONLimit(c *gin.Context, v any, n int64) error {
 	if ct := c.GetHeader("Content-Type"); ct != "" {
 		mt, _, err := mime.ParseMediaType(ct)
 		if err != nil || (mt != "application/json" && !strings.HasSuffix(mt, "+json")) {
 			return errUnsupportedMedia("application/json")
 		}
 	}
-	limitBody(c, s.opt.MaxBodyBytes)
-	if c.IsAborted() {
-		return errTooLarge(s.opt.MaxBodyBytes)
+	if c.Request.ContentLength > n {
+		return errTooLarge(n)
 	}
+	if c.Request.Body == nil {
+		return errBadRequest("request body: empty; a JSON object is required")
+	}
+	c.Request.Body = http.MaxBytesReader(c.Writer, c.Request.Body, n)
 	dec := json.NewDecoder(c.Request.Body)
 	dec.DisallowUnknownFields()
 	if err := dec.Decode(v); err != nil {
@@ -144,24 +152,4 @@ func (s *Server) page(c *gin.Context) (domain.Page, error) {
 type listBody[T any] struct {
 	Items     []T    `json:"items"`
 	NextAfter *int64 `json:"next_after"`
-}
-
-// renderList writes a page of items; id gives each item's keyset ID. A full
-// page sets next_after and a Link: rel="next" header.
-func renderList[T any](c *gin.Context, p domain.Page, items []T, id func(T) int64) {
-	if items == nil {
-		items = []T{}
-	}
-	b := listBody[T]{Items: items}
-	if p.Limit > 0 && len(items) >= p.Limit {
-		last := id(items[len(items)-1])
-		b.NextAfter = &last
-		u := *c.Request.URL
-		q := u.Query()
-		q.Set("after", strconv.FormatInt(last, 10))
-		q.Set("limit", strconv.Itoa(p.Limit))
-		u.RawQuery = q.Encode()
-		c.Header("Link", "<"+u.RequestURI()+`>; rel="next"`)
-	}
-	c.JSON(http.StatusOK, b)
 }

@@ -1,17 +1,102 @@
 package httpapi
 
-import "context"
+import (
+	"net/http"
+	"strconv"
+
+	"github.com/gin-gonic/gin"
+
+	"corvane/api"
+	"corvane/internal/service"
+)
 
 // Service is the use-case layer the handlers call.
-type Service interface {
-	Ping(ctx context.Context) error
-}
+type Service = *service.Service
 
+// routes is THE route table. Every route below /v1 goes through authenticate,
+// which puts the caller into the request context; the service checks the
+// caller's role and project on every call.
 func (s *Server) routes() {
 	e := s.engine
 	e.NoRoute(s.noRoute)
 	e.NoMethod(s.noMethod)
+
 	e.GET("/healthz", s.healthz)
 	e.GET("/readyz", s.readyz)
 	e.GET("/metrics", s.metricsHandler())
+	e.GET("/openapi.yaml", func(c *gin.Context) { c.Data(http.StatusOK, "application/yaml", api.OpenAPI) })
+
+	v1 := e.Group("/v1", s.authenticate)
+	v1.POST("/convert", s.convert)
+
+	v1.GET("/projects", s.listProjects)
+	v1.POST("/projects", s.createProject)
+	p := v1.Group("/projects/:project")
+	p.GET("", s.getProject)
+	p.PUT("", s.updateProject)
+	p.DELETE("", s.deleteProject)
+
+	p.GET("/types", s.listTypes)
+	p.PUT("/types/:code", s.putType)
+	p.DELETE("/types/:code", s.deleteType)
+
+	p.GET("/holes", s.listHoles)
+	p.POST("/holes", s.createHole)
+	p.GET("/holes/:hole", s.getHole)
+	p.PUT("/holes/:hole", s.updateHole)
+	p.DELETE("/holes/:hole", s.deleteHole)
+
+	p.GET("/holes/:hole/survey", s.getSurvey)
+	p.PUT("/holes/:hole/survey", s.putSurvey)
+
+	p.GET("/holes/:hole/runs", s.listRuns)
+	p.POST("/holes/:hole/runs", s.createRun)
+	p.GET("/runs/:run", s.getRun)
+	p.PUT("/runs/:run", s.updateRun)
+	p.DELETE("/runs/:run", s.deleteRun)
+
+	p.GET("/measurements", s.listMeasurements)
+	p.POST("/measurements", s.createMeasurement)
+	p.GET("/measurements/:measurement", s.getMeasurement)
+	p.PUT("/measurements/:measurement", s.updateMeasurement)
+	p.DELETE("/measurements/:measurement", s.deleteMeasurement)
+	p.GET("/measurements.csv", s.exportMeasurements)
+
+	p.POST("/imports/:kind", s.importCSV)
+	p.GET("/audit", s.listAudit)
+}
+
+// location sets the Location header of a created resource.
+func location(c *gin.Context, parts ...string) {
+	u := "/v1"
+	for _, p := range parts {
+		u += "/" + p
+	}
+	c.Header("Location", u)
+}
+
+func itoa(n int64) string { return strconv.FormatInt(n, 10) }
+
+// next turns the service's "0 on the last page" into JSON null.
+func next(n int64) *int64 {
+	if n == 0 {
+		return nil
+	}
+	return &n
+}
+
+// renderPage writes one page of a service list, with a Link header to the
+// next page.
+func renderPage[T any](c *gin.Context, l service.List[T]) {
+	if l.Items == nil {
+		l.Items = []T{}
+	}
+	if l.Next != 0 {
+		u := *c.Request.URL
+		q := u.Query()
+		q.Set("after", itoa(l.Next))
+		u.RawQuery = q.Encode()
+		c.Header("Link", "<"+u.RequestURI()+`>; rel="next"`)
+	}
+	c.JSON(http.StatusOK, listBody[T]{Items: l.Items, NextAfter: next(l.Next)})
 }

@@ -119,6 +119,7 @@ func (s *Server) metricsHandler() gin.HandlerFunc {
 func (s *Server) noRoute(c *gin.Context) {
 	p := c.Request.URL.Path
 	if s.opt.Web != nil && p != "/v1" && !hasPrefix(p, "/v1/") {
+		c.Writer.WriteHeader(http.StatusOK) // gin presets 404 for unmatched routes
 		s.opt.Web.ServeHTTP(c.Writer, c.Request)
 		return
 	}

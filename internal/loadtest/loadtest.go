@@ -15,6 +15,7 @@ import (
 	"fmt"
 	"io"
 	"math/rand/v2"
+	"net/url"
 	"net/http"
 	"slices"
 	"strconv"
@@ -312,7 +313,7 @@ func Run(ctx context.Context, cfg Config) (Result, error) {
 				} `json:"items"`
 				NextAfter *int64 `json:"next_after"`
 			}
-			q := fmt.Sprintf("%s/measurements?hole=%d&limit=1000&after=%d", p, h.ID, after)
+			q := fmt.Sprintf("%s/measurements?hole=%s&limit=1000&after=%d", p, url.QueryEscape(h.Name), after)
 			if err := c.json(ctx, 200, "GET", q, nil, &page); err != nil {
 				return res, fmt.Errorf("counting rows: %w", err)
 			}

@@ -1,0 +1,247 @@
+package httpapi
+
+import (
+	"bytes"
+	"context"
+	"io"
+	"net/http"
+	"net/http/httptest"
+	"regexp"
+	"sort"
+	"strings"
+	"sync"
+	"testing"
+
+	"github.com/getkin/kin-openapi/openapi3"
+	"github.com/getkin/kin-openapi/openapi3filter"
+	"github.com/getkin/kin-openapi/routers"
+
+	"corvane/api"
+)
+
+var (
+	docOnce   sync.Once
+	docErr    error
+	doc       *openapi3.T
+	docRouter *pathRouter
+)
+
+// pathRouter finds the documented operation of a concrete request path by
+// matching it against every path template of the document.
+type pathRouter struct {
+	doc   *openapi3.T
+	paths []docPattern
+}
+
+type docPattern struct {
+	template string
+	re       *regexp.Regexp
+	names    []string
+}
+
+var docParam = regexp.MustCompile(`\{([^}]+)\}`)
+
+func newPathRouter(d *openapi3.T) *pathRouter {
+	r := &pathRouter{doc: d}
+	for _, p := range d.Paths.InMatchingOrder() {
+		var names []string
+		for _, m := range docParam.FindAllStringSubmatch(p, -1) {
+			names = append(names, m[1])
+		}
+		var b strings.Builder
+		b.WriteString("^")
+		rest := p
+		for {
+			i := strings.Index(rest, "{")
+			if i < 0 {
+				b.WriteString(regexp.QuoteMeta(rest))
+				break
+			}
+			j := strings.Index(rest, "}")
+			b.WriteString(regexp.QuoteMeta(rest[:i]))
+			b.WriteString("([^/]+)")
+			rest = rest[j+1:]
+		}
+		b.WriteString("$")
+		r.paths = append(r.paths, docPattern{template: p, re: regexp.MustCompile(b.String()), names: names})
+	}
+	return r
+}
+
+// FindRoute returns the operation for req, preferring the template with the
+// most literal characters when several match.
+func (r *pathRouter) FindRoute(req *http.Request) (*routers.Route, map[string]string, error) {
+	best, bestLit := -1, -1
+	var bestParams map[string]string
+	for i, p := range r.paths {
+		m := p.re.FindStringSubmatch(req.URL.Path)
+		if m == nil {
+			continue
+		}
+		lit := len(docParam.ReplaceAllString(p.template, ""))
+		if lit > bestLit {
+			best, bestLit = i, lit
+			bestParams = map[string]string{}
+			for k, n := range p.names {
+				bestParams[n] = m[k+1]
+			}
+		}
+	}
+	if best < 0 {
+		return nil, nil, routers.ErrPathNotFound
+	}
+	tpl := r.paths[best].template
+	item := r.doc.Paths.Value(tpl)
+	op := item.GetOperation(req.Method)
+	if op == nil {
+		return nil, nil, routers.ErrMethodNotAllowed
+	}
+	return &routers.Route{Spec: r.doc, Path: tpl, PathItem: item, Method: req.Method, Operation: op}, bestParams, nil
+}
+
+// contract loads api/openapi.yaml once, checks it is a valid OpenAPI
+// document, and returns it with a router over its paths.
+func contract(t *testing.T) (*openapi3.T, *pathRouter) {
+	t.Helper()
+	docOnce.Do(func() {
+		openapi3filter.RegisterBodyDecoder("image/svg+xml", openapi3filter.PlainBodyDecoder)
+		l := openapi3.NewLoader()
+		doc, docErr = l.LoadFromData(api.OpenAPI)
+		if docErr != nil {
+			return
+		}
+		if docErr = doc.Validate(context.Background()); docErr != nil {
+			return
+		}
+		docRouter = newPathRouter(doc)
+	})
+	if docErr != nil {
+		t.Fatalf("api/openapi.yaml: %v", docErr)
+	}
+	return doc, docRouter
+}
+
+var ginParam = regexp.MustCompile(`[:*]([A-Za-z_][A-Za-z0-9_]*)`)
+
+// docPath turns gin's /v1/projects/:project into /v1/projects/{project}.
+func docPath(ginPath string) string { return ginParam.ReplaceAllString(ginPath, "{$1}") }
+
+// TestContractEveryRouteDocumented walks the live route table and fails on
+// any route (method and path) that api/openapi.yaml does not describe, and
+// on any documented operation that is not served.
+func TestContractEveryRouteDocumented(t *testing.T) {
+	d, _ := contract(t)
+	s := newTestServer(t)
+	live := map[string]bool{}
+	for _, r := range s.Routes() {
+		p := docPath(r.Path)
+		key := r.Method + " " + p
+		live[key] = true
+		item := d.Paths.Value(p)
+		if item == nil {
+			t.Errorf("route %s %s: path %s missing from api/openapi.yaml", r.Method, r.Path, p)
+			continue
+		}
+		if item.GetOperation(r.Method) == nil {
+			t.Errorf("route %s %s: method missing from api/openapi.yaml", r.Method, r.Path)
+		}
+	}
+	var documented []string
+	for p, item := range d.Paths.Map() {
+		for m := range item.Operations() {
+			documented = append(documented, m+" "+p)
+		}
+	}
+	sort.Strings(documented)
+	for _, k := range documented {
+		if !live[k] {
+			t.Errorf("api/openapi.yaml documents %s but the server has no such route", k)
+		}
+	}
+}
+
+// checker validates every request and response made through it against the
+// document: it is an http.Handler wrapping the server under test.
+type checker struct {
+	t      *testing.T
+	h      http.Handler
+	router *pathRouter
+	mu     sync.Mutex
+	seen   map[string]bool // "METHOD path status" validated
+}
+
+func newChecker(t *testing.T, h http.Handler) *checker {
+	_, r := contract(t)
+	return &checker{t: t, h: h, router: r, seen: map[string]bool{}}
+}
+
+func (c *checker) ServeHTTP(w http.ResponseWriter, req *http.Request) {
+	var reqBody []byte
+	if req.Body != nil {
+		reqBody, _ = io.ReadAll(req.Body)
+		req.Body = io.NopCloser(bytes.NewReader(reqBody))
+	}
+	rec := httptest.NewRecorder()
+	c.h.ServeHTTP(rec, req)
+	for k, v := range rec.Header() {
+		w.Header()[k] = v
+	}
+	w.WriteHeader(rec.Code)
+	_, _ = w.Write(rec.Body.Bytes())
+	c.validate(req, reqBody, rec)
+}
+
+func (c *checker) validate(req *http.Request, reqBody []byte, rec *httptest.ResponseRecorder) {
+	c.t.Helper()
+	vreq := req.Clone(context.Background())
+	vreq.Body = io.NopCloser(bytes.NewReader(reqBody))
+	if vreq.URL.Host == "" {
+		vreq.URL.Scheme, vreq.URL.Host = "http", "example.test"
+	}
+	route, params, err := c.router.FindRoute(vreq)
+	if err != nil {
+		if rec.Code == http.StatusNotFound || rec.Code == http.StatusMethodNotAllowed {
+			return // unknown routes are answered with a problem; nothing to check against
+		}
+		if !strings.HasPrefix(req.URL.Path, "/v1/") {
+			return // the web page's assets, served by the optional Web handler
+		}
+		c.t.Errorf("contract: %s %s answered %d but is not in api/openapi.yaml: %v", req.Method, req.URL.Path, rec.Code, err)
+		return
+	}
+	in := &openapi3filter.RequestValidationInput{
+		Request: vreq, PathParams: params, Route: route,
+		Options: &openapi3filter.Options{AuthenticationFunc: openapi3filter.NoopAuthenticationFunc, IncludeResponseStatus: true},
+	}
+	out := &openapi3filter.ResponseValidationInput{
+		RequestValidationInput: in, Status: rec.Code, Header: rec.Header(),
+		Options: &openapi3filter.Options{IncludeResponseStatus: true, MultiError: true},
+	}
+	out.SetBodyBytes(rec.Body.Bytes())
+	if err := openapi3filter.ValidateResponse(context.Background(), out); err != nil {
+		c.t.Errorf("contract: response to %s %s (%d) does not match api/openapi.yaml: %v\nbody: %.600s",
+			req.Method, req.URL.RequestURI(), rec.Code, err, rec.Body.String())
+	}
+	// Requests the tests send on purpose to be refused need not match the
+	// request schema; the good ones must.
+	if rec.Code < 400 {
+		if err := openapi3filter.ValidateRequest(context.Background(), in); err != nil {
+			c.t.Errorf("contract: accepted request %s %s does not match api/openapi.yaml: %v", req.Method, req.URL.RequestURI(), err)
+		}
+	}
+	c.mu.Lock()
+	c.seen[route.Method+" "+route.Path+" "+http.StatusText(rec.Code)] = true
+	c.mu.Unlock()
+}
+
+// operations reports the documented operations the checker has seen answered.
+func (c *checker) operations() map[string]bool {
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	ops := map[string]bool{}
+	for k := range c.seen {
+		f := strings.SplitN(k, " ", 3)
+		ops[f[0]+" "+f[1]] = true
+	}
+	return ops
+}

@@ -1,0 +1,671 @@
+package httpapi
+
+import (
+	"errors"
+	"mime"
+	"net/http"
+	"strconv"
+	"strings"
+
+	"github.com/gin-gonic/gin"
+
+	"corvane/internal/domain"
+	"corvane/internal/service"
+)
+
+// Handlers are thin: decode, call one service method, render.
+
+func (s *Server) convert(c *gin.Context) {
+	var req service.ConvertRequest
+	if err := s.decodeJSONLimit(c, &req, s.opt.MaxImportBytes); err != nil {
+		fail(c, err)
+		return
+	}
+	resp, err := s.opt.Service.Convert(c.Request.Context(), req)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	c.JSON(http.StatusOK, resp)
+}
+
+// ---- projects
+
+func (s *Server) listProjects(c *gin.Context) {
+	pg, err := s.page(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	l, err := s.opt.Service.ListProjects(c.Request.Context(), pg)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	renderPage(c, l)
+}
+
+func (s *Server) createProject(c *gin.Context) {
+	var in domain.Project
+	if err := s.decodeJSON(c, &in); err != nil {
+		fail(c, err)
+		return
+	}
+	p, err := s.opt.Service.CreateProject(c.Request.Context(), in)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	location(c, "projects", itoa(p.ID))
+	setETag(c, p.Version)
+	c.JSON(http.StatusCreated, p)
+}
+
+func (s *Server) getProject(c *gin.Context) {
+	id, err := pathID(c, "project")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	p, err := s.opt.Service.GetProject(c.Request.Context(), id)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	setETag(c, p.Version)
+	c.JSON(http.StatusOK, p)
+}
+
+func (s *Server) updateProject(c *gin.Context) {
+	id, err := pathID(c, "project")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	v, err := ifMatch(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	var in domain.Project
+	if err := s.decodeJSON(c, &in); err != nil {
+		fail(c, err)
+		return
+	}
+	p, err := s.opt.Service.UpdateProject(c.Request.Context(), id, v, in)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	setETag(c, p.Version)
+	c.JSON(http.StatusOK, p)
+}
+
+func (s *Server) deleteProject(c *gin.Context) {
+	id, err := pathID(c, "project")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	v, err := ifMatch(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	if err := s.opt.Service.DeleteProject(c.Request.Context(), id, v); err != nil {
+		fail(c, err)
+		return
+	}
+	c.Status(http.StatusNoContent)
+}
+
+// ---- vocabulary
+
+func (s *Server) listTypes(c *gin.Context) {
+	pid, err := pathID(c, "project")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	ts, err := s.opt.Service.ListTypeCodes(c.Request.Context(), pid)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	if ts == nil {
+		ts = []domain.TypeCode{}
+	}
+	c.JSON(http.StatusOK, gin.H{"items": ts})
+}
+
+func (s *Server) putType(c *gin.Context) {
+	pid, err := pathID(c, "project")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	var in struct {
+		Description string `json:"description"`
+		Kind        string `json:"kind"`
+	}
+	if err := s.decodeJSON(c, &in); err != nil {
+		fail(c, err)
+		return
+	}
+	tc, err := s.opt.Service.PutTypeCode(c.Request.Context(), pid,
+		domain.TypeCode{Code: c.Param("code"), Description: in.Description, Kind: in.Kind})
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	c.JSON(http.StatusOK, tc)
+}
+
+func (s *Server) deleteType(c *gin.Context) {
+	pid, err := pathID(c, "project")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	if err := s.opt.Service.DeleteTypeCode(c.Request.Context(), pid, c.Param("code")); err != nil {
+		fail(c, err)
+		return
+	}
+	c.Status(http.StatusNoContent)
+}
+
+// ---- holes
+
+func (s *Server) listHoles(c *gin.Context) {
+	pid, err := pathID(c, "project")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	pg, err := s.page(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	l, err := s.opt.Service.ListHoles(c.Request.Context(), pid, pg)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	renderPage(c, l)
+}
+
+func (s *Server) createHole(c *gin.Context) {
+	pid, err := pathID(c, "project")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	var in domain.Hole
+	if err := s.decodeJSON(c, &in); err != nil {
+		fail(c, err)
+		return
+	}
+	h, err := s.opt.Service.CreateHole(c.Request.Context(), pid, in)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	location(c, "projects", itoa(pid), "holes", itoa(h.ID))
+	setETag(c, h.Version)
+	c.JSON(http.StatusCreated, h)
+}
+
+// ids reads the project id and the named second id from the path.
+func ids(c *gin.Context, name string) (int64, int64, error) {
+	pid, err := pathID(c, "project")
+	if err != nil {
+		return 0, 0, err
+	}
+	id, err := pathID(c, name)
+	return pid, id, err
+}
+
+func (s *Server) getHole(c *gin.Context) {
+	pid, hid, err := ids(c, "hole")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	h, err := s.opt.Service.GetHole(c.Request.Context(), pid, hid)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	setETag(c, h.Version)
+	c.JSON(http.StatusOK, h)
+}
+
+func (s *Server) updateHole(c *gin.Context) {
+	pid, hid, err := ids(c, "hole")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	v, err := ifMatch(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	var in domain.Hole
+	if err := s.decodeJSON(c, &in); err != nil {
+		fail(c, err)
+		return
+	}
+	h, err := s.opt.Service.UpdateHole(c.Request.Context(), pid, hid, v, in)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	setETag(c, h.Version)
+	c.JSON(http.StatusOK, h)
+}
+
+func (s *Server) deleteHole(c *gin.Context) {
+	pid, hid, err := ids(c, "hole")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	v, err := ifMatch(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	if err := s.opt.Service.DeleteHole(c.Request.Context(), pid, hid, v); err != nil {
+		fail(c, err)
+		return
+	}
+	c.Status(http.StatusNoContent)
+}
+
+// ---- surveys
+
+func (s *Server) getSurvey(c *gin.Context) {
+	pid, hid, err := ids(c, "hole")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	ss, err := s.opt.Service.GetSurvey(c.Request.Context(), pid, hid)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	setETag(c, ss.Version)
+	c.JSON(http.StatusOK, ss)
+}
+
+// putSurvey replaces the whole survey set. If-Match carries the version
+// last read; a hole's first set is created with If-None-Match: * instead.
+func (s *Server) putSurvey(c *gin.Context) {
+	pid, hid, err := ids(c, "hole")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	var v int64
+	if strings.TrimSpace(c.GetHeader("If-None-Match")) == "*" && c.GetHeader("If-Match") == "" {
+		v = 0
+	} else if v, err = ifMatch(c); err != nil {
+		fail(c, err)
+		return
+	}
+	var in domain.SurveySet
+	if err := s.decodeJSON(c, &in); err != nil {
+		fail(c, err)
+		return
+	}
+	ss, err := s.opt.Service.PutSurvey(c.Request.Context(), pid, hid, v, in)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	setETag(c, ss.Version)
+	c.JSON(http.StatusOK, ss)
+}
+
+// ---- runs
+
+func (s *Server) listRuns(c *gin.Context) {
+	pid, hid, err := ids(c, "hole")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	rs, err := s.opt.Service.ListRuns(c.Request.Context(), pid, hid)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	if rs == nil {
+		rs = []domain.Run{}
+	}
+	c.JSON(http.StatusOK, gin.H{"items": rs})
+}
+
+func (s *Server) createRun(c *gin.Context) {
+	pid, hid, err := ids(c, "hole")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	var in domain.Run
+	if err := s.decodeJSON(c, &in); err != nil {
+		fail(c, err)
+		return
+	}
+	r, err := s.opt.Service.CreateRun(c.Request.Context(), pid, hid, in)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	location(c, "projects", itoa(pid), "runs", itoa(r.ID))
+	setETag(c, r.Version)
+	c.JSON(http.StatusCreated, r)
+}
+
+func (s *Server) getRun(c *gin.Context) {
+	pid, id, err := ids(c, "run")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	r, err := s.opt.Service.GetRun(c.Request.Context(), pid, id)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	setETag(c, r.Version)
+	c.JSON(http.StatusOK, r)
+}
+
+func (s *Server) updateRun(c *gin.Context) {
+	pid, id, err := ids(c, "run")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	v, err := ifMatch(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	var in domain.Run
+	if err := s.decodeJSON(c, &in); err != nil {
+		fail(c, err)
+		return
+	}
+	r, err := s.opt.Service.UpdateRun(c.Request.Context(), pid, id, v, in)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	setETag(c, r.Version)
+	c.JSON(http.StatusOK, r)
+}
+
+func (s *Server) deleteRun(c *gin.Context) {
+	pid, id, err := ids(c, "run")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	v, err := ifMatch(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	if err := s.opt.Service.DeleteRun(c.Request.Context(), pid, id, v); err != nil {
+		fail(c, err)
+		return
+	}
+	c.Status(http.StatusNoContent)
+}
+
+// ---- measurements
+
+func (s *Server) listMeasurements(c *gin.Context) {
+	pid, err := pathID(c, "project")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	q, err := query(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	pg, err := s.page(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	l, err := s.opt.Service.ListMeasurements(c.Request.Context(), pid, q, pg)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	renderPage(c, l)
+}
+
+// measurementInput is what a client sends to log or replace a measurement.
+type measurementInput struct {
+	HoleID            int64    `json:"hole_id"`
+	Depth             float64  `json:"depth"`
+	Alpha             float64  `json:"alpha"`
+	Beta              float64  `json:"beta"`
+	Gamma             *float64 `json:"gamma"`
+	Type              string   `json:"type"`
+	ApparentThickness *float64 `json:"apparent_thickness"`
+	Comment           string   `json:"comment"`
+	LoggedBy          string   `json:"logged_by"`
+}
+
+func (s *Server) measurementIn(c *gin.Context) (domain.Measurement, error) {
+	var in measurementInput
+	if err := s.decodeJSON(c, &in); err != nil {
+		return domain.Measurement{}, err
+	}
+	m := domain.Measurement{HoleID: in.HoleID, Depth: in.Depth, Alpha: in.Alpha, Beta: in.Beta, Gamma: in.Gamma,
+		TypeCode: in.Type, ApparentThickness: in.ApparentThickness, Comment: in.Comment, LoggedBy: in.LoggedBy}
+	if in.HoleID <= 0 {
+		return m, domain.FieldErr("hole_id", "hole_id (the id of a hole of this project) is required")
+	}
+	return m, nil
+}
+
+func (s *Server) createMeasurement(c *gin.Context) {
+	pid, err := pathID(c, "project")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	m, err := s.measurementIn(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	v, err := s.opt.Service.CreateMeasurement(c.Request.Context(), pid, m)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	location(c, "projects", itoa(pid), "measurements", itoa(v.ID))
+	setETag(c, v.Version)
+	c.JSON(http.StatusCreated, v)
+}
+
+func (s *Server) getMeasurement(c *gin.Context) {
+	pid, id, err := ids(c, "measurement")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	v, err := s.opt.Service.GetMeasurement(c.Request.Context(), pid, id)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	setETag(c, v.Version)
+	c.JSON(http.StatusOK, v)
+}
+
+func (s *Server) updateMeasurement(c *gin.Context) {
+	pid, id, err := ids(c, "measurement")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	ver, err := ifMatch(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	m, err := s.measurementIn(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	v, err := s.opt.Service.UpdateMeasurement(c.Request.Context(), pid, id, ver, m)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	setETag(c, v.Version)
+	c.JSON(http.StatusOK, v)
+}
+
+func (s *Server) deleteMeasurement(c *gin.Context) {
+	pid, id, err := ids(c, "measurement")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	v, err := ifMatch(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	if err := s.opt.Service.DeleteMeasurement(c.Request.Context(), pid, id, v); err != nil {
+		fail(c, err)
+		return
+	}
+	c.Status(http.StatusNoContent)
+}
+
+// trackingWriter remembers whether anything reached the client, so that an
+// export failing before its first byte can still answer with a problem.
+type trackingWriter struct {
+	gin.ResponseWriter
+	started bool
+}
+
+func (w *trackingWriter) Write(p []byte) (int, error) {
+	if !w.started {
+		w.started = true
+		w.ResponseWriter.Header().Set("Content-Type", "text/csv; charset=utf-8")
+		w.ResponseWriter.WriteHeader(http.StatusOK)
+	}
+	return w.ResponseWriter.Write(p)
+}
+
+func (s *Server) exportMeasurements(c *gin.Context) {
+	pid, err := pathID(c, "project")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	q, err := query(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	c.Header("Content-Disposition", `attachment; filename="measurements-`+itoa(pid)+`.csv"`)
+	w := &trackingWriter{ResponseWriter: c.Writer}
+	err = s.opt.Service.ExportMeasurements(c.Request.Context(), pid, q, w)
+	switch {
+	case err != nil && !w.started:
+		c.Writer.Header().Del("Content-Disposition")
+		fail(c, err)
+	case err != nil:
+		// The status line is gone: cut the connection so the client sees a
+		// broken transfer rather than a short file that looks complete.
+		_ = c.Error(err)
+		panic(http.ErrAbortHandler)
+	case !w.started:
+		_, _ = w.Write(nil)
+	}
+}
+
+// ---- imports
+
+func (s *Server) importCSV(c *gin.Context) {
+	pid, err := pathID(c, "project")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	if ct := c.GetHeader("Content-Type"); ct != "" {
+		mt, _, err := mime.ParseMediaType(ct)
+		if err != nil || (mt != "text/csv" && mt != "text/plain" && mt != "application/octet-stream") {
+			fail(c, errUnsupportedMedia("text/csv"))
+			return
+		}
+	}
+	dry := false
+	if v := c.Query("dry_run"); v != "" {
+		if dry, err = strconv.ParseBool(v); err != nil {
+			fail(c, domain.FieldErr("dry_run", "query parameter dry_run=%q: want true or false", v))
+			return
+		}
+	}
+	limitBody(c, s.opt.MaxImportBytes)
+	if c.IsAborted() {
+		return
+	}
+	res, err := s.opt.Service.Import(c.Request.Context(), pid, service.ImportRequest{
+		Kind: c.Param("kind"), File: c.GetHeader("X-Filename"), Body: c.Request.Body,
+		DryRun: dry, IdempotencyKey: c.GetHeader("Idempotency-Key"),
+	})
+	if err != nil {
+		var mbe *http.MaxBytesError
+		if errors.As(err, &mbe) {
+			err = errTooLarge(mbe.Limit)
+		}
+		fail(c, err)
+		return
+	}
+	status := http.StatusCreated
+	if res.DryRun || res.Replayed {
+		status = http.StatusOK
+	}
+	c.JSON(status, res)
+}
+
+// ---- audit
+
+func (s *Server) listAudit(c *gin.Context) {
+	pid, err := pathID(c, "project")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	pg, err := s.page(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	l, err := s.opt.Service.ListAudit(c.Request.Context(), pid, pg)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	renderPage(c, l)
+}
+
