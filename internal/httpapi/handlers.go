@@ -668,4 +668,3 @@ func (s *Server) listAudit(c *gin.Context) {
 	}
 	renderPage(c, l)
 }
-
