@@ -14,6 +14,7 @@ import (
 	"strconv"
 	"strings"
 
+	"corvane/internal/northref"
 	"corvane/internal/utm"
 	"corvane/internal/wmm"
 )
@@ -160,14 +161,9 @@ func parseFinite(s string) (float64, error) {
 
 // parseZoneLabel reads "50S"-style zones and EPSG:326NN/327NN labels.
 func parseZoneLabel(s string) (utm.Zone, error) {
-	t := strings.ToUpper(strings.TrimSpace(s))
-	if code, ok := strings.CutPrefix(t, "EPSG:"); ok {
-		n, err := strconv.Atoi(code)
-		if err != nil || (n/100 != 326 && n/100 != 327) {
-			return utm.Zone{}, fmt.Errorf("%q is not a WGS 84 / UTM label (EPSG:326NN north or EPSG:327NN south)", s)
-		}
-		z := utm.Zone{Number: n % 100, South: n/100 == 327}
-		return z, z.Valid()
+	if strings.HasPrefix(strings.ToUpper(strings.TrimSpace(s)), "EPSG:") {
+		c, err := northref.ParseCRS(s)
+		return c.Zone, err
 	}
 	return utm.ParseZone(s)
 }
