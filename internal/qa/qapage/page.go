@@ -62,6 +62,8 @@ td.n{text-align:right;font-variant-numeric:tabular-nums;white-space:nowrap}
 .sev-info::before{content:"\00B7  "}
 .legend{display:flex;flex-wrap:wrap;gap:14px;align-items:center;font-size:13px;margin:8px 0}
 .legend svg{vertical-align:middle;margin-right:4px}
+.legend .li{display:inline-flex;align-items:center;white-space:nowrap}
+td.chk{white-space:nowrap}
 .nets{display:flex;flex-wrap:wrap;gap:14px}
 .net{background:#fff;border:1px solid var(--line);padding:6px 8px;font-size:12.5px}
 .strip{background:#fff;border:1px solid var(--line);padding:4px 0;overflow-x:auto}
@@ -167,14 +169,18 @@ func swatch(fill, stroke string) string {
 }
 
 func writeLegend(b *strings.Builder) {
+	item := func(svg, text string) {
+		fmt.Fprintf(b, "<span class=\"li\">%s%s</span>", svg, text)
+	}
 	b.WriteString("<div class=\"legend\" aria-label=\"legend\">")
-	b.WriteString(swatch(colBlue, colInk) + "run rated confident")
-	b.WriteString(swatch("url(#p-other)", colInk) + "run rated usable with care")
-	b.WriteString(swatch("url(#p-unusable)", colInk) + "run rated unusable")
-	b.WriteString(swatch("#fff", colHairline) + "no run")
-	b.WriteString(`<svg width="14" height="12"><path d="M1 1H13L7 11Z" fill="` + colInk + `"/></svg>flag`)
-	b.WriteString(`<svg width="14" height="12"><circle cx="7" cy="6" r="4.5" fill="#fff" stroke="` + colInk + `" stroke-width="1.6"/></svg>warning`)
-	b.WriteString(`<svg width="26" height="12"><rect x="9" y="1" width="8" height="10" fill="` + colPurple + `" stroke="` + colInk + `"/></svg>estimated mark rotation (flagged: outlined, labelled)`)
+	item(swatch(colBlue, colInk), "run rated confident")
+	item(swatch("url(#p-other)", colInk), "run rated usable with care")
+	item(swatch("url(#p-unusable)", colInk), "run rated unusable")
+	item(swatch("#fff", colHairline), "no run")
+	item(`<svg width="14" height="12"><path d="M1 1H13L7 11Z" fill="`+colInk+`"/></svg>`, "flag")
+	item(`<svg width="14" height="12"><circle cx="7" cy="6" r="4.5" fill="#fff" stroke="`+colInk+`" stroke-width="1.6"/></svg>`, "warning")
+	item(`<svg width="26" height="12"><rect x="9" y="1" width="8" height="10" fill="`+colPurple+`" stroke="`+colInk+`"/></svg>`, "estimated mark rotation (flagged: outlined, labelled; grey: not flagged)")
+	item(`<svg width="14" height="14"><line x1="7" x2="7" y1="2" y2="14" stroke="`+colGreen+`" stroke-width="2"/></svg>`, "survey station (taller: further off its neighbours' path)")
 	b.WriteString("</div>")
 }
 
@@ -241,7 +247,7 @@ func findingTable(b *strings.Builder, fs []qa.Finding) {
 		if f.Line > 0 {
 			src += fmt.Sprintf(" line %d", f.Line)
 		}
-		fmt.Fprintf(b, "<tr><td class=\"n\">%s</td><td class=\"sev-%s\">%s</td><td>%s</td><td>%s</td></tr>",
+		fmt.Fprintf(b, "<tr><td class=\"n\">%s</td><td class=\"chk sev-%s\">%s</td><td>%s</td><td class=\"chk\">%s</td></tr>",
 			depth, esc(f.Severity), esc(f.Check), esc(f.Message), src)
 	}
 	b.WriteString("</table>")
