@@ -1,6 +1,7 @@
 package httpapi
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"net/http"
@@ -468,5 +469,35 @@ func TestConcurrentLogging(t *testing.T) {
 	f.must(200, tok, "GET", base+"/measurements?limit=1000", nil, &pg)
 	if len(pg.Items) != rigs*each {
 		t.Errorf("%d rows stored, want %d", len(pg.Items), rigs*each)
+	}
+}
+
+// TestStatisticsAndNet runs statistics and the net over the demo programme.
+func TestStatisticsAndNet(t *testing.T) {
+	f := newFixture(t)
+	p, _, err := f.svc.LoadDemo(service.WithActor(context.Background(), service.System))
+	if err != nil {
+		t.Fatal(err)
+	}
+	base := "/v1/projects/" + itoa(p.ID)
+	var st service.StatsResult
+	f.must(200, f.site, "GET", base+"/statistics?terzaghi=true", nil, &st)
+	if st.Matched == 0 || len(st.Groups) == 0 || !strings.Contains(st.Caution, "licensed practitioner") {
+		t.Errorf("statistics: matched %d, %d groups, caution %q", st.Matched, len(st.Groups), st.Caution)
+	}
+	for _, g := range st.Groups {
+		if g.Weighted == nil {
+			t.Errorf("group %s: no Terzaghi weighted values", g.Name)
+		}
+	}
+	r := f.must(200, f.site, "GET", base+"/net?density=true&max_depth=200", nil, nil)
+	if ct := r.Header.Get("Content-Type"); ct != "image/svg+xml" || !strings.Contains(string(r.Body), "<svg") {
+		t.Errorf("net: %q %.80s", ct, r.Body)
+	}
+	if p := f.do(f.site, "GET", base+"/net?projection=mercator", nil).problem(t); p.Status != 422 {
+		t.Errorf("unknown projection: %+v", p)
+	}
+	if p := f.do(f.site, "GET", base+"/statistics?sets=99", nil).problem(t); p.Status != 422 {
+		t.Errorf("sets=99: %+v", p)
 	}
 }

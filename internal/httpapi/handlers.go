@@ -559,20 +559,42 @@ func (s *Server) deleteMeasurement(c *gin.Context) {
 	c.Status(http.StatusNoContent)
 }
 
-// trackingWriter remembers whether anything reached the client, so that an
-// export failing before its first byte can still answer with a problem.
+// trackingWriter remembers whether anything reached the client, so that a
+// streamed response failing before its first byte can still answer with a
+// problem. The content type is set on the first write.
 type trackingWriter struct {
 	gin.ResponseWriter
-	started bool
+	contentType string
+	started     bool
 }
 
 func (w *trackingWriter) Write(p []byte) (int, error) {
 	if !w.started {
 		w.started = true
-		w.ResponseWriter.Header().Set("Content-Type", "text/csv; charset=utf-8")
+		w.ResponseWriter.Header().Set("Content-Type", w.contentType)
 		w.ResponseWriter.WriteHeader(http.StatusOK)
 	}
 	return w.ResponseWriter.Write(p)
+}
+
+// stream runs write into a trackingWriter and settles the response: a
+// problem when nothing was written yet, a cut connection when the failure
+// came part-way.
+func stream(c *gin.Context, contentType string, write func(w *trackingWriter) error) {
+	w := &trackingWriter{ResponseWriter: c.Writer, contentType: contentType}
+	err := write(w)
+	switch {
+	case err != nil && !w.started:
+		c.Writer.Header().Del("Content-Disposition")
+		fail(c, err)
+	case err != nil:
+		// The status line is gone: cut the connection so the client sees a
+		// broken transfer rather than a short body that looks complete.
+		_ = c.Error(err)
+		panic(http.ErrAbortHandler)
+	case !w.started:
+		_, _ = w.Write(nil)
+	}
 }
 
 func (s *Server) exportMeasurements(c *gin.Context) {
@@ -587,20 +609,85 @@ func (s *Server) exportMeasurements(c *gin.Context) {
 		return
 	}
 	c.Header("Content-Disposition", `attachment; filename="measurements-`+itoa(pid)+`.csv"`)
-	w := &trackingWriter{ResponseWriter: c.Writer}
-	err = s.opt.Service.ExportMeasurements(c.Request.Context(), pid, q, w)
-	switch {
-	case err != nil && !w.started:
-		c.Writer.Header().Del("Content-Disposition")
-		fail(c, err)
-	case err != nil:
-		// The status line is gone: cut the connection so the client sees a
-		// broken transfer rather than a short file that looks complete.
-		_ = c.Error(err)
-		panic(http.ErrAbortHandler)
-	case !w.started:
-		_, _ = w.Write(nil)
+	stream(c, "text/csv; charset=utf-8", func(w *trackingWriter) error {
+		return s.opt.Service.ExportMeasurements(c.Request.Context(), pid, q, w)
+	})
+}
+
+// ---- statistics and nets
+
+// boolParam reads an optional true/false query parameter.
+func boolParam(c *gin.Context, name string) (bool, error) {
+	v := c.Query(name)
+	if v == "" {
+		return false, nil
 	}
+	b, err := strconv.ParseBool(v)
+	if err != nil {
+		return false, domain.FieldErr(name, "query parameter %s=%q: want true or false", name, v)
+	}
+	return b, nil
+}
+
+func (s *Server) statistics(c *gin.Context) {
+	pid, err := pathID(c, "project")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	mq, err := query(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	q := service.StatsQuery{MeasurementQuery: mq}
+	if v := c.Query("sets"); v != "" {
+		if q.Sets, err = strconv.Atoi(v); err != nil {
+			fail(c, domain.FieldErr("sets", "query parameter sets=%q: want an integer", v))
+			return
+		}
+	}
+	if q.Weighting, err = boolParam(c, "terzaghi"); err != nil {
+		fail(c, err)
+		return
+	}
+	if v := c.Query("terzaghi_cap"); v != "" {
+		if q.TerzaghiCap, err = strconv.ParseFloat(v, 64); err != nil {
+			fail(c, domain.FieldErr("terzaghi_cap", "query parameter terzaghi_cap=%q: want a number", v))
+			return
+		}
+	}
+	res, err := s.opt.Service.Statistics(c.Request.Context(), pid, q)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	c.JSON(http.StatusOK, res)
+}
+
+func (s *Server) net(c *gin.Context) {
+	pid, err := pathID(c, "project")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	mq, err := query(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	q := service.NetQuery{MeasurementQuery: mq, Projection: c.Query("projection"), Title: c.Query("title")}
+	if q.Density, err = boolParam(c, "density"); err != nil {
+		fail(c, err)
+		return
+	}
+	if q.Planes, err = boolParam(c, "planes"); err != nil {
+		fail(c, err)
+		return
+	}
+	stream(c, "image/svg+xml", func(w *trackingWriter) error {
+		return s.opt.Service.Net(c.Request.Context(), pid, q, w)
+	})
 }
 
 // ---- imports

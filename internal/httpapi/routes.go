@@ -62,6 +62,9 @@ func (s *Server) routes() {
 	p.DELETE("/measurements/:measurement", s.deleteMeasurement)
 	p.GET("/measurements.csv", s.exportMeasurements)
 
+	p.GET("/statistics", s.statistics)
+	p.GET("/net", s.net)
+
 	p.POST("/imports/:kind", s.importCSV)
 	p.GET("/audit", s.listAudit)
 }

@@ -1,0 +1,187 @@
+package cli
+
+import (
+	"context"
+	"errors"
+	"flag"
+	"fmt"
+	"io"
+	"log/slog"
+	"net"
+	"net/http"
+	"strings"
+	"time"
+
+	"corvane/internal/config"
+	"corvane/internal/domain"
+	"corvane/internal/httpapi"
+	"corvane/internal/service"
+	"corvane/internal/store/postgres"
+	"corvane/internal/store/sqlite"
+	"corvane/internal/web"
+)
+
+func init() {
+	register(command{name: "serve", summary: "run the HTTP service (add --demo for a demonstration programme)", run: runServe})
+}
+
+func runServe(ctx context.Context, env *Env, args []string) int {
+	cfg, err := config.FromEnv(env.Getenv)
+	if err != nil {
+		fmt.Fprintln(env.Stderr, "corvane serve:", err)
+		return ExitUsage
+	}
+	fs := flag.NewFlagSet("serve", flag.ContinueOnError)
+	fs.SetOutput(env.Stderr)
+	fs.Usage = func() {
+		fmt.Fprintln(env.Stderr, "Usage: corvane serve [--addr host:port] [--db postgres://...|file.db] [--demo] [options]")
+		fs.PrintDefaults()
+	}
+	cfg.Bind(fs)
+	if err := fs.Parse(args); err != nil {
+		if errors.Is(err, flag.ErrHelp) {
+			return ExitOK
+		}
+		return ExitUsage
+	}
+	if fs.NArg() > 0 {
+		fmt.Fprintf(env.Stderr, "corvane serve: unexpected argument %q\n", fs.Arg(0))
+		return ExitUsage
+	}
+	if err := cfg.Validate(); err != nil {
+		fmt.Fprintln(env.Stderr, "corvane serve:", err)
+		return ExitUsage
+	}
+	log := newLogger(env.Stderr, cfg)
+	if err := serve(ctx, env, cfg, log); err != nil {
+		log.Error("serve failed", "error", err)
+		fmt.Fprintln(env.Stderr, "corvane serve:", err)
+		return 1
+	}
+	return ExitOK
+}
+
+func newLogger(w io.Writer, cfg config.Config) *slog.Logger {
+	var level slog.Level
+	_ = level.UnmarshalText([]byte(strings.ToUpper(cfg.LogLevel)))
+	opts := &slog.HandlerOptions{Level: level}
+	if cfg.LogFormat == "json" {
+		return slog.New(slog.NewJSONHandler(w, opts))
+	}
+	return slog.New(slog.NewTextHandler(w, opts))
+}
+
+// listenAndServe serves h on cfg.Addr until ctx is done, then stops taking
+// new connections and waits (at most cfg.ShutdownTimeout) for the requests in
+// flight to finish. ready is called with the listening URL.
+func listenAndServe(ctx context.Context, cfg config.Config, h http.Handler, log *slog.Logger, ready func(url string)) error {
+	ln, err := net.Listen("tcp", cfg.Addr)
+	if err != nil {
+		return fmt.Errorf("listening on %s: %w", cfg.Addr, err)
+	}
+	srv := &http.Server{
+		Handler:           h,
+		ReadHeaderTimeout: 10 * time.Second,
+		ReadTimeout:       cfg.ReadTimeout,
+		WriteTimeout:      cfg.WriteTimeout,
+		IdleTimeout:       2 * time.Minute,
+		MaxHeaderBytes:    64 << 10,
+		ErrorLog:          slog.NewLogLogger(log.Handler(), slog.LevelWarn),
+		// Requests keep a context of their own: a shutdown signal must not
+		// cancel the work of requests already in flight.
+		BaseContext: func(net.Listener) context.Context { return context.WithoutCancel(ctx) },
+	}
+	errc := make(chan error, 1)
+	go func() { errc <- srv.Serve(ln) }()
+	url := "http://" + ln.Addr().String()
+	log.Info("listening", "url", url, "config", cfg.String())
+	ready(url)
+	select {
+	case err := <-errc:
+		return err
+	case <-ctx.Done():
+	}
+	log.Info("shutting down: finishing requests in flight", "timeout", cfg.ShutdownTimeout)
+	sctx, cancel := context.WithTimeout(context.WithoutCancel(ctx), cfg.ShutdownTimeout)
+	defer cancel()
+	if err := srv.Shutdown(sctx); err != nil {
+		_ = srv.Close()
+		return fmt.Errorf("shutdown: %w", err)
+	}
+	if err := <-errc; err != nil && !errors.Is(err, http.ErrServerClosed) {
+		return err
+	}
+	log.Info("stopped")
+	return nil
+}
+
+// serve opens and migrates the store, loads the demo when asked, and serves
+// the API until ctx is done.
+func serve(ctx context.Context, env *Env, cfg config.Config, log *slog.Logger) error {
+	st, err := openServiceStore(ctx, cfg.DatabaseURL)
+	if err != nil {
+		return err
+	}
+	defer st.Close()
+	svc := service.New(st, log)
+	var demoLine string
+	if cfg.Demo {
+		if demoLine, err = loadDemo(ctx, svc, log); err != nil {
+			return err
+		}
+	}
+	h := httpapi.New(httpapi.Options{
+		Service:         svc,
+		Logger:          log,
+		MaxBodyBytes:    cfg.MaxBodyBytes,
+		MaxImportBytes:  cfg.MaxImportBytes,
+		DefaultPageSize: cfg.DefaultPageSize,
+		MaxPageSize:     cfg.MaxPageSize,
+		Web:             web.Handler(),
+	})
+	return listenAndServe(ctx, cfg, h, log, func(url string) {
+		// These two lines are stable: scripts and tests read them.
+		fmt.Fprintf(env.Stdout, "corvane: listening on %s\n", url)
+		if demoLine != "" {
+			fmt.Fprintln(env.Stdout, demoLine)
+		}
+	})
+}
+
+// openServiceStore opens the store named by a database URL (postgres:// or a
+// SQLite file path) and applies pending migrations.
+func openServiceStore(ctx context.Context, dbURL string) (domain.Store, error) {
+	if config.IsPostgresURL(dbURL) {
+		// Replicas starting together are safe: migrate holds PostgreSQL's
+		// advisory lock while it applies migrations.
+		if err := postgres.Migrate(dbURL, 0); err != nil {
+			return nil, fmt.Errorf("migrating %s: %w", config.RedactDatabaseURL(dbURL), err)
+		}
+		return postgres.Open(ctx, dbURL)
+	}
+	path := sqlite.Path(dbURL)
+	if err := sqlite.Migrate(path, 0); err != nil {
+		return nil, fmt.Errorf("migrating %s: %w", path, err)
+	}
+	st, err := sqlite.Open(ctx, path)
+	if err != nil {
+		return nil, err
+	}
+	return st, nil
+}
+
+// loadDemo loads the demonstration programme unless it is there, and makes
+// a new admin token for it. It returns the line to print.
+func loadDemo(ctx context.Context, svc *service.Service, log *slog.Logger) (string, error) {
+	sys := service.WithActor(ctx, service.System)
+	p, loaded, err := svc.LoadDemo(sys)
+	if err != nil {
+		return "", fmt.Errorf("loading the demo programme: %w", err)
+	}
+	secret, _, err := svc.CreateToken(sys, p.ID, domain.RoleAdmin, "serve --demo "+time.Now().UTC().Format(time.RFC3339))
+	if err != nil {
+		return "", fmt.Errorf("making the demo token: %w", err)
+	}
+	log.Info("demo programme", "project", p.ID, "name", p.Name, "loaded_now", loaded)
+	return fmt.Sprintf("corvane: demo project %d %q; demo admin token: %s", p.ID, p.Name, secret), nil
+}
