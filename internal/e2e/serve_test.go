@@ -1,0 +1,208 @@
+package e2e
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"net/http"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+
+	"corvane/internal/loadtest"
+	"corvane/internal/pgtest"
+)
+
+// stores lists the stores every end-to-end test runs on: a SQLite file, and
+// PostgreSQL when pgtest can give a database.
+func stores(t *testing.T, run func(t *testing.T, db string)) {
+	t.Run("sqlite", func(t *testing.T) {
+		run(t, filepath.Join(t.TempDir(), "corvane.db"))
+	})
+	t.Run("postgres", func(t *testing.T) {
+		run(t, pgtest.DB(t))
+	})
+}
+
+type page struct {
+	Items []struct {
+		ID      int64          `json:"id"`
+		Name    string         `json:"name"`
+		Version int64          `json:"version"`
+		Alpha   float64        `json:"alpha"`
+		Derived map[string]any `json:"derived"`
+	} `json:"items"`
+	NextAfter *int64 `json:"next_after"`
+}
+
+// count pages through a list and returns the number of items.
+func count(t *testing.T, s *server, path string) int {
+	t.Helper()
+	n, after := 0, int64(0)
+	sep := "?"
+	if strings.Contains(path, "?") {
+		sep = "&"
+	}
+	for {
+		var p page
+		s.mustJSON(t, 200, "GET", fmt.Sprintf("%s%slimit=1000&after=%d", path, sep, after), nil, &p)
+		n += len(p.Items)
+		if p.NextAfter == nil {
+			return n
+		}
+		after = *p.NextAfter
+	}
+}
+
+// TestServeDemo starts `corvane serve --demo` on a fresh store: the printed
+// token works, the demo programme is there with derived values, a second
+// start finds it and loads nothing twice, and SIGTERM stops the server cleanly.
+func TestServeDemo(t *testing.T) {
+	stores(t, func(t *testing.T, db string) {
+		s := start(t, db, "--demo")
+		if !strings.HasPrefix(s.Token, "cvt_") {
+			t.Fatalf("demo token %q", s.Token)
+		}
+		var projects page
+		s.mustJSON(t, 200, "GET", "/v1/projects", nil, &projects)
+		if len(projects.Items) != 1 {
+			t.Fatalf("%d projects visible to the demo token, want 1", len(projects.Items))
+		}
+		pid := projects.Items[0].ID
+		base := fmt.Sprintf("/v1/projects/%d", pid)
+		holes := count(t, s, base+"/holes")
+		ms := count(t, s, base+"/measurements")
+		if holes < 3 || ms < 200 {
+			t.Errorf("demo programme: %d holes, %d measurements; want a few holes and a few hundred measurements", holes, ms)
+		}
+		var one page
+		s.mustJSON(t, 200, "GET", base+"/measurements?limit=1", nil, &one)
+		if len(one.Items) != 1 || one.Items[0].Derived["dip"] == nil {
+			t.Errorf("first measurement has no derived dip: %+v", one.Items)
+		}
+		code, h, body := s.call(t, "GET", "/metrics", nil)
+		if code != 200 || !strings.Contains(string(body), `corvane_http_requests_total{method="GET",route="/v1/projects/:project/measurements",status="200"}`) {
+			t.Errorf("/metrics: %d %s", code, h.Get("Content-Type"))
+		}
+		s.stop(t)
+
+		// Again on the same store: nothing loaded twice, a new token.
+		s2 := start(t, db, "--demo")
+		if s2.Token == s.Token {
+			t.Error("second start printed the same token")
+		}
+		s2.mustJSON(t, 200, "GET", "/v1/projects", nil, &projects)
+		if len(projects.Items) != 1 || projects.Items[0].ID != pid {
+			t.Errorf("after a second --demo start: %+v", projects.Items)
+		}
+		if n := count(t, s2, base+"/measurements"); n != ms {
+			t.Errorf("after a second --demo start: %d measurements, want %d", n, ms)
+		}
+		// The first token still works: tokens live in the store.
+		s2.Token = s.Token
+		s2.mustJSON(t, 200, "GET", base, nil, nil)
+		s2.stop(t)
+	})
+}
+
+// TestGracefulShutdown sends SIGTERM while an import is still uploading: the
+// server stops taking new work but finishes that request, and its rows are
+// there after a restart.
+func TestGracefulShutdown(t *testing.T) {
+	stores(t, func(t *testing.T, db string) {
+		s := start(t, db, "--demo")
+		var projects page
+		s.mustJSON(t, 200, "GET", "/v1/projects", nil, &projects)
+		base := fmt.Sprintf("/v1/projects/%d", projects.Items[0].ID)
+		before := count(t, s, base+"/measurements?hole=TM001")
+
+		pr, pw := io.Pipe()
+		req, _ := http.NewRequest("POST", s.URL+base+"/imports/measurements", pr)
+		req.Header.Set("Authorization", "Bearer "+s.Token)
+		req.Header.Set("Content-Type", "text/csv")
+		type result struct {
+			code int
+			body string
+			err  error
+		}
+		done := make(chan result, 1)
+		go func() {
+			resp, err := http.DefaultClient.Do(req)
+			if err != nil {
+				done <- result{err: err}
+				return
+			}
+			b, _ := io.ReadAll(resp.Body)
+			resp.Body.Close()
+			done <- result{code: resp.StatusCode, body: string(b)}
+		}()
+		const rows = 400
+		fmt.Fprintln(pw, "hole_id,depth,alpha,beta,type,comment")
+		for i := range rows / 2 {
+			fmt.Fprintf(pw, "TM001,%.2f,40,120,joint,in flight\n", 1+float64(i)*0.01)
+		}
+		// The request is in flight; ask the server to stop.
+		time.Sleep(200 * time.Millisecond)
+		if err := s.cmd.Process.Signal(sigterm); err != nil {
+			t.Fatal(err)
+		}
+		time.Sleep(300 * time.Millisecond)
+		for i := rows / 2; i < rows; i++ {
+			fmt.Fprintf(pw, "TM001,%.2f,40,120,joint,in flight\n", 1+float64(i)*0.01)
+		}
+		pw.Close()
+		var r result
+		select {
+		case r = <-done:
+		case <-time.After(60 * time.Second):
+			t.Fatal("the in-flight import got no answer")
+		}
+		if r.err != nil || r.code != 201 {
+			t.Fatalf("in-flight import: %v %d %s", r.err, r.code, r.body)
+		}
+		select {
+		case err := <-s.done:
+			if err != nil {
+				t.Fatalf("server exit after SIGTERM: %v\n%s", err, s.out)
+			}
+		case <-time.After(60 * time.Second):
+			t.Fatal("server did not exit after finishing the request")
+		}
+		s2 := start(t, db)
+		s2.Token = s.Token
+		if n := count(t, s2, base+"/measurements?hole=TM001"); n != before+rows {
+			t.Errorf("after restart: %d measurements in TM001, want %d", n, before+rows)
+		}
+		s2.stop(t)
+	})
+}
+
+// TestLoad runs the bounded load test against the real binary: 16 clients
+// logging measurements and importing files for a short, fixed time, then
+// every row is counted (nothing lost, nothing doubled). The figures for the
+// README come from cmd/corvane-load with a longer run.
+func TestLoad(t *testing.T) {
+	if testing.Short() {
+		t.Skip("load test skipped in -short mode")
+	}
+	stores(t, func(t *testing.T, db string) {
+		s := start(t, db, "--demo", "--log-level", "warn")
+		var projects page
+		s.mustJSON(t, 200, "GET", "/v1/projects", nil, &projects)
+		ctx, cancel := context.WithTimeout(context.Background(), 2*time.Minute)
+		defer cancel()
+		res, err := loadtest.Run(ctx, loadtest.Config{
+			BaseURL: s.URL, Token: s.Token, Project: projects.Items[0].ID,
+			Clients: 16, Duration: 3 * time.Second, ImportRow: 20, ImportEvery: 8, Seed: 7,
+		})
+		t.Logf("load test:\n%s", res)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if res.Logged == 0 || res.Imports == 0 || res.Retries == 0 {
+			t.Errorf("the load did not exercise every path: %+v", res)
+		}
+		s.stop(t)
+	})
+}
