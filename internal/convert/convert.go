@@ -228,7 +228,11 @@ func (hs *Holes) Convert(ctx context.Context, r io.Reader, w io.Writer) (Summary
 		for i := range b.rows {
 			row := &b.rows[i]
 			sum.Rows++
-			writeRecord(cw, row.Record, len(sr.Header.Names))
+			if len(row.Record) == len(sr.Header.Names) {
+				cw.Raw(row.Raw) // the input columns exactly as read
+			} else {
+				writeRecord(cw, row.Record, len(sr.Header.Names))
+			}
 			if row.Err != nil {
 				sum.BadRows++
 				writeEmpty(cw, len(outCols)-1)
@@ -338,12 +342,15 @@ func writeResult(cw *csvio.Writer, r *Result, thick bool, scratch []byte) []byte
 // batchRows is the number of rows read ahead in one batch.
 const batchRows = 512
 
-// batch is a run of parsed rows; Record slices point into fields.
+// batch is a run of parsed rows; Record and Raw slices point into fields
+// and raw.
 type batch struct {
-	rows   []csvio.StructureRow
-	fields []string
-	spans  []int
-	err    error // the read error that ended the input, if any
+	rows     []csvio.StructureRow
+	fields   []string
+	spans    []int
+	raw      []byte
+	rawSpans []int
+	err      error // the read error that ended the input, if any
 }
 
 type pipe struct {
@@ -369,7 +376,7 @@ func readAhead(sr *csvio.StructureReader) *pipe {
 			case <-p.done:
 				return
 			}
-			b.rows, b.fields, b.spans, b.err = b.rows[:0], b.fields[:0], b.spans[:0], nil
+			b.rows, b.fields, b.spans, b.raw, b.rawSpans, b.err = b.rows[:0], b.fields[:0], b.spans[:0], b.raw[:0], b.rawSpans[:0], nil
 			end := false
 			for len(b.rows) < batchRows {
 				row, err := sr.Next()
@@ -383,6 +390,8 @@ func readAhead(sr *csvio.StructureReader) *pipe {
 				}
 				b.spans = append(b.spans, len(b.fields))
 				b.fields = append(b.fields, row.Record...)
+				b.rawSpans = append(b.rawSpans, len(b.raw))
+				b.raw = append(b.raw, row.Raw...)
 				b.rows = append(b.rows, *row)
 			}
 			for i := range b.rows {
@@ -391,6 +400,11 @@ func readAhead(sr *csvio.StructureReader) *pipe {
 					to = b.spans[i+1]
 				}
 				b.rows[i].Record = b.fields[b.spans[i]:to:to]
+				to = len(b.raw)
+				if i+1 < len(b.rawSpans) {
+					to = b.rawSpans[i+1]
+				}
+				b.rows[i].Raw = b.raw[b.rawSpans[i]:to:to]
 			}
 			select {
 			case p.full <- b:

@@ -1,7 +1,6 @@
 package csvio
 
 import (
-	"encoding/csv"
 	"io"
 	"math"
 	"strings"
@@ -19,6 +18,9 @@ var StructureColumns = []string{ColHoleID, ColDepth, ColAlpha, ColBeta}
 type StructureRow struct {
 	Line   int
 	Record []string // all cells of the row as read, in header order
+	// Raw is the row's text as read (CSV, quotes kept, line ends normalised
+	// to "\n", without the final one), for copying the input columns through.
+	Raw    []byte
 	HoleID string
 	Depth  float64
 	Alpha  float64
@@ -44,7 +46,7 @@ type StructureRow struct {
 // does not grow with the number of rows.
 type StructureReader struct {
 	Header                                       *Header
-	cr                                           *csv.Reader
+	cr                                           *recordReader
 	file                                         string
 	iHole, iDepth, iAlpha, iBeta, iGamma, iThick int
 	row                                          StructureRow
@@ -53,7 +55,7 @@ type StructureReader struct {
 // NewStructureReader reads the header of a structures file. file names it in
 // messages. A missing column or an unreadable header is an error.
 func NewStructureReader(r io.Reader, file string) (*StructureReader, error) {
-	cr := newReader(r)
+	cr := newRecordReader(r)
 	h, err := readHeader(cr, file, StructureColumns...)
 	if err != nil {
 		return nil, err
@@ -90,9 +92,9 @@ func (s *StructureReader) Next() (*StructureRow, error) {
 	if err != nil {
 		return nil, parseErr(s.file, err)
 	}
-	line, _ := s.cr.FieldPos(0)
+	line := s.cr.recLine
 	r := &s.row
-	*r = StructureRow{Line: line, Record: rec, Gamma: math.NaN(), Thickness: math.NaN()}
+	*r = StructureRow{Line: line, Record: rec, Raw: s.cr.raw, Gamma: math.NaN(), Thickness: math.NaN()}
 	if len(rec) != len(s.Header.Names) {
 		r.Err = invalid(s.file, line, "", "row has %d fields, the header has %d", len(rec), len(s.Header.Names))
 		return r, nil

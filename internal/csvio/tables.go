@@ -90,7 +90,7 @@ func newReader(r io.Reader) *csv.Reader {
 
 // readHeader reads and checks the header line: not empty, no duplicate or
 // empty names, all required columns present.
-func readHeader(cr *csv.Reader, file string, required ...string) (*Header, error) {
+func readHeader(cr interface{ Read() ([]string, error) }, file string, required ...string) (*Header, error) {
 	rec, err := cr.Read()
 	if err == io.EOF {
 		return nil, invalid(file, 1, "", "empty file: want a header line with columns %s", strings.Join(required, ", "))
