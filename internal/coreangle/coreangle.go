@@ -144,11 +144,8 @@ const (
 	// Extrapolated: the depth is below the last survey station; the hole
 	// direction is extrapolated straight on.
 	Extrapolated
-	// GammaOffPlane: the line given to [Gamma] was not exactly on the plane and
-	// was projected onto it.
-	GammaOffPlane
 
-	warnCount = 5
+	warnCount = 4
 )
 
 // NearVerticalLimit is the angle from vertical, in degrees, inside which a
@@ -174,7 +171,6 @@ var warnNames = [warnCount]string{
 	"vertical hole: dip = 90 - alpha, no dip direction",
 	"alpha >= 85: beta poorly defined",
 	"extrapolated below last survey station",
-	"lineation projected onto plane",
 }
 
 var warnStrings = func() (s [1 << warnCount]string) {
