@@ -171,7 +171,11 @@ func (c *collect) err(what string) error {
 func Report(w io.Writer, err error) {
 	var de *domain.Error
 	if errors.As(err, &de) && len(de.Problems) > 1 {
-		fmt.Fprintf(w, "%d problems in %s:\n", len(de.Problems), de.Loc.File)
+		if de.Loc.File != "" {
+			fmt.Fprintf(w, "%d problems in %s:\n", len(de.Problems), de.Loc.File)
+		} else {
+			fmt.Fprintf(w, "%d problems:\n", len(de.Problems))
+		}
 		for _, p := range de.Problems {
 			fmt.Fprintf(w, "  %v\n", p)
 		}
