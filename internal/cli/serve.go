@@ -16,8 +16,7 @@ import (
 	"corvane/internal/domain"
 	"corvane/internal/httpapi"
 	"corvane/internal/service"
-	"corvane/internal/store/postgres"
-	"corvane/internal/store/sqlite"
+	"corvane/internal/store"
 	"corvane/internal/web"
 )
 
@@ -118,9 +117,11 @@ func listenAndServe(ctx context.Context, cfg config.Config, h http.Handler, log 
 // serve opens and migrates the store, loads the demo when asked, and serves
 // the API until ctx is done.
 func serve(ctx context.Context, env *Env, cfg config.Config, log *slog.Logger) error {
-	st, err := openServiceStore(ctx, cfg.DatabaseURL)
+	// Applies pending migrations first; on PostgreSQL under migrate's
+	// advisory lock, so replicas starting together are safe.
+	st, err := store.OpenMigrated(ctx, cfg.DatabaseURL)
 	if err != nil {
-		return err
+		return fmt.Errorf("opening %s: %w", config.RedactDatabaseURL(cfg.DatabaseURL), err)
 	}
 	defer st.Close()
 	svc := service.New(st, log)
@@ -146,28 +147,6 @@ func serve(ctx context.Context, env *Env, cfg config.Config, log *slog.Logger) e
 			fmt.Fprintln(env.Stdout, demoLine)
 		}
 	})
-}
-
-// openServiceStore opens the store named by a database URL (postgres:// or a
-// SQLite file path) and applies pending migrations.
-func openServiceStore(ctx context.Context, dbURL string) (domain.Store, error) {
-	if config.IsPostgresURL(dbURL) {
-		// Replicas starting together are safe: migrate holds PostgreSQL's
-		// advisory lock while it applies migrations.
-		if err := postgres.Migrate(dbURL, 0); err != nil {
-			return nil, fmt.Errorf("migrating %s: %w", config.RedactDatabaseURL(dbURL), err)
-		}
-		return postgres.Open(ctx, dbURL)
-	}
-	path := sqlite.Path(dbURL)
-	if err := sqlite.Migrate(path, 0); err != nil {
-		return nil, fmt.Errorf("migrating %s: %w", path, err)
-	}
-	st, err := sqlite.Open(ctx, path)
-	if err != nil {
-		return nil, err
-	}
-	return st, nil
 }
 
 // loadDemo loads the demonstration programme unless it is there, and makes

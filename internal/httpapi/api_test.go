@@ -3,6 +3,7 @@ package httpapi
 import (
 	"context"
 	"fmt"
+	"io"
 	"math"
 	"net/http"
 	"net/http/httptest"
@@ -499,5 +500,52 @@ func TestStatisticsAndNet(t *testing.T) {
 	}
 	if p := f.do(f.site, "GET", base+"/statistics?sets=99", nil).problem(t); p.Status != 422 {
 		t.Errorf("sets=99: %+v", p)
+	}
+}
+
+// TestImportLimit: an upload over the import limit is refused with 413 and
+// writes nothing; one over the in-memory spool size still imports.
+func TestImportLimit(t *testing.T) {
+	f := newFixture(t, func(o *Options) { o.MaxImportBytes = 64 << 10 })
+	pid := f.project("Limits", nil)
+	f.hole(pid, "LM001", 0, -60)
+	base := "/v1/projects/" + itoa(pid)
+	var b strings.Builder
+	b.WriteString("hole_id,depth,alpha,beta,type\n")
+	for i := 0; b.Len() < 70<<10; i++ {
+		fmt.Fprintf(&b, "LM001,%.2f,45,90,JN\n", 1+float64(i)*0.01)
+	}
+	if p := f.do(f.site, "POST", base+"/imports/measurements", b.String()).problem(t); p.Status != 413 {
+		t.Errorf("oversized import: %+v", p)
+	}
+	// Without Content-Length (a chunked upload) the limit holds as well.
+	req := httptest.NewRequest("POST", base+"/imports/measurements", io.MultiReader(strings.NewReader(b.String())))
+	req.ContentLength = -1
+	req.Header.Set("Authorization", "Bearer "+f.site)
+	req.Header.Set("Content-Type", "text/csv")
+	w := httptest.NewRecorder()
+	f.h.ServeHTTP(w, req)
+	if w.Code != 413 {
+		t.Errorf("oversized chunked import: %d %s", w.Code, w.Body)
+	}
+	var pg struct {
+		Items []view `json:"items"`
+	}
+	f.must(200, f.site, "GET", base+"/measurements", nil, &pg)
+	if len(pg.Items) != 0 {
+		t.Errorf("refused imports wrote %d rows", len(pg.Items))
+	}
+}
+
+func TestSpoolLargeBody(t *testing.T) {
+	big := strings.Repeat("0123456789abcdef", (spoolMemory/16)+1000)
+	r, cleanup, err := spool(strings.NewReader(big))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer cleanup()
+	got, err := io.ReadAll(r)
+	if err != nil || string(got) != big {
+		t.Fatalf("spooled body differs (%d of %d bytes, %v)", len(got), len(big), err)
 	}
 }

@@ -716,15 +716,21 @@ func (s *Server) importCSV(c *gin.Context) {
 	if c.IsAborted() {
 		return
 	}
+	body, cleanup, err := spool(c.Request.Body)
+	defer cleanup()
+	if err != nil {
+		var mbe *http.MaxBytesError
+		if !errors.As(err, &mbe) {
+			err = errBadRequest("reading the upload: " + err.Error())
+		}
+		fail(c, err)
+		return
+	}
 	res, err := s.opt.Service.Import(c.Request.Context(), pid, service.ImportRequest{
-		Kind: c.Param("kind"), File: c.GetHeader("X-Filename"), Body: c.Request.Body,
+		Kind: c.Param("kind"), File: c.GetHeader("X-Filename"), Body: body,
 		DryRun: dry, IdempotencyKey: c.GetHeader("Idempotency-Key"),
 	})
 	if err != nil {
-		var mbe *http.MaxBytesError
-		if errors.As(err, &mbe) {
-			err = errTooLarge(mbe.Limit)
-		}
 		fail(c, err)
 		return
 	}
