@@ -12,7 +12,7 @@ import (
 	"corvane/internal/store"
 )
 
-func runCLI(t *testing.T, env map[string]string, args ...string) (int, string, string) {
+func runWithEnv(t *testing.T, env map[string]string, args ...string) (int, string, string) {
 	t.Helper()
 	var out, errb bytes.Buffer
 	code := Main(context.Background(), args, strings.NewReader(""), &out, &errb, func(k string) string { return env[k] })
@@ -22,16 +22,16 @@ func runCLI(t *testing.T, env map[string]string, args ...string) (int, string, s
 func TestMigrateCommand(t *testing.T) {
 	db := filepath.Join(t.TempDir(), "m.db")
 	env := map[string]string{"CORVANE_DATABASE_URL": db}
-	if code, out, errs := runCLI(t, env, "migrate", "version"); code != ExitOK || out != "schema version 0\n" {
+	if code, out, errs := runWithEnv(t, env, "migrate", "version"); code != ExitOK || out != "schema version 0\n" {
 		t.Fatalf("version on a fresh file: %d %q %q", code, out, errs)
 	}
-	if code, out, errs := runCLI(t, env, "migrate", "up"); code != ExitOK || out != "schema version 1\n" {
+	if code, out, errs := runWithEnv(t, env, "migrate", "up"); code != ExitOK || out != "schema version 1\n" {
 		t.Fatalf("up: %d %q %q", code, out, errs)
 	}
-	if code, out, _ := runCLI(t, nil, "migrate", "down", "--db", db); code != ExitOK || out != "schema version 0\n" {
+	if code, out, _ := runWithEnv(t, nil, "migrate", "down", "--db", db); code != ExitOK || out != "schema version 0\n" {
 		t.Fatalf("down with --db: %d %q", code, out)
 	}
-	if code, _, errs := runCLI(t, env, "migrate", "sideways"); code != ExitUsage || !strings.Contains(errs, "sideways") {
+	if code, _, errs := runWithEnv(t, env, "migrate", "sideways"); code != ExitUsage || !strings.Contains(errs, "sideways") {
 		t.Fatalf("unknown action: %d %q", code, errs)
 	}
 }
@@ -39,14 +39,14 @@ func TestMigrateCommand(t *testing.T) {
 func TestTokenCommand(t *testing.T) {
 	db := filepath.Join(t.TempDir(), "t.db")
 	env := map[string]string{"CORVANE_DATABASE_URL": db}
-	if code, _, errs := runCLI(t, env, "token", "create", "--project", "all", "--role", "admin"); code != ExitRows || !strings.Contains(errs, "migrate up") {
+	if code, _, errs := runWithEnv(t, env, "token", "create", "--project", "all", "--role", "admin"); code != ExitRows || !strings.Contains(errs, "migrate up") {
 		t.Fatalf("token on an empty database: %d %q", code, errs)
 	}
-	runCLI(t, env, "migrate", "up")
-	if code, _, _ := runCLI(t, env, "token", "create", "--project", "all", "--role", "owner"); code != ExitUsage {
+	runWithEnv(t, env, "migrate", "up")
+	if code, _, _ := runWithEnv(t, env, "token", "create", "--project", "all", "--role", "owner"); code != ExitUsage {
 		t.Fatalf("bad role accepted: %d", code)
 	}
-	code, out, errs := runCLI(t, env, "token", "create", "--project", "all", "--role", "admin", "--name", "site admin")
+	code, out, errs := runWithEnv(t, env, "token", "create", "--project", "all", "--role", "admin", "--name", "site admin")
 	if code != ExitOK {
 		t.Fatalf("token create: %d %q", code, errs)
 	}
@@ -67,14 +67,14 @@ func TestTokenCommand(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	code, out, errs = runCLI(t, env, "token", "create", "--project", "Tallowmere", "--role", "log")
+	code, out, errs = runWithEnv(t, env, "token", "create", "--project", "Tallowmere", "--role", "log")
 	if code != ExitOK {
 		t.Fatalf("project token: %d %q", code, errs)
 	}
 	if a, err := svc.Authenticate(ctx, strings.TrimSpace(out)); err != nil || a.ProjectID != p.ID || a.Role != domain.RoleLog {
 		t.Fatalf("project token authenticates as %+v, %v", a, err)
 	}
-	if code, _, _ := runCLI(t, env, "token", "create", "--project", "Nowhere", "--role", "log"); code != ExitRows {
+	if code, _, _ := runWithEnv(t, env, "token", "create", "--project", "Nowhere", "--role", "log"); code != ExitRows {
 		t.Fatalf("unknown project: %d", code)
 	}
 }
