@@ -73,8 +73,15 @@ func Run(in Input, opt Options) Report {
 	add(in.Problems...)
 
 	holes := map[string]*holeData{}
+	skip := map[string]bool{} // holes with an unusable collar, already reported
 	var order []*holeData
 	for _, c := range in.Collars {
+		if bad := collarProblem(c); bad != "" {
+			add(Finding{Check: CheckSurveyInvalid, Severity: SeverityFlag, HoleID: c.HoleID, Source: "collars", Line: c.Line,
+				Message: fmt.Sprintf("hole %s is not checked: its collar has %s", c.HoleID, bad)})
+			skip[c.HoleID] = true
+			continue
+		}
 		if _, dup := holes[c.HoleID]; dup {
 			add(Finding{Check: CheckUnknownHole, Severity: SeverityFlag, HoleID: c.HoleID, Source: "collars", Line: c.Line,
 				Message: fmt.Sprintf("hole %s has a second collar row; the first is used", c.HoleID)})
@@ -86,6 +93,9 @@ func Run(in Input, opt Options) Report {
 	}
 	unknown := map[string]map[string]int{} // hole -> source -> rows
 	noHole := func(id, src string) {
+		if skip[id] {
+			return
+		}
 		if unknown[id] == nil {
 			unknown[id] = map[string]int{}
 		}
@@ -184,6 +194,10 @@ func Run(in Input, opt Options) Report {
 		}
 		return a.Check < b.Check
 	})
+	for i := range findings { // JSON has no NaN or infinities
+		f := &findings[i]
+		f.Depth, f.DepthTo, f.Size = finiteOr(f.Depth, 0), finiteOr(f.DepthTo, 0), finiteOr(f.Size, 0)
+	}
 	if findings == nil {
 		findings = []Finding{}
 	}
@@ -277,7 +291,18 @@ func checkHole(h *holeData, conv coreangle.Convention, o Options, loggers map[st
 	h.path = path
 	out = append(out, surveyChecks(h.c, good, h.zones, o, hr)...)
 
-	// Runs.
+	// Runs: leave out the ones without a usable interval.
+	okRuns := h.runs[:0]
+	for _, r := range h.runs {
+		if math.IsNaN(r.From) || math.IsNaN(r.To) || math.IsInf(r.From, 0) || math.IsInf(r.To, 0) || r.From < 0 || r.To <= r.From ||
+			(r.Mismatch != nil && (math.IsNaN(*r.Mismatch) || math.IsInf(*r.Mismatch, 0))) {
+			out = append(out, Finding{Check: CheckRunInvalid, Severity: SeverityFlag, HoleID: id, Depth: r.From, Source: "runs", Line: r.Line, ID: r.ID,
+				Message: fmt.Sprintf("run left out: from %g, to %g (want 0 <= from < to, finite mismatch)", r.From, r.To)})
+			continue
+		}
+		okRuns = append(okRuns, r)
+	}
+	h.runs = okRuns
 	sort.SliceStable(h.runs, func(i, j int) bool { return h.runs[i].From < h.runs[j].From })
 	out = append(out, runChecks(h.c, h.runs, o, hr)...)
 
@@ -293,4 +318,23 @@ func checkHole(h *holeData, conv coreangle.Convention, o Options, loggers map[st
 		out = append(out, pickChecks(h, o)...)
 	}
 	return out
+}
+
+// collarProblem says what makes a collar unusable, or "".
+func collarProblem(c Collar) string {
+	for _, v := range []struct {
+		name string
+		v    float64
+	}{{"easting", c.East}, {"northing", c.North}, {"elevation", c.Elevation}, {"azimuth", c.Azimuth}, {"dip", c.Dip}, {"depth", c.Depth}} {
+		if math.IsNaN(v.v) || math.IsInf(v.v, 0) {
+			return "no usable " + v.name
+		}
+	}
+	switch {
+	case c.Depth <= 0:
+		return fmt.Sprintf("a final depth of %g", c.Depth)
+	case c.Dip < -90 || c.Dip > 90:
+		return fmt.Sprintf("a dip of %g, outside -90..90", c.Dip)
+	}
+	return ""
 }

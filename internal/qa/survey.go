@@ -115,6 +115,10 @@ func surveyChecks(c Collar, stations []Station, zones []MagneticZone, o Options,
 		}
 		dl := dogleg(prevDir, dirs[i])
 		dls := dl / (depths[i] - prevD) * per
+		if math.IsInf(dls, 0) || math.IsNaN(dls) { // stations a hair apart
+			prevD, prevDir = depths[i], dirs[i]
+			continue
+		}
 		hr.Stations[i].DLS = dls
 		if dls > o.DoglegThreshold {
 			out = append(out, Finding{Check: CheckDogleg, Severity: SeverityWarning, HoleID: c.HoleID,

@@ -100,6 +100,7 @@ const (
 // Check codes, one per kind of finding.
 const (
 	CheckRunOverlap         = "run-overlap"
+	CheckRunInvalid         = "run-invalid"
 	CheckRunPastDepth       = "run-past-final-depth"
 	CheckMismatch           = "mark-mismatch"
 	CheckOutsideRun         = "measurement-outside-run"
