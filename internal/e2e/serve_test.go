@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"io"
 	"net/http"
+	"os"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -180,11 +181,18 @@ func TestGracefulShutdown(t *testing.T) {
 
 // TestLoad runs the bounded load test against the real binary: 16 clients
 // logging measurements and importing files for a short, fixed time, then
-// every row is counted (nothing lost, nothing doubled). The figures for the
-// README come from cmd/corvane-load with a longer run.
+// every row is counted (nothing lost, nothing doubled). CORVANE_LOAD_DURATION
+// (e.g. 10s) makes the run longer for the figures in README.md.
 func TestLoad(t *testing.T) {
 	if testing.Short() {
 		t.Skip("load test skipped in -short mode")
+	}
+	d := 3 * time.Second
+	if v := os.Getenv("CORVANE_LOAD_DURATION"); v != "" {
+		var err error
+		if d, err = time.ParseDuration(v); err != nil {
+			t.Fatalf("CORVANE_LOAD_DURATION=%q: %v", v, err)
+		}
 	}
 	stores(t, func(t *testing.T, db string) {
 		s := start(t, db, "--demo", "--log-level", "warn")
@@ -194,7 +202,7 @@ func TestLoad(t *testing.T) {
 		defer cancel()
 		res, err := loadtest.Run(ctx, loadtest.Config{
 			BaseURL: s.URL, Token: s.Token, Project: projects.Items[0].ID,
-			Clients: 16, Duration: 3 * time.Second, ImportRow: 20, ImportEvery: 8, Seed: 7,
+			Clients: 16, Duration: d, ImportRow: 20, ImportEvery: 8, Seed: 7,
 		})
 		t.Logf("load test:\n%s", res)
 		if err != nil {
