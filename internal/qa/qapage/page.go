@@ -179,7 +179,7 @@ func writeLegend(b *strings.Builder) {
 	item(swatch("#fff", colHairline), "no run")
 	item(`<svg width="14" height="12"><path d="M1 1H13L7 11Z" fill="`+colInk+`"/></svg>`, "flag")
 	item(`<svg width="14" height="12"><circle cx="7" cy="6" r="4.5" fill="#fff" stroke="`+colInk+`" stroke-width="1.6"/></svg>`, "warning")
-	item(`<svg width="26" height="12"><rect x="9" y="1" width="8" height="10" fill="`+colPurple+`" stroke="`+colInk+`"/></svg>`, "estimated mark rotation (flagged: outlined, labelled; grey: not flagged)")
+	item(`<svg width="26" height="12"><rect x="9" y="1" width="8" height="10" fill="`+colPurple+`" stroke="`+colInk+`"/></svg>`, "estimated mark rotation (flagged: outlined, labelled; grey: not flagged; pale: too few measurements)")
 	item(`<svg width="14" height="14"><line x1="7" x2="7" y1="2" y2="14" stroke="`+colGreen+`" stroke-width="2"/></svg>`, "survey station (taller: further off its neighbours' path)")
 	b.WriteString("</div>")
 }
@@ -210,7 +210,7 @@ func writeHole(b *strings.Builder, h *qa.HoleReport, r qa.Report) {
 		}
 	}
 	b.WriteString("<div class=\"strip\">")
-	writeStrip(b, h, fs)
+	writeStrip(b, h, fs, r.Options.MinRunCount)
 	b.WriteString("</div>")
 
 	if len(fs) > 0 {
@@ -253,7 +253,7 @@ func findingTable(b *strings.Builder, fs []qa.Finding) {
 	b.WriteString("</table>")
 }
 
-func writeStrip(b *strings.Builder, h *qa.HoleReport, fs []qa.Finding) {
+func writeStrip(b *strings.Builder, h *qa.HoleReport, fs []qa.Finding, minN int) {
 	total := h.Depth
 	if total <= 0 {
 		total = 1
@@ -307,6 +307,9 @@ func writeStrip(b *strings.Builder, h *qa.HoleReport, fs []qa.Finding) {
 		}
 		w := math.Max(x(run.To)-x(run.From)-0.8, 1.2)
 		fill, stroke := "#9a9aa0", "none"
+		if e.N < minN { // too few measurements to carry a flag: drawn faint
+			fill = "#d4d4d8"
+		}
 		if e.Flagged {
 			fill, stroke = colPurple, colInk
 		}
