@@ -17,6 +17,7 @@ import (
 	"github.com/getkin/kin-openapi/routers"
 
 	"corvane/api"
+	"corvane/internal/domain"
 )
 
 var (
@@ -244,4 +245,78 @@ func (c *checker) operations() map[string]bool {
 		ops[f[0]+" "+f[1]] = true
 	}
 	return ops
+}
+
+// TestContractTour calls every documented operation at least once through
+// the checker, so that a real response of each is validated against the
+// document, and fails on any operation the tour did not reach.
+func TestContractTour(t *testing.T) {
+	f := newFixture(t)
+	d, _ := contract(t)
+	pid := f.project("Tour", nil)
+	base := "/v1/projects/" + itoa(pid)
+	h := f.hole(pid, "TR001", 120, -65)
+	hb := base + "/holes/" + itoa(h.ID)
+
+	f.must(200, "", "GET", "/healthz", nil, nil)
+	f.must(200, "", "GET", "/readyz", nil, nil)
+	f.must(200, "", "GET", "/metrics", nil, nil)
+	f.must(200, "", "GET", "/openapi.yaml", nil, nil)
+	f.must(200, f.site, "POST", "/v1/convert", map[string]any{
+		"collars":      []map[string]any{{"hole_id": "A", "azimuth": 0, "dip": -60, "final_depth": 50}},
+		"measurements": []map[string]any{{"hole_id": "A", "depth": 5, "alpha": 20, "beta": 180}},
+	}, nil)
+	f.must(200, f.site, "GET", "/v1/projects", nil, nil)
+	r := f.must(200, f.site, "GET", base, nil, nil)
+	f.must(200, f.site, "PUT", base, map[string]any{"name": "Tour", "description": "edited"}, nil, "If-Match", r.Header.Get("ETag"))
+	f.must(200, f.site, "GET", base+"/types", nil, nil)
+	f.must(200, f.site, "PUT", base+"/types/FT", map[string]string{"description": "fault", "kind": "plane"}, nil)
+	f.must(204, f.site, "DELETE", base+"/types/FT", nil, nil)
+	f.must(200, f.site, "GET", base+"/holes", nil, nil)
+	r = f.must(200, f.site, "GET", hb, nil, nil)
+	var hh map[string]any
+	r.json(t, &hh)
+	hh["final_depth"] = 500.0
+	for _, k := range []string{"id", "project_id", "version", "created_at", "updated_at"} {
+		delete(hh, k)
+	}
+	f.must(200, f.site, "PUT", hb, hh, nil, "If-Match", r.Header.Get("ETag"))
+	f.must(200, f.site, "PUT", hb+"/survey", map[string]any{"azimuth_ref": "grid",
+		"stations": []map[string]float64{{"depth": 0, "azimuth": 120, "dip": -65}, {"depth": 200, "azimuth": 125, "dip": -62}}}, nil, "If-None-Match", "*")
+	f.must(200, f.site, "GET", hb+"/survey", nil, nil)
+	var run domain.Run
+	f.must(201, f.site, "POST", hb+"/runs", map[string]any{"from": 0, "to": 3, "confidence": "good"}, &run)
+	f.must(200, f.site, "GET", hb+"/runs", nil, nil)
+	rb := base + "/runs/" + itoa(run.ID)
+	f.must(200, f.site, "GET", rb, nil, nil)
+	f.must(200, f.site, "PUT", rb, map[string]any{"from": 0, "to": 3.5, "confidence": "fair", "mismatch": 4}, nil, "If-Match", `"1"`)
+	f.must(204, f.site, "DELETE", rb, nil, nil, "If-Match", `"2"`)
+	var m view
+	f.must(201, f.site, "POST", base+"/measurements", map[string]any{"hole_id": h.ID, "depth": 2, "alpha": 30, "beta": 200, "gamma": 40, "type": "LN", "apparent_thickness": 0.3}, &m)
+	mb := base + "/measurements/" + itoa(m.ID)
+	f.must(200, f.site, "GET", base+"/measurements?hole=TR001&min_depth=0&max_depth=10&type=LN&from=2000-01-01&to=2100-01-01", nil, nil)
+	f.must(200, f.site, "GET", mb, nil, nil)
+	f.must(200, f.site, "PUT", mb, map[string]any{"hole_id": h.ID, "depth": 2.1, "alpha": 31, "beta": 200, "type": "JN"}, nil, "If-Match", `"1"`)
+	f.must(200, f.site, "GET", base+"/measurements.csv", nil, nil)
+	f.must(201, f.site, "POST", base+"/imports/runs", "hole_id,from,to,confidence\nTR001,3,6,good\n", nil)
+	f.must(200, f.site, "GET", base+"/statistics", nil, nil)
+	f.must(200, f.site, "GET", base+"/net", nil, nil)
+	f.must(200, f.site, "GET", base+"/audit", nil, nil)
+	f.must(204, f.site, "DELETE", mb, nil, nil, "If-Match", `"2"`)
+	r = f.must(200, f.site, "GET", hb, nil, nil)
+	f.must(204, f.site, "DELETE", hb, nil, nil, "If-Match", r.Header.Get("ETag"))
+	r = f.must(200, f.site, "GET", base, nil, nil)
+	f.must(204, f.site, "DELETE", base, nil, nil, "If-Match", r.Header.Get("ETag"))
+	f.must(201, f.site, "POST", "/v1/projects", map[string]any{"name": "Tour 2"}, nil)
+	p2 := f.project("Tour 3", nil)
+	f.must(201, f.site, "POST", "/v1/projects/"+itoa(p2)+"/holes", map[string]any{"name": "H", "easting": 0, "northing": 0, "elevation": 0, "azimuth": 0, "dip": -90, "final_depth": 10}, nil)
+
+	seen := f.check.operations()
+	for p, item := range d.Paths.Map() {
+		for m := range item.Operations() {
+			if !seen[m+" "+p] {
+				t.Errorf("the tour did not call %s %s", m, p)
+			}
+		}
+	}
 }
