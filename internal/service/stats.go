@@ -289,7 +289,6 @@ func (s *Service) Statistics(ctx context.Context, projectID int64, q StatsQuery)
 	return res, nil
 }
 
-
 // NetQuery selects the measurements and what the net shows.
 type NetQuery struct {
 	MeasurementQuery
