@@ -102,7 +102,7 @@ func (r *pathRouter) FindRoute(req *http.Request) (*routers.Route, map[string]st
 
 // contract loads api/openapi.yaml once, checks it is a valid OpenAPI
 // document, and returns it with a router over its paths.
-func contract(t *testing.T) (*openapi3.T, *pathRouter) {
+func contract(t testing.TB) (*openapi3.T, *pathRouter) {
 	t.Helper()
 	docOnce.Do(func() {
 		openapi3filter.RegisterBodyDecoder("image/svg+xml", openapi3filter.PlainBodyDecoder)
@@ -164,14 +164,14 @@ func TestContractEveryRouteDocumented(t *testing.T) {
 // checker validates every request and response made through it against the
 // document: it is an http.Handler wrapping the server under test.
 type checker struct {
-	t      *testing.T
+	t      testing.TB
 	h      http.Handler
 	router *pathRouter
 	mu     sync.Mutex
 	seen   map[string]bool // "METHOD path status" validated
 }
 
-func newChecker(t *testing.T, h http.Handler) *checker {
+func newChecker(t testing.TB, h http.Handler) *checker {
 	_, r := contract(t)
 	return &checker{t: t, h: h, router: r, seen: map[string]bool{}}
 }

@@ -21,7 +21,7 @@ import (
 // fixture is the real server over the real service on a fresh SQLite file,
 // with every exchange checked against api/openapi.yaml.
 type fixture struct {
-	t     *testing.T
+	t     testing.TB
 	srv   *Server
 	svc   *service.Service
 	h     http.Handler
@@ -47,7 +47,7 @@ func (l *lockedBuffer) String() string {
 	return l.b.String()
 }
 
-func newFixture(t *testing.T, opts ...func(*Options)) *fixture {
+func newFixture(t testing.TB, opts ...func(*Options)) *fixture {
 	t.Helper()
 	ctx := context.Background()
 	path := filepath.Join(t.TempDir(), "corvane.db")
@@ -85,14 +85,14 @@ type reply struct {
 	Body   []byte
 }
 
-func (r reply) json(t *testing.T, v any) {
+func (r reply) json(t testing.TB, v any) {
 	t.Helper()
 	if err := json.Unmarshal(r.Body, v); err != nil {
 		t.Fatalf("decoding %s: %v", r.Body, err)
 	}
 }
 
-func (r reply) problem(t *testing.T) Problem {
+func (r reply) problem(t testing.TB) Problem {
 	t.Helper()
 	if ct := r.Header.Get("Content-Type"); ct != ProblemContentType {
 		t.Fatalf("status %d with Content-Type %q, want %s: %s", r.Code, ct, ProblemContentType, r.Body)
