@@ -1,7 +1,7 @@
 // data.js: reads of a programme the views share: surveys, runs, hole paths,
 // live conversion, measurement lists. Everything derived comes from the server.
 
-import { get, getAll, request, query, ApiError } from "./api.js";
+import { get, getAll, request, query, offers, ApiError } from "./api.js";
 
 const surveys = new Map();
 
@@ -71,6 +71,7 @@ let pathRoute = null; // null: not tried yet; true/false: the server has it
 // has one, else by converting positions at regular depths (nothing stored).
 export async function holePath(p, hole, step) {
   step = step || Math.max(2, hole.final_depth / 60);
+  if (pathRoute === null && (await offers("/v1/projects/{project}/holes/{hole}/path")) === false) pathRoute = false;
   if (pathRoute !== false) {
     try {
       const r = await get(`/v1/projects/${p.id}/holes/${hole.id}/path${query({ step })}`);
@@ -101,6 +102,10 @@ let qaRoute = null;
 // qaReport returns the QA report of the programme (or one hole), or null when
 // the server offers no QA.
 export async function qaReport(pid, holeId) {
+  if (qaRoute === null) {
+    const t = holeId ? "/v1/projects/{project}/holes/{hole}/qa" : "/v1/projects/{project}/qa";
+    if ((await offers(t)) === false) return null;
+  }
   if (qaRoute === false) return null;
   try {
     const r = await get(holeId ? `/v1/projects/${pid}/holes/${holeId}/qa` : `/v1/projects/${pid}/qa`);

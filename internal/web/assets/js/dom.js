@@ -59,3 +59,15 @@ export function notAvailable(what) {
     h("strong", {}, "Not available. "),
     `This server does not offer ${what}. Nothing is shown rather than a guess.`);
 }
+
+// add appends children to node, leaving out null, undefined and false (which
+// Element.append would write as text).
+export function add(node, ...children) {
+  node.append(...children.flat().filter((c) => c !== null && c !== undefined && c !== false));
+  return node;
+}
+
+// put replaces node's children.
+export function put(node, ...children) {
+  return add(clear(node), ...children);
+}

@@ -3,7 +3,7 @@
 // the server's filters), export of the current filter to CSV, and the survey.
 
 import { download, query } from "./api.js";
-import { h, fmt, az, clear, say, notAvailable, problemText } from "./dom.js";
+import { h, fmt, az, clear, say, notAvailable, problemText, add, put } from "./dom.js";
 import { survey, runs, measurements, qaReport } from "./data.js";
 import { depthStrip, CONFIDENCE, styleFor } from "./draw.js";
 import { shapeKey } from "./logging.js";
@@ -29,15 +29,15 @@ export async function holeView(ctx, holeId) {
   const { p, host, params } = ctx;
   const unit = p.unit;
   if (!p.holes.length) {
-    host.append(h("h1", {}, "Hole"), h("p", {}, "This programme has no holes yet."));
+    add(host, h("h1", {}, "Hole"), h("p", {}, "This programme has no holes yet."));
     return;
   }
   const ho = p.holes.find((x) => String(x.id) === String(holeId)) || p.holes[0];
   const pick = h("select", { id: "hole-pick", "aria-label": "Hole" }, p.holes.map((x) => h("option", { value: x.id, selected: x.id === ho.id }, x.name)));
   pick.addEventListener("change", () => ctx.go(`#/p/${p.id}/hole/${pick.value}`));
-  host.append(h("div", { class: "title-row" }, h("h1", {}, `Hole ${ho.name}`), pick,
+  add(host, h("div", { class: "title-row" }, h("h1", {}, `Hole ${ho.name}`), pick,
     h("a", { class: "button", href: `#/p/${p.id}/log?hole=${ho.id}` }, "Log in this hole")));
-  host.append(h("p", { class: "lede" },
+  add(host, h("p", { class: "lede" },
     `Collar ${fmt(ho.easting, 1)} E, ${fmt(ho.northing, 1)} N, ${fmt(ho.elevation, 1)} ${unit}; azimuth ${az(ho.azimuth)}, dip ${fmt(ho.dip, 0)}; final depth ${fmt(ho.final_depth, 1)} ${unit}` + (ho.crs ? `; ${ho.crs}` : "") + "."));
 
   // Filter state lives in the URL so a view can be shared and reloaded.
@@ -53,12 +53,12 @@ export async function holeView(ctx, holeId) {
   const stripBox = h("section", { class: "card strip-card" }, h("h2", {}, "Depth strip"), h("p", { class: "loading" }, "Loading\u2026"));
   const tableBox = h("section", { class: "card table-card" });
   const surveyBox = h("section", { class: "card" });
-  host.append(h("div", { class: "hole-grid" }, stripBox, tableBox), surveyBox);
+  add(host, h("div", { class: "hole-grid" }, stripBox, tableBox), surveyBox);
 
   const [rs, srv, all, qa] = await Promise.all([
     runs(p.id, ho.id),
     survey(p.id, ho.id, true),
-    measurements(p.id, { hole: ho.id }),
+    measurements(p.id, { hole: ho.name }),
     qaReport(p.id, ho.id).catch((e) => ({ error: e })),
   ]);
   if (!ctx.isCurrent()) return;
@@ -76,7 +76,7 @@ export async function holeView(ctx, holeId) {
       else say(`${item.check} at ${item.depth} ${unit}: ${item.message}`);
     }
   };
-  clear(stripBox).append(h("h2", {}, "Depth strip"),
+  put(stripBox, h("h2", {}, "Depth strip"),
     h("div", { class: "strip-host" }, depthStrip({ depth: ho.final_depth, runs: rs, measurements: all, types: typesUsed, flags, unit, onPick })),
     h("p", { class: "legend" }, "Runs: ", Object.entries(CONFIDENCE).map(([k, v]) => h("span", { class: "key" }, h("span", { class: `swatch conf-${k}` }), v.label))),
     h("p", { class: "legend" }, typesUsed.map((t, i) => h("span", { class: "key" }, shapeKey(styleFor(i)), t.code))),
@@ -120,7 +120,7 @@ export async function holeView(ctx, holeId) {
   }
 
   function serverFilter(q) {
-    return { hole: ho.id, type: q.type, min_depth: q.min_depth, max_depth: q.max_depth, from: q.from, to: q.to };
+    return { hole: ho.name, type: q.type, min_depth: q.min_depth, max_depth: q.max_depth, from: q.from, to: q.to };
   }
 
   async function exportCsv() {
@@ -164,7 +164,7 @@ export async function holeView(ctx, holeId) {
       return c * sort.dir || a.depth - b.depth;
     });
     for (const th of headRow.querySelectorAll("th[data-key]")) th.setAttribute("aria-sort", th.dataset.key === sort.key ? (sort.dir > 0 ? "ascending" : "descending") : "none");
-    clear(tbody).append(...rows.map((m) => h("tr", { "data-id": m.id, id: `m-${m.id}`, class: m.derived && (m.derived.error || (m.derived.warnings || []).length) ? "warned" : "" },
+    put(tbody, ...rows.map((m) => h("tr", { "data-id": m.id, id: `m-${m.id}`, class: m.derived && (m.derived.error || (m.derived.warnings || []).length) ? "warned" : "" },
       COLUMNS.map((c) => {
         const v = c.get(m);
         let t = c.text ? c.text(m) : v;
@@ -184,14 +184,14 @@ export async function holeView(ctx, holeId) {
     if (a) a.focus({ preventScroll: true });
   }
 
-  clear(tableBox).append(h("h2", {}, `Measurements (${filtered.length}${filtered.length !== all.length ? ` of ${all.length}` : ""})`),
+  put(tableBox, h("h2", {}, `Measurements (${filtered.length}${filtered.length !== all.length ? ` of ${all.length}` : ""})`),
     filterForm, h("div", { class: "scroll tall" }, table),
     h("p", { class: "help" }, `Dip directions, strikes and trends in degrees from ${p.project.output_azimuth_ref} north; derived on each read from the current survey. Click a heading to sort.`));
   renderRows();
 
   // Survey stations, so QA flags on a station have somewhere to point.
   const st = (srv && srv.stations) || [];
-  clear(surveyBox).append(h("h2", {}, "Survey"),
+  put(surveyBox, h("h2", {}, "Survey"),
     st.length
       ? h("div", { class: "scroll" }, h("table", { class: "data compact", id: "stations" },
         h("thead", {}, h("tr", {}, h("th", { scope: "col" }, "#"), h("th", { scope: "col" }, `Depth (${unit})`), h("th", { scope: "col" }, `Azimuth (${srv.azimuth_ref})`), h("th", { scope: "col" }, "Dip"), h("th", { scope: "col" }, "QA"))),

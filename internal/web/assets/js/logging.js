@@ -4,8 +4,8 @@
 // typed; the server converts, the page only shows.
 
 import { request, ApiError } from "./api.js";
-import { h, fmt, az, clear, say, problemText } from "./dom.js";
-import { survey, convert, measurements } from "./data.js";
+import { h, fmt, az, clear, say, problemText, add, put } from "./dom.js";
+import { survey, convert, measurements, runs } from "./data.js";
 import { smallNet, styleFor, svg, marker } from "./draw.js";
 
 // FIELDS lists the form's inputs with the range each must hold. The ranges
@@ -48,7 +48,7 @@ export async function logging(ctx) {
   const { p, host, params } = ctx;
   const unit = p.unit;
   if (!p.holes.length) {
-    host.append(h("h1", {}, "Log a measurement"), h("p", { class: "msg" }, "This programme has no holes yet."));
+    add(host, h("h1", {}, "Log a measurement"), h("p", { class: "msg" }, "This programme has no holes yet."));
     return;
   }
   const editId = params.get("edit");
@@ -91,12 +91,13 @@ export async function logging(ctx) {
   const netHost = h("div", { class: "net-host", id: "log-net" });
   const legend = h("div", { class: "legend", id: "net-legend" });
   const recent = h("section", { class: "card" }, h("h2", {}, "Saved in this session"), h("p", { class: "help", id: "recent-empty" }, "Nothing yet."));
-  host.append(title, mode, h("div", { class: "log-grid" },
+  add(host, title, mode, h("div", { class: "log-grid" },
     h("div", {}, form, conflictBox),
     h("div", {}, preview, h("section", { class: "card" }, h("h2", {}, "Poles of this hole"), netHost, legend))),
     recent);
 
   let existing = [];
+  let holeRuns = [];
   let srv = null;
   let newPole = null;
 
@@ -104,8 +105,7 @@ export async function logging(ctx) {
 
   async function loadHole() {
     const ho = hole();
-    srv = await survey(p.id, ho.id);
-    existing = await measurements(p.id, { hole: ho.id });
+    [srv, existing, holeRuns] = await Promise.all([survey(p.id, ho.id), measurements(p.id, { hole: ho.name }), runs(p.id, ho.id)]);
     if (!ctx.isCurrent()) return;
     drawNet();
     update();
@@ -125,11 +125,11 @@ export async function logging(ctx) {
     const groups = [...byType.entries()].map(([code, poles]) => ({ label: code, style: styleFor(idx(code)), poles }));
     if (newPole) groups.push({ label: "new", style: styleFor(idx(inputs.type.value)), poles: [newPole], emphasis: true });
     const ho = hole();
-    clear(netHost).append(smallNet(groups, { size: 280, label: `Poles of hole ${ho.name}, equal-area, lower hemisphere` }));
-    clear(legend).append(
+    put(netHost, smallNet(groups, { size: 280, label: `Poles of hole ${ho.name}, equal-area, lower hemisphere` }));
+    put(legend, ...[
       ...groups.filter((g) => !g.emphasis).map((g) => h("span", { class: "key" }, shapeKey(g.style), `${g.label} (${g.poles.length})`)),
       newPole ? h("span", { class: "key new" }, h("span", { class: "ring" }), "the pole being typed") : null,
-      h("span", { class: "help" }, " Equal-area net, lower hemisphere; poles to planes."));
+      h("span", { class: "help" }, " Equal-area net, lower hemisphere; poles to planes.")].filter(Boolean));
   }
 
   function values() {
@@ -190,25 +190,30 @@ export async function logging(ctx) {
       const d = r.derived || {};
       newPole = Number.isFinite(d.pole_plunge) ? { trend: Number.isFinite(d.pole_trend) ? d.pole_trend : 0, plunge: d.pole_plunge } : null;
       drawNet();
-      renderPreview(d);
+      renderPreview(d, m.depth);
     } catch (e) {
       if (e.name === "AbortError") return;
       renderPreview({ error: problemText(e) });
     }
   }
 
-  function renderPreview(d) {
-    clear(preview).append(h("h2", {}, "Converted"));
+  function runAt(depth) {
+    const r = holeRuns.find((x) => depth >= x.from && depth <= x.to);
+    return r ? `${r.confidence} (run ${fmt(r.from, 1)}\u2013${fmt(r.to, 1)} ${unit})` : "no run covers this depth";
+  }
+
+  function renderPreview(d, depth) {
+    put(preview, h("h2", {}, "Converted"));
     if (!d) {
-      preview.append(h("p", { class: "help" }, "Type depth, alpha and beta to see the plane."));
+      add(preview, h("p", { class: "help" }, "Type depth, alpha and beta to see the plane."));
       return;
     }
     if (d.error) {
-      preview.append(h("p", { class: "msg bad", id: "preview-error" }, d.error));
+      add(preview, h("p", { class: "msg bad", id: "preview-error" }, d.error));
       return;
     }
     const ref = d.azimuth_ref ? `${d.azimuth_ref} north` : "";
-    preview.append(
+    add(preview, 
       h("p", { class: "big", id: "pv-plane" },
         h("span", { class: "dip", id: "pv-dip" }, fmt(d.dip, 0)), h("span", { class: "sep" }, "\u2192"),
         h("span", { class: "dipdir", id: "pv-dipdir" }, d.dip_direction == null ? "\u2013\u2013\u2013" : az(d.dip_direction))),
@@ -219,7 +224,7 @@ export async function logging(ctx) {
         d.line_trend != null ? [h("dt", {}, "Line trend / plunge"), h("dd", { id: "pv-line" }, `${az(d.line_trend)} / ${fmt(d.line_plunge, 0)}`)] : null,
         d.true_thickness != null ? [h("dt", {}, `True thickness (${unit})`), h("dd", {}, fmt(d.true_thickness, 2))] : null,
         h("dt", {}, "Hole at depth (az / dip)"), h("dd", {}, `${az(d.hole_azimuth)} / ${fmt(d.hole_dip, 1)}`),
-        h("dt", {}, "Run confidence"), h("dd", {}, d.run_confidence || "no run")),
+        h("dt", {}, "Orientation run"), h("dd", { id: "pv-run" }, d.run_confidence || runAt(depth))),
       (d.warnings && d.warnings.length)
         ? h("ul", { class: "warnings", id: "pv-warnings" }, d.warnings.map((w) => h("li", {}, w)))
         : h("p", { class: "ok", id: "pv-warnings" }, "No warnings."));
@@ -319,7 +324,7 @@ export async function logging(ctx) {
       etag = r.etag;
     } catch (e) {
       if (e instanceof ApiError && e.status === 404) {
-        clear(conflictBox).append(h("h2", {}, "This measurement was deleted"),
+        put(conflictBox, h("h2", {}, "This measurement was deleted"),
           h("p", {}, "Someone deleted it after you opened it. Your values are still in the form; save them as a new measurement if they are right."),
           h("button", { type: "button", class: "primary", onclick: () => { editing = null; setMode(); conflictBox.hidden = true; save(); } }, "Save as new"));
         conflictBox.hidden = false;
@@ -333,7 +338,7 @@ export async function logging(ctx) {
       const differs = String(a) !== String(b);
       return h("tr", { class: differs ? "differs" : "" }, h("th", { scope: "row" }, k.replace("_", " ")), h("td", {}, String(a)), h("td", {}, String(b)), h("td", {}, differs ? "differs" : ""));
     });
-    clear(conflictBox).append(
+    put(conflictBox, 
       h("h2", {}, "Changed by someone else"),
       h("p", {}, `Measurement ${now.id} was changed on the server after you opened it (now version ${now.version}, by ${now.logged_by || "another user"}). Nothing was overwritten. Compare and choose:`),
       h("table", { class: "data compact" }, h("thead", {}, h("tr", {}, h("th", {}, ""), h("th", {}, "Yours (not saved)"), h("th", {}, "On the server now"), h("th", {}, ""))), h("tbody", {}, rows)),
@@ -361,14 +366,14 @@ export async function logging(ctx) {
       h("td", {}, (d.warnings || []).join("; ")),
       h("td", {}, h("a", { href: `#/p/${p.id}/log?hole=${m.hole_id}&edit=${m.id}` }, "Edit"))));
     const empty = recent.querySelector("#recent-empty");
-    if (empty) { empty.remove(); recent.append(h("div", { class: "scroll" }, recentTable)); }
+    if (empty) { empty.remove(); add(recent, h("div", { class: "scroll" }, recentTable)); }
   }
 
   function setMode() {
     title.textContent = editing ? `Edit measurement ${editing.id}` : "Log a measurement";
     saveBtn.textContent = editing ? "Save change" : "Save";
     clear(mode);
-    if (editing) mode.append(`Editing version ${editing.version}. `, h("a", { href: `#/p/${p.id}/log?hole=${holeSel.value}` }, "Log a new one instead"));
+    if (editing) add(mode, `Editing version ${editing.version}. `, h("a", { href: `#/p/${p.id}/log?hole=${holeSel.value}` }, "Log a new one instead"));
   }
 
   form.addEventListener("submit", (e) => { e.preventDefault(); save(); });

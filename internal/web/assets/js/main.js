@@ -1,8 +1,8 @@
 // main.js: the page's entry point: sign-in, the view router (hash routes)
 // and the programme data shared by the views.
 
-import { getToken, setToken, whenUnauthorized, get, getAll, ApiError } from "./api.js";
-import { h, clear, say, problemText } from "./dom.js";
+import { getToken, setToken, whenUnauthorized, get, getAll, request, ApiError } from "./api.js";
+import { h, clear, say, problemText, add, put } from "./dom.js";
 import { overview } from "./overview.js";
 import { logging } from "./logging.js";
 import { holeView } from "./hole.js";
@@ -93,7 +93,7 @@ async function route() {
   if (view === "hole" && parts[3]) lastHole = parts[3];
   if (params.get("hole")) lastHole = params.get("hole");
   setNav(pid, view, lastHole);
-  clear(main).append(h("p", { class: "loading" }, "Loading\u2026"));
+  put(main, h("p", { class: "loading" }, "Loading\u2026"));
   try {
     const p = await programme(pid, params.has("fresh"));
     if (gen !== generation) return;
@@ -101,19 +101,19 @@ async function route() {
     document.title = `${p.project.name} \u2013 corvane`;
     const host = h("div", { class: "view", "data-view": view });
     const ctx = { p, params, host, go, refresh: () => programme(pid, true), isCurrent: () => gen === generation };
-    clear(main).append(host);
+    put(main, host);
     switch (view) {
       case "overview": await overview(ctx); break;
       case "log": await logging(ctx); break;
       case "hole": await holeView(ctx, parts[3] || lastHole || (p.holes[0] && p.holes[0].id)); break;
       case "nets": await netsView(ctx); break;
       case "qa": await qaView(ctx); break;
-      default: host.append(h("p", { class: "msg bad" }, `There is no view called \u201c${view}\u201d.`));
+      default: add(host, h("p", { class: "msg bad" }, `There is no view called \u201c${view}\u201d.`));
     }
   } catch (e) {
     if (gen !== generation) return;
     if (e instanceof ApiError && e.status === 401) return;
-    clear(main).append(h("div", { class: "msg bad", role: "alert" }, problemText(e)));
+    put(main, h("div", { class: "msg bad", role: "alert" }, problemText(e)));
     if (!(e instanceof ApiError)) console.error(e);
   }
 }
@@ -144,7 +144,7 @@ function signIn(reason) {
     }
     setToken(t);
     try {
-      await get("/v1/projects?limit=1");
+      await request("GET", "/v1/projects?limit=1", { quiet401: true });
       input.value = "";
       go("#/");
     } catch (e2) {
@@ -156,13 +156,13 @@ function signIn(reason) {
       input.select();
     }
   });
-  clear(main).append(form);
+  put(main, form);
   input.focus();
 }
 
 async function projects() {
   document.title = "Programmes \u2013 corvane";
-  clear(main).append(h("p", { class: "loading" }, "Loading\u2026"));
+  put(main, h("p", { class: "loading" }, "Loading\u2026"));
   try {
     const list = await getAll("/v1/projects");
     if (list.length === 1 && !sessionStorage.getItem("corvane.chose")) {
@@ -172,11 +172,11 @@ async function projects() {
     const ul = h("ul", { class: "projects" }, list.map((p) =>
       h("li", {}, h("a", { href: `#/p/${p.id}`, onclick: () => sessionStorage.setItem("corvane.chose", "1") }, p.name),
         p.description ? h("span", { class: "help" }, " \u2013 " + p.description) : null)));
-    clear(main).append(h("section", { class: "card" }, h("h1", {}, "Programmes"),
+    put(main, h("section", { class: "card" }, h("h1", {}, "Programmes"),
       list.length ? ul : h("p", {}, "This token reaches no programme yet.")));
   } catch (e) {
     if (e instanceof ApiError && e.status === 401) return;
-    clear(main).append(h("div", { class: "msg bad", role: "alert" }, problemText(e)));
+    put(main, h("div", { class: "msg bad", role: "alert" }, problemText(e)));
   }
 }
 

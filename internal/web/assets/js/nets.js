@@ -2,8 +2,8 @@
 // weighting. The net and the statistics come from the server; the SVG can be
 // downloaded as it was served.
 
-import { request, query, ApiError } from "./api.js";
-import { h, fmt, az, clear, say, notAvailable, problemText } from "./dom.js";
+import { request, query, offers, ApiError } from "./api.js";
+import { h, fmt, az, clear, say, notAvailable, problemText, add, put } from "./dom.js";
 import { measurements } from "./data.js";
 import { rose, smallNet, styleFor } from "./draw.js";
 
@@ -11,10 +11,11 @@ function showSvg(host, text, label) {
   const url = URL.createObjectURL(new Blob([text], { type: "image/svg+xml" }));
   const img = h("img", { src: url, alt: label, class: "served-svg" });
   img.addEventListener("load", () => setTimeout(() => URL.revokeObjectURL(url), 1000));
-  clear(host).append(img);
+  put(host, img);
 }
 
-async function svgFrom(path) {
+async function svgFrom(path, template) {
+  if ((await offers(template)) === false) return null;
   try {
     const r = await request("GET", path, { accept: "image/svg+xml" });
     return r.data;
@@ -37,7 +38,7 @@ export function statsTable(doc) {
   const out = h("div", { id: "stats" });
   const groups = [["planes", "Planes (poles)"], ["lines", "Lines"]].filter(([k]) => doc && doc[k]);
   if (!groups.length) {
-    out.append(h("p", {}, "The server returned statistics in a form this page does not know; nothing is shown rather than a guess."));
+    add(out, h("p", {}, "The server returned statistics in a form this page does not know; nothing is shown rather than a guess."));
     return out;
   }
   for (const [k, title] of groups) {
@@ -46,7 +47,7 @@ export function statsTable(doc) {
     const weighted = sets.some((s) => s.weighted);
     const head = ["Set", "n", "Mean", "k", "cone 95 (\u00b0)", "spread (\u00b0)", "R"];
     if (weighted) head.push("Mean (weighted)", "k (w.)", "cone 95 (w.)");
-    out.append(h("h3", {}, `${title}: ${g.count ?? sets[0]?.count ?? 0}` + (g.set_method ? `, sets by ${g.set_method}` : "")),
+    add(out, h("h3", {}, `${title}: ${g.count ?? sets[0]?.count ?? 0}` + (g.set_method ? `, sets by ${g.set_method}` : "")),
       h("div", { class: "scroll" }, h("table", { class: "data compact" },
         h("thead", {}, h("tr", {}, head.map((t) => h("th", { scope: "col" }, t)))),
         h("tbody", {}, sets.map((s) => {
@@ -59,8 +60,8 @@ export function statsTable(doc) {
         })))),
       g.unassigned != null ? h("p", { class: "help" }, `${g.unassigned} not assigned to any set.`) : null);
   }
-  if (doc.weighting) out.append(h("p", { class: "help" }, `Weighting: ${doc.weighting.method}, cap ${doc.weighting.cap} (${doc.weighting.cap_source || ""}).`));
-  if (doc.spread_formula) out.append(h("p", { class: "help" }, `Spread: ${doc.spread_formula}.`));
+  if (doc.weighting) add(out, h("p", { class: "help" }, `Weighting: ${doc.weighting.method}, cap ${doc.weighting.cap} (${doc.weighting.cap_source || ""}).`));
+  if (doc.spread_formula) add(out, h("p", { class: "help" }, `Spread: ${doc.spread_formula}.`));
   return out;
 }
 
@@ -75,8 +76,8 @@ export async function netsView(ctx) {
     weighting: params.get("weighting") || "none",
     show: (params.get("show") || "poles,density").split(",").filter(Boolean),
   };
-  host.append(h("h1", {}, "Nets and sets"));
-  const holeBoxes = p.holes.map((x) => h("label", { class: "check" }, h("input", { type: "checkbox", name: "hole", value: x.id, checked: !sel.hole.length || sel.hole.includes(String(x.id)) }), x.name));
+  add(host, h("h1", {}, "Nets and sets"));
+  const holeBoxes = p.holes.map((x) => h("label", { class: "check" }, h("input", { type: "checkbox", name: "hole", value: x.name, checked: !sel.hole.length || sel.hole.includes(x.name) }), x.name));
   const typeBoxes = p.types.map((t, i) => h("label", { class: "check" }, h("input", { type: "checkbox", name: "type", value: t.code, checked: !sel.type.length || sel.type.includes(t.code) }), t.code));
   const showBoxes = [["poles", "poles"], ["planes", "planes (great circles)"], ["density", "density"]].map(([v, l]) => h("label", { class: "check" }, h("input", { type: "checkbox", name: "show", value: v, checked: sel.show.includes(v) }), l));
   const minD = h("input", { id: "n-min", inputmode: "decimal", value: sel.min_depth, size: 6 });
@@ -94,7 +95,7 @@ export async function netsView(ctx) {
   const netHost = h("div", { class: "net-big", id: "net" }, h("p", { class: "loading" }, "Drawing\u2026"));
   const roseHost = h("div", { class: "rose", id: "rose" });
   const statsHost = h("section", { class: "card" }, h("h2", {}, "Set statistics"));
-  host.append(form, h("div", { class: "two" }, h("section", { class: "card" }, h("h2", {}, "Net"), netHost), h("section", { class: "card" }, h("h2", {}, "Rose"), roseHost)), statsHost,
+  add(host, form, h("div", { class: "two" }, h("section", { class: "card" }, h("h2", {}, "Net"), netHost), h("section", { class: "card" }, h("h2", {}, "Rose"), roseHost)), statsHost,
     h("p", { class: "caution" }, "Sets and their statistics describe the logged data. They feed slope and excavation design only through a licensed practitioner working to local codes."));
 
   const checked = (boxes) => boxes.map((l) => l.firstChild).filter((c) => c.checked).map((c) => c.value);
@@ -138,15 +139,17 @@ export async function netsView(ctx) {
   const fq = filterOf(sel);
   const netQ = query({ ...fq, weighting: sel.weighting === "none" ? "" : sel.weighting, show: sel.show.join(",") });
   const [netSvg, roseSvg, stats, rows] = await Promise.all([
-    svgFrom(`/v1/projects/${p.id}/net${netQ}`).catch((e) => ({ error: e })),
-    svgFrom(`/v1/projects/${p.id}/rose${query(fq)}`).catch((e) => ({ error: e })),
-    request("GET", `/v1/projects/${p.id}/statistics${query({ ...fq, weighting: sel.weighting === "none" ? "" : sel.weighting })}`).then((r) => r.data).catch((e) => ({ error: e })),
+    svgFrom(`/v1/projects/${p.id}/net${netQ}`, "/v1/projects/{project}/net").catch((e) => ({ error: e })),
+    svgFrom(`/v1/projects/${p.id}/rose${query(fq)}`, "/v1/projects/{project}/rose").catch((e) => ({ error: e })),
+    offers("/v1/projects/{project}/statistics").then((ok) => ok === false
+      ? { error: new ApiError(404, { title: "not offered" }) }
+      : request("GET", `/v1/projects/${p.id}/statistics${query({ ...fq, weighting: sel.weighting === "none" ? "" : sel.weighting })}`).then((r) => r.data)).catch((e) => ({ error: e })),
     measurements(p.id, fq),
   ]);
   if (!ctx.isCurrent()) return;
 
   if (netSvg && netSvg.error) {
-    clear(netHost).append(h("p", { class: "msg bad" }, "The net could not be drawn: " + problemText(netSvg.error)));
+    put(netHost, h("p", { class: "msg bad" }, "The net could not be drawn: " + problemText(netSvg.error)));
   } else if (typeof netSvg === "string") {
     lastSvg = netSvg;
     showSvg(netHost, netSvg, "Equal-area net of the selection, as served");
@@ -163,23 +166,23 @@ export async function netsView(ctx) {
     const codes = p.types.map((t) => t.code);
     const net = smallNet([...byType.entries()].map(([c, poles]) => ({ label: c, style: styleFor(Math.max(0, codes.indexOf(c))), poles })), { size: 420, label: "Poles of the selection, equal-area, lower hemisphere" });
     lastSvg = new XMLSerializer().serializeToString(net);
-    clear(netHost).append(notAvailable("nets with planes and density"), net, h("p", { class: "help" }, "Poles only, drawn by this page from the derived values."));
+    put(netHost, notAvailable("nets with planes and density"), net, h("p", { class: "help" }, "Poles only, drawn by this page from the derived values."));
   }
 
   if (roseSvg && roseSvg.error) {
-    clear(roseHost).append(h("p", { class: "msg bad" }, problemText(roseSvg.error)));
+    put(roseHost, h("p", { class: "msg bad" }, problemText(roseSvg.error)));
   } else if (typeof roseSvg === "string") {
     showSvg(roseHost, roseSvg, "Rose diagram of the selection, as served");
   } else {
     const dd = rows.map((m) => m.derived && m.derived.dip_direction).filter((v) => Number.isFinite(v));
-    clear(roseHost).append(rose(dd, { size: 320 }), h("p", { class: "help" }, `Dip directions of ${dd.length} planes in 10\u00b0 bins, petal area proportional to count; drawn by this page from the derived values.`));
+    put(roseHost, rose(dd, { size: 320 }), h("p", { class: "help" }, `Dip directions of ${dd.length} planes in 10\u00b0 bins, petal area proportional to count; drawn by this page from the derived values.`));
   }
 
   if (stats && stats.error) {
     const e = stats.error;
-    statsHost.append(e instanceof ApiError && (e.status === 404 || e.status === 405) ? notAvailable("set statistics") : h("p", { class: "msg bad" }, problemText(e)));
+    add(statsHost, e instanceof ApiError && (e.status === 404 || e.status === 405) ? notAvailable("set statistics") : h("p", { class: "msg bad" }, problemText(e)));
   } else {
-    statsHost.append(statsTable(stats));
+    add(statsHost, statsTable(stats));
   }
-  statsHost.append(h("p", { class: "help" }, `${rows.length} measurements in the selection.`));
+  add(statsHost, h("p", { class: "help" }, `${rows.length} measurements in the selection.`));
 }

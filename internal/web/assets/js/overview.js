@@ -2,7 +2,7 @@
 // oriented core and QA flags; a plan and a section drawn from the
 // desurveyed paths.
 
-import { h, fmt, az, clear, notAvailable, problemText } from "./dom.js";
+import { h, fmt, az, clear, notAvailable, problemText, add, put } from "./dom.js";
 import { runs, holePath, qaReport } from "./data.js";
 import { planView, sectionView, CONFIDENCE, confidenceFill, el, svg } from "./draw.js";
 
@@ -50,18 +50,18 @@ function legendConfidence() {
 export async function overview(ctx) {
   const { p, host } = ctx;
   const unit = p.unit;
-  host.append(h("h1", {}, p.project.name), p.project.description ? h("p", { class: "lede" }, p.project.description) : null);
+  add(host, h("h1", {}, p.project.name), p.project.description ? h("p", { class: "lede" }, p.project.description) : null);
   const tableBox = h("section", { class: "card", "aria-labelledby": "holes-h" }, h("h2", { id: "holes-h" }, "Holes"), h("p", { class: "loading" }, "Loading runs and QA\u2026"));
   const planBox = h("section", { class: "card" }, h("h2", {}, "Plan"), h("p", { class: "loading" }, "Loading hole paths\u2026"));
   const secBox = h("section", { class: "card" }, h("h2", {}, "Section"));
-  host.append(tableBox, h("div", { class: "two" }, planBox, secBox));
+  add(host, tableBox, h("div", { class: "two" }, planBox, secBox));
 
   // Hidden SVG with the run patterns, shared by the share bars.
   const defsHost = svg(0, 0, "");
   defsHost.setAttribute("aria-hidden", "true");
   defsHost.classList.add("defs-only");
-  defsHost.append(patternDefs());
-  host.append(defsHost);
+  add(defsHost, patternDefs());
+  add(host, defsHost);
 
   const [allRuns, qa] = await Promise.all([
     Promise.all(p.holes.map((ho) => runs(p.id, ho.id))),
@@ -92,11 +92,12 @@ export async function overview(ctx) {
         : "n/a"),
       h("td", {}, h("a", { href: `#/p/${p.id}/log?hole=${ho.id}`, class: "button small" }, "Log")));
   });
-  clear(tableBox).append(h("h2", { id: "holes-h" }, `Holes (${p.holes.length})`),
+  put(tableBox, h("h2", { id: "holes-h" }, `Holes (${p.holes.length})`),
     h("div", { class: "scroll" }, h("table", { class: "data", id: "holes-table" },
+      h("caption", { class: "help" }, `Collar coordinates, elevations and depths in ${unit === "ft" ? "feet" : "metres"}; collar azimuth from ${p.project.output_azimuth_ref} north, dip negative down.`),
       h("thead", {}, h("tr", {},
-        h("th", { scope: "col" }, "Hole"), h("th", { scope: "col" }, `Easting (${unit})`), h("th", { scope: "col" }, `Northing (${unit})`),
-        h("th", { scope: "col" }, `Elevation (${unit})`), h("th", { scope: "col" }, "Collar azimuth / dip"), h("th", { scope: "col" }, `Final depth (${unit})`),
+        h("th", { scope: "col" }, "Hole"), h("th", { scope: "col", class: "num" }, "Easting"), h("th", { scope: "col", class: "num" }, "Northing"),
+        h("th", { scope: "col", class: "num" }, "Elevation"), h("th", { scope: "col", class: "num" }, "Azimuth / dip"), h("th", { scope: "col", class: "num" }, "Final depth"),
         h("th", { scope: "col" }, "Oriented core"), h("th", { scope: "col" }, "QA flags"), h("th", { scope: "col" }, h("span", { class: "sr" }, "Actions")))),
       h("tbody", {}, rows))),
     legendConfidence(),
@@ -106,14 +107,14 @@ export async function overview(ctx) {
   try {
     paths = await Promise.all(p.holes.map(async (ho) => ({ id: ho.id, name: ho.name, azimuth: ho.azimuth, path: await holePath(p, ho) })));
   } catch (e) {
-    clear(planBox).append(h("h2", {}, "Plan"), h("p", { class: "msg bad" }, "Hole paths could not be read: " + problemText(e)));
+    put(planBox, h("h2", {}, "Plan"), h("p", { class: "msg bad" }, "Hole paths could not be read: " + problemText(e)));
     clear(secBox);
     return;
   }
   if (!ctx.isCurrent()) return;
   paths = paths.filter((q) => q.path.length);
   if (!paths.length) {
-    clear(planBox).append(h("h2", {}, "Plan"), h("p", {}, "No hole has a path yet."));
+    put(planBox, h("h2", {}, "Plan"), h("p", {}, "No hole has a path yet."));
     clear(secBox);
     return;
   }
@@ -137,8 +138,8 @@ export async function overview(ctx) {
     h("label", { for: "sec-width" }, `Show full within (${unit})`), width);
   const planHost = h("div", { class: "chart-host" });
   const secHost = h("div", { class: "chart-host" });
-  clear(planBox).append(h("h2", {}, "Plan"), planHost, h("p", { class: "help" }, `Collars (dots) and hole traces from the desurveyed paths; A\u2013B is the section line. Azimuths relative to ${p.project.output_azimuth_ref} north.`));
-  clear(secBox).append(h("h2", {}, "Section"), controls, secHost, h("p", { class: "help" }, "Traces projected onto the vertical plane through A\u2013B, no vertical exaggeration; holes wholly beyond the distance shown are drawn faint."));
+  put(planBox, h("h2", {}, "Plan"), planHost, h("p", { class: "help" }, `Collars (dots) and hole traces from the desurveyed paths; A\u2013B is the section line. Azimuths relative to ${p.project.output_azimuth_ref} north.`));
+  put(secBox, h("h2", {}, "Section"), controls, secHost, h("p", { class: "help" }, "Traces projected onto the vertical plane through A\u2013B, no vertical exaggeration; holes wholly beyond the distance shown are drawn faint."));
 
   const draw = () => {
     let a = Number(azInput.value);
@@ -146,8 +147,8 @@ export async function overview(ctx) {
     azInput.removeAttribute("aria-invalid");
     const t = thru.value === "centre" ? { e: ce, n: cn } : (() => { const q = paths.find((x) => x.name === thru.value); return { e: q.path[0].easting, n: q.path[0].northing }; })();
     const line = { azimuth: a % 360, through: t, half: ext * 1.15 + 20, width: Math.max(1, Number(width.value) || state.width) };
-    clear(planHost).append(planView(paths, { line, unit, onPick: (hd) => ctx.go(`#/p/${p.id}/hole/${hd.id}`) }));
-    clear(secHost).append(sectionView(paths, { line, unit }));
+    put(planHost, planView(paths, { line, unit, onPick: (hd) => ctx.go(`#/p/${p.id}/hole/${hd.id}`) }));
+    put(secHost, sectionView(paths, { line, unit }));
   };
   for (const i of [azInput, thru, width]) i.addEventListener("input", draw);
   draw();

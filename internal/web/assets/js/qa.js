@@ -2,7 +2,7 @@
 // to the measurement, run or survey station it concerns. QA changes nothing:
 // it points at data worth a second look.
 
-import { h, fmt, clear, notAvailable, problemText } from "./dom.js";
+import { h, fmt, clear, notAvailable, problemText, add, put } from "./dom.js";
 import { qaReport } from "./data.js";
 
 const SEVERITY = { flag: "Flag", warning: "Warning", info: "Note" };
@@ -27,25 +27,25 @@ export function linkFor(pid, holeId, f) {
 export async function qaView(ctx) {
   const { p, host, params } = ctx;
   const unit = p.unit;
-  host.append(h("h1", {}, "Quality checks"));
+  add(host, h("h1", {}, "Quality checks"));
   const onlyHole = params.get("hole") || "";
   const holeSel = h("select", { id: "qa-hole" }, h("option", { value: "" }, "whole programme"), p.holes.map((x) => h("option", { value: x.name, selected: x.name === onlyHole }, x.name)));
   holeSel.addEventListener("change", () => ctx.go(`#/p/${p.id}/qa` + (holeSel.value ? `?hole=${encodeURIComponent(holeSel.value)}` : "")));
-  host.append(h("div", { class: "title-row" }, h("label", { for: "qa-hole" }, "Show"), holeSel));
+  add(host, h("div", { class: "title-row" }, h("label", { for: "qa-hole" }, "Show"), holeSel));
   const body = h("div", {}, h("p", { class: "loading" }, "Running the checks\u2026"));
-  host.append(body);
+  add(host, body);
 
   let rep;
   try {
     const ho = p.holes.find((x) => x.name === onlyHole);
     rep = await qaReport(p.id, ho ? ho.id : undefined);
   } catch (e) {
-    clear(body).append(h("p", { class: "msg bad" }, "QA could not be read: " + problemText(e)));
+    put(body, h("p", { class: "msg bad" }, "QA could not be read: " + problemText(e)));
     return;
   }
   if (!ctx.isCurrent()) return;
   if (!rep) {
-    clear(body).append(notAvailable("QA reports"));
+    put(body, notAvailable("QA reports"));
     return;
   }
   const byName = new Map(p.holes.map((x) => [x.name, x]));
@@ -53,7 +53,7 @@ export async function qaView(ctx) {
   const sum = rep.summary || {};
   const sev = sum.by_severity || {};
   const cov = sum.coverage || {};
-  clear(body).append(
+  put(body, 
     h("p", { class: "caution", id: "qa-caution" }, rep.caution || "QA flags guide judgement; they do not replace it."),
     h("section", { class: "card" }, h("h2", {}, onlyHole ? `Summary: ${onlyHole}` : "Summary"),
       h("dl", { class: "summary" },

@@ -1,0 +1,454 @@
+package web_test
+
+import (
+	"bytes"
+	"encoding/json"
+	"fmt"
+	"io"
+	"math"
+	"net/http"
+	"os"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+
+	"github.com/chromedp/cdproto/browser"
+	"github.com/chromedp/chromedp"
+)
+
+// server is a running corvane service with the demonstration programme,
+// as the browser tests see it.
+type server struct {
+	URL       string // http://127.0.0.1:port
+	Token     string // may log and edit in the demo project
+	ReadToken string // may only read the demo project ("" when not available)
+	Project   int64
+}
+
+// api calls the service from Go, as a second user would.
+func (s *server) api(t *testing.T, method, path, ifMatch string, body any) (int, http.Header, []byte) {
+	t.Helper()
+	var rd io.Reader
+	if body != nil {
+		b, err := json.Marshal(body)
+		if err != nil {
+			t.Fatal(err)
+		}
+		rd = bytes.NewReader(b)
+	}
+	req, err := http.NewRequest(method, s.URL+path, rd)
+	if err != nil {
+		t.Fatal(err)
+	}
+	req.Header.Set("Authorization", "Bearer "+s.Token)
+	req.Header.Set("Accept", "application/json")
+	if body != nil {
+		req.Header.Set("Content-Type", "application/json")
+	}
+	if ifMatch != "" {
+		req.Header.Set("If-Match", ifMatch)
+	}
+	res, err := http.DefaultClient.Do(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer res.Body.Close()
+	b, err := io.ReadAll(res.Body)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return res.StatusCode, res.Header, b
+}
+
+func (s *server) getJSON(t *testing.T, path string, out any) http.Header {
+	t.Helper()
+	code, h, b := s.api(t, http.MethodGet, path, "", nil)
+	if code != http.StatusOK {
+		t.Fatalf("GET %s: %d %s", path, code, b)
+	}
+	if err := json.Unmarshal(b, out); err != nil {
+		t.Fatalf("GET %s: %v", path, err)
+	}
+	return h
+}
+
+type hole struct {
+	ID         int64   `json:"id"`
+	Name       string  `json:"name"`
+	FinalDepth float64 `json:"final_depth"`
+}
+
+type derived struct {
+	Dip          *float64 `json:"dip"`
+	DipDirection *float64 `json:"dip_direction"`
+	PoleTrend    *float64 `json:"pole_trend"`
+	PolePlunge   *float64 `json:"pole_plunge"`
+}
+
+type measurement struct {
+	ID      int64   `json:"id"`
+	HoleID  int64   `json:"hole_id"`
+	Depth   float64 `json:"depth"`
+	Alpha   float64 `json:"alpha"`
+	Beta    float64 `json:"beta"`
+	Type    string  `json:"type"`
+	Comment string  `json:"comment"`
+	Version int64   `json:"version"`
+	Derived derived `json:"derived"`
+}
+
+func (s *server) holes(t *testing.T) []hole {
+	var r struct{ Items []hole }
+	s.getJSON(t, fmt.Sprintf("/v1/projects/%d/holes?limit=1000", s.Project), &r)
+	if len(r.Items) == 0 {
+		t.Fatal("the demo programme has no holes")
+	}
+	return r.Items
+}
+
+func (s *server) measurements(t *testing.T, query string) []measurement {
+	var all []measurement
+	after := ""
+	for {
+		var r struct {
+			Items     []measurement
+			NextAfter *int64 `json:"next_after"`
+		}
+		s.getJSON(t, fmt.Sprintf("/v1/projects/%d/measurements?limit=1000&%s%s", s.Project, query, after), &r)
+		all = append(all, r.Items...)
+		if r.NextAfter == nil || *r.NextAfter == 0 {
+			return all
+		}
+		after = fmt.Sprintf("&after=%d", *r.NextAfter)
+	}
+}
+
+func TestOverview(t *testing.T) {
+	s := startService(t)
+	p := newPage(t, s.URL, 1366, 900)
+	p.signIn(s.Token)
+	holes := s.holes(t)
+	p.waitFor("every hole in the table", fmt.Sprintf(`document.querySelectorAll('#holes-table tbody tr').length === %d`, len(holes)))
+	p.waitFor("plan and section drawn", fmt.Sprintf(`document.querySelectorAll('svg.chart .trace').length === %d`, 2*len(holes)))
+	for _, h := range holes {
+		row := p.text(fmt.Sprintf(`#holes-table tr[data-hole="%s"]`, h.Name))
+		if !strings.Contains(row, h.Name) || !strings.Contains(row, fmt.Sprintf("%.1f", h.FinalDepth)) {
+			t.Errorf("row of %s reads %q: want its name and final depth %.1f", h.Name, row, h.FinalDepth)
+		}
+		if !strings.Contains(row, "%") {
+			t.Errorf("row of %s shows no oriented share: %q", h.Name, row)
+		}
+	}
+	// The token lives in sessionStorage only: nothing in localStorage or cookies.
+	if ok := eval[bool](p, fmt.Sprintf(`sessionStorage.getItem("corvane.token") === %q && localStorage.length === 0 && document.cookie === ""`, s.Token)); !ok {
+		t.Error("the token is not kept in sessionStorage alone")
+	}
+	// Changing the section azimuth redraws the section.
+	p.do("section azimuth", chromedp.SetValue(chromedp.CSS("#sec-az"), "90"), chromedp.Evaluate[chromedp.Void](`document.querySelector("#sec-az").dispatchEvent(new Event("input", {bubbles: true}))`))
+	p.waitFor("section redrawn", `document.querySelector('svg.chart[aria-label="Section along azimuth 90"]') !== null`)
+	p.shot("overview")
+}
+
+// TestOverviewTablet checks the overview at a tablet width in portrait.
+func TestOverviewTablet(t *testing.T) {
+	s := startService(t)
+	p := newPage(t, s.URL, 820, 1180)
+	p.signIn(s.Token)
+	p.waitFor("plan drawn", `document.querySelectorAll('svg.chart .trace').length > 0`)
+	if w := eval[float64](p, `document.documentElement.scrollWidth - window.innerWidth`); w > 1 {
+		t.Errorf("the page is %v px wider than a tablet screen", w)
+	}
+	p.shot("overview-tablet")
+}
+
+func TestSignInRefusesBadToken(t *testing.T) {
+	s := startService(t)
+	p := newPage(t, s.URL, 1024, 768)
+	p.allow("401") // the browser logs the refused request
+	p.do("open page", chromedp.Navigate(s.URL+"/"), chromedp.WaitVisible(chromedp.CSS("#token")), chromedp.SendKeys(chromedp.CSS("#token"), "not-a-token\r"))
+	p.waitFor("refusal", `document.querySelector('#token-msg').textContent.includes('does not accept')`)
+	if eval[bool](p, `sessionStorage.getItem("corvane.token") !== null`) {
+		t.Error("a refused token was kept")
+	}
+}
+
+// equalAreaXY is the lower-hemisphere equal-area (Lambert azimuthal,
+// Schmidt) projection of a line with trend and plunge in degrees, on a net
+// of radius 1, north up, y down as on screen: r = sqrt(2) sin((90 - plunge)/2).
+// Source: Snyder (1987), Map Projections: A Working Manual, USGS Professional
+// Paper 1395, Lambert azimuthal equal-area, polar aspect, rho = 2 R sin(chi/2)
+// with the net scaled so that the primitive circle has radius 1 (formula as
+// recalled from memory; it is also the standard stereonet construction).
+func equalAreaXY(trend, plunge float64) (x, y float64) {
+	r := math.Sqrt2 * math.Sin((90-plunge)*math.Pi/360)
+	return r * math.Sin(trend*math.Pi/180), -r * math.Cos(trend*math.Pi/180)
+}
+
+func TestLoggingWithKeyboard(t *testing.T) {
+	s := startService(t)
+	holes := s.holes(t)
+	h := holes[0]
+	before := s.measurements(t, "hole="+h.Name)
+	p := newPage(t, s.URL, 1366, 900)
+	p.signIn(s.Token)
+	p.do("open logging", chromedp.Navigate(fmt.Sprintf("%s/#/p/%d/log?hole=%d", s.URL, s.Project, h.ID)))
+	p.waitFor("form ready", `document.activeElement && document.activeElement.id === 'f-depth' && document.querySelector('#log-net svg') !== null`)
+	p.waitFor("existing poles drawn", fmt.Sprintf(`document.querySelectorAll('#log-net .pole-old > *').length === %d`, countPoles(before)))
+
+	// Depth, then the type by its first letter, then the angles: Tab between
+	// fields as at the bench.
+	depth := math.Round(h.FinalDepth*0.4*10) / 10
+	p.keys(fmt.Sprintf("%v", depth))
+	p.keys("\t")
+	typ := eval[string](p, `document.querySelector('#f-type option:nth-child(2)').value`)
+	p.keys(typ[:1])
+	p.keys("\t35\t210\t\t\tlogged from the browser test")
+	p.waitFor("converted orientation", `document.querySelector('#pv-dip') !== null && document.querySelector('#pv-dipdir') !== null`)
+	shownDip := p.text("#pv-dip")
+	shownDir := p.text("#pv-dipdir")
+	p.waitFor("new pole on the net", `document.querySelector('#log-net .pole-new') !== null && document.querySelector('#log-net .pole-new').children.length > 0`)
+	p.shot("logging")
+
+	// Enter saves.
+	p.keys("\r")
+	p.waitFor("saved", `document.querySelector('#form-msg').textContent.startsWith('Saved')`)
+	after := s.measurements(t, "hole="+h.Name)
+	if len(after) != len(before)+1 {
+		t.Fatalf("measurements of %s: %d before, %d after saving one", h.Name, len(before), len(after))
+	}
+	var saved *measurement
+	for i := range after {
+		if after[i].Comment == "logged from the browser test" {
+			saved = &after[i]
+		}
+	}
+	if saved == nil {
+		t.Fatal("the saved measurement is not on the server")
+	}
+	if saved.Alpha != 35 || saved.Beta != 210 || saved.Depth != depth || saved.Type != typ {
+		t.Errorf("saved %+v; typed depth %v type %s alpha 35 beta 210", *saved, depth, typ)
+	}
+	// What the page showed while typing is what the server derives for the
+	// stored row.
+	if saved.Derived.Dip == nil || saved.Derived.DipDirection == nil {
+		t.Fatalf("saved measurement has no derived plane: %+v", saved.Derived)
+	}
+	if want := fmt.Sprintf("%.0f", *saved.Derived.Dip); shownDip != want {
+		t.Errorf("page showed dip %s while typing; server derives %s", shownDip, want)
+	}
+	if want := fmt.Sprintf("%03d", int(math.Round(*saved.Derived.DipDirection))%360); shownDir != want {
+		t.Errorf("page showed dip direction %s while typing; server derives %s", shownDir, want)
+	}
+	// The new pole is now among the hole's poles, where the equal-area
+	// projection puts it.
+	p.waitFor("pole kept", fmt.Sprintf(`document.querySelectorAll('#log-net .pole-old > *').length === %d`, countPoles(after)))
+	checkPolePosition(t, p, *saved.Derived.PoleTrend, *saved.Derived.PolePlunge)
+
+	// Alpha 95 is refused next to the field and nothing typed is lost.
+	p.do("focus depth", chromedp.Focus(chromedp.CSS("#f-depth")))
+	p.keys("\t\t95\t100\t\t\tsecond try")
+	p.keys("\r")
+	p.waitFor("refusal next to alpha", `document.querySelector('#m-alpha').textContent.includes('between 0 and 90')`)
+	if got := p.text("#form-msg"); !strings.Contains(got, "Not saved") {
+		t.Errorf("form message %q, want a refusal", got)
+	}
+	if got := eval[string](p, `document.querySelector('#f-alpha').getAttribute('aria-invalid')`); got != "true" {
+		t.Errorf("alpha field not marked invalid: %q", got)
+	}
+	vals := eval[map[string]string](p, `Object.fromEntries(['depth','alpha','beta','comment'].map(n => [n, document.querySelector('#f-' + n).value]))`)
+	if vals["alpha"] != "95" || vals["beta"] != "100" || vals["comment"] != "second try" || vals["depth"] == "" {
+		t.Errorf("typed values lost after the refusal: %v", vals)
+	}
+	p.shot("logging-refused")
+	if n := len(s.measurements(t, "hole="+h.Name)); n != len(after) {
+		t.Errorf("a refused measurement reached the server: %d rows, want %d", n, len(after))
+	}
+}
+
+func countPoles(ms []measurement) int {
+	n := 0
+	for _, m := range ms {
+		if m.Derived.PolePlunge != nil && m.Derived.PoleTrend != nil {
+			n++
+		}
+	}
+	return n
+}
+
+// checkPolePosition finds a pole marker of the hole's net at the position the
+// published equal-area formula gives for (trend, plunge).
+func checkPolePosition(t *testing.T, p *page, trend, plunge float64) {
+	t.Helper()
+	geo := eval[map[string]float64](p, `(() => { const c = document.querySelector('#log-net svg > circle'); return {cx: +c.getAttribute('cx'), cy: +c.getAttribute('cy'), r: +c.getAttribute('r')}; })()`)
+	x, y := equalAreaXY(trend, plunge)
+	wx, wy := geo["cx"]+geo["r"]*x, geo["cy"]+geo["r"]*y
+	// Marker centres: circles by cx/cy, other shapes by the centre of their box.
+	d := eval[float64](p, fmt.Sprintf(`Math.min(...[...document.querySelectorAll('#log-net .pole-old > *')].map(e => { const b = e.getBBox(); return Math.hypot(b.x + b.width/2 - %f, b.y + b.height/2 - %f); }))`, wx, wy))
+	if d > 1.0 {
+		t.Errorf("no pole marker within 1 px of the equal-area position of %.1f/%.1f (nearest %.2f px)", trend, plunge, d)
+	}
+}
+
+func TestServerRefusalKeepsTyping(t *testing.T) {
+	s := startService(t)
+	if s.ReadToken == "" {
+		t.Skip("no read-only token in this harness")
+	}
+	h := s.holes(t)[0]
+	p := newPage(t, s.URL, 1366, 900)
+	p.allow("403")
+	p.signIn(s.ReadToken)
+	p.do("open logging", chromedp.Navigate(fmt.Sprintf("%s/#/p/%d/log?hole=%d", s.URL, s.Project, h.ID)))
+	p.waitFor("form ready", `document.activeElement && document.activeElement.id === 'f-depth'`)
+	p.keys("12.5\t")
+	typ := eval[string](p, `document.querySelector('#f-type option:nth-child(2)').value`)
+	p.keys(typ[:1])
+	p.keys("\t40\t120\t\t\tread-only try\r")
+	p.waitFor("server reason shown", `document.querySelector('#form-msg').textContent.includes('Not saved')`)
+	msg := p.text("#form-msg")
+	if !strings.Contains(msg, "403") || !strings.Contains(msg, "still here") {
+		t.Errorf("form message %q: want the server's reason (HTTP 403) and that the values are kept", msg)
+	}
+	vals := eval[map[string]string](p, `Object.fromEntries(['depth','alpha','beta','comment'].map(n => [n, document.querySelector('#f-' + n).value]))`)
+	if vals["depth"] != "12.5" || vals["alpha"] != "40" || vals["beta"] != "120" || vals["comment"] != "read-only try" {
+		t.Errorf("typed values lost after the server refused: %v", vals)
+	}
+}
+
+func TestEditConflict(t *testing.T) {
+	s := startService(t)
+	h := s.holes(t)[0]
+	ms := s.measurements(t, "hole="+h.Name)
+	if len(ms) == 0 {
+		t.Fatal("no measurement to edit")
+	}
+	m := ms[len(ms)/2]
+	p := newPage(t, s.URL, 1366, 900)
+	p.allow("412") // the browser logs the refused save
+	p.signIn(s.Token)
+	p.do("open edit", chromedp.Navigate(fmt.Sprintf("%s/#/p/%d/log?hole=%d&edit=%d", s.URL, s.Project, h.ID, m.ID)))
+	p.waitFor("edit form filled", fmt.Sprintf(`document.querySelector('#f-alpha') && document.querySelector('#f-alpha').value === %q && document.activeElement.id === 'f-alpha'`, trimFloat(m.Alpha)))
+
+	// A second logger changes the same row first, with the current ETag.
+	var cur measurement
+	hdr := s.getJSON(t, fmt.Sprintf("/v1/projects/%d/measurements/%d", s.Project, m.ID), &cur)
+	body := map[string]any{"hole_id": cur.HoleID, "depth": cur.Depth, "alpha": cur.Alpha, "beta": cur.Beta, "type": cur.Type, "comment": "changed by the other logger"}
+	if code, _, b := s.api(t, http.MethodPut, fmt.Sprintf("/v1/projects/%d/measurements/%d", s.Project, m.ID), hdr.Get("ETag"), body); code != http.StatusOK {
+		t.Fatalf("second logger's edit: %d %s", code, b)
+	}
+
+	// This page's edit is now stale: the server answers 412 and the page
+	// shows the conflict instead of overwriting.
+	newAlpha := "12"
+	if trimFloat(m.Alpha) == newAlpha {
+		newAlpha = "13"
+	}
+	p.do("select alpha", chromedp.Evaluate[chromedp.Void](`document.querySelector('#f-alpha').select()`))
+	p.keys(newAlpha + "\r")
+	p.waitFor("conflict shown", `!document.querySelector('#conflict').hidden`)
+	if got := p.text("#conflict"); !strings.Contains(got, "changed on the server") || !strings.Contains(got, "changed by the other logger") {
+		t.Errorf("conflict panel reads %q: want the server's current version shown", got)
+	}
+	var mid measurement
+	s.getJSON(t, fmt.Sprintf("/v1/projects/%d/measurements/%d", s.Project, m.ID), &mid)
+	if mid.Comment != "changed by the other logger" || trimFloat(mid.Alpha) != trimFloat(m.Alpha) {
+		t.Errorf("the stale edit overwrote the other logger's change: %+v", mid)
+	}
+	p.shot("logging-conflict")
+
+	// Resolve: keep this page's alpha over the new version.
+	p.do("save mine", chromedp.Click(chromedp.CSS("#conflict-mine")))
+	p.waitFor("saved after resolving", `document.querySelector('#form-msg').textContent.startsWith('Saved')`)
+	var end measurement
+	s.getJSON(t, fmt.Sprintf("/v1/projects/%d/measurements/%d", s.Project, m.ID), &end)
+	if trimFloat(end.Alpha) != newAlpha || end.Version != mid.Version+1 {
+		t.Errorf("after resolving: alpha %v version %d; want alpha %s version %d", end.Alpha, end.Version, newAlpha, mid.Version+1)
+	}
+}
+
+func trimFloat(v float64) string { return strings.TrimSuffix(fmt.Sprintf("%g", v), ".0") }
+
+func TestHoleView(t *testing.T) {
+	s := startService(t)
+	h := s.holes(t)[0]
+	all := s.measurements(t, "hole="+h.Name)
+	p := newPage(t, s.URL, 1366, 900)
+	p.signIn(s.Token)
+	p.do("open hole", chromedp.Navigate(fmt.Sprintf("%s/#/p/%d/hole/%d", s.URL, s.Project, h.ID)))
+	p.waitFor("table filled", fmt.Sprintf(`document.querySelectorAll('#measurements tbody tr').length === %d`, len(all)))
+	p.waitFor("strip drawn", fmt.Sprintf(`document.querySelectorAll('.strip-m > *').length === %d && document.querySelectorAll('rect[data-confidence]').length > 0`, len(all)))
+	p.shot("hole")
+
+	// Sorting by dip, then descending.
+	p.do("sort by dip", chromedp.Click(chromedp.CSS(`th[data-key="dip"] button`)))
+	dips := eval[[]float64](p, `[...document.querySelectorAll('#measurements tbody tr')].map(r => r.children[6].textContent).filter(t => t !== '').map(Number)`)
+	for i := 1; i < len(dips); i++ {
+		if dips[i] < dips[i-1] {
+			t.Fatalf("dips not ascending after sorting: %v", dips)
+		}
+	}
+	p.do("sort by dip descending", chromedp.Click(chromedp.CSS(`th[data-key="dip"] button`)))
+	if got := eval[string](p, `document.querySelector('th[data-key="dip"]').getAttribute('aria-sort')`); got != "descending" {
+		t.Errorf("aria-sort %q after the second click", got)
+	}
+
+	// Filter to one type; the table holds what the server's filter holds, and
+	// the CSV export holds the same rows.
+	typ := all[0].Type
+	want := s.measurements(t, "hole="+h.Name+"&type="+typ)
+	p.do("filter by type", chromedp.Evaluate[chromedp.Void](fmt.Sprintf(`document.querySelectorAll('#filters input[name=type]').forEach(c => { c.checked = c.value === %q; })`, typ)),
+		chromedp.Click(chromedp.CSS(`#filters button[type=submit]`)))
+	p.waitFor("filtered table", fmt.Sprintf(`document.querySelectorAll('#measurements tbody tr').length === %d && location.hash.includes('type=')`, len(want)))
+	dl := t.TempDir()
+	if _, err := chromedp.CallBrowser(p.ctx, browser.SetDownloadBehavior, browser.SetDownloadBehaviorParams{Behavior: browser.SetDownloadBehaviorBehaviorAllow, DownloadPath: dl}); err != nil {
+		t.Fatalf("allowing downloads: %v", err)
+	}
+	p.do("export", chromedp.Click(chromedp.CSS("#export-csv")))
+	var csv []byte
+	deadline := time.Now().Add(15 * time.Second)
+	for time.Now().Before(deadline) {
+		if b, err := os.ReadFile(filepath.Join(dl, h.Name+"-measurements.csv")); err == nil && len(b) > 0 {
+			csv = b
+			break
+		}
+		time.Sleep(100 * time.Millisecond)
+	}
+	if csv == nil {
+		t.Fatal("no CSV downloaded")
+	}
+	lines := strings.Split(strings.TrimSpace(string(csv)), "\n")
+	if len(lines)-1 != len(want) {
+		t.Errorf("CSV export has %d rows, the filter holds %d", len(lines)-1, len(want))
+	}
+}
+
+func TestNetsAndQA(t *testing.T) {
+	s := startService(t)
+	p := newPage(t, s.URL, 1366, 900)
+	p.signIn(s.Token)
+	p.do("open nets", chromedp.Navigate(fmt.Sprintf("%s/#/p/%d/nets", s.URL, s.Project)))
+	p.waitFor("net shown", `document.querySelector('#net img, #net svg') !== null && document.querySelector('#rose svg, #rose img') !== null && document.querySelector('#stats, [data-state=not-available]') !== null`)
+	p.waitFor("net image loaded", `[...document.querySelectorAll('#net img')].every(i => i.complete && i.naturalWidth > 0)`)
+	p.shot("nets")
+
+	p.do("open QA", chromedp.Navigate(fmt.Sprintf("%s/#/p/%d/qa", s.URL, s.Project)))
+	p.waitFor("QA shown", `document.querySelector('#qa-caution, [data-state=not-available]') !== null`)
+	p.shot("qa")
+	if eval[bool](p, `document.querySelector('[data-state=not-available]') !== null`) {
+		t.Log("QA: the server offers no QA report; the view says so")
+		return
+	}
+	if !strings.Contains(p.text("#qa-caution"), "judgement") {
+		t.Error("the QA view does not state that flags guide judgement")
+	}
+	// A flag on a measurement leads to that measurement's row.
+	href := eval[string](p, `(document.querySelector('a.concerns[href*="?m="]') || {}).getAttribute?.('href') || ''`)
+	if href == "" {
+		t.Log("no finding about a single measurement in the demo programme")
+		return
+	}
+	p.do("follow flag", chromedp.Click(chromedp.CSS(`a.concerns[href*="?m="]`)))
+	id := href[strings.Index(href, "?m=")+3:]
+	p.waitFor("measurement highlighted", fmt.Sprintf(`document.querySelector('#m-%s.hl') !== null`, id))
+}
