@@ -1,6 +1,7 @@
 package service_test
 
 import (
+	"context"
 	"strings"
 	"sync"
 	"testing"
@@ -13,6 +14,10 @@ import (
 // caller gets the same result, all but one marked as replayed.
 func TestConcurrentRetriesWriteOnce(t *testing.T) {
 	s, ctx := newService(t)
+	checkRetries(t, s, ctx)
+}
+
+func checkRetries(t *testing.T, s *service.Service, ctx context.Context) {
 	p := must(s.CreateProject(ctx, domain.Project{Name: "race"}))
 	for _, c := range []string{"BD", "JN"} {
 		must(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: c}))

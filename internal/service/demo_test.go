@@ -1,6 +1,7 @@
 package service_test
 
 import (
+	"context"
 	"sort"
 	"testing"
 
@@ -18,6 +19,12 @@ import (
 // generator adds, its planes.
 func TestLoadDemoRecoversTheForwardModel(t *testing.T) {
 	s, ctx := newService(t)
+	checkDemo(t, s, ctx, true)
+}
+
+// checkDemo loads the demo and compares it with the forward model; ordered
+// says the store keeps bulk-loaded rows in load order (row i is structure i).
+func checkDemo(t *testing.T, s *service.Service, ctx context.Context, ordered bool) {
 	p, loaded, err := s.LoadDemo(ctx)
 	if err != nil || !loaded {
 		t.Fatalf("LoadDemo: %v (loaded %v)", err, loaded)
@@ -43,6 +50,9 @@ func TestLoadDemoRecoversTheForwardModel(t *testing.T) {
 	var holeErr, planeErr []float64
 	for i, v := range all {
 		want := d.Structures[i] // stored in generation order
+		if !ordered {
+			want = find(t, d.Structures, v)
+		}
 		if v.Hole != want.HoleID || v.Depth != want.Depth {
 			t.Fatalf("row %d is %s@%v, demo has %s@%v", i, v.Hole, v.Depth, want.HoleID, want.Depth)
 		}
@@ -66,4 +76,16 @@ func TestLoadDemoRecoversTheForwardModel(t *testing.T) {
 	}
 	t.Logf("hole direction worst %.4f deg; plane misfit median %.2f, 90th percentile %.2f deg",
 		holeErr[len(holeErr)-1], planeErr[len(planeErr)/2], planeErr[len(planeErr)*9/10])
+}
+
+// find returns the demo structure a stored measurement came from.
+func find(t *testing.T, ss []demo.Structure, v service.MeasurementView) demo.Structure {
+	t.Helper()
+	for _, x := range ss {
+		if x.HoleID == v.Hole && x.Depth == v.Depth && x.Alpha == v.Alpha && x.Beta == v.Beta {
+			return x
+		}
+	}
+	t.Fatalf("stored measurement %s@%v is not in the demo", v.Hole, v.Depth)
+	return demo.Structure{}
 }

@@ -358,6 +358,10 @@ func doImport(t testing.TB, s *service.Service, ctx context.Context, pid int64, 
 
 func TestImportExport(t *testing.T) {
 	s, ctx := newService(t)
+	checkImportExport(t, s, ctx)
+}
+
+func checkImportExport(t *testing.T, s *service.Service, ctx context.Context) {
 	p := must(s.CreateProject(ctx, domain.Project{Name: "imp"}))
 	for _, c := range []string{"BD", "JN"} {
 		must(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: c}))

@@ -84,21 +84,21 @@ func (s *Store) CreateMeasurement(ctx context.Context, m *domain.Measurement) er
 }
 
 // Bulk load through a staging table: COPY the rows into a temporary table
-// of the transaction, then INSERT ... SELECT into measurements, so the
-// constraints are checked once per batch by the server.
+// of the transaction, then INSERT ... SELECT into measurements in the order
+// given (seq), so IDs follow the input order as they do on SQLite.
 const (
 	createStaging = `CREATE TEMP TABLE IF NOT EXISTS measurements_staging (
-	project_id BIGINT, hole_id BIGINT, depth DOUBLE PRECISION, alpha DOUBLE PRECISION, beta DOUBLE PRECISION,
+	seq BIGINT, project_id BIGINT, hole_id BIGINT, depth DOUBLE PRECISION, alpha DOUBLE PRECISION, beta DOUBLE PRECISION,
 	gamma DOUBLE PRECISION, type_code TEXT, apparent_thickness DOUBLE PRECISION, comment TEXT, logged_by TEXT,
 	logged_at TIMESTAMPTZ) ON COMMIT DROP`
 	insertFromStaging = `INSERT INTO measurements (project_id, hole_id, depth, alpha, beta, gamma, type_code,
 	apparent_thickness, comment, logged_by, logged_at, version, created_at, updated_at)
 	SELECT project_id, hole_id, depth, alpha, beta, gamma, type_code, apparent_thickness, comment, logged_by,
-	logged_at, 1, $1, $1 FROM measurements_staging`
+	logged_at, 1, $1, $1 FROM measurements_staging ORDER BY seq`
 	truncateStaging = `TRUNCATE measurements_staging`
 )
 
-var stagingCols = []string{"project_id", "hole_id", "depth", "alpha", "beta", "gamma", "type_code",
+var stagingCols = []string{"seq", "project_id", "hole_id", "depth", "alpha", "beta", "gamma", "type_code",
 	"apparent_thickness", "comment", "logged_by", "logged_at"}
 
 // CreateMeasurements bulk-loads ms by COPY into a staging table and one
@@ -124,7 +124,7 @@ func (s *Store) CreateMeasurements(ctx context.Context, ms []domain.Measurement)
 			m := &ms[i]
 			i++
 			m.LoggedAt = m.LoggedAt.UTC().Truncate(time.Microsecond)
-			return []any{m.ProjectID, m.HoleID, m.Depth, m.Alpha, m.Beta, m.Gamma, m.TypeCode,
+			return []any{int64(i), m.ProjectID, m.HoleID, m.Depth, m.Alpha, m.Beta, m.Gamma, m.TypeCode,
 				m.ApparentThickness, m.Comment, m.LoggedBy, m.LoggedAt}, nil
 		})
 		if _, err := q.CopyFrom(ctx, pgx.Identifier{"measurements_staging"}, stagingCols, src); err != nil {

@@ -342,6 +342,20 @@ func testMeasurements(t *testing.T, s domain.Store) {
 	if len(seen) != 251 {
 		t.Fatalf("paged %d rows, want 251", len(seen))
 	}
+	// Bulk rows get IDs in the order given.
+	byDepth, err := s.ListMeasurements(c, domain.MeasurementFilter{ProjectID: p.ID, TypeCodes: []string{"JN"}, MinDepth: f64(0)}, domain.Page{Limit: 1000})
+	must(t, err)
+	var bulkSeen []float64
+	for _, x := range byDepth {
+		if x.LoggedBy == "bulk" {
+			bulkSeen = append(bulkSeen, x.Depth)
+		}
+	}
+	for i := 1; i < len(bulkSeen); i++ {
+		if bulkSeen[i] <= bulkSeen[i-1] {
+			t.Fatalf("bulk rows out of input order at %d: %v after %v", i, bulkSeen[i], bulkSeen[i-1])
+		}
+	}
 	// A bulk batch with one bad row writes nothing.
 	bad := []domain.Measurement{
 		{ProjectID: p.ID, HoleID: h.ID, Depth: 1, Alpha: 1, Beta: 1, TypeCode: "JN", LoggedAt: logged},

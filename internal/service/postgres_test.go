@@ -1,0 +1,40 @@
+package service_test
+
+import (
+	"context"
+	"os"
+	"testing"
+
+	"corvane/internal/pgtest"
+	"corvane/internal/service"
+	"corvane/internal/store/postgres"
+)
+
+func TestMain(m *testing.M) {
+	os.Exit(pgtest.Main(m, func(url string) error { return postgres.Migrate(url, 0) }))
+}
+
+// The use cases whose store paths differ most (COPY bulk loads, racing
+// transactions) run on PostgreSQL too.
+func TestOnPostgres(t *testing.T) {
+	open := func(t *testing.T) (*service.Service, context.Context) {
+		st, err := postgres.Open(context.Background(), pgtest.DB(t))
+		if err != nil {
+			t.Fatal(err)
+		}
+		t.Cleanup(func() { st.Close() })
+		return service.New(st, nil), service.WithActor(context.Background(), service.System)
+	}
+	t.Run("ImportExport", func(t *testing.T) {
+		s, ctx := open(t)
+		checkImportExport(t, s, ctx)
+	})
+	t.Run("ConcurrentRetries", func(t *testing.T) {
+		s, ctx := open(t)
+		checkRetries(t, s, ctx)
+	})
+	t.Run("Demo", func(t *testing.T) {
+		s, ctx := open(t)
+		checkDemo(t, s, ctx, true)
+	})
+}
