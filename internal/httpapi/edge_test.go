@@ -4,6 +4,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"io"
 	"net/http"
 	"net/http/httptest"
 	"strings"
@@ -164,4 +165,42 @@ func TestJSONErrorsNameTheField(t *testing.T) {
 		t.Errorf("csv body to a JSON route: %v", err)
 	}
 	_ = json.Valid
+}
+
+// TestStreamCutIsVisible: a streamed response that fails after its first
+// bytes must not look complete to the client, and is logged as an error.
+func TestStreamCutIsVisible(t *testing.T) {
+	f := newFixture(t)
+	f.srv.engine.GET("/stream-test/:n", func(c *gin.Context) {
+		stream(c, "text/csv", func(w *trackingWriter) error {
+			if c.Param("n") == "early" {
+				return domain.Errorf(domain.Invalid, "bad filter")
+			}
+			_, _ = w.Write([]byte("a,b\n1,2\n"))
+			w.Flush()
+			return errors.New("store went away")
+		})
+	})
+	ts := httptest.NewServer(f.srv)
+	defer ts.Close()
+	resp, err := http.Get(ts.URL + "/stream-test/late")
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, err = io.ReadAll(resp.Body)
+	resp.Body.Close()
+	if err == nil {
+		t.Error("a stream cut part-way read as complete")
+	}
+	resp, err = http.Get(ts.URL + "/stream-test/early")
+	if err != nil {
+		t.Fatal(err)
+	}
+	resp.Body.Close()
+	if resp.StatusCode != 422 || resp.Header.Get("Content-Type") != ProblemContentType {
+		t.Errorf("failure before the first byte: %d %s", resp.StatusCode, resp.Header.Get("Content-Type"))
+	}
+	if !strings.Contains(f.logs.String(), "store went away") {
+		t.Errorf("cut stream not logged:\n%s", f.logs.String())
+	}
 }

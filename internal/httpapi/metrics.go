@@ -47,13 +47,17 @@ func routeLabel(c *gin.Context) string {
 	return "unmatched"
 }
 
+// middleware counts and times every request, including one a handler aborts
+// with a panic (a stream cut part-way), hence the defer.
 func (m *metrics) middleware(c *gin.Context) {
 	start := time.Now()
 	m.inflight.Inc()
-	defer m.inflight.Dec()
+	defer func() {
+		m.inflight.Dec()
+		status := strconv.Itoa(c.Writer.Status())
+		route := routeLabel(c)
+		m.requests.WithLabelValues(c.Request.Method, route, status).Inc()
+		m.latency.WithLabelValues(c.Request.Method, route, status).Observe(time.Since(start).Seconds())
+	}()
 	c.Next()
-	status := strconv.Itoa(c.Writer.Status())
-	route := routeLabel(c)
-	m.requests.WithLabelValues(c.Request.Method, route, status).Inc()
-	m.latency.WithLabelValues(c.Request.Method, route, status).Observe(time.Since(start).Seconds())
 }

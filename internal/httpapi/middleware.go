@@ -3,7 +3,6 @@ package httpapi
 import (
 	"crypto/rand"
 	"encoding/hex"
-	"fmt"
 	"log/slog"
 	"net/http"
 	"runtime/debug"
@@ -65,43 +64,48 @@ func recoverer(c *gin.Context) {
 func accessLog(log *slog.Logger) gin.HandlerFunc {
 	return func(c *gin.Context) {
 		start := time.Now()
+		// Deferred, so that a request a handler aborts part-way (a stream cut
+		// with http.ErrAbortHandler) is logged too.
+		defer logRequest(log, c, start)
 		c.Next()
-		status := c.Writer.Status()
-		attrs := []slog.Attr{
-			slog.String("method", c.Request.Method),
-			slog.String("path", c.Request.URL.Path),
-			slog.String("route", routeLabel(c)),
-			slog.Int("status", status),
-			slog.Duration("duration", time.Since(start)),
-			slog.Int("bytes", c.Writer.Size()),
-			slog.String("request_id", c.GetString("request_id")),
-			slog.String("remote", c.ClientIP()),
-		}
-		if who := c.GetString("principal"); who != "" {
-			attrs = append(attrs, slog.String("token", who))
-		}
-		level := slog.LevelInfo
-		if len(c.Errors) > 0 {
-			err := c.Errors.Last().Err
-			if status >= 500 {
-				level = slog.LevelError
-				attrs = append(attrs, slog.String("error", err.Error()))
-			} else {
-				level = slog.LevelWarn
-				attrs = append(attrs, slog.String("error", domain.Public(err)))
-				if p := problemFor(err, ""); p.Detail != "" {
-					attrs[len(attrs)-1] = slog.String("error", p.Detail)
-				}
-			}
-		} else if status >= 500 {
-			level = slog.LevelError
-		}
-		log.LogAttrs(c.Request.Context(), level, "http request", attrs...)
 	}
 }
 
+// logRequest writes the one line of a request. A failure is logged with the
+// reason the client was given (warn) or, for server errors and streams cut
+// part-way, with the internal cause (error).
+func logRequest(log *slog.Logger, c *gin.Context, start time.Time) {
+	status := c.Writer.Status()
+	attrs := []slog.Attr{
+		slog.String("method", c.Request.Method),
+		slog.String("path", c.Request.URL.Path),
+		slog.String("route", routeLabel(c)),
+		slog.Int("status", status),
+		slog.Duration("duration", time.Since(start)),
+		slog.Int("bytes", c.Writer.Size()),
+		slog.String("request_id", c.GetString("request_id")),
+		slog.String("remote", c.ClientIP()),
+	}
+	if who := c.GetString("principal"); who != "" {
+		attrs = append(attrs, slog.String("token", who))
+	}
+	level := slog.LevelInfo
+	switch {
+	case len(c.Errors) > 0 && (status >= 500 || status < 400):
+		level = slog.LevelError
+		attrs = append(attrs, slog.String("error", c.Errors.Last().Err.Error()))
+	case len(c.Errors) > 0:
+		level = slog.LevelWarn
+		attrs = append(attrs, slog.String("error", problemFor(c.Errors.Last().Err, "").Detail))
+	case status >= 500:
+		level = slog.LevelError
+	}
+	log.LogAttrs(c.Request.Context(), level, "http request", attrs...)
+}
+
 // limitBody caps the request body at n bytes; reading past it fails with an
-// *http.MaxBytesError, which problemFor maps to 413.
+// *http.MaxBytesError, which problemFor maps to 413. A declared length over
+// the limit is refused at once.
 func limitBody(c *gin.Context, n int64) {
 	if c.Request.ContentLength > n {
 		fail(c, errTooLarge(n))
@@ -111,5 +115,3 @@ func limitBody(c *gin.Context, n int64) {
 		c.Request.Body = http.MaxBytesReader(c.Writer, c.Request.Body, n)
 	}
 }
-
-func describe(v any) string { return fmt.Sprint(v) }

@@ -73,6 +73,9 @@ func New(opt Options) *Server {
 	e.RedirectTrailingSlash = false
 	e.RedirectFixedPath = false
 	e.ContextWithFallback = true
+	// The client address in logs is the peer's: X-Forwarded-For is not
+	// trusted, since anyone can send it.
+	_ = e.SetTrustedProxies(nil)
 	s := &Server{opt: opt, engine: e, metrics: newMetrics(opt.Registry), log: opt.Logger}
 	e.Use(requestID, s.metrics.middleware, accessLog(s.log), recoverer)
 	s.routes()
