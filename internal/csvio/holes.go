@@ -310,10 +310,19 @@ func AppendFloat(b []byte, v float64, prec int) []byte {
 	if v < 0 {
 		b = append(b, '-')
 	}
-	// Digits from the right into a small array: fraction, point, integer.
+	// Digits from the right, two at a time, into a small array: fraction,
+	// point, integer.
 	var d [24]byte
 	i := len(d)
-	for k := 0; k < prec; k++ {
+	k := prec
+	for ; k >= 2; k -= 2 {
+		q := n / 100
+		r := (n - q*100) * 2
+		i -= 2
+		d[i], d[i+1] = digits2[r], digits2[r+1]
+		n = q
+	}
+	if k == 1 {
 		i--
 		d[i] = byte('0' + n%10)
 		n /= 10
@@ -322,15 +331,25 @@ func AppendFloat(b []byte, v float64, prec int) []byte {
 		i--
 		d[i] = '.'
 	}
-	for {
+	for n >= 100 {
+		q := n / 100
+		r := (n - q*100) * 2
+		i -= 2
+		d[i], d[i+1] = digits2[r], digits2[r+1]
+		n = q
+	}
+	if n >= 10 {
+		i -= 2
+		d[i], d[i+1] = digits2[2*n], digits2[2*n+1]
+	} else {
 		i--
-		d[i] = byte('0' + n%10)
-		n /= 10
-		if n == 0 {
-			break
-		}
+		d[i] = byte('0' + n)
 	}
 	return append(b, d[i:]...)
 }
+
+const digits2 = "00010203040506070809101112131415161718192021222324252627282930313233343536373839" +
+	"40414243444546474849505152535455565758596061626364656667686970717273747576777879" +
+	"8081828384858687888990919293949596979899"
 
 var pow10 = [...]float64{1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15}
