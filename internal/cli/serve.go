@@ -121,7 +121,7 @@ func serve(ctx context.Context, env *Env, cfg config.Config, log *slog.Logger) e
 	// advisory lock, so replicas starting together are safe.
 	st, err := store.OpenMigrated(ctx, cfg.DatabaseURL)
 	if err != nil {
-		return fmt.Errorf("opening %s: %w", config.RedactDatabaseURL(cfg.DatabaseURL), err)
+		return fmt.Errorf("store: %w", err)
 	}
 	defer st.Close()
 	svc := service.New(st, log)
