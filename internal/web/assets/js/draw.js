@@ -259,7 +259,7 @@ export function confidenceFill(c) {
 // by type in columns, QA flags at depth. onPick(kind, item) is called on a
 // click or Enter on a measurement or flag.
 export function depthStrip({ depth, runs, measurements, types, flags, unit = "m", onPick }) {
-  const colW = 34;
+  const colW = 52;
   const typeCols = types.length || 1;
   const w = 90 + 56 + typeCols * colW + 70 + 20;
   const h = Math.max(520, Math.min(1600, depth * 2.2)) + 70;

@@ -92,7 +92,7 @@ export async function holeView(ctx, holeId) {
   const to = h("input", { id: "flt-to", type: "date", value: f.to });
   const filterMsg = h("span", { class: "field-msg", role: "alert" });
   const filterForm = h("form", { class: "filters", id: "filters" },
-    h("fieldset", {}, h("legend", {}, "Types"), typeBoxes),
+    h("fieldset", {}, h("legend", {}, "Types (none ticked: all)"), typeBoxes),
     h("div", { class: "field inline" }, h("label", { for: "flt-min" }, `Depth from (${unit})`), minD, h("label", { for: "flt-max" }, "to"), maxD),
     h("div", { class: "field inline" }, h("label", { for: "flt-from" }, "Logged from"), from, h("label", { for: "flt-to" }, "to"), to),
     h("div", { class: "actions" }, h("button", { type: "submit", class: "primary" }, "Apply filter"),
@@ -194,9 +194,9 @@ export async function holeView(ctx, holeId) {
   put(surveyBox, h("h2", {}, "Survey"),
     st.length
       ? h("div", { class: "scroll" }, h("table", { class: "data compact", id: "stations" },
-        h("thead", {}, h("tr", {}, h("th", { scope: "col" }, "#"), h("th", { scope: "col" }, `Depth (${unit})`), h("th", { scope: "col" }, `Azimuth (${srv.azimuth_ref})`), h("th", { scope: "col" }, "Dip"), h("th", { scope: "col" }, "QA"))),
+        h("thead", {}, h("tr", {}, h("th", { scope: "col", class: "num" }, "#"), h("th", { scope: "col", class: "num" }, `Depth (${unit})`), h("th", { scope: "col", class: "num" }, `Azimuth (${srv.azimuth_ref})`), h("th", { scope: "col", class: "num" }, "Dip"), h("th", { scope: "col" }, "QA"))),
         h("tbody", {}, st.map((s, i) => {
-          const fl = flags.filter((x) => x.source === "surveys" && Math.abs(x.depth - s.depth) < 1e-6);
+          const fl = flags.filter((x) => x.source === "surveys" && (x.station ? x.station === i + 1 : Math.abs(x.depth - s.depth) < 1e-6));
           return h("tr", { id: `st-${i}`, "data-depth": s.depth, class: highlightS !== null && Math.abs(Number(highlightS) - s.depth) < 1e-6 ? "hl" : "" },
             h("td", { class: "num" }, i + 1), h("td", { class: "num" }, fmt(s.depth, 1)), h("td", { class: "num" }, fmt(s.azimuth, 1)), h("td", { class: "num" }, fmt(s.dip, 1)),
             h("td", {}, fl.map((x) => x.message).join("; ")));

@@ -25,43 +25,37 @@ async function svgFrom(path, template) {
   }
 }
 
-function meanText(st, lines) {
-  const m = (st && st.mean) || {};
-  if (lines || m.trend != null) return `${az(m.trend)} / ${fmt(m.plunge, 0)}`;
-  if (m.dip != null) return `${fmt(m.dip, 0)} \u2192 ${az(m.dip_direction)}`;
-  return "\u2013";
+function meanOf(u, kind) {
+  if (!u) return "\u2013";
+  if (kind === "lines" || u.mean_trend != null) return `${az(u.mean_trend)} / ${fmt(u.mean_plunge, 0)}`;
+  return `${fmt(u.mean_dip, 0)} \u2192 ${az(u.mean_dip_direction)}`;
 }
 
-// statsTable renders the statistics document: for planes and for lines, the
-// whole selection and each set, unweighted and weighted side by side.
+// statsTable renders the statistics of the selection: one row per group (a
+// type code or an automatic set), unweighted and, when asked, Terzaghi
+// weighted side by side.
 export function statsTable(doc) {
   const out = h("div", { id: "stats" });
-  const groups = [["planes", "Planes (poles)"], ["lines", "Lines"]].filter(([k]) => doc && doc[k]);
-  if (!groups.length) {
+  if (!doc || !Array.isArray(doc.groups)) {
     add(out, h("p", {}, "The server returned statistics in a form this page does not know; nothing is shown rather than a guess."));
     return out;
   }
-  for (const [k, title] of groups) {
-    const g = doc[k];
-    const sets = [g.all ? { ...g.all, name: g.all.name || "all" } : null, ...(g.sets || [])].filter(Boolean);
-    const weighted = sets.some((s) => s.weighted);
-    const head = ["Set", "n", "Mean", "k", "cone 95 (\u00b0)", "spread (\u00b0)", "R"];
-    if (weighted) head.push("Mean (weighted)", "k (w.)", "cone 95 (w.)");
-    add(out, h("h3", {}, `${title}: ${g.count ?? sets[0]?.count ?? 0}` + (g.set_method ? `, sets by ${g.set_method}` : "")),
-      h("div", { class: "scroll" }, h("table", { class: "data compact" },
-        h("thead", {}, h("tr", {}, head.map((t) => h("th", { scope: "col" }, t)))),
-        h("tbody", {}, sets.map((s) => {
-          const u = s.unweighted || s;
-          const w = s.weighted;
-          return h("tr", {}, h("th", { scope: "row" }, s.name || ""), h("td", { class: "num" }, s.count ?? ""),
-            h("td", { class: "num" }, meanText(u, k === "lines")), h("td", { class: "num" }, fmt(u.k, 1)), h("td", { class: "num" }, fmt(u.cone95, 1)),
-            h("td", { class: "num" }, fmt(u.spread, 1)), h("td", { class: "num" }, fmt(u.R, 2)),
-            weighted ? [h("td", { class: "num" }, w ? meanText(w, k === "lines") : "\u2013"), h("td", { class: "num" }, w ? fmt(w.k, 1) : "\u2013"), h("td", { class: "num" }, w ? fmt(w.cone95, 1) : "\u2013")] : null);
-        })))),
-      g.unassigned != null ? h("p", { class: "help" }, `${g.unassigned} not assigned to any set.`) : null);
-  }
-  if (doc.weighting) add(out, h("p", { class: "help" }, `Weighting: ${doc.weighting.method}, cap ${doc.weighting.cap} (${doc.weighting.cap_source || ""}).`));
-  if (doc.spread_formula) add(out, h("p", { class: "help" }, `Spread: ${doc.spread_formula}.`));
+  const weighted = doc.groups.some((g) => g.weighted);
+  const head = ["Group", "Kind", "n", "Mean (dip \u2192 dir. / trend / plunge)", "k", "cone 95 (\u00b0)", "spread (\u00b0)", "Woodcock K"];
+  if (weighted) head.push("Weighted mean", "k (w.)", "cone 95 (w.)");
+  add(out,
+    h("div", { class: "scroll" }, h("table", { class: "data compact", id: "stats-table" },
+      h("thead", {}, h("tr", {}, head.map((t) => h("th", { scope: "col" }, t)))),
+      h("tbody", {}, doc.groups.map((g) => {
+        const u = g.unweighted || {};
+        const w = g.weighted;
+        return h("tr", {}, h("th", { scope: "row" }, g.name), h("td", {}, g.kind === "lines" ? "lines" : "poles"), h("td", { class: "num" }, u.count ?? ""),
+          h("td", { class: "num" }, meanOf(u, g.kind)), h("td", { class: "num" }, fmt(u.k, 1)), h("td", { class: "num" }, fmt(u.cone95, 1)),
+          h("td", { class: "num" }, fmt(u.spread, 1)), h("td", { class: "num" }, fmt(u.woodcock_k, 2)),
+          weighted ? [h("td", { class: "num" }, w ? meanOf(w, g.kind) : "\u2013"), h("td", { class: "num" }, w ? fmt(w.k, 1) : "\u2013"), h("td", { class: "num" }, w ? fmt(w.cone95, 1) : "\u2013")] : null);
+      })))),
+    h("p", { class: "help" }, `${doc.matched} measurements matched, ${doc.skipped} without a usable orientation` + (doc.unassigned ? `, ${doc.unassigned} in no set` : "") + `. Grouping: ${doc.method || "by type"}. Azimuths from ${doc.azimuth_ref} north.`),
+    doc.caution ? h("p", { class: "help" }, doc.caution) : null);
   return out;
 }
 
@@ -73,24 +67,31 @@ export async function netsView(ctx) {
     type: (params.get("type") || "").split(",").filter(Boolean),
     min_depth: params.get("min_depth") || "",
     max_depth: params.get("max_depth") || "",
-    weighting: params.get("weighting") || "none",
-    show: (params.get("show") || "poles,density").split(",").filter(Boolean),
+    weighting: params.get("terzaghi") === "true" ? "terzaghi" : "none",
+    sets: params.get("sets") || "0",
+    projection: params.get("projection") || "equal-area",
+    show: (params.get("show") || "density").split(",").filter(Boolean),
   };
   add(host, h("h1", {}, "Nets and sets"));
   const holeBoxes = p.holes.map((x) => h("label", { class: "check" }, h("input", { type: "checkbox", name: "hole", value: x.name, checked: !sel.hole.length || sel.hole.includes(x.name) }), x.name));
   const typeBoxes = p.types.map((t, i) => h("label", { class: "check" }, h("input", { type: "checkbox", name: "type", value: t.code, checked: !sel.type.length || sel.type.includes(t.code) }), t.code));
-  const showBoxes = [["poles", "poles"], ["planes", "planes (great circles)"], ["density", "density"]].map(([v, l]) => h("label", { class: "check" }, h("input", { type: "checkbox", name: "show", value: v, checked: sel.show.includes(v) }), l));
+  const showBoxes = [["planes", "planes (great circles)"], ["density", "density (Kamb contours)"]].map(([v, l]) => h("label", { class: "check" }, h("input", { type: "checkbox", name: "show", value: v, checked: sel.show.includes(v) }), l));
   const minD = h("input", { id: "n-min", inputmode: "decimal", value: sel.min_depth, size: 6 });
   const maxD = h("input", { id: "n-max", inputmode: "decimal", value: sel.max_depth, size: 6 });
-  const weighting = h("select", { id: "n-weight" }, h("option", { value: "none" }, "none"), h("option", { value: "terzaghi" }, "Terzaghi (hole-direction bias)"));
+  const weighting = h("select", { id: "n-weight" }, h("option", { value: "none" }, "none"), h("option", { value: "terzaghi" }, "Terzaghi (hole-direction bias), beside unweighted"));
   weighting.value = sel.weighting;
+  const sets = h("select", { id: "n-sets" }, h("option", { value: "0" }, "by type code"), [2, 3, 4, 5, 6].map((n) => h("option", { value: n }, `${n} automatic sets`)));
+  sets.value = sel.sets;
+  const projection = h("select", { id: "n-proj" }, h("option", { value: "equal-area" }, "equal-area (Schmidt)"), h("option", { value: "equal-angle" }, "equal-angle (Wulff)"));
+  projection.value = sel.projection;
   const msg = h("span", { class: "field-msg", role: "alert" });
   const form = h("form", { class: "card filters", id: "net-form" },
     h("fieldset", {}, h("legend", {}, "Holes"), holeBoxes),
     h("fieldset", {}, h("legend", {}, "Types"), typeBoxes),
     h("div", { class: "field inline" }, h("label", { for: "n-min" }, `Depth from (${unit})`), minD, h("label", { for: "n-max" }, "to"), maxD),
-    h("div", { class: "field inline" }, h("label", { for: "n-weight" }, "Weighting"), weighting),
-    h("fieldset", {}, h("legend", {}, "Show"), showBoxes),
+    h("div", { class: "field inline" }, h("label", { for: "n-weight" }, "Weighting"), weighting, h("label", { for: "n-sets" }, "Sets"), sets),
+    h("div", { class: "field inline" }, h("label", { for: "n-proj" }, "Net"), projection),
+    h("fieldset", {}, h("legend", {}, "Show with the poles"), showBoxes),
     h("div", { class: "actions" }, h("button", { type: "submit", class: "primary" }, "Draw"), h("button", { type: "button", id: "download-svg" }, "Download SVG"), msg));
   const netHost = h("div", { class: "net-big", id: "net" }, h("p", { class: "loading" }, "Drawing\u2026"));
   const roseHost = h("div", { class: "rose", id: "rose" });
@@ -117,14 +118,14 @@ export async function netsView(ctx) {
       hole: holes.length === p.holes.length ? [] : holes,
       type: types.length === p.types.length ? [] : types,
       min_depth: minD.value.trim(), max_depth: maxD.value.trim(),
-      weighting: weighting.value, show: checked(showBoxes),
+      weighting: weighting.value, sets: sets.value, projection: projection.value, show: checked(showBoxes),
     };
   }
   const filterOf = (s) => ({ hole: s.hole, type: s.type, min_depth: s.min_depth, max_depth: s.max_depth });
   form.addEventListener("submit", (e) => {
     e.preventDefault();
     const s = read();
-    if (s) ctx.go(`#/p/${p.id}/nets` + query({ ...filterOf(s), weighting: s.weighting === "none" ? "" : s.weighting, show: s.show.join(",") }));
+    if (s) ctx.go(`#/p/${p.id}/nets` + query({ ...filterOf(s), terzaghi: s.weighting === "terzaghi" ? "true" : "", sets: s.sets === "0" ? "" : s.sets, projection: s.projection === "equal-area" ? "" : s.projection, show: s.show.join(",") || "none" }));
   });
   let lastSvg = null;
   form.querySelector("#download-svg").addEventListener("click", () => {
@@ -137,13 +138,14 @@ export async function netsView(ctx) {
   });
 
   const fq = filterOf(sel);
-  const netQ = query({ ...fq, weighting: sel.weighting === "none" ? "" : sel.weighting, show: sel.show.join(",") });
+  const netQ = query({ ...fq, density: sel.show.includes("density") ? "true" : "", planes: sel.show.includes("planes") ? "true" : "", projection: sel.projection });
+  const statQ = query({ ...fq, terzaghi: sel.weighting === "terzaghi" ? "true" : "", sets: sel.sets === "0" ? "" : sel.sets });
   const [netSvg, roseSvg, stats, rows] = await Promise.all([
     svgFrom(`/v1/projects/${p.id}/net${netQ}`, "/v1/projects/{project}/net").catch((e) => ({ error: e })),
     svgFrom(`/v1/projects/${p.id}/rose${query(fq)}`, "/v1/projects/{project}/rose").catch((e) => ({ error: e })),
     offers("/v1/projects/{project}/statistics").then((ok) => ok === false
       ? { error: new ApiError(404, { title: "not offered" }) }
-      : request("GET", `/v1/projects/${p.id}/statistics${query({ ...fq, weighting: sel.weighting === "none" ? "" : sel.weighting })}`).then((r) => r.data)).catch((e) => ({ error: e })),
+      : request("GET", `/v1/projects/${p.id}/statistics${statQ}`).then((r) => r.data)).catch((e) => ({ error: e })),
     measurements(p.id, fq),
   ]);
   if (!ctx.isCurrent()) return;
