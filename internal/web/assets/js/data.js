@@ -101,14 +101,14 @@ let qaRoute = null;
 
 // qaReport returns the QA report of the programme (or one hole), or null when
 // the server offers no QA.
-export async function qaReport(pid, holeId) {
+export async function qaReport(pid, holeId, params = {}) {
   if (qaRoute === null) {
     const t = holeId ? "/v1/projects/{project}/holes/{hole}/qa" : "/v1/projects/{project}/qa";
     if ((await offers(t)) === false) return null;
   }
   if (qaRoute === false) return null;
   try {
-    const r = await get(holeId ? `/v1/projects/${pid}/holes/${holeId}/qa` : `/v1/projects/${pid}/qa`);
+    const r = await get((holeId ? `/v1/projects/${pid}/holes/${holeId}/qa` : `/v1/projects/${pid}/qa`) + query(params));
     qaRoute = true;
     return r;
   } catch (e) {

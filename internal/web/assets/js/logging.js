@@ -340,11 +340,11 @@ export async function logging(ctx) {
     });
     put(conflictBox, 
       h("h2", {}, "Changed by someone else"),
-      h("p", {}, `Measurement ${now.id} was changed on the server after you opened it (now version ${now.version}, by ${now.logged_by || "another user"}). Nothing was overwritten. Compare and choose:`),
+      h("p", {}, `Measurement ${now.id} was changed on the server after you opened it (you opened version ${editing.version}; it is now version ${now.version}). Nothing was overwritten. Compare and choose:`),
       h("table", { class: "data compact" }, h("thead", {}, h("tr", {}, h("th", {}, ""), h("th", {}, "Yours (not saved)"), h("th", {}, "On the server now"), h("th", {}, ""))), h("tbody", {}, rows)),
       h("div", { class: "actions" },
-        h("button", { type: "button", class: "primary", id: "conflict-mine", onclick: () => { editing.etag = etag; conflictBox.hidden = true; save(); } }, "Save mine over theirs"),
-        h("button", { type: "button", id: "conflict-theirs", onclick: () => { editing.etag = etag; fill(now); conflictBox.hidden = true; formMsg.textContent = "Loaded the server's version."; update(); } }, "Take theirs")));
+        h("button", { type: "button", class: "primary", id: "conflict-mine", onclick: () => { editing.etag = etag; editing.version = now.version; conflictBox.hidden = true; save(); } }, "Save mine over theirs"),
+        h("button", { type: "button", id: "conflict-theirs", onclick: () => { editing.etag = etag; editing.version = now.version; setMode(); fill(now); conflictBox.hidden = true; formMsg.textContent = "Loaded the server's version."; update(); } }, "Take theirs")));
     conflictBox.hidden = false;
     formMsg.className = "form-msg bad";
     formMsg.textContent = "Not saved: this measurement changed on the server since you opened it.";

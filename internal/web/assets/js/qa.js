@@ -4,6 +4,7 @@
 
 import { h, fmt, clear, notAvailable, problemText, add, put } from "./dom.js";
 import { qaReport } from "./data.js";
+import { query } from "./api.js";
 
 const SEVERITY = { flag: "Flag", warning: "Warning", info: "Note" };
 const ORDER = { flag: 0, warning: 1, info: 2 };
@@ -30,15 +31,20 @@ export async function qaView(ctx) {
   add(host, h("h1", {}, "Quality checks"));
   const onlyHole = params.get("hole") || "";
   const holeSel = h("select", { id: "qa-hole" }, h("option", { value: "" }, "whole programme"), p.holes.map((x) => h("option", { value: x.name, selected: x.name === onlyHole }, x.name)));
-  holeSel.addEventListener("change", () => ctx.go(`#/p/${p.id}/qa` + (holeSel.value ? `?hole=${encodeURIComponent(holeSel.value)}` : "")));
-  add(host, h("div", { class: "title-row" }, h("label", { for: "qa-hole" }, "Show"), holeSel));
+  const persistent = params.get("persistent") || "";
+  const fabricSel = h("select", { id: "qa-fabric" }, h("option", { value: "" }, "none (skip the check)"), p.types.map((t) => h("option", { value: t.code, selected: t.code === persistent }, t.code)));
+  const reload = () => ctx.go(`#/p/${p.id}/qa` + query({ hole: holeSel.value, persistent: fabricSel.value }));
+  holeSel.addEventListener("change", reload);
+  fabricSel.addEventListener("change", reload);
+  add(host, h("div", { class: "title-row" }, h("label", { for: "qa-hole" }, "Show"), holeSel,
+    h("label", { for: "qa-fabric" }, "Persistent fabric for the mark-rotation check"), fabricSel));
   const body = h("div", {}, h("p", { class: "loading" }, "Running the checks\u2026"));
   add(host, body);
 
   let rep;
   try {
     const ho = p.holes.find((x) => x.name === onlyHole);
-    rep = await qaReport(p.id, ho ? ho.id : undefined);
+    rep = await qaReport(p.id, ho ? ho.id : undefined, { persistent });
   } catch (e) {
     put(body, h("p", { class: "msg bad" }, "QA could not be read: " + problemText(e)));
     return;
@@ -79,6 +85,7 @@ export async function qaView(ctx) {
     const ho = byName.get(k);
     body.append(h("section", { class: "card qa-hole", "data-hole": k },
       h("h2", {}, k ? (ho ? h("a", { href: `#/p/${p.id}/hole/${ho.id}` }, `Hole ${k}`) : `Hole ${k}`) : "Programme-wide"),
+      holeLine(holeRep.get(k)),
       h("div", { class: "scroll" }, h("table", { class: "data findings" },
         h("thead", {}, h("tr", {}, ["Severity", `Depth (${unit})`, "Check", "Finding", "Concerns"].map((t) => h("th", { scope: "col" }, t)))),
         h("tbody", {}, list.map((f) => {
@@ -91,4 +98,14 @@ export async function qaView(ctx) {
             h("td", {}, link ? h("a", { href: link.href, class: "concerns" }, link.text) : ""));
         }))))));
   }
+}
+
+function holeLine(hr) {
+  if (!hr) return null;
+  const c = hr.coverage || {};
+  const rotated = (hr.runs || []).filter((r) => r.rotation && r.rotation.flagged).length;
+  return h("p", { class: "help" },
+    `Oriented ${Math.round((c.oriented_share || 0) * 100)}% of the hole (confident ${Math.round((c.confident_share || 0) * 100)}%); ` +
+    `${hr.measurements ?? 0} measurements, ${hr.outside_runs ?? 0} outside any run, ${hr.in_unusable_runs ?? 0} in unusable runs` +
+    (rotated ? `; ${rotated} run${rotated === 1 ? "" : "s"} with a suggested mark rotation.` : "."));
 }
