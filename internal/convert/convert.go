@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"runtime"
 
 	"corvane/internal/coreangle"
 	"corvane/internal/csvio"
@@ -213,70 +214,203 @@ func (hs *Holes) Convert(ctx context.Context, r io.Reader, w io.Writer) (Summary
 	cw.Strings(sr.Header.Names)
 	cw.Strings(outCols)
 	cw.EndRow()
-	// Reading and parsing run in their own goroutine, a batch of rows ahead
-	// of the conversion and writing; a few batches circulate, so memory stays
-	// bounded.
-	batches := readAhead(sr)
-	defer batches.stop()
-	var tail []byte // scratch for rows whose corrections vary with depth
-	var last *Hole
-	var m Measurement
-	for b := range batches.full {
+
+	// One goroutine splits the input into records, a batch at a time; workers
+	// parse, convert and format whole batches; this goroutine writes the
+	// batches in input order. A fixed number of batches circulate, so memory
+	// stays bounded however long the input.
+	cv := &converter{hs: hs, sr: sr, file: file, ncols: len(sr.Header.Names), nout: len(outCols), thick: thick}
+	p := cv.start(hs.opt.Workers)
+	defer p.stop()
+	for b := range p.order {
+		<-b.done
 		if err := ctx.Err(); err != nil {
 			return sum, err
 		}
-		for i := range b.rows {
-			row := &b.rows[i]
-			sum.Rows++
-			if len(row.Record) == len(sr.Header.Names) {
-				cw.Raw(row.Raw) // the input columns exactly as read
-			} else {
-				writeRecord(cw, row.Record, len(sr.Header.Names))
-			}
-			if row.Err != nil {
-				sum.BadRows++
-				writeEmpty(cw, len(outCols)-1)
-				cw.String(row.Err.Error())
-				cw.EndRow()
-				continue
-			}
-			if last == nil || last.ID != row.HoleID {
-				last = hs.holes[row.HoleID]
-			}
-			m = Measurement{HoleID: row.HoleID, Depth: row.Depth, Alpha: row.Alpha, Beta: row.Beta,
-				Gamma: row.Gamma, HasGamma: row.HasGamma, Thickness: row.Thickness, HasThickness: row.HasThickness}
-			res, err := hs.orient(last, &m)
-			if err != nil {
-				sum.BadRows++
-				writeEmpty(cw, len(outCols)-1)
-				var de *domain.Error
-				errors.As(err, &de)
-				col := de.Loc.Column
-				if i := sr.Header.Index(col); i >= 0 {
-					col = sr.Header.Names[i]
-				}
-				cw.String(de.At(domain.Location{File: file, Line: row.Line, Column: col}).Error())
-				cw.EndRow()
-				continue
-			}
-			if res.Warn != 0 || res.Hole.Caution != "" {
-				sum.WarnRows++
-			}
-			if res.Point.Extrapolated {
-				sum.Extrapols++
-			}
-			tail = writeResult(cw, &res, thick, tail)
-			cw.EndRow()
-		}
+		cw.Write(b.out.Buffered())
+		sum.add(b.sum)
 		if b.err != nil {
 			return sum, b.err
 		}
-		batches.free <- b
+		p.free <- b
 	}
 	if err := cw.Flush(); err != nil {
 		return sum, fmt.Errorf("writing the output: %w", err)
 	}
 	return sum, nil
+}
+
+func (s *Summary) add(o Summary) {
+	s.Rows += o.Rows
+	s.BadRows += o.BadRows
+	s.WarnRows += o.WarnRows
+	s.Extrapols += o.Extrapols
+}
+
+// converter holds what the workers of one Convert call share; it is only
+// read by them.
+type converter struct {
+	hs          *Holes
+	sr          *csvio.StructureReader
+	file        string
+	ncols, nout int
+	thick       bool
+}
+
+// batchRows is the number of rows in one batch.
+const batchRows = 512
+
+// batch is a run of rows; Record and Raw slices point into fields and raw.
+type batch struct {
+	rows     []csvio.StructureRow
+	fields   []string
+	spans    []int
+	raw      []byte
+	rawSpans []int
+	err      error         // the read error that ended the input, if any
+	out      *csvio.Writer // the formatted output rows
+	sum      Summary
+	done     chan struct{} // closed when out is ready
+	tail     []byte
+}
+
+type pipeline struct {
+	order chan *batch // batches in input order, for the writer
+	work  chan *batch // batches to convert, for the workers
+	free  chan *batch
+	quit  chan struct{}
+}
+
+// start launches the reader and the workers (workers <= 0: one per CPU).
+func (cv *converter) start(workers int) *pipeline {
+	if workers <= 0 {
+		workers = runtime.GOMAXPROCS(0)
+	}
+	inFlight := 2*workers + 2
+	p := &pipeline{order: make(chan *batch, inFlight), work: make(chan *batch, inFlight),
+		free: make(chan *batch, inFlight), quit: make(chan struct{})}
+	for i := 0; i < inFlight; i++ {
+		p.free <- &batch{out: csvio.NewWriter(nil)}
+	}
+	go cv.read(p)
+	for i := 0; i < workers; i++ {
+		go func() {
+			for b := range p.work {
+				cv.convert(b)
+				close(b.done)
+			}
+		}()
+	}
+	return p
+}
+
+// stop ends the reader and, through it, the workers.
+func (p *pipeline) stop() { close(p.quit) }
+
+// read fills batches with raw records and hands each to the writer (in
+// order) and to the workers.
+func (cv *converter) read(p *pipeline) {
+	defer close(p.order)
+	defer close(p.work)
+	for {
+		var b *batch
+		select {
+		case b = <-p.free:
+		case <-p.quit:
+			return
+		}
+		b.rows, b.fields, b.spans, b.raw, b.rawSpans, b.err = b.rows[:0], b.fields[:0], b.spans[:0], b.raw[:0], b.rawSpans[:0], nil
+		b.done = make(chan struct{})
+		end := false
+		for len(b.rows) < batchRows {
+			row, err := cv.sr.NextRaw()
+			if err == io.EOF {
+				end = true
+				break
+			}
+			if err != nil {
+				b.err, end = err, true
+				break
+			}
+			b.spans = append(b.spans, len(b.fields))
+			b.fields = append(b.fields, row.Record...)
+			b.rawSpans = append(b.rawSpans, len(b.raw))
+			b.raw = append(b.raw, row.Raw...)
+			b.rows = append(b.rows, *row)
+		}
+		for i := range b.rows {
+			to := len(b.fields)
+			if i+1 < len(b.spans) {
+				to = b.spans[i+1]
+			}
+			b.rows[i].Record = b.fields[b.spans[i]:to:to]
+			to = len(b.raw)
+			if i+1 < len(b.rawSpans) {
+				to = b.rawSpans[i+1]
+			}
+			b.rows[i].Raw = b.raw[b.rawSpans[i]:to:to]
+		}
+		// Both channels have room for every batch in flight.
+		p.order <- b
+		p.work <- b
+		if end {
+			return
+		}
+	}
+}
+
+// convert parses, converts and formats the rows of b into b.out.
+func (cv *converter) convert(b *batch) {
+	cw := b.out
+	cw.Reset()
+	b.sum = Summary{}
+	sum := &b.sum
+	var last *Hole
+	var m Measurement
+	for i := range b.rows {
+		row := &b.rows[i]
+		cv.sr.Parse(row)
+		sum.Rows++
+		if len(row.Record) == cv.ncols {
+			cw.Raw(row.Raw) // the input columns exactly as read
+		} else {
+			writeRecord(cw, row.Record, cv.ncols)
+		}
+		if row.Err != nil {
+			sum.BadRows++
+			writeEmpty(cw, cv.nout-1)
+			cw.String(row.Err.Error())
+			cw.EndRow()
+			continue
+		}
+		if last == nil || last.ID != row.HoleID {
+			last = cv.hs.holes[row.HoleID]
+		}
+		m = Measurement{HoleID: row.HoleID, Depth: row.Depth, Alpha: row.Alpha, Beta: row.Beta,
+			Gamma: row.Gamma, HasGamma: row.HasGamma, Thickness: row.Thickness, HasThickness: row.HasThickness}
+		res, err := cv.hs.orient(last, &m)
+		if err != nil {
+			sum.BadRows++
+			writeEmpty(cw, cv.nout-1)
+			var de *domain.Error
+			errors.As(err, &de)
+			col := de.Loc.Column
+			if i := cv.sr.Header.Index(col); i >= 0 {
+				col = cv.sr.Header.Names[i]
+			}
+			cw.String(de.At(domain.Location{File: cv.file, Line: row.Line, Column: col}).Error())
+			cw.EndRow()
+			continue
+		}
+		if res.Warn != 0 || res.Hole.Caution != "" {
+			sum.WarnRows++
+		}
+		if res.Point.Extrapolated {
+			sum.Extrapols++
+		}
+		b.tail = writeResult(cw, &res, cv.thick, b.tail)
+		cw.EndRow()
+	}
 }
 
 // writeRecord writes the input cells, padded or cut to the header's width so
@@ -338,86 +472,3 @@ func writeResult(cw *csvio.Writer, r *Result, thick bool, scratch []byte) []byte
 	cw.Empty() // error
 	return scratch
 }
-
-// batchRows is the number of rows read ahead in one batch.
-const batchRows = 512
-
-// batch is a run of parsed rows; Record and Raw slices point into fields
-// and raw.
-type batch struct {
-	rows     []csvio.StructureRow
-	fields   []string
-	spans    []int
-	raw      []byte
-	rawSpans []int
-	err      error // the read error that ended the input, if any
-}
-
-type pipe struct {
-	full chan *batch
-	free chan *batch
-	done chan struct{}
-}
-
-// readAhead starts a goroutine that fills batches from sr. The consumer
-// ranges over full, returns each batch to free, and calls stop when done.
-func readAhead(sr *csvio.StructureReader) *pipe {
-	const inFlight = 4
-	p := &pipe{full: make(chan *batch, inFlight), free: make(chan *batch, inFlight), done: make(chan struct{})}
-	for i := 0; i < inFlight; i++ {
-		p.free <- &batch{}
-	}
-	go func() {
-		defer close(p.full)
-		for {
-			var b *batch
-			select {
-			case b = <-p.free:
-			case <-p.done:
-				return
-			}
-			b.rows, b.fields, b.spans, b.raw, b.rawSpans, b.err = b.rows[:0], b.fields[:0], b.spans[:0], b.raw[:0], b.rawSpans[:0], nil
-			end := false
-			for len(b.rows) < batchRows {
-				row, err := sr.Next()
-				if err == io.EOF {
-					end = true
-					break
-				}
-				if err != nil {
-					b.err, end = err, true
-					break
-				}
-				b.spans = append(b.spans, len(b.fields))
-				b.fields = append(b.fields, row.Record...)
-				b.rawSpans = append(b.rawSpans, len(b.raw))
-				b.raw = append(b.raw, row.Raw...)
-				b.rows = append(b.rows, *row)
-			}
-			for i := range b.rows {
-				to := len(b.fields)
-				if i+1 < len(b.spans) {
-					to = b.spans[i+1]
-				}
-				b.rows[i].Record = b.fields[b.spans[i]:to:to]
-				to = len(b.raw)
-				if i+1 < len(b.rawSpans) {
-					to = b.rawSpans[i+1]
-				}
-				b.rows[i].Raw = b.raw[b.rawSpans[i]:to:to]
-			}
-			select {
-			case p.full <- b:
-			case <-p.done:
-				return
-			}
-			if end {
-				return
-			}
-		}
-	}()
-	return p
-}
-
-// stop ends the reading goroutine (after its current row).
-func (p *pipe) stop() { close(p.done) }

@@ -478,3 +478,44 @@ func TestFastHelpersMatchGeom(t *testing.T) {
 		}
 	}
 }
+
+// The output does not depend on the number of workers: rows stay in input order,
+// good and bad alike.
+func TestConvertWorkersSameOutput(t *testing.T) {
+	var in strings.Builder
+	in.WriteString("hole_id,depth,alpha,beta,gamma,note\n")
+	r := rand.New(rand.NewPCG(40, 41))
+	for i := 0; i < 5000; i++ {
+		switch r.IntN(20) {
+		case 0:
+			fmt.Fprintf(&in, "G%d,%d,95,10,,bad alpha %d\n", r.IntN(12), r.IntN(200), i)
+		case 1:
+			fmt.Fprintf(&in, "NOPE,1,1,1,,%d\n", i)
+		case 2:
+			fmt.Fprintf(&in, "G1,1,2\n")
+		default:
+			fmt.Fprintf(&in, "G%d,%.2f,%d,%d,%d,\"row, %d\"\n", r.IntN(12), r.Float64()*200, r.IntN(91), r.IntN(360), r.IntN(360), i)
+		}
+	}
+	var outs []string
+	var sums []Summary
+	for _, workers := range []int{1, 3, 8} {
+		hs := genHoles(t, 10)
+		hs.opt.Workers = workers
+		var out bytes.Buffer
+		sum, err := hs.Convert(context.Background(), strings.NewReader(in.String()), &out)
+		if err != nil {
+			t.Fatal(err)
+		}
+		outs = append(outs, out.String())
+		sums = append(sums, sum)
+	}
+	for i := 1; i < len(outs); i++ {
+		if outs[i] != outs[0] || sums[i] != sums[0] {
+			t.Fatalf("output with %d configurations differs", i)
+		}
+	}
+	if sums[0].Rows != 5000 || sums[0].BadRows == 0 || strings.Count(outs[0], "\n") != 5001 {
+		t.Fatalf("summary %+v", sums[0])
+	}
+}

@@ -95,6 +95,10 @@ type Options struct {
 	NoCompute bool
 	// File names used in messages.
 	CollarsFile, SurveysFile, StructuresFile string
+	// Workers is the number of goroutines that convert batches of structure
+	// rows in Convert; 0 means one per CPU (GOMAXPROCS). Output order never
+	// depends on it.
+	Workers int
 }
 
 // Correction is a declination or convergence applied to a hole.

@@ -83,8 +83,20 @@ func (s *StructureReader) ThicknessColumn() string {
 
 // Next returns the next row, io.EOF after the last, or a located error when
 // the file cannot be read on (broken CSV). Problems of a single row are in
-// the row's Err, not in the returned error.
+// the row's Err, not in the returned error. Next is NextRaw then Parse.
 func (s *StructureReader) Next() (*StructureRow, error) {
+	r, err := s.NextRaw()
+	if err != nil {
+		return nil, err
+	}
+	s.Parse(r)
+	return r, nil
+}
+
+// NextRaw reads the next row without interpreting it: only Line, Record and
+// Raw are set. Errors as for Next. Use [StructureReader.Parse] to fill in the
+// rest, possibly on another goroutine (Parse only reads the header).
+func (s *StructureReader) NextRaw() (*StructureRow, error) {
 	rec, err := s.cr.Read()
 	if err == io.EOF {
 		return nil, io.EOF
@@ -92,17 +104,24 @@ func (s *StructureReader) Next() (*StructureRow, error) {
 	if err != nil {
 		return nil, parseErr(s.file, err)
 	}
-	line := s.cr.recLine
 	r := &s.row
-	*r = StructureRow{Line: line, Record: rec, Raw: s.cr.raw, Gamma: math.NaN(), Thickness: math.NaN()}
+	*r = StructureRow{Line: s.cr.recLine, Record: rec, Raw: s.cr.raw}
+	return r, nil
+}
+
+// Parse fills in the values and the problem of a row read by NextRaw from
+// its Line and Record. It is safe to call concurrently on different rows.
+func (s *StructureReader) Parse(r *StructureRow) {
+	rec, line := r.Record, r.Line
+	*r = StructureRow{Line: line, Record: rec, Raw: r.Raw, Gamma: math.NaN(), Thickness: math.NaN()}
 	if len(rec) != len(s.Header.Names) {
 		r.Err = invalid(s.file, line, "", "row has %d fields, the header has %d", len(rec), len(s.Header.Names))
-		return r, nil
+		return
 	}
 	r.HoleID = strings.TrimSpace(rec[s.iHole])
 	if r.HoleID == "" {
 		r.Err = invalid(s.file, line, s.Header.Names[s.iHole], "hole_id is empty")
-		return r, nil
+		return
 	}
 	var ok bool
 	if r.Depth, ok = s.num(r, s.iDepth, true); ok && r.Depth < 0 {
@@ -124,7 +143,6 @@ func (s *StructureReader) Next() (*StructureRow, error) {
 			s.fail(r, s.iThick, "%s %g is negative", s.Header.Names[s.iThick], r.Thickness)
 		}
 	}
-	return r, nil
 }
 
 // fail records a problem in column i unless the row already has one.
@@ -166,7 +184,8 @@ type Writer struct {
 
 const writerFlushAt = 64 << 10
 
-// NewWriter returns a Writer on w.
+// NewWriter returns a Writer on w. With a nil w the Writer only collects the
+// output in memory (see [Writer.Buffered]).
 func NewWriter(w io.Writer) *Writer {
 	return &Writer{w: w, first: true, buf: make([]byte, 0, writerFlushAt+4096)}
 }
@@ -224,12 +243,35 @@ func (w *Writer) Strings(fields []string) {
 func (w *Writer) EndRow() {
 	w.buf = append(w.buf, '\n')
 	w.first = true
-	if len(w.buf) >= writerFlushAt {
+	if len(w.buf) >= writerFlushAt && w.w != nil {
 		w.flush()
 	}
 }
 
+// Write appends p verbatim (whole rows formatted elsewhere). It makes
+// Writer an io.Writer; errors surface from Flush.
+func (w *Writer) Write(p []byte) (int, error) {
+	w.buf = append(w.buf, p...)
+	if len(w.buf) >= writerFlushAt && w.w != nil {
+		w.flush()
+	}
+	return len(p), nil
+}
+
+// Buffered returns the output not yet flushed. It stays valid until the
+// next write or Reset.
+func (w *Writer) Buffered() []byte { return w.buf }
+
+// Reset drops the output not yet flushed and starts a new row.
+func (w *Writer) Reset() {
+	w.buf = w.buf[:0]
+	w.first = true
+}
+
 func (w *Writer) flush() {
+	if w.w == nil {
+		return
+	}
 	if w.err == nil && len(w.buf) > 0 {
 		_, w.err = w.w.Write(w.buf)
 	}
