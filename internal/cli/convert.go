@@ -101,7 +101,7 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 	sense := fs.String("gamma-sense", "clockwise", "sense of gamma looking along the down-hole plane normal: clockwise or anticlockwise")
 	outRef := fs.String("output-reference", "grid", "north reference of output azimuths: grid or true")
 	method := fs.String("method", "minimum-curvature", "desurvey method: minimum-curvature, balanced-tangential or tangential")
-	feet := fs.Bool("feet", false, "lengths are in feet (dogleg severity per 100 ft; elevations converted for the magnetic model)")
+	feet := fs.Bool("feet", false, "lengths are in feet (collar elevations are converted to metres for the magnetic model)")
 	noCompute := fs.Bool("no-computed-corrections", false, "never compute declination or grid convergence; holes that need one get an error")
 	var opt convert.Options
 	fs.Var(floatFlag{&opt.Declination}, "declination", "magnetic declination in degrees for holes whose collar gives none (true = magnetic + D)")
