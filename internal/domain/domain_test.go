@@ -22,6 +22,10 @@ func TestErrorKindsAndLocation(t *testing.T) {
 	if Public(e) != "internal error" {
 		t.Errorf("internal errors must not leak their text")
 	}
+	conflict := Errorf(Conflict, "already exists: %w", errors.New(`duplicate key value violates unique constraint "holes_project_id_name_key"`))
+	if got := Public(conflict); got != "already exists" {
+		t.Errorf("Public shows the driver text: %q", got)
+	}
 }
 
 func TestNormalizeRejects(t *testing.T) {

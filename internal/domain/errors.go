@@ -136,12 +136,17 @@ func KindOf(err error) Kind {
 // IsKind reports whether err carries an *Error of kind k.
 func IsKind(err error, k Kind) bool { return err != nil && KindOf(err) == k }
 
-// Public returns the message the client may see for err: the *Error's own text
-// for all kinds except Internal, and a fixed text for Internal failures.
+// Public returns the message the client may see for err: the *Error's
+// location and message for all kinds except Internal, without the wrapped
+// cause (driver text stays in the logs), and a fixed text for Internal
+// failures.
 func Public(err error) string {
 	var e *Error
 	if errors.As(err, &e) && e.Kind != Internal {
-		return e.Error()
+		if e.Loc.IsZero() {
+			return e.Msg
+		}
+		return e.Loc.String() + ": " + e.Msg
 	}
 	return "internal error"
 }

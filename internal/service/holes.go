@@ -66,6 +66,9 @@ func (s *Service) UpdateHole(ctx context.Context, projectID, holeID, ifVersion i
 		}
 		h.CreatedAt = before.CreatedAt
 		if err := st.UpdateHole(ctx, &h, ifVersion); err != nil {
+			if domain.IsKind(err, domain.Conflict) {
+				return domain.Errorf(domain.Conflict, "hole %q already exists in project %d", h.Name, projectID)
+			}
 			return err
 		}
 		return audit(ctx, st, a, projectID, "hole", holeID, domain.ActionUpdate, before, h)

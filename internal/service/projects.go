@@ -21,7 +21,7 @@ func (s *Service) CreateProject(ctx context.Context, p domain.Project) (domain.P
 	}
 	err = s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
 		if err := st.CreateProject(ctx, &p); err != nil {
-			return err
+			return nameTaken(err, p.Name)
 		}
 		return audit(ctx, st, a, p.ID, "project", p.ID, domain.ActionCreate, nil, p)
 	})
@@ -72,7 +72,7 @@ func (s *Service) UpdateProject(ctx context.Context, id, ifVersion int64, p doma
 		}
 		p.ID, p.CreatedAt = id, before.CreatedAt
 		if err := st.UpdateProject(ctx, &p, ifVersion); err != nil {
-			return err
+			return nameTaken(err, p.Name)
 		}
 		return audit(ctx, st, a, id, "project", id, domain.ActionUpdate, before, p)
 	})
@@ -147,4 +147,12 @@ func (s *Service) ListAudit(ctx context.Context, projectID int64, pg domain.Page
 		return List[domain.AuditEntry]{}, err
 	}
 	return page(es, pg, func(e domain.AuditEntry) int64 { return e.ID }), nil
+}
+
+// nameTaken explains a Conflict on a project's unique name.
+func nameTaken(err error, name string) error {
+	if domain.IsKind(err, domain.Conflict) {
+		return domain.Errorf(domain.Conflict, "a project named %q already exists", name)
+	}
+	return err
 }
