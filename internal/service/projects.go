@@ -42,15 +42,16 @@ func (s *Service) ListProjects(ctx context.Context, pg domain.Page) (List[domain
 		return List[domain.Project]{}, domain.Errorf(domain.Unauthorized, "a bearer token is required")
 	}
 	if a.ProjectID != domain.AllProjects {
-		var items []domain.Project
+		// A project token sees a one-item list (empty after its own ID).
+		l := List[domain.Project]{Items: []domain.Project{}}
 		if pg.After < a.ProjectID {
 			p, err := s.store.GetProject(ctx, a.ProjectID)
 			if err != nil {
 				return List[domain.Project]{}, err
 			}
-			items = append(items, p)
+			l.Items = append(l.Items, p)
 		}
-		return List[domain.Project]{Items: append([]domain.Project{}, items...)}, nil
+		return l, nil
 	}
 	ps, err := s.store.ListProjects(ctx, pg)
 	if err != nil {
