@@ -29,6 +29,11 @@ type ConvertCollar struct {
 	Azimuth    float64 `json:"azimuth"`
 	Dip        float64 `json:"dip"`
 	FinalDepth float64 `json:"final_depth"`
+	// AzimuthRef of the collar azimuth: grid (default), true or magnetic.
+	AzimuthRef string `json:"azimuth_ref"`
+	// CRS labels the collar coordinates (e.g. EPSG:32750) so a magnetic
+	// survey's declination can be computed when none is given.
+	CRS string `json:"crs"`
 }
 
 // ConvertSurvey is the survey set of one hole.
@@ -36,6 +41,7 @@ type ConvertSurvey struct {
 	HoleID      string           `json:"hole_id"`
 	AzimuthRef  string           `json:"azimuth_ref"` // true, grid or magnetic; default true
 	Declination *float64         `json:"declination"` // overrides the conventions' declination
+	SurveyDate  string           `json:"survey_date"` // YYYY-MM-DD; with the collar's crs gives a magnetic survey its declination
 	Stations    []domain.Station `json:"stations"`
 }
 
@@ -85,7 +91,7 @@ func (s *Service) Convert(ctx context.Context, req ConvertRequest) (ConvertRespo
 	resp.Conventions = c
 	surveys := map[string]*domain.SurveySet{}
 	for i, sv := range req.Surveys {
-		ss := domain.SurveySet{AzimuthRef: sv.AzimuthRef, Declination: sv.Declination, Stations: sv.Stations}
+		ss := domain.SurveySet{AzimuthRef: sv.AzimuthRef, Declination: sv.Declination, SurveyDate: sv.SurveyDate, Stations: sv.Stations}
 		if err := ss.Normalize(); err != nil {
 			return resp, prefixField(err, "surveys["+strconv.Itoa(i)+"].")
 		}
@@ -97,14 +103,18 @@ func (s *Service) Convert(ctx context.Context, req ConvertRequest) (ConvertRespo
 	models := map[string]*holeModel{}
 	for i, cl := range req.Collars {
 		h := domain.Hole{Name: cl.HoleID, East: cl.East, North: cl.North, Elevation: cl.Elevation,
-			Azimuth: cl.Azimuth, Dip: cl.Dip, FinalDepth: cl.FinalDepth}
+			Azimuth: cl.Azimuth, AzimuthRef: cl.AzimuthRef, Dip: cl.Dip, FinalDepth: cl.FinalDepth, CRS: cl.CRS}
 		if err := h.Normalize(); err != nil {
 			return resp, prefixField(err, "collars["+strconv.Itoa(i)+"].")
 		}
 		if _, dup := models[h.Name]; dup {
 			return resp, domain.FieldErr("collars["+strconv.Itoa(i)+"].hole_id", "hole %q appears twice", h.Name)
 		}
-		models[h.Name] = newHoleModel(c, h, surveys[h.Name], nil)
+		ss := surveys[h.Name]
+		if ss != nil {
+			fillDeclination(ss, h)
+		}
+		models[h.Name] = newHoleModel(c, h, ss, nil)
 	}
 	for id := range surveys {
 		if models[id] == nil {
