@@ -52,37 +52,71 @@ type page struct {
 	allowed []string
 }
 
-func newPage(t *testing.T, base string, width, height int) *page {
+// One Chromium serves every browser test of the package; each test gets its
+// own tab (and so its own sessionStorage).
+var shared struct {
+	once    sync.Once
+	ctx     context.Context
+	err     error
+	cancel  func()
+	profile string
+}
+
+func TestMain(m *testing.M) {
+	flag.Parse()
+	code := m.Run()
+	stopService()
+	if shared.cancel != nil {
+		shared.cancel()
+	}
+	if shared.profile != "" {
+		os.RemoveAll(shared.profile)
+	}
+	os.Exit(code)
+}
+
+func browserContext(t *testing.T) context.Context {
 	t.Helper()
 	exe := chromiumPath(t)
-	profile, err := os.MkdirTemp("", "corvane-chromium-")
-	if err != nil {
-		t.Fatal(err)
+	shared.once.Do(func() {
+		shared.profile, shared.err = os.MkdirTemp("", "corvane-chromium-")
+		if shared.err != nil {
+			return
+		}
+		opts := append(chromedp.DefaultExecAllocatorOptions[:],
+			chromedp.ExecPath(exe),
+			chromedp.Headless,
+			chromedp.NoSandbox,
+			chromedp.DisableGPU,
+			chromedp.NoFirstRun,
+			chromedp.Flag("disable-quic", true),
+			chromedp.Flag("disable-background-networking", true),
+			chromedp.Flag("disable-component-update", true),
+			chromedp.Flag("disable-sync", true),
+			chromedp.Flag("hide-scrollbars", true),
+			chromedp.Flag("mute-audio", true),
+			chromedp.UserDataDir(shared.profile),
+		)
+		actx, cancelA := chromedp.NewExecAllocator(context.Background(), opts...)
+		bctx, cancelB := chromedp.NewContext(actx)
+		shared.cancel = func() { cancelB(); cancelA() }
+		// The first Run starts the browser; it must not carry a timeout.
+		shared.err = chromedp.Do(bctx)
+		shared.ctx = bctx
+	})
+	if shared.err != nil {
+		t.Fatalf("starting Chromium: %v", shared.err)
 	}
-	t.Cleanup(func() { os.RemoveAll(profile) })
-	opts := append(chromedp.DefaultExecAllocatorOptions[:],
-		chromedp.ExecPath(exe),
-		chromedp.Headless,
-		chromedp.NoSandbox,
-		chromedp.DisableGPU,
-		chromedp.NoFirstRun,
-		chromedp.Flag("disable-quic", true),
-		chromedp.Flag("disable-background-networking", true),
-		chromedp.Flag("disable-component-update", true),
-		chromedp.Flag("disable-sync", true),
-		chromedp.Flag("hide-scrollbars", true),
-		chromedp.Flag("mute-audio", true),
-		chromedp.UserDataDir(profile),
-		chromedp.WindowSize(width, height),
-	)
-	actx, cancelA := chromedp.NewExecAllocator(context.Background(), opts...)
-	ctx, cancelC := chromedp.NewContext(actx)
+	return shared.ctx
+}
+
+func newPage(t *testing.T, base string, width, height int) *page {
+	t.Helper()
+	ctx, cancel := chromedp.NewContext(browserContext(t))
 	p := &page{t: t, ctx: ctx, base: base, shots: t.TempDir()}
-	// The first Run starts the browser; it must not carry a timeout.
-	if err := chromedp.Do(ctx); err != nil {
-		cancelC()
-		cancelA()
-		t.Fatalf("starting Chromium: %v", err)
+	if err := chromedp.Do(ctx, chromedp.EmulateViewport(int64(width), int64(height))); err != nil {
+		cancel()
+		t.Fatalf("opening a tab: %v", err)
 	}
 	messages := chromedp.Console(ctx)
 	done := make(chan struct{})
@@ -98,8 +132,7 @@ func newPage(t *testing.T, base string, width, height int) *page {
 		}
 	}()
 	t.Cleanup(func() {
-		cancelC()
-		cancelA()
+		cancel()
 		<-done
 		p.checkErrors()
 	})

@@ -188,7 +188,7 @@ func equalAreaXY(trend, plunge float64) (x, y float64) {
 func TestLoggingWithKeyboard(t *testing.T) {
 	s := startService(t)
 	holes := s.holes(t)
-	h := holes[0]
+	h := holes[0] // this test's own hole
 	before := s.measurements(t, "hole="+h.Name)
 	p := newPage(t, s.URL, 1366, 900)
 	p.signIn(s.Token)
@@ -295,7 +295,7 @@ func TestServerRefusalKeepsTyping(t *testing.T) {
 	if s.ReadToken == "" {
 		t.Skip("no read-only token in this harness")
 	}
-	h := s.holes(t)[0]
+	h := s.holes(t)[3] // this test's own hole
 	p := newPage(t, s.URL, 1366, 900)
 	p.allow("403")
 	p.signIn(s.ReadToken)
@@ -318,7 +318,7 @@ func TestServerRefusalKeepsTyping(t *testing.T) {
 
 func TestEditConflict(t *testing.T) {
 	s := startService(t)
-	h := s.holes(t)[0]
+	h := s.holes(t)[1] // this test's own hole
 	ms := s.measurements(t, "hole="+h.Name)
 	if len(ms) == 0 {
 		t.Fatal("no measurement to edit")
@@ -371,7 +371,7 @@ func trimFloat(v float64) string { return strings.TrimSuffix(fmt.Sprintf("%g", v
 
 func TestHoleView(t *testing.T) {
 	s := startService(t)
-	h := s.holes(t)[0]
+	h := s.holes(t)[2] // this test's own hole
 	all := s.measurements(t, "hole="+h.Name)
 	p := newPage(t, s.URL, 1366, 900)
 	p.signIn(s.Token)
