@@ -207,6 +207,8 @@ func TestLoggingWithKeyboard(t *testing.T) {
 	p.waitFor("converted orientation", `document.querySelector('#pv-dip') !== null && document.querySelector('#pv-dipdir') !== null`)
 	shownDip := p.text("#pv-dip")
 	shownDir := p.text("#pv-dipdir")
+	exactDip := eval[float64](p, `+document.querySelector('#pv-dip').dataset.value`)
+	exactDir := eval[float64](p, `+document.querySelector('#pv-dipdir').dataset.value`)
 	p.waitFor("new pole on the net", `document.querySelector('#log-net .pole-new') !== null && document.querySelector('#log-net .pole-new').children.length > 0`)
 	p.shot("logging")
 
@@ -239,6 +241,11 @@ func TestLoggingWithKeyboard(t *testing.T) {
 	}
 	if want := fmt.Sprintf("%03d", int(math.Round(*saved.Derived.DipDirection))%360); shownDir != want {
 		t.Errorf("page showed dip direction %s while typing; server derives %s", shownDir, want)
+	}
+	// The preview converts with the project's conventions and the hole's
+	// collar and survey exactly as the stored row is derived.
+	if math.Abs(exactDip-*saved.Derived.Dip) > 1e-9 || math.Abs(exactDir-*saved.Derived.DipDirection) > 1e-9 {
+		t.Errorf("preview %.12f/%.12f differs from the stored row's %.12f/%.12f", exactDip, exactDir, *saved.Derived.Dip, *saved.Derived.DipDirection)
 	}
 	// The new pole is now among the hole's poles, where the equal-area
 	// projection puts it.

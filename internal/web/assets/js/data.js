@@ -43,12 +43,13 @@ function collarOf(hole) {
   return {
     hole_id: hole.name, easting: hole.easting, northing: hole.northing, elevation: hole.elevation,
     azimuth: hole.azimuth, dip: hole.dip, final_depth: hole.final_depth,
+    azimuth_ref: hole.azimuth_ref || undefined, crs: hole.crs || undefined,
   };
 }
 
 function surveyOf(hole, s) {
   if (!s || !s.stations || !s.stations.length) return [];
-  return [{ hole_id: hole.name, azimuth_ref: s.azimuth_ref, declination: s.declination, stations: s.stations }];
+  return [{ hole_id: hole.name, azimuth_ref: s.azimuth_ref, declination: s.declination, survey_date: s.survey_date || undefined, stations: s.stations }];
 }
 
 // convert asks the server to convert measurements of one hole without

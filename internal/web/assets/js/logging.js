@@ -215,8 +215,8 @@ export async function logging(ctx) {
     const ref = d.azimuth_ref ? `${d.azimuth_ref} north` : "";
     add(preview, 
       h("p", { class: "big", id: "pv-plane" },
-        h("span", { class: "dip", id: "pv-dip" }, fmt(d.dip, 0)), h("span", { class: "sep" }, "\u2192"),
-        h("span", { class: "dipdir", id: "pv-dipdir" }, d.dip_direction == null ? "\u2013\u2013\u2013" : az(d.dip_direction))),
+        h("span", { class: "dip", id: "pv-dip", "data-value": d.dip }, fmt(d.dip, 0)), h("span", { class: "sep" }, "\u2192"),
+        h("span", { class: "dipdir", id: "pv-dipdir", "data-value": d.dip_direction }, d.dip_direction == null ? "\u2013\u2013\u2013" : az(d.dip_direction))),
       h("p", { class: "help" }, `dip \u2192 dip direction, degrees${ref ? ", from " + ref : ""}`),
       h("dl", { class: "derived" },
         h("dt", {}, "Strike (right hand)"), h("dd", {}, d.strike == null ? "\u2013" : az(d.strike)),
