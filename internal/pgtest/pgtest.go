@@ -42,13 +42,14 @@ const (
 	EnvRequire = "CORVANE_REQUIRE_POSTGRES"
 )
 
-const templateName = "corvane_template"
-
 var (
 	baseURL string // admin URL of the server (database postgres), "" when none
 	whyNot  string // why there is no server
 	counter atomic.Int64
 	prefix  = fmt.Sprintf("t%d_", os.Getpid())
+	// templateName is per process: test packages run in parallel and may
+	// share one server given by CORVANE_TEST_DATABASE_URL.
+	templateName = fmt.Sprintf("corvane_tpl_%d", os.Getpid())
 )
 
 // Required reports whether CORVANE_REQUIRE_POSTGRES=1.
@@ -85,6 +86,8 @@ func Main(m *testing.M, prepare func(url string) error) int {
 	code := m.Run()
 	if stop != nil {
 		stop()
+	} else if baseURL != "" {
+		exec1(context.Background(), baseURL, "DROP DATABASE IF EXISTS "+pgx.Identifier{templateName}.Sanitize()+" WITH (FORCE)")
 	}
 	return code
 }
