@@ -160,6 +160,16 @@ func TestOverviewTablet(t *testing.T) {
 		t.Errorf("the page is %v px wider than a tablet screen", w)
 	}
 	p.shot("overview-tablet")
+
+	// The bench form at the same width: fields, preview and net without
+	// sideways scrolling.
+	h := s.holes(t)[4]
+	p.do("open logging", chromedp.Navigate(fmt.Sprintf("%s/#/p/%d/log?hole=%d", s.URL, s.Project, h.ID)))
+	p.waitFor("form ready", `document.activeElement && document.activeElement.id === 'f-depth' && document.querySelector('#log-net svg') !== null`)
+	if w := eval[float64](p, `document.documentElement.scrollWidth - window.innerWidth`); w > 1 {
+		t.Errorf("the logging view is %v px wider than a tablet screen", w)
+	}
+	p.shot("logging-tablet")
 }
 
 func TestSignInRefusesBadToken(t *testing.T) {

@@ -169,7 +169,7 @@ export async function holeView(ctx, holeId) {
         const v = c.get(m);
         let t = c.text ? c.text(m) : v;
         if (!c.text && c.num) t = v == null ? "" : c.az ? az(v) : fmt(v, c.d ?? 0);
-        return h("td", { class: c.num ? "num" : "" }, t ?? "");
+        return h("td", { class: c.num ? "num" : c.key === "warnings" ? "warn" : "" }, t ?? "");
       }),
       h("td", {}, h("a", { href: `#/p/${p.id}/log?hole=${ho.id}&edit=${m.id}` }, "Edit")))));
   }
