@@ -236,7 +236,8 @@ func frame(h geom.Vec3, c Convention) (r geom.Vec3, w Warn) {
 		w = NearVertical
 	}
 	// b = down - (down.h) h, down = (0,0,-1); |b| = hz.
-	b := geom.Vec3{X: h.Z * h.X / hz, Y: h.Z * h.Y / hz, Z: (-1 + h.Z*h.Z) / hz}
+	inv := 1 / hz
+	b := geom.Vec3{X: h.Z * h.X * inv, Y: h.Z * h.Y * inv, Z: (h.Z*h.Z - 1) * inv}
 	if c.RefLine == Top {
 		b = b.Neg()
 	}
@@ -306,6 +307,30 @@ func planeOf(n geom.Vec3) geom.Plane {
 	return p
 }
 
+// lineOf is geom.LineOf without its math.Mod normalisation.
+func lineOf(v geom.Vec3) geom.Line {
+	if v.Z > 0 {
+		v = v.Neg()
+	}
+	h := math.Sqrt(v.X*v.X + v.Y*v.Y)
+	l := geom.Line{Plunge: geom.Deg(math.Atan2(-v.Z, h))}
+	if l.Plunge < 0 {
+		l.Plunge = 0
+	}
+	if h == 0 {
+		return l
+	}
+	t := geom.Deg(math.Atan2(v.X, v.Y))
+	if t < 0 {
+		t += 360
+		if t >= 360 {
+			t = 0
+		}
+	}
+	l.Trend = t
+	return l
+}
+
 // Line returns the lineation measured by gamma on the plane (alpha, beta) in
 // a hole with unit down-hole direction h, and warnings. See the package doc for
 // the definition of gamma. In a vertical hole the line has its plunge but
@@ -322,7 +347,7 @@ func Line(h geom.Vec3, alpha, beta, gamma float64, c Convention) (geom.Line, War
 		gamma = -gamma
 	}
 	sg, cg := math.Sincos(geom.Rad(gamma))
-	l := geom.LineOf(e.Scale(cg).Add(n.Cross(e).Scale(sg)))
+	l := lineOf(e.Scale(cg).Add(n.Cross(e).Scale(sg)))
 	if w.Has(Vertical) {
 		l.Trend = math.NaN()
 	}

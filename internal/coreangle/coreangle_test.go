@@ -371,7 +371,7 @@ func BenchmarkLine(b *testing.B) {
 	}
 }
 
-// planeOf is the fast path of geom.PlaneOf; they must agree.
+// planeOf and lineOf are fast paths of geom.PlaneOf and geom.LineOf; they must agree.
 func TestPlaneOfMatchesGeom(t *testing.T) {
 	r := rand.New(rand.NewPCG(12, 13))
 	for i := 0; i < 10000; i++ {
@@ -380,11 +380,17 @@ func TestPlaneOfMatchesGeom(t *testing.T) {
 		if !near(a.Dip, b.Dip, 1e-12) || !near(a.DipDirection, b.DipDirection, 1e-10) {
 			t.Fatalf("%+v: %+v vs %+v", n, a, b)
 		}
+		if l, m := lineOf(n), geom.LineOf(n); !near(l.Plunge, m.Plunge, 1e-12) || !near(l.Trend, m.Trend, 1e-10) {
+			t.Fatalf("%+v: %+v vs %+v", n, l, m)
+		}
 	}
 	for _, n := range []geom.Vec3{{Z: 1}, {Z: -1}, {X: 1}, {Y: -1}} {
 		a, b := planeOf(n), geom.PlaneOf(n)
 		if a != b {
 			t.Fatalf("%+v: %+v vs %+v", n, a, b)
+		}
+		if l, m := lineOf(n), geom.LineOf(n); l != m {
+			t.Fatalf("%+v: %+v vs %+v", n, l, m)
 		}
 	}
 }
