@@ -204,3 +204,33 @@ func TestStreamCutIsVisible(t *testing.T) {
 		t.Errorf("cut stream not logged:\n%s", f.logs.String())
 	}
 }
+
+// FuzzIfMatch: any If-Match header is either refused with 400, 412 or 428,
+// or accepted as a positive version whose ETag reads back the same.
+func FuzzIfMatch(f *testing.F) {
+	for _, s := range []string{`"1"`, `W/"7"`, `*`, ``, `"x"`, `"1", "2"`, `"-3"`, `"99999999999999999999"`} {
+		f.Add(s)
+	}
+	gin.SetMode(gin.ReleaseMode)
+	f.Fuzz(func(t *testing.T, h string) {
+		c, _ := gin.CreateTestContext(httptest.NewRecorder())
+		c.Request = httptest.NewRequest("PUT", "/", nil)
+		c.Request.Header["If-Match"] = []string{h}
+		v, err := ifMatch(c)
+		if err != nil {
+			switch problemFor(err, "").Status {
+			case 400, 412, 428:
+			default:
+				t.Fatalf("If-Match %q: status %d", h, problemFor(err, "").Status)
+			}
+			return
+		}
+		if v < 1 {
+			t.Fatalf("If-Match %q accepted as version %d", h, v)
+		}
+		c.Request.Header["If-Match"] = []string{etag(v)}
+		if v2, err := ifMatch(c); err != nil || v2 != v {
+			t.Fatalf("ETag %s of version %d reads back as %d, %v", etag(v), v, v2, err)
+		}
+	})
+}
