@@ -92,11 +92,48 @@ func BenchmarkImportMeasurements(b *testing.B) {
 	}
 }
 
+// BenchmarkImportVsCopy alternates the two loads in every iteration (COPY
+// first, then the import, into the same table), so that both meet the same
+// machine load, and reports both rates and their ratio.
+func BenchmarkImportVsCopy(b *testing.B) {
+	for _, n := range benchSizes {
+		b.Run("rows="+strconv.Itoa(n), func(b *testing.B) {
+			svc, ctx, p, url, body, rows, done := benchProgramme(b, n)
+			defer done()
+			var tCopy, tImport time.Duration
+			for range b.N {
+				c, err := pgx.Connect(ctx, url)
+				if err != nil {
+					b.Fatal(err)
+				}
+				t0 := time.Now()
+				got, err := c.CopyFrom(ctx, pgx.Identifier{"measurements"}, copyCols, pgx.CopyFromRows(rows))
+				tCopy += time.Since(t0)
+				c.Close(ctx)
+				if err != nil || int(got) != n {
+					b.Fatalf("copy: %d %v", got, err)
+				}
+				t0 = time.Now()
+				res, err := svc.Import(ctx, p.ID, service.ImportRequest{Kind: service.ImportMeasurements, Body: bytes.NewReader(body)})
+				tImport += time.Since(t0)
+				if err != nil || res.Created != n {
+					b.Fatalf("import: %+v %v", res, err)
+				}
+			}
+			total := float64(n) * float64(b.N)
+			b.ReportMetric(total/tCopy.Seconds(), "copy-rows/s")
+			b.ReportMetric(total/tImport.Seconds(), "import-rows/s")
+			b.ReportMetric(tCopy.Seconds()/tImport.Seconds(), "import/copy")
+		})
+	}
+}
+
+var copyCols = []string{"project_id", "hole_id", "depth", "alpha", "beta", "gamma", "type_code", "apparent_thickness",
+	"comment", "logged_by", "logged_at", "version", "created_at", "updated_at"}
+
 // BenchmarkCopyMeasurements is the yardstick: a plain COPY of the same rows,
 // already converted to column values, straight into the measurements table.
 func BenchmarkCopyMeasurements(b *testing.B) {
-	cols := []string{"project_id", "hole_id", "depth", "alpha", "beta", "gamma", "type_code", "apparent_thickness",
-		"comment", "logged_by", "logged_at", "version", "created_at", "updated_at"}
 	for _, n := range benchSizes {
 		b.Run("rows="+strconv.Itoa(n), func(b *testing.B) {
 			_, ctx, _, url, body, rows, done := benchProgramme(b, n)
@@ -110,7 +147,7 @@ func BenchmarkCopyMeasurements(b *testing.B) {
 					b.Fatal(err)
 				}
 				b.StartTimer()
-				got, err := c.CopyFrom(ctx, pgx.Identifier{"measurements"}, cols, pgx.CopyFromRows(rows))
+				got, err := c.CopyFrom(ctx, pgx.Identifier{"measurements"}, copyCols, pgx.CopyFromRows(rows))
 				if err != nil || int(got) != n {
 					b.Fatalf("copy: %d %v", got, err)
 				}
