@@ -214,6 +214,9 @@ func (hs *Holes) Convert(ctx context.Context, r io.Reader, w io.Writer) (Summary
 	cw.Strings(sr.Header.Names)
 	cw.Strings(outCols)
 	cw.EndRow()
+	if err := cw.Flush(); err != nil {
+		return sum, fmt.Errorf("writing the output: %w", err)
+	}
 
 	// One goroutine splits the input into records, a batch at a time; workers
 	// parse, convert and format whole batches; this goroutine writes the
@@ -227,15 +230,14 @@ func (hs *Holes) Convert(ctx context.Context, r io.Reader, w io.Writer) (Summary
 		if err := ctx.Err(); err != nil {
 			return sum, err
 		}
-		cw.Write(b.out.Buffered())
+		if _, err := w.Write(b.out.Buffered()); err != nil {
+			return sum, fmt.Errorf("writing the output: %w", err)
+		}
 		sum.add(b.sum)
 		if b.err != nil {
 			return sum, b.err
 		}
 		p.free <- b
-	}
-	if err := cw.Flush(); err != nil {
-		return sum, fmt.Errorf("writing the output: %w", err)
 	}
 	return sum, nil
 }
