@@ -194,7 +194,11 @@ type Summary struct {
 // counts them. An error is returned, and the output must be discarded, when
 // the file cannot be read as a whole (missing column, broken CSV, an input
 // column named like an output column) or when writing fails; ctx is checked
-// every few thousand rows.
+// between batches of rows.
+//
+// Records are split on one goroutine and batches of 512 rows are parsed,
+// converted and formatted on [Options].Workers goroutines; output order does
+// not depend on them. Memory use is bounded by the batches in flight.
 func (hs *Holes) Convert(ctx context.Context, r io.Reader, w io.Writer) (Summary, error) {
 	var sum Summary
 	file := nameOr(hs.opt.StructuresFile, "structures")
