@@ -1,0 +1,64 @@
+package csvio
+
+import (
+	"io"
+	"math"
+	"strconv"
+	"time"
+)
+
+// num formats v exactly (shortest form that reads back to the same float),
+// NaN as an empty cell.
+func num(v float64) string {
+	if math.IsNaN(v) {
+		return ""
+	}
+	return strconv.FormatFloat(v, 'f', -1, 64)
+}
+
+// WriteCollars writes rows as a collars file that [ReadCollars] reads back to
+// the same values (Line aside): the required columns, then declination,
+// grid_convergence, azimuth_reference and crs.
+func WriteCollars(w io.Writer, rows []CollarRow) error {
+	cw := NewWriter(w)
+	cw.Strings(append(append([]string{}, CollarColumns...), ColDeclination, ColGridConvergence, ColAzimuthRef, ColCRS))
+	cw.EndRow()
+	for _, r := range rows {
+		c := r.Collar
+		cw.Strings([]string{r.HoleID, num(c.East), num(c.North), num(c.Elevation), num(c.Azimuth), num(c.Dip), num(c.Depth),
+			num(r.Declination), num(r.GridConvergence), r.AzimuthRef, r.CRS})
+		cw.EndRow()
+	}
+	return cw.Flush()
+}
+
+// WriteSurveys writes rows as a surveys file that [ReadSurveys] reads back:
+// hole_id, depth, azimuth, dip, azimuth_reference, survey_date.
+func WriteSurveys(w io.Writer, rows []SurveyRow) error {
+	cw := NewWriter(w)
+	cw.Strings(append(append([]string{}, SurveyColumns...), ColAzimuthRef, ColSurveyDate))
+	cw.EndRow()
+	for _, r := range rows {
+		date := ""
+		if !r.Date.IsZero() {
+			date = r.Date.Format(time.DateOnly)
+		}
+		s := r.Station
+		cw.Strings([]string{r.HoleID, num(s.Depth), num(s.Azimuth), num(s.Dip), r.AzimuthRef, date})
+		cw.EndRow()
+	}
+	return cw.Flush()
+}
+
+// WriteRuns writes rows as a runs file that [ReadRuns] reads back: hole_id,
+// from, to, confidence, mismatch.
+func WriteRuns(w io.Writer, rows []RunRow) error {
+	cw := NewWriter(w)
+	cw.Strings(append(append([]string{}, RunColumns...), ColMismatch))
+	cw.EndRow()
+	for _, r := range rows {
+		cw.Strings([]string{r.HoleID, num(r.From), num(r.To), r.Confidence, num(r.Mismatch)})
+		cw.EndRow()
+	}
+	return cw.Flush()
+}
