@@ -5,6 +5,7 @@ import (
 	"bytes"
 	"encoding/csv"
 	"io"
+	"strings"
 	"unicode/utf8"
 )
 
@@ -78,6 +79,22 @@ func (r *recordReader) Read() ([]string, error) {
 		return nil, errRead
 	}
 	r.recLine = r.numLine
+	if errRead == nil && bytes.IndexByte(line, '"') < 0 {
+		// No quotes: the fields are the line split at commas.
+		body := line[:len(line)-lengthNL(line)]
+		r.raw = append(r.raw[:0], body...)
+		s := string(body)
+		r.fields = r.fields[:0]
+		for {
+			i := strings.IndexByte(s, ',')
+			if i < 0 {
+				r.fields = append(r.fields, s)
+				return r.fields, nil
+			}
+			r.fields = append(r.fields, s[:i])
+			s = s[i+1:]
+		}
+	}
 	r.raw = append(r.raw[:0], line...)
 	r.buf = r.buf[:0]
 	r.ends = r.ends[:0]

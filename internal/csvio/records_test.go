@@ -5,6 +5,7 @@ import (
 	"encoding/csv"
 	"fmt"
 	"io"
+	"strings"
 	"testing"
 )
 
@@ -42,7 +43,13 @@ func compareWithStd(t *testing.T, data []byte) {
 		back := csv.NewReader(bytes.NewReader(append(append([]byte{}, mine.raw...), ",x\n"...)))
 		back.FieldsPerRecord = -1
 		rec, err := back.Read()
-		if err != nil || fmt.Sprintf("%q", rec) != fmt.Sprintf("%q", append(want, "x")) {
+		// A field holding "\r\n" reads back as "\n", as it does after a round
+		// trip through encoding/csv's own writer and reader.
+		norm := make([]string, 0, len(want)+1)
+		for _, f := range want {
+			norm = append(norm, strings.ReplaceAll(f, "\r\n", "\n"))
+		}
+		if err != nil || fmt.Sprintf("%q", rec) != fmt.Sprintf("%q", append(norm, "x")) {
 			t.Fatalf("record %d of %q: raw %q reads as %q (%v), want %q", n, data, mine.raw, rec, err, want)
 		}
 	}
