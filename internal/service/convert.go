@@ -29,7 +29,8 @@ type ConvertCollar struct {
 	Azimuth    float64 `json:"azimuth"`
 	Dip        float64 `json:"dip"`
 	FinalDepth float64 `json:"final_depth"`
-	// AzimuthRef of the collar azimuth: grid (default), true or magnetic.
+	// AzimuthRef of the collar azimuth: true, grid or magnetic; default the
+	// output reference.
 	AzimuthRef string `json:"azimuth_ref"`
 	// CRS labels the collar coordinates (e.g. EPSG:32750) so a magnetic
 	// survey's declination can be computed when none is given.
@@ -39,7 +40,7 @@ type ConvertCollar struct {
 // ConvertSurvey is the survey set of one hole.
 type ConvertSurvey struct {
 	HoleID      string           `json:"hole_id"`
-	AzimuthRef  string           `json:"azimuth_ref"` // true, grid or magnetic; default true
+	AzimuthRef  string           `json:"azimuth_ref"` // true, grid or magnetic; default the output reference
 	Declination *float64         `json:"declination"` // overrides the conventions' declination
 	SurveyDate  string           `json:"survey_date"` // YYYY-MM-DD; with the collar's crs gives a magnetic survey its declination
 	Stations    []domain.Station `json:"stations"`
@@ -91,7 +92,7 @@ func (s *Service) Convert(ctx context.Context, req ConvertRequest) (ConvertRespo
 	resp.Conventions = c
 	surveys := map[string]*domain.SurveySet{}
 	for i, sv := range req.Surveys {
-		ss := domain.SurveySet{AzimuthRef: sv.AzimuthRef, Declination: sv.Declination, SurveyDate: sv.SurveyDate, Stations: sv.Stations}
+		ss := domain.SurveySet{AzimuthRef: orDefault(sv.AzimuthRef, c.OutputAzimuthRef), Declination: sv.Declination, SurveyDate: sv.SurveyDate, Stations: sv.Stations}
 		if err := ss.Normalize(); err != nil {
 			return resp, prefixField(err, "surveys["+strconv.Itoa(i)+"].")
 		}
@@ -103,7 +104,7 @@ func (s *Service) Convert(ctx context.Context, req ConvertRequest) (ConvertRespo
 	models := map[string]*holeModel{}
 	for i, cl := range req.Collars {
 		h := domain.Hole{Name: cl.HoleID, East: cl.East, North: cl.North, Elevation: cl.Elevation,
-			Azimuth: cl.Azimuth, AzimuthRef: cl.AzimuthRef, Dip: cl.Dip, FinalDepth: cl.FinalDepth, CRS: cl.CRS}
+			Azimuth: cl.Azimuth, AzimuthRef: orDefault(cl.AzimuthRef, c.OutputAzimuthRef), Dip: cl.Dip, FinalDepth: cl.FinalDepth, CRS: cl.CRS}
 		if err := h.Normalize(); err != nil {
 			return resp, prefixField(err, "collars["+strconv.Itoa(i)+"].")
 		}

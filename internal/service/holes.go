@@ -7,15 +7,17 @@ import (
 	"corvane/internal/domain"
 )
 
-// CreateHole adds a hole to a project (admin).
+// CreateHole adds a hole to a project (admin). An empty collar azimuth
+// reference means the project's output reference.
 func (s *Service) CreateHole(ctx context.Context, projectID int64, h domain.Hole) (domain.Hole, error) {
 	h.ProjectID = projectID
-	if err := h.Normalize(); err != nil {
-		return h, err
-	}
 	err := s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
-		_, a, err := s.project(ctx, st, projectID, domain.RoleAdmin)
+		p, a, err := s.project(ctx, st, projectID, domain.RoleAdmin)
 		if err != nil {
+			return err
+		}
+		h.AzimuthRef = orDefault(h.AzimuthRef, p.OutputAzimuthRef)
+		if err := h.Normalize(); err != nil {
 			return err
 		}
 		if err := st.CreateHole(ctx, &h); err != nil {
@@ -52,12 +54,13 @@ func (s *Service) ListHoles(ctx context.Context, projectID int64, pg domain.Page
 // UpdateHole replaces a hole's collar (admin).
 func (s *Service) UpdateHole(ctx context.Context, projectID, holeID, ifVersion int64, h domain.Hole) (domain.Hole, error) {
 	h.ProjectID, h.ID = projectID, holeID
-	if err := h.Normalize(); err != nil {
-		return h, err
-	}
 	err := s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
-		a, err := allow(ctx, projectID, domain.RoleAdmin)
+		p, a, err := s.project(ctx, st, projectID, domain.RoleAdmin)
 		if err != nil {
+			return err
+		}
+		h.AzimuthRef = orDefault(h.AzimuthRef, p.OutputAzimuthRef)
+		if err := h.Normalize(); err != nil {
 			return err
 		}
 		before, err := hole(ctx, st, projectID, holeID)
@@ -106,16 +109,18 @@ func (s *Service) GetSurvey(ctx context.Context, projectID, holeID int64) (domai
 }
 
 // PutSurvey replaces the hole's whole survey set in one transaction (admin).
+// An empty azimuth reference means the project's output reference.
 // ifVersion is the version last seen, or 0 when the hole has no survey yet.
 // The stations must lie within the hole's final depth.
 func (s *Service) PutSurvey(ctx context.Context, projectID, holeID, ifVersion int64, ss domain.SurveySet) (domain.SurveySet, error) {
 	ss.HoleID = holeID
-	if err := ss.Normalize(); err != nil {
-		return ss, err
-	}
 	err := s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
-		a, err := allow(ctx, projectID, domain.RoleAdmin)
+		p, a, err := s.project(ctx, st, projectID, domain.RoleAdmin)
 		if err != nil {
+			return err
+		}
+		ss.AzimuthRef = orDefault(ss.AzimuthRef, p.OutputAzimuthRef)
+		if err := ss.Normalize(); err != nil {
 			return err
 		}
 		h, err := hole(ctx, st, projectID, holeID)

@@ -223,7 +223,7 @@ func importCollars(ctx context.Context, st domain.Store, p domain.Project, body 
 	ps := &problems{file: res.File}
 	for _, r := range rows {
 		h := domain.Hole{ProjectID: p.ID, Name: r.HoleID, East: r.Collar.East, North: r.Collar.North, Elevation: r.Collar.Elevation,
-			Azimuth: r.Collar.Azimuth, AzimuthRef: r.AzimuthRef, Dip: r.Collar.Dip, FinalDepth: r.Collar.Depth, CRS: r.CRS}
+			Azimuth: r.Collar.Azimuth, AzimuthRef: orDefault(r.AzimuthRef, p.OutputAzimuthRef), Dip: r.Collar.Dip, FinalDepth: r.Collar.Depth, CRS: r.CRS}
 		if err := h.Normalize(); err != nil {
 			var e *domain.Error
 			errors.As(err, &e)
@@ -276,8 +276,8 @@ func importSurveys(ctx context.Context, st domain.Store, p domain.Project, body 
 				return err
 			}
 			ref := r.AzimuthRef
-			if ref == "" {
-				ref = domain.AzimuthTrue
+			if ref == "" { // as the converter: no reference means the output one
+				ref = p.OutputAzimuthRef
 			}
 			s = &set{ss: domain.SurveySet{HoleID: h.ID, AzimuthRef: ref}, line: r.Line, hole: h}
 			if !r.Date.IsZero() {
@@ -513,4 +513,12 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 		return err
 	}
 	return nil
+}
+
+// orDefault returns s, or def when s is empty.
+func orDefault(s, def string) string {
+	if s == "" {
+		return def
+	}
+	return s
 }
