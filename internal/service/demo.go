@@ -14,10 +14,10 @@ import (
 // new project, in one transaction, as the caller (site admin). When a project
 // of that name already exists it is returned unchanged and loaded is false.
 //
-// The project's grid convergence is the mean of the values the model gives
-// at the collars (they differ by hundredths of a degree across the
-// prospect); each survey set's declination is computed for its collar and
-// survey date.
+// Each hole's grid convergence is computed from its collar on every read;
+// the project's default (used only for collars that cannot be placed) is
+// set to their mean. Each survey set's declination is computed for its
+// collar and survey date.
 func (s *Service) LoadDemo(ctx context.Context) (p domain.Project, loaded bool, err error) {
 	a, err := allow(ctx, domain.AllProjects, domain.RoleAdmin)
 	if err != nil {

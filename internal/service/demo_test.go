@@ -59,6 +59,10 @@ func checkDemo(t *testing.T, s *service.Service, ctx context.Context, ordered bo
 		if v.Derived.Error != "" {
 			t.Fatalf("row %d: %s", i, v.Derived.Error)
 		}
+		if v.Derived.ConvergenceSource != "computed" || v.Derived.DeclinationSource != "survey" {
+			t.Fatalf("row %d: corrections from %q and %q, want computed convergence and the survey's declination",
+				i, v.Derived.ConvergenceSource, v.Derived.DeclinationSource)
+		}
 		h := geom.HoleDirection(*v.Derived.HoleAzimuth, *v.Derived.HoleDip)
 		holeErr = append(holeErr, geom.Angle(h, want.HoleDir))
 		if v.Derived.DipDirection != nil {
@@ -68,7 +72,7 @@ func checkDemo(t *testing.T, s *service.Service, ctx context.Context, ordered bo
 	}
 	sort.Float64s(holeErr)
 	sort.Float64s(planeErr)
-	if worst := holeErr[len(holeErr)-1]; worst > 0.05 {
+	if worst := holeErr[len(holeErr)-1]; worst > 0.01 {
 		t.Errorf("hole direction differs from the forward model by up to %.4f degrees", worst)
 	}
 	if med := planeErr[len(planeErr)/2]; med > 5 {

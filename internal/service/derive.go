@@ -42,6 +42,18 @@ type Derived struct {
 	LinePlunge *float64 `json:"line_plunge"`
 	// TrueThickness is apparent thickness * sin(alpha), when an apparent thickness was logged.
 	TrueThickness *float64 `json:"true_thickness"`
+	// GridConvergence is the convergence used for the hole, degrees (grid =
+	// true - C); ConvergenceSource says where it came from: "computed" from
+	// the collar's crs label and position, or "project" (the project's
+	// default, for a collar that cannot be placed).
+	GridConvergence   *float64 `json:"grid_convergence"`
+	ConvergenceSource string   `json:"convergence_source"`
+	// Declination is the magnetic declination applied, degrees (true =
+	// magnetic + D), when a magnetic azimuth was involved, else null;
+	// DeclinationSource is "survey" (the survey set's own, given or computed
+	// when it was stored) or "project".
+	Declination       *float64 `json:"declination"`
+	DeclinationSource string   `json:"declination_source,omitempty"`
 	// RunConfidence is the confidence of the orientation run covering the
 	// depth, "" when no run covers it.
 	RunConfidence string `json:"run_confidence"`
@@ -114,38 +126,54 @@ func toOutput(az float64, ref, out string, decl, conv float64) float64 {
 // holeModel is a hole ready for derived values: its path in the output
 // reference, its runs and the conventions.
 type holeModel struct {
-	name  string
-	conv  Conventions
-	core  coreangle.Convention
-	path  *desurvey.Path
-	err   error // why the path could not be built
-	runs  []domain.Run
-	depth float64
+	name string
+	// corrections applied to the hole's azimuths (see Derived)
+	gc, decl         float64
+	convSrc, declSrc string
+	conv             Conventions
+	core             coreangle.Convention
+	path             *desurvey.Path
+	err              error // why the path could not be built
+	runs             []domain.Run
+	depth            float64
 }
 
 // newHoleModel builds the path of h from its survey set ss (nil when the
 // hole has none). Station azimuths are in the set's reference, the collar
 // azimuth in the hole's own; a magnetic one uses the set's declination when
-// it has one and the project's otherwise.
+// it has one and the project's otherwise. The grid convergence is computed
+// at the collar from its crs label when the collar can be placed (package
+// northref), else the project's default applies.
 func newHoleModel(c Conventions, h domain.Hole, ss *domain.SurveySet, runs []domain.Run) *holeModel {
 	m := &holeModel{name: h.Name, conv: c, core: c.core(), runs: runs, depth: h.FinalDepth}
-	decl := c.Declination
+	m.gc, m.convSrc = c.Convergence, "project"
+	if h.CRS != "" {
+		if cv, ok := convergenceAt(h); ok {
+			m.gc, m.convSrc = cv, "computed"
+		}
+	}
+	m.decl, m.declSrc = c.Declination, "project"
+	href := h.AzimuthRef
+	if href == "" {
+		href = c.OutputAzimuthRef
+	}
+	magnetic := href == domain.AzimuthMagnetic
 	var stations []desurvey.Station
 	if ss != nil {
 		if ss.Declination != nil {
-			decl = *ss.Declination
+			m.decl, m.declSrc = *ss.Declination, "survey"
 		}
+		magnetic = magnetic || ss.AzimuthRef == domain.AzimuthMagnetic
 		stations = make([]desurvey.Station, len(ss.Stations))
 		for i, st := range ss.Stations {
-			stations[i] = desurvey.Station{Depth: st.Depth, Azimuth: toOutput(st.Azimuth, ss.AzimuthRef, c.OutputAzimuthRef, decl, c.Convergence), Dip: st.Dip}
+			stations[i] = desurvey.Station{Depth: st.Depth, Azimuth: toOutput(st.Azimuth, ss.AzimuthRef, c.OutputAzimuthRef, m.decl, m.gc), Dip: st.Dip}
 		}
 	}
-	href := h.AzimuthRef
-	if href == "" {
-		href = domain.AzimuthGrid
+	if !magnetic {
+		m.declSrc = ""
 	}
 	col := desurvey.Collar{East: h.East, North: h.North, Elevation: h.Elevation,
-		Azimuth: toOutput(h.Azimuth, href, c.OutputAzimuthRef, decl, c.Convergence), Dip: h.Dip, Depth: h.FinalDepth}
+		Azimuth: toOutput(h.Azimuth, href, c.OutputAzimuthRef, m.decl, m.gc), Dip: h.Dip, Depth: h.FinalDepth}
 	opt := desurvey.Options{Method: desurvey.MinimumCurvature}
 	if c.LengthUnit == domain.UnitFoot {
 		opt.Unit = desurvey.Feet
@@ -166,7 +194,11 @@ func opt(x float64) *float64 {
 
 // derive computes the derived values of one measurement.
 func (m *holeModel) derive(depth, alpha, beta float64, gamma, apparent *float64) Derived {
-	d := Derived{AzimuthRef: m.conv.OutputAzimuthRef, Warnings: []string{}}
+	d := Derived{AzimuthRef: m.conv.OutputAzimuthRef, Warnings: []string{},
+		GridConvergence: opt(m.gc), ConvergenceSource: m.convSrc}
+	if m.declSrc != "" {
+		d.Declination, d.DeclinationSource = opt(m.decl), m.declSrc
+	}
 	if m.err != nil {
 		d.Error = m.err.Error()
 		return d

@@ -18,6 +18,7 @@ var ExportColumns = []string{
 	"id", "hole_id", "depth", "alpha", "beta", "gamma", "apparent_thickness", "type", "comment", "logged_by", "logged_at",
 	"hole_azimuth", "hole_dip", "easting", "northing", "elevation", "dip", "dip_direction", "strike",
 	"pole_trend", "pole_plunge", "line_trend", "line_plunge", "true_thickness", "azimuth_reference",
+	"declination", "declination_source", "grid_convergence", "convergence_source",
 	"run_confidence", "warnings", "error",
 }
 
@@ -68,6 +69,7 @@ func (s *Service) ExportMeasurements(ctx context.Context, projectID int64, q Mea
 				fmtNum(dv.HoleAzimuth, 2), fmtNum(dv.HoleDip, 2), fmtNum(dv.East, 3), fmtNum(dv.North, 3), fmtNum(dv.Elevation, 3),
 				fmtNum(dv.Dip, 2), fmtNum(dv.DipDirection, 2), fmtNum(dv.Strike, 2), fmtNum(dv.PoleTrend, 2), fmtNum(dv.PolePlunge, 2),
 				fmtNum(dv.LineTrend, 2), fmtNum(dv.LinePlunge, 2), fmtNum(dv.TrueThickness, 3), dv.AzimuthRef,
+				fmtNum(dv.Declination, 4), dv.DeclinationSource, fmtNum(dv.GridConvergence, 4), dv.ConvergenceSource,
 				dv.RunConfidence, strings.Join(dv.Warnings, "; "), dv.Error)
 			if err := cw.Write(rec); err != nil {
 				return err

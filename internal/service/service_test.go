@@ -177,6 +177,12 @@ func TestDerivedFollowSurveyAndConventions(t *testing.T) {
 		Stations: []domain.Station{{Depth: 0, Azimuth: 10, Dip: -60}}}))
 	got = must(s.GetMeasurement(ctx, p.ID, m.ID))
 	near(t, "magnetic to grid", got.Derived.HoleAzimuth, 10-4-2.5, 1e-6)
+	// A collar without a coordinate system takes the project's convergence.
+	if got.Derived.ConvergenceSource != "project" || got.Derived.DeclinationSource != "survey" {
+		t.Errorf("sources %q, %q", got.Derived.ConvergenceSource, got.Derived.DeclinationSource)
+	}
+	near(t, "declination reported", got.Derived.Declination, -4, 0)
+	near(t, "convergence reported", got.Derived.GridConvergence, 2.5, 0)
 }
 
 // Position at depth through the service against Lapeyrouse (2002), minimum
