@@ -52,10 +52,15 @@ type Project struct {
 	// OutputAzimuthRef is the north reference of derived azimuths: "grid" or "true".
 	OutputAzimuthRef string `json:"output_azimuth_ref"`
 	// Declination is the default magnetic declination in degrees, positive
-	// when magnetic north is east of true north (true = magnetic + D).
+	// when magnetic north is east of true north (true = magnetic + D). It
+	// applies to magnetic azimuths of holes whose survey set has no
+	// declination of its own (given, or computed from the collar's crs and
+	// the survey date when the set is stored).
 	Declination float64 `json:"declination"`
 	// Convergence is the default grid convergence in degrees, positive when
-	// grid north is east of true north (grid = true - C).
+	// grid north is east of true north (grid = true - C). It applies to
+	// holes whose collar crs label cannot be placed (a UTM EPSG code is
+	// computed per collar); a local mine grid leaves crs empty or free text.
 	Convergence float64   `json:"convergence"`
 	Version     int64     `json:"version"`
 	CreatedAt   time.Time `json:"created_at"`
