@@ -181,6 +181,7 @@ func TestSignInRefusesBadToken(t *testing.T) {
 	if eval[bool](p, `sessionStorage.getItem("corvane.token") !== null`) {
 		t.Error("a refused token was kept")
 	}
+	p.shot("signin-refused")
 }
 
 // equalAreaXY is the lower-hemisphere equal-area (Lambert azimuthal,
@@ -331,6 +332,7 @@ func TestServerRefusalKeepsTyping(t *testing.T) {
 	if vals["depth"] != "12.5" || vals["alpha"] != "40" || vals["beta"] != "120" || vals["comment"] != "read-only try" {
 		t.Errorf("typed values lost after the server refused: %v", vals)
 	}
+	p.shot("logging-server-refused")
 }
 
 func TestEditConflict(t *testing.T) {

@@ -63,7 +63,7 @@ export async function logging(ctx) {
     let input;
     if (f.name === "type") {
       input = p.types.length
-        ? h("select", { id: "f-type", name: "type" }, h("option", { value: "" }, "\u2014 choose \u2014"), p.types.map((t) => h("option", { value: t.code }, `${t.code} \u2013 ${t.description || t.kind}`)))
+        ? h("select", { id: "f-type", name: "type" }, h("option", { value: "" }, "\u2014 choose \u2014"), p.types.map((t) => h("option", { value: t.code }, !t.description || t.description.toLowerCase() === t.code.toLowerCase() ? t.code : `${t.code} \u2013 ${t.description}`)))
         : h("input", { id: "f-type", name: "type", autocomplete: "off" });
     } else if (f.name === "comment") {
       input = h("input", { id: "f-comment", name: "comment", autocomplete: "off", maxlength: 2000 });
