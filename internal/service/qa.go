@@ -1,0 +1,202 @@
+package service
+
+import (
+	"context"
+	"fmt"
+	"math"
+
+	"corvane/internal/domain"
+	"corvane/internal/qa"
+)
+
+// MaxQAMeasurements bounds the measurements one QA request reads; a larger
+// project is checked hole by hole.
+const MaxQAMeasurements = 500000
+
+// QARequest is a QA run over stored data with what the store does not hold:
+// the thresholds and, optionally, reference picks and magnetic zones.
+type QARequest struct {
+	// Options are the QA thresholds and the persistent structure type.
+	// Convention and Feet are always taken from the project.
+	Options qa.Options
+	// Picks are orientations of the same holes from another source (an
+	// oriented borehole image log, for example); HoleID is the hole's name.
+	Picks []qa.Pick
+	// MagneticZones mark depth intervals where magnetic survey azimuths are
+	// unreliable; HoleID is the hole's name.
+	MagneticZones []qa.MagneticZone
+}
+
+// QA runs the orientation-mark, survey and measurement checks of package qa
+// over a project's stored data (read): the whole project when holeID is 0,
+// else that hole only. See [Service.QAWith].
+func (s *Service) QA(ctx context.Context, projectID, holeID int64, opt qa.Options) (qa.Report, error) {
+	return s.QAWith(ctx, projectID, holeID, QARequest{Options: opt})
+}
+
+// QAWith is [Service.QA] with reference picks and magnetic zones (read).
+//
+// The QA input is the store's current state: collars and survey stations
+// with their azimuths brought to the project's output reference by the same
+// declination and grid convergence the derived values use (a station keeps
+// Magnetic when its set was measured against magnetic north), the runs and
+// the measurements with their store ids, so findings, suggestions and pick
+// matches carry the id of the run or measurement they are about. The core-angle
+// convention and the length unit come from the project; the report carries
+// the caution of package qa. For one hole, the digit-preference and beta
+// 0/360 tests cover that hole's measurements only, and picks or zones naming
+// another hole are refused.
+func (s *Service) QAWith(ctx context.Context, projectID, holeID int64, req QARequest) (qa.Report, error) {
+	opt := req.Options
+	if err := checkQAOptions(opt); err != nil {
+		return qa.Report{}, err
+	}
+	p, _, err := s.project(ctx, s.store, projectID, domain.RoleRead)
+	if err != nil {
+		return qa.Report{}, err
+	}
+	var holes []domain.Hole
+	if holeID != 0 {
+		h, err := hole(ctx, s.store, projectID, holeID)
+		if err != nil {
+			return qa.Report{}, err
+		}
+		holes = []domain.Hole{h}
+		for i, pk := range req.Picks {
+			if pk.HoleID != h.Name {
+				return qa.Report{}, domain.FieldErr(fmt.Sprintf("picks[%d].hole_id", i), "pick of hole %q in a QA of hole %q", pk.HoleID, h.Name)
+			}
+		}
+		for i, z := range req.MagneticZones {
+			if z.HoleID != h.Name {
+				return qa.Report{}, domain.FieldErr(fmt.Sprintf("magnetic_zones[%d].hole_id", i), "magnetic zone of hole %q in a QA of hole %q", z.HoleID, h.Name)
+			}
+		}
+	} else {
+		pg := domain.Page{Limit: domain.MaxLimit}
+		for {
+			hs, err := s.store.ListHoles(ctx, projectID, pg)
+			if err != nil {
+				return qa.Report{}, err
+			}
+			holes = append(holes, hs...)
+			if len(hs) < domain.MaxLimit {
+				break
+			}
+			pg.After = hs[len(hs)-1].ID
+		}
+	}
+	in, err := s.qaInput(ctx, p, holes, holeID)
+	if err != nil {
+		return qa.Report{}, err
+	}
+	in.Picks, in.MagneticZones = req.Picks, req.MagneticZones
+	conv := ConventionsOf(p)
+	opt.Convention = conv.core()
+	opt.Feet = p.LengthUnit == domain.UnitFoot
+	return qa.Run(in, opt), nil
+}
+
+// qaInput reads the holes' collars, surveys, runs and measurements from the
+// store. holeID 0 reads every measurement of the project, else those of that
+// hole.
+func (s *Service) qaInput(ctx context.Context, p domain.Project, holes []domain.Hole, holeID int64) (qa.Input, error) {
+	var in qa.Input
+	conv := ConventionsOf(p)
+	names := make(map[int64]string, len(holes))
+	for _, h := range holes {
+		names[h.ID] = h.Name
+		var ss *domain.SurveySet
+		set, err := s.store.GetSurvey(ctx, h.ID)
+		switch {
+		case err == nil:
+			ss = &set
+		case !domain.IsKind(err, domain.NotFound):
+			return in, err
+		}
+		runs, err := s.store.ListRuns(ctx, h.ID)
+		if err != nil {
+			return in, err
+		}
+		// The hole model chooses the declination and grid convergence of the
+		// derived values; the QA stations use the very same corrections.
+		m := newHoleModel(conv, h, ss, runs)
+		href := orDefault(h.AzimuthRef, conv.OutputAzimuthRef)
+		in.Collars = append(in.Collars, qa.Collar{HoleID: h.Name, East: h.East, North: h.North, Elevation: h.Elevation,
+			Azimuth: toOutput(h.Azimuth, href, conv.OutputAzimuthRef, m.decl, m.gc), Dip: h.Dip, Depth: h.FinalDepth})
+		if ss != nil {
+			for _, st := range ss.Stations {
+				in.Surveys = append(in.Surveys, qa.Station{HoleID: h.Name, Depth: st.Depth,
+					Azimuth: toOutput(st.Azimuth, ss.AzimuthRef, conv.OutputAzimuthRef, m.decl, m.gc), Dip: st.Dip,
+					Magnetic: ss.AzimuthRef == domain.AzimuthMagnetic})
+			}
+		}
+		for _, r := range runs {
+			in.Runs = append(in.Runs, qa.OrientationRun{HoleID: h.Name, From: r.From, To: r.To, Confidence: r.Confidence,
+				Mismatch: r.Mismatch, ID: r.ID})
+		}
+	}
+	f := domain.MeasurementFilter{ProjectID: p.ID}
+	if holeID != 0 {
+		f.HoleIDs = []int64{holeID}
+	}
+	pg := domain.Page{Limit: domain.MaxLimit}
+	for {
+		ms, err := s.store.ListMeasurements(ctx, f, pg)
+		if err != nil {
+			return in, err
+		}
+		for _, m := range ms {
+			name, ok := names[m.HoleID]
+			if !ok {
+				// A hole created after the holes were listed: its collar
+				// is not in this run, so its measurements wait for the next.
+				continue
+			}
+			if len(in.Measurements) >= MaxQAMeasurements {
+				return in, domain.Errorf(domain.Invalid, "more than %d measurements in project %d: run the QA hole by hole", MaxQAMeasurements, p.ID)
+			}
+			in.Measurements = append(in.Measurements, qa.Measurement{HoleID: name, Depth: m.Depth, Alpha: m.Alpha, Beta: m.Beta,
+				Type: m.TypeCode, Logger: m.LoggedBy, ID: m.ID})
+		}
+		if len(ms) < domain.MaxLimit {
+			return in, nil
+		}
+		pg.After = ms[len(ms)-1].ID
+	}
+}
+
+// checkQAOptions refuses thresholds that are negative or not numbers, and an
+// unknown fabric reference, naming the option by its JSON name.
+func checkQAOptions(o qa.Options) error {
+	switch o.Reference {
+	case "", "neighbours", "hole":
+	default:
+		return domain.FieldErr("reference", "reference must be neighbours or hole, got %q", o.Reference)
+	}
+	for _, f := range []struct {
+		name string
+		v    float64
+	}{
+		{"mismatch_tolerance", o.MismatchTolerance}, {"rotation_threshold", o.RotationThreshold},
+		{"fabric_misfit", o.FabricMisfit}, {"pick_window", o.PickWindow}, {"max_depth_shift", o.MaxDepthShift},
+		{"shift_step", o.ShiftStep}, {"dogleg_threshold", o.DoglegThreshold}, {"outlier_factor", o.OutlierFactor},
+		{"outlier_floor", o.OutlierFloor}, {"nominal_residual", o.NominalResidual}, {"gap_threshold", o.GapThreshold},
+		{"short_tolerance", o.ShortTolerance}, {"collar_tolerance", o.CollarTolerance}, {"high_alpha", o.HighAlpha},
+		{"near_vertical", o.NearVertical}, {"digit_p", o.DigitP}, {"digit_share_0_5", o.DigitShare05},
+		{"beta_zero_p", o.BetaZeroP}, {"beta_zero_share", o.BetaZeroShare},
+	} {
+		if math.IsNaN(f.v) || math.IsInf(f.v, 0) || f.v < 0 {
+			return domain.FieldErr(f.name, "%s must be a number >= 0 (0 takes the default), got %v", f.name, f.v)
+		}
+	}
+	for _, f := range []struct {
+		name string
+		v    int
+	}{{"neighbours", o.Neighbours}, {"min_run_count", o.MinRunCount}, {"digit_min_count", o.DigitMinCount}} {
+		if f.v < 0 {
+			return domain.FieldErr(f.name, "%s must be >= 0 (0 takes the default), got %d", f.name, f.v)
+		}
+	}
+	return nil
+}
