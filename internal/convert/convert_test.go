@@ -519,3 +519,36 @@ func TestConvertWorkersSameOutput(t *testing.T) {
 		t.Fatalf("summary %+v", sums[0])
 	}
 }
+
+// Stations surveyed on different dates get the declination of their own date;
+// a row reports the one of the station at or above it. In feet, the collar
+// elevation goes to the magnetic model in metres (1 ft = 0.3048 m exactly).
+func TestDeclinationByDateAndFeet(t *testing.T) {
+	collars := "hole_id,easting,northing,elevation,azimuth,dip,depth,crs\nD1,400000,6500000,3000,0,-60,300,EPSG:32750\n"
+	surveys := "hole_id,depth,azimuth,dip,azimuth_reference,survey_date\n" +
+		"D1,0,40,-60,magnetic,2025-02-01\nD1,100,40,-60,magnetic,2029-12-01\n"
+	at := func(date time.Time, elev float64) float64 {
+		res, err := northref.Corrections("EPSG:32750", 400000, 6500000, elev, date, true, false)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return res.Declination
+	}
+	d1 := at(time.Date(2025, 2, 1, 0, 0, 0, 0, time.UTC), 3000*0.3048)
+	d2 := at(time.Date(2029, 12, 1, 0, 0, 0, 0, time.UTC), 3000*0.3048)
+	if math.Abs(d1-d2) < 0.01 {
+		t.Fatalf("test needs declinations that differ: %v %v", d1, d2)
+	}
+	hs := load(t, collars, surveys, Options{Output: True, Unit: desurvey.Feet})
+	rows, sum := run(t, hs, "hole_id,depth,alpha,beta\nD1,50,45,90\nD1,150,45,90\n")
+	if sum.BadRows != 0 {
+		t.Fatal(rows)
+	}
+	if !near(num(t, rows[0]["declination"]), d1, 0.0005) || !near(num(t, rows[1]["declination"]), d2, 0.0005) {
+		t.Errorf("declinations %v %v, want %v %v", rows[0]["declination"], rows[1]["declination"], d1, d2)
+	}
+	// Below the second station the hole runs along its (true) azimuth 40 + d2.
+	if !near(num(t, rows[1]["hole_azimuth"]), 40+d2, 0.006) {
+		t.Errorf("azimuth %v, want %v", rows[1]["hole_azimuth"], 40+d2)
+	}
+}
