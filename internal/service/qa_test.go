@@ -1,7 +1,9 @@
 package service_test
 
 import (
+	"bytes"
 	"context"
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"testing"
@@ -131,8 +133,8 @@ type qaFixture struct {
 	p      domain.Project
 	h      domain.Hole
 	runs   []domain.Run
-	grid   []domain.Station // the survey in grid azimuths (the truth)
-	planes []geom.Plane     // the true plane of each stored measurement, by id order
+	grid   []domain.Station       // the survey in grid azimuths (the truth)
+	planes map[float64]geom.Plane // the true plane of each stored measurement, by depth
 }
 
 const (
@@ -175,6 +177,9 @@ func buildQAHole(t *testing.T, s *service.Service, ctx context.Context, rotation
 	bedding := geom.Plane{Dip: 40, DipDirection: 50}.Normal()
 	joint := geom.Plane{Dip: 75, DipDirection: 200}.Normal()
 	const runLen, perRun = 3.0, 6
+	fx.planes = map[float64]geom.Plane{}
+	var csv bytes.Buffer
+	csv.WriteString("hole_id,depth,alpha,beta,type\n")
 	for k := 0; k < 40; k++ {
 		from := float64(k) * runLen
 		fx.runs = append(fx.runs, must(s.CreateRun(ctx, fx.p.ID, fx.h.ID, domain.Run{From: from, To: from + runLen, Confidence: "good", Mismatch: f64(0)})))
@@ -192,10 +197,12 @@ func buildQAHole(t *testing.T, s *service.Service, ctx context.Context, rotation
 			a, b, _ := coreangle.Angles(pt.Dir, pl, coreangle.Convention{})
 			b = geom.NormAzimuth(math.Round(geom.NormAzimuth(b+rotations[k])*10) / 10)
 			a = math.Round(a*10) / 10
-			must(s.CreateMeasurement(ctx, fx.p.ID, domain.Measurement{HoleID: fx.h.ID, Depth: depth, Alpha: a, Beta: b, TypeCode: typ}))
-			fx.planes = append(fx.planes, pl)
+			fmt.Fprintf(&csv, "%s,%.2f,%.1f,%.1f,%s\n", fx.h.Name, depth, a, b, typ)
+			fx.planes[depth] = pl
 		}
 	}
+	// One import (one transaction) rather than a request per measurement.
+	must(s.Import(ctx, fx.p.ID, service.ImportRequest{Kind: service.ImportMeasurements, File: "kf001.csv", Body: &csv}))
 	return fx
 }
 
@@ -264,11 +271,10 @@ func TestQAFindsRotatedRun(t *testing.T) {
 	}
 	// The suggestions carry store ids and the corrected orientation lies
 	// near the true plane (the 3 degree logging noise aside).
-	byDepth := map[int64]geom.Plane{}
-	ms := must(s.ListMeasurements(ctx, fx.p.ID, service.MeasurementQuery{}, domain.Page{Limit: 1000})).Items
-	for i, m := range ms {
-		if i < len(fx.planes) {
-			byDepth[m.ID] = fx.planes[i]
+	byID := map[int64]geom.Plane{}
+	for _, m := range must(s.ListMeasurements(ctx, fx.p.ID, service.MeasurementQuery{}, domain.Page{Limit: 1000})).Items {
+		if pl, ok := fx.planes[m.Depth]; ok {
+			byID[m.ID] = pl
 		}
 	}
 	sg := hr.Runs[bad].Suggestions
@@ -276,7 +282,7 @@ func TestQAFindsRotatedRun(t *testing.T) {
 		t.Fatal("flagged run without suggestions")
 	}
 	for _, x := range sg {
-		want, ok := byDepth[x.ID]
+		want, ok := byID[x.ID]
 		if !ok {
 			t.Fatalf("suggestion id %d is not a stored measurement", x.ID)
 		}
@@ -296,10 +302,10 @@ func TestQAPicksAndMagneticZones(t *testing.T) {
 	ms := must(s.ListMeasurements(ctx, fx.p.ID, service.MeasurementQuery{}, domain.Page{Limit: 1000})).Items
 	ids := map[int64]bool{}
 	var picks []qa.Pick
-	for i, m := range ms {
+	for _, m := range ms {
 		ids[m.ID] = true
-		if m.Depth >= 30 && m.Depth < 60 { // true planes, grid azimuths, same depth scale
-			picks = append(picks, qa.Pick{HoleID: fx.h.Name, Depth: m.Depth, Dip: fx.planes[i].Dip, DipDirection: fx.planes[i].DipDirection})
+		if pl := fx.planes[m.Depth]; m.Depth >= 30 && m.Depth < 60 { // true planes, grid azimuths, same depth scale
+			picks = append(picks, qa.Pick{HoleID: fx.h.Name, Depth: m.Depth, Dip: pl.Dip, DipDirection: pl.DipDirection})
 		}
 	}
 	rep, err := s.QAWith(ctx, fx.p.ID, 0, service.QARequest{Options: qa.Options{PersistentType: "BD"}, Picks: picks,
