@@ -186,14 +186,28 @@ func Programme() Data {
 		if err != nil {
 			panic("demo: desurvey of a fixed hole failed: " + err.Error())
 		}
-		d.runsAndStructures(r, c, path)
+		d.runsAndStructures(r, c, path, i == misreadHole)
 	}
 	return d
 }
 
+// The planted mark error: in the hole with index misreadHole, the run that
+// contains misreadDepth carries a mark that was misread by misreadRotation
+// degrees (every beta in it is off by that much), the logger noticed a large
+// step at the run break, and the bedding there was logged closely — so the QA
+// can find the rotation from the persistent bedding fabric.
+const (
+	misreadHole     = 3
+	misreadDepth    = 201.0
+	misreadRotation = 40.0
+	misreadMismatch = 38.5
+	misreadBedding  = 7
+)
+
 // runsAndStructures adds the orientation runs of a hole and the structures
-// logged in them.
-func (d *Data) runsAndStructures(r *rand.Rand, c Collar, path *desurvey.Path) {
+// logged in them. When misread is true, the run holding misreadDepth gets the
+// planted mark error described at misreadHole.
+func (d *Data) runsAndStructures(r *rand.Rand, c Collar, path *desurvey.Path, misread bool) {
 	from := round(6+r.Float64()*6, 2) // orientation starts below the broken top of hole
 	for from < c.Depth-1 {
 		to := round(math.Min(c.Depth, from+2.6+r.Float64()*0.8), 2)
@@ -205,7 +219,7 @@ func (d *Data) runsAndStructures(r *rand.Rand, c Collar, path *desurvey.Path) {
 			run.Mismatch = round(math.Abs(r.NormFloat64())*2.5, 1)
 		case u < 0.88:
 			run.Confidence, spread = "fair", 6
-			run.Mismatch = round(5+r.Float64()*10, 1)
+			run.Mismatch = round(3+r.Float64()*6.5, 1)
 		case u < 0.96:
 			run.Confidence, spread = "poor", 15
 			run.Mismatch = round(15+r.Float64()*25, 1)
@@ -213,14 +227,34 @@ func (d *Data) runsAndStructures(r *rand.Rand, c Collar, path *desurvey.Path) {
 			run.Confidence = "none"
 			run.Mismatch = math.NaN()
 		}
+		planted := misread && from <= misreadDepth && misreadDepth < to
+		if planted {
+			run.Confidence, run.Mismatch = "fair", misreadMismatch
+		}
 		d.Runs = append(d.Runs, run)
 		if run.Confidence != "none" {
 			rot := r.NormFloat64() * spread
+			if planted {
+				rot = misreadRotation
+			}
 			// About 0.2 measurements per metre of oriented core, logged
 			// down the run.
 			depths := make([]float64, poisson(r, 0.2*(to-from)))
 			for i := range depths {
 				depths[i] = from + r.Float64()*(to-from)
+			}
+			if planted {
+				// Close logging of bedding in the misread run, drawn from
+				// a generator of its own so the rest of the programme is
+				// the same as without the planted error.
+				r2 := rand.New(rand.NewPCG(7, 40))
+				first := len(d.Structures)
+				for k := 0; k < misreadBedding; k++ {
+					d.structureOf(r2, c, path, round(from+(float64(k)+0.5)*(to-from)/misreadBedding, 2), rot, 0)
+				}
+				extra := slices.Clone(d.Structures[first:])
+				d.Structures = d.Structures[:first]
+				defer func() { d.insertSorted(c.HoleID, extra) }()
 			}
 			slices.Sort(depths)
 			for _, md := range depths {
@@ -231,18 +265,39 @@ func (d *Data) runsAndStructures(r *rand.Rand, c Collar, path *desurvey.Path) {
 	}
 }
 
-// structure draws one measurement at depth md, retrying until the drill-hole
-// sampling bias accepts a plane.
+// insertSorted places extra structures of one hole among that hole's
+// structures in depth order.
+func (d *Data) insertSorted(hole string, extra []Structure) {
+	for _, s := range extra {
+		i := len(d.Structures)
+		for i > 0 && d.Structures[i-1].HoleID == hole && d.Structures[i-1].Depth > s.Depth {
+			i--
+		}
+		d.Structures = slices.Insert(d.Structures, i, s)
+	}
+}
+
+// structure draws one measurement at depth md from a set chosen at random by
+// the sets' shares, retrying until the drill-hole sampling bias accepts a plane.
 func (d *Data) structure(r *rand.Rand, c Collar, path *desurvey.Path, md, rot float64) {
+	d.structureOf(r, c, path, md, rot, -1)
+}
+
+// structureOf is structure with the set fixed by its index (-1: drawn by
+// share).
+func (d *Data) structureOf(r *rand.Rand, c Collar, path *desurvey.Path, md, rot float64, fixed int) {
 	pt, err := path.At(md)
 	if err != nil {
 		panic("demo: depth inside a fixed hole failed: " + err.Error())
 	}
 	h := pt.Dir
 	for {
-		u, k := r.Float64(), 0
-		for ; k < len(d.Sets)-1 && u > d.Sets[k].share; k++ {
-			u -= d.Sets[k].share
+		k := fixed
+		if k < 0 {
+			u := r.Float64()
+			for k = 0; k < len(d.Sets)-1 && u > d.Sets[k].share; k++ {
+				u -= d.Sets[k].share
+			}
 		}
 		set := d.Sets[k]
 		pole := fisher(r, set.Mean.Normal(), set.Kappa)
