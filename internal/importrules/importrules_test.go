@@ -24,6 +24,7 @@ var pure = map[string]bool{
 	"corvane/internal/utm":        true,
 	"corvane/internal/northref":   true,
 	"corvane/internal/qa":         true,
+	"corvane/internal/qa/qapage":  true,
 }
 
 // noServiceDeps lists packages that must stay free of HTTP and SQL.
