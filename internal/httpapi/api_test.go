@@ -549,3 +549,75 @@ func TestSpoolLargeBody(t *testing.T) {
 		t.Fatalf("spooled body differs (%d of %d bytes, %v)", len(got), len(big), err)
 	}
 }
+
+// TestQA runs QA over the demo programme. The demo plants one misread
+// orientation mark (package demo: hole TM004, the run holding 201 m, beta
+// off by 40 degrees) under closely logged bedding; with bedding as the
+// persistent fabric the mark-rotation check must flag that run — a known
+// error put into the data from outside the QA code.
+func TestQA(t *testing.T) {
+	f := newFixture(t)
+	p, _, err := f.svc.LoadDemo(service.WithActor(context.Background(), service.System))
+	if err != nil {
+		t.Fatal(err)
+	}
+	base := "/v1/projects/" + itoa(p.ID)
+	type report struct {
+		Caution  string `json:"caution"`
+		Findings []struct {
+			Check   string  `json:"check"`
+			HoleID  string  `json:"hole_id"`
+			Depth   float64 `json:"depth"`
+			DepthTo float64 `json:"depth_to"`
+			Size    float64 `json:"size"`
+		} `json:"findings"`
+	}
+	var rep report
+	f.must(200, f.site, "GET", base+"/qa?persistent=bedding", nil, &rep)
+	if !strings.Contains(rep.Caution, "judgement") {
+		t.Errorf("QA report without its caution: %q", rep.Caution)
+	}
+	found := false
+	for _, fd := range rep.Findings {
+		if fd.Check == "mark-rotation" && fd.HoleID == "TM004" && fd.Depth <= 201 && 201 <= fd.DepthTo {
+			found = true
+			if math.Abs(math.Abs(fd.Size)-40) > 10 {
+				t.Errorf("planted 40 degree misread estimated as %.1f degrees", fd.Size)
+			}
+		}
+	}
+	if !found {
+		t.Errorf("the planted misread mark of TM004 at 201 m was not flagged; findings: %+v", rep.Findings)
+	}
+
+	var holes struct {
+		Items []domain.Hole `json:"items"`
+	}
+	f.must(200, f.site, "GET", base+"/holes", nil, &holes)
+	var tm004 domain.Hole
+	for _, h := range holes.Items {
+		if h.Name == "TM004" {
+			tm004 = h
+		}
+	}
+	var one report
+	f.must(200, f.site, "GET", base+"/holes/"+itoa(tm004.ID)+"/qa?persistent=bedding", nil, &one)
+	for _, fd := range one.Findings {
+		if fd.HoleID != "" && fd.HoleID != "TM004" {
+			t.Errorf("QA of TM004 reports hole %s", fd.HoleID)
+		}
+	}
+	r := f.must(200, f.site, "GET", base+"/qa?format=html&persistent=bedding", nil, nil)
+	if ct := r.Header.Get("Content-Type"); !strings.HasPrefix(ct, "text/html") || !strings.Contains(string(r.Body), "<html") {
+		t.Errorf("HTML report: %q %.60s", ct, r.Body)
+	}
+	f.must(200, f.site, "POST", base+"/qa", map[string]any{
+		"magnetic_zones": []map[string]any{{"hole_id": "TM001", "from": 50, "to": 80}},
+	}, nil)
+	if p := f.do(f.site, "GET", base+"/qa?colour=blue", nil).problem(t); p.Status != 422 || p.Errors[0].Field != "colour" {
+		t.Errorf("unknown QA parameter: %+v", p)
+	}
+	if p := f.do(f.site, "GET", base+"/qa?mismatch_tolerance=lots", nil).problem(t); p.Status != 422 {
+		t.Errorf("non-numeric threshold: %+v", p)
+	}
+}

@@ -106,6 +106,7 @@ func contract(t testing.TB) (*openapi3.T, *pathRouter) {
 	t.Helper()
 	docOnce.Do(func() {
 		openapi3filter.RegisterBodyDecoder("image/svg+xml", openapi3filter.PlainBodyDecoder)
+		openapi3filter.RegisterBodyDecoder("text/html", openapi3filter.PlainBodyDecoder)
 		l := openapi3.NewLoader()
 		doc, docErr = l.LoadFromData(api.OpenAPI)
 		if docErr != nil {
@@ -301,6 +302,9 @@ func TestContractTour(t *testing.T) {
 	f.must(201, f.site, "POST", base+"/imports/runs", "hole_id,from,to,confidence\nTR001,3,6,good\n", nil)
 	f.must(200, f.site, "GET", base+"/statistics", nil, nil)
 	f.must(200, f.site, "GET", base+"/net", nil, nil)
+	f.must(200, f.site, "GET", base+"/qa", nil, nil)
+	f.must(200, f.site, "POST", base+"/qa?persistent=JN", map[string]any{"picks": []map[string]any{{"hole_id": "TR001", "depth": 2, "dip": 40, "dip_direction": 100}}}, nil)
+	f.must(200, f.site, "GET", hb+"/qa?format=html", nil, nil)
 	f.must(200, f.site, "GET", base+"/audit", nil, nil)
 	f.must(204, f.site, "DELETE", mb, nil, nil, "If-Match", `"2"`)
 	r = f.must(200, f.site, "GET", hb, nil, nil)

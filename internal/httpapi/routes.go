@@ -62,6 +62,10 @@ func (s *Server) routes() {
 	p.DELETE("/measurements/:measurement", s.deleteMeasurement)
 	p.GET("/measurements.csv", s.exportMeasurements)
 
+	p.GET("/qa", s.projectQA)
+	p.POST("/qa", s.projectQAWith)
+	p.GET("/holes/:hole/qa", s.holeQA)
+
 	p.GET("/statistics", s.statistics)
 	p.GET("/net", s.net)
 
