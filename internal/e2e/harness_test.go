@@ -33,7 +33,7 @@ func TestMain(m *testing.M) {
 	// A plain build (not -race): the race detector covers the same code in
 	// the httpapi and service tests, and an instrumented server would make the
 	// load test measure the detector.
-	cmd := exec.Command("go", "build", "-o", binary, "corvane/cmd/corvane")
+	cmd := exec.Command("go", "build", "-buildvcs=false", "-o", binary, "corvane/cmd/corvane")
 	cmd.Stdout, cmd.Stderr = os.Stderr, os.Stderr
 	if err := cmd.Run(); err != nil {
 		fmt.Fprintln(os.Stderr, "e2e: building corvane:", err)

@@ -120,6 +120,15 @@ func TestGracefulShutdown(t *testing.T) {
 		base := fmt.Sprintf("/v1/projects/%d", projects.Items[0].ID)
 		before := count(t, s, base+"/measurements?hole=TM001")
 
+		// One connection, opened (and so accepted by the server) before the
+		// upload starts.
+		client := &http.Client{Transport: &http.Transport{MaxConnsPerHost: 1, MaxIdleConnsPerHost: 1}}
+		if resp, err := client.Get(s.URL + "/healthz"); err != nil {
+			t.Fatal(err)
+		} else {
+			_, _ = io.Copy(io.Discard, resp.Body)
+			resp.Body.Close()
+		}
 		pr, pw := io.Pipe()
 		req, _ := http.NewRequest("POST", s.URL+base+"/imports/measurements", pr)
 		req.Header.Set("Authorization", "Bearer "+s.Token)
@@ -131,7 +140,7 @@ func TestGracefulShutdown(t *testing.T) {
 		}
 		done := make(chan result, 1)
 		go func() {
-			resp, err := http.DefaultClient.Do(req)
+			resp, err := client.Do(req)
 			if err != nil {
 				done <- result{err: err}
 				return
