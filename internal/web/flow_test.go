@@ -140,6 +140,39 @@ func TestOverview(t *testing.T) {
 			t.Errorf("row of %s shows no oriented share: %q", h.Name, row)
 		}
 	}
+	// QA flag counts per hole are those of the server's QA report.
+	var rep struct {
+		Findings []struct {
+			Severity string `json:"severity"`
+			HoleID   string `json:"hole_id"`
+		} `json:"findings"`
+	}
+	if code, _, b := s.api(t, http.MethodGet, fmt.Sprintf("/v1/projects/%d/qa", s.Project), "", nil); code == http.StatusOK {
+		if err := json.Unmarshal(b, &rep); err != nil {
+			t.Fatal(err)
+		}
+		for _, h := range holes {
+			flags, warns := 0, 0
+			for _, f := range rep.Findings {
+				if f.HoleID == h.Name && f.Severity == "flag" {
+					flags++
+				}
+				if f.HoleID == h.Name && f.Severity == "warning" {
+					warns++
+				}
+			}
+			cell := p.text(fmt.Sprintf(`#holes-table tr[data-hole="%s"] td:nth-last-child(2)`, h.Name))
+			want := "none"
+			if flags+warns > 0 {
+				want = fmt.Sprintf("%d flag", flags)
+			}
+			if !strings.HasPrefix(cell, want) || (flags+warns > 0 && !strings.Contains(cell, fmt.Sprintf("%d warn", warns))) {
+				t.Errorf("QA cell of %s reads %q; the report has %d flags and %d warnings", h.Name, cell, flags, warns)
+			}
+		}
+	} else {
+		t.Logf("no QA report from the server (HTTP %d)", code)
+	}
 	// The token lives in sessionStorage only: nothing in localStorage or cookies.
 	if ok := eval[bool](p, fmt.Sprintf(`sessionStorage.getItem("corvane.token") === %q && localStorage.length === 0 && document.cookie === ""`, s.Token)); !ok {
 		t.Error("the token is not kept in sessionStorage alone")
@@ -470,4 +503,15 @@ func TestNetsAndQA(t *testing.T) {
 	p.do("follow flag", chromedp.Click(chromedp.CSS(`a.concerns[href*="?m="]`)))
 	id := href[strings.Index(href, "?m=")+3:]
 	p.waitFor("measurement highlighted", fmt.Sprintf(`document.querySelector('#m-%s.hl') !== null`, id))
+
+	// A flag on a run leads to that run on the depth strip.
+	p.do("back to QA", chromedp.Navigate(fmt.Sprintf("%s/#/p/%d/qa", s.URL, s.Project)))
+	p.waitFor("QA shown", `document.querySelector('#qa-caution') !== null`)
+	href = eval[string](p, `(document.querySelector('a.concerns[href*="?run="]') || {}).getAttribute?.('href') || ''`)
+	if href == "" {
+		return
+	}
+	p.do("follow run flag", chromedp.Click(chromedp.CSS(`a.concerns[href*="?run="]`)))
+	id = href[strings.Index(href, "?run=")+5:]
+	p.waitFor("run highlighted", fmt.Sprintf(`document.querySelector('rect.hl-run[data-id="%s"]') !== null`, id))
 }

@@ -258,7 +258,7 @@ export function confidenceFill(c) {
 // depthStrip draws one hole down the page: runs by confidence, measurements
 // by type in columns, QA flags at depth. onPick(kind, item) is called on a
 // click or Enter on a measurement or flag.
-export function depthStrip({ depth, runs, measurements, types, flags, unit = "m", onPick }) {
+export function depthStrip({ depth, runs, measurements, types, flags, unit = "m", onPick, highlightRun }) {
   const colW = 52;
   const typeCols = types.length || 1;
   const w = 90 + 56 + typeCols * colW + 70 + 20;
@@ -279,7 +279,7 @@ export function depthStrip({ depth, runs, measurements, types, flags, unit = "m"
   s.append(el("text", { x: xRun + 18, y: top - 12, "text-anchor": "middle", class: "head" }, "Runs"));
   for (const r of runs) {
     const k = CONFIDENCE[r.confidence] || CONFIDENCE.none;
-    const rect = el("rect", { x: xRun, y: f2(Y(r.from)), width: 36, height: f2(Math.max(1, Y(r.to) - Y(r.from))), fill: confidenceFill(r.confidence), stroke: "#000", "stroke-width": 0.7, "data-confidence": r.confidence });
+    const rect = el("rect", { x: xRun, y: f2(Y(r.from)), width: 36, height: f2(Math.max(1, Y(r.to) - Y(r.from))), fill: confidenceFill(r.confidence), stroke: "#000", "stroke-width": 0.7, "data-confidence": r.confidence, "data-id": r.id, class: highlightRun && String(r.id) === String(highlightRun) ? "hl-run" : null });
     rect.append(el("title", {}, `${r.from}\u2013${r.to} ${unit}: ${k.label}${r.mismatch != null ? `, mismatch ${r.mismatch}\u00b0` : ""}`));
     s.append(rect);
   }

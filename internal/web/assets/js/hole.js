@@ -77,7 +77,7 @@ export async function holeView(ctx, holeId) {
     }
   };
   put(stripBox, h("h2", {}, "Depth strip"),
-    h("div", { class: "strip-host" }, depthStrip({ depth: ho.final_depth, runs: rs, measurements: all, types: typesUsed, flags, unit, onPick })),
+    h("div", { class: "strip-host" }, depthStrip({ depth: ho.final_depth, runs: rs, measurements: all, types: typesUsed, flags, unit, onPick, highlightRun: params.get("run") })),
     h("p", { class: "legend" }, "Runs: ", Object.entries(CONFIDENCE).map(([k, v]) => h("span", { class: "key" }, h("span", { class: `swatch conf-${k}` }), v.label))),
     h("p", { class: "legend" }, typesUsed.map((t, i) => h("span", { class: "key" }, shapeKey(styleFor(i)), t.code))),
     h("p", { class: "legend" }, "QA: ", h("span", { class: "key" }, h("span", { class: "flagkey flag" }), "flag"), h("span", { class: "key" }, h("span", { class: "flagkey warning" }), "warning"), h("span", { class: "key" }, h("span", { class: "flagkey info" }), "note")),
@@ -205,6 +205,12 @@ export async function holeView(ctx, holeId) {
     srv ? h("p", { class: "help" }, `Survey ${srv.survey_date || "undated"}, azimuths from ${srv.azimuth_ref} north.`) : null);
 
   if (highlightM) focusRow(highlightM);
+  const runRect = stripBox.querySelector("rect.hl-run");
+  if (runRect) {
+    const r = rs.find((x) => String(x.id) === params.get("run"));
+    if (r) say(`Run ${r.from}\u2013${r.to} ${unit}, rated ${r.confidence}${r.mismatch != null ? `, mismatch ${r.mismatch}\u00b0` : ""}.`);
+    runRect.scrollIntoView({ block: "center" });
+  }
   if (highlightS !== null) {
     const tr = surveyBox.querySelector("tr.hl");
     if (tr) tr.scrollIntoView({ block: "center" });

@@ -19,7 +19,7 @@ export function linkFor(pid, holeId, f) {
     case "surveys":
       return { href: `${base}?station=${f.depth}`, text: `survey station at ${fmt(f.depth, 1)}` };
     case "runs":
-      return { href: base, text: f.id ? `run ${f.id}` : `run at ${fmt(f.depth, 1)}` };
+      return f.id ? { href: `${base}?run=${f.id}`, text: `run ${f.id}` } : { href: base, text: `run at ${fmt(f.depth, 1)}` };
     default:
       return { href: base, text: "hole" };
   }
@@ -79,11 +79,14 @@ export async function qaView(ctx) {
     groups.get(k).push(f);
   }
   const keys = [...groups.keys()].sort((a, b) => (a === "" ? -1 : b === "" ? 1 : a.localeCompare(b, undefined, { numeric: true })));
-  if (!keys.length) body.append(h("p", { class: "ok" }, "No findings."));
+  if (!keys.length) add(body, h("p", { class: "ok" }, "No findings."));
+  const holeRep = new Map((rep.holes || []).map((x) => [x.hole_id, x]));
+  const clean = (rep.holes || []).map((x) => x.hole_id).filter((n) => !groups.has(n) && (!onlyHole || n === onlyHole));
+  if (clean.length) add(body, h("p", { class: "ok" }, `No findings in ${clean.join(", ")}.`));
   for (const k of keys) {
     const list = groups.get(k).sort((a, b) => (ORDER[a.severity] ?? 3) - (ORDER[b.severity] ?? 3) || a.depth - b.depth);
     const ho = byName.get(k);
-    body.append(h("section", { class: "card qa-hole", "data-hole": k },
+    add(body, h("section", { class: "card qa-hole", "data-hole": k },
       h("h2", {}, k ? (ho ? h("a", { href: `#/p/${p.id}/hole/${ho.id}` }, `Hole ${k}`) : `Hole ${k}`) : "Programme-wide"),
       holeLine(holeRep.get(k)),
       h("div", { class: "scroll" }, h("table", { class: "data findings" },
