@@ -484,12 +484,30 @@ func TestNetsAndQA(t *testing.T) {
 	p.waitFor("net image loaded", `[...document.querySelectorAll('#net img')].every(i => i.complete && i.naturalWidth > 0)`)
 	p.shot("nets")
 
-	p.do("open QA", chromedp.Navigate(fmt.Sprintf("%s/#/p/%d/qa", s.URL, s.Project)))
+	// The QA view with the bedding of the demo programme as the persistent
+	// fabric for the mark-rotation check.
+	p.do("open QA", chromedp.Navigate(fmt.Sprintf("%s/#/p/%d/qa?persistent=bedding", s.URL, s.Project)))
 	p.waitFor("QA shown", `document.querySelector('#qa-caution, [data-state=not-available]') !== null`)
 	p.shot("qa")
 	if eval[bool](p, `document.querySelector('[data-state=not-available]') !== null`) {
 		t.Log("QA: the server offers no QA report; the view says so")
 		return
+	}
+	if got := eval[string](p, `document.querySelector('#qa-fabric').value`); got != "bedding" {
+		t.Errorf("fabric select shows %q, want bedding", got)
+	}
+	var rep struct {
+		Summary struct {
+			BySeverity map[string]int `json:"by_severity"`
+		} `json:"summary"`
+		Findings []json.RawMessage `json:"findings"`
+	}
+	s.getJSON(t, fmt.Sprintf("/v1/projects/%d/qa?persistent=bedding", s.Project), &rep)
+	if got := p.text("#qa-count-flag"); got != fmt.Sprint(rep.Summary.BySeverity["flag"]) {
+		t.Errorf("QA view shows %s flags; the report has %d", got, rep.Summary.BySeverity["flag"])
+	}
+	if n := eval[int](p, `document.querySelectorAll('.qa-hole tbody tr').length`); n != len(rep.Findings) {
+		t.Errorf("QA view lists %d findings; the report has %d", n, len(rep.Findings))
 	}
 	if !strings.Contains(p.text("#qa-caution"), "judgement") {
 		t.Error("the QA view does not state that flags guide judgement")
@@ -505,7 +523,7 @@ func TestNetsAndQA(t *testing.T) {
 	p.waitFor("measurement highlighted", fmt.Sprintf(`document.querySelector('#m-%s.hl') !== null`, id))
 
 	// A flag on a run leads to that run on the depth strip.
-	p.do("back to QA", chromedp.Navigate(fmt.Sprintf("%s/#/p/%d/qa", s.URL, s.Project)))
+	p.do("back to QA", chromedp.Navigate(fmt.Sprintf("%s/#/p/%d/qa?persistent=bedding", s.URL, s.Project)))
 	p.waitFor("QA shown", `document.querySelector('#qa-caution') !== null`)
 	href = eval[string](p, `(document.querySelector('a.concerns[href*="?run="]') || {}).getAttribute?.('href') || ''`)
 	if href == "" {
