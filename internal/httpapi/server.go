@@ -18,6 +18,7 @@ import (
 	"github.com/prometheus/client_golang/prometheus/promhttp"
 
 	"corvane/internal/config"
+	"corvane/internal/domain"
 )
 
 // Options configures a [Server].
@@ -61,6 +62,7 @@ func New(opt Options) *Server {
 	if opt.MaxPageSize <= 0 {
 		opt.MaxPageSize = config.DefaultMaxPageSize
 	}
+	opt.MaxPageSize = min(opt.MaxPageSize, domain.MaxLimit) // the stores' own cap
 	if opt.DefaultPageSize <= 0 || opt.DefaultPageSize > opt.MaxPageSize {
 		opt.DefaultPageSize = min(config.DefaultPageSize, opt.MaxPageSize)
 	}
