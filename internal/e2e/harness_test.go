@@ -81,7 +81,7 @@ var (
 
 // start runs `corvane serve --addr 127.0.0.1:0 --db db args...` and waits until
 // it prints its URL (and, with --demo, its token) and /readyz answers 200.
-func start(t *testing.T, db string, args ...string) *server {
+func start(t testing.TB, db string, args ...string) *server {
 	t.Helper()
 	all := append([]string{"serve", "--addr", "127.0.0.1:0", "--db", db, "--log-format", "json"}, args...)
 	cmd := exec.Command(binary, all...)
@@ -155,7 +155,7 @@ func start(t *testing.T, db string, args ...string) *server {
 }
 
 // stop sends SIGTERM and waits for a clean exit.
-func (s *server) stop(t *testing.T) {
+func (s *server) stop(t testing.TB) {
 	t.Helper()
 	if err := s.cmd.Process.Signal(sigterm); err != nil {
 		t.Fatal(err)
@@ -173,7 +173,7 @@ func (s *server) stop(t *testing.T) {
 
 // call sends one request with the server's token and returns the status, the
 // headers and the body.
-func (s *server) call(t *testing.T, method, path string, body any, hdr ...string) (int, http.Header, []byte) {
+func (s *server) call(t testing.TB, method, path string, body any, hdr ...string) (int, http.Header, []byte) {
 	t.Helper()
 	var r io.Reader
 	ct := ""
@@ -219,7 +219,7 @@ func (s *server) call(t *testing.T, method, path string, body any, hdr ...string
 
 // mustJSON sends a request, fails unless the status is want, and decodes the
 // body into out (when out is not nil).
-func (s *server) mustJSON(t *testing.T, want int, method, path string, body, out any, hdr ...string) http.Header {
+func (s *server) mustJSON(t testing.TB, want int, method, path string, body, out any, hdr ...string) http.Header {
 	t.Helper()
 	code, h, b := s.call(t, method, path, body, hdr...)
 	if code != want {
