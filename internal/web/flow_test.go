@@ -457,18 +457,7 @@ func TestHoleView(t *testing.T) {
 		t.Fatalf("allowing downloads: %v", err)
 	}
 	p.do("export", chromedp.Click(chromedp.CSS("#export-csv")))
-	var csv []byte
-	deadline := time.Now().Add(15 * time.Second)
-	for time.Now().Before(deadline) {
-		if b, err := os.ReadFile(filepath.Join(dl, h.Name+"-measurements.csv")); err == nil && len(b) > 0 {
-			csv = b
-			break
-		}
-		time.Sleep(100 * time.Millisecond)
-	}
-	if csv == nil {
-		t.Fatal("no CSV downloaded")
-	}
+	csv := waitFile(t, dl, h.Name+"-measurements.csv")
 	lines := strings.Split(strings.TrimSpace(string(csv)), "\n")
 	if len(lines)-1 != len(want) {
 		t.Errorf("CSV export has %d rows, the filter holds %d", len(lines)-1, len(want))
@@ -483,6 +472,21 @@ func TestNetsAndQA(t *testing.T) {
 	p.waitFor("net shown", `document.querySelector('#net img, #net svg') !== null && document.querySelector('#rose svg, #rose img') !== null && document.querySelector('#stats, [data-state=not-available]') !== null`)
 	p.waitFor("net image loaded", `[...document.querySelectorAll('#net img')].every(i => i.complete && i.naturalWidth > 0)`)
 	p.shot("nets")
+
+	// Terzaghi weighting puts the weighted figures beside the unweighted ones,
+	// and the net can be saved as served.
+	p.do("choose weighting", chromedp.SetValue(chromedp.CSS("#n-weight"), "terzaghi"), chromedp.Click(chromedp.CSS(`#net-form button[type=submit]`)))
+	p.waitFor("weighted statistics", `location.hash.includes('terzaghi=true') && [...document.querySelectorAll('#stats-table th')].some(th => th.textContent === 'Weighted mean')`)
+	dl := t.TempDir()
+	if _, err := chromedp.CallBrowser(p.ctx, browser.SetDownloadBehavior, browser.SetDownloadBehaviorParams{Behavior: browser.SetDownloadBehaviorBehaviorAllow, DownloadPath: dl}); err != nil {
+		t.Fatalf("allowing downloads: %v", err)
+	}
+	p.waitFor("net image loaded", `document.querySelector('#net img') !== null && document.querySelector('#net img').complete`)
+	p.do("download SVG", chromedp.Click(chromedp.CSS("#download-svg")))
+	svg := waitFile(t, dl, ".svg")
+	if !strings.Contains(string(svg), "<svg") {
+		t.Errorf("downloaded net is not SVG: %.80q", svg)
+	}
 
 	// The QA view with the bedding of the demo programme as the persistent
 	// fabric for the mark-rotation check.
@@ -532,4 +536,23 @@ func TestNetsAndQA(t *testing.T) {
 	p.do("follow run flag", chromedp.Click(chromedp.CSS(`a.concerns[href*="?run="]`)))
 	id = href[strings.Index(href, "?run=")+5:]
 	p.waitFor("run highlighted", fmt.Sprintf(`document.querySelector('rect.hl-run[data-id="%s"]') !== null`, id))
+}
+
+// waitFile waits for a finished download in dir whose name ends with suffix.
+func waitFile(t *testing.T, dir, suffix string) []byte {
+	t.Helper()
+	deadline := time.Now().Add(15 * time.Second)
+	for time.Now().Before(deadline) {
+		entries, _ := os.ReadDir(dir)
+		for _, e := range entries {
+			if strings.HasSuffix(e.Name(), suffix) {
+				if b, err := os.ReadFile(filepath.Join(dir, e.Name())); err == nil && len(b) > 0 {
+					return b
+				}
+			}
+		}
+		time.Sleep(100 * time.Millisecond)
+	}
+	t.Fatalf("no file *%s downloaded", suffix)
+	return nil
 }
