@@ -116,3 +116,23 @@ func TestAssetsStayLocal(t *testing.T) {
 		t.Fatalf("only %d embedded files", n)
 	}
 }
+
+// BenchmarkHandler serves the page and one module, as a browser's first
+// visit does.
+func BenchmarkHandler(b *testing.B) {
+	h := Handler()
+	for _, c := range []struct{ name, path string }{{"index", "/"}, {"module", "/assets/js/logging.js"}} {
+		path := c.path
+		b.Run(c.name, func(b *testing.B) {
+			req := httptest.NewRequest(http.MethodGet, path, nil)
+			b.ReportAllocs()
+			for b.Loop() {
+				rec := httptest.NewRecorder()
+				h.ServeHTTP(rec, req)
+				if rec.Code != http.StatusOK {
+					b.Fatal(rec.Code)
+				}
+			}
+		})
+	}
+}
