@@ -621,3 +621,18 @@ func TestQA(t *testing.T) {
 		t.Errorf("non-numeric threshold: %+v", p)
 	}
 }
+
+// TestReadyzFollowsTheStore: /readyz is 503 once the store is gone, while
+// /healthz (the process) stays 200.
+func TestReadyzFollowsTheStore(t *testing.T) {
+	f := newFixture(t)
+	f.must(200, "", "GET", "/readyz", nil, nil)
+	if err := f.svc.Store().Close(); err != nil {
+		t.Fatal(err)
+	}
+	f.must(503, "", "GET", "/readyz", nil, nil)
+	f.must(200, "", "GET", "/healthz", nil, nil)
+	if !strings.Contains(f.logs.String(), `"status":503`) || !strings.Contains(f.logs.String(), `"level":"ERROR"`) {
+		t.Errorf("failed readiness not logged as an error:\n%.1500s", f.logs.String())
+	}
+}
