@@ -84,6 +84,9 @@ func TestServeDemo(t *testing.T) {
 		if len(one.Items) != 1 || one.Items[0].Derived["dip"] == nil {
 			t.Errorf("first measurement has no derived dip: %+v", one.Items)
 		}
+		if code, h, body := s.call(t, "GET", "/", nil); code != 200 || !strings.HasPrefix(h.Get("Content-Type"), "text/html") || !strings.Contains(string(body), "<html") {
+			t.Errorf("the web page at /: %d %q", code, h.Get("Content-Type"))
+		}
 		code, h, body := s.call(t, "GET", "/metrics", nil)
 		if code != 200 || !strings.Contains(string(body), `corvane_http_requests_total{method="GET",route="/v1/projects/:project/measurements",status="200"}`) {
 			t.Errorf("/metrics: %d %s", code, h.Get("Content-Type"))
