@@ -636,3 +636,45 @@ func TestReadyzFollowsTheStore(t *testing.T) {
 		t.Errorf("failed readiness not logged as an error:\n%.1500s", f.logs.String())
 	}
 }
+
+// TestRacingEditsOneWins: eight loggers edit the same row from the same
+// version at once; exactly one edit lands, the others get 412.
+func TestRacingEditsOneWins(t *testing.T) {
+	f := newFixture(t)
+	pid := f.project("Race", nil)
+	h := f.hole(pid, "RC001", 0, -60)
+	base := "/v1/projects/" + itoa(pid)
+	var m view
+	f.must(201, f.site, "POST", base+"/measurements", map[string]any{"hole_id": h.ID, "depth": 5, "alpha": 45, "beta": 90, "type": "JN"}, &m)
+	url := base + "/measurements/" + itoa(m.ID)
+	const n = 8
+	codes := make([]int, n)
+	var wg sync.WaitGroup
+	for i := range n {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			r := f.do(f.site, "PUT", url, map[string]any{"hole_id": h.ID, "depth": 5, "alpha": 10 + float64(i), "beta": 90, "type": "JN"}, "If-Match", `"1"`)
+			codes[i] = r.Code
+		}()
+	}
+	wg.Wait()
+	won := 0
+	for _, c := range codes {
+		switch c {
+		case 200:
+			won++
+		case 412:
+		default:
+			t.Errorf("racing edit answered %d", c)
+		}
+	}
+	if won != 1 {
+		t.Errorf("%d racing edits from version 1 landed, want exactly 1 (codes %v)", won, codes)
+	}
+	var got view
+	f.must(200, f.site, "GET", url, nil, &got)
+	if got.Version != 2 {
+		t.Errorf("version after the race: %d, want 2", got.Version)
+	}
+}
