@@ -122,6 +122,19 @@ func TestGracefulShutdown(t *testing.T) {
 		s.mustJSON(t, 200, "GET", "/v1/projects", nil, &projects)
 		base := fmt.Sprintf("/v1/projects/%d", projects.Items[0].ID)
 		before := count(t, s, base+"/measurements?hole=TM001")
+		code := ""
+		var vocab struct {
+			Items []struct {
+				Code string `json:"code"`
+				Kind string `json:"kind"`
+			} `json:"items"`
+		}
+		s.mustJSON(t, 200, "GET", base+"/types", nil, &vocab)
+		for _, tc := range vocab.Items {
+			if tc.Kind == "plane" && code == "" {
+				code = tc.Code
+			}
+		}
 
 		// One connection, opened (and so accepted by the server) before the
 		// upload starts.
@@ -155,7 +168,7 @@ func TestGracefulShutdown(t *testing.T) {
 		const rows = 400
 		fmt.Fprintln(pw, "hole_id,depth,alpha,beta,type,comment")
 		for i := range rows / 2 {
-			fmt.Fprintf(pw, "TM001,%.2f,40,120,joint,in flight\n", 1+float64(i)*0.01)
+			fmt.Fprintf(pw, "TM001,%.2f,40,120,%s,in flight\n", 1+float64(i)*0.01, code)
 		}
 		// The request is in flight; ask the server to stop.
 		time.Sleep(200 * time.Millisecond)
@@ -164,7 +177,7 @@ func TestGracefulShutdown(t *testing.T) {
 		}
 		time.Sleep(300 * time.Millisecond)
 		for i := rows / 2; i < rows; i++ {
-			fmt.Fprintf(pw, "TM001,%.2f,40,120,joint,in flight\n", 1+float64(i)*0.01)
+			fmt.Fprintf(pw, "TM001,%.2f,40,120,%s,in flight\n", 1+float64(i)*0.01, code)
 		}
 		pw.Close()
 		var r result
