@@ -65,6 +65,7 @@ func (s *Server) routes() {
 	p.GET("/qa", s.projectQA)
 	p.POST("/qa", s.projectQAWith)
 	p.GET("/holes/:hole/qa", s.holeQA)
+	p.GET("/holes/:hole/path", s.holePath)
 
 	p.GET("/statistics", s.statistics)
 	p.GET("/net", s.net)

@@ -1,0 +1,36 @@
+package httpapi
+
+import (
+	"math"
+	"net/http"
+	"strconv"
+
+	"github.com/gin-gonic/gin"
+
+	"corvane/internal/domain"
+	"corvane/internal/service"
+)
+
+// holePath serves the desurveyed path of a hole at ?step= (default 5).
+func (s *Server) holePath(c *gin.Context) {
+	pid, hid, err := ids(c, "hole")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	var step float64
+	if v := c.Query("step"); v != "" {
+		x, err := strconv.ParseFloat(v, 64)
+		if err != nil || math.IsNaN(x) || math.IsInf(x, 0) || x == 0 {
+			fail(c, domain.FieldErr("step", "query parameter step=%q: want a number from %v to %v", v, service.MinPathStep, service.MaxPathStep))
+			return
+		}
+		step = x
+	}
+	pts, err := s.opt.Service.HolePath(c.Request.Context(), pid, hid, step)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	c.JSON(http.StatusOK, gin.H{"items": pts})
+}

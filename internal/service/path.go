@@ -1,0 +1,107 @@
+package service
+
+import (
+	"context"
+	"math"
+	"sort"
+
+	"corvane/internal/domain"
+)
+
+// Path step bounds (in the project's length unit) and the default step.
+const (
+	MinPathStep     = 0.5
+	MaxPathStep     = 100
+	DefaultPathStep = 5
+)
+
+// PathPoint is one point of a desurveyed hole path. Azimuths are relative to
+// the project's output azimuth reference, with the same declination and grid
+// convergence as the derived values of measurements.
+type PathPoint struct {
+	Depth     float64 `json:"depth"`
+	East      float64 `json:"easting"`
+	North     float64 `json:"northing"`
+	Elevation float64 `json:"elevation"`
+	// Azimuth and Dip are the hole direction at the depth (dip negative down).
+	Azimuth float64 `json:"azimuth"`
+	Dip     float64 `json:"dip"`
+	// Extrapolated is true below the last survey station.
+	Extrapolated bool `json:"extrapolated"`
+	// DoglegSeverity is the dogleg severity (degrees per 30 m, or per 100 ft
+	// in a project in feet) of the survey interval the point lies in; null
+	// below the last station, where the path runs straight on.
+	DoglegSeverity *float64 `json:"dogleg_severity"`
+}
+
+// HolePath returns the hole's desurveyed path (read): points every step from
+// the collar to the final depth, plus one at every survey station and at the
+// final depth, in depth order. A step of 0 means DefaultPathStep; otherwise it
+// must lie within MinPathStep..MaxPathStep. The path is built from the store's
+// current collar and survey on every call, by the hole model the derived
+// values use, so it is never stale.
+func (s *Service) HolePath(ctx context.Context, projectID, holeID int64, step float64) ([]PathPoint, error) {
+	if step == 0 {
+		step = DefaultPathStep
+	}
+	if math.IsNaN(step) || step < MinPathStep || step > MaxPathStep {
+		return nil, domain.FieldErr("step", "step %v is out of range; want %v to %v", step, MinPathStep, MaxPathStep)
+	}
+	p, _, err := s.project(ctx, s.store, projectID, domain.RoleRead)
+	if err != nil {
+		return nil, err
+	}
+	if _, err := hole(ctx, s.store, projectID, holeID); err != nil {
+		return nil, err
+	}
+	m, err := newDeriver(s.store, p).model(ctx, holeID)
+	if err != nil {
+		return nil, err
+	}
+	if m.err != nil {
+		return nil, domain.Errorf(domain.Invalid, "%v", m.err)
+	}
+	final := m.path.Depth()
+	ivs := m.path.Intervals()
+	depths := make([]float64, 0, int(final/step)+len(ivs)+2)
+	for i := 0; ; i++ {
+		d := float64(i) * step
+		if d >= final {
+			break
+		}
+		depths = append(depths, d)
+	}
+	depths = append(depths, final)
+	for _, iv := range ivs {
+		depths = append(depths, iv.From, iv.To)
+	}
+	sort.Float64s(depths)
+	out := make([]PathPoint, 0, len(depths))
+	last := math.Inf(-1)
+	for _, d := range depths {
+		if d == last || d > final {
+			continue
+		}
+		last = d
+		pt, err := m.path.At(d)
+		if err != nil {
+			return nil, domain.Errorf(domain.Invalid, "hole %s at depth %v: %v", m.name, d, err)
+		}
+		az, dip := pt.Dir.AzimuthDip()
+		pp := PathPoint{Depth: d, East: pt.Pos.X, North: pt.Pos.Y, Elevation: pt.Pos.Z, Azimuth: az, Dip: dip, Extrapolated: pt.Extrapolated}
+		// The interval a point lies in: the first with From <= d < To; a
+		// point at the last station closes the last interval.
+		for j, iv := range ivs {
+			if d >= iv.From && (d < iv.To || (j == len(ivs)-1 && d == iv.To)) {
+				sev := iv.Severity
+				pp.DoglegSeverity = &sev
+				break
+			}
+		}
+		if math.IsNaN(pp.Azimuth) {
+			pp.Azimuth = 0 // vertical hole: azimuth undefined, report 0
+		}
+		out = append(out, pp)
+	}
+	return out, nil
+}
