@@ -303,6 +303,7 @@ func TestContractTour(t *testing.T) {
 	f.must(201, f.site, "POST", base+"/imports/runs", "hole_id,from,to,confidence\nTR001,3,6,good\n", nil)
 	f.must(200, f.site, "GET", base+"/statistics", nil, nil)
 	f.must(200, f.site, "GET", base+"/net", nil, nil)
+	f.must(200, f.site, "GET", base+"/rose?of=strike&bin=15", nil, nil)
 	f.must(200, f.site, "GET", base+"/qa", nil, nil)
 	f.must(200, f.site, "POST", base+"/qa?persistent=JN", map[string]any{"picks": []map[string]any{{"hole_id": "TR001", "depth": 2, "dip": 40, "dip_direction": 100}}}, nil)
 	f.must(200, f.site, "GET", hb+"/qa?format=html", nil, nil)

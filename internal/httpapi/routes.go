@@ -69,6 +69,7 @@ func (s *Server) routes() {
 
 	p.GET("/statistics", s.statistics)
 	p.GET("/net", s.net)
+	p.GET("/rose", s.rose)
 
 	p.POST("/imports/:kind", s.importCSV)
 	p.GET("/audit", s.listAudit)

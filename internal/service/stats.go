@@ -96,6 +96,7 @@ type StatsResult struct {
 type sample struct {
 	axis, hole geom.Vec3
 	typ        string
+	dipDir     float64 // dip direction of a plane as derived (poles only)
 }
 
 // gather derives every measurement passing q and returns the poles and the
@@ -134,7 +135,7 @@ func (s *Service) gather(ctx context.Context, projectID int64, q MeasurementQuer
 			}
 			h := geom.HoleDirection(*dv.HoleAzimuth, *dv.HoleDip)
 			pl := geom.Plane{Dip: *dv.Dip, DipDirection: *dv.DipDirection}
-			poles = append(poles, sample{axis: pl.Normal(), hole: h, typ: m.TypeCode})
+			poles = append(poles, sample{axis: pl.Normal(), hole: h, typ: m.TypeCode, dipDir: *dv.DipDirection})
 			if dv.LineTrend != nil && dv.LinePlunge != nil {
 				lines = append(lines, sample{axis: geom.FromTrendPlunge(*dv.LineTrend, *dv.LinePlunge), hole: h, typ: m.TypeCode})
 			}

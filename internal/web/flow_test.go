@@ -131,6 +131,17 @@ func TestOverview(t *testing.T) {
 	holes := s.holes(t)
 	p.waitFor("every hole in the table", fmt.Sprintf(`document.querySelectorAll('#holes-table tbody tr').length === %d`, len(holes)))
 	p.waitFor("plan and section drawn", fmt.Sprintf(`document.querySelectorAll('svg.chart .trace').length === %d`, 2*len(holes)))
+	// The traces come from the server's desurveyed paths, one request per
+	// hole, and no conversion is asked for on the overview.
+	for _, h := range holes {
+		js := fmt.Sprintf(`performance.getEntriesByType("resource").some((e) => new URL(e.name).pathname === "/v1/projects/%d/holes/%d/path")`, s.Project, h.ID)
+		if !eval[bool](p, js) {
+			t.Errorf("the overview did not read the path of %s from the path route", h.Name)
+		}
+	}
+	if eval[bool](p, `performance.getEntriesByType("resource").some((e) => new URL(e.name).pathname === "/v1/convert")`) {
+		t.Error("the overview still converts positions to draw the traces")
+	}
 	for _, h := range holes {
 		row := p.text(fmt.Sprintf(`#holes-table tr[data-hole="%s"]`, h.Name))
 		if !strings.Contains(row, h.Name) || !strings.Contains(row, fmt.Sprintf("%.1f", h.FinalDepth)) {
@@ -486,6 +497,22 @@ func TestNetsAndQA(t *testing.T) {
 	svg := waitFile(t, dl, ".svg")
 	if !strings.Contains(string(svg), "<svg") {
 		t.Errorf("downloaded net is not SVG: %.80q", svg)
+	}
+
+	// The rose is the server's: dip directions by default, strikes on request,
+	// and its SVG downloads as served.
+	p.waitFor("rose served", `document.querySelector('#rose img') !== null && document.querySelector('#rose img').complete && document.querySelector('#rose img').naturalWidth > 0`)
+	p.do("rose of strikes", chromedp.SetValue(chromedp.CSS("#n-rose"), "strike"), chromedp.Click(chromedp.CSS(`#net-form button[type=submit]`)))
+	p.waitFor("strike rose", `location.hash.includes('rose=strike') && document.querySelector('#rose img') !== null && document.querySelector('#rose img').alt.includes('strikes') && document.querySelector('#rose img').complete`)
+	dlRose := t.TempDir()
+	if _, err := chromedp.CallBrowser(p.ctx, browser.SetDownloadBehavior, browser.SetDownloadBehaviorParams{Behavior: browser.SetDownloadBehaviorBehaviorAllow, DownloadPath: dlRose}); err != nil {
+		t.Fatalf("allowing downloads: %v", err)
+	}
+	p.do("download rose", chromedp.Click(chromedp.CSS("#download-rose")))
+	rs := waitFile(t, dlRose, "-rose.svg")
+	code, _, served := s.api(t, http.MethodGet, fmt.Sprintf("/v1/projects/%d/rose?of=strike", s.Project), "", nil)
+	if code != http.StatusOK || !bytes.Equal(rs, served) || !strings.Contains(string(rs), "Rose of strike") {
+		t.Errorf("downloaded rose (%d bytes) is not the served strike rose (HTTP %d, %d bytes)", len(rs), code, len(served))
 	}
 
 	// The QA view with the bedding of the demo programme as the persistent

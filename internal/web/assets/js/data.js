@@ -65,32 +65,15 @@ export async function convert(p, hole, s, measurements, signal) {
   return r.data.results || [];
 }
 
-let pathRoute = null; // null: not tried yet; true/false: the server has it
-
-// holePath returns the desurveyed path of a hole as points
-// {depth, easting, northing, elevation}: from the path route when the server
-// has one, else by converting positions at regular depths (nothing stored).
+// holePath returns the desurveyed path of a hole from the server as points
+// {depth, easting, northing, elevation, azimuth, dip, extrapolated,
+// dogleg_severity}: regular steps (about 60 along the hole, 0.5 to 100
+// length units apart) plus every survey station.
 export async function holePath(p, hole, step) {
-  step = step || Math.max(2, hole.final_depth / 60);
-  if (pathRoute === null && (await offers("/v1/projects/{project}/holes/{hole}/path")) === false) pathRoute = false;
-  if (pathRoute !== false) {
-    try {
-      const r = await get(`/v1/projects/${p.id}/holes/${hole.id}/path${query({ step })}`);
-      pathRoute = true;
-      return (r.items || r.points || []).filter((q) => Number.isFinite(q.easting));
-    } catch (e) {
-      if (!(e instanceof ApiError && (e.status === 404 || e.status === 405))) throw e;
-      pathRoute = false;
-    }
-  }
-  const s = await survey(p.id, hole.id);
-  const depths = [];
-  for (let d = 0; d < hole.final_depth; d += step) depths.push(d);
-  depths.push(hole.final_depth);
-  const res = await convert(p, hole, s, depths.map((depth) => ({ depth, alpha: 45, beta: 0 })));
-  return res
-    .filter((r) => r.derived && Number.isFinite(r.derived.easting))
-    .map((r) => ({ depth: r.depth, easting: r.derived.easting, northing: r.derived.northing, elevation: r.derived.elevation }));
+  step = step || hole.final_depth / 60;
+  step = Math.min(100, Math.max(0.5, Math.round(step * 2) / 2));
+  const r = await get(`/v1/projects/${p.id}/holes/${hole.id}/path${query({ step })}`);
+  return (r.items || []).filter((q) => Number.isFinite(q.easting));
 }
 
 // measurements lists a project's measurements over a filter (all pages).

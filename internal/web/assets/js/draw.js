@@ -1,5 +1,5 @@
-// draw.js: SVG drawing for the page (small nets, plan, section, depth strip,
-// rose). Pure functions of their data; no network.
+// draw.js: SVG drawing for the page (small nets, plan, section, depth
+// strip). Pure functions of their data; no network.
 
 const NS = "http://www.w3.org/2000/svg";
 
@@ -316,32 +316,5 @@ export function depthStrip({ depth, runs, measurements, types, flags, unit = "m"
     }
     s.append(tri);
   }
-  return s;
-}
-
-// rose draws a rose diagram of azimuths (degrees) in bins of binWidth over the
-// full circle (dip directions are not axial).
-export function rose(azimuths, { size = 300, binWidth = 10, label = "Rose diagram of dip directions" } = {}) {
-  const s = svg(size, size, label);
-  const cx = size / 2, cy = size / 2, R = size / 2 - 24;
-  const n = Math.round(360 / binWidth);
-  const bins = new Array(n).fill(0);
-  for (const a of azimuths) {
-    if (!Number.isFinite(a)) continue;
-    bins[Math.floor((((a % 360) + 360) % 360) / binWidth) % n]++;
-  }
-  const max = Math.max(1, ...bins);
-  s.append(el("circle", { cx, cy, r: R, fill: "#fff", stroke: "#000", "stroke-width": 1.3 }));
-  for (const q of [0.25, 0.5, 0.75]) s.append(el("circle", { cx, cy, r: f2(R * Math.sqrt(q)), fill: "none", stroke: "#999", "stroke-width": 0.7, "stroke-dasharray": "3 3" }));
-  bins.forEach((c, i) => {
-    if (!c) return;
-    // equal-area petals: radius grows with the square root of the count
-    const r = R * Math.sqrt(c / max);
-    const a0 = rad(i * binWidth), a1 = rad((i + 1) * binWidth);
-    const d = `M${cx} ${cy}L${f2(cx + r * Math.sin(a0))} ${f2(cy - r * Math.cos(a0))}A${f2(r)} ${f2(r)} 0 0 1 ${f2(cx + r * Math.sin(a1))} ${f2(cy - r * Math.cos(a1))}Z`;
-    s.append(el("path", { d, fill: "#0072B2", stroke: "#000", "stroke-width": 0.7, "fill-opacity": 0.8 }));
-  });
-  s.append(el("text", { x: cx, y: 14, "text-anchor": "middle", class: "net-n" }, "N"));
-  s.append(el("text", { x: size - 4, y: size - 6, "text-anchor": "end", class: "small" }, `outer ring ${max} per ${binWidth}\u00b0, n = ${azimuths.length}`));
   return s;
 }

@@ -5,7 +5,7 @@
 import { request, query, offers, ApiError } from "./api.js";
 import { h, fmt, az, clear, say, notAvailable, problemText, add, put } from "./dom.js";
 import { measurements } from "./data.js";
-import { rose, smallNet, styleFor } from "./draw.js";
+import { smallNet, styleFor } from "./draw.js";
 
 function showSvg(host, text, label) {
   const url = URL.createObjectURL(new Blob([text], { type: "image/svg+xml" }));
@@ -71,6 +71,7 @@ export async function netsView(ctx) {
     sets: params.get("sets") || "0",
     projection: params.get("projection") || "equal-area",
     show: (params.get("show") || "density").split(",").filter(Boolean),
+    rose: params.get("rose") === "strike" ? "strike" : "dip_direction",
   };
   add(host, h("h1", {}, "Nets and sets"));
   const holeBoxes = p.holes.map((x) => h("label", { class: "check" }, h("input", { type: "checkbox", name: "hole", value: x.name, checked: !sel.hole.length || sel.hole.includes(x.name) }), x.name));
@@ -84,15 +85,17 @@ export async function netsView(ctx) {
   sets.value = sel.sets;
   const projection = h("select", { id: "n-proj" }, h("option", { value: "equal-area" }, "equal-area (Schmidt)"), h("option", { value: "equal-angle" }, "equal-angle (Wulff)"));
   projection.value = sel.projection;
+  const roseOf = h("select", { id: "n-rose" }, h("option", { value: "dip_direction" }, "dip directions"), h("option", { value: "strike" }, "strikes (both ways)"));
+  roseOf.value = sel.rose;
   const msg = h("span", { class: "field-msg", role: "alert" });
   const form = h("form", { class: "card filters", id: "net-form" },
     h("fieldset", {}, h("legend", {}, "Holes"), holeBoxes),
     h("fieldset", {}, h("legend", {}, "Types"), typeBoxes),
     h("div", { class: "field inline" }, h("label", { for: "n-min" }, `Depth from (${unit})`), minD, h("label", { for: "n-max" }, "to"), maxD),
     h("div", { class: "field inline" }, h("label", { for: "n-weight" }, "Weighting"), weighting, h("label", { for: "n-sets" }, "Sets"), sets),
-    h("div", { class: "field inline" }, h("label", { for: "n-proj" }, "Net"), projection),
+    h("div", { class: "field inline" }, h("label", { for: "n-proj" }, "Net"), projection, h("label", { for: "n-rose" }, "Rose of"), roseOf),
     h("fieldset", {}, h("legend", {}, "Show with the poles"), showBoxes),
-    h("div", { class: "actions" }, h("button", { type: "submit", class: "primary" }, "Draw"), h("button", { type: "button", id: "download-svg" }, "Download SVG"), msg));
+    h("div", { class: "actions" }, h("button", { type: "submit", class: "primary" }, "Draw"), h("button", { type: "button", id: "download-svg" }, "Download SVG"), h("button", { type: "button", id: "download-rose" }, "Download rose SVG"), msg));
   const netHost = h("div", { class: "net-big", id: "net" }, h("p", { class: "loading" }, "Drawing\u2026"));
   const roseHost = h("div", { class: "rose", id: "rose" });
   const statsHost = h("section", { class: "card" }, h("h2", {}, "Set statistics"));
@@ -118,31 +121,33 @@ export async function netsView(ctx) {
       hole: holes.length === p.holes.length ? [] : holes,
       type: types.length === p.types.length ? [] : types,
       min_depth: minD.value.trim(), max_depth: maxD.value.trim(),
-      weighting: weighting.value, sets: sets.value, projection: projection.value, show: checked(showBoxes),
+      weighting: weighting.value, sets: sets.value, projection: projection.value, show: checked(showBoxes), rose: roseOf.value,
     };
   }
   const filterOf = (s) => ({ hole: s.hole, type: s.type, min_depth: s.min_depth, max_depth: s.max_depth });
   form.addEventListener("submit", (e) => {
     e.preventDefault();
     const s = read();
-    if (s) ctx.go(`#/p/${p.id}/nets` + query({ ...filterOf(s), terzaghi: s.weighting === "terzaghi" ? "true" : "", sets: s.sets === "0" ? "" : s.sets, projection: s.projection === "equal-area" ? "" : s.projection, show: s.show.join(",") || "none" }));
+    if (s) ctx.go(`#/p/${p.id}/nets` + query({ ...filterOf(s), terzaghi: s.weighting === "terzaghi" ? "true" : "", sets: s.sets === "0" ? "" : s.sets, projection: s.projection === "equal-area" ? "" : s.projection, show: s.show.join(",") || "none", rose: s.rose === "strike" ? "strike" : "" }));
   });
-  let lastSvg = null;
-  form.querySelector("#download-svg").addEventListener("click", () => {
-    if (!lastSvg) { msg.textContent = "Draw a net first."; return; }
-    const a = h("a", { href: URL.createObjectURL(new Blob([lastSvg], { type: "image/svg+xml" })), download: `${p.project.name.replace(/\W+/g, "-")}-net.svg` });
+  let lastSvg = null, lastRose = null;
+  const offer = (text, what) => {
+    if (!text) { msg.textContent = `Draw a ${what} first.`; return; }
+    const a = h("a", { href: URL.createObjectURL(new Blob([text], { type: "image/svg+xml" })), download: `${p.project.name.replace(/\W+/g, "-")}-${what}.svg` });
     document.body.append(a);
     a.click();
     a.remove();
     say("SVG downloaded.", "ok");
-  });
+  };
+  form.querySelector("#download-svg").addEventListener("click", () => offer(lastSvg, "net"));
+  form.querySelector("#download-rose").addEventListener("click", () => offer(lastRose, "rose"));
 
   const fq = filterOf(sel);
   const netQ = query({ ...fq, density: sel.show.includes("density") ? "true" : "", planes: sel.show.includes("planes") ? "true" : "", projection: sel.projection });
   const statQ = query({ ...fq, terzaghi: sel.weighting === "terzaghi" ? "true" : "", sets: sel.sets === "0" ? "" : sel.sets });
   const [netSvg, roseSvg, stats, rows] = await Promise.all([
     svgFrom(`/v1/projects/${p.id}/net${netQ}`, "/v1/projects/{project}/net").catch((e) => ({ error: e })),
-    svgFrom(`/v1/projects/${p.id}/rose${query(fq)}`, "/v1/projects/{project}/rose").catch((e) => ({ error: e })),
+    svgFrom(`/v1/projects/${p.id}/rose${query({ ...fq, of: sel.rose })}`, "/v1/projects/{project}/rose").catch((e) => ({ error: e })),
     offers("/v1/projects/{project}/statistics").then((ok) => ok === false
       ? { error: new ApiError(404, { title: "not offered" }) }
       : request("GET", `/v1/projects/${p.id}/statistics${statQ}`).then((r) => r.data)).catch((e) => ({ error: e })),
@@ -174,10 +179,10 @@ export async function netsView(ctx) {
   if (roseSvg && roseSvg.error) {
     put(roseHost, h("p", { class: "msg bad" }, problemText(roseSvg.error)));
   } else if (typeof roseSvg === "string") {
-    showSvg(roseHost, roseSvg, "Rose diagram of the selection, as served");
+    lastRose = roseSvg;
+    showSvg(roseHost, roseSvg, `Rose diagram of the ${sel.rose === "strike" ? "strikes" : "dip directions"} of the selection, as served`);
   } else {
-    const dd = rows.map((m) => m.derived && m.derived.dip_direction).filter((v) => Number.isFinite(v));
-    put(roseHost, rose(dd, { size: 320 }), h("p", { class: "help" }, `Dip directions of ${dd.length} planes in 10\u00b0 bins, petal area proportional to count; drawn by this page from the derived values.`));
+    put(roseHost, notAvailable("rose diagrams"));
   }
 
   if (stats && stats.error) {
