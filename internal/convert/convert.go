@@ -269,8 +269,9 @@ const batchRows = 512
 // batch is a run of rows; Record and Raw slices point into fields and raw.
 type batch struct {
 	rows     []csvio.StructureRow
-	fields   []string
-	spans    []int
+	fields   []string // fields of the rows with quotes, as read
+	spans    []int    // start of each row's fields in fields, -1 for a row to split
+	split    []string // fields of the rows without quotes, split by the worker
 	raw      []byte
 	rawSpans []int
 	err      error         // the read error that ended the input, if any
@@ -329,7 +330,7 @@ func (cv *converter) read(p *pipeline) {
 		b.done = make(chan struct{})
 		end := false
 		for len(b.rows) < batchRows {
-			row, err := cv.sr.NextRaw()
+			row, unsplit, err := cv.sr.NextUnsplit()
 			if err == io.EOF {
 				end = true
 				break
@@ -338,23 +339,16 @@ func (cv *converter) read(p *pipeline) {
 				b.err, end = err, true
 				break
 			}
-			b.spans = append(b.spans, len(b.fields))
-			b.fields = append(b.fields, row.Record...)
+			// A row without quotes is split by the worker (spans -1).
+			if unsplit {
+				b.spans = append(b.spans, -1)
+			} else {
+				b.spans = append(b.spans, len(b.fields))
+				b.fields = append(b.fields, row.Record...)
+			}
 			b.rawSpans = append(b.rawSpans, len(b.raw))
 			b.raw = append(b.raw, row.Raw...)
 			b.rows = append(b.rows, *row)
-		}
-		for i := range b.rows {
-			to := len(b.fields)
-			if i+1 < len(b.spans) {
-				to = b.spans[i+1]
-			}
-			b.rows[i].Record = b.fields[b.spans[i]:to:to]
-			to = len(b.raw)
-			if i+1 < len(b.rawSpans) {
-				to = b.rawSpans[i+1]
-			}
-			b.rows[i].Raw = b.raw[b.rawSpans[i]:to:to]
 		}
 		// Both channels have room for every batch in flight.
 		p.order <- b
@@ -370,6 +364,33 @@ func (cv *converter) convert(b *batch) {
 	cw := b.out
 	cw.Reset()
 	b.sum = Summary{}
+	b.split = b.split[:0]
+	var text string // the batch's raw rows as one string, for rows to split
+	for i := range b.rows {
+		to := len(b.raw)
+		if i+1 < len(b.rawSpans) {
+			to = b.rawSpans[i+1]
+		}
+		from := b.rawSpans[i]
+		b.rows[i].Raw = b.raw[from:to:to]
+		if sp := b.spans[i]; sp >= 0 {
+			to = len(b.fields)
+			for j := i + 1; j < len(b.spans); j++ {
+				if b.spans[j] >= 0 {
+					to = b.spans[j]
+					break
+				}
+			}
+			b.rows[i].Record = b.fields[sp:to:to]
+			continue
+		}
+		if text == "" {
+			text = string(b.raw)
+		}
+		at := len(b.split)
+		b.split = csvio.SplitFields(b.split, text[from:to])
+		b.rows[i].Record = b.split[at:len(b.split):len(b.split)]
+	}
 	sum := &b.sum
 	var last *Hole
 	var m Measurement

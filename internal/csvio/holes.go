@@ -3,6 +3,7 @@ package csvio
 import (
 	"io"
 	"math"
+	"math/bits"
 	"strconv"
 	"strings"
 	"time"
@@ -299,21 +300,39 @@ func AppendFloat(b []byte, v float64, prec int) []byte {
 	if prec < 0 || prec > 9 {
 		return strconv.AppendFloat(b, v, 'f', prec, 64)
 	}
-	s := math.Round(math.Abs(v) * pow10[prec])
-	if !(s < 1<<53) {
+	x := math.Abs(v) * pow10[prec]
+	if !(x < 1<<53) {
 		return strconv.AppendFloat(b, v, 'f', prec, 64)
 	}
-	n := uint64(s)
-	if n == 0 {
-		v = 0
+	// n = math.Round(x): below 2^53 the fraction x - trunc(x) is exact.
+	n := uint64(x)
+	if x-float64(n) >= 0.5 {
+		n++
 	}
-	if v < 0 {
-		b = append(b, '-')
+	neg := v < 0 && n != 0
+	// Length of the result: sign, integer digits (at least one), point and
+	// prec fraction digits. The digits are written straight into b from the
+	// right, two at a time.
+	l := uint64Len(n)
+	if l <= prec {
+		l = prec + 1 // a zero before the point
 	}
-	// Digits from the right, two at a time, into a small array: fraction,
-	// point, integer.
-	var d [24]byte
-	i := len(d)
+	if prec > 0 {
+		l++
+	}
+	if neg {
+		l++
+	}
+	at := len(b)
+	if cap(b)-at < l {
+		b = append(b, make([]byte, l)...)[:at]
+	}
+	b = b[:at+l]
+	d := b[at:]
+	if neg {
+		d[0] = '-'
+	}
+	i := l
 	k := prec
 	for ; k >= 2; k -= 2 {
 		q := n / 100
@@ -323,9 +342,10 @@ func AppendFloat(b []byte, v float64, prec int) []byte {
 		n = q
 	}
 	if k == 1 {
+		q := n / 10
 		i--
-		d[i] = byte('0' + n%10)
-		n /= 10
+		d[i] = byte('0' + n - q*10)
+		n = q
 	}
 	if prec > 0 {
 		i--
@@ -345,8 +365,19 @@ func AppendFloat(b []byte, v float64, prec int) []byte {
 		i--
 		d[i] = byte('0' + n)
 	}
-	return append(b, d[i:]...)
+	return b
 }
+
+// uint64Len returns the number of decimal digits of n (1 for 0).
+func uint64Len(n uint64) int {
+	t := bits.Len64(n) * 1233 >> 12 // log10(2) ~ 1233/4096: t or t+1 digits
+	if n >= pow10u[t] {
+		t++
+	}
+	return max(t, 1)
+}
+
+var pow10u = [...]uint64{1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19}
 
 const digits2 = "00010203040506070809101112131415161718192021222324252627282930313233343536373839" +
 	"40414243444546474849505152535455565758596061626364656667686970717273747576777879" +

@@ -20,7 +20,8 @@ type recordReader struct {
 	numLine int
 	recLine int    // line where the last record started
 	rawLine []byte // scratch for lines longer than the bufio buffer
-	raw     []byte // raw bytes of the last record, "\r\n" normalised to "\n", without its final newline
+	raw     []byte // raw bytes of the last record, "\r\n" normalised to "\n", without its final newline; may alias the bufio buffer
+	own     []byte // buffer for raw when a record is copied together from several lines
 	buf     []byte // field contents, unescaped
 	ends    []int  // end of each field in buf
 	fields  []string
@@ -65,6 +66,53 @@ func (r *recordReader) readLine() ([]byte, error) {
 // Read returns the next record. The slice is reused by the next call; the
 // strings are not. Raw returns the record's raw bytes until the next call.
 func (r *recordReader) Read() ([]string, error) {
+	line, errRead := r.firstLine()
+	if errRead == io.EOF {
+		return nil, errRead
+	}
+	if errRead == nil && bytes.IndexByte(line, '"') < 0 {
+		// No quotes: the fields are the line split at commas.
+		body := line[:len(line)-lengthNL(line)]
+		r.raw = body
+		r.fields = SplitFields(r.fields[:0], string(body))
+		return r.fields, nil
+	}
+	return r.parse(line, errRead)
+}
+
+// ReadUnsplit is Read, except that a record without quotes is not split:
+// it returns nil fields and unsplit = true, and the record's fields are then
+// its raw bytes split at every comma ([SplitFields]). The raw bytes stay
+// valid until the next call.
+func (r *recordReader) ReadUnsplit() (fields []string, unsplit bool, err error) {
+	line, errRead := r.firstLine()
+	if errRead == io.EOF {
+		return nil, false, errRead
+	}
+	if errRead == nil && bytes.IndexByte(line, '"') < 0 {
+		r.raw = line[:len(line)-lengthNL(line)]
+		return nil, true, nil
+	}
+	fields, err = r.parse(line, errRead)
+	return fields, false, err
+}
+
+// SplitFields appends to dst the fields of a record without quotes: s split
+// at every comma.
+func SplitFields(dst []string, s string) []string {
+	for {
+		i := strings.IndexByte(s, ',')
+		if i < 0 {
+			return append(dst, s)
+		}
+		dst = append(dst, s[:i])
+		s = s[i+1:]
+	}
+}
+
+// firstLine reads the first non-empty line of the next record and notes
+// where the record starts.
+func (r *recordReader) firstLine() ([]byte, error) {
 	var line []byte
 	var errRead error
 	for errRead == nil {
@@ -75,27 +123,16 @@ func (r *recordReader) Read() ([]string, error) {
 		}
 		break
 	}
-	if errRead == io.EOF {
-		return nil, errRead
+	if errRead != io.EOF {
+		r.recLine = r.numLine
 	}
-	r.recLine = r.numLine
-	if errRead == nil && bytes.IndexByte(line, '"') < 0 {
-		// No quotes: the fields are the line split at commas.
-		body := line[:len(line)-lengthNL(line)]
-		r.raw = append(r.raw[:0], body...)
-		s := string(body)
-		r.fields = r.fields[:0]
-		for {
-			i := strings.IndexByte(s, ',')
-			if i < 0 {
-				r.fields = append(r.fields, s)
-				return r.fields, nil
-			}
-			r.fields = append(r.fields, s[:i])
-			s = s[i+1:]
-		}
-	}
-	r.raw = append(r.raw[:0], line...)
+	return line, errRead
+}
+
+// parse reads a record that contains quotes (or ended in a read error)
+// starting from its first line.
+func (r *recordReader) parse(line []byte, errRead error) ([]string, error) {
+	r.raw = append(r.own[:0], line...)
 	r.buf = r.buf[:0]
 	r.ends = r.ends[:0]
 	var err error
@@ -178,6 +215,7 @@ parseField:
 	if err == nil {
 		err = errRead
 	}
+	r.own = r.raw
 	if n := len(r.raw); n > 0 && r.raw[n-1] == '\n' {
 		r.raw = r.raw[:n-1]
 	}

@@ -109,6 +109,23 @@ func (s *StructureReader) NextRaw() (*StructureRow, error) {
 	return r, nil
 }
 
+// NextUnsplit is NextRaw, except that a row without quotes is not split
+// into fields: its Record is nil and unsplit is true, and its fields are its
+// Raw split at every comma ([SplitFields]). A reader that hands rows to other
+// goroutines can then split them there, from one string per batch of rows.
+func (s *StructureReader) NextUnsplit() (r *StructureRow, unsplit bool, err error) {
+	rec, unsplit, err := s.cr.ReadUnsplit()
+	if err == io.EOF {
+		return nil, false, io.EOF
+	}
+	if err != nil {
+		return nil, false, parseErr(s.file, err)
+	}
+	r = &s.row
+	*r = StructureRow{Line: s.cr.recLine, Record: rec, Raw: s.cr.raw}
+	return r, unsplit, nil
+}
+
 // Parse fills in the values and the problem of a row read by NextRaw from
 // its Line and Record. It is safe to call concurrently on different rows.
 func (s *StructureReader) Parse(r *StructureRow) {

@@ -313,3 +313,74 @@ func TestParseSimpleMatchesStrconv(t *testing.T) {
 		check(b.String())
 	}
 }
+
+// AppendFloat writes, digit for digit, the decimal integer round(|v| 10^prec)
+// as strconv.FormatUint formats it, with the point put in and the sign when
+// nonzero, after whatever b already holds; and it matches strconv's fixed
+// format away from exact ties (checked above).
+func TestAppendFloatDigitsMatchStrconv(t *testing.T) {
+	r := rand.New(rand.NewPCG(7, 11))
+	prefix := []byte("ab,")
+	for i := 0; i < 300000; i++ {
+		var v float64
+		switch i % 4 {
+		case 0: // angles
+			v = r.Float64() * 360
+		case 1: // signed angles
+			v = (r.Float64() - 0.5) * 180
+		case 2: // coordinates
+			v = r.Float64() * 1e7
+		default: // any magnitude, any sign
+			v = (r.Float64() - 0.5) * math.Pow(10, float64(r.IntN(16)-4))
+		}
+		prec := r.IntN(10)
+		s := math.Round(math.Abs(v) * math.Pow10(prec))
+		if !(s < 1<<53) {
+			continue
+		}
+		digits := strconv.FormatUint(uint64(s), 10)
+		for len(digits) <= prec {
+			digits = "0" + digits
+		}
+		want := digits
+		if prec > 0 {
+			want = digits[:len(digits)-prec] + "." + digits[len(digits)-prec:]
+		}
+		if v < 0 && s != 0 {
+			want = "-" + want
+		}
+		// A prefix in a slice with no spare capacity, and one with plenty.
+		b := append(make([]byte, 0, len(prefix)), prefix...)
+		if got := string(AppendFloat(b, v, prec)); got != string(prefix)+want {
+			t.Fatalf("AppendFloat(%q, %v, %d) = %q, want %q", prefix, v, prec, got, string(prefix)+want)
+		}
+		b = append(make([]byte, 0, 64), prefix...)
+		if got := string(AppendFloat(b, v, prec)); got != string(prefix)+want {
+			t.Fatalf("AppendFloat(%q, %v, %d) with room = %q, want %q", prefix, v, prec, got, string(prefix)+want)
+		}
+	}
+}
+
+// uint64Len counts digits as strconv.FormatUint writes them, at every power
+// of ten and its neighbours.
+func TestUint64Len(t *testing.T) {
+	check := func(n uint64) {
+		if got, want := uint64Len(n), len(strconv.FormatUint(n, 10)); got != want {
+			t.Fatalf("uint64Len(%d) = %d, want %d", n, got, want)
+		}
+	}
+	check(0)
+	check(math.MaxUint64)
+	for p := uint64(1); p <= 1e19; p *= 10 {
+		check(p - 1)
+		check(p)
+		check(p + 1)
+		if p == 1e19 {
+			break
+		}
+	}
+	r := rand.New(rand.NewPCG(5, 5))
+	for i := 0; i < 100000; i++ {
+		check(r.Uint64() >> r.IntN(64))
+	}
+}
