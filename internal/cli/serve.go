@@ -149,15 +149,33 @@ func serve(ctx context.Context, env *Env, cfg config.Config, log *slog.Logger) e
 	})
 }
 
-// loadDemo loads the demonstration programme unless it is there, and makes
-// a new admin token for it. It returns the line to print.
+// DemoTokenName is the name of the admin token serve --demo prints.
+const DemoTokenName = "demo-serve"
+
+// loadDemo loads the demonstration programme unless it is there, revokes the
+// demo token printed by an earlier start (and those of older versions, named
+// "serve --demo <time>"), and makes a new admin token for it. It returns the
+// line to print.
 func loadDemo(ctx context.Context, svc *service.Service, log *slog.Logger) (string, error) {
 	sys := service.WithActor(ctx, service.System)
 	p, loaded, err := svc.LoadDemo(sys)
 	if err != nil {
 		return "", fmt.Errorf("loading the demo programme: %w", err)
 	}
-	secret, _, err := svc.CreateToken(sys, p.ID, domain.RoleAdmin, "serve --demo "+time.Now().UTC().Format(time.RFC3339))
+	ts, err := svc.ListTokens(sys, p.ID)
+	if err != nil {
+		return "", fmt.Errorf("listing the demo tokens: %w", err)
+	}
+	for _, t := range ts {
+		if t.Name != DemoTokenName && !strings.HasPrefix(t.Name, "serve --demo ") {
+			continue
+		}
+		if _, err := svc.RevokeToken(sys, p.ID, t.ID); err != nil && !domain.IsKind(err, domain.NotFound) {
+			return "", fmt.Errorf("revoking the earlier demo token %d: %w", t.ID, err)
+		}
+		log.Info("revoked an earlier demo token", "token", t.ID, "name", t.Name)
+	}
+	secret, _, err := svc.CreateToken(sys, p.ID, domain.RoleAdmin, DemoTokenName)
 	if err != nil {
 		return "", fmt.Errorf("making the demo token: %w", err)
 	}

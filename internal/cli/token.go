@@ -6,6 +6,8 @@ import (
 	"fmt"
 	"strconv"
 	"strings"
+	"text/tabwriter"
+	"time"
 
 	"corvane/internal/domain"
 	"corvane/internal/service"
@@ -13,73 +15,158 @@ import (
 )
 
 func init() {
-	register(command{name: "token", summary: "create an API token for a project (printed once)", run: runToken})
+	register(command{name: "token", summary: "create, list or revoke API tokens of a project", run: runToken})
 }
 
+const tokenUsage = `Usage:
+  corvane token create --project ID|NAME|all --role read|log|admin [--name NAME] [--db URL]
+  corvane token list   --project ID|NAME|all [--db URL]
+  corvane token revoke --id ID [--project ID|NAME|all] [--db URL]
+  corvane token revoke --name NAME --project ID|NAME|all [--db URL]
+
+create prints the new token's secret once on standard output; only its SHA-256 is stored.
+--project all means the site tokens, valid in every project (a site admin may create projects).
+list prints the project's tokens (id, role, created, name), never their secrets.
+revoke deletes a token by id, or every token of the project with exactly that name;
+a revoked token is refused (401) from the next request on.
+
+Options:
+`
+
 func runToken(ctx context.Context, env *Env, args []string) int {
-	fs := flag.NewFlagSet("token", flag.ContinueOnError)
-	fs.SetOutput(env.Stderr)
-	fs.Usage = func() {
-		fmt.Fprintln(env.Stderr, "Usage: corvane token create --project ID|NAME|all --role read|log|admin [--name NAME] [--db URL]")
-		fmt.Fprintln(env.Stderr, "Prints the new token's secret once on standard output; only its SHA-256 is stored.")
-		fmt.Fprintln(env.Stderr, "--project all makes a site token, valid in every project (a site admin may create projects).")
-		fs.PrintDefaults()
-	}
-	if len(args) == 0 || args[0] != "create" {
-		fs.Usage()
+	usage := func() int {
+		fmt.Fprint(env.Stderr, tokenUsage)
+		fmt.Fprintln(env.Stderr, "  --db, --project, --role, --name, --id (see above)")
 		return ExitUsage
 	}
+	if len(args) == 0 {
+		return usage()
+	}
+	action := args[0]
+	if action != "create" && action != "list" && action != "revoke" {
+		fmt.Fprintf(env.Stderr, "corvane token: unknown action %q (want create, list or revoke)\n", action)
+		return usage()
+	}
+	fs := flag.NewFlagSet("token "+action, flag.ContinueOnError)
+	fs.SetOutput(env.Stderr)
+	fs.Usage = func() {
+		fmt.Fprint(env.Stderr, tokenUsage)
+		fs.PrintDefaults()
+	}
 	db := dbFlag(fs, env)
-	project := fs.String("project", "", "project id or name, or all for a site token")
-	role := fs.String("role", "", "read, log or admin")
-	name := fs.String("name", "", "who or what the token is for, e.g. \"rig 2 logger\" (shown in the audit trail)")
+	project := fs.String("project", "", "project id or name, or all for the site tokens")
+	role := fs.String("role", "", "read, log or admin (create)")
+	name := fs.String("name", "", "who or what the token is for, e.g. \"rig 2 logger\" (create; revoke by name)")
+	id := fs.Int64("id", 0, "token id, as token list shows it (revoke)")
 	if err := fs.Parse(args[1:]); err != nil {
 		return ExitUsage
 	}
-	if *project == "" || *role == "" || fs.NArg() > 0 {
-		fs.Usage()
-		return ExitUsage
+	fail := func(code int, format string, a ...any) int {
+		fmt.Fprintf(env.Stderr, "corvane token %s: %s\n", action, fmt.Sprintf(format, a...))
+		return code
 	}
-	r := domain.Role(strings.ToLower(*role))
-	if r.Rank() == 0 {
-		fmt.Fprintf(env.Stderr, "corvane token: --role must be read, log or admin, got %q\n", *role)
-		return ExitUsage
+	if fs.NArg() > 0 {
+		return fail(ExitUsage, "unexpected argument %q", fs.Arg(0))
+	}
+	var r domain.Role
+	switch action {
+	case "create":
+		if *project == "" || *role == "" {
+			fs.Usage()
+			return ExitUsage
+		}
+		r = domain.Role(strings.ToLower(*role))
+		if r.Rank() == 0 {
+			return fail(ExitUsage, "--role must be read, log or admin, got %q", *role)
+		}
+	case "list":
+		if *project == "" {
+			return fail(ExitUsage, "--project ID|NAME|all is required")
+		}
+	case "revoke":
+		switch {
+		case (*id != 0) == (*name != ""):
+			return fail(ExitUsage, "give either --id or --name")
+		case *id < 0:
+			return fail(ExitUsage, "--id %d: token ids are positive", *id)
+		case *name != "" && *project == "":
+			return fail(ExitUsage, "--name needs --project ID|NAME|all")
+		}
 	}
 	if v, _, err := store.Version(*db); err != nil || v == 0 {
-		fmt.Fprintf(env.Stderr, "corvane token: the database %s has no schema yet: run corvane migrate up first\n", store.Redact(*db))
-		return ExitRows
+		return fail(ExitRows, "the database %s has no schema yet: run corvane migrate up first", store.Redact(*db))
 	}
 	st, err := store.Open(ctx, *db)
 	if err != nil {
-		fmt.Fprintf(env.Stderr, "corvane token: %v\n", err)
-		return ExitRows
+		return fail(ExitRows, "%v", err)
 	}
 	defer st.Close()
 	ctx = service.WithActor(ctx, service.Actor{Name: "command line", ProjectID: domain.AllProjects, Role: domain.RoleAdmin})
 	svc := service.New(st, nil)
 	pid := domain.AllProjects
-	if *project != "all" {
-		if id, err := strconv.ParseInt(*project, 10, 64); err == nil && id > 0 {
-			pid = id
+	if *project != "" && *project != "all" {
+		if n, err := strconv.ParseInt(*project, 10, 64); err == nil && n > 0 {
+			pid = n
 		} else {
 			p, err := st.GetProjectByName(ctx, *project)
 			if err != nil {
-				fmt.Fprintf(env.Stderr, "corvane token: no project with id or name %q\n", *project)
-				return ExitRows
+				return fail(ExitRows, "no project with id or name %q", *project)
 			}
 			pid = p.ID
 		}
 	}
+	switch action {
+	case "list":
+		ts, err := svc.ListTokens(ctx, pid)
+		if err != nil {
+			return fail(ExitRows, "%s", domain.Public(err))
+		}
+		tw := tabwriter.NewWriter(env.Stdout, 0, 4, 2, ' ', 0)
+		fmt.Fprintln(tw, "ID\tROLE\tCREATED\tNAME")
+		for _, t := range ts {
+			fmt.Fprintf(tw, "%d\t%s\t%s\t%s\n", t.ID, t.Role, t.CreatedAt.UTC().Format(time.RFC3339), t.Name)
+		}
+		if err := tw.Flush(); err != nil {
+			return fail(ExitRows, "%v", err)
+		}
+		return ExitOK
+	case "revoke":
+		var gone []domain.Token
+		if *id != 0 {
+			if *project == "" {
+				t, err := st.GetToken(ctx, *id)
+				if err != nil {
+					return fail(ExitRows, "no token with id %d", *id)
+				}
+				pid = t.ProjectID
+			}
+			t, err := svc.RevokeToken(ctx, pid, *id)
+			if err != nil {
+				return fail(ExitRows, "%s", domain.Public(err))
+			}
+			gone = append(gone, t)
+		} else {
+			if gone, err = svc.RevokeTokensNamed(ctx, pid, *name); err != nil {
+				return fail(ExitRows, "%s", domain.Public(err))
+			}
+		}
+		for _, t := range gone {
+			fmt.Fprintf(env.Stdout, "revoked token %d %q (role %s, %s)\n", t.ID, t.Name, t.Role, scopeOf(t.ProjectID))
+		}
+		return ExitOK
+	}
 	secret, t, err := svc.CreateToken(ctx, pid, r, *name)
 	if err != nil {
-		fmt.Fprintf(env.Stderr, "corvane token: %s\n", domain.Public(err))
-		return ExitRows
+		return fail(ExitRows, "%s", domain.Public(err))
 	}
-	scope := "every project (site token)"
-	if pid != domain.AllProjects {
-		scope = "project " + strconv.FormatInt(pid, 10)
-	}
-	fmt.Fprintf(env.Stderr, "token %d %q, role %s, for %s. Keep the secret below: it is not shown again.\n", t.ID, t.Name, t.Role, scope)
+	fmt.Fprintf(env.Stderr, "token %d %q, role %s, for %s. Keep the secret below: it is not shown again.\n", t.ID, t.Name, t.Role, scopeOf(pid))
 	fmt.Fprintln(env.Stdout, secret)
 	return ExitOK
+}
+
+func scopeOf(pid int64) string {
+	if pid == domain.AllProjects {
+		return "every project (site token)"
+	}
+	return "project " + strconv.FormatInt(pid, 10)
 }

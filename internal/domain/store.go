@@ -126,7 +126,10 @@ type Store interface {
 	CreateToken(ctx context.Context, t *Token) error
 	// TokenByHash returns the token with the given hex SHA-256; NotFound if none.
 	TokenByHash(ctx context.Context, hash string) (Token, error)
+	// GetToken returns the token with the given id; NotFound if none.
+	GetToken(ctx context.Context, id int64) (Token, error)
 	ListTokens(ctx context.Context, projectID int64) ([]Token, error)
+	// DeleteToken revokes a token; NotFound if there is none with that id.
 	DeleteToken(ctx context.Context, id int64) error
 
 	// GetIdempotency returns the remembered result for (projectID, key);

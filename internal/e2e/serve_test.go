@@ -60,7 +60,8 @@ func count(t *testing.T, s *server, path string) int {
 
 // TestServeDemo starts `corvane serve --demo` on a fresh store: the printed
 // token works, the demo programme is there with derived values, a second
-// start finds it and loads nothing twice, and SIGTERM stops the server cleanly.
+// start finds it, loads nothing twice and revokes the first demo token, and
+// SIGTERM stops the server cleanly.
 func TestServeDemo(t *testing.T) {
 	stores(t, func(t *testing.T, db string) {
 		s := start(t, db, "--demo")
@@ -105,9 +106,11 @@ func TestServeDemo(t *testing.T) {
 		if n := count(t, s2, base+"/measurements"); n != ms {
 			t.Errorf("after a second --demo start: %d measurements, want %d", n, ms)
 		}
-		// The first token still works: tokens live in the store.
-		s2.Token = s.Token
+		// The second start revoked the demo token the first one printed:
+		// only the latest demo token is valid.
 		s2.mustJSON(t, 200, "GET", base, nil, nil)
+		s2.Token = s.Token
+		s2.mustJSON(t, 401, "GET", base, nil, nil)
 		s2.stop(t)
 	})
 }

@@ -6,6 +6,7 @@ import (
 	"crypto/sha256"
 	"encoding/base64"
 	"encoding/hex"
+	"strconv"
 	"strings"
 
 	"corvane/internal/domain"
@@ -88,4 +89,85 @@ func (s *Service) ListTokens(ctx context.Context, projectID int64) ([]domain.Tok
 		return nil, err
 	}
 	return s.store.ListTokens(ctx, projectID)
+}
+
+// GetToken returns a token of the project (admin), without its secret; a
+// token of another project is reported as not found. projectID
+// domain.AllProjects names the site tokens.
+func (s *Service) GetToken(ctx context.Context, projectID, tokenID int64) (domain.Token, error) {
+	if _, err := allow(ctx, projectID, domain.RoleAdmin); err != nil {
+		return domain.Token{}, err
+	}
+	return tokenOf(ctx, s.store, projectID, tokenID)
+}
+
+func tokenOf(ctx context.Context, st domain.Store, projectID, tokenID int64) (domain.Token, error) {
+	t, err := st.GetToken(ctx, tokenID)
+	if err == nil && t.ProjectID != projectID {
+		err = domain.Errorf(domain.NotFound, "token %d not found in %s", tokenID, scopeName(projectID))
+	}
+	return t, err
+}
+
+func scopeName(projectID int64) string {
+	if projectID == domain.AllProjects {
+		return "the site tokens"
+	}
+	return "project " + strconv.FormatInt(projectID, 10)
+}
+
+// RevokeToken deletes a token of the project (admin), so its secret is
+// refused from then on; NotFound when the project has no token with that id.
+// projectID domain.AllProjects names the site tokens (site admin).
+func (s *Service) RevokeToken(ctx context.Context, projectID, tokenID int64) (domain.Token, error) {
+	var t domain.Token
+	err := s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
+		a, err := allow(ctx, projectID, domain.RoleAdmin)
+		if err != nil {
+			return err
+		}
+		if t, err = tokenOf(ctx, st, projectID, tokenID); err != nil {
+			return err
+		}
+		if err := st.DeleteToken(ctx, tokenID); err != nil {
+			return err
+		}
+		return audit(ctx, st, a, projectID, "token", tokenID, domain.ActionDelete, t, nil)
+	})
+	return t, err
+}
+
+// RevokeTokensNamed deletes every token of the project with exactly the
+// given name (admin) in one transaction and returns them; NotFound when there
+// is none.
+func (s *Service) RevokeTokensNamed(ctx context.Context, projectID int64, name string) ([]domain.Token, error) {
+	var gone []domain.Token
+	err := s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
+		gone = nil
+		a, err := allow(ctx, projectID, domain.RoleAdmin)
+		if err != nil {
+			return err
+		}
+		ts, err := st.ListTokens(ctx, projectID)
+		if err != nil {
+			return err
+		}
+		for _, t := range ts {
+			if t.Name != name {
+				continue
+			}
+			if err := st.DeleteToken(ctx, t.ID); err != nil {
+				return err
+			}
+			if err := audit(ctx, st, a, projectID, "token", t.ID, domain.ActionDelete, t, nil); err != nil {
+				return err
+			}
+			gone = append(gone, t)
+		}
+		if len(gone) == 0 {
+			return domain.Errorf(domain.NotFound, "no token named %q in %s", name, scopeName(projectID))
+		}
+		return nil
+	})
+	return gone, err
 }

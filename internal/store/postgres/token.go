@@ -12,6 +12,7 @@ const (
 	insertToken    = `INSERT INTO api_tokens (project_id, name, role, hash, created_at) VALUES ($1, $2, $3, $4, $5) RETURNING id`
 	tokenCols      = `id, project_id, name, role, hash, created_at`
 	tokenByHash    = `SELECT ` + tokenCols + ` FROM api_tokens WHERE hash = $1`
+	tokenByID      = `SELECT ` + tokenCols + ` FROM api_tokens WHERE id = $1`
 	listTokens     = `SELECT ` + tokenCols + ` FROM api_tokens WHERE project_id = $1 ORDER BY id`
 	listSiteTokens = `SELECT ` + tokenCols + ` FROM api_tokens WHERE project_id IS NULL ORDER BY id`
 	deleteToken    = `DELETE FROM api_tokens WHERE id = $1`
@@ -50,6 +51,15 @@ func (s *Store) TokenByHash(ctx context.Context, hash string) (domain.Token, err
 	t, err := scanToken(s.read().QueryRow(ctx, tokenByHash, hash))
 	if err == pgx.ErrNoRows {
 		return t, domain.Errorf(domain.NotFound, "token not found")
+	}
+	return t, translate(err)
+}
+
+// GetToken returns the token with the given id.
+func (s *Store) GetToken(ctx context.Context, id int64) (domain.Token, error) {
+	t, err := scanToken(s.read().QueryRow(ctx, tokenByID, id))
+	if err == pgx.ErrNoRows {
+		return t, notFound("token", id)
 	}
 	return t, translate(err)
 }

@@ -11,6 +11,7 @@ const (
 	insertToken    = `INSERT INTO api_tokens (project_id, name, role, hash, created_at) VALUES (?, ?, ?, ?, ?) RETURNING id`
 	tokenCols      = `id, project_id, name, role, hash, created_at`
 	tokenByHash    = `SELECT ` + tokenCols + ` FROM api_tokens WHERE hash = ?`
+	tokenByID      = `SELECT ` + tokenCols + ` FROM api_tokens WHERE id = ?`
 	listTokens     = `SELECT ` + tokenCols + ` FROM api_tokens WHERE project_id = ? ORDER BY id`
 	listSiteTokens = `SELECT ` + tokenCols + ` FROM api_tokens WHERE project_id IS NULL ORDER BY id`
 	deleteToken    = `DELETE FROM api_tokens WHERE id = ?`
@@ -49,6 +50,15 @@ func (s *Store) TokenByHash(ctx context.Context, hash string) (domain.Token, err
 	t, err := scanToken(s.read().QueryRowContext(ctx, tokenByHash, hash))
 	if err == sql.ErrNoRows {
 		return t, domain.Errorf(domain.NotFound, "token not found")
+	}
+	return t, translate(err)
+}
+
+// GetToken returns the token with the given id.
+func (s *Store) GetToken(ctx context.Context, id int64) (domain.Token, error) {
+	t, err := scanToken(s.read().QueryRowContext(ctx, tokenByID, id))
+	if err == sql.ErrNoRows {
+		return t, notFound("token", id)
 	}
 	return t, translate(err)
 }

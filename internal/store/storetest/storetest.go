@@ -520,9 +520,34 @@ func testTokens(t *testing.T, s domain.Store) {
 	list, err = s.ListTokens(c, domain.AllProjects)
 	must(t, err)
 	diff(t, "site tokens", []domain.Token{site}, list)
+	got, err = s.GetToken(c, site.ID)
+	must(t, err)
+	diff(t, "site token by id", site, got)
+	got, err = s.GetToken(c, tk.ID)
+	must(t, err)
+	diff(t, "project token by id", tk, got)
 	must(t, s.DeleteToken(c, tk.ID))
 	_, err = s.TokenByHash(c, "aa11")
 	wantKind(t, err, domain.NotFound, "revoked token")
+	_, err = s.GetToken(c, tk.ID)
+	wantKind(t, err, domain.NotFound, "revoked token by id")
+	wantKind(t, s.DeleteToken(c, tk.ID), domain.NotFound, "revoking a revoked token")
+	list, err = s.ListTokens(c, p.ID)
+	must(t, err)
+	if len(list) != 0 {
+		t.Errorf("revoked token still listed: %+v", list)
+	}
+	// Revoking in a transaction that fails keeps the token.
+	boom := errors.New("boom")
+	err = s.InTx(c, func(ctx context.Context, tx domain.Store) error {
+		must(t, tx.DeleteToken(ctx, site.ID))
+		return boom
+	})
+	if !errors.Is(err, boom) {
+		t.Errorf("InTx returned %v, want the callback's error", err)
+	}
+	_, err = s.TokenByHash(c, "bb22")
+	must(t, err)
 }
 
 func testIdempotency(t *testing.T, s domain.Store) {
