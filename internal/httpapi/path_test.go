@@ -122,3 +122,38 @@ func TestHolePathFollowsSurvey(t *testing.T) {
 		t.Errorf("mid-interval dip %v, want -55 (same azimuth: the arc halves the dip change)", mid.Dip)
 	}
 }
+
+// TestHolePathCorrections: the path uses the corrections of the derived
+// values. A magnetic survey of azimuth 80 with declination +10 is true 090
+// (true = magnetic + declination, common practice), and every point agrees
+// with the derived position and hole direction of a measurement logged at
+// its depth.
+func TestHolePathCorrections(t *testing.T) {
+	f := newFixture(t)
+	pid := f.project("Path", map[string]any{"output_azimuth_ref": "true", "declination": 10, "convergence": 1.5})
+	var h domain.Hole
+	f.must(201, f.site, "POST", "/v1/projects/"+itoa(pid)+"/holes", map[string]any{
+		"name": "P3", "easting": 500, "northing": 700, "elevation": 100, "azimuth": 80, "azimuth_ref": "magnetic", "dip": -70, "final_depth": 120,
+	}, &h)
+	hb := "/v1/projects/" + itoa(pid) + "/holes/" + itoa(h.ID)
+	f.must(200, f.site, "PUT", hb+"/survey", map[string]any{"azimuth_ref": "magnetic", "declination": 10,
+		"stations": []map[string]float64{{"depth": 0, "azimuth": 80, "dip": -70}, {"depth": 60, "azimuth": 95, "dip": -65}, {"depth": 110, "azimuth": 105, "dip": -62}}},
+		nil, "If-None-Match", "*")
+	var b pathBody
+	f.must(200, f.site, "GET", hb+"/path?step=7.5", nil, &b)
+	if first := b.Items[0]; !pnear(first.Azimuth, 90) || !pnear(first.Dip, -70) {
+		t.Errorf("collar direction %v/%v, want 90/-70 true", first.Azimuth, first.Dip)
+	}
+	for _, p := range b.Items {
+		if p.Depth == 0 {
+			continue
+		}
+		var m view
+		f.must(201, f.site, "POST", "/v1/projects/"+itoa(pid)+"/measurements", map[string]any{"hole_id": h.ID, "depth": p.Depth, "alpha": 45, "beta": 0, "type": "JN"}, &m)
+		d := m.Derived
+		if d.East == nil || !pnear(*d.East, p.East) || !pnear(*d.North, p.North) || !pnear(*d.Elevation, p.Elevation) ||
+			!pnear(*d.HoleAzimuth, p.Azimuth) || !pnear(*d.HoleDip, p.Dip) {
+			t.Errorf("depth %v: path %+v, derived values of a measurement there %v %v %v %v/%v", p.Depth, p, *d.East, *d.North, *d.Elevation, *d.HoleAzimuth, *d.HoleDip)
+		}
+	}
+}

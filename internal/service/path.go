@@ -13,6 +13,9 @@ const (
 	MinPathStep     = 0.5
 	MaxPathStep     = 100
 	DefaultPathStep = 5
+	// MaxPathPoints bounds the regular points of one path; a longer hole
+	// needs a larger step.
+	MaxPathPoints = 100000
 )
 
 // PathPoint is one point of a desurveyed hole path. Azimuths are relative to
@@ -29,8 +32,10 @@ type PathPoint struct {
 	// Extrapolated is true below the last survey station.
 	Extrapolated bool `json:"extrapolated"`
 	// DoglegSeverity is the dogleg severity (degrees per 30 m, or per 100 ft
-	// in a project in feet) of the survey interval the point lies in; null
-	// below the last station, where the path runs straight on.
+	// in a project in feet) of the survey interval the point lies in (a point
+	// at a station belongs to the interval below it; the last station closes
+	// the last interval); null below the last station, where the path runs
+	// straight on.
 	DoglegSeverity *float64 `json:"dogleg_severity"`
 }
 
@@ -62,6 +67,9 @@ func (s *Service) HolePath(ctx context.Context, projectID, holeID int64, step fl
 		return nil, domain.Errorf(domain.Invalid, "%v", m.err)
 	}
 	final := m.path.Depth()
+	if final/step > MaxPathPoints {
+		return nil, domain.FieldErr("step", "step %v gives more than %d points over the %v of hole %s; use a larger step", step, MaxPathPoints, final, m.name)
+	}
 	ivs := m.path.Intervals()
 	depths := make([]float64, 0, int(final/step)+len(ivs)+2)
 	for i := 0; ; i++ {
