@@ -86,6 +86,7 @@ func (s *Service) HolePath(ctx context.Context, projectID, holeID int64, step fl
 	sort.Float64s(depths)
 	out := make([]PathPoint, 0, len(depths))
 	last := math.Inf(-1)
+	iv := 0
 	for _, d := range depths {
 		if d == last || d > final {
 			continue
@@ -97,14 +98,15 @@ func (s *Service) HolePath(ctx context.Context, projectID, holeID int64, step fl
 		}
 		az, dip := pt.Dir.AzimuthDip()
 		pp := PathPoint{Depth: d, East: pt.Pos.X, North: pt.Pos.Y, Elevation: pt.Pos.Z, Azimuth: az, Dip: dip, Extrapolated: pt.Extrapolated}
-		// The interval a point lies in: the first with From <= d < To; a
-		// point at the last station closes the last interval.
-		for j, iv := range ivs {
-			if d >= iv.From && (d < iv.To || (j == len(ivs)-1 && d == iv.To)) {
-				sev := iv.Severity
-				pp.DoglegSeverity = &sev
-				break
-			}
+		// The interval a point lies in: the one with From <= d < To; a point
+		// at the last station closes the last interval. Depths ascend, so
+		// the interval index only moves forward.
+		for iv < len(ivs) && d >= ivs[iv].To && !(iv == len(ivs)-1 && d == ivs[iv].To) {
+			iv++
+		}
+		if iv < len(ivs) && d >= ivs[iv].From {
+			sev := ivs[iv].Severity
+			pp.DoglegSeverity = &sev
 		}
 		if math.IsNaN(pp.Azimuth) {
 			pp.Azimuth = 0 // vertical hole: azimuth undefined, report 0
