@@ -187,7 +187,7 @@ func (s *Server) listHoles(c *gin.Context) {
 		fail(c, err)
 		return
 	}
-	l, err := s.opt.Service.ListHoles(c.Request.Context(), pid, pg)
+	l, err := s.opt.Service.ListHoleViews(c.Request.Context(), pid, pg)
 	if err != nil {
 		fail(c, err)
 		return
@@ -232,7 +232,7 @@ func (s *Server) getHole(c *gin.Context) {
 		fail(c, err)
 		return
 	}
-	h, err := s.opt.Service.GetHole(c.Request.Context(), pid, hid)
+	h, err := s.opt.Service.GetHoleView(c.Request.Context(), pid, hid)
 	if err != nil {
 		fail(c, err)
 		return

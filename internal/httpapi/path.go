@@ -27,10 +27,10 @@ func (s *Server) holePath(c *gin.Context) {
 		}
 		step = x
 	}
-	pts, err := s.opt.Service.HolePath(c.Request.Context(), pid, hid, step)
+	pts, corr, err := s.opt.Service.HolePathCorrections(c.Request.Context(), pid, hid, step)
 	if err != nil {
 		fail(c, err)
 		return
 	}
-	c.JSON(http.StatusOK, gin.H{"items": pts})
+	c.JSON(http.StatusOK, gin.H{"items": pts, "corrections": corr})
 }

@@ -136,6 +136,9 @@ type holeModel struct {
 	err              error // why the path could not be built
 	runs             []domain.Run
 	depth            float64
+	// the collar and survey set the model was built from
+	hole   domain.Hole
+	survey *domain.SurveySet
 }
 
 // newHoleModel builds the path of h from its survey set ss (nil when the
@@ -145,32 +148,15 @@ type holeModel struct {
 // at the collar from its crs label when the collar can be placed (package
 // northref), else the project's default applies.
 func newHoleModel(c Conventions, h domain.Hole, ss *domain.SurveySet, runs []domain.Run) *holeModel {
-	m := &holeModel{name: h.Name, conv: c, core: c.core(), runs: runs, depth: h.FinalDepth}
-	m.gc, m.convSrc = c.Convergence, "project"
-	if h.CRS != "" {
-		if cv, ok := convergenceAt(h); ok {
-			m.gc, m.convSrc = cv, "computed"
-		}
-	}
-	m.decl, m.declSrc = c.Declination, "project"
-	href := h.AzimuthRef
-	if href == "" {
-		href = c.OutputAzimuthRef
-	}
-	magnetic := href == domain.AzimuthMagnetic
+	m := &holeModel{name: h.Name, conv: c, core: c.core(), runs: runs, depth: h.FinalDepth, hole: h, survey: ss}
+	var href string
+	m.gc, m.convSrc, m.decl, m.declSrc, href = holeCorrections(c, h, ss)
 	var stations []desurvey.Station
 	if ss != nil {
-		if ss.Declination != nil {
-			m.decl, m.declSrc = *ss.Declination, "survey"
-		}
-		magnetic = magnetic || ss.AzimuthRef == domain.AzimuthMagnetic
 		stations = make([]desurvey.Station, len(ss.Stations))
 		for i, st := range ss.Stations {
 			stations[i] = desurvey.Station{Depth: st.Depth, Azimuth: toOutput(st.Azimuth, ss.AzimuthRef, c.OutputAzimuthRef, m.decl, m.gc), Dip: st.Dip}
 		}
-	}
-	if !magnetic {
-		m.declSrc = ""
 	}
 	col := desurvey.Collar{East: h.East, North: h.North, Elevation: h.Elevation,
 		Azimuth: toOutput(h.Azimuth, href, c.OutputAzimuthRef, m.decl, m.gc), Dip: h.Dip, Depth: h.FinalDepth}
@@ -183,6 +169,38 @@ func newHoleModel(c Conventions, h domain.Hole, ss *domain.SurveySet, runs []dom
 		m.err = fmt.Errorf("hole %s: %w", h.Name, m.err)
 	}
 	return m
+}
+
+// holeCorrections returns the corrections the hole model applies to h with
+// survey set ss (nil when none): the grid convergence gc and its source
+// ("computed" at the collar from its crs label when the collar can be placed,
+// else "project"), the declination decl and its source ("survey" when the set
+// has its own, else "project"; "" when no magnetic azimuth is involved), and
+// the collar azimuth's reference href (the project's output reference when
+// the hole gives none).
+func holeCorrections(c Conventions, h domain.Hole, ss *domain.SurveySet) (gc float64, convSrc string, decl float64, declSrc, href string) {
+	gc, convSrc = c.Convergence, "project"
+	if h.CRS != "" {
+		if cv, ok := convergenceAt(h); ok {
+			gc, convSrc = cv, "computed"
+		}
+	}
+	decl, declSrc = c.Declination, "project"
+	href = h.AzimuthRef
+	if href == "" {
+		href = c.OutputAzimuthRef
+	}
+	magnetic := href == domain.AzimuthMagnetic
+	if ss != nil {
+		if ss.Declination != nil {
+			decl, declSrc = *ss.Declination, "survey"
+		}
+		magnetic = magnetic || ss.AzimuthRef == domain.AzimuthMagnetic
+	}
+	if !magnetic {
+		declSrc = ""
+	}
+	return gc, convSrc, decl, declSrc, href
 }
 
 func opt(x float64) *float64 {

@@ -46,29 +46,44 @@ type PathPoint struct {
 // current collar and survey on every call, by the hole model the derived
 // values use, so it is never stale.
 func (s *Service) HolePath(ctx context.Context, projectID, holeID int64, step float64) ([]PathPoint, error) {
+	pts, _, err := s.HolePathCorrections(ctx, projectID, holeID, step)
+	return pts, err
+}
+
+// HolePathCorrections is [Service.HolePath] that also returns the hole's
+// corrections, from the same read of the collar and survey set as the path.
+func (s *Service) HolePathCorrections(ctx context.Context, projectID, holeID int64, step float64) ([]PathPoint, HoleCorrections, error) {
+	pts, m, err := s.holePath(ctx, projectID, holeID, step)
+	if err != nil {
+		return nil, HoleCorrections{}, err
+	}
+	return pts, holeCorrectionsOf(m.conv, m.hole, m.survey), nil
+}
+
+func (s *Service) holePath(ctx context.Context, projectID, holeID int64, step float64) ([]PathPoint, *holeModel, error) {
 	if step == 0 {
 		step = DefaultPathStep
 	}
 	if math.IsNaN(step) || step < MinPathStep || step > MaxPathStep {
-		return nil, domain.FieldErr("step", "step %v is out of range; want %v to %v", step, MinPathStep, MaxPathStep)
+		return nil, nil, domain.FieldErr("step", "step %v is out of range; want %v to %v", step, MinPathStep, MaxPathStep)
 	}
 	p, _, err := s.project(ctx, s.store, projectID, domain.RoleRead)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	if _, err := hole(ctx, s.store, projectID, holeID); err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	m, err := newDeriver(s.store, p).model(ctx, holeID)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	if m.err != nil {
-		return nil, domain.Errorf(domain.Invalid, "%v", m.err)
+		return nil, nil, domain.Errorf(domain.Invalid, "%v", m.err)
 	}
 	final := m.path.Depth()
 	if final/step > MaxPathPoints {
-		return nil, domain.FieldErr("step", "step %v gives more than %d points over the %v of hole %s; use a larger step", step, MaxPathPoints, final, m.name)
+		return nil, nil, domain.FieldErr("step", "step %v gives more than %d points over the %v of hole %s; use a larger step", step, MaxPathPoints, final, m.name)
 	}
 	ivs := m.path.Intervals()
 	depths := make([]float64, 0, int(final/step)+len(ivs)+2)
@@ -94,7 +109,7 @@ func (s *Service) HolePath(ctx context.Context, projectID, holeID int64, step fl
 		last = d
 		pt, err := m.path.At(d)
 		if err != nil {
-			return nil, domain.Errorf(domain.Invalid, "hole %s at depth %v: %v", m.name, d, err)
+			return nil, nil, domain.Errorf(domain.Invalid, "hole %s at depth %v: %v", m.name, d, err)
 		}
 		az, dip := pt.Dir.AzimuthDip()
 		pp := PathPoint{Depth: d, East: pt.Pos.X, North: pt.Pos.Y, Elevation: pt.Pos.Z, Azimuth: az, Dip: dip, Extrapolated: pt.Extrapolated}
@@ -113,5 +128,5 @@ func (s *Service) HolePath(ctx context.Context, projectID, holeID int64, step fl
 		}
 		out = append(out, pp)
 	}
-	return out, nil
+	return out, m, nil
 }
