@@ -48,6 +48,14 @@ line_trend, line_plunge, warnings, pole_trend, pole_plunge, [true_thickness],
 azimuth_reference, declination, declination_source, grid_convergence,
 convergence_source, error.
 
+--hole-summary FILE.csv also writes one row per hole: hole_id,
+survey_azimuth_reference, output_azimuth_reference, declination,
+declination_source, grid_convergence, convergence_source, rows,
+rows_with_warnings, rows_with_errors, caution, error (why the hole's rows
+could not be converted, e.g. a magnetic survey on a collar corvane cannot
+place). A declination that changes with the survey date is listed per date,
+separated by ";".
+
 Azimuths: true = magnetic + declination; grid = true - grid_convergence. A survey
 azimuth without azimuth_reference is taken to be in the output reference. Corrections
 come from the collar's columns, else from --declination / --grid-convergence, else are
@@ -102,6 +110,7 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 	outRef := fs.String("output-reference", "grid", "north reference of output azimuths: grid or true")
 	method := fs.String("method", "minimum-curvature", "desurvey method: minimum-curvature, balanced-tangential or tangential")
 	feet := fs.Bool("feet", false, "lengths are in feet (collar elevations are converted to metres for the magnetic model)")
+	summary := fs.String("hole-summary", "", "also write one row per hole to this CSV file: azimuth references, corrections and their sources, row counts, caution, error")
 	noCompute := fs.Bool("no-computed-corrections", false, "never compute declination or grid convergence; holes that need one get an error")
 	var opt convert.Options
 	fs.Var(floatFlag{&opt.Declination}, "declination", "magnetic declination in degrees for holes whose collar gives none (true = magnetic + D)")
@@ -163,7 +172,15 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 		defer f.Close()
 		in = f
 	}
-	holes, err := convert.Load(cf, sf, opt)
+	crows, err := csvio.ReadCollars(cf, *collars)
+	var srows []csvio.SurveyRow
+	if err == nil {
+		srows, err = csvio.ReadSurveys(sf, *surveys)
+	}
+	var holes *convert.Holes
+	if err == nil {
+		holes, err = convert.Build(crows, srows, opt)
+	}
 	if err != nil {
 		fmt.Fprint(env.Stderr, "corvane convert: ")
 		csvio.Report(env.Stderr, err)
@@ -188,6 +205,12 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 		csvio.Report(env.Stderr, err)
 		return ExitUsage
 	}
+	if *summary != "" {
+		if code := holeSummary(env, *summary, tmp, holes, srows); code != ExitOK {
+			tmp.Close()
+			return code
+		}
+	}
 	if *out != "" {
 		if err := tmp.Close(); err != nil {
 			return usageErr("%v", err)
@@ -210,6 +233,34 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 		sum.Rows, sum.WarnRows, sum.Extrapols, sum.BadRows, opt.Output, opt.Convention)
 	if sum.BadRows > 0 {
 		return ExitRows
+	}
+	return ExitOK
+}
+
+// holeSummary counts the converted rows in tmp per hole and writes the hole
+// summary to file.
+func holeSummary(env *Env, file string, tmp *os.File, holes *convert.Holes, srows []csvio.SurveyRow) int {
+	if _, err := tmp.Seek(0, io.SeekStart); err != nil {
+		fmt.Fprintf(env.Stderr, "corvane convert: %v\n", err)
+		return ExitUsage
+	}
+	counts, order, err := countRows(tmp)
+	if err != nil {
+		fmt.Fprintf(env.Stderr, "corvane convert: %v\n", err)
+		return ExitUsage
+	}
+	f, err := os.Create(file)
+	if err != nil {
+		fmt.Fprintf(env.Stderr, "corvane convert: --hole-summary: %v\n", err)
+		return ExitUsage
+	}
+	werr := writeHoleSummary(f, holes, srows, counts, order)
+	if cerr := f.Close(); werr == nil {
+		werr = cerr
+	}
+	if werr != nil {
+		fmt.Fprintf(env.Stderr, "corvane convert: --hole-summary %s: %v\n", file, werr)
+		return ExitUsage
 	}
 	return ExitOK
 }
