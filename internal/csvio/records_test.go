@@ -15,6 +15,7 @@ import (
 func compareWithStd(t *testing.T, data []byte) {
 	t.Helper()
 	mine := newRecordReader(bytes.NewReader(data))
+	lazy := newRecordReader(bytes.NewReader(data))
 	std := csv.NewReader(bytes.NewReader(data))
 	std.FieldsPerRecord = -1
 	std.ReuseRecord = true
@@ -23,6 +24,17 @@ func compareWithStd(t *testing.T, data []byte) {
 		got, gerr := mine.Read()
 		if fmt.Sprint(werr) != fmt.Sprint(gerr) {
 			t.Fatalf("record %d of %q: error %v, encoding/csv %v", n, data, gerr, werr)
+		}
+		// ReadUnsplit, its quote-free records split with SplitFields, gives
+		// the same record, error, line and raw bytes as Read.
+		lrec, unsplit, lerr := lazy.ReadUnsplit()
+		if unsplit {
+			lrec = SplitFields(nil, string(lazy.raw))
+		}
+		if fmt.Sprint(lerr) != fmt.Sprint(gerr) || fmt.Sprintf("%q", lrec) != fmt.Sprintf("%q", got) ||
+			(gerr == nil && (lazy.recLine != mine.recLine || !bytes.Equal(lazy.raw, mine.raw))) {
+			t.Fatalf("record %d of %q: ReadUnsplit %q (%v, line %d, raw %q), Read %q (%v, line %d, raw %q)",
+				n, data, lrec, lerr, lazy.recLine, lazy.raw, got, gerr, mine.recLine, mine.raw)
 		}
 		if werr == io.EOF {
 			return
