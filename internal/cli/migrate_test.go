@@ -25,11 +25,14 @@ func TestMigrateCommand(t *testing.T) {
 	if code, out, errs := runWithEnv(t, env, "migrate", "version"); code != ExitOK || out != "schema version 0\n" {
 		t.Fatalf("version on a fresh file: %d %q %q", code, out, errs)
 	}
-	if code, out, errs := runWithEnv(t, env, "migrate", "up"); code != ExitOK || out != "schema version 1\n" {
+	if code, out, errs := runWithEnv(t, env, "migrate", "up"); code != ExitOK || out != "schema version 2\n" {
 		t.Fatalf("up: %d %q %q", code, out, errs)
 	}
-	if code, out, _ := runWithEnv(t, nil, "migrate", "down", "--db", db); code != ExitOK || out != "schema version 0\n" {
+	if code, out, _ := runWithEnv(t, nil, "migrate", "down", "--db", db); code != ExitOK || out != "schema version 1\n" {
 		t.Fatalf("down with --db: %d %q", code, out)
+	}
+	if code, out, _ := runWithEnv(t, env, "migrate", "down", "--all"); code != ExitOK || out != "schema version 0\n" {
+		t.Fatalf("down --all: %d %q", code, out)
 	}
 	if code, _, errs := runWithEnv(t, env, "migrate", "sideways"); code != ExitUsage || !strings.Contains(errs, "sideways") {
 		t.Fatalf("unknown action: %d %q", code, errs)

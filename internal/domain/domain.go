@@ -108,6 +108,12 @@ type Station struct {
 	Dip     float64 `json:"dip"`
 }
 
+// Where a correction (declination, grid convergence) came from.
+const (
+	SourceGiven    = "given"    // a number sent with the data
+	SourceComputed = "computed" // from the magnetic model or the projection
+)
+
 // SurveySet is the whole survey of one hole. It is always replaced as a whole.
 type SurveySet struct {
 	HoleID int64 `json:"hole_id"`
@@ -117,10 +123,15 @@ type SurveySet struct {
 	SurveyDate string `json:"survey_date"` // YYYY-MM-DD or empty
 	// Declination overrides the project's default declination for a magnetic
 	// survey; nil means use the project's.
-	Declination *float64  `json:"declination"`
-	Stations    []Station `json:"stations"`
-	Version     int64     `json:"version"`
-	UpdatedAt   time.Time `json:"updated_at"`
+	Declination *float64 `json:"declination"`
+	// DeclinationSource says where Declination came from: "given" (a number
+	// sent with the set), "computed" (from the magnetic model when the set
+	// was stored), or "" when the set has none. It is read-only: the service
+	// sets it and ignores what a client sends.
+	DeclinationSource string    `json:"declination_source"`
+	Stations          []Station `json:"stations"`
+	Version           int64     `json:"version"`
+	UpdatedAt         time.Time `json:"updated_at"`
 }
 
 // Run confidence ratings, best first.

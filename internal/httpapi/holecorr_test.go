@@ -5,6 +5,7 @@ import (
 	"testing"
 	"time"
 
+	"corvane/internal/domain"
 	"corvane/internal/northref"
 	"corvane/internal/service"
 )
@@ -24,15 +25,19 @@ func TestHoleCorrectionsOverHTTP(t *testing.T) {
 		"final_depth": 200, "crs": "EPSG:32750",
 	}, &h)
 	hb := "/v1/projects/" + itoa(pid) + "/holes/" + itoa(h.ID)
+	var ss domain.SurveySet
 	r := f.must(200, f.site, "PUT", hb+"/survey", map[string]any{"azimuth_ref": "magnetic", "survey_date": "2027-07-01",
-		"stations": []map[string]float64{{"depth": 0, "azimuth": 90, "dip": -60}}}, nil, "If-None-Match", "*")
+		"stations": []map[string]float64{{"depth": 0, "azimuth": 90, "dip": -60}}}, &ss, "If-None-Match", "*")
 	want, err := northref.Corrections("EPSG:32750", 412345, 6543210, 320, time.Date(2027, 7, 1, 0, 0, 0, 0, time.UTC), true, true)
 	if err != nil {
 		t.Fatal(err)
 	}
+	if ss.DeclinationSource != "computed" || ss.Declination == nil || math.Abs(*ss.Declination-want.Declination) > 1e-9 {
+		t.Errorf("PUT survey without a declination: %v from %q, want %v computed", ss.Declination, ss.DeclinationSource, want.Declination)
+	}
 	f.must(200, f.site, "GET", hb, nil, &h)
 	c := h.Corrections
-	if c.Declination == nil || math.Abs(*c.Declination-want.Declination) > 1e-9 || *c.DeclinationSource != "survey" ||
+	if c.Declination == nil || math.Abs(*c.Declination-want.Declination) > 1e-9 || *c.DeclinationSource != "computed" ||
 		math.Abs(c.GridConvergence-want.Convergence) > 1e-9 || c.ConvergenceSource != "computed" || *c.SurveyAzimuthRef != "magnetic" {
 		t.Errorf("GET hole: %+v, want declination %v and convergence %v", c, want.Declination, want.Convergence)
 	}
@@ -49,9 +54,29 @@ func TestHoleCorrectionsOverHTTP(t *testing.T) {
 		t.Errorf("path: %+v", pb.Corrections)
 	}
 
+	// A typed declination is "given", whatever source the client sends: the
+	// source is read-only.
+	r = f.must(200, f.site, "PUT", hb+"/survey", map[string]any{"azimuth_ref": "magnetic", "survey_date": "2027-07-01",
+		"declination": -2.5, "declination_source": "computed",
+		"stations": []map[string]float64{{"depth": 0, "azimuth": 90, "dip": -60}}}, &ss, "If-Match", r.Header.Get("ETag"))
+	if ss.DeclinationSource != "given" || ss.Declination == nil || *ss.Declination != -2.5 {
+		t.Errorf("PUT survey with a declination: %v from %q, want -2.5 given", ss.Declination, ss.DeclinationSource)
+	}
+	f.must(200, f.site, "GET", hb+"/survey", nil, &ss)
+	if ss.DeclinationSource != "given" || ss.Declination == nil || *ss.Declination != -2.5 {
+		t.Errorf("GET survey: %v from %q, want -2.5 given", ss.Declination, ss.DeclinationSource)
+	}
+	f.must(200, f.site, "GET", hb, nil, &h)
+	if c := h.Corrections; c.Declination == nil || *c.Declination != -2.5 || c.DeclinationSource == nil || *c.DeclinationSource != "given" {
+		t.Errorf("GET hole after a typed declination: %+v", c)
+	}
+
 	// A survey against true north: no declination; the grid convergence stays.
 	f.must(200, f.site, "PUT", hb+"/survey", map[string]any{"azimuth_ref": "true",
-		"stations": []map[string]float64{{"depth": 0, "azimuth": 90, "dip": -60}}}, nil, "If-Match", r.Header.Get("ETag"))
+		"stations": []map[string]float64{{"depth": 0, "azimuth": 90, "dip": -60}}}, &ss, "If-Match", r.Header.Get("ETag"))
+	if ss.Declination != nil || ss.DeclinationSource != "" {
+		t.Errorf("true-north survey: declination %v from %q, want none", ss.Declination, ss.DeclinationSource)
+	}
 	f.must(200, f.site, "GET", hb, nil, &h)
 	if c := h.Corrections; c.Declination != nil || c.DeclinationSource != nil || *c.SurveyAzimuthRef != "true" || c.ConvergenceSource != "computed" {
 		t.Errorf("after a true-north survey: %+v", c)

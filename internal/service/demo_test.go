@@ -59,8 +59,8 @@ func checkDemo(t *testing.T, s *service.Service, ctx context.Context, ordered bo
 		if v.Derived.Error != "" {
 			t.Fatalf("row %d: %s", i, v.Derived.Error)
 		}
-		if v.Derived.ConvergenceSource != "computed" || v.Derived.DeclinationSource != "survey" {
-			t.Fatalf("row %d: corrections from %q and %q, want computed convergence and the survey's declination",
+		if v.Derived.ConvergenceSource != "computed" || v.Derived.DeclinationSource != "computed" {
+			t.Fatalf("row %d: corrections from %q and %q, want computed convergence and declination",
 				i, v.Derived.ConvergenceSource, v.Derived.DeclinationSource)
 		}
 		h := geom.HoleDirection(*v.Derived.HoleAzimuth, *v.Derived.HoleDip)

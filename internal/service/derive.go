@@ -50,8 +50,9 @@ type Derived struct {
 	ConvergenceSource string   `json:"convergence_source"`
 	// Declination is the magnetic declination applied, degrees (true =
 	// magnetic + D), when a magnetic azimuth was involved, else null;
-	// DeclinationSource is "survey" (the survey set's own, given or computed
-	// when it was stored) or "project".
+	// DeclinationSource is "given" (a number sent with the survey set),
+	// "computed" (from the magnetic model when the survey set was stored) or
+	// "project" (the project's default).
 	Declination       *float64 `json:"declination"`
 	DeclinationSource string   `json:"declination_source,omitempty"`
 	// RunConfidence is the confidence of the orientation run covering the
@@ -174,8 +175,9 @@ func newHoleModel(c Conventions, h domain.Hole, ss *domain.SurveySet, runs []dom
 // holeCorrections returns the corrections the hole model applies to h with
 // survey set ss (nil when none): the grid convergence gc and its source
 // ("computed" at the collar from its crs label when the collar can be placed,
-// else "project"), the declination decl and its source ("survey" when the set
-// has its own, else "project"; "" when no magnetic azimuth is involved), and
+// else "project"), the declination decl and its source (the survey set's
+// own source, "given" or "computed", when the set has a declination, else
+// "project"; "" when no magnetic azimuth is involved), and
 // the collar azimuth's reference href (the project's output reference when
 // the hole gives none).
 func holeCorrections(c Conventions, h domain.Hole, ss *domain.SurveySet) (gc float64, convSrc string, decl float64, declSrc, href string) {
@@ -193,7 +195,11 @@ func holeCorrections(c Conventions, h domain.Hole, ss *domain.SurveySet) (gc flo
 	magnetic := href == domain.AzimuthMagnetic
 	if ss != nil {
 		if ss.Declination != nil {
-			decl, declSrc = *ss.Declination, "survey"
+			decl, declSrc = *ss.Declination, ss.DeclinationSource
+			if declSrc != domain.SourceComputed {
+				// Sets stored before the source was recorded read as given.
+				declSrc = domain.SourceGiven
+			}
 		}
 		magnetic = magnetic || ss.AzimuthRef == domain.AzimuthMagnetic
 	}

@@ -24,8 +24,9 @@ type HoleCorrections struct {
 	SurveyDate       *string `json:"survey_date"`
 	// Declination applied to magnetic azimuths, degrees (true = magnetic +
 	// D), null when no magnetic azimuth is involved; DeclinationSource is
-	// "survey" (the survey set's own, given or computed when it was stored)
-	// or "project" (the project's default), null when none applies.
+	// "given" (a number sent with the survey set), "computed" (from the
+	// magnetic model when the survey set was stored) or "project" (the
+	// project's default), null when none applies.
 	Declination       *float64 `json:"declination"`
 	DeclinationSource *string  `json:"declination_source"`
 	// GridConvergence used, degrees (grid = true - C); ConvergenceSource is

@@ -33,11 +33,14 @@ func TestHoleCorrectionsComputed(t *testing.T) {
 		c.SurveyDate == nil || *c.SurveyDate != "2026-03-15" {
 		t.Errorf("references: %+v", c)
 	}
-	// The declination was computed when the survey set was stored: the hole
-	// model names it by the survey set ("survey").
+	// The declination was computed when the survey set was stored: the set,
+	// the hole's corrections and the derived values all say "computed".
 	near(t, "declination", c.Declination, want.Declination, 1e-9)
-	if c.DeclinationSource == nil || *c.DeclinationSource != "survey" {
-		t.Errorf("declination source %v, want survey", c.DeclinationSource)
+	if c.DeclinationSource == nil || *c.DeclinationSource != "computed" {
+		t.Errorf("declination source %v, want computed", c.DeclinationSource)
+	}
+	if ss := must(s.GetSurvey(ctx, p.ID, h.ID)); ss.DeclinationSource != "computed" || ss.Declination == nil {
+		t.Errorf("stored survey set: declination %v from %q, want computed", ss.Declination, ss.DeclinationSource)
 	}
 	near(t, "grid convergence", &c.GridConvergence, want.Convergence, 1e-9)
 	if c.ConvergenceSource != "computed" {
@@ -120,11 +123,61 @@ func TestHoleCorrectionsGiven(t *testing.T) {
 	must(s.PutSurvey(ctx, p.ID, h.ID, 0, domain.SurveySet{AzimuthRef: domain.AzimuthMagnetic, Declination: f64(1.25),
 		Stations: []domain.Station{{Depth: 0, Azimuth: 10, Dip: -60}}}))
 	c = must(s.GetHoleView(ctx, p.ID, h.ID)).Corrections
-	if c.Declination == nil || *c.Declination != 1.25 || *c.DeclinationSource != "survey" || c.GridConvergence != 0.75 {
+	if c.Declination == nil || *c.Declination != 1.25 || *c.DeclinationSource != "given" || c.GridConvergence != 0.75 {
 		t.Errorf("given declination: %+v", c)
 	}
 	if len(c.Cautions) != 0 {
 		t.Errorf("given declination: cautions %q", c.Cautions)
+	}
+}
+
+// The survey set records where its declination came from, whatever source a
+// client sends: "given" for a typed number, "computed" for the magnetic
+// model's (checked against northref, whose tests hold the official WMM2025
+// test values), none when the project's default applies; the derived values
+// of a measurement name the same source.
+func TestDeclinationSourceOfSurveySet(t *testing.T) {
+	s, ctx := newService(t)
+	p, plain := programme(t, s, ctx, domain.Project{OutputAzimuthRef: domain.AzimuthTrue, Declination: -2.5})
+	// A fictional collar in WGS 84 / UTM zone 50S.
+	h := must(s.CreateHole(ctx, p.ID, domain.Hole{Name: "TM300", East: 412345, North: 6543210, Elevation: 320,
+		Azimuth: 90, Dip: -60, FinalDepth: 300, CRS: "EPSG:32750"}))
+	stations := []domain.Station{{Depth: 0, Azimuth: 90, Dip: -60}}
+	derived := func(holeID int64) service.Derived {
+		t.Helper()
+		return must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: holeID, Depth: 50, Alpha: 40, Beta: 200, TypeCode: "JN"})).Derived
+	}
+
+	ss := must(s.PutSurvey(ctx, p.ID, h.ID, 0, domain.SurveySet{AzimuthRef: domain.AzimuthMagnetic, SurveyDate: "2026-03-15",
+		Declination: f64(3), DeclinationSource: "computed", Stations: stations}))
+	if ss.DeclinationSource != "given" || ss.Declination == nil || *ss.Declination != 3 {
+		t.Errorf("typed declination stored as %v from %q, want 3 given", ss.Declination, ss.DeclinationSource)
+	}
+	if got := must(s.GetSurvey(ctx, p.ID, h.ID)); got.DeclinationSource != "given" {
+		t.Errorf("typed declination read back from %q, want given", got.DeclinationSource)
+	}
+	if d := derived(h.ID); d.Declination == nil || *d.Declination != 3 || d.DeclinationSource != "given" {
+		t.Errorf("derived with a typed declination: %v from %q, want 3 given", d.Declination, d.DeclinationSource)
+	}
+
+	want := must(northref.Corrections("EPSG:32750", 412345, 6543210, 320, time.Date(2026, 3, 15, 0, 0, 0, 0, time.UTC), true, false))
+	ss = must(s.PutSurvey(ctx, p.ID, h.ID, ss.Version, domain.SurveySet{AzimuthRef: domain.AzimuthMagnetic, SurveyDate: "2026-03-15",
+		DeclinationSource: "given", Stations: stations}))
+	if ss.DeclinationSource != "computed" || ss.Declination == nil || math.Abs(*ss.Declination-want.Declination) > 1e-9 {
+		t.Errorf("declination left out stored as %v from %q, want %v computed", ss.Declination, ss.DeclinationSource, want.Declination)
+	}
+	if d := derived(h.ID); d.Declination == nil || math.Abs(*d.Declination-want.Declination) > 1e-9 || d.DeclinationSource != "computed" {
+		t.Errorf("derived with a computed declination: %v from %q, want %v computed", d.Declination, d.DeclinationSource, want.Declination)
+	}
+
+	// A collar without a crs label: nothing to compute; the project's default.
+	ss = must(s.PutSurvey(ctx, p.ID, plain.ID, 0, domain.SurveySet{AzimuthRef: domain.AzimuthMagnetic, SurveyDate: "2026-03-15",
+		DeclinationSource: "computed", Stations: []domain.Station{{Depth: 0, Azimuth: 10, Dip: -60}}}))
+	if ss.DeclinationSource != "" || ss.Declination != nil {
+		t.Errorf("uncomputable declination stored as %v from %q, want none", ss.Declination, ss.DeclinationSource)
+	}
+	if d := derived(plain.ID); d.Declination == nil || *d.Declination != -2.5 || d.DeclinationSource != "project" {
+		t.Errorf("derived with the project's declination: %v from %q, want -2.5 project", d.Declination, d.DeclinationSource)
 	}
 }
 

@@ -14,7 +14,15 @@ import (
 // or the collar cannot be placed or the date is missing: the project's
 // default declination then applies. The stored value is an input correction
 // the caller can see and override, not a derived result.
+//
+// It also records where the set's declination came from, whatever a client
+// sent as its source: "given" for a number sent with the set, "computed"
+// for one the model supplied here, "" when the set has none.
 func fillDeclination(ss *domain.SurveySet, h domain.Hole) {
+	ss.DeclinationSource = ""
+	if ss.Declination != nil {
+		ss.DeclinationSource = domain.SourceGiven
+	}
 	if ss.AzimuthRef != domain.AzimuthMagnetic || ss.Declination != nil || h.CRS == "" || ss.SurveyDate == "" {
 		return
 	}
@@ -27,7 +35,7 @@ func fillDeclination(ss *domain.SurveySet, h domain.Hole) {
 		return
 	}
 	d := r.Declination
-	ss.Declination = &d
+	ss.Declination, ss.DeclinationSource = &d, domain.SourceComputed
 }
 
 // convergenceAt returns the grid convergence at a collar, ok false when the

@@ -178,7 +178,7 @@ func TestDerivedFollowSurveyAndConventions(t *testing.T) {
 	got = must(s.GetMeasurement(ctx, p.ID, m.ID))
 	near(t, "magnetic to grid", got.Derived.HoleAzimuth, 10-4-2.5, 1e-6)
 	// A collar without a coordinate system takes the project's convergence.
-	if got.Derived.ConvergenceSource != "project" || got.Derived.DeclinationSource != "survey" {
+	if got.Derived.ConvergenceSource != "project" || got.Derived.DeclinationSource != "given" {
 		t.Errorf("sources %q, %q", got.Derived.ConvergenceSource, got.Derived.DeclinationSource)
 	}
 	near(t, "declination reported", got.Derived.Declination, -4, 0)

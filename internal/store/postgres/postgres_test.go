@@ -24,10 +24,31 @@ func TestConformance(t *testing.T) {
 	})
 }
 
+func TestDeclinationSourceBackfill(t *testing.T) {
+	url := pgtest.DB(t)
+	storetest.DeclinationSourceBackfill(t, func(t *testing.T) domain.Store {
+		s, err := postgres.Open(t.Context(), url)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return s
+	}, func(t *testing.T) {
+		if err := postgres.Migrate(url, -1); err != nil {
+			t.Fatalf("rolling back 000002: %v", err)
+		}
+		if v, _, _ := postgres.Version(url); v != 1 {
+			t.Fatalf("after one step down: version %d, want 1", v)
+		}
+		if err := postgres.Migrate(url, 0); err != nil {
+			t.Fatalf("applying 000002 again: %v", err)
+		}
+	})
+}
+
 func TestMigrateUpDownVersion(t *testing.T) {
 	url := pgtest.DB(t) // already migrated from the template
 	v, dirty, err := postgres.Version(url)
-	if err != nil || v != 1 || dirty {
+	if err != nil || v != 2 || dirty {
 		t.Fatalf("template copy: version %d dirty %v err %v", v, dirty, err)
 	}
 	if err := postgres.MigrateDownAll(url); err != nil {
@@ -39,7 +60,7 @@ func TestMigrateUpDownVersion(t *testing.T) {
 	if err := postgres.Migrate(url, 0); err != nil {
 		t.Fatal(err)
 	}
-	if v, _, _ = postgres.Version(url); v != 1 {
+	if v, _, _ = postgres.Version(url); v != 2 {
 		t.Fatalf("after up: version %d", v)
 	}
 }

@@ -9,10 +9,10 @@ import (
 )
 
 const (
-	selectSurveySet  = `SELECT hole_id, azimuth_ref, survey_date, declination, version, updated_at FROM survey_sets WHERE hole_id = $1`
+	selectSurveySet  = `SELECT hole_id, azimuth_ref, survey_date, declination, declination_source, version, updated_at FROM survey_sets WHERE hole_id = $1`
 	selectStations   = `SELECT depth, azimuth, dip FROM survey_stations WHERE hole_id = $1 ORDER BY depth`
-	insertSurveySet  = `INSERT INTO survey_sets (hole_id, azimuth_ref, survey_date, declination, version, updated_at) VALUES ($1, $2, $3, $4, 1, $5)`
-	updateSurveySet  = `UPDATE survey_sets SET azimuth_ref = $1, survey_date = $2, declination = $3, version = version + 1, updated_at = $4 WHERE hole_id = $5 AND version = $6 RETURNING version`
+	insertSurveySet  = `INSERT INTO survey_sets (hole_id, azimuth_ref, survey_date, declination, declination_source, version, updated_at) VALUES ($1, $2, $3, $4, $5, 1, $6)`
+	updateSurveySet  = `UPDATE survey_sets SET azimuth_ref = $1, survey_date = $2, declination = $3, declination_source = $4, version = version + 1, updated_at = $5 WHERE hole_id = $6 AND version = $7 RETURNING version`
 	deleteStations   = `DELETE FROM survey_stations WHERE hole_id = $1`
 	insertStation    = `INSERT INTO survey_stations (hole_id, depth, azimuth, dip) VALUES ($1, $2, $3, $4)`
 	deleteSurveySet  = `DELETE FROM survey_sets WHERE hole_id = $1 AND version = $2`
@@ -34,7 +34,7 @@ func (s *Store) GetSurvey(ctx context.Context, holeID int64) (domain.SurveySet, 
 	}
 	var decl *float64
 	var u time.Time
-	err := q.QueryRow(ctx, selectSurveySet, holeID).Scan(&ss.HoleID, &ss.AzimuthRef, &ss.SurveyDate, &decl, &ss.Version, &u)
+	err := q.QueryRow(ctx, selectSurveySet, holeID).Scan(&ss.HoleID, &ss.AzimuthRef, &ss.SurveyDate, &decl, &ss.DeclinationSource, &ss.Version, &u)
 	if err != nil {
 		return ss, one(err, "survey of hole", holeID)
 	}
@@ -62,7 +62,7 @@ func (s *Store) PutSurvey(ctx context.Context, ss *domain.SurveySet, ifVersion i
 			if ifVersion != 0 {
 				return domain.Errorf(domain.PreconditionFailed, "hole %d has no survey at version %d", ss.HoleID, ifVersion)
 			}
-			if _, err := q.Exec(ctx, insertSurveySet, ss.HoleID, ss.AzimuthRef, ss.SurveyDate, nullFloat(ss.Declination), t); err != nil {
+			if _, err := q.Exec(ctx, insertSurveySet, ss.HoleID, ss.AzimuthRef, ss.SurveyDate, nullFloat(ss.Declination), ss.DeclinationSource, t); err != nil {
 				if domain.IsKind(translate(err), domain.Conflict) {
 					return notFound("hole", ss.HoleID)
 				}
@@ -75,7 +75,7 @@ func (s *Store) PutSurvey(ctx context.Context, ss *domain.SurveySet, ifVersion i
 			if ifVersion != cur {
 				return domain.Errorf(domain.PreconditionFailed, "survey of hole %d is at version %d, not %d: reload and retry", ss.HoleID, cur, ifVersion)
 			}
-			if err := q.QueryRow(ctx, updateSurveySet, ss.AzimuthRef, ss.SurveyDate, nullFloat(ss.Declination), t, ss.HoleID, ifVersion).Scan(&ss.Version); err != nil {
+			if err := q.QueryRow(ctx, updateSurveySet, ss.AzimuthRef, ss.SurveyDate, nullFloat(ss.Declination), ss.DeclinationSource, t, ss.HoleID, ifVersion).Scan(&ss.Version); err != nil {
 				return translate(err)
 			}
 			if _, err := q.Exec(ctx, deleteStations, ss.HoleID); err != nil {

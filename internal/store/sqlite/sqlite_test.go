@@ -32,8 +32,8 @@ func TestMigrateUpDownVersion(t *testing.T) {
 	if err := sqlite.Migrate(path, 0); err != nil {
 		t.Fatal(err)
 	}
-	if v, _, _ = sqlite.Version(path); v != 1 {
-		t.Fatalf("after up: version %d, want 1", v)
+	if v, _, _ = sqlite.Version(path); v != 2 {
+		t.Fatalf("after up: version %d, want 2", v)
 	}
 	if err := sqlite.Migrate(path, 0); err != nil { // idempotent
 		t.Fatalf("second up: %v", err)
@@ -44,4 +44,28 @@ func TestMigrateUpDownVersion(t *testing.T) {
 	if v, _, _ = sqlite.Version(path); v != 0 {
 		t.Fatalf("after down: version %d, want 0", v)
 	}
+}
+
+func TestDeclinationSourceBackfill(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "b.db")
+	if err := sqlite.Migrate(path, 0); err != nil {
+		t.Fatal(err)
+	}
+	storetest.DeclinationSourceBackfill(t, func(t *testing.T) domain.Store {
+		s, err := sqlite.Open(t.Context(), path)
+		if err != nil {
+			t.Fatal(err)
+		}
+		return s
+	}, func(t *testing.T) {
+		if err := sqlite.Migrate(path, -1); err != nil {
+			t.Fatalf("rolling back 000002: %v", err)
+		}
+		if v, _, _ := sqlite.Version(path); v != 1 {
+			t.Fatalf("after one step down: version %d, want 1", v)
+		}
+		if err := sqlite.Migrate(path, 0); err != nil {
+			t.Fatalf("applying 000002 again: %v", err)
+		}
+	})
 }

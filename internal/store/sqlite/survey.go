@@ -8,10 +8,10 @@ import (
 )
 
 const (
-	selectSurveySet  = `SELECT hole_id, azimuth_ref, survey_date, declination, version, updated_at FROM survey_sets WHERE hole_id = ?`
+	selectSurveySet  = `SELECT hole_id, azimuth_ref, survey_date, declination, declination_source, version, updated_at FROM survey_sets WHERE hole_id = ?`
 	selectStations   = `SELECT depth, azimuth, dip FROM survey_stations WHERE hole_id = ? ORDER BY depth`
-	insertSurveySet  = `INSERT INTO survey_sets (hole_id, azimuth_ref, survey_date, declination, version, updated_at) VALUES (?, ?, ?, ?, 1, ?)`
-	updateSurveySet  = `UPDATE survey_sets SET azimuth_ref = ?, survey_date = ?, declination = ?, version = version + 1, updated_at = ? WHERE hole_id = ? AND version = ? RETURNING version`
+	insertSurveySet  = `INSERT INTO survey_sets (hole_id, azimuth_ref, survey_date, declination, declination_source, version, updated_at) VALUES (?, ?, ?, ?, ?, 1, ?)`
+	updateSurveySet  = `UPDATE survey_sets SET azimuth_ref = ?, survey_date = ?, declination = ?, declination_source = ?, version = version + 1, updated_at = ? WHERE hole_id = ? AND version = ? RETURNING version`
 	deleteStations   = `DELETE FROM survey_stations WHERE hole_id = ?`
 	insertStation    = `INSERT INTO survey_stations (hole_id, depth, azimuth, dip) VALUES (?, ?, ?, ?)`
 	deleteSurveySet  = `DELETE FROM survey_sets WHERE hole_id = ? AND version = ?`
@@ -33,7 +33,7 @@ func (s *Store) GetSurvey(ctx context.Context, holeID int64) (domain.SurveySet, 
 	}
 	var decl sql.NullFloat64
 	var u int64
-	err := q.QueryRowContext(ctx, selectSurveySet, holeID).Scan(&ss.HoleID, &ss.AzimuthRef, &ss.SurveyDate, &decl, &ss.Version, &u)
+	err := q.QueryRowContext(ctx, selectSurveySet, holeID).Scan(&ss.HoleID, &ss.AzimuthRef, &ss.SurveyDate, &decl, &ss.DeclinationSource, &ss.Version, &u)
 	if err != nil {
 		return ss, one(err, "survey of hole", holeID)
 	}
@@ -61,7 +61,7 @@ func (s *Store) PutSurvey(ctx context.Context, ss *domain.SurveySet, ifVersion i
 			if ifVersion != 0 {
 				return domain.Errorf(domain.PreconditionFailed, "hole %d has no survey at version %d", ss.HoleID, ifVersion)
 			}
-			if _, err := q.ExecContext(ctx, insertSurveySet, ss.HoleID, ss.AzimuthRef, ss.SurveyDate, nullFloat(ss.Declination), micro(t)); err != nil {
+			if _, err := q.ExecContext(ctx, insertSurveySet, ss.HoleID, ss.AzimuthRef, ss.SurveyDate, nullFloat(ss.Declination), ss.DeclinationSource, micro(t)); err != nil {
 				if domain.IsKind(translate(err), domain.Conflict) {
 					return notFound("hole", ss.HoleID)
 				}
@@ -74,7 +74,7 @@ func (s *Store) PutSurvey(ctx context.Context, ss *domain.SurveySet, ifVersion i
 			if ifVersion != cur {
 				return domain.Errorf(domain.PreconditionFailed, "survey of hole %d is at version %d, not %d: reload and retry", ss.HoleID, cur, ifVersion)
 			}
-			if err := q.QueryRowContext(ctx, updateSurveySet, ss.AzimuthRef, ss.SurveyDate, nullFloat(ss.Declination), micro(t), ss.HoleID, ifVersion).Scan(&ss.Version); err != nil {
+			if err := q.QueryRowContext(ctx, updateSurveySet, ss.AzimuthRef, ss.SurveyDate, nullFloat(ss.Declination), ss.DeclinationSource, micro(t), ss.HoleID, ifVersion).Scan(&ss.Version); err != nil {
 				return translate(err)
 			}
 			if _, err := q.ExecContext(ctx, deleteStations, ss.HoleID); err != nil {

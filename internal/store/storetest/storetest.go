@@ -225,7 +225,7 @@ func testSurvey(t *testing.T, s domain.Store) {
 	h := newHole(t, s, p.ID, "S1")
 	_, err := s.GetSurvey(c, h.ID)
 	wantKind(t, err, domain.NotFound, "no survey yet")
-	ss := domain.SurveySet{HoleID: h.ID, AzimuthRef: "magnetic", SurveyDate: "2026-03-05", Declination: f64(2.25),
+	ss := domain.SurveySet{HoleID: h.ID, AzimuthRef: "magnetic", SurveyDate: "2026-03-05", Declination: f64(2.25), DeclinationSource: "computed",
 		Stations: []domain.Station{st(0, 45, -60), st(50, 46.5, -59), st(100, 48, -58.25)}}
 	must(t, s.PutSurvey(c, &ss, 0))
 	if ss.Version != 1 {
@@ -242,10 +242,22 @@ func testSurvey(t *testing.T, s domain.Store) {
 	must(t, s.PutSurvey(c, &repl, 1))
 	got, _ = s.GetSurvey(c, h.ID)
 	diff(t, "replaced survey", repl, got)
+	if got.Declination != nil || got.DeclinationSource != "" {
+		t.Errorf("replaced survey without a declination kept %v from %q", got.Declination, got.DeclinationSource)
+	}
 	wantKind(t, s.PutSurvey(c, &repl, 1), domain.PreconditionFailed, "stale survey")
+	// The declination's source is stored beside it and replaced with it.
+	given := domain.SurveySet{HoleID: h.ID, AzimuthRef: "magnetic", Declination: f64(-1.5), DeclinationSource: "given",
+		Stations: []domain.Station{st(0, 44, -61)}}
+	must(t, s.PutSurvey(c, &given, 2))
+	got, _ = s.GetSurvey(c, h.ID)
+	diff(t, "survey with a given declination", given, got)
+	if got.DeclinationSource != "given" || got.Declination == nil || *got.Declination != -1.5 {
+		t.Errorf("given declination read back as %v from %q", got.Declination, got.DeclinationSource)
+	}
 	none := domain.SurveySet{HoleID: 777777, AzimuthRef: "true"}
 	wantKind(t, s.PutSurvey(c, &none, 0), domain.NotFound, "survey of missing hole")
-	must(t, s.DeleteSurvey(c, h.ID, 2))
+	must(t, s.DeleteSurvey(c, h.ID, 3))
 	_, err = s.GetSurvey(c, h.ID)
 	wantKind(t, err, domain.NotFound, "deleted survey")
 }
@@ -642,5 +654,38 @@ func testConcurrentWriters(t *testing.T, s domain.Store) {
 	wg.Wait()
 	if wins.Load() != 1 || lost.Load() != 3 {
 		t.Fatalf("racing updates: %d won, %d refused; want 1 and 3", wins.Load(), lost.Load())
+	}
+}
+
+// DeclinationSourceBackfill checks what migration 000002 does to survey sets
+// stored before their declination had a recorded source: a set with a
+// declination reads back as "given", one without as "". open opens the
+// store on the database under test (at the latest schema version); redo
+// rolls the last migration back and applies it again while no store is open.
+func DeclinationSourceBackfill(t *testing.T, open func(t *testing.T) domain.Store, redo func(t *testing.T)) {
+	c := ctx(t)
+	s := open(t)
+	p := newProject(t, s, "backfill")
+	withDecl, without := newHole(t, s, p.ID, "B1"), newHole(t, s, p.ID, "B2")
+	// Both sets carry a source that the rollback loses; the new column then
+	// backfills from the declination alone.
+	a := domain.SurveySet{HoleID: withDecl.ID, AzimuthRef: "magnetic", Declination: f64(-0.75), DeclinationSource: "computed",
+		Stations: []domain.Station{st(0, 45, -60)}}
+	b := domain.SurveySet{HoleID: without.ID, AzimuthRef: "magnetic", Stations: []domain.Station{st(0, 45, -60)}}
+	must(t, s.PutSurvey(c, &a, 0))
+	must(t, s.PutSurvey(c, &b, 0))
+	must(t, s.Close())
+	redo(t)
+	s = open(t)
+	defer s.Close()
+	got, err := s.GetSurvey(c, withDecl.ID)
+	must(t, err)
+	if got.DeclinationSource != "given" || got.Declination == nil || *got.Declination != -0.75 {
+		t.Errorf("set with a declination after the migration: %v from %q, want -0.75 from \"given\"", got.Declination, got.DeclinationSource)
+	}
+	got, err = s.GetSurvey(c, without.ID)
+	must(t, err)
+	if got.DeclinationSource != "" || got.Declination != nil {
+		t.Errorf("set without a declination after the migration: %v from %q, want none", got.Declination, got.DeclinationSource)
 	}
 }

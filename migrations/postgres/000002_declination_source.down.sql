@@ -1,0 +1,1 @@
+ALTER TABLE survey_sets DROP COLUMN IF EXISTS declination_source;
