@@ -40,29 +40,9 @@ var CollarColumns = []string{ColHoleID, ColEasting, ColNorthing, ColElevation, C
 // error at once; bad rows are all reported, one problem each, in one error
 // (see the package doc). On error no rows are returned.
 func ReadCollars(r io.Reader, file string) ([]CollarRow, error) {
-	cr := newReader(r)
-	h, err := readHeader(cr, file, CollarColumns...)
-	if err != nil {
-		return nil, err
-	}
-	var rows []CollarRow
-	c := collect{file: file}
 	seen := map[string]int{}
-	for {
-		rec, err := cr.Read()
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			return nil, parseErr(file, err)
-		}
-		line, _ := cr.FieldPos(0)
-		rw := row{file: file, line: line, h: h, rec: rec}
-		if len(rec) != len(h.Names) {
-			rw.fail("", "row has %d fields, the header has %d", len(rec), len(h.Names))
-			c.add(rw.bad)
-			continue
-		}
+	return readRows(r, file, "collar", CollarColumns, func(rw *row) CollarRow {
+		line := rw.line
 		cw := CollarRow{Line: line, HoleID: rw.cell(ColHoleID)}
 		if cw.HoleID == "" {
 			rw.fail(ColHoleID, "hole_id is empty")
@@ -91,17 +71,11 @@ func ReadCollars(r io.Reader, file string) ([]CollarRow, error) {
 			cw.AzimuthRef = ref
 		}
 		cw.CRS = rw.cell(ColCRS)
-		if rw.bad != nil {
-			c.add(rw.bad)
-			continue
+		if rw.bad == nil {
+			seen[cw.HoleID] = line
 		}
-		seen[cw.HoleID] = line
-		rows = append(rows, cw)
-	}
-	if err := c.err("collar"); err != nil {
-		return nil, err
-	}
-	return rows, nil
+		return cw
+	})
 }
 
 // SurveyRow is one row of a surveys file.
@@ -124,33 +98,13 @@ var SurveyColumns = []string{ColHoleID, ColDepth, ColAzimuth, ColDip}
 // The stations of each hole must come in strictly increasing depth order (the
 // holes may be interleaved). Errors as for [ReadCollars].
 func ReadSurveys(r io.Reader, file string) ([]SurveyRow, error) {
-	cr := newReader(r)
-	h, err := readHeader(cr, file, SurveyColumns...)
-	if err != nil {
-		return nil, err
-	}
 	type last struct {
 		depth float64
 		line  int
 	}
 	prev := map[string]last{}
-	var rows []SurveyRow
-	c := collect{file: file}
-	for {
-		rec, err := cr.Read()
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			return nil, parseErr(file, err)
-		}
-		line, _ := cr.FieldPos(0)
-		rw := row{file: file, line: line, h: h, rec: rec}
-		if len(rec) != len(h.Names) {
-			rw.fail("", "row has %d fields, the header has %d", len(rec), len(h.Names))
-			c.add(rw.bad)
-			continue
-		}
+	return readRows(r, file, "survey", SurveyColumns, func(rw *row) SurveyRow {
+		line := rw.line
 		s := SurveyRow{Line: line, HoleID: rw.cell(ColHoleID)}
 		if s.HoleID == "" {
 			rw.fail(ColHoleID, "hole_id is empty")
@@ -183,17 +137,11 @@ func ReadSurveys(r io.Reader, file string) ([]SurveyRow, error) {
 			}
 			s.Date = t
 		}
-		if rw.bad != nil {
-			c.add(rw.bad)
-			continue
+		if rw.bad == nil {
+			prev[s.HoleID] = last{s.Station.Depth, line}
 		}
-		prev[s.HoleID] = last{s.Station.Depth, line}
-		rows = append(rows, s)
-	}
-	if err := c.err("survey"); err != nil {
-		return nil, err
-	}
-	return rows, nil
+		return s
+	})
 }
 
 // Run confidence ratings, best first. A run rated ConfidenceNone is unusable:
@@ -228,28 +176,8 @@ var RunColumns = []string{ColHoleID, ColFrom, ColTo, ColConfidence}
 // confidence (good, fair, poor or none, any case) and optional mismatch
 // (0..180 degrees). Errors as for [ReadCollars].
 func ReadRuns(r io.Reader, file string) ([]RunRow, error) {
-	cr := newReader(r)
-	h, err := readHeader(cr, file, RunColumns...)
-	if err != nil {
-		return nil, err
-	}
-	var rows []RunRow
-	c := collect{file: file}
-	for {
-		rec, err := cr.Read()
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			return nil, parseErr(file, err)
-		}
-		line, _ := cr.FieldPos(0)
-		rw := row{file: file, line: line, h: h, rec: rec}
-		if len(rec) != len(h.Names) {
-			rw.fail("", "row has %d fields, the header has %d", len(rec), len(h.Names))
-			c.add(rw.bad)
-			continue
-		}
+	return readRows(r, file, "run", RunColumns, func(rw *row) RunRow {
+		line := rw.line
 		run := RunRow{Line: line, HoleID: rw.cell(ColHoleID)}
 		if run.HoleID == "" {
 			rw.fail(ColHoleID, "hole_id is empty")
@@ -272,16 +200,8 @@ func ReadRuns(r io.Reader, file string) ([]RunRow, error) {
 		}
 		run.Mismatch, ok = rw.num(ColMismatch, false)
 		rw.inRange(ColMismatch, run.Mismatch, ok, 0, 180)
-		if rw.bad != nil {
-			c.add(rw.bad)
-			continue
-		}
-		rows = append(rows, run)
-	}
-	if err := c.err("run"); err != nil {
-		return nil, err
-	}
-	return rows, nil
+		return run
+	})
 }
 
 // FormatFloat formats v with prec decimals, writing -0 as 0 and NaN as "".

@@ -26,28 +26,8 @@ var PickColumns = []string{ColHoleID, ColDepth, ColDip, pickColDipDirection}
 // [ReadCollars]: a missing column or broken CSV at once, else every bad row
 // reported with its file, line and column, and no rows returned.
 func ReadPicks(r io.Reader, file string) ([]PickRow, error) {
-	cr := newReader(r)
-	h, err := readHeader(cr, file, PickColumns...)
-	if err != nil {
-		return nil, err
-	}
-	var rows []PickRow
-	c := collect{file: file}
-	for {
-		rec, err := cr.Read()
-		if err == io.EOF {
-			break
-		}
-		if err != nil {
-			return nil, parseErr(file, err)
-		}
-		line, _ := cr.FieldPos(0)
-		rw := row{file: file, line: line, h: h, rec: rec}
-		if len(rec) != len(h.Names) {
-			rw.fail("", "row has %d fields, the header has %d", len(rec), len(h.Names))
-			c.add(rw.bad)
-			continue
-		}
+	return readRows(r, file, "pick", PickColumns, func(rw *row) PickRow {
+		line := rw.line
 		p := PickRow{Line: line, HoleID: rw.cell(ColHoleID)}
 		if p.HoleID == "" {
 			rw.fail(ColHoleID, "hole_id is empty")
@@ -61,14 +41,6 @@ func ReadPicks(r io.Reader, file string) ([]PickRow, error) {
 		rw.inRange(ColDip, p.Dip, ok, 0, 90)
 		p.DipDirection, ok = rw.num(pickColDipDirection, true)
 		rw.inRange(pickColDipDirection, p.DipDirection, ok, 0, 360)
-		if rw.bad != nil {
-			c.add(rw.bad)
-			continue
-		}
-		rows = append(rows, p)
-	}
-	if err := c.err("pick"); err != nil {
-		return nil, err
-	}
-	return rows, nil
+		return p
+	})
 }

@@ -299,3 +299,46 @@ func ParseAzimuthRef(s string) (string, error) {
 	}
 	return "", fmt.Errorf("%q is not an azimuth reference (want true, grid or magnetic)", s)
 }
+
+// readRows reads a whole file of rows of one kind (what names it in the
+// combined error): the header with the required columns, then every record.
+// A record with the wrong field count, or one on which parse calls rw.fail,
+// is collected as a problem; the others are returned in file order. A
+// missing column or broken CSV is an error at once. On error no rows are
+// returned. parse may check rw.bad at its end to keep state only for rows
+// that are kept.
+func readRows[T any](r io.Reader, file, what string, required []string, parse func(rw *row) T) ([]T, error) {
+	cr := newReader(r)
+	h, err := readHeader(cr, file, required...)
+	if err != nil {
+		return nil, err
+	}
+	var rows []T
+	c := collect{file: file}
+	for {
+		rec, err := cr.Read()
+		if err == io.EOF {
+			break
+		}
+		if err != nil {
+			return nil, parseErr(file, err)
+		}
+		line, _ := cr.FieldPos(0)
+		rw := row{file: file, line: line, h: h, rec: rec}
+		if len(rec) != len(h.Names) {
+			rw.fail("", "row has %d fields, the header has %d", len(rec), len(h.Names))
+			c.add(rw.bad)
+			continue
+		}
+		v := parse(&rw)
+		if rw.bad != nil {
+			c.add(rw.bad)
+			continue
+		}
+		rows = append(rows, v)
+	}
+	if err := c.err(what); err != nil {
+		return nil, err
+	}
+	return rows, nil
+}
