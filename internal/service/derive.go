@@ -140,6 +140,10 @@ type holeModel struct {
 	// the collar and survey set the model was built from
 	hole   domain.Hole
 	survey *domain.SurveySet
+	// collar and stations are the path's input: the collar and survey
+	// stations with their azimuths corrected to the output reference
+	collar   desurvey.Collar
+	stations []desurvey.Station
 }
 
 // newHoleModel builds the path of h from its survey set ss (nil when the
@@ -152,20 +156,19 @@ func newHoleModel(c Conventions, h domain.Hole, ss *domain.SurveySet, runs []dom
 	m := &holeModel{name: h.Name, conv: c, core: c.core(), runs: runs, depth: h.FinalDepth, hole: h, survey: ss}
 	var href string
 	m.gc, m.convSrc, m.decl, m.declSrc, href = holeCorrections(c, h, ss)
-	var stations []desurvey.Station
 	if ss != nil {
-		stations = make([]desurvey.Station, len(ss.Stations))
+		m.stations = make([]desurvey.Station, len(ss.Stations))
 		for i, st := range ss.Stations {
-			stations[i] = desurvey.Station{Depth: st.Depth, Azimuth: toOutput(st.Azimuth, ss.AzimuthRef, c.OutputAzimuthRef, m.decl, m.gc), Dip: st.Dip}
+			m.stations[i] = desurvey.Station{Depth: st.Depth, Azimuth: toOutput(st.Azimuth, ss.AzimuthRef, c.OutputAzimuthRef, m.decl, m.gc), Dip: st.Dip}
 		}
 	}
-	col := desurvey.Collar{East: h.East, North: h.North, Elevation: h.Elevation,
+	m.collar = desurvey.Collar{East: h.East, North: h.North, Elevation: h.Elevation,
 		Azimuth: toOutput(h.Azimuth, href, c.OutputAzimuthRef, m.decl, m.gc), Dip: h.Dip, Depth: h.FinalDepth}
 	opt := desurvey.Options{Method: desurvey.MinimumCurvature}
 	if c.LengthUnit == domain.UnitFoot {
 		opt.Unit = desurvey.Feet
 	}
-	m.path, m.err = desurvey.NewWith(col, stations, opt)
+	m.path, m.err = desurvey.NewWith(m.collar, m.stations, opt)
 	if m.err != nil {
 		m.err = fmt.Errorf("hole %s: %w", h.Name, m.err)
 	}
@@ -304,12 +307,8 @@ func (d *deriver) model(ctx context.Context, holeID int64) (*holeModel, error) {
 	if err != nil {
 		return nil, err
 	}
-	var ss *domain.SurveySet
-	set, err := d.st.GetSurvey(ctx, holeID)
-	switch {
-	case err == nil:
-		ss = &set
-	case !domain.IsKind(err, domain.NotFound):
+	ss, err := surveyOf(ctx, d.st, holeID)
+	if err != nil {
 		return nil, err
 	}
 	runs, err := d.st.ListRuns(ctx, holeID)
@@ -319,6 +318,19 @@ func (d *deriver) model(ctx context.Context, holeID int64) (*holeModel, error) {
 	m := newHoleModel(d.conv, h, ss, runs)
 	d.models[holeID] = m
 	return m, nil
+}
+
+// surveyOf returns the hole's survey set from st, nil when it has none.
+func surveyOf(ctx context.Context, st domain.Store, holeID int64) (*domain.SurveySet, error) {
+	ss, err := st.GetSurvey(ctx, holeID)
+	switch {
+	case err == nil:
+		return &ss, nil
+	case domain.IsKind(err, domain.NotFound):
+		return nil, nil
+	default:
+		return nil, err
+	}
 }
 
 // view returns the measurement with its hole name and derived values.

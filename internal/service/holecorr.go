@@ -86,12 +86,8 @@ func holeViews(ctx context.Context, st domain.Store, p domain.Project, hs []doma
 	c := ConventionsOf(p)
 	out := make([]HoleView, len(hs))
 	for i, h := range hs {
-		var ss *domain.SurveySet
-		set, err := st.GetSurvey(ctx, h.ID)
-		switch {
-		case err == nil:
-			ss = &set
-		case !domain.IsKind(err, domain.NotFound):
+		ss, err := surveyOf(ctx, st, h.ID)
+		if err != nil {
 			return nil, err
 		}
 		out[i] = HoleView{Hole: h, Corrections: holeCorrectionsOf(c, h, ss)}

@@ -106,30 +106,24 @@ func (s *Service) qaInput(ctx context.Context, p domain.Project, holes []domain.
 	names := make(map[int64]string, len(holes))
 	for _, h := range holes {
 		names[h.ID] = h.Name
-		var ss *domain.SurveySet
-		set, err := s.store.GetSurvey(ctx, h.ID)
-		switch {
-		case err == nil:
-			ss = &set
-		case !domain.IsKind(err, domain.NotFound):
+		ss, err := surveyOf(ctx, s.store, h.ID)
+		if err != nil {
 			return in, err
 		}
 		runs, err := s.store.ListRuns(ctx, h.ID)
 		if err != nil {
 			return in, err
 		}
-		// The hole model chooses the declination and grid convergence of the
-		// derived values; the QA stations use the very same corrections.
+		// The QA collar and stations are the hole model's path input, with
+		// the same corrections as the derived values.
 		m := newHoleModel(conv, h, ss, runs)
-		href := orDefault(h.AzimuthRef, conv.OutputAzimuthRef)
-		in.Collars = append(in.Collars, qa.Collar{HoleID: h.Name, East: h.East, North: h.North, Elevation: h.Elevation,
-			Azimuth: toOutput(h.Azimuth, href, conv.OutputAzimuthRef, m.decl, m.gc), Dip: h.Dip, Depth: h.FinalDepth})
-		if ss != nil {
-			for _, st := range ss.Stations {
-				in.Surveys = append(in.Surveys, qa.Station{HoleID: h.Name, Depth: st.Depth,
-					Azimuth: toOutput(st.Azimuth, ss.AzimuthRef, conv.OutputAzimuthRef, m.decl, m.gc), Dip: st.Dip,
-					Magnetic: ss.AzimuthRef == domain.AzimuthMagnetic})
-			}
+		c := m.collar
+		in.Collars = append(in.Collars, qa.Collar{HoleID: h.Name, East: c.East, North: c.North, Elevation: c.Elevation,
+			Azimuth: c.Azimuth, Dip: c.Dip, Depth: c.Depth})
+		magnetic := ss != nil && ss.AzimuthRef == domain.AzimuthMagnetic
+		for _, st := range m.stations {
+			in.Surveys = append(in.Surveys, qa.Station{HoleID: h.Name, Depth: st.Depth, Azimuth: st.Azimuth, Dip: st.Dip,
+				Magnetic: magnetic})
 		}
 		for _, r := range runs {
 			in.Runs = append(in.Runs, qa.OrientationRun{HoleID: h.Name, From: r.From, To: r.To, Confidence: r.Confidence,
