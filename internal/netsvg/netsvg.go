@@ -212,26 +212,7 @@ func WriteNet(w io.Writer, n Net) error {
 	// Primitive circle, centre cross, tick ring and north mark.
 	s.printf(`<circle cx="%.2f" cy="%.2f" r="%.2f" fill="none" stroke="#000" stroke-width="1.3"/>`+"\n", netCX, netCY, netR)
 	s.printf(`<path d="M%.2f %.2fh12M%.2f %.2fv12" stroke="#000" stroke-width="0.8"/>`+"\n", netCX-6, netCY, netCX, netCY-6)
-	s.printf(`<g id="ticks" stroke="#000" stroke-width="0.8">` + "\n")
-	for a := 0; a < 360; a += 10 {
-		l := 5.0
-		if a%30 == 0 {
-			l = 9
-		}
-		sa, ca := math.Sincos(geom.Rad(float64(a)))
-		s.printf(`<line x1="%.2f" y1="%.2f" x2="%.2f" y2="%.2f"/>`+"\n",
-			netCX+netR*sa, netCY-netR*ca, netCX+(netR+l)*sa, netCY-(netR+l)*ca)
-	}
-	s.printf("</g>\n")
-	s.printf(`<g font-size="10" fill="#444" text-anchor="middle">` + "\n")
-	for a := 30; a < 360; a += 30 {
-		sa, ca := math.Sincos(geom.Rad(float64(a)))
-		s.printf(`<text x="%.2f" y="%.2f">%03d</text>`+"\n", netCX+(netR+20)*sa, netCY-(netR+20)*ca+3.5, a)
-	}
-	s.printf("</g>\n")
-	// north mark: a solid arrowhead above the primitive and the letter N
-	s.printf(`<path d="M%.2f %.2fl-6 12h12z" fill="#000"/>`+"\n", netCX, netCY-netR-24)
-	s.printf(`<text x="%.2f" y="%.2f" font-size="15" font-weight="bold" text-anchor="middle">N</text>`+"\n", netCX, netCY-netR-29)
+	s.azimuthRing(` id="ticks"`)
 
 	// Great circles.
 	if len(n.Planes) > 0 {
@@ -306,6 +287,31 @@ func WriteNet(w io.Writer, n Net) error {
 		return s.err
 	}
 	return s.w.Flush()
+}
+
+// azimuthRing draws the azimuth ticks round the outer circle (every 10 deg,
+// longer every 30), their labels and the north mark (a solid arrowhead above
+// the circle and the letter N). attrs is added to the ticks' group element.
+func (s *svgw) azimuthRing(attrs string) {
+	s.printf(`<g%s stroke="#000" stroke-width="0.8">`+"\n", attrs)
+	for a := 0; a < 360; a += 10 {
+		l := 5.0
+		if a%30 == 0 {
+			l = 9
+		}
+		sa, ca := math.Sincos(geom.Rad(float64(a)))
+		s.printf(`<line x1="%.2f" y1="%.2f" x2="%.2f" y2="%.2f"/>`+"\n",
+			netCX+netR*sa, netCY-netR*ca, netCX+(netR+l)*sa, netCY-(netR+l)*ca)
+	}
+	s.printf("</g>\n")
+	s.printf(`<g font-size="10" fill="#444" text-anchor="middle">` + "\n")
+	for a := 30; a < 360; a += 30 {
+		sa, ca := math.Sincos(geom.Rad(float64(a)))
+		s.printf(`<text x="%.2f" y="%.2f">%03d</text>`+"\n", netCX+(netR+20)*sa, netCY-(netR+20)*ca+3.5, a)
+	}
+	s.printf("</g>\n")
+	s.printf(`<path d="M%.2f %.2fl-6 12h12z" fill="#000"/>`+"\n", netCX, netCY-netR-24)
+	s.printf(`<text x="%.2f" y="%.2f" font-size="15" font-weight="bold" text-anchor="middle">N</text>`+"\n", netCX, netCY-netR-29)
 }
 
 func rampColour(k, n int) string {

@@ -117,25 +117,7 @@ func WriteRose(w io.Writer, r Rose) error {
 	s.printf("</g>\n")
 	// outer circle, ticks and north mark as on the nets
 	s.printf(`<circle cx="%.2f" cy="%.2f" r="%.2f" fill="none" stroke="#000" stroke-width="1.3"/>`+"\n", netCX, netCY, netR)
-	s.printf(`<g stroke="#000" stroke-width="0.8">` + "\n")
-	for a := 0; a < 360; a += 10 {
-		l := 5.0
-		if a%30 == 0 {
-			l = 9
-		}
-		sa, ca := math.Sincos(geom.Rad(float64(a)))
-		s.printf(`<line x1="%.2f" y1="%.2f" x2="%.2f" y2="%.2f"/>`+"\n",
-			netCX+netR*sa, netCY-netR*ca, netCX+(netR+l)*sa, netCY-(netR+l)*ca)
-	}
-	s.printf("</g>\n")
-	s.printf(`<g font-size="10" fill="#444" text-anchor="middle">` + "\n")
-	for a := 30; a < 360; a += 30 {
-		sa, ca := math.Sincos(geom.Rad(float64(a)))
-		s.printf(`<text x="%.2f" y="%.2f">%03d</text>`+"\n", netCX+(netR+20)*sa, netCY-(netR+20)*ca+3.5, a)
-	}
-	s.printf("</g>\n")
-	s.printf(`<path d="M%.2f %.2fl-6 12h12z" fill="#000"/>`+"\n", netCX, netCY-netR-24)
-	s.printf(`<text x="%.2f" y="%.2f" font-size="15" font-weight="bold" text-anchor="middle">N</text>`+"\n", netCX, netCY-netR-29)
+	s.azimuthRing("")
 
 	// side panel
 	s.printf(`<text x="24" y="34" font-size="18" font-weight="bold">%s</text>`+"\n", esc(orDefault(r.Title, "Rose diagram")))
