@@ -363,6 +363,9 @@ func testMeasurements(t *testing.T, s domain.Store) {
 			bulkSeen = append(bulkSeen, x.Depth)
 		}
 	}
+	if len(bulkSeen) != len(bulk) {
+		t.Fatalf("listed %d bulk rows, want %d", len(bulkSeen), len(bulk))
+	}
 	for i := 1; i < len(bulkSeen); i++ {
 		if bulkSeen[i] <= bulkSeen[i-1] {
 			t.Fatalf("bulk rows out of input order at %d: %v after %v", i, bulkSeen[i], bulkSeen[i-1])
