@@ -57,18 +57,9 @@ func runNet(_ context.Context, env *Env, args []string) int {
 	units := fs.String("units", "mud", "density units: mud (multiples of uniform density) or sigma")
 	title := fs.String("title", "", "title on the sheet (default from the input file name)")
 	grid := fs.Int("grid", 161, "density grid nodes per side (40 to 600)")
-	if err := fs.Parse(args); err != nil {
-		if errors.Is(err, flag.ErrHelp) {
-			return ExitOK
-		}
-		return ExitUsage
-	}
-	fail := func(err error) int {
-		fmt.Fprintf(env.Stderr, "corvane net: %v\n", err)
-		return ExitUsage
-	}
-	if fs.NArg() > 0 {
-		return fail(fmt.Errorf("unexpected argument %q", fs.Arg(0)))
+	fail, code, done := parseOrientArgs(env, fs, "net", args)
+	if done {
+		return code
 	}
 	if c.out == "" {
 		return fail(errors.New("-o NET.svg is required"))

@@ -46,18 +46,9 @@ func runRose(_ context.Context, env *Env, args []string) int {
 	bin := fs.Float64("bin", 10, "bin width in degrees (must divide 180)")
 	minDip := fs.Float64("min-dip", 0, "leave out planes dipping less than this")
 	title := fs.String("title", "", "title on the sheet")
-	if err := fs.Parse(args); err != nil {
-		if errors.Is(err, flag.ErrHelp) {
-			return ExitOK
-		}
-		return ExitUsage
-	}
-	fail := func(err error) int {
-		fmt.Fprintf(env.Stderr, "corvane rose: %v\n", err)
-		return ExitUsage
-	}
-	if fs.NArg() > 0 {
-		return fail(fmt.Errorf("unexpected argument %q", fs.Arg(0)))
+	fail, code, done := parseOrientArgs(env, fs, "rose", args)
+	if done {
+		return code
 	}
 	if c.out == "" {
 		return fail(errors.New("-o ROSE.svg is required"))

@@ -503,6 +503,27 @@ func orientOut(env *Env, path string) (io.Writer, func() error, error) {
 	return f, f.Close, nil
 }
 
+// parseOrientArgs parses args for the orientation command name (stats, net or
+// rose). fail reports an error as "corvane NAME: ..." and returns ExitUsage;
+// done is true, with the exit code, when the command must stop here (help, a
+// bad flag or an unexpected argument).
+func parseOrientArgs(env *Env, fs *flag.FlagSet, name string, args []string) (fail func(error) int, code int, done bool) {
+	fail = func(err error) int {
+		fmt.Fprintf(env.Stderr, "corvane %s: %v\n", name, err)
+		return ExitUsage
+	}
+	if err := fs.Parse(args); err != nil {
+		if errors.Is(err, flag.ErrHelp) {
+			return fail, ExitOK, true
+		}
+		return fail, ExitUsage, true
+	}
+	if fs.NArg() > 0 {
+		return fail, fail(fmt.Errorf("unexpected argument %q", fs.Arg(0))), true
+	}
+	return fail, ExitOK, false
+}
+
 func runStats(_ context.Context, env *Env, args []string) int {
 	fs := flag.NewFlagSet("stats", flag.ContinueOnError)
 	fs.SetOutput(env.Stderr)
@@ -513,18 +534,9 @@ func runStats(_ context.Context, env *Env, args []string) int {
 	var c orientFlags
 	c.register(fs, true)
 	fs.StringVar(&c.of, "of", "both", "planes, lines or both (those present)")
-	if err := fs.Parse(args); err != nil {
-		if errors.Is(err, flag.ErrHelp) {
-			return ExitOK
-		}
-		return ExitUsage
-	}
-	fail := func(err error) int {
-		fmt.Fprintf(env.Stderr, "corvane stats: %v\n", err)
-		return ExitUsage
-	}
-	if fs.NArg() > 0 {
-		return fail(fmt.Errorf("unexpected argument %q", fs.Arg(0)))
+	fail, code, done := parseOrientArgs(env, fs, "stats", args)
+	if done {
+		return code
 	}
 	w, err := parseWeightingFlag(c.weighting)
 	if err != nil {
