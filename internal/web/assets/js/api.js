@@ -99,18 +99,6 @@ export async function getAll(path, params = {}) {
   return items;
 }
 
-// exists reports whether a route answers (false on 404 or 405), for features
-// the server may not offer.
-export async function available(path) {
-  try {
-    await request("GET", path, { accept: "*/*" });
-    return true;
-  } catch (e) {
-    if (e instanceof ApiError && (e.status === 404 || e.status === 405 || e.status === 501)) return false;
-    throw e;
-  }
-}
-
 // download fetches path with the token and offers the body as a file.
 export async function download(path, filename, accept) {
   const r = await request("GET", path, { accept });

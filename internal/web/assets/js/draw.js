@@ -239,7 +239,9 @@ function bounds(pts) {
   return [xmin, xmax, ymin, ymax];
 }
 
-function patterns() {
+// patternDefs holds the fill patterns of the run confidences (url(#pat-...)),
+// shared by the depth strip and the overview's bars.
+export function patternDefs() {
   const defs = el("defs");
   defs.append(el("pattern", { id: "pat-hatch", width: 6, height: 6, patternUnits: "userSpaceOnUse", patternTransform: "rotate(45)" },
     el("rect", { width: 6, height: 6, fill: CONFIDENCE.fair.fill }), el("line", { x1: 0, y1: 0, x2: 0, y2: 6, stroke: "#000", "stroke-width": 1.6 })));
@@ -265,7 +267,7 @@ export function depthStrip({ depth, runs, measurements, types, flags, unit = "m"
   const h = Math.max(520, Math.min(1600, depth * 2.2)) + 70;
   const top = 56, bottom = 14;
   const s = svg(w, h, "Depth strip: runs, measurements and QA flags");
-  s.append(patterns());
+  s.append(patternDefs());
   const Y = (d) => top + (d / Math.max(1, depth)) * (h - top - bottom);
   const step = niceStep(depth, 12);
   const ax = el("g", { class: "grid" });

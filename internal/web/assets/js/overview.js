@@ -4,7 +4,7 @@
 
 import { h, fmt, az, clear, notAvailable, problemText, add, put } from "./dom.js";
 import { runs, holePath, qaReport } from "./data.js";
-import { planView, sectionView, CONFIDENCE, confidenceFill, el, svg } from "./draw.js";
+import { planView, sectionView, CONFIDENCE, confidenceFill, el, svg, patternDefs } from "./draw.js";
 
 // orientedShare returns the length under runs of each confidence (overlaps
 // counted once, the better rating winning) and the total, in hole units.
@@ -152,15 +152,4 @@ export async function overview(ctx) {
   };
   for (const i of [azInput, thru, width]) i.addEventListener("input", draw);
   draw();
-}
-
-export function patternDefs() {
-  const defs = el("defs");
-  defs.append(el("pattern", { id: "pat-hatch", width: 6, height: 6, patternUnits: "userSpaceOnUse", patternTransform: "rotate(45)" },
-    el("rect", { width: 6, height: 6, fill: CONFIDENCE.fair.fill }), el("line", { x1: 0, y1: 0, x2: 0, y2: 6, stroke: "#000", "stroke-width": 1.6 })));
-  defs.append(el("pattern", { id: "pat-dots", width: 6, height: 6, patternUnits: "userSpaceOnUse" },
-    el("rect", { width: 6, height: 6, fill: CONFIDENCE.poor.fill }), el("circle", { cx: 3, cy: 3, r: 1.3, fill: "#000" })));
-  defs.append(el("pattern", { id: "pat-cross", width: 8, height: 8, patternUnits: "userSpaceOnUse" },
-    el("rect", { width: 8, height: 8, fill: "#fff" }), el("path", { d: "M0 0L8 8M8 0L0 8", stroke: "#555", "stroke-width": 1.2 })));
-  return defs;
 }
