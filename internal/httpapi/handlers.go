@@ -1,6 +1,7 @@
 package httpapi
 
 import (
+	"context"
 	"errors"
 	"mime"
 	"net/http"
@@ -226,6 +227,27 @@ func ids(c *gin.Context, name string) (int64, int64, error) {
 	return pid, id, err
 }
 
+// deleteVersioned deletes, with del, the row of the project named by the
+// path's project id and the id called name, at the version in If-Match, and
+// answers 204.
+func deleteVersioned(c *gin.Context, name string, del func(ctx context.Context, pid, id, version int64) error) {
+	pid, id, err := ids(c, name)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	v, err := ifMatch(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	if err := del(c.Request.Context(), pid, id, v); err != nil {
+		fail(c, err)
+		return
+	}
+	c.Status(http.StatusNoContent)
+}
+
 func (s *Server) getHole(c *gin.Context) {
 	pid, hid, err := ids(c, "hole")
 	if err != nil {
@@ -267,21 +289,7 @@ func (s *Server) updateHole(c *gin.Context) {
 }
 
 func (s *Server) deleteHole(c *gin.Context) {
-	pid, hid, err := ids(c, "hole")
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	v, err := ifMatch(c)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	if err := s.opt.Service.DeleteHole(c.Request.Context(), pid, hid, v); err != nil {
-		fail(c, err)
-		return
-	}
-	c.Status(http.StatusNoContent)
+	deleteVersioned(c, "hole", s.opt.Service.DeleteHole)
 }
 
 // ---- surveys
@@ -411,21 +419,7 @@ func (s *Server) updateRun(c *gin.Context) {
 }
 
 func (s *Server) deleteRun(c *gin.Context) {
-	pid, id, err := ids(c, "run")
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	v, err := ifMatch(c)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	if err := s.opt.Service.DeleteRun(c.Request.Context(), pid, id, v); err != nil {
-		fail(c, err)
-		return
-	}
-	c.Status(http.StatusNoContent)
+	deleteVersioned(c, "run", s.opt.Service.DeleteRun)
 }
 
 // ---- measurements
@@ -542,21 +536,7 @@ func (s *Server) updateMeasurement(c *gin.Context) {
 }
 
 func (s *Server) deleteMeasurement(c *gin.Context) {
-	pid, id, err := ids(c, "measurement")
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	v, err := ifMatch(c)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	if err := s.opt.Service.DeleteMeasurement(c.Request.Context(), pid, id, v); err != nil {
-		fail(c, err)
-		return
-	}
-	c.Status(http.StatusNoContent)
+	deleteVersioned(c, "measurement", s.opt.Service.DeleteMeasurement)
 }
 
 // trackingWriter remembers whether anything reached the client, so that a

@@ -79,24 +79,7 @@ func renderQA(c *gin.Context, rep qa.Report, title string) {
 	}
 }
 
-func (s *Server) projectQA(c *gin.Context) {
-	pid, err := pathID(c, "project")
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	opt, err := qaOptions(c)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	rep, err := s.opt.Service.QA(c.Request.Context(), pid, 0, opt)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	renderQA(c, rep, "QA of project "+itoa(pid))
-}
+func (s *Server) projectQA(c *gin.Context) { s.runProjectQA(c, false) }
 
 func (s *Server) holeQA(c *gin.Context) {
 	pid, hid, err := ids(c, "hole")
@@ -119,7 +102,11 @@ func (s *Server) holeQA(c *gin.Context) {
 
 // projectQAWith is the project QA with reference picks and magnetic zones
 // sent in the body (they are not stored).
-func (s *Server) projectQAWith(c *gin.Context) {
+func (s *Server) projectQAWith(c *gin.Context) { s.runProjectQA(c, true) }
+
+// runProjectQA runs the project QA with the options of the query and, when
+// withBody, the picks and magnetic zones of the JSON body.
+func (s *Server) runProjectQA(c *gin.Context, withBody bool) {
 	pid, err := pathID(c, "project")
 	if err != nil {
 		fail(c, err)
@@ -130,16 +117,19 @@ func (s *Server) projectQAWith(c *gin.Context) {
 		fail(c, err)
 		return
 	}
-	var in struct {
-		Picks         []qa.Pick         `json:"picks"`
-		MagneticZones []qa.MagneticZone `json:"magnetic_zones"`
+	req := service.QARequest{Options: opt}
+	if withBody {
+		var in struct {
+			Picks         []qa.Pick         `json:"picks"`
+			MagneticZones []qa.MagneticZone `json:"magnetic_zones"`
+		}
+		if err := s.decodeJSONLimit(c, &in, s.opt.MaxImportBytes); err != nil {
+			fail(c, err)
+			return
+		}
+		req.Picks, req.MagneticZones = in.Picks, in.MagneticZones
 	}
-	if err := s.decodeJSONLimit(c, &in, s.opt.MaxImportBytes); err != nil {
-		fail(c, err)
-		return
-	}
-	rep, err := s.opt.Service.QAWith(c.Request.Context(), pid, 0,
-		service.QARequest{Options: opt, Picks: in.Picks, MagneticZones: in.MagneticZones})
+	rep, err := s.opt.Service.QAWith(c.Request.Context(), pid, 0, req)
 	if err != nil {
 		fail(c, err)
 		return
