@@ -113,34 +113,3 @@ export async function download(path, filename, accept) {
   setTimeout(() => URL.revokeObjectURL(url), 10000);
   return r.data;
 }
-
-let doc = null;
-
-// offers reports whether the server's OpenAPI document lists the path
-// template (e.g. "/v1/projects/{project}/qa"), so the page never probes routes
-// the server does not have. The document is YAML; the page reads only the
-// path keys (two-space indented lines under "paths:"). Without a document it
-// answers null.
-export async function offers(template) {
-  if (doc === null) {
-    doc = fetch("/openapi.yaml", { headers: { Accept: "application/yaml" }, cache: "no-store" })
-      .then((r) => (r.ok ? r.text() : undefined))
-      .then((text) => {
-        if (!text) return undefined;
-        const paths = new Set();
-        let inPaths = false;
-        for (const line of text.split("\n")) {
-          if (/^\S/.test(line)) inPaths = line.startsWith("paths:");
-          else if (inPaths) {
-            const m = /^  (\/[^:\s]*):\s*$/.exec(line);
-            if (m) paths.add(m[1]);
-          }
-        }
-        return paths;
-      })
-      .catch(() => undefined);
-  }
-  const paths = await doc;
-  if (!paths) return null;
-  return paths.has(template);
-}

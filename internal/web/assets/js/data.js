@@ -1,7 +1,7 @@
 // data.js: reads of a programme the views share: surveys, runs, hole paths,
 // live conversion, measurement lists. Everything derived comes from the server.
 
-import { get, getAll, request, query, offers, ApiError } from "./api.js";
+import { get, getAll, request, query, ApiError } from "./api.js";
 
 const surveys = new Map();
 
@@ -81,26 +81,7 @@ export function measurements(pid, filter = {}) {
   return getAll(`/v1/projects/${pid}/measurements`, filter);
 }
 
-let qaRoute = null;
-
-// qaReport returns the QA report of the programme (or one hole), or null when
-// the server offers no QA.
-export async function qaReport(pid, holeId, params = {}) {
-  if (qaRoute === null) {
-    const t = holeId ? "/v1/projects/{project}/holes/{hole}/qa" : "/v1/projects/{project}/qa";
-    if ((await offers(t)) === false) return null;
-  }
-  if (qaRoute === false) return null;
-  try {
-    const r = await get((holeId ? `/v1/projects/${pid}/holes/${holeId}/qa` : `/v1/projects/${pid}/qa`) + query(params));
-    qaRoute = true;
-    return r;
-  } catch (e) {
-    if (e instanceof ApiError && (e.status === 404 || e.status === 405) && (qaRoute === null || !holeId)) {
-      // a 404 on the programme route means the server has no QA
-      if (!holeId) qaRoute = false;
-      return null;
-    }
-    throw e;
-  }
+// qaReport returns the QA report of the programme, or of one hole.
+export function qaReport(pid, holeId, params = {}) {
+  return get((holeId ? `/v1/projects/${pid}/holes/${holeId}/qa` : `/v1/projects/${pid}/qa`) + query(params));
 }

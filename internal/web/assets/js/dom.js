@@ -53,13 +53,6 @@ export function problemText(err) {
   return t;
 }
 
-// notAvailable is the state of a view whose API the server does not offer.
-export function notAvailable(what) {
-  return h("div", { class: "msg unavailable", "data-state": "not-available" },
-    h("strong", {}, "Not available. "),
-    `This server does not offer ${what}. Nothing is shown rather than a guess.`);
-}
-
 // add appends children to node, leaving out null, undefined and false (which
 // Element.append would write as text).
 export function add(node, ...children) {

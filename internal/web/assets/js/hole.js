@@ -3,7 +3,7 @@
 // the server's filters), export of the current filter to CSV, and the survey.
 
 import { download, query } from "./api.js";
-import { h, fmt, az, clear, say, notAvailable, problemText, add, put } from "./dom.js";
+import { h, fmt, az, say, problemText, add, put } from "./dom.js";
 import { survey, runs, measurements, qaReport } from "./data.js";
 import { depthStrip, CONFIDENCE, styleFor } from "./draw.js";
 import { shapeKey } from "./logging.js";
@@ -62,8 +62,7 @@ export async function holeView(ctx, holeId) {
     qaReport(p.id, ho.id).catch((e) => ({ error: e })),
   ]);
   if (!ctx.isCurrent()) return;
-  const qaOk = qa && !qa.error;
-  const flags = qaOk ? (qa.findings || []).filter((x) => !x.hole_id || x.hole_id === ho.name) : [];
+  const flags = !qa.error ? (qa.findings || []).filter((x) => !x.hole_id || x.hole_id === ho.name) : [];
 
   const typesUsed = p.types.filter((t) => all.some((m) => m.type === t.code));
   const highlightM = params.get("m");
@@ -81,7 +80,7 @@ export async function holeView(ctx, holeId) {
     h("p", { class: "legend" }, "Runs: ", Object.entries(CONFIDENCE).map(([k, v]) => h("span", { class: "key" }, h("span", { class: `swatch conf-${k}` }), v.label))),
     h("p", { class: "legend" }, typesUsed.map((t, i) => h("span", { class: "key" }, shapeKey(styleFor(i)), t.code))),
     h("p", { class: "legend" }, "QA: ", h("span", { class: "key" }, h("span", { class: "flagkey flag" }), "flag"), h("span", { class: "key" }, h("span", { class: "flagkey warning" }), "warning"), h("span", { class: "key" }, h("span", { class: "flagkey info" }), "note")),
-    qaOk ? null : (qa && qa.error ? h("p", { class: "msg bad" }, "QA could not be read: " + problemText(qa.error)) : notAvailable("QA reports, so no flags are drawn")));
+    qa.error ? h("p", { class: "msg bad" }, "QA could not be read: " + problemText(qa.error)) : null);
 
   // Filters: exactly the server's measurement filters, so the table and the
   // CSV export always hold the same rows.

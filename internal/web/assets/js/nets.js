@@ -2,10 +2,8 @@
 // weighting. The net and the statistics come from the server; the SVG can be
 // downloaded as it was served.
 
-import { request, query, offers, ApiError } from "./api.js";
-import { h, fmt, az, clear, say, notAvailable, problemText, add, put } from "./dom.js";
-import { measurements } from "./data.js";
-import { smallNet, styleFor } from "./draw.js";
+import { request, query } from "./api.js";
+import { h, fmt, az, say, problemText, add, put } from "./dom.js";
 
 function showSvg(host, text, label) {
   const url = URL.createObjectURL(new Blob([text], { type: "image/svg+xml" }));
@@ -14,15 +12,9 @@ function showSvg(host, text, label) {
   put(host, img);
 }
 
-async function svgFrom(path, template) {
-  if ((await offers(template)) === false) return null;
-  try {
-    const r = await request("GET", path, { accept: "image/svg+xml" });
-    return r.data;
-  } catch (e) {
-    if (e instanceof ApiError && (e.status === 404 || e.status === 405)) return null;
-    throw e;
-  }
+async function svgFrom(path) {
+  const r = await request("GET", path, { accept: "image/svg+xml" });
+  return r.data;
 }
 
 function meanOf(u, kind) {
@@ -145,51 +137,26 @@ export async function netsView(ctx) {
   const fq = filterOf(sel);
   const netQ = query({ ...fq, density: sel.show.includes("density") ? "true" : "", planes: sel.show.includes("planes") ? "true" : "", projection: sel.projection });
   const statQ = query({ ...fq, terzaghi: sel.weighting === "terzaghi" ? "true" : "", sets: sel.sets === "0" ? "" : sel.sets });
-  const [netSvg, roseSvg, stats, rows] = await Promise.all([
-    svgFrom(`/v1/projects/${p.id}/net${netQ}`, "/v1/projects/{project}/net").catch((e) => ({ error: e })),
-    svgFrom(`/v1/projects/${p.id}/rose${query({ ...fq, of: sel.rose })}`, "/v1/projects/{project}/rose").catch((e) => ({ error: e })),
-    offers("/v1/projects/{project}/statistics").then((ok) => ok === false
-      ? { error: new ApiError(404, { title: "not offered" }) }
-      : request("GET", `/v1/projects/${p.id}/statistics${statQ}`).then((r) => r.data)).catch((e) => ({ error: e })),
-    measurements(p.id, fq),
+  const [netSvg, roseSvg, stats] = await Promise.all([
+    svgFrom(`/v1/projects/${p.id}/net${netQ}`).catch((e) => ({ error: e })),
+    svgFrom(`/v1/projects/${p.id}/rose${query({ ...fq, of: sel.rose })}`).catch((e) => ({ error: e })),
+    request("GET", `/v1/projects/${p.id}/statistics${statQ}`).then((r) => r.data).catch((e) => ({ error: e })),
   ]);
   if (!ctx.isCurrent()) return;
 
-  if (netSvg && netSvg.error) {
+  if (netSvg.error) {
     put(netHost, h("p", { class: "msg bad" }, "The net could not be drawn: " + problemText(netSvg.error)));
-  } else if (typeof netSvg === "string") {
+  } else {
     lastSvg = netSvg;
     showSvg(netHost, netSvg, "Equal-area net of the selection, as served");
-  } else {
-    // The server has no net route: show the server-derived poles on the
-    // page's own small net and say so.
-    const byType = new Map();
-    for (const m of rows) {
-      const d = m.derived || {};
-      if (!Number.isFinite(d.pole_plunge)) continue;
-      if (!byType.has(m.type)) byType.set(m.type, []);
-      byType.get(m.type).push({ trend: d.pole_trend ?? 0, plunge: d.pole_plunge });
-    }
-    const codes = p.types.map((t) => t.code);
-    const net = smallNet([...byType.entries()].map(([c, poles]) => ({ label: c, style: styleFor(Math.max(0, codes.indexOf(c))), poles })), { size: 420, label: "Poles of the selection, equal-area, lower hemisphere" });
-    lastSvg = new XMLSerializer().serializeToString(net);
-    put(netHost, notAvailable("nets with planes and density"), net, h("p", { class: "help" }, "Poles only, drawn by this page from the derived values."));
   }
 
-  if (roseSvg && roseSvg.error) {
+  if (roseSvg.error) {
     put(roseHost, h("p", { class: "msg bad" }, problemText(roseSvg.error)));
-  } else if (typeof roseSvg === "string") {
+  } else {
     lastRose = roseSvg;
     showSvg(roseHost, roseSvg, `Rose diagram of the ${sel.rose === "strike" ? "strikes" : "dip directions"} of the selection, as served`);
-  } else {
-    put(roseHost, notAvailable("rose diagrams"));
   }
 
-  if (stats && stats.error) {
-    const e = stats.error;
-    add(statsHost, e instanceof ApiError && (e.status === 404 || e.status === 405) ? notAvailable("set statistics") : h("p", { class: "msg bad" }, problemText(e)));
-  } else {
-    add(statsHost, statsTable(stats));
-  }
-  add(statsHost, h("p", { class: "help" }, `${rows.length} measurements in the selection.`));
+  add(statsHost, stats.error ? h("p", { class: "msg bad" }, problemText(stats.error)) : statsTable(stats));
 }

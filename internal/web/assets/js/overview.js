@@ -2,7 +2,7 @@
 // oriented core and QA flags; a plan and a section drawn from the
 // desurveyed paths.
 
-import { h, fmt, az, clear, notAvailable, problemText, add, put } from "./dom.js";
+import { h, fmt, az, clear, problemText, add, put } from "./dom.js";
 import { runs, holePath, qaReport } from "./data.js";
 import { planView, sectionView, CONFIDENCE, confidenceFill, el, svg, patternDefs } from "./draw.js";
 
@@ -69,7 +69,7 @@ export async function overview(ctx) {
   ]);
   if (!ctx.isCurrent()) return;
   const flagsBy = new Map();
-  const qaOk = qa && !qa.error;
+  const qaOk = !qa.error;
   if (qaOk) for (const f of qa.findings || []) {
     if (f.severity === "info" || !f.hole_id) continue;
     const c = flagsBy.get(f.hole_id) || { flag: 0, warning: 0 };
@@ -101,7 +101,7 @@ export async function overview(ctx) {
         h("th", { scope: "col" }, "Oriented core"), h("th", { scope: "col" }, "QA flags"), h("th", { scope: "col" }, h("span", { class: "sr" }, "Actions")))),
       h("tbody", {}, rows))),
     legendConfidence(),
-    qaOk ? null : (qa && qa.error ? h("p", { class: "msg bad" }, "QA could not be read: " + problemText(qa.error)) : notAvailable("QA reports, so flag counts are not shown")));
+    qa.error ? h("p", { class: "msg bad" }, "QA could not be read: " + problemText(qa.error)) : null);
 
   let paths;
   try {

@@ -2,7 +2,7 @@
 // to the measurement, run or survey station it concerns. QA changes nothing:
 // it points at data worth a second look.
 
-import { h, fmt, clear, notAvailable, problemText, add, put } from "./dom.js";
+import { h, fmt, problemText, add, put } from "./dom.js";
 import { qaReport } from "./data.js";
 import { query } from "./api.js";
 
@@ -50,10 +50,6 @@ export async function qaView(ctx) {
     return;
   }
   if (!ctx.isCurrent()) return;
-  if (!rep) {
-    put(body, notAvailable("QA reports"));
-    return;
-  }
   const byName = new Map(p.holes.map((x) => [x.name, x]));
   const findings = (rep.findings || []).filter((f) => !onlyHole || !f.hole_id || f.hole_id === onlyHole);
   const sum = rep.summary || {};
