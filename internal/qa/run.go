@@ -270,17 +270,7 @@ func checkHole(h *holeData, conv coreangle.Convention, o Options, loggers map[st
 		s.Azimuth = geom.NormAzimuth(s.Azimuth)
 		good = append(good, s)
 	}
-	unit := desurvey.Metres
-	if o.Feet {
-		unit = desurvey.Feet
-	}
-	dc := desurvey.Collar{East: h.c.East, North: h.c.North, Elevation: h.c.Elevation,
-		Azimuth: geom.NormAzimuth(h.c.Azimuth), Dip: h.c.Dip, Depth: h.c.Depth}
-	ds := make([]desurvey.Station, len(good))
-	for i, s := range good {
-		ds[i] = desurvey.Station{Depth: s.Depth, Azimuth: s.Azimuth, Dip: s.Dip}
-	}
-	path, err := desurvey.NewWith(dc, ds, desurvey.Options{Unit: unit})
+	path, err := holePath(h.c, good, o.Feet)
 	if err != nil {
 		out = append(out, Finding{Check: CheckSurveyInvalid, Severity: SeverityFlag, HoleID: id, Source: "collars", Line: h.c.Line,
 			Message: fmt.Sprintf("hole %s cannot be desurveyed (%v): its measurements are not checked", id, err)})
@@ -289,7 +279,7 @@ func checkHole(h *holeData, conv coreangle.Convention, o Options, loggers map[st
 		return out
 	}
 	h.path = path
-	out = append(out, surveyChecks(h.c, good, h.zones, o, hr)...)
+	out = append(out, surveyChecks(h.c, good, path, h.zones, o, hr)...)
 
 	// Runs: leave out the ones without a usable interval.
 	okRuns := h.runs[:0]
@@ -337,4 +327,21 @@ func collarProblem(c Collar) string {
 		return fmt.Sprintf("a dip of %g, outside -90..90", c.Dip)
 	}
 	return ""
+}
+
+// holePath desurveys a hole by minimum curvature from its collar and its
+// usable stations (sorted, strictly increasing depths, azimuths folded), in
+// feet or metres.
+func holePath(c Collar, stations []Station, feet bool) (*desurvey.Path, error) {
+	unit := desurvey.Metres
+	if feet {
+		unit = desurvey.Feet
+	}
+	dc := desurvey.Collar{East: c.East, North: c.North, Elevation: c.Elevation,
+		Azimuth: geom.NormAzimuth(c.Azimuth), Dip: c.Dip, Depth: c.Depth}
+	ds := make([]desurvey.Station, len(stations))
+	for i, s := range stations {
+		ds[i] = desurvey.Station{Depth: s.Depth, Azimuth: s.Azimuth, Dip: s.Dip}
+	}
+	return desurvey.NewWith(dc, ds, desurvey.Options{Unit: unit})
 }

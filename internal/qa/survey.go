@@ -5,6 +5,7 @@ import (
 	"math"
 	"sort"
 
+	"corvane/internal/desurvey"
 	"corvane/internal/geom"
 )
 
@@ -19,13 +20,6 @@ func slerp(a, b geom.Vec3, f float64) geom.Vec3 {
 	}
 	s := math.Sin(w)
 	return a.Scale(math.Sin((1-f)*w) / s).Add(b.Scale(math.Sin(f*w) / s)).Unit()
-}
-
-// dogleg returns the angle in degrees between unit directions a and b as
-// 2 atan2(|b - a|, |b + a|), better conditioned than acos of the dot product
-// (Sawaryn & Thorogood 2005).
-func dogleg(a, b geom.Vec3) float64 {
-	return geom.Deg(2 * math.Atan2(b.Sub(a).Norm(), b.Add(a).Norm()))
 }
 
 // median returns the median of xs, sorting a copy; NaN when empty.
@@ -80,7 +74,7 @@ func looResiduals(depths []float64, dirs []geom.Vec3) (res []float64, pred []geo
 // surveyChecks runs the survey checks on one hole. stations must be sorted
 // by depth with strictly increasing depths. It fills the hole's station
 // reports and scatter and returns the findings.
-func surveyChecks(c Collar, stations []Station, zones []MagneticZone, o Options, hr *HoleReport) []Finding {
+func surveyChecks(c Collar, stations []Station, path *desurvey.Path, zones []MagneticZone, o Options, hr *HoleReport) []Finding {
 	var out []Finding
 	per, unit := 30.0, "deg/30 m"
 	if o.Feet {
@@ -105,28 +99,24 @@ func surveyChecks(c Collar, stations []Station, zones []MagneticZone, o Options,
 		return out
 	}
 
-	// Dogleg severity per interval, the collar standing in at depth 0 when no
-	// station is there (conventions: hole path).
-	prevD, prevDir := 0.0, collarDir
-	for i := range stations {
-		if depths[i] <= 0 {
-			prevD, prevDir = depths[i], dirs[i]
-			continue
-		}
-		dl := dogleg(prevDir, dirs[i])
-		dls := dl / (depths[i] - prevD) * per
+	// Dogleg severity per interval of the hole's path, the collar standing in
+	// at depth 0 when no station is there (conventions: hole path); interval
+	// k ends at station k + skip.
+	ivs := path.Intervals()
+	skip := len(stations) - len(ivs)
+	for k, iv := range ivs {
+		i := k + skip
+		dls := iv.Severity
 		if math.IsInf(dls, 0) || math.IsNaN(dls) { // stations a hair apart
-			prevD, prevDir = depths[i], dirs[i]
 			continue
 		}
 		hr.Stations[i].DLS = dls
 		if dls > o.DoglegThreshold {
 			out = append(out, Finding{Check: CheckDogleg, Severity: SeverityWarning, HoleID: c.HoleID,
-				Depth: prevD, DepthTo: depths[i], Size: dls, Unit: unit, Source: "surveys", Line: stations[i].Line, Station: i + 1,
+				Depth: iv.From, DepthTo: iv.To, Size: dls, Unit: unit, Source: "surveys", Line: stations[i].Line, Station: i + 1,
 				Message: fmt.Sprintf("dogleg severity %.2f %s between %.1f and %.1f exceeds %.2f %s (dogleg %.2f deg)",
-					dls, unit, prevD, depths[i], o.DoglegThreshold, unit, dl)})
+					dls, unit, iv.From, iv.To, o.DoglegThreshold, unit, iv.Dogleg)})
 		}
-		prevD, prevDir = depths[i], dirs[i]
 	}
 
 	// Leave-one-out: each station against the arc through its neighbours.
@@ -185,7 +175,7 @@ func surveyChecks(c Collar, stations []Station, zones []MagneticZone, o Options,
 	}
 
 	// Gaps, from the collar to the first station and between stations.
-	prevD = 0
+	prevD := 0.0
 	for i := range stations {
 		if g := depths[i] - prevD; g > o.GapThreshold {
 			out = append(out, Finding{Check: CheckSurveyGap, Severity: SeverityWarning, HoleID: c.HoleID,

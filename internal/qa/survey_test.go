@@ -1,6 +1,7 @@
 package qa
 
 import (
+	"math"
 	"math/rand/v2"
 	"testing"
 )
@@ -18,6 +19,17 @@ func arcSurvey(hole string, az, dip0, rate, step, depth, noise float64, r *rand.
 	return st
 }
 
+// surveyOf runs the survey checks with the default options on a hole
+// desurveyed from c and st as Run does.
+func surveyOf(t *testing.T, c Collar, st []Station, zones []MagneticZone, hr *HoleReport) []Finding {
+	t.Helper()
+	p, err := holePath(c, st, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return surveyChecks(c, st, p, zones, DefaultOptions(), hr)
+}
+
 func checks(fs []Finding, check string) []Finding {
 	var out []Finding
 	for _, f := range fs {
@@ -33,14 +45,14 @@ func TestSurveyCleanArcRaisesNothing(t *testing.T) {
 	c := Collar{HoleID: "A", Azimuth: 45, Dip: -60, Depth: 310}
 	st := arcSurvey("A", 45, -60, 2.5, 30, 300, 0.1, r)
 	var hr HoleReport
-	fs := surveyChecks(c, st, nil, DefaultOptions(), &hr)
+	fs := surveyOf(t, c, st, nil, &hr)
 	if len(fs) != 0 {
 		t.Errorf("clean arc raised %d findings: %+v", len(fs), fs)
 	}
 	// Without noise every interior residual is ~0: minimum curvature
 	// reproduces a circular arc exactly.
 	st = arcSurvey("A", 45, -60, 2.5, 30, 300, 0, r)
-	surveyChecks(c, st, nil, DefaultOptions(), &hr)
+	surveyOf(t, c, st, nil, &hr)
 	for _, s := range hr.Stations[1 : len(hr.Stations)-1] {
 		if s.Residual > 1e-9 {
 			t.Errorf("residual at %v = %v on an exact arc", s.Depth, s.Residual)
@@ -56,7 +68,7 @@ func TestSurveyShiftedShot(t *testing.T) {
 	st := arcSurvey("B", 120, -55, 1.5, 30, 390, 0.1, r)
 	st[6].Azimuth += 2.5 // 210 m
 	var hr HoleReport
-	fs := surveyChecks(c, st, nil, DefaultOptions(), &hr)
+	fs := surveyOf(t, c, st, nil, &hr)
 	out := checks(fs, CheckSurveyOutlier)
 	if len(out) != 1 || out[0].Depth != 210 || out[0].Station != 7 {
 		t.Fatalf("outliers %+v, want one at 210, station 7", out)
@@ -75,9 +87,18 @@ func TestSurveyOtherChecks(t *testing.T) {
 	st[len(st)-3].Magnetic = true                    // 240 m
 	zones := []MagneticZone{{HoleID: "C", From: 230, To: 250}}
 	var hr HoleReport
-	fs := surveyChecks(c, st, zones, DefaultOptions(), &hr)
-	if n := len(checks(fs, CheckDogleg)); n < len(st)-2 {
-		t.Errorf("dogleg findings %d, want one per interval of %d", n, len(st))
+	fs := surveyOf(t, c, st, zones, &hr)
+	// Constant azimuth and dip changing 4 deg per 30 m: every interval from
+	// the second station on, the gap included, is an arc of 4 deg/30 m
+	// (exact geometry); the two intervals at the first station also turn 40
+	// deg of azimuth. All exceed the default 3.
+	if n := len(checks(fs, CheckDogleg)); n != len(st) {
+		t.Errorf("dogleg findings %d, want one per interval, %d", n, len(st))
+	}
+	for _, s := range hr.Stations[2:] {
+		if math.Abs(s.DLS-4) > 1e-9 {
+			t.Errorf("dogleg severity at %v = %v deg/30 m, want 4", s.Depth, s.DLS)
+		}
 	}
 	if g := checks(fs, CheckSurveyGap); len(g) != 1 || g[0].Depth != 120 || g[0].DepthTo != 210 {
 		t.Errorf("gaps %+v", g)
@@ -105,9 +126,9 @@ func TestSurveyOutlierRates(t *testing.T) {
 			c := Collar{HoleID: "A", Azimuth: 45, Dip: -60, Depth: depth}
 			st := arcSurvey("A", 45, -60, 1.5, 30, depth, 0.2, r)
 			var hr HoleReport
-			falseFlags += len(checks(surveyChecks(c, st, nil, DefaultOptions(), &hr), CheckSurveyOutlier))
+			falseFlags += len(checks(surveyOf(t, c, st, nil, &hr), CheckSurveyOutlier))
 			st[2].Azimuth += 5
-			for _, f := range checks(surveyChecks(c, st, nil, DefaultOptions(), &hr), CheckSurveyOutlier) {
+			for _, f := range checks(surveyOf(t, c, st, nil, &hr), CheckSurveyOutlier) {
 				if f.Depth == 90 {
 					found++
 				}
