@@ -4,10 +4,10 @@ import (
 	"bytes"
 	"context"
 	"flag"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
-	"reflect"
 	"sort"
 	"testing"
 
@@ -52,7 +52,7 @@ func TestCommittedCSV(t *testing.T) {
 
 func TestDeterministicAndShaped(t *testing.T) {
 	a, b := Programme(), Programme()
-	if !reflect.DeepEqual(len(a.Structures), len(b.Structures)) || a.Structures[17].Beta != b.Structures[17].Beta || a.Surveys[5] != b.Surveys[5] {
+	if len(a.Structures) != len(b.Structures) || a.Structures[17].Beta != b.Structures[17].Beta || a.Surveys[5] != b.Surveys[5] {
 		t.Fatal("Programme is not deterministic")
 	}
 	if len(a.Collars) != 8 || len(a.Structures) < 200 || len(a.Structures) > 800 {
@@ -108,11 +108,16 @@ func TestConvertRecoversSets(t *testing.T) {
 	col := func(n string) int { return sr.Header.Index(n) }
 	var misfit []float64
 	sums := map[string]geom.Vec3{}
+	rows := 0
 	for i := 0; ; i++ {
 		row, err := sr.Next()
-		if err != nil {
+		if err == io.EOF {
 			break
 		}
+		if err != nil {
+			t.Fatalf("converted row %d: %v", i+1, err)
+		}
+		rows++
 		dip, _ := csvio.ParseNumber(row.Record[col("dip")])
 		dd, _ := csvio.ParseNumber(row.Record[col("dip_direction")])
 		got := geom.Plane{Dip: dip, DipDirection: dd}
@@ -125,6 +130,9 @@ func TestConvertRecoversSets(t *testing.T) {
 			n = n.Neg()
 		}
 		sums[s.Set] = sums[s.Set].Add(n)
+	}
+	if rows != len(d.Structures) {
+		t.Fatalf("read back %d converted rows, want %d", rows, len(d.Structures))
 	}
 	sort.Float64s(misfit)
 	if med := misfit[len(misfit)/2]; med > 4 {
