@@ -7,6 +7,7 @@ import (
 	"github.com/jackc/pgx/v5"
 
 	"corvane/internal/domain"
+	"corvane/internal/store/storekit"
 )
 
 const holeCols = `id, project_id, name, easting, northing, elevation, azimuth, azimuth_ref, dip, final_depth,
@@ -36,7 +37,7 @@ func scanHole(r scanner) (domain.Hole, error) {
 
 // CreateHole inserts h and sets its ID, version and timestamps.
 func (s *Store) CreateHole(ctx context.Context, h *domain.Hole) error {
-	t := now()
+	t := storekit.Now()
 	return s.write(ctx, func(q querier) error {
 		err := q.QueryRow(ctx, insertHole, h.ProjectID, h.Name, h.East, h.North, h.Elevation, h.Azimuth,
 			h.AzimuthRef, h.Dip, h.FinalDepth, h.CRS, h.Started, h.Finished, t, t).Scan(&h.ID)
@@ -72,7 +73,7 @@ func (s *Store) ListHoles(ctx context.Context, projectID int64, page domain.Page
 
 // UpdateHole writes h over the row at version ifVersion.
 func (s *Store) UpdateHole(ctx context.Context, h *domain.Hole, ifVersion int64) error {
-	t := now()
+	t := storekit.Now()
 	return s.write(ctx, func(q querier) error {
 		err := q.QueryRow(ctx, updateHole, h.Name, h.East, h.North, h.Elevation, h.Azimuth, h.AzimuthRef, h.Dip,
 			h.FinalDepth, h.CRS, h.Started, h.Finished, t, h.ID, ifVersion).Scan(&h.Version)

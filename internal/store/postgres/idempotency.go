@@ -5,6 +5,7 @@ import (
 	"time"
 
 	"corvane/internal/domain"
+	"corvane/internal/store/storekit"
 )
 
 const (
@@ -28,7 +29,7 @@ func (s *Store) GetIdempotency(ctx context.Context, projectID int64, key string)
 // PutIdempotency remembers r; Conflict when the key is taken.
 func (s *Store) PutIdempotency(ctx context.Context, r domain.Idempotency) error {
 	if r.CreatedAt.IsZero() {
-		r.CreatedAt = now()
+		r.CreatedAt = storekit.Now()
 	}
 	return s.write(ctx, func(q querier) error {
 		_, err := q.Exec(ctx, insertIdempotency, r.ProjectID, r.Key, r.RequestHash, []byte(r.Result), r.CreatedAt)

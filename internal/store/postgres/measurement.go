@@ -8,6 +8,7 @@ import (
 	"time"
 
 	"corvane/internal/domain"
+	"corvane/internal/store/storekit"
 )
 
 const measurementCols = `id, project_id, hole_id, depth, alpha, beta, gamma, type_code, apparent_thickness,
@@ -68,8 +69,8 @@ func where(f domain.MeasurementFilter) (string, []any) {
 
 func insertOne(ctx context.Context, q querier, m *domain.Measurement, t time.Time) error {
 	m.LoggedAt = m.LoggedAt.UTC().Truncate(time.Microsecond)
-	err := q.QueryRow(ctx, insertMeasurement, m.ProjectID, m.HoleID, m.Depth, m.Alpha, m.Beta, nullFloat(m.Gamma),
-		m.TypeCode, nullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, m.LoggedAt, t, t).Scan(&m.ID)
+	err := q.QueryRow(ctx, insertMeasurement, m.ProjectID, m.HoleID, m.Depth, m.Alpha, m.Beta, storekit.NullFloat(m.Gamma),
+		m.TypeCode, storekit.NullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, m.LoggedAt, t, t).Scan(&m.ID)
 	if err != nil {
 		return translate(err)
 	}
@@ -79,7 +80,7 @@ func insertOne(ctx context.Context, q querier, m *domain.Measurement, t time.Tim
 
 // CreateMeasurement inserts m and sets its ID, version and timestamps.
 func (s *Store) CreateMeasurement(ctx context.Context, m *domain.Measurement) error {
-	t := now()
+	t := storekit.Now()
 	return s.write(ctx, func(q querier) error { return insertOne(ctx, q, m, t) })
 }
 
@@ -107,7 +108,7 @@ func (s *Store) CreateMeasurements(ctx context.Context, ms []domain.Measurement)
 	if len(ms) == 0 {
 		return 0, nil
 	}
-	t := now()
+	t := storekit.Now()
 	var n int64
 	err := s.write(ctx, func(q querier) error {
 		if _, err := q.Exec(ctx, createStaging); err != nil {
@@ -175,11 +176,11 @@ func (s *Store) CountMeasurements(ctx context.Context, f domain.MeasurementFilte
 
 // UpdateMeasurement writes m over the row at version ifVersion.
 func (s *Store) UpdateMeasurement(ctx context.Context, m *domain.Measurement, ifVersion int64) error {
-	t := now()
+	t := storekit.Now()
 	m.LoggedAt = m.LoggedAt.UTC().Truncate(time.Microsecond)
 	return s.write(ctx, func(q querier) error {
-		err := q.QueryRow(ctx, updateMeasurement, m.HoleID, m.Depth, m.Alpha, m.Beta, nullFloat(m.Gamma),
-			m.TypeCode, nullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, m.LoggedAt,
+		err := q.QueryRow(ctx, updateMeasurement, m.HoleID, m.Depth, m.Alpha, m.Beta, storekit.NullFloat(m.Gamma),
+			m.TypeCode, storekit.NullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, m.LoggedAt,
 			t, m.ID, ifVersion).Scan(&m.Version)
 		if err == pgx.ErrNoRows {
 			return versionGone(ctx, q, "measurements", "measurement", m.ID, ifVersion)

@@ -19,6 +19,7 @@ import (
 	"github.com/jackc/pgx/v5/pgxpool"
 
 	"corvane/internal/domain"
+	"corvane/internal/store/storekit"
 	"corvane/migrations"
 )
 
@@ -85,48 +86,18 @@ func newMigrate(dbURL string) (*migrate.Migrate, error) {
 // Migrate moves the schema: steps > 0 applies that many up migrations, steps
 // < 0 rolls that many back, steps == 0 applies all up migrations.
 func Migrate(dbURL string, steps int) error {
-	m, err := newMigrate(dbURL)
-	if err != nil {
-		return err
-	}
-	defer m.Close()
-	if steps == 0 {
-		err = m.Up()
-	} else {
-		err = m.Steps(steps)
-	}
-	if errors.Is(err, migrate.ErrNoChange) {
-		return nil
-	}
-	return err
+	return storekit.Migrate(func() (*migrate.Migrate, error) { return newMigrate(dbURL) }, steps)
 }
 
 // MigrateDownAll rolls back every migration.
 func MigrateDownAll(dbURL string) error {
-	m, err := newMigrate(dbURL)
-	if err != nil {
-		return err
-	}
-	defer m.Close()
-	if err := m.Down(); err != nil && !errors.Is(err, migrate.ErrNoChange) {
-		return err
-	}
-	return nil
+	return storekit.MigrateDownAll(func() (*migrate.Migrate, error) { return newMigrate(dbURL) })
 }
 
 // Version reports the schema version and whether a failed migration left it
 // dirty; 0 when no migration has run.
 func Version(dbURL string) (version uint, dirty bool, err error) {
-	m, err := newMigrate(dbURL)
-	if err != nil {
-		return 0, false, err
-	}
-	defer m.Close()
-	v, d, err := m.Version()
-	if errors.Is(err, migrate.ErrNilVersion) {
-		return 0, false, nil
-	}
-	return v, d, err
+	return storekit.Version(func() (*migrate.Migrate, error) { return newMigrate(dbURL) })
 }
 
 // Redact returns u with any password replaced by "xxxxx".
@@ -190,64 +161,43 @@ func (s *Store) write(ctx context.Context, fn func(q querier) error) error {
 
 // translate turns driver errors into *domain.Error once.
 func translate(err error) error {
-	if err == nil {
-		return nil
-	}
-	var de *domain.Error
-	if errors.As(err, &de) {
-		return err
-	}
-	if errors.Is(err, pgx.ErrNoRows) {
-		return domain.Errorf(domain.NotFound, "not found")
-	}
+	return storekit.Translate(err, "postgres", pgx.ErrNoRows, violation)
+}
+
+// violation classes the SQLSTATE of a PostgreSQL error.
+func violation(err error) storekit.Violation {
 	var pe *pgconn.PgError
-	if errors.As(err, &pe) {
-		switch pe.Code {
-		case "23505":
-			return domain.Errorf(domain.Conflict, "already exists: %w", err)
-		case "23503":
-			return domain.Errorf(domain.Conflict, "refers to a missing row or is still referenced: %w", err)
-		case "23514", "23502", "22P02", "22003":
-			return domain.Errorf(domain.Invalid, "breaks a rule of the schema: %w", err)
-		}
+	if !errors.As(err, &pe) {
+		return storekit.None
 	}
-	return domain.Errorf(domain.Internal, "postgres: %w", err)
+	switch pe.Code {
+	case "23505":
+		return storekit.Unique
+	case "23503":
+		return storekit.ForeignKey
+	case "23514", "23502", "22P02", "22003":
+		return storekit.Rule
+	}
+	return storekit.None
 }
 
-func notFound(entity string, key any) error {
-	return domain.Errorf(domain.NotFound, "%s %v not found", entity, key)
-}
-
+// one translates the error of a single-row read, naming what was missing.
 func one(err error, entity string, key any) error {
 	if errors.Is(err, pgx.ErrNoRows) {
-		return notFound(entity, key)
+		return storekit.NotFound(entity, key)
 	}
 	return translate(err)
 }
 
+// versionGone explains why a version-checked update or delete touched no
+// row: the row is missing (NotFound) or has another version.
 func versionGone(ctx context.Context, q querier, table, entity string, id any, ifVersion int64) error {
 	var v int64
-	err := q.QueryRow(ctx, "SELECT version FROM "+table+" WHERE "+keyCol(table)+" = $1", id).Scan(&v)
+	err := q.QueryRow(ctx, "SELECT version FROM "+table+" WHERE "+storekit.KeyCol(table)+" = $1", id).Scan(&v)
 	if err != nil {
 		return one(err, entity, id)
 	}
-	return domain.Errorf(domain.PreconditionFailed, "%s %v is at version %d, not %d: reload and retry", entity, id, v, ifVersion)
-}
-
-func keyCol(table string) string {
-	if table == "survey_sets" {
-		return "hole_id"
-	}
-	return "id"
-}
-
-func now() time.Time { return time.Now().UTC().Truncate(time.Microsecond) }
-
-func nullFloat(p *float64) any {
-	if p == nil {
-		return nil
-	}
-	return *p
+	return storekit.Stale(entity, id, v, ifVersion)
 }
 
 func derefID(p *int64) int64 {

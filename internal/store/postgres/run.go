@@ -7,6 +7,7 @@ import (
 	"github.com/jackc/pgx/v5"
 
 	"corvane/internal/domain"
+	"corvane/internal/store/storekit"
 )
 
 const runCols = `id, hole_id, from_depth, to_depth, confidence, mismatch, comment, version, created_at, updated_at`
@@ -32,9 +33,9 @@ func scanRun(r scanner) (domain.Run, error) {
 
 // CreateRun inserts r and sets its ID, version and timestamps.
 func (s *Store) CreateRun(ctx context.Context, r *domain.Run) error {
-	t := now()
+	t := storekit.Now()
 	return s.write(ctx, func(q querier) error {
-		err := q.QueryRow(ctx, insertRun, r.HoleID, r.From, r.To, r.Confidence, nullFloat(r.Mismatch), r.Comment,
+		err := q.QueryRow(ctx, insertRun, r.HoleID, r.From, r.To, r.Confidence, storekit.NullFloat(r.Mismatch), r.Comment,
 			t, t).Scan(&r.ID)
 		if err != nil {
 			return translate(err)
@@ -61,9 +62,9 @@ func (s *Store) ListRuns(ctx context.Context, holeID int64) ([]domain.Run, error
 
 // UpdateRun writes r over the row at version ifVersion.
 func (s *Store) UpdateRun(ctx context.Context, r *domain.Run, ifVersion int64) error {
-	t := now()
+	t := storekit.Now()
 	return s.write(ctx, func(q querier) error {
-		err := q.QueryRow(ctx, updateRun, r.From, r.To, r.Confidence, nullFloat(r.Mismatch), r.Comment,
+		err := q.QueryRow(ctx, updateRun, r.From, r.To, r.Confidence, storekit.NullFloat(r.Mismatch), r.Comment,
 			t, r.ID, ifVersion).Scan(&r.Version)
 		if err == pgx.ErrNoRows {
 			return versionGone(ctx, q, "runs", "run", r.ID, ifVersion)

@@ -6,6 +6,7 @@ import (
 	"time"
 
 	"corvane/internal/domain"
+	"corvane/internal/store/storekit"
 )
 
 const (
@@ -18,13 +19,6 @@ const (
 	deleteToken    = `DELETE FROM api_tokens WHERE id = $1`
 )
 
-func projectArg(id int64) any {
-	if id == domain.AllProjects {
-		return nil
-	}
-	return id
-}
-
 func scanToken(r scanner) (domain.Token, error) {
 	var t domain.Token
 	var pid *int64
@@ -36,9 +30,9 @@ func scanToken(r scanner) (domain.Token, error) {
 
 // CreateToken stores t (whose Hash is already set) and sets its ID and time.
 func (s *Store) CreateToken(ctx context.Context, t *domain.Token) error {
-	c := now()
+	c := storekit.Now()
 	return s.write(ctx, func(q querier) error {
-		if err := q.QueryRow(ctx, insertToken, projectArg(t.ProjectID), t.Name, string(t.Role), t.Hash, c).Scan(&t.ID); err != nil {
+		if err := q.QueryRow(ctx, insertToken, storekit.ProjectArg(t.ProjectID), t.Name, string(t.Role), t.Hash, c).Scan(&t.ID); err != nil {
 			return translate(err)
 		}
 		t.CreatedAt = c
@@ -59,7 +53,7 @@ func (s *Store) TokenByHash(ctx context.Context, hash string) (domain.Token, err
 func (s *Store) GetToken(ctx context.Context, id int64) (domain.Token, error) {
 	t, err := scanToken(s.read().QueryRow(ctx, tokenByID, id))
 	if err == pgx.ErrNoRows {
-		return t, notFound("token", id)
+		return t, storekit.NotFound("token", id)
 	}
 	return t, translate(err)
 }
@@ -87,7 +81,7 @@ func (s *Store) DeleteToken(ctx context.Context, id int64) error {
 			return translate(err)
 		}
 		if res.RowsAffected() == 0 {
-			return notFound("token", id)
+			return storekit.NotFound("token", id)
 		}
 		return nil
 	})

@@ -4,6 +4,7 @@ import (
 	"context"
 
 	"corvane/internal/domain"
+	"corvane/internal/store/storekit"
 )
 
 const (
@@ -45,7 +46,7 @@ func (s *Store) DeleteTypeCode(ctx context.Context, projectID int64, code string
 			return translate(err)
 		}
 		if res.RowsAffected() == 0 {
-			return notFound("type code", code)
+			return storekit.NotFound("type code", code)
 		}
 		return nil
 	})

@@ -6,6 +6,7 @@ import (
 	"time"
 
 	"corvane/internal/domain"
+	"corvane/internal/store/storekit"
 )
 
 const (
@@ -25,7 +26,7 @@ func nullJSON(b []byte) any {
 // AppendAudit records e and sets its ID (and its time when zero).
 func (s *Store) AppendAudit(ctx context.Context, e *domain.AuditEntry) error {
 	if e.At.IsZero() {
-		e.At = now()
+		e.At = storekit.Now()
 	}
 	e.At = e.At.UTC().Truncate(time.Microsecond)
 	return s.write(ctx, func(q querier) error {

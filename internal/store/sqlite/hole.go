@@ -5,6 +5,7 @@ import (
 	"database/sql"
 
 	"corvane/internal/domain"
+	"corvane/internal/store/storekit"
 )
 
 const holeCols = `id, project_id, name, easting, northing, elevation, azimuth, azimuth_ref, dip, final_depth,
@@ -34,7 +35,7 @@ func scanHole(r scanner) (domain.Hole, error) {
 
 // CreateHole inserts h and sets its ID, version and timestamps.
 func (s *Store) CreateHole(ctx context.Context, h *domain.Hole) error {
-	t := now()
+	t := storekit.Now()
 	return s.write(ctx, func(q querier) error {
 		err := q.QueryRowContext(ctx, insertHole, h.ProjectID, h.Name, h.East, h.North, h.Elevation, h.Azimuth,
 			h.AzimuthRef, h.Dip, h.FinalDepth, h.CRS, h.Started, h.Finished, micro(t), micro(t)).Scan(&h.ID)
@@ -70,7 +71,7 @@ func (s *Store) ListHoles(ctx context.Context, projectID int64, page domain.Page
 
 // UpdateHole writes h over the row at version ifVersion.
 func (s *Store) UpdateHole(ctx context.Context, h *domain.Hole, ifVersion int64) error {
-	t := now()
+	t := storekit.Now()
 	return s.write(ctx, func(q querier) error {
 		err := q.QueryRowContext(ctx, updateHole, h.Name, h.East, h.North, h.Elevation, h.Azimuth, h.AzimuthRef, h.Dip,
 			h.FinalDepth, h.CRS, h.Started, h.Finished, micro(t), h.ID, ifVersion).Scan(&h.Version)

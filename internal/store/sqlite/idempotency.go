@@ -4,6 +4,7 @@ import (
 	"context"
 
 	"corvane/internal/domain"
+	"corvane/internal/store/storekit"
 )
 
 const (
@@ -27,7 +28,7 @@ func (s *Store) GetIdempotency(ctx context.Context, projectID int64, key string)
 // PutIdempotency remembers r; Conflict when the key is taken.
 func (s *Store) PutIdempotency(ctx context.Context, r domain.Idempotency) error {
 	if r.CreatedAt.IsZero() {
-		r.CreatedAt = now()
+		r.CreatedAt = storekit.Now()
 	}
 	return s.write(ctx, func(q querier) error {
 		_, err := q.ExecContext(ctx, insertIdempotency, r.ProjectID, r.Key, r.RequestHash, string(r.Result), micro(r.CreatedAt))

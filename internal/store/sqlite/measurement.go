@@ -7,6 +7,7 @@ import (
 	"time"
 
 	"corvane/internal/domain"
+	"corvane/internal/store/storekit"
 )
 
 const measurementCols = `id, project_id, hole_id, depth, alpha, beta, gamma, type_code, apparent_thickness,
@@ -72,8 +73,8 @@ func where(f domain.MeasurementFilter) (string, []any) {
 
 func insertOne(ctx context.Context, q querier, m *domain.Measurement, t time.Time) error {
 	m.LoggedAt = m.LoggedAt.UTC().Truncate(time.Microsecond)
-	err := q.QueryRowContext(ctx, insertMeasurement, m.ProjectID, m.HoleID, m.Depth, m.Alpha, m.Beta, nullFloat(m.Gamma),
-		m.TypeCode, nullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, micro(m.LoggedAt), micro(t), micro(t)).Scan(&m.ID)
+	err := q.QueryRowContext(ctx, insertMeasurement, m.ProjectID, m.HoleID, m.Depth, m.Alpha, m.Beta, storekit.NullFloat(m.Gamma),
+		m.TypeCode, storekit.NullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, micro(m.LoggedAt), micro(t), micro(t)).Scan(&m.ID)
 	if err != nil {
 		return translate(err)
 	}
@@ -83,14 +84,14 @@ func insertOne(ctx context.Context, q querier, m *domain.Measurement, t time.Tim
 
 // CreateMeasurement inserts m and sets its ID, version and timestamps.
 func (s *Store) CreateMeasurement(ctx context.Context, m *domain.Measurement) error {
-	t := now()
+	t := storekit.Now()
 	return s.write(ctx, func(q querier) error { return insertOne(ctx, q, m, t) })
 }
 
 // CreateMeasurements inserts all of ms in one transaction with a prepared
 // statement, setting their IDs.
 func (s *Store) CreateMeasurements(ctx context.Context, ms []domain.Measurement) (int, error) {
-	t := now()
+	t := storekit.Now()
 	err := s.write(ctx, func(q querier) error {
 		tx := q.(*sql.Tx)
 		stmt, err := tx.PrepareContext(ctx, insertMeasurement)
@@ -101,8 +102,8 @@ func (s *Store) CreateMeasurements(ctx context.Context, ms []domain.Measurement)
 		for i := range ms {
 			m := &ms[i]
 			m.LoggedAt = m.LoggedAt.UTC().Truncate(time.Microsecond)
-			err := stmt.QueryRowContext(ctx, m.ProjectID, m.HoleID, m.Depth, m.Alpha, m.Beta, nullFloat(m.Gamma),
-				m.TypeCode, nullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, micro(m.LoggedAt), micro(t), micro(t)).Scan(&m.ID)
+			err := stmt.QueryRowContext(ctx, m.ProjectID, m.HoleID, m.Depth, m.Alpha, m.Beta, storekit.NullFloat(m.Gamma),
+				m.TypeCode, storekit.NullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, micro(m.LoggedAt), micro(t), micro(t)).Scan(&m.ID)
 			if err != nil {
 				return translate(err)
 			}
@@ -144,11 +145,11 @@ func (s *Store) CountMeasurements(ctx context.Context, f domain.MeasurementFilte
 
 // UpdateMeasurement writes m over the row at version ifVersion.
 func (s *Store) UpdateMeasurement(ctx context.Context, m *domain.Measurement, ifVersion int64) error {
-	t := now()
+	t := storekit.Now()
 	m.LoggedAt = m.LoggedAt.UTC().Truncate(time.Microsecond)
 	return s.write(ctx, func(q querier) error {
-		err := q.QueryRowContext(ctx, updateMeasurement, m.HoleID, m.Depth, m.Alpha, m.Beta, nullFloat(m.Gamma),
-			m.TypeCode, nullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, micro(m.LoggedAt),
+		err := q.QueryRowContext(ctx, updateMeasurement, m.HoleID, m.Depth, m.Alpha, m.Beta, storekit.NullFloat(m.Gamma),
+			m.TypeCode, storekit.NullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, micro(m.LoggedAt),
 			micro(t), m.ID, ifVersion).Scan(&m.Version)
 		if err == sql.ErrNoRows {
 			return versionGone(ctx, q, "measurements", "measurement", m.ID, ifVersion)

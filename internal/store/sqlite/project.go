@@ -5,6 +5,7 @@ import (
 	"database/sql"
 
 	"corvane/internal/domain"
+	"corvane/internal/store/storekit"
 )
 
 const projectCols = `id, name, description, ref_line, beta_apex, gamma_sense, length_unit,
@@ -39,7 +40,7 @@ func scanProject(r scanner) (domain.Project, error) {
 
 // CreateProject inserts p and sets its ID, version and timestamps.
 func (s *Store) CreateProject(ctx context.Context, p *domain.Project) error {
-	t := now()
+	t := storekit.Now()
 	return s.write(ctx, func(q querier) error {
 		err := q.QueryRowContext(ctx, insertProject, p.Name, p.Description, p.RefLine, p.BetaApex, p.GammaSense,
 			p.LengthUnit, p.OutputAzimuthRef, p.Declination, p.Convergence, micro(t), micro(t)).Scan(&p.ID)
@@ -75,7 +76,7 @@ func (s *Store) ListProjects(ctx context.Context, page domain.Page) ([]domain.Pr
 
 // UpdateProject writes p over the row at version ifVersion.
 func (s *Store) UpdateProject(ctx context.Context, p *domain.Project, ifVersion int64) error {
-	t := now()
+	t := storekit.Now()
 	return s.write(ctx, func(q querier) error {
 		err := q.QueryRowContext(ctx, updateProject, p.Name, p.Description, p.RefLine, p.BetaApex, p.GammaSense,
 			p.LengthUnit, p.OutputAzimuthRef, p.Declination, p.Convergence, micro(t), p.ID, ifVersion).Scan(&p.Version)

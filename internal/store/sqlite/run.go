@@ -5,6 +5,7 @@ import (
 	"database/sql"
 
 	"corvane/internal/domain"
+	"corvane/internal/store/storekit"
 )
 
 const runCols = `id, hole_id, from_depth, to_depth, confidence, mismatch, comment, version, created_at, updated_at`
@@ -30,9 +31,9 @@ func scanRun(r scanner) (domain.Run, error) {
 
 // CreateRun inserts r and sets its ID, version and timestamps.
 func (s *Store) CreateRun(ctx context.Context, r *domain.Run) error {
-	t := now()
+	t := storekit.Now()
 	return s.write(ctx, func(q querier) error {
-		err := q.QueryRowContext(ctx, insertRun, r.HoleID, r.From, r.To, r.Confidence, nullFloat(r.Mismatch), r.Comment,
+		err := q.QueryRowContext(ctx, insertRun, r.HoleID, r.From, r.To, r.Confidence, storekit.NullFloat(r.Mismatch), r.Comment,
 			micro(t), micro(t)).Scan(&r.ID)
 		if err != nil {
 			return translate(err)
@@ -59,9 +60,9 @@ func (s *Store) ListRuns(ctx context.Context, holeID int64) ([]domain.Run, error
 
 // UpdateRun writes r over the row at version ifVersion.
 func (s *Store) UpdateRun(ctx context.Context, r *domain.Run, ifVersion int64) error {
-	t := now()
+	t := storekit.Now()
 	return s.write(ctx, func(q querier) error {
-		err := q.QueryRowContext(ctx, updateRun, r.From, r.To, r.Confidence, nullFloat(r.Mismatch), r.Comment,
+		err := q.QueryRowContext(ctx, updateRun, r.From, r.To, r.Confidence, storekit.NullFloat(r.Mismatch), r.Comment,
 			micro(t), r.ID, ifVersion).Scan(&r.Version)
 		if err == sql.ErrNoRows {
 			return versionGone(ctx, q, "runs", "run", r.ID, ifVersion)

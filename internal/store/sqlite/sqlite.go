@@ -26,6 +26,7 @@ import (
 	sqlite3 "modernc.org/sqlite/lib"
 
 	"corvane/internal/domain"
+	"corvane/internal/store/storekit"
 	"corvane/migrations"
 )
 
@@ -108,49 +109,18 @@ func Open(ctx context.Context, path string) (*Store, error) {
 // that many up migrations, steps < 0 rolls that many back, steps == 0 applies
 // all up migrations. It gives migrate its own handle (migrate closes it).
 func Migrate(path string, steps int) error {
-	m, err := newMigrate(Path(path))
-	if err != nil {
-		return err
-	}
-	defer m.Close()
-	switch {
-	case steps == 0:
-		err = m.Up()
-	default:
-		err = m.Steps(steps)
-	}
-	if errors.Is(err, migrate.ErrNoChange) {
-		return nil
-	}
-	return err
+	return storekit.Migrate(func() (*migrate.Migrate, error) { return newMigrate(Path(path)) }, steps)
 }
 
 // MigrateDownAll rolls back every migration.
 func MigrateDownAll(path string) error {
-	m, err := newMigrate(Path(path))
-	if err != nil {
-		return err
-	}
-	defer m.Close()
-	if err := m.Down(); err != nil && !errors.Is(err, migrate.ErrNoChange) {
-		return err
-	}
-	return nil
+	return storekit.MigrateDownAll(func() (*migrate.Migrate, error) { return newMigrate(Path(path)) })
 }
 
 // Version reports the schema version of the database file and whether a
 // failed migration left it dirty. A database with no migrations has version 0.
 func Version(path string) (version uint, dirty bool, err error) {
-	m, err := newMigrate(Path(path))
-	if err != nil {
-		return 0, false, err
-	}
-	defer m.Close()
-	v, d, err := m.Version()
-	if errors.Is(err, migrate.ErrNilVersion) {
-		return 0, false, nil
-	}
-	return v, d, err
+	return storekit.Version(func() (*migrate.Migrate, error) { return newMigrate(Path(path)) })
 }
 
 func newMigrate(path string) (*migrate.Migrate, error) {
@@ -237,41 +207,33 @@ func (s *Store) write(ctx context.Context, fn func(q querier) error) error {
 }
 
 // translate turns driver errors into *domain.Error once: constraint
-// violations become Conflict, sql.ErrNoRows NotFound, the rest Internal.
+// violations become Conflict or Invalid, sql.ErrNoRows NotFound, the rest
+// Internal.
 func translate(err error) error {
-	if err == nil {
-		return nil
-	}
-	var de *domain.Error
-	if errors.As(err, &de) {
-		return err
-	}
-	if errors.Is(err, sql.ErrNoRows) {
-		return domain.Errorf(domain.NotFound, "not found")
-	}
-	var se *sqlite.Error
-	if errors.As(err, &se) {
-		switch se.Code() {
-		case sqlite3.SQLITE_CONSTRAINT_UNIQUE, sqlite3.SQLITE_CONSTRAINT_PRIMARYKEY:
-			return domain.Errorf(domain.Conflict, "already exists: %w", err)
-		case sqlite3.SQLITE_CONSTRAINT_FOREIGNKEY:
-			return domain.Errorf(domain.Conflict, "refers to a missing row or is still referenced: %w", err)
-		case sqlite3.SQLITE_CONSTRAINT_CHECK, sqlite3.SQLITE_CONSTRAINT_NOTNULL:
-			return domain.Errorf(domain.Invalid, "breaks a rule of the schema: %w", err)
-		}
-	}
-	return domain.Errorf(domain.Internal, "sqlite: %w", err)
+	return storekit.Translate(err, "sqlite", sql.ErrNoRows, violation)
 }
 
-// notFound returns a NotFound error naming the entity and key.
-func notFound(entity string, key any) error {
-	return domain.Errorf(domain.NotFound, "%s %v not found", entity, key)
+// violation classes the extended result code of an SQLite error.
+func violation(err error) storekit.Violation {
+	var se *sqlite.Error
+	if !errors.As(err, &se) {
+		return storekit.None
+	}
+	switch se.Code() {
+	case sqlite3.SQLITE_CONSTRAINT_UNIQUE, sqlite3.SQLITE_CONSTRAINT_PRIMARYKEY:
+		return storekit.Unique
+	case sqlite3.SQLITE_CONSTRAINT_FOREIGNKEY:
+		return storekit.ForeignKey
+	case sqlite3.SQLITE_CONSTRAINT_CHECK, sqlite3.SQLITE_CONSTRAINT_NOTNULL:
+		return storekit.Rule
+	}
+	return storekit.None
 }
 
 // one translates the error of a single-row read, naming what was missing.
 func one(err error, entity string, key any) error {
 	if errors.Is(err, sql.ErrNoRows) {
-		return notFound(entity, key)
+		return storekit.NotFound(entity, key)
 	}
 	return translate(err)
 }
@@ -280,33 +242,16 @@ func one(err error, entity string, key any) error {
 // row: the row is missing (NotFound) or has another version.
 func versionGone(ctx context.Context, q querier, table, entity string, id any, ifVersion int64) error {
 	var v int64
-	err := q.QueryRowContext(ctx, "SELECT version FROM "+table+" WHERE "+keyCol(table)+" = ?", id).Scan(&v)
+	err := q.QueryRowContext(ctx, "SELECT version FROM "+table+" WHERE "+storekit.KeyCol(table)+" = ?", id).Scan(&v)
 	if err != nil {
 		return one(err, entity, id)
 	}
-	return domain.Errorf(domain.PreconditionFailed, "%s %v is at version %d, not %d: reload and retry", entity, id, v, ifVersion)
+	return storekit.Stale(entity, id, v, ifVersion)
 }
-
-func keyCol(table string) string {
-	if table == "survey_sets" {
-		return "hole_id"
-	}
-	return "id"
-}
-
-func now() time.Time { return time.Now().UTC().Truncate(time.Microsecond) }
 
 func micro(t time.Time) int64 { return t.UnixMicro() }
 
 func fromMicro(us int64) time.Time { return time.UnixMicro(us).UTC() }
-
-// nullFloat converts an optional float for a query argument.
-func nullFloat(p *float64) any {
-	if p == nil {
-		return nil
-	}
-	return *p
-}
 
 func floatPtr(n sql.NullFloat64) *float64 {
 	if !n.Valid {

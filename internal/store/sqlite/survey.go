@@ -5,6 +5,7 @@ import (
 	"database/sql"
 
 	"corvane/internal/domain"
+	"corvane/internal/store/storekit"
 )
 
 const (
@@ -52,7 +53,7 @@ func (s *Store) GetSurvey(ctx context.Context, holeID int64) (domain.SurveySet, 
 
 // PutSurvey replaces the hole's whole survey set in one transaction.
 func (s *Store) PutSurvey(ctx context.Context, ss *domain.SurveySet, ifVersion int64) error {
-	t := now()
+	t := storekit.Now()
 	return s.write(ctx, func(q querier) error {
 		var cur int64
 		err := q.QueryRowContext(ctx, surveySetVersion, ss.HoleID).Scan(&cur)
@@ -61,9 +62,9 @@ func (s *Store) PutSurvey(ctx context.Context, ss *domain.SurveySet, ifVersion i
 			if ifVersion != 0 {
 				return domain.Errorf(domain.PreconditionFailed, "hole %d has no survey at version %d", ss.HoleID, ifVersion)
 			}
-			if _, err := q.ExecContext(ctx, insertSurveySet, ss.HoleID, ss.AzimuthRef, ss.SurveyDate, nullFloat(ss.Declination), ss.DeclinationSource, micro(t)); err != nil {
+			if _, err := q.ExecContext(ctx, insertSurveySet, ss.HoleID, ss.AzimuthRef, ss.SurveyDate, storekit.NullFloat(ss.Declination), ss.DeclinationSource, micro(t)); err != nil {
 				if domain.IsKind(translate(err), domain.Conflict) {
-					return notFound("hole", ss.HoleID)
+					return storekit.NotFound("hole", ss.HoleID)
 				}
 				return translate(err)
 			}
@@ -74,7 +75,7 @@ func (s *Store) PutSurvey(ctx context.Context, ss *domain.SurveySet, ifVersion i
 			if ifVersion != cur {
 				return domain.Errorf(domain.PreconditionFailed, "survey of hole %d is at version %d, not %d: reload and retry", ss.HoleID, cur, ifVersion)
 			}
-			if err := q.QueryRowContext(ctx, updateSurveySet, ss.AzimuthRef, ss.SurveyDate, nullFloat(ss.Declination), ss.DeclinationSource, micro(t), ss.HoleID, ifVersion).Scan(&ss.Version); err != nil {
+			if err := q.QueryRowContext(ctx, updateSurveySet, ss.AzimuthRef, ss.SurveyDate, storekit.NullFloat(ss.Declination), ss.DeclinationSource, micro(t), ss.HoleID, ifVersion).Scan(&ss.Version); err != nil {
 				return translate(err)
 			}
 			if _, err := q.ExecContext(ctx, deleteStations, ss.HoleID); err != nil {

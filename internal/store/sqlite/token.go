@@ -5,6 +5,7 @@ import (
 	"database/sql"
 
 	"corvane/internal/domain"
+	"corvane/internal/store/storekit"
 )
 
 const (
@@ -17,13 +18,6 @@ const (
 	deleteToken    = `DELETE FROM api_tokens WHERE id = ?`
 )
 
-func projectArg(id int64) any {
-	if id == domain.AllProjects {
-		return nil
-	}
-	return id
-}
-
 func scanToken(r scanner) (domain.Token, error) {
 	var t domain.Token
 	var pid sql.NullInt64
@@ -35,9 +29,9 @@ func scanToken(r scanner) (domain.Token, error) {
 
 // CreateToken stores t (whose Hash is already set) and sets its ID and time.
 func (s *Store) CreateToken(ctx context.Context, t *domain.Token) error {
-	c := now()
+	c := storekit.Now()
 	return s.write(ctx, func(q querier) error {
-		if err := q.QueryRowContext(ctx, insertToken, projectArg(t.ProjectID), t.Name, string(t.Role), t.Hash, micro(c)).Scan(&t.ID); err != nil {
+		if err := q.QueryRowContext(ctx, insertToken, storekit.ProjectArg(t.ProjectID), t.Name, string(t.Role), t.Hash, micro(c)).Scan(&t.ID); err != nil {
 			return translate(err)
 		}
 		t.CreatedAt = c
@@ -58,7 +52,7 @@ func (s *Store) TokenByHash(ctx context.Context, hash string) (domain.Token, err
 func (s *Store) GetToken(ctx context.Context, id int64) (domain.Token, error) {
 	t, err := scanToken(s.read().QueryRowContext(ctx, tokenByID, id))
 	if err == sql.ErrNoRows {
-		return t, notFound("token", id)
+		return t, storekit.NotFound("token", id)
 	}
 	return t, translate(err)
 }
@@ -86,7 +80,7 @@ func (s *Store) DeleteToken(ctx context.Context, id int64) error {
 			return translate(err)
 		}
 		if n, _ := res.RowsAffected(); n == 0 {
-			return notFound("token", id)
+			return storekit.NotFound("token", id)
 		}
 		return nil
 	})

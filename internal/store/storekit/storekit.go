@@ -1,0 +1,139 @@
+// Package storekit holds what the SQL stores share that does not depend on
+// the SQL dialect: how driver errors become *domain.Error values, the
+// messages for missing rows and stale versions, argument conversions, and
+// the steps of a schema migration. Each store keeps its own SQL text and
+// driver calls.
+package storekit
+
+import (
+	"errors"
+	"time"
+
+	"github.com/golang-migrate/migrate/v4"
+
+	"corvane/internal/domain"
+)
+
+// Violation names the class of a schema constraint a driver error broke.
+type Violation int
+
+// The constraint classes a store tells apart; None is any other error.
+const (
+	None       Violation = iota
+	Unique               // a unique or primary key
+	ForeignKey           // a reference to a missing row, or a row still referenced
+	Rule                 // a check or not-null constraint, or a value out of range
+)
+
+// Translate turns a driver error into a *domain.Error once: one that already
+// is passes through, noRows (the driver's "no rows" error) becomes NotFound,
+// a constraint violation that classify names becomes Conflict or Invalid,
+// and anything else Internal, prefixed with the driver's name.
+func Translate(err error, driver string, noRows error, classify func(error) Violation) error {
+	if err == nil {
+		return nil
+	}
+	var de *domain.Error
+	if errors.As(err, &de) {
+		return err
+	}
+	if errors.Is(err, noRows) {
+		return domain.Errorf(domain.NotFound, "not found")
+	}
+	switch classify(err) {
+	case Unique:
+		return domain.Errorf(domain.Conflict, "already exists: %w", err)
+	case ForeignKey:
+		return domain.Errorf(domain.Conflict, "refers to a missing row or is still referenced: %w", err)
+	case Rule:
+		return domain.Errorf(domain.Invalid, "breaks a rule of the schema: %w", err)
+	}
+	return domain.Errorf(domain.Internal, "%s: %w", driver, err)
+}
+
+// NotFound returns a NotFound error naming the entity and key.
+func NotFound(entity string, key any) error {
+	return domain.Errorf(domain.NotFound, "%s %v not found", entity, key)
+}
+
+// Stale returns the PreconditionFailed error of a version-checked write
+// that found the row at version have instead of want.
+func Stale(entity string, id any, have, want int64) error {
+	return domain.Errorf(domain.PreconditionFailed, "%s %v is at version %d, not %d: reload and retry", entity, id, have, want)
+}
+
+// KeyCol is the key column of a versioned table.
+func KeyCol(table string) string {
+	if table == "survey_sets" {
+		return "hole_id"
+	}
+	return "id"
+}
+
+// Now is the time a store writes: UTC, to the microsecond both databases keep.
+func Now() time.Time { return time.Now().UTC().Truncate(time.Microsecond) }
+
+// NullFloat converts an optional float for a query argument.
+func NullFloat(p *float64) any {
+	if p == nil {
+		return nil
+	}
+	return *p
+}
+
+// ProjectArg converts a token's project for a query argument: NULL for a
+// site-wide token.
+func ProjectArg(id int64) any {
+	if id == domain.AllProjects {
+		return nil
+	}
+	return id
+}
+
+// Migrate moves the schema with the migrator open returns (and Migrate
+// closes): steps > 0 applies that many up migrations, steps < 0 rolls that
+// many back, steps == 0 applies all up migrations. Nothing to do is no error.
+func Migrate(open func() (*migrate.Migrate, error), steps int) error {
+	m, err := open()
+	if err != nil {
+		return err
+	}
+	defer m.Close()
+	if steps == 0 {
+		err = m.Up()
+	} else {
+		err = m.Steps(steps)
+	}
+	if errors.Is(err, migrate.ErrNoChange) {
+		return nil
+	}
+	return err
+}
+
+// MigrateDownAll rolls back every migration.
+func MigrateDownAll(open func() (*migrate.Migrate, error)) error {
+	m, err := open()
+	if err != nil {
+		return err
+	}
+	defer m.Close()
+	if err := m.Down(); err != nil && !errors.Is(err, migrate.ErrNoChange) {
+		return err
+	}
+	return nil
+}
+
+// Version reports the schema version and whether a failed migration left it
+// dirty; 0 when no migration has run.
+func Version(open func() (*migrate.Migrate, error)) (version uint, dirty bool, err error) {
+	m, err := open()
+	if err != nil {
+		return 0, false, err
+	}
+	defer m.Close()
+	v, d, err := m.Version()
+	if errors.Is(err, migrate.ErrNilVersion) {
+		return 0, false, nil
+	}
+	return v, d, err
+}
