@@ -5,8 +5,8 @@ const NS = "http://www.w3.org/2000/svg";
 
 // Okabe & Ito (2008) colour-blind-safe palette, each paired with a marker
 // shape so that no distinction rests on colour alone.
-export const PALETTE = ["#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9", "#000000", "#F0E442"];
-export const SHAPES = ["circle", "square", "triangle", "diamond", "down", "cross", "plus", "star"];
+const PALETTE = ["#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9", "#000000", "#F0E442"];
+const SHAPES = ["circle", "square", "triangle", "diamond", "down", "cross", "plus", "star"];
 
 export function styleFor(i) {
   return { colour: PALETTE[i % PALETTE.length], shape: SHAPES[i % SHAPES.length] };
@@ -43,7 +43,7 @@ const f2 = (v) => Math.round(v * 100) / 100;
 // the unit-radius equal-area (Lambert azimuthal, Schmidt) net, north up:
 // r = sqrt(2) sin((90 - plunge) / 2), which is 1 on the primitive circle
 // (plunge 0). Returns {x, y} with y up.
-export function equalArea(trend, plunge) {
+function equalArea(trend, plunge) {
   const r = Math.SQRT2 * Math.sin(rad(90 - plunge) / 2);
   return { x: r * Math.sin(rad(trend)), y: r * Math.cos(rad(trend)) };
 }
@@ -318,5 +318,14 @@ export function depthStrip({ depth, runs, measurements, types, flags, unit = "m"
     }
     s.append(tri);
   }
+  return s;
+}
+
+// shapeKey is a legend swatch: the marker of a style, 16 px square.
+export function shapeKey(style) {
+  const s = svg(16, 16, "");
+  s.setAttribute("aria-hidden", "true");
+  s.classList.add("keyshape");
+  s.append(marker(style.shape, 8, 8, 5, { fill: style.colour, stroke: "#000", "stroke-width": 0.8 }));
   return s;
 }

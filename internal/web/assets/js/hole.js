@@ -5,8 +5,7 @@
 import { download, query } from "./api.js";
 import { h, fmt, az, say, problemText, add, put } from "./dom.js";
 import { survey, runs, measurements, qaReport } from "./data.js";
-import { depthStrip, CONFIDENCE, styleFor } from "./draw.js";
-import { shapeKey } from "./logging.js";
+import { depthStrip, CONFIDENCE, styleFor, shapeKey } from "./draw.js";
 
 const COLUMNS = [
   { key: "id", label: "Id", num: true, get: (m) => m.id },

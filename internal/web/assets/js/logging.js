@@ -6,7 +6,7 @@
 import { request, ApiError } from "./api.js";
 import { h, fmt, az, clear, say, problemText, add, put } from "./dom.js";
 import { survey, convert, measurements, runs } from "./data.js";
-import { smallNet, styleFor, svg, marker } from "./draw.js";
+import { smallNet, styleFor, shapeKey } from "./draw.js";
 
 // FIELDS lists the form's inputs with the range each must hold. The ranges
 // are the API's own (conventions: alpha 0..90, beta and gamma 0..360).
@@ -396,12 +396,4 @@ export async function logging(ctx) {
   await loadHole();
   if (!ctx.isCurrent()) return;
   (editing ? inputs.alpha : inputs.depth).focus();
-}
-
-export function shapeKey(style) {
-  const s = svg(16, 16, "");
-  s.setAttribute("aria-hidden", "true");
-  s.classList.add("keyshape");
-  s.append(marker(style.shape, 8, 8, 5, { fill: style.colour, stroke: "#000", "stroke-width": 0.8 }));
-  return s;
 }

@@ -26,7 +26,7 @@ function meanOf(u, kind) {
 // statsTable renders the statistics of the selection: one row per group (a
 // type code or an automatic set), unweighted and, when asked, Terzaghi
 // weighted side by side.
-export function statsTable(doc) {
+function statsTable(doc) {
   const out = h("div", { id: "stats" });
   if (!doc || !Array.isArray(doc.groups)) {
     add(out, h("p", {}, "The server returned statistics in a form this page does not know; nothing is shown rather than a guess."));

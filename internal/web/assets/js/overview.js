@@ -8,7 +8,7 @@ import { planView, sectionView, CONFIDENCE, confidenceFill, el, svg, patternDefs
 
 // orientedShare returns the length under runs of each confidence (overlaps
 // counted once, the better rating winning) and the total, in hole units.
-export function orientedShare(rs, finalDepth) {
+function orientedShare(rs, finalDepth) {
   const order = ["good", "fair", "poor", "none"];
   const by = { good: 0, fair: 0, poor: 0, none: 0 };
   const cuts = new Set([0, finalDepth]);

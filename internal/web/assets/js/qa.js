@@ -11,7 +11,7 @@ const ORDER = { flag: 0, warning: 1, info: 2 };
 
 // linkFor returns where a finding points: the measurement or run by its store
 // id, the survey station by depth, else the hole.
-export function linkFor(pid, holeId, f) {
+function linkFor(pid, holeId, f) {
   const base = `#/p/${pid}/hole/${holeId}`;
   switch (f.source) {
     case "structures":
