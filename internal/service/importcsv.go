@@ -264,16 +264,17 @@ func importSurveys(ctx context.Context, st domain.Store, p domain.Project, body 
 	}
 	var order []string
 	sets := map[string]*set{}
+	holes := newHoleNames(st, p.ID)
 	for _, r := range rows {
 		s := sets[r.HoleID]
 		if s == nil {
-			h, err := st.GetHoleByName(ctx, p.ID, r.HoleID)
-			if domain.IsKind(err, domain.NotFound) {
-				ps.add(r.Line, csvio.ColHoleID, "no hole %q in the project (import its collar first)", r.HoleID)
-				continue
-			}
+			h, ok, err := holes.get(ctx, r.HoleID)
 			if err != nil {
 				return err
+			}
+			if !ok {
+				ps.add(r.Line, csvio.ColHoleID, "no hole %q in the project (import its collar first)", r.HoleID)
+				continue
 			}
 			ref := r.AzimuthRef
 			if ref == "" { // as the converter: no reference means the output one
@@ -331,21 +332,17 @@ func importRuns(ctx context.Context, st domain.Store, p domain.Project, body io.
 	}
 	res.Rows = len(rows)
 	ps := &problems{file: res.File}
-	holes := map[string]int64{}
+	holes := newHoleNames(st, p.ID)
 	for _, r := range rows {
-		id, ok := holes[r.HoleID]
-		if !ok {
-			h, err := st.GetHoleByName(ctx, p.ID, r.HoleID)
-			if domain.IsKind(err, domain.NotFound) {
-				ps.add(r.Line, csvio.ColHoleID, "no hole %q in the project", r.HoleID)
-				continue
-			}
-			if err != nil {
-				return err
-			}
-			id, holes[r.HoleID] = h.ID, h.ID
+		h, ok, err := holes.get(ctx, r.HoleID)
+		if err != nil {
+			return err
 		}
-		run := domain.Run{HoleID: id, From: r.From, To: r.To, Confidence: r.Confidence}
+		if !ok {
+			ps.add(r.Line, csvio.ColHoleID, "no hole %q in the project", r.HoleID)
+			continue
+		}
+		run := domain.Run{HoleID: h.ID, From: r.From, To: r.To, Confidence: r.Confidence}
 		if !math.IsNaN(r.Mismatch) {
 			mm := r.Mismatch
 			run.Mismatch = &mm
@@ -407,7 +404,7 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 	for _, tc := range vocab {
 		codes[tc.Code] = true
 	}
-	holes := map[string]domain.Hole{}
+	holes := newHoleNames(st, p.ID)
 	ps := &problems{file: res.File}
 	now := s.now()
 	batch := make([]domain.Measurement, 0, importBatch)
@@ -445,17 +442,13 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 			}
 			return strings.TrimSpace(r.Record[i])
 		}
-		h, ok := holes[r.HoleID]
+		h, ok, err := holes.get(ctx, r.HoleID)
+		if err != nil {
+			return err
+		}
 		if !ok {
-			h, err = st.GetHoleByName(ctx, p.ID, r.HoleID)
-			if domain.IsKind(err, domain.NotFound) {
-				ps.add(r.Line, csvio.ColHoleID, "no hole %q in the project", r.HoleID)
-				continue
-			}
-			if err != nil {
-				return err
-			}
-			holes[r.HoleID] = h
+			ps.add(r.Line, csvio.ColHoleID, "no hole %q in the project", r.HoleID)
+			continue
 		}
 		m := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: r.Depth, Alpha: r.Alpha, Beta: r.Beta,
 			TypeCode: cell(iType), Comment: cell(iComment), LoggedBy: cell(iBy), LoggedAt: now}
@@ -516,6 +509,39 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 }
 
 // orDefault returns s, or def when s is empty.
+// holeNames finds a project's holes by name for an import, asking the store
+// once per name, whether the hole exists or not.
+type holeNames struct {
+	st        domain.Store
+	projectID int64
+	seen      map[string]*domain.Hole // nil: no such hole
+}
+
+func newHoleNames(st domain.Store, projectID int64) *holeNames {
+	return &holeNames{st: st, projectID: projectID, seen: map[string]*domain.Hole{}}
+}
+
+// get returns the hole called name; ok is false when the project has none.
+func (hn *holeNames) get(ctx context.Context, name string) (h domain.Hole, ok bool, err error) {
+	if p, seen := hn.seen[name]; seen {
+		if p == nil {
+			return domain.Hole{}, false, nil
+		}
+		return *p, true, nil
+	}
+	h, err = hn.st.GetHoleByName(ctx, hn.projectID, name)
+	switch {
+	case err == nil:
+		hn.seen[name] = &h
+		return h, true, nil
+	case domain.IsKind(err, domain.NotFound):
+		hn.seen[name] = nil
+		return domain.Hole{}, false, nil
+	default:
+		return domain.Hole{}, false, err
+	}
+}
+
 func orDefault(s, def string) string {
 	if s == "" {
 		return def
