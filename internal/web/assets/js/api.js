@@ -102,8 +102,13 @@ export async function getAll(path, params = {}) {
 // download fetches path with the token and offers the body as a file.
 export async function download(path, filename, accept) {
   const r = await request("GET", path, { accept });
-  const blob = new Blob([r.data], { type: accept });
-  const url = URL.createObjectURL(blob);
+  save(r.data, filename, accept);
+  return r.data;
+}
+
+// save offers data (text or bytes) as a file named filename.
+export function save(data, filename, type) {
+  const url = URL.createObjectURL(new Blob([data], { type }));
   const a = document.createElement("a");
   a.href = url;
   a.download = filename;
@@ -111,5 +116,4 @@ export async function download(path, filename, accept) {
   a.click();
   a.remove();
   setTimeout(() => URL.revokeObjectURL(url), 10000);
-  return r.data;
 }

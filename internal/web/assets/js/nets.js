@@ -2,7 +2,7 @@
 // weighting. The net and the statistics come from the server; the SVG can be
 // downloaded as it was served.
 
-import { request, query } from "./api.js";
+import { request, query, save } from "./api.js";
 import { h, fmt, az, say, problemText, add, put } from "./dom.js";
 
 function showSvg(host, text, label) {
@@ -125,10 +125,7 @@ export async function netsView(ctx) {
   let lastSvg = null, lastRose = null;
   const offer = (text, what) => {
     if (!text) { msg.textContent = `Draw a ${what} first.`; return; }
-    const a = h("a", { href: URL.createObjectURL(new Blob([text], { type: "image/svg+xml" })), download: `${p.project.name.replace(/\W+/g, "-")}-${what}.svg` });
-    document.body.append(a);
-    a.click();
-    a.remove();
+    save(text, `${p.project.name.replace(/\W+/g, "-")}-${what}.svg`, "image/svg+xml");
     say("SVG downloaded.", "ok");
   };
   form.querySelector("#download-svg").addEventListener("click", () => offer(lastSvg, "net"));
