@@ -8,6 +8,7 @@ import (
 	"context"
 	"strings"
 
+	"corvane/internal/config"
 	"corvane/internal/domain"
 	"corvane/internal/store/postgres"
 	"corvane/internal/store/sqlite"
@@ -59,10 +60,6 @@ func OpenMigrated(ctx context.Context, url string) (domain.Store, error) {
 	return Open(ctx, url)
 }
 
-// Redact returns url safe to print: a PostgreSQL password is masked.
-func Redact(url string) string {
-	if IsPostgres(url) {
-		return postgres.Redact(url)
-	}
-	return url
-}
+// Redact returns url safe to print: a PostgreSQL password, in the user
+// information or a query parameter, is masked.
+func Redact(url string) string { return config.RedactDatabaseURL(url) }

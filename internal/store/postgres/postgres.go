@@ -7,7 +7,6 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"net/url"
 	"strings"
 	"time"
 
@@ -18,6 +17,7 @@ import (
 	"github.com/jackc/pgx/v5/pgconn"
 	"github.com/jackc/pgx/v5/pgxpool"
 
+	"corvane/internal/config"
 	"corvane/internal/domain"
 	"corvane/internal/store/storekit"
 	"corvane/migrations"
@@ -78,7 +78,7 @@ func newMigrate(dbURL string) (*migrate.Migrate, error) {
 	// migrate opens (and on Close closes) its own connection from the URL.
 	m, err := migrate.NewWithSourceInstance("iofs", src, migrateURL(dbURL))
 	if err != nil {
-		return nil, fmt.Errorf("migrating %s: %w", Redact(dbURL), err)
+		return nil, fmt.Errorf("migrating %s: %w", config.RedactDatabaseURL(dbURL), err)
 	}
 	return m, nil
 }
@@ -98,15 +98,6 @@ func MigrateDownAll(dbURL string) error {
 // dirty; 0 when no migration has run.
 func Version(dbURL string) (version uint, dirty bool, err error) {
 	return storekit.Version(func() (*migrate.Migrate, error) { return newMigrate(dbURL) })
-}
-
-// Redact returns u with any password replaced by "xxxxx".
-func Redact(u string) string {
-	p, err := url.Parse(u)
-	if err != nil {
-		return "(unparsable database URL)"
-	}
-	return p.Redacted()
 }
 
 // Ping checks the database answers.
