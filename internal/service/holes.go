@@ -81,20 +81,7 @@ func (s *Service) UpdateHole(ctx context.Context, projectID, holeID, ifVersion i
 
 // DeleteHole deletes a hole with its survey, runs and measurements (admin).
 func (s *Service) DeleteHole(ctx context.Context, projectID, holeID, ifVersion int64) error {
-	return s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
-		a, err := allow(ctx, projectID, domain.RoleAdmin)
-		if err != nil {
-			return err
-		}
-		before, err := hole(ctx, st, projectID, holeID)
-		if err != nil {
-			return err
-		}
-		if err := st.DeleteHole(ctx, holeID, ifVersion); err != nil {
-			return err
-		}
-		return audit(ctx, st, a, projectID, "hole", holeID, domain.ActionDelete, before, nil)
-	})
+	return deleteAudited(ctx, s.store, domain.RoleAdmin, "hole", projectID, holeID, ifVersion, hole, domain.Store.DeleteHole)
 }
 
 // GetSurvey returns the hole's survey set (read); NotFound when it has none.
@@ -226,18 +213,5 @@ func (s *Service) UpdateRun(ctx context.Context, projectID, runID, ifVersion int
 
 // DeleteRun deletes a run (log).
 func (s *Service) DeleteRun(ctx context.Context, projectID, runID, ifVersion int64) error {
-	return s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
-		a, err := allow(ctx, projectID, domain.RoleLog)
-		if err != nil {
-			return err
-		}
-		before, err := run(ctx, st, projectID, runID)
-		if err != nil {
-			return err
-		}
-		if err := st.DeleteRun(ctx, runID, ifVersion); err != nil {
-			return err
-		}
-		return audit(ctx, st, a, projectID, "run", runID, domain.ActionDelete, before, nil)
-	})
+	return deleteAudited(ctx, s.store, domain.RoleLog, "run", projectID, runID, ifVersion, run, domain.Store.DeleteRun)
 }

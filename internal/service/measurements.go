@@ -217,18 +217,5 @@ func (s *Service) UpdateMeasurement(ctx context.Context, projectID, id, ifVersio
 
 // DeleteMeasurement deletes a measurement (log).
 func (s *Service) DeleteMeasurement(ctx context.Context, projectID, id, ifVersion int64) error {
-	return s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
-		a, err := allow(ctx, projectID, domain.RoleLog)
-		if err != nil {
-			return err
-		}
-		before, err := measurement(ctx, st, projectID, id)
-		if err != nil {
-			return err
-		}
-		if err := st.DeleteMeasurement(ctx, id, ifVersion); err != nil {
-			return err
-		}
-		return audit(ctx, st, a, projectID, "measurement", id, domain.ActionDelete, before, nil)
-	})
+	return deleteAudited(ctx, s.store, domain.RoleLog, "measurement", projectID, id, ifVersion, measurement, domain.Store.DeleteMeasurement)
 }

@@ -130,6 +130,29 @@ func (s *Service) project(ctx context.Context, st domain.Store, projectID int64,
 	return p, a, err
 }
 
+// deleteAudited deletes, in one transaction of store, the row id of the
+// project at version ifVersion with del, and audits the delete of entity.
+// The caller needs role; get reads the row as it was and refuses one that is
+// not the project's.
+func deleteAudited[T any](ctx context.Context, store domain.Store, role domain.Role, entity string, projectID, id, ifVersion int64,
+	get func(context.Context, domain.Store, int64, int64) (T, error),
+	del func(domain.Store, context.Context, int64, int64) error) error {
+	return store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
+		a, err := allow(ctx, projectID, role)
+		if err != nil {
+			return err
+		}
+		before, err := get(ctx, st, projectID, id)
+		if err != nil {
+			return err
+		}
+		if err := del(st, ctx, id, ifVersion); err != nil {
+			return err
+		}
+		return audit(ctx, st, a, projectID, entity, id, domain.ActionDelete, before, nil)
+	})
+}
+
 // hole loads a hole and checks it belongs to projectID (a hole of another
 // project is reported as not found).
 func hole(ctx context.Context, st domain.Store, projectID, holeID int64) (domain.Hole, error) {
