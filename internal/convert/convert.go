@@ -7,6 +7,7 @@ import (
 	"io"
 	"math"
 	"runtime"
+	"strings"
 
 	"corvane/internal/coreangle"
 	"corvane/internal/csvio"
@@ -185,6 +186,17 @@ type Summary struct {
 	BadRows   int // rows written with an error
 	WarnRows  int // rows written with at least one warning
 	Extrapols int // rows below the last survey station of their hole
+	// PerHole counts the rows of each hole id (the trimmed hole_id cell, ""
+	// when absent), in order of first appearance in the input.
+	PerHole []HoleRows
+}
+
+// HoleRows counts the output rows of one hole id.
+type HoleRows struct {
+	HoleID   string
+	Rows     int // rows written
+	WarnRows int // rows with a warning or the hole's caution, and no error
+	BadRows  int // rows written with an error
 }
 
 // Convert streams the structures file from r to w: one output row per input
@@ -226,7 +238,10 @@ func (hs *Holes) Convert(ctx context.Context, r io.Reader, w io.Writer) (Summary
 	// parse, convert and format whole batches; this goroutine writes the
 	// batches in input order. A fixed number of batches circulate, so memory
 	// stays bounded however long the input.
-	cv := &converter{hs: hs, sr: sr, file: file, ncols: len(sr.Header.Names), nout: len(outCols), thick: thick}
+	cv := &converter{hs: hs, sr: sr, file: file, ncols: len(sr.Header.Names), nout: len(outCols), thick: thick,
+		iHole: sr.Header.Index(csvio.ColHoleID)}
+	var perHole []HoleRows
+	index := map[string]int{} // hole id -> position in perHole
 	p := cv.start(hs.opt.Workers)
 	defer p.stop()
 	for b := range p.order {
@@ -238,6 +253,8 @@ func (hs *Holes) Convert(ctx context.Context, r io.Reader, w io.Writer) (Summary
 			return sum, fmt.Errorf("writing the output: %w", err)
 		}
 		sum.add(b.sum)
+		perHole = mergeHoleRows(perHole, index, b.sum.PerHole)
+		sum.PerHole = perHole
 		if b.err != nil {
 			return sum, b.err
 		}
@@ -246,11 +263,29 @@ func (hs *Holes) Convert(ctx context.Context, r io.Reader, w io.Writer) (Summary
 	return sum, nil
 }
 
+// add adds the row totals of o to s (not PerHole: see mergeHoleRows).
 func (s *Summary) add(o Summary) {
 	s.Rows += o.Rows
 	s.BadRows += o.BadRows
 	s.WarnRows += o.WarnRows
 	s.Extrapols += o.Extrapols
+}
+
+// mergeHoleRows adds the per-hole counts of one batch to all, keeping the
+// order of first appearance; index maps a hole id to its place in all.
+func mergeHoleRows(all []HoleRows, index map[string]int, batch []HoleRows) []HoleRows {
+	for _, h := range batch {
+		i, ok := index[h.HoleID]
+		if !ok {
+			i = len(all)
+			index[h.HoleID] = i
+			all = append(all, HoleRows{HoleID: h.HoleID})
+		}
+		all[i].Rows += h.Rows
+		all[i].WarnRows += h.WarnRows
+		all[i].BadRows += h.BadRows
+	}
+	return all
 }
 
 // converter holds what the workers of one Convert call share; it is only
@@ -261,6 +296,7 @@ type converter struct {
 	file        string
 	ncols, nout int
 	thick       bool
+	iHole       int // the hole_id column
 }
 
 // batchRows is the number of rows in one batch.
@@ -277,8 +313,11 @@ type batch struct {
 	err      error         // the read error that ended the input, if any
 	out      *csvio.Writer // the formatted output rows
 	sum      Summary
-	done     chan struct{} // closed when out is ready
-	tail     []byte
+	perHole  []HoleRows // backing array of sum.PerHole, reused
+	// holeIndex maps a hole id to its place in sum.PerHole.
+	holeIndex map[string]int
+	done      chan struct{} // closed when out is ready
+	tail      []byte
 }
 
 type pipeline struct {
@@ -392,12 +431,26 @@ func (cv *converter) convert(b *batch) {
 		b.rows[i].Record = b.split[at:len(b.split):len(b.split)]
 	}
 	sum := &b.sum
+	sum.PerHole = b.perHole[:0]
+	if b.holeIndex == nil {
+		b.holeIndex = map[string]int{}
+	}
+	clear(b.holeIndex)
 	var last *Hole
 	var m Measurement
+	var hc *HoleRows // counts of the row's hole id in sum.PerHole
 	for i := range b.rows {
 		row := &b.rows[i]
 		cv.sr.Parse(row)
 		sum.Rows++
+		id := row.HoleID
+		if row.Err != nil && id == "" && cv.iHole < len(row.Record) {
+			id = strings.TrimSpace(row.Record[cv.iHole]) // a row of the wrong width
+		}
+		if hc == nil || hc.HoleID != id {
+			hc = b.holeRowsOf(id)
+		}
+		hc.Rows++
 		if len(row.Record) == cv.ncols {
 			cw.Raw(row.Raw) // the input columns exactly as read
 		} else {
@@ -405,6 +458,7 @@ func (cv *converter) convert(b *batch) {
 		}
 		if row.Err != nil {
 			sum.BadRows++
+			hc.BadRows++
 			writeEmpty(cw, cv.nout-1)
 			cw.String(row.Err.Error())
 			cw.EndRow()
@@ -418,6 +472,7 @@ func (cv *converter) convert(b *batch) {
 		res, err := cv.hs.orient(last, &m)
 		if err != nil {
 			sum.BadRows++
+			hc.BadRows++
 			writeEmpty(cw, cv.nout-1)
 			var de *domain.Error
 			errors.As(err, &de)
@@ -431,6 +486,7 @@ func (cv *converter) convert(b *batch) {
 		}
 		if res.Warn != 0 || res.Hole.Caution != "" {
 			sum.WarnRows++
+			hc.WarnRows++
 		}
 		if res.Point.Extrapolated {
 			sum.Extrapols++
@@ -438,6 +494,20 @@ func (cv *converter) convert(b *batch) {
 		b.tail = writeResult(cw, &res, cv.thick, b.tail)
 		cw.EndRow()
 	}
+	b.perHole = sum.PerHole
+}
+
+// holeRowsOf returns the counts of hole id in b.sum.PerHole, adding them
+// when new. It is called only when the hole id changes from one row to the
+// next.
+func (b *batch) holeRowsOf(id string) *HoleRows {
+	i, ok := b.holeIndex[id]
+	if !ok {
+		i = len(b.sum.PerHole)
+		b.holeIndex[id] = i
+		b.sum.PerHole = append(b.sum.PerHole, HoleRows{HoleID: id})
+	}
+	return &b.sum.PerHole[i]
 }
 
 // writeRecord writes the input cells, padded or cut to the header's width so

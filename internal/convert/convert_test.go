@@ -9,6 +9,7 @@ import (
 	"io"
 	"math"
 	"math/rand/v2"
+	"reflect"
 	"runtime"
 	"strconv"
 	"strings"
@@ -511,12 +512,56 @@ func TestConvertWorkersSameOutput(t *testing.T) {
 		sums = append(sums, sum)
 	}
 	for i := 1; i < len(outs); i++ {
-		if outs[i] != outs[0] || sums[i] != sums[0] {
+		if outs[i] != outs[0] || !reflect.DeepEqual(sums[i], sums[0]) {
 			t.Fatalf("output with %d configurations differs", i)
 		}
 	}
 	if sums[0].Rows != 5000 || sums[0].BadRows == 0 || strings.Count(outs[0], "\n") != 5001 {
 		t.Fatalf("summary %+v", sums[0])
+	}
+
+	// Summary.PerHole against the written rows themselves, read back with
+	// encoding/csv: rows per hole_id cell (first appearance order), rows
+	// with an error, and rows with warnings but no error.
+	cr := csv.NewReader(strings.NewReader(outs[0]))
+	cr.FieldsPerRecord = -1
+	recs, err := cr.ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	head := recs[0]
+	col := func(name string) int {
+		for i := len(head) - 1; i >= 0; i-- { // output columns come last
+			if head[i] == name {
+				return i
+			}
+		}
+		t.Fatalf("no column %s", name)
+		return -1
+	}
+	iWarn, iErr := col(ColWarnings), col(ColError)
+	var want []HoleRows
+	at := map[string]int{}
+	for _, rec := range recs[1:] {
+		id := rec[0]
+		i, ok := at[id]
+		if !ok {
+			i = len(want)
+			at[id] = i
+			want = append(want, HoleRows{HoleID: id})
+		}
+		want[i].Rows++
+		if rec[iErr] != "" {
+			want[i].BadRows++
+		} else if rec[iWarn] != "" {
+			want[i].WarnRows++
+		}
+	}
+	if !reflect.DeepEqual(sums[0].PerHole, want) {
+		t.Fatalf("per hole %+v\nfrom the output %+v", sums[0].PerHole, want)
+	}
+	if _, ok := at["NOPE"]; !ok || len(want) < 13 {
+		t.Fatalf("holes %v: want G0..G11 and NOPE", want)
 	}
 }
 
