@@ -206,7 +206,7 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 		return ExitUsage
 	}
 	if *summary != "" {
-		if code := holeSummary(env, *summary, tmp, holes, srows); code != ExitOK {
+		if code := holeSummary(env, *summary, sum.PerHole, holes, srows); code != ExitOK {
 			tmp.Close()
 			return code
 		}
@@ -237,17 +237,14 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 	return ExitOK
 }
 
-// holeSummary counts the converted rows in tmp per hole and writes the hole
-// summary to file.
-func holeSummary(env *Env, file string, tmp *os.File, holes *convert.Holes, srows []csvio.SurveyRow) int {
-	if _, err := tmp.Seek(0, io.SeekStart); err != nil {
-		fmt.Fprintf(env.Stderr, "corvane convert: %v\n", err)
-		return ExitUsage
-	}
-	counts, order, err := countRows(tmp)
-	if err != nil {
-		fmt.Fprintf(env.Stderr, "corvane convert: %v\n", err)
-		return ExitUsage
+// holeSummary writes the hole summary to file, with the rows per hole that
+// the conversion counted.
+func holeSummary(env *Env, file string, perHole []convert.HoleRows, holes *convert.Holes, srows []csvio.SurveyRow) int {
+	counts := make(map[string]*holeCounts, len(perHole))
+	order := make([]string, len(perHole))
+	for i, h := range perHole {
+		counts[h.HoleID] = &holeCounts{rows: h.Rows, warn: h.WarnRows, bad: h.BadRows}
+		order[i] = h.HoleID
 	}
 	f, err := os.Create(file)
 	if err != nil {
