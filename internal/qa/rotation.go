@@ -106,7 +106,12 @@ func (t *tensor) addTensor(u tensor) {
 // The eigenvector is found by power iteration on the 3x3 tensor, started
 // from its largest column, which converges at the rate S2/S1 per step: fast
 // for any fabric worth using as a reference, and without allocation (the
-// tests compare it with gonum's symmetric eigendecomposition).
+// tests compare it with gonum's symmetric eigendecomposition). It is kept
+// instead of dirstat's gonum-based eigen-analysis because the check takes a
+// principal axis twice per run: on a 20-sample tensor gonum's mat.EigenSym
+// took about 4 us and 8 allocations a call against 0.4 us and none here, and
+// Run on the 200-hole benchmark programme went from 0.28 M to 0.60 M
+// allocations with it (go test -bench, shared 2-core machine).
 func (t tensor) principal() (axis geom.Vec3, s1 float64, ok bool) {
 	if t.n == 0 {
 		return geom.Vec3{}, 0, false
