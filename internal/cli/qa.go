@@ -163,7 +163,7 @@ func runQA(_ context.Context, env *Env, args []string) int {
 	o.PersistentType = strings.TrimSpace(*persistent)
 	o.Feet = *feet
 
-	in, rejected, err := readQAInput(*collars, *surveys, *structures, *runsF, *picks, *outRef, *decl, *conv, env.Stderr)
+	in, rejected, err := readQAInput(*collars, *surveys, *structures, *runsF, *picks, *outRef, *decl, *conv, *feet, env.Stderr)
 	if err != nil {
 		csvio.Report(env.Stderr, err)
 		return ExitUsage
@@ -224,7 +224,7 @@ func writeFileAtomic(path string, write func(io.Writer) error) error {
 // readQAInput reads the files. Whole-file problems (missing files or
 // columns, bad collar, survey, run or pick rows) are errors; bad structure
 // rows become findings in the report and are counted in rejected.
-func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl, conv float64, stderr io.Writer) (in qa.Input, rejected int, err error) {
+func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl, conv float64, feet bool, stderr io.Writer) (in qa.Input, rejected int, err error) {
 	open := func(name string) (*os.File, error) {
 		f, err := os.Open(name)
 		if err != nil {
@@ -261,7 +261,11 @@ func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl,
 		if !math.IsNaN(all) {
 			return all
 		}
-		res, err := northref.Corrections(c.CRS, c.Collar.East, c.Collar.North, c.Collar.Elevation, date, what == "declination", what == "grid convergence")
+		elevM := c.Collar.Elevation // the magnetic model takes metres
+		if feet {
+			elevM *= 0.3048
+		}
+		res, err := northref.Corrections(c.CRS, c.Collar.East, c.Collar.North, elevM, date, what == "declination", what == "grid convergence")
 		if err == nil {
 			if what == "declination" {
 				return res.Declination

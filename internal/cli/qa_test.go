@@ -5,14 +5,18 @@ import (
 	"context"
 	"encoding/json"
 	"fmt"
+	"io"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
 	"testing"
+	"time"
 
 	"corvane/internal/coreangle"
 	"corvane/internal/desurvey"
 	"corvane/internal/geom"
+	"corvane/internal/northref"
 	"corvane/internal/qa"
 )
 
@@ -125,5 +129,40 @@ func TestQACommandUsage(t *testing.T) {
 	var z zoneFlags
 	if err := z.Set("TM-001:12.5-30"); err != nil || z[0] != (qa.MagneticZone{HoleID: "TM-001", From: 12.5, To: 30}) {
 		t.Errorf("zone %v %v", z, err)
+	}
+}
+
+// With --feet the collar elevation is in feet; the declination computed for
+// magnetic surveys must be the magnetic model's at that elevation in metres
+// (northref.Corrections takes metres), as convert computes it.
+func TestQAInputFeetElevation(t *testing.T) {
+	dir := t.TempDir()
+	writeQAFiles(t, dir)
+	p := func(n string) string { return filepath.Join(dir, n) }
+	const east, north, elevFt = 400000.0, 7400000.0, 9000.0
+	if err := os.WriteFile(p("collars.csv"), []byte(fmt.Sprintf("hole_id,easting,northing,elevation,azimuth,dip,depth,crs\nKW1,%g,%g,%g,70,-60,60,EPSG:32750\n", east, north, elevFt)), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(p("surveys.csv"), []byte("hole_id,depth,azimuth,dip,azimuth_reference,survey_date\nKW1,30,70,-60,magnetic,2026-03-01\nKW1,60,70,-60,magnetic,2026-03-01\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	date := time.Date(2026, 3, 1, 0, 0, 0, 0, time.UTC)
+	atM, err := northref.Corrections("EPSG:32750", east, north, elevFt*0.3048, date, true, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	atFt, err := northref.Corrections("EPSG:32750", east, north, elevFt, date, true, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if atM.Declination == atFt.Declination {
+		t.Fatalf("declination %v does not depend on elevation here: the check below could not fail", atM.Declination)
+	}
+	in, _, err := readQAInput(p("collars.csv"), p("surveys.csv"), p("structures.csv"), p("runs.csv"), p("picks.csv"), "true", math.NaN(), math.NaN(), true, io.Discard)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got, want := in.Surveys[0].Azimuth, 70+atM.Declination; got != want {
+		t.Fatalf("station azimuth %v, want 70 + declination at %g m = %v (at %g as metres: %v)", got, elevFt*0.3048, want, elevFt, 70+atFt.Declination)
 	}
 }
