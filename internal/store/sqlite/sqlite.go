@@ -14,7 +14,9 @@ import (
 	"database/sql"
 	"errors"
 	"fmt"
+	"io/fs"
 	"net/url"
+	"os"
 	"runtime"
 	"strings"
 	"time"
@@ -118,9 +120,16 @@ func MigrateDownAll(path string) error {
 }
 
 // Version reports the schema version of the database file and whether a
-// failed migration left it dirty. A database with no migrations has version 0.
+// failed migration left it dirty. A database with no migrations has version 0,
+// and so has a file that does not exist: asking does not create it.
 func Version(path string) (version uint, dirty bool, err error) {
-	return storekit.Version(func() (*migrate.Migrate, error) { return newMigrate(Path(path)) })
+	path = Path(path)
+	if !strings.HasPrefix(path, "file:") {
+		if _, err := os.Stat(path); errors.Is(err, fs.ErrNotExist) {
+			return 0, false, nil
+		}
+	}
+	return storekit.Version(func() (*migrate.Migrate, error) { return newMigrate(path) })
 }
 
 func newMigrate(path string) (*migrate.Migrate, error) {

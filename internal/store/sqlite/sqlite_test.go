@@ -1,6 +1,9 @@
 package sqlite_test
 
 import (
+	"errors"
+	"io/fs"
+	"os"
 	"path/filepath"
 	"testing"
 
@@ -28,6 +31,9 @@ func TestMigrateUpDownVersion(t *testing.T) {
 	v, dirty, err := sqlite.Version(path)
 	if err != nil || v != 0 || dirty {
 		t.Fatalf("fresh file: version %d dirty %v err %v", v, dirty, err)
+	}
+	if _, err := os.Stat(path); !errors.Is(err, fs.ErrNotExist) {
+		t.Fatalf("reading the version of a missing file created it (stat: %v)", err)
 	}
 	if err := sqlite.Migrate(path, 0); err != nil {
 		t.Fatal(err)
