@@ -14,6 +14,7 @@ import (
 	"strconv"
 	"strings"
 
+	"corvane/internal/csvio"
 	"corvane/internal/northref"
 	"corvane/internal/utm"
 	"corvane/internal/wmm"
@@ -151,10 +152,11 @@ type fieldError struct {
 
 func (e *fieldError) Error() string { return e.field + ": " + e.err.Error() }
 
+// parseFinite parses a finite decimal number, as the CSV readers do.
 func parseFinite(s string) (float64, error) {
-	v, err := strconv.ParseFloat(strings.TrimSpace(s), 64)
-	if err != nil || math.IsNaN(v) || math.IsInf(v, 0) {
-		return 0, fmt.Errorf("%q is not a number", s)
+	v, msg := csvio.ParseNumber(strings.TrimSpace(s))
+	if msg != "" {
+		return 0, errors.New(msg)
 	}
 	return v, nil
 }
