@@ -14,16 +14,18 @@ import (
 	"strconv"
 	"strings"
 	"time"
+
+	"corvane/internal/domain"
 )
 
 // Defaults.
 const (
 	DefaultAddr            = "127.0.0.1:8080"
 	DefaultDatabase        = "./corvane.db"
-	DefaultMaxBodyBytes    = 1 << 20   // 1 MiB for JSON bodies
-	DefaultMaxImportBytes  = 256 << 20 // 256 MiB for CSV imports
-	DefaultPageSize        = 100
-	DefaultMaxPageSize     = 1000
+	DefaultMaxBodyBytes    = 1 << 20             // 1 MiB for JSON bodies
+	DefaultMaxImportBytes  = 256 << 20           // 256 MiB for CSV imports
+	DefaultPageSize        = domain.DefaultLimit // the store's own default and cap
+	DefaultMaxPageSize     = domain.MaxLimit
 	DefaultShutdownTimeout = 30 * time.Second
 	DefaultReadTimeout     = 5 * time.Minute // large CSV uploads
 	DefaultWriteTimeout    = 5 * time.Minute // large CSV exports

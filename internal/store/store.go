@@ -6,7 +6,6 @@ package store
 
 import (
 	"context"
-	"strings"
 
 	"corvane/internal/config"
 	"corvane/internal/domain"
@@ -14,14 +13,9 @@ import (
 	"corvane/internal/store/sqlite"
 )
 
-// IsPostgres reports whether url names a PostgreSQL database.
-func IsPostgres(url string) bool {
-	return strings.HasPrefix(url, "postgres://") || strings.HasPrefix(url, "postgresql://")
-}
-
 // Open opens the store at url. It does not migrate.
 func Open(ctx context.Context, url string) (domain.Store, error) {
-	if IsPostgres(url) {
+	if config.IsPostgresURL(url) {
 		return postgres.Open(ctx, url)
 	}
 	return sqlite.Open(ctx, url)
@@ -30,7 +24,7 @@ func Open(ctx context.Context, url string) (domain.Store, error) {
 // Migrate applies all up migrations (steps == 0), or steps up (> 0) or down
 // (< 0) migrations.
 func Migrate(url string, steps int) error {
-	if IsPostgres(url) {
+	if config.IsPostgresURL(url) {
 		return postgres.Migrate(url, steps)
 	}
 	return sqlite.Migrate(url, steps)
@@ -38,7 +32,7 @@ func Migrate(url string, steps int) error {
 
 // MigrateDownAll rolls back every migration.
 func MigrateDownAll(url string) error {
-	if IsPostgres(url) {
+	if config.IsPostgresURL(url) {
 		return postgres.MigrateDownAll(url)
 	}
 	return sqlite.MigrateDownAll(url)
@@ -46,7 +40,7 @@ func MigrateDownAll(url string) error {
 
 // Version reports the schema version and the dirty flag.
 func Version(url string) (uint, bool, error) {
-	if IsPostgres(url) {
+	if config.IsPostgresURL(url) {
 		return postgres.Version(url)
 	}
 	return sqlite.Version(url)
