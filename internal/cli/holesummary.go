@@ -2,7 +2,6 @@ package cli
 
 import (
 	"encoding/csv"
-	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -20,67 +19,6 @@ var holeSummaryColumns = []string{"hole_id", "survey_azimuth_reference", "output
 
 // holeCounts are the output rows of one hole.
 type holeCounts struct{ rows, warn, bad int }
-
-// countRows reads a converted CSV (the input columns, then the output
-// columns of package convert) and counts its rows per hole id: all rows,
-// rows with warnings (including a caution about the hole's corrections)
-// and rows with errors. It also returns the hole ids in order of first
-// appearance.
-func countRows(r io.Reader) (map[string]*holeCounts, []string, error) {
-	cr := csv.NewReader(r)
-	cr.FieldsPerRecord = -1
-	cr.ReuseRecord = true
-	head, err := cr.Read()
-	if err != nil {
-		return nil, nil, fmt.Errorf("reading the converted rows: %w", err)
-	}
-	idCol, warnCol, errCol := -1, -1, -1
-	for i, n := range head {
-		n = strings.ToLower(strings.TrimSpace(strings.TrimPrefix(n, "\ufeff")))
-		switch {
-		case n == csvio.ColHoleID && idCol < 0:
-			idCol = i
-		case n == convert.ColWarnings:
-			warnCol = i // the last one: output columns follow the input ones
-		case n == convert.ColError:
-			errCol = i
-		}
-	}
-	if idCol < 0 || warnCol < 0 || errCol < 0 {
-		return nil, nil, fmt.Errorf("converted rows lack the %s, %s or %s column", csvio.ColHoleID, convert.ColWarnings, convert.ColError)
-	}
-	counts := map[string]*holeCounts{}
-	var order []string
-	cell := func(rec []string, i int) string {
-		if i < len(rec) {
-			return rec[i]
-		}
-		return ""
-	}
-	for {
-		rec, err := cr.Read()
-		if errors.Is(err, io.EOF) {
-			break
-		}
-		if err != nil {
-			return nil, nil, fmt.Errorf("reading the converted rows: %w", err)
-		}
-		id := strings.TrimSpace(cell(rec, idCol))
-		c := counts[id]
-		if c == nil {
-			c = &holeCounts{}
-			counts[id] = c
-			order = append(order, id)
-		}
-		c.rows++
-		if cell(rec, errCol) != "" {
-			c.bad++
-		} else if cell(rec, warnCol) != "" {
-			c.warn++
-		}
-	}
-	return counts, order, nil
-}
 
 // writeHoleSummary writes one row per hole of hs (collar-file order), then
 // one per hole id that appears only in the structure rows: the azimuth
