@@ -27,7 +27,7 @@ func (s *Server) holePath(c *gin.Context) {
 		}
 		step = x
 	}
-	pts, corr, err := s.opt.Service.HolePathCorrections(c.Request.Context(), pid, hid, step)
+	pts, corr, err := s.opt.Service.HolePath(c.Request.Context(), pid, hid, step)
 	if err != nil {
 		fail(c, err)
 		return

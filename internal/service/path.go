@@ -44,15 +44,9 @@ type PathPoint struct {
 // final depth, in depth order. A step of 0 means DefaultPathStep; otherwise it
 // must lie within MinPathStep..MaxPathStep. The path is built from the store's
 // current collar and survey on every call, by the hole model the derived
-// values use, so it is never stale.
-func (s *Service) HolePath(ctx context.Context, projectID, holeID int64, step float64) ([]PathPoint, error) {
-	pts, _, err := s.HolePathCorrections(ctx, projectID, holeID, step)
-	return pts, err
-}
-
-// HolePathCorrections is [Service.HolePath] that also returns the hole's
-// corrections, from the same read of the collar and survey set as the path.
-func (s *Service) HolePathCorrections(ctx context.Context, projectID, holeID int64, step float64) ([]PathPoint, HoleCorrections, error) {
+// values use, so it is never stale. The hole's corrections come back with it,
+// from the same read of the collar and survey set as the path.
+func (s *Service) HolePath(ctx context.Context, projectID, holeID int64, step float64) ([]PathPoint, HoleCorrections, error) {
 	pts, m, err := s.holePath(ctx, projectID, holeID, step)
 	if err != nil {
 		return nil, HoleCorrections{}, err
