@@ -276,6 +276,61 @@ func TestShape(t *testing.T) {
 	near(t, "S3 axis", geom.AxialAngle(e.Vectors[2], z), 0, 1e-9)
 }
 
+// TestShapeDegenerate checks the cases where Woodcock's (1977) ratios
+// K = ln(S1/S2)/ln(S2/S3) and C = ln(S1/S3) have no finite value (from the
+// definitions, Woodcock 1977): identical axes give S = (1, 0, 0), K and C
+// infinite; uniform axes give 0/0, undefined; an ideal girdle (S3 = 0) gives
+// K = 0 and C infinite. Each non-finite value carries a note saying why.
+func TestShapeDegenerate(t *testing.T) {
+	x, y, z := geom.Vec3{X: 1}, geom.Vec3{Y: 1}, geom.Vec3{Z: 1}
+	l := geom.FromTrendPlunge(30, 40)
+	e, err := Tensor([]geom.Vec3{l, l, l}, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := ShapeOf(e)
+	if !math.IsInf(s.K, 1) || !strings.Contains(s.KNote, "infinite") || !strings.Contains(s.KNote, "Woodcock 1977") {
+		t.Errorf("perfect cluster: K = %v (%q), want +Inf with a reason", s.K, s.KNote)
+	}
+	if !math.IsInf(s.C, 1) || s.CNote == "" {
+		t.Errorf("perfect cluster: C = %v (%q), want +Inf with a reason", s.C, s.CNote)
+	}
+
+	e, _ = Tensor([]geom.Vec3{x, y, z}, nil)
+	s = ShapeOf(e)
+	if !math.IsNaN(s.K) || !strings.Contains(s.KNote, "undefined") {
+		t.Errorf("uniform: K = %v (%q), want NaN with a reason", s.K, s.KNote)
+	}
+	if math.IsInf(s.C, 0) || s.CNote != "" {
+		t.Errorf("uniform: C = %v (%q), want ln 1 = 0", s.C, s.CNote)
+	}
+
+	var girdle []geom.Vec3
+	for a := 0.0; a < 180; a += 30 {
+		girdle = append(girdle, x.Scale(math.Cos(geom.Rad(a))).Add(y.Scale(math.Sin(geom.Rad(a)))))
+	}
+	e, _ = Tensor(girdle, nil)
+	s = ShapeOf(e)
+	if s.K != 0 || s.KNote != "" {
+		t.Errorf("ideal girdle: K = %v (%q), want 0", s.K, s.KNote)
+	}
+	if !math.IsInf(s.C, 1) || s.CNote == "" {
+		t.Errorf("ideal girdle: C = %v (%q), want +Inf with a reason", s.C, s.CNote)
+	}
+
+	// An axial cluster with S2 = S3 > 0: four axes tilted 10 degrees from z
+	// toward +-x and +-y.
+	var cone []geom.Vec3
+	for _, tr := range []float64{0, 90, 180, 270} {
+		cone = append(cone, geom.FromTrendPlunge(tr, 80))
+	}
+	e, _ = Tensor(cone, nil)
+	s = ShapeOf(e)
+	if !math.IsInf(s.K, 1) || s.KNote == "" || math.IsInf(s.C, 0) {
+		t.Errorf("uniaxial cluster: K = %v (%q), C = %v, want K = +Inf, C finite", s.K, s.KNote, s.C)
+	}
+}
+
 // TestTerzaghi checks references README section 5: Terzaghi (1965)
 // w = 1/|cos delta|; vertical hole and plane 090/60 give w = 2; hole 045/-60
 // and plane 300/50 give delta = 49.0194, w = 1.5248. The default cap is

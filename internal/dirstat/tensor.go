@@ -87,13 +87,30 @@ func tensorEigen(t [6]float64, sw float64) (Eigen, error) {
 // Woodcock (1977): K = ln(S1/S2) / ln(S2/S3) (K < 1 girdles, K > 1 clusters),
 // C = ln(S1/S3) (strength). Vollmer (1990): P = S1 - S2 (point), G = 2(S2 - S3)
 // (girdle), R = 3 S3 (random), P + G + R = 1, and B = P + G (cohesion).
-// K and C are +Inf or NaN where a logarithm's argument is 0 or 1/0 (for example
-// K is NaN for uniform data, where both logarithms are 0).
+//
+// Where Woodcock's ratios have no finite value the measure is +Inf or NaN and
+// KNote or CNote says why (they are empty otherwise):
+//   - S2 = S3 < S1 (a uniaxial cluster, e.g. identical axes): ln(S2/S3) = 0,
+//     K = +Inf;
+//   - S1 = S2 = S3 (uniform): K = 0/0, NaN;
+//   - S3 = 0 (every axis in one plane, the girdle side): ln(S1/S3) = +Inf, so
+//     C = +Inf, and K = ln(S1/S2)/+Inf = 0 when S2 > 0 (a girdle), or +Inf when
+//     S2 = 0 too (a perfect cluster).
+//
+// Eigenvalues within [EigenTol] of each other count as equal and those below
+// it as zero: differences that small are rounding noise of the
+// eigendecomposition, and a ratio of two such noises would be meaningless.
 type Shape struct {
-	K, C    float64
-	P, G, R float64
-	B       float64
+	K, C         float64
+	P, G, R      float64
+	B            float64
+	KNote, CNote string
 }
+
+// EigenTol is the difference below which two eigenvalues of a normalised
+// orientation tensor (sum 1) count as equal in [ShapeOf]; eigenvalues are
+// computed in float64 with errors of a few 1e-16.
+const EigenTol = 1e-12
 
 // ShapeOf returns the shape measures of e.
 func ShapeOf(e Eigen) Shape {
@@ -104,7 +121,44 @@ func ShapeOf(e Eigen) Shape {
 		R: 3 * s3,
 	}
 	sh.B = sh.P + sh.G
-	sh.C = math.Log(s1 / s3)
-	sh.K = math.Log(s1/s2) / math.Log(s2/s3)
+	zero := func(x float64) bool { return x < EigenTol }
+	equal := func(a, b float64) bool { return math.Abs(a-b) < EigenTol }
+
+	// C = ln(S1/S3); S1 >= 1/3 is never zero.
+	if zero(s3) {
+		sh.C = math.Inf(1)
+		sh.CNote = "infinite: S3 = 0, every axis lies in one plane (Woodcock 1977, C = ln(S1/S3))"
+	} else {
+		sh.C = math.Log(s1 / s3)
+	}
+
+	// K = ln(S1/S2) / ln(S2/S3).
+	var num, den float64
+	switch {
+	case zero(s2):
+		num = math.Inf(1)
+	case equal(s1, s2):
+		num = 0
+	default:
+		num = math.Log(s1 / s2)
+	}
+	switch {
+	case zero(s2) || equal(s2, s3):
+		den = 0
+	case zero(s3):
+		den = math.Inf(1)
+	default:
+		den = math.Log(s2 / s3)
+	}
+	switch {
+	case den == 0 && num == 0:
+		sh.K = math.NaN()
+		sh.KNote = "undefined: S1 = S2 = S3, a uniform distribution (Woodcock 1977, K = ln(S1/S2)/ln(S2/S3) = 0/0)"
+	case den == 0:
+		sh.K = math.Inf(1)
+		sh.KNote = "infinite: S2 = S3, a uniaxial cluster (Woodcock 1977, K = ln(S1/S2)/ln(S2/S3) with ln(S2/S3) = 0)"
+	default:
+		sh.K = num / den // 0 when den is +Inf: a girdle
+	}
 	return sh
 }
