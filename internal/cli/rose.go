@@ -5,9 +5,10 @@ import (
 	"errors"
 	"flag"
 	"fmt"
-	"math"
+	"io"
 	"path/filepath"
 
+	"corvane/internal/fabric"
 	"corvane/internal/netsvg"
 )
 
@@ -28,7 +29,7 @@ Draws a rose diagram from the same CSV as corvane stats: dip directions of plane
 Petal area is proportional to the count. --min-dip leaves out flatter planes, whose
 dip direction and strike are poorly defined.
 
-` + statsCaution + `
+` + fabric.Caution + `
 
 Options:
 `
@@ -53,82 +54,28 @@ func runRose(_ context.Context, env *Env, args []string) int {
 	if c.out == "" {
 		return fail(errors.New("-o ROSE.svg is required"))
 	}
-	if c.of != "dip-direction" && c.of != "strike" && c.of != "trend" {
-		return fail(fmt.Errorf("--of %q: want dip-direction, strike or trend", c.of))
+	o := fabric.RoseOptions{Title: *title}
+	var err error
+	if o.Of, o.Bin, o.MinDip, err = fabric.ParseRose(c.of, *bin, *minDip); err != nil {
+		return fail(err)
 	}
-	if q := 180 / *bin; !(*bin > 0) || math.Abs(q-math.Round(q)) > 1e-9 {
-		return fail(fmt.Errorf("--bin %v: want a width in degrees that divides 180", *bin))
+	if o.Weighting, _, err = c.options(); err != nil {
+		return fail(err)
 	}
-	if !(*minDip >= 0 && *minDip <= 90) {
-		return fail(fmt.Errorf("--min-dip %v: want 0 to 90", *minDip))
-	}
-	w, err := parseWeightingFlag(c.weighting)
+	oi, err := loadOrientations(env, c.in, c.typ)
 	if err != nil {
 		return fail(err)
 	}
-	in, err := loadOrientations(env, c.in, c.typ)
+	if o.Title == "" {
+		o.Title = "Rose: " + filepath.Base(oi.file)
+	}
+	o.Source, o.AzimuthRef = orientSource(oi, c.typ), oi.azimuthRef
+	r, err := fabric.Rose(oi.in, o)
 	if err != nil {
 		return fail(err)
 	}
-	r := netsvg.Rose{BinWidth: *bin, Caution: statsCaution, Subtitle: filepath.Base(in.file)}
-	r.Title = *title
-	if r.Title == "" {
-		r.Title = "Rose: " + filepath.Base(in.file)
-	}
-	kind := "planes"
-	if c.of == "trend" {
-		kind = "lines"
-	}
-	g := buildGroup(in, kind, w)
-	skipped := 0
-	for i, ri := range g.rows {
-		row := in.rows[ri]
-		var az float64
-		switch c.of {
-		case "dip-direction", "strike":
-			if row.Plane.Dip < *minDip {
-				skipped++
-				continue
-			}
-			az = row.Plane.DipDirection
-			if c.of == "strike" {
-				az = row.Plane.Strike()
-			}
-		case "trend":
-			az = row.LineDir.Trend
-		}
-		r.Azimuths = append(r.Azimuths, az)
-		if g.weights != nil {
-			r.Weights = append(r.Weights, g.weights[i])
-		}
-	}
-	if len(r.Azimuths) == 0 {
-		return fail(fmt.Errorf("%s: no %s to draw", in.file, kind))
-	}
-	r.Quantity = map[string]string{"dip-direction": "dip directions", "strike": "strikes", "trend": "line trends"}[c.of]
-	r.Axial = c.of == "strike"
-	if skipped > 0 {
-		r.Notes = append(r.Notes, fmt.Sprintf("%d planes dipping less than %g left out", skipped, *minDip))
-	}
-	if w.on {
-		r.Notes = append(r.Notes, fmt.Sprintf("Terzaghi weights, cap %.3g", w.cap))
-	}
-	if len(in.problems) > 0 {
-		r.Notes = append(r.Notes, fmt.Sprintf("%d rows rejected (see messages)", len(in.problems)))
-	}
-	out, closeOut, err := orientOut(env, c.out)
-	if err != nil {
+	if err := writeOutput(c.out, func(w io.Writer) error { return netsvg.WriteRose(w, r) }); err != nil {
 		return fail(err)
 	}
-	if err := netsvg.WriteRose(out, r); err != nil {
-		closeOut()
-		return fail(err)
-	}
-	if err := closeOut(); err != nil {
-		return fail(err)
-	}
-	if len(in.problems) > 0 {
-		return ExitRows
-	}
-	return ExitOK
+	return orientExit(oi)
 }

@@ -28,6 +28,15 @@ type OrientationRow struct {
 
 	HasHole bool
 	Hole    geom.Vec3 // down-hole unit vector from hole_azimuth, hole_dip (negative down)
+
+	// NoAzimuth: the row gives a dip without a dip direction, or a
+	// line_plunge without a line_trend, as `corvane convert` writes a
+	// measurement in a vertical hole. Plane and LineDir are then unset.
+	NoAzimuth bool
+	// Error is the error column: why the row could not be converted.
+	Error string
+	// AzimuthRef is the azimuth_reference column ("" when absent).
+	AzimuthRef string
 }
 
 // Orientation columns, matched case-insensitively after trimming spaces.
@@ -40,6 +49,8 @@ const (
 	colHoleDip      = "hole_dip"
 	colType         = "type"
 	colHoleID       = "hole_id"
+	colError        = "error"
+	colAzimuthRef   = "azimuth_reference"
 )
 
 // ReadOrientations reads planes and lines from a CSV file whose header has
@@ -49,9 +60,14 @@ const (
 // Header names are matched without regard to case. Lines starting with # are
 // comments. name is the file name used in messages.
 //
-// A row that cannot be used (a value that is not a number, out of range, half
-// of a pair missing, or no plane and no line at all) is left out and
-// reported in problems as a domain.Invalid error located at its file, line
+// A dip without a dip direction, or a line_plunge without a line_trend, is
+// what `corvane convert` writes for a vertical hole: the row is returned with
+// NoAzimuth set (what to do with it is the reader's rule). A row whose error
+// column is not empty is returned with Error set and no plane or line.
+//
+// A row that cannot be used (a value that is not a number, out of range, a
+// dip direction or trend without its dip or plunge, or no plane, no line and
+// no error at all) is left out and reported in problems as a domain.Invalid error located at its file, line
 // and column; the other rows are still returned. err is non-nil only when the
 // file as a whole cannot be read: no header, or neither column pair present.
 func ReadOrientations(r io.Reader, name string) (rows []OrientationRow, problems []*domain.Error, err error) {
@@ -125,10 +141,17 @@ func ReadOrientations(r io.Reader, name string) (rows []OrientationRow, problems
 			}
 			return v, true
 		}
-		pair := func(a, b string, alo, ahi, blo, bhi float64) (x, y float64, ok bool) {
+		// pair reads two columns that go together; with azimuthLast, the
+		// second (an azimuth) may be missing when the first is given: the
+		// row is then marked NoAzimuth.
+		pair := func(a, b string, alo, ahi, blo, bhi float64, azimuthLast bool) (x, y float64, ok bool) {
 			x, okx := num(a, alo, ahi)
 			y, oky := num(b, blo, bhi)
 			if bad != nil {
+				return 0, 0, false
+			}
+			if azimuthLast && okx && !oky {
+				row.NoAzimuth = true
 				return 0, 0, false
 			}
 			if okx != oky {
@@ -142,27 +165,28 @@ func ReadOrientations(r io.Reader, name string) (rows []OrientationRow, problems
 			return x, y, okx
 		}
 		if planes {
-			dip, dd, ok := pair(colDip, colDipDirection, 0, 90, 0, 360)
+			dip, dd, ok := pair(colDip, colDipDirection, 0, 90, 0, 360, true)
 			if ok {
 				row.HasPlane = true
 				row.Plane = geom.Plane{Dip: dip, DipDirection: geom.NormAzimuth(dd)}
 			}
 		}
 		if lines {
-			tr, pl, ok := pair(colLineTrend, colLinePlunge, 0, 360, 0, 90)
+			pl, tr, ok := pair(colLinePlunge, colLineTrend, 0, 90, 0, 360, true)
 			if ok {
 				row.HasLine = true
 				row.LineDir = geom.Line{Trend: geom.NormAzimuth(tr), Plunge: pl}
 			}
 		}
 		if hole {
-			az, dip, ok := pair(colHoleAzimuth, colHoleDip, 0, 360, -90, 90)
+			az, dip, ok := pair(colHoleAzimuth, colHoleDip, 0, 360, -90, 90, false)
 			if ok {
 				row.HasHole = true
 				row.Hole = geom.HoleDirection(az, dip)
 			}
 		}
-		if bad == nil && !row.HasPlane && !row.HasLine {
+		row.Error = cell(colError)
+		if bad == nil && !row.HasPlane && !row.HasLine && !row.NoAzimuth && row.Error == "" {
 			bad = domain.Errorf(domain.Invalid, "no plane and no line on this row").At(domain.Location{File: name, Line: line})
 		}
 		if bad != nil {
@@ -171,6 +195,7 @@ func ReadOrientations(r io.Reader, name string) (rows []OrientationRow, problems
 		}
 		row.Type = cell(colType)
 		row.HoleID = cell(colHoleID)
+		row.AzimuthRef = cell(colAzimuthRef)
 		rows = append(rows, row)
 	}
 	return rows, problems, nil

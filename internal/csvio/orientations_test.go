@@ -8,23 +8,31 @@ import (
 )
 
 func TestReadOrientations(t *testing.T) {
-	in := "Hole_ID,Type,DIP,Dip_Direction,line_trend,line_plunge,hole_azimuth,hole_dip,extra\n" +
-		"TM-001,bedding,30,120,,,45,-60,x\n" + // line 2: plane
-		"TM-001,joint,abc,120,,,45,-60,x\n" + // line 3: not a number
-		"TM-001,joint,95,120,,,45,-60,x\n" + // line 4: dip out of range
-		"TM-001,lineation,,,200,35,45,-60,x\n" + // line 5: line only
-		"TM-001,joint,40,,,,45,-60,x\n" + // line 6: half a pair
+	in := "Hole_ID,Type,DIP,Dip_Direction,line_trend,line_plunge,hole_azimuth,hole_dip,extra,error,azimuth_reference\n" +
+		"TM-001,bedding,30,120,,,45,-60,x,,grid\n" + // line 2: plane
+		"TM-001,joint,abc,120,,,45,-60,x,,\n" + // line 3: not a number
+		"TM-001,joint,95,120,,,45,-60,x,,\n" + // line 4: dip out of range
+		"TM-001,lineation,,,200,35,45,-60,x,,\n" + // line 5: line only
+		"TM-001,joint,,40,,,45,-60,x,,\n" + // line 6: half a pair
 		"# a comment\n" +
-		"TM-002,joint,,,,,45,-60,x\n" + // line 8: nothing
-		"TM-002,joint,60,360,10,20,,,\n" // line 9: plane and line, no hole
+		"TM-002,joint,,,,,45,-60,x,,\n" + // line 8: nothing
+		"TM-002,joint,60,360,10,20,,,,,\n" + // line 9: plane and line, no hole
+		"TM-003,joint,50,,,37,0,-90,,,\n" + // line 10: vertical hole: dip and plunge without azimuths
+		"TM-003,joint,,,,,,,,depth past the end,\n" // line 11: not converted
 	rows, problems, err := ReadOrientations(strings.NewReader(in), "demo.csv")
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(rows) != 3 {
-		t.Fatalf("got %d rows, want 3: %+v", len(rows), rows)
+	if len(rows) != 5 {
+		t.Fatalf("got %d rows, want 5: %+v", len(rows), rows)
 	}
-	if r := rows[0]; r.Line != 2 || !r.HasPlane || r.Plane != (geom.Plane{Dip: 30, DipDirection: 120}) || !r.HasHole || r.Type != "bedding" || r.HoleID != "TM-001" {
+	if r := rows[3]; r.Line != 10 || !r.NoAzimuth || r.HasPlane || r.HasLine || !r.HasHole {
+		t.Errorf("row 3 (vertical hole): %+v", r)
+	}
+	if r := rows[4]; r.Line != 11 || r.Error != "depth past the end" || r.HasPlane || r.HasLine || r.NoAzimuth {
+		t.Errorf("row 4 (not converted): %+v", r)
+	}
+	if r := rows[0]; r.Line != 2 || !r.HasPlane || r.Plane != (geom.Plane{Dip: 30, DipDirection: 120}) || !r.HasHole || r.Type != "bedding" || r.HoleID != "TM-001" || r.AzimuthRef != "grid" || r.NoAzimuth {
 		t.Errorf("row 0: %+v", r)
 	}
 	if a := geom.Angle(rows[0].Hole, geom.HoleDirection(45, -60)); a > 1e-12 {
@@ -39,7 +47,7 @@ func TestReadOrientations(t *testing.T) {
 	want := []string{
 		`demo.csv:line 3, column "dip": "abc" is not a number`,
 		`demo.csv:line 4, column "dip": dip 95 is outside [0, 90]`,
-		`demo.csv:line 6, column "dip_direction": dip_direction is empty but dip is given`,
+		`demo.csv:line 6, column "dip": dip is empty but dip_direction is given`,
 		`demo.csv:line 8: no plane and no line on this row`,
 	}
 	if len(problems) != len(want) {

@@ -17,6 +17,7 @@ var pure = map[string]bool{
 	"corvane/internal/desurvey":   true,
 	"corvane/internal/coreangle":  true,
 	"corvane/internal/dirstat":    true,
+	"corvane/internal/fabric":     true,
 	"corvane/internal/density":    true,
 	"corvane/internal/projection": true,
 	"corvane/internal/netsvg":     true,
