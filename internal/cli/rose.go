@@ -44,7 +44,7 @@ func runRose(_ context.Context, env *Env, args []string) int {
 	var c orientFlags
 	c.register(fs, false)
 	fs.StringVar(&c.of, "of", "dip-direction", "dip-direction, strike or trend")
-	bin := fs.Float64("bin", 10, "bin width in degrees (must divide 180)")
+	bin := fs.Float64("bin", fabric.DefaultBin, "bin width in degrees (must divide 180)")
 	minDip := fs.Float64("min-dip", 0, "leave out planes dipping less than this")
 	title := fs.String("title", "", "title on the sheet")
 	fail, code, done := parseOrientArgs(env, fs, "rose", args)

@@ -15,10 +15,13 @@ const (
 	RoseTrend        = "trend"
 )
 
+// DefaultBin is the petal width, in degrees, when none is given.
+const DefaultBin = 10
+
 // RoseOptions are the options of [Rose].
 type RoseOptions struct {
 	Of        string  // RoseDipDirection (default), RoseStrike or RoseTrend
-	Bin       float64 // petal width in degrees, dividing 180; 0 means 10
+	Bin       float64 // petal width in degrees, dividing 180 (DefaultBin when not given)
 	MinDip    float64 // planes dipping less are left out (dip directions and strikes)
 	Weighting Weighting
 	Title     string
@@ -36,9 +39,6 @@ func ParseRose(of string, bin, minDip float64) (string, float64, float64, error)
 	case RoseStrike, RoseTrend:
 	default:
 		return "", 0, 0, optErr("of", of, "want dip_direction, strike or trend")
-	}
-	if bin == 0 {
-		bin = 10
 	}
 	if q := 180 / bin; !(bin > 0) || math.IsInf(q, 0) || math.Abs(q-math.Round(q)) > 1e-9 {
 		return "", 0, 0, optErr("bin", strconv.FormatFloat(bin, 'g', -1, 64), "want a width in degrees that divides 180")

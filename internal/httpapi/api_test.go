@@ -12,6 +12,7 @@ import (
 	"testing"
 
 	"corvane/internal/domain"
+	"corvane/internal/fabric"
 	"corvane/internal/service"
 )
 
@@ -481,24 +482,25 @@ func TestStatisticsAndNet(t *testing.T) {
 		t.Fatal(err)
 	}
 	base := "/v1/projects/" + itoa(p.ID)
-	var st service.StatsResult
-	f.must(200, f.site, "GET", base+"/statistics?terzaghi=true", nil, &st)
-	if st.Matched == 0 || len(st.Groups) == 0 || !strings.Contains(st.Caution, "licensed practitioner") {
-		t.Errorf("statistics: matched %d, %d groups, caution %q", st.Matched, len(st.Groups), st.Caution)
-	}
-	for _, g := range st.Groups {
-		if g.Weighted == nil {
-			t.Errorf("group %s: no Terzaghi weighted values", g.Name)
+	var st fabric.Report
+	f.must(200, f.site, "GET", base+"/statistics?weighting=terzaghi&sets=type", nil, &st)
+	if st.Rows == 0 || st.Planes == nil || len(st.Planes.Sets) == 0 || !strings.Contains(st.Caution, "licensed practitioner") {
+		t.Errorf("statistics: %d rows, planes %+v, caution %q", st.Rows, st.Planes, st.Caution)
+	} else {
+		for _, g := range st.Planes.Sets {
+			if g.Weighted == nil {
+				t.Errorf("set %s: no Terzaghi weighted values", g.Name)
+			}
 		}
 	}
-	r := f.must(200, f.site, "GET", base+"/net?density=true&max_depth=200", nil, nil)
+	r := f.must(200, f.site, "GET", base+"/net?density=kamb&max_depth=200", nil, nil)
 	if ct := r.Header.Get("Content-Type"); ct != "image/svg+xml" || !strings.Contains(string(r.Body), "<svg") {
 		t.Errorf("net: %q %.80s", ct, r.Body)
 	}
 	if p := f.do(f.site, "GET", base+"/net?projection=mercator", nil).problem(t); p.Status != 422 {
 		t.Errorf("unknown projection: %+v", p)
 	}
-	if p := f.do(f.site, "GET", base+"/statistics?sets=99", nil).problem(t); p.Status != 422 {
+	if p := f.do(f.site, "GET", base+"/statistics?sets=auto:99", nil).problem(t); p.Status != 422 || len(p.Errors) == 0 || p.Errors[0].Field != "sets" {
 		t.Errorf("sets=99: %+v", p)
 	}
 }

@@ -609,6 +609,22 @@ func boolParam(c *gin.Context, name string) (bool, error) {
 	return b, nil
 }
 
+// setQuery reads the set options shared by statistics and net: sets,
+// set (repeatable), sets_on and seed.
+func setQuery(c *gin.Context) (service.SetQuery, error) {
+	q := service.SetQuery{Sets: c.Query("sets"), Windows: c.QueryArray("set"), SetsOn: c.Query("sets_on")}
+	if v := c.Query("seed"); v != "" {
+		seed, err := strconv.ParseUint(v, 10, 64)
+		if err != nil {
+			return q, domain.FieldErr("seed", "query parameter seed=%q: want a whole number >= 0", v)
+		}
+		q.Seed = &seed
+	}
+	return q, nil
+}
+
+// statistics serves the statistics report of the measurements selected;
+// the options are those of corvane stats.
 func (s *Server) statistics(c *gin.Context) {
 	pid, err := pathID(c, "project")
 	if err != nil {
@@ -620,23 +636,12 @@ func (s *Server) statistics(c *gin.Context) {
 		fail(c, err)
 		return
 	}
-	q := service.StatsQuery{MeasurementQuery: mq}
-	if v := c.Query("sets"); v != "" {
-		if q.Sets, err = strconv.Atoi(v); err != nil {
-			fail(c, domain.FieldErr("sets", "query parameter sets=%q: want an integer", v))
-			return
-		}
-	}
-	if q.Weighting, err = boolParam(c, "terzaghi"); err != nil {
+	sq, err := setQuery(c)
+	if err != nil {
 		fail(c, err)
 		return
 	}
-	if v := c.Query("terzaghi_cap"); v != "" {
-		if q.TerzaghiCap, err = strconv.ParseFloat(v, 64); err != nil {
-			fail(c, domain.FieldErr("terzaghi_cap", "query parameter terzaghi_cap=%q: want a number", v))
-			return
-		}
-	}
+	q := service.StatsQuery{MeasurementQuery: mq, SetQuery: sq, Of: c.Query("of"), Weighting: c.Query("weighting")}
 	res, err := s.opt.Service.Statistics(c.Request.Context(), pid, q)
 	if err != nil {
 		fail(c, err)
@@ -645,6 +650,8 @@ func (s *Server) statistics(c *gin.Context) {
 	c.JSON(http.StatusOK, res)
 }
 
+// net serves the net of the measurements selected, as SVG; the options are
+// those of corvane net.
 func (s *Server) net(c *gin.Context) {
 	pid, err := pathID(c, "project")
 	if err != nil {
@@ -656,14 +663,18 @@ func (s *Server) net(c *gin.Context) {
 		fail(c, err)
 		return
 	}
-	q := service.NetQuery{MeasurementQuery: mq, Projection: c.Query("projection"), Title: c.Query("title")}
-	if q.Density, err = boolParam(c, "density"); err != nil {
+	sq, err := setQuery(c)
+	if err != nil {
 		fail(c, err)
 		return
 	}
-	if q.Planes, err = boolParam(c, "planes"); err != nil {
-		fail(c, err)
-		return
+	q := service.NetQuery{MeasurementQuery: mq, SetQuery: sq, Weighting: c.Query("weighting"), Projection: c.Query("projection"),
+		Show: c.Query("show"), Density: c.Query("density"), Units: c.Query("units"), Title: c.Query("title")}
+	if v := c.Query("grid"); v != "" {
+		if q.Grid, err = strconv.Atoi(v); err != nil {
+			fail(c, domain.FieldErr("grid", "query parameter grid=%q: want a whole number", v))
+			return
+		}
 	}
 	stream(c, "image/svg+xml", func(w *trackingWriter) error {
 		return s.opt.Service.Net(c.Request.Context(), pid, q, w)

@@ -10,7 +10,8 @@ import (
 	"corvane/internal/service"
 )
 
-// rose serves the rose diagram of the measurements selected, as SVG.
+// rose serves the rose diagram of the measurements selected, as SVG; the
+// options are those of corvane rose.
 func (s *Server) rose(c *gin.Context) {
 	pid, err := pathID(c, "project")
 	if err != nil {
@@ -22,14 +23,22 @@ func (s *Server) rose(c *gin.Context) {
 		fail(c, err)
 		return
 	}
-	q := service.RoseQuery{MeasurementQuery: mq, Of: c.Query("of"), Title: c.Query("title")}
-	if v := c.Query("bin"); v != "" {
+	q := service.RoseQuery{MeasurementQuery: mq, Of: c.Query("of"), Weighting: c.Query("weighting"), Title: c.Query("title")}
+	for _, p := range []string{"bin", "min_dip"} {
+		v := c.Query(p)
+		if v == "" {
+			continue
+		}
 		x, err := strconv.ParseFloat(v, 64)
-		if err != nil || math.IsNaN(x) || math.IsInf(x, 0) || x <= 0 {
-			fail(c, domain.FieldErr("bin", "query parameter bin=%q: want a width in degrees that divides 180", v))
+		if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
+			fail(c, domain.FieldErr(p, "query parameter %s=%q: want a number of degrees", p, v))
 			return
 		}
-		q.BinWidth = x
+		if p == "bin" {
+			q.BinWidth = &x
+		} else {
+			q.MinDip = x
+		}
 	}
 	stream(c, "image/svg+xml", func(w *trackingWriter) error {
 		return s.opt.Service.Rose(c.Request.Context(), pid, q, w)

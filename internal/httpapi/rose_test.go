@@ -99,7 +99,7 @@ func TestRose(t *testing.T) {
 			}
 		}
 	}
-	for _, bad := range []struct{ q, field string }{{"of=trend", "of"}, {"bin=7", "bin"}, {"bin=0", "bin"}, {"bin=x", "bin"}} {
+	for _, bad := range []struct{ q, field string }{{"of=plunge", "of"}, {"bin=7", "bin"}, {"min_dip=95", "min_dip"}, {"weighting=equal", "weighting"}, {"bin=0", "bin"}, {"bin=x", "bin"}} {
 		r := f.do(f.site, "GET", base+"/rose?"+bad.q, nil)
 		if pr := r.problem(t); pr.Status != 422 || len(pr.Errors) == 0 || pr.Errors[0].Field != bad.field {
 			t.Errorf("%s: %+v, want 422 naming %s", bad.q, pr, bad.field)

@@ -2,67 +2,56 @@ package service
 
 import (
 	"context"
-	"fmt"
 	"io"
-	"math"
 
-	"corvane/internal/domain"
-	"corvane/internal/geom"
+	"corvane/internal/fabric"
 	"corvane/internal/netsvg"
 )
 
-// RoseQuery selects the measurements of a rose diagram and how it is drawn.
+// RoseQuery selects the measurements of a rose diagram and how it is drawn;
+// the fields are the options of corvane rose.
 type RoseQuery struct {
 	MeasurementQuery
-	// Of is "dip_direction" (default; directed, 0-360) or "strike" (right-hand
-	// rule, drawn both ways).
+	// Of is "dip_direction" (default; directed, 0-360), "strike" (right-hand
+	// rule, drawn both ways) or "trend" (of lines).
 	Of string
-	// BinWidth is the petal width in degrees; it must divide 180. 0 means 10.
-	BinWidth float64
-	Title    string
+	// BinWidth is the petal width in degrees; it must divide 180. nil means
+	// fabric.DefaultBin.
+	BinWidth *float64
+	// MinDip leaves out flatter planes.
+	MinDip    float64
+	Weighting string
+	Title     string // default: the project's name
 }
 
-// Rose writes an SVG rose diagram of the dip directions or strikes of the
-// planes passing q to w (read), from their derived values. Planes without a
-// dip direction (in a vertical hole's axis, or whose conversion failed) are
-// left out and counted on the sheet.
+// Rose writes the SVG rose diagram of the measurements passing q to w
+// (read), from the same pipeline as corvane rose (package fabric).
+// Measurements without a dip direction (vertical holes) or whose derivation
+// failed are left out and counted on the sheet.
 func (s *Service) Rose(ctx context.Context, projectID int64, q RoseQuery, w io.Writer) error {
-	of := q.Of
-	if of == "" {
-		of = "dip_direction"
+	o := fabric.RoseOptions{Title: q.Title}
+	var err error
+	bin := float64(fabric.DefaultBin)
+	if q.BinWidth != nil {
+		bin = *q.BinWidth
 	}
-	if of != "dip_direction" && of != "strike" {
-		return domain.FieldErr("of", "of=%q: want dip_direction or strike", q.Of)
+	if o.Of, o.Bin, o.MinDip, err = fabric.ParseRose(q.Of, bin, q.MinDip); err != nil {
+		return optionErr(err)
 	}
-	bw := q.BinWidth
-	if bw == 0 {
-		bw = 10
+	if o.Weighting, err = parseWeighting(q.Weighting); err != nil {
+		return err
 	}
-	if r := 180 / bw; !(bw > 0) || math.IsInf(r, 0) || math.Abs(r-math.Round(r)) > 1e-9 {
-		return domain.FieldErr("bin", "bin width %v degrees does not divide 180", q.BinWidth)
-	}
-	p, poles, _, matched, skipped, err := s.gather(ctx, projectID, q.MeasurementQuery)
+	p, in, err := s.gather(ctx, projectID, q.MeasurementQuery)
 	if err != nil {
 		return err
 	}
-	r := netsvg.Rose{Title: q.Title, BinWidth: bw, Caution: Caution, Quantity: "dip direction"}
-	if r.Title == "" {
-		r.Title = p.Name
+	if o.Title == "" {
+		o.Title = p.Name
 	}
-	r.Subtitle = describe(q.MeasurementQuery) + "; azimuths " + p.OutputAzimuthRef
-	r.Azimuths = make([]float64, len(poles))
-	for i, sm := range poles {
-		r.Azimuths[i] = sm.dipDir
-		if of == "strike" {
-			r.Azimuths[i] = geom.Plane{DipDirection: sm.dipDir}.Strike()
-		}
-	}
-	if of == "strike" {
-		r.Axial, r.Quantity = true, "strike (right-hand rule)"
-	}
-	r.Notes = []string{fmt.Sprintf("%d measurements matched", matched)}
-	if skipped > 0 {
-		r.Notes = append(r.Notes, fmt.Sprintf("%d without a dip direction, left out", skipped))
+	o.Source, o.AzimuthRef = describe(q.MeasurementQuery), p.OutputAzimuthRef
+	r, err := fabric.Rose(in, o)
+	if err != nil {
+		return optionErr(err)
 	}
 	return netsvg.WriteRose(w, r)
 }

@@ -10,6 +10,7 @@ import (
 
 	"corvane/internal/demo"
 	"corvane/internal/domain"
+	"corvane/internal/fabric"
 	"corvane/internal/geom"
 	"corvane/internal/service"
 )
@@ -26,20 +27,22 @@ func TestStatisticsExactGeometry(t *testing.T) {
 		must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 20, Alpha: a, Beta: 180, TypeCode: "BD"}))
 	}
 	must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 20, Alpha: 45, Beta: 90, TypeCode: "JN"}))
-	res := must(s.Statistics(ctx, p.ID, service.StatsQuery{MeasurementQuery: service.MeasurementQuery{Types: []string{"BD"}}, Weighting: true}))
-	if res.Matched != 3 || len(res.Groups) != 1 || res.Groups[0].Name != "BD" || res.Caution == "" {
+	res := must(s.Statistics(ctx, p.ID, service.StatsQuery{MeasurementQuery: service.MeasurementQuery{Types: []string{"BD"}},
+		SetQuery: service.SetQuery{Sets: "type"}, Weighting: "terzaghi"}))
+	if res.Rows != 3 || res.Planes == nil || len(res.Planes.Sets) != 1 || res.Planes.Sets[0].Name != "BD" || res.Caution == "" {
 		t.Fatalf("result %+v", res)
 	}
-	u := res.Groups[0].Unweighted
-	near(t, "mean dip", u.MeanDip, 40, 1e-9)
-	near(t, "mean dip direction", u.MeanDipDirection, 0, 1e-9)
+	set := res.Planes.Sets[0]
+	u := set.Unweighted
+	nearNum(t, "mean dip", u.Mean.Dip, 40, 1e-6)
+	nearNum(t, "mean dip direction", u.Mean.DipDirection, 0, 1e-6)
 	wantR := 1 + 2*math.Cos(10*math.Pi/180)
-	near(t, "R", u.R, wantR, 1e-9)
-	near(t, "k", u.K, 2/(3-wantR), 1e-6)
-	if w := res.Groups[0].Weighted; w == nil || w.Count != 3 {
-		t.Fatalf("weighted summary missing: %+v", w)
+	nearNum(t, "R", &u.R, wantR, 1e-6)
+	nearNum(t, "k", &u.K, 2/(3-wantR), 1e-4)
+	if set.Weighted == nil || set.Count != 3 {
+		t.Fatalf("weighted summary missing: %+v", set)
 	}
-	_, err := s.Statistics(ctx, p.ID, service.StatsQuery{Sets: 99})
+	_, err := s.Statistics(ctx, p.ID, service.StatsQuery{SetQuery: service.SetQuery{Sets: "auto:99"}})
 	wantKind(t, err, domain.Invalid, "too many sets")
 }
 
@@ -53,12 +56,10 @@ func TestStatisticsRecoverDemoSets(t *testing.T) {
 		t.Fatal(err)
 	}
 	d := demo.Programme()
-	res := must(s.Statistics(ctx, p.ID, service.StatsQuery{}))
-	byType := map[string]service.Summary{}
-	for _, g := range res.Groups {
-		if g.Kind == "planes" {
-			byType[g.Name] = g.Unweighted
-		}
+	res := must(s.Statistics(ctx, p.ID, service.StatsQuery{SetQuery: service.SetQuery{Sets: "type"}}))
+	byType := map[string]*fabric.Summary{}
+	for _, g := range res.Planes.Sets {
+		byType[g.Name] = g.Unweighted
 	}
 	checked := 0
 	for _, set := range d.Sets {
@@ -66,7 +67,7 @@ func TestStatisticsRecoverDemoSets(t *testing.T) {
 		if !ok || set.Type == "joint" { // two joint sets share one type code
 			continue
 		}
-		got := geom.Plane{Dip: *sm.MeanDip, DipDirection: *sm.MeanDipDirection}
+		got := geom.Plane{Dip: float64(*sm.Mean.Dip), DipDirection: float64(*sm.Mean.DipDirection)}
 		if a := geom.AxialAngle(got.Normal(), set.Mean.Normal()); a > 6 {
 			t.Errorf("type %s: mean plane %.1f/%.1f is %.1f degrees from the set's %.1f/%.1f",
 				set.Type, got.DipDirection, got.Dip, a, set.Mean.DipDirection, set.Mean.Dip)
@@ -77,9 +78,9 @@ func TestStatisticsRecoverDemoSets(t *testing.T) {
 		t.Fatal("no demo set checked")
 	}
 	// Two automatic sets split the joints apart from bedding and faults.
-	auto := must(s.Statistics(ctx, p.ID, service.StatsQuery{Sets: 4}))
-	if len(auto.Groups) < 4 {
-		t.Errorf("automatic sets: %d groups", len(auto.Groups))
+	auto := must(s.Statistics(ctx, p.ID, service.StatsQuery{SetQuery: service.SetQuery{Sets: "auto:4"}}))
+	if len(auto.Planes.Sets) != 4 {
+		t.Errorf("automatic sets: %d sets", len(auto.Planes.Sets))
 	}
 }
 
@@ -90,7 +91,7 @@ func TestNetIsWellFormedSVG(t *testing.T) {
 		t.Fatal(err)
 	}
 	var buf bytes.Buffer
-	if err := s.Net(ctx, p.ID, service.NetQuery{Density: true, Planes: true}, &buf); err != nil {
+	if err := s.Net(ctx, p.ID, service.NetQuery{Show: "poles,planes,lines,sets,density", SetQuery: service.SetQuery{Sets: "type"}}, &buf); err != nil {
 		t.Fatal(err)
 	}
 	dec := xml.NewDecoder(bytes.NewReader(buf.Bytes()))
@@ -109,4 +110,12 @@ func TestNetIsWellFormedSVG(t *testing.T) {
 	}
 	err = s.Net(ctx, p.ID, service.NetQuery{Projection: "mercator"}, io.Discard)
 	wantKind(t, err, domain.Invalid, "unknown projection")
+}
+
+// nearNum checks a report number.
+func nearNum(t *testing.T, what string, got *fabric.Num, want, tol float64) {
+	t.Helper()
+	if got == nil || math.Abs(float64(*got)-want) > tol {
+		t.Errorf("%s = %v, want %v", what, got, want)
+	}
 }
