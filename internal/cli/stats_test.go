@@ -11,6 +11,7 @@ import (
 	"math/rand/v2"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
 
@@ -386,5 +387,137 @@ func TestSetsOn(t *testing.T) {
 	}
 	if code, _, _ := runCmd(t, "stats", "--in", lines, "--sets-on", "poles"); code != ExitUsage {
 		t.Error("bad --sets-on accepted")
+	}
+}
+
+// TestStatsSkipsVerticalHoles: the convert output of a vertical hole has a
+// dip and no dip direction (dip = 90 - alpha, common practice). corvane
+// stats, net and rose skip those rows, count them with the reason and
+// succeed; the rows of the inclined hole are used.
+func TestStatsSkipsVerticalHoles(t *testing.T) {
+	dir := t.TempDir()
+	write := func(name, text string) string {
+		p := filepath.Join(dir, name)
+		if err := os.WriteFile(p, []byte(text), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return p
+	}
+	collars := write("collars.csv", "hole_id,easting,northing,elevation,azimuth,dip,depth\nV1,1000,2000,300,0,-90,100\nA1,1000,2100,300,45,-60,100\n")
+	surveys := write("surveys.csv", "hole_id,depth,azimuth,dip,azimuth_reference\nV1,0,0,-90,true\nV1,50,0,-90,true\nA1,0,45,-60,true\nA1,80,45,-60,true\n")
+	structures := write("structures.csv", "hole_id,depth,alpha,beta,gamma,type\nV1,10,40,30,,joint\nV1,20,50,100,20,joint\nA1,10,40,30,,joint\nA1,20,50,100,20,joint\nA1,30,45,200,,joint\n")
+	vertOnly := write("vertical.csv", "hole_id,depth,alpha,beta,gamma,type\nV1,10,40,30,,joint\nV1,20,50,100,20,joint\n")
+	for _, tc := range []struct {
+		name, structures  string
+		used, skipped     int
+		planes, lines     int
+		wantPlanesInStats bool
+	}{
+		{"mixed", structures, 3, 2, 3, 1, true},
+		{"vertical only", vertOnly, 0, 2, 0, 0, false},
+	} {
+		oriented := filepath.Join(dir, tc.name+".csv")
+		if code, _, stderr := runCmd(t, "convert", "--collars", collars, "--surveys", surveys, "--structures", tc.structures,
+			"--output-reference", "true", "-o", oriented); code != ExitOK {
+			t.Fatalf("%s: convert: exit %d: %s", tc.name, code, stderr)
+		}
+		code, stdout, stderr := runCmd(t, "stats", "--in", oriented)
+		if code != ExitOK {
+			t.Fatalf("%s: stats: exit %d, want %d: %s", tc.name, code, ExitOK, stderr)
+		}
+		var rep struct {
+			Rows    int `json:"rows"`
+			Used    int `json:"rows_used"`
+			Skipped []struct {
+				Reason string
+				Count  int
+			} `json:"rows_skipped"`
+			Rejected int `json:"rows_rejected"`
+			Planes   *struct {
+				Count int `json:"count"`
+			} `json:"planes"`
+		}
+		if err := json.Unmarshal([]byte(stdout), &rep); err != nil {
+			t.Fatalf("%s: %v\n%s", tc.name, err, stdout)
+		}
+		if rep.Used != tc.used || rep.Rejected != 0 || len(rep.Skipped) != 1 || rep.Skipped[0].Count != tc.skipped ||
+			!strings.Contains(rep.Skipped[0].Reason, "vertical hole") {
+			t.Errorf("%s: used %d, rejected %d, skipped %+v; want %d used, %d skipped for a vertical hole", tc.name, rep.Used, rep.Rejected, rep.Skipped, tc.used, tc.skipped)
+		}
+		if (rep.Planes != nil) != tc.wantPlanesInStats || (rep.Planes != nil && rep.Planes.Count != tc.planes) {
+			t.Errorf("%s: planes %+v, want %d", tc.name, rep.Planes, tc.planes)
+		}
+		for _, cmd := range []string{"net", "rose"} {
+			svg := filepath.Join(dir, tc.name+"-"+cmd+".svg")
+			code, _, stderr := runCmd(t, cmd, "--in", oriented, "-o", svg)
+			if code != ExitOK {
+				t.Errorf("%s: %s: exit %d: %s", tc.name, cmd, code, stderr)
+				continue
+			}
+			b, _ := os.ReadFile(svg)
+			if want := fmt.Sprintf("%d rows left out: no dip direction", tc.skipped); !strings.Contains(string(b), want) {
+				t.Errorf("%s: %s sheet does not say %q", tc.name, cmd, want)
+			}
+		}
+	}
+}
+
+// TestStatsWoodcockUndefined: identical lines have eigenvalues (1, 0, 0), for
+// which Woodcock's (1977) K = ln(S1/S2)/ln(S2/S3) and C = ln(S1/S3) are
+// infinite: the report gives null with a note, never a number.
+func TestStatsWoodcockUndefined(t *testing.T) {
+	in := filepath.Join(t.TempDir(), "c.csv")
+	if err := os.WriteFile(in, []byte("line_trend,line_plunge\n30,40\n30,40\n30,40\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, stdout, stderr := runCmd(t, "stats", "--in", in)
+	if code != ExitOK {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	var rep struct {
+		Lines struct {
+			All struct {
+				Unweighted struct {
+					Shape map[string]any `json:"shape"`
+				} `json:"unweighted"`
+			} `json:"all"`
+		} `json:"lines"`
+	}
+	if err := json.Unmarshal([]byte(stdout), &rep); err != nil {
+		t.Fatal(err)
+	}
+	sh := rep.Lines.All.Unweighted.Shape
+	for _, m := range []string{"woodcock_K", "woodcock_C"} {
+		if v, ok := sh[m]; !ok || v != nil {
+			t.Errorf("%s = %v, want null", m, v)
+		}
+		if note, _ := sh[m+"_note"].(string); !strings.Contains(note, "infinite") {
+			t.Errorf("%s_note = %q, want a reason", m, note)
+		}
+	}
+}
+
+// negZero matches a JSON number that is a negative zero.
+var negZero = regexp.MustCompile(`-0(\.0*)?([^.0-9]|$)`)
+
+// TestStatsNoNegativeZero: horizontal lines and vertical planes have plunges
+// of zero that the arithmetic may sign; no output shows -0.
+func TestStatsNoNegativeZero(t *testing.T) {
+	dir := t.TempDir()
+	for name, text := range map[string]string{
+		"lines.csv":  "line_trend,line_plunge\n30,0\n32,0\n28,0\n",
+		"planes.csv": "dip,dip_direction\n90,0\n90,180\n90,0\n",
+	} {
+		in := filepath.Join(dir, name)
+		if err := os.WriteFile(in, []byte(text), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		code, stdout, stderr := runCmd(t, "stats", "--in", in)
+		if code != ExitOK {
+			t.Fatalf("%s: exit %d: %s", name, code, stderr)
+		}
+		if m := negZero.FindString(stdout); m != "" {
+			t.Errorf("%s: the report shows a negative zero %q:\n%s", name, m, stdout)
+		}
 	}
 }

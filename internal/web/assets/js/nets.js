@@ -18,35 +18,54 @@ async function svgFrom(path) {
 }
 
 function meanOf(u, kind) {
-  if (!u) return "\u2013";
-  if (kind === "lines" || u.mean_trend != null) return `${az(u.mean_trend)} / ${fmt(u.mean_plunge, 0)}`;
-  return `${fmt(u.mean_dip, 0)} \u2192 ${az(u.mean_dip_direction)}`;
+  if (!u || !u.mean) return "\u2013";
+  const m = u.mean;
+  if (kind === "lines") return `${az(m.trend)} / ${fmt(m.plunge, 0)}`;
+  return `${fmt(m.dip, 0)} \u2192 ${az(m.dip_direction)}`;
 }
 
-// statsTable renders the statistics of the selection: one row per group (a
+// statsRows flattens the report of the statistics route (the report of
+// corvane stats): per kind, each set, or all measurements when there are no
+// sets.
+function statsRows(doc) {
+  const rows = [];
+  for (const kind of ["planes", "lines"]) {
+    const g = doc[kind];
+    if (!g) continue;
+    for (const s of (g.sets && g.sets.length ? g.sets : [g.all])) rows.push({ kind, s });
+  }
+  return rows;
+}
+
+// statsTable renders the statistics of the selection: one row per set (a
 // type code or an automatic set), unweighted and, when asked, Terzaghi
 // weighted side by side.
 function statsTable(doc) {
   const out = h("div", { id: "stats" });
-  if (!doc || !Array.isArray(doc.groups)) {
+  if (!doc || !Array.isArray(doc.rows_skipped) || typeof doc.rows !== "number") {
     add(out, h("p", {}, "The server returned statistics in a form this page does not know; nothing is shown rather than a guess."));
     return out;
   }
-  const weighted = doc.groups.some((g) => g.weighted);
-  const head = ["Group", "Kind", "n", "Mean (dip \u2192 dir. / trend / plunge)", "k", "cone 95 (\u00b0)", "spread (\u00b0)", "Woodcock K"];
+  const rows = statsRows(doc);
+  const weighted = rows.some((r) => r.s.weighted);
+  const head = ["Set", "Kind", "n", "Mean (dip \u2192 dir. / trend / plunge)", "k", "cone 95 (\u00b0)", "spread (\u00b0)", "Woodcock K"];
   if (weighted) head.push("Weighted mean", "k (w.)", "cone 95 (w.)");
+  const skipped = doc.rows_skipped.map((x) => `${x.count} left out: ${x.reason}`);
+  const unassigned = ["planes", "lines"].reduce((n, k) => n + ((doc[k] && doc[k].unassigned) || 0), 0);
+  const method = (doc.planes && doc.planes.set_method) || (doc.lines && doc.lines.set_method) || "none (all measurements)";
   add(out,
     h("div", { class: "scroll" }, h("table", { class: "data compact", id: "stats-table" },
       h("thead", {}, h("tr", {}, head.map((t) => h("th", { scope: "col" }, t)))),
-      h("tbody", {}, doc.groups.map((g) => {
-        const u = g.unweighted || {};
-        const w = g.weighted;
-        return h("tr", {}, h("th", { scope: "row" }, g.name), h("td", {}, g.kind === "lines" ? "lines" : "poles"), h("td", { class: "num" }, u.count ?? ""),
-          h("td", { class: "num" }, meanOf(u, g.kind)), h("td", { class: "num" }, fmt(u.k, 1)), h("td", { class: "num" }, fmt(u.cone95, 1)),
-          h("td", { class: "num" }, fmt(u.spread, 1)), h("td", { class: "num" }, fmt(u.woodcock_k, 2)),
-          weighted ? [h("td", { class: "num" }, w ? meanOf(w, g.kind) : "\u2013"), h("td", { class: "num" }, w ? fmt(w.k, 1) : "\u2013"), h("td", { class: "num" }, w ? fmt(w.cone95, 1) : "\u2013")] : null);
+      h("tbody", {}, rows.map(({ kind, s }) => {
+        const u = s.unweighted;
+        const w = s.weighted;
+        const k = u && u.shape ? (u.shape.woodcock_K == null && u.shape.woodcock_K_note ? "\u221e or undefined" : fmt(u.shape.woodcock_K, 2)) : "\u2013";
+        return h("tr", {}, h("th", { scope: "row" }, s.name), h("td", {}, kind === "lines" ? "lines" : "poles"), h("td", { class: "num" }, s.count ?? ""),
+          h("td", { class: "num" }, meanOf(u, kind)), h("td", { class: "num" }, u ? fmt(u.k, 1) : "\u2013"), h("td", { class: "num" }, u ? fmt(u.cone95, 1) : "\u2013"),
+          h("td", { class: "num" }, u ? fmt(u.spread, 1) : "\u2013"), h("td", { class: "num", title: (u && u.shape && u.shape.woodcock_K_note) || "" }, k),
+          weighted ? [h("td", { class: "num" }, w ? meanOf(w, kind) : "\u2013"), h("td", { class: "num" }, w ? fmt(w.k, 1) : "\u2013"), h("td", { class: "num" }, w ? fmt(w.cone95, 1) : "\u2013")] : null);
       })))),
-    h("p", { class: "help" }, `${doc.matched} measurements matched, ${doc.skipped} without a usable orientation` + (doc.unassigned ? `, ${doc.unassigned} in no set` : "") + `. Grouping: ${doc.method || "by type"}. Azimuths from ${doc.azimuth_ref} north.`),
+    h("p", { class: "help" }, `${doc.rows} measurements matched, ${doc.rows_used} used` + (skipped.length ? `; ${skipped.join("; ")}` : "") + (unassigned ? `; ${unassigned} in no set` : "") + `. Sets: ${method}.` + (doc.azimuth_ref ? ` Azimuths from ${doc.azimuth_ref} north.` : "")),
     doc.caution ? h("p", { class: "help" }, doc.caution) : null);
   return out;
 }
@@ -132,8 +151,12 @@ export async function netsView(ctx) {
   form.querySelector("#download-rose").addEventListener("click", () => offer(lastRose, "rose"));
 
   const fq = filterOf(sel);
-  const netQ = query({ ...fq, density: sel.show.includes("density") ? "true" : "", planes: sel.show.includes("planes") ? "true" : "", projection: sel.projection });
-  const statQ = query({ ...fq, terzaghi: sel.weighting === "terzaghi" ? "true" : "", sets: sel.sets === "0" ? "" : sel.sets });
+  // The routes take the options of corvane net and stats: sets by type code
+  // (of poles and lines alike) unless automatic sets (of the poles) are asked.
+  const setQ = sel.sets === "0" ? { sets: "type", sets_on: "both" } : { sets: `auto:${sel.sets}` };
+  const show = ["poles", "lines", "sets", ...sel.show.filter((x) => x === "planes" || x === "density")].join(",");
+  const netQ = query({ ...fq, ...setQ, show, density: "kamb", projection: sel.projection });
+  const statQ = query({ ...fq, ...setQ, weighting: sel.weighting === "terzaghi" ? "terzaghi" : "" });
   const [netSvg, roseSvg, stats] = await Promise.all([
     svgFrom(`/v1/projects/${p.id}/net${netQ}`).catch((e) => ({ error: e })),
     svgFrom(`/v1/projects/${p.id}/rose${query({ ...fq, of: sel.rose })}`).catch((e) => ({ error: e })),

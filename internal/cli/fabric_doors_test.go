@@ -1,0 +1,227 @@
+package cli
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"fmt"
+	"io"
+	"net/http"
+	"net/http/httptest"
+	"os"
+	"path/filepath"
+	"reflect"
+	"strconv"
+	"strings"
+	"testing"
+
+	"corvane/internal/domain"
+	"corvane/internal/fabric"
+	"corvane/internal/httpapi"
+	"corvane/internal/service"
+	"corvane/internal/store/sqlite"
+)
+
+// doorsProgramme is the demo programme on a fresh SQLite store behind the
+// real HTTP server, plus a vertical hole whose planes have a dip and no dip
+// direction. It returns the server, a reader token, the project and the
+// stored measurements written as the CSV that corvane stats, net and rose
+// read: the derived values with the shortest text that reads back to the same
+// float64, so both doors start from the very same numbers (the conversion
+// itself is compared elsewhere; this is about the statistics pipeline).
+func doorsProgramme(t *testing.T) (srv *httptest.Server, token string, pid int64, csvPath string) {
+	t.Helper()
+	ctx := service.WithActor(context.Background(), service.System)
+	path := filepath.Join(t.TempDir(), "corvane.db")
+	if err := sqlite.Migrate(path, 0); err != nil {
+		t.Fatal(err)
+	}
+	st, err := sqlite.Open(ctx, path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { st.Close() })
+	svc := service.New(st, nil)
+	p, _, err := svc.LoadDemo(ctx)
+	if err != nil {
+		t.Fatal(err)
+	}
+	types, err := svc.ListTypeCodes(ctx, p.ID)
+	if err != nil || len(types) == 0 {
+		t.Fatalf("type codes: %v %v", types, err)
+	}
+	h, err := svc.CreateHole(ctx, p.ID, domain.Hole{Name: "TMV01", East: 431300, North: 6652500, Elevation: 400, Azimuth: 0, Dip: -90, FinalDepth: 120})
+	if err != nil {
+		t.Fatal(err)
+	}
+	g := 30.0
+	for i, a := range []float64{35, 50, 62} {
+		m := domain.Measurement{HoleID: h.ID, Depth: 20 + 10*float64(i), Alpha: a, Beta: 40 * float64(i), TypeCode: types[0].Code}
+		if i == 1 {
+			m.Gamma = &g
+		}
+		if _, err := svc.CreateMeasurement(ctx, p.ID, m); err != nil {
+			t.Fatal(err)
+		}
+	}
+	token, _, err = svc.CreateToken(ctx, p.ID, domain.RoleRead, "reader")
+	if err != nil {
+		t.Fatal(err)
+	}
+	srv = httptest.NewServer(httpapi.New(httpapi.Options{Service: svc}))
+	t.Cleanup(srv.Close)
+
+	var b strings.Builder
+	b.WriteString("hole_id,type,dip,dip_direction,line_trend,line_plunge,hole_azimuth,hole_dip,azimuth_reference,error\n")
+	num := func(p *float64) string {
+		if p == nil {
+			return ""
+		}
+		return strconv.FormatFloat(*p, 'g', -1, 64)
+	}
+	var after int64
+	vertical := 0
+	for {
+		page, err := svc.ListMeasurements(ctx, p.ID, service.MeasurementQuery{}, domain.Page{Limit: domain.MaxLimit, After: after})
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, v := range page.Items {
+			d := v.Derived
+			if d.Dip != nil && d.DipDirection == nil {
+				vertical++
+			}
+			fmt.Fprintf(&b, "%s,%s,%s,%s,%s,%s,%s,%s,%s,%q\n", v.Hole, v.TypeCode, num(d.Dip), num(d.DipDirection), num(d.LineTrend), num(d.LinePlunge),
+				num(d.HoleAzimuth), num(d.HoleDip), d.AzimuthRef, d.Error)
+			after = v.ID
+		}
+		if len(page.Items) < domain.MaxLimit {
+			break
+		}
+	}
+	if vertical != 3 {
+		t.Fatalf("%d measurements without a dip direction, want the vertical hole's 3", vertical)
+	}
+	csvPath = filepath.Join(t.TempDir(), "doors.csv")
+	if err := os.WriteFile(csvPath, []byte(b.String()), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return srv, token, p.ID, csvPath
+}
+
+func getRoute(t *testing.T, srv *httptest.Server, token, path string) []byte {
+	t.Helper()
+	req, err := http.NewRequest(http.MethodGet, srv.URL+path, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	req.Header.Set("Authorization", "Bearer "+token)
+	res, err := srv.Client().Do(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer res.Body.Close()
+	body, _ := io.ReadAll(res.Body)
+	if res.StatusCode != http.StatusOK {
+		t.Fatalf("GET %s: %d %s", path, res.StatusCode, body)
+	}
+	return body
+}
+
+func decodeJSON(t *testing.T, what string, b []byte) map[string]any {
+	t.Helper()
+	dec := json.NewDecoder(bytes.NewReader(b))
+	dec.UseNumber()
+	var m map[string]any
+	if err := dec.Decode(&m); err != nil {
+		t.Fatalf("%s: %v\n%s", what, err, b)
+	}
+	return m
+}
+
+// TestStatsNetRoseEqualAtEveryDoor feeds corvane stats, net and rose and the
+// service's statistics, net and rose routes the same measurements with the
+// same options and compares what comes out: the statistics report field for
+// field, the SVG byte for byte. The one thing a door adds is the name of its
+// source: "input" in the report and the start of the sheet's subtitle (the
+// CLI names the file read, the route the selection, "all measurements");
+// those are compared after putting the route's words in place of the file
+// name.
+func TestStatsNetRoseEqualAtEveryDoor(t *testing.T) {
+	srv, token, pid, in := doorsProgramme(t)
+	base := fmt.Sprintf("/v1/projects/%d", pid)
+	out := t.TempDir()
+
+	statsCases := []struct{ cli, route string }{
+		{"", ""},
+		{"--sets type --sets-on both --weighting terzaghi", "sets=type&sets_on=both&weighting=terzaghi"},
+		{"--sets auto:3 --seed 7 --weighting terzaghi:2", "sets=auto:3&seed=7&weighting=terzaghi:2"},
+		{"--set J1:310/15:25 --set J2:060/30:25 --of planes", "set=J1:310/15:25&set=J2:060/30:25&of=planes"},
+	}
+	for _, c := range statsCases {
+		args := append([]string{"stats", "--in", in}, strings.Fields(c.cli)...)
+		code, stdout, stderr := runCmd(t, args...)
+		if code != ExitOK {
+			t.Fatalf("stats %s: exit %d: %s", c.cli, code, stderr)
+		}
+		cli := decodeJSON(t, "CLI", []byte(stdout))
+		route := decodeJSON(t, "route", getRoute(t, srv, token, base+"/statistics?"+c.route))
+		if cli["input"] != in || route["input"] != "all measurements" {
+			t.Errorf("stats %s: input %v and %v", c.cli, cli["input"], route["input"])
+		}
+		delete(cli, "input")
+		delete(route, "input")
+		if !reflect.DeepEqual(cli, route) {
+			cj, _ := json.MarshalIndent(cli, "", " ")
+			rj, _ := json.MarshalIndent(route, "", " ")
+			t.Errorf("stats %q: the CLI and the route differ\nCLI:   %.3000s\nroute: %.3000s", c.cli, cj, rj)
+		}
+		skipped, _ := json.Marshal(cli["rows_skipped"])
+		if !strings.Contains(string(skipped), `"count":3`) || !strings.Contains(string(skipped), fabric.SkipNoDipDirection) {
+			t.Errorf("stats %q: rows_skipped %s, want the vertical hole's 3 rows with the reason", c.cli, skipped)
+		}
+	}
+
+	// The CLI names the file it read where the route names the selection.
+	sameSource := func(svg []byte) []byte {
+		return bytes.Replace(svg, []byte(">doors.csv; azimuths"), []byte(">all measurements; azimuths"), 1)
+	}
+	svgCases := []struct{ cmd, cli, route string }{
+		{"net", "", ""},
+		{"net", "--projection equal-angle --show poles,planes,lines,sets --sets type --sets-on both", "projection=equal-angle&show=poles,planes,lines,sets&sets=type&sets_on=both"},
+		{"net", "--sets auto:4 --density kamb --units sigma --grid 80 --weighting terzaghi", "sets=auto:4&density=kamb&units=sigma&grid=80&weighting=terzaghi"},
+		{"rose", "", ""},
+		{"rose", "--of strike --bin 15 --min-dip 30", "of=strike&bin=15&min_dip=30"},
+		{"rose", "--of trend --weighting terzaghi", "of=trend&weighting=terzaghi"},
+	}
+	for i, c := range svgCases {
+		file := filepath.Join(out, fmt.Sprintf("%s-%d.svg", c.cmd, i))
+		args := append([]string{c.cmd, "--in", in, "-o", file, "--title", "Doors"}, strings.Fields(c.cli)...)
+		if code, _, stderr := runCmd(t, args...); code != ExitOK {
+			t.Fatalf("%s %s: exit %d: %s", c.cmd, c.cli, code, stderr)
+		}
+		cli, err := os.ReadFile(file)
+		if err != nil {
+			t.Fatal(err)
+		}
+		route := getRoute(t, srv, token, base+"/"+c.cmd+"?title=Doors&"+c.route)
+		if !bytes.Contains(cli, []byte(">doors.csv; azimuths from ")) {
+			t.Errorf("%s %q: the CLI's sheet does not name its input", c.cmd, c.cli)
+		}
+		if !bytes.Equal(sameSource(cli), route) {
+			t.Errorf("%s %q: the CLI's SVG (%d bytes) and the route's (%d bytes) differ at byte %d", c.cmd, c.cli, len(cli), len(route), firstDiff(sameSource(cli), route))
+		}
+		if !bytes.Contains(route, []byte("3 rows left out: "+fabric.SkipNoDipDirection)) {
+			t.Errorf("%s %q: the sheet does not count the rows without a dip direction", c.cmd, c.cli)
+		}
+	}
+}
+
+func firstDiff(a, b []byte) int {
+	for i := range min(len(a), len(b)) {
+		if a[i] != b[i] {
+			return i
+		}
+	}
+	return min(len(a), len(b))
+}
