@@ -8,10 +8,13 @@ import (
 )
 
 // num formats v exactly (shortest form that reads back to the same float),
-// NaN as an empty cell.
+// NaN as an empty cell and -0 as 0.
 func num(v float64) string {
 	if math.IsNaN(v) {
 		return ""
+	}
+	if v == 0 {
+		v = 0 // no -0
 	}
 	return strconv.FormatFloat(v, 'f', -1, 64)
 }

@@ -86,3 +86,13 @@ func TestWriteReadRoundTrip(t *testing.T) {
 		}
 	}
 }
+
+// TestNumNoNegativeZero: the exact writers never show a negative zero.
+func TestNumNoNegativeZero(t *testing.T) {
+	if got := num(math.Copysign(0, -1)); got != "0" {
+		t.Errorf("num(-0) = %q, want 0", got)
+	}
+	if got := num(-1.5); got != "-1.5" {
+		t.Errorf("num(-1.5) = %q", got)
+	}
+}

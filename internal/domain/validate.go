@@ -16,8 +16,8 @@ func checkAzimuth(field string, a *float64) *Error {
 	if !finite(*a) || *a < 0 || *a > 360 {
 		return FieldErr(field, "%s must be an azimuth in [0, 360], got %v", field, *a)
 	}
-	if *a == 360 {
-		*a = 0
+	if *a == 360 || *a == 0 {
+		*a = 0 // 360 and -0 are stored as 0
 	}
 	return nil
 }

@@ -8,6 +8,7 @@ import (
 	"strings"
 	"time"
 
+	"corvane/internal/csvio"
 	"corvane/internal/domain"
 )
 
@@ -25,11 +26,15 @@ var ExportColumns = []string{
 // exportPage is the number of rows read from the store at a time.
 const exportPage = 1000
 
+// fmtNum formats a value of the export with prec decimals through the
+// project's one CSV number format, csvio.FormatFloat (a value that rounds to
+// zero is written without a sign, whatever the store gives back); nil is an
+// empty cell.
 func fmtNum(p *float64, prec int) string {
 	if p == nil {
 		return ""
 	}
-	return strconv.FormatFloat(*p, 'f', prec, 64)
+	return csvio.FormatFloat(*p, prec)
 }
 
 // ExportMeasurements writes the measurements passing q as CSV to w, with

@@ -33,6 +33,10 @@ func TestOnPostgres(t *testing.T) {
 		s, ctx := open(t)
 		checkRetries(t, s, ctx)
 	})
+	t.Run("NoNegativeZero", func(t *testing.T) {
+		s, ctx := open(t)
+		checkNoNegativeZero(t, s, ctx)
+	})
 	t.Run("Demo", func(t *testing.T) {
 		s, ctx := open(t)
 		checkDemo(t, s, ctx, true)
