@@ -7,7 +7,6 @@ import (
 	"fmt"
 	"io"
 	"os"
-	"path/filepath"
 	"strconv"
 
 	"corvane/internal/convert"
@@ -188,16 +187,25 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 	}
 
 	// Write to a temporary file first: a file that turns out to be unreadable
-	// half-way leaves no partial output behind.
-	dir := os.TempDir()
+	// half-way leaves no partial output behind. With -o it is the output
+	// file (created as every output file is, see createOutput); without, a
+	// scratch file copied to standard output at the end.
+	var tmp *os.File
+	var outFile *outputFile
 	if *out != "" {
-		dir = filepath.Dir(*out)
+		outFile, err = createOutput(*out)
+		if err != nil {
+			return usageErr("%v", err)
+		}
+		defer outFile.Abort() // no-op after Commit
+		tmp = outFile.File
+	} else {
+		tmp, err = os.CreateTemp("", ".corvane-convert-*.csv")
+		if err != nil {
+			return usageErr("%v", err)
+		}
+		defer os.Remove(tmp.Name())
 	}
-	tmp, err := os.CreateTemp(dir, ".corvane-convert-*.csv")
-	if err != nil {
-		return usageErr("%v", err)
-	}
-	defer os.Remove(tmp.Name()) // no-op after a successful rename
 	sum, err := holes.Convert(ctx, in, tmp)
 	if err != nil {
 		tmp.Close()
@@ -211,11 +219,8 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 			return code
 		}
 	}
-	if *out != "" {
-		if err := tmp.Close(); err != nil {
-			return usageErr("%v", err)
-		}
-		if err := os.Rename(tmp.Name(), *out); err != nil {
+	if outFile != nil {
+		if err := outFile.Commit(); err != nil {
 			return usageErr("%v", err)
 		}
 	} else {
@@ -246,15 +251,7 @@ func holeSummary(env *Env, file string, perHole []convert.HoleRows, holes *conve
 		counts[h.HoleID] = &holeCounts{rows: h.Rows, warn: h.WarnRows, bad: h.BadRows}
 		order[i] = h.HoleID
 	}
-	f, err := os.Create(file)
-	if err != nil {
-		fmt.Fprintf(env.Stderr, "corvane convert: --hole-summary: %v\n", err)
-		return ExitUsage
-	}
-	werr := writeHoleSummary(f, holes, srows, counts, order)
-	if cerr := f.Close(); werr == nil {
-		werr = cerr
-	}
+	werr := writeOutput(file, func(w io.Writer) error { return writeHoleSummary(w, holes, srows, counts, order) })
 	if werr != nil {
 		fmt.Fprintf(env.Stderr, "corvane convert: --hole-summary %s: %v\n", file, werr)
 		return ExitUsage

@@ -10,7 +10,6 @@ import (
 	"io"
 	"math"
 	"os"
-	"path/filepath"
 	"strconv"
 	"strings"
 
@@ -355,18 +354,13 @@ func declinationFile(env *Env, inPath, outPath string) int {
 	// Write to a temporary file beside the output and rename at the end, so a
 	// failure never leaves a half-written file.
 	var w io.Writer = env.Stdout
-	var tmp *os.File
+	var tmp *outputFile
 	if outPath != "" {
-		tmp, err = os.CreateTemp(filepath.Dir(outPath), ".declination-*.csv")
+		tmp, err = createOutput(outPath)
 		if err != nil {
 			return fail("%v", err)
 		}
-		defer func() {
-			if tmp != nil {
-				tmp.Close()
-				os.Remove(tmp.Name())
-			}
-		}()
+		defer tmp.Abort() // no-op after Commit
 		w = tmp
 	}
 	cw := csv.NewWriter(w)
@@ -435,16 +429,9 @@ func declinationFile(env *Env, inPath, outPath string) int {
 		return fail("writing output: %v", err)
 	}
 	if tmp != nil {
-		if err := tmp.Chmod(0o644); err != nil {
+		if err := tmp.Commit(); err != nil {
 			return fail("writing %s: %v", outPath, err)
 		}
-		if err := tmp.Close(); err != nil {
-			return fail("writing %s: %v", outPath, err)
-		}
-		if err := os.Rename(tmp.Name(), outPath); err != nil {
-			return fail("writing %s: %v", outPath, err)
-		}
-		tmp = nil
 	}
 	if bad > 0 {
 		fmt.Fprintf(env.Stderr, "corvane declination: %d of %d rows could not be computed\n", bad, len(rows))

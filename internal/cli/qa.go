@@ -9,7 +9,6 @@ import (
 	"io"
 	"math"
 	"os"
-	"path/filepath"
 	"strconv"
 	"strings"
 	"time"
@@ -182,7 +181,7 @@ func runQA(_ context.Context, env *Env, args []string) int {
 	if *out == "" {
 		err = write(env.Stdout)
 	} else {
-		err = writeFileAtomic(*out, write)
+		err = writeOutput(*out, write)
 	}
 	if err != nil {
 		fmt.Fprintf(env.Stderr, "corvane qa: %v\n", err)
@@ -194,31 +193,6 @@ func runQA(_ context.Context, env *Env, args []string) int {
 		return ExitRows
 	}
 	return ExitOK
-}
-
-// writeFileAtomic writes through a temporary file in the target's directory
-// and renames it into place, so a failure leaves no partial output.
-func writeFileAtomic(path string, write func(io.Writer) error) error {
-	f, err := os.CreateTemp(filepath.Dir(path), ".corvane-qa-*")
-	if err != nil {
-		return err
-	}
-	tmp := f.Name()
-	if err := f.Chmod(0o644); err != nil {
-		f.Close()
-		os.Remove(tmp)
-		return err
-	}
-	if err := write(f); err != nil {
-		f.Close()
-		os.Remove(tmp)
-		return err
-	}
-	if err := f.Close(); err != nil {
-		os.Remove(tmp)
-		return err
-	}
-	return os.Rename(tmp, path)
 }
 
 // readQAInput reads the files. Whole-file problems (missing files or
