@@ -41,14 +41,10 @@ func (s *Service) Rose(ctx context.Context, projectID int64, q RoseQuery, w io.W
 	if o.Weighting, err = parseWeighting(q.Weighting); err != nil {
 		return err
 	}
-	p, in, err := s.gather(ctx, projectID, q.MeasurementQuery)
+	in, err := s.sheet(ctx, projectID, q.MeasurementQuery, &o.Title, &o.Source, &o.AzimuthRef)
 	if err != nil {
 		return err
 	}
-	if o.Title == "" {
-		o.Title = p.Name
-	}
-	o.Source, o.AzimuthRef = describe(q.MeasurementQuery), p.OutputAzimuthRef
 	r, err := fabric.Rose(in, o)
 	if err != nil {
 		return optionErr(err)

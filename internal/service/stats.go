@@ -195,19 +195,30 @@ func (s *Service) Net(ctx context.Context, projectID int64, q NetQuery, w io.Wri
 	if o.Weighting, err = parseWeighting(q.Weighting); err != nil {
 		return err
 	}
-	p, in, err := s.gather(ctx, projectID, q.MeasurementQuery)
+	in, err := s.sheet(ctx, projectID, q.MeasurementQuery, &o.Title, &o.Source, &o.AzimuthRef)
 	if err != nil {
 		return err
 	}
-	if o.Title == "" {
-		o.Title = p.Name
-	}
-	o.Source, o.AzimuthRef = describe(q.MeasurementQuery), p.OutputAzimuthRef
 	n, err := fabric.Net(in, o)
 	if err != nil {
 		return optionErr(err)
 	}
 	return netsvg.WriteNet(w, n)
+}
+
+// sheet gathers the measurements of a net or rose sheet and fills in its
+// words: the title (the project's name unless one is given), the selection
+// and the north reference of its azimuths.
+func (s *Service) sheet(ctx context.Context, projectID int64, q MeasurementQuery, title, source, ref *string) (fabric.Input, error) {
+	p, in, err := s.gather(ctx, projectID, q)
+	if err != nil {
+		return in, err
+	}
+	if *title == "" {
+		*title = p.Name
+	}
+	*source, *ref = describe(q), p.OutputAzimuthRef
+	return in, nil
 }
 
 // describe says in words what a query selects.
