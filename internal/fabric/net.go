@@ -171,7 +171,7 @@ func Net(in Input, o NetOptions) (netsvg.Net, error) {
 			n.Lines = append(n.Lines, netsvg.Mark{Axis: a, Set: markSet(lines, i, lineOffset)})
 		}
 	}
-	notes := []string{fmt.Sprintf("%d rows: %d poles, %d lines", len(in.Rows), len(planes.axes), len(lines.axes))}
+	notes := []string{fmt.Sprintf("%d rows", len(in.Rows))}
 	notes = append(notes, skipNotes(skipped)...)
 	if o.Show.Density {
 		g, of := planes, "poles"

@@ -59,10 +59,12 @@ function statsTable(doc) {
       h("tbody", {}, rows.map(({ kind, s }) => {
         const u = s.unweighted;
         const w = s.weighted;
-        const k = u && u.shape ? (u.shape.woodcock_K == null && u.shape.woodcock_K_note ? "\u221e or undefined" : fmt(u.shape.woodcock_K, 2)) : "\u2013";
+        // K is null where it is infinite (a uniaxial cluster) or undefined (uniform); the note says which.
+        const note = (u && u.shape && u.shape.woodcock_K_note) || "";
+        const k = !u || !u.shape ? "\u2013" : u.shape.woodcock_K != null ? fmt(u.shape.woodcock_K, 2) : note.startsWith("infinite") ? "\u221e" : "undefined";
         return h("tr", {}, h("th", { scope: "row" }, s.name), h("td", {}, kind === "lines" ? "lines" : "poles"), h("td", { class: "num" }, s.count ?? ""),
           h("td", { class: "num" }, meanOf(u, kind)), h("td", { class: "num" }, u ? fmt(u.k, 1) : "\u2013"), h("td", { class: "num" }, u ? fmt(u.cone95, 1) : "\u2013"),
-          h("td", { class: "num" }, u ? fmt(u.spread, 1) : "\u2013"), h("td", { class: "num", title: (u && u.shape && u.shape.woodcock_K_note) || "" }, k),
+          h("td", { class: "num" }, u ? fmt(u.spread, 1) : "\u2013"), h("td", { class: "num", title: note }, k),
           weighted ? [h("td", { class: "num" }, w ? meanOf(w, kind) : "\u2013"), h("td", { class: "num" }, w ? fmt(w.k, 1) : "\u2013"), h("td", { class: "num" }, w ? fmt(w.cone95, 1) : "\u2013")] : null);
       })))),
     h("p", { class: "help" }, `${doc.rows} measurements matched, ${doc.rows_used} used` + (skipped.length ? `; ${skipped.join("; ")}` : "") + (unassigned ? `; ${unassigned} in no set` : "") + `. Sets: ${method}.` + (doc.azimuth_ref ? ` Azimuths from ${doc.azimuth_ref} north.` : "")),
