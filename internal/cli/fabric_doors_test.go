@@ -27,8 +27,9 @@ import (
 // direction. It returns the server, a reader token, the project and the
 // stored measurements written as the CSV that corvane stats, net and rose
 // read: the derived values with the shortest text that reads back to the same
-// float64, so both doors start from the very same numbers (the conversion
-// itself is compared elsewhere; this is about the statistics pipeline).
+// float64, so both doors start from the very same numbers. (How the
+// orientations are derived is the hole model's part, with its own tests;
+// this test is about the statistics pipeline and its doors.)
 func doorsProgramme(t *testing.T) (srv *httptest.Server, token string, pid int64, csvPath string) {
 	t.Helper()
 	ctx := service.WithActor(context.Background(), service.System)
