@@ -47,6 +47,23 @@ func routeLabel(c *gin.Context) string {
 	return "unmatched"
 }
 
+// knownMethods are the request methods given their own metric label; any
+// other (a made-up method is a client's choice) is counted as "other", so the
+// label set stays closed.
+var knownMethods = map[string]bool{
+	"GET": true, "HEAD": true, "POST": true, "PUT": true, "PATCH": true,
+	"DELETE": true, "OPTIONS": true, "CONNECT": true, "TRACE": true,
+}
+
+// methodLabel is the request method for the metric labels: one of
+// knownMethods or "other".
+func methodLabel(m string) string {
+	if knownMethods[m] {
+		return m
+	}
+	return "other"
+}
+
 // middleware counts and times every request, including one a handler aborts
 // with a panic (a stream cut part-way), hence the defer.
 func (m *metrics) middleware(c *gin.Context) {
@@ -56,8 +73,9 @@ func (m *metrics) middleware(c *gin.Context) {
 		m.inflight.Dec()
 		status := strconv.Itoa(c.Writer.Status())
 		route := routeLabel(c)
-		m.requests.WithLabelValues(c.Request.Method, route, status).Inc()
-		m.latency.WithLabelValues(c.Request.Method, route, status).Observe(time.Since(start).Seconds())
+		method := methodLabel(c.Request.Method)
+		m.requests.WithLabelValues(method, route, status).Inc()
+		m.latency.WithLabelValues(method, route, status).Observe(time.Since(start).Seconds())
 	}()
 	c.Next()
 }

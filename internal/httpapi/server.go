@@ -79,7 +79,7 @@ func New(opt Options) *Server {
 	// trusted, since anyone can send it.
 	_ = e.SetTrustedProxies(nil)
 	s := &Server{opt: opt, engine: e, metrics: newMetrics(opt.Registry), log: opt.Logger}
-	e.Use(requestID, s.metrics.middleware, accessLog(s.log), recoverer)
+	e.Use(requestID, s.metrics.middleware, accessLog(s.log), recoverer, checkQuery)
 	s.routes()
 	return s
 }
