@@ -49,13 +49,15 @@ func ifMatch(c *gin.Context) (int64, error) {
 }
 
 // decodeJSON reads a JSON body into v: Content-Type must be JSON, unknown
-// fields are refused, the body is capped at the server's limit.
+// fields are refused, the body is capped at the server's limit and
+// maxBodyElements array elements.
 func (s *Server) decodeJSON(c *gin.Context, v any) error {
-	return s.decodeJSONLimit(c, v, s.opt.MaxBodyBytes)
+	return s.decodeJSONLimit(c, v, s.opt.MaxBodyBytes, maxBodyElements)
 }
 
-// decodeJSONLimit is decodeJSON with a body limit of n bytes.
-func (s *Server) decodeJSONLimit(c *gin.Context, v any, n int64) error {
+// decodeJSONLimit is decodeJSON with a body limit of n bytes and elems array
+// elements (see elementCounter).
+func (s *Server) decodeJSONLimit(c *gin.Context, v any, n int64, elems int) error {
 	if ct := c.GetHeader("Content-Type"); ct != "" {
 		mt, _, err := mime.ParseMediaType(ct)
 		if err != nil || (mt != "application/json" && !strings.HasSuffix(mt, "+json")) {
@@ -69,7 +71,7 @@ func (s *Server) decodeJSONLimit(c *gin.Context, v any, n int64) error {
 		return errBadRequest("request body: empty; a JSON object is required")
 	}
 	c.Request.Body = http.MaxBytesReader(c.Writer, c.Request.Body, n)
-	dec := json.NewDecoder(c.Request.Body)
+	dec := json.NewDecoder(&elementCounter{r: c.Request.Body, max: elems})
 	dec.DisallowUnknownFields()
 	if err := dec.Decode(v); err != nil {
 		return jsonError(err)
@@ -79,7 +81,8 @@ func (s *Server) decodeJSONLimit(c *gin.Context, v any, n int64) error {
 	}
 	if _, err := dec.Token(); err != io.EOF {
 		var mbe *http.MaxBytesError
-		if errors.As(err, &mbe) {
+		var ee *edgeError
+		if errors.As(err, &mbe) || errors.As(err, &ee) {
 			return err
 		}
 		return errBadRequest("request body: trailing data after the JSON value")
@@ -91,10 +94,11 @@ func (s *Server) decodeJSONLimit(c *gin.Context, v any, n int64) error {
 // and, for syntax errors, the byte offset.
 func jsonError(err error) error {
 	var mbe *http.MaxBytesError
+	var ee *edgeError
 	var se *json.SyntaxError
 	var te *json.UnmarshalTypeError
 	switch {
-	case errors.As(err, &mbe):
+	case errors.As(err, &mbe), errors.As(err, &ee):
 		return err
 	case errors.Is(err, io.EOF):
 		return errBadRequest("request body: empty; a JSON object is required")

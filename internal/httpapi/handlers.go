@@ -18,7 +18,7 @@ import (
 
 func (s *Server) convert(c *gin.Context) {
 	var req service.ConvertRequest
-	if err := s.decodeJSONLimit(c, &req, s.opt.MaxImportBytes); err != nil {
+	if err := s.decodeJSONLimit(c, &req, min(s.opt.MaxImportBytes, maxConvertBytes), maxConvertElements); err != nil {
 		fail(c, err)
 		return
 	}
@@ -686,6 +686,15 @@ func (s *Server) net(c *gin.Context) {
 func (s *Server) importCSV(c *gin.Context) {
 	pid, err := pathID(c, "project")
 	if err != nil {
+		fail(c, err)
+		return
+	}
+	role, err := service.ImportRole(c.Param("kind"))
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	if err := authorize(c, role); err != nil {
 		fail(c, err)
 		return
 	}

@@ -1,8 +1,13 @@
 package httpapi
 
 import (
+	"bytes"
+	"io"
+	"net/http/httptest"
 	"strings"
 	"testing"
+
+	"corvane/internal/domain"
 )
 
 // Tests of the service against hostile and careless clients.
@@ -53,5 +58,143 @@ func TestQuerySemicolonRefused(t *testing.T) {
 	r := f.must(422, f.site, "GET", base+"/measurements?hole=SC001%3Bx", nil, nil)
 	if p := r.problem(t); !strings.Contains(p.Detail, `"SC001;x"`) {
 		t.Errorf("escaped ; did not reach the filter: %q", p.Detail)
+	}
+}
+
+// countingBody is a request body that counts the bytes read from it.
+type countingBody struct {
+	r    io.Reader
+	read int64
+}
+
+func (b *countingBody) Read(p []byte) (int, error) {
+	n, err := b.r.Read(p)
+	b.read += int64(n)
+	return n, err
+}
+
+// send serves one request straight to the server (not through the contract
+// checker, which reads the whole body first) and returns the status and the
+// bytes of the body the server read.
+func (f *fixture) send(token, method, path, ct string, body io.Reader, size int64) (int, int64) {
+	f.t.Helper()
+	cb := &countingBody{r: body}
+	req := httptest.NewRequest(method, path, cb)
+	req.ContentLength = size
+	if ct != "" {
+		req.Header.Set("Content-Type", ct)
+	}
+	if token != "" {
+		req.Header.Set("Authorization", "Bearer "+token)
+	}
+	w := httptest.NewRecorder()
+	f.srv.ServeHTTP(w, req)
+	return w.Code, cb.read
+}
+
+// manyEmptyObjects is a JSON body {"<field>": [{},{},...]} of about n bytes.
+func manyEmptyObjects(field string, n int) []byte {
+	var b bytes.Buffer
+	b.WriteString(`{"` + field + `":[{}`)
+	for b.Len() < n {
+		b.WriteString(",{}")
+	}
+	b.WriteString("]}")
+	return b.Bytes()
+}
+
+// Nothing of a body is read before the token and its role are checked: a
+// caller without a token, with a token of another project or with too low a
+// role cannot make the server read (or spool) a large body. Issue items 1
+// and 4.
+func TestAuthBeforeBody(t *testing.T) {
+	f := newFixture(t)
+	pid := f.project("Auth first", nil)
+	other := f.project("Other", nil)
+	base := "/v1/projects/" + itoa(pid)
+	read := f.token(pid, domain.RoleRead, "reader")
+	logger := f.token(pid, domain.RoleLog, "logger")
+	foreign := f.token(other, domain.RoleAdmin, "other admin")
+	const size = 4 << 20
+	big := manyEmptyObjects("measurements", size)
+	csv := "hole_id,easting,northing,elevation,azimuth,dip,depth\n" + strings.Repeat("X,1,2,3,4,-60,100\n", size/18)
+	for _, tc := range []struct {
+		name, token, method, path, ct string
+		body                          []byte
+		want                          int
+	}{
+		{"convert without token", "", "POST", "/v1/convert", "application/json", big, 401},
+		{"convert with a bad token", "cvt_nothing", "POST", "/v1/convert", "application/json", big, 401},
+		{"qa without token", "", "POST", base + "/qa", "application/json", manyEmptyObjects("picks", size), 401},
+		{"qa with another project's token", foreign, "POST", base + "/qa", "application/json", manyEmptyObjects("picks", size), 403},
+		{"measurement without token", "", "POST", base + "/measurements", "application/json", big, 401},
+		{"measurement by a reader", read, "POST", base + "/measurements", "application/json", big, 403},
+		{"hole by a logger", logger, "POST", base + "/holes", "application/json", big, 403},
+		{"project by a project admin", foreign, "POST", "/v1/projects", "application/json", big, 403},
+		{"collar import without token", "", "POST", base + "/imports/collars", "text/csv", []byte(csv), 401},
+		{"collar import by a logger", logger, "POST", base + "/imports/collars", "text/csv", []byte(csv), 403},
+		{"measurement import by a reader", read, "POST", base + "/imports/measurements", "text/csv", []byte(csv), 403},
+		{"import by another project's token", foreign, "POST", base + "/imports/runs", "text/csv", []byte(csv), 403},
+	} {
+		code, n := f.send(tc.token, tc.method, tc.path, tc.ct, bytes.NewReader(tc.body), int64(len(tc.body)))
+		if code != tc.want {
+			t.Errorf("%s: status %d, want %d", tc.name, code, tc.want)
+		}
+		if n != 0 {
+			t.Errorf("%s: the server read %d bytes of the body before refusing the caller", tc.name, n)
+		}
+	}
+}
+
+// A body of many tiny array elements is refused as soon as it passes the
+// route's element limit, without reading (and decoding) the rest. Today's
+// 24 MiB of "{}" grew the server by gigabytes. Issue item 1.
+func TestManyElementsRefusedEarly(t *testing.T) {
+	f := newFixture(t)
+	pid := f.project("Elements", nil)
+	for _, tc := range []struct{ path, field string }{
+		{"/v1/convert", "measurements"},
+		{"/v1/projects/" + itoa(pid) + "/qa", "picks"},
+	} {
+		body := manyEmptyObjects(tc.field, 24<<20)
+		code, n := f.send(f.site, "POST", tc.path, "application/json", bytes.NewReader(body), -1)
+		if code != 413 {
+			t.Errorf("%s: status %d, want 413", tc.path, code)
+		}
+		if n > 2<<20 {
+			t.Errorf("%s: read %d bytes of a body already over its element limit", tc.path, n)
+		}
+	}
+}
+
+// TestElementCounter counts array elements at every depth, not inside
+// strings, and fails the read past the limit.
+func TestElementCounter(t *testing.T) {
+	for _, tc := range []struct {
+		in   string
+		want int
+	}{
+		{`{}`, 0},
+		{`[]`, 0},
+		{`[ ]`, 0},
+		{`[1]`, 1},
+		{`[1, 2 ,3]`, 3},
+		{`{"a":[{},{}],"b":[[1,2],[3]]}`, 7},
+		{`["[1,2]", "a\"],[" ]`, 2},
+		{`[[],[[]]]`, 3},
+	} {
+		e := &elementCounter{r: strings.NewReader(tc.in), max: 1 << 30}
+		if _, err := io.ReadAll(e); err != nil {
+			t.Fatal(err)
+		}
+		if e.n != tc.want {
+			t.Errorf("%s: %d elements, want %d", tc.in, e.n, tc.want)
+		}
+		if tc.want > 0 {
+			_, err := io.ReadAll(&elementCounter{r: strings.NewReader(tc.in), max: tc.want - 1})
+			if err == nil {
+				t.Errorf("%s: no error past a limit of %d", tc.in, tc.want-1)
+			}
+		}
 	}
 }

@@ -123,7 +123,7 @@ func (s *Server) runProjectQA(c *gin.Context, withBody bool) {
 			Picks         []qa.Pick         `json:"picks"`
 			MagneticZones []qa.MagneticZone `json:"magnetic_zones"`
 		}
-		if err := s.decodeJSONLimit(c, &in, s.opt.MaxImportBytes); err != nil {
+		if err := s.decodeJSONLimit(c, &in, min(s.opt.MaxImportBytes, maxQABytes), maxQAElements); err != nil {
 			fail(c, err)
 			return
 		}

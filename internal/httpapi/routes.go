@@ -7,6 +7,7 @@ import (
 	"github.com/gin-gonic/gin"
 
 	"corvane/api"
+	"corvane/internal/domain"
 	"corvane/internal/service"
 )
 
@@ -14,8 +15,11 @@ import (
 type Service = *service.Service
 
 // routes is THE route table. Every route below /v1 goes through authenticate,
-// which puts the caller into the request context; the service checks the
-// caller's role and project on every call.
+// which refuses a request without a known token and puts the caller into the
+// request context; the service checks the caller's role and project on every
+// call. Routes that read a body first check the role they need (need, or the
+// import kind's role in importCSV), so that nothing is read, decoded or
+// spooled for a caller who may not make the call.
 func (s *Server) routes() {
 	e := s.engine
 	e.NoRoute(s.noRoute)
@@ -30,40 +34,40 @@ func (s *Server) routes() {
 	v1.POST("/convert", s.convert)
 
 	v1.GET("/projects", s.listProjects)
-	v1.POST("/projects", s.createProject)
+	v1.POST("/projects", need(domain.RoleAdmin), s.createProject)
 	p := v1.Group("/projects/:project")
 	p.GET("", s.getProject)
-	p.PUT("", s.updateProject)
+	p.PUT("", need(domain.RoleAdmin), s.updateProject)
 	p.DELETE("", s.deleteProject)
 
 	p.GET("/types", s.listTypes)
-	p.PUT("/types/:code", s.putType)
+	p.PUT("/types/:code", need(domain.RoleAdmin), s.putType)
 	p.DELETE("/types/:code", s.deleteType)
 
 	p.GET("/holes", s.listHoles)
-	p.POST("/holes", s.createHole)
+	p.POST("/holes", need(domain.RoleAdmin), s.createHole)
 	p.GET("/holes/:hole", s.getHole)
-	p.PUT("/holes/:hole", s.updateHole)
+	p.PUT("/holes/:hole", need(domain.RoleAdmin), s.updateHole)
 	p.DELETE("/holes/:hole", s.deleteHole)
 
 	p.GET("/holes/:hole/survey", s.getSurvey)
-	p.PUT("/holes/:hole/survey", s.putSurvey)
+	p.PUT("/holes/:hole/survey", need(domain.RoleAdmin), s.putSurvey)
 
 	p.GET("/holes/:hole/runs", s.listRuns)
-	p.POST("/holes/:hole/runs", s.createRun)
+	p.POST("/holes/:hole/runs", need(domain.RoleLog), s.createRun)
 	p.GET("/runs/:run", s.getRun)
-	p.PUT("/runs/:run", s.updateRun)
+	p.PUT("/runs/:run", need(domain.RoleLog), s.updateRun)
 	p.DELETE("/runs/:run", s.deleteRun)
 
 	p.GET("/measurements", s.listMeasurements)
-	p.POST("/measurements", s.createMeasurement)
+	p.POST("/measurements", need(domain.RoleLog), s.createMeasurement)
 	p.GET("/measurements/:measurement", s.getMeasurement)
-	p.PUT("/measurements/:measurement", s.updateMeasurement)
+	p.PUT("/measurements/:measurement", need(domain.RoleLog), s.updateMeasurement)
 	p.DELETE("/measurements/:measurement", s.deleteMeasurement)
 	p.GET("/measurements.csv", s.exportMeasurements)
 
 	p.GET("/qa", s.projectQA)
-	p.POST("/qa", s.projectQAWith)
+	p.POST("/qa", need(domain.RoleRead), s.projectQAWith)
 	p.GET("/holes/:hole/qa", s.holeQA)
 	p.GET("/holes/:hole/path", s.holePath)
 

@@ -79,8 +79,8 @@ type ConvertResponse struct {
 // own Derived.Error and the others are still converted.
 func (s *Service) Convert(ctx context.Context, req ConvertRequest) (ConvertResponse, error) {
 	var resp ConvertResponse
-	if _, ok := ActorFrom(ctx); !ok {
-		return resp, domain.Errorf(domain.Unauthorized, "a bearer token is required")
+	if err := Authenticated(ctx); err != nil {
+		return resp, err
 	}
 	if len(req.Measurements) > MaxConvertMeasurements {
 		return resp, domain.FieldErr("measurements", "at most %d measurements per request, got %d", MaxConvertMeasurements, len(req.Measurements))

@@ -62,6 +62,18 @@ type ImportResult struct {
 	Replayed bool `json:"replayed"`
 }
 
+// ImportRole is the role an import of kind needs: admin for collars and
+// surveys, log for runs and measurements; Invalid for an unknown kind.
+func ImportRole(kind string) (domain.Role, error) {
+	switch kind {
+	case ImportCollars, ImportSurveys:
+		return domain.RoleAdmin, nil
+	case ImportRuns, ImportMeasurements:
+		return domain.RoleLog, nil
+	}
+	return "", domain.FieldErr("kind", "import kind must be collars, surveys, runs or measurements, got %q", kind)
+}
+
 // Import reads a CSV file of one kind into the project, all or nothing: when
 // any row is bad nothing is written and the Invalid error lists every bad row
 // (up to MaxReportedProblems) with its file, line, column and reason in
@@ -74,13 +86,9 @@ func (s *Service) Import(ctx context.Context, projectID int64, req ImportRequest
 	if res.File == "" {
 		res.File = req.Kind + ".csv"
 	}
-	role := domain.RoleLog
-	switch req.Kind {
-	case ImportCollars, ImportSurveys:
-		role = domain.RoleAdmin
-	case ImportRuns, ImportMeasurements:
-	default:
-		return res, domain.FieldErr("kind", "import kind must be collars, surveys, runs or measurements, got %q", req.Kind)
+	role, err := ImportRole(req.Kind)
+	if err != nil {
+		return res, err
 	}
 	p, a, err := s.project(ctx, s.store, projectID, role)
 	if err != nil {

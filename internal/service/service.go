@@ -91,6 +91,25 @@ func allow(ctx context.Context, projectID int64, role domain.Role) (Actor, error
 	return a, nil
 }
 
+// Authorize checks, before any work, that the caller carried by ctx may act
+// with role in projectID (domain.AllProjects: site-wide): Unauthorized
+// without a caller, Forbidden for the wrong project or too low a role. Every
+// use case checks this itself; a front end calls it first so that nothing a
+// caller may not do is even read (a request body, an upload).
+func Authorize(ctx context.Context, projectID int64, role domain.Role) error {
+	_, err := allow(ctx, projectID, role)
+	return err
+}
+
+// Authenticated checks that ctx carries a caller of any role and project
+// (the stateless conversion needs no more).
+func Authenticated(ctx context.Context) error {
+	if _, ok := ActorFrom(ctx); !ok {
+		return domain.Errorf(domain.Unauthorized, "a bearer token is required")
+	}
+	return nil
+}
+
 // audit appends one audit entry through st (the transaction of the change).
 func audit(ctx context.Context, st domain.Store, a Actor, projectID int64, entity string, id any, action string, before, after any) error {
 	e := domain.AuditEntry{ProjectID: projectID, ActorName: a.Name, TokenID: a.TokenID, Entity: entity,
