@@ -161,6 +161,10 @@ func runQA(_ context.Context, env *Env, args []string) int {
 	}
 	o.PersistentType = strings.TrimSpace(*persistent)
 	o.Feet = *feet
+	if err := o.Check(); err != nil {
+		fmt.Fprintf(env.Stderr, "corvane qa: %v\n", err)
+		return ExitUsage
+	}
 
 	in, rejected, err := readQAInput(*collars, *surveys, *structures, *runsF, *picks, *outRef, *decl, *conv, *feet, env.Stderr)
 	if err != nil {

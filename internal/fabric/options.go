@@ -100,9 +100,17 @@ func ParseSets(spec, on string, windows []dirstat.Window, seed uint64) (Sets, er
 	return s, nil
 }
 
+// MaxWindows bounds the set windows of one request (each measurement is
+// tested against every window).
+const MaxWindows = 50
+
 // ParseWindow reads a set window NAME:TREND/PLUNGE:CONE (for planes the
-// centre is the pole); names must differ from those in before.
+// centre is the pole); names must differ from those in before, of which
+// there are fewer than MaxWindows.
 func ParseWindow(s string, before []dirstat.Window) (dirstat.Window, error) {
+	if len(before) >= MaxWindows {
+		return dirstat.Window{}, optErr("set", s, "at most %d set windows", MaxWindows)
+	}
 	parts := strings.Split(s, ":")
 	if len(parts) != 3 || strings.TrimSpace(parts[0]) == "" {
 		return dirstat.Window{}, optErr("set", s, "want NAME:TREND/PLUNGE:CONE, e.g. J1:135/20:25")

@@ -2,7 +2,6 @@ package fabric
 
 import (
 	"fmt"
-	"math"
 	"strconv"
 
 	"corvane/internal/netsvg"
@@ -30,8 +29,9 @@ type RoseOptions struct {
 }
 
 // ParseRose reads the rose options: of "" (dip_direction), "dip_direction"
-// (also spelt dip-direction), "strike" or "trend"; the bin width (0 means
-// 10) must divide 180; min_dip is 0..90.
+// (also spelt dip-direction), "strike" or "trend"; the bin width must be
+// one netsvg.CheckBinWidth takes (1 to 90 degrees, dividing 180); min_dip is
+// 0..90.
 func ParseRose(of string, bin, minDip float64) (string, float64, float64, error) {
 	switch of {
 	case "", "dip-direction", RoseDipDirection:
@@ -40,8 +40,8 @@ func ParseRose(of string, bin, minDip float64) (string, float64, float64, error)
 	default:
 		return "", 0, 0, optErr("of", of, "want dip_direction, strike or trend")
 	}
-	if q := 180 / bin; !(bin > 0) || math.IsInf(q, 0) || math.Abs(q-math.Round(q)) > 1e-9 {
-		return "", 0, 0, optErr("bin", strconv.FormatFloat(bin, 'g', -1, 64), "want a width in degrees that divides 180")
+	if netsvg.CheckBinWidth(bin) != nil {
+		return "", 0, 0, optErr("bin", strconv.FormatFloat(bin, 'g', -1, 64), "want a width of %v to %v degrees that divides 180", netsvg.MinBinWidth, netsvg.MaxBinWidth)
 	}
 	if !(minDip >= 0 && minDip <= 90) {
 		return "", 0, 0, optErr("min_dip", strconv.FormatFloat(minDip, 'g', -1, 64), "want 0 to 90")

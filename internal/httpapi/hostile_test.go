@@ -198,3 +198,45 @@ func TestElementCounter(t *testing.T) {
 		}
 	}
 }
+
+// Every query parameter that sizes work is bounded and refused with 422
+// naming it: a rose bin of 1.6e-10 degrees would allocate 2e12 bins (issue
+// item 2), a depth-shift search of 1e-8 steps over 10000 would run for hours
+// (item 3).
+func TestWorkParametersBounded(t *testing.T) {
+	f := newFixture(t)
+	pid := f.project("Bounds", nil)
+	h := f.hole(pid, "BD001", 90, -60)
+	base := "/v1/projects/" + itoa(pid)
+	hb := base + "/holes/" + itoa(h.ID)
+	read := f.token(pid, domain.RoleRead, "reader")
+	picks := map[string]any{"picks": []map[string]any{{"hole_id": "BD001", "depth": 2, "dip": 40, "dip_direction": 100}}}
+	for _, tc := range []struct {
+		method, path string
+		body         any
+		field        string
+	}{
+		{"GET", base + "/rose?bin=1.6370904631912708e-10", nil, "bin"},
+		{"GET", base + "/rose?bin=0.5", nil, "bin"},
+		{"GET", base + "/rose?bin=180", nil, "bin"},
+		{"POST", base + "/qa?max_depth_shift=10000&shift_step=1e-8", picks, "shift_step"},
+		{"GET", base + "/qa?shift_step=1e-7", nil, "shift_step"},
+		{"GET", hb + "/qa?neighbours=1000000", nil, "neighbours"},
+		{"GET", base + "/qa?pick_window=1e6", nil, "pick_window"},
+		{"GET", hb + "/path?step=1e-9", nil, "step"},
+		{"GET", base + "/statistics?sets=1000000", nil, "sets"},
+		{"GET", base + "/measurements?limit=100000000", nil, "limit"},
+	} {
+		r := f.do(read, tc.method, tc.path, tc.body)
+		if r.Code != 422 {
+			t.Errorf("%s %s: status %d, want 422: %s", tc.method, tc.path, r.Code, r.Body)
+			continue
+		}
+		p := r.problem(t)
+		if len(p.Errors) == 0 || p.Errors[0].Field != tc.field {
+			t.Errorf("%s %s: problem %+v does not name %s", tc.method, tc.path, p, tc.field)
+		}
+	}
+	f.must(200, read, "GET", base+"/rose?bin=2.5", nil, nil)
+	f.must(200, read, "POST", base+"/qa?max_depth_shift=100&shift_step=0.01", picks, nil)
+}

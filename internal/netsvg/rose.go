@@ -25,6 +25,22 @@ type Rose struct {
 	Caution  string
 }
 
+// MinBinWidth and MaxBinWidth bound a rose's bin width in degrees: at most
+// 360 petals are drawn.
+const (
+	MinBinWidth = 1.0
+	MaxBinWidth = 90.0
+)
+
+// CheckBinWidth refuses a bin width (degrees) outside MinBinWidth..
+// MaxBinWidth or not dividing 180.
+func CheckBinWidth(bw float64) error {
+	if !(bw >= MinBinWidth && bw <= MaxBinWidth) || math.Abs(180/bw-math.Round(180/bw)) > 1e-9 {
+		return fmt.Errorf("bin width %v: want %v to %v degrees, dividing 180", bw, MinBinWidth, MaxBinWidth)
+	}
+	return nil
+}
+
 // RoseBins returns the (weighted) count in each bin of width bw degrees
 // starting at 0 (bin k covers [k bw, (k+1) bw)). For axial data each value is
 // counted at a and at a + 180.
@@ -54,14 +70,14 @@ func RoseBins(az, w []float64, bw float64, axial bool) []float64 {
 // Petal radius is proportional to the square root of the count, so petal
 // area is proportional to the count (an equal-area rose, as recommended by
 // Nemec 1988, Sedimentary Geology 59, from memory). It returns an error for a
-// bin width that does not divide 180 or for mismatched weights.
+// bin width [CheckBinWidth] refuses or for mismatched weights.
 func WriteRose(w io.Writer, r Rose) error {
 	bw := r.BinWidth
 	if bw == 0 {
 		bw = 10
 	}
-	if !(bw > 0) || math.Abs(180/bw-math.Round(180/bw)) > 1e-9 {
-		return fmt.Errorf("netsvg: rose bin width %v does not divide 180", bw)
+	if err := CheckBinWidth(bw); err != nil {
+		return fmt.Errorf("netsvg: rose %w", err)
 	}
 	if r.Weights != nil && len(r.Weights) != len(r.Azimuths) {
 		return errors.New("netsvg: rose weights do not match azimuths")

@@ -1,6 +1,11 @@
 package qa
 
-import "corvane/internal/coreangle"
+import (
+	"fmt"
+	"math"
+
+	"corvane/internal/coreangle"
+)
 
 // Options are the thresholds and choices of a QA run. A zero field takes its
 // default (see [DefaultOptions]); every default is stated with where it comes
@@ -148,4 +153,76 @@ func (o Options) withDefaults() Options {
 	def(&o.BetaZeroP, 0.001)
 	def(&o.BetaZeroShare, 0.01)
 	return o
+}
+
+// Bounds on the options that size the work of a run.
+const (
+	// MaxShiftSteps bounds the depth-shift grid: 2*MaxDepthShift/ShiftStep+1
+	// shifts are tried, each against every pick.
+	MaxShiftSteps = 20001
+	// MaxNeighbours bounds Neighbours (runs on each side of a run).
+	MaxNeighbours = 100
+	// MaxPickWindow bounds PickWindow (length units).
+	MaxPickWindow = 50.0
+)
+
+// OptionError names an option that is out of bounds by its JSON name.
+type OptionError struct {
+	Option string
+	Msg    string
+}
+
+func (e *OptionError) Error() string { return e.Option + ": " + e.Msg }
+
+func optErr(name, format string, args ...any) *OptionError {
+	return &OptionError{Option: name, Msg: fmt.Sprintf(format, args...)}
+}
+
+// Check refuses options a run cannot use: thresholds that are negative or
+// not numbers, an unknown fabric reference, and the options that size the
+// work past their bounds (MaxShiftSteps, MaxNeighbours, MaxPickWindow). The
+// error is an *OptionError naming the option by its JSON name. Zero values
+// take the defaults and pass.
+func (o Options) Check() error {
+	switch o.Reference {
+	case "", "neighbours", "hole":
+	default:
+		return optErr("reference", "reference must be neighbours or hole, got %q", o.Reference)
+	}
+	for _, f := range []struct {
+		name string
+		v    float64
+	}{
+		{"mismatch_tolerance", o.MismatchTolerance}, {"rotation_threshold", o.RotationThreshold},
+		{"fabric_misfit", o.FabricMisfit}, {"pick_window", o.PickWindow}, {"max_depth_shift", o.MaxDepthShift},
+		{"shift_step", o.ShiftStep}, {"dogleg_threshold", o.DoglegThreshold}, {"outlier_factor", o.OutlierFactor},
+		{"outlier_floor", o.OutlierFloor}, {"nominal_residual", o.NominalResidual}, {"gap_threshold", o.GapThreshold},
+		{"short_tolerance", o.ShortTolerance}, {"collar_tolerance", o.CollarTolerance}, {"high_alpha", o.HighAlpha},
+		{"near_vertical", o.NearVertical}, {"digit_p", o.DigitP}, {"digit_share_0_5", o.DigitShare05},
+		{"beta_zero_p", o.BetaZeroP}, {"beta_zero_share", o.BetaZeroShare},
+	} {
+		if math.IsNaN(f.v) || math.IsInf(f.v, 0) || f.v < 0 {
+			return optErr(f.name, "%s must be a number >= 0 (0 takes the default), got %v", f.name, f.v)
+		}
+	}
+	for _, f := range []struct {
+		name string
+		v    int
+	}{{"neighbours", o.Neighbours}, {"min_run_count", o.MinRunCount}, {"digit_min_count", o.DigitMinCount}} {
+		if f.v < 0 {
+			return optErr(f.name, "%s must be >= 0 (0 takes the default), got %d", f.name, f.v)
+		}
+	}
+	d := o.withDefaults()
+	if d.Neighbours > MaxNeighbours {
+		return optErr("neighbours", "neighbours must be at most %d, got %d", MaxNeighbours, d.Neighbours)
+	}
+	if d.PickWindow > MaxPickWindow {
+		return optErr("pick_window", "pick_window must be at most %v, got %v", MaxPickWindow, d.PickWindow)
+	}
+	if steps := 2*d.MaxDepthShift/d.ShiftStep + 1; !(steps <= MaxShiftSteps) {
+		return optErr("shift_step", "the depth-shift search from -%v to %v in steps of %v would try %.3g shifts; at most %d: raise shift_step or lower max_depth_shift",
+			d.MaxDepthShift, d.MaxDepthShift, d.ShiftStep, steps, MaxShiftSteps)
+	}
+	return nil
 }

@@ -1,6 +1,7 @@
 package qa
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"sort"
@@ -53,11 +54,15 @@ func shiftCost(picks []pickItem, core []coreItem, s, w float64) float64 {
 
 // estimateShift finds the constant depth shift (core depth = pick depth +
 // shift) by a grid search over [-max, max] in steps of step minimising
-// [shiftCost]; ties go to the smaller |shift|.
-func estimateShift(picks []pickItem, core []coreItem, max, step, w float64) float64 {
+// [shiftCost]; ties go to the smaller |shift|. It gives up, returning 0,
+// when ctx is done.
+func estimateShift(ctx context.Context, picks []pickItem, core []coreItem, max, step, w float64) float64 {
 	best, bestS := math.Inf(1), 0.0
 	m := int(math.Round(max / step))
 	for i := -m; i <= m; i++ {
+		if i%64 == 0 && ctx.Err() != nil {
+			return 0
+		}
 		s := float64(i) * step
 		c := shiftCost(picks, core, s, w)
 		if c < best-1e-9 || (math.Abs(c-best) <= 1e-9 && math.Abs(s) < math.Abs(bestS)) {
@@ -145,7 +150,7 @@ func pickChecks(h *holeData, o Options) []Finding {
 		return out
 	}
 	w := o.PickWindow
-	s := estimateShift(picks, core, o.MaxDepthShift, o.ShiftStep, w)
+	s := estimateShift(h.ctx, picks, core, o.MaxDepthShift, o.ShiftStep, w)
 	match := matchPicks(picks, core, s, w)
 	var dz []float64
 	for i, c := range match {

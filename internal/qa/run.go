@@ -28,6 +28,7 @@
 package qa
 
 import (
+	"context"
 	"fmt"
 	"math"
 	"sort"
@@ -49,6 +50,7 @@ type meas struct {
 }
 
 type holeData struct {
+	ctx     context.Context // the run stops when it is done
 	c       Collar
 	st      []Station
 	runs    []OrientationRun
@@ -65,6 +67,14 @@ type holeData struct {
 // returns the report. Run does not modify in. It is safe to call
 // concurrently.
 func Run(in Input, opt Options) Report {
+	rep, _ := RunContext(context.Background(), in, opt)
+	return rep
+}
+
+// RunContext is [Run] that gives up when ctx is done (a caller gone, a
+// deadline passed), between holes and inside the depth-shift search, and
+// then returns ctx's error and no report.
+func RunContext(ctx context.Context, in Input, opt Options) (Report, error) {
 	o := opt.withDefaults()
 	conv := o.Convention
 	rep := Report{Caution: Caution, Options: o, Convention: conv.String()}
@@ -87,7 +97,7 @@ func Run(in Input, opt Options) Report {
 				Message: fmt.Sprintf("hole %s has a second collar row; the first is used", c.HoleID)})
 			continue
 		}
-		h := &holeData{c: c}
+		h := &holeData{ctx: ctx, c: c}
 		holes[c.HoleID] = h
 		order = append(order, h)
 	}
@@ -158,6 +168,9 @@ func Run(in Input, opt Options) Report {
 
 	loggers := map[string]*loggerData{}
 	for _, h := range order {
+		if err := ctx.Err(); err != nil {
+			return Report{}, err
+		}
 		hr := &HoleReport{HoleID: h.c.HoleID, Depth: h.c.Depth, Azimuth: geom.NormAzimuth(h.c.Azimuth), Dip: h.c.Dip}
 		h.report = hr
 		add(checkHole(h, conv, o, loggers)...)
@@ -203,7 +216,7 @@ func Run(in Input, opt Options) Report {
 	}
 	rep.Findings = findings
 	rep.Summary = summarise(&rep, in)
-	return rep
+	return rep, ctx.Err()
 }
 
 func summarise(rep *Report, in Input) Summary {

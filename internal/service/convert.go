@@ -124,6 +124,9 @@ func (s *Service) Convert(ctx context.Context, req ConvertRequest) (ConvertRespo
 	}
 	resp.Results = make([]ConvertResult, len(req.Measurements))
 	for i, m := range req.Measurements {
+		if i%1024 == 0 && ctx.Err() != nil {
+			return ConvertResponse{}, ctx.Err()
+		}
 		r := ConvertResult{HoleID: m.HoleID, Depth: m.Depth, Type: m.Type}
 		dm := domain.Measurement{Depth: m.Depth, Alpha: m.Alpha, Beta: m.Beta, Gamma: m.Gamma, ApparentThickness: m.ApparentThickness, TypeCode: "x"}
 		hm := models[m.HoleID]

@@ -3,7 +3,6 @@ package service
 import (
 	"context"
 	"fmt"
-	"math"
 
 	"corvane/internal/domain"
 	"corvane/internal/qa"
@@ -94,7 +93,7 @@ func (s *Service) QAWith(ctx context.Context, projectID, holeID int64, req QAReq
 	conv := ConventionsOf(p)
 	opt.Convention = conv.core()
 	opt.Feet = p.LengthUnit == domain.UnitFoot
-	return qa.Run(in, opt), nil
+	return qa.RunContext(ctx, in, opt)
 }
 
 // qaInput reads the holes' collars, surveys, runs and measurements from the
@@ -160,37 +159,12 @@ func (s *Service) qaInput(ctx context.Context, p domain.Project, holes []domain.
 	}
 }
 
-// checkQAOptions refuses thresholds that are negative or not numbers, and an
-// unknown fabric reference, naming the option by its JSON name.
+// checkQAOptions refuses options qa cannot use (see [qa.Options.Check]),
+// naming the option by its JSON name.
 func checkQAOptions(o qa.Options) error {
-	switch o.Reference {
-	case "", "neighbours", "hole":
-	default:
-		return domain.FieldErr("reference", "reference must be neighbours or hole, got %q", o.Reference)
+	err := o.Check()
+	if e, ok := err.(*qa.OptionError); ok {
+		return domain.FieldErr(e.Option, "%s", e.Msg)
 	}
-	for _, f := range []struct {
-		name string
-		v    float64
-	}{
-		{"mismatch_tolerance", o.MismatchTolerance}, {"rotation_threshold", o.RotationThreshold},
-		{"fabric_misfit", o.FabricMisfit}, {"pick_window", o.PickWindow}, {"max_depth_shift", o.MaxDepthShift},
-		{"shift_step", o.ShiftStep}, {"dogleg_threshold", o.DoglegThreshold}, {"outlier_factor", o.OutlierFactor},
-		{"outlier_floor", o.OutlierFloor}, {"nominal_residual", o.NominalResidual}, {"gap_threshold", o.GapThreshold},
-		{"short_tolerance", o.ShortTolerance}, {"collar_tolerance", o.CollarTolerance}, {"high_alpha", o.HighAlpha},
-		{"near_vertical", o.NearVertical}, {"digit_p", o.DigitP}, {"digit_share_0_5", o.DigitShare05},
-		{"beta_zero_p", o.BetaZeroP}, {"beta_zero_share", o.BetaZeroShare},
-	} {
-		if math.IsNaN(f.v) || math.IsInf(f.v, 0) || f.v < 0 {
-			return domain.FieldErr(f.name, "%s must be a number >= 0 (0 takes the default), got %v", f.name, f.v)
-		}
-	}
-	for _, f := range []struct {
-		name string
-		v    int
-	}{{"neighbours", o.Neighbours}, {"min_run_count", o.MinRunCount}, {"digit_min_count", o.DigitMinCount}} {
-		if f.v < 0 {
-			return domain.FieldErr(f.name, "%s must be >= 0 (0 takes the default), got %d", f.name, f.v)
-		}
-	}
-	return nil
+	return err
 }

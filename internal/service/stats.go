@@ -91,7 +91,11 @@ func (s *Service) gather(ctx context.Context, projectID int64, q MeasurementQuer
 		if err != nil {
 			return
 		}
-		for _, m := range ms {
+		for i, m := range ms {
+			if i%1024 == 0 && ctx.Err() != nil {
+				err = ctx.Err()
+				return
+			}
 			if len(in.Rows) >= MaxStatsMeasurements {
 				err = domain.Errorf(domain.Invalid, "more than %d measurements match: narrow the filter", MaxStatsMeasurements)
 				return
@@ -149,6 +153,9 @@ func (s *Service) Statistics(ctx context.Context, projectID int64, q StatsQuery)
 	if err != nil {
 		return fabric.Report{}, err
 	}
+	if err := ctx.Err(); err != nil {
+		return fabric.Report{}, err
+	}
 	rep, err := fabric.Stats(in, fabric.Options{Of: q.Of, Sets: sets, Weighting: w})
 	if err != nil {
 		return fabric.Report{}, optionErr(err)
@@ -199,9 +206,15 @@ func (s *Service) Net(ctx context.Context, projectID int64, q NetQuery, w io.Wri
 	if err != nil {
 		return err
 	}
+	if err := ctx.Err(); err != nil {
+		return err
+	}
 	n, err := fabric.Net(in, o)
 	if err != nil {
 		return optionErr(err)
+	}
+	if err := ctx.Err(); err != nil {
+		return err
 	}
 	return netsvg.WriteNet(w, n)
 }
