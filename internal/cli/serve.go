@@ -136,6 +136,7 @@ func serve(ctx context.Context, env *Env, cfg config.Config, log *slog.Logger) e
 		Logger:          log,
 		MaxBodyBytes:    cfg.MaxBodyBytes,
 		MaxImportBytes:  cfg.MaxImportBytes,
+		MaxHeavy:        cfg.MaxHeavy,
 		DefaultPageSize: cfg.DefaultPageSize,
 		MaxPageSize:     cfg.MaxPageSize,
 		Web:             web.Handler(),

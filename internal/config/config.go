@@ -43,6 +43,10 @@ type Config struct {
 	MaxBodyBytes int64
 	// MaxImportBytes limits CSV import bodies.
 	MaxImportBytes int64
+	// MaxHeavy bounds the expensive requests (QA, statistics, nets, rose,
+	// convert) served at once; more are answered 503 with Retry-After. 0
+	// means twice the number of CPUs.
+	MaxHeavy int
 	// DefaultPageSize and MaxPageSize bound list pages (?limit=).
 	DefaultPageSize int
 	MaxPageSize     int
@@ -80,6 +84,7 @@ const (
 	EnvDemo            = "CORVANE_DEMO"
 	EnvMaxBodyBytes    = "CORVANE_MAX_BODY_BYTES"
 	EnvMaxImportBytes  = "CORVANE_MAX_IMPORT_BYTES"
+	EnvMaxHeavy        = "CORVANE_MAX_HEAVY"
 	EnvPageSize        = "CORVANE_PAGE_SIZE"
 	EnvMaxPageSize     = "CORVANE_MAX_PAGE_SIZE"
 	EnvReadTimeout     = "CORVANE_READ_TIMEOUT"
@@ -138,6 +143,7 @@ func FromEnv(getenv func(string) string) (Config, error) {
 	}
 	i64(EnvMaxBodyBytes, &c.MaxBodyBytes)
 	i64(EnvMaxImportBytes, &c.MaxImportBytes)
+	inum(EnvMaxHeavy, &c.MaxHeavy)
 	inum(EnvPageSize, &c.DefaultPageSize)
 	inum(EnvMaxPageSize, &c.MaxPageSize)
 	dur(EnvReadTimeout, &c.ReadTimeout)
@@ -156,6 +162,7 @@ func (c *Config) Bind(fs *flag.FlagSet) {
 	fs.BoolVar(&c.Demo, "demo", c.Demo, "load the fictional demo programme if it is not there (env "+EnvDemo+")")
 	fs.Int64Var(&c.MaxBodyBytes, "max-body-bytes", c.MaxBodyBytes, "largest JSON request body (env "+EnvMaxBodyBytes+")")
 	fs.Int64Var(&c.MaxImportBytes, "max-import-bytes", c.MaxImportBytes, "largest CSV import body (env "+EnvMaxImportBytes+")")
+	fs.IntVar(&c.MaxHeavy, "max-heavy", c.MaxHeavy, "expensive requests (QA, statistics, nets, convert) served at once, more get 503; 0: twice the CPUs (env "+EnvMaxHeavy+")")
 	fs.IntVar(&c.DefaultPageSize, "page-size", c.DefaultPageSize, "default list page size (env "+EnvPageSize+")")
 	fs.IntVar(&c.MaxPageSize, "max-page-size", c.MaxPageSize, "largest list page size (env "+EnvMaxPageSize+")")
 	fs.DurationVar(&c.ReadTimeout, "read-timeout", c.ReadTimeout, "longest time to read one request (env "+EnvReadTimeout+")")
@@ -185,6 +192,9 @@ func (c Config) Validate() error {
 	}
 	if c.MaxImportBytes <= 0 {
 		errs = append(errs, fmt.Errorf("max-import-bytes %d: must be positive", c.MaxImportBytes))
+	}
+	if c.MaxHeavy < 0 {
+		errs = append(errs, fmt.Errorf("max-heavy %d: must be 0 (twice the CPUs) or positive", c.MaxHeavy))
 	}
 	if c.MaxPageSize <= 0 {
 		errs = append(errs, fmt.Errorf("max-page-size %d: must be positive", c.MaxPageSize))

@@ -240,3 +240,55 @@ func TestWorkParametersBounded(t *testing.T) {
 	f.must(200, read, "GET", base+"/rose?bin=2.5", nil, nil)
 	f.must(200, read, "POST", base+"/qa?max_depth_shift=100&shift_step=0.01", picks, nil)
 }
+
+// signalReader tells, on its first Read, that the server has started on the
+// body, and then waits for release before giving it.
+type signalReader struct {
+	started chan struct{}
+	release chan struct{}
+	body    io.Reader
+	once    bool
+}
+
+func (r *signalReader) Read(p []byte) (int, error) {
+	if !r.once {
+		r.once = true
+		close(r.started)
+		<-r.release
+	}
+	return r.body.Read(p)
+}
+
+// Expensive requests run in a bounded pool: when every slot is taken the
+// next one is answered 503 with Retry-After at once, and a slot freed is
+// used again.
+func TestHeavyPoolFull(t *testing.T) {
+	f := newFixture(t, func(o *Options) { o.MaxHeavy = 1 })
+	pid := f.project("Pool", nil)
+	base := "/v1/projects/" + itoa(pid)
+	conv := `{"collars":[{"hole_id":"A","azimuth":0,"dip":-60,"final_depth":50}],"measurements":[{"hole_id":"A","depth":5,"alpha":20,"beta":180}]}`
+	sr := &signalReader{started: make(chan struct{}), release: make(chan struct{}), body: strings.NewReader(conv)}
+	done := make(chan int)
+	go func() {
+		req := httptest.NewRequest("POST", "/v1/convert", sr)
+		req.Header.Set("Content-Type", "application/json")
+		req.Header.Set("Authorization", "Bearer "+f.site)
+		w := httptest.NewRecorder()
+		f.srv.ServeHTTP(w, req)
+		done <- w.Code
+	}()
+	<-sr.started // the first request holds the only slot
+	for _, path := range []string{base + "/qa", base + "/statistics", base + "/net", base + "/rose"} {
+		r := f.do(f.site, "GET", path, nil)
+		if r.Code != 503 || r.Header.Get("Retry-After") == "" {
+			t.Errorf("GET %s with the pool full: status %d, Retry-After %q; want 503 with Retry-After", path, r.Code, r.Header.Get("Retry-After"))
+		}
+	}
+	// Cheap requests are not pooled.
+	f.must(200, f.site, "GET", base, nil, nil)
+	close(sr.release)
+	if code := <-done; code != 200 {
+		t.Errorf("the request holding the slot: status %d", code)
+	}
+	f.must(200, f.site, "GET", base+"/statistics", nil, nil)
+}

@@ -31,7 +31,7 @@ func (s *Server) routes() {
 	e.GET("/openapi.yaml", func(c *gin.Context) { c.Data(http.StatusOK, "application/yaml", api.OpenAPI) })
 
 	v1 := e.Group("/v1", s.authenticate)
-	v1.POST("/convert", s.convert)
+	v1.POST("/convert", s.heavy, s.convert)
 
 	v1.GET("/projects", s.listProjects)
 	v1.POST("/projects", need(domain.RoleAdmin), s.createProject)
@@ -66,14 +66,14 @@ func (s *Server) routes() {
 	p.DELETE("/measurements/:measurement", s.deleteMeasurement)
 	p.GET("/measurements.csv", s.exportMeasurements)
 
-	p.GET("/qa", s.projectQA)
-	p.POST("/qa", need(domain.RoleRead), s.projectQAWith)
-	p.GET("/holes/:hole/qa", s.holeQA)
+	p.GET("/qa", need(domain.RoleRead), s.heavy, s.projectQA)
+	p.POST("/qa", need(domain.RoleRead), s.heavy, s.projectQAWith)
+	p.GET("/holes/:hole/qa", need(domain.RoleRead), s.heavy, s.holeQA)
 	p.GET("/holes/:hole/path", s.holePath)
 
-	p.GET("/statistics", s.statistics)
-	p.GET("/net", s.net)
-	p.GET("/rose", s.rose)
+	p.GET("/statistics", need(domain.RoleRead), s.heavy, s.statistics)
+	p.GET("/net", need(domain.RoleRead), s.heavy, s.net)
+	p.GET("/rose", need(domain.RoleRead), s.heavy, s.rose)
 
 	p.POST("/imports/:kind", s.importCSV)
 	p.GET("/audit", s.listAudit)

@@ -11,6 +11,7 @@ import (
 	"context"
 	"log/slog"
 	"net/http"
+	"runtime"
 	"time"
 
 	"github.com/gin-gonic/gin"
@@ -32,6 +33,9 @@ type Options struct {
 	MaxImportBytes  int64
 	DefaultPageSize int
 	MaxPageSize     int
+	// MaxHeavy bounds the expensive requests served at once (see
+	// config.Config.MaxHeavy); 0 means twice the CPUs.
+	MaxHeavy int
 	// Web, when set, serves every path outside /v1, /healthz, /readyz and
 	// /metrics (the web page assets). Nil answers those paths with 404.
 	Web http.Handler
@@ -46,6 +50,7 @@ type Server struct {
 	engine  *gin.Engine
 	metrics *metrics
 	log     *slog.Logger
+	slots   chan struct{} // one token per expensive request running
 }
 
 // New builds the server and its route table.
@@ -66,6 +71,9 @@ func New(opt Options) *Server {
 	if opt.DefaultPageSize <= 0 || opt.DefaultPageSize > opt.MaxPageSize {
 		opt.DefaultPageSize = min(config.DefaultPageSize, opt.MaxPageSize)
 	}
+	if opt.MaxHeavy <= 0 {
+		opt.MaxHeavy = 2 * runtime.GOMAXPROCS(0)
+	}
 	if opt.Registry == nil {
 		opt.Registry = prometheus.NewRegistry()
 	}
@@ -78,7 +86,8 @@ func New(opt Options) *Server {
 	// The client address in logs is the peer's: X-Forwarded-For is not
 	// trusted, since anyone can send it.
 	_ = e.SetTrustedProxies(nil)
-	s := &Server{opt: opt, engine: e, metrics: newMetrics(opt.Registry), log: opt.Logger}
+	s := &Server{opt: opt, engine: e, metrics: newMetrics(opt.Registry), log: opt.Logger,
+		slots: make(chan struct{}, opt.MaxHeavy)}
 	e.Use(requestID, s.metrics.middleware, accessLog(s.log), recoverer, checkQuery)
 	s.routes()
 	return s
