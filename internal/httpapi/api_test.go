@@ -541,7 +541,8 @@ func TestImportLimit(t *testing.T) {
 
 func TestSpoolLargeBody(t *testing.T) {
 	big := strings.Repeat("0123456789abcdef", (spoolMemory/16)+1000)
-	r, cleanup, err := spool(strings.NewReader(big))
+	s := newFixture(t, func(o *Options) { o.TempDir = t.TempDir() }).srv
+	r, cleanup, err := s.spool(strings.NewReader(big))
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -32,7 +32,7 @@ func ifMatch(c *gin.Context) (int64, error) {
 	}
 	if h == "*" {
 		return 0, &edgeError{http.StatusPreconditionRequired, "precondition-required",
-			`If-Match: * cannot protect an edit; send the ETag of the version you last read`}
+			`If-Match: * cannot protect an edit; send the ETag of the version you last read`, nil}
 	}
 	if strings.Contains(h, ",") {
 		return 0, errBadRequest("If-Match: send exactly one ETag")

@@ -2,7 +2,6 @@ package httpapi
 
 import (
 	"context"
-	"errors"
 	"mime"
 	"net/http"
 	"strconv"
@@ -716,12 +715,11 @@ func (s *Server) importCSV(c *gin.Context) {
 	if c.IsAborted() {
 		return
 	}
-	body, cleanup, err := spool(c.Request.Body)
+	body, cleanup, err := s.spool(c.Request.Body)
 	defer cleanup()
 	if err != nil {
-		var mbe *http.MaxBytesError
-		if !errors.As(err, &mbe) {
-			err = errBadRequest("reading the upload: " + err.Error())
+		if p := problemFor(err, ""); p.Status == http.StatusServiceUnavailable || p.Status == http.StatusInsufficientStorage {
+			c.Header("Retry-After", "30")
 		}
 		fail(c, err)
 		return

@@ -2,9 +2,16 @@ package httpapi
 
 import (
 	"bytes"
+	"errors"
+	"fmt"
 	"io"
 	"net/http/httptest"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strconv"
 	"strings"
+	"syscall"
 	"testing"
 
 	"corvane/internal/domain"
@@ -291,4 +298,134 @@ func TestHeavyPoolFull(t *testing.T) {
 		t.Errorf("the request holding the slot: status %d", code)
 	}
 	f.must(200, f.site, "GET", base+"/statistics", nil, nil)
+}
+
+// fullFile is an upload file on a full disk: every write fails with ENOSPC.
+type fullFile struct{ name string }
+
+func (f fullFile) Read([]byte) (int, error)       { return 0, io.EOF }
+func (f fullFile) Write([]byte) (int, error)      { return 0, &os.PathError{Op: "write", Path: f.name, Err: syscall.ENOSPC} }
+func (f fullFile) Seek(int64, int) (int64, error) { return 0, nil }
+func (f fullFile) Close() error                   { return nil }
+func (f fullFile) Name() string                   { return f.name }
+
+// longHole is a hole name of 60 characters, so that a large runs file needs
+// fewer rows.
+var longHole = "LH" + strings.Repeat("0", 58)
+
+// bigCSV is a runs file of hole of about n bytes (larger than the in-memory
+// part of an upload, so that it goes to a temp file), its runs short enough
+// to stay inside a 400 m hole.
+func bigCSV(hole string, n int) string {
+	var b strings.Builder
+	b.WriteString("hole_id,from,to,confidence\n")
+	for i := 0; b.Len() < n; i++ {
+		fmt.Fprintf(&b, "%s,%.3f,%.4f,good\n", hole, float64(i)*0.003, float64(i)*0.003+0.002)
+	}
+	return b.String()
+}
+
+// A full or unusable temp dir answers 507 or 503 with Retry-After, never
+// naming a server path; today it is a 400 naming the temp file. Issue item
+// 13.
+func TestUploadTempDirFull(t *testing.T) {
+	dir := t.TempDir()
+	f := newFixture(t, func(o *Options) { o.TempDir = dir })
+	pid := f.project("Temp", nil)
+	f.hole(pid, longHole, 90, -60)
+	path := "/v1/projects/" + itoa(pid) + "/imports/runs"
+	csv := bigCSV(longHole, spoolMemory+1<<20)
+
+	f.srv.createTemp = func(dir string) (spoolFile, error) {
+		return fullFile{name: filepath.Join(dir, spoolPrefix+"full.csv")}, nil
+	}
+	r := f.do(f.site, "POST", path, csv)
+	if r.Code != 507 || r.Header.Get("Retry-After") == "" {
+		t.Errorf("temp dir full: status %d, Retry-After %q; want 507 with Retry-After: %s", r.Code, r.Header.Get("Retry-After"), r.Body)
+	}
+	if strings.Contains(string(r.Body), dir) || strings.Contains(string(r.Body), spoolPrefix) {
+		t.Errorf("the problem names a server path: %s", r.Body)
+	}
+
+	f.srv.createTemp = createSpoolFile
+	f.srv.opt.TempDir = filepath.Join(dir, "gone")
+	r = f.do(f.site, "POST", path, csv)
+	if r.Code != 503 || r.Header.Get("Retry-After") == "" {
+		t.Errorf("temp dir missing: status %d; want 503 with Retry-After: %s", r.Code, r.Body)
+	}
+	if strings.Contains(string(r.Body), dir) {
+		t.Errorf("the problem names a server path: %s", r.Body)
+	}
+}
+
+// cutReader gives n bytes of r and then fails, like a client that goes away
+// part-way through an upload.
+type cutReader struct {
+	r io.Reader
+	n int
+}
+
+func (c *cutReader) Read(p []byte) (int, error) {
+	if c.n <= 0 {
+		return 0, errors.New("connection reset by peer")
+	}
+	if len(p) > c.n {
+		p = p[:c.n]
+	}
+	n, err := c.r.Read(p)
+	c.n -= n
+	return n, err
+}
+
+// Temp uploads are removed on every way out of a request (imported, refused
+// by the service, cut off by the client), and at start for the files of a
+// process that is gone (killed with -9 part-way through an upload).
+func TestUploadTempFilesCleaned(t *testing.T) {
+	dir := t.TempDir()
+	// Left by a process that no longer runs, by this one, and something else.
+	cmd := exec.Command(os.Args[0], "-test.run=^$")
+	if err := cmd.Run(); err != nil {
+		t.Fatal(err)
+	}
+	dead := filepath.Join(dir, spoolPrefix+strconv.Itoa(cmd.Process.Pid)+"-123.csv")
+	mine := filepath.Join(dir, spoolPrefix+strconv.Itoa(os.Getpid())+"-456.csv")
+	other := filepath.Join(dir, "notes.txt")
+	for _, p := range []string{dead, mine, other} {
+		if err := os.WriteFile(p, []byte("x"), 0o600); err != nil {
+			t.Fatal(err)
+		}
+	}
+	f := newFixture(t, func(o *Options) { o.TempDir = dir })
+	if _, err := os.Stat(dead); !os.IsNotExist(err) {
+		t.Errorf("the upload of a stopped process is still there: %v", err)
+	}
+	for _, p := range []string{mine, other} {
+		if _, err := os.Stat(p); err != nil {
+			t.Errorf("%s removed: %v", filepath.Base(p), err)
+		}
+		os.Remove(p)
+	}
+
+	pid := f.project("Clean", nil)
+	f.hole(pid, longHole, 90, -60)
+	path := "/v1/projects/" + itoa(pid) + "/imports/runs"
+	left := func(when string) {
+		t.Helper()
+		ents, _ := os.ReadDir(dir)
+		for _, e := range ents {
+			t.Errorf("%s: %s left in the temp dir", when, e.Name())
+		}
+	}
+	good := bigCSV(longHole, spoolMemory+1<<20)
+	f.must(201, f.site, "POST", path, good, nil)
+	left("after an import")
+	if r := f.do(f.site, "POST", path, bigCSV("NOSUCH"+longHole[6:], spoolMemory+1<<20)); r.Code != 422 {
+		t.Errorf("import of an unknown hole: status %d, want 422", r.Code)
+	}
+	left("after a refused import")
+	code, _ := f.send(f.site, "POST", path, "text/csv", &cutReader{r: strings.NewReader(good), n: spoolMemory + 1<<19}, int64(len(good)))
+	if code != 400 {
+		t.Errorf("upload cut off: status %d, want 400", code)
+	}
+	left("after an upload cut off")
 }

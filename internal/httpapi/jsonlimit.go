@@ -27,7 +27,7 @@ const (
 
 // errTooManyElements is the problem of a body over its element limit.
 func errTooManyElements(limit int) error {
-	return &edgeError{413, "too-large", "request body has more than " + strconv.Itoa(limit) + " array elements"}
+	return &edgeError{413, "too-large", "request body has more than " + strconv.Itoa(limit) + " array elements", nil}
 }
 
 // elementCounter passes a JSON text through and fails the read, with

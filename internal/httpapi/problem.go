@@ -57,30 +57,36 @@ type edgeError struct {
 	status int
 	slug   string
 	msg    string
+	cause  error // for the log only; the client sees msg
 }
 
-func (e *edgeError) Error() string { return e.msg }
+func (e *edgeError) Error() string {
+	if e.cause != nil {
+		return e.msg + ": " + e.cause.Error()
+	}
+	return e.msg
+}
 
-func errBadRequest(msg string) error { return &edgeError{http.StatusBadRequest, "bad-request", msg} }
+func errBadRequest(msg string) error { return &edgeError{http.StatusBadRequest, "bad-request", msg, nil} }
 func errTooLarge(limit int64) error {
 	return &edgeError{http.StatusRequestEntityTooLarge, "too-large",
-		"request body larger than the limit of " + strconv.FormatInt(limit, 10) + " bytes"}
+		"request body larger than the limit of " + strconv.FormatInt(limit, 10) + " bytes", nil}
 }
 func errPreconditionRequired() error {
 	return &edgeError{http.StatusPreconditionRequired, "precondition-required",
-		`If-Match header required: send the ETag from your last read of this resource (e.g. If-Match: "3")`}
+		`If-Match header required: send the ETag from your last read of this resource (e.g. If-Match: "3")`, nil}
 }
 func errUnsupportedMedia(want string) error {
-	return &edgeError{http.StatusUnsupportedMediaType, "unsupported-media-type", "Content-Type must be " + want}
+	return &edgeError{http.StatusUnsupportedMediaType, "unsupported-media-type", "Content-Type must be " + want, nil}
 }
 func errNotAcceptable(msg string) error {
-	return &edgeError{http.StatusNotAcceptable, "not-acceptable", msg}
+	return &edgeError{http.StatusNotAcceptable, "not-acceptable", msg, nil}
 }
 func errNoRoute(method, path string) error {
-	return &edgeError{http.StatusNotFound, "not-found", "no route for " + method + " " + path}
+	return &edgeError{http.StatusNotFound, "not-found", "no route for " + method + " " + path, nil}
 }
 func errMethod(method, path string) error {
-	return &edgeError{http.StatusMethodNotAllowed, "method-not-allowed", "method " + method + " not allowed on " + path}
+	return &edgeError{http.StatusMethodNotAllowed, "method-not-allowed", "method " + method + " not allowed on " + path, nil}
 }
 
 // problemFor builds the problem document for err.

@@ -11,6 +11,7 @@ import (
 	"context"
 	"log/slog"
 	"net/http"
+	"os"
 	"runtime"
 	"time"
 
@@ -36,6 +37,10 @@ type Options struct {
 	// MaxHeavy bounds the expensive requests served at once (see
 	// config.Config.MaxHeavy); 0 means twice the CPUs.
 	MaxHeavy int
+	// TempDir holds uploads too large to keep in memory while they are
+	// read; "" means os.TempDir(). New removes the upload files that
+	// processes no longer running left there.
+	TempDir string
 	// Web, when set, serves every path outside /v1, /healthz, /readyz and
 	// /metrics (the web page assets). Nil answers those paths with 404.
 	Web http.Handler
@@ -51,6 +56,8 @@ type Server struct {
 	metrics *metrics
 	log     *slog.Logger
 	slots   chan struct{} // one token per expensive request running
+	// createTemp makes an upload file in a directory (tests replace it).
+	createTemp func(dir string) (spoolFile, error)
 }
 
 // New builds the server and its route table.
@@ -74,6 +81,9 @@ func New(opt Options) *Server {
 	if opt.MaxHeavy <= 0 {
 		opt.MaxHeavy = 2 * runtime.GOMAXPROCS(0)
 	}
+	if opt.TempDir == "" {
+		opt.TempDir = os.TempDir()
+	}
 	if opt.Registry == nil {
 		opt.Registry = prometheus.NewRegistry()
 	}
@@ -87,7 +97,12 @@ func New(opt Options) *Server {
 	// trusted, since anyone can send it.
 	_ = e.SetTrustedProxies(nil)
 	s := &Server{opt: opt, engine: e, metrics: newMetrics(opt.Registry), log: opt.Logger,
-		slots: make(chan struct{}, opt.MaxHeavy)}
+		slots: make(chan struct{}, opt.MaxHeavy), createTemp: createSpoolFile}
+	if n, err := cleanSpool(opt.TempDir); err != nil {
+		s.log.Warn("temp dir for uploads not readable", "error", err)
+	} else if n > 0 {
+		s.log.Info("removed uploads left by stopped processes", "files", n)
+	}
 	e.Use(requestID, s.metrics.middleware, accessLog(s.log), recoverer, checkQuery)
 	s.routes()
 	return s
