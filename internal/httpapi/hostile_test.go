@@ -303,8 +303,10 @@ func TestHeavyPoolFull(t *testing.T) {
 // fullFile is an upload file on a full disk: every write fails with ENOSPC.
 type fullFile struct{ name string }
 
-func (f fullFile) Read([]byte) (int, error)       { return 0, io.EOF }
-func (f fullFile) Write([]byte) (int, error)      { return 0, &os.PathError{Op: "write", Path: f.name, Err: syscall.ENOSPC} }
+func (f fullFile) Read([]byte) (int, error) { return 0, io.EOF }
+func (f fullFile) Write([]byte) (int, error) {
+	return 0, &os.PathError{Op: "write", Path: f.name, Err: syscall.ENOSPC}
+}
 func (f fullFile) Seek(int64, int) (int64, error) { return 0, nil }
 func (f fullFile) Close() error                   { return nil }
 func (f fullFile) Name() string                   { return f.name }

@@ -67,7 +67,9 @@ func (e *edgeError) Error() string {
 	return e.msg
 }
 
-func errBadRequest(msg string) error { return &edgeError{http.StatusBadRequest, "bad-request", msg, nil} }
+func errBadRequest(msg string) error {
+	return &edgeError{http.StatusBadRequest, "bad-request", msg, nil}
+}
 func errTooLarge(limit int64) error {
 	return &edgeError{http.StatusRequestEntityTooLarge, "too-large",
 		"request body larger than the limit of " + strconv.FormatInt(limit, 10) + " bytes", nil}
