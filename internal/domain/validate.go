@@ -7,6 +7,8 @@ import (
 	"strconv"
 	"strings"
 	"time"
+	"unicode"
+	"unicode/utf8"
 )
 
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
@@ -54,6 +56,70 @@ func CheckDate(field, s string) *Error {
 	return nil
 }
 
+// Text limits, in characters, of every free-text field. Text must be valid
+// UTF-8 without NUL or other control characters; tab is allowed in comments
+// and descriptions only. See [CheckText].
+const (
+	MaxNameLen        = 200  // project name, token name
+	MaxHoleNameLen    = 64   // hole name (the hole id of the files)
+	MaxDescriptionLen = 2000 // project and type code descriptions
+	MaxCommentLen     = 2000 // run and measurement comments
+	MaxLoggedByLen    = 100  // a measurement's logged_by
+	MaxCRSLen         = 100  // a collar's coordinate system label
+	MaxFileNameLen    = 200  // the file name an import is recorded under
+	MaxKeyLen         = 200  // an idempotency key
+)
+
+// CheckText is THE rule for text: s must be valid UTF-8 of at most max
+// characters without NUL or control characters (tab allowed when allowTab:
+// comments and descriptions). The error is Invalid and names field; it never
+// repeats the text itself.
+func CheckText(field, s string, max int, allowTab bool) *Error {
+	if !utf8.ValidString(s) {
+		for i := 0; i < len(s); {
+			r, n := utf8.DecodeRuneInString(s[i:])
+			if r == utf8.RuneError && n <= 1 {
+				return FieldErr(field, "%s is not valid UTF-8 (byte %d)", field, i+1)
+			}
+			i += n
+		}
+	}
+	chars := 0
+	for _, r := range s {
+		chars++
+		if r == '\t' && allowTab {
+			continue
+		}
+		if r == 0 {
+			return FieldErr(field, "%s contains a NUL character (character %d)", field, chars)
+		}
+		if unicode.IsControl(r) {
+			return FieldErr(field, "%s contains the control character U+%04X (character %d)", field, r, chars)
+		}
+	}
+	if chars > max {
+		return FieldErr(field, "%s must be at most %d characters, got %d", field, max, chars)
+	}
+	return nil
+}
+
+// checkTexts returns the first error of CheckText over the fields.
+func checkTexts(fs ...textField) *Error {
+	for _, f := range fs {
+		if e := CheckText(f.name, f.v, f.max, f.tab); e != nil {
+			return e
+		}
+	}
+	return nil
+}
+
+type textField struct {
+	name string
+	v    string
+	max  int
+	tab  bool
+}
+
 var codeRe = regexp.MustCompile(`^[A-Za-z0-9_.\-]{1,32}$`)
 
 // Normalize fills p's empty conventions with the defaults (bottom, downhole,
@@ -70,9 +136,11 @@ func (p *Project) Normalize() error {
 	def(&p.GammaSense, GammaClockwise)
 	def(&p.LengthUnit, UnitMetre)
 	def(&p.OutputAzimuthRef, AzimuthGrid)
-	switch {
-	case p.Name == "" || len(p.Name) > 200:
-		return FieldErr("name", "name must be 1 to 200 characters")
+	if p.Name == "" {
+		return FieldErr("name", "name must be 1 to %d characters", MaxNameLen)
+	}
+	if e := checkTexts(textField{"name", p.Name, MaxNameLen, false}, textField{"description", p.Description, MaxDescriptionLen, true}); e != nil {
+		return e
 	}
 	for _, e := range []*Error{
 		checkOneOf("ref_line", p.RefLine, RefLineBottom, RefLineTop),
@@ -96,6 +164,9 @@ func (tc *TypeCode) Normalize() error {
 	if !codeRe.MatchString(tc.Code) {
 		return FieldErr("code", "code must be 1 to 32 letters, digits or _ . -, got %q", tc.Code)
 	}
+	if e := CheckText("description", tc.Description, MaxDescriptionLen, true); e != nil {
+		return e
+	}
 	if tc.Kind == "" {
 		tc.Kind = "plane"
 	}
@@ -108,8 +179,11 @@ func (tc *TypeCode) Normalize() error {
 // Normalize validates h and folds azimuth 360 to 0.
 func (h *Hole) Normalize() error {
 	h.Name = strings.TrimSpace(h.Name)
-	if h.Name == "" || len(h.Name) > 64 {
-		return FieldErr("name", "hole name must be 1 to 64 characters, got %q", h.Name)
+	if h.Name == "" {
+		return FieldErr("name", "hole name must be 1 to %d characters", MaxHoleNameLen)
+	}
+	if e := checkTexts(textField{"name", h.Name, MaxHoleNameLen, false}, textField{"crs", h.CRS, MaxCRSLen, false}); e != nil {
+		return e
 	}
 	if h.AzimuthRef == "" {
 		h.AzimuthRef = AzimuthGrid
@@ -188,6 +262,9 @@ func (r *Run) Normalize() error {
 			return e
 		}
 	}
+	if e := CheckText("comment", r.Comment, MaxCommentLen, true); e != nil {
+		return e
+	}
 	if r.To <= r.From {
 		return FieldErr("to", "to (%v) must be greater than from (%v)", r.To, r.From)
 	}
@@ -225,8 +302,8 @@ func (m *Measurement) Normalize() error {
 			return e
 		}
 	}
-	if len(m.Comment) > 2000 {
-		return FieldErr("comment", "comment is longer than 2000 characters")
+	if e := checkTexts(textField{"comment", m.Comment, MaxCommentLen, true}, textField{"logged_by", m.LoggedBy, MaxLoggedByLen, false}); e != nil {
+		return e // not the typed nil of a *Error
 	}
 	return nil
 }

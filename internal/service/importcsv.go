@@ -90,6 +90,12 @@ func (s *Service) Import(ctx context.Context, projectID int64, req ImportRequest
 	if err != nil {
 		return res, err
 	}
+	if err := domain.CheckText("file", res.File, domain.MaxFileNameLen, false); err != nil {
+		return res, err
+	}
+	if err := domain.CheckText("idempotency_key", req.IdempotencyKey, domain.MaxKeyLen, false); err != nil {
+		return res, err
+	}
 	p, a, err := s.project(ctx, s.store, projectID, role)
 	if err != nil {
 		return res, err
@@ -102,9 +108,6 @@ func (s *Service) Import(ctx context.Context, projectID int64, req ImportRequest
 	body := io.TeeReader(req.Body, h)
 	key := req.IdempotencyKey
 	if key != "" && !req.DryRun {
-		if len(key) > 200 {
-			return res, domain.FieldErr("idempotency_key", "idempotency key is longer than 200 characters")
-		}
 		if prev, err := s.store.GetIdempotency(ctx, projectID, key); err == nil {
 			if _, err := io.Copy(io.Discard, body); err != nil {
 				return res, domain.Errorf(domain.Invalid, "%s: reading the body: %w", res.File, err)

@@ -37,6 +37,10 @@ func TestOnPostgres(t *testing.T) {
 		s, ctx := open(t)
 		checkNoNegativeZero(t, s, ctx)
 	})
+	t.Run("TextRules", func(t *testing.T) {
+		s, ctx := open(t)
+		checkTextRules(t, s, ctx)
+	})
 	t.Run("Demo", func(t *testing.T) {
 		s, ctx := open(t)
 		checkDemo(t, s, ctx, true)

@@ -41,8 +41,8 @@ func (s *Service) CreateToken(ctx context.Context, projectID int64, role domain.
 	if name == "" {
 		name = string(role) + " token"
 	}
-	if len(name) > 200 {
-		return "", domain.Token{}, domain.FieldErr("name", "name is longer than 200 characters")
+	if err := domain.CheckText("name", name, domain.MaxNameLen, false); err != nil {
+		return "", domain.Token{}, err
 	}
 	var raw [32]byte
 	if _, err := rand.Read(raw[:]); err != nil {

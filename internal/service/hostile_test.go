@@ -1,0 +1,134 @@
+package service_test
+
+import (
+	"context"
+	"errors"
+	"strings"
+	"testing"
+
+	"corvane/internal/domain"
+	"corvane/internal/service"
+)
+
+func TestTextRules(t *testing.T) {
+	s, ctx := newService(t)
+	checkTextRules(t, s, ctx)
+}
+
+// wantField fails unless err is Invalid and names field.
+func wantField(t testing.TB, err error, field, what string) {
+	t.Helper()
+	var e *domain.Error
+	if !errors.As(err, &e) || e.Kind != domain.Invalid {
+		t.Errorf("%s: error %v, want Invalid naming %s", what, err, field)
+		return
+	}
+	named := e.Loc.Field == field || e.Loc.Column == field
+	for _, p := range e.Problems {
+		named = named || p.Loc.Field == field || p.Loc.Column == field
+	}
+	if !named {
+		t.Errorf("%s: error %v does not name %s", what, err, field)
+	}
+}
+
+// checkTextRules: text is valid UTF-8 without NUL or control characters
+// (tab allowed in comments and descriptions), within its documented length;
+// a breach is Invalid naming the field and stores nothing, on every store and
+// at every door (the use cases and the CSV import). Issue item 6.
+func checkTextRules(t *testing.T, s *service.Service, ctx context.Context) {
+	huge := strings.Repeat("x", 900_000)
+	esc := "TM\x1b[31m9"
+	_, err := s.CreateProject(ctx, domain.Project{Name: "text", Description: "a\x00b"})
+	wantField(t, err, "description", "project description with NUL")
+	_, err = s.CreateProject(ctx, domain.Project{Name: "text", Description: huge})
+	wantField(t, err, "description", "project description of 900 kB")
+	_, err = s.CreateProject(ctx, domain.Project{Name: "bad\xffname"})
+	wantField(t, err, "name", "project name not UTF-8")
+	if l := must(s.ListProjects(ctx, domain.Page{})); len(l.Items) != 0 {
+		t.Fatalf("refused projects stored: %+v", l.Items)
+	}
+	p := must(s.CreateProject(ctx, domain.Project{Name: "text", Description: "tab\tallowed"}))
+	_, err = s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "BD", Description: "bed\x00ding"})
+	wantField(t, err, "description", "type description with NUL")
+	must(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "BD", Description: "bedding"}))
+
+	hole := func(name, crs string) domain.Hole {
+		return domain.Hole{Name: name, Azimuth: 90, Dip: -60, FinalDepth: 100, CRS: crs}
+	}
+	for _, tc := range []struct {
+		h     domain.Hole
+		field string
+	}{
+		{hole(esc, ""), "name"},
+		{hole("TM\n9", ""), "name"},
+		{hole("TM\t9", ""), "name"},
+		{hole("TM9", huge), "crs"},
+		{hole("TM9", "EPSG:\x0032750"), "crs"},
+	} {
+		_, err := s.CreateHole(ctx, p.ID, tc.h)
+		wantField(t, err, tc.field, "hole "+strings.ToValidUTF8(tc.h.Name, "?"))
+	}
+	if l := must(s.ListHoles(ctx, p.ID, domain.Page{})); len(l.Items) != 0 {
+		t.Fatalf("refused holes stored: %+v", l.Items)
+	}
+	h := must(s.CreateHole(ctx, p.ID, hole("TM1", "EPSG:32750")))
+	_, err = s.CreateRun(ctx, p.ID, h.ID, domain.Run{From: 0, To: 3, Comment: "a\x00b"})
+	wantField(t, err, "comment", "run comment with NUL")
+	must(s.CreateRun(ctx, p.ID, h.ID, domain.Run{From: 0, To: 3, Comment: "tab\tkept"}))
+
+	meas := func(comment, by string) domain.Measurement {
+		return domain.Measurement{HoleID: h.ID, Depth: 1, Alpha: 30, Beta: 40, TypeCode: "BD", Comment: comment, LoggedBy: by}
+	}
+	for _, tc := range []struct {
+		m     domain.Measurement
+		field string
+	}{
+		{meas("", huge), "logged_by"},
+		{meas("", "ana\x1b"), "logged_by"},
+		{meas("bad \xff\xfe", ""), "comment"},
+		{meas("nul \x00", ""), "comment"},
+		{meas("line\nbreak", ""), "comment"},
+		{meas(strings.Repeat("é", domain.MaxCommentLen+1), ""), "comment"},
+	} {
+		_, err := s.CreateMeasurement(ctx, p.ID, tc.m)
+		wantField(t, err, tc.field, "measurement")
+	}
+	// The limit counts characters, not bytes.
+	must(s.CreateMeasurement(ctx, p.ID, meas(strings.Repeat("é", domain.MaxCommentLen), "ana")))
+	must(s.CreateMeasurement(ctx, p.ID, meas("tab\tin a comment", "ana")))
+
+	// The CSV door: the same rule, located by line and column; nothing stored.
+	csv := "hole_id,depth,alpha,beta,type,comment,logged_by\n" +
+		"TM1,2,30,40,BD,fine,ana\n" +
+		"TM1,3,30,40,BD,nul \x00 here,ana\n" +
+		"TM1,4,30,40,BD,ok,esc\x1b\n" +
+		"TM1,5,30,40,BD,\xff\xfe,ana\n"
+	_, err = doImport(t, s, ctx, p.ID, "measurements", csv, false, "")
+	var e *domain.Error
+	if !errors.As(err, &e) || e.Kind != domain.Invalid || len(e.Problems) != 3 {
+		t.Errorf("CSV with bad text: %v, want Invalid with 3 row problems", err)
+	} else {
+		for i, want := range []struct {
+			line int
+			col  string
+		}{{3, "comment"}, {4, "logged_by"}, {5, "comment"}} {
+			if got := e.Problems[i].Loc; got.Line != want.line || got.Column != want.col {
+				t.Errorf("CSV problem %d at %+v, want line %d column %s", i, got, want.line, want.col)
+			}
+		}
+	}
+	_, err = s.Import(ctx, p.ID, service.ImportRequest{Kind: "runs", File: "runs\x1b.csv", Body: strings.NewReader("hole_id,from,to,confidence\nTM1,3,4,good\n")})
+	wantField(t, err, "file", "import file name with ESC")
+	_, err = s.Import(ctx, p.ID, service.ImportRequest{Kind: "runs", IdempotencyKey: "k\x00", Body: strings.NewReader("hole_id,from,to,confidence\nTM1,3,4,good\n")})
+	wantField(t, err, "idempotency_key", "idempotency key with NUL")
+	l := must(s.ListMeasurements(ctx, p.ID, service.MeasurementQuery{}, domain.Page{}))
+	if len(l.Items) != 2 {
+		t.Errorf("%d measurements stored, want the 2 good ones", len(l.Items))
+	}
+	if rs := must(s.ListRuns(ctx, p.ID, h.ID)); len(rs) != 1 {
+		t.Errorf("%d runs stored, want 1", len(rs))
+	}
+	_, _, err = s.CreateToken(ctx, p.ID, domain.RoleRead, "reader\x1b[0m")
+	wantField(t, err, "name", "token name with ESC")
+}
