@@ -67,6 +67,9 @@ func (s *Service) UpdateHole(ctx context.Context, projectID, holeID, ifVersion i
 		if err != nil {
 			return err
 		}
+		if err := checkFinalDepth(ctx, st, before, h.FinalDepth); err != nil {
+			return err
+		}
 		h.CreatedAt = before.CreatedAt
 		if err := st.UpdateHole(ctx, &h, ifVersion); err != nil {
 			if domain.IsKind(err, domain.Conflict) {
@@ -146,7 +149,11 @@ func (s *Service) CreateRun(ctx context.Context, projectID, holeID int64, r doma
 		if err != nil {
 			return err
 		}
-		if _, err := hole(ctx, st, projectID, holeID); err != nil {
+		h, err := hole(ctx, st, projectID, holeID)
+		if err != nil {
+			return err
+		}
+		if err := checkRunInHole(r, h); err != nil {
 			return err
 		}
 		if err := st.CreateRun(ctx, &r); err != nil {
@@ -201,6 +208,13 @@ func (s *Service) UpdateRun(ctx context.Context, projectID, runID, ifVersion int
 		}
 		r.ID, r.HoleID, r.CreatedAt = runID, before.HoleID, before.CreatedAt
 		if err := r.Normalize(); err != nil {
+			return err
+		}
+		h, err := st.GetHole(ctx, before.HoleID)
+		if err != nil {
+			return err
+		}
+		if err := checkRunInHole(r, h); err != nil {
 			return err
 		}
 		if err := st.UpdateRun(ctx, &r, ifVersion); err != nil {

@@ -3,6 +3,7 @@ package service_test
 import (
 	"context"
 	"errors"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -132,3 +133,76 @@ func checkTextRules(t *testing.T, s *service.Service, ctx context.Context) {
 	_, _, err = s.CreateToken(ctx, p.ID, domain.RoleRead, "reader\x1b[0m")
 	wantField(t, err, "name", "token name with ESC")
 }
+
+func TestDepthRules(t *testing.T) {
+	s, ctx := newService(t)
+	checkDepthRules(t, s, ctx)
+}
+
+// checkDepthRules: a hole's final depth cannot shrink above its survey
+// stations, runs or measurements (Conflict listing what is deeper, nothing
+// changed), and a run cannot pass its hole's end (Invalid naming "to"), at
+// every door: the use cases and the CSV imports. Issue item 7.
+func checkDepthRules(t *testing.T, s *service.Service, ctx context.Context) {
+	p := must(s.CreateProject(ctx, domain.Project{Name: "depths"}))
+	must(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "BD"}))
+	h := must(s.CreateHole(ctx, p.ID, domain.Hole{Name: "DH1", Azimuth: 90, Dip: -60, FinalDepth: 200}))
+	must(s.PutSurvey(ctx, p.ID, h.ID, 0, domain.SurveySet{AzimuthRef: "grid", Stations: []domain.Station{{Depth: 0, Azimuth: 90, Dip: -60}, {Depth: 90, Azimuth: 91, Dip: -59}}}))
+	r := must(s.CreateRun(ctx, p.ID, h.ID, domain.Run{From: 100, To: 150}))
+	m := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 180, Alpha: 30, Beta: 40, TypeCode: "BD"}))
+
+	shrink := h
+	shrink.FinalDepth = 80
+	_, err := s.UpdateHole(ctx, p.ID, h.ID, h.Version, shrink)
+	var e *domain.Error
+	if !errors.As(err, &e) || e.Kind != domain.Conflict {
+		t.Fatalf("shrinking the hole below its data: %v, want Conflict", err)
+	}
+	for _, want := range []string{"survey station at 90", "run " + itoa(r.ID) + " (100-150)", "measurement " + itoa(m.ID) + " at 180"} {
+		if !strings.Contains(e.Msg, want) {
+			t.Errorf("conflict %q does not list %q", e.Msg, want)
+		}
+	}
+	if len(e.Problems) != 3 || e.Loc.Field != "final_depth" {
+		t.Errorf("conflict lists %d rows at %+v, want 3 at final_depth", len(e.Problems), e.Loc)
+	}
+	shrink.FinalDepth = 170
+	_, err = s.UpdateHole(ctx, p.ID, h.ID, h.Version, shrink)
+	if !errors.As(err, &e) || e.Kind != domain.Conflict || len(e.Problems) != 1 || !strings.Contains(e.Msg, "measurement") {
+		t.Errorf("shrinking above one measurement: %v", err)
+	}
+	if got := must(s.GetHole(ctx, p.ID, h.ID)); got.FinalDepth != 200 || got.Version != h.Version {
+		t.Errorf("refused shrink changed the hole: %+v", got)
+	}
+	// Down to the deepest datum is fine.
+	shrink.FinalDepth = 180
+	h = must(s.UpdateHole(ctx, p.ID, h.ID, h.Version, shrink))
+
+	// The collar import keeps the same rule, located at its row.
+	_, err = doImport(t, s, ctx, p.ID, "collars", "hole_id,easting,northing,elevation,azimuth,dip,depth\nDH1,0,0,0,90,-60,120\n", false, "")
+	if !errors.As(err, &e) || e.Kind != domain.Invalid || len(e.Problems) != 1 || e.Problems[0].Loc.Line != 2 || e.Problems[0].Loc.Column != "depth" ||
+		!strings.Contains(e.Problems[0].Msg, "measurement "+itoa(m.ID)) {
+		t.Errorf("collar import shrinking the hole: %v", err)
+	}
+	if got := must(s.GetHole(ctx, p.ID, h.ID)); got.FinalDepth != 180 {
+		t.Errorf("refused import changed the hole: %+v", got)
+	}
+
+	// A run cannot pass the hole's end: created, edited or imported.
+	_, err = s.CreateRun(ctx, p.ID, h.ID, domain.Run{From: 170, To: 181})
+	wantField(t, err, "to", "run past the end")
+	r2 := r
+	r2.To = 200
+	_, err = s.UpdateRun(ctx, p.ID, r.ID, r.Version, r2)
+	wantField(t, err, "to", "run edited past the end")
+	_, err = doImport(t, s, ctx, p.ID, "runs", "hole_id,from,to,confidence\nDH1,150,160,good\nDH1,160,190,good\n", false, "")
+	if !errors.As(err, &e) || e.Kind != domain.Invalid || len(e.Problems) != 1 || e.Problems[0].Loc.Line != 3 || e.Problems[0].Loc.Column != "to" {
+		t.Errorf("run import past the end: %v", err)
+	}
+	if rs := must(s.ListRuns(ctx, p.ID, h.ID)); len(rs) != 1 || rs[0].To != 150 {
+		t.Errorf("refused runs stored: %+v", rs)
+	}
+	must(s.CreateRun(ctx, p.ID, h.ID, domain.Run{From: 170, To: 180}))
+}
+
+func itoa(n int64) string { return strconv.FormatInt(n, 10) }

@@ -244,6 +244,13 @@ func importCollars(ctx context.Context, st domain.Store, p domain.Project, body 
 		old, err := st.GetHoleByName(ctx, p.ID, h.Name)
 		switch {
 		case err == nil:
+			if err := checkFinalDepth(ctx, st, old, h.FinalDepth); err != nil {
+				if !domain.IsKind(err, domain.Conflict) {
+					return err
+				}
+				ps.add(r.Line, csvio.ColDepth, "%s", msgOf(err))
+				continue
+			}
 			h.ID, h.Started, h.Finished = old.ID, old.Started, old.Finished
 			if err := st.UpdateHole(ctx, &h, old.Version); err != nil {
 				return err
@@ -362,6 +369,10 @@ func importRuns(ctx context.Context, st domain.Store, p domain.Project, body io.
 			var e *domain.Error
 			errors.As(err, &e)
 			ps.add(r.Line, e.Loc.Field, "%s", e.Msg)
+			continue
+		}
+		if err := checkRunInHole(run, h); err != nil {
+			ps.add(r.Line, csvio.ColTo, "%s", msgOf(err))
 			continue
 		}
 		if ps.n > 0 {

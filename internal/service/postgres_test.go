@@ -41,6 +41,10 @@ func TestOnPostgres(t *testing.T) {
 		s, ctx := open(t)
 		checkTextRules(t, s, ctx)
 	})
+	t.Run("DepthRules", func(t *testing.T) {
+		s, ctx := open(t)
+		checkDepthRules(t, s, ctx)
+	})
 	t.Run("Demo", func(t *testing.T) {
 		s, ctx := open(t)
 		checkDemo(t, s, ctx, true)
