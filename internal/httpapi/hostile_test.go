@@ -431,3 +431,31 @@ func TestUploadTempFilesCleaned(t *testing.T) {
 	}
 	left("after an upload cut off")
 }
+
+// Through HTTP: bad text is 422 naming the field, a hole shrunk above its
+// data is 409 listing what is deeper.
+func TestTextAndDepthRulesOverHTTP(t *testing.T) {
+	f := newFixture(t)
+	pid := f.project("Rules", nil)
+	base := "/v1/projects/" + itoa(pid)
+	r := f.must(422, f.site, "POST", base+"/holes", map[string]any{"name": "TM\u001b[31m1", "azimuth": 0, "dip": -60, "final_depth": 100}, nil)
+	if p := r.problem(t); len(p.Errors) != 1 || p.Errors[0].Field != "name" {
+		t.Errorf("hole name with ESC: %+v", p)
+	}
+	r = f.must(422, f.site, "PUT", base+"/types/BD", map[string]any{"description": "a\u0000b"}, nil)
+	if p := r.problem(t); len(p.Errors) != 1 || p.Errors[0].Field != "description" {
+		t.Errorf("description with NUL: %+v", p)
+	}
+	h := f.hole(pid, "TM001", 90, -60)
+	var m view
+	f.must(201, f.site, "POST", base+"/measurements", map[string]any{"hole_id": h.ID, "depth": 300, "alpha": 30, "beta": 20, "type": "JN"}, &m)
+	r = f.must(422, f.site, "POST", base+"/holes/"+itoa(h.ID)+"/runs", map[string]any{"from": 390, "to": 401}, nil)
+	if p := r.problem(t); len(p.Errors) != 1 || p.Errors[0].Field != "to" {
+		t.Errorf("run past the end: %+v", p)
+	}
+	in := map[string]any{"name": "TM001", "easting": 1000, "northing": 2000, "elevation": 300, "azimuth": 90, "dip": -60, "final_depth": 250, "crs": "EPSG:32750"}
+	r = f.must(409, f.site, "PUT", base+"/holes/"+itoa(h.ID), in, nil, "If-Match", etag(h.Version))
+	if p := r.problem(t); len(p.Errors) != 1 || !strings.Contains(p.Errors[0].Detail, "measurement "+itoa(m.ID)+" at 300") {
+		t.Errorf("shrink below a measurement: %+v", p)
+	}
+}

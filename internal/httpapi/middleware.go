@@ -44,8 +44,13 @@ func printable(s string) bool {
 // checkQuery refuses a query string the standard parser would read only in
 // part: a ";" between parameters (Go's parser drops such a pair silently, so
 // "min_depth=249;x=1" would run without its filter) or a malformed percent
-// escape. A literal ";" in a value is sent as %3B.
+// escape. A literal ";" in a value is sent as %3B. Only the API (/v1) reads
+// parameters, so only its paths are checked.
 func checkQuery(c *gin.Context) {
+	if p := c.Request.URL.Path; p != "/v1" && !hasPrefix(p, "/v1/") {
+		c.Next() // health, metrics and the page read no parameters
+		return
+	}
 	raw := c.Request.URL.RawQuery
 	if i := strings.IndexByte(raw, ';'); i >= 0 {
 		fail(c, errBadRequest(fmt.Sprintf(`query string: ";" at byte %d: separate parameters with "&" (send a literal ";" as %%3B)`, i+1)))
