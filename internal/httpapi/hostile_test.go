@@ -103,9 +103,7 @@ func (f *fixture) send(token, method, path, ct string, body io.Reader, size int6
 func manyEmptyObjects(field string, n int) []byte {
 	var b bytes.Buffer
 	b.WriteString(`{"` + field + `":[{}`)
-	for b.Len() < n {
-		b.WriteString(",{}")
-	}
+	b.Write(bytes.Repeat([]byte(",{}"), n/3))
 	b.WriteString("]}")
 	return b.Bytes()
 }
@@ -141,7 +139,7 @@ func TestAuthBeforeBody(t *testing.T) {
 		{"collar import without token", "", "POST", base + "/imports/collars", "text/csv", []byte(csv), 401},
 		{"collar import by a logger", logger, "POST", base + "/imports/collars", "text/csv", []byte(csv), 403},
 		{"measurement import by a reader", read, "POST", base + "/imports/measurements", "text/csv", []byte(csv), 403},
-		{"import by another project's token", foreign, "POST", base + "/imports/runs", "text/csv", []byte(csv), 403},
+		{"import by another project's token", foreign, "POST", base + "/imports/measurements", "text/csv", []byte(csv), 403},
 	} {
 		code, n := f.send(tc.token, tc.method, tc.path, tc.ct, bytes.NewReader(tc.body), int64(len(tc.body)))
 		if code != tc.want {
@@ -311,18 +309,15 @@ func (f fullFile) Seek(int64, int) (int64, error) { return 0, nil }
 func (f fullFile) Close() error                   { return nil }
 func (f fullFile) Name() string                   { return f.name }
 
-// longHole is a hole name of 60 characters, so that a large runs file needs
-// fewer rows.
-var longHole = "LH" + strings.Repeat("0", 58)
-
-// bigCSV is a runs file of hole of about n bytes (larger than the in-memory
-// part of an upload, so that it goes to a temp file), its runs short enough
-// to stay inside a 400 m hole.
+// bigCSV is a measurements file of hole of about n bytes (larger than the
+// in-memory part of an upload, so that it goes to a temp file), in few rows
+// with long comments.
 func bigCSV(hole string, n int) string {
 	var b strings.Builder
-	b.WriteString("hole_id,from,to,confidence\n")
+	b.WriteString("hole_id,depth,alpha,beta,type,comment\n")
+	comment := strings.Repeat("c", domain.MaxCommentLen-10)
 	for i := 0; b.Len() < n; i++ {
-		fmt.Fprintf(&b, "%s,%.3f,%.4f,good\n", hole, float64(i)*0.003, float64(i)*0.003+0.002)
+		fmt.Fprintf(&b, "%s,%.2f,30,40,JN,%s\n", hole, float64(i)*0.05, comment)
 	}
 	return b.String()
 }
@@ -334,9 +329,9 @@ func TestUploadTempDirFull(t *testing.T) {
 	dir := t.TempDir()
 	f := newFixture(t, func(o *Options) { o.TempDir = dir })
 	pid := f.project("Temp", nil)
-	f.hole(pid, longHole, 90, -60)
-	path := "/v1/projects/" + itoa(pid) + "/imports/runs"
-	csv := bigCSV(longHole, spoolMemory+1<<20)
+	f.hole(pid, "TM001", 90, -60)
+	path := "/v1/projects/" + itoa(pid) + "/imports/measurements"
+	csv := bigCSV("TM001", spoolMemory+1<<20)
 
 	f.srv.createTemp = func(dir string) (spoolFile, error) {
 		return fullFile{name: filepath.Join(dir, spoolPrefix+"full.csv")}, nil
@@ -409,8 +404,8 @@ func TestUploadTempFilesCleaned(t *testing.T) {
 	}
 
 	pid := f.project("Clean", nil)
-	f.hole(pid, longHole, 90, -60)
-	path := "/v1/projects/" + itoa(pid) + "/imports/runs"
+	f.hole(pid, "TM001", 90, -60)
+	path := "/v1/projects/" + itoa(pid) + "/imports/measurements"
 	left := func(when string) {
 		t.Helper()
 		ents, _ := os.ReadDir(dir)
@@ -418,10 +413,10 @@ func TestUploadTempFilesCleaned(t *testing.T) {
 			t.Errorf("%s: %s left in the temp dir", when, e.Name())
 		}
 	}
-	good := bigCSV(longHole, spoolMemory+1<<20)
+	good := bigCSV("TM001", spoolMemory+1<<20)
 	f.must(201, f.site, "POST", path, good, nil)
 	left("after an import")
-	if r := f.do(f.site, "POST", path, bigCSV("NOSUCH"+longHole[6:], spoolMemory+1<<20)); r.Code != 422 {
+	if r := f.do(f.site, "POST", path, bigCSV("NOSUCH", spoolMemory+1<<20)); r.Code != 422 {
 		t.Errorf("import of an unknown hole: status %d, want 422", r.Code)
 	}
 	left("after a refused import")
