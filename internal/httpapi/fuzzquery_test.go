@@ -17,6 +17,7 @@ var queryNames = []string{
 	"projection", "density", "planes", "title", "bin", "of", "step", "format", "persistent", "reference",
 	"shift_step", "max_depth_shift", "neighbours", "pick_window", "mismatch_tolerance", "rotation_threshold",
 	"min_run_count", "digit_min_count", "digit_p", "confident_ratings", "unusable_ratings", "dry_run",
+	"weighting", "sets_on", "set", "seed", "show", "units", "grid", "min_dip",
 	"x", "", "hole[]", "LIMIT",
 }
 
@@ -26,7 +27,7 @@ var queryNames = []string{
 var queryValues = []string{
 	"0", "-1", "1", "10", "15", "2.5", "1e308", "-1e308", "1e-300", "1.6370904631912708e-10", "NaN", "Inf", "-Inf",
 	"abc", "true", "false", "TM001", "JN", "LN,BD", "equal-angle", "strike", "html", "json", "hole", "neighbours",
-	"2026-01-01", "2026-13-45", "2026-01-01T00:00:00Z", "\x00", "\x1b[31m", "é", "\xff\xfe", strings.Repeat("9", 400),
+	"auto:3", "auto:100000", "terzaghi:5", "J1:135/20:25", "kamb", "sigma", "both", "lines", "2026-01-01", "2026-13-45", "2026-01-01T00:00:00Z", "\x00", "\x1b[31m", "é", "\xff\xfe", strings.Repeat("9", 400),
 	"99999999999999999999", "0x10", " 5", "5 ", "1,2,3", "%", "'; DROP TABLE holes; --",
 }
 

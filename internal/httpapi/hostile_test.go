@@ -204,6 +204,15 @@ func TestElementCounter(t *testing.T) {
 	}
 }
 
+// manyWindows is n set windows with distinct names, as query parameters.
+func manyWindows(n int) string {
+	var b strings.Builder
+	for i := range n {
+		fmt.Fprintf(&b, "set=W%d:10/10:5&", i)
+	}
+	return b.String()
+}
+
 // Every query parameter that sizes work is bounded and refused with 422
 // naming it: a rose bin of 1.6e-10 degrees would allocate 2e12 bins (issue
 // item 2), a depth-shift search of 1e-8 steps over 10000 would run for hours
@@ -230,6 +239,9 @@ func TestWorkParametersBounded(t *testing.T) {
 		{"GET", base + "/qa?pick_window=1e6", nil, "pick_window"},
 		{"GET", hb + "/path?step=1e-9", nil, "step"},
 		{"GET", base + "/statistics?sets=1000000", nil, "sets"},
+		{"GET", base + "/statistics?sets=auto:1000000", nil, "sets"},
+		{"GET", base + "/net?grid=100000", nil, "grid"},
+		{"GET", base + "/statistics?" + manyWindows(60), nil, "set"},
 		{"GET", base + "/measurements?limit=100000000", nil, "limit"},
 	} {
 		r := f.do(read, tc.method, tc.path, tc.body)
