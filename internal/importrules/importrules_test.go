@@ -24,6 +24,7 @@ var pure = map[string]bool{
 	"corvane/internal/wmm":        true,
 	"corvane/internal/utm":        true,
 	"corvane/internal/northref":   true,
+	"corvane/internal/holemodel":  true,
 	"corvane/internal/qa":         true,
 	"corvane/internal/qa/qapage":  true,
 }

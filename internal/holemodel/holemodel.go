@@ -1,0 +1,534 @@
+// Package holemodel owns "a hole ready to orient": one neutral description
+// of a hole (its collar, survey stations, per-hole corrections and survey
+// date) and of the project it belongs to (core-angle convention, desurvey
+// method, length unit, output north reference, project defaults that may be
+// unset) goes through one constructor, [New], and comes out as a [Hole]: the
+// resolved declination and grid convergence with their sources and
+// cautions, the desurveyed path in the output reference, and
+// [Hole.Orient] for one measurement.
+//
+// Every front end builds its holes here: the CSV commands (convert, qa,
+// declination) and the service (derived values, /v1/convert, hole paths,
+// the logging preview, QA over the store). No other package applies a
+// declination or a grid convergence to an azimuth; a test in
+// internal/importrules checks that.
+//
+// North references. A survey or collar azimuth is against true, grid or
+// magnetic north. With declination D (true = magnetic + D) and grid
+// convergence C (grid = true - C), every azimuth is brought to the output
+// reference, grid or true. A correction is taken, in this order, from:
+//
+//  1. a number given for the hole (for the declination, a number given with
+//     the survey set first, then the hole's own) — source "given";
+//  2. the project's default, when someone set it — source "project";
+//  3. computed by package northref from the collar's crs label and position
+//     (and, for the declination, the survey date) — source "computed".
+//
+// A correction is looked up only when an azimuth needs it, and only what was
+// applied is reported (source "none" otherwise). A correction that is needed
+// but cannot be had is the hole's problem ([Hole.Err]): every measurement of
+// that hole carries it, never a silent zero. The same goes for a path that
+// cannot be built (a station past the final depth, say): the problem belongs
+// to that hole and names the station.
+//
+// Caution: the results feed geological models and slope or excavation
+// design. They are only as good as the orientation marks, surveys and
+// corrections behind them; check the warnings and cautions and follow local
+// codes and licensed practice.
+package holemodel
+
+import (
+	"errors"
+	"fmt"
+	"math"
+	"strings"
+	"time"
+
+	"corvane/internal/coreangle"
+	"corvane/internal/desurvey"
+	"corvane/internal/geom"
+	"corvane/internal/northref"
+)
+
+// North references, in the words of the files and the API.
+const (
+	True     = "true"
+	Grid     = "grid"
+	Magnetic = "magnetic"
+)
+
+// Source says where a correction came from.
+type Source string
+
+// The sources of a correction.
+const (
+	SourceNone     Source = "none"     // not applied: no azimuth needed it
+	SourceGiven    Source = "given"    // a number given for the hole or its survey
+	SourceProject  Source = "project"  // the project's default, set by someone
+	SourceComputed Source = "computed" // computed by package northref
+)
+
+// Fields named by an [Error]: the column names of the files.
+const (
+	FieldHoleID          = "hole_id"
+	FieldDepth           = "depth"
+	FieldAlpha           = "alpha"
+	FieldBeta            = "beta"
+	FieldGamma           = "gamma"
+	FieldDeclination     = "declination"
+	FieldGridConvergence = "grid_convergence"
+	FieldCRS             = "crs"
+)
+
+// Station is one survey station as recorded.
+type Station struct {
+	Depth, Azimuth, Dip float64
+	// Ref is the station azimuth's north: True, Grid or Magnetic; "" means
+	// the project's output reference.
+	Ref string
+	// Date is the survey date of the station; zero means the hole's
+	// SurveyDate.
+	Date time.Time
+	// Line locates the station in its source (a file line), 0 when none.
+	Line int
+}
+
+// Input is one hole as recorded, before any correction.
+type Input struct {
+	ID string
+	// Collar holds position, azimuth, dip and final depth (Collar.Depth).
+	Collar desurvey.Collar
+	// CollarRef is the collar azimuth's north; "" means the output reference.
+	CollarRef string
+	// CRS labels the collar coordinates (e.g. EPSG:32750); "" when unknown.
+	CRS string
+	// Declination and GridConvergence are numbers given for this hole, nil
+	// when not given. SurveyDeclination is a declination given with the
+	// hole's survey set; it wins over Declination.
+	Declination, GridConvergence, SurveyDeclination *float64
+	// SurveyDate is the date of the hole's survey, used for the collar
+	// azimuth and for stations without a date of their own; zero when none.
+	SurveyDate time.Time
+	// Stations in increasing depth.
+	Stations []Station
+}
+
+// Project holds the choices every hole of a project shares.
+type Project struct {
+	Convention coreangle.Convention
+	Method     desurvey.Method
+	Unit       desurvey.Unit
+	// Output is Grid or True; "" means Grid.
+	Output string
+	// Declination and GridConvergence are the project's defaults, nil while
+	// nobody has set them.
+	Declination, GridConvergence *float64
+	// NoCompute turns off computing a missing correction with package
+	// northref; a hole that needs one then has an error.
+	NoCompute bool
+}
+
+// Correction is a declination or grid convergence as applied.
+type Correction struct {
+	Value  float64 // degrees; NaN when Source is SourceNone
+	Source Source
+}
+
+func none() Correction { return Correction{Value: math.NaN(), Source: SourceNone} }
+
+// Error is a problem with a hole or a measurement. Field names the column
+// (one of the Field* constants or a file column); Station is the index in
+// Input.Stations of the station it is about and Line that station's line,
+// -1 and 0 when it is about the collar or the measurement.
+type Error struct {
+	Field   string
+	Station int
+	Line    int
+	Msg     string
+}
+
+func (e *Error) Error() string { return e.Msg }
+
+func errorf(field string, format string, args ...any) *Error {
+	return &Error{Field: field, Station: -1, Msg: fmt.Sprintf(format, args...)}
+}
+
+// Hole is a hole ready to orient. It is immutable after New and safe for
+// concurrent use.
+type Hole struct {
+	// In is the input the hole was built from.
+	In Input
+	// Output is the north reference of every azimuth out: Grid or True.
+	Output string
+	// Convergence is the grid convergence applied to the hole's azimuths.
+	Convergence Correction
+	// Cautions about the corrections (a collar near a magnetic pole); empty
+	// when none.
+	Cautions []string
+	// Err is a problem of the whole hole (a correction that is needed but
+	// cannot be had, a path that cannot be built); every measurement of the
+	// hole reports it. Path is nil when Err is set.
+	Err  *Error
+	Path *desurvey.Path
+	// Collar and Stations are the path's input: azimuths in the output
+	// reference. Magnetic[i] tells whether Stations[i] was magnetic.
+	Collar   desurvey.Collar
+	Stations []desurvey.Station
+	Magnetic []bool
+
+	conv coreangle.Convention
+	decl []declAt // declination by depth, sorted; empty when none applied
+	// constDecl is true when every entry of decl is the same correction.
+	constDecl bool
+}
+
+type declAt struct {
+	depth float64
+	c     Correction
+}
+
+// Declination returns the declination applied at depth md: that of the
+// survey station at or above md (the first one's above all of them); a
+// Correction with SourceNone when no magnetic azimuth was involved.
+func (h *Hole) Declination(md float64) Correction {
+	if len(h.decl) == 0 {
+		return none()
+	}
+	lo, hi := 0, len(h.decl)
+	for hi-lo > 1 {
+		m := int(uint(lo+hi) >> 1)
+		if h.decl[m].depth <= md {
+			lo = m
+		} else {
+			hi = m
+		}
+	}
+	return h.decl[lo].c
+}
+
+// ConstantDeclination reports whether the declination is the same at every
+// depth (also when none applies).
+func (h *Hole) ConstantDeclination() bool { return h.constDecl }
+
+// Caution returns the cautions joined by "; ", "" when none.
+func (h *Hole) Caution() string { return strings.Join(h.Cautions, "; ") }
+
+// ParseRef reads true, grid or magnetic in any case, "" for an empty text.
+func ParseRef(s string) (string, error) {
+	t := strings.ToLower(strings.TrimSpace(s))
+	switch t {
+	case "", True, Grid, Magnetic:
+		return t, nil
+	}
+	return "", fmt.Errorf("%q is not an azimuth reference (want true, grid or magnetic)", s)
+}
+
+// needs reports which corrections turning azimuths of reference from into
+// reference out requires.
+func needs(from, out string) (decl, conv bool) {
+	if from == out {
+		return false, false
+	}
+	decl = from == Magnetic
+	conv = (from == Grid && out == True) || (from != Grid && out == Grid)
+	return decl, conv
+}
+
+// toOutput turns azimuth az of reference from into reference out.
+func toOutput(az float64, from, out string, d, c float64) float64 {
+	if from == out {
+		return az
+	}
+	t := az
+	switch from {
+	case Magnetic:
+		t = az + d
+	case Grid:
+		t = az + c
+	}
+	if out == Grid {
+		t -= c
+	}
+	return geom.NormAzimuth(t)
+}
+
+func metres(v float64, u desurvey.Unit) float64 {
+	if u == desurvey.Feet {
+		return v * 0.3048
+	}
+	return v
+}
+
+// New builds the hole. It always returns a hole; a problem that prevents
+// orienting it is in Hole.Err. Input references are checked with
+// [ParseRef]; an unknown one is an error of the hole.
+func New(in Input, p Project) *Hole {
+	out := p.Output
+	if out == "" {
+		out = Grid
+	}
+	h := &Hole{In: in, Output: out, Convergence: none(), Cautions: []string{}, conv: p.Convention, constDecl: true}
+	fail := func(e *Error) *Hole {
+		if h.Err == nil {
+			h.Err = e
+		}
+		return h
+	}
+	if out != Grid && out != True {
+		return fail(errorf(FieldHoleID, "hole %q: output reference must be grid or true, not %q", in.ID, out))
+	}
+	ref := func(s string) string {
+		r, err := ParseRef(s)
+		if err != nil || r == "" {
+			return out
+		}
+		return r
+	}
+	collarRef := ref(in.CollarRef)
+	collarUsed := len(in.Stations) == 0 || in.Stations[0].Depth != 0
+	var needD, needC bool
+	mark := func(r string) {
+		d, c := needs(r, out)
+		needD, needC = needD || d, needC || c
+	}
+	if collarUsed {
+		mark(collarRef)
+	}
+	for _, s := range in.Stations {
+		mark(ref(s.Ref))
+	}
+	elev := metres(in.Collar.Elevation, p.Unit)
+	if needC {
+		switch {
+		case in.GridConvergence != nil:
+			h.Convergence = Correction{*in.GridConvergence, SourceGiven}
+		case p.GridConvergence != nil:
+			h.Convergence = Correction{*p.GridConvergence, SourceProject}
+		case p.NoCompute:
+			return fail(errorf(FieldGridConvergence, "hole %q: azimuths need a grid convergence: give it for the hole (grid_convergence) or as the project's default", in.ID))
+		default:
+			res, err := northref.Corrections(in.CRS, in.Collar.East, in.Collar.North, elev, time.Time{}, false, true)
+			if err != nil {
+				return fail(errorf(FieldCRS, "hole %q: azimuths need a grid convergence and it cannot be computed: %v; give it for the hole (grid_convergence) or as the project's default", in.ID, err))
+			}
+			h.Convergence = Correction{res.Convergence, SourceComputed}
+		}
+	}
+	computed := map[time.Time]Correction{}
+	declFor := func(date time.Time, station int) (Correction, *Error) {
+		switch {
+		case in.SurveyDeclination != nil:
+			return Correction{*in.SurveyDeclination, SourceGiven}, nil
+		case in.Declination != nil:
+			return Correction{*in.Declination, SourceGiven}, nil
+		case p.Declination != nil:
+			return Correction{*p.Declination, SourceProject}, nil
+		case p.NoCompute:
+			return none(), errorf(FieldDeclination, "hole %q: magnetic azimuths need a declination: give it for the hole (declination) or as the project's default", in.ID)
+		}
+		if date.IsZero() {
+			date = in.SurveyDate
+		}
+		if v, ok := computed[date]; ok {
+			return v, nil
+		}
+		res, err := northref.Corrections(in.CRS, in.Collar.East, in.Collar.North, elev, date, true, false)
+		if err != nil {
+			e := errorf(FieldDeclination, "hole %q: magnetic azimuths need a declination and it cannot be computed: %v; give it for the hole (declination) or as the project's default", in.ID, err)
+			e.Station = station
+			if station >= 0 {
+				e.Line = in.Stations[station].Line
+			}
+			return none(), e
+		}
+		if c := res.Caution(); c != "" && len(h.Cautions) == 0 {
+			h.Cautions = append(h.Cautions, c)
+		}
+		v := Correction{res.Declination, SourceComputed}
+		computed[date] = v
+		return v, nil
+	}
+	_ = needD
+	gc := h.Convergence.Value
+	h.Stations = make([]desurvey.Station, 0, len(in.Stations))
+	h.Magnetic = make([]bool, 0, len(in.Stations))
+	for i, s := range in.Stations {
+		r, err := ParseRef(s.Ref)
+		if err != nil {
+			e := errorf("azimuth_reference", "hole %q: %v", in.ID, err)
+			e.Station, e.Line = i, s.Line
+			return fail(e)
+		}
+		if r == "" {
+			r = out
+		}
+		var d float64
+		if r == Magnetic {
+			dc, e := declFor(s.Date, i)
+			if e != nil {
+				return fail(e)
+			}
+			d = dc.Value
+			h.decl = append(h.decl, declAt{s.Depth, dc})
+		}
+		h.Stations = append(h.Stations, desurvey.Station{Depth: s.Depth, Azimuth: toOutput(s.Azimuth, r, out, d, gc), Dip: s.Dip})
+		h.Magnetic = append(h.Magnetic, r == Magnetic)
+	}
+	if _, err := ParseRef(in.CollarRef); err != nil {
+		return fail(errorf("azimuth_reference", "hole %q: %v", in.ID, err))
+	}
+	h.Collar = in.Collar
+	if collarUsed {
+		var d float64
+		if collarRef == Magnetic {
+			date := in.SurveyDate
+			for _, s := range in.Stations {
+				if date.IsZero() && !s.Date.IsZero() {
+					date = s.Date
+				}
+			}
+			dc, e := declFor(date, -1)
+			if e != nil {
+				return fail(e)
+			}
+			d = dc.Value
+			h.decl = append([]declAt{{0, dc}}, h.decl...)
+		}
+		h.Collar.Azimuth = toOutput(in.Collar.Azimuth, collarRef, out, d, gc)
+	}
+	for _, x := range h.decl {
+		if x.c != h.decl[0].c {
+			h.constDecl = false
+		}
+	}
+	path, err := desurvey.NewWith(h.Collar, h.Stations, desurvey.Options{Method: p.Method, Unit: p.Unit})
+	if err != nil {
+		e := errorf(FieldDepth, "hole %q: %v", in.ID, err)
+		var se *desurvey.StationError
+		if errors.As(err, &se) && se.Index >= 0 && se.Index < len(in.Stations) {
+			e.Station, e.Line = se.Index, in.Stations[se.Index].Line
+		}
+		return fail(e)
+	}
+	h.Path = path
+	return h
+}
+
+// Measurement is one core-angle measurement on a hole.
+type Measurement struct {
+	Depth       float64
+	Alpha, Beta float64
+	// Gamma is used when HasGamma.
+	Gamma    float64
+	HasGamma bool
+	// Thickness is the apparent (along-core) thickness, used when
+	// HasThickness.
+	Thickness    float64
+	HasThickness bool
+}
+
+// Result is an oriented measurement.
+type Result struct {
+	// Point is the hole at the measurement depth: position (E, N, Elev) in
+	// the collar's coordinates and down-hole direction.
+	Point desurvey.Point
+	// HoleAzimuth and HoleDip give the hole direction at the depth (dip
+	// negative downward), in the output reference; HoleAzimuth is 0 in a
+	// vertical hole.
+	HoleAzimuth, HoleDip float64
+	// Plane is the measured plane; in a vertical hole its DipDirection is NaN.
+	Plane geom.Plane
+	// Line is the lineation when HasLine; in a vertical hole its Trend is NaN.
+	Line    geom.Line
+	HasLine bool
+	// TrueThickness is apparent thickness x sin(alpha), NaN without thickness.
+	TrueThickness float64
+	Warn          coreangle.Warn
+	// Declination and Convergence applied at the depth.
+	Declination, Convergence Correction
+}
+
+// Pole returns the lower-hemisphere pole of the plane. In a vertical hole
+// its trend is NaN.
+func (r *Result) Pole() geom.Line {
+	if math.IsNaN(r.Plane.DipDirection) {
+		return geom.Line{Trend: math.NaN(), Plunge: 90 - r.Plane.Dip}
+	}
+	return geom.Line{Trend: fold(r.Plane.DipDirection + 180), Plunge: 90 - r.Plane.Dip}
+}
+
+// Strike returns the right-hand-rule strike, NaN in a vertical hole.
+func (r *Result) Strike() float64 {
+	if math.IsNaN(r.Plane.DipDirection) {
+		return math.NaN()
+	}
+	return fold(r.Plane.DipDirection - 90)
+}
+
+// fold brings an azimuth in [-360, 720) into [0, 360) without math.Mod; it
+// agrees with geom.NormAzimuth there.
+func fold(a float64) float64 {
+	if a >= 360 {
+		a -= 360
+	} else if a < 0 {
+		a += 360
+		if a >= 360 {
+			a = 0
+		}
+	}
+	return a
+}
+
+// azimuthDip is geom.Vec3.AzimuthDip for a unit vector, without math.Mod.
+func azimuthDip(v geom.Vec3) (az, dip float64) {
+	hz := math.Sqrt(v.X*v.X + v.Y*v.Y)
+	dip = geom.Deg(math.Atan2(v.Z, hz))
+	if hz == 0 {
+		return 0, dip
+	}
+	return fold(geom.Deg(math.Atan2(v.X, v.Y))), dip
+}
+
+// Orient converts one measurement. Errors are *Error naming the field: the
+// hole's own problem (hole_id), a depth outside the hole (depth), an angle
+// out of range (alpha, beta, gamma). It does not allocate when it succeeds.
+func (h *Hole) Orient(m Measurement) (Result, error) {
+	return h.orient(&m)
+}
+
+func (h *Hole) orient(m *Measurement) (Result, error) {
+	if h.Err != nil {
+		return Result{}, &Error{Field: FieldHoleID, Station: -1, Msg: h.Err.Msg}
+	}
+	if err := coreangle.CheckAngles(m.Alpha, m.Beta, m.Gamma, m.HasGamma); err != nil {
+		var ae *coreangle.AngleError
+		errors.As(err, &ae)
+		return Result{}, errorf(ae.Field, "%v", err)
+	}
+	if math.IsNaN(m.Depth) || math.IsInf(m.Depth, 0) || m.Depth < 0 {
+		return Result{}, errorf(FieldDepth, "depth %g is outside the hole", m.Depth)
+	}
+	if m.Depth > h.Path.Depth() {
+		return Result{}, errorf(FieldDepth, "depth %g is past the final depth %g of hole %q", m.Depth, h.Path.Depth(), h.In.ID)
+	}
+	pt, err := h.Path.At(m.Depth)
+	if err != nil {
+		return Result{}, errorf(FieldDepth, "%v", err)
+	}
+	r := Result{Point: pt, TrueThickness: math.NaN(), Convergence: h.Convergence, Declination: h.Declination(m.Depth)}
+	r.HoleAzimuth, r.HoleDip = azimuthDip(pt.Dir)
+	r.Plane, r.Warn = coreangle.Plane(pt.Dir, m.Alpha, m.Beta, h.conv)
+	if m.HasGamma {
+		var lw coreangle.Warn
+		r.Line, lw = coreangle.Line(pt.Dir, m.Alpha, m.Beta, m.Gamma, h.conv)
+		r.Warn |= lw
+		r.HasLine = true
+	}
+	if pt.Extrapolated {
+		r.Warn |= coreangle.Extrapolated
+	}
+	if m.HasThickness {
+		r.TrueThickness = coreangle.TrueThickness(m.Thickness, m.Alpha)
+	}
+	return r, nil
+}

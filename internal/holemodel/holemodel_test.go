@@ -1,0 +1,168 @@
+package holemodel
+
+import (
+	"math"
+	"strings"
+	"testing"
+	"time"
+
+	"corvane/internal/desurvey"
+	"corvane/internal/northref"
+)
+
+func f(v float64) *float64 { return &v }
+
+// collar of an inclined hole in WGS 84 / UTM zone 50S (an invented collar).
+func input(ref string) Input {
+	return Input{ID: "H1", CRS: "EPSG:32750",
+		Collar: desurvey.Collar{East: 500000, North: 7000000, Elevation: 400, Azimuth: 90, Dip: -60, Depth: 200},
+		Stations: []Station{
+			{Depth: 0, Azimuth: 100, Dip: -60, Ref: ref, Line: 2},
+			{Depth: 100, Azimuth: 102, Dip: -58, Ref: ref, Line: 3},
+		}}
+}
+
+// grid = magnetic + D - C (the project's conventions, design/conventions.md;
+// common practice for the signs of declination and convergence).
+func TestCorrectionsAndPrecedence(t *testing.T) {
+	date := time.Date(2025, 6, 1, 0, 0, 0, 0, time.UTC)
+	want, err := northref.Corrections("EPSG:32750", 500000, 7000000, 400, date, true, true)
+	if err != nil {
+		t.Fatal(err)
+	}
+	cases := []struct {
+		name       string
+		in         func(*Input)
+		p          Project
+		decl, conv Correction
+	}{
+		{"hole numbers win", func(in *Input) { in.Declination, in.GridConvergence = f(5), f(2) },
+			Project{Declination: f(9), GridConvergence: f(9)}, Correction{5, SourceGiven}, Correction{2, SourceGiven}},
+		{"survey declination wins over hole", func(in *Input) { in.Declination, in.SurveyDeclination, in.GridConvergence = f(5), f(6), f(2) },
+			Project{}, Correction{6, SourceGiven}, Correction{2, SourceGiven}},
+		{"project defaults", func(in *Input) {}, Project{Declination: f(3), GridConvergence: f(-1)},
+			Correction{3, SourceProject}, Correction{-1, SourceProject}},
+		{"computed", func(in *Input) { in.SurveyDate = date }, Project{},
+			Correction{want.Declination, SourceComputed}, Correction{want.Convergence, SourceComputed}},
+	}
+	for _, c := range cases {
+		t.Run(c.name, func(t *testing.T) {
+			in := input(Magnetic)
+			c.in(&in)
+			h := New(in, c.p)
+			if h.Err != nil {
+				t.Fatal(h.Err)
+			}
+			if got := h.Declination(50); got != c.decl {
+				t.Errorf("declination %+v, want %+v", got, c.decl)
+			}
+			if h.Convergence != c.conv {
+				t.Errorf("convergence %+v, want %+v", h.Convergence, c.conv)
+			}
+			wantAz := math.Mod(100+c.decl.Value-c.conv.Value+360, 360)
+			if math.Abs(h.Stations[0].Azimuth-wantAz) > 1e-9 {
+				t.Errorf("station azimuth %v, want %v", h.Stations[0].Azimuth, wantAz)
+			}
+		})
+	}
+}
+
+// A correction that is not applied is not reported.
+func TestOnlyAppliedIsReported(t *testing.T) {
+	h := New(input(True), Project{Output: True, Declination: f(5), GridConvergence: f(2)})
+	if h.Err != nil {
+		t.Fatal(h.Err)
+	}
+	if h.Convergence.Source != SourceNone || !math.IsNaN(h.Convergence.Value) {
+		t.Errorf("convergence %+v reported for a true survey with true output", h.Convergence)
+	}
+	if d := h.Declination(10); d.Source != SourceNone {
+		t.Errorf("declination %+v reported without a magnetic azimuth", d)
+	}
+	if h.Stations[1].Azimuth != 102 {
+		t.Errorf("true azimuth changed to %v", h.Stations[1].Azimuth)
+	}
+}
+
+// A magnetic survey with no declination from any source is that hole's
+// error, never a silent zero.
+func TestMagneticWithoutDeclination(t *testing.T) {
+	in := input(Magnetic)
+	in.CRS = "local mine grid"
+	in.GridConvergence = f(0)
+	h := New(in, Project{})
+	if h.Err == nil || h.Err.Field != FieldDeclination {
+		t.Fatalf("Err = %v, want a declination problem", h.Err)
+	}
+	if _, err := h.Orient(Measurement{Depth: 10, Alpha: 40, Beta: 10}); err == nil || !strings.Contains(err.Error(), "declination") {
+		t.Errorf("Orient error %v, want the hole's declination problem", err)
+	}
+	// NoCompute: the same without a model.
+	h = New(input(Magnetic), Project{NoCompute: true, GridConvergence: f(1)})
+	if h.Err == nil || h.Err.Field != FieldDeclination {
+		t.Errorf("NoCompute: Err = %v", h.Err)
+	}
+}
+
+// A station past the final depth is a problem of that hole, located at the
+// station.
+func TestStationPastFinalDepth(t *testing.T) {
+	in := input(Grid)
+	in.Stations = append(in.Stations, Station{Depth: 250, Azimuth: 104, Dip: -57, Line: 9})
+	h := New(in, Project{})
+	if h.Err == nil || h.Err.Line != 9 || h.Err.Station != 2 || h.Err.Field != FieldDepth {
+		t.Fatalf("Err = %+v, want station 2 on line 9, field depth", h.Err)
+	}
+}
+
+// The magnetic model takes metres: a project in feet gets the same computed
+// declination as the same collar in metres.
+func TestFeetElevation(t *testing.T) {
+	date := time.Date(2025, 1, 1, 0, 0, 0, 0, time.UTC)
+	m := input(Magnetic)
+	m.SurveyDate = date
+	m.Collar.Elevation = 3000
+	ft := m
+	ft.Collar.Elevation = 3000 / 0.3048
+	hm := New(m, Project{GridConvergence: f(0)})
+	hf := New(ft, Project{GridConvergence: f(0), Unit: desurvey.Feet})
+	if hm.Err != nil || hf.Err != nil {
+		t.Fatal(hm.Err, hf.Err)
+	}
+	if a, b := hm.Declination(0).Value, hf.Declination(0).Value; math.Abs(a-b) > 1e-9 {
+		t.Errorf("declination in metres %v, in feet %v", a, b)
+	}
+}
+
+// A vertical hole: a plane at alpha dips 90 - alpha and has no dip
+// direction (common practice: in a vertical hole only the dip is known
+// without an orientation line).
+func TestOrientVertical(t *testing.T) {
+	h := New(Input{ID: "V", Collar: desurvey.Collar{Azimuth: 0, Dip: -90, Depth: 50}}, Project{})
+	if h.Err != nil {
+		t.Fatal(h.Err)
+	}
+	r, err := h.Orient(Measurement{Depth: 20, Alpha: 30, Beta: 0})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if math.Abs(r.Plane.Dip-60) > 1e-9 || !math.IsNaN(r.Plane.DipDirection) || !math.IsNaN(r.Strike()) {
+		t.Errorf("plane %+v, want dip 60 and no dip direction", r.Plane)
+	}
+	if _, err := h.Orient(Measurement{Depth: 60, Alpha: 30}); err == nil {
+		t.Error("a depth past the end oriented")
+	} else if e := err.(*Error); e.Field != FieldDepth {
+		t.Errorf("field %q, want depth", e.Field)
+	}
+	if _, err := h.Orient(Measurement{Depth: 10, Alpha: 95}); err == nil || err.(*Error).Field != FieldAlpha {
+		t.Errorf("alpha 95: %v", err)
+	}
+}
+
+func TestOrientDoesNotAllocate(t *testing.T) {
+	h := New(input(Grid), Project{})
+	m := Measurement{Depth: 50, Alpha: 40, Beta: 120, Gamma: 30, HasGamma: true}
+	if n := testing.AllocsPerRun(100, func() { _, _ = h.Orient(m) }); n != 0 {
+		t.Errorf("Orient allocates %v times", n)
+	}
+}
