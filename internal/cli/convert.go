@@ -59,7 +59,9 @@ Azimuths: true = magnetic + declination; grid = true - grid_convergence. A surve
 azimuth without azimuth_reference is taken to be in the output reference. Corrections
 come from the collar's columns, else from --declination / --grid-convergence, else are
 computed from the collar's crs (EPSG:326NN / EPSG:327NN) and the survey date (World
-Magnetic Model 2025); the *_source columns say which (given, computed or none).
+Magnetic Model 2025); the *_source columns say which (given, project, computed or
+none). A collars file may give survey_date, the date of a hole's survey for survey rows
+without their own.
 
 Exit status: 0 all rows converted; 1 some rows have a message in the error column
 (all rows are still written); 2 bad options or a file that cannot be read as a whole

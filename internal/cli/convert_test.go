@@ -118,7 +118,7 @@ func TestConvertExitCodes(t *testing.T) {
 	// Grid survey azimuth 90 to true output: true = grid + C (conventions.md).
 	code, stdout2, _ = runCLI("convert", "--collars", p("c.csv"), "--surveys", p("sgrid.csv"), "--structures", p("ok.csv"),
 		"--output-reference", "true", "--grid-convergence", "1.5", "--method", "tangential", "--gamma-sense", "anticlockwise")
-	if code != ExitOK || !strings.Contains(stdout2, "A,10,30,180,91.50,") || !strings.Contains(stdout2, ",true,,none,1.500,given,") {
+	if code != ExitOK || !strings.Contains(stdout2, "A,10,30,180,91.50,") || !strings.Contains(stdout2, ",true,,none,1.500,project,") {
 		t.Fatalf("true output:\n%s", stdout2)
 	}
 }

@@ -1,6 +1,7 @@
 package cli
 
 import (
+	"corvane/internal/holemodel"
 	"encoding/csv"
 	"fmt"
 	"io"
@@ -54,7 +55,7 @@ func writeHoleSummary(w io.Writer, hs *convert.Holes, srows []csvio.SurveyRow, c
 	for _, h := range hs.List() {
 		seen[h.ID] = true
 		var vals, srcs []string
-		var got []convert.Correction
+		var got []holemodel.Correction
 		for _, d := range append([]float64{0}, depths[h.ID]...) {
 			c := h.Declination(d)
 			dup := false
@@ -78,7 +79,7 @@ func writeHoleSummary(w io.Writer, hs *convert.Holes, srows []csvio.SurveyRow, c
 		}
 		if err := cw.Write([]string{h.ID, strings.Join(refs[h.ID], ";"), out,
 			strings.Join(vals, ";"), strings.Join(srcs, ";"), num(h.Convergence.Value), string(h.Convergence.Source),
-			strconv.Itoa(c.rows), strconv.Itoa(c.warn), strconv.Itoa(c.bad), h.Caution, msg}); err != nil {
+			strconv.Itoa(c.rows), strconv.Itoa(c.warn), strconv.Itoa(c.bad), h.Caution(), msg}); err != nil {
 			return err
 		}
 	}

@@ -11,11 +11,11 @@ import (
 	"os"
 	"strconv"
 	"strings"
-	"time"
 
+	"corvane/internal/convert"
 	"corvane/internal/coreangle"
 	"corvane/internal/csvio"
-	"corvane/internal/northref"
+	"corvane/internal/desurvey"
 	"corvane/internal/qa"
 	"corvane/internal/qa/qapage"
 )
@@ -166,7 +166,7 @@ func runQA(_ context.Context, env *Env, args []string) int {
 		return ExitUsage
 	}
 
-	in, rejected, err := readQAInput(*collars, *surveys, *structures, *runsF, *picks, *outRef, *decl, *conv, *feet, env.Stderr)
+	in, rejected, err := readQAInput(*collars, *surveys, *structures, *runsF, *picks, *outRef, *decl, *conv, *feet)
 	if err != nil {
 		csvio.Report(env.Stderr, err)
 		return ExitUsage
@@ -202,7 +202,7 @@ func runQA(_ context.Context, env *Env, args []string) int {
 // readQAInput reads the files. Whole-file problems (missing files or
 // columns, bad collar, survey, run or pick rows) are errors; bad structure
 // rows become findings in the report and are counted in rejected.
-func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl, conv float64, feet bool, stderr io.Writer) (in qa.Input, rejected int, err error) {
+func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl, conv float64, feet bool) (in qa.Input, rejected int, err error) {
 	open := func(name string) (*os.File, error) {
 		f, err := os.Open(name)
 		if err != nil {
@@ -219,69 +219,6 @@ func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl,
 	if err != nil {
 		return in, 0, err
 	}
-	// Azimuth corrections, as corvane convert applies them: the collar's
-	// columns, then the value for all holes, then computed from the collar's
-	// crs and the survey date (package northref).
-	collarRow := map[string]csvio.CollarRow{}
-	for _, c := range crows {
-		collarRow[c.HoleID] = c
-	}
-	warned := map[string]bool{}
-	correction := func(hole, what string, line int, date time.Time) float64 {
-		c := collarRow[hole]
-		given, all := c.Declination, decl
-		if what == "grid convergence" {
-			given, all = c.GridConvergence, conv
-		}
-		if !math.IsNaN(given) {
-			return given
-		}
-		if !math.IsNaN(all) {
-			return all
-		}
-		elevM := c.Collar.Elevation // the magnetic model takes metres
-		if feet {
-			elevM *= 0.3048
-		}
-		res, err := northref.Corrections(c.CRS, c.Collar.East, c.Collar.North, elevM, date, what == "declination", what == "grid convergence")
-		if err == nil {
-			if what == "declination" {
-				return res.Declination
-			}
-			return res.Convergence
-		}
-		if !warned[hole+what] {
-			warned[hole+what] = true
-			fmt.Fprintf(stderr, "corvane qa: hole %s (line %d) needs a %s to bring its azimuths to %s north and it cannot be computed (%v); taken as 0: give it in the collar's column or for all holes\n",
-				hole, line, what, outRef, err)
-		}
-		return 0
-	}
-	// toOut brings azimuth az of reference ref ("" = already the output
-	// reference) to the output reference: true = magnetic + declination,
-	// grid = true - convergence.
-	toOut := func(hole string, az float64, ref string, line int, date time.Time) float64 {
-		if ref == "" || ref == outRef {
-			return az
-		}
-		t := az
-		switch ref {
-		case csvio.RefMagnetic:
-			t += correction(hole, "declination", line, date)
-		case csvio.RefGrid:
-			t += correction(hole, "grid convergence", line, date)
-		}
-		if outRef == "grid" {
-			t -= correction(hole, "grid convergence", line, date)
-		}
-		return t
-	}
-	firstDate := map[string]time.Time{}
-	for _, c := range crows {
-		in.Collars = append(in.Collars, qa.Collar{HoleID: c.HoleID, East: c.Collar.East, North: c.Collar.North, Elevation: c.Collar.Elevation,
-			Azimuth: c.Collar.Azimuth, Dip: c.Collar.Dip, Depth: c.Collar.Depth, Line: c.Line})
-	}
-
 	if f, err = open(surveys); err != nil {
 		return in, 0, err
 	}
@@ -290,16 +227,42 @@ func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl,
 	if err != nil {
 		return in, 0, err
 	}
-	for _, s := range srows {
-		if _, ok := firstDate[s.HoleID]; !ok && !s.Date.IsZero() {
-			firstDate[s.HoleID] = s.Date
-		}
-		in.Surveys = append(in.Surveys, qa.Station{HoleID: s.HoleID, Depth: s.Station.Depth, Azimuth: toOut(s.HoleID, s.Station.Azimuth, s.AzimuthRef, s.Line, s.Date),
-			Dip: s.Station.Dip, Magnetic: s.AzimuthRef == csvio.RefMagnetic, Line: s.Line})
+	// The holes as corvane convert builds them: one hole model corrects
+	// north (package holemodel). A hole it cannot build is a problem of
+	// that hole, reported once, as in convert.
+	opt := convert.Options{Output: convert.Grid, CollarsFile: collars, SurveysFile: surveys}
+	if outRef == "true" {
+		opt.Output = convert.True
 	}
-	for i := range in.Collars {
-		c := collarRow[in.Collars[i].HoleID]
-		in.Collars[i].Azimuth = toOut(c.HoleID, c.Collar.Azimuth, c.AzimuthRef, c.Line, firstDate[c.HoleID])
+	if !math.IsNaN(decl) {
+		opt.Declination = convert.Given{Value: decl, Set: true}
+	}
+	if !math.IsNaN(conv) {
+		opt.GridConvergence = convert.Given{Value: conv, Set: true}
+	}
+	if feet {
+		opt.Unit = desurvey.Feet
+	}
+	holes, err := convert.Build(crows, srows, opt)
+	if err != nil {
+		return in, 0, err
+	}
+	for _, h := range holes.List() {
+		c := qa.Collar{HoleID: h.ID, East: h.Collar.East, North: h.Collar.North, Elevation: h.Collar.Elevation,
+			Azimuth: h.Collar.Azimuth, Dip: h.Collar.Dip, Depth: h.Collar.Depth, Line: h.Line}
+		if h.Err != nil {
+			c.Problem, c.ProblemSource, c.ProblemLine = h.Hole.Err.Msg, "collars", h.Err.Loc.Line
+			if h.Err.Loc.File == surveys {
+				c.ProblemSource = "surveys"
+			}
+			in.Collars = append(in.Collars, c)
+			continue
+		}
+		in.Collars = append(in.Collars, c)
+		for i, st := range h.Stations {
+			in.Surveys = append(in.Surveys, qa.Station{HoleID: h.ID, Depth: st.Depth, Azimuth: st.Azimuth, Dip: st.Dip,
+				Magnetic: h.Magnetic[i], Line: h.In.Stations[i].Line})
+		}
 	}
 
 	if f, err = open(runs); err != nil {

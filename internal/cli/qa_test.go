@@ -5,7 +5,6 @@ import (
 	"context"
 	"encoding/json"
 	"fmt"
-	"io"
 	"math"
 	"os"
 	"path/filepath"
@@ -158,7 +157,7 @@ func TestQAInputFeetElevation(t *testing.T) {
 	if atM.Declination == atFt.Declination {
 		t.Fatalf("declination %v does not depend on elevation here: the check below could not fail", atM.Declination)
 	}
-	in, _, err := readQAInput(p("collars.csv"), p("surveys.csv"), p("structures.csv"), p("runs.csv"), p("picks.csv"), "true", math.NaN(), math.NaN(), true, io.Discard)
+	in, _, err := readQAInput(p("collars.csv"), p("surveys.csv"), p("structures.csv"), p("runs.csv"), p("picks.csv"), "true", math.NaN(), math.NaN(), true)
 	if err != nil {
 		t.Fatal(err)
 	}

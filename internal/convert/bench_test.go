@@ -3,6 +3,7 @@ package convert
 import (
 	"bufio"
 	"context"
+	"corvane/internal/holemodel"
 	"encoding/csv"
 	"fmt"
 	"io"
@@ -159,7 +160,7 @@ func BenchmarkCSVReadWrite(b *testing.B) {
 func BenchmarkOrient(b *testing.B) {
 	hs := genHoles(b, 100)
 	b.ReportAllocs()
-	m := Measurement{HoleID: "G42", Depth: 123.4, Alpha: 40, Beta: 200, Gamma: 30, HasGamma: true}
+	m := Measurement{HoleID: "G42", Measurement: holemodel.Measurement{Depth: 123.4, Alpha: 40, Beta: 200, Gamma: 30, HasGamma: true}}
 	for b.Loop() {
 		if _, err := hs.Orient(m); err != nil {
 			b.Fatal(err)

@@ -5,128 +5,40 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"math"
 	"runtime"
 	"strings"
 
-	"corvane/internal/coreangle"
 	"corvane/internal/csvio"
-	"corvane/internal/desurvey"
 	"corvane/internal/domain"
-	"corvane/internal/geom"
+	"corvane/internal/holemodel"
 )
 
 // Measurement is one core-angle measurement to convert.
 type Measurement struct {
 	HoleID string
-	Depth  float64
-	Alpha  float64
-	Beta   float64
-	// Gamma is used when HasGamma.
-	Gamma    float64
-	HasGamma bool
-	// Thickness is the apparent (along-core) thickness, used when
-	// HasThickness.
-	Thickness    float64
-	HasThickness bool
+	holemodel.Measurement
 }
 
-// Result is a converted measurement.
-type Result struct {
-	Hole *Hole
-	// Point is the hole at the measurement depth: position (E, N, Elev) and
-	// down-hole direction.
-	Point desurvey.Point
-	// HoleAzimuth and HoleDip give the hole direction at the depth (dip
-	// negative downward), in the output reference.
-	HoleAzimuth, HoleDip float64
-	// Plane is the measured plane; in a vertical hole its DipDirection is NaN.
-	Plane geom.Plane
-	// Line is the lineation when HasLine; in a vertical hole its Trend is NaN.
-	Line    geom.Line
-	HasLine bool
-	// TrueThickness is apparent thickness x sin(alpha), NaN without thickness.
-	TrueThickness float64
-	Warn          coreangle.Warn
+// Orient converts one measurement with its hole's model. Errors are
+// *domain.Error of kind Invalid naming the field (Loc.Column): an unknown
+// hole or a hole with a problem (hole_id), a depth outside the hole (depth),
+// an angle out of range (alpha, beta, gamma). It does not allocate when it
+// succeeds.
+func (hs *Holes) Orient(m Measurement) (holemodel.Result, error) {
+	return hs.orient(hs.holes[m.HoleID], &m)
 }
 
-// Pole returns the lower-hemisphere pole of the plane. In a vertical hole its
-// trend is NaN.
-func (r *Result) Pole() geom.Line {
-	if math.IsNaN(r.Plane.DipDirection) {
-		return geom.Line{Trend: math.NaN(), Plunge: 90 - r.Plane.Dip}
-	}
-	return geom.Line{Trend: fold(r.Plane.DipDirection + 180), Plunge: 90 - r.Plane.Dip}
-}
-
-// fold brings an azimuth in [-360, 720) into [0, 360) without math.Mod; it
-// agrees with geom.NormAzimuth there.
-func fold(a float64) float64 {
-	if a >= 360 {
-		a -= 360
-	} else if a < 0 {
-		a += 360
-		if a >= 360 {
-			a = 0
-		}
-	}
-	return a
-}
-
-// azimuthDip is geom.Vec3.AzimuthDip for a unit vector, without math.Mod.
-func azimuthDip(v geom.Vec3) (az, dip float64) {
-	h := math.Sqrt(v.X*v.X + v.Y*v.Y)
-	dip = geom.Deg(math.Atan2(v.Z, h))
-	if h == 0 {
-		return 0, dip
-	}
-	return fold(geom.Deg(math.Atan2(v.X, v.Y))), dip
-}
-
-// Orient converts one measurement. Errors are *domain.Error of kind Invalid
-// naming the field (Loc.Column): an unknown hole or a hole with a problem
-// (hole_id), a depth outside the hole (depth), an angle out of range (alpha,
-// beta, gamma). It does not allocate when it succeeds.
-func (hs *Holes) Orient(m Measurement) (Result, error) {
-	h := hs.holes[m.HoleID]
-	return hs.orient(h, &m)
-}
-
-func (hs *Holes) orient(h *Hole, m *Measurement) (Result, error) {
+func (hs *Holes) orient(h *Hole, m *Measurement) (holemodel.Result, error) {
 	if h == nil {
-		return Result{}, fieldErr(csvio.ColHoleID, "unknown hole %q (not in the collars)", m.HoleID)
+		return holemodel.Result{}, fieldErr(csvio.ColHoleID, "unknown hole %q (not in the collars)", m.HoleID)
 	}
 	if h.Err != nil {
-		return Result{Hole: h}, fieldErr(csvio.ColHoleID, "%s", h.Err.Error())
+		return holemodel.Result{}, fieldErr(csvio.ColHoleID, "%s", h.Err.Error())
 	}
-	if err := coreangle.CheckAngles(m.Alpha, m.Beta, m.Gamma, m.HasGamma); err != nil {
-		var ae *coreangle.AngleError
-		errors.As(err, &ae)
-		return Result{Hole: h}, fieldErr(ae.Field, "%v", err)
-	}
-	if math.IsNaN(m.Depth) || math.IsInf(m.Depth, 0) || m.Depth < 0 {
-		return Result{Hole: h}, fieldErr(csvio.ColDepth, "depth %g is outside the hole", m.Depth)
-	}
-	if m.Depth > h.Path.Depth() {
-		return Result{Hole: h}, fieldErr(csvio.ColDepth, "depth %g is past the final depth %g of hole %q", m.Depth, h.Path.Depth(), h.ID)
-	}
-	pt, err := h.Path.At(m.Depth)
+	r, err := h.Orient(m.Measurement)
 	if err != nil {
-		return Result{Hole: h}, fieldErr(csvio.ColDepth, "%v", err)
-	}
-	c := hs.opt.Convention
-	r := Result{Hole: h, Point: pt, TrueThickness: math.NaN()}
-	r.HoleAzimuth, r.HoleDip = azimuthDip(pt.Dir)
-	r.Plane, r.Warn = coreangle.Plane(pt.Dir, m.Alpha, m.Beta, c)
-	if m.HasGamma {
-		r.Line, _ = coreangle.Line(pt.Dir, m.Alpha, m.Beta, m.Gamma, c)
-		r.HasLine = true
-	}
-	if pt.Extrapolated {
-		r.Warn |= coreangle.Extrapolated
-	}
-	if m.HasThickness {
-		r.TrueThickness = coreangle.TrueThickness(m.Thickness, m.Alpha)
+		e := err.(*holemodel.Error)
+		return r, fieldErr(e.Field, "%s", e.Msg)
 	}
 	return r, nil
 }
@@ -467,8 +379,8 @@ func (cv *converter) convert(b *batch) {
 		if last == nil || last.ID != row.HoleID {
 			last = cv.hs.holes[row.HoleID]
 		}
-		m = Measurement{HoleID: row.HoleID, Depth: row.Depth, Alpha: row.Alpha, Beta: row.Beta,
-			Gamma: row.Gamma, HasGamma: row.HasGamma, Thickness: row.Thickness, HasThickness: row.HasThickness}
+		m = Measurement{HoleID: row.HoleID, Measurement: holemodel.Measurement{Depth: row.Depth, Alpha: row.Alpha, Beta: row.Beta,
+			Gamma: row.Gamma, HasGamma: row.HasGamma, Thickness: row.Thickness, HasThickness: row.HasThickness}}
 		res, err := cv.hs.orient(last, &m)
 		if err != nil {
 			sum.BadRows++
@@ -484,14 +396,15 @@ func (cv *converter) convert(b *batch) {
 			cw.EndRow()
 			continue
 		}
-		if res.Warn != 0 || res.Hole.Caution != "" {
+		if res.Warn != 0 || len(last.Cautions) != 0 {
 			sum.WarnRows++
 			hc.WarnRows++
 		}
 		if res.Point.Extrapolated {
 			sum.Extrapols++
 		}
-		b.tail = writeResult(cw, &res, cv.thick, b.tail)
+		b.tail = WriteResult(cw, &res, last.Hole, cv.thick, Warnings(&res, last.Hole), last.tail, b.tail)
+		cw.Empty() // error
 		cw.EndRow()
 	}
 	b.perHole = sum.PerHole
@@ -526,7 +439,13 @@ func writeEmpty(cw *csvio.Writer, n int) {
 	}
 }
 
-func writeResult(cw *csvio.Writer, r *Result, thick bool, scratch []byte) []byte {
+// WriteResult writes the derived columns of [OutputColumns] but the last
+// (error) for result r of a measurement on hole h: the one writer of
+// oriented measurements, used by `corvane convert` and the service's CSV
+// export. warn is the warnings cell (see [Warnings]); tail, when not nil,
+// is the hole's formatted correction columns ([AppendCorrections]);
+// scratch is reused and returned.
+func WriteResult(cw *csvio.Writer, r *holemodel.Result, h *holemodel.Hole, thick bool, warn string, tail, scratch []byte) []byte {
 	cw.Float(r.HoleAzimuth, angleDecimals)
 	cw.Float(r.HoleDip, angleDecimals)
 	cw.Float(r.Point.Pos.X, lengthDecimals)
@@ -534,11 +453,7 @@ func writeResult(cw *csvio.Writer, r *Result, thick bool, scratch []byte) []byte
 	cw.Float(r.Point.Pos.Z, lengthDecimals)
 	cw.Float(r.Plane.Dip, angleDecimals)
 	cw.Float(r.Plane.DipDirection, angleDecimals)
-	if math.IsNaN(r.Plane.DipDirection) {
-		cw.Empty()
-	} else {
-		cw.Float(fold(r.Plane.DipDirection-90), angleDecimals)
-	}
+	cw.Float(r.Strike(), angleDecimals)
 	if r.HasLine {
 		cw.Float(r.Line.Trend, angleDecimals)
 		cw.Float(r.Line.Plunge, angleDecimals)
@@ -546,26 +461,51 @@ func writeResult(cw *csvio.Writer, r *Result, thick bool, scratch []byte) []byte
 		cw.Empty()
 		cw.Empty()
 	}
-	h := r.Hole
-	if h.Caution == "" {
-		cw.String(r.Warn.String())
-	} else if r.Warn == 0 {
-		cw.String(h.Caution)
-	} else {
-		cw.String(r.Warn.String() + "; " + h.Caution)
-	}
+	cw.String(warn)
 	pole := r.Pole()
 	cw.Float(pole.Trend, angleDecimals)
 	cw.Float(pole.Plunge, angleDecimals)
 	if thick {
 		cw.Float(r.TrueThickness, lengthDecimals)
 	}
-	if h.tail != nil {
-		cw.Raw(h.tail)
+	if tail != nil {
+		cw.Raw(tail)
 	} else {
-		scratch = h.appendTail(scratch[:0], r.Hole.out, h.Declination(r.Point.Depth))
+		scratch = AppendCorrections(scratch[:0], h.Output, r.Declination, r.Convergence)
 		cw.Raw(scratch)
 	}
-	cw.Empty() // error
 	return scratch
+}
+
+// WriteError writes the derived columns of a row that could not be
+// converted: empty values and the message in the error column.
+func WriteError(cw *csvio.Writer, thick bool, msg string) {
+	writeEmpty(cw, len(OutputColumns(thick))-1)
+	cw.String(msg)
+}
+
+// Warnings returns the warnings of result r on hole h as one text: the
+// conversion's warnings, then the hole's cautions, joined by "; ".
+func Warnings(r *holemodel.Result, h *holemodel.Hole) string {
+	if len(h.Cautions) == 0 {
+		return r.Warn.String()
+	}
+	if r.Warn == 0 {
+		return h.Caution()
+	}
+	return r.Warn.String() + "; " + h.Caution()
+}
+
+// AppendCorrections formats the columns azimuth_reference, declination,
+// declination_source, grid_convergence and convergence_source.
+func AppendCorrections(b []byte, out string, d, c holemodel.Correction) []byte {
+	b = append(b, out...)
+	b = append(b, ',')
+	b = csvio.AppendFloat(b, d.Value, correctionDecimals)
+	b = append(b, ',')
+	b = append(b, d.Source...)
+	b = append(b, ',')
+	b = csvio.AppendFloat(b, c.Value, correctionDecimals)
+	b = append(b, ',')
+	return append(b, c.Source...)
 }

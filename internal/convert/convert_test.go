@@ -3,6 +3,7 @@ package convert
 import (
 	"bytes"
 	"context"
+	"corvane/internal/holemodel"
 	"encoding/csv"
 	"errors"
 	"fmt"
@@ -188,12 +189,29 @@ func TestConvertWholeFileErrors(t *testing.T) {
 		{collarsCSV, "hole_id,depth,azimuth,dip\nH1,10,0,-60\nH1,5,0,-60\n", `s.csv:line 3, column "depth"`},
 		{collarsCSV, "hole_id,depth,azimuth,dip\nH1,10,0,-60\nH1,10,0,-60\n", "repeats line 2"},
 		{collarsCSV, "hole_id,depth,azimuth,dip\nX9,10,0,-60\n", `s.csv:line 2, column "hole_id": survey of hole "X9"`},
-		{collarsCSV, "hole_id,depth,azimuth,dip\nH1,10,0,-60\nH1,300,0,-60\n", `s.csv:line 3, column "depth": hole "H1": station 2 at depth 300`},
 	} {
 		_, err := Load(strings.NewReader(c.collars), strings.NewReader(c.surveys), Options{CollarsFile: "c.csv", SurveysFile: "s.csv"})
 		if err == nil || !strings.Contains(err.Error(), c.want) {
 			t.Errorf("%v, want %q", err, c.want)
 		}
+	}
+}
+
+// A station past the final depth is a problem of that hole only: its rows
+// carry the located error, the other holes convert (README, Data rules).
+func TestStationPastFinalDepthIsTheHoles(t *testing.T) {
+	collars := "hole_id,easting,northing,elevation,azimuth,dip,depth\nH1,0,0,0,0,-60,100\nH2,0,0,0,90,-60,100\n"
+	surveys := "hole_id,depth,azimuth,dip\nH1,10,0,-60\nH1,300,0,-60\nH2,10,90,-60\n"
+	hs, err := Load(strings.NewReader(collars), strings.NewReader(surveys), Options{CollarsFile: "c.csv", SurveysFile: "s.csv"})
+	if err != nil {
+		t.Fatalf("one hole's station refused the whole file: %v", err)
+	}
+	rows, sum := run(t, hs, "hole_id,depth,alpha,beta\nH1,5,45,90\nH2,5,45,90\n")
+	if sum.BadRows != 1 || !strings.Contains(rows[0]["error"], `s.csv:line 3, column "depth"`) || !strings.Contains(rows[0]["error"], "300") {
+		t.Errorf("H1 row error %q, want the station at s.csv line 3", rows[0]["error"])
+	}
+	if rows[1]["error"] != "" || rows[1]["dip"] == "" {
+		t.Errorf("H2 row %v, want converted", rows[1])
 	}
 }
 
@@ -211,8 +229,8 @@ func TestAzimuthReferences(t *testing.T) {
 		want       [3]float64
 		dsrc, csrc [3]string
 	}{
-		{Grid, [3]float64{40 + 10 - 2, 40 + 5 - 1, 40 - 1}, [3]string{"given", "given", "none"}, [3]string{"given", "given", "given"}},
-		{True, [3]float64{40 + 10, 40 + 5, 40}, [3]string{"given", "given", "none"}, [3]string{"none", "none", "none"}},
+		{Grid, [3]float64{40 + 10 - 2, 40 + 5 - 1, 40 - 1}, [3]string{"given", "project", "none"}, [3]string{"given", "project", "project"}},
+		{True, [3]float64{40 + 10, 40 + 5, 40}, [3]string{"given", "project", "none"}, [3]string{"none", "none", "none"}},
 	} {
 		hs := load(t, collars, surveys, Options{Output: c.out, Declination: Given{5, true}, GridConvergence: Given{1, true}})
 		rows, sum := run(t, hs, st)
@@ -425,16 +443,18 @@ func TestConvertCancel(t *testing.T) {
 
 func TestOrient(t *testing.T) {
 	hs := load(t, collarsCSV, surveysCSV, Options{})
-	res, err := hs.Orient(Measurement{HoleID: "H1", Depth: 50, Alpha: 20, Beta: 180})
+	res, err := hs.Orient(Measurement{HoleID: "H1", Measurement: holemodel.Measurement{Depth: 50, Alpha: 20, Beta: 180}})
 	if err != nil || !near(res.Plane.Dip, 40, 1e-9) || !near(res.Plane.DipDirection, 0, 1e-9) {
 		t.Fatalf("%+v %v, want 000/40 (references/README.md derived case)", res.Plane, err)
 	}
-	_, err = hs.Orient(Measurement{HoleID: "H1", Depth: 50, Alpha: 20, Beta: 400})
+	_, err = hs.Orient(Measurement{HoleID: "H1", Measurement: holemodel.Measurement{Depth: 50, Alpha: 20, Beta: 400}})
 	var de *domain.Error
 	if !errors.As(err, &de) || de.Loc.Column != "beta" {
 		t.Fatalf("err = %v", err)
 	}
-	if n := testing.AllocsPerRun(100, func() { _, _ = hs.Orient(Measurement{HoleID: "H1", Depth: 50, Alpha: 20, Beta: 180}) }); n != 0 {
+	if n := testing.AllocsPerRun(100, func() {
+		_, _ = hs.Orient(Measurement{HoleID: "H1", Measurement: holemodel.Measurement{Depth: 50, Alpha: 20, Beta: 180}})
+	}); n != 0 {
 		t.Fatalf("Orient allocates %v", n)
 	}
 	if hs.Hole("H1") == nil || len(hs.List()) != 2 {
@@ -442,41 +462,6 @@ func TestOrient(t *testing.T) {
 	}
 	if _, err := ParseReference("north"); err == nil {
 		t.Fatal("bad reference accepted")
-	}
-}
-
-// The fast helpers agree with package geom.
-func TestFastHelpersMatchGeom(t *testing.T) {
-	r := rand.New(rand.NewPCG(30, 31))
-	for i := 0; i < 100000; i++ {
-		a := r.Float64()*1080 - 360
-		if a >= 720 {
-			continue
-		}
-		if fold(a) != geom.NormAzimuth(a) && !near(fold(a), geom.NormAzimuth(a), 1e-12) {
-			t.Fatalf("fold(%v) = %v, NormAzimuth %v", a, fold(a), geom.NormAzimuth(a))
-		}
-		v := geom.Vec3{X: r.NormFloat64(), Y: r.NormFloat64(), Z: r.NormFloat64()}.Unit()
-		az1, d1 := azimuthDip(v)
-		az2, d2 := v.AzimuthDip()
-		if !near(az1, az2, 1e-12) || !near(d1, d2, 1e-12) {
-			t.Fatalf("azimuthDip(%v) = %v %v, geom %v %v", v, az1, d1, az2, d2)
-		}
-		p := geom.Plane{Dip: r.Float64() * 90, DipDirection: r.Float64() * 360}
-		res := Result{Plane: p}
-		if pl, want := res.Pole(), p.Pole(); !near(pl.Trend, want.Trend, 1e-12) || pl.Plunge != want.Plunge {
-			t.Fatalf("pole %v, geom %v", pl, want)
-		}
-		if !near(fold(p.DipDirection-90), p.Strike(), 1e-12) {
-			t.Fatal("strike")
-		}
-	}
-	for _, v := range []geom.Vec3{{Z: -1}, {Z: 1}, {X: 1}, {Y: -1}} {
-		az1, d1 := azimuthDip(v)
-		az2, d2 := v.AzimuthDip()
-		if az1 != az2 || d1 != d2 {
-			t.Fatalf("%v: %v %v vs %v %v", v, az1, d1, az2, d2)
-		}
 	}
 }
 

@@ -2,6 +2,7 @@ package convert_test
 
 import (
 	"context"
+	"corvane/internal/holemodel"
 	"fmt"
 	"os"
 	"strings"
@@ -28,8 +29,8 @@ func ExampleHoles_Convert() {
 	fmt.Println(sum.Rows, sum.BadRows, err)
 	// Output:
 	// hole_id,depth,alpha,beta,gamma,type,hole_azimuth,hole_dip,easting,northing,elevation,dip,dip_direction,strike,line_trend,line_plunge,warnings,pole_trend,pole_plunge,azimuth_reference,declination,declination_source,grid_convergence,convergence_source,error
-	// KX01,35.2,45,90,,joint,45.82,-58.83,5012.756,8012.571,389.698,52.77,288.46,198.46,,,,108.46,37.23,grid,2.000,given,0.500,given,
-	// KX01,120,30,180,40,fault,47.00,-57.00,5045.793,8043.776,318.109,27.00,47.00,317.00,90.28,20.35,extrapolated below last survey station,227.00,63.00,grid,2.000,given,0.500,given,
+	// KX01,35.2,45,90,,joint,45.82,-58.83,5012.756,8012.571,389.698,52.77,288.46,198.46,,,,108.46,37.23,grid,2.000,project,0.500,project,
+	// KX01,120,30,180,40,fault,47.00,-57.00,5045.793,8043.776,318.109,27.00,47.00,317.00,90.28,20.35,extrapolated below last survey station,227.00,63.00,grid,2.000,project,0.500,project,
 	// 2 0 <nil>
 }
 
@@ -38,7 +39,7 @@ func ExampleHoles_Orient() {
 	collars := "hole_id,easting,northing,elevation,azimuth,dip,depth\nKX01,5000,8000,420,0,-60,150\n"
 	surveys := "hole_id,depth,azimuth,dip\n"
 	hs, _ := convert.Load(strings.NewReader(collars), strings.NewReader(surveys), convert.Options{})
-	r, err := hs.Orient(convert.Measurement{HoleID: "KX01", Depth: 50, Alpha: 20, Beta: 180})
+	r, err := hs.Orient(convert.Measurement{HoleID: "KX01", Measurement: holemodel.Measurement{Depth: 50, Alpha: 20, Beta: 180}})
 	fmt.Printf("%.1f/%.1f at E %.1f N %.1f Z %.1f, %v\n", r.Plane.DipDirection, r.Plane.Dip, r.Point.Pos.X, r.Point.Pos.Y, r.Point.Pos.Z, err)
 	// Output: 0.0/40.0 at E 5000.0 N 8025.0 Z 376.7, <nil>
 }

@@ -8,14 +8,10 @@
 // so memory stays flat however many rows there are. [Holes.Orient] converts a
 // single measurement for callers that are not CSV files (the HTTP service).
 //
-// Azimuth references: a survey azimuth may be against true, grid or magnetic
-// north. With declination D (true = magnetic + D) and grid convergence C
-// (grid = true - C), every azimuth is brought to the output reference, grid
-// (the default, matching the collar coordinates) or true. Corrections come,
-// in this order, from the hole's collar columns, from one value for all holes
-// ([Options].Declination, [Options].GridConvergence), or are computed by
-// package northref from the collar's coordinate system label (crs column) and
-// the survey date; given numbers always win.
+// Every hole is built by package holemodel, which alone corrects north: the
+// collar's declination and grid_convergence columns, then one value for all
+// holes ([Options].Declination, [Options].GridConvergence, the project's
+// defaults), then values computed from the collar's crs and the survey date.
 //
 // Caution: the results feed geological models and slope or excavation
 // design. They are only as good as the orientation marks, surveys and
@@ -24,18 +20,15 @@
 package convert
 
 import (
-	"errors"
 	"fmt"
 	"io"
 	"math"
-	"time"
 
 	"corvane/internal/coreangle"
 	"corvane/internal/csvio"
 	"corvane/internal/desurvey"
 	"corvane/internal/domain"
-	"corvane/internal/geom"
-	"corvane/internal/northref"
+	"corvane/internal/holemodel"
 )
 
 // Reference is a north reference for azimuths.
@@ -101,54 +94,19 @@ type Options struct {
 	Workers int
 }
 
-// Correction is a declination or convergence applied to a hole.
-type Correction struct {
-	Value  float64 // degrees; NaN when Source is none
-	Source northref.Source
-}
-
-// Hole is one desurveyed hole.
+// Hole is one hole of a loaded programme: the hole model of package
+// holemodel with its collar line and its problem located in the files.
 type Hole struct {
+	*holemodel.Hole
 	ID   string
 	Line int // line of its collar row
-	// Path is nil when Err is set.
-	Path *desurvey.Path
 	// Err is a problem with the whole hole (a correction that is needed but
-	// cannot be had); every measurement on the hole reports it.
+	// cannot be had, a station past the final depth), located in the collars
+	// or surveys file; every measurement on the hole reports it.
 	Err *domain.Error
-	// Convergence applied to the hole's azimuths.
-	Convergence Correction
-	// Caution is a warning about the hole's corrections (e.g. near a
-	// magnetic pole), "" when none.
-	Caution string
-	decl    []declAt  // declination by station depth, sorted; one entry when constant
-	out     Reference // the output reference
 	// tail is the formatted reference and correction columns when they are
 	// the same on every row of the hole, nil otherwise.
 	tail []byte
-}
-
-type declAt struct {
-	depth float64
-	c     Correction
-}
-
-// Declination returns the declination applied to the survey station at or
-// above depth md (the first station's when md is above all of them).
-func (h *Hole) Declination(md float64) Correction {
-	if len(h.decl) == 0 {
-		return Correction{Value: math.NaN(), Source: northref.SourceNone}
-	}
-	lo, hi := 0, len(h.decl) // largest lo with depth <= md, or 0
-	for hi-lo > 1 {
-		m := int(uint(lo+hi) >> 1)
-		if h.decl[m].depth <= md {
-			lo = m
-		} else {
-			hi = m
-		}
-	}
-	return h.decl[lo].c
 }
 
 // Holes is a loaded programme: the desurveyed holes and the options.
@@ -173,8 +131,9 @@ func (hs *Holes) Options() Options { return hs.opt }
 // Errors that make a file unusable are returned as a *domain.Error located at
 // file, line and column, with one problem per bad row: missing columns, broken
 // CSV, bad values, unsorted or repeated station depths, a survey of a hole
-// not in the collars, a station past the hole's final depth. A hole that only
-// lacks a correction it needs is loaded with its Err set instead.
+// not in the collars. A problem of one hole only (a correction it needs and
+// cannot have, a station past its final depth) is loaded as that hole's Err,
+// located at the row, and its measurements carry it; other holes convert.
 func Load(collars, surveys io.Reader, opt Options) (*Holes, error) {
 	if opt.Output != Grid && opt.Output != True {
 		return nil, fmt.Errorf("output reference must be grid or true, not %v", opt.Output)
@@ -191,7 +150,8 @@ func Load(collars, surveys io.Reader, opt Options) (*Holes, error) {
 	return Build(crows, srows, opt)
 }
 
-// Build desurveys holes from rows already read (see [Load]).
+// Build desurveys holes from rows already read (see [Load]). Every hole is
+// built by package holemodel from the neutral input of [HoleInput].
 func Build(crows []csvio.CollarRow, srows []csvio.SurveyRow, opt Options) (*Holes, error) {
 	cf, sf := nameOr(opt.CollarsFile, "collars"), nameOr(opt.SurveysFile, "surveys")
 	hs := &Holes{opt: opt, holes: make(map[string]*Hole, len(crows))}
@@ -209,47 +169,81 @@ func Build(crows []csvio.CollarRow, srows []csvio.SurveyRow, opt Options) (*Hole
 		}
 		byHole[s.HoleID] = append(byHole[s.HoleID], s)
 	}
-	for _, c := range crows {
-		h, bad := hs.build(c, byHole[c.HoleID], cf, sf)
-		if bad != nil {
-			problems = append(problems, bad)
-			continue
-		}
-		h.tail = h.formatTail(opt.Output)
-		hs.holes[h.ID] = h
-		hs.order = append(hs.order, h)
-	}
 	if len(problems) == 1 {
 		return nil, problems[0]
 	}
 	if len(problems) > 1 {
 		return nil, &domain.Error{Kind: domain.Invalid, Msg: fmt.Sprintf("%d problems in the collars and surveys, the first at %s: %s", len(problems), problems[0].Loc, problems[0].Msg), Problems: problems}
 	}
+	p := opt.Project()
+	for _, c := range crows {
+		m := holemodel.New(HoleInput(c, byHole[c.HoleID]), p)
+		h := &Hole{Hole: m, ID: c.HoleID, Line: c.Line}
+		if m.Err != nil {
+			h.Err = Locate(m.Err, c.Line, cf, sf)
+		} else {
+			h.tail = h.formatTail()
+		}
+		hs.holes[h.ID] = h
+		hs.order = append(hs.order, h)
+	}
 	return hs, nil
+}
+
+// Project returns the holemodel project of the options: the value for all
+// holes is the project's default.
+func (o Options) Project() holemodel.Project {
+	p := holemodel.Project{Convention: o.Convention, Method: o.Method, Unit: o.Unit, Output: o.Output.String(), NoCompute: o.NoCompute}
+	if o.Declination.Set {
+		v := o.Declination.Value
+		p.Declination = &v
+	}
+	if o.GridConvergence.Set {
+		v := o.GridConvergence.Value
+		p.GridConvergence = &v
+	}
+	return p
+}
+
+// HoleInput is the neutral hole-model input of a collar row and the hole's
+// survey rows.
+func HoleInput(c csvio.CollarRow, st []csvio.SurveyRow) holemodel.Input {
+	in := holemodel.Input{ID: c.HoleID, Collar: c.Collar, CollarRef: c.AzimuthRef, CRS: c.CRS, SurveyDate: c.SurveyDate,
+		Declination: given(c.Declination), GridConvergence: given(c.GridConvergence)}
+	in.Stations = make([]holemodel.Station, len(st))
+	for i, s := range st {
+		in.Stations[i] = holemodel.Station{Depth: s.Station.Depth, Azimuth: s.Station.Azimuth, Dip: s.Station.Dip,
+			Ref: s.AzimuthRef, Date: s.Date, Line: s.Line}
+	}
+	return in
+}
+
+func given(v float64) *float64 {
+	if math.IsNaN(v) {
+		return nil
+	}
+	return &v
+}
+
+// Locate places a hole-model problem in the files: at the survey row of the
+// station it is about, else at the hole's collar row (line collarLine of
+// collarsFile).
+func Locate(e *holemodel.Error, collarLine int, collarsFile, surveysFile string) *domain.Error {
+	loc := domain.Location{File: collarsFile, Line: collarLine, Column: e.Field}
+	if e.Station >= 0 && e.Line > 0 {
+		loc = domain.Location{File: surveysFile, Line: e.Line, Column: e.Field}
+	}
+	return domain.Errorf(domain.Invalid, "%s", e.Msg).At(loc)
 }
 
 // formatTail formats the columns azimuth_reference, declination,
 // declination_source, grid_convergence, convergence_source when they do not
 // vary with depth.
-func (h *Hole) formatTail(out Reference) []byte {
-	for _, d := range h.decl {
-		if d.c != h.decl[0].c && !(math.IsNaN(d.c.Value) && math.IsNaN(h.decl[0].c.Value)) {
-			return nil
-		}
+func (h *Hole) formatTail() []byte {
+	if !h.ConstantDeclination() {
+		return nil
 	}
-	return h.appendTail(nil, out, h.Declination(0))
-}
-
-func (h *Hole) appendTail(b []byte, out Reference, d Correction) []byte {
-	b = append(b, out.String()...)
-	b = append(b, ',')
-	b = csvio.AppendFloat(b, d.Value, correctionDecimals)
-	b = append(b, ',')
-	b = append(b, d.Source...)
-	b = append(b, ',')
-	b = csvio.AppendFloat(b, h.Convergence.Value, correctionDecimals)
-	b = append(b, ',')
-	return append(b, h.Convergence.Source...)
+	return AppendCorrections(nil, h.Output, h.Declination(0), h.Convergence)
 }
 
 func nameOr(s, def string) string {
@@ -257,170 +251,4 @@ func nameOr(s, def string) string {
 		return def
 	}
 	return s
-}
-
-// needs reports which corrections turning azimuths of reference from into
-// the output reference requires.
-func needs(from, out Reference) (decl, conv bool) {
-	if from == out {
-		return false, false
-	}
-	decl = from == Magnetic
-	conv = (from == Grid && out == True) || (from != Grid && out == Grid)
-	return decl, conv
-}
-
-// toOutput turns azimuth az of reference from into the output reference.
-func toOutput(az float64, from, out Reference, d, c float64) float64 {
-	if from == out {
-		return az
-	}
-	t := az
-	switch from {
-	case Magnetic:
-		t = az + d
-	case Grid:
-		t = az + c
-	}
-	if out == Grid {
-		t -= c
-	}
-	return geom.NormAzimuth(t)
-}
-
-// build desurveys one hole. A returned *domain.Error is a file problem;
-// a missing correction is set as h.Err.
-func (hs *Holes) build(c csvio.CollarRow, st []csvio.SurveyRow, cf, sf string) (*Hole, *domain.Error) {
-	opt := hs.opt
-	h := &Hole{ID: c.HoleID, Line: c.Line, out: opt.Output, Convergence: Correction{Value: math.NaN(), Source: northref.SourceNone}}
-	ref := func(s string) Reference {
-		if s == "" {
-			return opt.Output
-		}
-		r, _ := ParseReference(s)
-		return r
-	}
-	collarRef := ref(c.AzimuthRef)
-	collarUsed := len(st) == 0 || st[0].Station.Depth != 0
-	var needD, needC bool
-	mark := func(r Reference) {
-		d, cv := needs(r, opt.Output)
-		needD, needC = needD || d, needC || cv
-	}
-	if collarUsed {
-		mark(collarRef)
-	}
-	for _, s := range st {
-		mark(ref(s.AzimuthRef))
-	}
-	holeErr := func(col, format string, args ...any) {
-		if h.Err == nil {
-			h.Err = domain.Errorf(domain.Invalid, "hole %q: "+format, append([]any{h.ID}, args...)...).
-				At(domain.Location{File: cf, Line: c.Line, Column: col})
-		}
-	}
-	// Convergence: collar column, then the value for all, then computed.
-	if needC {
-		switch {
-		case !math.IsNaN(c.GridConvergence):
-			h.Convergence = Correction{c.GridConvergence, northref.SourceGiven}
-		case opt.GridConvergence.Set:
-			h.Convergence = Correction{opt.GridConvergence.Value, northref.SourceGiven}
-		case opt.NoCompute:
-			holeErr(csvio.ColGridConvergence, "azimuths need a grid convergence: give it in the collar's grid_convergence column or for all holes")
-		default:
-			res, err := northref.Corrections(c.CRS, c.Collar.East, c.Collar.North, metres(c.Collar.Elevation, opt.Unit), time.Time{}, false, true)
-			if err != nil {
-				holeErr(csvio.ColCRS, "azimuths need a grid convergence and it cannot be computed: %v; give it in the collar's grid_convergence column or for all holes", err)
-			} else {
-				h.Convergence = Correction{res.Convergence, northref.SourceComputed}
-			}
-		}
-	}
-	// Declination per station date: collar column, then the value for all,
-	// then computed from the station's survey date.
-	computed := map[time.Time]Correction{}
-	declFor := func(date time.Time, line int) Correction {
-		switch {
-		case !math.IsNaN(c.Declination):
-			return Correction{c.Declination, northref.SourceGiven}
-		case opt.Declination.Set:
-			return Correction{opt.Declination.Value, northref.SourceGiven}
-		case opt.NoCompute:
-			holeErr(csvio.ColDeclination, "magnetic azimuths need a declination: give it in the collar's declination column or for all holes")
-			return Correction{math.NaN(), northref.SourceNone}
-		}
-		if v, ok := computed[date]; ok {
-			return v
-		}
-		res, err := northref.Corrections(c.CRS, c.Collar.East, c.Collar.North, metres(c.Collar.Elevation, opt.Unit), date, true, false)
-		if err != nil {
-			where := ""
-			if line > 0 {
-				where = fmt.Sprintf(" (survey on %s line %d)", sf, line)
-			}
-			holeErr(csvio.ColDeclination, "magnetic azimuths need a declination and it cannot be computed%s: %v; give it in the collar's declination column or for all holes", where, err)
-			return Correction{math.NaN(), northref.SourceNone}
-		}
-		if cau := res.Caution(); cau != "" && h.Caution == "" {
-			h.Caution = cau
-		}
-		v := Correction{res.Declination, northref.SourceComputed}
-		computed[date] = v
-		return v
-	}
-	conv := h.Convergence.Value
-	stations := make([]desurvey.Station, 0, len(st))
-	for _, s := range st {
-		r := ref(s.AzimuthRef)
-		var d float64
-		if r == Magnetic {
-			dc := declFor(s.Date, s.Line)
-			d = dc.Value
-			h.decl = append(h.decl, declAt{s.Station.Depth, dc})
-		}
-		if h.Err != nil {
-			return h, nil
-		}
-		stations = append(stations, desurvey.Station{Depth: s.Station.Depth, Azimuth: toOutput(s.Station.Azimuth, r, opt.Output, d, conv), Dip: s.Station.Dip})
-	}
-	collar := c.Collar
-	if collarUsed {
-		var d float64
-		if collarRef == Magnetic {
-			var date time.Time
-			for _, s := range st {
-				if !s.Date.IsZero() {
-					date = s.Date
-					break
-				}
-			}
-			dc := declFor(date, 0)
-			d = dc.Value
-			h.decl = append([]declAt{{0, dc}}, h.decl...)
-		}
-		if h.Err != nil {
-			return h, nil
-		}
-		collar.Azimuth = toOutput(collar.Azimuth, collarRef, opt.Output, d, conv)
-	}
-	p, err := desurvey.NewWith(collar, stations, desurvey.Options{Method: opt.Method, Unit: opt.Unit})
-	if err != nil {
-		loc := domain.Location{File: cf, Line: c.Line}
-		// Point at the survey row when the error is about a station.
-		var se *desurvey.StationError
-		if errors.As(err, &se) && se.Index >= 0 && se.Index < len(st) {
-			loc = domain.Location{File: sf, Line: st[se.Index].Line, Column: csvio.ColDepth}
-		}
-		return nil, domain.Errorf(domain.Invalid, "hole %q: %v", h.ID, err).At(loc)
-	}
-	h.Path = p
-	return h, nil
-}
-
-func metres(v float64, u desurvey.Unit) float64 {
-	if u == desurvey.Feet {
-		return v * 0.3048
-	}
-	return v
 }

@@ -26,6 +26,10 @@ type CollarRow struct {
 	// CRS is the coordinate system label of the collar (e.g. EPSG:32750), ""
 	// when not given.
 	CRS string
+	// SurveyDate is the date of the hole's survey (survey_date column,
+	// YYYY-MM-DD), used for a magnetic collar azimuth and for survey rows
+	// without a date of their own; zero when not given.
+	SurveyDate time.Time
 }
 
 // CollarColumns are the required columns of a collars file.
@@ -33,8 +37,8 @@ var CollarColumns = []string{ColHoleID, ColEasting, ColNorthing, ColElevation, C
 
 // ReadCollars reads a whole collars file: required columns hole_id, easting,
 // northing, elevation, azimuth (0..360), dip (-90..90, negative down) and
-// depth (> 0); optional declination, grid_convergence, azimuth_reference and
-// crs. Hole ids must be unique (compared exactly, after trimming spaces).
+// depth (> 0); optional declination, grid_convergence, azimuth_reference,
+// crs and survey_date. Hole ids must be unique (compared exactly, after trimming spaces).
 //
 // file names the file in messages. A missing column or broken CSV is an
 // error at once; bad rows are all reported, one problem each, in one error
@@ -71,6 +75,7 @@ func ReadCollars(r io.Reader, file string) ([]CollarRow, error) {
 			cw.AzimuthRef = ref
 		}
 		cw.CRS = rw.cell(ColCRS)
+		cw.SurveyDate = rw.date(ColSurveyDate)
 		if rw.bad == nil {
 			seen[cw.HoleID] = line
 		}
@@ -130,13 +135,7 @@ func ReadSurveys(r io.Reader, file string) ([]SurveyRow, error) {
 		} else {
 			s.AzimuthRef = ref
 		}
-		if d := rw.cell(ColSurveyDate); d != "" {
-			t, err := time.Parse(time.DateOnly, d)
-			if err != nil {
-				rw.fail(ColSurveyDate, "survey_date %q is not a date YYYY-MM-DD", d)
-			}
-			s.Date = t
-		}
+		s.Date = rw.date(ColSurveyDate)
 		if rw.bad == nil {
 			prev[s.HoleID] = last{s.Station.Depth, line}
 		}

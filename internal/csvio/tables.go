@@ -23,6 +23,7 @@ import (
 	"math"
 	"strconv"
 	"strings"
+	"time"
 
 	"corvane/internal/domain"
 )
@@ -227,6 +228,21 @@ func (r *row) num(col string, required bool) (v float64, ok bool) {
 }
 
 // inRange checks lo <= v <= hi for a parsed value.
+// date reads an optional YYYY-MM-DD cell; zero when empty or bad (a bad
+// one fails the row).
+func (r *row) date(col string) time.Time {
+	d := r.cell(col)
+	if d == "" {
+		return time.Time{}
+	}
+	t, err := time.Parse(time.DateOnly, d)
+	if err != nil {
+		r.fail(col, "%s %q is not a date YYYY-MM-DD", col, d)
+		return time.Time{}
+	}
+	return t
+}
+
 func (r *row) inRange(col string, v float64, ok bool, lo, hi float64) {
 	if ok && (v < lo || v > hi) {
 		r.fail(col, "%s %g is outside %g..%g", col, v, lo, hi)

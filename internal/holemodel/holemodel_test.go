@@ -1,7 +1,9 @@
 package holemodel
 
 import (
+	"corvane/internal/geom"
 	"math"
+	"math/rand/v2"
 	"strings"
 	"testing"
 	"time"
@@ -166,3 +168,40 @@ func TestOrientDoesNotAllocate(t *testing.T) {
 		t.Errorf("Orient allocates %v times", n)
 	}
 }
+
+// The fast helpers agree with package geom.
+func TestFastHelpersMatchGeom(t *testing.T) {
+	r := rand.New(rand.NewPCG(30, 31))
+	for i := 0; i < 100000; i++ {
+		a := r.Float64()*1080 - 360
+		if a >= 720 {
+			continue
+		}
+		if fold(a) != geom.NormAzimuth(a) && !nearly(fold(a), geom.NormAzimuth(a), 1e-12) {
+			t.Fatalf("fold(%v) = %v, NormAzimuth %v", a, fold(a), geom.NormAzimuth(a))
+		}
+		v := geom.Vec3{X: r.NormFloat64(), Y: r.NormFloat64(), Z: r.NormFloat64()}.Unit()
+		az1, d1 := azimuthDip(v)
+		az2, d2 := v.AzimuthDip()
+		if !nearly(az1, az2, 1e-12) || !nearly(d1, d2, 1e-12) {
+			t.Fatalf("azimuthDip(%v) = %v %v, geom %v %v", v, az1, d1, az2, d2)
+		}
+		p := geom.Plane{Dip: r.Float64() * 90, DipDirection: r.Float64() * 360}
+		res := Result{Plane: p}
+		if pl, want := res.Pole(), p.Pole(); !nearly(pl.Trend, want.Trend, 1e-12) || pl.Plunge != want.Plunge {
+			t.Fatalf("pole %v, geom %v", pl, want)
+		}
+		if !nearly(fold(p.DipDirection-90), p.Strike(), 1e-12) {
+			t.Fatal("strike")
+		}
+	}
+	for _, v := range []geom.Vec3{{Z: -1}, {Z: 1}, {X: 1}, {Y: -1}} {
+		az1, d1 := azimuthDip(v)
+		az2, d2 := v.AzimuthDip()
+		if az1 != az2 || d1 != d2 {
+			t.Fatalf("%v: %v %v vs %v %v", v, az1, d1, az2, d2)
+		}
+	}
+}
+
+func nearly(a, b, tol float64) bool { return math.Abs(a-b) <= tol }

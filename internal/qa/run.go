@@ -260,6 +260,14 @@ func checkHole(h *holeData, conv coreangle.Convention, o Options, loggers map[st
 	hr := h.report
 	id := h.c.HoleID
 
+	if h.c.Problem != "" {
+		out = append(out, Finding{Check: CheckSurveyInvalid, Severity: SeverityFlag, HoleID: id, Source: h.c.ProblemSource, Line: h.c.ProblemLine,
+			Message: fmt.Sprintf("hole %s cannot be oriented (%s): its measurements are not checked", id, h.c.Problem)})
+		hr.Runs = []RunReport{}
+		hr.Stations = []StationReport{}
+		return out
+	}
+
 	// Surveys: keep the stations a path can be built from.
 	sort.SliceStable(h.st, func(i, j int) bool { return h.st[i].Depth < h.st[j].Depth })
 	var good []Station

@@ -18,6 +18,13 @@ type Collar struct {
 	Dip       float64 `json:"dip"`
 	Depth     float64 `json:"depth"`
 	Line      int     `json:"line,omitempty"` // source line, for messages; 0 if none
+	// Problem is a problem of the whole hole found by the hole model (a
+	// north correction it needs and cannot have, a station past the final
+	// depth), "" when none; ProblemSource and ProblemLine locate it. Such a
+	// hole is reported once and its measurements are not checked.
+	Problem       string `json:"problem,omitempty"`
+	ProblemSource string `json:"problem_source,omitempty"`
+	ProblemLine   int    `json:"problem_line,omitempty"`
 }
 
 // Station is one survey station. Azimuth is in the same north reference as
