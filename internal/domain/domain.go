@@ -51,17 +51,18 @@ type Project struct {
 	LengthUnit string `json:"length_unit"`
 	// OutputAzimuthRef is the north reference of derived azimuths: "grid" or "true".
 	OutputAzimuthRef string `json:"output_azimuth_ref"`
-	// Declination is the default magnetic declination in degrees, positive
-	// when magnetic north is east of true north (true = magnetic + D). It
-	// applies to magnetic azimuths of holes whose survey set has no
-	// declination of its own (given, or computed from the collar's crs and
-	// the survey date when the set is stored).
-	Declination float64 `json:"declination"`
-	// Convergence is the default grid convergence in degrees, positive when
-	// grid north is east of true north (grid = true - C). It applies to
-	// holes whose collar crs label cannot be placed (a UTM EPSG code is
-	// computed per collar); a local mine grid leaves crs empty or free text.
-	Convergence float64   `json:"convergence"`
+	// Declination is the project's default magnetic declination in degrees,
+	// positive when magnetic north is east of true north (true = magnetic +
+	// D); nil until someone sets it. It applies to magnetic azimuths of holes
+	// without a declination of their own (survey set, then hole); when it is
+	// unset the declination is computed from the collar's crs and the survey
+	// date, and a hole where that is impossible has an error.
+	Declination *float64 `json:"declination"`
+	// Convergence is the project's default grid convergence in degrees,
+	// positive when grid north is east of true north (grid = true - C); nil
+	// until someone sets it. It applies to holes without their own; when it
+	// is unset it is computed from the collar's crs label (a UTM EPSG code).
+	Convergence *float64  `json:"convergence"`
 	Version     int64     `json:"version"`
 	CreatedAt   time.Time `json:"created_at"`
 	UpdatedAt   time.Time `json:"updated_at"`
@@ -90,10 +91,19 @@ type Hole struct {
 	Azimuth float64 `json:"azimuth"`
 	// AzimuthRef is the north the collar azimuth is given against: "grid"
 	// (the default, matching the collar coordinates), "true" or "magnetic".
-	AzimuthRef string    `json:"azimuth_ref"`
-	Dip        float64   `json:"dip"`
-	FinalDepth float64   `json:"final_depth"`
-	CRS        string    `json:"crs"`      // coordinate system label, e.g. "EPSG:32750"; free text
+	AzimuthRef string  `json:"azimuth_ref"`
+	Dip        float64 `json:"dip"`
+	FinalDepth float64 `json:"final_depth"`
+	CRS        string  `json:"crs"` // coordinate system label, e.g. "EPSG:32750"; free text
+	// Declination and GridConvergence are numbers given for this hole
+	// (degrees; true = magnetic + D, grid = true - C), nil when not given;
+	// they win over the project's defaults and computed values.
+	Declination     *float64 `json:"declination"`
+	GridConvergence *float64 `json:"grid_convergence"`
+	// SurveyDate is the date of the hole's survey (YYYY-MM-DD or empty), for
+	// computing the declination of a magnetic collar azimuth or survey set
+	// without a date of its own.
+	SurveyDate string    `json:"survey_date"`
 	Started    string    `json:"started"`  // YYYY-MM-DD or empty
 	Finished   string    `json:"finished"` // YYYY-MM-DD or empty
 	Version    int64     `json:"version"`
@@ -121,13 +131,13 @@ type SurveySet struct {
 	// "true", "grid" or "magnetic".
 	AzimuthRef string `json:"azimuth_ref"`
 	SurveyDate string `json:"survey_date"` // YYYY-MM-DD or empty
-	// Declination overrides the project's default declination for a magnetic
-	// survey; nil means use the project's.
+	// Declination is a declination given with the set for its magnetic
+	// azimuths; it wins over the hole's and the project's. nil means none.
 	Declination *float64 `json:"declination"`
-	// DeclinationSource says where Declination came from: "given" (a number
-	// sent with the set), "computed" (from the magnetic model when the set
-	// was stored), or "" when the set has none. It is read-only: the service
-	// sets it and ignores what a client sends.
+	// DeclinationSource is "given" when the set has a declination, "" when
+	// not. It is read-only: the service sets it and ignores what a client
+	// sends. (A declination the magnetic model gives is computed on every
+	// read by the hole model, never stored.)
 	DeclinationSource string    `json:"declination_source"`
 	Stations          []Station `json:"stations"`
 	Version           int64     `json:"version"`

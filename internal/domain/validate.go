@@ -148,14 +148,22 @@ func (p *Project) Normalize() error {
 		checkOneOf("gamma_sense", p.GammaSense, GammaClockwise, GammaAnticlockwise),
 		checkOneOf("length_unit", p.LengthUnit, UnitMetre, UnitFoot),
 		checkOneOf("output_azimuth_ref", p.OutputAzimuthRef, AzimuthGrid, AzimuthTrue),
-		checkRange("declination", p.Declination, -180, 180),
-		checkRange("convergence", p.Convergence, -90, 90),
+		checkOptRange("declination", p.Declination, -180, 180),
+		checkOptRange("convergence", p.Convergence, -90, 90),
 	} {
 		if e != nil {
 			return e
 		}
 	}
 	return nil
+}
+
+// checkOptRange checks an optional number like checkRange; nil passes.
+func checkOptRange(field string, v *float64, lo, hi float64) *Error {
+	if v == nil {
+		return nil
+	}
+	return checkRange(field, *v, lo, hi)
 }
 
 // Normalize validates tc; Kind defaults to "plane".
@@ -200,6 +208,9 @@ func (h *Hole) Normalize() error {
 		checkRange("final_depth", h.FinalDepth, 0, 1e5),
 		CheckDate("started", h.Started),
 		CheckDate("finished", h.Finished),
+		CheckDate("survey_date", h.SurveyDate),
+		checkOptRange("declination", h.Declination, -180, 180),
+		checkOptRange("grid_convergence", h.GridConvergence, -90, 90),
 	} {
 		if e != nil {
 			return e
@@ -224,10 +235,12 @@ func (s *SurveySet) Normalize() error {
 	if e := CheckDate("survey_date", s.SurveyDate); e != nil {
 		return e
 	}
+	s.DeclinationSource = ""
 	if s.Declination != nil {
 		if e := checkRange("declination", *s.Declination, -180, 180); e != nil {
 			return e
 		}
+		s.DeclinationSource = SourceGiven
 	}
 	for i := range s.Stations {
 		st := &s.Stations[i]

@@ -33,15 +33,21 @@ type ConvertCollar struct {
 	// output reference.
 	AzimuthRef string `json:"azimuth_ref"`
 	// CRS labels the collar coordinates (e.g. EPSG:32750) so a magnetic
-	// survey's declination can be computed when none is given.
+	// survey's declination and the grid convergence can be computed when
+	// none is given.
 	CRS string `json:"crs"`
+	// Declination and GridConvergence given for the hole (null: not given);
+	// SurveyDate the date of its survey (YYYY-MM-DD), as in the collars file.
+	Declination     *float64 `json:"declination"`
+	GridConvergence *float64 `json:"grid_convergence"`
+	SurveyDate      string   `json:"survey_date"`
 }
 
 // ConvertSurvey is the survey set of one hole.
 type ConvertSurvey struct {
 	HoleID      string           `json:"hole_id"`
 	AzimuthRef  string           `json:"azimuth_ref"` // true, grid or magnetic; default the output reference
-	Declination *float64         `json:"declination"` // overrides the conventions' declination
+	Declination *float64         `json:"declination"` // given with the set: wins over the hole's and the conventions' declination
 	SurveyDate  string           `json:"survey_date"` // YYYY-MM-DD; with the collar's crs gives a magnetic survey its declination
 	Stations    []domain.Station `json:"stations"`
 }
@@ -72,11 +78,16 @@ type ConvertResponse struct {
 	Results     []ConvertResult `json:"results"`
 }
 
-// Convert converts measurements without storing anything. Any authenticated
-// caller may use it. Collars and surveys must be valid as a whole (Invalid,
-// naming the field, e.g. "collars[2].dip"); a measurement that cannot be
-// converted (unknown hole, depth past the end, angle out of range) gets its
-// own Derived.Error and the others are still converted.
+// Convert converts measurements without storing anything, with the hole
+// model every other door uses. Any authenticated caller may use it. Collars
+// and surveys must be valid as a whole (Invalid, naming the field, e.g.
+// "collars[2].dip"); a problem of one hole (a station past its final depth,
+// a correction it needs and cannot have) is an error on that hole's
+// measurements, and a measurement that cannot be converted (unknown hole,
+// depth past the end, angle out of range) gets its own Derived.Error; the
+// others are still converted. An azimuth without azimuth_ref is in the
+// output reference, as in the CSV files. What Derived reports as applied is
+// what was applied.
 func (s *Service) Convert(ctx context.Context, req ConvertRequest) (ConvertResponse, error) {
 	var resp ConvertResponse
 	if err := Authenticated(ctx); err != nil {
@@ -104,7 +115,8 @@ func (s *Service) Convert(ctx context.Context, req ConvertRequest) (ConvertRespo
 	models := map[string]*holeModel{}
 	for i, cl := range req.Collars {
 		h := domain.Hole{Name: cl.HoleID, East: cl.East, North: cl.North, Elevation: cl.Elevation,
-			Azimuth: cl.Azimuth, AzimuthRef: orDefault(cl.AzimuthRef, c.OutputAzimuthRef), Dip: cl.Dip, FinalDepth: cl.FinalDepth, CRS: cl.CRS}
+			Azimuth: cl.Azimuth, AzimuthRef: orDefault(cl.AzimuthRef, c.OutputAzimuthRef), Dip: cl.Dip, FinalDepth: cl.FinalDepth, CRS: cl.CRS,
+			Declination: cl.Declination, GridConvergence: cl.GridConvergence, SurveyDate: cl.SurveyDate}
 		if err := h.Normalize(); err != nil {
 			return resp, prefixField(err, "collars["+strconv.Itoa(i)+"].")
 		}
@@ -113,7 +125,6 @@ func (s *Service) Convert(ctx context.Context, req ConvertRequest) (ConvertRespo
 		}
 		ss := surveys[h.Name]
 		if ss != nil {
-			fillDeclination(ss, h)
 		}
 		models[h.Name] = newHoleModel(c, h, ss, nil)
 	}

@@ -35,18 +35,9 @@ func (s *Service) LoadDemo(ctx context.Context) (p domain.Project, loaded bool, 
 	p = domain.Project{Name: d.Name, Description: d.Description, RefLine: d.RefLine, BetaApex: d.BetaApex,
 		GammaSense: d.GammaSense, LengthUnit: d.LengthUnit, OutputAzimuthRef: d.OutputReference}
 	holes := make([]domain.Hole, len(d.Collars))
-	var conv float64
-	var nconv int
 	for i, c := range d.Collars {
 		holes[i] = domain.Hole{Name: c.HoleID, East: c.East, North: c.North, Elevation: c.Elevation, Azimuth: c.Azimuth,
 			AzimuthRef: c.AzimuthRef, Dip: c.Dip, FinalDepth: c.Depth, CRS: c.CRS}
-		if cv, ok := convergenceAt(holes[i]); ok {
-			conv += cv
-			nconv++
-		}
-	}
-	if nconv > 0 {
-		p.Convergence = conv / float64(nconv)
 	}
 	if err := p.Normalize(); err != nil {
 		return p, false, err
@@ -100,7 +91,6 @@ func (s *Service) LoadDemo(ctx context.Context) (p domain.Project, loaded bool, 
 			if err := ss.Normalize(); err != nil {
 				return err
 			}
-			fillDeclination(ss, *byName[id])
 			if err := st.PutSurvey(ctx, ss, 0); err != nil {
 				return err
 			}

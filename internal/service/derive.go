@@ -2,15 +2,15 @@ package service
 
 import (
 	"context"
-	"errors"
-	"fmt"
 	"math"
 	"strings"
+	"time"
 
+	"corvane/internal/convert"
 	"corvane/internal/coreangle"
 	"corvane/internal/desurvey"
 	"corvane/internal/domain"
-	"corvane/internal/geom"
+	"corvane/internal/holemodel"
 )
 
 // Derived holds the values computed from a measurement, its hole's current
@@ -42,19 +42,20 @@ type Derived struct {
 	LinePlunge *float64 `json:"line_plunge"`
 	// TrueThickness is apparent thickness * sin(alpha), when an apparent thickness was logged.
 	TrueThickness *float64 `json:"true_thickness"`
-	// GridConvergence is the convergence used for the hole, degrees (grid =
-	// true - C); ConvergenceSource says where it came from: "computed" from
-	// the collar's crs label and position, or "project" (the project's
-	// default, for a collar that cannot be placed).
+	// GridConvergence is the convergence applied to the hole's azimuths,
+	// degrees (grid = true - C), null when none was applied;
+	// ConvergenceSource says where it came from: "given" (for the hole),
+	// "project" (the project's default), "computed" (from the collar's crs
+	// label and position) or "none" (not applied).
 	GridConvergence   *float64 `json:"grid_convergence"`
 	ConvergenceSource string   `json:"convergence_source"`
-	// Declination is the magnetic declination applied, degrees (true =
-	// magnetic + D), when a magnetic azimuth was involved, else null;
-	// DeclinationSource is "given" (a number sent with the survey set),
-	// "computed" (from the magnetic model when the survey set was stored) or
-	// "project" (the project's default).
+	// Declination is the magnetic declination applied at the depth, degrees
+	// (true = magnetic + D), null when no magnetic azimuth was involved;
+	// DeclinationSource as ConvergenceSource ("given" is a number sent with
+	// the survey set or the hole; "computed" from the magnetic model at the
+	// collar on the survey date).
 	Declination       *float64 `json:"declination"`
-	DeclinationSource string   `json:"declination_source,omitempty"`
+	DeclinationSource string   `json:"declination_source"`
 	// RunConfidence is the confidence of the orientation run covering the
 	// depth, "" when no run covers it.
 	RunConfidence string `json:"run_confidence"`
@@ -64,15 +65,17 @@ type Derived struct {
 	Error string `json:"error,omitempty"`
 }
 
-// Conventions are the choices a conversion depends on; a project carries them.
+// Conventions are the choices a conversion depends on; a project carries
+// them. Declination and Convergence are the project's defaults, null while
+// unset.
 type Conventions struct {
-	RefLine          string  `json:"ref_line"`
-	BetaApex         string  `json:"beta_apex"`
-	GammaSense       string  `json:"gamma_sense"`
-	LengthUnit       string  `json:"length_unit"`
-	OutputAzimuthRef string  `json:"output_azimuth_ref"`
-	Declination      float64 `json:"declination"`
-	Convergence      float64 `json:"convergence"`
+	RefLine          string   `json:"ref_line"`
+	BetaApex         string   `json:"beta_apex"`
+	GammaSense       string   `json:"gamma_sense"`
+	LengthUnit       string   `json:"length_unit"`
+	OutputAzimuthRef string   `json:"output_azimuth_ref"`
+	Declination      *float64 `json:"declination"`
+	Convergence      *float64 `json:"convergence"`
 }
 
 // ConventionsOf returns the project's conventions.
@@ -106,110 +109,53 @@ func (c Conventions) core() coreangle.Convention {
 	return cv
 }
 
-// toOutput converts an azimuth measured from north reference ref ("true",
-// "grid" or "magnetic") into the output reference out ("grid" or "true"),
-// with declination decl (true = magnetic + decl) and grid convergence conv
-// (grid = true - conv), as in the project's conventions.
-func toOutput(az float64, ref, out string, decl, conv float64) float64 {
-	t := az
-	switch ref {
-	case domain.AzimuthMagnetic:
-		t = az + decl
-	case domain.AzimuthGrid:
-		t = az + conv
+// project is the hole model's project of the conventions: minimum
+// curvature, the project's unit, output reference and defaults.
+func (c Conventions) project() holemodel.Project {
+	p := holemodel.Project{Convention: c.core(), Method: desurvey.MinimumCurvature, Output: c.OutputAzimuthRef,
+		Declination: c.Declination, GridConvergence: c.Convergence}
+	if c.LengthUnit == domain.UnitFoot {
+		p.Unit = desurvey.Feet
 	}
-	if out == domain.AzimuthGrid {
-		t -= conv
-	}
-	return geom.NormAzimuth(t)
+	return p
 }
 
-// holeModel is a hole ready for derived values: its path in the output
-// reference, its runs and the conventions.
+// holeInput is the hole model's neutral input for the stored hole h and its
+// survey set ss (nil when none).
+func holeInput(h domain.Hole, ss *domain.SurveySet) holemodel.Input {
+	in := holemodel.Input{ID: h.Name, CRS: h.CRS, CollarRef: h.AzimuthRef,
+		Collar:      desurvey.Collar{East: h.East, North: h.North, Elevation: h.Elevation, Azimuth: h.Azimuth, Dip: h.Dip, Depth: h.FinalDepth},
+		Declination: h.Declination, GridConvergence: h.GridConvergence}
+	in.SurveyDate, _ = time.Parse(time.DateOnly, h.SurveyDate)
+	if ss != nil {
+		in.SurveyDeclination = ss.Declination
+		var date time.Time
+		if ss.SurveyDate != "" {
+			date, _ = time.Parse(time.DateOnly, ss.SurveyDate)
+		}
+		in.Stations = make([]holemodel.Station, len(ss.Stations))
+		for i, st := range ss.Stations {
+			in.Stations[i] = holemodel.Station{Depth: st.Depth, Azimuth: st.Azimuth, Dip: st.Dip, Ref: ss.AzimuthRef, Date: date}
+		}
+	}
+	return in
+}
+
+// holeModel is a hole ready for derived values: the hole model of package
+// holemodel, the stored hole and survey set it was built from, its runs.
 type holeModel struct {
-	name string
-	// corrections applied to the hole's azimuths (see Derived)
-	gc, decl         float64
-	convSrc, declSrc string
-	conv             Conventions
-	core             coreangle.Convention
-	path             *desurvey.Path
-	err              error // why the path could not be built
-	runs             []domain.Run
-	depth            float64
-	// the collar and survey set the model was built from
+	*holemodel.Hole
+	name   string
+	conv   Conventions
+	runs   []domain.Run
 	hole   domain.Hole
 	survey *domain.SurveySet
-	// collar and stations are the path's input: the collar and survey
-	// stations with their azimuths corrected to the output reference
-	collar   desurvey.Collar
-	stations []desurvey.Station
 }
 
-// newHoleModel builds the path of h from its survey set ss (nil when the
-// hole has none). Station azimuths are in the set's reference, the collar
-// azimuth in the hole's own; a magnetic one uses the set's declination when
-// it has one and the project's otherwise. The grid convergence is computed
-// at the collar from its crs label when the collar can be placed (package
-// northref), else the project's default applies.
+// newHoleModel builds the model of the stored hole h with survey set ss (nil
+// when the hole has none) and runs.
 func newHoleModel(c Conventions, h domain.Hole, ss *domain.SurveySet, runs []domain.Run) *holeModel {
-	m := &holeModel{name: h.Name, conv: c, core: c.core(), runs: runs, depth: h.FinalDepth, hole: h, survey: ss}
-	var href string
-	m.gc, m.convSrc, m.decl, m.declSrc, href = holeCorrections(c, h, ss)
-	if ss != nil {
-		m.stations = make([]desurvey.Station, len(ss.Stations))
-		for i, st := range ss.Stations {
-			m.stations[i] = desurvey.Station{Depth: st.Depth, Azimuth: toOutput(st.Azimuth, ss.AzimuthRef, c.OutputAzimuthRef, m.decl, m.gc), Dip: st.Dip}
-		}
-	}
-	m.collar = desurvey.Collar{East: h.East, North: h.North, Elevation: h.Elevation,
-		Azimuth: toOutput(h.Azimuth, href, c.OutputAzimuthRef, m.decl, m.gc), Dip: h.Dip, Depth: h.FinalDepth}
-	opt := desurvey.Options{Method: desurvey.MinimumCurvature}
-	if c.LengthUnit == domain.UnitFoot {
-		opt.Unit = desurvey.Feet
-	}
-	m.path, m.err = desurvey.NewWith(m.collar, m.stations, opt)
-	if m.err != nil {
-		m.err = fmt.Errorf("hole %s: %w", h.Name, m.err)
-	}
-	return m
-}
-
-// holeCorrections returns the corrections the hole model applies to h with
-// survey set ss (nil when none): the grid convergence gc and its source
-// ("computed" at the collar from its crs label when the collar can be placed,
-// else "project"), the declination decl and its source (the survey set's
-// own source, "given" or "computed", when the set has a declination, else
-// "project"; "" when no magnetic azimuth is involved), and
-// the collar azimuth's reference href (the project's output reference when
-// the hole gives none).
-func holeCorrections(c Conventions, h domain.Hole, ss *domain.SurveySet) (gc float64, convSrc string, decl float64, declSrc, href string) {
-	gc, convSrc = c.Convergence, "project"
-	if h.CRS != "" {
-		if cv, ok := convergenceAt(h); ok {
-			gc, convSrc = cv, "computed"
-		}
-	}
-	decl, declSrc = c.Declination, "project"
-	href = h.AzimuthRef
-	if href == "" {
-		href = c.OutputAzimuthRef
-	}
-	magnetic := href == domain.AzimuthMagnetic
-	if ss != nil {
-		if ss.Declination != nil {
-			decl, declSrc = *ss.Declination, ss.DeclinationSource
-			if declSrc != domain.SourceComputed {
-				// Sets stored before the source was recorded read as given.
-				declSrc = domain.SourceGiven
-			}
-		}
-		magnetic = magnetic || ss.AzimuthRef == domain.AzimuthMagnetic
-	}
-	if !magnetic {
-		declSrc = ""
-	}
-	return gc, convSrc, decl, declSrc, href
+	return &holeModel{Hole: holemodel.New(holeInput(h, ss), c.project()), name: h.Name, conv: c, runs: runs, hole: h, survey: ss}
 }
 
 func opt(x float64) *float64 {
@@ -219,72 +165,71 @@ func opt(x float64) *float64 {
 	return &x
 }
 
-// derive computes the derived values of one measurement.
-func (m *holeModel) derive(depth, alpha, beta float64, gamma, apparent *float64) Derived {
-	d := Derived{AzimuthRef: m.conv.OutputAzimuthRef, Warnings: []string{},
-		GridConvergence: opt(m.gc), ConvergenceSource: m.convSrc}
-	if m.declSrc != "" {
-		d.Declination, d.DeclinationSource = opt(m.decl), m.declSrc
-	}
-	if m.err != nil {
-		d.Error = m.err.Error()
-		return d
-	}
-	pt, err := m.path.At(depth)
-	if err != nil {
-		if errors.Is(err, desurvey.ErrPastEnd) {
-			d.Error = fmt.Sprintf("depth %v is past the final depth %v of hole %s", depth, m.depth, m.name)
-		} else {
-			d.Error = fmt.Sprintf("hole %s at depth %v: %v", m.name, depth, err)
-		}
-		return d
-	}
-	az, dip := pt.Dir.AzimuthDip()
-	d.HoleAzimuth, d.HoleDip = opt(az), opt(dip)
-	d.East, d.North, d.Elevation = opt(pt.Pos.X), opt(pt.Pos.Y), opt(pt.Pos.Z)
-	pl, w := coreangle.Plane(pt.Dir, alpha, beta, m.core)
-	d.Dip = opt(pl.Dip)
-	if !math.IsNaN(pl.DipDirection) {
-		d.DipDirection, d.Strike = opt(pl.DipDirection), opt(pl.Strike())
-		pole := pl.Pole()
-		d.PoleTrend, d.PolePlunge = opt(pole.Trend), opt(pole.Plunge)
-	} else {
-		d.PolePlunge = opt(90 - pl.Dip)
-	}
+// orient orients one measurement with the hole model.
+func (m *holeModel) orient(depth, alpha, beta float64, gamma, apparent *float64) (holemodel.Result, error) {
+	hm := holemodel.Measurement{Depth: depth, Alpha: alpha, Beta: beta}
 	if gamma != nil {
-		ln, lw := coreangle.Line(pt.Dir, alpha, beta, *gamma, m.core)
-		w |= lw
-		d.LineTrend, d.LinePlunge = opt(ln.Trend), opt(ln.Plunge)
+		hm.Gamma, hm.HasGamma = *gamma, true
 	}
 	if apparent != nil {
-		d.TrueThickness = opt(coreangle.TrueThickness(*apparent, alpha))
+		hm.Thickness, hm.HasThickness = *apparent, true
 	}
-	if pt.Extrapolated {
-		w |= coreangle.Extrapolated
+	return m.Orient(hm)
+}
+
+// derive computes the derived values of one measurement, with r and err
+// from orient.
+func (m *holeModel) derive(depth, alpha, beta float64, gamma, apparent *float64) Derived {
+	r, err := m.orient(depth, alpha, beta, gamma, apparent)
+	return m.derived(depth, &r, err)
+}
+
+func (m *holeModel) derived(depth float64, r *holemodel.Result, err error) Derived {
+	d := Derived{AzimuthRef: m.Output, Warnings: []string{}}
+	conv, decl := m.Convergence, m.Declination(depth)
+	if err == nil {
+		conv, decl = r.Convergence, r.Declination
 	}
-	if s := w.String(); s != "" {
+	d.GridConvergence, d.ConvergenceSource = opt(conv.Value), string(conv.Source)
+	d.Declination, d.DeclinationSource = opt(decl.Value), string(decl.Source)
+	if err != nil {
+		d.Error = err.Error()
+		return d
+	}
+	d.HoleAzimuth, d.HoleDip = opt(r.HoleAzimuth), opt(r.HoleDip)
+	d.East, d.North, d.Elevation = opt(r.Point.Pos.X), opt(r.Point.Pos.Y), opt(r.Point.Pos.Z)
+	d.Dip, d.DipDirection, d.Strike = opt(r.Plane.Dip), opt(r.Plane.DipDirection), opt(r.Strike())
+	pole := r.Pole()
+	d.PoleTrend, d.PolePlunge = opt(pole.Trend), opt(pole.Plunge)
+	if r.HasLine {
+		d.LineTrend, d.LinePlunge = opt(r.Line.Trend), opt(r.Line.Plunge)
+	}
+	d.TrueThickness = opt(r.TrueThickness)
+	if s := convert.Warnings(r, m.Hole); s != "" {
 		d.Warnings = append(d.Warnings, strings.Split(s, "; ")...)
 	}
-	d.RunConfidence = "none"
-	covered := false
+	d.RunConfidence, d.Warnings = m.runAt(depth, d.Warnings)
+	return d
+}
+
+// runAt returns the confidence of the orientation run covering depth (""
+// when none) and warn with the run's warning added.
+func (m *holeModel) runAt(depth float64, warn []string) (string, []string) {
 	for _, r := range m.runs {
 		if depth >= r.From && depth <= r.To {
-			d.RunConfidence, covered = r.Confidence, true
-			break
+			switch r.Confidence {
+			case "none":
+				warn = append(warn, "orientation run rated unusable")
+			case "poor":
+				warn = append(warn, "orientation run rated poor")
+			}
+			return r.Confidence, warn
 		}
 	}
-	switch {
-	case !covered:
-		d.RunConfidence = ""
-		if len(m.runs) > 0 {
-			d.Warnings = append(d.Warnings, "no orientation run covers this depth")
-		}
-	case d.RunConfidence == "none":
-		d.Warnings = append(d.Warnings, "orientation run rated unusable")
-	case d.RunConfidence == "poor":
-		d.Warnings = append(d.Warnings, "orientation run rated poor")
+	if len(m.runs) > 0 {
+		warn = append(warn, "no orientation run covers this depth")
 	}
-	return d
+	return "", warn
 }
 
 // deriver builds hole models on demand within one request, so a list of

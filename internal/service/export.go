@@ -2,40 +2,27 @@ package service
 
 import (
 	"context"
-	"encoding/csv"
 	"io"
 	"strconv"
 	"strings"
 	"time"
 
+	"corvane/internal/convert"
 	"corvane/internal/csvio"
 	"corvane/internal/domain"
 )
 
 // ExportColumns are the columns of the measurements export: the stored
-// fields with the converter's input names, then the derived values with the
-// converter's output names.
-var ExportColumns = []string{
+// fields with the converter's input names and the run confidence, then the
+// derived values in the columns, order and decimals of `corvane convert`
+// (convert.OutputColumns, written by convert.WriteResult: one writer).
+var ExportColumns = append([]string{
 	"id", "hole_id", "depth", "alpha", "beta", "gamma", "apparent_thickness", "type", "comment", "logged_by", "logged_at",
-	"hole_azimuth", "hole_dip", "easting", "northing", "elevation", "dip", "dip_direction", "strike",
-	"pole_trend", "pole_plunge", "line_trend", "line_plunge", "true_thickness", "azimuth_reference",
-	"declination", "declination_source", "grid_convergence", "convergence_source",
-	"run_confidence", "warnings", "error",
-}
+	"run_confidence",
+}, convert.OutputColumns(true)...)
 
 // exportPage is the number of rows read from the store at a time.
 const exportPage = 1000
-
-// fmtNum formats a value of the export with prec decimals through the
-// project's one CSV number format, csvio.FormatFloat (a value that rounds to
-// zero is written without a sign, whatever the store gives back); nil is an
-// empty cell.
-func fmtNum(p *float64, prec int) string {
-	if p == nil {
-		return ""
-	}
-	return csvio.FormatFloat(*p, prec)
-}
 
 // ExportMeasurements writes the measurements passing q as CSV to w, with
 // derived values computed now (read). It streams: memory does not grow with
@@ -50,12 +37,12 @@ func (s *Service) ExportMeasurements(ctx context.Context, projectID int64, q Mea
 	if err != nil {
 		return err
 	}
-	cw := csv.NewWriter(w)
-	if err := cw.Write(ExportColumns); err != nil {
-		return err
-	}
+	cw := csvio.NewWriter(w)
+	cw.Strings(ExportColumns)
+	cw.EndRow()
 	d := newDeriver(s.store, p)
-	rec := make([]string, len(ExportColumns))
+	var scratch []byte
+	var warn []string
 	var after int64
 	for {
 		ms, err := s.store.ListMeasurements(ctx, f, domain.Page{Limit: exportPage, After: after})
@@ -63,25 +50,36 @@ func (s *Service) ExportMeasurements(ctx context.Context, projectID int64, q Mea
 			return err
 		}
 		for _, m := range ms {
-			v, err := d.view(ctx, m)
+			hm, err := d.model(ctx, m.HoleID)
 			if err != nil {
 				return err
 			}
-			dv := v.Derived
-			rec = rec[:0]
-			rec = append(rec, strconv.FormatInt(m.ID, 10), v.Hole, fmtNum(&m.Depth, 3), fmtNum(&m.Alpha, 2), fmtNum(&m.Beta, 2),
-				fmtNum(m.Gamma, 2), fmtNum(m.ApparentThickness, 3), m.TypeCode, m.Comment, m.LoggedBy, m.LoggedAt.UTC().Format(time.RFC3339),
-				fmtNum(dv.HoleAzimuth, 2), fmtNum(dv.HoleDip, 2), fmtNum(dv.East, 3), fmtNum(dv.North, 3), fmtNum(dv.Elevation, 3),
-				fmtNum(dv.Dip, 2), fmtNum(dv.DipDirection, 2), fmtNum(dv.Strike, 2), fmtNum(dv.PoleTrend, 2), fmtNum(dv.PolePlunge, 2),
-				fmtNum(dv.LineTrend, 2), fmtNum(dv.LinePlunge, 2), fmtNum(dv.TrueThickness, 3), dv.AzimuthRef,
-				fmtNum(dv.Declination, 4), dv.DeclinationSource, fmtNum(dv.GridConvergence, 4), dv.ConvergenceSource,
-				dv.RunConfidence, strings.Join(dv.Warnings, "; "), dv.Error)
-			if err := cw.Write(rec); err != nil {
-				return err
+			r, oerr := hm.orient(m.Depth, m.Alpha, m.Beta, m.Gamma, m.ApparentThickness)
+			cw.String(strconv.FormatInt(m.ID, 10))
+			cw.String(hm.name)
+			cw.Float(m.Depth, 3)
+			cw.Float(m.Alpha, 2)
+			cw.Float(m.Beta, 2)
+			optFloat(cw, m.Gamma, 2)
+			optFloat(cw, m.ApparentThickness, 3)
+			cw.Strings([]string{m.TypeCode, m.Comment, m.LoggedBy, m.LoggedAt.UTC().Format(time.RFC3339)})
+			if oerr != nil {
+				cw.Empty() // run_confidence
+				convert.WriteError(cw, true, oerr.Error())
+			} else {
+				warn = warn[:0]
+				if s := convert.Warnings(&r, hm.Hole); s != "" {
+					warn = append(warn, s)
+				}
+				var conf string
+				conf, warn = hm.runAt(m.Depth, warn)
+				cw.String(conf)
+				scratch = convert.WriteResult(cw, &r, hm.Hole, true, strings.Join(warn, "; "), nil, scratch)
+				cw.Empty() // error
 			}
+			cw.EndRow()
 		}
-		cw.Flush()
-		if err := cw.Error(); err != nil {
+		if err := cw.Flush(); err != nil {
 			return err
 		}
 		if len(ms) < exportPage {
@@ -94,4 +92,13 @@ func (s *Service) ExportMeasurements(ctx context.Context, projectID int64, q Mea
 			d = newDeriver(s.store, p)
 		}
 	}
+}
+
+// optFloat writes an optional number, empty when nil.
+func optFloat(cw *csvio.Writer, p *float64, prec int) {
+	if p == nil {
+		cw.Empty()
+		return
+	}
+	cw.Float(*p, prec)
 }

@@ -2,10 +2,8 @@ package service
 
 import (
 	"context"
-	"time"
 
 	"corvane/internal/domain"
-	"corvane/internal/northref"
 )
 
 // HoleCorrections are the north-reference corrections the hole model applies
@@ -23,19 +21,22 @@ type HoleCorrections struct {
 	SurveyAzimuthRef *string `json:"survey_azimuth_ref"`
 	SurveyDate       *string `json:"survey_date"`
 	// Declination applied to magnetic azimuths, degrees (true = magnetic +
-	// D), null when no magnetic azimuth is involved; DeclinationSource is
-	// "given" (a number sent with the survey set), "computed" (from the
-	// magnetic model when the survey set was stored) or "project" (the
-	// project's default), null when none applies.
+	// D), null when none is applied; DeclinationSource is "given" (sent with
+	// the survey set or the hole), "project" (the project's default),
+	// "computed" (from the magnetic model at the collar on the survey date),
+	// null when none applies.
 	Declination       *float64 `json:"declination"`
 	DeclinationSource *string  `json:"declination_source"`
-	// GridConvergence used, degrees (grid = true - C); ConvergenceSource is
-	// "computed" (from the collar's crs label and position) or "project".
-	GridConvergence   float64 `json:"grid_convergence"`
-	ConvergenceSource string  `json:"convergence_source"`
-	// Cautions about the corrections: a collar near a magnetic pole, or a
-	// magnetic survey whose declination could not be computed.
+	// GridConvergence applied, degrees (grid = true - C), null when none is
+	// applied; ConvergenceSource is "given", "project", "computed" or "none".
+	GridConvergence   *float64 `json:"grid_convergence"`
+	ConvergenceSource string   `json:"convergence_source"`
+	// Cautions about the corrections, e.g. a collar near a magnetic pole.
 	Cautions []string `json:"cautions"`
+	// Error is the hole's problem (a correction it needs and cannot have, a
+	// survey the path cannot be built from); every derived value of the hole
+	// carries it. Empty when none.
+	Error string `json:"error,omitempty"`
 }
 
 // HoleView is a hole with its corrections (read-only, computed on read).
@@ -44,13 +45,14 @@ type HoleView struct {
 	Corrections HoleCorrections `json:"corrections"`
 }
 
-// holeCorrectionsOf builds the corrections of h with survey set ss (nil when
-// none) by the hole model's rules (holeCorrections).
-func holeCorrectionsOf(c Conventions, h domain.Hole, ss *domain.SurveySet) HoleCorrections {
-	gc, convSrc, decl, declSrc, href := holeCorrections(c, h, ss)
-	hc := HoleCorrections{OutputAzimuthRef: c.OutputAzimuthRef, CollarAzimuthRef: href,
-		GridConvergence: gc, ConvergenceSource: convSrc, Cautions: []string{}}
-	if ss != nil {
+// corrections returns what the hole model applies to the hole.
+func (m *holeModel) corrections() HoleCorrections {
+	hc := HoleCorrections{OutputAzimuthRef: m.Output, CollarAzimuthRef: m.hole.AzimuthRef,
+		GridConvergence: opt(m.Convergence.Value), ConvergenceSource: string(m.Convergence.Source), Cautions: append([]string{}, m.Cautions...)}
+	if hc.CollarAzimuthRef == "" {
+		hc.CollarAzimuthRef = m.Output
+	}
+	if ss := m.survey; ss != nil {
 		ref := ss.AzimuthRef
 		hc.SurveyAzimuthRef = &ref
 		if ss.SurveyDate != "" {
@@ -58,24 +60,12 @@ func holeCorrectionsOf(c Conventions, h domain.Hole, ss *domain.SurveySet) HoleC
 			hc.SurveyDate = &d
 		}
 	}
-	if declSrc == "" {
-		return hc
+	if d := m.Declination(0); d.Source != "none" {
+		src := string(d.Source)
+		hc.Declination, hc.DeclinationSource = opt(d.Value), &src
 	}
-	hc.Declination, hc.DeclinationSource = &decl, &declSrc
-	// Magnetic azimuths are involved: say when the collar is near a magnetic
-	// pole, or why the declination could not be computed for it.
-	var date time.Time
-	if ss != nil && ss.SurveyDate != "" {
-		date, _ = time.Parse(time.DateOnly, ss.SurveyDate)
-	}
-	r, err := northref.Corrections(h.CRS, h.East, h.North, h.Elevation, date, true, false)
-	switch {
-	case err == nil:
-		if s := r.Caution(); s != "" {
-			hc.Cautions = append(hc.Cautions, s)
-		}
-	case declSrc == "project":
-		hc.Cautions = append(hc.Cautions, "magnetic azimuths use the project's default declination: it cannot be computed for this hole ("+err.Error()+")")
+	if m.Err != nil {
+		hc.Error = m.Err.Msg
 	}
 	return hc
 }
@@ -90,7 +80,7 @@ func holeViews(ctx context.Context, st domain.Store, p domain.Project, hs []doma
 		if err != nil {
 			return nil, err
 		}
-		out[i] = HoleView{Hole: h, Corrections: holeCorrectionsOf(c, h, ss)}
+		out[i] = HoleView{Hole: h, Corrections: newHoleModel(c, h, ss, nil).corrections()}
 	}
 	return out, nil
 }

@@ -121,7 +121,6 @@ func (s *Service) PutSurvey(ctx context.Context, projectID, holeID, ifVersion in
 			return domain.FieldErr("stations["+strconv.Itoa(n-1)+"].depth", "station depth %v is past the final depth %v of hole %s",
 				ss.Stations[n-1].Depth, h.FinalDepth, h.Name)
 		}
-		fillDeclination(&ss, h)
 		before, err := st.GetSurvey(ctx, holeID)
 		if err != nil && !domain.IsKind(err, domain.NotFound) {
 			return err

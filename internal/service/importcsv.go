@@ -20,7 +20,7 @@ import (
 // Import kinds: the CSV files the service accepts, with the converter's
 // column names (package csvio).
 const (
-	ImportCollars      = "collars"      // hole_id, easting, northing, elevation, azimuth, dip, depth [, crs]
+	ImportCollars      = "collars"      // hole_id, easting, northing, elevation, azimuth, dip, depth [, azimuth_reference, crs, declination, grid_convergence, survey_date]
 	ImportSurveys      = "surveys"      // hole_id, depth, azimuth, dip [, azimuth_reference, survey_date]
 	ImportRuns         = "runs"         // hole_id, from, to, confidence [, mismatch]
 	ImportMeasurements = "measurements" // hole_id, depth, alpha, beta, type [, gamma, apparent_thickness, comment, logged_by, logged_at]
@@ -234,7 +234,11 @@ func importCollars(ctx context.Context, st domain.Store, p domain.Project, body 
 	ps := &problems{file: res.File}
 	for _, r := range rows {
 		h := domain.Hole{ProjectID: p.ID, Name: r.HoleID, East: r.Collar.East, North: r.Collar.North, Elevation: r.Collar.Elevation,
-			Azimuth: r.Collar.Azimuth, AzimuthRef: orDefault(r.AzimuthRef, p.OutputAzimuthRef), Dip: r.Collar.Dip, FinalDepth: r.Collar.Depth, CRS: r.CRS}
+			Azimuth: r.Collar.Azimuth, AzimuthRef: orDefault(r.AzimuthRef, p.OutputAzimuthRef), Dip: r.Collar.Dip, FinalDepth: r.Collar.Depth, CRS: r.CRS,
+			Declination: optNum(r.Declination), GridConvergence: optNum(r.GridConvergence)}
+		if !r.SurveyDate.IsZero() {
+			h.SurveyDate = r.SurveyDate.Format(time.DateOnly)
+		}
 		if err := h.Normalize(); err != nil {
 			var e *domain.Error
 			errors.As(err, &e)
@@ -266,6 +270,14 @@ func importCollars(ctx context.Context, st domain.Store, p domain.Project, body 
 		}
 	}
 	return ps.err()
+}
+
+// optNum is nil for a number a file left empty (NaN), else the number.
+func optNum(v float64) *float64 {
+	if math.IsNaN(v) {
+		return nil
+	}
+	return &v
 }
 
 func importSurveys(ctx context.Context, st domain.Store, p domain.Project, body io.Reader, res *ImportResult) error {
@@ -309,6 +321,10 @@ func importSurveys(ctx context.Context, st domain.Store, p domain.Project, body 
 			ps.add(r.Line, csvio.ColAzimuthRef, "hole %s mixes azimuth references %s and %s; one survey set has one reference", r.HoleID, s.ss.AzimuthRef, r.AzimuthRef)
 			continue
 		}
+		if date := r.Date.Format(time.DateOnly); !r.Date.IsZero() && s.ss.SurveyDate != date {
+			ps.add(r.Line, csvio.ColSurveyDate, "hole %s has survey dates %s and %s; one survey set has one date (give the date of each survey in its own file)", r.HoleID, orDefault(s.ss.SurveyDate, "(none)"), date)
+			continue
+		}
 		if r.Station.Depth > s.hole.FinalDepth {
 			ps.add(r.Line, csvio.ColDepth, "station depth %v is past the final depth %v of hole %s", r.Station.Depth, s.hole.FinalDepth, r.HoleID)
 			continue
@@ -324,7 +340,6 @@ func importSurveys(ctx context.Context, st domain.Store, p domain.Project, body 
 			ps.add(s.line, "", "hole %s: %v", id, err)
 			continue
 		}
-		fillDeclination(&s.ss, s.hole)
 		cur, err := st.GetSurvey(ctx, s.ss.HoleID)
 		var v int64
 		switch {

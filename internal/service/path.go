@@ -51,7 +51,7 @@ func (s *Service) HolePath(ctx context.Context, projectID, holeID int64, step fl
 	if err != nil {
 		return nil, HoleCorrections{}, err
 	}
-	return pts, holeCorrectionsOf(m.conv, m.hole, m.survey), nil
+	return pts, m.corrections(), nil
 }
 
 func (s *Service) holePath(ctx context.Context, projectID, holeID int64, step float64) ([]PathPoint, *holeModel, error) {
@@ -72,14 +72,14 @@ func (s *Service) holePath(ctx context.Context, projectID, holeID int64, step fl
 	if err != nil {
 		return nil, nil, err
 	}
-	if m.err != nil {
-		return nil, nil, domain.Errorf(domain.Invalid, "%v", m.err)
+	if m.Err != nil {
+		return nil, nil, domain.Errorf(domain.Invalid, "%s", m.Err.Msg)
 	}
-	final := m.path.Depth()
+	final := m.Path.Depth()
 	if final/step > MaxPathPoints {
 		return nil, nil, domain.FieldErr("step", "step %v gives more than %d points over the %v of hole %s; use a larger step", step, MaxPathPoints, final, m.name)
 	}
-	ivs := m.path.Intervals()
+	ivs := m.Path.Intervals()
 	depths := make([]float64, 0, int(final/step)+len(ivs)+2)
 	for i := 0; ; i++ {
 		d := float64(i) * step
@@ -101,7 +101,7 @@ func (s *Service) holePath(ctx context.Context, projectID, holeID int64, step fl
 			continue
 		}
 		last = d
-		pt, err := m.path.At(d)
+		pt, err := m.Path.At(d)
 		if err != nil {
 			return nil, nil, domain.Errorf(domain.Invalid, "hole %s at depth %v: %v", m.name, d, err)
 		}

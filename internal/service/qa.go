@@ -114,16 +114,23 @@ func (s *Service) qaInput(ctx context.Context, p domain.Project, holes []domain.
 			return in, err
 		}
 		// The QA collar and stations are the hole model's path input, with
-		// the same corrections as the derived values.
+		// the same corrections as the derived values; a hole the model
+		// cannot build is reported once, as in corvane qa.
 		m := newHoleModel(conv, h, ss, runs)
-		c := m.collar
-		in.Collars = append(in.Collars, qa.Collar{HoleID: h.Name, East: c.East, North: c.North, Elevation: c.Elevation,
-			Azimuth: c.Azimuth, Dip: c.Dip, Depth: c.Depth})
-		magnetic := ss != nil && ss.AzimuthRef == domain.AzimuthMagnetic
-		for _, st := range m.stations {
-			in.Surveys = append(in.Surveys, qa.Station{HoleID: h.Name, Depth: st.Depth, Azimuth: st.Azimuth, Dip: st.Dip,
-				Magnetic: magnetic})
+		c := m.Collar
+		qc := qa.Collar{HoleID: h.Name, East: c.East, North: c.North, Elevation: c.Elevation, Azimuth: c.Azimuth, Dip: c.Dip, Depth: c.Depth}
+		if m.Err != nil {
+			qc.Problem, qc.ProblemSource = m.Err.Msg, "collars"
+			if m.Err.Station >= 0 {
+				qc.ProblemSource = "surveys"
+			}
+		} else {
+			for i, st := range m.Stations {
+				in.Surveys = append(in.Surveys, qa.Station{HoleID: h.Name, Depth: st.Depth, Azimuth: st.Azimuth, Dip: st.Dip,
+					Magnetic: m.Magnetic[i]})
+			}
 		}
+		in.Collars = append(in.Collars, qc)
 		for _, r := range runs {
 			in.Runs = append(in.Runs, qa.OrientationRun{HoleID: h.Name, From: r.From, To: r.To, Confidence: r.Confidence,
 				Mismatch: r.Mismatch, ID: r.ID})

@@ -150,7 +150,7 @@ const (
 func buildQAHole(t *testing.T, s *service.Service, ctx context.Context, rotations map[int]float64) qaFixture {
 	t.Helper()
 	var fx qaFixture
-	fx.p = must(s.CreateProject(ctx, domain.Project{Name: "Kestrel Flats QA", Convergence: qaConv}))
+	fx.p = must(s.CreateProject(ctx, domain.Project{Name: "Kestrel Flats QA", Convergence: f64(qaConv)}))
 	for _, c := range []string{"BD", "JN"} {
 		must(s.PutTypeCode(ctx, fx.p.ID, domain.TypeCode{Code: c}))
 	}

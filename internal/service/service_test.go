@@ -139,7 +139,9 @@ func TestDerivedVerticalHole(t *testing.T) {
 // conventions changes what the next read returns.
 func TestDerivedFollowSurveyAndConventions(t *testing.T) {
 	s, ctx := newService(t)
-	p, h := programme(t, s, ctx, domain.Project{})
+	// A collar without a crs: the true survey needs the project's
+	// convergence for grid output (set to 0 here; unset it is an error).
+	p, h := programme(t, s, ctx, domain.Project{Convergence: f64(0)})
 	m := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 50, Alpha: 20, Beta: 180, TypeCode: "BD"}))
 	near(t, "dip before", m.Derived.Dip, 40, 1e-6)
 
@@ -167,7 +169,7 @@ func TestDerivedFollowSurveyAndConventions(t *testing.T) {
 
 	// Grid output with convergence C: grid = true - C (conventions.md). The
 	// survey is in true north, so every azimuth moves by -C.
-	p.RefLine, p.BetaApex, p.Convergence = "bottom", "downhole", 2.5
+	p.RefLine, p.BetaApex, p.Convergence = "bottom", "downhole", f64(2.5)
 	p = must(s.UpdateProject(ctx, p.ID, p.Version, p))
 	got = must(s.GetMeasurement(ctx, p.ID, m.ID))
 	near(t, "grid hole azimuth", got.Derived.HoleAzimuth, 357.5, 1e-6)

@@ -9,17 +9,18 @@ import (
 )
 
 const holeCols = `id, project_id, name, easting, northing, elevation, azimuth, azimuth_ref, dip, final_depth,
-	crs, started, finished, version, created_at, updated_at`
+	crs, started, finished, declination, grid_convergence, survey_date, version, created_at, updated_at`
 
 const (
 	insertHole = `INSERT INTO holes (project_id, name, easting, northing, elevation, azimuth, azimuth_ref, dip,
-	final_depth, crs, started, finished, version, created_at, updated_at)
-	VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1, ?, ?) RETURNING id`
+	final_depth, crs, started, finished, declination, grid_convergence, survey_date, version, created_at, updated_at)
+	VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1, ?, ?) RETURNING id`
 	selectHole       = `SELECT ` + holeCols + ` FROM holes WHERE id = ?`
 	selectHoleByName = `SELECT ` + holeCols + ` FROM holes WHERE project_id = ? AND name = ?`
 	listHoles        = `SELECT ` + holeCols + ` FROM holes WHERE project_id = ? AND id > ? ORDER BY id LIMIT ?`
 	updateHole       = `UPDATE holes SET name = ?, easting = ?, northing = ?, elevation = ?, azimuth = ?,
-	azimuth_ref = ?, dip = ?, final_depth = ?, crs = ?, started = ?, finished = ?, version = version + 1, updated_at = ?
+	azimuth_ref = ?, dip = ?, final_depth = ?, crs = ?, started = ?, finished = ?,
+	declination = ?, grid_convergence = ?, survey_date = ?, version = version + 1, updated_at = ?
 	WHERE id = ? AND version = ? RETURNING version`
 	deleteHole = `DELETE FROM holes WHERE id = ? AND version = ?`
 )
@@ -28,7 +29,7 @@ func scanHole(r scanner) (domain.Hole, error) {
 	var h domain.Hole
 	var c, u int64
 	err := r.Scan(&h.ID, &h.ProjectID, &h.Name, &h.East, &h.North, &h.Elevation, &h.Azimuth, &h.AzimuthRef, &h.Dip,
-		&h.FinalDepth, &h.CRS, &h.Started, &h.Finished, &h.Version, &c, &u)
+		&h.FinalDepth, &h.CRS, &h.Started, &h.Finished, &h.Declination, &h.GridConvergence, &h.SurveyDate, &h.Version, &c, &u)
 	h.CreatedAt, h.UpdatedAt = fromMicro(c), fromMicro(u)
 	return h, err
 }
@@ -38,7 +39,8 @@ func (s *Store) CreateHole(ctx context.Context, h *domain.Hole) error {
 	t := storekit.Now()
 	return s.write(ctx, func(q querier) error {
 		err := q.QueryRowContext(ctx, insertHole, h.ProjectID, h.Name, h.East, h.North, h.Elevation, h.Azimuth,
-			h.AzimuthRef, h.Dip, h.FinalDepth, h.CRS, h.Started, h.Finished, micro(t), micro(t)).Scan(&h.ID)
+			h.AzimuthRef, h.Dip, h.FinalDepth, h.CRS, h.Started, h.Finished,
+			storekit.NullFloat(h.Declination), storekit.NullFloat(h.GridConvergence), h.SurveyDate, micro(t), micro(t)).Scan(&h.ID)
 		if err != nil {
 			return translate(err)
 		}
@@ -74,7 +76,8 @@ func (s *Store) UpdateHole(ctx context.Context, h *domain.Hole, ifVersion int64)
 	t := storekit.Now()
 	return s.write(ctx, func(q querier) error {
 		err := q.QueryRowContext(ctx, updateHole, h.Name, h.East, h.North, h.Elevation, h.Azimuth, h.AzimuthRef, h.Dip,
-			h.FinalDepth, h.CRS, h.Started, h.Finished, micro(t), h.ID, ifVersion).Scan(&h.Version)
+			h.FinalDepth, h.CRS, h.Started, h.Finished,
+			storekit.NullFloat(h.Declination), storekit.NullFloat(h.GridConvergence), h.SurveyDate, micro(t), h.ID, ifVersion).Scan(&h.Version)
 		if err == sql.ErrNoRows {
 			return versionGone(ctx, q, "holes", "hole", h.ID, ifVersion)
 		}

@@ -43,7 +43,7 @@ func (s *Store) CreateProject(ctx context.Context, p *domain.Project) error {
 	t := storekit.Now()
 	return s.write(ctx, func(q querier) error {
 		err := q.QueryRowContext(ctx, insertProject, p.Name, p.Description, p.RefLine, p.BetaApex, p.GammaSense,
-			p.LengthUnit, p.OutputAzimuthRef, p.Declination, p.Convergence, micro(t), micro(t)).Scan(&p.ID)
+			p.LengthUnit, p.OutputAzimuthRef, storekit.NullFloat(p.Declination), storekit.NullFloat(p.Convergence), micro(t), micro(t)).Scan(&p.ID)
 		if err != nil {
 			return translate(err)
 		}
@@ -79,7 +79,7 @@ func (s *Store) UpdateProject(ctx context.Context, p *domain.Project, ifVersion 
 	t := storekit.Now()
 	return s.write(ctx, func(q querier) error {
 		err := q.QueryRowContext(ctx, updateProject, p.Name, p.Description, p.RefLine, p.BetaApex, p.GammaSense,
-			p.LengthUnit, p.OutputAzimuthRef, p.Declination, p.Convergence, micro(t), p.ID, ifVersion).Scan(&p.Version)
+			p.LengthUnit, p.OutputAzimuthRef, storekit.NullFloat(p.Declination), storekit.NullFloat(p.Convergence), micro(t), p.ID, ifVersion).Scan(&p.Version)
 		if err == sql.ErrNoRows {
 			return versionGone(ctx, q, "projects", "project", p.ID, ifVersion)
 		}

@@ -38,8 +38,8 @@ func TestMigrateUpDownVersion(t *testing.T) {
 	if err := sqlite.Migrate(path, 0); err != nil {
 		t.Fatal(err)
 	}
-	if v, _, _ = sqlite.Version(path); v != 2 {
-		t.Fatalf("after up: version %d, want 2", v)
+	if v, _, _ = sqlite.Version(path); v != 3 {
+		t.Fatalf("after up: version %d, want 3", v)
 	}
 	if err := sqlite.Migrate(path, 0); err != nil { // idempotent
 		t.Fatalf("second up: %v", err)
@@ -52,26 +52,33 @@ func TestMigrateUpDownVersion(t *testing.T) {
 	}
 }
 
-func TestDeclinationSourceBackfill(t *testing.T) {
+func TestMigrationBackfill(t *testing.T) {
 	path := filepath.Join(t.TempDir(), "b.db")
 	if err := sqlite.Migrate(path, 0); err != nil {
 		t.Fatal(err)
 	}
-	storetest.DeclinationSourceBackfill(t, func(t *testing.T) domain.Store {
+	storetest.MigrationBackfill(t, func(t *testing.T) domain.Store {
 		s, err := sqlite.Open(t.Context(), path)
 		if err != nil {
 			t.Fatal(err)
 		}
 		return s
 	}, func(t *testing.T) {
-		if err := sqlite.Migrate(path, -1); err != nil {
-			t.Fatalf("rolling back 000002: %v", err)
-		}
-		if v, _, _ := sqlite.Version(path); v != 1 {
-			t.Fatalf("after one step down: version %d, want 1", v)
+		// Roll back to version 2 (before 000003), then up again.
+		for {
+			v, _, err := sqlite.Version(path)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if v <= 2 {
+				break
+			}
+			if err := sqlite.Migrate(path, -1); err != nil {
+				t.Fatalf("rolling back %d: %v", v, err)
+			}
 		}
 		if err := sqlite.Migrate(path, 0); err != nil {
-			t.Fatalf("applying 000002 again: %v", err)
+			t.Fatalf("applying 000003 again: %v", err)
 		}
 	})
 }

@@ -97,7 +97,8 @@ func newProject(t *testing.T, s domain.Store, name string) domain.Project {
 func newHole(t *testing.T, s domain.Store, projectID int64, name string) domain.Hole {
 	t.Helper()
 	h := domain.Hole{AzimuthRef: "true", ProjectID: projectID, Name: name, East: 500100.5, North: 7100200.25, Elevation: 412.5,
-		Azimuth: 45, Dip: -60, FinalDepth: 300, CRS: "EPSG:32750", Started: "2026-03-01"}
+		Azimuth: 45, Dip: -60, FinalDepth: 300, CRS: "EPSG:32750", Started: "2026-03-01",
+		Declination: f64(1.25), GridConvergence: f64(-0.5), SurveyDate: "2026-03-04"}
 	must(t, s.CreateHole(ctx(t), &h))
 	return h
 }
@@ -105,7 +106,7 @@ func newHole(t *testing.T, s domain.Store, projectID int64, name string) domain.
 func testProjects(t *testing.T, s domain.Store) {
 	c := ctx(t)
 	p := domain.Project{Name: "Tallowmere", Description: "fictional prospect", RefLine: "top", BetaApex: "uphole",
-		GammaSense: "anticlockwise", LengthUnit: "ft", OutputAzimuthRef: "true", Declination: 1.5, Convergence: -0.75}
+		GammaSense: "anticlockwise", LengthUnit: "ft", OutputAzimuthRef: "true", Declination: f64(1.5), Convergence: f64(-0.75)}
 	must(t, s.CreateProject(c, &p))
 	if p.ID == 0 || p.Version != 1 || p.CreatedAt.IsZero() || !p.CreatedAt.Equal(p.UpdatedAt) {
 		t.Fatalf("create did not set id/version/times: %+v", p)
@@ -122,7 +123,8 @@ func testProjects(t *testing.T, s domain.Store) {
 	dup := domain.Project{Name: "Tallowmere", RefLine: "bottom", BetaApex: "downhole", GammaSense: "clockwise", LengthUnit: "m", OutputAzimuthRef: "grid"}
 	wantKind(t, s.CreateProject(c, &dup), domain.Conflict, "duplicate project name")
 
-	p.Description = "changed"
+	// Project defaults are unset until someone sets them.
+	p.Description, p.Declination = "changed", nil
 	must(t, s.UpdateProject(c, &p, 1))
 	if p.Version != 2 {
 		t.Fatalf("version after update = %d, want 2", p.Version)
@@ -202,6 +204,8 @@ func testHoles(t *testing.T, s domain.Store) {
 	wantKind(t, s.CreateHole(c, &orphan), domain.Conflict, "hole of missing project")
 
 	h.Dip, h.Finished = -55.5, "2026-03-09"
+	// The per-hole corrections round trip, unset as well as set.
+	h.Declination, h.GridConvergence, h.SurveyDate = nil, f64(0.25), ""
 	must(t, s.UpdateHole(c, &h, 1))
 	got, _ = s.GetHole(c, h.ID)
 	diff(t, "updated hole", h, got)
@@ -660,35 +664,43 @@ func testConcurrentWriters(t *testing.T, s domain.Store) {
 	}
 }
 
-// DeclinationSourceBackfill checks what migration 000002 does to survey sets
-// stored before their declination had a recorded source: a set with a
-// declination reads back as "given", one without as "". open opens the
-// store on the database under test (at the latest schema version); redo
-// rolls the last migration back and applies it again while no store is open.
-func DeclinationSourceBackfill(t *testing.T, open func(t *testing.T) domain.Store, redo func(t *testing.T)) {
+// MigrationBackfill checks what the last migration (000003) does to rows
+// stored before it: a project default of 0 (the old column default, not
+// told apart from a chosen 0) becomes unset, another value is kept; a
+// survey set's declination stored as computed is forgotten (the hole model
+// computes it on read), a given one is kept. open opens the store on the
+// database under test (at the latest schema version); redo rolls the last
+// migration back and applies it again while no store is open.
+func MigrationBackfill(t *testing.T, open func(t *testing.T) domain.Store, redo func(t *testing.T)) {
 	c := ctx(t)
 	s := open(t)
-	p := newProject(t, s, "backfill")
-	withDecl, without := newHole(t, s, p.ID, "B1"), newHole(t, s, p.ID, "B2")
-	// Both sets carry a source that the rollback loses; the new column then
-	// backfills from the declination alone.
-	a := domain.SurveySet{HoleID: withDecl.ID, AzimuthRef: "magnetic", Declination: f64(-0.75), DeclinationSource: "computed",
+	p := domain.Project{Name: "backfill", Convergence: f64(2.5)}
+	must(t, p.Normalize())
+	must(t, s.CreateProject(c, &p))
+	computed, given := newHole(t, s, p.ID, "B1"), newHole(t, s, p.ID, "B2")
+	a := domain.SurveySet{HoleID: computed.ID, AzimuthRef: "magnetic", Declination: f64(-0.75), DeclinationSource: "computed",
 		Stations: []domain.Station{st(0, 45, -60)}}
-	b := domain.SurveySet{HoleID: without.ID, AzimuthRef: "magnetic", Stations: []domain.Station{st(0, 45, -60)}}
+	b := domain.SurveySet{HoleID: given.ID, AzimuthRef: "magnetic", Declination: f64(1), DeclinationSource: "given",
+		Stations: []domain.Station{st(0, 45, -60)}}
 	must(t, s.PutSurvey(c, &a, 0))
 	must(t, s.PutSurvey(c, &b, 0))
 	must(t, s.Close())
 	redo(t)
 	s = open(t)
 	defer s.Close()
-	got, err := s.GetSurvey(c, withDecl.ID)
+	gp, err := s.GetProject(c, p.ID)
 	must(t, err)
-	if got.DeclinationSource != "given" || got.Declination == nil || *got.Declination != -0.75 {
-		t.Errorf("set with a declination after the migration: %v from %q, want -0.75 from \"given\"", got.Declination, got.DeclinationSource)
+	if gp.Declination != nil || gp.Convergence == nil || *gp.Convergence != 2.5 {
+		t.Errorf("project defaults after the migration: %v, %v; want unset and 2.5", gp.Declination, gp.Convergence)
 	}
-	got, err = s.GetSurvey(c, without.ID)
+	got, err := s.GetSurvey(c, computed.ID)
 	must(t, err)
 	if got.DeclinationSource != "" || got.Declination != nil {
-		t.Errorf("set without a declination after the migration: %v from %q, want none", got.Declination, got.DeclinationSource)
+		t.Errorf("set with a computed declination after the migration: %v from %q, want none", got.Declination, got.DeclinationSource)
+	}
+	got, err = s.GetSurvey(c, given.ID)
+	must(t, err)
+	if got.DeclinationSource != "given" || got.Declination == nil || *got.Declination != 1 {
+		t.Errorf("set with a given declination after the migration: %v from %q, want 1 given", got.Declination, got.DeclinationSource)
 	}
 }

@@ -1,0 +1,24 @@
+-- Per-hole north corrections and survey date, read from the collars file and
+-- the API: a declination and a grid convergence given for the hole (NULL when
+-- not given) and the date of the hole's survey ('' when unknown).
+ALTER TABLE holes ADD COLUMN declination DOUBLE PRECISION
+    CHECK (declination IS NULL OR declination BETWEEN -180 AND 180);
+ALTER TABLE holes ADD COLUMN grid_convergence DOUBLE PRECISION
+    CHECK (grid_convergence IS NULL OR grid_convergence BETWEEN -90 AND 90);
+ALTER TABLE holes ADD COLUMN survey_date TEXT NOT NULL DEFAULT '';
+
+-- The project's default declination and convergence are unset (NULL) until
+-- someone sets them. Backfill: 0 was the column default and cannot be told
+-- apart from a chosen 0, so a stored 0 becomes unset; any other value was
+-- set by someone and is kept.
+ALTER TABLE projects ALTER COLUMN declination DROP NOT NULL;
+ALTER TABLE projects ALTER COLUMN declination DROP DEFAULT;
+ALTER TABLE projects ALTER COLUMN convergence DROP NOT NULL;
+ALTER TABLE projects ALTER COLUMN convergence DROP DEFAULT;
+UPDATE projects SET declination = NULL WHERE declination = 0;
+UPDATE projects SET convergence = NULL WHERE convergence = 0;
+
+-- A declination the magnetic model gives is computed on every read by the
+-- hole model, never stored: sets that stored one when they were written
+-- forget it (the same value comes back, computed, and follows the collar).
+UPDATE survey_sets SET declination = NULL, declination_source = '' WHERE declination_source = 'computed';

@@ -1,0 +1,10 @@
+ALTER TABLE projects ADD COLUMN declination_old REAL NOT NULL DEFAULT 0;
+ALTER TABLE projects ADD COLUMN convergence_old REAL NOT NULL DEFAULT 0;
+UPDATE projects SET declination_old = COALESCE(declination, 0), convergence_old = COALESCE(convergence, 0);
+ALTER TABLE projects DROP COLUMN declination;
+ALTER TABLE projects DROP COLUMN convergence;
+ALTER TABLE projects RENAME COLUMN declination_old TO declination;
+ALTER TABLE projects RENAME COLUMN convergence_old TO convergence;
+ALTER TABLE holes DROP COLUMN survey_date;
+ALTER TABLE holes DROP COLUMN grid_convergence;
+ALTER TABLE holes DROP COLUMN declination;
