@@ -67,7 +67,7 @@ func TestMigrateUpDownVersion(t *testing.T) {
 	if err := postgres.Migrate(url, 0); err != nil {
 		t.Fatal(err)
 	}
-	if v, _, _ = postgres.Version(url); v != 2 {
+	if v, _, _ = postgres.Version(url); v != 3 {
 		t.Fatalf("after up: version %d", v)
 	}
 }
