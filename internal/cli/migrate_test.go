@@ -25,10 +25,10 @@ func TestMigrateCommand(t *testing.T) {
 	if code, out, errs := runWithEnv(t, env, "migrate", "version"); code != ExitOK || out != "schema version 0\n" {
 		t.Fatalf("version on a fresh file: %d %q %q", code, out, errs)
 	}
-	if code, out, errs := runWithEnv(t, env, "migrate", "up"); code != ExitOK || out != "schema version 2\n" {
+	if code, out, errs := runWithEnv(t, env, "migrate", "up"); code != ExitOK || out != "schema version 3\n" {
 		t.Fatalf("up: %d %q %q", code, out, errs)
 	}
-	if code, out, _ := runWithEnv(t, nil, "migrate", "down", "--db", db); code != ExitOK || out != "schema version 1\n" {
+	if code, out, _ := runWithEnv(t, nil, "migrate", "down", "--db", db); code != ExitOK || out != "schema version 2\n" {
 		t.Fatalf("down with --db: %d %q", code, out)
 	}
 	if code, out, _ := runWithEnv(t, env, "migrate", "down", "--all"); code != ExitOK || out != "schema version 0\n" {
