@@ -34,3 +34,23 @@ func (s *Server) holePath(c *gin.Context) {
 	}
 	c.JSON(http.StatusOK, gin.H{"items": pts, "corrections": corr})
 }
+
+// previewHole orients unsaved angles against the stored hole.
+func (s *Server) previewHole(c *gin.Context) {
+	pid, hid, err := ids(c, "hole")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	var req service.PreviewRequest
+	if err := s.decodeJSON(c, &req); err != nil {
+		fail(c, err)
+		return
+	}
+	rs, err := s.opt.Service.Preview(c.Request.Context(), pid, hid, req)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	c.JSON(http.StatusOK, gin.H{"results": rs})
+}

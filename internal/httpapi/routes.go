@@ -70,6 +70,7 @@ func (s *Server) routes() {
 	p.POST("/qa", need(domain.RoleRead), s.heavy, s.projectQAWith)
 	p.GET("/holes/:hole/qa", need(domain.RoleRead), s.heavy, s.holeQA)
 	p.GET("/holes/:hole/path", s.holePath)
+	p.POST("/holes/:hole/preview", s.previewHole)
 
 	p.GET("/statistics", need(domain.RoleRead), s.heavy, s.statistics)
 	p.GET("/net", need(domain.RoleRead), s.heavy, s.net)

@@ -297,10 +297,17 @@ func TestLoggingWithKeyboard(t *testing.T) {
 	if want := fmt.Sprintf("%03d", int(math.Round(*saved.Derived.DipDirection))%360); shownDir != want {
 		t.Errorf("page showed dip direction %s while typing; server derives %s", shownDir, want)
 	}
-	// The preview converts with the project's conventions and the hole's
-	// collar and survey exactly as the stored row is derived.
+	// The preview orients against the stored hole on the server (the
+	// preview route, the same hole model), exactly as the stored row is
+	// derived; the page no longer rebuilds a conversion request.
 	if math.Abs(exactDip-*saved.Derived.Dip) > 1e-9 || math.Abs(exactDir-*saved.Derived.DipDirection) > 1e-9 {
 		t.Errorf("preview %.12f/%.12f differs from the stored row's %.12f/%.12f", exactDip, exactDir, *saved.Derived.Dip, *saved.Derived.DipDirection)
+	}
+	if !eval[bool](p, `performance.getEntriesByType("resource").some((e) => /\/holes\/\d+\/preview$/.test(new URL(e.name).pathname))`) {
+		t.Error("the live preview did not call the hole's preview route")
+	}
+	if eval[bool](p, `performance.getEntriesByType("resource").some((e) => new URL(e.name).pathname === "/v1/convert")`) {
+		t.Error("the live preview still rebuilds a conversion request for /v1/convert")
 	}
 	// The new pole is now among the hole's poles, where the equal-area
 	// projection puts it.

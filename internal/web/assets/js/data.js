@@ -25,43 +25,10 @@ export async function runs(pid, holeId) {
   return (r.items || []).sort((a, b) => a.from - b.from);
 }
 
-// conventions is the body part of a conversion that carries the project's
-// conventions, so the page converts exactly as the stored data are.
-export function conventions(project) {
-  return {
-    ref_line: project.ref_line,
-    beta_apex: project.beta_apex,
-    gamma_sense: project.gamma_sense,
-    length_unit: project.length_unit,
-    output_azimuth_ref: project.output_azimuth_ref,
-    declination: project.declination,
-    convergence: project.convergence,
-  };
-}
-
-function collarOf(hole) {
-  return {
-    hole_id: hole.name, easting: hole.easting, northing: hole.northing, elevation: hole.elevation,
-    azimuth: hole.azimuth, dip: hole.dip, final_depth: hole.final_depth,
-    azimuth_ref: hole.azimuth_ref || undefined, crs: hole.crs || undefined,
-  };
-}
-
-function surveyOf(hole, s) {
-  if (!s || !s.stations || !s.stations.length) return [];
-  return [{ hole_id: hole.name, azimuth_ref: s.azimuth_ref, declination: s.declination, survey_date: s.survey_date || undefined, stations: s.stations }];
-}
-
-// convert asks the server to convert measurements of one hole without
-// storing anything.
-export async function convert(p, hole, s, measurements, signal) {
-  const body = {
-    conventions: conventions(p.project),
-    collars: [collarOf(hole)],
-    surveys: surveyOf(hole, s),
-    measurements: measurements.map((m) => ({ hole_id: hole.name, ...m })),
-  };
-  const r = await request("POST", "/v1/convert", { body, signal });
+// preview asks the server to orient unsaved measurements against the stored
+// hole: the same hole model, corrections and runs as a saved measurement.
+export async function preview(p, hole, measurements, signal) {
+  const r = await request("POST", `/v1/projects/${p.id}/holes/${hole.id}/preview`, { body: { measurements }, signal });
   return r.data.results || [];
 }
 

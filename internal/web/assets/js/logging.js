@@ -1,11 +1,12 @@
 // logging.js: the bench form. Keyboard first: Tab moves between fields,
 // Enter saves, Escape clears the angles. The converted orientation, its
 // warnings and the new pole on the hole's net follow the numbers as they are
-// typed; the server converts, the page only shows.
+// typed; the server orients them against the stored hole (the preview
+// route, the same hole model as saved measurements), the page only shows.
 
 import { request, ApiError } from "./api.js";
 import { h, fmt, az, clear, say, problemText, add, put } from "./dom.js";
-import { survey, convert, measurements, runs } from "./data.js";
+import { preview as previewOf, measurements, runs } from "./data.js";
 import { smallNet, styleFor, shapeKey } from "./draw.js";
 
 // FIELDS lists the form's inputs with the range each must hold. The ranges
@@ -98,14 +99,13 @@ export async function logging(ctx) {
 
   let existing = [];
   let holeRuns = [];
-  let srv = null;
   let newPole = null;
 
   const hole = () => holeOf(holeSel.value);
 
   async function loadHole() {
     const ho = hole();
-    [srv, existing, holeRuns] = await Promise.all([survey(p.id, ho.id), measurements(p.id, { hole: ho.name }), runs(p.id, ho.id)]);
+    [existing, holeRuns] = await Promise.all([measurements(p.id, { hole: ho.name }), runs(p.id, ho.id)]);
     if (!ctx.isCurrent()) return;
     drawNet();
     update();
@@ -183,9 +183,9 @@ export async function logging(ctx) {
     }
     if (inflight) inflight.abort();
     inflight = new AbortController();
-    const m = { depth: num(v.depth), alpha: num(v.alpha), beta: num(v.beta), gamma: num(v.gamma), apparent_thickness: num(v.apparent_thickness), type: v.type };
+    const m = { depth: num(v.depth), alpha: num(v.alpha), beta: num(v.beta), gamma: num(v.gamma), apparent_thickness: num(v.apparent_thickness) };
     try {
-      const [r] = await convert(p, ho, srv, [m], inflight.signal);
+      const [r] = await previewOf(p, ho, [m], inflight.signal);
       if (!ctx.isCurrent()) return;
       const d = r.derived || {};
       newPole = Number.isFinite(d.pole_plunge) ? { trend: Number.isFinite(d.pole_trend) ? d.pole_trend : 0, plunge: d.pole_plunge } : null;
