@@ -92,6 +92,20 @@ const (
 	correctionDecimals = 3
 )
 
+// Decimals returns the decimals [WriteResult] writes in output column col,
+// -1 for a text column.
+func Decimals(col string) int {
+	switch col {
+	case ColEasting, ColNorthing, ColElevation, ColTrueThickness:
+		return lengthDecimals
+	case ColDeclination, ColGridConvergence:
+		return correctionDecimals
+	case ColHoleAzimuth, ColHoleDip, ColDip, ColDipDirection, ColStrike, ColLineTrend, ColLinePlunge, ColPoleTrend, ColPolePlunge:
+		return angleDecimals
+	}
+	return -1
+}
+
 // Summary counts the rows of a conversion.
 type Summary struct {
 	Rows      int // structure rows written
