@@ -385,11 +385,12 @@ func atof(t *testing.T, s string) float64 {
 	return v
 }
 
-// importProject creates the programme's project on s and imports its
-// files; it returns the project id.
-func importProject(t *testing.T, s *server, pg programme, collars, surveys, structures string) int64 {
+// importProject creates a project named prefix + the programme's name with
+// its conventions on s and imports the given kinds of its files; it returns
+// the project's path.
+func importProject(t *testing.T, s *server, prefix string, pg programme, files ...[2]string) string {
 	t.Helper()
-	body := map[string]any{"name": "Conformance " + pg.name}
+	body := map[string]any{"name": prefix + pg.name}
 	for k, v := range pg.project {
 		body[k] = v
 	}
@@ -398,17 +399,17 @@ func importProject(t *testing.T, s *server, pg programme, collars, surveys, stru
 	base := fmt.Sprintf("/v1/projects/%d", p.ID)
 	s.mustJSON(t, 200, "PUT", base+"/types/BD", map[string]string{"description": "bedding", "kind": "plane"}, nil)
 	s.mustJSON(t, 200, "PUT", base+"/types/LN", map[string]string{"description": "lineation", "kind": "line"}, nil)
-	for _, f := range []struct{ kind, text string }{{"collars", collars}, {"surveys", surveys}, {"measurements", structures}} {
-		s.mustJSON(t, 201, "POST", base+"/imports/"+f.kind, f.text, nil)
+	for _, f := range files {
+		s.mustJSON(t, 201, "POST", base+"/imports/"+f[0], f[1], nil)
 	}
-	return p.ID
+	return base
 }
 
 // exportCSV imports the programme into a new project on s and exports it.
 func exportCSV(t *testing.T, s *server, pg programme, collars, surveys, structures string) []map[string]string {
 	t.Helper()
-	pid := importProject(t, s, pg, collars, surveys, structures)
-	code, _, b := s.call(t, "GET", fmt.Sprintf("/v1/projects/%d/measurements.csv", pid), nil)
+	base := importProject(t, s, "Conformance ", pg, [2]string{"collars", collars}, [2]string{"surveys", surveys}, [2]string{"measurements", structures})
+	code, _, b := s.call(t, "GET", base+"/measurements.csv", nil)
 	if code != 200 {
 		t.Fatalf("export: %d %s", code, b)
 	}
@@ -419,15 +420,7 @@ func exportCSV(t *testing.T, s *server, pg programme, collars, surveys, structur
 // surveys) and asks the preview route for every structure row.
 func previewRoute(t *testing.T, s *server, pg programme, collars, surveys, structures string) []map[string]string {
 	t.Helper()
-	body := map[string]any{"name": "Preview " + pg.name}
-	for k, v := range pg.project {
-		body[k] = v
-	}
-	var p struct{ ID int64 }
-	s.mustJSON(t, 201, "POST", "/v1/projects", body, &p)
-	base := fmt.Sprintf("/v1/projects/%d", p.ID)
-	s.mustJSON(t, 201, "POST", base+"/imports/collars", collars, nil)
-	s.mustJSON(t, 201, "POST", base+"/imports/surveys", surveys, nil)
+	base := importProject(t, s, "Preview ", pg, [2]string{"collars", collars}, [2]string{"surveys", surveys})
 	var holes struct {
 		Items []struct {
 			ID   int64  `json:"id"`
@@ -625,10 +618,7 @@ func TestConformanceHoleProblems(t *testing.T) {
 				doors["preview route"] = previewRoute(t, s, pg, c.collars, c.surveys, structures)
 			} else {
 				// The import refuses the station, located.
-				var p struct{ ID int64 }
-				s.mustJSON(t, 201, "POST", "/v1/projects", map[string]any{"name": "Problems " + c.name}, &p)
-				base := fmt.Sprintf("/v1/projects/%d", p.ID)
-				s.mustJSON(t, 201, "POST", base+"/imports/collars", c.collars, nil)
+				base := importProject(t, s, "Problems ", pg, [2]string{"collars", c.collars})
 				code, _, b := s.call(t, "POST", base+"/imports/surveys", c.surveys)
 				if code != 422 || !strings.Contains(string(b), `"line":3`) || !strings.Contains(string(b), `"column":"depth"`) || !strings.Contains(string(b), "surveys.csv") {
 					t.Errorf("import of a station past the final depth: %d %s, want 422 at surveys.csv line 3, column depth", code, b)
