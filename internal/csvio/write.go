@@ -21,18 +21,26 @@ func num(v float64) string {
 
 // WriteCollars writes rows as a collars file that [ReadCollars] reads back to
 // the same values (Line aside): the required columns, then declination,
-// grid_convergence, azimuth_reference and crs.
+// grid_convergence, azimuth_reference, crs and survey_date.
 func WriteCollars(w io.Writer, rows []CollarRow) error {
 	cw := NewWriter(w)
-	cw.Strings(append(append([]string{}, CollarColumns...), ColDeclination, ColGridConvergence, ColAzimuthRef, ColCRS))
+	cw.Strings(append(append([]string{}, CollarColumns...), ColDeclination, ColGridConvergence, ColAzimuthRef, ColCRS, ColSurveyDate))
 	cw.EndRow()
 	for _, r := range rows {
 		c := r.Collar
 		cw.Strings([]string{r.HoleID, num(c.East), num(c.North), num(c.Elevation), num(c.Azimuth), num(c.Dip), num(c.Depth),
-			num(r.Declination), num(r.GridConvergence), r.AzimuthRef, r.CRS})
+			num(r.Declination), num(r.GridConvergence), r.AzimuthRef, r.CRS, date(r.SurveyDate)})
 		cw.EndRow()
 	}
 	return cw.Flush()
+}
+
+// date formats t as YYYY-MM-DD, the zero time as an empty cell.
+func date(t time.Time) string {
+	if t.IsZero() {
+		return ""
+	}
+	return t.Format(time.DateOnly)
 }
 
 // WriteSurveys writes rows as a surveys file that [ReadSurveys] reads back:
@@ -42,12 +50,8 @@ func WriteSurveys(w io.Writer, rows []SurveyRow) error {
 	cw.Strings(append(append([]string{}, SurveyColumns...), ColAzimuthRef, ColSurveyDate))
 	cw.EndRow()
 	for _, r := range rows {
-		date := ""
-		if !r.Date.IsZero() {
-			date = r.Date.Format(time.DateOnly)
-		}
 		s := r.Station
-		cw.Strings([]string{r.HoleID, num(s.Depth), num(s.Azimuth), num(s.Dip), r.AzimuthRef, date})
+		cw.Strings([]string{r.HoleID, num(s.Depth), num(s.Azimuth), num(s.Dip), r.AzimuthRef, date(r.Date)})
 		cw.EndRow()
 	}
 	return cw.Flush()

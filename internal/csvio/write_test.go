@@ -29,7 +29,7 @@ func TestWriteReadRoundTrip(t *testing.T) {
 		collars = append(collars, CollarRow{HoleID: id, Collar: desurvey.Collar{East: r.NormFloat64() * 1e6, North: r.Float64() * 1e7,
 			Elevation: r.NormFloat64() * 500, Azimuth: r.Float64() * 360, Dip: -90 + r.Float64()*180, Depth: 1 + r.Float64()*1000},
 			Declination: opt(r.NormFloat64() * 10), GridConvergence: opt(r.NormFloat64()), AzimuthRef: []string{"", "grid", "true", "magnetic"}[r.IntN(4)],
-			CRS: []string{"", "EPSG:32750"}[r.IntN(2)]})
+			CRS: []string{"", "EPSG:32750"}[r.IntN(2)], SurveyDate: []time.Time{{}, time.Date(2027, 4, 9, 0, 0, 0, 0, time.UTC)}[r.IntN(2)]})
 		d := 0.0
 		for k := 0; k < 5; k++ {
 			d += r.Float64() * 50
@@ -53,7 +53,7 @@ func TestWriteReadRoundTrip(t *testing.T) {
 	for i, c := range collars {
 		g := gotC[i]
 		if g.HoleID != c.HoleID || g.Collar != c.Collar || !sameFloat(g.Declination, c.Declination) || !sameFloat(g.GridConvergence, c.GridConvergence) ||
-			g.AzimuthRef != c.AzimuthRef || g.CRS != c.CRS {
+			g.AzimuthRef != c.AzimuthRef || g.CRS != c.CRS || !g.SurveyDate.Equal(c.SurveyDate) {
 			t.Fatalf("collar %d: %+v, wrote %+v", i, g, c)
 		}
 	}

@@ -413,6 +413,28 @@ func exportCSV(t *testing.T, s *server, pg programme, collars, surveys, structur
 	if code != 200 {
 		t.Fatalf("export: %d %s", code, b)
 	}
+	// Nothing read is dropped: the holes export gives back every collar
+	// column the import read.
+	code, _, hb := s.call(t, "GET", base+"/holes.csv", nil)
+	if code != 200 {
+		t.Fatalf("holes export: %d %s", code, hb)
+	}
+	in, err := csvio.ReadCollars(strings.NewReader(collars), "collars.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	out, err := csvio.ReadCollars(bytes.NewReader(hb), "holes.csv")
+	if err != nil || len(out) != len(in) {
+		t.Fatalf("holes export read back: %v, %d holes for %d\n%s", err, len(out), len(in), hb)
+	}
+	same := func(a, b float64) bool { return a == b || math.IsNaN(a) && math.IsNaN(b) }
+	for i, c := range in {
+		o := out[i]
+		if o.HoleID != c.HoleID || o.Collar != c.Collar || !same(o.Declination, c.Declination) || !same(o.GridConvergence, c.GridConvergence) ||
+			!o.SurveyDate.Equal(c.SurveyDate) || o.CRS != c.CRS || (c.AzimuthRef != "" && o.AzimuthRef != c.AzimuthRef) {
+			t.Errorf("hole %s exported as %+v, imported %+v", c.HoleID, o, c)
+		}
+	}
 	return readCSV(t, b)
 }
 

@@ -593,6 +593,18 @@ func (s *Server) exportMeasurements(c *gin.Context) {
 	})
 }
 
+func (s *Server) exportCollars(c *gin.Context) {
+	pid, err := pathID(c, "project")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	c.Header("Content-Disposition", `attachment; filename="collars-`+itoa(pid)+`.csv"`)
+	stream(c, "text/csv; charset=utf-8", func(w *trackingWriter) error {
+		return s.opt.Service.ExportCollars(c.Request.Context(), pid, w)
+	})
+}
+
 // ---- statistics and nets
 
 // boolParam reads an optional true/false query parameter.

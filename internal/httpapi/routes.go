@@ -65,6 +65,7 @@ func (s *Server) routes() {
 	p.PUT("/measurements/:measurement", need(domain.RoleLog), s.updateMeasurement)
 	p.DELETE("/measurements/:measurement", s.deleteMeasurement)
 	p.GET("/measurements.csv", s.exportMeasurements)
+	p.GET("/holes.csv", s.exportCollars)
 
 	p.GET("/qa", need(domain.RoleRead), s.heavy, s.projectQA)
 	p.POST("/qa", need(domain.RoleRead), s.heavy, s.projectQAWith)

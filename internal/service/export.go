@@ -3,12 +3,14 @@ package service
 import (
 	"context"
 	"io"
+	"math"
 	"strconv"
 	"strings"
 	"time"
 
 	"corvane/internal/convert"
 	"corvane/internal/csvio"
+	"corvane/internal/desurvey"
 	"corvane/internal/domain"
 )
 
@@ -101,4 +103,38 @@ func optFloat(cw *csvio.Writer, p *float64, prec int) {
 		return
 	}
 	cw.Float(*p, prec)
+}
+
+// ExportCollars writes the project's holes as a collars file (read), in the
+// columns the collars import reads, so that an export imports back to the
+// same holes: hole_id, easting, northing, elevation, azimuth, dip, depth,
+// declination, grid_convergence, azimuth_reference, crs, survey_date.
+func (s *Service) ExportCollars(ctx context.Context, projectID int64, w io.Writer) error {
+	if _, _, err := s.project(ctx, s.store, projectID, domain.RoleRead); err != nil {
+		return err
+	}
+	var rows []csvio.CollarRow
+	pg := domain.Page{Limit: domain.MaxLimit}
+	for {
+		hs, err := s.store.ListHoles(ctx, projectID, pg)
+		if err != nil {
+			return err
+		}
+		for _, h := range hs {
+			r := csvio.CollarRow{HoleID: h.Name, AzimuthRef: h.AzimuthRef, CRS: h.CRS, Declination: math.NaN(), GridConvergence: math.NaN(),
+				Collar: desurvey.Collar{East: h.East, North: h.North, Elevation: h.Elevation, Azimuth: h.Azimuth, Dip: h.Dip, Depth: h.FinalDepth}}
+			if h.Declination != nil {
+				r.Declination = *h.Declination
+			}
+			if h.GridConvergence != nil {
+				r.GridConvergence = *h.GridConvergence
+			}
+			r.SurveyDate, _ = time.Parse(time.DateOnly, h.SurveyDate)
+			rows = append(rows, r)
+		}
+		if len(hs) < domain.MaxLimit {
+			return csvio.WriteCollars(w, rows)
+		}
+		pg.After = hs[len(hs)-1].ID
+	}
 }
