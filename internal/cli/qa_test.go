@@ -165,3 +165,43 @@ func TestQAInputFeetElevation(t *testing.T) {
 		t.Fatalf("station azimuth %v, want 70 + declination at %g m = %v (at %g as metres: %v)", got, elevFt*0.3048, want, elevFt, 70+atFt.Declination)
 	}
 }
+
+// The data rules hold in qa as in convert (README, Data rules): a station
+// past the final depth and a magnetic survey with no declination from any
+// source are each a problem of that hole, reported once and located; the
+// other holes are checked; no correction is taken as 0.
+func TestQAHoleProblems(t *testing.T) {
+	dir := t.TempDir()
+	writeQAFiles(t, dir)
+	p := func(n string) string { return filepath.Join(dir, n) }
+	if err := os.WriteFile(p("collars.csv"), []byte("hole_id,easting,northing,elevation,azimuth,dip,depth\n"+
+		"KW1,500,800,120,70,-60,60\nKW2,600,800,120,70,-60,60\nKW3,700,800,120,70,-60,60\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(p("surveys.csv"), []byte("hole_id,depth,azimuth,dip,azimuth_reference\n"+
+		"KW1,30,70,-60,grid\nKW1,60,70,-60,grid\nKW2,30,70,-60,grid\nKW2,90,70,-60,grid\nKW3,30,70,-60,magnetic\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	in, _, err := readQAInput(p("collars.csv"), p("surveys.csv"), p("structures.csv"), p("runs.csv"), "", "grid", math.NaN(), 0, false) // --grid-convergence 0
+	if err != nil {
+		t.Fatalf("one hole's station refused the whole input: %v", err)
+	}
+	rep := qa.Run(in, qa.DefaultOptions())
+	var kw2, kw3 bool
+	for _, f := range rep.Findings {
+		switch {
+		case f.HoleID == "KW2" && f.Check == qa.CheckSurveyInvalid && f.Source == "surveys" && f.Line == 5 && strings.Contains(f.Message, "90"):
+			kw2 = true
+		case f.HoleID == "KW3" && f.Check == qa.CheckSurveyInvalid && f.Source == "collars" && f.Line == 4 && strings.Contains(f.Message, "declination"):
+			kw3 = true
+		case f.HoleID == "KW1" && f.Check == qa.CheckSurveyInvalid:
+			t.Errorf("KW1 has no problem: %+v", f)
+		}
+	}
+	if !kw2 || !kw3 {
+		t.Errorf("station past the final depth reported %v, missing declination reported %v: %+v", kw2, kw3, rep.Findings)
+	}
+	if len(in.Surveys) != 2 {
+		t.Errorf("%d stations passed to the checks, want KW1's 2 only", len(in.Surveys))
+	}
+}

@@ -97,6 +97,10 @@ func programmes() []programme {
 				{id: "O1", east: 1000, north: 2000, elev: 100, trueAz: 10, dip: -60, depth: 150, ref: "grid", conv: "1.5", planes: planes, lines: true},
 				{id: "O2", east: 1200, north: 2000, elev: 100, trueAz: 95, dip: -75, depth: 150, ref: "true", planes: planes},
 				{id: "O3", east: 1400, north: 2000, elev: 100, trueAz: 185, dip: -45, depth: 150, ref: "magnetic", decl: "-3.25", planes: planes},
+				// No azimuth_reference: the output reference (true), as in the
+				// files; a collar that could be placed, but no convergence is
+				// applied, so none is reported.
+				{id: "O4", east: 402000, north: 7400000, elev: 100, trueAz: 275, dip: -65, depth: 150, crs: "EPSG:32750", planes: planes},
 			}},
 		{name: "feet", out: "grid", feet: true, flags: []string{"--feet"}, project: map[string]any{"length_unit": "ft"},
 			holes: []hole{
@@ -104,6 +108,16 @@ func programmes() []programme {
 				{id: "F2", east: 404500, north: 7404500, elev: 8800, trueAz: 320, dip: -80, depth: 700, crs: "EPSG:32750", ref: "true", planes: planes},
 			}},
 	}
+}
+
+// hole returns the programme's hole with the given id.
+func (pg programme) hole(id string) hole {
+	for _, h := range pg.holes {
+		if h.id == id {
+			return h
+		}
+	}
+	panic("no hole " + id)
 }
 
 // corrections returns the declination and convergence the fixture's hole
@@ -598,6 +612,14 @@ func checkForwardModel(t *testing.T, pg programme, rows []row, got []map[string]
 		}
 		if g[convert.ColAzimuthReference] != pg.out {
 			t.Errorf("%s: azimuth_reference %q, want %q", pg.name, g[convert.ColAzimuthReference], pg.out)
+		}
+		// Only what is applied is reported.
+		h := pg.hole(r.hole)
+		if needConv := (h.ref == "grid") != (pg.out == "grid") && h.ref != ""; needConv != (g[convert.ColConvergenceSource] != "none") {
+			t.Errorf("%s %s: convergence %s from %s, applied %v", pg.name, r.hole, g[convert.ColGridConvergence], g[convert.ColConvergenceSource], needConv)
+		}
+		if (h.ref == "magnetic") != (g[convert.ColDeclinationSource] != "none") {
+			t.Errorf("%s %s: declination %s from %s with %q surveys", pg.name, r.hole, g[convert.ColDeclination], g[convert.ColDeclinationSource], h.ref)
 		}
 	}
 }

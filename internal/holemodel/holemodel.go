@@ -171,7 +171,8 @@ type Hole struct {
 	Err  *Error
 	Path *desurvey.Path
 	// Collar and Stations are the path's input: azimuths in the output
-	// reference. Magnetic[i] tells whether Stations[i] was magnetic.
+	// reference. Magnetic[i] tells whether Stations[i] was magnetic. When
+	// Err is set, Collar is the recorded one and Stations may be short.
 	Collar   desurvey.Collar
 	Stations []desurvey.Station
 	Magnetic []bool
@@ -267,7 +268,7 @@ func New(in Input, p Project) *Hole {
 	if out == "" {
 		out = Grid
 	}
-	h := &Hole{In: in, Output: out, Convergence: none(), Cautions: []string{}, conv: p.Convention, constDecl: true}
+	h := &Hole{In: in, Output: out, Convergence: none(), Cautions: []string{}, conv: p.Convention, constDecl: true, Collar: in.Collar}
 	fail := func(e *Error) *Hole {
 		if h.Err == nil {
 			h.Err = e
@@ -377,7 +378,6 @@ func New(in Input, p Project) *Hole {
 	if _, err := ParseRef(in.CollarRef); err != nil {
 		return fail(errorf("azimuth_reference", "hole %q: %v", in.ID, err))
 	}
-	h.Collar = in.Collar
 	if collarUsed {
 		var d float64
 		if collarRef == Magnetic {
