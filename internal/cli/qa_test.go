@@ -192,7 +192,7 @@ func TestQAHoleProblems(t *testing.T) {
 		switch {
 		case f.HoleID == "KW2" && f.Check == qa.CheckSurveyInvalid && f.Source == "surveys" && f.Line == 5 && strings.Contains(f.Message, "90"):
 			kw2 = true
-		case f.HoleID == "KW3" && f.Check == qa.CheckSurveyInvalid && f.Source == "collars" && f.Line == 4 && strings.Contains(f.Message, "declination"):
+		case f.HoleID == "KW3" && f.Check == qa.CheckSurveyInvalid && f.Source == "surveys" && f.Line == 6 && strings.Contains(f.Message, "declination"):
 			kw3 = true
 		case f.HoleID == "KW1" && f.Check == qa.CheckSurveyInvalid:
 			t.Errorf("KW1 has no problem: %+v", f)
