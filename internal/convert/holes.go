@@ -80,8 +80,9 @@ type Options struct {
 	Unit       desurvey.Unit
 	// Output is Grid or True.
 	Output Reference
-	// Declination and GridConvergence apply to every hole whose collar row
-	// does not give its own.
+	// Declination and GridConvergence are the project's defaults: they apply
+	// to every hole whose collar row does not give its own (source
+	// "project").
 	Declination, GridConvergence Given
 	// NoCompute turns off computing missing corrections with package
 	// northref; a hole that needs one then has an error.
@@ -95,7 +96,8 @@ type Options struct {
 }
 
 // Hole is one hole of a loaded programme: the hole model of package
-// holemodel with its collar line and its problem located in the files.
+// holemodel with its collar line and its problem located in the files (Err
+// here is holemodel's Hole.Err placed at a file, line and column).
 type Hole struct {
 	*holemodel.Hole
 	ID   string

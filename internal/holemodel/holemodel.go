@@ -195,6 +195,9 @@ func (h *Hole) Declination(md float64) Correction {
 	if len(h.decl) == 0 {
 		return none()
 	}
+	if h.constDecl {
+		return h.decl[0].c
+	}
 	lo, hi := 0, len(h.decl)
 	for hi-lo > 1 {
 		m := int(uint(lo+hi) >> 1)
@@ -287,10 +290,12 @@ func New(in Input, p Project) *Hole {
 	}
 	collarRef := ref(in.CollarRef)
 	collarUsed := len(in.Stations) == 0 || in.Stations[0].Depth != 0
-	var needD, needC bool
+	// The convergence is looked up once for the hole, when any azimuth
+	// needs it; the declination per station, when its azimuth is magnetic.
+	var needC bool
 	mark := func(r string) {
-		d, c := needs(r, out)
-		needD, needC = needD || d, needC || c
+		_, c := needs(r, out)
+		needC = needC || c
 	}
 	if collarUsed {
 		mark(collarRef)
@@ -349,7 +354,6 @@ func New(in Input, p Project) *Hole {
 		computed[date] = v
 		return v, nil
 	}
-	_ = needD
 	gc := h.Convergence.Value
 	h.Stations = make([]desurvey.Station, 0, len(in.Stations))
 	h.Magnetic = make([]bool, 0, len(in.Stations))
