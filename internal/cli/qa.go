@@ -249,7 +249,7 @@ func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl,
 	}
 	for _, h := range holes.List() {
 		c := qa.Collar{HoleID: h.ID, East: h.Collar.East, North: h.Collar.North, Elevation: h.Collar.Elevation,
-			Azimuth: h.Collar.Azimuth, Dip: h.Collar.Dip, Depth: h.Collar.Depth, Line: h.Line}
+			Azimuth: h.Collar.Azimuth, Dip: h.Collar.Dip, Depth: h.Collar.Depth, Line: h.Line, Path: h.Path}
 		if h.Err != nil {
 			c.Problem, c.ProblemSource, c.ProblemLine = h.Hole.Err.Msg, "collars", h.Err.Loc.Line
 			if h.Err.Loc.File == surveys {

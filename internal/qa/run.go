@@ -291,7 +291,12 @@ func checkHole(h *holeData, conv coreangle.Convention, o Options, loggers map[st
 		s.Azimuth = geom.NormAzimuth(s.Azimuth)
 		good = append(good, s)
 	}
-	path, err := holePath(h.c, good, o.Feet)
+	// The hole model's path when the caller gives it (every front end of
+	// corvane does), else one built here from the stations kept.
+	path, err := h.c.Path, error(nil)
+	if path == nil {
+		path, err = holePath(h.c, good, o.Feet)
+	}
 	if err != nil {
 		out = append(out, Finding{Check: CheckSurveyInvalid, Severity: SeverityFlag, HoleID: id, Source: "collars", Line: h.c.Line,
 			Message: fmt.Sprintf("hole %s cannot be desurveyed (%v): its measurements are not checked", id, err)})

@@ -1,5 +1,7 @@
 package qa
 
+import "corvane/internal/desurvey"
+
 // Caution is stated in every report: QA findings guide judgement, they do not
 // replace it.
 const Caution = "QA flags point to data worth a second look; they guide a geologist's " +
@@ -25,6 +27,9 @@ type Collar struct {
 	Problem       string `json:"problem,omitempty"`
 	ProblemSource string `json:"problem_source,omitempty"`
 	ProblemLine   int    `json:"problem_line,omitempty"`
+	// Path is the hole's path from the hole model (package holemodel), built
+	// from the same collar and stations; nil to build it here.
+	Path *desurvey.Path `json:"-"`
 }
 
 // Station is one survey station. Azimuth is in the same north reference as
