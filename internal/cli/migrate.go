@@ -4,6 +4,7 @@ import (
 	"context"
 	"flag"
 	"fmt"
+	"strconv"
 	"strings"
 
 	"corvane/internal/config"
@@ -11,7 +12,7 @@ import (
 )
 
 func init() {
-	register(command{name: "migrate", summary: "move the database schema: up, down or version", run: runMigrate})
+	register(command{name: "migrate", summary: "move the database schema: up, down, force or version", run: runMigrate})
 }
 
 // dbFlag binds --db with its default from CORVANE_DATABASE_URL, else the
@@ -21,17 +22,19 @@ func dbFlag(fs *flag.FlagSet, env *Env) *string {
 	if v := strings.TrimSpace(env.Getenv(config.EnvDatabaseURL)); v != "" {
 		def = v
 	}
-	return fs.String("db", def, "postgres:// URL or SQLite file path (env "+config.EnvDatabaseURL+")")
+	return fs.String("db", def, "postgres:// URL, key=value PostgreSQL string or SQLite file path (env "+config.EnvDatabaseURL+")")
 }
 
 func runMigrate(ctx context.Context, env *Env, args []string) int {
 	fs := flag.NewFlagSet("migrate", flag.ContinueOnError)
 	fs.SetOutput(env.Stderr)
 	fs.Usage = func() {
-		fmt.Fprintln(env.Stderr, "Usage: corvane migrate up|down|version [--db URL] [--all] [--steps N]")
-		fmt.Fprintln(env.Stderr, "  up       apply every pending migration")
-		fmt.Fprintln(env.Stderr, "  down     roll back one migration (--steps N for N, --all for every one)")
-		fmt.Fprintln(env.Stderr, "  version  print the schema version")
+		fmt.Fprintln(env.Stderr, "Usage: corvane migrate up|down|force VERSION|version [--db URL] [--steps N] [--all --yes]")
+		fmt.Fprintln(env.Stderr, "  up             apply every pending migration")
+		fmt.Fprintln(env.Stderr, "  down           roll back one migration (--steps N for N; --all --yes for every one,")
+		fmt.Fprintln(env.Stderr, "                 which drops every table and all data)")
+		fmt.Fprintln(env.Stderr, "  force VERSION  mark a dirty schema, repaired by hand, as clean at VERSION (0: none)")
+		fmt.Fprintln(env.Stderr, "  version        print the schema version")
 		fs.PrintDefaults()
 	}
 	if len(args) == 0 || strings.HasPrefix(args[0], "-") {
@@ -40,9 +43,24 @@ func runMigrate(ctx context.Context, env *Env, args []string) int {
 	}
 	action := args[0]
 	db := dbFlag(fs, env)
-	all := fs.Bool("all", false, "down: roll back every migration")
+	all := fs.Bool("all", false, "down: roll back every migration (needs --yes)")
+	yes := fs.Bool("yes", false, "down --all: yes, drop every table and all data")
 	steps := fs.Int("steps", 1, "down: number of migrations to roll back")
-	if err := fs.Parse(args[1:]); err != nil {
+	rest := args[1:]
+	var force uint64
+	if action == "force" {
+		if len(rest) == 0 || strings.HasPrefix(rest[0], "-") {
+			fmt.Fprintln(env.Stderr, "corvane migrate force: give the VERSION the repaired schema is at (0 for none)")
+			return ExitUsage
+		}
+		n, err := strconv.ParseUint(rest[0], 10, 32)
+		if err != nil {
+			fmt.Fprintf(env.Stderr, "corvane migrate force: VERSION %q is not a whole number\n", rest[0])
+			return ExitUsage
+		}
+		force, rest = n, rest[1:]
+	}
+	if err := fs.Parse(rest); err != nil {
 		return ExitUsage
 	}
 	if fs.NArg() > 0 {
@@ -55,6 +73,9 @@ func runMigrate(ctx context.Context, env *Env, args []string) int {
 		err = store.Migrate(*db, 0)
 	case "down":
 		switch {
+		case *all && !*yes:
+			fmt.Fprintln(env.Stderr, "corvane migrate down --all drops every table and all data: add --yes to do it")
+			return ExitUsage
 		case *all:
 			err = store.MigrateDownAll(*db)
 		case *steps < 1:
@@ -63,23 +84,25 @@ func runMigrate(ctx context.Context, env *Env, args []string) int {
 		default:
 			err = store.Migrate(*db, -*steps)
 		}
+	case "force":
+		err = store.Force(*db, uint(force))
 	case "version":
 	default:
-		fmt.Fprintf(env.Stderr, "corvane migrate: unknown action %q (up, down or version)\n", action)
+		fmt.Fprintf(env.Stderr, "corvane migrate: unknown action %q (up, down, force or version)\n", action)
 		return ExitUsage
 	}
 	if err != nil {
-		fmt.Fprintf(env.Stderr, "corvane migrate %s on %s: %v\n", action, store.Redact(*db), err)
+		fmt.Fprintf(env.Stderr, "corvane migrate %s on %s: %s\n", action, store.Redact(*db), store.RedactIn(err.Error(), *db))
 		return ExitRows
 	}
 	v, dirty, err := store.Version(*db)
 	if err != nil {
-		fmt.Fprintf(env.Stderr, "corvane migrate: reading the version of %s: %v\n", store.Redact(*db), err)
+		fmt.Fprintf(env.Stderr, "corvane migrate: reading the version of %s: %s\n", store.Redact(*db), store.RedactIn(err.Error(), *db))
 		return ExitRows
 	}
 	state := ""
 	if dirty {
-		state = " (dirty: a migration failed half way; fix the schema by hand, then force the version)"
+		state = " (dirty: a migration failed half way; repair the schema by hand, then run corvane migrate force VERSION)"
 	}
 	fmt.Fprintf(env.Stdout, "schema version %d%s\n", v, state)
 	return ExitOK

@@ -93,12 +93,14 @@ func runToken(ctx context.Context, env *Env, args []string) int {
 			return fail(ExitUsage, "--name needs --project ID|NAME|all")
 		}
 	}
-	if v, _, err := store.Version(*db); err != nil || v == 0 {
+	if v, _, err := store.Version(*db); err != nil {
+		return fail(ExitRows, "reading the schema version of %s: %s", store.Redact(*db), store.RedactIn(err.Error(), *db))
+	} else if v == 0 {
 		return fail(ExitRows, "the database %s has no schema yet: run corvane migrate up first", store.Redact(*db))
 	}
 	st, err := store.Open(ctx, *db)
 	if err != nil {
-		return fail(ExitRows, "%v", err)
+		return fail(ExitRows, "%s", store.RedactIn(err.Error(), *db))
 	}
 	defer st.Close()
 	ctx = service.WithActor(ctx, service.Actor{Name: "command line", ProjectID: domain.AllProjects, Role: domain.RoleAdmin})

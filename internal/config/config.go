@@ -10,12 +10,12 @@ import (
 	"errors"
 	"flag"
 	"fmt"
-	"net/url"
 	"strconv"
 	"strings"
 	"time"
 
 	"corvane/internal/domain"
+	"corvane/internal/store/dburl"
 )
 
 // Defaults.
@@ -35,7 +35,8 @@ const (
 type Config struct {
 	// Addr is the TCP address to listen on, host:port. Port 0 picks a free port.
 	Addr string
-	// DatabaseURL is a postgres:// (or postgresql://) URL, or a SQLite file path.
+	// DatabaseURL is a postgres:// (or postgresql://) URL, a libpq key=value
+	// string, or a SQLite file path.
 	DatabaseURL string
 	// Demo loads the fictional demo programme at start when it is not there yet.
 	Demo bool
@@ -182,10 +183,8 @@ func (c Config) Validate() error {
 	}
 	if strings.TrimSpace(c.DatabaseURL) == "" {
 		errs = append(errs, errors.New("db: empty"))
-	} else if c.IsPostgres() {
-		if _, err := url.Parse(c.DatabaseURL); err != nil {
-			errs = append(errs, fmt.Errorf("db: not a valid URL: %s", redactURLError(err)))
-		}
+	} else if err := dburl.Check(c.DatabaseURL); err != nil {
+		errs = append(errs, fmt.Errorf("db: %w", err))
 	}
 	if c.MaxBodyBytes <= 0 {
 		errs = append(errs, fmt.Errorf("max-body-bytes %d: must be positive", c.MaxBodyBytes))
@@ -222,11 +221,9 @@ func (c Config) Validate() error {
 // SQLite file.
 func (c Config) IsPostgres() bool { return IsPostgresURL(c.DatabaseURL) }
 
-// IsPostgresURL reports whether s is a postgres:// or postgresql:// URL.
-func IsPostgresURL(s string) bool {
-	l := strings.ToLower(strings.TrimSpace(s))
-	return strings.HasPrefix(l, "postgres://") || strings.HasPrefix(l, "postgresql://")
-}
+// IsPostgresURL reports whether s names a PostgreSQL server: a postgres://
+// or postgresql:// URL, or a libpq key=value string (package dburl decides).
+func IsPostgresURL(s string) bool { return dburl.IsPostgres(s) }
 
 // String describes c with the database password (in the user information or a
 // password= query parameter) replaced by "xxxxx".
@@ -236,42 +233,5 @@ func (c Config) String() string {
 		c.DefaultPageSize, c.MaxPageSize, c.ReadTimeout, c.WriteTimeout, c.ShutdownTimeout, c.LogFormat, c.LogLevel)
 }
 
-// RedactDatabaseURL returns s with any password hidden. A SQLite path is
-// returned unchanged; a PostgreSQL URL that does not parse is hidden whole,
-// since it may still hold a secret.
-func RedactDatabaseURL(s string) string {
-	if !IsPostgresURL(s) {
-		return s
-	}
-	u, err := url.Parse(s)
-	if err != nil {
-		return "postgres://(unparsable URL hidden)"
-	}
-	if u.User != nil {
-		if _, has := u.User.Password(); has {
-			u.User = url.UserPassword(u.User.Username(), "xxxxx")
-		}
-	}
-	q := u.Query()
-	changed := false
-	for k := range q {
-		switch strings.ToLower(k) {
-		case "password", "sslpassword", "sslkey":
-			q.Set(k, "xxxxx")
-			changed = true
-		}
-	}
-	if changed {
-		u.RawQuery = q.Encode()
-	}
-	return u.String()
-}
-
-// redactURLError keeps url.Parse's reason but drops the URL it quotes.
-func redactURLError(err error) string {
-	var ue *url.Error
-	if errors.As(err, &ue) {
-		return ue.Err.Error()
-	}
-	return "invalid"
-}
+// RedactDatabaseURL returns s with any password hidden (package dburl).
+func RedactDatabaseURL(s string) string { return dburl.Redact(s) }

@@ -101,6 +101,18 @@ func TestLayering(t *testing.T) {
 			}
 		}
 	}
+	// The stores own what they need (package store/dburl for database
+	// addresses): nothing under internal/store reaches the configuration.
+	for pkg, ds := range all {
+		if !strings.HasPrefix(pkg, "corvane/internal/store") {
+			continue
+		}
+		for _, d := range ds {
+			if d == "corvane/internal/config" || strings.HasPrefix(d, "corvane/internal/cli") {
+				t.Errorf("%s reaches %s: the dependency runs from the wiring down to the stores, not up", pkg, d)
+			}
+		}
+	}
 	for _, pkg := range noServiceDeps {
 		for _, d := range all[pkg] {
 			if isHTTPorSQL(d) {

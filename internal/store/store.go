@@ -1,21 +1,22 @@
-// Package store opens the store named by a database URL: a postgres:// (or
-// postgresql://) URL opens the PostgreSQL store, anything else is taken as
-// the path of an SQLite file (optionally written sqlite://path).
+// Package store opens the store named by a database address: a postgres://
+// (or postgresql://) URL or a libpq key=value string opens the PostgreSQL
+// store, anything else is taken as the path of an SQLite file (optionally
+// written sqlite://path). Package dburl tells the two apart.
 // It is for the composition root; the service sees only domain.Store.
 package store
 
 import (
 	"context"
 
-	"corvane/internal/config"
 	"corvane/internal/domain"
+	"corvane/internal/store/dburl"
 	"corvane/internal/store/postgres"
 	"corvane/internal/store/sqlite"
 )
 
 // Open opens the store at url. It does not migrate.
 func Open(ctx context.Context, url string) (domain.Store, error) {
-	if config.IsPostgresURL(url) {
+	if dburl.IsPostgres(url) {
 		return postgres.Open(ctx, url)
 	}
 	return sqlite.Open(ctx, url)
@@ -24,7 +25,7 @@ func Open(ctx context.Context, url string) (domain.Store, error) {
 // Migrate applies all up migrations (steps == 0), or steps up (> 0) or down
 // (< 0) migrations.
 func Migrate(url string, steps int) error {
-	if config.IsPostgresURL(url) {
+	if dburl.IsPostgres(url) {
 		return postgres.Migrate(url, steps)
 	}
 	return sqlite.Migrate(url, steps)
@@ -32,15 +33,24 @@ func Migrate(url string, steps int) error {
 
 // MigrateDownAll rolls back every migration.
 func MigrateDownAll(url string) error {
-	if config.IsPostgresURL(url) {
+	if dburl.IsPostgres(url) {
 		return postgres.MigrateDownAll(url)
 	}
 	return sqlite.MigrateDownAll(url)
 }
 
+// Force marks the schema clean at version v (0: none applied) without
+// running a migration: the way out of a dirty schema repaired by hand.
+func Force(url string, v uint) error {
+	if dburl.IsPostgres(url) {
+		return postgres.Force(url, v)
+	}
+	return sqlite.Force(url, v)
+}
+
 // Version reports the schema version and the dirty flag.
 func Version(url string) (uint, bool, error) {
-	if config.IsPostgresURL(url) {
+	if dburl.IsPostgres(url) {
 		return postgres.Version(url)
 	}
 	return sqlite.Version(url)
@@ -55,5 +65,9 @@ func OpenMigrated(ctx context.Context, url string) (domain.Store, error) {
 }
 
 // Redact returns url safe to print: a PostgreSQL password, in the user
-// information or a query parameter, is masked.
-func Redact(url string) string { return config.RedactDatabaseURL(url) }
+// information, a query parameter or a key=value pair, is masked.
+func Redact(url string) string { return dburl.Redact(url) }
+
+// RedactIn masks in text every password of the address url (driver messages
+// may quote it).
+func RedactIn(text, url string) string { return dburl.RedactIn(text, url) }

@@ -7,18 +7,18 @@ import (
 	"context"
 	"errors"
 	"fmt"
-	"strings"
 	"time"
 
 	"github.com/golang-migrate/migrate/v4"
-	_ "github.com/golang-migrate/migrate/v4/database/pgx/v5" // registers the pgx5 scheme
+	mpgx "github.com/golang-migrate/migrate/v4/database/pgx/v5"
 	"github.com/golang-migrate/migrate/v4/source/iofs"
 	"github.com/jackc/pgx/v5"
 	"github.com/jackc/pgx/v5/pgconn"
 	"github.com/jackc/pgx/v5/pgxpool"
+	"github.com/jackc/pgx/v5/stdlib"
 
-	"corvane/internal/config"
 	"corvane/internal/domain"
+	"corvane/internal/store/dburl"
 	"corvane/internal/store/storekit"
 	"corvane/migrations"
 )
@@ -40,65 +40,75 @@ type Store struct {
 
 var _ domain.Store = (*Store)(nil)
 
-// Open connects a pool to the database at url (postgres://...). It does not
-// migrate; call [Migrate] first.
-func Open(ctx context.Context, url string) (*Store, error) {
-	cfg, err := pgxpool.ParseConfig(url)
+// Open connects a pool to the database at addr (a postgres:// URL or a
+// libpq key=value string). It does not migrate; call [Migrate] first.
+func Open(ctx context.Context, addr string) (*Store, error) {
+	cfg, err := pgxpool.ParseConfig(addr)
 	if err != nil {
-		return nil, fmt.Errorf("database URL: %w", err)
+		return nil, fmt.Errorf("database address %s: %s", dburl.Redact(addr), dburl.RedactIn(err.Error(), addr))
 	}
 	pool, err := pgxpool.NewWithConfig(ctx, cfg)
 	if err != nil {
-		return nil, fmt.Errorf("connecting to PostgreSQL: %w", err)
+		return nil, fmt.Errorf("connecting to PostgreSQL: %s", dburl.RedactIn(err.Error(), addr))
 	}
 	pctx, cancel := context.WithTimeout(ctx, 10*time.Second)
 	defer cancel()
 	if err := pool.Ping(pctx); err != nil {
 		pool.Close()
-		return nil, fmt.Errorf("connecting to PostgreSQL: %w", err)
+		return nil, fmt.Errorf("connecting to PostgreSQL at %s: %s", dburl.Redact(addr), dburl.RedactIn(err.Error(), addr))
 	}
 	return &Store{pool: pool}, nil
 }
 
-// migrateURL turns a postgres:// URL into the pgx5:// URL of migrate's driver.
-func migrateURL(u string) string {
-	for _, p := range []string{"postgresql://", "postgres://"} {
-		if strings.HasPrefix(u, p) {
-			return "pgx5://" + strings.TrimPrefix(u, p)
+// schema is the migrator of the database at addr (a postgres:// URL or a
+// key=value string): golang-migrate's pgx driver on a connection of our own,
+// so both address forms work. The driver holds a PostgreSQL advisory lock
+// while it migrates, so replicas starting together take turns.
+func schema(addr string) storekit.Schema {
+	return storekit.Schema{FS: migrations.Postgres, Dir: "postgres", Open: func() (*migrate.Migrate, error) {
+		cc, err := pgx.ParseConfig(addr)
+		if err != nil {
+			return nil, fmt.Errorf("database address %s: %s", dburl.Redact(addr), dburl.RedactIn(err.Error(), addr))
 		}
-	}
-	return u
-}
-
-func newMigrate(dbURL string) (*migrate.Migrate, error) {
-	src, err := iofs.New(migrations.Postgres, "postgres")
-	if err != nil {
-		return nil, err
-	}
-	// migrate opens (and on Close closes) its own connection from the URL.
-	m, err := migrate.NewWithSourceInstance("iofs", src, migrateURL(dbURL))
-	if err != nil {
-		return nil, fmt.Errorf("migrating %s: %w", config.RedactDatabaseURL(dbURL), err)
-	}
-	return m, nil
+		src, err := iofs.New(migrations.Postgres, "postgres")
+		if err != nil {
+			return nil, err
+		}
+		db := stdlib.OpenDB(*cc)
+		drv, err := mpgx.WithInstance(db, &mpgx.Config{})
+		if err != nil {
+			db.Close()
+			return nil, fmt.Errorf("migrating %s: %s", dburl.Redact(addr), dburl.RedactIn(err.Error(), addr))
+		}
+		m, err := migrate.NewWithInstance("iofs", src, "pgx5", drv)
+		if err != nil {
+			drv.Close()
+			return nil, fmt.Errorf("migrating %s: %w", dburl.Redact(addr), err)
+		}
+		return m, nil
+	}}
 }
 
 // Migrate moves the schema: steps > 0 applies that many up migrations, steps
-// < 0 rolls that many back, steps == 0 applies all up migrations.
-func Migrate(dbURL string, steps int) error {
-	return storekit.Migrate(func() (*migrate.Migrate, error) { return newMigrate(dbURL) }, steps)
+// < 0 rolls that many back, steps == 0 applies all up migrations. It refuses,
+// touching nothing, more steps than there are, a dirty schema, and a schema
+// newer than this binary.
+func Migrate(addr string, steps int) error {
+	if steps == 0 {
+		return schema(addr).Up()
+	}
+	return schema(addr).Steps(steps)
 }
 
 // MigrateDownAll rolls back every migration.
-func MigrateDownAll(dbURL string) error {
-	return storekit.MigrateDownAll(func() (*migrate.Migrate, error) { return newMigrate(dbURL) })
-}
+func MigrateDownAll(addr string) error { return schema(addr).DownAll() }
+
+// Force marks the schema clean at version v without running a migration.
+func Force(addr string, v uint) error { return schema(addr).Force(v) }
 
 // Version reports the schema version and whether a failed migration left it
 // dirty; 0 when no migration has run.
-func Version(dbURL string) (version uint, dirty bool, err error) {
-	return storekit.Version(func() (*migrate.Migrate, error) { return newMigrate(dbURL) })
-}
+func Version(addr string) (version uint, dirty bool, err error) { return schema(addr).Version() }
 
 // Ping checks the database answers.
 func (s *Store) Ping(ctx context.Context) error { return s.pool.Ping(ctx) }

@@ -107,17 +107,27 @@ func Open(ctx context.Context, path string) (*Store, error) {
 	return s, nil
 }
 
+func schema(path string) storekit.Schema {
+	return storekit.Schema{FS: migrations.SQLite, Dir: "sqlite", Open: func() (*migrate.Migrate, error) { return newMigrate(path) }}
+}
+
 // Migrate moves the schema of the database file at path: steps > 0 applies
 // that many up migrations, steps < 0 rolls that many back, steps == 0 applies
-// all up migrations. It gives migrate its own handle (migrate closes it).
+// all up migrations. It refuses, touching nothing, more steps than there
+// are, a dirty schema, and a schema newer than this binary. It gives migrate
+// its own handle (migrate closes it).
 func Migrate(path string, steps int) error {
-	return storekit.Migrate(func() (*migrate.Migrate, error) { return newMigrate(Path(path)) }, steps)
+	if steps == 0 {
+		return schema(Path(path)).Up()
+	}
+	return schema(Path(path)).Steps(steps)
 }
 
 // MigrateDownAll rolls back every migration.
-func MigrateDownAll(path string) error {
-	return storekit.MigrateDownAll(func() (*migrate.Migrate, error) { return newMigrate(Path(path)) })
-}
+func MigrateDownAll(path string) error { return schema(Path(path)).DownAll() }
+
+// Force marks the schema clean at version v without running a migration.
+func Force(path string, v uint) error { return schema(Path(path)).Force(v) }
 
 // Version reports the schema version of the database file and whether a
 // failed migration left it dirty. A database with no migrations has version 0,
@@ -129,7 +139,7 @@ func Version(path string) (version uint, dirty bool, err error) {
 			return 0, false, nil
 		}
 	}
-	return storekit.Version(func() (*migrate.Migrate, error) { return newMigrate(path) })
+	return schema(path).Version()
 }
 
 func newMigrate(path string) (*migrate.Migrate, error) {

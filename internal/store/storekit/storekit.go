@@ -1,15 +1,13 @@
 // Package storekit holds what the SQL stores share that does not depend on
 // the SQL dialect: how driver errors become *domain.Error values, the
 // messages for missing rows and stale versions, argument conversions, and
-// the steps of a schema migration. Each store keeps its own SQL text and
+// the checks around a schema migration (schema.go). Each store keeps its own SQL text and
 // driver calls.
 package storekit
 
 import (
 	"errors"
 	"time"
-
-	"github.com/golang-migrate/migrate/v4"
 
 	"corvane/internal/domain"
 )
@@ -88,52 +86,4 @@ func ProjectArg(id int64) any {
 		return nil
 	}
 	return id
-}
-
-// Migrate moves the schema with the migrator open returns (and Migrate
-// closes): steps > 0 applies that many up migrations, steps < 0 rolls that
-// many back, steps == 0 applies all up migrations. Nothing to do is no error.
-func Migrate(open func() (*migrate.Migrate, error), steps int) error {
-	m, err := open()
-	if err != nil {
-		return err
-	}
-	defer m.Close()
-	if steps == 0 {
-		err = m.Up()
-	} else {
-		err = m.Steps(steps)
-	}
-	if errors.Is(err, migrate.ErrNoChange) {
-		return nil
-	}
-	return err
-}
-
-// MigrateDownAll rolls back every migration.
-func MigrateDownAll(open func() (*migrate.Migrate, error)) error {
-	m, err := open()
-	if err != nil {
-		return err
-	}
-	defer m.Close()
-	if err := m.Down(); err != nil && !errors.Is(err, migrate.ErrNoChange) {
-		return err
-	}
-	return nil
-}
-
-// Version reports the schema version and whether a failed migration left it
-// dirty; 0 when no migration has run.
-func Version(open func() (*migrate.Migrate, error)) (version uint, dirty bool, err error) {
-	m, err := open()
-	if err != nil {
-		return 0, false, err
-	}
-	defer m.Close()
-	v, d, err := m.Version()
-	if errors.Is(err, migrate.ErrNilVersion) {
-		return 0, false, nil
-	}
-	return v, d, err
 }
