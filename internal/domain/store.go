@@ -70,6 +70,12 @@ type Store interface {
 	// transaction commits when fn returns nil and rolls back otherwise.
 	// Calling InTx on a bound Store runs fn in the same transaction.
 	InTx(ctx context.Context, fn func(ctx context.Context, tx Store) error) error
+	// Snapshot runs fn with a Store whose reads all see one consistent
+	// state of the database, the one committed when the first read ran,
+	// however long fn takes and whatever commits meanwhile (a long paged
+	// export never shows part of an import). Writes through it fail. On a
+	// bound Store it runs fn in the same transaction.
+	Snapshot(ctx context.Context, fn func(ctx context.Context, st Store) error) error
 
 	CreateProject(ctx context.Context, p *Project) error
 	GetProject(ctx context.Context, id int64) (Project, error)

@@ -28,26 +28,34 @@ const exportPage = 1000
 
 // ExportMeasurements writes the measurements passing q as CSV to w, with
 // derived values computed now (read). It streams: memory does not grow with
-// the number of rows. Rows come in ID order. An error after the header has
-// been written leaves w incomplete; the HTTP edge can only cut the response.
+// the number of rows. Rows come in ID order. The whole export reads one
+// snapshot of the store, so an import or edit committed meanwhile shows in
+// full or not at all. An error after the header has been written leaves w
+// incomplete; the HTTP edge can only cut the response.
 func (s *Service) ExportMeasurements(ctx context.Context, projectID int64, q MeasurementQuery, w io.Writer) error {
-	p, _, err := s.project(ctx, s.store, projectID, domain.RoleRead)
+	return s.store.Snapshot(ctx, func(ctx context.Context, st domain.Store) error {
+		return s.exportMeasurements(ctx, st, projectID, q, w)
+	})
+}
+
+func (s *Service) exportMeasurements(ctx context.Context, st domain.Store, projectID int64, q MeasurementQuery, w io.Writer) error {
+	p, _, err := s.project(ctx, st, projectID, domain.RoleRead)
 	if err != nil {
 		return err
 	}
-	f, err := filter(ctx, s.store, projectID, q)
+	f, err := filter(ctx, st, projectID, q)
 	if err != nil {
 		return err
 	}
 	cw := csvio.NewWriter(w)
 	cw.Strings(ExportColumns)
 	cw.EndRow()
-	d := newDeriver(s.store, p)
+	d := newDeriver(st, p)
 	var scratch []byte
 	var warn []string
 	var after int64
 	for {
-		ms, err := s.store.ListMeasurements(ctx, f, domain.Page{Limit: exportPage, After: after})
+		ms, err := st.ListMeasurements(ctx, f, domain.Page{Limit: exportPage, After: after})
 		if err != nil {
 			return err
 		}
@@ -88,10 +96,10 @@ func (s *Service) ExportMeasurements(ctx context.Context, projectID int64, q Mea
 			return nil
 		}
 		after = ms[len(ms)-1].ID
-		// Holes are re-read per page so a long export does not hold stale paths
-		// for ever, but within a page every row sees the same hole state.
+		// The deriver's cache of hole paths is dropped when it grows large, to
+		// bound memory; re-reading gives the same holes (one snapshot).
 		if len(d.models) > 256 {
-			d = newDeriver(s.store, p)
+			d = newDeriver(st, p)
 		}
 	}
 }

@@ -45,6 +45,10 @@ func TestOnPostgres(t *testing.T) {
 		s, ctx := open(t)
 		checkDepthRules(t, s, ctx)
 	})
+	t.Run("ExportDuringImport", func(t *testing.T) {
+		s, ctx := open(t)
+		checkExportDuringImport(t, s, ctx)
+	})
 	t.Run("Demo", func(t *testing.T) {
 		s, ctx := open(t)
 		checkDemo(t, s, ctx, true)

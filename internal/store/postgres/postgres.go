@@ -137,6 +137,21 @@ func (s *Store) InTx(ctx context.Context, fn func(ctx context.Context, tx domain
 	return translate(tx.Commit(ctx))
 }
 
+// Snapshot runs fn in one REPEATABLE READ, READ ONLY transaction: every
+// read of fn sees the snapshot taken by its first statement.
+func (s *Store) Snapshot(ctx context.Context, fn func(ctx context.Context, st domain.Store) error) error {
+	if s.tx != nil {
+		return fn(ctx, s)
+	}
+	tx, err := s.pool.BeginTx(ctx, pgx.TxOptions{IsoLevel: pgx.RepeatableRead, AccessMode: pgx.ReadOnly})
+	if err != nil {
+		return translate(err)
+	}
+	// Nothing to keep: a read-only transaction ends by rolling back.
+	defer tx.Rollback(context.WithoutCancel(ctx))
+	return fn(ctx, &Store{pool: s.pool, tx: tx})
+}
+
 func (s *Store) read() querier {
 	if s.tx != nil {
 		return s.tx

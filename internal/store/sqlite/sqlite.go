@@ -46,6 +46,8 @@ type Store struct {
 	w  *sql.DB // one connection, IMMEDIATE transactions: the single writer
 	r  *sql.DB // readers
 	tx *sql.Tx // set when bound to a transaction
+	// readOnly marks a Store bound to a [Store.Snapshot]: its writes fail.
+	readOnly bool
 }
 
 var _ domain.Store = (*Store)(nil)
@@ -200,6 +202,21 @@ func (s *Store) InTx(ctx context.Context, fn func(ctx context.Context, tx domain
 	return nil
 }
 
+// Snapshot runs fn in one read transaction on a reader connection. In WAL
+// mode SQLite gives such a transaction the snapshot of its first read until
+// it ends; writes through it fail (it is not the writer, and read-only).
+func (s *Store) Snapshot(ctx context.Context, fn func(ctx context.Context, st domain.Store) error) error {
+	if s.tx != nil {
+		return fn(ctx, s)
+	}
+	tx, err := s.r.BeginTx(ctx, &sql.TxOptions{ReadOnly: true})
+	if err != nil {
+		return translate(err)
+	}
+	defer tx.Rollback()
+	return fn(ctx, &Store{w: s.w, r: s.r, tx: tx, readOnly: true})
+}
+
 // read returns the querier for reads: the transaction when bound, else the
 // reader pool.
 func (s *Store) read() querier {
@@ -211,6 +228,9 @@ func (s *Store) read() querier {
 
 // write runs fn in the bound transaction or in a new one on the writer.
 func (s *Store) write(ctx context.Context, fn func(q querier) error) error {
+	if s.readOnly {
+		return domain.Errorf(domain.Internal, "sqlite: a write inside a read-only snapshot")
+	}
 	if s.tx != nil {
 		return fn(s.tx)
 	}

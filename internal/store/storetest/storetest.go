@@ -33,6 +33,7 @@ func Run(t *testing.T, newStore func(t *testing.T) domain.Store) {
 		{"Measurements", testMeasurements},
 		{"MeasurementFilters", testMeasurementFilters},
 		{"Transactions", testTransactions},
+		{"Snapshot", testSnapshot},
 		{"Audit", testAudit},
 		{"Tokens", testTokens},
 		{"Idempotency", testIdempotency},
@@ -481,6 +482,63 @@ func testTransactions(t *testing.T, s domain.Store) {
 	}))
 	if _, err := s.GetHoleByName(c, p.ID, "KEPT"); err != nil {
 		t.Fatalf("committed hole: %v", err)
+	}
+}
+
+// A snapshot sees one state however many pages it reads: rows committed
+// after its first read do not appear, and writes through it fail.
+func testSnapshot(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	p := newProject(t, s, "snap")
+	h := newHole(t, s, p.ID, "S1")
+	batch := func(n int) []domain.Measurement {
+		ms := make([]domain.Measurement, n)
+		for i := range ms {
+			ms[i] = domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: float64(10 + i%200), Alpha: 40, Beta: 120,
+				TypeCode: "BD", LoggedAt: time.Date(2026, 3, 2, 0, 0, 0, 0, time.UTC)}
+		}
+		return ms
+	}
+	_, err := s.CreateMeasurements(c, batch(30))
+	must(t, err)
+	f := domain.MeasurementFilter{ProjectID: p.ID}
+	var first, seen int64
+	err = s.Snapshot(c, func(c context.Context, st domain.Store) error {
+		var err error
+		if first, err = st.CountMeasurements(c, f); err != nil {
+			return err
+		}
+		// Another writer commits a batch while the snapshot is open.
+		if _, err := s.CreateMeasurements(c, batch(50)); err != nil {
+			return fmt.Errorf("writer beside the snapshot: %w", err)
+		}
+		var after int64
+		for {
+			ms, err := st.ListMeasurements(c, f, domain.Page{Limit: 7, After: after})
+			if err != nil {
+				return err
+			}
+			seen += int64(len(ms))
+			if len(ms) < 7 {
+				break
+			}
+			after = ms[len(ms)-1].ID
+		}
+		h2 := domain.Hole{AzimuthRef: "grid", ProjectID: p.ID, Name: "NOPE", Dip: -90}
+		if err := st.CreateHole(c, &h2); err == nil {
+			return errors.New("a write through the snapshot succeeded")
+		}
+		return nil
+	})
+	must(t, err)
+	if first != 30 || seen != 30 {
+		t.Fatalf("snapshot counted %d and paged %d rows, want 30 and 30 (the batch committed meanwhile must not show)", first, seen)
+	}
+	if n, _ := s.CountMeasurements(c, f); n != 80 {
+		t.Fatalf("after the snapshot: %d rows, want 80", n)
+	}
+	if _, err := s.GetHoleByName(c, p.ID, "NOPE"); !domain.IsKind(err, domain.NotFound) {
+		t.Fatalf("the write tried through the snapshot is there: %v", err)
 	}
 }
 
