@@ -19,9 +19,10 @@ const (
 	PreconditionFailed             // the caller's version (If-Match) is not the current one
 	Unauthorized                   // no credentials, or unknown credentials
 	Forbidden                      // known caller without the role needed
+	Unavailable                    // the store cannot be reached or cannot take the write now; retry later
 )
 
-var kindNames = [...]string{"internal", "not found", "invalid", "conflict", "precondition failed", "unauthorized", "forbidden"}
+var kindNames = [...]string{"internal", "not found", "invalid", "conflict", "precondition failed", "unauthorized", "forbidden", "unavailable"}
 
 // String returns the kind in words, e.g. "not found".
 func (k Kind) String() string {

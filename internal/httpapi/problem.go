@@ -49,6 +49,7 @@ var kindStatus = map[domain.Kind]struct {
 	domain.PreconditionFailed: {http.StatusPreconditionFailed, "precondition-failed"},
 	domain.Unauthorized:       {http.StatusUnauthorized, "unauthorized"},
 	domain.Forbidden:          {http.StatusForbidden, "forbidden"},
+	domain.Unavailable:        {http.StatusServiceUnavailable, "unavailable"},
 }
 
 // Errors raised at the HTTP edge itself, before any service call. They are
@@ -138,6 +139,10 @@ func problemFor(err error, instance string) Problem {
 	return p
 }
 
+// RetryAfterSeconds is the Retry-After of a 503: the store is down or busy,
+// and a client should wait this long before it tries again.
+const RetryAfterSeconds = "2"
+
 // fail renders err as problem+json and records it on the gin context so that
 // the request log (the one place a failed request is logged) can show it.
 func fail(c *gin.Context, err error) {
@@ -146,6 +151,9 @@ func fail(c *gin.Context, err error) {
 	c.Header("Content-Type", ProblemContentType)
 	if p.Status == http.StatusUnauthorized {
 		c.Header("WWW-Authenticate", `Bearer realm="corvane"`)
+	}
+	if p.Status == http.StatusServiceUnavailable && c.Writer.Header().Get("Retry-After") == "" {
+		c.Header("Retry-After", RetryAfterSeconds)
 	}
 	body, _ := json.Marshal(p)
 	c.Status(p.Status)

@@ -147,6 +147,12 @@ func (s *Service) Import(ctx context.Context, projectID int64, req ImportRequest
 		out, _ := json.Marshal(res)
 		return st.PutIdempotency(ctx, domain.Idempotency{ProjectID: projectID, Key: key, RequestHash: sum(h), Result: out})
 	})
+	if domain.IsKind(err, domain.PreconditionFailed) {
+		// An import takes no If-Match: a version check that failed inside it
+		// is a row another writer changed between the import's read and its
+		// write. That is a clash (409), and nothing was imported.
+		err = domain.Errorf(domain.Conflict, "%s: another writer changed a row the import was writing; nothing was imported: retry: %w", res.File, err)
+	}
 	switch {
 	case errors.Is(err, errDryRun):
 		return res, nil

@@ -49,6 +49,10 @@ func TestOnPostgres(t *testing.T) {
 		s, ctx := open(t)
 		checkExportDuringImport(t, s, ctx)
 	})
+	t.Run("RaceStatuses", func(t *testing.T) {
+		s, ctx := open(t)
+		checkRaceStatuses(t, s, ctx)
+	})
 	t.Run("Demo", func(t *testing.T) {
 		s, ctx := open(t)
 		checkDemo(t, s, ctx, true)

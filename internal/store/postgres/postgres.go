@@ -7,6 +7,10 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"io"
+	"net"
+	"strings"
+	"syscall"
 	"time"
 
 	"github.com/golang-migrate/migrate/v4"
@@ -180,21 +184,52 @@ func translate(err error) error {
 	return storekit.Translate(err, "postgres", pgx.ErrNoRows, violation)
 }
 
-// violation classes the SQLSTATE of a PostgreSQL error.
+// violation classes the SQLSTATE of a PostgreSQL error, and tells a
+// database that cannot be reached from other failures.
 func violation(err error) storekit.Violation {
 	var pe *pgconn.PgError
 	if !errors.As(err, &pe) {
+		if unreachable(err) {
+			return storekit.Down
+		}
 		return storekit.None
 	}
-	switch pe.Code {
-	case "23505":
+	switch {
+	case pe.Code == "23505":
 		return storekit.Unique
-	case "23503":
+	case pe.Code == "23503":
 		return storekit.ForeignKey
-	case "23514", "23502", "22P02", "22003":
+	case pe.Code == "23514", pe.Code == "23502", pe.Code == "22P02", pe.Code == "22003":
 		return storekit.Rule
+	case pe.Code == "40001", pe.Code == "40P01", pe.Code == "55P03":
+		// serialization failure, deadlock, lock not available
+		return storekit.Clash
+	case strings.HasPrefix(pe.Code, "08"), // connection exception
+		pe.Code == "57P01", pe.Code == "57P02", pe.Code == "57P03", // shutdown, crash, starting up
+		pe.Code == "53100", pe.Code == "53200", pe.Code == "53300": // disk full, out of memory, too many connections
+		return storekit.Down
 	}
 	return storekit.None
+}
+
+// unreachable reports whether err (not from the server itself) means the
+// connection to the database failed or broke: the server is down or
+// restarting. A cancelled or timed-out request is not that.
+func unreachable(err error) bool {
+	if errors.Is(err, context.Canceled) || errors.Is(err, context.DeadlineExceeded) {
+		return false
+	}
+	var ce *pgconn.ConnectError
+	var ne net.Error
+	switch {
+	case errors.As(err, &ce), errors.As(err, &ne),
+		errors.Is(err, io.EOF), errors.Is(err, io.ErrUnexpectedEOF),
+		errors.Is(err, syscall.ECONNREFUSED), errors.Is(err, syscall.ECONNRESET), errors.Is(err, syscall.EPIPE),
+		pgconn.SafeToRetry(err):
+		return true
+	}
+	// pgx reports a connection it already found broken as "conn closed".
+	return strings.Contains(err.Error(), "conn closed")
 }
 
 // one translates the error of a single-row read, naming what was missing.

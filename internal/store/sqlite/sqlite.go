@@ -266,6 +266,13 @@ func violation(err error) storekit.Violation {
 	case sqlite3.SQLITE_CONSTRAINT_CHECK, sqlite3.SQLITE_CONSTRAINT_NOTNULL:
 		return storekit.Rule
 	}
+	// The primary result code (the low byte): a file still locked after the
+	// busy timeout, a full disk or a failing file is the store being
+	// unavailable, not a bug.
+	switch se.Code() & 0xff {
+	case sqlite3.SQLITE_BUSY, sqlite3.SQLITE_LOCKED, sqlite3.SQLITE_FULL, sqlite3.SQLITE_IOERR, sqlite3.SQLITE_CANTOPEN:
+		return storekit.Down
+	}
 	return storekit.None
 }
 

@@ -21,12 +21,16 @@ const (
 	Unique               // a unique or primary key
 	ForeignKey           // a reference to a missing row, or a row still referenced
 	Rule                 // a check or not-null constraint, or a value out of range
+	Clash                // a concurrent transaction won (serialization failure, deadlock)
+	Down                 // the database cannot be reached, is shutting down, or is full
 )
 
 // Translate turns a driver error into a *domain.Error once: one that already
 // is passes through, noRows (the driver's "no rows" error) becomes NotFound,
 // a constraint violation that classify names becomes Conflict or Invalid,
-// and anything else Internal, prefixed with the driver's name.
+// a lost race Conflict, an unreachable database Unavailable (the service
+// answers 503 and recovers when the database is back), and anything else
+// Internal, prefixed with the driver's name.
 func Translate(err error, driver string, noRows error, classify func(error) Violation) error {
 	if err == nil {
 		return nil
@@ -45,6 +49,10 @@ func Translate(err error, driver string, noRows error, classify func(error) Viol
 		return domain.Errorf(domain.Conflict, "refers to a missing row or is still referenced: %w", err)
 	case Rule:
 		return domain.Errorf(domain.Invalid, "breaks a rule of the schema: %w", err)
+	case Clash:
+		return domain.Errorf(domain.Conflict, "a concurrent change got there first: retry: %w", err)
+	case Down:
+		return domain.Errorf(domain.Unavailable, "the database is unavailable: retry later: %w", err)
 	}
 	return domain.Errorf(domain.Internal, "%s: %w", driver, err)
 }
