@@ -70,14 +70,10 @@ func newLogger(w io.Writer, cfg config.Config) *slog.Logger {
 	return slog.New(slog.NewTextHandler(w, opts))
 }
 
-// listenAndServe serves h on cfg.Addr until ctx is done, then stops taking
-// new connections and waits (at most cfg.ShutdownTimeout) for the requests in
-// flight to finish. ready is called with the listening URL.
-func listenAndServe(ctx context.Context, cfg config.Config, h http.Handler, log *slog.Logger, ready func(url string)) error {
-	ln, err := net.Listen("tcp", cfg.Addr)
-	if err != nil {
-		return fmt.Errorf("listening on %s: %w", cfg.Addr, err)
-	}
+// serveOn serves h on the bound listener ln until ctx is done, then stops
+// taking new connections and waits (at most cfg.ShutdownTimeout) for the
+// requests in flight to finish. ready is called with the listening URL.
+func serveOn(ctx context.Context, ln net.Listener, cfg config.Config, h http.Handler, log *slog.Logger, ready func(url string)) error {
 	srv := &http.Server{
 		Handler:           h,
 		ReadHeaderTimeout: 10 * time.Second,
@@ -114,20 +110,35 @@ func listenAndServe(ctx context.Context, cfg config.Config, h http.Handler, log 
 	return nil
 }
 
-// serve opens and migrates the store, loads the demo when asked, and serves
-// the API until ctx is done.
+// serve binds the listening address first (a start that cannot listen
+// changes nothing: it neither migrates nor touches the demo tokens), opens
+// and migrates the store, loads the demo when asked, and serves the API
+// until ctx is done.
 func serve(ctx context.Context, env *Env, cfg config.Config, log *slog.Logger) error {
+	ln, err := net.Listen("tcp", cfg.Addr)
+	if err != nil {
+		return fmt.Errorf("listening on %s: %w", cfg.Addr, err)
+	}
+	defer ln.Close()
 	// Applies pending migrations first; on PostgreSQL under migrate's
-	// advisory lock, so replicas starting together are safe.
+	// advisory lock, so replicas starting together take turns. A schema
+	// newer than this binary stops here with one sentence saying so.
 	st, err := store.OpenMigrated(ctx, cfg.DatabaseURL)
 	if err != nil {
-		return fmt.Errorf("store: %w", err)
+		return fmt.Errorf("store: %s", store.RedactIn(err.Error(), cfg.DatabaseURL))
 	}
 	defer st.Close()
 	svc := service.New(st, log)
 	var demoLine string
 	if cfg.Demo {
-		if demoLine, err = loadDemo(ctx, svc, log); err != nil {
+		// Replicas starting together load the demo one at a time: the first
+		// loads it, the others find it.
+		err := st.Exclusive(ctx, "demo", func(ctx context.Context) error {
+			var err error
+			demoLine, err = loadDemo(ctx, svc, log)
+			return err
+		})
+		if err != nil {
 			return err
 		}
 	}
@@ -141,7 +152,7 @@ func serve(ctx context.Context, env *Env, cfg config.Config, log *slog.Logger) e
 		MaxPageSize:     cfg.MaxPageSize,
 		Web:             web.Handler(),
 	})
-	return listenAndServe(ctx, cfg, h, log, func(url string) {
+	return serveOn(ctx, ln, cfg, h, log, func(url string) {
 		// These two lines are stable: scripts and tests read them.
 		fmt.Fprintf(env.Stdout, "corvane: listening on %s\n", url)
 		if demoLine != "" {
@@ -153,32 +164,33 @@ func serve(ctx context.Context, env *Env, cfg config.Config, log *slog.Logger) e
 // DemoTokenName is the name of the admin token serve --demo prints.
 const DemoTokenName = "demo-serve"
 
-// loadDemo loads the demonstration programme unless it is there, revokes the
-// demo token printed by an earlier start (and those of older versions, named
-// "serve --demo <time>"), and makes a new admin token for it. It returns the
-// line to print.
+// loadDemo loads the demonstration programme unless it is there, makes a new
+// admin token for it, and then revokes the demo tokens printed by earlier
+// starts (and those of older versions, named "serve --demo <time>"). It
+// returns the line to print. serve calls it once it holds its address, so a
+// start that cannot listen leaves the running server's token alone.
 func loadDemo(ctx context.Context, svc *service.Service, log *slog.Logger) (string, error) {
 	sys := service.WithActor(ctx, service.System)
 	p, loaded, err := svc.LoadDemo(sys)
 	if err != nil {
 		return "", fmt.Errorf("loading the demo programme: %w", err)
 	}
+	secret, tok, err := svc.CreateToken(sys, p.ID, domain.RoleAdmin, DemoTokenName)
+	if err != nil {
+		return "", fmt.Errorf("making the demo token: %w", err)
+	}
 	ts, err := svc.ListTokens(sys, p.ID)
 	if err != nil {
 		return "", fmt.Errorf("listing the demo tokens: %w", err)
 	}
 	for _, t := range ts {
-		if t.Name != DemoTokenName && !strings.HasPrefix(t.Name, "serve --demo ") {
+		if t.ID == tok.ID || (t.Name != DemoTokenName && !strings.HasPrefix(t.Name, "serve --demo ")) {
 			continue
 		}
 		if _, err := svc.RevokeToken(sys, p.ID, t.ID); err != nil && !domain.IsKind(err, domain.NotFound) {
 			return "", fmt.Errorf("revoking the earlier demo token %d: %w", t.ID, err)
 		}
 		log.Info("revoked an earlier demo token", "token", t.ID, "name", t.Name)
-	}
-	secret, _, err := svc.CreateToken(sys, p.ID, domain.RoleAdmin, DemoTokenName)
-	if err != nil {
-		return "", fmt.Errorf("making the demo token: %w", err)
 	}
 	log.Info("demo programme", "project", p.ID, "name", p.Name, "loaded_now", loaded)
 	return fmt.Sprintf("corvane: demo project %d %q; demo admin token: %s", p.ID, p.Name, secret), nil

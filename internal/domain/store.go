@@ -76,6 +76,11 @@ type Store interface {
 	// export never shows part of an import). Writes through it fail. On a
 	// bound Store it runs fn in the same transaction.
 	Snapshot(ctx context.Context, fn func(ctx context.Context, st Store) error) error
+	// Exclusive runs fn while holding the lock called name, which every
+	// process sharing the database respects (PostgreSQL: an advisory lock;
+	// SQLite, one process: a lock of the process). Start-up work that
+	// replicas must not do at once (the demo load) runs inside it.
+	Exclusive(ctx context.Context, name string, fn func(ctx context.Context) error) error
 
 	CreateProject(ctx context.Context, p *Project) error
 	GetProject(ctx context.Context, id int64) (Project, error)

@@ -83,36 +83,51 @@ var (
 // it prints its URL (and, with --demo, its token) and /readyz answers 200.
 func start(t testing.TB, db string, args ...string) *server {
 	t.Helper()
+	s, err := launch(t, db, args...)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return s
+}
+
+// launch is start returning its failure instead of failing the test, so
+// that several servers can be started at once from other goroutines. The
+// server is killed when the test ends.
+func launch(t testing.TB, db string, args ...string) (*server, error) {
 	all := append([]string{"serve", "--addr", "127.0.0.1:0", "--db", db, "--log-format", "json"}, args...)
 	cmd := exec.Command(binary, all...)
 	cmd.Env = append(os.Environ(), "CORVANE_DATABASE_URL=", "CORVANE_ADDR=")
 	stdout, err := cmd.StdoutPipe()
 	if err != nil {
-		t.Fatal(err)
+		return nil, err
 	}
 	s := &server{cmd: cmd, out: &syncBuffer{}, done: make(chan error, 1)}
 	cmd.Stderr = s.out
 	if err := cmd.Start(); err != nil {
-		t.Fatal(err)
+		return nil, err
 	}
 	demo := false
 	for _, a := range args {
 		demo = demo || a == "--demo"
 	}
 	found := make(chan struct{})
+	var mu sync.Mutex
 	go func() {
 		sc := bufio.NewScanner(stdout)
 		signalled := false
 		for sc.Scan() {
 			line := sc.Text()
 			fmt.Fprintln(s.out, line)
+			mu.Lock()
 			if m := urlLine.FindStringSubmatch(line); m != nil {
 				s.URL = m[1]
 			}
 			if m := tokenLine.FindStringSubmatch(line); m != nil {
 				s.Token = m[1]
 			}
-			if !signalled && s.URL != "" && (!demo || s.Token != "") {
+			ready := s.URL != "" && (!demo || s.Token != "")
+			mu.Unlock()
+			if !signalled && ready {
 				signalled = true
 				close(found)
 			}
@@ -120,14 +135,6 @@ func start(t testing.TB, db string, args ...string) *server {
 		_, _ = io.Copy(io.Discard, stdout)
 		s.done <- cmd.Wait()
 	}()
-	select {
-	case <-found:
-	case err := <-s.done:
-		t.Fatalf("corvane serve exited early: %v\n%s", err, s.out)
-	case <-time.After(60 * time.Second):
-		_ = cmd.Process.Kill()
-		t.Fatalf("corvane serve did not print its URL within 60 s\n%s", s.out)
-	}
 	t.Cleanup(func() {
 		if s.cmd.ProcessState == nil {
 			_ = s.cmd.Process.Kill()
@@ -137,21 +144,30 @@ func start(t testing.TB, db string, args ...string) *server {
 			t.Logf("server output:\n%s", s.out)
 		}
 	})
+	select {
+	case <-found:
+	case err := <-s.done:
+		s.done <- err
+		return nil, fmt.Errorf("corvane serve exited early: %v\n%s", err, s.out)
+	case <-time.After(60 * time.Second):
+		return nil, fmt.Errorf("corvane serve did not print its URL within 60 s\n%s", s.out)
+	}
+	mu.Lock()
+	defer mu.Unlock()
 	deadline := time.Now().Add(30 * time.Second)
 	for {
 		resp, err := http.Get(s.URL + "/readyz")
 		if err == nil {
 			resp.Body.Close()
 			if resp.StatusCode == 200 {
-				break
+				return s, nil
 			}
 		}
 		if time.Now().After(deadline) {
-			t.Fatalf("/readyz not 200 within 30 s (last error %v)\n%s", err, s.out)
+			return nil, fmt.Errorf("/readyz not 200 within 30 s (last error %v)\n%s", err, s.out)
 		}
 		time.Sleep(50 * time.Millisecond)
 	}
-	return s
 }
 
 // stop sends SIGTERM and waits for a clean exit.

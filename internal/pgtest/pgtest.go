@@ -191,15 +191,107 @@ func freePort() (int, error) {
 
 // start runs initdb and the server; it returns the admin URL and a stop function.
 func start() (string, func(), error) {
-	bin, err := binDir()
+	srv, err := newServer(false)
 	if err != nil {
 		return "", nil, err
+	}
+	return srv.URL, srv.remove, nil
+}
+
+// Server is a PostgreSQL server of its own, for a test that stops and
+// starts it (the package's shared server must stay up for the others). Its
+// commits are durable (synchronous_commit on): an immediate stop loses no
+// acknowledged write. fsync stays off: only the server process stops, never
+// the machine.
+type Server struct {
+	URL     string // admin URL (database postgres)
+	run     func(name string, args ...string) ([]byte, error)
+	data    string
+	opts    string
+	logFile string
+	cleanup func()
+}
+
+// NewServer starts a server of the test's own on a free loopback port and
+// removes it when the test ends. Without PostgreSQL binaries it skips (or
+// fails, when required).
+func NewServer(t testing.TB) *Server {
+	t.Helper()
+	URL(t) // skip or fail like every PostgreSQL test when there is none
+	if os.Getenv(EnvURL) != "" {
+		t.Skipf("SKIP: %s names an outside server; this test needs a server it can stop", EnvURL)
+	}
+	srv, err := newServer(true)
+	if err != nil {
+		t.Fatalf("pgtest: starting a server: %v", err)
+	}
+	t.Cleanup(srv.remove)
+	return srv
+}
+
+// Stop stops the server at once, as a crash would (immediate mode).
+func (s *Server) Stop() error {
+	out, err := s.run("pg_ctl", "-D", s.data, "-m", "immediate", "-w", "stop")
+	if err != nil {
+		return fmt.Errorf("pg_ctl stop: %v\n%s", err, tail(out))
+	}
+	return nil
+}
+
+// Start starts the stopped server again on the same port and waits until it
+// answers.
+func (s *Server) Start() error {
+	if out, err := s.run("pg_ctl", "-D", s.data, "-l", s.logFile, "-o", s.opts, "-w", "-t", "60", "start"); err != nil {
+		log, _ := os.ReadFile(s.logFile)
+		return fmt.Errorf("pg_ctl start: %v\n%s\n%s", err, tail(out), tail(log))
+	}
+	return s.wait()
+}
+
+// DB creates an empty database on the server and returns its URL.
+func (s *Server) DB(t testing.TB, name string) string {
+	t.Helper()
+	if err := exec1(context.Background(), s.URL, "CREATE DATABASE "+pgx.Identifier{name}.Sanitize()); err != nil {
+		t.Fatalf("pgtest: creating database: %v", err)
+	}
+	return withDB(s.URL, name)
+}
+
+func (s *Server) remove() {
+	s.run("pg_ctl", "-D", s.data, "-m", "immediate", "-w", "stop")
+	s.cleanup()
+}
+
+func (s *Server) wait() error {
+	ctx, cancel := context.WithTimeout(context.Background(), 20*time.Second)
+	defer cancel()
+	for {
+		c, err := pgx.Connect(ctx, s.URL)
+		if err == nil {
+			c.Close(ctx)
+			return nil
+		}
+		if ctx.Err() != nil {
+			log, _ := os.ReadFile(s.logFile)
+			return fmt.Errorf("server did not answer: %v\n%s", err, tail(log))
+		}
+		time.Sleep(100 * time.Millisecond)
+	}
+}
+
+// newServer starts a server. A durable one keeps synchronous_commit on, so
+// a commit it acknowledged survives the server being stopped at once (the
+// shared one trades that for speed).
+func newServer(durable bool) (*Server, error) {
+	bin, err := binDir()
+	if err != nil {
+		return nil, err
 	}
 	// A short directory (not t.TempDir: the Unix socket path is limited to
 	// about 107 bytes, and its parents may be closed to the postgres user).
 	dir, err := os.MkdirTemp("", "cvpg")
 	if err != nil {
-		return "", nil, err
+		return nil, err
 	}
 	cleanup := func() { os.RemoveAll(dir) }
 	var cred *syscall.Credential
@@ -207,14 +299,14 @@ func start() (string, func(), error) {
 		u, err := user.Lookup("postgres")
 		if err != nil {
 			cleanup()
-			return "", nil, fmt.Errorf("running as root and no postgres user to run the server: %w", err)
+			return nil, fmt.Errorf("running as root and no postgres user to run the server: %w", err)
 		}
 		uid, _ := strconv.Atoi(u.Uid)
 		gid, _ := strconv.Atoi(u.Gid)
 		cred = &syscall.Credential{Uid: uint32(uid), Gid: uint32(gid)}
 		if err := os.Chown(dir, uid, gid); err != nil {
 			cleanup()
-			return "", nil, err
+			return nil, err
 		}
 	}
 	run := func(name string, args ...string) ([]byte, error) {
@@ -229,41 +321,27 @@ func start() (string, func(), error) {
 	data := filepath.Join(dir, "data")
 	if out, err := run("initdb", "--no-sync", "-U", "postgres", "-A", "trust", "-E", "UTF8", "--locale=C.UTF-8", "-D", data); err != nil {
 		cleanup()
-		return "", nil, fmt.Errorf("initdb: %v\n%s", err, tail(out))
+		return nil, fmt.Errorf("initdb: %v\n%s", err, tail(out))
 	}
 	port, err := freePort()
 	if err != nil {
 		cleanup()
-		return "", nil, err
+		return nil, err
 	}
-	opts := fmt.Sprintf("-p %d -k %s -c listen_addresses=127.0.0.1 -c fsync=off -c synchronous_commit=off -c full_page_writes=off -c max_connections=200",
-		port, dir)
-	logFile := filepath.Join(dir, "server.log")
-	if out, err := run("pg_ctl", "-D", data, "-l", logFile, "-o", opts, "-w", "-t", "60", "start"); err != nil {
-		log, _ := os.ReadFile(logFile)
-		cleanup()
-		return "", nil, fmt.Errorf("pg_ctl start: %v\n%s\n%s", err, tail(out), tail(log))
+	s := &Server{
+		URL:  fmt.Sprintf("postgres://postgres@127.0.0.1:%d/postgres?sslmode=disable", port),
+		run:  run,
+		data: data,
+		opts: fmt.Sprintf("-p %d -k %s -c listen_addresses=127.0.0.1 -c fsync=off -c synchronous_commit=%s -c full_page_writes=off -c max_connections=200",
+			port, dir, map[bool]string{true: "on", false: "off"}[durable]),
+		logFile: filepath.Join(dir, "server.log"),
+		cleanup: cleanup,
 	}
-	stop := func() {
-		run("pg_ctl", "-D", data, "-m", "immediate", "-w", "stop")
-		cleanup()
+	if err := s.Start(); err != nil {
+		s.remove()
+		return nil, err
 	}
-	u := fmt.Sprintf("postgres://postgres@127.0.0.1:%d/postgres?sslmode=disable", port)
-	ctx, cancel := context.WithTimeout(context.Background(), 20*time.Second)
-	defer cancel()
-	for {
-		c, err := pgx.Connect(ctx, u)
-		if err == nil {
-			c.Close(ctx)
-			return u, stop, nil
-		}
-		if ctx.Err() != nil {
-			log, _ := os.ReadFile(logFile)
-			stop()
-			return "", nil, fmt.Errorf("server did not answer: %v\n%s", err, tail(log))
-		}
-		time.Sleep(100 * time.Millisecond)
-	}
+	return s, nil
 }
 
 func tail(b []byte) string {

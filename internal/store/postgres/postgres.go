@@ -156,6 +156,22 @@ func (s *Store) Snapshot(ctx context.Context, fn func(ctx context.Context, st do
 	return fn(ctx, &Store{pool: s.pool, tx: tx})
 }
 
+// Exclusive runs fn holding a session advisory lock named after name, on a
+// connection of its own opened outside the pool (a waiter holding a pooled
+// connection could starve the holder's work of connections): replicas on
+// one database take turns. Closing that connection releases the lock.
+func (s *Store) Exclusive(ctx context.Context, name string, fn func(ctx context.Context) error) error {
+	conn, err := pgx.ConnectConfig(ctx, s.pool.Config().ConnConfig.Copy())
+	if err != nil {
+		return translate(err)
+	}
+	defer conn.Close(context.WithoutCancel(ctx))
+	if _, err := conn.Exec(ctx, `SELECT pg_advisory_lock(hashtextextended('corvane:' || $1, 0))`, name); err != nil {
+		return translate(err)
+	}
+	return fn(ctx)
+}
+
 func (s *Store) read() querier {
 	if s.tx != nil {
 		return s.tx

@@ -19,6 +19,7 @@ import (
 	"os"
 	"runtime"
 	"strings"
+	"sync"
 	"time"
 
 	"github.com/golang-migrate/migrate/v4"
@@ -215,6 +216,18 @@ func (s *Store) Snapshot(ctx context.Context, fn func(ctx context.Context, st do
 	}
 	defer tx.Rollback()
 	return fn(ctx, &Store{w: s.w, r: s.r, tx: tx, readOnly: true})
+}
+
+// exclusive serialises [Store.Exclusive] in the process: an SQLite file
+// is served by one process.
+var exclusive sync.Mutex
+
+// Exclusive runs fn holding the process's lock (name is not needed: one
+// lock for all).
+func (s *Store) Exclusive(ctx context.Context, name string, fn func(ctx context.Context) error) error {
+	exclusive.Lock()
+	defer exclusive.Unlock()
+	return fn(ctx)
 }
 
 // read returns the querier for reads: the transaction when bound, else the

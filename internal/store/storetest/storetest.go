@@ -34,6 +34,7 @@ func Run(t *testing.T, newStore func(t *testing.T) domain.Store) {
 		{"MeasurementFilters", testMeasurementFilters},
 		{"Transactions", testTransactions},
 		{"Snapshot", testSnapshot},
+		{"Exclusive", testExclusive},
 		{"Audit", testAudit},
 		{"Tokens", testTokens},
 		{"Idempotency", testIdempotency},
@@ -539,6 +540,43 @@ func testSnapshot(t *testing.T, s domain.Store) {
 	}
 	if _, err := s.GetHoleByName(c, p.ID, "NOPE"); !domain.IsKind(err, domain.NotFound) {
 		t.Fatalf("the write tried through the snapshot is there: %v", err)
+	}
+}
+
+// Exclusive lets one holder in at a time, and the store works inside it.
+func testExclusive(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	var inside, most atomic.Int32
+	var wg sync.WaitGroup
+	errs := make([]error, 4)
+	for i := range errs {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			errs[i] = s.Exclusive(c, "storetest", func(c context.Context) error {
+				n := inside.Add(1)
+				defer inside.Add(-1)
+				for {
+					m := most.Load()
+					if n <= m || most.CompareAndSwap(m, n) {
+						break
+					}
+				}
+				p := domain.Project{Name: fmt.Sprintf("excl-%d", i)}
+				must(t, p.Normalize())
+				time.Sleep(20 * time.Millisecond)
+				return s.CreateProject(c, &p)
+			})
+		}()
+	}
+	wg.Wait()
+	for i, err := range errs {
+		if err != nil {
+			t.Fatalf("holder %d: %v", i, err)
+		}
+	}
+	if most.Load() != 1 {
+		t.Fatalf("%d holders inside the lock at once", most.Load())
 	}
 }
 
