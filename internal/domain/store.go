@@ -132,7 +132,12 @@ type Store interface {
 	DeleteMeasurement(ctx context.Context, id, ifVersion int64) error
 
 	AppendAudit(ctx context.Context, e *AuditEntry) error
+	// ListAudit lists the entries of one project (AllProjects: of the site's
+	// own actions), whether or not the project still exists.
 	ListAudit(ctx context.Context, projectID int64, page Page) ([]AuditEntry, error)
+	// ListAuditAll lists every entry: all projects, deleted ones too, and the
+	// site's.
+	ListAuditAll(ctx context.Context, page Page) ([]AuditEntry, error)
 
 	CreateToken(ctx context.Context, t *Token) error
 	// TokenByHash returns the token with the given hex SHA-256; NotFound if none.

@@ -310,6 +310,7 @@ func TestContractTour(t *testing.T) {
 	f.must(200, f.site, "POST", base+"/qa?persistent=JN", map[string]any{"picks": []map[string]any{{"hole_id": "TR001", "depth": 2, "dip": 40, "dip_direction": 100}}}, nil)
 	f.must(200, f.site, "GET", hb+"/qa?format=html", nil, nil)
 	f.must(200, f.site, "GET", base+"/audit", nil, nil)
+	f.must(200, f.site, "GET", "/v1/audit?project="+itoa(pid), nil, nil)
 	f.must(204, f.site, "DELETE", mb, nil, nil, "If-Match", `"2"`)
 	r = f.must(200, f.site, "GET", hb, nil, nil)
 	f.must(204, f.site, "DELETE", hb, nil, nil, "If-Match", r.Header.Get("ETag"))

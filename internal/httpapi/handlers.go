@@ -753,6 +753,32 @@ func (s *Server) importCSV(c *gin.Context) {
 
 // ---- audit
 
+// listSiteAudit is the audit trail across projects, for site admins:
+// ?project=ID narrows it to one project (deleted ones too; 0 for the
+// site's own actions).
+func (s *Server) listSiteAudit(c *gin.Context) {
+	pg, err := s.page(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	var pid *int64
+	if v := c.Query("project"); v != "" {
+		n, err := strconv.ParseInt(v, 10, 64)
+		if err != nil || n < 0 {
+			fail(c, domain.FieldErr("project", "query parameter project=%q: want a project id (0 for the site's own actions)", v))
+			return
+		}
+		pid = &n
+	}
+	l, err := s.opt.Service.ListSiteAudit(c.Request.Context(), pid, pg)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	renderPage(c, l)
+}
+
 func (s *Server) listAudit(c *gin.Context) {
 	pid, err := pathID(c, "project")
 	if err != nil {

@@ -150,6 +150,31 @@ func (s *Service) ListAudit(ctx context.Context, projectID int64, pg domain.Page
 	return page(es, pg, func(e domain.AuditEntry) int64 { return e.ID }), nil
 }
 
+// ListSiteAudit returns one page of the audit trail across projects, for a
+// site admin (a token valid in every project): every entry when projectID
+// is nil, else those of that project, which may have been deleted (its own
+// audit route then answers 404), or with AllProjects those of the site's own
+// actions (site tokens).
+func (s *Service) ListSiteAudit(ctx context.Context, projectID *int64, pg domain.Page) (List[domain.AuditEntry], error) {
+	a, err := allow(ctx, domain.AllProjects, domain.RoleAdmin)
+	if err != nil {
+		return List[domain.AuditEntry]{}, err
+	}
+	if a.ProjectID != domain.AllProjects {
+		return List[domain.AuditEntry]{}, domain.Errorf(domain.Forbidden, "token %q is a project token; the audit across projects needs a site admin token", a.Name)
+	}
+	var es []domain.AuditEntry
+	if projectID == nil {
+		es, err = s.store.ListAuditAll(ctx, pg)
+	} else {
+		es, err = s.store.ListAudit(ctx, *projectID, pg)
+	}
+	if err != nil {
+		return List[domain.AuditEntry]{}, err
+	}
+	return page(es, pg, func(e domain.AuditEntry) int64 { return e.ID }), nil
+}
+
 // nameTaken explains a Conflict on a project's unique name.
 func nameTaken(err error, name string) error {
 	if domain.IsKind(err, domain.Conflict) {

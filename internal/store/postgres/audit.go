@@ -11,8 +11,9 @@ import (
 const (
 	insertAudit = `INSERT INTO audit_log (project_id, actor, token_id, entity, entity_id, action, at, before, after)
 	VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9) RETURNING id`
-	listAudit = `SELECT id, project_id, actor, token_id, entity, entity_id, action, at, before, after
-	FROM audit_log WHERE project_id = $1 AND id > $2 ORDER BY id LIMIT $3`
+	auditCols = `SELECT id, project_id, actor, token_id, entity, entity_id, action, at, before, after FROM audit_log `
+	listAudit    = auditCols + `WHERE project_id = $1 AND id > $2 ORDER BY id LIMIT $3`
+	listAuditAll = auditCols + `WHERE id > $1 ORDER BY id LIMIT $2`
 )
 
 func nullJSON(b []byte) any {
@@ -37,7 +38,18 @@ func (s *Store) AppendAudit(ctx context.Context, e *domain.AuditEntry) error {
 // ListAudit returns one page of the project's audit trail, oldest first.
 func (s *Store) ListAudit(ctx context.Context, projectID int64, page domain.Page) ([]domain.AuditEntry, error) {
 	page = page.Norm()
-	rows, err := s.read().Query(ctx, listAudit, projectID, page.After, page.Limit)
+	return s.listAudit(ctx, listAudit, projectID, page.After, page.Limit)
+}
+
+// ListAuditAll returns one page of the whole audit trail, every project's
+// (deleted ones too) and the site's, oldest first.
+func (s *Store) ListAuditAll(ctx context.Context, page domain.Page) ([]domain.AuditEntry, error) {
+	page = page.Norm()
+	return s.listAudit(ctx, listAuditAll, page.After, page.Limit)
+}
+
+func (s *Store) listAudit(ctx context.Context, query string, args ...any) ([]domain.AuditEntry, error) {
+	rows, err := s.read().Query(ctx, query, args...)
 	if err != nil {
 		return nil, translate(err)
 	}

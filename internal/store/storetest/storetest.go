@@ -610,6 +610,25 @@ func testAudit(t *testing.T, s domain.Store) {
 	if len(page) != 1 || page[0].ID != e2.ID {
 		t.Errorf("audit paging: %+v", page)
 	}
+	// The whole trail: every project's, a deleted one's, and the site's own.
+	site := domain.AuditEntry{ProjectID: domain.AllProjects, ActorName: "cli", Entity: "token", EntityID: "1", Action: "create", At: at}
+	must(t, s.AppendAudit(c, &site))
+	must(t, s.DeleteProject(c, p.ID, p.Version))
+	kept, err := s.ListAudit(c, p.ID, domain.Page{})
+	must(t, err)
+	if len(kept) != 2 {
+		t.Errorf("the audit of a deleted project: %d entries, want 2", len(kept))
+	}
+	all, err := s.ListAuditAll(c, domain.Page{})
+	must(t, err)
+	var ids []int64
+	for _, e := range all {
+		ids = append(ids, e.ID)
+	}
+	diff(t, "the whole audit trail", []int64{e1.ID, e2.ID, site.ID}, ids)
+	if rest, _ := s.ListAuditAll(c, domain.Page{After: e2.ID, Limit: 5}); len(rest) != 1 || rest[0].ProjectID != domain.AllProjects {
+		t.Errorf("paging the whole trail: %+v", rest)
+	}
 }
 
 func testTokens(t *testing.T, s domain.Store) {
