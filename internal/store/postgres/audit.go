@@ -11,7 +11,7 @@ import (
 const (
 	insertAudit = `INSERT INTO audit_log (project_id, actor, token_id, entity, entity_id, action, at, before, after)
 	VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9) RETURNING id`
-	auditCols = `SELECT id, project_id, actor, token_id, entity, entity_id, action, at, before, after FROM audit_log `
+	auditCols    = `SELECT id, project_id, actor, token_id, entity, entity_id, action, at, before, after FROM audit_log `
 	listAudit    = auditCols + `WHERE project_id = $1 AND id > $2 ORDER BY id LIMIT $3`
 	listAuditAll = auditCols + `WHERE id > $1 ORDER BY id LIMIT $2`
 )

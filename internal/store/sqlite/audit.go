@@ -12,7 +12,7 @@ import (
 const (
 	insertAudit = `INSERT INTO audit_log (project_id, actor, token_id, entity, entity_id, action, at, before, after)
 	VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?) RETURNING id`
-	auditCols = `SELECT id, project_id, actor, token_id, entity, entity_id, action, at, before, after FROM audit_log `
+	auditCols    = `SELECT id, project_id, actor, token_id, entity, entity_id, action, at, before, after FROM audit_log `
 	listAudit    = auditCols + `WHERE project_id = ? AND id > ? ORDER BY id LIMIT ?`
 	listAuditAll = auditCols + `WHERE id > ? ORDER BY id LIMIT ?`
 )
