@@ -53,10 +53,14 @@ type Store struct {
 
 var _ domain.Store = (*Store)(nil)
 
+// busyTimeoutMS is how long a connection waits for a lock another process
+// holds before the store reports itself unavailable (503).
+var busyTimeoutMS = 10000
+
 // dsn builds the driver DSN for path with the pragmas every connection needs.
 func dsn(path string, immediate bool) string {
 	v := url.Values{}
-	v.Add("_pragma", "busy_timeout(10000)")
+	v.Add("_pragma", fmt.Sprintf("busy_timeout(%d)", busyTimeoutMS))
 	v.Add("_pragma", "journal_mode(WAL)")
 	v.Add("_pragma", "foreign_keys(1)")
 	v.Add("_pragma", "synchronous(NORMAL)")

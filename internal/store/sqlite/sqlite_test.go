@@ -1,6 +1,7 @@
 package sqlite_test
 
 import (
+	"database/sql"
 	"errors"
 	"io/fs"
 	"os"
@@ -81,4 +82,51 @@ func TestMigrationBackfill(t *testing.T) {
 			t.Fatalf("applying 000003 again: %v", err)
 		}
 	})
+}
+
+// A database file locked by another process past the busy timeout is the
+// store being unavailable (503 with Retry-After at the HTTP edge), not an
+// internal error; reads go on meanwhile (WAL), and writes work again once
+// the lock is gone, with the same Store.
+func TestLockedFileIsUnavailable(t *testing.T) {
+	defer sqlite.SetBusyTimeout(50)()
+	path := filepath.Join(t.TempDir(), "locked.db")
+	if err := sqlite.Migrate(path, 0); err != nil {
+		t.Fatal(err)
+	}
+	s, err := sqlite.Open(t.Context(), path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer s.Close()
+	other, err := sql.Open("sqlite", "file:"+path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer other.Close()
+	conn, err := other.Conn(t.Context())
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := conn.ExecContext(t.Context(), "BEGIN EXCLUSIVE"); err != nil {
+		t.Fatal(err)
+	}
+	p := domain.Project{Name: "locked out"}
+	if err := p.Normalize(); err != nil {
+		t.Fatal(err)
+	}
+	err = s.CreateProject(t.Context(), &p)
+	if !domain.IsKind(err, domain.Unavailable) {
+		t.Fatalf("a write while another process holds the lock: %v (%v), want unavailable", err, domain.KindOf(err))
+	}
+	if _, err := s.ListProjects(t.Context(), domain.Page{}); err != nil {
+		t.Fatalf("a read while the lock is held: %v", err)
+	}
+	if _, err := conn.ExecContext(t.Context(), "ROLLBACK"); err != nil {
+		t.Fatal(err)
+	}
+	conn.Close()
+	if err := s.CreateProject(t.Context(), &p); err != nil {
+		t.Fatalf("the write once the lock is gone: %v", err)
+	}
 }
