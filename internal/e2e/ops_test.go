@@ -62,16 +62,16 @@ func (c *counter) String() string {
 // client is a bounded HTTP client for the load in these tests (loopback only).
 var client = &http.Client{Timeout: 30 * time.Second, Transport: &http.Transport{MaxIdleConnsPerHost: 64}}
 
-// send makes one request and returns the status, the Retry-After header and
-// the body; a transport error is status 0.
-func send(ctx context.Context, base, token, method, path, ctype string, body []byte, hdr ...string) (int, string, []byte) {
+// send makes one request through hc and returns the status, the headers
+// and the body; a transport error is status 0 with the error as the body.
+func send(ctx context.Context, hc *http.Client, base, token, method, path, ctype string, body []byte, hdr ...string) (int, http.Header, []byte) {
 	var r io.Reader
 	if body != nil {
 		r = bytes.NewReader(body)
 	}
 	req, err := http.NewRequestWithContext(ctx, method, base+path, r)
 	if err != nil {
-		return 0, "", []byte(err.Error())
+		return 0, nil, []byte(err.Error())
 	}
 	if ctype != "" {
 		req.Header.Set("Content-Type", ctype)
@@ -80,13 +80,23 @@ func send(ctx context.Context, base, token, method, path, ctype string, body []b
 	for i := 0; i+1 < len(hdr); i += 2 {
 		req.Header.Set(hdr[i], hdr[i+1])
 	}
-	resp, err := client.Do(req)
+	resp, err := hc.Do(req)
 	if err != nil {
-		return 0, "", []byte(err.Error())
+		return 0, nil, []byte(err.Error())
 	}
 	defer resp.Body.Close()
 	b, _ := io.ReadAll(resp.Body)
-	return resp.StatusCode, resp.Header.Get("Retry-After"), b
+	return resp.StatusCode, resp.Header, b
+}
+
+// demoHole returns the path of the demo project and its first hole.
+func demoHole(t *testing.T, s *server) (base string, id int64, name string) {
+	t.Helper()
+	var projects, holes page
+	s.mustJSON(t, 200, "GET", "/v1/projects", nil, &projects)
+	base = fmt.Sprintf("/v1/projects/%d", projects.Items[0].ID)
+	s.mustJSON(t, 200, "GET", base+"/holes?limit=1", nil, &holes)
+	return base, holes.Items[0].ID, holes.Items[0].Name
 }
 
 // The PostgreSQL server stops in the middle of a load: every call answers
@@ -97,12 +107,7 @@ func TestStoreDownMidLoad(t *testing.T) {
 	pg := pgtest.NewServer(t)
 	db := pg.DB(t, "corvane_down")
 	s := start(t, db, "--demo", "--log-level", "error")
-	var projects page
-	s.mustJSON(t, 200, "GET", "/v1/projects", nil, &projects)
-	base := fmt.Sprintf("/v1/projects/%d", projects.Items[0].ID)
-	var holes page
-	s.mustJSON(t, 200, "GET", base+"/holes?limit=1", nil, &holes)
-	hole := holes.Items[0].ID
+	base, hole, _ := demoHole(t, s)
 	before := count(t, s, base+"/measurements")
 
 	var phase atomic.Int32 // 0 up, 1 down, 2 back
@@ -125,24 +130,25 @@ func TestStoreDownMidLoad(t *testing.T) {
 				default:
 				}
 				var code int
-				var retry string
+				var hdr http.Header
 				var body []byte
 				what := "list"
 				if n%2 == 0 {
 					what = "log"
 					in, _ := json.Marshal(map[string]any{"hole_id": hole, "depth": 1 + float64(i)/10 + float64(n)/1e4,
 						"alpha": 45, "beta": 90, "type": "bedding", "comment": "store-down test"})
-					code, retry, body = send(ctx, s.URL, s.Token, "POST", base+"/measurements", "application/json", in)
+					code, hdr, body = send(ctx, client, s.URL, s.Token, "POST", base+"/measurements", "application/json", in)
 					if code == 201 {
 						acked.Add(1)
 					}
 				} else {
-					code, retry, body = send(ctx, s.URL, s.Token, "GET", base+"/measurements?limit=5", "", nil)
+					code, hdr, body = send(ctx, client, s.URL, s.Token, "GET", base+"/measurements?limit=5", "", nil)
 				}
 				// The phase when the answer came: a 503 while the database
 				// was up all along is wrong.
 				ph := phase.Load()
 				seen.add(fmt.Sprintf("phase %d %s", ph, what), code)
+				retry := hdr.Get("Retry-After")
 				ok := code == 200 || code == 201 || (code == 503 && retry != "")
 				if ph == 0 && code == 503 {
 					ok = false
@@ -171,7 +177,7 @@ func TestStoreDownMidLoad(t *testing.T) {
 	// Recovery: within a bounded time, calls succeed again.
 	deadline := time.Now().Add(30 * time.Second)
 	for {
-		code, _, _ := send(ctx, s.URL, s.Token, "GET", base+"/measurements?limit=1", "", nil)
+		code, _, _ := send(ctx, client, s.URL, s.Token, "GET", base+"/measurements?limit=1", "", nil)
 		if code == 200 {
 			break
 		}
@@ -196,7 +202,7 @@ func TestStoreDownMidLoad(t *testing.T) {
 	if got := count(t, s, base+"/measurements"); got < before+int(acked.Load()) {
 		t.Errorf("%d measurements after recovery, want at least %d (%d before + %d acknowledged)", got, before+int(acked.Load()), before, acked.Load())
 	}
-	code, _, _ := send(ctx, s.URL, "", "GET", "/readyz", "", nil)
+	code, _, _ := send(ctx, client, s.URL, "", "GET", "/readyz", "", nil)
 	if code != 200 {
 		t.Errorf("/readyz %d after recovery", code)
 	}
@@ -218,12 +224,7 @@ func bigImport(hole string, n int) []byte {
 func TestKillMidImport(t *testing.T) {
 	stores(t, func(t *testing.T, db string) {
 		s := start(t, db, "--demo", "--log-level", "error")
-		var projects page
-		s.mustJSON(t, 200, "GET", "/v1/projects", nil, &projects)
-		base := fmt.Sprintf("/v1/projects/%d", projects.Items[0].ID)
-		var holes page
-		s.mustJSON(t, 200, "GET", base+"/holes?limit=1", nil, &holes)
-		name := holes.Items[0].Name
+		base, _, name := demoHole(t, s)
 		q := base + "/measurements?hole=" + url.QueryEscape(name)
 		before := count(t, s, q)
 		const rows = 60000

@@ -5,7 +5,6 @@ import (
 	"context"
 	"encoding/json"
 	"fmt"
-	"io"
 	"net/http"
 	"net/url"
 	"os/exec"
@@ -16,6 +15,7 @@ import (
 	"testing"
 	"time"
 
+	"corvane/internal/domain"
 	"corvane/internal/pgtest"
 )
 
@@ -32,20 +32,6 @@ func (rr *roundRobin) RoundTrip(req *http.Request) (*http.Response, error) {
 	r := req.Clone(req.Context())
 	r.URL.Scheme, r.URL.Host, r.Host = u.Scheme, u.Host, u.Host
 	return rr.base.RoundTrip(r)
-}
-
-// holeEdit is the editable part of a hole, as GET returns it and PUT takes it.
-type holeEdit struct {
-	Name       string  `json:"name"`
-	East       float64 `json:"easting"`
-	North      float64 `json:"northing"`
-	Elevation  float64 `json:"elevation"`
-	Azimuth    float64 `json:"azimuth"`
-	AzimuthRef string  `json:"azimuth_ref"`
-	Dip        float64 `json:"dip"`
-	FinalDepth float64 `json:"final_depth"`
-	CRS        string  `json:"crs"`
-	Version    int64   `json:"version"`
 }
 
 // Scale-out: three `serve --demo` replicas start together on one PostgreSQL
@@ -98,28 +84,7 @@ func TestScaleOut(t *testing.T) {
 	ctx, cancel := context.WithTimeout(context.Background(), 3*time.Minute)
 	defer cancel()
 	do := func(method, path, ctype string, body []byte, hdr ...string) (int, http.Header, []byte) {
-		var r io.Reader
-		if body != nil {
-			r = bytes.NewReader(body)
-		}
-		req, err := http.NewRequestWithContext(ctx, method, "http://replicas"+path, r)
-		if err != nil {
-			return 0, nil, []byte(err.Error())
-		}
-		if ctype != "" {
-			req.Header.Set("Content-Type", ctype)
-		}
-		req.Header.Set("Authorization", "Bearer "+token)
-		for i := 0; i+1 < len(hdr); i += 2 {
-			req.Header.Set(hdr[i], hdr[i+1])
-		}
-		resp, err := hc.Do(req)
-		if err != nil {
-			return 0, nil, []byte(err.Error())
-		}
-		defer resp.Body.Close()
-		b, _ := io.ReadAll(resp.Body)
-		return resp.StatusCode, resp.Header, b
+		return send(ctx, hc, "http://replicas", token, method, path, ctype, body, hdr...)
 	}
 
 	var projects page
@@ -214,7 +179,7 @@ func TestScaleOut(t *testing.T) {
 					bad("GET %s: %d %.200s", path, code, body)
 					continue
 				}
-				var h holeEdit
+				var h domain.Hole
 				if err := json.Unmarshal(body, &h); err != nil {
 					bad("GET %s: %v", path, err)
 					continue
@@ -245,7 +210,7 @@ func TestScaleOut(t *testing.T) {
 	}
 	var total int64
 	for k, id := range counterIDs {
-		var h holeEdit
+		var h domain.Hole
 		servers[k%replicas].mustJSON(t, 200, "GET", fmt.Sprintf("%s/holes/%d", base, id), nil, &h)
 		if h.Elevation != float64(edits[k]) || h.Version != 1+edits[k] {
 			t.Errorf("counter hole %d: elevation %v version %d after %d acknowledged edits: lost updates", id, h.Elevation, h.Version, edits[k])

@@ -64,7 +64,7 @@ func (s *Store) PutSurvey(ctx context.Context, ss *domain.SurveySet, ifVersion i
 				return domain.Errorf(domain.PreconditionFailed, "hole %d has no survey at version %d", ss.HoleID, ifVersion)
 			}
 			if _, err := q.ExecContext(ctx, insertSurveySet, ss.HoleID, ss.AzimuthRef, ss.SurveyDate, storekit.NullFloat(ss.Declination), ss.DeclinationSource, micro(t)); err != nil {
-				return surveyInsertFailed(err, ss.HoleID)
+				return storekit.SurveyCreateFailed(translate(err), violation(err), ss.HoleID)
 			}
 			ss.Version = 1
 		case err != nil:
@@ -75,11 +75,7 @@ func (s *Store) PutSurvey(ctx context.Context, ss *domain.SurveySet, ifVersion i
 			}
 			if err := q.QueryRowContext(ctx, updateSurveySet, ss.AzimuthRef, ss.SurveyDate, storekit.NullFloat(ss.Declination), ss.DeclinationSource, micro(t), ss.HoleID, ifVersion).Scan(&ss.Version); err != nil {
 				if errors.Is(err, sql.ErrNoRows) {
-					// Another writer moved the set on or deleted it since it was read.
-					if err := versionGone(ctx, q, "survey_sets", "survey of hole", ss.HoleID, ifVersion); !domain.IsKind(err, domain.NotFound) {
-						return err
-					}
-					return domain.Errorf(domain.PreconditionFailed, "hole %d has no survey at version %d any more: reload and retry", ss.HoleID, ifVersion)
+					return storekit.SurveyMoved(versionGone(ctx, q, "survey_sets", "survey of hole", ss.HoleID, ifVersion), ss.HoleID, ifVersion)
 				}
 				return translate(err)
 			}
@@ -95,20 +91,6 @@ func (s *Store) PutSurvey(ctx context.Context, ss *domain.SurveySet, ifVersion i
 		ss.UpdatedAt = t
 		return nil
 	})
-}
-
-// surveyInsertFailed explains a failed insert of a new survey set: a
-// unique clash is a set another writer created since this one looked, so
-// the caller's "none yet" (version 0) is stale; a foreign-key failure is a
-// missing hole.
-func surveyInsertFailed(err error, holeID int64) error {
-	switch violation(err) {
-	case storekit.Unique:
-		return domain.Errorf(domain.PreconditionFailed, "hole %d got a survey from another writer meanwhile: reload and retry", holeID)
-	case storekit.ForeignKey:
-		return storekit.NotFound("hole", holeID)
-	}
-	return translate(err)
 }
 
 // DeleteSurvey removes the hole's survey set.

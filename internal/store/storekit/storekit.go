@@ -68,6 +68,31 @@ func Stale(entity string, id any, have, want int64) error {
 	return domain.Errorf(domain.PreconditionFailed, "%s %v is at version %d, not %d: reload and retry", entity, id, have, want)
 }
 
+// SurveyCreateFailed explains a failed insert of a hole's first survey set
+// (translated is the store's translation of the driver error, v its class):
+// a unique clash is a set another writer created since this one looked, so
+// the caller's "none yet" (version 0) is stale (412); a foreign-key failure
+// is a missing hole (404).
+func SurveyCreateFailed(translated error, v Violation, holeID int64) error {
+	switch v {
+	case Unique:
+		return domain.Errorf(domain.PreconditionFailed, "hole %d got a survey from another writer meanwhile: reload and retry", holeID)
+	case ForeignKey:
+		return NotFound("hole", holeID)
+	}
+	return translated
+}
+
+// SurveyMoved explains a version-checked survey update that touched no row,
+// given what versionGone found: another writer moved the set on (412), or
+// deleted it, which for the caller's version is stale too (412, not 404).
+func SurveyMoved(gone error, holeID, ifVersion int64) error {
+	if !domain.IsKind(gone, domain.NotFound) {
+		return gone
+	}
+	return domain.Errorf(domain.PreconditionFailed, "hole %d has no survey at version %d any more: reload and retry", holeID, ifVersion)
+}
+
 // KeyCol is the key column of a versioned table.
 func KeyCol(table string) string {
 	if table == "survey_sets" {
