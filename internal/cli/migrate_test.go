@@ -34,14 +34,14 @@ func TestMigrateCommand(t *testing.T) {
 	if code, _, errs := runWithEnv(t, env, "migrate", "down", "--all"); code != ExitUsage || !strings.Contains(errs, "--yes") {
 		t.Fatalf("down --all without --yes: %d %q", code, errs)
 	}
-	if code, out, _ := runWithEnv(t, env, "migrate", "version"); out != "schema version 1\n" {
+	if code, out, _ := runWithEnv(t, env, "migrate", "version"); out != "schema version 2\n" {
 		t.Fatalf("down --all without --yes changed the schema: %d %q", code, out)
 	}
 	if code, _, errs := runWithEnv(t, env, "migrate", "down", "--steps", "5"); code != ExitRows || !strings.Contains(errs, "nothing was changed") {
-		t.Fatalf("down --steps 5 on schema 1: %d %q", code, errs)
+		t.Fatalf("down --steps 5 on schema 2: %d %q", code, errs)
 	}
-	if code, out, errs := runWithEnv(t, env, "migrate", "force", "1"); code != ExitOK || out != "schema version 1\n" {
-		t.Fatalf("force 1: %d %q %q", code, out, errs)
+	if code, out, errs := runWithEnv(t, env, "migrate", "force", "2"); code != ExitOK || out != "schema version 2\n" {
+		t.Fatalf("force 2: %d %q %q", code, out, errs)
 	}
 	if code, _, _ := runWithEnv(t, env, "migrate", "force"); code != ExitUsage {
 		t.Fatalf("force without a version: %d", code)

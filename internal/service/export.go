@@ -117,14 +117,21 @@ func optFloat(cw *csvio.Writer, p *float64, prec int) {
 // columns the collars import reads, so that an export imports back to the
 // same holes: hole_id, easting, northing, elevation, azimuth, dip, depth,
 // declination, grid_convergence, azimuth_reference, crs, survey_date.
+// Its pages read one snapshot, like the measurements export.
 func (s *Service) ExportCollars(ctx context.Context, projectID int64, w io.Writer) error {
-	if _, _, err := s.project(ctx, s.store, projectID, domain.RoleRead); err != nil {
+	return s.store.Snapshot(ctx, func(ctx context.Context, st domain.Store) error {
+		return s.exportCollars(ctx, st, projectID, w)
+	})
+}
+
+func (s *Service) exportCollars(ctx context.Context, st domain.Store, projectID int64, w io.Writer) error {
+	if _, _, err := s.project(ctx, st, projectID, domain.RoleRead); err != nil {
 		return err
 	}
 	var rows []csvio.CollarRow
 	pg := domain.Page{Limit: domain.MaxLimit}
 	for {
-		hs, err := s.store.ListHoles(ctx, projectID, pg)
+		hs, err := st.ListHoles(ctx, projectID, pg)
 		if err != nil {
 			return err
 		}
