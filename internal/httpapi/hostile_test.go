@@ -456,7 +456,7 @@ func TestTextAndDepthRulesOverHTTP(t *testing.T) {
 	h := f.hole(pid, "TM001", 90, -60)
 	var m view
 	f.must(201, f.site, "POST", base+"/measurements", map[string]any{"hole_id": h.ID, "depth": 300, "alpha": 30, "beta": 20, "type": "JN"}, &m)
-	r = f.must(422, f.site, "POST", base+"/holes/"+itoa(h.ID)+"/runs", map[string]any{"from": 390, "to": 401}, nil)
+	r = f.must(409, f.site, "POST", base+"/holes/"+itoa(h.ID)+"/runs", map[string]any{"from": 390, "to": 401}, nil)
 	if p := r.problem(t); len(p.Errors) != 1 || p.Errors[0].Field != "to" {
 		t.Errorf("run past the end: %+v", p)
 	}

@@ -11,11 +11,15 @@ import (
 // maxDeeperListed bounds the rows a refused change of final depth lists.
 const maxDeeperListed = 20
 
-// checkRunInHole refuses a run that passes the final depth of its hole,
-// the rule survey stations and measurements keep too (Invalid naming "to").
+// checkRunInHole refuses a run that passes the final depth of its hole: a
+// Conflict with the stored hole (409), located at "to", naming the hole's
+// end, so the caller knows to deepen the hole first or shorten the run. The
+// CSV import reports the same message at the row's "to" column.
 func checkRunInHole(r domain.Run, h domain.Hole) error {
 	if r.To > h.FinalDepth {
-		return domain.FieldErr("to", "run %v-%v passes the final depth %v of hole %s", r.From, r.To, h.FinalDepth, h.Name)
+		e := domain.Errorf(domain.Conflict, "run %v-%v passes the final depth %v of hole %s", r.From, r.To, h.FinalDepth, h.Name)
+		e.Loc.Field = "to"
+		return e
 	}
 	return nil
 }

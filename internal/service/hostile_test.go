@@ -17,6 +17,15 @@ func TestTextRules(t *testing.T) {
 }
 
 // wantField fails unless err is Invalid and names field.
+// wantConflictAt fails t unless err is a Conflict located at field.
+func wantConflictAt(t testing.TB, err error, field, what string) {
+	t.Helper()
+	var e *domain.Error
+	if !errors.As(err, &e) || e.Kind != domain.Conflict || e.Loc.Field != field {
+		t.Errorf("%s: error %v, want Conflict at %s", what, err, field)
+	}
+}
+
 func wantField(t testing.TB, err error, field, what string) {
 	t.Helper()
 	var e *domain.Error
@@ -141,7 +150,7 @@ func TestDepthRules(t *testing.T) {
 
 // checkDepthRules: a hole's final depth cannot shrink above its survey
 // stations, runs or measurements (Conflict listing what is deeper, nothing
-// changed), and a run cannot pass its hole's end (Invalid naming "to"), at
+// changed), and a run cannot pass its hole's end (Conflict naming "to"), at
 // every door: the use cases and the CSV imports. Issue item 7.
 func checkDepthRules(t *testing.T, s *service.Service, ctx context.Context) {
 	p := must(s.CreateProject(ctx, domain.Project{Name: "depths"}))
@@ -190,11 +199,11 @@ func checkDepthRules(t *testing.T, s *service.Service, ctx context.Context) {
 
 	// A run cannot pass the hole's end: created, edited or imported.
 	_, err = s.CreateRun(ctx, p.ID, h.ID, domain.Run{From: 170, To: 181})
-	wantField(t, err, "to", "run past the end")
+	wantConflictAt(t, err, "to", "run past the end")
 	r2 := r
 	r2.To = 200
 	_, err = s.UpdateRun(ctx, p.ID, r.ID, r.Version, r2)
-	wantField(t, err, "to", "run edited past the end")
+	wantConflictAt(t, err, "to", "run edited past the end")
 	_, err = doImport(t, s, ctx, p.ID, "runs", "hole_id,from,to,confidence\nDH1,150,160,good\nDH1,160,190,good\n", false, "")
 	if !errors.As(err, &e) || e.Kind != domain.Invalid || len(e.Problems) != 1 || e.Problems[0].Loc.Line != 3 || e.Problems[0].Loc.Column != "to" {
 		t.Errorf("run import past the end: %v", err)
