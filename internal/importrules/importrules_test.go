@@ -28,6 +28,7 @@ var pure = map[string]bool{
 	"corvane/internal/qa":           true,
 	"corvane/internal/qa/qapage":    true,
 	"corvane/internal/coreinterval": true,
+	"corvane/internal/spacing":      true,
 }
 
 // noServiceDeps lists packages that must stay free of HTTP and SQL.
