@@ -90,6 +90,9 @@ type Run struct {
 	Hole     string
 	From, To float64
 	Hits     []Hit
+	// Dir is the hole's direction over the run, used for the P32 estimate
+	// when the set has no hits in it; zero when unknown.
+	Dir geom.Vec3
 }
 
 // Dist summarises a list of lengths.
@@ -188,7 +191,9 @@ type SetResult struct {
 	Apparent, True Dist
 	// P32 is the estimated fracture area per unit volume:
 	// Count / sum(L_h * max(E_h, 1/cap)), with E_h = E|n.h| over the set's
-	// Fisher distribution for hole h (see [AngleFactor] and [P32Assumptions]).
+	// Fisher distribution for hole h (see [AngleFactor] and [P32Assumptions]);
+	// a run without hits takes its direction from Run.Dir (or counts as
+	// square to the set when that is zero).
 	P32 float64
 }
 
@@ -261,8 +266,10 @@ func Analyse(mean geom.Vec3, kappa float64, runs []Run, maxW float64) (SetResult
 			hr.Delta = geom.AxialAngle(mean, hm)
 			hr.ExpectedCos = ExpectedCos(mean, kappa, hm)
 			expLen += l * math.Max(hr.ExpectedCos, 1/maxW)
+		} else if r.Dir.Norm() > 0 {
+			expLen += l * math.Max(ExpectedCos(mean, kappa, r.Dir), 1/maxW)
 		} else {
-			expLen += l // no direction: counts as length with no crossings
+			expLen += l // direction unknown: taken as square to the set
 		}
 		res.Holes = append(res.Holes, hr)
 		res.Length += l
