@@ -103,6 +103,11 @@ type orientInput struct {
 // loadOrientations reads path ("-" for standard input) and keeps the rows of
 // type typ (all when typ is empty). Problems are also written to stderr.
 func loadOrientations(env *Env, path, typ string) (*orientInput, error) {
+	return loadOrientationsWith(env, path, typ, csvio.OrientationOptions{})
+}
+
+// loadOrientationsWith is loadOrientations with reader options.
+func loadOrientationsWith(env *Env, path, typ string, opt csvio.OrientationOptions) (*orientInput, error) {
 	if path == "" {
 		return nil, errors.New("--in FILE is required")
 	}
@@ -115,7 +120,7 @@ func loadOrientations(env *Env, path, typ string) (*orientInput, error) {
 		defer f.Close()
 		r = f
 	}
-	rows, problems, err := csvio.ReadOrientations(r, path)
+	rows, problems, err := csvio.ReadOrientationsWith(r, path, opt)
 	if err != nil {
 		return nil, err
 	}

@@ -1,0 +1,215 @@
+package cli
+
+import (
+	"context"
+	"encoding/json"
+	"flag"
+	"fmt"
+	"io"
+	"os"
+
+	"corvane/internal/coreinterval"
+	"corvane/internal/csvio"
+)
+
+func init() {
+	register(command{
+		name:    "intervals",
+		summary: "core recovery, RQD and fracture frequency of logged core intervals from a CSV",
+		run:     runIntervals,
+	})
+}
+
+// rockMassCaution goes with the interval and spacing reports.
+const rockMassCaution = "Recovery, RQD, frequency and spacing describe the core as logged; they depend on " +
+	"drilling, handling and logging practice. Where they feed rock-mass classification or excavation and " +
+	"slope design, base any design on local codes and the judgement of a licensed practitioner."
+
+const intervalsUsage = `Usage:
+  corvane intervals --intervals I.csv [--collars C.csv] [--feet] [-o OUT.json]
+
+Reads logged core intervals and prints JSON with, per interval and per hole (and for
+all holes together, each value weighted by interval length):
+  length              to - from (the drilled length)
+  tcr                 total core recovery, 100 * recovered / length
+  scr                 solid core recovery, 100 * solid / length
+  rqd                 rock quality designation, 100 * (sum of sound pieces >= 100 mm) / length
+  fracture_frequency  natural breaks per unit length
+A total is null when any interval lacks the value (it never covers part of a hole only).
+
+RQD follows Deere (1964) and Deere & Deere (1988): only pieces at least 100 mm long
+(0.328 ft with --feet), measured along the core axis between natural breaks, count; pieces
+broken in drilling or handling are fitted together first; lost core counts as zero.
+
+The intervals file has a header (names in any case, columns in any order):
+  hole_id, from, to             required; 0 <= from < to
+  recovered, solid              lengths of core recovered and of solid (full-diameter) core
+  sound                         summed length of sound pieces >= 100 mm, or
+  pieces                        the lengths of the pieces between natural breaks, separated by ";"
+  natural_breaks, induced_breaks  counts of breaks
+  confidence                    orientation confidence of the run: good, fair, poor, none
+Rules: solid <= recovered <= length, sound <= solid; intervals of a hole do not overlap;
+with --collars every interval lies inside its hole (to <= the collar's depth). A file
+breaking a rule is reported with file, line and column and nothing is printed (exit 2).
+
+` + rockMassCaution + `
+
+Options:
+`
+
+type jInterval struct {
+	Line       int    `json:"line,omitempty"`
+	From       *jnum  `json:"from,omitempty"`
+	To         *jnum  `json:"to,omitempty"`
+	Length     jnum   `json:"length"`
+	TCR        jnum   `json:"tcr"`
+	SCR        jnum   `json:"scr"`
+	RQD        jnum   `json:"rqd"`
+	RQDFrom    string `json:"rqd_from,omitempty"`
+	FF         jnum   `json:"fracture_frequency"`
+	Natural    *int   `json:"natural_breaks"`
+	Induced    *int   `json:"induced_breaks"`
+	Confidence string `json:"confidence,omitempty"`
+}
+
+type jIntervalHole struct {
+	HoleID    string      `json:"hole_id"`
+	Intervals []jInterval `json:"intervals"`
+	Total     jInterval   `json:"total"`
+}
+
+type jIntervalReport struct {
+	Input      string          `json:"input"`
+	LengthUnit string          `json:"length_unit"`
+	MinPiece   jnum            `json:"rqd_min_piece"`
+	Method     string          `json:"method"`
+	Holes      []jIntervalHole `json:"holes"`
+	All        jInterval       `json:"all"`
+	Caution    string          `json:"caution"`
+}
+
+func countPtr(n int) *int {
+	if n < 0 {
+		return nil
+	}
+	return &n
+}
+
+func intervalJSON(d coreinterval.Derived) jInterval {
+	return jInterval{Length: jnum(d.Length), TCR: jnum(d.TCR), SCR: jnum(d.SCR), RQD: jnum(d.RQD), RQDFrom: d.RQDFrom,
+		FF: jnum(d.FF), Natural: countPtr(d.Natural), Induced: countPtr(d.Induced)}
+}
+
+// readIntervalsFile reads and checks an intervals file (and, when collars is
+// not "", that every interval lies inside its hole).
+func readIntervalsFile(env *Env, path, collars string) ([]csvio.IntervalRow, error) {
+	var r io.Reader = env.Stdin
+	if path != "-" {
+		f, err := os.Open(path)
+		if err != nil {
+			return nil, err
+		}
+		defer f.Close()
+		r = f
+	}
+	rows, err := csvio.ReadIntervals(r, path)
+	if err != nil {
+		return nil, err
+	}
+	if collars != "" {
+		f, err := os.Open(collars)
+		if err != nil {
+			return nil, err
+		}
+		defer f.Close()
+		cs, err := csvio.ReadCollars(f, collars)
+		if err != nil {
+			return nil, err
+		}
+		depths := map[string]float64{}
+		for _, c := range cs {
+			depths[c.HoleID] = c.Collar.Depth
+		}
+		if err := csvio.CheckIntervalDepths(rows, path, depths); err != nil {
+			return nil, err
+		}
+	}
+	return rows, nil
+}
+
+func runIntervals(_ context.Context, env *Env, args []string) int {
+	fs := flag.NewFlagSet("intervals", flag.ContinueOnError)
+	fs.SetOutput(env.Stderr)
+	fs.Usage = func() {
+		fmt.Fprint(env.Stderr, intervalsUsage)
+		fs.PrintDefaults()
+	}
+	in := fs.String("intervals", "", "core intervals CSV (required; - for standard input)")
+	collars := fs.String("collars", "", "collars CSV: check that every interval lies inside its hole")
+	feet := fs.Bool("feet", false, "lengths are in feet (RQD pieces from 0.328 ft)")
+	out := fs.String("o", "", "output JSON file (default standard output)")
+	fail, code, done := parseOrientArgs(env, fs, "intervals", args)
+	if done {
+		return code
+	}
+	if *in == "" {
+		return fail(fmt.Errorf("--intervals FILE is required"))
+	}
+	rows, err := readIntervalsFile(env, *in, *collars)
+	if err != nil {
+		fmt.Fprint(env.Stderr, "corvane intervals: ")
+		csvio.Report(env.Stderr, err)
+		return ExitUsage
+	}
+	minPiece, unit := coreinterval.MinPiece, "m"
+	if *feet {
+		minPiece, unit = coreinterval.MinPieceFeet, "ft"
+	}
+	rep := jIntervalReport{Input: *in, LengthUnit: unit, MinPiece: jnum(minPiece),
+		Method: "TCR, SCR and RQD over the drilled length (to - from); RQD counts pieces >= 100 mm " +
+			"along the core axis between natural breaks (Deere 1964; Deere & Deere 1988); " +
+			"fracture frequency = natural breaks / drilled length",
+		Caution: rockMassCaution}
+	byHole := map[string]int{}
+	var all []coreinterval.Derived
+	var perHole [][]coreinterval.Derived
+	for _, r := range rows {
+		i, ok := byHole[r.HoleID]
+		if !ok {
+			i = len(rep.Holes)
+			byHole[r.HoleID] = i
+			rep.Holes = append(rep.Holes, jIntervalHole{HoleID: r.HoleID})
+			perHole = append(perHole, nil)
+		}
+		d := coreinterval.Derive(r.Interval, minPiece)
+		j := intervalJSON(d)
+		j.Line, j.From, j.To, j.Confidence = r.Line, jptr(r.Interval.From), jptr(r.Interval.To), r.Interval.Confidence
+		rep.Holes[i].Intervals = append(rep.Holes[i].Intervals, j)
+		perHole[i] = append(perHole[i], d)
+		all = append(all, d)
+	}
+	for i := range rep.Holes {
+		rep.Holes[i].Total = intervalJSON(coreinterval.Combine(perHole[i]))
+	}
+	rep.All = intervalJSON(coreinterval.Combine(all))
+	return writeJSON(env, fail, *out, rep)
+}
+
+// writeJSON writes v as indented JSON to path (standard output when "").
+func writeJSON(env *Env, fail func(error) int, path string, v any) int {
+	w, closeOut, err := orientOut(env, path)
+	if err != nil {
+		return fail(err)
+	}
+	enc := json.NewEncoder(w)
+	enc.SetIndent("", "  ")
+	enc.SetEscapeHTML(false)
+	if err := enc.Encode(v); err != nil {
+		closeOut()
+		return fail(err)
+	}
+	if err := closeOut(); err != nil {
+		return fail(err)
+	}
+	return ExitOK
+}
