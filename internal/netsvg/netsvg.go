@@ -98,8 +98,11 @@ type Net struct {
 	Circles    []CircleMark // small circles (unoriented measurements, friction circles)
 	// CirclesNote describes the circles in the side panel, "" for none.
 	CirclesNote string
-	Notes       []string // further lines for the side panel (counts, weighting)
-	Caution     string   // printed at the foot of the sheet
+	// Face, when set, is a slope or excavation face drawn as a heavy great
+	// circle with a key entry.
+	Face    *geom.Plane
+	Notes   []string // further lines for the side panel (counts, weighting)
+	Caution string   // printed at the foot of the sheet
 }
 
 // sheet geometry in SVG user units (1/96 inch)
@@ -259,6 +262,11 @@ func WriteNet(w io.Writer, n Net) error {
 			s.printf(`<path d="%s" stroke="%s"/>`+"\n", pathOf(n.Projection.GreatCircle(pm.Plane, 90), false), col)
 		}
 		s.printf("</g>\n")
+	}
+
+	if n.Face != nil {
+		d := pathOf(n.Projection.GreatCircle(*n.Face, 180), false)
+		s.printf(`<path id="face" d="%s" fill="none" stroke="#000" stroke-width="2.4"/>`+"\n", d)
 	}
 
 	// Small circles.
@@ -436,6 +444,11 @@ func (s *svgw) panel(n Net) {
 	for _, note := range n.Notes {
 		line(11, "", note)
 	}
+	if n.Face != nil {
+		s.printf(`<path d="M%.1f %.1fh12" stroke="#000" stroke-width="2.4"/>`+"\n", panelX, y-4)
+		s.printf(`<text x="%.1f" y="%.1f" font-size="11">face %02.0f/%03.0f (dip/dip direction)</text>`+"\n", panelX+16, y, n.Face.Dip, n.Face.DipDirection)
+		y += 16
+	}
 	if n.CirclesNote != "" {
 		s.printf(`<path d="M%.1f %.1fh12" stroke="#6b6b6b" stroke-dasharray="4 3"/>`+"\n", panelX, y-4)
 		s.printf(`<text x="%.1f" y="%.1f" font-size="11">%s</text>`+"\n", panelX+16, y, esc(n.CirclesNote))
@@ -522,12 +535,11 @@ func (s *svgw) panel(n Net) {
 
 // wrapped writes text broken into lines of at most width characters.
 func (s *svgw) wrapped(x, y float64, width int, size float64, text string) {
-	words := strings.Fields(text)
+	var lines []string
 	var cur string
-	for _, w := range words {
+	for _, w := range strings.Fields(text) {
 		if cur != "" && len(cur)+1+len(w) > width {
-			s.printf(`<text x="%.1f" y="%.1f" font-size="%.1f" fill="#333" font-style="italic">%s</text>`+"\n", x, y, size, esc(cur))
-			y += size + 4
+			lines = append(lines, cur)
 			cur = w
 			continue
 		}
@@ -537,7 +549,15 @@ func (s *svgw) wrapped(x, y float64, width int, size float64, text string) {
 		cur += w
 	}
 	if cur != "" {
-		s.printf(`<text x="%.1f" y="%.1f" font-size="%.1f" fill="#333" font-style="italic">%s</text>`+"\n", x, y, size, esc(cur))
+		lines = append(lines, cur)
+	}
+	// Move a long text up so that its last line stays on the sheet.
+	if last := y + float64(len(lines)-1)*(size+4); last > sheetH-8 {
+		y -= last - (sheetH - 8)
+	}
+	for _, l := range lines {
+		s.printf(`<text x="%.1f" y="%.1f" font-size="%.1f" fill="#333" font-style="italic">%s</text>`+"\n", x, y, size, esc(l))
+		y += size + 4
 	}
 }
 

@@ -267,6 +267,7 @@ func TestZonesAndCircles(t *testing.T) {
 		},
 		Circles:     []CircleMark{{Axis: geom.HoleDirection(30, -60), Half: 40, Set: -1, Dashed: true}},
 		CirclesNote: "possible poles of 1 unoriented measurement",
+		Face:        &geom.Plane{Dip: 60, DipDirection: 180},
 	}
 	var b bytes.Buffer
 	if err := WriteNet(&b, n); err != nil {
@@ -282,6 +283,9 @@ func TestZonesAndCircles(t *testing.T) {
 	}
 	if strings.Index(s, `id="zones"`) > strings.Index(s, `id="poles"`) {
 		t.Error("zones must be drawn under the poles")
+	}
+	if !strings.Contains(s, `id="face"`) || !strings.Contains(s, "face 60/180") {
+		t.Error("face or its key missing")
 	}
 	if !strings.Contains(s, `id="circles"`) || !strings.Contains(s, "possible poles of 1 unoriented measurement") {
 		t.Error("circle or its note missing")
