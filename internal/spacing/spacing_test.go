@@ -17,23 +17,6 @@ func near(t *testing.T, what string, got, want, tol float64) {
 	}
 }
 
-// fisherSample draws a unit vector from the Fisher distribution about m
-// (inverse distribution function of cos theta; Fisher, Lewis & Embleton
-// 1987, from memory).
-func fisherSample(rng *rand.Rand, m geom.Vec3, k float64) geom.Vec3 {
-	ref := geom.Vec3{X: 1}
-	if math.Abs(m.X) > 0.9 {
-		ref = geom.Vec3{Y: 1}
-	}
-	u := m.Cross(ref).Unit()
-	v := m.Cross(u)
-	x := rng.Float64()
-	c := 1 + math.Log(x+(1-x)*math.Exp(-2*k))/k
-	s := math.Sqrt(math.Max(0, 1-c*c))
-	phi := 2 * math.Pi * rng.Float64()
-	return m.Scale(c).Add(u.Scale(s * math.Cos(phi))).Add(v.Scale(s * math.Sin(phi)))
-}
-
 // simulate lays planes of one set through points x_i*mean along the mean
 // pole, x_i a Poisson process of mean spacing s (negative exponential gaps),
 // each plane with its own Fisher-distributed normal, and returns where a
@@ -42,7 +25,7 @@ func simulate(rng *rand.Rand, mean, h geom.Vec3, kappa, s, L float64) []Hit {
 	reach := L*math.Abs(h.Dot(mean)) + 20*s
 	var hits []Hit
 	for x := -20 * s; x < reach; x += rng.ExpFloat64() * s {
-		n := fisherSample(rng, mean, kappa)
+		n := dirstat.FisherRandom(rng, mean, kappa)
 		hn := h.Dot(n)
 		if hn == 0 {
 			continue
@@ -161,7 +144,7 @@ func TestAngleFactorClosedForms(t *testing.T) {
 	sum := 0.0
 	const N = 200000
 	for i := 0; i < N; i++ {
-		sum += math.Abs(fisherSample(rng, m, 8).Dot(h))
+		sum += math.Abs(dirstat.FisherRandom(rng, m, 8).Dot(h))
 	}
 	near(t, "kappa 8 vs Monte Carlo", ExpectedCos(m, 8, h), sum/N, 3e-3)
 }
