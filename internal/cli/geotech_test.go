@@ -17,7 +17,7 @@ import (
 func TestGeotechHelp(t *testing.T) {
 	for name, flags := range map[string][]string{
 		"intervals":   {"-intervals", "-collars", "-feet", "-o"},
-		"spacing":     {"-in", "-sets", "-set", "-intervals", "-domain", "-cap", "-type", "-o", "-values"},
+		"spacing":     {"-in", "-sets", "-set", "-intervals", "-domain", "-cap", "-type", "-o", "-values", "-svg"},
 		"domains":     {"-in", "-domain", "-sets", "-set", "-o"},
 		"slope-check": {"-in", "-face", "-friction", "-lateral", "-svg", "-projection", "-sets", "-o"},
 	} {
@@ -98,7 +98,8 @@ func spacingCSV(t *testing.T) string {
 func TestSpacingCommand(t *testing.T) {
 	in := spacingCSV(t)
 	iv := writeTemp(t, "iv.csv", "hole_id,from,to\nH,0,12\nH,12,22\n")
-	code, out, stderr := runCmd(t, "spacing", "--in", in, "--intervals", iv, "--set", "flat:0/90:10", "--set", "steep:270/30:10")
+	svg := filepath.Join(t.TempDir(), "u.svg")
+	code, out, stderr := runCmd(t, "spacing", "--in", in, "--intervals", iv, "--set", "flat:0/90:10", "--set", "steep:270/30:10", "--svg", svg)
 	if code != ExitOK {
 		t.Fatalf("exit %d: %s", code, stderr)
 	}
@@ -143,6 +144,9 @@ func TestSpacingCommand(t *testing.T) {
 	}
 	if d.Holes[0]["length_from"] != "intervals" || d.Holes[0]["count"] != 15.0 {
 		t.Errorf("hole totals %v", d.Holes[0])
+	}
+	if b, err := os.ReadFile(svg); err != nil || !strings.Contains(string(b), `id="circles"`) || !strings.Contains(string(b), "possible poles of 2 unoriented") {
+		t.Errorf("net of unoriented cones: %v", err)
 	}
 	if !strings.Contains(rep.P32Assumptions, "estimate") {
 		t.Error("P32 not stated as an estimate")

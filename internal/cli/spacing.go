@@ -5,11 +5,15 @@ import (
 	"flag"
 	"fmt"
 	"math"
+	"os"
+	"path/filepath"
 	"strconv"
 
 	"corvane/internal/csvio"
 	"corvane/internal/dirstat"
 	"corvane/internal/geom"
+	"corvane/internal/netsvg"
+	"corvane/internal/projection"
 	"corvane/internal/spacing"
 	"corvane/internal/structdomain"
 )
@@ -52,6 +56,9 @@ fix only the angle between the pole and the hole: their poles lie on a cone of h
 1/sin(alpha), and in a set's frequency and spacing when their cone passes within the
 set's fit angle of its mean (the window's cone, or 140/sqrt(k) for automatic sets) and
 no other set's; they never enter set means. Their counts are reported.
+
+With --svg NET.svg a net shows the poles by set, the set means, and each unoriented
+measurement's cone of possible poles as a dashed small circle.
 
 Lengths: with --intervals the logged intervals (contiguous intervals join into one run;
 a gap breaks the spacing), clipped to the domain's depth ranges; otherwise the domain's
@@ -205,6 +212,7 @@ func runSpacing(_ context.Context, env *Env, args []string) int {
 	maxW := capFlag(dirstat.DefaultTerzaghiCap)
 	fs.Var(&maxW, "cap", "largest Terzaghi weight (default 2.924 = 1/cos 70: Brady & Brown 2004, citing Goodman 1976)")
 	values := fs.Bool("values", false, "list every spacing in the distributions")
+	svg := fs.String("svg", "", "also write a net (SVG) of the poles by set, the set means and the cones of possible poles of the unoriented measurements")
 	fail, code, done := parseOrientArgs(env, fs, "spacing", args)
 	if done {
 		return code
@@ -250,6 +258,11 @@ func runSpacing(_ context.Context, env *Env, args []string) int {
 		rep.Domains = append(rep.Domains, jd)
 	}
 	rep.RowsNoDepth = len(noDepth)
+	if *svg != "" {
+		if err := writeUnorientedNet(*svg, gs); err != nil {
+			return fail(err)
+		}
+	}
 	if code := writeJSON(env, fail, c.out, rep); code != ExitOK {
 		return code
 	}
@@ -399,4 +412,45 @@ func spacingDomain(gs *geoSets, dom *structdomain.Domain, extents []spacing.Exte
 		WeightWithoutBeta: "1/sin(alpha), capped like every Terzaghi weight"}
 	jd.Skipped = rep.Outside
 	return jd, nil
+}
+
+// writeUnorientedNet writes a net of all rows: poles by set, set means and
+// the small circle of possible poles of each unoriented measurement.
+func writeUnorientedNet(path string, gs *geoSets) error {
+	g := gs.group
+	n := netsvg.Net{Projection: projection.EqualArea, Title: "Sets and unoriented measurements",
+		Subtitle: filepath.Base(gs.in.file), Caution: rockMassCaution}
+	for k, v := range g.axes {
+		n.Poles = append(n.Poles, netsvg.Mark{Axis: v, Set: g.assign[k]})
+	}
+	for j, name := range g.setNames {
+		vs, _ := g.members(j)
+		if f, err := dirstat.FisherMean(vs, nil, true); err == nil {
+			n.Sets = append(n.Sets, netsvg.SetMark{Name: name, Mean: f.Mean, Cone: f.Cone95, Count: len(vs)})
+		}
+	}
+	count := 0
+	for _, r := range gs.in.rows {
+		if !r.Unoriented {
+			continue
+		}
+		c, err := spacing.UnorientedCone(r.Hole, r.Alpha)
+		if err != nil {
+			return err
+		}
+		count++
+		n.Circles = append(n.Circles, netsvg.CircleMark{Axis: c.Axis, Half: c.Half, Set: -1, Dashed: true})
+	}
+	if count > 0 {
+		n.CirclesNote = fmt.Sprintf("possible poles of %d unoriented", count)
+	}
+	f, err := os.Create(path)
+	if err != nil {
+		return err
+	}
+	if err := netsvg.WriteNet(f, n); err != nil {
+		f.Close()
+		return err
+	}
+	return f.Close()
 }
