@@ -2,6 +2,7 @@ package cli
 
 import (
 	"context"
+	"corvane/internal/fabric"
 	"errors"
 	"flag"
 	"fmt"
@@ -37,18 +38,18 @@ breaks the test's independence (the output says when).
 Sets are formed on all rows as in corvane stats; unoriented measurements (no dip) never
 enter set means and are counted per domain.
 
-` + statsCaution + `
+` + fabric.Caution + `
 
 Options:
 `
 
 type jDomSet struct {
-	Name   string `json:"name"`
-	Count  int    `json:"count"`
-	Mean   *jMean `json:"mean,omitempty"`
-	K      jnum   `json:"k"`
-	Cone95 jnum   `json:"cone95"`
-	Spread jnum   `json:"spread"`
+	Name   string       `json:"name"`
+	Count  int          `json:"count"`
+	Mean   *fabric.Mean `json:"mean,omitempty"`
+	K      fabric.Num   `json:"k"`
+	Cone95 fabric.Num   `json:"cone95"`
+	Spread fabric.Num   `json:"spread"`
 }
 
 type jDomain struct {
@@ -60,25 +61,26 @@ type jDomain struct {
 }
 
 type jCommonMean struct {
-	Set     string   `json:"set"`
-	Domains []string `json:"domains"`
-	N       int      `json:"n"`
-	F       jnum     `json:"F"`
-	DF1     int      `json:"df1"`
-	DF2     int      `json:"df2"`
-	P       jnum     `json:"p_value"`
-	Shared  int      `json:"measurements_in_several_domains,omitempty"`
-	Note    string   `json:"note,omitempty"`
+	Set     string     `json:"set"`
+	Domains []string   `json:"domains"`
+	N       int        `json:"n"`
+	F       fabric.Num `json:"F"`
+	DF1     int        `json:"df1"`
+	DF2     int        `json:"df2"`
+	P       fabric.Num `json:"p_value"`
+	Shared  int        `json:"measurements_in_several_domains,omitempty"`
+	Note    string     `json:"note,omitempty"`
 }
 
 type jDomainsReport struct {
-	Input     string        `json:"input"`
-	SetMethod string        `json:"set_method"`
-	Domains   []jDomain     `json:"domains"`
-	Method    string        `json:"common_mean_method"`
-	Tests     []jCommonMean `json:"common_mean_tests"`
-	Problems  []string      `json:"problems,omitempty"`
-	Caution   string        `json:"caution"`
+	Input       string             `json:"input"`
+	RowsSkipped []fabric.SkipCount `json:"rows_skipped"`
+	SetMethod   string             `json:"set_method"`
+	Domains     []jDomain          `json:"domains"`
+	Method      string             `json:"common_mean_method"`
+	Tests       []jCommonMean      `json:"common_mean_tests"`
+	Problems    []string           `json:"problems,omitempty"`
+	Caution     string             `json:"caution"`
 }
 
 func runDomains(_ context.Context, env *Env, args []string) int {
@@ -104,7 +106,7 @@ func runDomains(_ context.Context, env *Env, args []string) int {
 		return fail(err)
 	}
 	g := gs.group
-	rep := jDomainsReport{Input: gs.in.file, SetMethod: g.method, Method: dirstat.CommonMeanMethod, Caution: statsCaution}
+	rep := jDomainsReport{Input: gs.in.file, RowsSkipped: gs.in.skipped(), SetMethod: g.method, Method: dirstat.CommonMeanMethod, Caution: fabric.Caution}
 	for _, p := range gs.in.problems {
 		rep.Problems = append(rep.Problems, p.Error())
 	}
@@ -140,10 +142,10 @@ func runDomains(_ context.Context, env *Env, args []string) int {
 			js := jDomSet{Name: name, Count: len(members[j][d])}
 			if f, err := dirstat.FisherMean(members[j][d], nil, true); err == nil {
 				pl, ml := geom.PlaneOf(f.Mean), geom.LineOf(f.Mean)
-				js.Mean = &jMean{Dip: jptr(pl.Dip), DipDirection: jptr(pl.DipDirection), PoleTrend: jptr(ml.Trend), PolePlunge: jptr(ml.Plunge)}
-				js.K, js.Cone95, js.Spread = jnum(f.K), jnum(f.Cone95), jnum(f.Spread)
+				js.Mean = &fabric.Mean{Dip: numPtr(pl.Dip), DipDirection: numPtr(pl.DipDirection), PoleTrend: numPtr(ml.Trend), PolePlunge: numPtr(ml.Plunge)}
+				js.K, js.Cone95, js.Spread = fabric.Num(f.K), fabric.Num(f.Cone95), fabric.Num(f.Spread)
 			} else {
-				js.K, js.Cone95, js.Spread = jnum(math.NaN()), jnum(math.NaN()), jnum(math.NaN())
+				js.K, js.Cone95, js.Spread = fabric.Num(math.NaN()), fabric.Num(math.NaN()), fabric.Num(math.NaN())
 			}
 			jd.Sets = append(jd.Sets, js)
 		}
@@ -170,9 +172,9 @@ func runDomains(_ context.Context, env *Env, args []string) int {
 		res, err := dirstat.CommonMeanTest(samples, true)
 		if err != nil {
 			t.Note = "needs the set in at least two domains with at least 2 poles each: " + err.Error()
-			t.F, t.P = jnum(math.NaN()), jnum(math.NaN())
+			t.F, t.P = fabric.Num(math.NaN()), fabric.Num(math.NaN())
 		} else {
-			t.N, t.F, t.DF1, t.DF2, t.P = res.N, jnum(res.F), res.DF1, res.DF2, jnum(res.P)
+			t.N, t.F, t.DF1, t.DF2, t.P = res.N, fabric.Num(res.F), res.DF1, res.DF2, fabric.Num(res.P)
 		}
 		if t.Shared > 0 {
 			t.Note = "some measurements lie in several domains: the samples are not independent and the p-value is not valid"

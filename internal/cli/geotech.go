@@ -1,15 +1,20 @@
 package cli
 
 import (
+	"encoding/json"
 	"errors"
 	"flag"
 	"fmt"
+	"io"
 	"math"
+	"os"
 	"strconv"
 	"strings"
 
 	"corvane/internal/csvio"
 	"corvane/internal/dirstat"
+	"corvane/internal/domain"
+	"corvane/internal/fabric"
 	"corvane/internal/geom"
 	"corvane/internal/structdomain"
 )
@@ -59,47 +64,134 @@ func (d *domainFlags) Set(s string) error {
 	return nil
 }
 
-// geoSets are the sets of a geotechnical command: the planes' group (poles,
-// set assignment by --sets/--set) over all rows, and the row index of each
-// pole.
-type geoSets struct {
-	in      *orientInput
-	group   *orientGroup
-	setOf   map[int]int      // row index -> set index (planes only)
-	windows []dirstat.Window // the --set windows, nil for automatic sets
+// geoInput is the rows of a geotechnical command's input after --type
+// filtering, with depth, alpha, rock type and unoriented rows.
+type geoInput struct {
+	file     string
+	rows     []csvio.OrientationRow
+	problems []*domain.Error
 }
 
-// loadGeoSets reads the rows (with depth, alpha, rock type and unoriented
-// rows) and forms sets on the planes' poles as stats does.
-func loadGeoSets(env *Env, c *orientFlags, needSets bool) (*geoSets, error) {
-	so, err := c.setOptions()
-	if err != nil {
-		return nil, err
+// planeGroup is the poles of the input's planes and their sets.
+type planeGroup struct {
+	axes     []geom.Vec3
+	rows     []int // index into geoInput.rows
+	assign   []int // set per pole, dirstat.Unassigned for none
+	setNames []string
+	method   string
+}
+
+// members returns the poles of set j.
+func (g *planeGroup) members(j int) []geom.Vec3 {
+	var vs []geom.Vec3
+	for k, a := range g.assign {
+		if a == j {
+			vs = append(vs, g.axes[k])
+		}
 	}
-	if needSets && so.auto == 0 && len(so.windows) == 0 {
-		return nil, errors.New("give sets with --sets auto:N or --set NAME:TREND/PLUNGE:CONE")
+	return vs
+}
+
+// geoSets are the sets of a geotechnical command: the planes' group (poles,
+// set assignment by --sets/--set) over all rows.
+type geoSets struct {
+	in      *geoInput
+	group   *planeGroup
+	setOf   map[int]int      // row index -> set index (planes only)
+	windows []dirstat.Window // the --set windows, nil for other set methods
+}
+
+// loadGeoInput reads path ("-" for standard input) with depth, alpha, rock
+// type and unoriented rows, and keeps the rows of type typ (all when
+// empty). Problems are also written to stderr.
+func loadGeoInput(env *Env, path, typ string) (*geoInput, error) {
+	if path == "" {
+		return nil, errors.New("--in FILE is required")
 	}
-	in, err := loadOrientationsWith(env, c.in, c.typ, csvio.OrientationOptions{Geotech: true})
-	if err != nil {
-		return nil, err
-	}
-	g := buildGroup(in, "planes", weightingSpec{})
-	gs := &geoSets{in: in, group: g, setOf: map[int]int{}}
-	if so.auto == 0 {
-		gs.windows = so.windows
-	}
-	if len(g.axes) > 0 && (so.auto > 0 || len(so.windows) > 0) {
-		if err := g.assignSets(so); err != nil {
+	var r io.Reader = env.Stdin
+	if path != "-" {
+		f, err := os.Open(path)
+		if err != nil {
 			return nil, err
 		}
-		for k, ri := range g.rows {
-			gs.setOf[ri] = g.assign[k]
+		defer f.Close()
+		r = f
+	}
+	rows, problems, err := csvio.ReadOrientationsWith(r, path, csvio.OrientationOptions{Geotech: true})
+	if err != nil {
+		return nil, err
+	}
+	for _, p := range problems {
+		fmt.Fprintf(env.Stderr, "corvane: %v (row skipped)\n", p)
+	}
+	in := &geoInput{file: path, problems: problems}
+	for _, row := range rows {
+		if typ == "" || strings.EqualFold(row.Type, typ) {
+			in.rows = append(in.rows, row)
+		}
+	}
+	if len(in.rows) == 0 {
+		return nil, fmt.Errorf("%s: no usable rows", path)
+	}
+	return in, nil
+}
+
+// loadGeoSets reads the rows and forms sets on the planes' poles with
+// fabric.PlaneSets, the statistics' own grouping.
+func loadGeoSets(env *Env, c *orientFlags, needSets bool) (*geoSets, error) {
+	so, err := fabric.ParseSets(c.sets, "planes", c.windows, c.seed)
+	if err != nil {
+		return nil, cliOptionError(err)
+	}
+	if needSets && so.Auto == 0 && !so.ByType && len(so.Windows) == 0 {
+		return nil, errors.New("give sets with --sets auto:N, --sets type or --set NAME:TREND/PLUNGE:CONE")
+	}
+	in, err := loadGeoInput(env, c.in, c.typ)
+	if err != nil {
+		return nil, err
+	}
+	frows := make([]fabric.Row, len(in.rows))
+	for i, r := range in.rows {
+		frows[i] = fabric.Row{Type: r.Type, HasPlane: r.HasPlane, Plane: r.Plane}
+	}
+	assign, names, method, err := fabric.PlaneSets(frows, so)
+	if err != nil {
+		return nil, cliOptionError(err)
+	}
+	g := &planeGroup{setNames: names, method: method}
+	gs := &geoSets{in: in, group: g, setOf: map[int]int{}}
+	if len(so.Windows) > 0 {
+		gs.windows = so.Windows
+	}
+	for i, r := range in.rows {
+		if r.HasPlane {
+			g.axes = append(g.axes, r.Plane.Normal())
+			g.rows = append(g.rows, i)
+			g.assign = append(g.assign, assign[i])
+			gs.setOf[i] = assign[i]
 		}
 	}
 	if needSets && len(g.axes) == 0 {
 		return nil, fmt.Errorf("%s: no oriented planes to form sets from", in.file)
 	}
 	return gs, nil
+}
+
+// numPtr returns a pointer to v as a report number.
+func numPtr(v float64) *fabric.Num { n := fabric.Num(v); return &n }
+
+// writeJSON writes v as indented JSON to path (standard output when "").
+func writeJSON(env *Env, fail func(error) int, path string, v any) int {
+	err := writeOutputOr(env.Stdout, path, func(w io.Writer) error {
+		enc := json.NewEncoder(w)
+		enc.SetIndent("", "  ")
+		enc.SetEscapeHTML(false)
+		return enc.Encode(v)
+	})
+	if err != nil {
+		return fail(err)
+	}
+	return ExitOK
 }
 
 // setOfRow returns the set of row i (dirstat.Unassigned when none).
@@ -143,4 +235,26 @@ func parseFace(s string) (geom.Plane, error) {
 // registerDomainFlags adds --domain.
 func registerDomainFlags(fs *flag.FlagSet, d *domainFlags) {
 	fs.Var(d, "domain", "a structural domain "+domainSyntax+" (repeatable; a hole without a range is the whole hole)")
+}
+
+// skipped counts the rows that carry neither a plane nor an unoriented
+// measurement, by the statistics' reasons (README, "Data rules").
+func (in *geoInput) skipped() []fabric.SkipCount {
+	n := map[string]int{}
+	for _, r := range in.rows {
+		switch {
+		case r.HasPlane || r.Unoriented:
+		case r.Error != "":
+			n[fabric.SkipNotOriented]++
+		case r.NoAzimuth:
+			n[fabric.SkipNoDipDirection]++
+		}
+	}
+	out := []fabric.SkipCount{}
+	for _, why := range []string{fabric.SkipNoDipDirection, fabric.SkipNotOriented} {
+		if n[why] > 0 {
+			out = append(out, fabric.SkipCount{Reason: why, Count: n[why]})
+		}
+	}
+	return out
 }

@@ -267,3 +267,35 @@ func TestDomainsCommand(t *testing.T) {
 		t.Errorf("turned mean: p = %v", turned.Tests[0].P)
 	}
 }
+
+// TestGeotechSkippedRows: rows the conversion could not orient (error column
+// filled, e.g. a row without beta) are counted under the statistics' reason
+// and change nothing else.
+func TestGeotechSkippedRows(t *testing.T) {
+	in := writeTemp(t, "e.csv", "hole_id,depth,alpha,dip,dip_direction,hole_azimuth,hole_dip,error\n"+
+		"H,1,90,0,0,0,-90,\nH,3,90,0,0,0,-90,\nH,4,40,,,,,beta is empty\n")
+	code, out, stderr := runCmd(t, "spacing", "--in", in, "--set", "flat:0/90:10")
+	if code != ExitOK {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	var rep struct {
+		Skipped []struct {
+			Reason string `json:"reason"`
+			Count  int    `json:"count"`
+		} `json:"rows_skipped"`
+		Domains []struct {
+			Sets []struct {
+				Count int `json:"count"`
+			} `json:"sets"`
+		} `json:"domains"`
+	}
+	if err := json.Unmarshal([]byte(out), &rep); err != nil {
+		t.Fatal(err)
+	}
+	if len(rep.Skipped) != 1 || rep.Skipped[0].Count != 1 || !strings.Contains(rep.Skipped[0].Reason, "not oriented") {
+		t.Errorf("skipped %+v", rep.Skipped)
+	}
+	if rep.Domains[0].Sets[0].Count != 2 {
+		t.Errorf("set count %d", rep.Domains[0].Sets[0].Count)
+	}
+}

@@ -2,7 +2,7 @@ package cli
 
 import (
 	"context"
-	"encoding/json"
+	"corvane/internal/fabric"
 	"flag"
 	"fmt"
 	"io"
@@ -58,18 +58,18 @@ Options:
 `
 
 type jInterval struct {
-	Line       int    `json:"line,omitempty"`
-	From       *jnum  `json:"from,omitempty"`
-	To         *jnum  `json:"to,omitempty"`
-	Length     jnum   `json:"length"`
-	TCR        jnum   `json:"tcr"`
-	SCR        jnum   `json:"scr"`
-	RQD        jnum   `json:"rqd"`
-	RQDFrom    string `json:"rqd_from,omitempty"`
-	FF         jnum   `json:"fracture_frequency"`
-	Natural    *int   `json:"natural_breaks"`
-	Induced    *int   `json:"induced_breaks"`
-	Confidence string `json:"confidence,omitempty"`
+	Line       int         `json:"line,omitempty"`
+	From       *fabric.Num `json:"from,omitempty"`
+	To         *fabric.Num `json:"to,omitempty"`
+	Length     fabric.Num  `json:"length"`
+	TCR        fabric.Num  `json:"tcr"`
+	SCR        fabric.Num  `json:"scr"`
+	RQD        fabric.Num  `json:"rqd"`
+	RQDFrom    string      `json:"rqd_from,omitempty"`
+	FF         fabric.Num  `json:"fracture_frequency"`
+	Natural    *int        `json:"natural_breaks"`
+	Induced    *int        `json:"induced_breaks"`
+	Confidence string      `json:"confidence,omitempty"`
 }
 
 type jIntervalHole struct {
@@ -81,7 +81,7 @@ type jIntervalHole struct {
 type jIntervalReport struct {
 	Input      string          `json:"input"`
 	LengthUnit string          `json:"length_unit"`
-	MinPiece   jnum            `json:"rqd_min_piece"`
+	MinPiece   fabric.Num      `json:"rqd_min_piece"`
 	Method     string          `json:"method"`
 	Holes      []jIntervalHole `json:"holes"`
 	All        jInterval       `json:"all"`
@@ -96,8 +96,8 @@ func countPtr(n int) *int {
 }
 
 func intervalJSON(d coreinterval.Derived) jInterval {
-	return jInterval{Length: jnum(d.Length), TCR: jnum(d.TCR), SCR: jnum(d.SCR), RQD: jnum(d.RQD), RQDFrom: d.RQDFrom,
-		FF: jnum(d.FF), Natural: countPtr(d.Natural), Induced: countPtr(d.Induced)}
+	return jInterval{Length: fabric.Num(d.Length), TCR: fabric.Num(d.TCR), SCR: fabric.Num(d.SCR), RQD: fabric.Num(d.RQD), RQDFrom: d.RQDFrom,
+		FF: fabric.Num(d.FF), Natural: countPtr(d.Natural), Induced: countPtr(d.Induced)}
 }
 
 // readIntervalsFile reads and checks an intervals file (and, when collars is
@@ -165,7 +165,7 @@ func runIntervals(_ context.Context, env *Env, args []string) int {
 	if *feet {
 		minPiece, unit = coreinterval.MinPieceFeet, "ft"
 	}
-	rep := jIntervalReport{Input: *in, LengthUnit: unit, MinPiece: jnum(minPiece),
+	rep := jIntervalReport{Input: *in, LengthUnit: unit, MinPiece: fabric.Num(minPiece),
 		Method: "TCR, SCR and RQD over the drilled length (to - from); RQD counts pieces >= 100 mm " +
 			"along the core axis between natural breaks (Deere 1964; Deere & Deere 1988); " +
 			"fracture frequency = natural breaks / drilled length",
@@ -183,7 +183,7 @@ func runIntervals(_ context.Context, env *Env, args []string) int {
 		}
 		d := coreinterval.Derive(r.Interval, minPiece)
 		j := intervalJSON(d)
-		j.Line, j.From, j.To, j.Confidence = r.Line, jptr(r.Interval.From), jptr(r.Interval.To), r.Interval.Confidence
+		j.Line, j.From, j.To, j.Confidence = r.Line, numPtr(r.Interval.From), numPtr(r.Interval.To), r.Interval.Confidence
 		rep.Holes[i].Intervals = append(rep.Holes[i].Intervals, j)
 		perHole[i] = append(perHole[i], d)
 		all = append(all, d)
@@ -193,23 +193,4 @@ func runIntervals(_ context.Context, env *Env, args []string) int {
 	}
 	rep.All = intervalJSON(coreinterval.Combine(all))
 	return writeJSON(env, fail, *out, rep)
-}
-
-// writeJSON writes v as indented JSON to path (standard output when "").
-func writeJSON(env *Env, fail func(error) int, path string, v any) int {
-	w, closeOut, err := orientOut(env, path)
-	if err != nil {
-		return fail(err)
-	}
-	enc := json.NewEncoder(w)
-	enc.SetIndent("", "  ")
-	enc.SetEscapeHTML(false)
-	if err := enc.Encode(v); err != nil {
-		closeOut()
-		return fail(err)
-	}
-	if err := closeOut(); err != nil {
-		return fail(err)
-	}
-	return ExitOK
 }

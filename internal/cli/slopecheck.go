@@ -2,6 +2,7 @@ package cli
 
 import (
 	"context"
+	"corvane/internal/fabric"
 	"flag"
 	"fmt"
 	"os"
@@ -57,8 +58,8 @@ Options:
 `
 
 type jCount struct {
-	Count   int  `json:"count"`
-	Percent jnum `json:"percent"`
+	Count   int        `json:"count"`
+	Percent fabric.Num `json:"percent"`
 }
 
 type jCounts struct {
@@ -74,7 +75,7 @@ type jCounts struct {
 }
 
 func countsJSON(c kinematic.Counts) jCounts {
-	pc := func(n, of int) jCount { return jCount{n, jnum(kinematic.Percent(n, of))} }
+	pc := func(n, of int) jCount { return jCount{n, fabric.Num(kinematic.Percent(n, of))} }
 	j := jCounts{Poles: c.Poles, Planar: pc(c.Planar, c.Poles), Flexural: pc(c.Flexural, c.Poles), Base: pc(c.Base, c.Poles),
 		Intersections: c.Intersections, Wedge: pc(c.Wedge, c.Intersections), Direct: pc(c.DirectPrimary, c.Intersections),
 		Oblique: pc(c.DirectOblique, c.Intersections)}
@@ -85,40 +86,41 @@ func countsJSON(c kinematic.Counts) jCounts {
 }
 
 type jKinSet struct {
-	Name     string  `json:"name"`
-	Count    int     `json:"count"`
-	Mean     jMean   `json:"mean"`
-	Planar   bool    `json:"planar"`
-	Flexural bool    `json:"flexural"`
-	Base     bool    `json:"toppling_base"`
-	Members  jCounts `json:"members"`
+	Name     string      `json:"name"`
+	Count    int         `json:"count"`
+	Mean     fabric.Mean `json:"mean"`
+	Planar   bool        `json:"planar"`
+	Flexural bool        `json:"flexural"`
+	Base     bool        `json:"toppling_base"`
+	Members  jCounts     `json:"members"`
 }
 
 type jKinPair struct {
-	Sets         [2]string `json:"sets"`
-	Intersection *jLine    `json:"intersection,omitempty"`
-	Wedge        bool      `json:"wedge"`
-	Toppling     string    `json:"toppling"`
-	Note         string    `json:"note,omitempty"`
+	Sets         [2]string    `json:"sets"`
+	Intersection *fabric.Line `json:"intersection,omitempty"`
+	Wedge        bool         `json:"wedge"`
+	Toppling     string       `json:"toppling"`
+	Note         string       `json:"note,omitempty"`
 }
 
 type jKinReport struct {
-	Input        string     `json:"input"`
-	TypeFilter   string     `json:"type_filter,omitempty"`
-	RowsUsed     int        `json:"rows_used"`
-	RowsRejected int        `json:"rows_rejected"`
-	Problems     []string   `json:"problems,omitempty"`
-	Face         jMean      `json:"face"`
-	Friction     jnum       `json:"friction_angle"`
-	Lateral      jnum       `json:"lateral_limit"`
-	Methods      []string   `json:"methods"`
-	Unoriented   int        `json:"unoriented_left_out"`
-	All          jCounts    `json:"measurements"`
-	SetMethod    string     `json:"set_method,omitempty"`
-	Sets         []jKinSet  `json:"sets,omitempty"`
-	Pairs        []jKinPair `json:"set_pairs,omitempty"`
-	SVG          []string   `json:"svg,omitempty"`
-	Caution      string     `json:"caution"`
+	Input        string             `json:"input"`
+	RowsSkipped  []fabric.SkipCount `json:"rows_skipped"`
+	TypeFilter   string             `json:"type_filter,omitempty"`
+	RowsUsed     int                `json:"rows_used"`
+	RowsRejected int                `json:"rows_rejected"`
+	Problems     []string           `json:"problems,omitempty"`
+	Face         fabric.Mean        `json:"face"`
+	Friction     fabric.Num         `json:"friction_angle"`
+	Lateral      fabric.Num         `json:"lateral_limit"`
+	Methods      []string           `json:"methods"`
+	Unoriented   int                `json:"unoriented_left_out"`
+	All          jCounts            `json:"measurements"`
+	SetMethod    string             `json:"set_method,omitempty"`
+	Sets         []jKinSet          `json:"sets,omitempty"`
+	Pairs        []jKinPair         `json:"set_pairs,omitempty"`
+	SVG          []string           `json:"svg,omitempty"`
+	Caution      string             `json:"caution"`
 }
 
 var topplingNames = map[int]string{kinematic.NotToppling: "none", kinematic.DirectPrimary: "direct", kinematic.DirectOblique: "oblique"}
@@ -183,8 +185,8 @@ func runSlopeCheck(_ context.Context, env *Env, args []string) int {
 	if len(planes) == 0 {
 		return fail(fmt.Errorf("%s: no planes to check", gs.in.file))
 	}
-	rep := jKinReport{Input: gs.in.file, TypeFilter: c.typ, RowsUsed: len(gs.in.rows), RowsRejected: len(gs.in.problems),
-		Face: jMean{Dip: jptr(fp.Dip), DipDirection: jptr(fp.DipDirection)}, Friction: jnum(p.Friction), Lateral: jnum(p.Lateral),
+	rep := jKinReport{Input: gs.in.file, RowsSkipped: gs.in.skipped(), TypeFilter: c.typ, RowsUsed: len(gs.in.rows), RowsRejected: len(gs.in.problems),
+		Face: fabric.Mean{Dip: numPtr(fp.Dip), DipDirection: numPtr(fp.DipDirection)}, Friction: fabric.Num(p.Friction), Lateral: fabric.Num(p.Lateral),
 		Methods: slopeMethods, Unoriented: unoriented, All: countsJSON(p.Count(planes)), SetMethod: g.method, Caution: kinematic.Caution}
 	for _, pr := range gs.in.problems {
 		rep.Problems = append(rep.Problems, pr.Error())
@@ -209,7 +211,7 @@ func runSlopeCheck(_ context.Context, env *Env, args []string) int {
 			mp := geom.PlaneOf(f.Mean)
 			means = append(means, mp)
 			r := p.CheckPlane(mp)
-			js.Mean = jMean{Dip: jptr(mp.Dip), DipDirection: jptr(mp.DipDirection)}
+			js.Mean = fabric.Mean{Dip: numPtr(mp.Dip), DipDirection: numPtr(mp.DipDirection)}
 			js.Planar, js.Flexural, js.Base = r.Planar, r.Flexural, r.Base
 			setMarks = append(setMarks, netsvg.SetMark{Name: name, Mean: f.Mean, Cone: f.Cone95, Count: len(vs)})
 		} else {
@@ -232,7 +234,7 @@ func runSlopeCheck(_ context.Context, env *Env, args []string) int {
 				rep.Pairs = append(rep.Pairs, jp)
 				continue
 			}
-			jp.Intersection = &jLine{Trend: jnum(r.Line.Trend), Plunge: jnum(r.Line.Plunge)}
+			jp.Intersection = &fabric.Line{Trend: fabric.Num(r.Line.Trend), Plunge: fabric.Num(r.Line.Plunge)}
 			jp.Wedge, jp.Toppling = r.Wedge, topplingNames[r.Direct]
 			rep.Pairs = append(rep.Pairs, jp)
 			pairLines = append(pairLines, netsvg.Mark{Axis: r.Line.Vec(), Set: -1})
@@ -255,7 +257,7 @@ func runSlopeCheck(_ context.Context, env *Env, args []string) int {
 }
 
 // writeSlopeNets writes one net per check and returns the file names.
-func writeSlopeNets(prefix string, kind projection.Kind, p kinematic.Params, g *orientGroup, sets []netsvg.SetMark,
+func writeSlopeNets(prefix string, kind projection.Kind, p kinematic.Params, g *planeGroup, sets []netsvg.SetMark,
 	pairLines []netsvg.Mark, all jCounts, input string) ([]string, error) {
 	var poles []netsvg.Mark
 	for k, v := range g.axes {

@@ -2,6 +2,7 @@ package cli
 
 import (
 	"context"
+	"corvane/internal/fabric"
 	"flag"
 	"fmt"
 	"math"
@@ -71,71 +72,71 @@ Options:
 `
 
 type jDist struct {
-	N      int    `json:"n"`
-	Mean   jnum   `json:"mean"`
-	Median jnum   `json:"median"`
-	Min    jnum   `json:"min"`
-	P10    jnum   `json:"p10"`
-	P25    jnum   `json:"p25"`
-	P75    jnum   `json:"p75"`
-	P90    jnum   `json:"p90"`
-	Max    jnum   `json:"max"`
-	SD     jnum   `json:"sd"`
-	CV     jnum   `json:"cv"`
-	StdErr jnum   `json:"std_error_of_mean"`
-	Values []jnum `json:"values,omitempty"`
+	N      int          `json:"n"`
+	Mean   fabric.Num   `json:"mean"`
+	Median fabric.Num   `json:"median"`
+	Min    fabric.Num   `json:"min"`
+	P10    fabric.Num   `json:"p10"`
+	P25    fabric.Num   `json:"p25"`
+	P75    fabric.Num   `json:"p75"`
+	P90    fabric.Num   `json:"p90"`
+	Max    fabric.Num   `json:"max"`
+	SD     fabric.Num   `json:"sd"`
+	CV     fabric.Num   `json:"cv"`
+	StdErr fabric.Num   `json:"std_error_of_mean"`
+	Values []fabric.Num `json:"values,omitempty"`
 }
 
 func distJSON(d spacing.Dist, values bool) jDist {
-	j := jDist{N: d.N, Mean: jnum(d.Mean), Median: jnum(d.Median), Min: jnum(d.Min), P10: jnum(d.P10), P25: jnum(d.P25),
-		P75: jnum(d.P75), P90: jnum(d.P90), Max: jnum(d.Max), SD: jnum(d.SD), CV: jnum(d.CV), StdErr: jnum(d.StdErr)}
+	j := jDist{N: d.N, Mean: fabric.Num(d.Mean), Median: fabric.Num(d.Median), Min: fabric.Num(d.Min), P10: fabric.Num(d.P10), P25: fabric.Num(d.P25),
+		P75: fabric.Num(d.P75), P90: fabric.Num(d.P90), Max: fabric.Num(d.Max), SD: fabric.Num(d.SD), CV: fabric.Num(d.CV), StdErr: fabric.Num(d.StdErr)}
 	if values {
 		for _, v := range d.Values {
-			j.Values = append(j.Values, jnum(v))
+			j.Values = append(j.Values, fabric.Num(v))
 		}
 	}
 	return j
 }
 
 type jSpacingHole struct {
-	Hole      string `json:"hole_id"`
-	From      jnum   `json:"from"`
-	To        jnum   `json:"to"`
-	Count     int    `json:"count"`
-	P10       jnum   `json:"p10"`
-	Delta     jnum   `json:"delta"`
-	P10Normal jnum   `json:"p10_normal"`
-	Capped    int    `json:"capped"`
+	Hole      string     `json:"hole_id"`
+	From      fabric.Num `json:"from"`
+	To        fabric.Num `json:"to"`
+	Count     int        `json:"count"`
+	P10       fabric.Num `json:"p10"`
+	Delta     fabric.Num `json:"delta"`
+	P10Normal fabric.Num `json:"p10_normal"`
+	Capped    int        `json:"capped"`
 }
 
 type jSpacingSet struct {
 	Name              string         `json:"name"`
 	OrientedMembers   int            `json:"oriented_members"`
-	Mean              *jMean         `json:"mean,omitempty"`
-	K                 jnum           `json:"k"`
-	FitAngle          jnum           `json:"unoriented_fit_angle"`
+	Mean              *fabric.Mean   `json:"mean,omitempty"`
+	K                 fabric.Num     `json:"k"`
+	FitAngle          fabric.Num     `json:"unoriented_fit_angle"`
 	UnorientedCounted int            `json:"unoriented_counted"`
 	Count             int            `json:"count"`
-	Length            jnum           `json:"length"`
-	P10               jnum           `json:"p10"`
-	P10Normal         jnum           `json:"p10_normal"`
-	MeanSpacing       jnum           `json:"mean_spacing"`
+	Length            fabric.Num     `json:"length"`
+	P10               fabric.Num     `json:"p10"`
+	P10Normal         fabric.Num     `json:"p10_normal"`
+	MeanSpacing       fabric.Num     `json:"mean_spacing"`
 	Capped            int            `json:"capped"`
 	Along             jDist          `json:"spacing_along_hole"`
 	True              jDist          `json:"true_spacing"`
-	P32               jnum           `json:"p32_estimate"`
+	P32               fabric.Num     `json:"p32_estimate"`
 	Runs              []jSpacingHole `json:"runs"`
 	Note              string         `json:"note,omitempty"`
 }
 
 type jHoleTotal struct {
-	Hole        string `json:"hole_id"`
-	Length      jnum   `json:"length"`
-	LengthFrom  string `json:"length_from"`
-	Count       int    `json:"count"`
-	Unoriented  int    `json:"unoriented"`
-	P10         jnum   `json:"p10"`
-	P10Weighted jnum   `json:"p10_terzaghi_weighted"`
+	Hole        string     `json:"hole_id"`
+	Length      fabric.Num `json:"length"`
+	LengthFrom  string     `json:"length_from"`
+	Count       int        `json:"count"`
+	Unoriented  int        `json:"unoriented"`
+	P10         fabric.Num `json:"p10"`
+	P10Weighted fabric.Num `json:"p10_terzaghi_weighted"`
 }
 
 type jUnoriented struct {
@@ -157,20 +158,21 @@ type jSpacingDomain struct {
 }
 
 type jSpacingReport struct {
-	Input          string           `json:"input"`
-	Intervals      string           `json:"intervals,omitempty"`
-	TypeFilter     string           `json:"type_filter,omitempty"`
-	RowsUsed       int              `json:"rows_used"`
-	RowsRejected   int              `json:"rows_rejected"`
-	RowsNoDepth    int              `json:"rows_without_depth_or_hole_direction"`
-	Problems       []string         `json:"problems,omitempty"`
-	SetMethod      string           `json:"set_method"`
-	Cap            jnum             `json:"terzaghi_cap"`
-	Correction     string           `json:"correction"`
-	P32Method      string           `json:"p32_method"`
-	P32Assumptions string           `json:"p32_assumptions"`
-	Domains        []jSpacingDomain `json:"domains"`
-	Caution        string           `json:"caution"`
+	Input          string             `json:"input"`
+	RowsSkipped    []fabric.SkipCount `json:"rows_skipped"`
+	Intervals      string             `json:"intervals,omitempty"`
+	TypeFilter     string             `json:"type_filter,omitempty"`
+	RowsUsed       int                `json:"rows_used"`
+	RowsRejected   int                `json:"rows_rejected"`
+	RowsNoDepth    int                `json:"rows_without_depth_or_hole_direction"`
+	Problems       []string           `json:"problems,omitempty"`
+	SetMethod      string             `json:"set_method"`
+	Cap            fabric.Num         `json:"terzaghi_cap"`
+	Correction     string             `json:"correction"`
+	P32Method      string             `json:"p32_method"`
+	P32Assumptions string             `json:"p32_assumptions"`
+	Domains        []jSpacingDomain   `json:"domains"`
+	Caution        string             `json:"caution"`
 }
 
 // registerGeoFlags adds the input and set flags of the geotechnical commands.
@@ -233,8 +235,8 @@ func runSpacing(_ context.Context, env *Env, args []string) int {
 			extents = append(extents, spacing.Extent{Hole: r.HoleID, From: r.Interval.From, To: r.Interval.To})
 		}
 	}
-	rep := jSpacingReport{Input: gs.in.file, Intervals: *intervals, TypeFilter: c.typ, RowsUsed: len(gs.in.rows),
-		RowsRejected: len(gs.in.problems), SetMethod: gs.group.method, Cap: jnum(maxW),
+	rep := jSpacingReport{Input: gs.in.file, RowsSkipped: gs.in.skipped(), Intervals: *intervals, TypeFilter: c.typ, RowsUsed: len(gs.in.rows),
+		RowsRejected: len(gs.in.problems), SetMethod: gs.group.method, Cap: fabric.Num(maxW),
 		Correction: "Terzaghi (1965): true spacing = spacing along the hole * |cos delta|, frequency along the normal = " +
 			"sum of 1/|cos delta|, delta the angle between the hole (at the crossings) and the set's mean pole; " +
 			"1/|cos delta| capped (crossings at the cap are counted in \"capped\": there the values are bounds)",
@@ -339,8 +341,8 @@ func spacingDomain(gs *geoSets, dom *structdomain.Domain, extents []spacing.Exte
 		}
 		pl := geom.PlaneOf(f.Mean)
 		ml := geom.LineOf(f.Mean)
-		js.Mean = &jMean{Dip: jptr(pl.Dip), DipDirection: jptr(pl.DipDirection), PoleTrend: jptr(ml.Trend), PolePlunge: jptr(ml.Plunge)}
-		js.K, js.FitAngle = jnum(f.K), jnum(def.Fit)
+		js.Mean = &fabric.Mean{Dip: numPtr(pl.Dip), DipDirection: numPtr(pl.DipDirection), PoleTrend: numPtr(ml.Trend), PolePlunge: numPtr(ml.Plunge)}
+		js.K, js.FitAngle = fabric.Num(f.K), fabric.Num(def.Fit)
 		defs = append(defs, def)
 		jsets = append(jsets, js)
 	}
@@ -393,18 +395,18 @@ func spacingDomain(gs *geoSets, dom *structdomain.Domain, extents []spacing.Exte
 		res := sr.Result
 		js := &jsets[j]
 		js.UnorientedCounted = sr.Unoriented
-		js.Count, js.Length, js.P10, js.P10Normal = res.Count, jnum(res.Length), jnum(res.P10), jnum(res.P10Normal)
-		js.MeanSpacing, js.Capped, js.P32 = jnum(res.MeanSpacing), res.Capped, jnum(res.P32)
+		js.Count, js.Length, js.P10, js.P10Normal = res.Count, fabric.Num(res.Length), fabric.Num(res.P10), fabric.Num(res.P10Normal)
+		js.MeanSpacing, js.Capped, js.P32 = fabric.Num(res.MeanSpacing), res.Capped, fabric.Num(res.P32)
 		js.Along, js.True = distJSON(res.Apparent, values), distJSON(res.True, values)
 		for _, h := range res.Holes {
-			js.Runs = append(js.Runs, jSpacingHole{Hole: h.Hole, From: jnum(h.From), To: jnum(h.To), Count: h.Count,
-				P10: jnum(h.P10), Delta: jnum(h.Delta), P10Normal: jnum(h.P10Normal), Capped: h.Capped})
+			js.Runs = append(js.Runs, jSpacingHole{Hole: h.Hole, From: fabric.Num(h.From), To: fabric.Num(h.To), Count: h.Count,
+				P10: fabric.Num(h.P10), Delta: fabric.Num(h.Delta), P10Normal: fabric.Num(h.P10Normal), Capped: h.Capped})
 		}
 	}
 	jd.Sets = jsets
 	for _, h := range rep.Holes {
-		jd.Holes = append(jd.Holes, jHoleTotal{Hole: h.Hole, Length: jnum(h.Length), LengthFrom: h.LengthFrom, Count: h.Count,
-			Unoriented: h.Unoriented, P10: jnum(h.P10), P10Weighted: jnum(h.P10Weighted)})
+		jd.Holes = append(jd.Holes, jHoleTotal{Hole: h.Hole, Length: fabric.Num(h.Length), LengthFrom: h.LengthFrom, Count: h.Count,
+			Unoriented: h.Unoriented, P10: fabric.Num(h.P10), P10Weighted: fabric.Num(h.P10Weighted)})
 	}
 	jd.Unoriented = jUnoriented{Total: rep.UnorientedTotal, CountedInOneSet: rep.UnorientedAssigned, Ambiguous: rep.UnorientedAmbiguous,
 		FitNone: rep.UnorientedNoFit, ExcludedFromMeans: rep.UnorientedTotal,
@@ -424,7 +426,7 @@ func writeUnorientedNet(path string, gs *geoSets) error {
 		n.Poles = append(n.Poles, netsvg.Mark{Axis: v, Set: g.assign[k]})
 	}
 	for j, name := range g.setNames {
-		vs, _ := g.members(j)
+		vs := g.members(j)
 		if f, err := dirstat.FisherMean(vs, nil, true); err == nil {
 			n.Sets = append(n.Sets, netsvg.SetMark{Name: name, Mean: f.Mean, Cone: f.Cone95, Count: len(vs)})
 		}
