@@ -108,15 +108,11 @@ func loadGeoInput(env *Env, path, typ string) (*geoInput, error) {
 	if path == "" {
 		return nil, errors.New("--in FILE is required")
 	}
-	var r io.Reader = env.Stdin
-	if path != "-" {
-		f, err := os.Open(path)
-		if err != nil {
-			return nil, err
-		}
-		defer f.Close()
-		r = f
+	r, closeIn, err := openInput(env, path)
+	if err != nil {
+		return nil, err
 	}
+	defer closeIn()
 	rows, problems, err := csvio.ReadOrientationsWith(r, path, csvio.OrientationOptions{Geotech: true})
 	if err != nil {
 		return nil, err
@@ -257,4 +253,17 @@ func (in *geoInput) skipped() []fabric.SkipCount {
 		}
 	}
 	return out
+}
+
+// openInput opens path for reading, standard input for "-"; the function
+// returned closes it.
+func openInput(env *Env, path string) (io.Reader, func(), error) {
+	if path == "-" {
+		return env.Stdin, func() {}, nil
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return nil, nil, err
+	}
+	return f, func() { f.Close() }, nil
 }

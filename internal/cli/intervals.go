@@ -5,8 +5,6 @@ import (
 	"corvane/internal/fabric"
 	"flag"
 	"fmt"
-	"io"
-	"os"
 
 	"corvane/internal/coreinterval"
 	"corvane/internal/csvio"
@@ -103,26 +101,22 @@ func intervalJSON(d coreinterval.Derived) jInterval {
 // readIntervalsFile reads and checks an intervals file (and, when collars is
 // not "", that every interval lies inside its hole).
 func readIntervalsFile(env *Env, path, collars string) ([]csvio.IntervalRow, error) {
-	var r io.Reader = env.Stdin
-	if path != "-" {
-		f, err := os.Open(path)
-		if err != nil {
-			return nil, err
-		}
-		defer f.Close()
-		r = f
+	r, closeIn, err := openInput(env, path)
+	if err != nil {
+		return nil, err
 	}
+	defer closeIn()
 	rows, err := csvio.ReadIntervals(r, path)
 	if err != nil {
 		return nil, err
 	}
 	if collars != "" {
-		f, err := os.Open(collars)
+		cr, closeCollars, err := openInput(env, collars)
 		if err != nil {
 			return nil, err
 		}
-		defer f.Close()
-		cs, err := csvio.ReadCollars(f, collars)
+		defer closeCollars()
+		cs, err := csvio.ReadCollars(cr, collars)
 		if err != nil {
 			return nil, err
 		}

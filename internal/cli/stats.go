@@ -7,7 +7,6 @@ import (
 	"flag"
 	"fmt"
 	"io"
-	"os"
 	"strings"
 
 	"corvane/internal/csvio"
@@ -103,24 +102,15 @@ type orientInput struct {
 // loadOrientations reads path ("-" for standard input) and keeps the rows of
 // type typ (all when typ is empty). Problems are also written to stderr.
 func loadOrientations(env *Env, path, typ string) (*orientInput, error) {
-	return loadOrientationsWith(env, path, typ, csvio.OrientationOptions{})
-}
-
-// loadOrientationsWith is loadOrientations with reader options.
-func loadOrientationsWith(env *Env, path, typ string, opt csvio.OrientationOptions) (*orientInput, error) {
 	if path == "" {
 		return nil, errors.New("--in FILE is required")
 	}
-	var r io.Reader = env.Stdin
-	if path != "-" {
-		f, err := os.Open(path)
-		if err != nil {
-			return nil, err
-		}
-		defer f.Close()
-		r = f
+	r, closeIn, err := openInput(env, path)
+	if err != nil {
+		return nil, err
 	}
-	rows, problems, err := csvio.ReadOrientationsWith(r, path, opt)
+	defer closeIn()
+	rows, problems, err := csvio.ReadOrientations(r, path)
 	if err != nil {
 		return nil, err
 	}
