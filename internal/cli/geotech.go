@@ -101,35 +101,48 @@ type geoSets struct {
 	windows []dirstat.Window // the --set windows, nil for other set methods
 }
 
-// loadGeoInput reads path ("-" for standard input) with depth, alpha, rock
-// type and unoriented rows, and keeps the rows of type typ (all when
-// empty). Problems are also written to stderr.
-func loadGeoInput(env *Env, path, typ string) (*geoInput, error) {
+// readTypedRows reads path ("-" for standard input) with opt and returns
+// the rows of type typ (all when typ is empty) and the problems, which are
+// also written to stderr.
+func readTypedRows(env *Env, path, typ string, opt csvio.OrientationOptions) ([]csvio.OrientationRow, []*domain.Error, error) {
 	if path == "" {
-		return nil, errors.New("--in FILE is required")
+		return nil, nil, errors.New("--in FILE is required")
 	}
 	r, closeIn, err := openInput(env, path)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	defer closeIn()
-	rows, problems, err := csvio.ReadOrientationsWith(r, path, csvio.OrientationOptions{Geotech: true})
+	rows, problems, err := csvio.ReadOrientationsWith(r, path, opt)
 	if err != nil {
-		return nil, err
+		return nil, nil, err
 	}
 	for _, p := range problems {
 		fmt.Fprintf(env.Stderr, "corvane: %v (row skipped)\n", p)
 	}
-	in := &geoInput{file: path, problems: problems}
+	kept := rows[:0]
 	for _, row := range rows {
 		if typ == "" || strings.EqualFold(row.Type, typ) {
-			in.rows = append(in.rows, row)
+			kept = append(kept, row)
 		}
 	}
-	if len(in.rows) == 0 {
-		return nil, fmt.Errorf("%s: no usable rows", path)
+	if len(kept) == 0 {
+		if typ != "" {
+			return nil, nil, fmt.Errorf("%s: no usable rows of type %q", path, typ)
+		}
+		return nil, nil, fmt.Errorf("%s: no usable rows", path)
 	}
-	return in, nil
+	return kept, problems, nil
+}
+
+// loadGeoInput reads the rows of a geotechnical command: with depth,
+// alpha, rock type and unoriented rows.
+func loadGeoInput(env *Env, path, typ string) (*geoInput, error) {
+	rows, problems, err := readTypedRows(env, path, typ, csvio.OrientationOptions{Geotech: true})
+	if err != nil {
+		return nil, err
+	}
+	return &geoInput{file: path, rows: rows, problems: problems}, nil
 }
 
 // loadGeoSets reads the rows and forms sets on the planes' poles with
