@@ -290,3 +290,17 @@ func TestZonesMatchChecks(t *testing.T) {
 		}
 	}
 }
+
+// BenchmarkCount4000: every plane and every pair (7,998,000 intersections)
+// of MaxPairPlanes random planes.
+func BenchmarkCount4000(b *testing.B) {
+	rng := rand.New(rand.NewPCG(1, 2))
+	planes := make([]geom.Plane, MaxPairPlanes)
+	for i := range planes {
+		planes[i] = geom.Plane{Dip: 90 * rng.Float64(), DipDirection: 360 * rng.Float64()}
+	}
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		face.Count(planes)
+	}
+}
