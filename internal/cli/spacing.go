@@ -321,7 +321,10 @@ func spacingDomain(gs *geoSets, dom *structdomain.Domain, extents []spacing.Exte
 		js := jSpacingSet{Name: sname, OrientedMembers: len(vs)}
 		def := spacing.SetDef{Name: sname}
 		if len(vs) == 0 {
-			js.Note = "no oriented member in this domain"
+			js.Note = "no oriented member in this domain: not measured"
+			nan := fabric.Num(math.NaN())
+			js.K, js.FitAngle, js.P10, js.P10Normal, js.MeanSpacing, js.P32, js.Length = nan, nan, nan, nan, nan, nan, nan
+			js.Along, js.True = distJSON(spacing.Describe(nil), false), distJSON(spacing.Describe(nil), false)
 			jsets = append(jsets, js)
 			defs = append(defs, def)
 			continue
