@@ -2,14 +2,12 @@ package cli
 
 import (
 	"context"
-	"corvane/internal/fabric"
 	"errors"
 	"flag"
 	"fmt"
-	"math"
 
-	"corvane/internal/dirstat"
-	"corvane/internal/geom"
+	"corvane/internal/fabric"
+	"corvane/internal/geotech"
 )
 
 func init() {
@@ -43,46 +41,6 @@ enter set means and are counted per domain.
 Options:
 `
 
-type jDomSet struct {
-	Name   string       `json:"name"`
-	Count  int          `json:"count"`
-	Mean   *fabric.Mean `json:"mean,omitempty"`
-	K      fabric.Num   `json:"k"`
-	Cone95 fabric.Num   `json:"cone95"`
-	Spread fabric.Num   `json:"spread"`
-}
-
-type jDomain struct {
-	Name       string    `json:"name"`
-	Rows       int       `json:"rows"`
-	Planes     int       `json:"oriented_planes"`
-	Unoriented int       `json:"unoriented_excluded_from_means"`
-	Sets       []jDomSet `json:"sets"`
-}
-
-type jCommonMean struct {
-	Set     string     `json:"set"`
-	Domains []string   `json:"domains"`
-	N       int        `json:"n"`
-	F       fabric.Num `json:"F"`
-	DF1     int        `json:"df1"`
-	DF2     int        `json:"df2"`
-	P       fabric.Num `json:"p_value"`
-	Shared  int        `json:"measurements_in_several_domains,omitempty"`
-	Note    string     `json:"note,omitempty"`
-}
-
-type jDomainsReport struct {
-	Input       string             `json:"input"`
-	RowsSkipped []fabric.SkipCount `json:"rows_skipped"`
-	SetMethod   string             `json:"set_method"`
-	Domains     []jDomain          `json:"domains"`
-	Method      string             `json:"common_mean_method"`
-	Tests       []jCommonMean      `json:"common_mean_tests"`
-	Problems    []string           `json:"problems,omitempty"`
-	Caution     string             `json:"caution"`
-}
-
 func runDomains(_ context.Context, env *Env, args []string) int {
 	fs := flag.NewFlagSet("domains", flag.ContinueOnError)
 	fs.SetOutput(env.Stderr)
@@ -101,91 +59,17 @@ func runDomains(_ context.Context, env *Env, args []string) int {
 	if len(doms) < 1 {
 		return fail(errors.New("give at least one --domain (two or more for the common-mean test)"))
 	}
-	gs, err := loadGeoSets(env, &c, true)
+	gi, so, err := loadGeo(env, &c)
 	if err != nil {
 		return fail(err)
 	}
-	g := gs.group
-	rep := jDomainsReport{Input: gs.in.file, RowsSkipped: gs.in.skipped(), SetMethod: g.method, Method: dirstat.CommonMeanMethod, Caution: fabric.Caution}
-	for _, p := range gs.in.problems {
-		rep.Problems = append(rep.Problems, p.Error())
+	rep, err := geotech.Domains(gi.in, so, doms)
+	if err != nil {
+		return fail(err)
 	}
-	// members[set][domain] = poles
-	members := make([][][]geom.Vec3, len(g.setNames))
-	rowsOf := make([][][]int, len(g.setNames))
-	for j := range members {
-		members[j] = make([][]geom.Vec3, len(doms))
-		rowsOf[j] = make([][]int, len(doms))
-	}
-	for d := range doms {
-		dom := &doms[d]
-		jd := jDomain{Name: dom.Name}
-		for i, r := range gs.in.rows {
-			if !gs.inDomain(i, dom) {
-				continue
-			}
-			jd.Rows++
-			if r.Unoriented {
-				jd.Unoriented++
-			}
-		}
-		for k, ri := range g.rows {
-			if gs.inDomain(ri, dom) {
-				jd.Planes++
-				if s := g.assign[k]; s >= 0 {
-					members[s][d] = append(members[s][d], g.axes[k])
-					rowsOf[s][d] = append(rowsOf[s][d], ri)
-				}
-			}
-		}
-		for j, name := range g.setNames {
-			js := jDomSet{Name: name, Count: len(members[j][d])}
-			if f, err := dirstat.FisherMean(members[j][d], nil, true); err == nil {
-				pl, ml := geom.PlaneOf(f.Mean), geom.LineOf(f.Mean)
-				js.Mean = &fabric.Mean{Dip: numPtr(pl.Dip), DipDirection: numPtr(pl.DipDirection), PoleTrend: numPtr(ml.Trend), PolePlunge: numPtr(ml.Plunge)}
-				js.K, js.Cone95, js.Spread = fabric.Num(f.K), fabric.Num(f.Cone95), fabric.Num(f.Spread)
-			} else {
-				js.K, js.Cone95, js.Spread = fabric.Num(math.NaN()), fabric.Num(math.NaN()), fabric.Num(math.NaN())
-			}
-			jd.Sets = append(jd.Sets, js)
-		}
-		rep.Domains = append(rep.Domains, jd)
-	}
-	for j, name := range g.setNames {
-		t := jCommonMean{Set: name}
-		var samples [][]geom.Vec3
-		seen := map[int]int{}
-		for d := range doms {
-			if len(members[j][d]) >= 2 {
-				samples = append(samples, members[j][d])
-				t.Domains = append(t.Domains, doms[d].Name)
-				for _, ri := range rowsOf[j][d] {
-					seen[ri]++
-				}
-			}
-		}
-		for _, n := range seen {
-			if n > 1 {
-				t.Shared++
-			}
-		}
-		res, err := dirstat.CommonMeanTest(samples, true)
-		if err != nil {
-			t.Note = "needs the set in at least two domains with at least 2 poles each: " + err.Error()
-			t.F, t.P = fabric.Num(math.NaN()), fabric.Num(math.NaN())
-		} else {
-			t.N, t.F, t.DF1, t.DF2, t.P = res.N, fabric.Num(res.F), res.DF1, res.DF2, fabric.Num(res.P)
-		}
-		if t.Shared > 0 {
-			t.Note = "some measurements lie in several domains: the samples are not independent and the p-value is not valid"
-		}
-		rep.Tests = append(rep.Tests, t)
-	}
+	rep.Input, rep.TypeFilter, rep.Problems = gi.file, c.typ, gi.problems
 	if code := writeJSON(env, fail, c.out, rep); code != ExitOK {
 		return code
 	}
-	if len(gs.in.problems) > 0 {
-		return ExitRows
-	}
-	return ExitOK
+	return gi.exit()
 }

@@ -12,10 +12,11 @@ import (
 	"strings"
 
 	"corvane/internal/csvio"
-	"corvane/internal/dirstat"
 	"corvane/internal/domain"
 	"corvane/internal/fabric"
 	"corvane/internal/geom"
+	"corvane/internal/geotech"
+	"corvane/internal/netsvg"
 	"corvane/internal/structdomain"
 )
 
@@ -64,41 +65,89 @@ func (d *domainFlags) Set(s string) error {
 	return nil
 }
 
-// geoInput is the rows of a geotechnical command's input after --type
-// filtering, with depth, alpha, rock type and unoriented rows.
+// geoInput is a geotechnical command's input: the rows for the pipeline and
+// what the report says of the source.
 type geoInput struct {
 	file     string
-	rows     []csvio.OrientationRow
-	problems []*domain.Error
+	in       geotech.Input
+	problems []string
 }
 
-// planeGroup is the poles of the input's planes and their sets.
-type planeGroup struct {
-	axes     []geom.Vec3
-	rows     []int // index into geoInput.rows
-	assign   []int // set per pole, dirstat.Unassigned for none
-	setNames []string
-	method   string
-}
-
-// members returns the poles of set j.
-func (g *planeGroup) members(j int) []geom.Vec3 {
-	var vs []geom.Vec3
-	for k, a := range g.assign {
-		if a == j {
-			vs = append(vs, g.axes[k])
-		}
+// loadGeo reads the rows of a geotechnical command (with depth, alpha, rock
+// type and unoriented rows) and parses its set flags.
+func loadGeo(env *Env, c *orientFlags) (*geoInput, fabric.Sets, error) {
+	so, err := fabric.ParseSets(c.sets, "planes", c.windows, c.seed)
+	if err != nil {
+		return nil, so, cliOptionError(err)
 	}
-	return vs
+	rows, problems, err := readTypedRows(env, c.in, c.typ, csvio.OrientationOptions{Geotech: true})
+	if err != nil {
+		return nil, so, err
+	}
+	gi := &geoInput{file: c.in}
+	gi.in.Rejected = len(problems)
+	for _, p := range problems {
+		gi.problems = append(gi.problems, p.Error())
+	}
+	for _, r := range rows {
+		gi.in.Rows = append(gi.in.Rows, geotech.Row{HoleID: r.HoleID, Depth: r.Depth, Type: r.Type, RockType: r.RockType,
+			HasPlane: r.HasPlane, Plane: r.Plane, HasHole: r.HasHole, Hole: r.Hole, Alpha: r.Alpha, Unoriented: r.Unoriented,
+			NoAzimuth: r.NoAzimuth, Error: r.Error})
+	}
+	return gi, so, nil
 }
 
-// geoSets are the sets of a geotechnical command: the planes' group (poles,
-// set assignment by --sets/--set) over all rows.
-type geoSets struct {
-	in      *geoInput
-	group   *planeGroup
-	setOf   map[int]int      // row index -> set index (planes only)
-	windows []dirstat.Window // the --set windows, nil for other set methods
+// exit is the exit status after reading: 1 when rows were rejected.
+func (gi *geoInput) exit() int {
+	if len(gi.problems) > 0 {
+		return ExitRows
+	}
+	return ExitOK
+}
+
+// registerGeoFlags adds the input and set flags of the geotechnical commands.
+func registerGeoFlags(fs *flag.FlagSet, c *orientFlags) {
+	fs.StringVar(&c.in, "in", "", "input CSV (\"-\" for standard input), e.g. the output of corvane convert")
+	fs.StringVar(&c.out, "o", "", "output file (default standard output)")
+	fs.StringVar(&c.typ, "type", "", "use only rows whose type column equals this (case-insensitive)")
+	fs.StringVar(&c.sets, "sets", "", "auto:N for N sets by k-means on the poles, type for one set per type code")
+	fs.Var(&c.windows, "set", "a set window NAME:TREND/PLUNGE:CONE on the poles (repeatable)")
+	fs.Uint64Var(&c.seed, "seed", fabric.DefaultSeed, "seed for --sets auto:N")
+}
+
+// writeSVG writes net n to path.
+func writeSVG(path string, n netsvg.Net) error {
+	return writeOutput(path, func(w io.Writer) error { return netsvg.WriteNet(w, n) })
+}
+
+// writeJSON writes v as indented JSON to path (standard output when "").
+func writeJSON(env *Env, fail func(error) int, path string, v any) int {
+	err := writeOutputOr(env.Stdout, path, func(w io.Writer) error {
+		enc := json.NewEncoder(w)
+		enc.SetIndent("", "  ")
+		enc.SetEscapeHTML(false)
+		return enc.Encode(v)
+	})
+	if err != nil {
+		return fail(err)
+	}
+	return ExitOK
+}
+
+// parseFace parses DIP/DIPDIRECTION.
+func parseFace(s string) (geom.Plane, error) {
+	a, b, ok := strings.Cut(s, "/")
+	dip, e1 := strconv.ParseFloat(strings.TrimSpace(a), 64)
+	dd, e2 := strconv.ParseFloat(strings.TrimSpace(b), 64)
+	if !ok || e1 != nil || e2 != nil || !(dip > 0 && dip <= 90) || !(dd >= 0 && dd <= 360) {
+		return geom.Plane{}, fmt.Errorf("--face %q: want DIP/DIP_DIRECTION with 0 < dip <= 90 and dip direction 0..360", s)
+	}
+	return geom.Plane{Dip: dip, DipDirection: geom.NormAzimuth(dd)}, nil
+}
+
+// registerDomainFlags adds --domain.
+func registerDomainFlags(fs *flag.FlagSet, d *domainFlags) {
+	fs.Var(d, "domain", "a structural domain "+domainSyntax+" (repeatable; a hole without a range is the whole hole)")
 }
 
 // readTypedRows reads path ("-" for standard input) with opt and returns
@@ -133,139 +182,6 @@ func readTypedRows(env *Env, path, typ string, opt csvio.OrientationOptions) ([]
 		return nil, nil, fmt.Errorf("%s: no usable rows", path)
 	}
 	return kept, problems, nil
-}
-
-// loadGeoInput reads the rows of a geotechnical command: with depth,
-// alpha, rock type and unoriented rows.
-func loadGeoInput(env *Env, path, typ string) (*geoInput, error) {
-	rows, problems, err := readTypedRows(env, path, typ, csvio.OrientationOptions{Geotech: true})
-	if err != nil {
-		return nil, err
-	}
-	return &geoInput{file: path, rows: rows, problems: problems}, nil
-}
-
-// loadGeoSets reads the rows and forms sets on the planes' poles with
-// fabric.PlaneSets, the statistics' own grouping.
-func loadGeoSets(env *Env, c *orientFlags, needSets bool) (*geoSets, error) {
-	so, err := fabric.ParseSets(c.sets, "planes", c.windows, c.seed)
-	if err != nil {
-		return nil, cliOptionError(err)
-	}
-	if needSets && so.Auto == 0 && !so.ByType && len(so.Windows) == 0 {
-		return nil, errors.New("give sets with --sets auto:N, --sets type or --set NAME:TREND/PLUNGE:CONE")
-	}
-	in, err := loadGeoInput(env, c.in, c.typ)
-	if err != nil {
-		return nil, err
-	}
-	frows := make([]fabric.Row, len(in.rows))
-	for i, r := range in.rows {
-		frows[i] = fabric.Row{Type: r.Type, HasPlane: r.HasPlane, Plane: r.Plane}
-	}
-	assign, names, method, err := fabric.PlaneSets(frows, so)
-	if err != nil {
-		return nil, cliOptionError(err)
-	}
-	g := &planeGroup{setNames: names, method: method}
-	gs := &geoSets{in: in, group: g, setOf: map[int]int{}}
-	if len(so.Windows) > 0 {
-		gs.windows = so.Windows
-	}
-	for i, r := range in.rows {
-		if r.HasPlane {
-			g.axes = append(g.axes, r.Plane.Normal())
-			g.rows = append(g.rows, i)
-			g.assign = append(g.assign, assign[i])
-			gs.setOf[i] = assign[i]
-		}
-	}
-	if needSets && len(g.axes) == 0 {
-		return nil, fmt.Errorf("%s: no oriented planes to form sets from", in.file)
-	}
-	return gs, nil
-}
-
-// numPtr returns a pointer to v as a report number.
-func numPtr(v float64) *fabric.Num { n := fabric.Num(v); return &n }
-
-// writeJSON writes v as indented JSON to path (standard output when "").
-func writeJSON(env *Env, fail func(error) int, path string, v any) int {
-	err := writeOutputOr(env.Stdout, path, func(w io.Writer) error {
-		enc := json.NewEncoder(w)
-		enc.SetIndent("", "  ")
-		enc.SetEscapeHTML(false)
-		return enc.Encode(v)
-	})
-	if err != nil {
-		return fail(err)
-	}
-	return ExitOK
-}
-
-// setOfRow returns the set of row i (dirstat.Unassigned when none).
-func (gs *geoSets) setOfRow(i int) int {
-	if s, ok := gs.setOf[i]; ok {
-		return s
-	}
-	return dirstat.Unassigned
-}
-
-// inDomain reports whether row i belongs to dom (nil: every row).
-func (gs *geoSets) inDomain(i int, dom *structdomain.Domain) bool {
-	if dom == nil {
-		return true
-	}
-	r := gs.in.rows[i]
-	return !math.IsNaN(r.Depth) && dom.Contains(r.HoleID, r.Depth, r.RockType)
-}
-
-// fitAngle95 is the angle from a Fisher mean that holds about 95% of the
-// distribution, 140/sqrt(k) degrees (from P(theta < a) = 1 - exp(-k(1 - cos a))),
-// at most 90.
-func fitAngle95(k float64) float64 {
-	if !(k > 0) {
-		return 90
-	}
-	return math.Min(90, 140/math.Sqrt(k))
-}
-
-// parseFace parses DIP/DIPDIRECTION.
-func parseFace(s string) (geom.Plane, error) {
-	a, b, ok := strings.Cut(s, "/")
-	dip, e1 := strconv.ParseFloat(strings.TrimSpace(a), 64)
-	dd, e2 := strconv.ParseFloat(strings.TrimSpace(b), 64)
-	if !ok || e1 != nil || e2 != nil || !(dip > 0 && dip <= 90) || !(dd >= 0 && dd <= 360) {
-		return geom.Plane{}, fmt.Errorf("--face %q: want DIP/DIP_DIRECTION with 0 < dip <= 90 and dip direction 0..360", s)
-	}
-	return geom.Plane{Dip: dip, DipDirection: geom.NormAzimuth(dd)}, nil
-}
-
-// registerDomainFlags adds --domain.
-func registerDomainFlags(fs *flag.FlagSet, d *domainFlags) {
-	fs.Var(d, "domain", "a structural domain "+domainSyntax+" (repeatable; a hole without a range is the whole hole)")
-}
-
-// skipped counts the rows that carry neither a plane nor an unoriented
-// measurement, by the statistics' reasons (README, "Data rules").
-func (in *geoInput) skipped() []fabric.SkipCount {
-	n := map[string]int{}
-	for _, r := range in.rows {
-		switch {
-		case r.HasPlane || r.Unoriented:
-		case r.Error != "":
-			n[fabric.SkipNotOriented]++
-		case r.NoAzimuth:
-			n[fabric.SkipNoDipDirection]++
-		}
-	}
-	out := []fabric.SkipCount{}
-	for _, why := range []string{fabric.SkipNoDipDirection, fabric.SkipNotOriented} {
-		if n[why] > 0 {
-			out = append(out, fabric.SkipCount{Reason: why, Count: n[why]})
-		}
-	}
-	return out
 }
 
 // openInput opens path for reading, standard input for "-"; the function

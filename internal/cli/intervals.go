@@ -2,12 +2,11 @@ package cli
 
 import (
 	"context"
-	"corvane/internal/fabric"
 	"flag"
 	"fmt"
 
-	"corvane/internal/coreinterval"
 	"corvane/internal/csvio"
+	"corvane/internal/geotech"
 )
 
 func init() {
@@ -17,11 +16,6 @@ func init() {
 		run:     runIntervals,
 	})
 }
-
-// rockMassCaution goes with the interval and spacing reports.
-const rockMassCaution = "Recovery, RQD, frequency and spacing describe the core as logged; they depend on " +
-	"drilling, handling and logging practice. Where they feed rock-mass classification or excavation and " +
-	"slope design, base any design on local codes and the judgement of a licensed practitioner."
 
 const intervalsUsage = `Usage:
   corvane intervals --intervals I.csv [--collars C.csv] [--feet] [-o OUT.json]
@@ -50,53 +44,10 @@ Rules: solid <= recovered <= length, sound <= solid; intervals of a hole do not 
 with --collars every interval lies inside its hole (to <= the collar's depth). A file
 breaking a rule is reported with file, line and column and nothing is printed (exit 2).
 
-` + rockMassCaution + `
+` + geotech.RockMassCaution + `
 
 Options:
 `
-
-type jInterval struct {
-	Line       int         `json:"line,omitempty"`
-	From       *fabric.Num `json:"from,omitempty"`
-	To         *fabric.Num `json:"to,omitempty"`
-	Length     fabric.Num  `json:"length"`
-	TCR        fabric.Num  `json:"tcr"`
-	SCR        fabric.Num  `json:"scr"`
-	RQD        fabric.Num  `json:"rqd"`
-	RQDFrom    string      `json:"rqd_from,omitempty"`
-	FF         fabric.Num  `json:"fracture_frequency"`
-	Natural    *int        `json:"natural_breaks"`
-	Induced    *int        `json:"induced_breaks"`
-	Confidence string      `json:"confidence,omitempty"`
-}
-
-type jIntervalHole struct {
-	HoleID    string      `json:"hole_id"`
-	Intervals []jInterval `json:"intervals"`
-	Total     jInterval   `json:"total"`
-}
-
-type jIntervalReport struct {
-	Input      string          `json:"input"`
-	LengthUnit string          `json:"length_unit"`
-	MinPiece   fabric.Num      `json:"rqd_min_piece"`
-	Method     string          `json:"method"`
-	Holes      []jIntervalHole `json:"holes"`
-	All        jInterval       `json:"all"`
-	Caution    string          `json:"caution"`
-}
-
-func countPtr(n int) *int {
-	if n < 0 {
-		return nil
-	}
-	return &n
-}
-
-func intervalJSON(d coreinterval.Derived) jInterval {
-	return jInterval{Length: fabric.Num(d.Length), TCR: fabric.Num(d.TCR), SCR: fabric.Num(d.SCR), RQD: fabric.Num(d.RQD), RQDFrom: d.RQDFrom,
-		FF: fabric.Num(d.FF), Natural: countPtr(d.Natural), Induced: countPtr(d.Induced)}
-}
 
 // readIntervalsFile reads and checks an intervals file (and, when collars is
 // not "", that every interval lies inside its hole).
@@ -155,36 +106,11 @@ func runIntervals(_ context.Context, env *Env, args []string) int {
 		csvio.Report(env.Stderr, err)
 		return ExitUsage
 	}
-	minPiece, unit := coreinterval.MinPiece, "m"
-	if *feet {
-		minPiece, unit = coreinterval.MinPieceFeet, "ft"
-	}
-	rep := jIntervalReport{Input: *in, LengthUnit: unit, MinPiece: fabric.Num(minPiece),
-		Method: "TCR, SCR and RQD over the drilled length (to - from); RQD counts pieces >= 100 mm " +
-			"along the core axis between natural breaks (Deere 1964; Deere & Deere 1988); " +
-			"fracture frequency = natural breaks / drilled length",
-		Caution: rockMassCaution}
-	byHole := map[string]int{}
-	var all []coreinterval.Derived
-	var perHole [][]coreinterval.Derived
+	var ivs []geotech.IntervalRow
 	for _, r := range rows {
-		i, ok := byHole[r.HoleID]
-		if !ok {
-			i = len(rep.Holes)
-			byHole[r.HoleID] = i
-			rep.Holes = append(rep.Holes, jIntervalHole{HoleID: r.HoleID})
-			perHole = append(perHole, nil)
-		}
-		d := coreinterval.Derive(r.Interval, minPiece)
-		j := intervalJSON(d)
-		j.Line, j.From, j.To, j.Confidence = r.Line, numPtr(r.Interval.From), numPtr(r.Interval.To), r.Interval.Confidence
-		rep.Holes[i].Intervals = append(rep.Holes[i].Intervals, j)
-		perHole[i] = append(perHole[i], d)
-		all = append(all, d)
+		ivs = append(ivs, geotech.IntervalRow{Line: r.Line, HoleID: r.HoleID, Interval: r.Interval})
 	}
-	for i := range rep.Holes {
-		rep.Holes[i].Total = intervalJSON(coreinterval.Combine(perHole[i]))
-	}
-	rep.All = intervalJSON(coreinterval.Combine(all))
+	rep := geotech.Intervals(ivs, *feet)
+	rep.Input = *in
 	return writeJSON(env, fail, *out, rep)
 }

@@ -29,6 +29,9 @@ var pure = map[string]bool{
 	"corvane/internal/qa/qapage":    true,
 	"corvane/internal/coreinterval": true,
 	"corvane/internal/spacing":      true,
+	"corvane/internal/structdomain": true,
+	"corvane/internal/kinematic":    true,
+	"corvane/internal/geotech":      true,
 }
 
 // noServiceDeps lists packages that must stay free of HTTP and SQL.
