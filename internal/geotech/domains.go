@@ -46,17 +46,12 @@ type CommonMean struct {
 // DomainsReport is the report of [Domains]; Input, TypeFilter and Problems
 // are filled in by the door.
 type DomainsReport struct {
-	Input        string             `json:"input"`
-	TypeFilter   string             `json:"type_filter,omitempty"`
-	Rows         int                `json:"rows"`
-	RowsSkipped  []fabric.SkipCount `json:"rows_skipped"`
-	RowsRejected int                `json:"rows_rejected"`
-	Problems     []string           `json:"problems,omitempty"`
-	SetMethod    string             `json:"set_method"`
-	Domains      []DomainSummary    `json:"domains"`
-	Method       string             `json:"common_mean_method"`
-	Tests        []CommonMean       `json:"common_mean_tests"`
-	Caution      string             `json:"caution"`
+	Source
+	SetMethod string          `json:"set_method"`
+	Domains   []DomainSummary `json:"domains"`
+	Method    string          `json:"common_mean_method"`
+	Tests     []CommonMean    `json:"common_mean_tests"`
+	Caution   string          `json:"caution"`
 }
 
 // Domains reports each set in each domain and tests, per set, whether the
@@ -72,7 +67,7 @@ func Domains(in Input, s fabric.Sets, doms []structdomain.Domain) (DomainsReport
 	if err != nil {
 		return DomainsReport{}, err
 	}
-	rep := DomainsReport{Rows: len(in.Rows), RowsSkipped: in.Skipped(), RowsRejected: in.Rejected, SetMethod: g.method,
+	rep := DomainsReport{Source: in.source(), SetMethod: g.method,
 		Method: dirstat.CommonMeanMethod, Caution: fabric.Caution}
 	members := make([][][]geom.Vec3, len(g.names)) // [set][domain]
 	rowsOf := make([][][]int, len(g.names))

@@ -66,6 +66,22 @@ type Input struct {
 	Rejected int
 }
 
+// Source describes a report's input. The pipeline fills the counts; the
+// door fills Input, TypeFilter and Problems (the rows it could not read,
+// located).
+type Source struct {
+	Input        string             `json:"input"`
+	TypeFilter   string             `json:"type_filter,omitempty"`
+	Rows         int                `json:"rows"`
+	RowsSkipped  []fabric.SkipCount `json:"rows_skipped"`
+	RowsRejected int                `json:"rows_rejected"`
+	Problems     []string           `json:"problems,omitempty"`
+}
+
+func (in Input) source() Source {
+	return Source{Rows: len(in.Rows), RowsSkipped: in.Skipped(), RowsRejected: in.Rejected}
+}
+
 // Skipped counts the rows that carry neither a plane nor an unoriented
 // measurement, by the statistics' reasons.
 func (in Input) Skipped() []fabric.SkipCount {

@@ -65,23 +65,18 @@ type SlopePair struct {
 // SlopeReport is the report of [Slope]. Input, TypeFilter, Problems and SVG
 // are filled in by the door.
 type SlopeReport struct {
-	Input        string             `json:"input"`
-	TypeFilter   string             `json:"type_filter,omitempty"`
-	Rows         int                `json:"rows"`
-	RowsSkipped  []fabric.SkipCount `json:"rows_skipped"`
-	RowsRejected int                `json:"rows_rejected"`
-	Problems     []string           `json:"problems,omitempty"`
-	Face         fabric.Mean        `json:"face"`
-	Friction     fabric.Num         `json:"friction_angle"`
-	Lateral      fabric.Num         `json:"lateral_limit"`
-	Methods      []string           `json:"methods"`
-	Unoriented   int                `json:"unoriented_left_out"`
-	All          SlopeCounts        `json:"measurements"`
-	SetMethod    string             `json:"set_method,omitempty"`
-	Sets         []SlopeSet         `json:"sets,omitempty"`
-	Pairs        []SlopePair        `json:"set_pairs,omitempty"`
-	SVG          []string           `json:"svg,omitempty"`
-	Caution      string             `json:"caution"`
+	Source
+	Face       fabric.Mean `json:"face"`
+	Friction   fabric.Num  `json:"friction_angle"`
+	Lateral    fabric.Num  `json:"lateral_limit"`
+	Methods    []string    `json:"methods"`
+	Unoriented int         `json:"unoriented_left_out"`
+	All        SlopeCounts `json:"measurements"`
+	SetMethod  string      `json:"set_method,omitempty"`
+	Sets       []SlopeSet  `json:"sets,omitempty"`
+	Pairs      []SlopePair `json:"set_pairs,omitempty"`
+	SVG        []string    `json:"svg,omitempty"`
+	Caution    string      `json:"caution"`
 }
 
 var topplingNames = map[int]string{kinematic.NotToppling: "none", kinematic.DirectPrimary: "direct", kinematic.DirectOblique: "oblique"}
@@ -131,7 +126,7 @@ func slope(in Input, p kinematic.Params, s fabric.Sets) (SlopeReport, *slopeWork
 			unoriented++
 		}
 	}
-	rep := SlopeReport{Rows: len(in.Rows), RowsSkipped: in.Skipped(), RowsRejected: in.Rejected,
+	rep := SlopeReport{Source: in.source(),
 		Face:     fabric.Mean{Dip: numPtr(p.Face.Dip), DipDirection: numPtr(p.Face.DipDirection)},
 		Friction: fabric.Num(p.Friction), Lateral: fabric.Num(p.Lateral), Methods: SlopeMethods, Unoriented: unoriented,
 		All: countsOf(p.Count(w.planes)), SetMethod: g.method, Caution: kinematic.Caution}

@@ -108,21 +108,16 @@ type SpacingDomain struct {
 // SpacingReport is the report of [Spacing]. Input, Intervals, TypeFilter
 // and Problems describe the source and are filled in by the door.
 type SpacingReport struct {
-	Input          string             `json:"input"`
-	Intervals      string             `json:"intervals,omitempty"`
-	TypeFilter     string             `json:"type_filter,omitempty"`
-	Rows           int                `json:"rows"`
-	RowsSkipped    []fabric.SkipCount `json:"rows_skipped"`
-	RowsRejected   int                `json:"rows_rejected"`
-	RowsNoDepth    int                `json:"rows_without_depth_or_hole_direction"`
-	Problems       []string           `json:"problems,omitempty"`
-	SetMethod      string             `json:"set_method"`
-	Cap            fabric.Num         `json:"terzaghi_cap"`
-	Correction     string             `json:"correction"`
-	P32Method      string             `json:"p32_method"`
-	P32Assumptions string             `json:"p32_assumptions"`
-	Domains        []SpacingDomain    `json:"domains"`
-	Caution        string             `json:"caution"`
+	Source
+	Intervals      string          `json:"intervals,omitempty"`
+	RowsNoDepth    int             `json:"rows_without_depth_or_hole_direction"`
+	SetMethod      string          `json:"set_method"`
+	Cap            fabric.Num      `json:"terzaghi_cap"`
+	Correction     string          `json:"correction"`
+	P32Method      string          `json:"p32_method"`
+	P32Assumptions string          `json:"p32_assumptions"`
+	Domains        []SpacingDomain `json:"domains"`
+	Caution        string          `json:"caution"`
 }
 
 // SpacingOptions are the options of [Spacing].
@@ -154,7 +149,7 @@ func Spacing(in Input, o SpacingOptions) (SpacingReport, error) {
 	if err != nil {
 		return SpacingReport{}, err
 	}
-	rep := SpacingReport{Rows: len(in.Rows), RowsSkipped: in.Skipped(), RowsRejected: in.Rejected, SetMethod: g.method,
+	rep := SpacingReport{Source: in.source(), SetMethod: g.method,
 		Cap: fabric.Num(o.Cap), Correction: Correction, P32Method: spacing.P32Method, P32Assumptions: spacing.P32Assumptions,
 		Caution: RockMassCaution}
 	domains := []*structdomain.Domain{nil}
