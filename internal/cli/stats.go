@@ -7,7 +7,6 @@ import (
 	"flag"
 	"fmt"
 	"io"
-	"os"
 	"strings"
 
 	"corvane/internal/csvio"
@@ -103,32 +102,14 @@ type orientInput struct {
 // loadOrientations reads path ("-" for standard input) and keeps the rows of
 // type typ (all when typ is empty). Problems are also written to stderr.
 func loadOrientations(env *Env, path, typ string) (*orientInput, error) {
-	if path == "" {
-		return nil, errors.New("--in FILE is required")
-	}
-	var r io.Reader = env.Stdin
-	if path != "-" {
-		f, err := os.Open(path)
-		if err != nil {
-			return nil, err
-		}
-		defer f.Close()
-		r = f
-	}
-	rows, problems, err := csvio.ReadOrientations(r, path)
+	rows, problems, err := readTypedRows(env, path, typ, csvio.OrientationOptions{})
 	if err != nil {
 		return nil, err
-	}
-	for _, p := range problems {
-		fmt.Fprintf(env.Stderr, "corvane: %v (row skipped)\n", p)
 	}
 	oi := &orientInput{file: path, problems: problems}
 	oi.in.Rejected = len(problems)
 	refs := map[string]bool{}
 	for _, row := range rows {
-		if typ != "" && !strings.EqualFold(row.Type, typ) {
-			continue
-		}
 		oi.in.Rows = append(oi.in.Rows, fabric.Row{Type: row.Type, HasPlane: row.HasPlane, Plane: row.Plane,
 			HasLine: row.HasLine, Line: row.LineDir, HasHole: row.HasHole, Hole: row.Hole,
 			NoAzimuth: row.NoAzimuth, Error: row.Error})
@@ -138,12 +119,6 @@ func loadOrientations(env *Env, path, typ string) (*orientInput, error) {
 		for ref := range refs {
 			oi.azimuthRef = ref
 		}
-	}
-	if len(oi.in.Rows) == 0 {
-		if typ != "" {
-			return nil, fmt.Errorf("%s: no usable rows of type %q", path, typ)
-		}
-		return nil, fmt.Errorf("%s: no usable rows", path)
 	}
 	return oi, nil
 }

@@ -15,6 +15,7 @@ import (
 	"strings"
 	"testing"
 
+	"corvane/internal/dirstat"
 	"corvane/internal/geom"
 )
 
@@ -73,20 +74,9 @@ func demoOrientationsCSV(seed uint64) string {
 	return b.String()
 }
 
-// fisherDraw draws one unit vector from a Fisher distribution about m
-// (inverse-CDF for cos theta; Fisher, Lewis & Embleton 1987, from memory).
+// fisherDraw draws one unit vector from a Fisher distribution about m.
 func fisherDraw(rng *rand.Rand, m geom.Vec3, k float64) geom.Vec3 {
-	a := geom.Vec3{X: 1}
-	if math.Abs(m.X) > 0.9 {
-		a = geom.Vec3{Y: 1}
-	}
-	u := m.Cross(a).Unit()
-	v := m.Cross(u)
-	x := rng.Float64()
-	c := 1 + math.Log(x+(1-x)*math.Exp(-2*k))/k
-	s := math.Sqrt(math.Max(0, 1-c*c))
-	phi := 2 * math.Pi * rng.Float64()
-	return m.Scale(c).Add(u.Scale(s * math.Cos(phi))).Add(v.Scale(s * math.Sin(phi)))
+	return dirstat.FisherRandom(rng, m, k)
 }
 
 // TestWriteDemoOrientations writes the demo CSV to the file named by

@@ -37,6 +37,24 @@ type OrientationRow struct {
 	Error string
 	// AzimuthRef is the azimuth_reference column ("" when absent).
 	AzimuthRef string
+
+	// Read only with [OrientationOptions].Geotech:
+	Depth    float64 // depth column, NaN when absent or empty
+	Alpha    float64 // alpha column, NaN when absent or empty
+	RockType string  // rock_type column, "" when absent
+	// Unoriented is true for a row with alpha and a hole direction but no
+	// plane (no beta, so no dip and dip direction; or a vertical hole, where
+	// convert writes a dip without a dip direction): an unoriented
+	// measurement. Such rows are kept only with Geotech.
+	Unoriented bool
+}
+
+// OrientationOptions changes what [ReadOrientationsWith] reads.
+type OrientationOptions struct {
+	// Geotech also reads depth, alpha and rock_type, and keeps unoriented
+	// rows (alpha and hole direction without a plane) instead of reporting
+	// them as having no plane and no line.
+	Geotech bool
 }
 
 // Orientation columns, matched case-insensitively after trimming spaces.
@@ -51,6 +69,7 @@ const (
 	colHoleID       = "hole_id"
 	colError        = "error"
 	colAzimuthRef   = "azimuth_reference"
+	colRockType     = "rock_type"
 )
 
 // ReadOrientations reads planes and lines from a CSV file whose header has
@@ -71,6 +90,13 @@ const (
 // and column; the other rows are still returned. err is non-nil only when the
 // file as a whole cannot be read: no header, or neither column pair present.
 func ReadOrientations(r io.Reader, name string) (rows []OrientationRow, problems []*domain.Error, err error) {
+	return ReadOrientationsWith(r, name, OrientationOptions{})
+}
+
+// ReadOrientationsWith is [ReadOrientations] with options. With Geotech, a
+// header with alpha, hole_azimuth and hole_dip suffices (a file of
+// unoriented measurements only), depth must be >= 0 and alpha 0..90.
+func ReadOrientationsWith(r io.Reader, name string, opt OrientationOptions) (rows []OrientationRow, problems []*domain.Error, err error) {
 	cr := csv.NewReader(r)
 	cr.Comment = '#'
 	cr.FieldsPerRecord = -1
@@ -94,11 +120,12 @@ func ReadOrientations(r io.Reader, name string) (rows []OrientationRow, problems
 	has := func(c string) bool { _, ok := col[c]; return ok }
 	planes := has(colDip) && has(colDipDirection)
 	lines := has(colLineTrend) && has(colLinePlunge)
-	if !planes && !lines {
+	hole := has(colHoleAzimuth) && has(colHoleDip)
+	unoriented := opt.Geotech && hole && has(ColAlpha)
+	if !planes && !lines && !unoriented {
 		return nil, nil, domain.Errorf(domain.Invalid,
 			"header has neither dip and dip_direction nor line_trend and line_plunge columns").At(domain.Location{File: name, Line: headerLine})
 	}
-	hole := has(colHoleAzimuth) && has(colHoleDip)
 
 	for {
 		rec, rerr := cr.Read()
@@ -114,7 +141,7 @@ func ReadOrientations(r io.Reader, name string) (rows []OrientationRow, problems
 			return rows, problems, domain.Errorf(domain.Invalid, "reading: %w", rerr).At(domain.Location{File: name})
 		}
 		line, _ := cr.FieldPos(0)
-		row := OrientationRow{Line: line}
+		row := OrientationRow{Line: line, Depth: math.NaN(), Alpha: math.NaN()}
 		loc := func(c string) domain.Location { return domain.Location{File: name, Line: line, Column: c} }
 		cell := func(c string) string {
 			i, ok := col[c]
@@ -186,7 +213,27 @@ func ReadOrientations(r io.Reader, name string) (rows []OrientationRow, problems
 			}
 		}
 		row.Error = cell(colError)
-		if bad == nil && !row.HasPlane && !row.HasLine && !row.NoAzimuth && row.Error == "" {
+		if opt.Geotech {
+			if v, ok := num(ColDepth, -math.MaxFloat64, math.MaxFloat64); ok {
+				if v < 0 && bad == nil {
+					bad = domain.Errorf(domain.Invalid, "depth %v is negative", v).At(loc(ColDepth))
+				}
+				row.Depth = v
+			}
+			if v, ok := num(ColAlpha, 0, 90); ok {
+				row.Alpha = v
+			}
+			row.RockType = cell(colRockType)
+			if bad == nil && !row.HasPlane && !math.IsNaN(row.Alpha) {
+				switch {
+				case row.HasHole:
+					row.Unoriented = true
+				case row.Error == "":
+					bad = domain.Errorf(domain.Invalid, "an unoriented row (alpha without dip and dip_direction) needs hole_azimuth and hole_dip").At(domain.Location{File: name, Line: line})
+				}
+			}
+		}
+		if bad == nil && !row.HasPlane && !row.HasLine && !row.NoAzimuth && row.Error == "" && !row.Unoriented {
 			bad = domain.Errorf(domain.Invalid, "no plane and no line on this row").At(domain.Location{File: name, Line: line})
 		}
 		if bad != nil {

@@ -97,3 +97,40 @@ func FuzzReadOrientations(f *testing.F) {
 		}
 	})
 }
+
+func TestReadOrientationsGeotech(t *testing.T) {
+	in := "hole_id,depth,alpha,beta,rock_type,dip,dip_direction,hole_azimuth,hole_dip\n" +
+		"A,10.5,40,120,granite,30,120,45,-60\n" + // 2 oriented
+		"A,11.0,35,,granite,,,45,-60\n" + // 3 unoriented
+		"A,12.0,35,,,,,,\n" + // 4 unoriented without a hole direction
+		"A,-1,35,,,,,45,-60\n" + // 5 negative depth
+		"A,13,95,,,,,45,-60\n" // 6 alpha out of range
+	rows, problems, err := ReadOrientationsWith(strings.NewReader(in), "g.csv", OrientationOptions{Geotech: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rows) != 2 || rows[0].Depth != 10.5 || rows[0].Alpha != 40 || rows[0].RockType != "granite" || rows[0].Unoriented {
+		t.Fatalf("rows %+v", rows)
+	}
+	if r := rows[1]; !r.Unoriented || r.HasPlane || !r.HasHole || r.Alpha != 35 || r.Line != 3 {
+		t.Errorf("unoriented row %+v", r)
+	}
+	want := []string{
+		`g.csv:line 4: an unoriented row (alpha without dip and dip_direction) needs hole_azimuth and hole_dip`,
+		`g.csv:line 5, column "depth": depth -1 is negative`,
+		`g.csv:line 6, column "alpha": alpha 95 is outside [0, 90]`,
+	}
+	if len(problems) != len(want) {
+		t.Fatalf("problems %v", problems)
+	}
+	for i, w := range want {
+		if problems[i].Error() != w {
+			t.Errorf("problem %d: %q, want %q", i, problems[i].Error(), w)
+		}
+	}
+	// Without the option the unoriented row is a problem, as before.
+	_, problems, _ = ReadOrientations(strings.NewReader(in), "g.csv")
+	if len(problems) != 4 {
+		t.Errorf("default reader: %v", problems)
+	}
+}

@@ -110,25 +110,12 @@ func TestConeExactLimits(t *testing.T) {
 	}
 }
 
-// fisherSample draws n unit vectors from a Fisher distribution with mean m and
-// concentration k (inverse-CDF method for cos theta, Fisher, Lewis & Embleton
-// 1987, Statistical Analysis of Spherical Data, from memory).
+// fisherSample draws n unit vectors from a Fisher distribution with mean m
+// and concentration k (see FisherRandom).
 func fisherSample(rng *rand.Rand, m geom.Vec3, k float64, n int) []geom.Vec3 {
-	m = m.Unit()
-	// orthonormal frame around m
-	a := geom.Vec3{X: 1}
-	if math.Abs(m.X) > 0.9 {
-		a = geom.Vec3{Y: 1}
-	}
-	u := m.Cross(a).Unit()
-	v := m.Cross(u)
 	out := make([]geom.Vec3, n)
 	for i := range out {
-		x := rng.Float64()
-		c := 1 + math.Log(x+(1-x)*math.Exp(-2*k))/k
-		s := math.Sqrt(math.Max(0, 1-c*c))
-		phi := 2 * math.Pi * rng.Float64()
-		out[i] = m.Scale(c).Add(u.Scale(s * math.Cos(phi))).Add(v.Scale(s * math.Sin(phi)))
+		out[i] = FisherRandom(rng, m, k)
 	}
 	return out
 }

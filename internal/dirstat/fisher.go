@@ -1,7 +1,8 @@
 // Package dirstat summarises sets of directions and axes on the sphere: Fisher
 // (1953) statistics with the exact cone of confidence, the orientation tensor
 // and its fabric shape measures, the assignment of measurements to sets (by
-// user windows or by clustering) and Terzaghi (1965) sampling-bias weights.
+// user windows or by clustering), Terzaghi (1965) sampling-bias weights and
+// the test for a common mean direction of several samples.
 //
 // Vectors are geom.Vec3 in the project frame (x = East, y = North, z = Up).
 // Angles are in degrees. Poles of planes and lines measured on core are axes:

@@ -56,6 +56,34 @@ type SetMark struct {
 	Lines bool // a set of lines rather than poles
 }
 
+// Zone is a shaded region of the net, such as the critical zone of a
+// kinematic check: a closed outline of directions (folded to the lower
+// hemisphere). Tone picks the shading, 0 for a primary zone, 1 for a
+// secondary one, 2 for a third kind; each tone has its own colour and hatch
+// direction so that overlapping zones stay readable in greyscale.
+type Zone struct {
+	Label   string
+	Outline []geom.Vec3
+	Tone    int
+}
+
+// zoneTones are the fills of the zone tones: colour, hatch angle.
+var zoneTones = []struct {
+	colour string
+	angle  int
+}{{"#D55E00", 45}, {"#E69F00", -45}, {"#56B4E9", 0}}
+
+// CircleMark is a small circle: the cone of half-angle Half degrees about
+// Axis (both ends), e.g. the possible poles of an unoriented measurement
+// about its hole axis, or a friction circle. Set colours it (-1 for grey);
+// Dashed draws it dashed.
+type CircleMark struct {
+	Axis   geom.Vec3
+	Half   float64
+	Set    int
+	Dashed bool
+}
+
 // Net is everything one net sheet shows.
 type Net struct {
 	Projection projection.Kind
@@ -65,9 +93,16 @@ type Net struct {
 	Planes     []PlaneMark
 	Lines      []Mark
 	Sets       []SetMark
-	Density    *Contours // nil for none
-	Notes      []string  // further lines for the side panel (counts, weighting)
-	Caution    string    // printed at the foot of the sheet
+	Density    *Contours    // nil for none
+	Zones      []Zone       // shaded regions, drawn under everything else
+	Circles    []CircleMark // small circles (unoriented measurements, friction circles)
+	// CirclesNote describes the circles in the side panel, "" for none.
+	CirclesNote string
+	// Face, when set, is a slope or excavation face drawn as a heavy great
+	// circle with a key entry.
+	Face    *geom.Plane
+	Notes   []string // further lines for the side panel (counts, weighting)
+	Caution string   // printed at the foot of the sheet
 }
 
 // sheet geometry in SVG user units (1/96 inch)
@@ -209,6 +244,8 @@ func WriteNet(w io.Writer, n Net) error {
 		s.printf("</g>\n")
 	}
 
+	s.zones(n)
+
 	// Primitive circle, centre cross, tick ring and north mark.
 	s.printf(`<circle cx="%.2f" cy="%.2f" r="%.2f" fill="none" stroke="#000" stroke-width="1.3"/>`+"\n", netCX, netCY, netR)
 	s.printf(`<path d="M%.2f %.2fh12M%.2f %.2fv12" stroke="#000" stroke-width="0.8"/>`+"\n", netCX-6, netCY, netCX, netCY-6)
@@ -223,6 +260,28 @@ func WriteNet(w io.Writer, n Net) error {
 				col = "#8a8a8a"
 			}
 			s.printf(`<path d="%s" stroke="%s"/>`+"\n", pathOf(n.Projection.GreatCircle(pm.Plane, 90), false), col)
+		}
+		s.printf("</g>\n")
+	}
+
+	if n.Face != nil {
+		d := pathOf(n.Projection.GreatCircle(*n.Face, 180), false)
+		s.printf(`<path id="face" d="%s" fill="none" stroke="#000" stroke-width="2.4"/>`+"\n", d)
+	}
+
+	// Small circles.
+	if len(n.Circles) > 0 {
+		s.printf(`<g id="circles" fill="none" stroke-width="0.8">` + "\n")
+		for _, c := range n.Circles {
+			col, _ := setStyle(c.Set)
+			dash := ""
+			if c.Dashed {
+				dash = ` stroke-dasharray="4 3"`
+			}
+			parts, closed := n.Projection.SmallCircle(c.Axis, c.Half, 120)
+			for _, p := range parts {
+				s.printf(`<path d="%s" stroke="%s"%s/>`+"\n", pathOf(p, closed), col, dash)
+			}
 		}
 		s.printf("</g>\n")
 	}
@@ -287,6 +346,35 @@ func WriteNet(w io.Writer, n Net) error {
 		return s.err
 	}
 	return s.w.Flush()
+}
+
+// zones writes the hatch patterns and the shaded zones, clipped to the
+// primitive circle.
+func (s *svgw) zones(n Net) {
+	if len(n.Zones) == 0 {
+		return
+	}
+	s.printf("<defs>\n")
+	for i, t := range zoneTones {
+		s.printf(`<pattern id="zone%d" patternUnits="userSpaceOnUse" width="7" height="7" patternTransform="rotate(%d)">`+
+			`<rect width="7" height="7" fill="%s" fill-opacity="0.16"/><path d="M0 0v7" stroke="%s" stroke-width="1.1" stroke-opacity="0.7"/></pattern>`+"\n",
+			i, t.angle, t.colour, t.colour)
+	}
+	s.printf("</defs>\n")
+	s.printf(`<g id="zones" clip-path="url(#primitive)">` + "\n")
+	for _, z := range n.Zones {
+		if len(z.Outline) < 3 {
+			continue
+		}
+		pts := make([]projection.Point, len(z.Outline))
+		for i, v := range z.Outline {
+			pts[i] = n.Projection.Project(v)
+		}
+		t := z.Tone % len(zoneTones)
+		s.printf(`<path d="%s" fill="url(#zone%d)" stroke="%s" stroke-width="1" stroke-linejoin="round"><title>%s</title></path>`+"\n",
+			pathOf(pts, true), t, zoneTones[t].colour, esc(z.Label))
+	}
+	s.printf("</g>\n")
 }
 
 // azimuthRing draws the azimuth ticks round the outer circle (every 10 deg,
@@ -356,6 +444,30 @@ func (s *svgw) panel(n Net) {
 	for _, note := range n.Notes {
 		line(11, "", note)
 	}
+	if n.Face != nil {
+		s.printf(`<path d="M%.1f %.1fh12" stroke="#000" stroke-width="2.4"/>`+"\n", panelX, y-4)
+		s.printf(`<text x="%.1f" y="%.1f" font-size="11">face %02.0f/%03.0f (dip/dip direction)</text>`+"\n", panelX+16, y, n.Face.Dip, n.Face.DipDirection)
+		y += 16
+	}
+	if n.CirclesNote != "" {
+		s.printf(`<path d="M%.1f %.1fh12" stroke="#6b6b6b" stroke-dasharray="4 3"/>`+"\n", panelX, y-4)
+		s.printf(`<text x="%.1f" y="%.1f" font-size="11">%s</text>`+"\n", panelX+16, y, esc(n.CirclesNote))
+		y += 16
+	}
+	if len(n.Zones) > 0 {
+		y += 4
+		seen := map[string]bool{}
+		for _, z := range n.Zones {
+			if seen[z.Label] {
+				continue
+			}
+			seen[z.Label] = true
+			s.printf(`<rect x="%.1f" y="%.1f" width="22" height="13" fill="url(#zone%d)" stroke="%s" stroke-width="0.8"/>`+"\n",
+				panelX, y-11, z.Tone%len(zoneTones), zoneTones[z.Tone%len(zoneTones)].colour)
+			s.printf(`<text x="%.1f" y="%.1f" font-size="11">%s</text>`+"\n", panelX+30, y, esc(z.Label))
+			y += 17
+		}
+	}
 	// symbol key
 	if len(n.Poles) > 0 || len(n.Lines) > 0 {
 		y += 4
@@ -423,12 +535,11 @@ func (s *svgw) panel(n Net) {
 
 // wrapped writes text broken into lines of at most width characters.
 func (s *svgw) wrapped(x, y float64, width int, size float64, text string) {
-	words := strings.Fields(text)
+	var lines []string
 	var cur string
-	for _, w := range words {
+	for _, w := range strings.Fields(text) {
 		if cur != "" && len(cur)+1+len(w) > width {
-			s.printf(`<text x="%.1f" y="%.1f" font-size="%.1f" fill="#333" font-style="italic">%s</text>`+"\n", x, y, size, esc(cur))
-			y += size + 4
+			lines = append(lines, cur)
 			cur = w
 			continue
 		}
@@ -438,7 +549,15 @@ func (s *svgw) wrapped(x, y float64, width int, size float64, text string) {
 		cur += w
 	}
 	if cur != "" {
-		s.printf(`<text x="%.1f" y="%.1f" font-size="%.1f" fill="#333" font-style="italic">%s</text>`+"\n", x, y, size, esc(cur))
+		lines = append(lines, cur)
+	}
+	// Move a long text up so that its last line stays on the sheet.
+	if last := y + float64(len(lines)-1)*(size+4); last > sheetH-8 {
+		y -= last - (sheetH - 8)
+	}
+	for _, l := range lines {
+		s.printf(`<text x="%.1f" y="%.1f" font-size="%.1f" fill="#333" font-style="italic">%s</text>`+"\n", x, y, size, esc(l))
+		y += size + 4
 	}
 }
 

@@ -252,3 +252,42 @@ func TestRose(t *testing.T) {
 		t.Error("bin width 7: want error")
 	}
 }
+
+// TestZonesAndCircles: shaded zones are drawn as closed hatched paths under
+// the poles with a legend entry per label, and small circles as paths.
+func TestZonesAndCircles(t *testing.T) {
+	n := Net{
+		Projection: projection.EqualArea,
+		Title:      "zones",
+		Poles:      []Mark{{Axis: geom.FromTrendPlunge(0, 40), Set: -1}},
+		Zones: []Zone{
+			{Label: "planar sliding", Outline: []geom.Vec3{geom.FromTrendPlunge(350, 30), geom.FromTrendPlunge(10, 30), geom.FromTrendPlunge(10, 60), geom.FromTrendPlunge(350, 60)}},
+			{Label: "oblique", Tone: 1, Outline: []geom.Vec3{{Z: -1}, geom.FromTrendPlunge(100, 0), geom.FromTrendPlunge(120, 0)}},
+			{Label: "oblique", Tone: 1, Outline: []geom.Vec3{{Z: -1}, geom.FromTrendPlunge(200, 0), geom.FromTrendPlunge(220, 0)}},
+		},
+		Circles:     []CircleMark{{Axis: geom.HoleDirection(30, -60), Half: 40, Set: -1, Dashed: true}},
+		CirclesNote: "possible poles of 1 unoriented measurement",
+		Face:        &geom.Plane{Dip: 60, DipDirection: 180},
+	}
+	var b bytes.Buffer
+	if err := WriteNet(&b, n); err != nil {
+		t.Fatal(err)
+	}
+	c := wellFormed(t, b.Bytes())
+	s := b.String()
+	if c["pattern"] != len(zoneTones) {
+		t.Errorf("%d patterns", c["pattern"])
+	}
+	if strings.Count(s, `fill="url(#zone`) != 3+2 { // three zones, two legend swatches
+		t.Errorf("zone fills: %d", strings.Count(s, `fill="url(#zone`))
+	}
+	if strings.Index(s, `id="zones"`) > strings.Index(s, `id="poles"`) {
+		t.Error("zones must be drawn under the poles")
+	}
+	if !strings.Contains(s, `id="face"`) || !strings.Contains(s, "face 60/180") {
+		t.Error("face or its key missing")
+	}
+	if !strings.Contains(s, `id="circles"`) || !strings.Contains(s, "possible poles of 1 unoriented measurement") {
+		t.Error("circle or its note missing")
+	}
+}
