@@ -32,6 +32,13 @@ var pure = map[string]bool{
 	"corvane/internal/structdomain": true,
 	"corvane/internal/kinematic":    true,
 	"corvane/internal/geotech":      true,
+	"corvane/internal/palette":      true,
+	// Transfer formats: neutral inputs and their writers/readers.
+	"corvane/internal/exchange":              true,
+	"corvane/internal/exchange/exchangetest": true,
+	"corvane/internal/exchange/gltf":         true,
+	"corvane/internal/exchange/geojson":      true,
+	"corvane/internal/exchange/ags4":         true,
 }
 
 // noServiceDeps lists packages that must stay free of HTTP and SQL.
