@@ -85,10 +85,11 @@ func OutputColumns(thickness bool) []string {
 }
 
 // Decimals written in the output: angles to 0.01 degree, positions and
-// thicknesses to 0.001 of the length unit, corrections to 0.001 degree.
+// thicknesses to 0.001 of the length unit (csvio's, shared with the other
+// CSV outputs), corrections to 0.001 degree.
 const (
-	angleDecimals      = 2
-	lengthDecimals     = 3
+	angleDecimals      = csvio.AngleDecimals
+	lengthDecimals     = csvio.LengthDecimals
 	correctionDecimals = 3
 )
 

@@ -60,12 +60,12 @@ type OrientationOptions struct {
 // Orientation columns, matched case-insensitively after trimming spaces.
 const (
 	colDip          = "dip"
-	colDipDirection = "dip_direction"
+	colDipDirection = ColDipDirection
 	colLineTrend    = "line_trend"
 	colLinePlunge   = "line_plunge"
 	colHoleAzimuth  = "hole_azimuth"
 	colHoleDip      = "hole_dip"
-	colType         = "type"
+	colType         = ColType
 	colHoleID       = "hole_id"
 	colError        = "error"
 	colAzimuthRef   = "azimuth_reference"

@@ -5,7 +5,7 @@ import (
 )
 
 // pickColDipDirection is the dip-direction column of a picks file.
-const pickColDipDirection = "dip_direction"
+const pickColDipDirection = ColDipDirection
 
 // PickRow is one reference pick: the orientation of a plane in a hole from a
 // source other than the core (for example an oriented borehole image log),
