@@ -37,9 +37,17 @@ type OrientationRow struct {
 	Error string
 	// AzimuthRef is the azimuth_reference column ("" when absent).
 	AzimuthRef string
+	// Depth is the depth column, NaN when the file has none or the cell is
+	// empty (with [OrientationOptions].Geotech it must also be >= 0).
+	Depth float64
+	// HasPos is true when easting, northing and elevation are all given
+	// (the position `corvane convert` writes); Pos holds them.
+	HasPos bool
+	Pos    geom.Vec3
+	// Set and Warnings are the set and warnings columns, "" when absent.
+	Set, Warnings string
 
 	// Read only with [OrientationOptions].Geotech:
-	Depth    float64 // depth column, NaN when absent or empty
 	Alpha    float64 // alpha column, NaN when absent or empty
 	RockType string  // rock_type column, "" when absent
 	// Unoriented is true for a row with alpha and a hole direction but no
@@ -51,7 +59,7 @@ type OrientationRow struct {
 
 // OrientationOptions changes what [ReadOrientationsWith] reads.
 type OrientationOptions struct {
-	// Geotech also reads depth, alpha and rock_type, and keeps unoriented
+	// Geotech also checks depth >= 0, reads alpha and rock_type, and keeps unoriented
 	// rows (alpha and hole direction without a plane) instead of reporting
 	// them as having no plane and no line.
 	Geotech bool
@@ -70,6 +78,7 @@ const (
 	colError        = "error"
 	colAzimuthRef   = "azimuth_reference"
 	colRockType     = "rock_type"
+	colWarnings     = "warnings"
 )
 
 // ReadOrientations reads planes and lines from a CSV file whose header has
@@ -240,9 +249,26 @@ func ReadOrientationsWith(r io.Reader, name string, opt OrientationOptions) (row
 			problems = append(problems, bad)
 			continue
 		}
+		if !opt.Geotech { // Geotech has read (and checked) it above
+			if d, ok := num(ColDepth, math.Inf(-1), math.Inf(1)); ok {
+				row.Depth = d
+			}
+		}
+		e, okE := num(ColEasting, math.Inf(-1), math.Inf(1))
+		n, okN := num(ColNorthing, math.Inf(-1), math.Inf(1))
+		z, okZ := num(ColElevation, math.Inf(-1), math.Inf(1))
+		if bad != nil {
+			problems = append(problems, bad)
+			continue
+		}
+		if okE && okN && okZ {
+			row.HasPos, row.Pos = true, geom.Vec3{X: e, Y: n, Z: z}
+		}
 		row.Type = cell(colType)
 		row.HoleID = cell(colHoleID)
 		row.AzimuthRef = cell(colAzimuthRef)
+		row.Set = cell(ColSet)
+		row.Warnings = cell(colWarnings)
 		rows = append(rows, row)
 	}
 	return rows, problems, nil

@@ -134,3 +134,24 @@ func TestReadOrientationsGeotech(t *testing.T) {
 		t.Errorf("default reader: %v", problems)
 	}
 }
+
+func TestReadOrientationsPositions(t *testing.T) {
+	in := "hole_id,depth,easting,northing,elevation,dip,dip_direction,type,set,warnings\n" +
+		"TM001,12.5,431290.1,6652450.2,395.3,30,45,JN,2,\n" +
+		"TM001,13,,,,40,50,BD,,below the last survey station\n" +
+		"TM001,14,4312x,6652450,395,40,50,BD,,\n"
+	rows, problems, err := ReadOrientations(strings.NewReader(in), "c.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rows) != 2 || len(problems) != 1 || problems[0].Loc.Line != 4 || problems[0].Loc.Column != "easting" {
+		t.Fatalf("rows %+v problems %v", rows, problems)
+	}
+	r := rows[0]
+	if r.Depth != 12.5 || !r.HasPos || r.Pos != (geom.Vec3{X: 431290.1, Y: 6652450.2, Z: 395.3}) || r.Set != "2" || r.Type != "JN" || r.Warnings != "" {
+		t.Errorf("row 1: %+v", r)
+	}
+	if r := rows[1]; r.HasPos || r.Warnings != "below the last survey station" {
+		t.Errorf("row 2: %+v", r)
+	}
+}
