@@ -94,6 +94,42 @@ func (f floatFlag) Set(s string) error {
 	return nil
 }
 
+// pathFlags are the options that decide how holes are desurveyed and which
+// north their azimuths refer to. convert and transfer share them, so both
+// read the same holes the same way.
+type pathFlags struct {
+	opt             *convert.Options
+	outRef, method  *string
+	feet, noCompute *bool
+}
+
+func addPathFlags(fs *flag.FlagSet, opt *convert.Options) *pathFlags {
+	p := &pathFlags{opt: opt}
+	p.outRef = fs.String("output-reference", "grid", "north reference of output azimuths: grid or true")
+	p.method = fs.String("method", "minimum-curvature", "desurvey method: minimum-curvature, balanced-tangential or tangential")
+	p.feet = fs.Bool("feet", false, "lengths are in feet (collar elevations are converted to metres for the magnetic model)")
+	p.noCompute = fs.Bool("no-computed-corrections", false, "never compute declination or grid convergence; holes that need one get an error")
+	fs.Var(floatFlag{&opt.Declination}, "declination", "magnetic declination in degrees for holes whose collar gives none (true = magnetic + D)")
+	fs.Var(floatFlag{&opt.GridConvergence}, "grid-convergence", "grid convergence in degrees for holes whose collar gives none (grid = true - C)")
+	return p
+}
+
+// apply puts the parsed flags into the options.
+func (p *pathFlags) apply() error {
+	var err error
+	if p.opt.Output, err = convert.ParseReference(*p.outRef); err != nil || p.opt.Output == convert.Magnetic {
+		return fmt.Errorf("--output-reference %q: want grid or true", *p.outRef)
+	}
+	if p.opt.Method, err = desurvey.ParseMethod(*p.method); err != nil {
+		return fmt.Errorf("--method: %v", err)
+	}
+	if *p.feet {
+		p.opt.Unit = desurvey.Feet
+	}
+	p.opt.NoCompute = *p.noCompute
+	return nil
+}
+
 func runConvert(ctx context.Context, env *Env, args []string) int {
 	fs := flag.NewFlagSet("convert", flag.ContinueOnError)
 	fs.SetOutput(env.Stderr)
@@ -108,14 +144,9 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 	refLine := fs.String("reference-line", "bottom", "orientation reference line: bottom or top")
 	apex := fs.String("beta-apex", "downhole", "ellipse apex beta is measured to: downhole or uphole")
 	sense := fs.String("gamma-sense", "clockwise", "sense of gamma looking along the down-hole plane normal: clockwise or anticlockwise")
-	outRef := fs.String("output-reference", "grid", "north reference of output azimuths: grid or true")
-	method := fs.String("method", "minimum-curvature", "desurvey method: minimum-curvature, balanced-tangential or tangential")
-	feet := fs.Bool("feet", false, "lengths are in feet (collar elevations are converted to metres for the magnetic model)")
 	summary := fs.String("hole-summary", "", "also write one row per hole to this CSV file: azimuth references, corrections and their sources, row counts, caution, error")
-	noCompute := fs.Bool("no-computed-corrections", false, "never compute declination or grid convergence; holes that need one get an error")
 	var opt convert.Options
-	fs.Var(floatFlag{&opt.Declination}, "declination", "magnetic declination in degrees for holes whose collar gives none (true = magnetic + D)")
-	fs.Var(floatFlag{&opt.GridConvergence}, "grid-convergence", "grid convergence in degrees for holes whose collar gives none (grid = true - C)")
+	paths := addPathFlags(fs, &opt)
 	if err := fs.Parse(args); err != nil {
 		if errors.Is(err, flag.ErrHelp) {
 			return ExitOK
@@ -142,16 +173,9 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 	if opt.Convention.GammaSense, err = coreangle.ParseSense(*sense); err != nil {
 		return usageErr("--gamma-sense: %v", err)
 	}
-	if opt.Output, err = convert.ParseReference(*outRef); err != nil || opt.Output == convert.Magnetic {
-		return usageErr("--output-reference %q: want grid or true", *outRef)
+	if err := paths.apply(); err != nil {
+		return usageErr("%v", err)
 	}
-	if opt.Method, err = desurvey.ParseMethod(*method); err != nil {
-		return usageErr("--method: %v", err)
-	}
-	if *feet {
-		opt.Unit = desurvey.Feet
-	}
-	opt.NoCompute = *noCompute
 	opt.CollarsFile, opt.SurveysFile, opt.StructuresFile = *collars, *surveys, *structures
 
 	cf, err := os.Open(*collars)

@@ -82,13 +82,8 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 	crsFlag := fs.String("crs", "", "coordinate system of the collars for GeoJSON when their crs column is empty (EPSG:326NN or EPSG:327NN)")
 	project := fs.String("project", "corvane", "AGS4 PROJ_ID (and PROJ_NAME)")
 	recipient := fs.String("recipient", "geotechnical database", "AGS4 TRAN_RECV")
-	outRef := fs.String("output-reference", "grid", "north reference the conversion used: grid or true")
-	method := fs.String("method", "minimum-curvature", "desurvey method: minimum-curvature, balanced-tangential or tangential")
-	feet := fs.Bool("feet", false, "lengths are in feet")
-	noCompute := fs.Bool("no-computed-corrections", false, "never compute declination or grid convergence")
 	var opt convert.Options
-	fs.Var(floatFlag{&opt.Declination}, "declination", "magnetic declination in degrees for holes whose collar gives none")
-	fs.Var(floatFlag{&opt.GridConvergence}, "grid-convergence", "grid convergence in degrees for holes whose collar gives none")
+	paths := addPathFlags(fs, &opt)
 	if err := fs.Parse(args); err != nil {
 		if errors.Is(err, flag.ErrHelp) {
 			return ExitOK
@@ -108,17 +103,9 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 	if *glbOut == "" && *gltfOut == "" && *geoOut == "" && *pointsOut == "" && *agsOut == "" {
 		return usageErr("nothing to write: give one or more of --glb, --gltf, --geojson, --points, --ags")
 	}
-	var err error
-	if opt.Output, err = convert.ParseReference(*outRef); err != nil || opt.Output == convert.Magnetic {
-		return usageErr("--output-reference %q: want grid or true", *outRef)
+	if err := paths.apply(); err != nil {
+		return usageErr("%v", err)
 	}
-	if opt.Method, err = desurvey.ParseMethod(*method); err != nil {
-		return usageErr("--method: %v", err)
-	}
-	if *feet {
-		opt.Unit = desurvey.Feet
-	}
-	opt.NoCompute = *noCompute
 	opt.CollarsFile, opt.SurveysFile = *collars, *surveys
 
 	// Holes, desurveyed as the conversion did.
