@@ -130,6 +130,32 @@ func (p *pathFlags) apply() error {
 	return nil
 }
 
+// loadHoles reads the collars and surveys files and desurveys the holes
+// (convert.Build): the holes every command that works from these files
+// uses.
+func loadHoles(collars, surveys string, opt convert.Options) ([]csvio.CollarRow, []csvio.SurveyRow, *convert.Holes, error) {
+	cf, err := os.Open(collars)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	defer cf.Close()
+	sf, err := os.Open(surveys)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	defer sf.Close()
+	crows, err := csvio.ReadCollars(cf, collars)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	srows, err := csvio.ReadSurveys(sf, surveys)
+	if err != nil {
+		return nil, nil, nil, err
+	}
+	holes, err := convert.Build(crows, srows, opt)
+	return crows, srows, holes, err
+}
+
 func runConvert(ctx context.Context, env *Env, args []string) int {
 	fs := flag.NewFlagSet("convert", flag.ContinueOnError)
 	fs.SetOutput(env.Stderr)
@@ -178,16 +204,12 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 	}
 	opt.CollarsFile, opt.SurveysFile, opt.StructuresFile = *collars, *surveys, *structures
 
-	cf, err := os.Open(*collars)
+	_, srows, holes, err := loadHoles(*collars, *surveys, opt)
 	if err != nil {
-		return usageErr("%v", err)
+		fmt.Fprint(env.Stderr, "corvane convert: ")
+		csvio.Report(env.Stderr, err)
+		return ExitUsage
 	}
-	defer cf.Close()
-	sf, err := os.Open(*surveys)
-	if err != nil {
-		return usageErr("%v", err)
-	}
-	defer sf.Close()
 	var in io.Reader = env.Stdin
 	if *structures != "-" {
 		f, err := os.Open(*structures)
@@ -196,20 +218,6 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 		}
 		defer f.Close()
 		in = f
-	}
-	crows, err := csvio.ReadCollars(cf, *collars)
-	var srows []csvio.SurveyRow
-	if err == nil {
-		srows, err = csvio.ReadSurveys(sf, *surveys)
-	}
-	var holes *convert.Holes
-	if err == nil {
-		holes, err = convert.Build(crows, srows, opt)
-	}
-	if err != nil {
-		fmt.Fprint(env.Stderr, "corvane convert: ")
-		csvio.Report(env.Stderr, err)
-		return ExitUsage
 	}
 
 	// Write to a temporary file first: a file that turns out to be unreadable

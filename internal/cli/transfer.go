@@ -55,8 +55,9 @@ was made from, desurveys the holes the same way (give the same --method, --feet,
                   direction between survey stations), DISC (structures; dip and dip
                   direction to the whole degree).
 
-Rows of the converted file without a plane (e.g. rows with an error) are skipped and
-counted. Structure types are coloured in the sorted order of the types present.
+Rows of the converted file without a plane and position (no dip direction, an error, a
+lineation alone) are skipped and counted. GeoJSON's qa_flags counts a hole's rows that
+carry a warning or an error. Structure types are coloured in the sorted order of the types present.
 
 Options:
 `
@@ -109,7 +110,7 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 	opt.CollarsFile, opt.SurveysFile = *collars, *surveys
 
 	// Holes, desurveyed as the conversion did.
-	crows, holes, err := loadHoles(*collars, *surveys, opt)
+	crows, _, holes, err := loadHoles(*collars, *surveys, opt)
 	if err != nil {
 		fmt.Fprint(env.Stderr, "corvane transfer: ")
 		csvio.Report(env.Stderr, err)
@@ -145,14 +146,14 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 	warned := map[string]int{}
 	counted := map[string]int{}
 	for _, r := range rows {
+		if r.Warnings != "" || r.Error != "" {
+			warned[r.HoleID]++
+		}
 		if !r.HasPlane || !r.HasPos || math.IsNaN(r.Depth) {
-			skipped++
+			skipped++ // no dip direction, an error, a lineation alone
 			continue
 		}
 		counted[r.HoleID]++
-		if r.Warnings != "" {
-			warned[r.HoleID]++
-		}
 		structs = append(structs, exchange.Structure{Hole: r.HoleID, Depth: r.Depth, Pos: r.Pos, Pole: r.Plane.Normal(),
 			Dip: r.Plane.Dip, DipDirection: r.Plane.DipDirection, Type: r.Type, Set: r.Set, Uncertainty: math.NaN()})
 	}
@@ -182,8 +183,8 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 	if *gltfOut != "" {
 		bin := strings.TrimSuffix(*gltfOut, filepath.Ext(*gltfOut)) + ".bin"
 		// The .gltf refers to the .bin by its base name, beside it.
-		err := writeFileAtomic(bin, func(bw io.Writer) error {
-			return writeFileAtomic(*gltfOut, func(jw io.Writer) error {
+		err := writeOutput(bin, func(bw io.Writer) error {
+			return writeOutput(*gltfOut, func(jw io.Writer) error {
 				return gltf.WriteGLTF(jw, bw, filepath.Base(bin), traces, structs, gopt)
 			})
 		})
@@ -218,38 +219,13 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 		if wr.path == "" {
 			continue
 		}
-		if err := writeFileAtomic(wr.path, wr.write); err != nil {
+		if err := writeOutput(wr.path, wr.write); err != nil {
 			return usageErr("%s: %v", wr.path, err)
 		}
 	}
 	fmt.Fprintf(env.Stderr, "corvane transfer: %d holes, %d structures written; %d rows without a plane or position skipped\n",
 		len(traces), len(structs), skipped)
 	return ExitOK
-}
-
-// loadHoles reads collars and surveys and desurveys the holes as convert
-// does.
-func loadHoles(collars, surveys string, opt convert.Options) ([]csvio.CollarRow, *convert.Holes, error) {
-	cf, err := os.Open(collars)
-	if err != nil {
-		return nil, nil, err
-	}
-	defer cf.Close()
-	sf, err := os.Open(surveys)
-	if err != nil {
-		return nil, nil, err
-	}
-	defer sf.Close()
-	crows, err := csvio.ReadCollars(cf, collars)
-	if err != nil {
-		return nil, nil, err
-	}
-	srows, err := csvio.ReadSurveys(sf, surveys)
-	if err != nil {
-		return nil, nil, err
-	}
-	holes, err := convert.Build(crows, srows, opt)
-	return crows, holes, err
 }
 
 func collarRow(crows []csvio.CollarRow, id string) desurvey.Collar {

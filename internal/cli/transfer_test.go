@@ -142,7 +142,7 @@ func TestTransferDemo(t *testing.T) {
 	if len(data.Discontinuities) != len(want) || len(data.Locations) != len(holes) || len(data.Orientations) == 0 {
 		t.Errorf("AGS4: %d DISC, %d LOCA, %d HORN rows; want %d, %d, some", len(data.Discontinuities), len(data.Locations), len(data.Orientations), len(want), len(holes))
 	}
-	left, _ := filepath.Glob(filepath.Join(dir, ".corvane-*"))
+	left, _ := filepath.Glob(filepath.Join(dir, ".*.tmp"))
 	if len(left) != 0 {
 		t.Errorf("temporary files left: %v", left)
 	}
