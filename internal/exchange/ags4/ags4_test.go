@@ -332,6 +332,14 @@ func TestRule8Types(t *testing.T) {
 			t.Errorf("missing %s", want)
 		}
 	}
+	d = sample(t)
+	d.Locations[0].East = math.Inf(1)
+	writeErr(t, d, "8") // "+Inf" is not a 2DP value
+	d = sample(t)
+	d.Discontinuities[0].Dip = math.Inf(-1)
+	if err := Write(&bytes.Buffer{}, d); err == nil || !strings.Contains(err.Error(), "DISC row 1") {
+		t.Errorf("infinite DISC_DIP (type X): %v", err)
+	}
 	f := built(t)
 	f.Group("CORE").Rows[0][1] = "5.0"
 	checkErr(t, f, "8")
