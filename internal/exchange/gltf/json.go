@@ -258,6 +258,10 @@ func (L *layout) writeJSON(w io.Writer, binName string) error {
 	}
 
 	// Meshes.
+	typeMat0 := 0
+	if len(L.traces) > 0 {
+		typeMat0 = 2
+	}
 	j.raw(`],"meshes":[`)
 	first = true
 	for i, t := range L.traces {
@@ -292,11 +296,12 @@ func (L *layout) writeJSON(w io.Writer, binName string) error {
 		j.raw(`,"mode":`)
 		j.int(modeTris)
 		j.raw(`,"material":`)
-		j.int(2 + i)
+		j.int(typeMat0 + i)
 		j.raw("}]}")
 	}
 
-	// Materials: the two trace materials, then one per type.
+	// Materials: the two trace materials (when there are traces), then one
+	// per type.
 	j.raw(`],"materials":[`)
 	material := func(name string, c palette.RGB, doubleSided bool) {
 		l := c.Linear()
@@ -313,11 +318,15 @@ func (L *layout) writeJSON(w io.Writer, binName string) error {
 		}
 		j.raw("}")
 	}
-	material("trace surveyed", palette.Trace, false)
-	j.raw(",")
-	material("trace extrapolated", palette.TraceExtrapolated, false)
+	first = true
+	if len(L.traces) > 0 {
+		sep()
+		material("trace surveyed", palette.Trace, false)
+		sep()
+		material("trace extrapolated", palette.TraceExtrapolated, false)
+	}
 	for _, t := range L.types {
-		j.raw(",")
+		sep()
 		material("type "+t, o.Colours.Colour(t), true)
 	}
 
