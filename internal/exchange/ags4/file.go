@@ -12,6 +12,11 @@
 // produced. [Read] parses any AGS4 file (rules 1 to 6) and takes the groups
 // this package knows into a [Data]; a file written by [Write] reads back to
 // the same Data and writes again byte for byte.
+//
+// Rules that do not arise: 11 (record links) since no field of type RL is
+// written (TRAN_DLIM and TRAN_RCON are still filled, as TRAN requires), and
+// 18 (DICT definitions) since nothing outside the standard dictionary is
+// written; a file with other groups or headings breaks rule 9 in [Check].
 package ags4
 
 import (
