@@ -9,20 +9,15 @@ import (
 	"math"
 	"os"
 	"path/filepath"
-	"slices"
 	"strings"
 	"time"
 
 	"corvane/internal/convert"
 	"corvane/internal/csvio"
-	"corvane/internal/desurvey"
 	"corvane/internal/exchange"
-	"corvane/internal/exchange/ags4"
-	"corvane/internal/exchange/geojson"
 	"corvane/internal/exchange/gltf"
+	"corvane/internal/exchange/transfer"
 	"corvane/internal/geom"
-	"corvane/internal/northref"
-	"corvane/internal/palette"
 )
 
 func init() {
@@ -57,7 +52,11 @@ was made from, desurveys the holes the same way (give the same --method, --feet,
 
 Rows of the converted file without a plane and position (no dip direction, an error, a
 lineation alone) are skipped and counted. GeoJSON's qa_flags counts a hole's rows that
-carry a warning or an error. Structure types are coloured in the sorted order of the types present.
+carry a warning or an error. Structure types are coloured in the sorted order of
+--types (the project's vocabulary; default the types present). A hole whose path cannot
+be built has its collar in GeoJSON and AGS4 LOCA but no trace.
+The service's export routes (.../scene.glb, points.csv, holes.geojson, transfer.ags)
+write the same files from a stored project.
 
 Options:
 `
@@ -83,6 +82,8 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 	crsFlag := fs.String("crs", "", "coordinate system of the collars for GeoJSON when their crs column is empty (EPSG:326NN or EPSG:327NN)")
 	project := fs.String("project", "corvane", "AGS4 PROJ_ID (and PROJ_NAME)")
 	recipient := fs.String("recipient", "geotechnical database", "AGS4 TRAN_RECV")
+	date := fs.String("date", "", "AGS4 TRAN_DATE, YYYY-MM-DD (default today)")
+	typesFlag := fs.String("types", "", "the project's type codes, comma-separated, that colours are given to in sorted order (default: the types in the converted file)")
 	var opt convert.Options
 	paths := addPathFlags(fs, &opt)
 	if err := fs.Parse(args); err != nil {
@@ -109,24 +110,26 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 	}
 	opt.CollarsFile, opt.SurveysFile = *collars, *surveys
 
-	// Holes, desurveyed as the conversion did.
+	// Holes, desurveyed as the conversion did (package convert builds each
+	// through the hole model).
 	crows, _, holes, err := loadHoles(*collars, *surveys, opt)
 	if err != nil {
 		fmt.Fprint(env.Stderr, "corvane transfer: ")
 		csvio.Report(env.Stderr, err)
 		return ExitUsage
 	}
-	var traces []exchange.Trace
-	for _, h := range holes.List() {
-		if h.Path == nil {
-			fmt.Fprintf(env.Stderr, "corvane transfer: hole %s left out: %v\n", h.ID, h.Err)
-			continue
+	prog := transfer.Programme{Name: *project, TraceStep: *step}
+	for _, c := range crows {
+		th := transfer.Hole{Name: c.HoleID, Collar: c.Collar, CRS: c.CRS}
+		switch h := holes.Hole(c.HoleID); {
+		case h == nil:
+		case h.Err != nil:
+			th.Problem = h.Err.Error()
+			fmt.Fprintf(env.Stderr, "corvane transfer: hole %s has no trace: %v\n", c.HoleID, h.Err)
+		default:
+			th.Path = h.Path
 		}
-		t, err := exchange.TraceFromPath(h.ID, h.Path, *step)
-		if err != nil {
-			return usageErr("%v", err)
-		}
-		traces = append(traces, t)
+		prog.Holes = append(prog.Holes, th)
 	}
 
 	// Structures from the converted file.
@@ -141,79 +144,59 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 		csvio.Report(env.Stderr, err)
 		return ExitUsage
 	}
-	var structs []exchange.Structure
-	skipped := len(problems)
-	warned := map[string]int{}
-	counted := map[string]int{}
+	prog.Skipped = len(problems)
 	for _, r := range rows {
-		if r.Warnings != "" || r.Error != "" {
-			warned[r.HoleID]++
+		placed := r.HasPlane && r.HasPos && !math.IsNaN(r.Depth) // not: no dip direction, an error, a lineation alone
+		prog.Count(r.HoleID, placed, r.Warnings != "" || r.Error != "")
+		if placed {
+			prog.Structures = append(prog.Structures, exchange.Structure{Hole: r.HoleID, Depth: r.Depth, Pos: r.Pos, Pole: r.Plane.Normal(),
+				Dip: r.Plane.Dip, DipDirection: r.Plane.DipDirection, Type: r.Type, Set: r.Set, Uncertainty: math.NaN()})
 		}
-		if !r.HasPlane || !r.HasPos || math.IsNaN(r.Depth) {
-			skipped++ // no dip direction, an error, a lineation alone
-			continue
-		}
-		counted[r.HoleID]++
-		structs = append(structs, exchange.Structure{Hole: r.HoleID, Depth: r.Depth, Pos: r.Pos, Pole: r.Plane.Normal(),
-			Dip: r.Plane.Dip, DipDirection: r.Plane.DipDirection, Type: r.Type, Set: r.Set, Uncertainty: math.NaN()})
 	}
-	var types []string
-	for _, s := range structs {
-		types = append(types, s.Type)
+	prog.Types = transfer.TypesOf(prog.Structures)
+	if *typesFlag != "" {
+		prog.Types = strings.Split(*typesFlag, ",")
 	}
-	slices.Sort(types)
-	types = slices.Compact(types)
 
-	gopt := gltf.Options{Origin: gltf.OriginOf(traces, structs), DiscRadius: *radius, Colours: palette.New(types)}
+	so := transfer.SceneOptions{DiscRadius: *radius}
 	if *originFlag != "" {
-		if gopt.Origin, err = parseOrigin(*originFlag); err != nil {
+		o, err := parseOrigin(*originFlag)
+		if err != nil {
 			return usageErr("--origin: %v", err)
 		}
+		so.Origin = &[3]float64{o.X, o.Y, o.Z}
 	}
-	if len(crows) > 0 {
-		gopt.CRS = crows[0].CRS
+	if *geoOut != "" {
+		if _, err := prog.Inverse(*crsFlag); err != nil {
+			return usageErr("--geojson: %v", err)
+		}
 	}
-	writes := []struct {
-		path  string
-		write func(io.Writer) error
-	}{
-		{*glbOut, func(w io.Writer) error { return gltf.WriteGLB(w, traces, structs, gopt) }},
-		{*pointsOut, func(w io.Writer) error { return csvio.WritePoints(w, structs) }},
+	ao := transfer.AGSOptions{Recipient: *recipient}
+	if *date != "" {
+		if ao.Date, err = time.Parse(time.DateOnly, *date); err != nil {
+			return usageErr("--date %q: want YYYY-MM-DD", *date)
+		}
 	}
 	if *gltfOut != "" {
 		bin := strings.TrimSuffix(*gltfOut, filepath.Ext(*gltfOut)) + ".bin"
 		// The .gltf refers to the .bin by its base name, beside it.
 		err := writeOutput(bin, func(bw io.Writer) error {
 			return writeOutput(*gltfOut, func(jw io.Writer) error {
-				return gltf.WriteGLTF(jw, bw, filepath.Base(bin), traces, structs, gopt)
+				return prog.WriteGLTF(jw, bw, filepath.Base(bin), so)
 			})
 		})
 		if err != nil {
 			return usageErr("%s: %v", *gltfOut, err)
 		}
 	}
-	if *geoOut != "" {
-		inv, err := inverseFor(crows, *crsFlag)
-		if err != nil {
-			return usageErr("--geojson: %v", err)
-		}
-		var gh []geojson.Hole
-		for _, t := range traces {
-			c := collarRow(crows, t.Hole)
-			gh = append(gh, geojson.Hole{Name: t.Hole, East: c.East, North: c.North, Elevation: c.Elevation, Azimuth: c.Azimuth, Dip: c.Dip,
-				Depth: c.Depth, Measurements: counted[t.Hole], QAFlags: warned[t.Hole], Trace: t})
-		}
-		writes = append(writes, struct {
-			path  string
-			write func(io.Writer) error
-		}{*geoOut, func(w io.Writer) error { return geojson.Write(w, inv, gh) }})
-	}
-	if *agsOut != "" {
-		d := agsData(*project, *recipient, crows, holes, structs, types)
-		writes = append(writes, struct {
-			path  string
-			write func(io.Writer) error
-		}{*agsOut, func(w io.Writer) error { return ags4.Write(w, d) }})
+	writes := []struct {
+		path  string
+		write func(io.Writer) error
+	}{
+		{*glbOut, func(w io.Writer) error { return prog.WriteGLB(w, so) }},
+		{*pointsOut, prog.WritePoints},
+		{*geoOut, func(w io.Writer) error { return prog.WriteGeoJSON(w, *crsFlag) }},
+		{*agsOut, func(w io.Writer) error { return prog.WriteAGS(w, ao) }},
 	}
 	for _, wr := range writes {
 		if wr.path == "" {
@@ -223,18 +206,15 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 			return usageErr("%s: %v", wr.path, err)
 		}
 	}
-	fmt.Fprintf(env.Stderr, "corvane transfer: %d holes, %d structures written; %d rows without a plane or position skipped\n",
-		len(traces), len(structs), skipped)
-	return ExitOK
-}
-
-func collarRow(crows []csvio.CollarRow, id string) desurvey.Collar {
-	for _, c := range crows {
-		if c.HoleID == id {
-			return c.Collar
+	traced := 0
+	for _, h := range prog.Holes {
+		if h.Path != nil {
+			traced++
 		}
 	}
-	return desurvey.Collar{East: math.NaN(), North: math.NaN()}
+	fmt.Fprintf(env.Stderr, "corvane transfer: %d holes (%d with a trace), %d structures written; %d rows without a plane or position skipped\n",
+		len(prog.Holes), traced, len(prog.Structures), prog.Skipped)
+	return ExitOK
 }
 
 func parseOrigin(s string) (geom.Vec3, error) {
@@ -251,83 +231,4 @@ func parseOrigin(s string) (geom.Vec3, error) {
 		v[i] = x
 	}
 	return geom.Vec3{X: v[0], Y: v[1], Z: v[2]}, nil
-}
-
-// inverseFor returns the grid inverse of the collars' coordinate system:
-// --crs when given, else the crs column, which must then name one system
-// for all collars.
-func inverseFor(crows []csvio.CollarRow, flagCRS string) (geojson.Inverse, error) {
-	label := strings.TrimSpace(flagCRS)
-	if label == "" {
-		for _, c := range crows {
-			switch {
-			case c.CRS == "":
-			case label == "":
-				label = c.CRS
-			case !strings.EqualFold(label, c.CRS):
-				return nil, fmt.Errorf("collars are in %s and %s; write one coordinate system at a time or give --crs", label, c.CRS)
-			}
-		}
-	}
-	crs, err := northref.ParseCRS(label)
-	if err != nil {
-		return nil, err
-	}
-	return geojson.UTM(crs.Zone), nil
-}
-
-// agsData gathers the AGS4 transfer: LOCA from the collars, HORN from the
-// desurveyed path between survey stations (direction at the top of each
-// section, in the conversion's output reference), DISC from the structures
-// numbered per hole in file order.
-func agsData(project, recipient string, crows []csvio.CollarRow, holes *convert.Holes, structs []exchange.Structure, types []string) *ags4.Data {
-	d := &ags4.Data{
-		Project: ags4.Project{ID: project, Name: project},
-		Transmission: ags4.Transmission{IssueNo: "1", Date: time.Now().UTC(), Producer: "corvane", Status: "Draft",
-			Description: "oriented core discontinuities", Recipient: recipient},
-		Abbreviations: []ags4.Abbreviation{{Heading: "LOCA_TYPE", Code: "RC", Description: "Rotary core"}},
-	}
-	grefs := map[string]bool{}
-	for _, c := range crows {
-		gref := strings.ToUpper(strings.TrimSpace(c.CRS))
-		if gref != "" && !grefs[gref] {
-			grefs[gref] = true
-			d.Abbreviations = append(d.Abbreviations, ags4.Abbreviation{Heading: "LOCA_GREF", Code: gref, Description: "coordinate reference system " + gref})
-		}
-		d.Locations = append(d.Locations, ags4.Location{ID: c.HoleID, Type: "RC", East: c.Collar.East, North: c.Collar.North, GridRef: gref,
-			GroundLevel: c.Collar.Elevation, FinalDepth: c.Collar.Depth})
-		h := holes.Hole(c.HoleID)
-		if h == nil || h.Path == nil {
-			continue
-		}
-		tops := []float64{0}
-		for _, iv := range h.Path.Intervals() {
-			tops = append(tops, iv.To)
-		}
-		tops = append(tops, h.Path.Depth())
-		slices.Sort(tops)
-		tops = slices.Compact(tops)
-		for i := 0; i+1 < len(tops); i++ {
-			pt, err := h.Path.At(tops[i])
-			if err != nil {
-				continue
-			}
-			az, dip := pt.Dir.AzimuthDip()
-			rem := ""
-			if tops[i] >= h.Path.LastStation() && tops[i] < h.Path.Depth() {
-				rem = "below the last survey station"
-			}
-			d.Orientations = append(d.Orientations, ags4.Orientation{Hole: c.HoleID, Top: tops[i], Base: tops[i+1], Azimuth: az, Dip: dip, Remarks: rem})
-		}
-	}
-	for _, t := range types {
-		d.Abbreviations = append(d.Abbreviations, ags4.Abbreviation{Heading: "DISC_TYPE", Code: t, Description: "structure type " + t})
-	}
-	n := map[string]int{}
-	for _, s := range structs {
-		n[s.Hole]++
-		d.Discontinuities = append(d.Discontinuities, ags4.Discontinuity{Hole: s.Hole, Top: s.Depth, Base: s.Depth, Set: s.Set,
-			Number: fmt.Sprint(n[s.Hole]), Type: s.Type, Dip: s.Dip, DipDirection: s.DipDirection})
-	}
-	return d
 }

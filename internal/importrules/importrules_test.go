@@ -47,6 +47,7 @@ var noServiceDeps = []string{
 	"corvane/internal/csvio",
 	"corvane/internal/service",
 	"corvane/internal/convert",
+	"corvane/internal/exchange/transfer",
 }
 
 func isStd(p string) bool {

@@ -1,0 +1,287 @@
+// Package transfer gathers a programme's holes and placed structures into
+// the transfer formats (glTF, GeoJSON, points-with-normals CSV, AGS4): the
+// one place that decides what goes into each file, so `corvane transfer`
+// and the service's export routes write the same files from the same
+// programme. Its callers build the holes with package holemodel (through
+// package convert or the service) and hand over the paths; transfer
+// desurveys nothing and corrects no north.
+//
+// transfer knows nothing of HTTP or SQL; it imports the pure writers and
+// csvio's points writer.
+package transfer
+
+import (
+	"fmt"
+	"io"
+	"slices"
+	"strings"
+	"time"
+
+	"corvane/internal/csvio"
+	"corvane/internal/desurvey"
+	"corvane/internal/exchange"
+	"corvane/internal/exchange/ags4"
+	"corvane/internal/exchange/geojson"
+	"corvane/internal/exchange/gltf"
+	"corvane/internal/northref"
+	"corvane/internal/palette"
+)
+
+// Hole is one hole of the programme as recorded, with the path its hole
+// model built.
+type Hole struct {
+	Name string
+	// Collar is the recorded collar (position, azimuth, dip, final depth).
+	Collar desurvey.Collar
+	// CRS labels the collar coordinates, "" when unknown.
+	CRS string
+	// Path is the desurveyed path in the output reference; nil when the
+	// hole has a problem (Problem says which). Such a hole has a collar in
+	// GeoJSON and LOCA but no trace.
+	Path    *desurvey.Path
+	Problem string
+	// Measurements counts the hole's placed structures, QAFlags its
+	// measurements that carry a warning or an error (see [Programme.Count]).
+	Measurements, QAFlags int
+}
+
+// Programme is what the transfer formats are written from.
+type Programme struct {
+	// Name of the project (AGS4 PROJ_ID and PROJ_NAME).
+	Name string
+	// Types is the vocabulary of structure type codes that colours are given
+	// to (palette.New); the codes of the structures when the caller has no
+	// vocabulary.
+	Types []string
+	Holes []Hole
+	// Structures are the measurements with a plane and a position.
+	Structures []exchange.Structure
+	// Skipped counts the measurements left out: no dip direction (a
+	// vertical hole), an error, a lineation alone.
+	Skipped int
+	// TraceStep is the largest spacing of trace points; 0 means
+	// exchange.DefaultTraceStep.
+	TraceStep float64
+
+	index map[string]int // hole name -> index in Holes, built by Count
+}
+
+// Count records one measurement of hole: placed when it has a plane and a
+// position (it is then in Structures), flagged when it carries a warning or
+// an error. A measurement not placed is counted as skipped.
+func (p *Programme) Count(hole string, placed, flagged bool) {
+	if len(p.index) != len(p.Holes) {
+		p.index = make(map[string]int, len(p.Holes))
+		for i, h := range p.Holes {
+			p.index[h.Name] = i
+		}
+	}
+	if !placed {
+		p.Skipped++
+	}
+	i, ok := p.index[hole]
+	if !ok {
+		return
+	}
+	if placed {
+		p.Holes[i].Measurements++
+	}
+	if flagged {
+		p.Holes[i].QAFlags++
+	}
+}
+
+// TypesOf returns the sorted, distinct type codes of structures: the
+// vocabulary when a caller has none.
+func TypesOf(structs []exchange.Structure) []string {
+	var types []string
+	for _, s := range structs {
+		types = append(types, s.Type)
+	}
+	slices.Sort(types)
+	return slices.Compact(types)
+}
+
+// Traces samples the path of every hole that has one, in hole order.
+func (p *Programme) Traces() ([]exchange.Trace, error) {
+	var ts []exchange.Trace
+	for _, h := range p.Holes {
+		if h.Path == nil {
+			continue
+		}
+		t, err := exchange.TraceFromPath(h.Name, h.Path, p.TraceStep)
+		if err != nil {
+			return nil, err
+		}
+		ts = append(ts, t)
+	}
+	return ts, nil
+}
+
+// SceneOptions are the choices of a glTF scene.
+type SceneOptions struct {
+	// Origin is the local origin (East, North, Up); nil means gltf.OriginOf
+	// (the first collar rounded down to whole metres).
+	Origin *[3]float64
+	// DiscRadius in metres; 0 means gltf.DefaultDiscRadius.
+	DiscRadius float64
+}
+
+func (p *Programme) scene(o SceneOptions) ([]exchange.Trace, gltf.Options, error) {
+	traces, err := p.Traces()
+	if err != nil {
+		return nil, gltf.Options{}, err
+	}
+	g := gltf.Options{Origin: gltf.OriginOf(traces, p.Structures), DiscRadius: o.DiscRadius, Colours: palette.New(p.Types)}
+	if o.Origin != nil {
+		g.Origin.X, g.Origin.Y, g.Origin.Z = o.Origin[0], o.Origin[1], o.Origin[2]
+	}
+	if len(p.Holes) > 0 {
+		g.CRS = p.Holes[0].CRS
+	}
+	return traces, g, nil
+}
+
+// WriteGLB writes the programme as a binary glTF scene.
+func (p *Programme) WriteGLB(w io.Writer, o SceneOptions) error {
+	traces, g, err := p.scene(o)
+	if err != nil {
+		return err
+	}
+	return gltf.WriteGLB(w, traces, p.Structures, g)
+}
+
+// WriteGLTF writes the programme as a .gltf JSON to jsonW and its buffer to
+// binW, which the JSON names binName.
+func (p *Programme) WriteGLTF(jsonW, binW io.Writer, binName string, o SceneOptions) error {
+	traces, g, err := p.scene(o)
+	if err != nil {
+		return err
+	}
+	return gltf.WriteGLTF(jsonW, binW, binName, traces, p.Structures, g)
+}
+
+// WritePoints writes the structures as points with normals (csvio.WritePoints).
+func (p *Programme) WritePoints(w io.Writer) error { return csvio.WritePoints(w, p.Structures) }
+
+// Inverse returns the grid inverse of the collars' coordinate system: crs
+// when not empty, else the collars' labels, which must then name one system.
+func (p *Programme) Inverse(crs string) (geojson.Inverse, error) {
+	label := strings.TrimSpace(crs)
+	if label == "" {
+		for _, h := range p.Holes {
+			switch {
+			case h.CRS == "":
+			case label == "":
+				label = h.CRS
+			case !strings.EqualFold(label, h.CRS):
+				return nil, fmt.Errorf("collars are in %s and %s; write one coordinate system at a time or name one", label, h.CRS)
+			}
+		}
+	}
+	c, err := northref.ParseCRS(label)
+	if err != nil {
+		return nil, err
+	}
+	return geojson.UTM(c.Zone), nil
+}
+
+// WriteGeoJSON writes collars and surface traces in WGS 84 through the
+// grid inverse of crs (see [Programme.Inverse]).
+func (p *Programme) WriteGeoJSON(w io.Writer, crs string) error {
+	inv, err := p.Inverse(crs)
+	if err != nil {
+		return err
+	}
+	traces, err := p.Traces()
+	if err != nil {
+		return err
+	}
+	gh := make([]geojson.Hole, 0, len(p.Holes))
+	k := 0
+	for _, h := range p.Holes {
+		c := h.Collar
+		g := geojson.Hole{Name: h.Name, East: c.East, North: c.North, Elevation: c.Elevation, Azimuth: c.Azimuth, Dip: c.Dip,
+			Depth: c.Depth, Measurements: h.Measurements, QAFlags: h.QAFlags, Trace: exchange.Trace{Hole: h.Name}}
+		if h.Path != nil {
+			g.Trace = traces[k]
+			k++
+		}
+		gh = append(gh, g)
+	}
+	return geojson.Write(w, inv, gh)
+}
+
+// AGSOptions are the transmission details of an AGS4 file.
+type AGSOptions struct {
+	Recipient string    // TRAN_RECV; "" means "geotechnical database"
+	Date      time.Time // TRAN_DATE; zero means now (UTC)
+}
+
+// AGS returns the AGS4 transfer: LOCA from the collars, HORN from each
+// path between survey stations (direction at the top of each section, in
+// the output reference), DISC from the structures numbered per hole in
+// order.
+func (p *Programme) AGS(o AGSOptions) *ags4.Data {
+	if o.Recipient == "" {
+		o.Recipient = "geotechnical database"
+	}
+	if o.Date.IsZero() {
+		o.Date = time.Now().UTC()
+	}
+	name := p.Name
+	if name == "" {
+		name = "corvane"
+	}
+	d := &ags4.Data{
+		Project: ags4.Project{ID: name, Name: name},
+		Transmission: ags4.Transmission{IssueNo: "1", Date: o.Date, Producer: "corvane", Status: "Draft",
+			Description: "oriented core discontinuities", Recipient: o.Recipient},
+		Abbreviations: []ags4.Abbreviation{{Heading: "LOCA_TYPE", Code: "RC", Description: "Rotary core"}},
+	}
+	grefs := map[string]bool{}
+	for _, h := range p.Holes {
+		gref := strings.ToUpper(strings.TrimSpace(h.CRS))
+		if gref != "" && !grefs[gref] {
+			grefs[gref] = true
+			d.Abbreviations = append(d.Abbreviations, ags4.Abbreviation{Heading: "LOCA_GREF", Code: gref, Description: "coordinate reference system " + gref})
+		}
+		d.Locations = append(d.Locations, ags4.Location{ID: h.Name, Type: "RC", East: h.Collar.East, North: h.Collar.North, GridRef: gref,
+			GroundLevel: h.Collar.Elevation, FinalDepth: h.Collar.Depth})
+		if h.Path == nil {
+			continue
+		}
+		tops := []float64{0}
+		for _, iv := range h.Path.Intervals() {
+			tops = append(tops, iv.To)
+		}
+		tops = append(tops, h.Path.Depth())
+		slices.Sort(tops)
+		tops = slices.Compact(tops)
+		for i := 0; i+1 < len(tops); i++ {
+			pt, err := h.Path.At(tops[i])
+			if err != nil {
+				continue
+			}
+			az, dip := pt.Dir.AzimuthDip()
+			rem := ""
+			if tops[i] >= h.Path.LastStation() && tops[i] < h.Path.Depth() {
+				rem = "below the last survey station"
+			}
+			d.Orientations = append(d.Orientations, ags4.Orientation{Hole: h.Name, Top: tops[i], Base: tops[i+1], Azimuth: az, Dip: dip, Remarks: rem})
+		}
+	}
+	for _, t := range TypesOf(p.Structures) {
+		d.Abbreviations = append(d.Abbreviations, ags4.Abbreviation{Heading: "DISC_TYPE", Code: t, Description: "structure type " + t})
+	}
+	n := map[string]int{}
+	for _, s := range p.Structures {
+		n[s.Hole]++
+		d.Discontinuities = append(d.Discontinuities, ags4.Discontinuity{Hole: s.Hole, Top: s.Depth, Base: s.Depth, Set: s.Set,
+			Number: fmt.Sprint(n[s.Hole]), Type: s.Type, Dip: s.Dip, DipDirection: s.DipDirection})
+	}
+	return d
+}
+
+// WriteAGS writes the AGS4 file of [Programme.AGS].
+func (p *Programme) WriteAGS(w io.Writer, o AGSOptions) error { return ags4.Write(w, p.AGS(o)) }
