@@ -306,6 +306,11 @@ func TestContractTour(t *testing.T) {
 	f.must(200, f.site, "GET", base+"/statistics", nil, nil)
 	f.must(200, f.site, "GET", base+"/net", nil, nil)
 	f.must(200, f.site, "GET", base+"/rose?of=strike&bin=15", nil, nil)
+	f.must(200, f.site, "GET", base+"/scene.glb?disc_radius=0.5&trace_step=10&origin=1000,2000,300&hole=TR001", nil, nil)
+	f.must(422, f.site, "GET", base+"/holes.geojson?crs=EPSG:32750", nil, nil) // the fixture's collar is not in zone 50S
+	f.must(422, f.site, "GET", base+"/scene.glb?disc_radius=-1", nil, nil)
+	f.must(200, f.site, "GET", base+"/points.csv?type=JN", nil, nil)
+	f.must(200, f.site, "GET", base+"/transfer.ags?recipient=lab", nil, nil)
 	f.must(200, f.site, "GET", base+"/qa", nil, nil)
 	f.must(200, f.site, "POST", base+"/qa?persistent=JN", map[string]any{"picks": []map[string]any{{"hole_id": "TR001", "depth": 2, "dip": 40, "dip_direction": 100}}}, nil)
 	f.must(200, f.site, "GET", hb+"/qa?format=html", nil, nil)
@@ -319,6 +324,8 @@ func TestContractTour(t *testing.T) {
 	f.must(201, f.site, "POST", "/v1/projects", map[string]any{"name": "Tour 2"}, nil)
 	p2 := f.project("Tour 3", nil)
 	f.must(201, f.site, "POST", "/v1/projects/"+itoa(p2)+"/holes", map[string]any{"name": "H", "easting": 0, "northing": 0, "elevation": 0, "azimuth": 0, "dip": -90, "final_depth": 10}, nil)
+	f.must(201, f.site, "POST", "/v1/projects/"+itoa(p2)+"/holes", map[string]any{"name": "G", "easting": 431300, "northing": 6652500, "elevation": 400, "azimuth": 20, "dip": -60, "final_depth": 100, "crs": "EPSG:32750"}, nil)
+	f.must(200, f.site, "GET", "/v1/projects/"+itoa(p2)+"/holes.geojson?hole=G", nil, nil)
 
 	seen := f.check.operations()
 	for p, item := range d.Paths.Map() {

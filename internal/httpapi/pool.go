@@ -12,7 +12,7 @@ const heavyRetryAfter = "2"
 
 func errBusy() error {
 	return &edgeError{http.StatusServiceUnavailable, "busy",
-		"the server is running as many expensive requests (QA, statistics, nets, convert) as it allows; retry after " + heavyRetryAfter + " s", nil}
+		"the server is running as many expensive requests (QA, statistics, nets, convert, transfer exports) as it allows; retry after " + heavyRetryAfter + " s", nil}
 }
 
 // heavy admits an expensive request (QA, statistics, nets, rose, convert)

@@ -78,6 +78,10 @@ func (s *Server) routes() {
 	p.GET("/net", need(domain.RoleRead), s.heavy, s.net)
 	p.GET("/rose", need(domain.RoleRead), s.heavy, s.rose)
 
+	for _, name := range []string{"scene.glb", "holes.geojson", "points.csv", "transfer.ags"} {
+		p.GET("/"+name, need(domain.RoleRead), s.heavy, s.transferExport(name))
+	}
+
 	p.POST("/imports/:kind", s.importCSV)
 	p.GET("/audit", s.listAudit)
 }
