@@ -1,0 +1,243 @@
+package cli
+
+import (
+	"bytes"
+	"context"
+	"encoding/binary"
+	"encoding/csv"
+	"encoding/json"
+	"math"
+	"os"
+	"path/filepath"
+	"strconv"
+	"strings"
+	"testing"
+	"time"
+
+	"corvane/internal/domain"
+	"corvane/internal/exchange/ags4"
+	"corvane/internal/httpapi"
+	"corvane/internal/service"
+	"corvane/internal/store/sqlite"
+
+	"net/http/httptest"
+)
+
+// TestTransferDoors: equal answers at both doors of the transfer formats.
+// The demo programme is loaded into a SQLite store behind the real HTTP
+// server; `corvane transfer` is given the same programme as files (the demo
+// collars and surveys of testdata, which the demo is generated from, and
+// the service's measurements.csv export as the converted file: the columns
+// of `corvane convert`, one writer). Both doors then write every format
+// through package transfer from hole-model paths.
+//
+// GeoJSON and the AGS4 LOCA and HORN groups come only from the holes, so
+// they must be the same bytes. The structures differ by rounding only: the
+// command line reads positions to 0.001 m and angles to 0.01 degree from
+// the converted CSV, the route has full precision. So points, disc nodes
+// and DISC rows are compared as parsed values within those roundings, and
+// everything else (holes, types, sets, order, counts) exactly.
+func TestTransferDoors(t *testing.T) {
+	ctx := service.WithActor(context.Background(), service.System)
+	dir := t.TempDir()
+	dbPath := filepath.Join(dir, "corvane.db")
+	if err := sqlite.Migrate(dbPath, 0); err != nil {
+		t.Fatal(err)
+	}
+	st, err := sqlite.Open(ctx, dbPath)
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { st.Close() })
+	svc := service.New(st, nil)
+	p, _, err := svc.LoadDemo(ctx)
+	if err != nil {
+		t.Fatal(err)
+	}
+	vocab, err := svc.ListTypeCodes(ctx, p.ID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var codes []string
+	for _, tc := range vocab {
+		codes = append(codes, tc.Code)
+	}
+	token, _, err := svc.CreateToken(ctx, p.ID, domain.RoleRead, "reader")
+	if err != nil {
+		t.Fatal(err)
+	}
+	srv := httptest.NewServer(httpapi.New(httpapi.Options{Service: svc}))
+	t.Cleanup(srv.Close)
+	base := "/v1/projects/" + strconv.FormatInt(p.ID, 10)
+
+	converted := filepath.Join(dir, "measurements.csv")
+	if err := os.WriteFile(converted, getRoute(t, srv, token, base+"/measurements.csv"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	out := func(n string) string { return filepath.Join(dir, n) }
+	d := "../../testdata/tallowmere/"
+	code, _, stderr := runCLI("transfer", "--collars", d+"collars.csv", "--surveys", d+"surveys.csv", "--converted", converted,
+		"--output-reference", p.OutputAzimuthRef, "--types", strings.Join(codes, ","), "--project", p.Name,
+		"--glb", out("scene.glb"), "--geojson", out("holes.geojson"), "--points", out("points.csv"), "--ags", out("transfer.ags"),
+		"--disc-radius", "0.5", "--trace-step", "10")
+	if code != ExitOK {
+		t.Fatalf("transfer: exit %d: %s", code, stderr)
+	}
+	read := func(n string) []byte {
+		b, err := os.ReadFile(out(n))
+		if err != nil {
+			t.Fatal(err)
+		}
+		return b
+	}
+
+	// GeoJSON: the same bytes.
+	if cli, http := read("holes.geojson"), getRoute(t, srv, token, base+"/holes.geojson?trace_step=10"); !bytes.Equal(cli, http) {
+		t.Errorf("GeoJSON differs between the doors:\ncli  %.400s\nhttp %.400s", cli, http)
+	}
+
+	// Points: same rows; numbers within the CSV roundings.
+	cliPts, httpPts := parseCSV(t, read("points.csv")), parseCSV(t, getRoute(t, srv, token, base+"/points.csv"))
+	if len(cliPts) != len(httpPts) || len(cliPts) < 100 {
+		t.Fatalf("points: %d rows by the command line, %d by the route", len(cliPts), len(httpPts))
+	}
+	// Tolerances: x, y, z to 0.001 m each side; the normal from angles read
+	// to 0.01 degree (0.005 degree is 8.7e-5 rad, twice over for dip and
+	// dip direction); dip and dip direction are written to 0.01 from a value
+	// that is already one (a rounding of a rounding can move a half-way
+	// value by one step).
+	tol := []float64{0.0011, 0.0011, 0.0011, 3e-4, 3e-4, 3e-4, 0.0101, 0.0101}
+	for i := 1; i < len(cliPts); i++ {
+		c, h := cliPts[i], httpPts[i]
+		for k := 0; k < 8; k++ {
+			if dv := math.Abs(num(t, c[k]) - num(t, h[k])); dv > tol[k] && !(k == 7 && math.Abs(dv-360) <= tol[k]) {
+				t.Fatalf("points row %d column %s: command line %s, route %s", i, cliPts[0][k], c[k], h[k])
+			}
+		}
+		if strings.Join(c[8:], ",") != strings.Join(h[8:], ",") {
+			t.Fatalf("points row %d: command line %v, route %v", i, c, h)
+		}
+	}
+
+	// glTF: the same JSON but for the disc nodes' translations and
+	// rotations (the positions and poles above); the same binary size.
+	cliDoc, cliBin := glbParts(t, read("scene.glb"))
+	httpDoc, httpBin := glbParts(t, getRoute(t, srv, token, base+"/scene.glb?disc_radius=0.5&trace_step=10"))
+	if len(cliBin) != len(httpBin) {
+		t.Errorf("glb binary chunk: %d bytes by the command line, %d by the route", len(cliBin), len(httpBin))
+	}
+	cn, hn := cliDoc["nodes"].([]any), httpDoc["nodes"].([]any)
+	if len(cn) != len(hn) {
+		t.Fatalf("glTF nodes: %d by the command line, %d by the route", len(cn), len(hn))
+	}
+	discs := 0
+	for i := range cn {
+		a, b := cn[i].(map[string]any), hn[i].(map[string]any)
+		if _, ok := a["rotation"]; ok {
+			discs++
+			for _, k := range []string{"translation", "rotation"} {
+				va, vb := a[k].([]any), b[k].([]any)
+				for j := range va {
+					if math.Abs(va[j].(float64)-vb[j].(float64)) > 2e-3 {
+						t.Fatalf("glTF node %d %s: %v by the command line, %v by the route", i, k, va, vb)
+					}
+				}
+				delete(a, k)
+				delete(b, k)
+			}
+			delete(a, "extras") // dip and dip direction, as in the points
+			delete(b, "extras")
+		}
+		ja, _ := json.Marshal(a)
+		jb, _ := json.Marshal(b)
+		if !bytes.Equal(ja, jb) {
+			t.Fatalf("glTF node %d: %s by the command line, %s by the route", i, ja, jb)
+		}
+	}
+	if discs != len(cliPts)-1 {
+		t.Errorf("%d disc nodes, want %d", discs, len(cliPts)-1)
+	}
+	for _, k := range []string{"asset", "materials", "meshes", "accessors", "bufferViews", "buffers", "scenes"} {
+		ja, _ := json.Marshal(cliDoc[k])
+		jb, _ := json.Marshal(httpDoc[k])
+		if !bytes.Equal(ja, jb) {
+			t.Errorf("glTF %s differs: %.300s by the command line, %.300s by the route", k, ja, jb)
+		}
+	}
+
+	// AGS4: LOCA and HORN the same; DISC the same rows, whole degrees equal
+	// unless the route's value is within rounding of a half degree.
+	ca, err := ags4.Read(bytes.NewReader(read("transfer.ags")), "cli.ags")
+	if err != nil {
+		t.Fatal(err)
+	}
+	ha, err := ags4.Read(bytes.NewReader(getRoute(t, srv, token, base+"/transfer.ags")), "http.ags")
+	if err != nil {
+		t.Fatal(err)
+	}
+	eq := func(what string, a, b any) {
+		ja, _ := json.Marshal(a)
+		jb, _ := json.Marshal(b)
+		if !bytes.Equal(ja, jb) {
+			t.Errorf("AGS4 %s differs:\n%.400s\n%.400s", what, ja, jb)
+		}
+	}
+	eq("PROJ", ca.Project, ha.Project)
+	eq("LOCA", ca.Locations, ha.Locations)
+	eq("HORN", ca.Orientations, ha.Orientations)
+	eq("ABBR", ca.Abbreviations, ha.Abbreviations)
+	if len(ca.Discontinuities) != len(ha.Discontinuities) || len(ca.Discontinuities) != len(cliPts)-1 {
+		t.Fatalf("DISC: %d rows by the command line, %d by the route, want %d", len(ca.Discontinuities), len(ha.Discontinuities), len(cliPts)-1)
+	}
+	for i, c := range ca.Discontinuities {
+		h := ha.Discontinuities[i]
+		exact := httpPts[i+1]
+		for _, v := range []struct {
+			a, b float64
+			full string
+		}{{c.Dip, h.Dip, exact[6]}, {c.DipDirection, h.DipDirection, exact[7]}} {
+			if v.a != v.b && math.Abs(math.Abs(num(t, v.full)-math.Trunc(num(t, v.full)))-0.5) > 0.011 {
+				t.Fatalf("DISC row %d: %+v by the command line, %+v by the route (route's value %s)", i, c, h, v.full)
+			}
+		}
+		c.Dip, c.DipDirection = h.Dip, h.DipDirection
+		eq("DISC row", c, h)
+	}
+	if time.Since(ha.Transmission.Date) > 48*time.Hour {
+		t.Errorf("TRAN_DATE %v is not today", ha.Transmission.Date)
+	}
+}
+
+func parseCSV(t *testing.T, b []byte) [][]string {
+	t.Helper()
+	recs, err := csv.NewReader(bytes.NewReader(b)).ReadAll()
+	if err != nil {
+		t.Fatal(err)
+	}
+	return recs
+}
+
+func num(t *testing.T, s string) float64 {
+	t.Helper()
+	v, err := strconv.ParseFloat(s, 64)
+	if err != nil {
+		t.Fatalf("%q: %v", s, err)
+	}
+	return v
+}
+
+// glbParts splits a .glb into its JSON document and binary chunk.
+func glbParts(t *testing.T, b []byte) (map[string]any, []byte) {
+	t.Helper()
+	if len(b) < 28 || string(b[:4]) != "glTF" || int(binary.LittleEndian.Uint32(b[8:])) != len(b) {
+		t.Fatal("not a glTF binary")
+	}
+	jl := int(binary.LittleEndian.Uint32(b[12:]))
+	var doc map[string]any
+	if err := json.Unmarshal(b[20:20+jl], &doc); err != nil {
+		t.Fatal(err)
+	}
+	rest := b[20+jl:]
+	bl := int(binary.LittleEndian.Uint32(rest))
+	return doc, rest[8 : 8+bl]
+}
