@@ -522,6 +522,19 @@ func TestNetsAndQA(t *testing.T) {
 		t.Errorf("downloaded rose (%d bytes) is not the served strike rose (HTTP %d, %d bytes)", len(rs), code, len(served))
 	}
 
+	// The selection exports for modelling: the 3D scene downloads as the
+	// route serves it, bytes intact (a binary file).
+	dlGLB := t.TempDir()
+	if _, err := chromedp.CallBrowser(p.ctx, browser.SetDownloadBehavior, browser.SetDownloadBehaviorParams{Behavior: browser.SetDownloadBehaviorBehaviorAllow, DownloadPath: dlGLB}); err != nil {
+		t.Fatalf("allowing downloads: %v", err)
+	}
+	p.do("download scene", chromedp.SetValue(chromedp.CSS("#n-transfer"), "glb"), chromedp.Click(chromedp.CSS("#download-transfer")))
+	glb := waitFile(t, dlGLB, "scene.glb")
+	code, _, served = s.api(t, http.MethodGet, fmt.Sprintf("/v1/projects/%d/scene.glb", s.Project), "", nil)
+	if code != http.StatusOK || !bytes.Equal(glb, served) || !bytes.HasPrefix(glb, []byte("glTF")) {
+		t.Errorf("downloaded scene (%d bytes) is not the served .glb (HTTP %d, %d bytes)", len(glb), code, len(served))
+	}
+
 	// The QA view with the bedding of the demo programme as the persistent
 	// fabric for the mark-rotation check.
 	p.do("open QA", chromedp.Navigate(fmt.Sprintf("%s/#/p/%d/qa?persistent=bedding", s.URL, s.Project)))

@@ -48,7 +48,7 @@ export function query(params) {
 
 // request calls the API and returns {status, data, etag, headers}. JSON bodies
 // are sent as JSON; responses are parsed by their content type ("text" for
-// SVG and CSV). Failed calls throw ApiError.
+// SVG and CSV), or kept as bytes with opts.binary. Failed calls throw ApiError.
 export async function request(method, path, opts = {}) {
   const headers = { Accept: opts.accept || "application/json" };
   const tok = getToken();
@@ -69,7 +69,9 @@ export async function request(method, path, opts = {}) {
   const ct = res.headers.get("Content-Type") || "";
   let data = null;
   if (res.status !== 204 && method !== "HEAD") {
-    if (ct.includes("json")) {
+    if (opts.binary && res.ok) {
+      data = await res.arrayBuffer(); // a file to save as it came (glTF, GeoJSON, AGS4)
+    } else if (ct.includes("json")) {
       data = await res.json().catch(() => null);
     } else {
       data = await res.text();
@@ -100,8 +102,8 @@ export async function getAll(path, params = {}) {
 }
 
 // download fetches path with the token and offers the body as a file.
-export async function download(path, filename, accept) {
-  const r = await request("GET", path, { accept });
+export async function download(path, filename, accept, binary = false) {
+  const r = await request("GET", path, { accept, binary });
   save(r.data, filename, accept);
   return r.data;
 }

@@ -2,7 +2,7 @@
 // weighting. The net and the statistics come from the server; the SVG can be
 // downloaded as it was served.
 
-import { request, query, save } from "./api.js";
+import { request, query, save, download } from "./api.js";
 import { h, fmt, az, say, problemText, add, put } from "./dom.js";
 
 function showSvg(host, text, label) {
@@ -101,6 +101,14 @@ export async function netsView(ctx) {
   const roseOf = h("select", { id: "n-rose" }, h("option", { value: "dip_direction" }, "dip directions"), h("option", { value: "strike" }, "strikes (both ways)"));
   roseOf.value = sel.rose;
   const msg = h("span", { class: "field-msg", role: "alert" });
+  // The transfer exports of the service, with this page's selection.
+  const TRANSFER = {
+    glb: { path: "scene.glb", label: "3D scene (glTF .glb)", type: "model/gltf-binary" },
+    geojson: { path: "holes.geojson", label: "map (GeoJSON)", type: "application/geo+json" },
+    points: { path: "points.csv", label: "points with normals (CSV)", type: "text/csv" },
+    ags: { path: "transfer.ags", label: "geotechnical (AGS4)", type: "text/plain" },
+  };
+  const transferFormat = h("select", { id: "n-transfer" }, Object.entries(TRANSFER).map(([k, v]) => h("option", { value: k }, v.label)));
   const form = h("form", { class: "card filters", id: "net-form" },
     h("fieldset", {}, h("legend", {}, "Holes"), holeBoxes),
     h("fieldset", {}, h("legend", {}, "Types"), typeBoxes),
@@ -108,7 +116,8 @@ export async function netsView(ctx) {
     h("div", { class: "field inline" }, h("label", { for: "n-weight" }, "Weighting"), weighting, h("label", { for: "n-sets" }, "Sets"), sets),
     h("div", { class: "field inline" }, h("label", { for: "n-proj" }, "Net"), projection, h("label", { for: "n-rose" }, "Rose of"), roseOf),
     h("fieldset", {}, h("legend", {}, "Show with the poles"), showBoxes),
-    h("div", { class: "actions" }, h("button", { type: "submit", class: "primary" }, "Draw"), h("button", { type: "button", id: "download-svg" }, "Download SVG"), h("button", { type: "button", id: "download-rose" }, "Download rose SVG"), msg));
+    h("div", { class: "actions" }, h("button", { type: "submit", class: "primary" }, "Draw"), h("button", { type: "button", id: "download-svg" }, "Download SVG"), h("button", { type: "button", id: "download-rose" }, "Download rose SVG"), msg),
+    h("div", { class: "field inline" }, h("label", { for: "n-transfer" }, "Export the selection for modelling"), transferFormat, h("button", { type: "button", id: "download-transfer" }, "Download")));
   const netHost = h("div", { class: "net-big", id: "net" }, h("p", { class: "loading" }, "Drawing\u2026"));
   const roseHost = h("div", { class: "rose", id: "rose" });
   const statsHost = h("section", { class: "card" }, h("h2", {}, "Set statistics"));
@@ -151,6 +160,17 @@ export async function netsView(ctx) {
   };
   form.querySelector("#download-svg").addEventListener("click", () => offer(lastSvg, "net"));
   form.querySelector("#download-rose").addEventListener("click", () => offer(lastRose, "rose"));
+  form.querySelector("#download-transfer").addEventListener("click", async () => {
+    const s = read();
+    if (!s) return;
+    const t = TRANSFER[transferFormat.value];
+    try {
+      await download(`/v1/projects/${p.id}/${t.path}` + query(filterOf(s)), `${p.project.name.replace(/\W+/g, "-")}-${t.path}`, t.type, true);
+      say("Exported.", "ok");
+    } catch (e) {
+      msg.textContent = "Export failed: " + problemText(e);
+    }
+  });
 
   const fq = filterOf(sel);
   // The routes take the options of corvane net and stats: sets by type code
