@@ -536,3 +536,33 @@ func (h *Hole) orient(m *Measurement) (Result, error) {
 	}
 	return r, nil
 }
+
+// FieldDipDirection names the dip direction of a plane given to
+// [Hole.CoreAngles].
+const FieldDipDirection = "dip_direction"
+
+// CoreAngles returns the alpha and beta that plane p (dip, and dip direction
+// in the hole's output reference) shows on the core at depth md: the inverse
+// of [Hole.Orient] for a plane, with the hole's path and the project's
+// core-angle convention (coreangle.Angles). It is how a plane logged
+// elsewhere (an AGS4 DISC row, say) becomes a core measurement of this
+// hole. Errors are *Error naming the field: the hole's own problem
+// (hole_id), a depth outside the hole (depth), a vertical hole, where beta
+// has no reference line (dip_direction).
+func (h *Hole) CoreAngles(md float64, p geom.Plane) (alpha, beta float64, err error) {
+	if h.Err != nil {
+		return 0, 0, &Error{Field: FieldHoleID, Station: -1, Msg: h.Err.Msg}
+	}
+	if math.IsNaN(md) || math.IsInf(md, 0) || md < 0 || md > h.Path.Depth() {
+		return 0, 0, errorf(FieldDepth, "depth %g is outside hole %q (0 to %g)", md, h.In.ID, h.Path.Depth())
+	}
+	pt, err := h.Path.At(md)
+	if err != nil {
+		return 0, 0, errorf(FieldDepth, "%v", err)
+	}
+	alpha, beta, w := coreangle.Angles(pt.Dir, p, h.conv)
+	if w.Has(coreangle.Vertical) || math.IsNaN(beta) {
+		return 0, 0, errorf(FieldDipDirection, "hole %q is vertical at depth %g: beta has no reference line, so the plane cannot be put on the core", h.In.ID, md)
+	}
+	return alpha, beta, nil
+}

@@ -310,7 +310,14 @@ func TestContractTour(t *testing.T) {
 	f.must(422, f.site, "GET", base+"/holes.geojson?crs=EPSG:32750", nil, nil) // the fixture's collar is not in zone 50S
 	f.must(422, f.site, "GET", base+"/scene.glb?disc_radius=-1", nil, nil)
 	f.must(200, f.site, "GET", base+"/points.csv?type=JN", nil, nil)
-	f.must(200, f.site, "GET", base+"/transfer.ags?recipient=lab", nil, nil)
+	ags := f.must(200, f.site, "GET", base+"/transfer.ags?recipient=lab", nil, nil)
+	var imp struct {
+		Created int `json:"created"`
+	}
+	f.must(200, f.site, "POST", base+"/imports/discontinuities?dry_run=true", string(ags.Body), &imp, "Content-Type", "text/plain")
+	if imp.Created != 1 {
+		t.Errorf("dry run of the exported AGS4: %d measurements, want the 1 plane of TR001", imp.Created)
+	}
 	f.must(200, f.site, "GET", base+"/qa", nil, nil)
 	f.must(200, f.site, "POST", base+"/qa?persistent=JN", map[string]any{"picks": []map[string]any{{"hole_id": "TR001", "depth": 2, "dip": 40, "dip_direction": 100}}}, nil)
 	f.must(200, f.site, "GET", hb+"/qa?format=html", nil, nil)

@@ -63,18 +63,20 @@ type ImportResult struct {
 }
 
 // ImportRole is the role an import of kind needs: admin for collars and
-// surveys, log for runs and measurements; Invalid for an unknown kind.
+// surveys, log for runs, measurements and discontinuities (AGS4); Invalid
+// for an unknown kind.
 func ImportRole(kind string) (domain.Role, error) {
 	switch kind {
 	case ImportCollars, ImportSurveys:
 		return domain.RoleAdmin, nil
-	case ImportRuns, ImportMeasurements:
+	case ImportRuns, ImportMeasurements, ImportDiscontinuities:
 		return domain.RoleLog, nil
 	}
-	return "", domain.FieldErr("kind", "import kind must be collars, surveys, runs or measurements, got %q", kind)
+	return "", domain.FieldErr("kind", "import kind must be collars, surveys, runs, measurements or discontinuities, got %q", kind)
 }
 
-// Import reads a CSV file of one kind into the project, all or nothing: when
+// Import reads a CSV file of one kind (or, for discontinuities, an AGS4
+// file whose DISC rows become measurements) into the project, all or nothing: when
 // any row is bad nothing is written and the Invalid error lists every bad row
 // (up to MaxReportedProblems) with its file, line, column and reason in
 // Problems. Collars and surveys need the admin role, runs and measurements
@@ -85,6 +87,9 @@ func (s *Service) Import(ctx context.Context, projectID int64, req ImportRequest
 	res := ImportResult{Kind: req.Kind, File: req.File, DryRun: req.DryRun}
 	if res.File == "" {
 		res.File = req.Kind + ".csv"
+		if req.Kind == ImportDiscontinuities {
+			res.File = req.Kind + ".ags"
+		}
 	}
 	role, err := ImportRole(req.Kind)
 	if err != nil {
@@ -128,6 +133,8 @@ func (s *Service) Import(ctx context.Context, projectID int64, req ImportRequest
 			err = importRuns(ctx, st, p, body, &res)
 		case ImportMeasurements:
 			err = s.importMeasurements(ctx, st, p, a, body, &res)
+		case ImportDiscontinuities:
+			err = s.importDiscontinuities(ctx, st, p, a, body, &res)
 		}
 		if err != nil {
 			return err

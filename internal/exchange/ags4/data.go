@@ -74,6 +74,9 @@ type Discontinuity struct {
 	Type              string // DISC_TYPE abbreviation, defined in Abbreviations
 	Dip, DipDirection float64
 	Remarks           string
+	// Line is the file line of the row when read ([Read]); 0 when built.
+	// Writing ignores it.
+	Line int
 }
 
 // Spacing is a FRAC row: fracture spacing over a depth interval for one set
@@ -324,7 +327,7 @@ func Read(r io.Reader, name string) (*Data, error) {
 	each("DISC", func(c *cells) {
 		d.Discontinuities = append(d.Discontinuities, Discontinuity{Hole: c.s("LOCA_ID"), Top: c.n("DISC_TOP"), Base: c.n("DISC_BASE"),
 			Set: c.s("FRAC_SET"), Number: c.s("DISC_NUMB"), Type: c.s("DISC_TYPE"), Dip: c.n("DISC_DIP"), DipDirection: c.n("DISC_DIR"),
-			Remarks: c.s("DISC_REM")})
+			Remarks: c.s("DISC_REM"), Line: c.line})
 	})
 	each("FRAC", func(c *cells) {
 		d.Spacings = append(d.Spacings, Spacing{Hole: c.s("LOCA_ID"), From: c.n("FRAC_FROM"), To: c.n("FRAC_TO"), Set: c.s("FRAC_SET"),
