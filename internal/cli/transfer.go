@@ -14,6 +14,7 @@ import (
 
 	"corvane/internal/convert"
 	"corvane/internal/csvio"
+	"corvane/internal/desurvey"
 	"corvane/internal/exchange"
 	"corvane/internal/exchange/gltf"
 	"corvane/internal/exchange/transfer"
@@ -47,8 +48,9 @@ was made from, desurveys the holes the same way (give the same --method, --feet,
   --points        one row per structure: x, y, z, nx, ny, nz (the pole), dip,
                   dip_direction, type, set, hole_id, depth.
   --ags           AGS4: PROJ, TRAN, UNIT, TYPE, ABBR, LOCA (collars), HORN (hole
-                  direction between survey stations), DISC (structures; dip and dip
-                  direction to the whole degree).
+                  direction between survey stations), CORE (with --intervals: recoveries
+                  and RQD as corvane intervals computes them), DISC (structures; dip and
+                  dip direction to the whole degree).
 
 Rows of the converted file without a plane and position (no dip direction, an error, a
 lineation alone) are skipped and counted. GeoJSON's qa_flags counts a hole's rows that
@@ -83,6 +85,7 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 	project := fs.String("project", "corvane", "AGS4 PROJ_ID (and PROJ_NAME)")
 	recipient := fs.String("recipient", "geotechnical database", "AGS4 TRAN_RECV")
 	date := fs.String("date", "", "AGS4 TRAN_DATE, YYYY-MM-DD (default today)")
+	intervals := fs.String("intervals", "", "core intervals CSV (as corvane intervals reads it): AGS4 CORE rows with recoveries and RQD")
 	typesFlag := fs.String("types", "", "the project's type codes, comma-separated, that colours are given to in sorted order (default: the types in the converted file)")
 	var opt convert.Options
 	paths := addPathFlags(fs, &opt)
@@ -152,6 +155,18 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 			prog.Structures = append(prog.Structures, exchange.Structure{Hole: r.HoleID, Depth: r.Depth, Pos: r.Pos, Pole: r.Plane.Normal(),
 				Dip: r.Plane.Dip, DipDirection: r.Plane.DipDirection, Type: r.Type, Set: r.Set, Uncertainty: math.NaN()})
 		}
+	}
+	if *intervals != "" {
+		ivs, err := readIntervalsFile(env, *intervals, *collars)
+		if err != nil {
+			fmt.Fprint(env.Stderr, "corvane transfer: ")
+			csvio.Report(env.Stderr, err)
+			return ExitUsage
+		}
+		for _, r := range ivs {
+			prog.Intervals = append(prog.Intervals, transfer.Interval{Hole: r.HoleID, Interval: r.Interval})
+		}
+		prog.Feet = opt.Unit == desurvey.Feet
 	}
 	prog.Types = transfer.TypesOf(prog.Structures)
 	if *typesFlag != "" {

@@ -163,3 +163,49 @@ func TestTransferUsage(t *testing.T) {
 		}
 	}
 }
+
+// TestTransferCoreIntervals: with --intervals the AGS4 file has a CORE row
+// per interval with the recoveries and RQD of package coreinterval. Values
+// by the definitions (Deere 1964; Deere & Deere 1988): TCR = 100 x 2.85 / 3
+// = 95, SCR = 100 x 2.4 / 3 = 80, RQD = 100 x (0.5 + 0.3 + 1.2) / 3 = 66.7,
+// written to the whole percent as CORE's 0DP asks; an interval without
+// pieces or sound has an empty RQD. An interval past the hole is refused.
+func TestTransferCoreIntervals(t *testing.T) {
+	dir := t.TempDir()
+	d := "../../testdata/tallowmere/"
+	conv := filepath.Join(dir, "oriented.csv")
+	if code, _, stderr := runCLI("convert", "--collars", d+"collars.csv", "--surveys", d+"surveys.csv", "--structures", d+"structures.csv", "-o", conv); code != ExitOK {
+		t.Fatalf("convert: exit %d: %s", code, stderr)
+	}
+	iv := filepath.Join(dir, "intervals.csv")
+	if err := os.WriteFile(iv, []byte("hole_id,from,to,recovered,solid,pieces,natural_breaks\nTM001,0,3,2.85,2.4,0.5;0.05;0.3;0.08;1.2,4\nTM001,3,6,3,3,,0\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	ags := filepath.Join(dir, "t.ags")
+	if code, _, stderr := runCLI("transfer", "--collars", d+"collars.csv", "--surveys", d+"surveys.csv", "--converted", conv, "--ags", ags, "--intervals", iv); code != ExitOK {
+		t.Fatalf("transfer: exit %d: %s", code, stderr)
+	}
+	f, _ := os.Open(ags)
+	data, err := ags4.Read(f, "t.ags")
+	f.Close()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(data.Cores) != 2 {
+		t.Fatalf("%d CORE rows, want 2", len(data.Cores))
+	}
+	c := data.Cores[0]
+	if c.Hole != "TM001" || c.Top != 0 || c.Base != 3 || c.TotalRecovery != 95 || c.SolidRecovery != 80 || c.RQD != 67 {
+		t.Errorf("CORE row 1: %+v", c)
+	}
+	if c := data.Cores[1]; c.TotalRecovery != 100 || !math.IsNaN(c.RQD) {
+		t.Errorf("CORE row 2: %+v", c)
+	}
+	if err := os.WriteFile(iv, []byte("hole_id,from,to\nTM001,250,260\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	code, _, stderr := runCLI("transfer", "--collars", d+"collars.csv", "--surveys", d+"surveys.csv", "--converted", conv, "--ags", ags, "--intervals", iv)
+	if code != ExitUsage || !strings.Contains(stderr, "intervals.csv") || !strings.Contains(stderr, "line 2") {
+		t.Errorf("an interval past the hole: exit %d: %s", code, stderr)
+	}
+}

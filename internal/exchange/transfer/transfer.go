@@ -13,10 +13,12 @@ package transfer
 import (
 	"fmt"
 	"io"
+	"math"
 	"slices"
 	"strings"
 	"time"
 
+	"corvane/internal/coreinterval"
 	"corvane/internal/csvio"
 	"corvane/internal/desurvey"
 	"corvane/internal/exchange"
@@ -62,8 +64,19 @@ type Programme struct {
 	// TraceStep is the largest spacing of trace points; 0 means
 	// exchange.DefaultTraceStep.
 	TraceStep float64
+	// Intervals are logged core intervals (AGS4 CORE); their recoveries and
+	// RQD come from package coreinterval, with the RQD piece threshold of
+	// the length unit (Feet).
+	Intervals []Interval
+	Feet      bool
 
 	index map[string]int // hole name -> index in Holes, built by Count
+}
+
+// Interval is one logged core interval of a hole.
+type Interval struct {
+	Hole string
+	coreinterval.Interval
 }
 
 // Count records one measurement of hole: placed when it has a plane and a
@@ -220,7 +233,8 @@ type AGSOptions struct {
 
 // AGS returns the AGS4 transfer: LOCA from the collars, HORN from each
 // path between survey stations (direction at the top of each section, in
-// the output reference), DISC from the structures numbered per hole in
+// the output reference), CORE from the core intervals (recoveries and RQD
+// by package coreinterval), DISC from the structures numbered per hole in
 // order.
 func (p *Programme) AGS(o AGSOptions) *ags4.Data {
 	if o.Recipient == "" {
@@ -270,6 +284,15 @@ func (p *Programme) AGS(o AGSOptions) *ags4.Data {
 			}
 			d.Orientations = append(d.Orientations, ags4.Orientation{Hole: h.Name, Top: tops[i], Base: tops[i+1], Azimuth: az, Dip: dip, Remarks: rem})
 		}
+	}
+	minPiece := coreinterval.MinPiece
+	if p.Feet {
+		minPiece = coreinterval.MinPieceFeet
+	}
+	for _, iv := range p.Intervals {
+		dv := coreinterval.Derive(iv.Interval, minPiece)
+		d.Cores = append(d.Cores, ags4.Core{Hole: iv.Hole, Top: iv.From, Base: iv.To, TotalRecovery: dv.TCR, SolidRecovery: dv.SCR,
+			RQD: dv.RQD, Diameter: math.NaN()})
 	}
 	for _, t := range TypesOf(p.Structures) {
 		d.Abbreviations = append(d.Abbreviations, ags4.Abbreviation{Heading: "DISC_TYPE", Code: t, Description: "structure type " + t})
