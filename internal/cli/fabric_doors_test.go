@@ -32,21 +32,7 @@ import (
 // this test is about the statistics pipeline and its doors.)
 func doorsProgramme(t *testing.T) (srv *httptest.Server, token string, pid int64, csvPath string) {
 	t.Helper()
-	ctx := service.WithActor(context.Background(), service.System)
-	path := filepath.Join(t.TempDir(), "corvane.db")
-	if err := sqlite.Migrate(path, 0); err != nil {
-		t.Fatal(err)
-	}
-	st, err := sqlite.Open(ctx, path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	t.Cleanup(func() { st.Close() })
-	svc := service.New(st, nil)
-	p, _, err := svc.LoadDemo(ctx)
-	if err != nil {
-		t.Fatal(err)
-	}
+	ctx, svc, p := demoService(t)
 	types, err := svc.ListTypeCodes(ctx, p.ID)
 	if err != nil || len(types) == 0 {
 		t.Fatalf("type codes: %v %v", types, err)
@@ -65,12 +51,7 @@ func doorsProgramme(t *testing.T) (srv *httptest.Server, token string, pid int64
 			t.Fatal(err)
 		}
 	}
-	token, _, err = svc.CreateToken(ctx, p.ID, domain.RoleRead, "reader")
-	if err != nil {
-		t.Fatal(err)
-	}
-	srv = httptest.NewServer(httpapi.New(httpapi.Options{Service: svc}))
-	t.Cleanup(srv.Close)
+	srv, token = readerServer(t, ctx, svc, p.ID)
 
 	var b strings.Builder
 	b.WriteString("hole_id,type,dip,dip_direction,line_trend,line_plunge,hole_azimuth,hole_dip,azimuth_reference,error\n")
@@ -108,6 +89,40 @@ func doorsProgramme(t *testing.T) (srv *httptest.Server, token string, pid int64
 		t.Fatal(err)
 	}
 	return srv, token, p.ID, csvPath
+}
+
+// demoService is the demo programme on a fresh SQLite store.
+func demoService(t *testing.T) (context.Context, *service.Service, domain.Project) {
+	t.Helper()
+	ctx := service.WithActor(context.Background(), service.System)
+	path := filepath.Join(t.TempDir(), "corvane.db")
+	if err := sqlite.Migrate(path, 0); err != nil {
+		t.Fatal(err)
+	}
+	st, err := sqlite.Open(ctx, path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { st.Close() })
+	svc := service.New(st, nil)
+	p, _, err := svc.LoadDemo(ctx)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return ctx, svc, p
+}
+
+// readerServer serves svc over the real HTTP server and returns a reader
+// token of project pid.
+func readerServer(t *testing.T, ctx context.Context, svc *service.Service, pid int64) (*httptest.Server, string) {
+	t.Helper()
+	token, _, err := svc.CreateToken(ctx, pid, domain.RoleRead, "reader")
+	if err != nil {
+		t.Fatal(err)
+	}
+	srv := httptest.NewServer(httpapi.New(httpapi.Options{Service: svc}))
+	t.Cleanup(srv.Close)
+	return srv, token
 }
 
 func getRoute(t *testing.T, srv *httptest.Server, token, path string) []byte {

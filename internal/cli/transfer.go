@@ -2,7 +2,6 @@ package cli
 
 import (
 	"context"
-	"errors"
 	"flag"
 	"fmt"
 	"io"
@@ -89,19 +88,11 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 	typesFlag := fs.String("types", "", "the project's type codes, comma-separated, that colours are given to in sorted order (default: the types in the converted file)")
 	var opt convert.Options
 	paths := addPathFlags(fs, &opt)
-	if err := fs.Parse(args); err != nil {
-		if errors.Is(err, flag.ErrHelp) {
-			return ExitOK
-		}
-		return ExitUsage
+	fail, code, done := parseOrientArgs(env, fs, "transfer", args)
+	if done {
+		return code
 	}
-	usageErr := func(format string, a ...any) int {
-		fmt.Fprintf(env.Stderr, "corvane transfer: "+format+"\n", a...)
-		return ExitUsage
-	}
-	if fs.NArg() > 0 {
-		return usageErr("unexpected argument %q", fs.Arg(0))
-	}
+	usageErr := func(format string, a ...any) int { return fail(fmt.Errorf(format, a...)) }
 	if *collars == "" || *surveys == "" || *converted == "" {
 		return usageErr("--collars, --surveys and --converted are required (see corvane transfer -h)")
 	}

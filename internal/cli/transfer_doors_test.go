@@ -2,7 +2,6 @@ package cli
 
 import (
 	"bytes"
-	"context"
 	"encoding/binary"
 	"encoding/csv"
 	"encoding/json"
@@ -14,13 +13,7 @@ import (
 	"testing"
 	"time"
 
-	"corvane/internal/domain"
 	"corvane/internal/exchange/ags4"
-	"corvane/internal/httpapi"
-	"corvane/internal/service"
-	"corvane/internal/store/sqlite"
-
-	"net/http/httptest"
 )
 
 // TestTransferDoors: equal answers at both doors of the transfer formats.
@@ -38,22 +31,8 @@ import (
 // and DISC rows are compared as parsed values within those roundings, and
 // everything else (holes, types, sets, order, counts) exactly.
 func TestTransferDoors(t *testing.T) {
-	ctx := service.WithActor(context.Background(), service.System)
+	ctx, svc, p := demoService(t)
 	dir := t.TempDir()
-	dbPath := filepath.Join(dir, "corvane.db")
-	if err := sqlite.Migrate(dbPath, 0); err != nil {
-		t.Fatal(err)
-	}
-	st, err := sqlite.Open(ctx, dbPath)
-	if err != nil {
-		t.Fatal(err)
-	}
-	t.Cleanup(func() { st.Close() })
-	svc := service.New(st, nil)
-	p, _, err := svc.LoadDemo(ctx)
-	if err != nil {
-		t.Fatal(err)
-	}
 	vocab, err := svc.ListTypeCodes(ctx, p.ID)
 	if err != nil {
 		t.Fatal(err)
@@ -62,12 +41,7 @@ func TestTransferDoors(t *testing.T) {
 	for _, tc := range vocab {
 		codes = append(codes, tc.Code)
 	}
-	token, _, err := svc.CreateToken(ctx, p.ID, domain.RoleRead, "reader")
-	if err != nil {
-		t.Fatal(err)
-	}
-	srv := httptest.NewServer(httpapi.New(httpapi.Options{Service: svc}))
-	t.Cleanup(srv.Close)
+	srv, token := readerServer(t, ctx, svc, p.ID)
 	base := "/v1/projects/" + strconv.FormatInt(p.ID, 10)
 
 	converted := filepath.Join(dir, "measurements.csv")

@@ -39,13 +39,9 @@ func (s *Service) importDiscontinuities(ctx context.Context, st domain.Store, p 
 	if len(data.Discontinuities) == 0 {
 		return &domain.Error{Kind: domain.Invalid, Msg: "no DISC group: nothing to import", Loc: domain.Location{File: res.File}}
 	}
-	vocab, err := st.ListTypeCodes(ctx, p.ID)
+	vocab, codes, err := vocabulary(ctx, st, p.ID)
 	if err != nil {
 		return err
-	}
-	codes := map[string]bool{}
-	for _, tc := range vocab {
-		codes[tc.Code] = true
 	}
 	holes := newHoleNames(st, p.ID)
 	d := newDeriver(st, p)

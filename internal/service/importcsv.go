@@ -446,13 +446,9 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 	if iType < 0 {
 		return &domain.Error{Kind: domain.Invalid, Msg: `missing column "type" (a code of the project's vocabulary)`, Loc: domain.Location{File: res.File, Line: 1}}
 	}
-	vocab, err := st.ListTypeCodes(ctx, p.ID)
+	_, codes, err := vocabulary(ctx, st, p.ID)
 	if err != nil {
 		return err
-	}
-	codes := map[string]bool{}
-	for _, tc := range vocab {
-		codes[tc.Code] = true
 	}
 	holes := newHoleNames(st, p.ID)
 	ps := &problems{file: res.File}
@@ -556,6 +552,16 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 		return err
 	}
 	return nil
+}
+
+// vocabulary returns the project's type codes, also as a set of codes.
+func vocabulary(ctx context.Context, st domain.Store, projectID int64) ([]domain.TypeCode, map[string]bool, error) {
+	vocab, err := st.ListTypeCodes(ctx, projectID)
+	codes := make(map[string]bool, len(vocab))
+	for _, tc := range vocab {
+		codes[tc.Code] = true
+	}
+	return vocab, codes, err
 }
 
 // orDefault returns s, or def when s is empty.
