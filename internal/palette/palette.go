@@ -7,7 +7,7 @@
 // the common forms of colour-vision deficiency; the web page already uses
 // them. Types are given colours in the sorted order of the project's
 // vocabulary codes, so a project's colours do not depend on which
-// measurements a selection holds; past eight types the colours repeat.
+// measurements a selection holds; past seven types the colours repeat.
 package palette
 
 import (
@@ -42,14 +42,19 @@ func (c RGB) Linear() [3]float64 {
 // Colours is the palette in the order types receive it: Okabe-Ito without
 // its black first, which is kept for type codes outside the vocabulary
 // ([Unknown]).
+//
+// The order is the one the web page's type markers and the nets' sets use
+// (blue, vermillion, bluish green, reddish purple, orange, sky blue,
+// yellow), so the n-th type of a vocabulary has the same colour on the page
+// and in a 3D scene.
 var Colours = []RGB{
-	{0xE6, 0x9F, 0x00}, // orange
-	{0x56, 0xB4, 0xE9}, // sky blue
-	{0x00, 0x9E, 0x73}, // bluish green
-	{0xF0, 0xE4, 0x42}, // yellow
 	{0x00, 0x72, 0xB2}, // blue
 	{0xD5, 0x5E, 0x00}, // vermillion
+	{0x00, 0x9E, 0x73}, // bluish green
 	{0xCC, 0x79, 0xA7}, // reddish purple
+	{0xE6, 0x9F, 0x00}, // orange
+	{0x56, 0xB4, 0xE9}, // sky blue
+	{0xF0, 0xE4, 0x42}, // yellow
 }
 
 // Trace and TraceExtrapolated are the colours of hole traces: the surveyed
