@@ -14,6 +14,7 @@ import (
 	"time"
 
 	"corvane/internal/exchange/ags4"
+	"corvane/internal/exchange/exchangetest"
 )
 
 // TestTransferDoors: equal answers at both doors of the transfer formats.
@@ -96,7 +97,8 @@ func TestTransferDoors(t *testing.T) {
 	// glTF: the same JSON but for the disc nodes' translations and
 	// rotations (the positions and poles above); the same binary size.
 	cliDoc, cliBin := glbParts(t, read("scene.glb"))
-	httpDoc, httpBin := glbParts(t, getRoute(t, srv, token, base+"/scene.glb?disc_radius=0.5&trace_step=10"))
+	httpGLB := getRoute(t, srv, token, base+"/scene.glb?disc_radius=0.5&trace_step=10")
+	httpDoc, httpBin := glbParts(t, httpGLB)
 	if len(cliBin) != len(httpBin) {
 		t.Errorf("glb binary chunk: %d bytes by the command line, %d by the route", len(cliBin), len(httpBin))
 	}
@@ -138,6 +140,15 @@ func TestTransferDoors(t *testing.T) {
 			t.Errorf("glTF %s differs: %.300s by the command line, %.300s by the route", k, ja, jb)
 		}
 	}
+
+	// Both scenes pass the Khronos glTF validator (skipped without Node
+	// locally, required in CI).
+	if err := os.WriteFile(out("route.glb"), httpGLB, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	t.Run("khronos", func(t *testing.T) {
+		exchangetest.RequireValid(t, exchangetest.ValidatorDir(t), out("scene.glb"), out("route.glb"))
+	})
 
 	// AGS4: LOCA and HORN the same; DISC the same rows, whole degrees equal
 	// unless the route's value is within rounding of a half degree.

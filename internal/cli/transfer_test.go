@@ -13,6 +13,7 @@ import (
 	"testing"
 
 	"corvane/internal/exchange/ags4"
+	"corvane/internal/exchange/exchangetest"
 	"corvane/internal/geom"
 )
 
@@ -142,6 +143,9 @@ func TestTransferDemo(t *testing.T) {
 	if len(data.Discontinuities) != len(want) || len(data.Locations) != len(holes) || len(data.Orientations) == 0 {
 		t.Errorf("AGS4: %d DISC, %d LOCA, %d HORN rows; want %d, %d, some", len(data.Discontinuities), len(data.Locations), len(data.Orientations), len(want), len(holes))
 	}
+	t.Run("khronos", func(t *testing.T) {
+		exchangetest.RequireValid(t, exchangetest.ValidatorDir(t), out("scene.glb"), out("scene.gltf"))
+	})
 	left, _ := filepath.Glob(filepath.Join(dir, ".*.tmp"))
 	if len(left) != 0 {
 		t.Errorf("temporary files left: %v", left)

@@ -8,7 +8,6 @@ import (
 	"io"
 	"math"
 	"os"
-	"os/exec"
 	"path/filepath"
 	"strings"
 	"testing"
@@ -347,70 +346,11 @@ func TestErrors(t *testing.T) {
 	}
 }
 
-// validatorDir is where tools/gltf-validator installs the Khronos validator.
-func validatorDir(t *testing.T) string {
-	t.Helper()
-	dir, err := filepath.Abs("../../../tools/gltf-validator")
-	if err != nil {
-		t.Fatal(err)
-	}
-	require := os.Getenv("CI") == "true" || os.Getenv("CORVANE_REQUIRE_GLTF_VALIDATOR") == "1"
-	_, errNode := exec.LookPath("node")
-	_, errMod := os.Stat(filepath.Join(dir, "node_modules", "gltf-validator"))
-	if errNode != nil || errMod != nil {
-		msg := fmt.Sprintf("Khronos glTF validator not available (node: %v; module: %v); install with: npm ci --prefix tools/gltf-validator", errNode, errMod)
-		if require {
-			t.Fatal(msg)
-		}
-		t.Skip(msg)
-	}
-	return dir
-}
-
-type report struct {
-	Issues struct {
-		NumErrors   int `json:"numErrors"`
-		NumWarnings int `json:"numWarnings"`
-		Messages    []struct {
-			Code     string `json:"code"`
-			Message  string `json:"message"`
-			Severity int    `json:"severity"`
-			Pointer  string `json:"pointer"`
-		} `json:"messages"`
-	} `json:"issues"`
-	Info struct {
-		DrawCallCount int `json:"drawCallCount"`
-	} `json:"info"`
-}
-
-func validate(t *testing.T, dir, file string) report {
-	t.Helper()
-	out, err := exec.Command("node", filepath.Join(dir, "validate.js"), file).Output()
-	if err != nil {
-		var ee *exec.ExitError
-		if ok := asExit(err, &ee); ok {
-			t.Fatalf("validator on %s: %v\n%s", file, err, ee.Stderr)
-		}
-		t.Fatalf("validator on %s: %v", file, err)
-	}
-	var r report
-	if err := json.Unmarshal(out, &r); err != nil {
-		t.Fatalf("validator report: %v\n%s", err, out)
-	}
-	return r
-}
-
-func asExit(err error, ee **exec.ExitError) bool {
-	e, ok := err.(*exec.ExitError)
-	*ee = e
-	return ok
-}
-
 // TestKhronosValidator runs the Khronos glTF validator (npm package
 // gltf-validator, the reference checker of the glTF 2.0 specification) on a
 // .glb and a .gltf + .bin of the test scene and requires no errors.
 func TestKhronosValidator(t *testing.T) {
-	dir := validatorDir(t)
+	dir := exchangetest.ValidatorDir(t)
 	traces := exchangetest.Traces()
 	discs := exchangetest.Structures(200)
 	o := Options{Origin: OriginOf(traces, discs), Colours: palette.New(exchangetest.Types), DiscSegments: 12}
@@ -440,22 +380,7 @@ func TestKhronosValidator(t *testing.T) {
 	}
 	os.WriteFile(filepath.Join(tmp, "traces.glb"), tonly.Bytes(), 0o644)
 	os.WriteFile(filepath.Join(tmp, "discs.glb"), donly.Bytes(), 0o644)
-	for _, f := range []string{glb, gl, filepath.Join(tmp, "traces.glb"), filepath.Join(tmp, "discs.glb")} {
-		r := validate(t, dir, f)
-		if r.Issues.NumErrors != 0 {
-			t.Errorf("%s: %d errors", filepath.Base(f), r.Issues.NumErrors)
-		}
-		for _, m := range r.Issues.Messages {
-			if m.Severity == 0 {
-				t.Errorf("%s: %s %s at %s", filepath.Base(f), m.Code, m.Message, m.Pointer)
-			} else {
-				t.Logf("%s: severity %d %s %s at %s", filepath.Base(f), m.Severity, m.Code, m.Message, m.Pointer)
-			}
-		}
-		if r.Info.DrawCallCount == 0 {
-			t.Errorf("%s: the validator saw nothing to draw", filepath.Base(f))
-		}
-	}
+	exchangetest.RequireValid(t, dir, glb, gl, filepath.Join(tmp, "traces.glb"), filepath.Join(tmp, "discs.glb"))
 }
 
 // BenchmarkWriteGLB100k writes 1e5 discs and the three traces as .glb.
