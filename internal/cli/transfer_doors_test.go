@@ -5,7 +5,9 @@ import (
 	"encoding/binary"
 	"encoding/csv"
 	"encoding/json"
+	"fmt"
 	"math"
+	"net/http"
 	"os"
 	"path/filepath"
 	"strconv"
@@ -64,6 +66,20 @@ func TestTransferDoors(t *testing.T) {
 			t.Fatal(err)
 		}
 		return b
+	}
+
+	// The counts: the route's headers say what the command line says.
+	req, _ := http.NewRequest(http.MethodGet, srv.URL+base+"/points.csv", nil)
+	req.Header.Set("Authorization", "Bearer "+token)
+	res, err := srv.Client().Do(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	res.Body.Close()
+	said := fmt.Sprintf("%s holes (%s with a trace), %s structures written; %s rows without a plane or position skipped",
+		res.Header.Get("Corvane-Holes"), res.Header.Get("Corvane-Holes"), res.Header.Get("Corvane-Structures"), res.Header.Get("Corvane-Skipped"))
+	if res.Header.Get("Corvane-Skipped") == "" || !strings.Contains(stderr, said) {
+		t.Errorf("route's counts %q are not the command line's:\n%s", said, stderr)
 	}
 
 	// GeoJSON: the same bytes.

@@ -73,7 +73,11 @@ func (s *Server) transferExport(name string) gin.HandlerFunc {
 		}
 		c.Header("Content-Disposition", `attachment; filename="`+strings.Replace(f.file, "%d", itoa(pid), 1)+`"`)
 		stream(c, f.contentType, func(w *trackingWriter) error {
-			return s.opt.Service.WriteTransfer(c.Request.Context(), pid, f.format, q, w)
+			return s.opt.Service.WriteTransfer(c.Request.Context(), pid, f.format, q, w, func(n service.TransferCounts) {
+				c.Header("Corvane-Holes", strconv.Itoa(n.Holes))
+				c.Header("Corvane-Structures", strconv.Itoa(n.Structures))
+				c.Header("Corvane-Skipped", strconv.Itoa(n.Skipped))
+			})
 		})
 	}
 }

@@ -177,11 +177,20 @@ func (q TransferQuery) check() error {
 	return nil
 }
 
+// TransferCounts says what a transfer file holds: the structures placed
+// and the measurements of the selection left out (no plane and position:
+// an error, a vertical hole's plane without a dip direction).
+type TransferCounts struct {
+	Holes, Structures, Skipped int
+}
+
 // WriteTransfer writes the selected programme ([Service.Transfer]) in
-// format to w (read). Nothing is written when the options, the selection or
-// the format's own rules refuse it (Invalid naming the reason), except
-// that a failure of w itself part-way leaves w incomplete.
-func (s *Service) WriteTransfer(ctx context.Context, projectID int64, format string, q TransferQuery, w io.Writer) error {
+// format to w (read); counted, when not nil, is told the counts before the
+// first byte is written (the HTTP edge puts them in headers). Nothing is
+// written when the options, the selection or the format's own rules refuse
+// it (Invalid naming the reason), except that a failure of w itself
+// part-way leaves w incomplete.
+func (s *Service) WriteTransfer(ctx context.Context, projectID int64, format string, q TransferQuery, w io.Writer, counted func(TransferCounts)) error {
 	if err := q.check(); err != nil {
 		return err
 	}
@@ -195,6 +204,9 @@ func (s *Service) WriteTransfer(ctx context.Context, projectID int64, format str
 		return err
 	}
 	prog.TraceStep = q.TraceStep
+	if counted != nil {
+		counted(TransferCounts{Holes: len(prog.Holes), Structures: len(prog.Structures), Skipped: prog.Skipped})
+	}
 	switch format {
 	case FormatGLB:
 		return prog.WriteGLB(w, transfer.SceneOptions{Origin: q.Origin, DiscRadius: q.DiscRadius})

@@ -24,7 +24,7 @@ func TestAGS4RoundTrip(t *testing.T) {
 	s, ctx := newService(t)
 	demo, _ := must2(s.LoadDemo(ctx))
 	var a1 bytes.Buffer
-	if err := s.WriteTransfer(ctx, demo.ID, service.FormatAGS, service.TransferQuery{}, &a1); err != nil {
+	if err := s.WriteTransfer(ctx, demo.ID, service.FormatAGS, service.TransferQuery{}, &a1, nil); err != nil {
 		t.Fatal(err)
 	}
 	q := demo
@@ -50,7 +50,7 @@ func TestAGS4RoundTrip(t *testing.T) {
 		t.Fatalf("import: %+v, want %d measurements", res, len(d1.Discontinuities))
 	}
 	var a2 bytes.Buffer
-	if err := s.WriteTransfer(ctx, q.ID, service.FormatAGS, service.TransferQuery{}, &a2); err != nil {
+	if err := s.WriteTransfer(ctx, q.ID, service.FormatAGS, service.TransferQuery{}, &a2, nil); err != nil {
 		t.Fatal(err)
 	}
 	groups := func(b []byte) string {
@@ -78,7 +78,7 @@ func TestAGS4ImportRefusals(t *testing.T) {
 	s, ctx := newService(t)
 	demo, _ := must2(s.LoadDemo(ctx))
 	var a bytes.Buffer
-	if err := s.WriteTransfer(ctx, demo.ID, service.FormatAGS, service.TransferQuery{MeasurementQuery: service.MeasurementQuery{Holes: []string{"TM001"}}}, &a); err != nil {
+	if err := s.WriteTransfer(ctx, demo.ID, service.FormatAGS, service.TransferQuery{MeasurementQuery: service.MeasurementQuery{Holes: []string{"TM001"}}}, &a, nil); err != nil {
 		t.Fatal(err)
 	}
 	d, err := ags4.Read(bytes.NewReader(a.Bytes()), "a.ags")
