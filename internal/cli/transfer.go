@@ -112,7 +112,10 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 		csvio.Report(env.Stderr, err)
 		return ExitUsage
 	}
-	prog := transfer.Programme{Name: *project, TraceStep: *step}
+	prog := transfer.Programme{Name: *project, TraceStep: *step, Feet: opt.Unit == desurvey.Feet}
+	if err := prog.Check(); err != nil {
+		return usageErr("--feet: %v", err)
+	}
 	for _, c := range crows {
 		th := transfer.Hole{Name: c.HoleID, Collar: c.Collar, CRS: c.CRS}
 		switch h := holes.Hole(c.HoleID); {
@@ -157,7 +160,6 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 		for _, r := range ivs {
 			prog.Intervals = append(prog.Intervals, transfer.Interval{Hole: r.HoleID, Interval: r.Interval})
 		}
-		prog.Feet = opt.Unit == desurvey.Feet
 	}
 	prog.Types = transfer.TypesOf(prog.Structures)
 	if *typesFlag != "" {

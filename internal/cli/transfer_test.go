@@ -160,6 +160,8 @@ func TestTransferUsage(t *testing.T) {
 		{[]string{"transfer"}, "are required"},
 		{[]string{"transfer", "--collars", "c", "--surveys", "s", "--converted", "x"}, "nothing to write"},
 		{[]string{"transfer", "--collars", "c", "--surveys", "s", "--converted", "x", "--glb", "g", "--method", "spline"}, "--method"},
+		{[]string{"transfer", "--collars", "../../testdata/tallowmere/collars.csv", "--surveys", "../../testdata/tallowmere/surveys.csv",
+			"--converted", "x", "--glb", "g", "--feet"}, "written in metres"},
 	} {
 		code, _, stderr := runCLI(c.args...)
 		if code != ExitUsage || !strings.Contains(stderr, c.want) {

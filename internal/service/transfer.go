@@ -40,7 +40,10 @@ func (s *Service) Transfer(ctx context.Context, projectID int64, q MeasurementQu
 	if err != nil {
 		return nil, err
 	}
-	prog := &transfer.Programme{Name: p.Name}
+	prog := &transfer.Programme{Name: p.Name, Feet: p.LengthUnit == domain.UnitFoot}
+	if err := prog.Check(); err != nil {
+		return nil, domain.Errorf(domain.Invalid, "%v", err)
+	}
 	for _, tc := range vocab {
 		prog.Types = append(prog.Types, tc.Code)
 	}

@@ -136,3 +136,16 @@ func must2[A, B any](a A, b B, err error) (A, B) {
 func nan() float64 { return math.NaN() }
 
 func asErr(err error, e **domain.Error) bool { return errors.As(err, e) }
+
+// A project in feet is refused (the formats are metric) before anything is
+// written, at the service door as at the command line's.
+func TestTransferRefusesFeet(t *testing.T) {
+	s, ctx := newService(t)
+	p := must(s.CreateProject(ctx, domain.Project{Name: "Feet", LengthUnit: domain.UnitFoot}))
+	var b bytes.Buffer
+	err := s.WriteTransfer(ctx, p.ID, service.FormatPoints, service.TransferQuery{}, &b, nil)
+	var e *domain.Error
+	if !asErr(err, &e) || e.Kind != domain.Invalid || !strings.Contains(e.Msg, "metres") || b.Len() != 0 {
+		t.Errorf("%v (%d bytes written), want Invalid saying metres and nothing written", err, b.Len())
+	}
+}

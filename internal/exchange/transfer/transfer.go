@@ -11,6 +11,7 @@
 package transfer
 
 import (
+	"errors"
 	"fmt"
 	"io"
 	"math"
@@ -65,12 +66,26 @@ type Programme struct {
 	// exchange.DefaultTraceStep.
 	TraceStep float64
 	// Intervals are logged core intervals (AGS4 CORE); their recoveries and
-	// RQD come from package coreinterval, with the RQD piece threshold of
-	// the length unit (Feet).
+	// RQD come from package coreinterval.
 	Intervals []Interval
-	Feet      bool
+	// Feet says the programme's lengths are in feet. The transfer formats
+	// are metric (glTF metres, AGS4 m, GeoJSON from a metric grid), and
+	// collar coordinates of a project in feet are in no known grid, so
+	// such a programme is refused ([ErrFeet]) rather than mislabelled.
+	Feet bool
 
 	index map[string]int // hole name -> index in Holes, built by Count
+}
+
+// ErrFeet refuses a programme in feet (see [Programme].Feet).
+var ErrFeet = errors.New("the transfer formats are written in metres and this programme's lengths are in feet; convert the programme to metres first")
+
+// Check reports whether the programme can be written: nil, or [ErrFeet].
+func (p *Programme) Check() error {
+	if p.Feet {
+		return ErrFeet
+	}
+	return nil
 }
 
 // Interval is one logged core interval of a hole.
@@ -141,6 +156,9 @@ type SceneOptions struct {
 }
 
 func (p *Programme) scene(o SceneOptions) ([]exchange.Trace, gltf.Options, error) {
+	if err := p.Check(); err != nil {
+		return nil, gltf.Options{}, err
+	}
 	traces, err := p.Traces()
 	if err != nil {
 		return nil, gltf.Options{}, err
@@ -175,7 +193,12 @@ func (p *Programme) WriteGLTF(jsonW, binW io.Writer, binName string, o SceneOpti
 }
 
 // WritePoints writes the structures as points with normals (csvio.WritePoints).
-func (p *Programme) WritePoints(w io.Writer) error { return csvio.WritePoints(w, p.Structures) }
+func (p *Programme) WritePoints(w io.Writer) error {
+	if err := p.Check(); err != nil {
+		return err
+	}
+	return csvio.WritePoints(w, p.Structures)
+}
 
 // Inverse returns the grid inverse of the collars' coordinate system: crs
 // when not empty, else the collars' labels, which must then name one system.
@@ -202,6 +225,9 @@ func (p *Programme) Inverse(crs string) (geojson.Inverse, error) {
 // WriteGeoJSON writes collars and surface traces in WGS 84 through the
 // grid inverse of crs (see [Programme.Inverse]).
 func (p *Programme) WriteGeoJSON(w io.Writer, crs string) error {
+	if err := p.Check(); err != nil {
+		return err
+	}
 	inv, err := p.Inverse(crs)
 	if err != nil {
 		return err
@@ -285,12 +311,8 @@ func (p *Programme) AGS(o AGSOptions) *ags4.Data {
 			d.Orientations = append(d.Orientations, ags4.Orientation{Hole: h.Name, Top: tops[i], Base: tops[i+1], Azimuth: az, Dip: dip, Remarks: rem})
 		}
 	}
-	minPiece := coreinterval.MinPiece
-	if p.Feet {
-		minPiece = coreinterval.MinPieceFeet
-	}
 	for _, iv := range p.Intervals {
-		dv := coreinterval.Derive(iv.Interval, minPiece)
+		dv := coreinterval.Derive(iv.Interval, coreinterval.MinPiece)
 		d.Cores = append(d.Cores, ags4.Core{Hole: iv.Hole, Top: iv.From, Base: iv.To, TotalRecovery: dv.TCR, SolidRecovery: dv.SCR,
 			RQD: dv.RQD, Diameter: math.NaN()})
 	}
@@ -307,4 +329,9 @@ func (p *Programme) AGS(o AGSOptions) *ags4.Data {
 }
 
 // WriteAGS writes the AGS4 file of [Programme.AGS].
-func (p *Programme) WriteAGS(w io.Writer, o AGSOptions) error { return ags4.Write(w, p.AGS(o)) }
+func (p *Programme) WriteAGS(w io.Writer, o AGSOptions) error {
+	if err := p.Check(); err != nil {
+		return err
+	}
+	return ags4.Write(w, p.AGS(o))
+}
