@@ -25,9 +25,14 @@ const ImportDiscontinuities = "discontinuities"
 // so exporting the measurement again gives the same plane. A row without
 // dip or dip direction (an unoriented discontinuity) cannot become a core
 // measurement and is refused, as is one in a vertical stretch of hole.
-// DISC_REM becomes the comment. Core intervals (CORE) have nowhere to go in
+// DISC_REM becomes the comment. A project in feet is refused (AGS4 depths
+// are metres). Core intervals (CORE) have nowhere to go in
 // corvane yet and are not read.
 func (s *Service) importDiscontinuities(ctx context.Context, st domain.Store, p domain.Project, a Actor, body io.Reader, res *ImportResult) error {
+	if p.LengthUnit == domain.UnitFoot {
+		return &domain.Error{Kind: domain.Invalid, Msg: "AGS4 depths are in metres and this project's lengths are in feet; nothing was imported",
+			Loc: domain.Location{File: res.File}}
+	}
 	data, err := ags4.Read(body, res.File)
 	if err != nil {
 		var pe *ags4.ParseError

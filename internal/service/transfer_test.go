@@ -148,4 +148,8 @@ func TestTransferRefusesFeet(t *testing.T) {
 	if !asErr(err, &e) || e.Kind != domain.Invalid || !strings.Contains(e.Msg, "metres") || b.Len() != 0 {
 		t.Errorf("%v (%d bytes written), want Invalid saying metres and nothing written", err, b.Len())
 	}
+	_, err = s.Import(ctx, p.ID, service.ImportRequest{Kind: service.ImportDiscontinuities, Body: strings.NewReader("\"GROUP\",\"DISC\"\r\n")})
+	if !asErr(err, &e) || e.Kind != domain.Invalid || !strings.Contains(e.Msg, "metres") {
+		t.Errorf("AGS4 import into a project in feet: %v", err)
+	}
 }
