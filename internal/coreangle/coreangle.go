@@ -244,6 +244,12 @@ func frame(h geom.Vec3, c Convention) (r geom.Vec3, w Warn) {
 	return b, w
 }
 
+// Reference returns the unit reference line r that beta is measured from in
+// a hole with unit down-hole direction h under convention c, and the hole
+// warnings. In a vertical hole r is an arbitrary unit vector perpendicular to
+// h and the warnings hold [Vertical].
+func Reference(h geom.Vec3, c Convention) (geom.Vec3, Warn) { return frame(h, c) }
+
 // apex returns the unit direction d from the core axis to the apex beta
 // points at, reversed for the up-hole apex so that d always points to the
 // down-hole apex.

@@ -1,0 +1,561 @@
+package uncertainty
+
+import (
+	"errors"
+	"math"
+	"math/rand/v2"
+
+	"corvane/internal/coreangle"
+	"corvane/internal/geom"
+)
+
+// Sigmas are the standard errors of one measurement's sources, in degrees.
+type Sigmas struct {
+	Alpha   float64 `json:"alpha"` // reading, rounding included
+	Beta    float64 `json:"beta"`  // reading, rounding included; the mark is separate
+	Gamma   float64 `json:"gamma"`
+	Mark    float64 `json:"mark"` // the run's orientation mark (shared by the run)
+	Azimuth float64 `json:"azimuth"`
+	Dip     float64 `json:"dip"` // survey (shared by the survey interval)
+}
+
+// Sigmas returns the standard errors of a measurement logged in a run rated
+// confidence with the logged mismatch (NaN when none), in a hole interval
+// surveyed by instrument k, by a logger whose readings carry the extra
+// rounding standard deviation rounding (see [RoundingSD]; 0 for none).
+func (m Model) Sigmas(k Instrument, confidence string, mismatch, rounding float64) Sigmas {
+	f := m.WithDefaults()
+	sv := f.Survey(k)
+	add := func(s float64) float64 { return math.Hypot(s, rounding) }
+	return Sigmas{Alpha: add(f.Alpha), Beta: add(f.Beta), Gamma: add(f.Gamma),
+		Mark: f.Mark(confidence, mismatch), Azimuth: sv.Azimuth, Dip: sv.Dip}
+}
+
+// Reading is one measurement as logged on the core, where it lies, and its
+// errors: everything [Measure] needs.
+type Reading struct {
+	Hole  geom.Vec3 // unit down-hole direction of the hole at the depth
+	Alpha float64
+	Beta  float64
+	Gamma float64 // NaN when the measurement has no lineation
+	Conv  coreangle.Convention
+	Sigma Sigmas
+}
+
+// ErrVertical is returned for a measurement in a vertical hole, which has no
+// reference line: its dip direction is unknown, not uncertain.
+var ErrVertical = errors.New("uncertainty: vertical hole, the measurement has no dip direction")
+
+// MC sets the Monte Carlo run: Draws per measurement (0 skips Monte Carlo)
+// and the seed; with the same seed the results are the same on every run.
+type MC struct {
+	Draws int    `json:"draws"`
+	Seed  uint64 `json:"seed"`
+}
+
+// Region is a 95% region around a measured pole or line.
+type Region struct {
+	// Cone95 is the half-angle, degrees, of the cone around the measured
+	// direction that holds 95%.
+	Cone95 float64 `json:"cone_95"`
+	// Long95 and Short95 are the semi-axes, degrees of arc, of the 95%
+	// elongated region; Area95 its area in square degrees (pi Long Short).
+	Long95  float64 `json:"long_95"`
+	Short95 float64 `json:"short_95"`
+	Area95  float64 `json:"area_95"`
+	// Orientation is the angle, degrees, of the long axis from the
+	// along-circle direction (0: the region lies along the small circle the
+	// direction sweeps about the core axis; 90: across it).
+	Orientation float64 `json:"orientation"`
+
+	cuu, cuv, cvv float64 // covariance of the region coordinates, deg^2
+	q             float64 // squared Mahalanobis radius holding 95%
+}
+
+// Estimate is the uncertainty of one measured direction (a pole or a line).
+type Estimate struct {
+	Trend  float64 `json:"trend"` // the measured direction, lower hemisphere
+	Plunge float64 `json:"plunge"`
+	// Shape is "curved" (the region follows the small circle about the core
+	// axis) or "ellipse" (a direction within 10 degrees of the core axis,
+	// where turning the core barely moves it: an ellipse in the tangent
+	// plane).
+	Shape      string  `json:"shape"`
+	FirstOrder Region  `json:"first_order"`
+	MonteCarlo *Region `json:"monte_carlo,omitempty"`
+	Draws      int     `json:"draws"`
+	// Used is "first-order" when no Monte Carlo was run or the two cones
+	// agree within [Agreement], else "monte-carlo" (the errors are too large
+	// for the linear approximation).
+	Used string `json:"used"`
+
+	cs coords
+}
+
+// Agreement is the relative difference of the first-order and Monte Carlo
+// cones up to which the first-order region is used.
+const Agreement = 0.10
+
+// Result is the uncertainty of a measurement's pole and, when it has one, of
+// its lineation.
+type Result struct {
+	Pole Estimate  `json:"pole"`
+	Line *Estimate `json:"line,omitempty"`
+}
+
+// Region returns the region in use (see [Estimate.Used]).
+func (e *Estimate) Region() Region {
+	if e.Used == "monte-carlo" && e.MonteCarlo != nil {
+		return *e.MonteCarlo
+	}
+	return e.FirstOrder
+}
+
+// InCone reports whether the axis v (world frame, either end) lies inside the
+// cone of the region in use.
+func (e *Estimate) InCone(v geom.Vec3) bool {
+	return geom.AxialAngle(v, e.cs.world(e.cs.v0)) <= e.Region().Cone95
+}
+
+// InRegion reports whether the axis v (world frame, either end) lies inside
+// the elongated region in use.
+func (e *Estimate) InRegion(v geom.Vec3) bool {
+	r := e.Region()
+	u, w := e.cs.of(e.cs.frameOf(v))
+	return r.mahal(u, w) <= r.q
+}
+
+// Boundary returns n points around the elongated region in use, lower
+// hemisphere, for drawing on a net.
+func (e *Estimate) Boundary(n int) []geom.Line {
+	r := e.Region()
+	a, b, th := r.axes()
+	out := make([]geom.Line, n)
+	st, ct := math.Sincos(th)
+	for i := range out {
+		s, c := math.Sincos(2 * math.Pi * float64(i) / float64(n))
+		x, y := a*c, b*s
+		out[i] = geom.LineOf(e.cs.world(e.cs.inv(x*ct-y*st, x*st+y*ct)))
+	}
+	return out
+}
+
+func (r Region) mahal(u, v float64) float64 {
+	det := r.cuu*r.cvv - r.cuv*r.cuv
+	if !(det > 0) {
+		return math.Inf(1)
+	}
+	return (r.cvv*u*u - 2*r.cuv*u*v + r.cuu*v*v) / det
+}
+
+// axes returns the semi-axes of the 95% ellipse and the angle (radians) of
+// the long one from the u axis.
+func (r Region) axes() (long, short, theta float64) {
+	tr, det := r.cuu+r.cvv, r.cuu*r.cvv-r.cuv*r.cuv
+	d := math.Sqrt(math.Max(0, tr*tr/4-det))
+	l1, l2 := tr/2+d, math.Max(0, tr/2-d)
+	theta = 0.5 * math.Atan2(2*r.cuv, r.cuu-r.cvv)
+	return math.Sqrt(r.q * l1), math.Sqrt(r.q * l2), theta
+}
+
+func (r *Region) finish() {
+	a, b, th := r.axes()
+	r.Long95, r.Short95, r.Area95 = a, b, math.Pi*a*b
+	o := math.Abs(geom.Deg(th))
+	if o > 90 {
+		o = 180 - o
+	}
+	r.Orientation = o
+}
+
+// chi2q95 is the 0.95 quantile of the chi-square distribution with 2
+// degrees of freedom, -2 ln 0.05.
+var chi2q95 = -2 * math.Log(0.05)
+
+// coneOf returns the radius, degrees, of the circle about the centre that
+// holds probability p of a centred bivariate normal with covariance (a, b; b,
+// c) in deg^2. With the eigenvalues l1 >= l2 and the direction at eccentric
+// angle t written (sqrt(l1) cos t, sqrt(l2) sin t)/rho(t) in the eigenbasis,
+// rho^2 = l1 cos^2 t + l2 sin^2 t, the probability inside radius r is
+// (1/2pi) * integral over t of (1 - exp(-r^2 / (2 rho^2))) dt (polar
+// integration of the density, then the change of variable). The integrand
+// is smooth and periodic whatever the elongation, so the trapezoid rule on
+// 128 points is accurate to rounding; r is found by bisection.
+func coneOf(a, b, c, p float64) float64 {
+	tr, det := a+c, a*c-b*b
+	d := math.Sqrt(math.Max(0, tr*tr/4-det))
+	l1, l2 := tr/2+d, math.Max(0, tr/2-d)
+	if !(l1 > 0) {
+		return 0
+	}
+	const m = 128
+	var rho2 [m]float64
+	for i := range rho2 {
+		s, co := math.Sincos(2 * math.Pi * float64(i) / m)
+		rho2[i] = l1*co*co + l2*s*s
+	}
+	prob := func(r float64) float64 {
+		var sum float64
+		for _, q := range rho2 {
+			if q > 0 {
+				sum += 1 - math.Exp(-r*r/(2*q))
+			} else {
+				sum++
+			}
+		}
+		return sum / m
+	}
+	lo, hi := 0.0, math.Sqrt(l1*40)
+	for i := 0; i < 80 && hi-lo > 1e-10*hi; i++ {
+		mid := (lo + hi) / 2
+		if prob(mid) < p {
+			lo = mid
+		} else {
+			hi = mid
+		}
+	}
+	return (lo + hi) / 2
+}
+
+// model holds a measurement's exact transform from its errors to its pole
+// and line, in the frame (e1, e2, e3) = (r, h x r, h) of the measured hole.
+type model struct {
+	frame          [3]geom.Vec3
+	sa, ca, sb, cb float64 // nominal alpha and beta
+	apex           float64 // +1: beta to the down-hole apex; -1 up-hole
+	sg, cg         float64 // nominal gamma, sign of the sense applied
+	hasGamma       bool
+	kD, kA         geom.Vec3 // survey rotation axes in frame coordinates
+	sig            [5]float64
+}
+
+func newModel(r Reading) (*model, error) {
+	h := r.Hole.Unit()
+	ref, w := coreangle.Reference(h, r.Conv)
+	if w.Has(coreangle.Vertical) {
+		return nil, ErrVertical
+	}
+	m := &model{frame: [3]geom.Vec3{ref, h.Cross(ref), h}, apex: 1, hasGamma: !math.IsNaN(r.Gamma)}
+	if r.Conv.BetaApex == coreangle.UpHole {
+		m.apex = -1
+	}
+	m.sa, m.ca = math.Sincos(geom.Rad(r.Alpha))
+	m.sb, m.cb = math.Sincos(geom.Rad(r.Beta))
+	if m.hasGamma {
+		g := r.Gamma
+		if r.Conv.GammaSense == coreangle.Anticlockwise {
+			g = -g
+		}
+		m.sg, m.cg = math.Sincos(geom.Rad(g))
+	}
+	// Dip error: the hole turns in its vertical plane, about the horizontal
+	// axis h x up (a positive turn lifts h: the dip grows). Azimuth error: the
+	// hole turns about the vertical, clockwise seen from above, which is a
+	// negative right-handed turn about up. Both turn the whole frame, since
+	// the reference line is fixed by gravity and h.
+	up := geom.Vec3{Z: 1}
+	m.kD = m.frameOf(h.Cross(up).Unit())
+	m.kA = m.frameOf(up.Neg())
+	s := r.Sigma
+	m.sig = [5]float64{geom.Rad(s.Alpha), geom.Rad(math.Hypot(s.Beta, s.Mark)), geom.Rad(s.Gamma), geom.Rad(s.Azimuth), geom.Rad(s.Dip)}
+	return m, nil
+}
+
+func (m *model) frameOf(v geom.Vec3) geom.Vec3 {
+	return geom.Vec3{X: v.Dot(m.frame[0]), Y: v.Dot(m.frame[1]), Z: v.Dot(m.frame[2])}
+}
+
+func (m *model) world(v geom.Vec3) geom.Vec3 {
+	return m.frame[0].Scale(v.X).Add(m.frame[1].Scale(v.Y)).Add(m.frame[2].Scale(v.Z))
+}
+
+// eval returns the pole (the normal with a down-hole component for the
+// nominal angles) and the line, in frame coordinates, for the errors in
+// radians: alpha, beta (reading and mark), gamma, survey azimuth, survey dip.
+func (m *model) eval(da, db, dg, dA, dD float64) (n, l geom.Vec3) {
+	s, c := sincos(da)
+	sa, ca := m.sa*c+m.ca*s, m.ca*c-m.sa*s
+	s, c = sincos(db)
+	sb, cb := m.sb*c+m.cb*s, m.cb*c-m.sb*s
+	// d = apex (cos b, sin b, 0); n = sin a h - cos a d.
+	d := geom.Vec3{X: m.apex * cb, Y: m.apex * sb}
+	n = geom.Vec3{X: -ca * d.X, Y: -ca * d.Y, Z: sa}
+	if m.hasGamma {
+		e := geom.Vec3{X: -sa * n.X, Y: -sa * n.Y, Z: 1 - sa*n.Z} // h - (h.n) n
+		if en := e.Norm(); en < 1e-12 {
+			e = d
+		} else {
+			e = e.Scale(1 / en)
+		}
+		s, c = sincos(dg)
+		sg, cg := m.sg*c+m.cg*s, m.cg*c-m.sg*s
+		l = e.Scale(cg).Add(n.Cross(e).Scale(sg))
+	}
+	if dD != 0 {
+		s, c = sincos(dD)
+		n = rotate(n, m.kD, s, c)
+		if m.hasGamma {
+			l = rotate(l, m.kD, s, c)
+		}
+	}
+	if dA != 0 {
+		s, c = sincos(dA)
+		n = rotate(n, m.kA, s, c)
+		if m.hasGamma {
+			l = rotate(l, m.kA, s, c)
+		}
+	}
+	return n, l
+}
+
+// coords are the region coordinates around a nominal direction v0 (frame
+// coordinates, down-hole): in the curved shape u = (rotation about the core
+// axis) x sin(angle from the axis at v0) and v = change of the angle from the
+// axis, both degrees of arc at v0; in the ellipse shape the tangent-plane
+// angles along two perpendicular directions.
+type coords struct {
+	m        *model
+	v0       geom.Vec3
+	curved   bool
+	c0, s0   float64 // cos, sin of the angle of v0 from the axis
+	cp, sp   float64 // cos, sin of v0's rotation about the axis
+	t1, t2   geom.Vec3
+	sinPhiDg float64 // sin(phi0) in degrees of arc per radian
+}
+
+// minCurvedAngle is the angle from the core axis, degrees, below which a
+// region is an ellipse in the tangent plane.
+const minCurvedAngle = 10.0
+
+func newCoords(m *model, v0 geom.Vec3) coords {
+	if v0.Z < 0 {
+		v0 = v0.Neg()
+	}
+	c := coords{m: m, v0: v0}
+	rho := math.Hypot(v0.X, v0.Y)
+	phi := math.Atan2(rho, v0.Z)
+	if geom.Deg(phi) >= minCurvedAngle {
+		c.curved = true
+		c.s0, c.c0 = math.Sincos(phi)
+		c.cp, c.sp = v0.X/rho, v0.Y/rho
+		c.sinPhiDg = geom.Deg(c.s0)
+		return c
+	}
+	// Tangent basis: t1 along increasing rotation about the axis where it is
+	// defined, any perpendicular otherwise.
+	a := geom.Vec3{X: 1}
+	if math.Abs(v0.X) > 0.9 {
+		a = geom.Vec3{Y: 1}
+	}
+	c.t1 = a.Sub(v0.Scale(a.Dot(v0))).Unit()
+	c.t2 = v0.Cross(c.t1)
+	return c
+}
+
+func (c *coords) frameOf(v geom.Vec3) geom.Vec3 { return c.m.frameOf(v) }
+func (c *coords) world(v geom.Vec3) geom.Vec3   { return c.m.world(v) }
+
+// of returns the region coordinates, degrees, of the axis v (frame
+// coordinates, either end).
+func (c *coords) of(v geom.Vec3) (u, w float64) {
+	if v.Dot(c.v0) < 0 {
+		v = v.Neg()
+	}
+	if c.curved {
+		rho := math.Sqrt(v.X*v.X + v.Y*v.Y)
+		dpsi := atan2(v.Y*c.cp-v.X*c.sp, v.X*c.cp+v.Y*c.sp)
+		dphi := atan2(rho*c.c0-v.Z*c.s0, v.Z*c.c0+rho*c.s0)
+		return dpsi * c.sinPhiDg, geom.Deg(dphi)
+	}
+	d := v.Dot(c.v0)
+	return geom.Deg(atan2(v.Dot(c.t1), d)), geom.Deg(atan2(v.Dot(c.t2), d))
+}
+
+// inv is the inverse of of: the unit vector (frame coordinates) at region
+// coordinates u, w.
+func (c *coords) inv(u, w float64) geom.Vec3 {
+	if c.curved {
+		psi := math.Atan2(c.sp, c.cp) + geom.Rad(u)/c.s0
+		phi := math.Atan2(c.s0, c.c0) + geom.Rad(w)
+		sf, cf := math.Sincos(phi)
+		sp, cp := math.Sincos(psi)
+		return geom.Vec3{X: sf * cp, Y: sf * sp, Z: cf}
+	}
+	return c.v0.Add(c.t1.Scale(math.Tan(geom.Rad(u)))).Add(c.t2.Scale(math.Tan(geom.Rad(w)))).Unit()
+}
+
+// fdStep is the step, radians, of the central differences of the
+// first-order propagation.
+const fdStep = 1e-5
+
+// firstOrder returns the first-order region of the direction picked by
+// which (0 pole, 1 line).
+func (m *model) firstOrder(cs *coords, which int) Region {
+	var r Region
+	for k := 0; k < 5; k++ {
+		if m.sig[k] == 0 {
+			continue
+		}
+		var dp, dm [5]float64
+		dp[k], dm[k] = fdStep, -fdStep
+		u1, w1 := cs.of(pick(m.eval(dp[0], dp[1], dp[2], dp[3], dp[4]))(which))
+		u0, w0 := cs.of(pick(m.eval(dm[0], dm[1], dm[2], dm[3], dm[4]))(which))
+		ju, jw := (u1-u0)/(2*fdStep)*m.sig[k], (w1-w0)/(2*fdStep)*m.sig[k]
+		r.cuu += ju * ju
+		r.cuv += ju * jw
+		r.cvv += jw * jw
+	}
+	r.q = chi2q95
+	r.Cone95 = coneOf(r.cuu, r.cuv, r.cvv, 0.95)
+	r.finish()
+	return r
+}
+
+func pick(n, l geom.Vec3) func(int) geom.Vec3 {
+	return func(i int) geom.Vec3 {
+		if i == 1 {
+			return l
+		}
+		return n
+	}
+}
+
+// scratch holds one worker's Monte Carlo buffers.
+type scratch struct {
+	u, w     [2][]float64
+	cone, dq [2]topK
+	z        []float64
+}
+
+// Measure returns the uncertainty of the pole and (when r.Gamma is not NaN)
+// the lineation of one measurement, first order and, when mc.Draws > 0, by
+// Monte Carlo with the stream seeded by (mc.Seed, 0). It returns
+// [ErrVertical] in a vertical hole.
+func Measure(r Reading, mc MC) (Result, error) {
+	var sc scratch
+	return measure(r, mc, 0, &sc)
+}
+
+func measure(r Reading, mc MC, stream uint64, sc *scratch) (Result, error) {
+	m, err := newModel(r)
+	if err != nil {
+		return Result{}, err
+	}
+	n0, l0 := m.eval(0, 0, 0, 0, 0)
+	var res Result
+	var cs [2]coords
+	cs[0] = newCoords(m, n0)
+	nd := 1
+	if m.hasGamma {
+		cs[1] = newCoords(m, l0)
+		nd = 2
+	}
+	est := [2]Estimate{}
+	for i := 0; i < nd; i++ {
+		e := &est[i]
+		e.cs = cs[i]
+		e.Shape = "ellipse"
+		if cs[i].curved {
+			e.Shape = "curved"
+		}
+		e.Trend, e.Plunge = geom.LineOf(m.world(cs[i].v0)).Trend, geom.LineOf(m.world(cs[i].v0)).Plunge
+		e.FirstOrder = m.firstOrder(&cs[i], i)
+		e.Used = "first-order"
+	}
+	if mc.Draws > 0 {
+		mcRegions(m, cs[:nd], mc.Draws, rand.New(rand.NewPCG(mc.Seed, stream)), sc, est[:nd])
+	}
+	res.Pole = est[0]
+	if nd == 2 {
+		l := est[1]
+		res.Line = &l
+	}
+	return res, nil
+}
+
+func mcRegions(m *model, cs []coords, draws int, rng *rand.Rand, sc *scratch, est []Estimate) {
+	nd := len(cs)
+	for i := 0; i < nd; i++ {
+		if cap(sc.u[i]) < draws {
+			sc.u[i], sc.w[i] = make([]float64, draws), make([]float64, draws)
+		}
+		sc.u[i], sc.w[i] = sc.u[i][:draws], sc.w[i][:draws]
+	}
+	k := quantileRank(draws, 0.95)
+	var sums [2][3]float64
+	for i := 0; i < nd; i++ {
+		sc.cone[i].reset(k)
+	}
+	sig := m.sig
+	for j := 0; j < draws; j++ {
+		var dg float64
+		da := sig[0] * rng.NormFloat64()
+		db := sig[1] * rng.NormFloat64()
+		if m.hasGamma {
+			dg = sig[2] * rng.NormFloat64()
+		}
+		dA := sig[3] * rng.NormFloat64()
+		dD := sig[4] * rng.NormFloat64()
+		n, l := m.eval(da, db, dg, dA, dD)
+		for i := 0; i < nd; i++ {
+			v := n
+			if i == 1 {
+				v = l
+			}
+			c := &cs[i]
+			d := v.Dot(c.v0)
+			sc.cone[i].push(1 - math.Abs(d))
+			u, w := c.of(v)
+			sc.u[i][j], sc.w[i][j] = u, w
+			sums[i][0] += u * u
+			sums[i][1] += u * w
+			sums[i][2] += w * w
+		}
+	}
+	for i := 0; i < nd; i++ {
+		r := &Region{cuu: sums[i][0] / float64(draws), cuv: sums[i][1] / float64(draws), cvv: sums[i][2] / float64(draws)}
+		sc.dq[i].reset(k)
+		for j := 0; j < draws; j++ {
+			sc.dq[i].push(r.mahal(sc.u[i][j], sc.w[i][j]))
+		}
+		r.q = sc.dq[i].min()
+		r.Cone95 = geom.Deg(math.Acos(math.Max(-1, math.Min(1, 1-sc.cone[i].min()))))
+		r.finish()
+		e := &est[i]
+		e.MonteCarlo, e.Draws = r, draws
+		if fo := e.FirstOrder.Cone95; math.Abs(fo-r.Cone95) > Agreement*r.Cone95 {
+			e.Used = "monte-carlo"
+		}
+	}
+}
+
+// MeasureAll returns [Measure] for every reading, with reading i's Monte
+// Carlo stream seeded by (mc.Seed, i), so each result is the same whatever
+// the number of workers (at most workers goroutines; < 1 means one). errs[i]
+// is nil or the reading's error.
+func MeasureAll(rs []Reading, mc MC, workers int) (out []Result, errs []error) {
+	out = make([]Result, len(rs))
+	errs = make([]error, len(rs))
+	if workers < 1 {
+		workers = 1
+	}
+	if workers > len(rs) {
+		workers = len(rs)
+	}
+	done := make(chan struct{})
+	chunk := (len(rs) + workers - 1) / max(workers, 1)
+	for w := 0; w < workers; w++ {
+		lo, hi := w*chunk, min((w+1)*chunk, len(rs))
+		go func() {
+			defer func() { done <- struct{}{} }()
+			var sc scratch
+			for i := lo; i < hi; i++ {
+				out[i], errs[i] = measure(rs[i], mc, uint64(i), &sc)
+			}
+		}()
+	}
+	for w := 0; w < workers; w++ {
+		<-done
+	}
+	return out, errs
+}
