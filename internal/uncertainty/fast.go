@@ -2,33 +2,45 @@ package uncertainty
 
 import (
 	"math"
+	"slices"
 
 	"corvane/internal/geom"
 )
 
 // sincos returns sin and cos of the angle x in radians. Small angles (the
-// usual size of a measurement error) use their Taylor series to x^9 / x^10,
-// whose error is below 3e-10 for |x| < 0.5; larger ones use math.Sincos.
+// usual size of a measurement error) use their Taylor series, to x^5 / x^6
+// below 0.15 rad and to x^9 / x^10 below 0.5 rad (error below 1e-9 either
+// way); larger ones use math.Sincos.
 func sincos(x float64) (s, c float64) {
-	if x > 0.5 || x < -0.5 {
-		return math.Sincos(x)
-	}
 	x2 := x * x
-	s = x * (1 - x2/6*(1-x2/20*(1-x2/42*(1-x2/72))))
-	c = 1 - x2/2*(1-x2/12*(1-x2/30*(1-x2/56*(1-x2/90))))
-	return s, c
+	switch {
+	case x2 < 0.0225:
+		return x * (1 - x2/6*(1-x2/20)), 1 - x2/2*(1-x2/12*(1-x2/30))
+	case x2 < 0.25:
+		return x * (1 - x2/6*(1-x2/20*(1-x2/42*(1-x2/72)))), 1 - x2/2*(1-x2/12*(1-x2/30*(1-x2/56*(1-x2/90))))
+	}
+	return math.Sincos(x)
 }
 
-// atan2 is math.Atan2 with a fast path for y/x small and x > 0 (an error of
-// a few degrees): the series of atan to t^15, error below 1e-10 for
-// |t| < 0.2.
+// atan2 is math.Atan2 with a fast path for |y/x| < 0.15 and x > 0 (an error
+// of up to 8.5 degrees): the series of atan to t^9, error below 1e-9 rad.
 func atan2(y, x float64) float64 {
-	if x > 0 && y < 0.2*x && y > -0.2*x {
+	if x > 0 {
 		t := y / x
-		t2 := t * t
-		return t * (1 - t2*(1.0/3-t2*(1.0/5-t2*(1.0/7-t2*(1.0/9-t2*(1.0/11-t2*(1.0/13-t2/15)))))))
+		if t2 := t * t; t2 < 0.0225 {
+			return t * (1 - t2*(1.0/3-t2*(1.0/5-t2*(1.0/7-t2/9))))
+		}
 	}
 	return math.Atan2(y, x)
+}
+
+// asin returns asin(s) with a fast path for |s| < 0.15 (the series to s^7,
+// error below 2e-9 rad).
+func asin(s float64) float64 {
+	if s2 := s * s; s2 < 0.0225 {
+		return s * (1 + s2*(1.0/6+s2*(3.0/40+s2*(5.0/112))))
+	}
+	return math.Asin(s)
 }
 
 // rotation is a rotation about a fixed unit axis k by an angle given by its
@@ -42,45 +54,72 @@ func rotate(v, k geom.Vec3, s, c float64) geom.Vec3 {
 	}
 }
 
-// topK keeps the k largest values pushed into it in a min-heap; after n
-// pushes, min() is the (n-k+1)-th smallest value.
-type topK struct{ h []float64 }
-
-func (t *topK) reset(k int) {
-	if cap(t.h) < k {
-		t.h = make([]float64, 0, k)
-	}
-	t.h = t.h[:0]
-	for i := 0; i < k; i++ {
-		t.h = append(t.h, math.Inf(-1))
-	}
-}
-
-func (t *topK) push(v float64) {
-	h := t.h
-	if v <= h[0] {
-		return
-	}
-	h[0] = v
-	i, n := 0, len(h)
+// kthLargest returns the k-th largest value of x (1-based). It first keeps
+// only the values above guess, which for a good guess (a little below the
+// answer) is a small share of x and makes the pass over x a run of
+// predictable comparisons; when fewer than k values lie above the guess it
+// starts again with all of them. buf is reused.
+func kthLargest(x []float64, k int, guess float64, buf *[]float64) float64 {
 	for {
-		l := 2*i + 1
-		if l >= n {
-			return
+		b := (*buf)[:0]
+		for _, v := range x {
+			if v > guess {
+				b = append(b, v)
+			}
 		}
-		m := l
-		if r := l + 1; r < n && h[r] < h[l] {
-			m = r
+		*buf = b
+		if len(b) >= k {
+			return selectKth(b, len(b)-k)
 		}
-		if h[i] <= h[m] {
-			return
+		if math.IsInf(guess, -1) {
+			return math.NaN()
 		}
-		h[i], h[m] = h[m], h[i]
-		i = m
+		guess = math.Inf(-1)
 	}
 }
 
-func (t *topK) min() float64 { return t.h[0] }
+// selectKth returns the value of rank i (0-based, ascending) of x,
+// reordering x (Hoare's selection with the median of three as pivot).
+func selectKth(x []float64, i int) float64 {
+	lo, hi := 0, len(x)-1
+	for hi-lo > 16 {
+		mid := lo + (hi-lo)/2
+		if x[mid] < x[lo] {
+			x[mid], x[lo] = x[lo], x[mid]
+		}
+		if x[hi] < x[lo] {
+			x[hi], x[lo] = x[lo], x[hi]
+		}
+		if x[hi] < x[mid] {
+			x[hi], x[mid] = x[mid], x[hi]
+		}
+		p := x[mid]
+		a, b := lo, hi
+		for a <= b {
+			for x[a] < p {
+				a++
+			}
+			for x[b] > p {
+				b--
+			}
+			if a <= b {
+				x[a], x[b] = x[b], x[a]
+				a++
+				b--
+			}
+		}
+		switch {
+		case i <= b:
+			hi = b
+		case i >= a:
+			lo = a
+		default:
+			return x[i]
+		}
+	}
+	slices.Sort(x[lo : hi+1])
+	return x[i]
+}
 
 // quantileRank returns how many of n sorted values lie at or above the
 // p-quantile taken as the value of rank ceil(p n) (1-based).

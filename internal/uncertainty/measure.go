@@ -188,33 +188,39 @@ func coneOf(a, b, c, p float64) float64 {
 	if !(l1 > 0) {
 		return 0
 	}
-	const m = 128
-	var rho2 [m]float64
-	for i := range rho2 {
+	const m = 64
+	var inv [m]float64 // 1/(2 rho^2)
+	for i := range inv {
 		s, co := math.Sincos(2 * math.Pi * float64(i) / m)
-		rho2[i] = l1*co*co + l2*s*s
+		inv[i] = 1 / (2 * (l1*co*co + l2*s*s))
 	}
-	prob := func(r float64) float64 {
-		var sum float64
-		for _, q := range rho2 {
-			if q > 0 {
-				sum += 1 - math.Exp(-r*r/(2*q))
-			} else {
-				sum++
-			}
-		}
-		return sum / m
-	}
+	// Newton's method on P(r) - p, P increasing and concave for r above
+	// its inflection; kept inside a bisection bracket.
 	lo, hi := 0.0, math.Sqrt(l1*40)
-	for i := 0; i < 80 && hi-lo > 1e-10*hi; i++ {
-		mid := (lo + hi) / 2
-		if prob(mid) < p {
-			lo = mid
-		} else {
-			hi = mid
+	r := math.Sqrt(l1+l2) * 1.96
+	for i := 0; i < 100; i++ {
+		var pr, dp float64
+		for _, q := range inv {
+			e := math.Exp(-r * r * q)
+			pr += 1 - e
+			dp += 2 * r * q * e
 		}
+		pr, dp = pr/m-p, dp/m
+		if pr < 0 {
+			lo = r
+		} else {
+			hi = r
+		}
+		next := r - pr/dp
+		if !(next > lo && next < hi) {
+			next = (lo + hi) / 2
+		}
+		if math.Abs(next-r) < 1e-10*r {
+			return next
+		}
+		r = next
 	}
-	return (lo + hi) / 2
+	return r
 }
 
 // model holds a measurement's exact transform from its errors to its pole
@@ -273,9 +279,19 @@ func (m *model) world(v geom.Vec3) geom.Vec3 {
 // nominal angles) and the line, in frame coordinates, for the errors in
 // radians: alpha, beta (reading and mark), gamma, survey azimuth, survey dip.
 func (m *model) eval(da, db, dg, dA, dD float64) (n, l geom.Vec3) {
-	s, c := sincos(da)
+	var t [10]float64
+	for k, d := range [5]float64{da, db, dg, dA, dD} {
+		t[2*k], t[2*k+1] = sincos(d)
+	}
+	return m.evalSC(&t)
+}
+
+// evalSC is eval from the sines and cosines of the errors, in the order
+// alpha, beta, gamma, azimuth, dip.
+func (m *model) evalSC(t *[10]float64) (n, l geom.Vec3) {
+	s, c := t[0], t[1]
 	sa, ca := m.sa*c+m.ca*s, m.ca*c-m.sa*s
-	s, c = sincos(db)
+	s, c = t[2], t[3]
 	sb, cb := m.sb*c+m.cb*s, m.cb*c-m.sb*s
 	// d = apex (cos b, sin b, 0); n = sin a h - cos a d.
 	d := geom.Vec3{X: m.apex * cb, Y: m.apex * sb}
@@ -287,19 +303,17 @@ func (m *model) eval(da, db, dg, dA, dD float64) (n, l geom.Vec3) {
 		} else {
 			e = e.Scale(1 / en)
 		}
-		s, c = sincos(dg)
+		s, c = t[4], t[5]
 		sg, cg := m.sg*c+m.cg*s, m.cg*c-m.sg*s
 		l = e.Scale(cg).Add(n.Cross(e).Scale(sg))
 	}
-	if dD != 0 {
-		s, c = sincos(dD)
+	if s, c = t[8], t[9]; s != 0 {
 		n = rotate(n, m.kD, s, c)
 		if m.hasGamma {
 			l = rotate(l, m.kD, s, c)
 		}
 	}
-	if dA != 0 {
-		s, c = sincos(dA)
+	if s, c = t[6], t[7]; s != 0 {
 		n = rotate(n, m.kA, s, c)
 		if m.hasGamma {
 			l = rotate(l, m.kA, s, c)
@@ -362,10 +376,15 @@ func (c *coords) of(v geom.Vec3) (u, w float64) {
 		v = v.Neg()
 	}
 	if c.curved {
+		// With rho = sin(phi) and z = cos(phi): X = rho cos dpsi, Y = rho
+		// sin dpsi, and sin dphi, cos dphi by the difference formulas.
 		rho := math.Sqrt(v.X*v.X + v.Y*v.Y)
-		dpsi := atan2(v.Y*c.cp-v.X*c.sp, v.X*c.cp+v.Y*c.sp)
-		dphi := atan2(rho*c.c0-v.Z*c.s0, v.Z*c.c0+rho*c.s0)
-		return dpsi * c.sinPhiDg, geom.Deg(dphi)
+		x, y := v.X*c.cp+v.Y*c.sp, v.Y*c.cp-v.X*c.sp
+		sd, cd := rho*c.c0-v.Z*c.s0, v.Z*c.c0+rho*c.s0
+		if x > 0 && cd > 0 {
+			return asin(y/rho) * c.sinPhiDg, geom.Deg(asin(sd))
+		}
+		return math.Atan2(y, x) * c.sinPhiDg, geom.Deg(math.Atan2(sd, cd))
 	}
 	d := v.Dot(c.v0)
 	return geom.Deg(atan2(v.Dot(c.t1), d)), geom.Deg(atan2(v.Dot(c.t2), d))
@@ -420,23 +439,85 @@ func pick(n, l geom.Vec3) func(int) geom.Vec3 {
 	}
 }
 
-// scratch holds one worker's Monte Carlo buffers.
+// Normals are the standard normal draws of a Monte Carlo run, one row of
+// five (alpha, beta, gamma, azimuth, dip) per draw. Every measurement of a
+// run uses the same rows (common random numbers): each measurement's result
+// is an ordinary Monte Carlo estimate, reproducible from the seed, and the
+// sines and cosines of the scaled errors can be shared by all measurements
+// with the same standard errors.
+type normals [][5]float64
+
+func newNormals(mc MC) normals {
+	r := rand.New(rand.NewPCG(mc.Seed, 0x636f7276616e65)) // stream: "corvane"
+	z := make(normals, mc.Draws)
+	for j := range z {
+		for k := range z[j] {
+			z[j][k] = r.NormFloat64()
+		}
+	}
+	return z
+}
+
+// table is the sines and cosines of the errors sig (radians) times the
+// normals, per draw.
+type table [][10]float64
+
+func (z normals) table(sig [5]float64, t table) table {
+	if cap(t) < len(z) {
+		t = make(table, len(z))
+	}
+	t = t[:len(z)]
+	for j := range z {
+		for k := 0; k < 5; k++ {
+			t[j][2*k], t[j][2*k+1] = sincos(sig[k] * z[j][k])
+		}
+	}
+	return t
+}
+
+// scratch holds one worker's Monte Carlo buffers and a cache of tables by
+// standard errors.
 type scratch struct {
-	u, w     [2][]float64
-	cone, dq [2]topK
-	z        []float64
+	z      normals
+	u, w   [2][]float64
+	c      [2][]float64 // 1 - |cos| of the angle from the measured direction
+	sel    []float64
+	tables map[[5]float64]table
+	spare  table
+}
+
+// maxTables bounds the tables a worker keeps (80 kB each at 1,000 draws).
+const maxTables = 64
+
+func (sc *scratch) tableFor(sig [5]float64) table {
+	if t, ok := sc.tables[sig]; ok {
+		return t
+	}
+	if sc.tables == nil {
+		sc.tables = map[[5]float64]table{}
+	}
+	if len(sc.tables) < maxTables {
+		t := sc.z.table(sig, nil)
+		sc.tables[sig] = t
+		return t
+	}
+	sc.spare = sc.z.table(sig, sc.spare)
+	return sc.spare
 }
 
 // Measure returns the uncertainty of the pole and (when r.Gamma is not NaN)
 // the lineation of one measurement, first order and, when mc.Draws > 0, by
-// Monte Carlo with the stream seeded by (mc.Seed, 0). It returns
-// [ErrVertical] in a vertical hole.
+// Monte Carlo. It returns [ErrVertical] in a vertical hole. Measure gives the
+// same result as [MeasureAll] with the same mc.
 func Measure(r Reading, mc MC) (Result, error) {
-	var sc scratch
-	return measure(r, mc, 0, &sc)
+	sc := scratch{}
+	if mc.Draws > 0 {
+		sc.z = newNormals(mc)
+	}
+	return measure(r, &sc)
 }
 
-func measure(r Reading, mc MC, stream uint64, sc *scratch) (Result, error) {
+func measure(r Reading, sc *scratch) (Result, error) {
 	m, err := newModel(r)
 	if err != nil {
 		return Result{}, err
@@ -458,12 +539,13 @@ func measure(r Reading, mc MC, stream uint64, sc *scratch) (Result, error) {
 		if cs[i].curved {
 			e.Shape = "curved"
 		}
-		e.Trend, e.Plunge = geom.LineOf(m.world(cs[i].v0)).Trend, geom.LineOf(m.world(cs[i].v0)).Plunge
+		ln := geom.LineOf(m.world(cs[i].v0))
+		e.Trend, e.Plunge = ln.Trend, ln.Plunge
 		e.FirstOrder = m.firstOrder(&cs[i], i)
 		e.Used = "first-order"
 	}
-	if mc.Draws > 0 {
-		mcRegions(m, cs[:nd], mc.Draws, rand.New(rand.NewPCG(mc.Seed, stream)), sc, est[:nd])
+	if len(sc.z) > 0 {
+		mcRegions(m, cs[:nd], sc.tableFor(m.sig), sc, est[:nd])
 	}
 	res.Pole = est[0]
 	if nd == 2 {
@@ -473,38 +555,25 @@ func measure(r Reading, mc MC, stream uint64, sc *scratch) (Result, error) {
 	return res, nil
 }
 
-func mcRegions(m *model, cs []coords, draws int, rng *rand.Rand, sc *scratch, est []Estimate) {
-	nd := len(cs)
+func mcRegions(m *model, cs []coords, tab table, sc *scratch, est []Estimate) {
+	nd, draws := len(cs), len(tab)
 	for i := 0; i < nd; i++ {
 		if cap(sc.u[i]) < draws {
-			sc.u[i], sc.w[i] = make([]float64, draws), make([]float64, draws)
+			sc.u[i], sc.w[i], sc.c[i] = make([]float64, draws), make([]float64, draws), make([]float64, draws)
 		}
-		sc.u[i], sc.w[i] = sc.u[i][:draws], sc.w[i][:draws]
+		sc.u[i], sc.w[i], sc.c[i] = sc.u[i][:draws], sc.w[i][:draws], sc.c[i][:draws]
 	}
 	k := quantileRank(draws, 0.95)
 	var sums [2][3]float64
-	for i := 0; i < nd; i++ {
-		sc.cone[i].reset(k)
-	}
-	sig := m.sig
-	for j := 0; j < draws; j++ {
-		var dg float64
-		da := sig[0] * rng.NormFloat64()
-		db := sig[1] * rng.NormFloat64()
-		if m.hasGamma {
-			dg = sig[2] * rng.NormFloat64()
-		}
-		dA := sig[3] * rng.NormFloat64()
-		dD := sig[4] * rng.NormFloat64()
-		n, l := m.eval(da, db, dg, dA, dD)
+	for j := range tab {
+		n, l := m.evalSC(&tab[j])
 		for i := 0; i < nd; i++ {
 			v := n
 			if i == 1 {
 				v = l
 			}
 			c := &cs[i]
-			d := v.Dot(c.v0)
-			sc.cone[i].push(1 - math.Abs(d))
+			sc.c[i][j] = 1 - math.Abs(v.Dot(c.v0))
 			u, w := c.of(v)
 			sc.u[i][j], sc.w[i][j] = u, w
 			sums[i][0] += u * u
@@ -514,14 +583,18 @@ func mcRegions(m *model, cs []coords, draws int, rng *rand.Rand, sc *scratch, es
 	}
 	for i := 0; i < nd; i++ {
 		r := &Region{cuu: sums[i][0] / float64(draws), cuv: sums[i][1] / float64(draws), cvv: sums[i][2] / float64(draws)}
-		sc.dq[i].reset(k)
-		for j := 0; j < draws; j++ {
-			sc.dq[i].push(r.mahal(sc.u[i][j], sc.w[i][j]))
-		}
-		r.q = sc.dq[i].min()
-		r.Cone95 = geom.Deg(math.Acos(math.Max(-1, math.Min(1, 1-sc.cone[i].min()))))
-		r.finish()
+		det := r.cuu*r.cvv - r.cuv*r.cuv
+		a, b, c := r.cvv/det, -2*r.cuv/det, r.cuu/det
+		d2 := sc.c[i] // reused below once the cone is known
 		e := &est[i]
+		coneGuess := 1 - math.Cos(geom.Rad(0.9*e.FirstOrder.Cone95))
+		r.Cone95 = geom.Deg(math.Acos(math.Max(-1, math.Min(1, 1-kthLargest(sc.c[i], k, coneGuess, &sc.sel)))))
+		for j := 0; j < draws; j++ {
+			u, w := sc.u[i][j], sc.w[i][j]
+			d2[j] = a*u*u + b*u*w + c*w*w
+		}
+		r.q = kthLargest(d2, k, 0.9*chi2q95, &sc.sel)
+		r.finish()
 		e.MonteCarlo, e.Draws = r, draws
 		if fo := e.FirstOrder.Cone95; math.Abs(fo-r.Cone95) > Agreement*r.Cone95 {
 			e.Used = "monte-carlo"
@@ -529,28 +602,26 @@ func mcRegions(m *model, cs []coords, draws int, rng *rand.Rand, sc *scratch, es
 	}
 }
 
-// MeasureAll returns [Measure] for every reading, with reading i's Monte
-// Carlo stream seeded by (mc.Seed, i), so each result is the same whatever
-// the number of workers (at most workers goroutines; < 1 means one). errs[i]
-// is nil or the reading's error.
+// MeasureAll returns [Measure] for every reading, on at most workers
+// goroutines (< 1 means one); the results do not depend on the number of
+// workers. errs[i] is nil or reading i's error.
 func MeasureAll(rs []Reading, mc MC, workers int) (out []Result, errs []error) {
 	out = make([]Result, len(rs))
 	errs = make([]error, len(rs))
-	if workers < 1 {
-		workers = 1
+	var z normals
+	if mc.Draws > 0 {
+		z = newNormals(mc)
 	}
-	if workers > len(rs) {
-		workers = len(rs)
-	}
+	workers = max(1, min(workers, len(rs)))
 	done := make(chan struct{})
-	chunk := (len(rs) + workers - 1) / max(workers, 1)
+	chunk := (len(rs) + workers - 1) / workers
 	for w := 0; w < workers; w++ {
 		lo, hi := w*chunk, min((w+1)*chunk, len(rs))
 		go func() {
 			defer func() { done <- struct{}{} }()
-			var sc scratch
+			sc := scratch{z: z}
 			for i := lo; i < hi; i++ {
-				out[i], errs[i] = measure(rs[i], mc, uint64(i), &sc)
+				out[i], errs[i] = measure(rs[i], &sc)
 			}
 		}()
 	}
