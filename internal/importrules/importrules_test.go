@@ -26,6 +26,7 @@ var pure = map[string]bool{
 	"corvane/internal/northref":     true,
 	"corvane/internal/holemodel":    true,
 	"corvane/internal/qa":           true,
+	"corvane/internal/uncertainty":  true,
 	"corvane/internal/qa/qapage":    true,
 	"corvane/internal/coreinterval": true,
 	"corvane/internal/spacing":      true,

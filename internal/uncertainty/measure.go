@@ -84,9 +84,9 @@ type Estimate struct {
 	FirstOrder Region  `json:"first_order"`
 	MonteCarlo *Region `json:"monte_carlo,omitempty"`
 	Draws      int     `json:"draws"`
-	// Used is "first-order" when no Monte Carlo was run or the two cones
-	// agree within [Agreement], else "monte-carlo" (the errors are too large
-	// for the linear approximation).
+	// Used is "first-order" when no Monte Carlo was run or the two cones and
+	// long semi-axes agree within [Agreement], else "monte-carlo" (the errors
+	// are too large for the linear approximation).
 	Used string `json:"used"`
 
 	cs coords
@@ -346,6 +346,15 @@ func newCoords(m *model, v0 geom.Vec3) coords {
 		v0 = v0.Neg()
 	}
 	c := coords{m: m, v0: v0}
+	// Tangent basis, kept for the ellipse shape: t1 along increasing
+	// rotation about the axis where it is defined, any perpendicular
+	// otherwise.
+	a := geom.Vec3{X: -v0.Y, Y: v0.X}
+	if a.Norm() < 1e-6 {
+		a = geom.Vec3{Y: 1}
+	}
+	c.t1 = a.Sub(v0.Scale(a.Dot(v0))).Unit()
+	c.t2 = v0.Cross(c.t1)
 	rho := math.Hypot(v0.X, v0.Y)
 	phi := math.Atan2(rho, v0.Z)
 	if geom.Deg(phi) >= minCurvedAngle {
@@ -353,16 +362,7 @@ func newCoords(m *model, v0 geom.Vec3) coords {
 		c.s0, c.c0 = math.Sincos(phi)
 		c.cp, c.sp = v0.X/rho, v0.Y/rho
 		c.sinPhiDg = geom.Deg(c.s0)
-		return c
 	}
-	// Tangent basis: t1 along increasing rotation about the axis where it is
-	// defined, any perpendicular otherwise.
-	a := geom.Vec3{X: 1}
-	if math.Abs(v0.X) > 0.9 {
-		a = geom.Vec3{Y: 1}
-	}
-	c.t1 = a.Sub(v0.Scale(a.Dot(v0))).Unit()
-	c.t2 = v0.Cross(c.t1)
 	return c
 }
 
@@ -596,7 +596,7 @@ func mcRegions(m *model, cs []coords, tab table, sc *scratch, est []Estimate) {
 		r.q = kthLargest(d2, k, 0.9*chi2q95, &sc.sel)
 		r.finish()
 		e.MonteCarlo, e.Draws = r, draws
-		if fo := e.FirstOrder.Cone95; math.Abs(fo-r.Cone95) > Agreement*r.Cone95 {
+		if fo := e.FirstOrder; math.Abs(fo.Cone95-r.Cone95) > Agreement*r.Cone95 || math.Abs(fo.Long95-r.Long95) > Agreement*r.Long95 {
 			e.Used = "monte-carlo"
 		}
 	}

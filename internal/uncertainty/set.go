@@ -1,0 +1,192 @@
+package uncertainty
+
+import (
+	"errors"
+	"math"
+	"math/rand/v2"
+
+	"corvane/internal/dirstat"
+	"corvane/internal/geom"
+)
+
+// Member is one measurement of a set and the keys of the errors it shares
+// with other members: members with the same non-empty Run share one mark
+// error (Sigma.Mark of the first of them), members with the same non-empty
+// Survey share one survey azimuth and dip error (the hole interval between
+// two survey stations; give holes distinct keys). An empty key is an error of
+// the member's own.
+type Member struct {
+	Reading
+	Run    string
+	Survey string
+}
+
+// SetResult is the uncertainty of a set's mean pole.
+type SetResult struct {
+	N      int     `json:"n"`
+	Trend  float64 `json:"trend"` // mean pole (Fisher mean of the axes), lower hemisphere
+	Plunge float64 `json:"plunge"`
+	// Fisher95 is the classical exact 95% cone of confidence of Fisher
+	// (1953) from the scatter of the measured poles: the sampling
+	// uncertainty of the mean (NaN for fewer than two poles).
+	Fisher95 float64 `json:"fisher_95"`
+	// Measurement95 is the 95% cone, by Monte Carlo, of the mean moved by the
+	// measurement errors alone: readings drawn per member, mark errors once
+	// per run and survey errors once per survey interval in each trial.
+	Measurement95 float64 `json:"measurement_95"`
+	// Shared95 is the same with the shared errors only (marks and surveys).
+	// Independent reading errors already show in the scatter the Fisher cone
+	// is computed from; shared errors do not, since they move whole runs or
+	// intervals together.
+	Shared95 float64 `json:"shared_95"`
+	// Combined95 is the 95% cone of the mean from sampling and shared errors
+	// together. Each trial moves the mean by the shared errors and by a
+	// deviation drawn from the Fisher (1953) distribution of the mean (whose
+	// 95% quantile is the exact cone), scaled down by
+	// sqrt(1 - (SharedIndependent95/Fisher95)^2): the scatter behind the
+	// Fisher cone already holds the shared errors once, as if they were
+	// independent, and that part is not counted twice.
+	Combined95 float64 `json:"combined_95"`
+	// SharedIndependent95 is the cone of Shared95 with every member given
+	// mark and survey errors of its own: what the Fisher cone already allows
+	// for them.
+	SharedIndependent95 float64 `json:"shared_independent_95"`
+	// Dominant is "sampling" when the Fisher cone is the larger of Fisher95
+	// and Measurement95, else "measurement".
+	Dominant string `json:"dominant"`
+	Draws    int    `json:"draws"`
+}
+
+// SetMean returns the uncertainty of the mean pole of the members (see
+// [SetResult]), by Monte Carlo with mc.Draws trials (at least 100) seeded by
+// mc.Seed.
+func SetMean(ms []Member, mc MC) (SetResult, error) {
+	if len(ms) == 0 {
+		return SetResult{}, dirstat.ErrTooFew
+	}
+	if mc.Draws < 100 {
+		return SetResult{}, errors.New("uncertainty: a set needs at least 100 Monte Carlo draws")
+	}
+	models := make([]*model, len(ms))
+	poles := make([]geom.Vec3, len(ms))
+	runOf, survOf := make([]int, len(ms)), make([]int, len(ms))
+	runs, survs := map[string]int{}, map[string]int{}
+	var markSig []float64
+	var survSig [][2]float64
+	for i, m := range ms {
+		md, err := newModel(m.Reading)
+		if err != nil {
+			return SetResult{}, err
+		}
+		models[i] = md
+		n, _ := md.eval(0, 0, 0, 0, 0)
+		poles[i] = md.world(n)
+		k, ok := runs[m.Run]
+		if !ok || m.Run == "" {
+			k = len(markSig)
+			markSig = append(markSig, geom.Rad(m.Sigma.Mark))
+			if m.Run != "" {
+				runs[m.Run] = k
+			}
+		}
+		runOf[i] = k
+		k, ok = survs[m.Survey]
+		if !ok || m.Survey == "" {
+			k = len(survSig)
+			survSig = append(survSig, [2]float64{geom.Rad(m.Sigma.Azimuth), geom.Rad(m.Sigma.Dip)})
+			if m.Survey != "" {
+				survs[m.Survey] = k
+			}
+		}
+		survOf[i] = k
+	}
+	f, err := dirstat.FisherMean(poles, nil, true)
+	if err != nil {
+		return SetResult{}, err
+	}
+	mean := f.Mean
+	sign := make([]float64, len(ms))
+	for i, p := range poles {
+		sign[i] = 1
+		if p.Dot(mean) < 0 {
+			sign[i] = -1
+		}
+	}
+	l := geom.LineOf(mean)
+	res := SetResult{N: len(ms), Trend: l.Trend, Plunge: l.Plunge, Fisher95: f.Cone95, Draws: mc.Draws}
+
+	r := rand.New(rand.NewPCG(mc.Seed, 0x736574)) // stream: "set"
+	mark := make([]float64, len(markSig))
+	surv := make([][2]float64, len(survSig))
+	all, shared, indep, comb := make([]float64, mc.Draws), make([]float64, mc.Draws), make([]float64, mc.Draws), make([]float64, mc.Draws)
+	sms := make([]geom.Vec3, mc.Draws)
+	devs := make([][3]float64, mc.Draws) // Fisher deviation: cos, and the direction's cos, sin
+	nf := float64(f.N)
+	for t := 0; t < mc.Draws; t++ {
+		for k, s := range markSig {
+			mark[k] = s * r.NormFloat64()
+		}
+		for k, s := range survSig {
+			surv[k] = [2]float64{s[0] * r.NormFloat64(), s[1] * r.NormFloat64()}
+		}
+		var sumAll, sumShared, sumIndep geom.Vec3
+		for i, md := range models {
+			sv := surv[survOf[i]]
+			mk := mark[runOf[i]]
+			sig := ms[i].Sigma
+			sa := geom.Rad(sig.Alpha) * r.NormFloat64()
+			sb := geom.Rad(sig.Beta) * r.NormFloat64()
+			n, _ := md.eval(sa, sb+mk, 0, sv[0], sv[1])
+			sumAll = sumAll.Add(md.world(n).Scale(sign[i]))
+			n, _ = md.eval(0, mk, 0, sv[0], sv[1])
+			sumShared = sumShared.Add(md.world(n).Scale(sign[i]))
+			n, _ = md.eval(0, geom.Rad(sig.Mark)*r.NormFloat64(), 0, geom.Rad(sig.Azimuth)*r.NormFloat64(), geom.Rad(sig.Dip)*r.NormFloat64())
+			sumIndep = sumIndep.Add(md.world(n).Scale(sign[i]))
+		}
+		all[t] = geom.Angle(sumAll, mean)
+		sms[t] = sumShared.Unit()
+		shared[t] = geom.Angle(sms[t], mean)
+		indep[t] = geom.Angle(sumIndep, mean)
+		// Sampling deviation: invert the exact cone, cos a = 1 - (N-R)/R
+		// ((1/p)^(1/(N-1)) - 1), at p = U uniform, so that P(angle > a_p) = p;
+		// its direction about the mean is uniform.
+		devs[t][0] = 1
+		if f.N >= 2 && f.R < nf {
+			c := 1 - (nf-f.R)/f.R*(math.Pow(1/r.Float64(), 1/(nf-1))-1)
+			devs[t][0] = math.Max(-1, math.Min(1, c))
+		}
+		devs[t][2], devs[t][1] = math.Sincos(2 * math.Pi * r.Float64())
+	}
+	k := quantileRank(mc.Draws, 0.95)
+	var buf []float64
+	res.Measurement95 = kthLargest(all, k, math.Inf(-1), &buf)
+	res.Shared95 = kthLargest(shared, k, math.Inf(-1), &buf)
+	res.SharedIndependent95 = kthLargest(indep, k, math.Inf(-1), &buf)
+	scale := 1.0
+	if f.N >= 2 && res.Fisher95 > 0 {
+		scale = math.Sqrt(math.Max(0, 1-math.Pow(res.SharedIndependent95/res.Fisher95, 2)))
+	}
+	for t, sm := range sms {
+		a := scale * math.Acos(devs[t][0])
+		s, c := math.Sincos(a)
+		t1 := perpendicular(sm)
+		t2 := sm.Cross(t1)
+		dev := sm.Scale(c).Add(t1.Scale(s * devs[t][1])).Add(t2.Scale(s * devs[t][2]))
+		comb[t] = geom.Angle(dev, mean)
+	}
+	res.Combined95 = kthLargest(comb, k, math.Inf(-1), &buf)
+	res.Dominant = "measurement"
+	if res.Fisher95 >= res.Measurement95 {
+		res.Dominant = "sampling"
+	}
+	return res, nil
+}
+
+// perpendicular returns a unit vector perpendicular to the unit vector v.
+func perpendicular(v geom.Vec3) geom.Vec3 {
+	a := geom.Vec3{Z: 1}
+	if math.Abs(v.Z) > 0.9 {
+		a = geom.Vec3{X: 1}
+	}
+	return a.Sub(v.Scale(a.Dot(v))).Unit()
+}

@@ -1,0 +1,95 @@
+package uncertainty
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"testing"
+
+	"corvane/internal/coreangle"
+	"corvane/internal/geom"
+)
+
+// tangentScatter returns the unit vector v moved by a normal deviation of
+// standard deviation sd degrees in each of two perpendicular directions.
+func tangentScatter(r *rand.Rand, v geom.Vec3, sd float64) geom.Vec3 {
+	t1 := perpendicular(v)
+	t2 := v.Cross(t1)
+	a, b := geom.Rad(sd*r.NormFloat64()), geom.Rad(sd*r.NormFloat64())
+	return v.Add(t1.Scale(math.Tan(a))).Add(t2.Scale(math.Tan(b))).Unit()
+}
+
+// simulateSet draws a set of poles of one fabric (true mean mu, scatter sd)
+// logged in runs of perRun measurements in holes: each run's mark error and
+// each hole's survey error is drawn once, each reading's errors per member.
+func simulateSet(r *rand.Rand, mu geom.Vec3, sd float64, holes [][2]float64, runs, perRun int, m Model, conf string, k Instrument) []Member {
+	var out []Member
+	sig := m.Sigmas(k, conf, math.NaN(), 0)
+	for hi, hd := range holes {
+		h := geom.HoleDirection(hd[0], hd[1])
+		mAz, mDip := hd[0]+sig.Azimuth*r.NormFloat64(), hd[1]+sig.Dip*r.NormFloat64()
+		for ru := 0; ru < runs; ru++ {
+			mark := sig.Mark * r.NormFloat64()
+			for j := 0; j < perRun; j++ {
+				p := tangentScatter(r, mu, sd)
+				a, b, _ := coreangle.Angles(h, geom.PlaneOf(p), coreangle.Convention{})
+				a += sig.Alpha * r.NormFloat64()
+				b += sig.Beta*r.NormFloat64() + mark
+				if a > 90 {
+					a, b = 180-a, b+180
+				}
+				out = append(out, Member{Reading: Reading{Hole: geom.HoleDirection(mAz, mDip), Alpha: math.Abs(a), Beta: geom.NormAzimuth(b),
+					Gamma: math.NaN(), Sigma: sig}, Run: fmt.Sprint(hi, "/", ru), Survey: fmt.Sprint(hi)})
+			}
+		}
+	}
+	return out
+}
+
+// Coverage of the set's combined cone: sets simulated with a known fabric
+// mean, Fisher-like scatter and shared mark and survey errors (seeded); the
+// combined 95% cone of the measured mean must hold the true mean in 93-97% of
+// cases. The Fisher cone alone, which sees the scatter but not the shared
+// errors, must hold it less often when the marks are poor.
+func TestSetCoverage(t *testing.T) {
+	mu := geom.FromTrendPlunge(120, 40)
+	holes := [][2]float64{{300, -60}, {20, -55}}
+	cases := []struct {
+		name      string
+		conf      string
+		k         Instrument
+		sd        float64
+		fisherLow bool
+	}{
+		{"good marks, unknown survey, scatter 8", "good", UnknownSurvey, 8, false},
+		{"poor marks, magnetic survey, scatter 4", "poor", Magnetic, 4, true},
+	}
+	const trials = 800
+	for ci, c := range cases {
+		r := rand.New(rand.NewPCG(21, uint64(ci)))
+		in, fisherIn, dom := 0, 0, map[string]int{}
+		for i := 0; i < trials; i++ {
+			ms := simulateSet(r, mu, c.sd, holes, 3, 3, Model{}, c.conf, c.k)
+			res, err := SetMean(ms, MC{Draws: 300, Seed: uint64(i)})
+			if err != nil {
+				t.Fatal(err)
+			}
+			ang := geom.AxialAngle(mu, geom.FromTrendPlunge(res.Trend, res.Plunge))
+			if ang <= res.Combined95 {
+				in++
+			}
+			if ang <= res.Fisher95 {
+				fisherIn++
+			}
+			dom[res.Dominant]++
+		}
+		f := float64(in) / trials
+		t.Logf("%s: combined %.1f%%, Fisher alone %.1f%%, dominant %v", c.name, 100*f, 100*float64(fisherIn)/trials, dom)
+		if f < 0.93 || f > 0.97 {
+			t.Errorf("%s: combined cone holds the true mean in %.1f%% of %d sets, want 93-97%%", c.name, 100*f, trials)
+		}
+		if c.fisherLow && float64(fisherIn)/trials > 0.9 {
+			t.Errorf("%s: Fisher cone alone holds the mean in %.1f%%: the shared errors should show", c.name, 100*float64(fisherIn)/trials)
+		}
+	}
+}
