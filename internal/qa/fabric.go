@@ -7,6 +7,8 @@ import (
 
 	"corvane/internal/coreangle"
 	"corvane/internal/geom"
+
+	"gonum.org/v1/gonum/stat/distuv"
 )
 
 func (t *tensor) subTensor(u tensor) {
@@ -21,17 +23,255 @@ func poleOf(v geom.Vec3) Pole {
 	return Pole{Trend: l.Trend, Plunge: l.Plunge}
 }
 
-// rotationChecks estimates each run's mark rotation from the persistent
-// fabric (see [estimateRotation]) and flags runs whose offset is large and
-// well supported.
+// offsetSample is one persistent-fabric measurement in the mark-rotation
+// check.
+type offsetSample struct {
+	h, n geom.Vec3 // down-hole direction and plane normal at the measurement
+	// sdAlpha and sdBeta are the reading standard errors in degrees, the
+	// logger's rounding included.
+	sdAlpha, sdBeta float64
+}
+
+// refRun is one run of a reference: its samples and its mark's standard
+// error in degrees.
+type refRun struct {
+	samples []offsetSample
+	markSD  float64
+}
+
+// minFabricSD is the smallest fabric scatter, degrees, the check assumes.
+const minFabricSD = 0.5
+
+// runRotation estimates the rotation of one run's mark about the core axis
+// from its persistent-fabric samples against the reference axis ref taken
+// from the runs refs (the run itself left out), and decides with the error
+// model whether the run is off (see [Options.RotationTolerance]).
 //
-// Reference: the principal axis of the persistent poles in the nearest
-// o.Neighbours runs on each side that have any (the run itself left out), or
-// of the whole hole without the run when o.Reference is "hole" or the
-// neighbours hold fewer than o.MinRunCount poles. Two passes: runs flagged in
-// the first are left out of every reference in the second, so one bad mark
-// does not drag its neighbours' references with it.
-func rotationChecks(h *holeData, conv coreangle.Convention, o Options) []Finding {
+// Method. Each sample gives the offset about its core axis that brings its
+// pole nearest ref ([betaOffset], closed form) and a misfit no rotation can
+// remove (the difference of the two angles from the core axis). A sample
+// whose plane lies so near the core axis that half a turn more fits almost
+// as well is left out ([halfTurnAmbiguous]). The
+// misfits of the reference's own samples measure the fabric's natural
+// scatter, free of any mark error: their variance ([acrossVariance]), less
+// the alpha reading variance, is the fabric variance sf^2 (at least 0.5 deg
+// squared).
+// A sample's offset then has the variance
+//
+//	v_i = sdBeta_i^2 + sf^2 / sin^2(p_i)
+//
+// where p_i is the angle of ref from the sample's core axis (scatter of the
+// pole along the small circle it sweeps, converted to rotation). The run's
+// estimate is the weighted circular mean (weights 1/v_i), with variance
+// 1/sum(1/v_i), inflated by chi2/(n-1) when the offsets disagree beyond the
+// 99% point of chi-square. The reference adds the variance of its own axis
+// in the same units (its samples' along-circle scatter over their number)
+// and the shared mark errors of its runs, each run weighted by its share of
+// the reference's samples: sum (n_k/n)^2 markSD_k^2, since one mark error
+// moves all of a run's samples. The 95% half-width uses Student's t with
+// the Welch-Satterthwaite degrees of freedom of the part of the variance
+// that rests on the estimated fabric scatter (nref squared misfits). Survey errors are common to the run and its
+// neighbours in the same hole and cancel to first order.
+//
+// A run without usable samples, or whose reference has none, gets an
+// estimate with N = 0 that is never flagged.
+func runRotation(samples []offsetSample, refs []refRun, ref geom.Vec3, o Options, buf []float64) (*RotationEstimate, []float64) {
+	e := &RotationEstimate{HalfWidth95: 180, SE: -1, Tolerance: o.RotationTolerance}
+	// Fabric scatter and the reference's along-circle variance.
+	var sumRes2, sumA2, sumAlong float64
+	var nref int
+	var marks float64
+	for _, rr := range refs {
+		k := 0
+		for _, s := range rr.samples {
+			_, res, ok := betaOffset(s.h, s.n, ref)
+			if !ok || res > o.FabricMisfit {
+				continue
+			}
+			sumRes2 += res * res
+			sumA2 += s.sdAlpha * s.sdAlpha
+			k++
+		}
+		nref += k
+		marks += float64(k*k) * rr.markSD * rr.markSD
+	}
+	if nref == 0 { // no usable reference: no estimate, every sample left out
+		e.Excluded = len(samples)
+		return e, buf
+	}
+	sf2 := math.Max(minFabricSD*minFabricSD, acrossVariance(sumRes2, nref, o.FabricMisfit)-sumA2/float64(nref))
+	var sumC float64
+	for _, rr := range refs {
+		for _, s := range rr.samples {
+			_, res, ok := betaOffset(s.h, s.n, ref)
+			if !ok || res > o.FabricMisfit {
+				continue
+			}
+			sp := math.Sin(geom.Rad(geom.AxialAngle(ref, s.h)))
+			sumAlong += s.sdBeta*s.sdBeta + sf2/(sp*sp)
+			sumC += 1 / (sp * sp)
+		}
+	}
+	varRef := sumAlong/float64(nref)/float64(nref) + marks/float64(nref*nref)
+	dRef := sumC / float64(nref*nref) // d varRef / d sf2
+	e.FabricSD = math.Sqrt(sf2)
+	e.ReferenceSE = math.Sqrt(varRef)
+
+	// The run's offsets and their variances.
+	buf = buf[:0]
+	var vars, cs []float64
+	for _, s := range samples {
+		off, res, ok := betaOffset(s.h, s.n, ref)
+		if !ok || res > o.FabricMisfit || halfTurnAmbiguous(s, ref, res, sf2) {
+			e.Excluded++
+			continue
+		}
+		sp := math.Sin(geom.Rad(geom.AxialAngle(ref, s.h)))
+		buf = append(buf, off)
+		vars = append(vars, s.sdBeta*s.sdBeta+sf2/(sp*sp))
+		cs = append(cs, 1/(sp*sp))
+	}
+	mean := func(keep func(int) bool) (m, sumW, rbar float64, n int) {
+		var c, sn float64
+		for i, off := range buf {
+			if !keep(i) {
+				continue
+			}
+			w := 1 / vars[i]
+			s, co := math.Sincos(geom.Rad(off))
+			c += w * co
+			sn += w * s
+			sumW += w
+			n++
+		}
+		if n == 0 {
+			return 0, 0, 0, 0
+		}
+		return geom.Deg(math.Atan2(sn, c)), sumW, math.Hypot(c, sn) / sumW, n
+	}
+	all := func(int) bool { return true }
+	m, sumW, rbar, n := mean(all)
+	// Trim: an offset more than 90 degrees from the mean is a plane whose
+	// apex flipped to the other end (low alpha) or a stray measurement.
+	if n > 2 {
+		keep := func(i int) bool { return math.Abs(wrap180(buf[i]-m)) <= 90 }
+		if m2, w2, r2, n2 := mean(keep); n2 < n && n2 > 0 {
+			e.Excluded += n - n2
+			j := 0
+			for i := range buf {
+				if keep(i) {
+					buf[j], vars[j], cs[j] = buf[i], vars[i], cs[i]
+					j++
+				}
+			}
+			buf, vars, cs = buf[:j], vars[:j], cs[:j]
+			m, sumW, rbar, n = m2, w2, r2, n2
+		}
+	}
+	e.N = n
+	if n == 0 {
+		return e, buf
+	}
+	e.Offset, e.Rbar = m, rbar
+	varMean := 1 / sumW
+	if n > 1 {
+		var chi2 float64
+		for i, off := range buf {
+			d := wrap180(off - m)
+			chi2 += d * d / vars[i]
+		}
+		if chi2 > (distuv.ChiSquared{K: float64(n - 1)}).Quantile(0.99) {
+			varMean *= chi2 / float64(n-1)
+			e.Inconsistent = true
+		}
+	}
+	// Degrees of freedom (Welch-Satterthwaite): only the part of the
+	// variance that scales with the estimated fabric variance is uncertain,
+	// and that estimate rests on nref squared misfits.
+	var dMean float64 // d varMean / d sf2
+	for i, v := range vars {
+		dMean += cs[i] / (v * v)
+	}
+	dMean *= varMean * varMean
+	if e.Inconsistent {
+		dMean = varMean // the widened part rests on the run's own scatter
+	}
+	total := varMean + varRef
+	uncertain := sf2 * (dMean + dRef)
+	df := 1e6
+	if uncertain > 0 {
+		df = math.Max(1, math.Min(df, total*total/(uncertain*uncertain/float64(nref))))
+	}
+	se := math.Sqrt(total)
+	e.SE = se
+	e.HalfWidth95 = math.Min(180, distuv.StudentsT{Mu: 0, Sigma: 1, Nu: df}.Quantile(0.975)*se)
+	e.Flagged = math.Abs(e.Offset)-e.HalfWidth95 > o.RotationTolerance
+	return e, buf
+}
+
+// acrossVariance returns the variance of the across-circle misfits of a
+// reference from the sum of squares of the n misfits kept (those at most
+// limit degrees). Two biases are removed: the reference axis is fitted to
+// the same poles, which takes one degree of freedom (divide by n - 1), and
+// misfits beyond limit were left out, which shortens the tails: for a normal
+// misfit of standard deviation s cut at c = limit/s, the mean square kept is
+// s^2 g(c), g(c) = 1 - 2 c phi(c) / (2 Phi(c) - 1) (the variance of a
+// normal truncated to [-c, c]); s^2 is found by fixed-point iteration.
+func acrossVariance(sumSq float64, n int, limit float64) float64 {
+	if n < 2 {
+		return sumSq
+	}
+	m2 := sumSq / float64(n-1)
+	v := m2
+	std := distuv.UnitNormal
+	for i := 0; i < 50; i++ {
+		c := limit / math.Sqrt(v)
+		if c < 1.5 { // the cut is inside the spread: no stable correction
+			break
+		}
+		g := 1 - 2*c*std.Prob(c)/(2*std.CDF(c)-1)
+		next := m2 / g
+		if math.Abs(next-v) < 1e-9*v {
+			v = next
+			break
+		}
+		v = next
+	}
+	return v
+}
+
+// ambiguityLR is the likelihood ratio above which a sample's half-turn
+// alternative is taken as plausible.
+const ambiguityLR = 0.001
+
+// halfTurnAmbiguous reports whether a sample's plane lies so near the core
+// axis that a half turn of the core fits the reference almost as well. The
+// offset brings the sample's down-hole pole onto the reference (misfit res);
+// the other end of the pole, turned half a turn more, has the misfit
+// |180 - an - ap| (an, ap: angles of the pole and the reference from the
+// core axis). With the across-circle scatter sd^2 = sf2 + sdAlpha^2, the
+// alternative is plausible when its likelihood ratio
+// exp(-(alt^2 - res^2) / (2 sd^2)) exceeds ambiguityLR: the sample could be
+// half a turn off and is left out.
+func halfTurnAmbiguous(s offsetSample, ref geom.Vec3, res, sf2 float64) bool {
+	an := geom.Angle(downHole(s.n, s.h), s.h)
+	ap := geom.Angle(downHole(ref, s.h), s.h)
+	alt := math.Abs(180 - an - ap)
+	return (alt*alt-res*res)/(2*(sf2+s.sdAlpha*s.sdAlpha)) < -math.Log(ambiguityLR)
+}
+
+// rotationChecks estimates each run's mark rotation from the persistent
+// fabric (see [runRotation]) and flags the runs whose 95% interval lies
+// beyond the tolerance. readSD gives the reading standard errors (alpha,
+// beta) of a logger, rounding included.
+//
+// Reference: the persistent poles of the nearest o.Neighbours runs on each
+// side that have any (the run itself left out), or of the whole hole without
+// the run when o.Reference is "hole" or the neighbours hold fewer than
+// o.MinReference poles. Two passes: runs flagged in the first are left out
+// of every reference in the second, so one bad mark does not drag its
+// neighbours' references with it.
+func rotationChecks(h *holeData, conv coreangle.Convention, o Options, readSD func(logger string) (float64, float64)) []Finding {
 	hr := h.report
 	nr := len(h.runs)
 	if nr == 0 {
@@ -39,12 +279,21 @@ func rotationChecks(h *holeData, conv coreangle.Convention, o Options) []Finding
 	}
 	samples := make([][]offsetSample, nr)
 	tens := make([]tensor, nr)
+	markSD := make([]float64, nr)
+	for r, run := range h.runs {
+		mm := math.NaN()
+		if run.Mismatch != nil {
+			mm = *run.Mismatch
+		}
+		markSD[r] = o.Errors.Mark(run.Confidence, mm)
+	}
 	var holeT tensor
 	for _, x := range h.ms {
 		if !x.ok || x.run < 0 || hr.Runs[x.run].Class == ClassUnusable || !strings.EqualFold(strings.TrimSpace(x.m.Type), o.PersistentType) {
 			continue
 		}
-		samples[x.run] = append(samples[x.run], offsetSample{h: x.h, n: x.n})
+		sa, sb := readSD(x.m.Logger)
+		samples[x.run] = append(samples[x.run], offsetSample{h: x.h, n: x.n, sdAlpha: sa, sdBeta: sb})
 		tens[x.run].add(x.n)
 		holeT.add(x.n)
 		hr.Runs[x.run].Persistent++
@@ -58,6 +307,7 @@ func rotationChecks(h *holeData, conv coreangle.Convention, o Options) []Finding
 	excluded := make([]bool, nr)
 	est := make([]*RotationEstimate, nr)
 	var buf []float64
+	var refs []refRun
 	for pass := 0; pass < 2; pass++ {
 		for r := 0; r < nr; r++ {
 			est[r] = nil
@@ -65,6 +315,7 @@ func rotationChecks(h *holeData, conv coreangle.Convention, o Options) []Finding
 				continue
 			}
 			var ref tensor
+			refs = refs[:0]
 			src := "hole"
 			if o.Reference != "hole" {
 				src = "neighbours"
@@ -75,17 +326,19 @@ func rotationChecks(h *holeData, conv coreangle.Convention, o Options) []Finding
 							continue
 						}
 						ref.addTensor(tens[k])
+						refs = append(refs, refRun{samples: samples[k], markSD: markSD[k]})
 						taken++
 					}
 				}
 			}
-			if ref.n < o.MinRunCount {
+			if ref.n < o.MinReference {
 				src = "hole"
-				ref = holeT
-				ref.subTensor(tens[r])
-				for k := range excluded {
-					if excluded[k] && k != r {
-						ref.subTensor(tens[k])
+				ref = tensor{}
+				refs = refs[:0]
+				for k := range samples {
+					if k != r && !excluded[k] && tens[k].n > 0 {
+						ref.addTensor(tens[k])
+						refs = append(refs, refRun{samples: samples[k], markSD: markSD[k]})
 					}
 				}
 			}
@@ -93,12 +346,9 @@ func rotationChecks(h *holeData, conv coreangle.Convention, o Options) []Finding
 			if !ok || ref.n == 0 {
 				continue
 			}
-			var cm CircularMean
-			var excl int
-			cm, excl, buf = estimateRotation(samples[r], axis, o.FabricMisfit, buf)
-			e := &RotationEstimate{Offset: cm.Mean, SE: finiteOr(cm.SE, -1), HalfWidth95: cm.HalfWidth95, Rbar: cm.Rbar, N: cm.N, Excluded: excl,
-				Reference: poleOf(axis), ReferenceN: ref.n, RefSource: src}
-			e.Flagged = cm.N >= o.MinRunCount && math.Abs(cm.Mean) > o.RotationThreshold && cm.Excludes0()
+			var e *RotationEstimate
+			e, buf = runRotation(samples[r], refs, axis, o, buf)
+			e.Reference, e.ReferenceN, e.RefSource = poleOf(axis), ref.n, src
 			est[r] = e
 		}
 		if pass == 0 {
@@ -138,6 +388,7 @@ func rotationChecks(h *holeData, conv coreangle.Convention, o Options) []Finding
 			continue
 		}
 		run := h.runs[r]
+		var maxTurn, maxDD, maxDip float64
 		for _, x := range h.ms {
 			if x.run != r || !x.ok {
 				continue
@@ -147,12 +398,20 @@ func rotationChecks(h *holeData, conv coreangle.Convention, o Options) []Finding
 			rr.Suggestions = append(rr.Suggestions, Suggestion{Line: x.m.Line, ID: x.m.ID, Depth: x.m.Depth, Type: x.m.Type,
 				Alpha: x.m.Alpha, Beta: x.m.Beta, SuggestedBeta: nb,
 				Dip: x.plane.Dip, DipDirection: x.plane.DipDirection, SuggestedDip: pl.Dip, SuggestedDipDirection: pl.DipDirection})
+			maxTurn = math.Max(maxTurn, geom.AxialAngle(x.n, pl.Normal()))
+			maxDD = math.Max(maxDD, math.Abs(wrap180(pl.DipDirection-x.plane.DipDirection)))
+			maxDip = math.Max(maxDip, math.Abs(pl.Dip-x.plane.Dip))
 		}
+		lo, hi := e.Offset-e.HalfWidth95, e.Offset+e.HalfWidth95
 		out = append(out, Finding{Check: CheckMarkRotation, Severity: SeverityFlag, HoleID: h.c.HoleID, Depth: run.From, DepthTo: run.To,
 			Size: math.Abs(e.Offset), Unit: "deg", Source: "runs", Line: run.Line, ID: run.ID,
-			Message: fmt.Sprintf("run %.2f-%.2f: its %s fits the %s fabric (%03.0f/%02.0f, %d poles) only after turning the core %+.1f deg +- %.1f (95%%) about its axis, from %d measurements; median misfit %.1f -> %.1f deg. The mark is likely off: suggested betas = logged beta %+.1f (not applied)",
+			Message: fmt.Sprintf("run %.2f-%.2f: its %s fits the %s fabric (%03.0f/%02.0f, %d poles) after turning the core %+.1f deg about its axis "+
+				"(95%% interval %+.1f to %+.1f, from n = %d measurement%s), beyond the %.0f deg tolerance: the mark is likely off. "+
+				"Correcting it (logged beta %+.1f, not applied) would move the run's %d measurements' poles by up to %.1f deg, "+
+				"dip directions by up to %.1f deg and dips by up to %.1f deg; median misfit %.1f -> %.1f deg",
 				run.From, run.To, o.PersistentType, map[string]string{"neighbours": "neighbouring runs'", "hole": "hole-wide"}[e.RefSource],
-				e.Reference.Trend, e.Reference.Plunge, e.ReferenceN, e.Offset, e.HalfWidth95, e.N, e.MisfitBefore, e.MisfitAfter, e.Offset)})
+				e.Reference.Trend, e.Reference.Plunge, e.ReferenceN, e.Offset, lo, hi, e.N, plural(e.N), o.RotationTolerance,
+				e.Offset, len(rr.Suggestions), maxTurn, maxDD, maxDip, e.MisfitBefore, e.MisfitAfter)})
 	}
 	if total > 0 && 2*used < total {
 		out = append(out, Finding{Check: CheckMarkRotation, Severity: SeverityInfo, HoleID: h.c.HoleID, Size: float64(total - used), Source: "structures",
@@ -160,6 +419,13 @@ func rotationChecks(h *holeData, conv coreangle.Convention, o Options) []Finding
 				used, total, o.PersistentType, minAxisAngle, minRefAlpha)})
 	}
 	return out
+}
+
+func plural(n int) string {
+	if n == 1 {
+		return ""
+	}
+	return "s"
 }
 
 // finiteOr returns v, or def when v is not finite (JSON has no infinities).

@@ -5,6 +5,7 @@ import (
 	"math"
 
 	"corvane/internal/coreangle"
+	"corvane/internal/uncertainty"
 )
 
 // Options are the thresholds and choices of a QA run. A zero field takes its
@@ -39,9 +40,26 @@ type Options struct {
 	// hole-wide fabric, the run itself left out).
 	Reference  string `json:"reference"`
 	Neighbours int    `json:"neighbours"` // default 3
-	// RotationThreshold, degrees: a run is flagged when |offset| exceeds it,
-	// its 95% interval excludes 0 and it rests on at least MinRunCount
-	// measurements. Defaults 15 and 5.
+	// MinReference is the number of persistent poles the neighbours must
+	// hold; with fewer the hole-wide fabric is the reference. Default 5.
+	MinReference int `json:"min_reference"`
+	// RotationTolerance, degrees: a run's mark is flagged when the 95%
+	// interval of its rotation, computed with the error model from however
+	// many measurements the run has, excludes zero by more than this (every
+	// value in the interval is beyond +-RotationTolerance). Default 10
+	// (the mismatch tolerance, common practice).
+	RotationTolerance float64 `json:"rotation_tolerance"`
+	// Errors is the error model (reading, mark and survey standard errors);
+	// zero fields take the defaults of package uncertainty. A logger whose
+	// alpha or beta fails the terminal-digit test has that reading error
+	// widened by the rounding (uncertainty.RoundingSD) instead of raising
+	// flags.
+	Errors uncertainty.Model `json:"error_model"`
+
+	// RotationThreshold and MinRunCount apply to the beta offsets implied by
+	// reference picks: a run is flagged when |offset| exceeds
+	// RotationThreshold degrees, its 95% interval excludes 0 and it rests on
+	// at least MinRunCount matches. Defaults 15 and 5.
 	RotationThreshold float64 `json:"rotation_threshold"`
 	MinRunCount       int     `json:"min_run_count"`
 	// FabricMisfit, degrees: a measurement whose pole stays further than this
@@ -133,6 +151,9 @@ func (o Options) withDefaults() Options {
 	}
 	defi(&o.Neighbours, 3)
 	def(&o.RotationThreshold, 15)
+	def(&o.RotationTolerance, 10)
+	defi(&o.MinReference, 5)
+	o.Errors = o.Errors.WithDefaults()
 	defi(&o.MinRunCount, 5)
 	def(&o.FabricMisfit, 20)
 	def(&o.PickWindow, 0.3)

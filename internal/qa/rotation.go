@@ -39,7 +39,7 @@ const minAxisAngle = 10.0
 // core axis looks the same after a half turn (beta and beta + 180 give almost
 // the same plane), so below this the offset is ambiguous by 180 degrees.
 // Between this and a few times the measurement noise an occasional
-// measurement still flips by a half turn; [estimateRotation] trims those.
+// measurement still flips by a half turn; [runRotation] trims those.
 const minRefAlpha = 5.0
 
 // betaOffset returns the rotation about the down-hole unit vector h, in
@@ -147,47 +147,3 @@ func (t tensor) principal() (axis geom.Vec3, s1 float64, ok bool) {
 	return v.Lower(), lambda / float64(t.n), true
 }
 
-// offsetSample is one measurement's contribution to a run's rotation estimate.
-type offsetSample struct {
-	h, n geom.Vec3 // down-hole direction and plane normal at the measurement
-}
-
-// estimateRotation returns the circular mean (see [CircMean]) of the
-// per-measurement beta offsets that bring each sample's normal onto the
-// reference axis ref, using only samples whose remaining misfit after the
-// best rotation is at most maxMisfit degrees (the others cannot be the same
-// fabric under any rotation of the mark) and whose offset is defined (see
-// [betaOffset]). It also returns the number of samples left out.
-//
-// The circular mean of the offsets is the rotation that maximises the sum of
-// cosines of the offset errors, the circular analogue of least squares. One
-// trimming pass follows: offsets more than 90 degrees from the first mean
-// (a plane at low alpha whose apex flipped to the other end, or a stray
-// measurement) are left out and the mean is taken again.
-func estimateRotation(samples []offsetSample, ref geom.Vec3, maxMisfit float64, buf []float64) (CircularMean, int, []float64) {
-	buf = buf[:0]
-	excluded := 0
-	for _, s := range samples {
-		off, res, ok := betaOffset(s.h, s.n, ref)
-		if !ok || res > maxMisfit {
-			excluded++
-			continue
-		}
-		buf = append(buf, off)
-	}
-	m := CircMean(buf)
-	if m.N > 2 {
-		kept := buf[:0]
-		for _, off := range buf {
-			if math.Abs(wrap180(off-m.Mean)) <= 90 {
-				kept = append(kept, off)
-			}
-		}
-		if len(kept) < m.N && len(kept) > 0 {
-			excluded += m.N - len(kept)
-			buf = kept
-			m = CircMean(buf)
-		}
-	}
-	return m, excluded, buf
-}

@@ -37,6 +37,7 @@ import (
 	"corvane/internal/coreangle"
 	"corvane/internal/desurvey"
 	"corvane/internal/geom"
+	"corvane/internal/uncertainty"
 )
 
 // meas is a measurement prepared for the checks.
@@ -171,12 +172,22 @@ func RunContext(ctx context.Context, in Input, opt Options) (Report, error) {
 		if err := ctx.Err(); err != nil {
 			return Report{}, err
 		}
-		hr := &HoleReport{HoleID: h.c.HoleID, Depth: h.c.Depth, Azimuth: geom.NormAzimuth(h.c.Azimuth), Dip: h.c.Dip}
-		h.report = hr
+		h.report = &HoleReport{HoleID: h.c.HoleID, Depth: h.c.Depth, Azimuth: geom.NormAzimuth(h.c.Azimuth), Dip: h.c.Dip}
 		add(checkHole(h, conv, o, loggers)...)
-		rep.Holes = append(rep.Holes, *hr)
 	}
+	// The logger tests come before the fabric check: a logger who rounds
+	// has a wider reading error there.
 	rep.Digits, rep.BetaZero = loggerChecks(loggers, o)
+	readSD := readingErrors(rep.Digits, o)
+	for _, h := range order {
+		if err := ctx.Err(); err != nil {
+			return Report{}, err
+		}
+		if h.path != nil {
+			add(fabricAndPicks(h, conv, o, readSD)...)
+		}
+		rep.Holes = append(rep.Holes, *h.report)
+	}
 	for _, d := range rep.Digits {
 		if d.Flagged {
 			add(Finding{Check: CheckDigitPreference, Severity: SeverityWarning, Logger: d.Logger, Size: d.Chi2, Source: "structures",
@@ -325,15 +336,50 @@ func checkHole(h *holeData, conv coreangle.Convention, o Options, loggers map[st
 	// Measurements.
 	out = append(out, measurementChecks(h, conv, o, loggers)...)
 
-	// Mark rotation from the persistent fabric.
+	return out
+}
+
+// fabricAndPicks runs the checks that need every logger's digit test first:
+// the mark rotation from the persistent fabric, then the reference picks.
+func fabricAndPicks(h *holeData, conv coreangle.Convention, o Options, readSD func(string) (float64, float64)) []Finding {
+	var out []Finding
 	if o.PersistentType != "" {
-		out = append(out, rotationChecks(h, conv, o)...)
+		out = append(out, rotationChecks(h, conv, o, readSD)...)
 	}
-	// Reference picks.
 	if len(h.picks) > 0 {
 		out = append(out, pickChecks(h, o)...)
 	}
 	return out
+}
+
+// readingErrors returns, per logger, the alpha and beta reading standard
+// errors of the error model, each widened by the rounding of a logger whose
+// values of that angle fail the terminal-digit test (see [DigitTest]): the
+// share of readings rounded to 5 degrees is estimated from the excess of 0s
+// and 5s (uncertainty.RoundedShare) and adds uncertainty.RoundingSD.
+func readingErrors(digits []DigitTest, o Options) func(string) (float64, float64) {
+	extra := map[string][2]float64{}
+	for _, d := range digits {
+		if !d.Flagged {
+			continue
+		}
+		x := extra[d.Logger]
+		sd := uncertainty.RoundingSD(uncertainty.DefaultRoundingStep, uncertainty.RoundedShare(d.Share05))
+		if d.Angle == "alpha" {
+			x[0] = sd
+		} else {
+			x[1] = sd
+		}
+		extra[d.Logger] = x
+	}
+	return func(logger string) (float64, float64) {
+		name := strings.TrimSpace(logger)
+		if name == "" {
+			name = NoLogger
+		}
+		x := extra[name]
+		return math.Hypot(o.Errors.Alpha, x[0]), math.Hypot(o.Errors.Beta, x[1])
+	}
 }
 
 // collarProblem says what makes a collar unusable, or "".

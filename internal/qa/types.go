@@ -168,9 +168,13 @@ type RotationEstimate struct {
 	// Offset is the beta correction in degrees, (-180, 180]: adding it to
 	// every logged beta of the run brings the run onto the reference. The
 	// mark itself is estimated to be off by -Offset.
-	Offset      float64 `json:"beta_offset"`
-	SE          float64 `json:"standard_error"` // degrees; circular standard error, -1 when undefined
-	HalfWidth95 float64 `json:"half_width_95"`  // degrees
+	Offset float64 `json:"beta_offset"`
+	// SE is the standard error in degrees, -1 when undefined: for the
+	// persistent fabric, from the error model (readings, fabric scatter,
+	// the reference and its runs' marks); for picks, the circular standard
+	// error of the offsets.
+	SE          float64 `json:"standard_error"`
+	HalfWidth95 float64 `json:"half_width_95"` // degrees; the 95% interval is Offset +- HalfWidth95
 	Rbar        float64 `json:"mean_resultant_length"`
 	N           int     `json:"n"`        // measurements the estimate rests on
 	Excluded    int     `json:"excluded"` // measurements left out (too near the core axis or not the same fabric)
@@ -184,6 +188,16 @@ type RotationEstimate struct {
 	MisfitBefore float64 `json:"median_misfit_before"`
 	MisfitAfter  float64 `json:"median_misfit_after"`
 	Flagged      bool    `json:"flagged"`
+	// Persistent fabric only: Tolerance is the tolerance the interval was
+	// judged against (degrees); FabricSD the fabric's natural scatter
+	// estimated from the reference (degrees); ReferenceSE the reference's
+	// share of SE; Inconsistent is true when the run's offsets disagree more
+	// than the error model allows (chi-square beyond its 99% point) and SE
+	// was widened to their scatter.
+	Tolerance    float64 `json:"tolerance,omitempty"`
+	FabricSD     float64 `json:"fabric_sd,omitempty"`
+	ReferenceSE  float64 `json:"reference_se,omitempty"`
+	Inconsistent bool    `json:"inconsistent,omitempty"`
 	// Before and After are the run's persistent-fabric poles as logged and as
 	// they would be with the suggested correction; given for flagged runs
 	// only, to keep reports of large programmes small.
