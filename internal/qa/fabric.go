@@ -51,12 +51,11 @@ const minFabricSD = 0.5
 // pole nearest ref ([betaOffset], closed form) and a misfit no rotation can
 // remove (the difference of the two angles from the core axis). A sample
 // whose plane lies so near the core axis that half a turn more fits almost
-// as well is left out ([halfTurnAmbiguous]). The
-// misfits of the reference's own samples measure the fabric's natural
-// scatter, free of any mark error: their variance ([acrossVariance]), less
-// the alpha reading variance, is the fabric variance sf^2 (at least 0.5 deg
-// squared).
-// A sample's offset then has the variance
+// as well is left out ([halfTurnAmbiguous]). The misfits measure the
+// fabric's natural scatter, free of any mark error; the fabric variance sf2
+// is estimated once per hole from the misfits of every run's samples to that
+// run's own reference ([fabricVariance], nPool misfits). A sample's offset
+// then has the variance
 //
 //	v_i = sdBeta_i^2 + sf^2 / sin^2(p_i)
 //
@@ -69,18 +68,18 @@ const minFabricSD = 0.5
 // and the shared mark errors of its runs, each run weighted by its share of
 // the reference's samples: sum (n_k/n)^2 markSD_k^2, since one mark error
 // moves all of a run's samples. The 95% half-width uses Student's t with
-// the Welch-Satterthwaite degrees of freedom of the part of the variance
-// that rests on the estimated fabric scatter (nref squared misfits). Survey errors are common to the run and its
-// neighbours in the same hole and cancel to first order.
+// the Welch-Satterthwaite degrees of freedom of the parts of the variance
+// that rest on estimates (the fabric variance; the run's own scatter when it
+// was widened). Survey errors are common to the run and its neighbours in
+// the same hole and cancel to first order.
 //
 // A run without usable samples, or whose reference has none, gets an
 // estimate with N = 0 that is never flagged.
-func runRotation(samples []offsetSample, refs []refRun, ref geom.Vec3, o Options, buf []float64) (*RotationEstimate, []float64) {
-	e := &RotationEstimate{HalfWidth95: 180, SE: -1, Tolerance: o.RotationTolerance}
-	// Fabric scatter and the reference's along-circle variance.
-	var sumRes2, sumA2, sumAlong float64
+func runRotation(samples []offsetSample, refs []refRun, ref geom.Vec3, sf2 float64, nPool int, o Options, buf []float64) (*RotationEstimate, []float64) {
+	e := &RotationEstimate{HalfWidth95: 180, SE: -1, Tolerance: o.RotationTolerance, FabricSD: math.Sqrt(sf2)}
+	// The reference's along-circle variance and its runs' mark errors.
+	var sumAlong, sumC, marks float64
 	var nref int
-	var marks float64
 	for _, rr := range refs {
 		k := 0
 		for _, s := range rr.samples {
@@ -88,8 +87,9 @@ func runRotation(samples []offsetSample, refs []refRun, ref geom.Vec3, o Options
 			if !ok || res > o.FabricMisfit {
 				continue
 			}
-			sumRes2 += res * res
-			sumA2 += s.sdAlpha * s.sdAlpha
+			sp := math.Sin(geom.Rad(geom.AxialAngle(ref, s.h)))
+			sumAlong += s.sdBeta*s.sdBeta + sf2/(sp*sp)
+			sumC += 1 / (sp * sp)
 			k++
 		}
 		nref += k
@@ -99,22 +99,8 @@ func runRotation(samples []offsetSample, refs []refRun, ref geom.Vec3, o Options
 		e.Excluded = len(samples)
 		return e, buf
 	}
-	sf2 := math.Max(minFabricSD*minFabricSD, acrossVariance(sumRes2, nref, o.FabricMisfit)-sumA2/float64(nref))
-	var sumC float64
-	for _, rr := range refs {
-		for _, s := range rr.samples {
-			_, res, ok := betaOffset(s.h, s.n, ref)
-			if !ok || res > o.FabricMisfit {
-				continue
-			}
-			sp := math.Sin(geom.Rad(geom.AxialAngle(ref, s.h)))
-			sumAlong += s.sdBeta*s.sdBeta + sf2/(sp*sp)
-			sumC += 1 / (sp * sp)
-		}
-	}
 	varRef := sumAlong/float64(nref)/float64(nref) + marks/float64(nref*nref)
 	dRef := sumC / float64(nref*nref) // d varRef / d sf2
-	e.FabricSD = math.Sqrt(sf2)
 	e.ReferenceSE = math.Sqrt(varRef)
 
 	// The run's offsets and their variances.
@@ -185,22 +171,28 @@ func runRotation(samples []offsetSample, refs []refRun, ref geom.Vec3, o Options
 			e.Inconsistent = true
 		}
 	}
-	// Degrees of freedom (Welch-Satterthwaite): only the part of the
-	// variance that scales with the estimated fabric variance is uncertain,
-	// and that estimate rests on nref squared misfits.
+	// Degrees of freedom (Welch-Satterthwaite): the part of the variance
+	// that scales with the fabric variance rests on the nPool squared
+	// misfits it was estimated from; a variance widened to the run's own
+	// scatter rests on n - 1.
 	var dMean float64 // d varMean / d sf2
 	for i, v := range vars {
 		dMean += cs[i] / (v * v)
 	}
 	dMean *= varMean * varMean
+	own := 0.0
 	if e.Inconsistent {
-		dMean = varMean // the widened part rests on the run's own scatter
+		own, dMean = varMean, 0
 	}
 	total := varMean + varRef
-	uncertain := sf2 * (dMean + dRef)
+	fab := sf2 * (dMean + dRef)
+	den := fab * fab / float64(nPool)
+	if own > 0 {
+		den += own * own / float64(n-1)
+	}
 	df := 1e6
-	if uncertain > 0 {
-		df = math.Max(1, math.Min(df, total*total/(uncertain*uncertain/float64(nref))))
+	if den > 0 {
+		df = math.Max(1, math.Min(df, total*total/den))
 	}
 	se := math.Sqrt(total)
 	e.SE = se
@@ -209,10 +201,10 @@ func runRotation(samples []offsetSample, refs []refRun, ref geom.Vec3, o Options
 	return e, buf
 }
 
-// acrossVariance returns the variance of the across-circle misfits of a
-// reference from the sum of squares of the n misfits kept (those at most
-// limit degrees). Two biases are removed: the reference axis is fitted to
-// the same poles, which takes one degree of freedom (divide by n - 1), and
+// acrossVariance returns the variance of across-circle misfits from the sum
+// of squares of the n misfits kept (those at most limit degrees). Two biases
+// are removed: the reference axes carry errors of their own fitted from
+// nearby poles, allowed for as one degree of freedom (divide by n - 1), and
 // misfits beyond limit were left out, which shortens the tails: for a normal
 // misfit of standard deviation s cut at c = limit/s, the mean square kept is
 // s^2 g(c), g(c) = 1 - 2 c phi(c) / (2 Phi(c) - 1) (the variance of a
@@ -238,6 +230,35 @@ func acrossVariance(sumSq float64, n int, limit float64) float64 {
 		v = next
 	}
 	return v
+}
+
+// fabricVariance returns the fabric variance of a hole (degrees squared, at
+// least minFabricSD^2) and the number of misfits it rests on: the
+// across-circle misfit of every usable sample of every run to that run's
+// reference axis (which leaves the run out), less the alpha reading
+// variance ([acrossVariance]). The misfit does not change when a mark is
+// off, so spun runs count too.
+func fabricVariance(samples [][]offsetSample, axes []geom.Vec3, has []bool, o Options) (float64, int) {
+	var sumRes2, sumA2 float64
+	n := 0
+	for r, ss := range samples {
+		if !has[r] {
+			continue
+		}
+		for _, s := range ss {
+			_, res, ok := betaOffset(s.h, s.n, axes[r])
+			if !ok || res > o.FabricMisfit {
+				continue
+			}
+			sumRes2 += res * res
+			sumA2 += s.sdAlpha * s.sdAlpha
+			n++
+		}
+	}
+	if n == 0 {
+		return minFabricSD * minFabricSD, 0
+	}
+	return math.Max(minFabricSD*minFabricSD, acrossVariance(sumRes2, n, o.FabricMisfit)-sumA2/float64(n)), n
 }
 
 // ambiguityLR is the likelihood ratio above which a sample's half-turn
@@ -306,19 +327,23 @@ func rotationChecks(h *holeData, conv coreangle.Convention, o Options, readSD fu
 
 	excluded := make([]bool, nr)
 	est := make([]*RotationEstimate, nr)
+	axes := make([]geom.Vec3, nr)
+	has := make([]bool, nr)
+	refs := make([][]refRun, nr)
+	refN := make([]int, nr)
+	srcs := make([]string, nr)
 	var buf []float64
-	var refs []refRun
 	for pass := 0; pass < 2; pass++ {
 		for r := 0; r < nr; r++ {
-			est[r] = nil
+			has[r] = false
 			if len(samples[r]) == 0 {
 				continue
 			}
 			var ref tensor
-			refs = refs[:0]
-			src := "hole"
+			refs[r] = refs[r][:0]
+			srcs[r] = "hole"
 			if o.Reference != "hole" {
-				src = "neighbours"
+				srcs[r] = "neighbours"
 				for dir := -1; dir <= 1; dir += 2 {
 					taken := 0
 					for k := r + dir; k >= 0 && k < nr && taken < o.Neighbours; k += dir {
@@ -326,19 +351,19 @@ func rotationChecks(h *holeData, conv coreangle.Convention, o Options, readSD fu
 							continue
 						}
 						ref.addTensor(tens[k])
-						refs = append(refs, refRun{samples: samples[k], markSD: markSD[k]})
+						refs[r] = append(refs[r], refRun{samples: samples[k], markSD: markSD[k]})
 						taken++
 					}
 				}
 			}
 			if ref.n < o.MinReference {
-				src = "hole"
+				srcs[r] = "hole"
 				ref = tensor{}
-				refs = refs[:0]
+				refs[r] = refs[r][:0]
 				for k := range samples {
 					if k != r && !excluded[k] && tens[k].n > 0 {
 						ref.addTensor(tens[k])
-						refs = append(refs, refRun{samples: samples[k], markSD: markSD[k]})
+						refs[r] = append(refs[r], refRun{samples: samples[k], markSD: markSD[k]})
 					}
 				}
 			}
@@ -346,9 +371,17 @@ func rotationChecks(h *holeData, conv coreangle.Convention, o Options, readSD fu
 			if !ok || ref.n == 0 {
 				continue
 			}
+			axes[r], has[r], refN[r] = axis, true, ref.n
+		}
+		sf2, nPool := fabricVariance(samples, axes, has, o)
+		for r := 0; r < nr; r++ {
+			est[r] = nil
+			if !has[r] {
+				continue
+			}
 			var e *RotationEstimate
-			e, buf = runRotation(samples[r], refs, axis, o, buf)
-			e.Reference, e.ReferenceN, e.RefSource = poleOf(axis), ref.n, src
+			e, buf = runRotation(samples[r], refs[r], axes[r], sf2, max(nPool, 1), o, buf)
+			e.Reference, e.ReferenceN, e.RefSource = poleOf(axes[r]), refN[r], srcs[r]
 			est[r] = e
 		}
 		if pass == 0 {

@@ -146,4 +146,3 @@ func (t tensor) principal() (axis geom.Vec3, s1 float64, ok bool) {
 	lambda := v.Dot(mul(v))
 	return v.Lower(), lambda / float64(t.n), true
 }
-
