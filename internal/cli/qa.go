@@ -18,6 +18,7 @@ import (
 	"corvane/internal/desurvey"
 	"corvane/internal/qa"
 	"corvane/internal/qa/qapage"
+	"corvane/internal/uncertainty"
 )
 
 func init() {
@@ -41,7 +42,11 @@ holes from another source (hole_id, depth, dip, dip_direction).
   runs and marks      oriented length and share per hole; measurements outside runs or
                       in unusable runs; mark mismatch across run breaks
   mark rotation       with --persistent TYPE: each run's rotation about the core axis
-                      (a beta offset) that brings TYPE onto the fabric of its neighbours
+                      (a beta offset) that brings TYPE onto the fabric of its neighbours,
+                      from however few measurements the run has; a run is flagged when
+                      the 95% interval, computed with the error model (--error-model),
+                      lies beyond --rotation-tolerance. A logger who rounds to 5 deg
+                      gets a wider reading error, not flags
   reference picks     depth shift, matches, misfit per hole and run, implied offsets
   surveys             dogleg severity, leave-one-out outliers, gaps, short surveys,
                       first station against the collar, magnetic shots in magnetic zones
@@ -116,8 +121,11 @@ func runQA(_ context.Context, env *Env, args []string) int {
 	fs.Float64Var(&o.MismatchTolerance, "mismatch-tolerance", def.MismatchTolerance, "mark mismatch across a run break to flag, degrees (common practice)")
 	fs.StringVar(&o.Reference, "reference", def.Reference, "fabric reference for mark rotation: neighbours or hole")
 	fs.IntVar(&o.Neighbours, "neighbours", def.Neighbours, "runs on each side forming the neighbours' reference")
-	fs.Float64Var(&o.RotationThreshold, "rotation-threshold", def.RotationThreshold, "beta offset to flag, degrees")
-	fs.IntVar(&o.MinRunCount, "min-run-count", def.MinRunCount, "measurements a run's flag must rest on")
+	fs.Float64Var(&o.RotationTolerance, "rotation-tolerance", def.RotationTolerance, "mark rotation: flag when the 95% interval excludes zero by more than this, degrees")
+	fs.IntVar(&o.MinReference, "min-reference", def.MinReference, "mark rotation: poles the neighbours must hold, else the hole-wide fabric is the reference")
+	errModel := fs.String("error-model", "", "JSON file of standard errors in degrees (alpha, beta, gamma, mark_good, mark_fair, mark_poor, mark_unrated, magnetic/gyro/unknown {azimuth, dip}); absent fields take the defaults")
+	fs.Float64Var(&o.RotationThreshold, "rotation-threshold", def.RotationThreshold, "reference picks: beta offset to flag, degrees")
+	fs.IntVar(&o.MinRunCount, "min-run-count", def.MinRunCount, "reference picks: matches a run's flag must rest on")
 	fs.Float64Var(&o.DoglegThreshold, "dogleg-threshold", def.DoglegThreshold, "dogleg severity to flag, degrees per 30 m (per 100 ft with --feet)")
 	fs.Float64Var(&o.GapThreshold, "gap-threshold", def.GapThreshold, "survey gap to flag, length units")
 	fs.Float64Var(&o.PickWindow, "pick-window", def.PickWindow, "depth window for matching picks, length units")
@@ -161,6 +169,19 @@ func runQA(_ context.Context, env *Env, args []string) int {
 	}
 	o.PersistentType = strings.TrimSpace(*persistent)
 	o.Feet = *feet
+	if *errModel != "" {
+		f, err := os.Open(*errModel)
+		if err != nil {
+			fmt.Fprintf(env.Stderr, "corvane qa: --error-model: %v\n", err)
+			return ExitUsage
+		}
+		o.Errors, err = uncertainty.ReadModel(f)
+		f.Close()
+		if err != nil {
+			fmt.Fprintf(env.Stderr, "corvane qa: --error-model %s: %v\n", *errModel, err)
+			return ExitUsage
+		}
+	}
 	if err := o.Check(); err != nil {
 		fmt.Fprintf(env.Stderr, "corvane qa: %v\n", err)
 		return ExitUsage

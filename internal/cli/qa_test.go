@@ -205,3 +205,40 @@ func TestQAHoleProblems(t *testing.T) {
 		t.Errorf("%d stations passed to the checks, want KW1's 2 only", len(in.Surveys))
 	}
 }
+
+// --error-model: the mark-rotation decision follows the model given; a bad
+// model is refused with the field named.
+func TestQACommandErrorModel(t *testing.T) {
+	dir := t.TempDir()
+	writeQAFiles(t, dir)
+	run := func(model string) (int, qa.Report, string) {
+		p := filepath.Join(dir, "model.json")
+		if err := os.WriteFile(p, []byte(model), 0o644); err != nil {
+			t.Fatal(err)
+		}
+		var out, errb bytes.Buffer
+		code := Main(context.Background(), []string{"qa", "--collars", filepath.Join(dir, "collars.csv"), "--surveys", filepath.Join(dir, "surveys.csv"),
+			"--structures", filepath.Join(dir, "structures.csv"), "--runs", filepath.Join(dir, "runs.csv"), "--persistent", "bedding",
+			"--error-model", p}, nil, &out, &errb, func(string) string { return "" })
+		var rep qa.Report
+		if code != ExitUsage {
+			if err := json.Unmarshal(out.Bytes(), &rep); err != nil {
+				t.Fatal(err)
+			}
+		}
+		return code, rep, errb.String()
+	}
+	if code, rep, _ := run(`{"beta": 3}`); code == ExitUsage || rep.Summary.RunsFlagged != 1 || rep.Options.Errors.Beta != 3 {
+		t.Errorf("default-like model: exit %d, %d runs flagged", code, rep.Summary.RunsFlagged)
+	}
+	// A beta reading error of 40 deg leaves no 40 deg rotation beyond doubt.
+	if code, rep, _ := run(`{"beta": 40}`); code == ExitUsage || rep.Summary.RunsFlagged != 0 {
+		t.Errorf("wide beta error: exit %d, %d runs flagged", code, rep.Summary.RunsFlagged)
+	}
+	if code, _, msg := run(`{"mark_poor": -2}`); code != ExitUsage || !strings.Contains(msg, "mark poor") {
+		t.Errorf("negative error: exit %d, %q", code, msg)
+	}
+	if code, _, msg := run(`{"betta": 2}`); code != ExitUsage || !strings.Contains(msg, "betta") {
+		t.Errorf("unknown field: exit %d, %q", code, msg)
+	}
+}

@@ -85,7 +85,7 @@ type Estimate struct {
 	MonteCarlo *Region `json:"monte_carlo,omitempty"`
 	Draws      int     `json:"draws"`
 	// Used is "first-order" when no Monte Carlo was run or the two cones and
-	// long semi-axes agree within [Agreement], else "monte-carlo" (the errors
+	// both semi-axes agree within [Agreement], else "monte-carlo" (the errors
 	// are too large for the linear approximation).
 	Used string `json:"used"`
 
@@ -596,7 +596,8 @@ func mcRegions(m *model, cs []coords, tab table, sc *scratch, est []Estimate) {
 		r.q = kthLargest(d2, k, 0.9*chi2q95, &sc.sel)
 		r.finish()
 		e.MonteCarlo, e.Draws = r, draws
-		if fo := e.FirstOrder; math.Abs(fo.Cone95-r.Cone95) > Agreement*r.Cone95 || math.Abs(fo.Long95-r.Long95) > Agreement*r.Long95 {
+		if fo := e.FirstOrder; math.Abs(fo.Cone95-r.Cone95) > Agreement*r.Cone95 || math.Abs(fo.Long95-r.Long95) > Agreement*r.Long95 ||
+			math.Abs(fo.Short95-r.Short95) > Agreement*r.Short95 {
 			e.Used = "monte-carlo"
 		}
 	}

@@ -136,44 +136,51 @@ func TestMeasurementCoverage(t *testing.T) {
 	}
 	const trials = 1000
 	for ci, c := range cases {
-		r := rand.New(rand.NewPCG(11, uint64(ci)))
-		var in [2][2]int // [pole, line][cone, region], Monte Carlo region in use
-		var fo [2]int
-		for i := 0; i < trials; i++ {
-			az, dip := 360*r.Float64(), -80+60*r.Float64()
-			alpha, beta, gamma := 15+60*r.Float64(), 360*r.Float64(), 180*r.Float64()
-			rd, truePole, trueLine := simulate(r, az, dip, alpha, beta, gamma, c.sig, coreangle.Convention{})
-			res, err := Measure(rd, MC{Draws: 1000, Seed: uint64(i)})
-			if err != nil {
-				t.Fatal(err)
+		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
+			measurementCoverage(t, ci, c.sig, trials)
+		})
+	}
+}
+
+func measurementCoverage(t *testing.T, ci int, sig Sigmas, trials int) {
+	r := rand.New(rand.NewPCG(11, uint64(ci)))
+	var in [2][2]int // [pole, line][cone, region], Monte Carlo region in use
+	var fo [2]int
+	for i := 0; i < trials; i++ {
+		az, dip := 360*r.Float64(), -80+60*r.Float64()
+		alpha, beta, gamma := 15+60*r.Float64(), 360*r.Float64(), 180*r.Float64()
+		rd, truePole, trueLine := simulate(r, az, dip, alpha, beta, gamma, sig, coreangle.Convention{})
+		res, err := Measure(rd, MC{Draws: 500, Seed: uint64(i)})
+		if err != nil {
+			t.Fatal(err)
+		}
+		for k, e := range []*Estimate{&res.Pole, res.Line} {
+			v := truePole
+			if k == 1 {
+				v = trueLine
 			}
-			for k, e := range []*Estimate{&res.Pole, res.Line} {
-				v := truePole
-				if k == 1 {
-					v = trueLine
-				}
-				if e.InCone(v) {
-					in[k][0]++
-				}
-				if e.InRegion(v) {
-					in[k][1]++
-				}
-				fr := e.FirstOrder
-				u, w := e.cs.of(e.cs.frameOf(v))
-				if fr.mahal(u, w) <= fr.q {
-					fo[k]++
-				}
+			if e.InCone(v) {
+				in[k][0]++
+			}
+			if e.InRegion(v) {
+				in[k][1]++
+			}
+			fr := e.FirstOrder
+			u, w := e.cs.of(e.cs.frameOf(v))
+			if fr.mahal(u, w) <= fr.q {
+				fo[k]++
 			}
 		}
-		for k, what := range []string{"pole", "line"} {
-			for j, shape := range []string{"cone", "region"} {
-				if f := float64(in[k][j]) / trials; f < 0.93 || f > 0.97 {
-					t.Errorf("%s: %s %s holds the truth in %.1f%% of %d cases, want 93-97%%", c.name, what, shape, 100*f, trials)
-				}
+	}
+	for k, what := range []string{"pole", "line"} {
+		for j, shape := range []string{"cone", "region"} {
+			if f := float64(in[k][j]) / float64(trials); f < 0.93 || f > 0.97 {
+				t.Errorf("%s %s holds the truth in %.1f%% of %d cases, want 93-97%%", what, shape, 100*f, trials)
 			}
-			t.Logf("%s: %s cone %.1f%%, region %.1f%%, first-order region %.1f%%", c.name, what,
-				100*float64(in[k][0])/trials, 100*float64(in[k][1])/trials, 100*float64(fo[k])/trials)
 		}
+		t.Logf("%s cone %.1f%%, region %.1f%%, first-order region %.1f%%", what,
+			100*float64(in[k][0])/float64(trials), 100*float64(in[k][1])/float64(trials), 100*float64(fo[k])/float64(trials))
 	}
 }
 

@@ -38,7 +38,9 @@
 package uncertainty
 
 import (
+	"encoding/json"
 	"fmt"
+	"io"
 	"math"
 	"strings"
 )
@@ -242,3 +244,19 @@ func RoundedShare(share05 float64) float64 {
 // DefaultRoundingStep is the rounding step, degrees, assumed for a logger
 // whose readings pile up on 0s and 5s.
 const DefaultRoundingStep = defaultRounding
+
+// ReadModel reads an error model from JSON (the field names of [Model]'s
+// JSON tags; absent fields take their defaults). Unknown fields and
+// negative or non-finite values are errors that name the field.
+func ReadModel(r io.Reader) (Model, error) {
+	dec := json.NewDecoder(r)
+	dec.DisallowUnknownFields()
+	var m Model
+	if err := dec.Decode(&m); err != nil {
+		return Model{}, fmt.Errorf("error model: %w", err)
+	}
+	if err := m.Check(); err != nil {
+		return Model{}, err
+	}
+	return m, nil
+}

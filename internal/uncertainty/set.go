@@ -116,30 +116,40 @@ func SetMean(ms []Member, mc MC) (SetResult, error) {
 	res := SetResult{N: len(ms), Trend: l.Trend, Plunge: l.Plunge, Fisher95: f.Cone95, Draws: mc.Draws}
 
 	r := rand.New(rand.NewPCG(mc.Seed, 0x736574)) // stream: "set"
-	mark := make([]float64, len(markSig))
-	surv := make([][2]float64, len(survSig))
 	all, shared, indep, comb := make([]float64, mc.Draws), make([]float64, mc.Draws), make([]float64, mc.Draws), make([]float64, mc.Draws)
 	sms := make([]geom.Vec3, mc.Draws)
 	devs := make([][3]float64, mc.Draws) // Fisher deviation: cos, and the direction's cos, sin
 	nf := float64(f.N)
+	var markSC [][2]float64
+	var survSC [][4]float64
 	for t := 0; t < mc.Draws; t++ {
-		for k, s := range markSig {
-			mark[k] = s * r.NormFloat64()
+		// One draw per run and per survey interval, shared by their members.
+		markSC, survSC = markSC[:0], survSC[:0]
+		for _, s := range markSig {
+			sn, c := sincos(s * r.NormFloat64())
+			markSC = append(markSC, [2]float64{sn, c})
 		}
-		for k, s := range survSig {
-			surv[k] = [2]float64{s[0] * r.NormFloat64(), s[1] * r.NormFloat64()}
+		for _, s := range survSig {
+			sa, ca := sincos(s[0] * r.NormFloat64())
+			sd, cd := sincos(s[1] * r.NormFloat64())
+			survSC = append(survSC, [4]float64{sa, ca, sd, cd})
 		}
 		var sumAll, sumShared, sumIndep geom.Vec3
 		for i, md := range models {
-			sv := surv[survOf[i]]
-			mk := mark[runOf[i]]
+			sv, mk := survSC[survOf[i]], markSC[runOf[i]]
 			sig := ms[i].Sigma
-			sa := geom.Rad(sig.Alpha) * r.NormFloat64()
-			sb := geom.Rad(sig.Beta) * r.NormFloat64()
-			n, _ := md.eval(sa, sb+mk, 0, sv[0], sv[1])
-			sumAll = sumAll.Add(md.world(n).Scale(sign[i]))
-			n, _ = md.eval(0, mk, 0, sv[0], sv[1])
+			// Shared errors only: the mark and the survey interval's.
+			tab := [10]float64{0, 1, mk[0], mk[1], 0, 1, sv[0], sv[1], sv[2], sv[3]}
+			n, _ := md.evalSC(&tab)
 			sumShared = sumShared.Add(md.world(n).Scale(sign[i]))
+			// All errors: the member's readings added to the shared ones
+			// (beta reading and mark add as angles).
+			tab[0], tab[1] = sincos(geom.Rad(sig.Alpha) * r.NormFloat64())
+			sb, cb := sincos(geom.Rad(sig.Beta) * r.NormFloat64())
+			tab[2], tab[3] = sb*mk[1]+cb*mk[0], cb*mk[1]-sb*mk[0]
+			n, _ = md.evalSC(&tab)
+			sumAll = sumAll.Add(md.world(n).Scale(sign[i]))
+			// The shared sources drawn for this member alone.
 			n, _ = md.eval(0, geom.Rad(sig.Mark)*r.NormFloat64(), 0, geom.Rad(sig.Azimuth)*r.NormFloat64(), geom.Rad(sig.Dip)*r.NormFloat64())
 			sumIndep = sumIndep.Add(md.world(n).Scale(sign[i]))
 		}

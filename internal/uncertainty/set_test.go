@@ -64,30 +64,33 @@ func TestSetCoverage(t *testing.T) {
 	}
 	const trials = 800
 	for ci, c := range cases {
-		r := rand.New(rand.NewPCG(21, uint64(ci)))
-		in, fisherIn, dom := 0, 0, map[string]int{}
-		for i := 0; i < trials; i++ {
-			ms := simulateSet(r, mu, c.sd, holes, 3, 3, Model{}, c.conf, c.k)
-			res, err := SetMean(ms, MC{Draws: 300, Seed: uint64(i)})
-			if err != nil {
-				t.Fatal(err)
+		t.Run(c.name, func(t *testing.T) {
+			t.Parallel()
+			r := rand.New(rand.NewPCG(21, uint64(ci)))
+			in, fisherIn, dom := 0, 0, map[string]int{}
+			for i := 0; i < trials; i++ {
+				ms := simulateSet(r, mu, c.sd, holes, 2, 3, Model{}, c.conf, c.k)
+				res, err := SetMean(ms, MC{Draws: 200, Seed: uint64(i)})
+				if err != nil {
+					t.Fatal(err)
+				}
+				ang := geom.AxialAngle(mu, geom.FromTrendPlunge(res.Trend, res.Plunge))
+				if ang <= res.Combined95 {
+					in++
+				}
+				if ang <= res.Fisher95 {
+					fisherIn++
+				}
+				dom[res.Dominant]++
 			}
-			ang := geom.AxialAngle(mu, geom.FromTrendPlunge(res.Trend, res.Plunge))
-			if ang <= res.Combined95 {
-				in++
+			f, ff := float64(in)/trials, float64(fisherIn)/trials
+			t.Logf("combined %.1f%%, Fisher alone %.1f%%, dominant %v", 100*f, 100*ff, dom)
+			if f < 0.93 || f > 0.97 {
+				t.Errorf("combined cone holds the true mean in %.1f%% of %d sets, want 93-97%%", 100*f, trials)
 			}
-			if ang <= res.Fisher95 {
-				fisherIn++
+			if c.fisherLow && ff > 0.9 {
+				t.Errorf("Fisher cone alone holds the mean in %.1f%%: the shared errors should show", 100*ff)
 			}
-			dom[res.Dominant]++
-		}
-		f := float64(in) / trials
-		t.Logf("%s: combined %.1f%%, Fisher alone %.1f%%, dominant %v", c.name, 100*f, 100*float64(fisherIn)/trials, dom)
-		if f < 0.93 || f > 0.97 {
-			t.Errorf("%s: combined cone holds the true mean in %.1f%% of %d sets, want 93-97%%", c.name, 100*f, trials)
-		}
-		if c.fisherLow && float64(fisherIn)/trials > 0.9 {
-			t.Errorf("%s: Fisher cone alone holds the mean in %.1f%%: the shared errors should show", c.name, 100*float64(fisherIn)/trials)
-		}
+		})
 	}
 }
