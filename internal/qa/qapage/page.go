@@ -210,7 +210,7 @@ func writeHole(b *strings.Builder, h *qa.HoleReport, r qa.Report) {
 		}
 	}
 	b.WriteString("<div class=\"strip\">")
-	writeStrip(b, h, fs, r.Options.MinRunCount)
+	writeStrip(b, h, fs)
 	b.WriteString("</div>")
 
 	if len(fs) > 0 {
@@ -253,7 +253,7 @@ func findingTable(b *strings.Builder, fs []qa.Finding) {
 	b.WriteString("</table>")
 }
 
-func writeStrip(b *strings.Builder, h *qa.HoleReport, fs []qa.Finding, minN int) {
+func writeStrip(b *strings.Builder, h *qa.HoleReport, fs []qa.Finding) {
 	total := h.Depth
 	if total <= 0 {
 		total = 1
@@ -307,7 +307,7 @@ func writeStrip(b *strings.Builder, h *qa.HoleReport, fs []qa.Finding, minN int)
 		}
 		w := math.Max(x(run.To)-x(run.From)-0.8, 1.2)
 		fill, stroke := "#9a9aa0", "none"
-		if e.N < minN { // too few measurements to carry a flag: drawn faint
+		if math.Abs(e.Offset) <= e.HalfWidth95 { // the interval holds zero: drawn faint
 			fill = "#d4d4d8"
 		}
 		if e.Flagged {
@@ -557,8 +557,8 @@ func writeMethods(b *strings.Builder, r qa.Report) {
 	o := r.Options
 	b.WriteString("<h2>Methods and thresholds</h2><ul class=\"methods\">")
 	items := []string{
-		fmt.Sprintf("Mark rotation: for each run, the beta offset that turns each %s pole about the core axis onto the reference fabric; the run's estimate is the circular mean of these offsets with its circular standard error and large-sample 95%% interval (Fisher 1993, <i>Statistical Analysis of Circular Data</i>; Mardia &amp; Jupp 2000). Reference: principal axis of the orientation tensor of the %d nearest runs on each side with the run left out, or the hole-wide fabric. Flagged when |offset| &gt; %.0f&#176;, the interval excludes 0 and n &ge; %d.",
-			esc(orDash(o.PersistentType)), o.Neighbours, o.RotationThreshold, o.MinRunCount),
+		fmt.Sprintf("Mark rotation: for each run, the beta offset that turns each %s pole about the core axis onto the reference fabric; the run's estimate is the mean of these offsets weighted by their variances from the error model (beta reading %.1f&#176;, rounding loggers wider; fabric scatter from the misfits no rotation removes), with the reference's own uncertainty and its runs' mark errors (good %.0f&#176;, fair %.0f&#176;, poor %.0f&#176;) and Student's t. Reference: principal axis of the orientation tensor of the %d nearest runs on each side with the run left out (Scheidegger 1965), or the hole-wide fabric. Flagged when the 95%% interval excludes zero by more than %.0f&#176;, from however many measurements the run has. Uncertainty figures depend on the error model chosen.",
+			esc(orDash(o.PersistentType)), o.Errors.Beta, o.Errors.MarkGood, o.Errors.MarkFair, o.Errors.MarkPoor, o.Neighbours, o.RotationTolerance),
 		fmt.Sprintf("Reference picks: constant depth shift by grid search (&#177;%.1f, step %.2f), then nearest-depth matching within %.2f; misfit is the angle between poles.", o.MaxDepthShift, o.ShiftStep, o.PickWindow),
 		fmt.Sprintf("Survey: dogleg severity above %.1f per 30 m (or per 100 ft) (common practice); leave-one-out residual of each station against the minimum-curvature arc of its neighbours, flagged above %.0f &times; the median residual of the hole's other stations (its neighbours left out; %.1f&#176; assumed when fewer than three remain) and %.1f&#176; (residuals of normal shot errors are Rayleigh distributed: the limit is about 4.7 standard deviations); gaps over %.0f; last station more than %.0f above the final depth; first station more than %.0f&#176; (plus the dogleg allowance) from the collar; magnetic shots inside marked magnetic zones.",
 			o.DoglegThreshold, o.OutlierFactor, o.NominalResidual, o.OutlierFloor, o.GapThreshold, o.ShortTolerance, o.CollarTolerance),
