@@ -254,3 +254,24 @@ func TestRobustScale(t *testing.T) {
 		t.Errorf("scale %v median %v", s, m)
 	}
 }
+
+// Student's t quantiles against gonum's exact inverse (an independent
+// library) and the printed tables (t(0.975; 30) = 2.042, t(0.975; 120) =
+// 1.980, common statistical tables).
+func TestT975(t *testing.T) {
+	for _, df := range []float64{1, 4, 12, 29, 30, 45, 120, 1e4} {
+		exact := distuv.StudentsT{Mu: 0, Sigma: 1, Nu: math.Floor(df)}.Quantile(0.975)
+		if df >= 30 {
+			exact = distuv.StudentsT{Mu: 0, Sigma: 1, Nu: df}.Quantile(0.975)
+		}
+		if got := t975(df); math.Abs(got-exact) > 2e-4 {
+			t.Errorf("t975(%g) = %.5f, want %.5f", df, got, exact)
+		}
+	}
+	if math.Abs(t975(30)-2.042) > 5e-4 || math.Abs(t975(120)-1.980) > 5e-4 {
+		t.Errorf("tables: %.4f %.4f", t975(30), t975(120))
+	}
+	if math.Abs(chi2q99(3)-11.345) > 1e-3 { // chi-square table, 3 df, 0.99
+		t.Errorf("chi2q99(3) = %.4f", chi2q99(3))
+	}
+}
