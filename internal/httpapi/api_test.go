@@ -592,6 +592,16 @@ func TestQA(t *testing.T) {
 	if !found {
 		t.Errorf("the planted misread mark of TM004 at 201 m was not flagged; findings: %+v", rep.Findings)
 	}
+	// The tolerance reaches the check: beyond the planted error's lower
+	// bound nothing is flagged.
+	var wide report
+	f.must(200, f.site, "GET", base+"/qa?persistent=bedding&rotation_tolerance=60", nil, &wide)
+	for _, fd := range wide.Findings {
+		if fd.Check == "mark-rotation" && fd.Size > 0 {
+			t.Errorf("rotation_tolerance=60 still flags %s at %.2f", fd.HoleID, fd.Depth)
+		}
+	}
+	f.must(422, f.site, "GET", base+"/qa?persistent=bedding&min_reference=-1", nil, nil)
 
 	var holes struct {
 		Items []domain.Hole `json:"items"`

@@ -214,7 +214,7 @@ func (o Options) Check() error {
 		name string
 		v    float64
 	}{
-		{"mismatch_tolerance", o.MismatchTolerance}, {"rotation_threshold", o.RotationThreshold},
+		{"mismatch_tolerance", o.MismatchTolerance}, {"rotation_threshold", o.RotationThreshold}, {"rotation_tolerance", o.RotationTolerance},
 		{"fabric_misfit", o.FabricMisfit}, {"pick_window", o.PickWindow}, {"max_depth_shift", o.MaxDepthShift},
 		{"shift_step", o.ShiftStep}, {"dogleg_threshold", o.DoglegThreshold}, {"outlier_factor", o.OutlierFactor},
 		{"outlier_floor", o.OutlierFloor}, {"nominal_residual", o.NominalResidual}, {"gap_threshold", o.GapThreshold},
@@ -229,10 +229,13 @@ func (o Options) Check() error {
 	for _, f := range []struct {
 		name string
 		v    int
-	}{{"neighbours", o.Neighbours}, {"min_run_count", o.MinRunCount}, {"digit_min_count", o.DigitMinCount}} {
+	}{{"neighbours", o.Neighbours}, {"min_run_count", o.MinRunCount}, {"min_reference", o.MinReference}, {"digit_min_count", o.DigitMinCount}} {
 		if f.v < 0 {
 			return optErr(f.name, "%s must be >= 0 (0 takes the default), got %d", f.name, f.v)
 		}
+	}
+	if err := o.Errors.Check(); err != nil {
+		return optErr("error_model", "%v", err)
 	}
 	d := o.withDefaults()
 	if d.Neighbours > MaxNeighbours {
