@@ -430,6 +430,21 @@ func Gamma(h geom.Vec3, p geom.Plane, l geom.Line, c Convention) (float64, error
 	return g, nil
 }
 
+// Fold returns the in-range reading of a plane whose alpha was pushed out of
+// 0..90 (by an error added to a reading, say): past 90 the same plane shows
+// 180 - alpha at the other apex, below 0 it shows -alpha at the other apex;
+// the other apex is beta + 180 (not normalised). In range, the reading is
+// returned unchanged.
+func Fold(alpha, beta float64) (float64, float64) {
+	switch {
+	case alpha > 90:
+		return 180 - alpha, beta + 180
+	case alpha < 0:
+		return -alpha, beta + 180
+	}
+	return alpha, beta
+}
+
 // TrueThickness returns the true thickness of a planar body from its apparent
 // thickness along the core axis and its alpha in degrees:
 // apparent * sin(alpha) (common practice).

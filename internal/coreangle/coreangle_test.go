@@ -394,3 +394,22 @@ func TestPlaneOfMatchesGeom(t *testing.T) {
 		}
 	}
 }
+
+// A plane read with alpha pushed past 90 or below 0 is the same plane as its
+// folded reading: checked through the forward conversion.
+func TestFold(t *testing.T) {
+	h := geom.HoleDirection(35, -55)
+	for _, c := range []struct{ a, b float64 }{{95, 40}, {-7, 300}, {45, 10}} {
+		a, b := Fold(c.a, c.b)
+		if a < 0 || a > 90 {
+			t.Fatalf("Fold(%v, %v) alpha %v", c.a, c.b, a)
+		}
+		// The normal of the raw reading, from the package's formula
+		// n = sin(alpha) h - cos(alpha) d, evaluated without range checks.
+		n, _, _ := normal(h, c.a, c.b, Convention{})
+		p, _ := Plane(h, a, geom.NormAzimuth(b), Convention{})
+		if ang := geom.AxialAngle(n, p.Normal()); ang > 1e-9 {
+			t.Errorf("Fold(%v, %v) = %v, %v: plane off by %v deg", c.a, c.b, a, b, ang)
+		}
+	}
+}

@@ -133,7 +133,7 @@ func simProgramme(t *testing.T, r *rand.Rand, holes int, sd float64, m uncertain
 				a, b, _ := coreangle.Angles(pt.Dir, geom.PlaneOf(p), coreangle.Convention{})
 				a += m.Alpha * r.NormFloat64()
 				b += m.Beta*r.NormFloat64() + mark
-				a, b = foldAlpha(a, b)
+				a, b = coreangle.Fold(a, b)
 				in.Measurements = append(in.Measurements, Measurement{HoleID: id, Depth: depth, Alpha: a, Beta: geom.NormAzimuth(b), Type: "bedding", Logger: "cy"})
 			}
 		}
@@ -181,17 +181,4 @@ func TestRunRotationCoverage(t *testing.T) {
 			t.Errorf("fabric sd %v: %.1f%% of %d run intervals hold the truth, want 93-97%% of at least 1000", sd, 100*f, total)
 		}
 	}
-}
-
-// foldAlpha brings an alpha pushed out of 0..90 by a reading error back into
-// range: past 90 the plane is the one at 180 - alpha seen from the other
-// apex, below 0 the one at -alpha from the other apex (beta + 180).
-func foldAlpha(a, b float64) (float64, float64) {
-	switch {
-	case a > 90:
-		return 180 - a, b + 180
-	case a < 0:
-		return -a, b + 180
-	}
-	return a, b
 }

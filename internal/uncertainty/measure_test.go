@@ -117,7 +117,7 @@ func simulate(r *rand.Rand, az, dip, alpha, beta, gamma float64, sig Sigmas, con
 	a := alpha + sig.Alpha*r.NormFloat64()
 	b := beta + sig.Beta*r.NormFloat64() + sig.Mark*r.NormFloat64()
 	g := gamma + sig.Gamma*r.NormFloat64()
-	a, b = foldAlpha(a, b)
+	a, b = coreangle.Fold(a, b)
 	rd := Reading{Hole: geom.HoleDirection(mAz, mDip), Alpha: a, Beta: geom.NormAzimuth(b), Gamma: geom.NormAzimuth(g), Conv: conv, Sigma: sig}
 	return rd, pl.Normal(), ln.Vec()
 }
@@ -229,17 +229,4 @@ func TestMeasureDeterministicAndVertical(t *testing.T) {
 	if _, err := Measure(rd, MC{}); err != ErrVertical {
 		t.Errorf("vertical hole: %v", err)
 	}
-}
-
-// foldAlpha brings an alpha pushed out of 0..90 by a reading error back into
-// range: past 90 the plane is the one at 180 - alpha seen from the other
-// apex, below 0 the one at -alpha from the other apex (beta + 180).
-func foldAlpha(a, b float64) (float64, float64) {
-	switch {
-	case a > 90:
-		return 180 - a, b + 180
-	case a < 0:
-		return -a, b + 180
-	}
-	return a, b
 }

@@ -35,7 +35,7 @@ func simulateSet(r *rand.Rand, mu geom.Vec3, sd float64, holes [][2]float64, run
 				a, b, _ := coreangle.Angles(h, geom.PlaneOf(p), coreangle.Convention{})
 				a += sig.Alpha * r.NormFloat64()
 				b += sig.Beta*r.NormFloat64() + mark
-				a, b = foldAlpha(a, b)
+				a, b = coreangle.Fold(a, b)
 				out = append(out, Member{Reading: Reading{Hole: geom.HoleDirection(mAz, mDip), Alpha: a, Beta: geom.NormAzimuth(b),
 					Gamma: math.NaN(), Sigma: sig}, Run: fmt.Sprint(hi, "/", ru), Survey: fmt.Sprint(hi)})
 			}
