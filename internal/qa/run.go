@@ -9,10 +9,14 @@
 //     mismatch across run breaks beyond a tolerance.
 //   - Mark rotation: for a persistent fabric, the rotation of each run about
 //     the core axis (a constant beta offset) that best brings its poles onto
-//     the fabric of the neighbouring runs: the circular mean of the
-//     per-measurement offsets with its circular standard error (Fisher 1993,
-//     Mardia & Jupp 2000); the reference is the principal axis of the
-//     orientation tensor (Scheidegger 1965).
+//     the fabric of the neighbouring runs, from however many measurements the
+//     run has: the variance-weighted circular mean of the per-measurement
+//     offsets, its 95% interval from the error model of package uncertainty
+//     (readings, fabric scatter, the reference and its runs' marks), flagged
+//     when the interval excludes zero by more than a tolerance; the reference
+//     is the principal axis of the orientation tensor (Scheidegger 1965).
+//     Reference picks' implied offsets use the circular mean and circular
+//     standard error (Fisher 1993, Mardia & Jupp 2000).
 //   - Reference picks: a constant depth shift by grid search, nearest-depth
 //     matching, angular misfit statistics and implied beta offsets per run.
 //   - Surveys: dogleg severity; leave-one-out residuals against the
