@@ -19,7 +19,8 @@ import (
 //	95% interval: mean +- asin(1.96 SE)             (large-sample; none when 1.96 SE >= 1)
 //
 // The interval is a large-sample approximation; for the small runs usual in
-// core logging it is a guide, which is why a flag also needs a minimum count.
+// core logging it is a guide, which is why a reference-pick flag also needs a
+// minimum count (the persistent-fabric check uses the error model instead).
 type CircularMean struct {
 	N    int     `json:"n"`
 	Mean float64 `json:"mean"` // degrees in (-180, 180]

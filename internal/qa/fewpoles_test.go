@@ -182,3 +182,20 @@ func TestRunRotationCoverage(t *testing.T) {
 		}
 	}
 }
+
+// A logger whose beta fails the digit test gets the rounding added to the
+// beta reading error, the others keep the model's.
+func TestReadingErrorsWidenRounding(t *testing.T) {
+	o := DefaultOptions()
+	sd := readingErrors([]DigitTest{{Logger: "bo", Angle: "beta", Share05: 1, Flagged: true}, {Logger: "ann", Angle: "beta", Share05: 0.9}}, o)
+	a, b := sd("bo")
+	if a != o.Errors.Alpha || math.Abs(b-math.Hypot(o.Errors.Beta, 5/math.Sqrt(12))) > 1e-12 {
+		t.Errorf("bo: %v %v", a, b)
+	}
+	if a, b := sd("ann"); a != o.Errors.Alpha || b != o.Errors.Beta {
+		t.Errorf("ann (not flagged): %v %v", a, b)
+	}
+	if _, b := sd(" "); b != o.Errors.Beta {
+		t.Errorf("no logger: %v", b)
+	}
+}

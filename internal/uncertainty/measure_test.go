@@ -230,3 +230,35 @@ func TestMeasureDeterministicAndVertical(t *testing.T) {
 		t.Errorf("vertical hole: %v", err)
 	}
 }
+
+// Boundary points lie on the edge of the region in use (squared Mahalanobis
+// distance equal to its 95% radius), for the curved and the ellipse shapes,
+// and are lower-hemisphere lines.
+func TestBoundary(t *testing.T) {
+	for _, alpha := range []float64{35, 86} {
+		rd := Reading{Hole: geom.HoleDirection(200, -70), Alpha: alpha, Beta: 75, Gamma: math.NaN(),
+			Sigma: Sigmas{Alpha: 2, Beta: 3, Mark: 7, Azimuth: 1.5, Dip: 0.3}}
+		res, err := Measure(rd, MC{Draws: 1000, Seed: 2})
+		if err != nil {
+			t.Fatal(err)
+		}
+		e := res.Pole
+		r := e.Region()
+		pts := e.Boundary(36)
+		if len(pts) != 36 {
+			t.Fatalf("%d points", len(pts))
+		}
+		for _, p := range pts {
+			if p.Plunge < 0 || p.Plunge > 90 {
+				t.Errorf("alpha %v: point %+v not lower hemisphere", alpha, p)
+			}
+			u, w := e.cs.of(e.cs.frameOf(p.Vec()))
+			if d := r.mahal(u, w); math.Abs(d-r.q) > 1e-6*r.q {
+				t.Errorf("alpha %v (%s): boundary point at %.6f, region radius %.6f", alpha, e.Shape, d, r.q)
+			}
+		}
+		if want := map[float64]string{35: "curved", 86: "ellipse"}[alpha]; e.Shape != want {
+			t.Errorf("alpha %v: shape %s, want %s", alpha, e.Shape, want)
+		}
+	}
+}
