@@ -73,6 +73,8 @@ type Region struct {
 }
 
 // Estimate is the uncertainty of one measured direction (a pole or a line).
+// Its methods (InCone, InRegion, Boundary) need the estimate as [Measure]
+// returned it; one decoded from JSON carries the figures only.
 type Estimate struct {
 	Trend  float64 `json:"trend"` // the measured direction, lower hemisphere
 	Plunge float64 `json:"plunge"`
