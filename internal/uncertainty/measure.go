@@ -586,16 +586,19 @@ func mcRegions(m *model, cs []coords, tab table, sc *scratch, est []Estimate) {
 	for i := 0; i < nd; i++ {
 		r := &Region{cuu: sums[i][0] / float64(draws), cuv: sums[i][1] / float64(draws), cvv: sums[i][2] / float64(draws)}
 		det := r.cuu*r.cvv - r.cuv*r.cuv
-		a, b, c := r.cvv/det, -2*r.cuv/det, r.cuu/det
 		d2 := sc.c[i] // reused below once the cone is known
 		e := &est[i]
 		coneGuess := 1 - math.Cos(geom.Rad(0.9*e.FirstOrder.Cone95))
 		r.Cone95 = geom.Deg(math.Acos(math.Max(-1, math.Min(1, 1-kthLargest(sc.c[i], k, coneGuess, &sc.sel)))))
-		for j := 0; j < draws; j++ {
-			u, w := sc.u[i][j], sc.w[i][j]
-			d2[j] = a*u*u + b*u*w + c*w*w
+		r.q = chi2q95
+		if det > 0 { // else every draw sits on a line or a point: no spread to scale
+			a, b, c := r.cvv/det, -2*r.cuv/det, r.cuu/det
+			for j := 0; j < draws; j++ {
+				u, w := sc.u[i][j], sc.w[i][j]
+				d2[j] = a*u*u + b*u*w + c*w*w
+			}
+			r.q = kthLargest(d2, k, 0.9*chi2q95, &sc.sel)
 		}
-		r.q = kthLargest(d2, k, 0.9*chi2q95, &sc.sel)
 		r.finish()
 		e.MonteCarlo, e.Draws = r, draws
 		if fo := e.FirstOrder; math.Abs(fo.Cone95-r.Cone95) > Agreement*r.Cone95 || math.Abs(fo.Long95-r.Long95) > Agreement*r.Long95 ||

@@ -262,3 +262,19 @@ func TestBoundary(t *testing.T) {
 		}
 	}
 }
+
+// No error at all: zero regions, no NaN.
+func TestExactReading(t *testing.T) {
+	rd := Reading{Hole: geom.HoleDirection(10, -45), Alpha: 30, Beta: 60, Gamma: 20}
+	res, err := Measure(rd, MC{Draws: 200, Seed: 1})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, e := range []*Estimate{&res.Pole, res.Line} {
+		for _, r := range []Region{e.FirstOrder, *e.MonteCarlo} {
+			if r.Cone95 > 1e-9 || r.Long95 > 1e-9 || math.IsNaN(r.Area95) || math.IsNaN(r.q) {
+				t.Errorf("exact reading: %+v", r)
+			}
+		}
+	}
+}
