@@ -76,7 +76,7 @@ const minFabricSD = 0.5
 //
 // A run without usable samples, or whose reference has none, gets an
 // estimate with N = 0 that is never flagged.
-func runRotation(samples []offsetSample, refs []refRun, ref geom.Vec3, sf2 float64, nPool int, o Options, buf []float64) (*RotationEstimate, []float64) {
+func runRotation(samples []offsetSample, refs []refRun, ref geom.Vec3, sf2 float64, nPool int, o Options, sc *rotScratch) *RotationEstimate {
 	e := &RotationEstimate{HalfWidth95: 180, SE: -1, Tolerance: o.RotationTolerance, FabricSD: math.Sqrt(sf2)}
 	// The reference's along-circle variance and its runs' mark errors.
 	var sumAlong, sumC, marks float64
@@ -98,15 +98,15 @@ func runRotation(samples []offsetSample, refs []refRun, ref geom.Vec3, sf2 float
 	}
 	if nref == 0 { // no usable reference: no estimate, every sample left out
 		e.Excluded = len(samples)
-		return e, buf
+		return e
 	}
 	varRef := sumAlong/float64(nref)/float64(nref) + marks/float64(nref*nref)
 	dRef := sumC / float64(nref*nref) // d varRef / d sf2
 	e.ReferenceSE = math.Sqrt(varRef)
 
 	// The run's offsets and their variances.
-	buf = buf[:0]
-	var vars, cs []float64
+	buf, vars, cs := sc.off[:0], sc.vars[:0], sc.cs[:0]
+	defer func() { sc.off, sc.vars, sc.cs = buf, vars, cs }()
 	for _, s := range samples {
 		off, res, ok := betaOffset(s.h, s.n, ref)
 		if !ok || res > o.FabricMisfit || halfTurnAmbiguous(s, ref, res, sf2) {
@@ -157,7 +157,7 @@ func runRotation(samples []offsetSample, refs []refRun, ref geom.Vec3, sf2 float
 	}
 	e.N = n
 	if n == 0 {
-		return e, buf
+		return e
 	}
 	e.Offset, e.Rbar = m, rbar
 	varMean := 1 / sumW
@@ -199,8 +199,11 @@ func runRotation(samples []offsetSample, refs []refRun, ref geom.Vec3, sf2 float
 	e.SE = se
 	e.HalfWidth95 = math.Min(180, t975(df)*se)
 	e.Flagged = math.Abs(e.Offset)-e.HalfWidth95 > o.RotationTolerance
-	return e, buf
+	return e
 }
+
+// rotScratch holds runRotation's buffers, reused from run to run.
+type rotScratch struct{ off, vars, cs []float64 }
 
 // Quantiles used per run, computed once (gonum's inverses take tens of
 // microseconds each, and a programme has tens of thousands of runs).
@@ -376,7 +379,7 @@ func rotationChecks(h *holeData, conv coreangle.Convention, o Options, readSD fu
 	refs := make([][]refRun, nr)
 	refN := make([]int, nr)
 	srcs := make([]string, nr)
-	var buf []float64
+	var sc rotScratch
 	for pass := 0; pass < 2; pass++ {
 		for r := 0; r < nr; r++ {
 			has[r] = false
@@ -423,8 +426,7 @@ func rotationChecks(h *holeData, conv coreangle.Convention, o Options, readSD fu
 			if !has[r] {
 				continue
 			}
-			var e *RotationEstimate
-			e, buf = runRotation(samples[r], refs[r], axes[r], sf2, max(nPool, 1), o, buf)
+			e := runRotation(samples[r], refs[r], axes[r], sf2, max(nPool, 1), o, &sc)
 			e.Reference, e.ReferenceN, e.RefSource = poleOf(axes[r]), refN[r], srcs[r]
 			est[r] = e
 		}
