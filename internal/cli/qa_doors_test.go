@@ -5,16 +5,11 @@ import (
 	"context"
 	"encoding/json"
 	"math"
-	"net/http/httptest"
 	"path/filepath"
 	"strconv"
 	"testing"
 
-	"corvane/internal/domain"
-	"corvane/internal/httpapi"
 	"corvane/internal/qa"
-	"corvane/internal/service"
-	"corvane/internal/store/sqlite"
 )
 
 // Equal answers at both doors of the mark-rotation check: corvane qa on the
@@ -22,27 +17,8 @@ import (
 // loaded into a store give the same rotation estimate, interval, n and flag
 // for every run, at default settings and with the tolerance changed.
 func TestQAMarkRotationDoors(t *testing.T) {
-	ctx := service.WithActor(context.Background(), service.System)
-	path := filepath.Join(t.TempDir(), "corvane.db")
-	if err := sqlite.Migrate(path, 0); err != nil {
-		t.Fatal(err)
-	}
-	st, err := sqlite.Open(ctx, path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	t.Cleanup(func() { st.Close() })
-	svc := service.New(st, nil)
-	p, _, err := svc.LoadDemo(ctx)
-	if err != nil {
-		t.Fatal(err)
-	}
-	token, _, err := svc.CreateToken(ctx, p.ID, domain.RoleRead, "reader")
-	if err != nil {
-		t.Fatal(err)
-	}
-	srv := httptest.NewServer(httpapi.New(httpapi.Options{Service: svc}))
-	t.Cleanup(srv.Close)
+	ctx, svc, p := demoService(t)
+	srv, token := readerServer(t, ctx, svc, p.ID)
 
 	dir := filepath.Join("..", "..", "testdata", "tallowmere")
 	flagged := map[string]int{}
