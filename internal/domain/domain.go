@@ -74,8 +74,13 @@ type TypeCode struct {
 	ProjectID   int64  `json:"project_id"`
 	Code        string `json:"code"`
 	Description string `json:"description"`
-	// Kind is "plane" or "line"; a line type expects gamma on its measurements.
+	// Kind is "plane" or "line": a line type's measurements carry gamma (the
+	// lineation), a plane type's never do.
 	Kind string `json:"kind"`
+	// Colour (#rrggbb) and Mark (a shape of visual.Marks) draw the type in
+	// every view; the service fills empty ones with the next free default.
+	Colour string `json:"colour"`
+	Mark   string `json:"mark"`
 }
 
 // Hole is a drill hole: its collar and its planned direction.

@@ -9,6 +9,8 @@ import (
 	"time"
 	"unicode"
 	"unicode/utf8"
+
+	"corvane/internal/visual"
 )
 
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
@@ -180,6 +182,25 @@ func (tc *TypeCode) Normalize() error {
 	}
 	if e := checkOneOf("kind", tc.Kind, "plane", "line"); e != nil {
 		return e
+	}
+	if err := visual.CheckColour(tc.Colour); err != nil {
+		return FieldErr("colour", "%v", err)
+	}
+	if err := visual.CheckMark(tc.Mark); err != nil {
+		return FieldErr("mark", "%v", err)
+	}
+	tc.Colour = strings.ToUpper(tc.Colour)
+	return nil
+}
+
+// CheckKind is the one rule tying a measurement to its type's kind: a line
+// type needs gamma (the lineation on the plane) and a plane type refuses it.
+func CheckKind(m Measurement, tc TypeCode) error {
+	if tc.Kind == "line" && m.Gamma == nil {
+		return FieldErr("gamma", "type %s is a line type: gamma (the lineation angle) is required", tc.Code)
+	}
+	if tc.Kind != "line" && m.Gamma != nil {
+		return FieldErr("gamma", "type %s is a plane type: leave gamma empty (it is for lineations), or choose a line type", tc.Code)
 	}
 	return nil
 }

@@ -8,6 +8,7 @@ import (
 	"corvane/internal/dirstat"
 	"corvane/internal/netsvg"
 	"corvane/internal/projection"
+	"corvane/internal/visual"
 )
 
 // Show says what a net draws.
@@ -65,6 +66,9 @@ type NetOptions struct {
 	// Source names what was read (a file, a selection); AzimuthRef the north
 	// the azimuths refer to, when known. Both go in the subtitle.
 	Source, AzimuthRef string
+	// TypeStyles draws the sets by type code in their type's colour and mark
+	// (nil: the visual language's defaults by set order).
+	TypeStyles map[string]visual.Style
 }
 
 // ParseDensity reads the density method and units: method "" (exponential),
@@ -140,6 +144,9 @@ func Net(in Input, o NetOptions) (netsvg.Net, error) {
 					continue
 				}
 				sm := netsvg.SetMark{Name: name, Count: len(vs), Lines: ofLines, Mean: f.Mean, Cone: f.Cone95}
+				if o.Sets.ByType {
+					sm.Style = o.TypeStyles[name]
+				}
 				if ofLines {
 					sm.Name = name + " (lines)"
 				}

@@ -21,6 +21,7 @@ var pure = map[string]bool{
 	"corvane/internal/density":      true,
 	"corvane/internal/projection":   true,
 	"corvane/internal/netsvg":       true,
+	"corvane/internal/visual":       true,
 	"corvane/internal/wmm":          true,
 	"corvane/internal/utm":          true,
 	"corvane/internal/northref":     true,

@@ -2,10 +2,11 @@
 // documents written to an io.Writer.
 //
 // The sheets are meant for reports: a white background, black line work,
-// text in a plain sans-serif face, set colours from the Okabe-Ito palette
-// (Okabe & Ito 2008, "Color Universal Design", a palette published to stay
-// distinguishable with common colour-vision deficiencies) and a different
-// marker shape for each set, so that a greyscale print still tells them apart.
+// text in a plain sans-serif face, and the colours and marks of corvane's
+// one visual language (package visual: the Okabe & Ito colour-blind-safe
+// palette, each colour paired with its own marker shape, so that a greyscale
+// print still tells the sets apart). A set drawn for a type code takes the
+// type's own colour and mark, the same as on the web page.
 // Density fills use a light-to-dark ramp whose lightness falls steadily, so the
 // order of the levels survives greyscale printing too.
 //
@@ -14,6 +15,7 @@ package netsvg
 
 import (
 	"bufio"
+	"bytes"
 	"encoding/xml"
 	"fmt"
 	"io"
@@ -22,17 +24,11 @@ import (
 
 	"corvane/internal/geom"
 	"corvane/internal/projection"
+	"corvane/internal/visual"
 )
-
-// Okabe-Ito colours in the order sets use them (black is last and is also the
-// colour of line work).
-var setColours = []string{"#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9", "#F0E442", "#000000"}
 
 // densityRamp runs from light to dark with falling lightness.
 var densityRamp = []string{"#f3f0df", "#d4e4c4", "#a3cdb3", "#6fb0a6", "#46899a", "#2f6488", "#27426d", "#1c2549"}
-
-// shapes cycles with the colours; 8 sets get 8 different pairs.
-var shapes = []string{"circle", "square", "triangle", "diamond", "down", "hexagon", "star", "cross"}
 
 // Mark is a pole or a line to plot. Set is the index into Net.Sets, or -1.
 type Mark struct {
@@ -54,6 +50,9 @@ type SetMark struct {
 	Cone  float64
 	Count int
 	Lines bool // a set of lines rather than poles
+	// Style is how the set and its members are drawn; empty parts take the
+	// visual language's default for the set's index.
+	Style visual.Style
 }
 
 // Zone is a shaded region of the net, such as the critical zone of a
@@ -154,70 +153,38 @@ func pathOf(pts []projection.Point, closed bool) string {
 	return b.String()
 }
 
-// marker writes a marker of the given shape centred at (x, y) with size r.
+// marker writes a marker of the given shape (a mark of package visual)
+// centred at (x, y) with size r.
 func (s *svgw) marker(shape string, x, y, r float64, attrs string) {
-	switch shape {
-	case "circle":
-		s.printf(`<circle cx="%.2f" cy="%.2f" r="%.2f" %s/>`+"\n", x, y, r, attrs)
-	case "square":
-		q := r * 0.89
-		s.printf(`<rect x="%.2f" y="%.2f" width="%.2f" height="%.2f" %s/>`+"\n", x-q, y-q, 2*q, 2*q, attrs)
-	default:
-		var pts [][2]float64
-		poly := func(n int, rot, rr float64) {
-			for k := 0; k < n; k++ {
-				a := rot + 2*math.Pi*float64(k)/float64(n)
-				pts = append(pts, [2]float64{x + rr*math.Sin(a), y - rr*math.Cos(a)})
-			}
-		}
-		switch shape {
-		case "triangle":
-			poly(3, 0, r*1.25)
-		case "down":
-			poly(3, math.Pi, r*1.25)
-		case "diamond":
-			poly(4, 0, r*1.2)
-		case "hexagon":
-			poly(6, math.Pi/6, r*1.05)
-		case "star":
-			for k := 0; k < 10; k++ {
-				rr := r * 1.35
-				if k%2 == 1 {
-					rr = r * 0.6
-				}
-				a := math.Pi * float64(k) / 5
-				pts = append(pts, [2]float64{x + rr*math.Sin(a), y - rr*math.Cos(a)})
-			}
-		case "cross":
-			w := r * 0.45
-			for _, p := range [][2]float64{{-w, -r}, {w, -r}, {w, -w}, {r, -w}, {r, w}, {w, w}, {w, r}, {-w, r}, {-w, w}, {-r, w}, {-r, -w}, {-w, -w}} {
-				pts = append(pts, [2]float64{x + p[0]*1.2, y + p[1]*1.2})
-			}
-		}
-		var b strings.Builder
-		for i, p := range pts {
-			if i > 0 {
-				b.WriteByte(' ')
-			}
-			fmt.Fprintf(&b, "%.2f,%.2f", p[0], p[1])
-		}
-		s.printf(`<polygon points="%s" %s/>`+"\n", b.String(), attrs)
-	}
+	s.printf(`<path d="%s" %s/>`+"\n", visual.MarkPath(shape, x, y, r), attrs)
 }
 
-func setStyle(i int) (colour, shape string) {
-	if i < 0 {
-		return "#6b6b6b", "circle"
+// setStyle returns the colour and mark of set i of n (grey circles for no set).
+func setStyle(n *Net, i int) (colour, shape string) {
+	if i < 0 || i >= len(n.Sets) {
+		if i < 0 {
+			return "#6b6b6b", "circle"
+		}
+		p := visual.Pair(i)
+		return p.Colour, p.Mark
 	}
-	return setColours[i%len(setColours)], shapes[i%len(shapes)]
+	st := n.Sets[i].Style
+	p := visual.Pair(i)
+	if st.Colour == "" {
+		st.Colour = p.Colour
+	}
+	if st.Mark == "" {
+		st.Mark = p.Mark
+	}
+	return st.Colour, st.Mark
 }
 
 // WriteNet writes the net n as a complete SVG document to w.
+// The sheet grows downward when the side panel needs more room, so no
+// legend text leaves the image.
 func WriteNet(w io.Writer, n Net) error {
-	s := &svgw{w: bufio.NewWriter(w)}
-	s.printf(`<?xml version="1.0" encoding="UTF-8"?>` + "\n")
-	s.printf(`<svg xmlns="http://www.w3.org/2000/svg" width="%.0f" height="%.0f" viewBox="0 0 %.0f %.0f" style="%s">`+"\n",
-		sheetW, sheetH, sheetW, sheetH, fontCSS)
+	var body bytes.Buffer
+	s := &svgw{w: bufio.NewWriter(&body)}
 	title := n.Title
 	if title == "" {
 		title = "Net"
@@ -255,7 +222,7 @@ func WriteNet(w io.Writer, n Net) error {
 	if len(n.Planes) > 0 {
 		s.printf(`<g id="planes" fill="none" stroke-width="0.5" stroke-opacity="0.6">` + "\n")
 		for _, pm := range n.Planes {
-			col, _ := setStyle(pm.Set)
+			col, _ := setStyle(&n, pm.Set)
 			if pm.Set < 0 {
 				col = "#8a8a8a"
 			}
@@ -273,7 +240,7 @@ func WriteNet(w io.Writer, n Net) error {
 	if len(n.Circles) > 0 {
 		s.printf(`<g id="circles" fill="none" stroke-width="0.8">` + "\n")
 		for _, c := range n.Circles {
-			col, _ := setStyle(c.Set)
+			col, _ := setStyle(&n, c.Set)
 			dash := ""
 			if c.Dashed {
 				dash = ` stroke-dasharray="4 3"`
@@ -290,7 +257,7 @@ func WriteNet(w io.Writer, n Net) error {
 	if len(n.Poles) > 0 {
 		s.printf(`<g id="poles" stroke="#ffffff" stroke-width="0.6">` + "\n")
 		for _, m := range n.Poles {
-			col, shape := setStyle(m.Set)
+			col, shape := setStyle(&n, m.Set)
 			x, y := netXY(n.Projection.Project(m.Axis))
 			r := 3.2
 			if m.Set < 0 {
@@ -303,7 +270,7 @@ func WriteNet(w io.Writer, n Net) error {
 	if len(n.Lines) > 0 {
 		s.printf(`<g id="lines" fill="#ffffff" stroke-width="1.3">` + "\n")
 		for _, m := range n.Lines {
-			col, shape := setStyle(m.Set)
+			col, shape := setStyle(&n, m.Set)
 			x, y := netXY(n.Projection.Project(m.Axis))
 			s.marker(shape, x, y, 3.4, fmt.Sprintf(`stroke="%s"`, col))
 		}
@@ -314,7 +281,7 @@ func WriteNet(w io.Writer, n Net) error {
 	if len(n.Sets) > 0 {
 		s.printf(`<g id="sets">` + "\n")
 		for i, st := range n.Sets {
-			col, _ := setStyle(i)
+			col, _ := setStyle(&n, i)
 			if !st.Lines {
 				// the mean plane of a set of poles, as a broad great circle
 				d := pathOf(n.Projection.GreatCircle(geom.PlaneOf(st.Mean), 180), false)
@@ -323,7 +290,7 @@ func WriteNet(w io.Writer, n Net) error {
 			}
 		}
 		for i, st := range n.Sets {
-			col, shape := setStyle(i)
+			col, shape := setStyle(&n, i)
 			if st.Cone > 0 && st.Cone < 90 {
 				parts, closed := n.Projection.SmallCircle(st.Mean, st.Cone, 180)
 				for _, p := range parts {
@@ -340,12 +307,22 @@ func WriteNet(w io.Writer, n Net) error {
 		s.printf("</g>\n")
 	}
 
-	s.panel(n)
+	height := s.panel(n)
 	s.printf("</svg>\n")
+	if s.err == nil {
+		s.err = s.w.Flush()
+	}
 	if s.err != nil {
 		return s.err
 	}
-	return s.w.Flush()
+	out := bufio.NewWriter(w)
+	fmt.Fprintf(out, `<?xml version="1.0" encoding="UTF-8"?>`+"\n")
+	fmt.Fprintf(out, `<svg xmlns="http://www.w3.org/2000/svg" width="%.0f" height="%.0f" viewBox="0 0 %.0f %.0f" style="%s">`+"\n",
+		sheetW, height, sheetW, height, fontCSS)
+	if _, err := out.Write(body.Bytes()); err != nil {
+		return err
+	}
+	return out.Flush()
 }
 
 // zones writes the hatch patterns and the shaded zones, clipped to the
@@ -417,14 +394,48 @@ func fmtNum(v float64) string {
 	return strings.TrimRight(strings.TrimRight(fmt.Sprintf("%.2f", v), "0"), ".")
 }
 
-// panel writes the side panel: title, projection, counts, sets, density
-// legend, and the caution at the foot of the sheet.
-func (s *svgw) panel(n Net) {
-	y := 40.0
-	line := func(size float64, weight, text string) {
-		s.printf(`<text x="%.1f" y="%.1f" font-size="%.0f"%s>%s</text>`+"\n", panelX, y, size, weight, esc(text))
-		y += size + 6
+// panelChars is how many characters of a size-px line fit the side panel:
+// the panel runs from panelX to 12 units short of the sheet's edge, and a
+// character of the sans-serif face is taken as 0.62 em wide (wider than the
+// average of DejaVu Sans, so the estimate errs toward shorter lines).
+func panelChars(size float64) int {
+	return int((sheetW - 12 - panelX) / (0.62 * size))
+}
+
+// wrapText breaks text into lines of at most width characters (a longer
+// word stays whole on a line of its own).
+func wrapText(text string, width int) []string {
+	var out []string
+	var cur string
+	for _, w := range strings.Fields(text) {
+		if cur != "" && len([]rune(cur))+1+len([]rune(w)) > width {
+			out = append(out, cur)
+			cur = w
+			continue
+		}
+		if cur != "" {
+			cur += " "
+		}
+		cur += w
 	}
+	if cur != "" {
+		out = append(out, cur)
+	}
+	return out
+}
+
+// panel writes the side panel: title, projection, counts, sets, density
+// legend, and the caution at the foot of the sheet. Every line is wrapped to
+// the panel's width. It returns the sheet height the panel needs.
+func (s *svgw) panel(n Net) float64 {
+	y := 40.0
+	lineAt := func(x float64, size float64, weight, text string) {
+		for _, l := range wrapText(text, int(float64(panelChars(size))-(x-panelX)/(0.62*size))) {
+			s.printf(`<text x="%.1f" y="%.1f" font-size="%.0f"%s>%s</text>`+"\n", x, y, size, weight, esc(l))
+			y += size + 6
+		}
+	}
+	line := func(size float64, weight, text string) { lineAt(panelX, size, weight, text) }
 	s.printf(`<text x="24" y="34" font-size="18" font-weight="bold">%s</text>`+"\n", esc(orDefault(n.Title, "Net")))
 	if n.Subtitle != "" {
 		s.printf(`<text x="24" y="54" font-size="11" fill="#444">%s</text>`+"\n", esc(n.Subtitle))
@@ -473,36 +484,39 @@ func (s *svgw) panel(n Net) {
 		y += 4
 		if len(n.Poles) > 0 {
 			s.marker("circle", panelX+5, y-4, 3.2, `fill="#6b6b6b"`)
-			s.printf(`<text x="%.1f" y="%.1f" font-size="11">pole (filled)</text>`+"\n", panelX+16, y)
-			y += 16
+			lineAt(panelX+16, 11, "", "pole (filled)")
+			y += 2
 		}
 		if len(n.Lines) > 0 {
 			s.marker("circle", panelX+5, y-4, 3.4, `fill="#fff" stroke="#6b6b6b" stroke-width="1.3"`)
-			s.printf(`<text x="%.1f" y="%.1f" font-size="11">line (open)</text>`+"\n", panelX+16, y)
-			y += 16
+			lineAt(panelX+16, 11, "", "line (open)")
+			y += 2
 		}
 	}
 	if len(n.Sets) > 0 {
 		y += 8
 		line(12, ` font-weight="bold"`, "Sets: mean and 95% cone")
+		s.printf(`<g id="set-legend">` + "\n")
 		for i, st := range n.Sets {
-			col, shape := setStyle(i)
+			col, shape := setStyle(&n, i)
 			s.marker(shape, panelX+7, y-4, 5.5, fmt.Sprintf(`fill="%s" stroke="#000" stroke-width="1.2"`, col))
+			lineAt(panelX+18, 11, ` font-weight="bold"`, fmt.Sprintf("%s  n=%d", st.Name, st.Count))
+			y -= 3
 			t, p := geom.LineOf(st.Mean).Trend, geom.LineOf(st.Mean).Plunge
-			desc := fmt.Sprintf("%s  n=%d  %03.0f/%02.0f", st.Name, st.Count, t, p)
+			desc := fmt.Sprintf("line %03.0f/%02.0f", t, p)
 			if !st.Lines {
 				pl := geom.PlaneOf(st.Mean)
-				desc = fmt.Sprintf("%s  n=%d  plane %02.0f/%03.0f", st.Name, st.Count, pl.Dip, pl.DipDirection)
+				desc = fmt.Sprintf("plane %02.0f/%03.0f", pl.Dip, pl.DipDirection)
 			}
 			if st.Cone > 0 && !math.IsNaN(st.Cone) {
 				desc += fmt.Sprintf("  \u00b1%.1f\u00b0", st.Cone)
 			}
-			s.printf(`<text x="%.1f" y="%.1f" font-size="11">%s</text>`+"\n", panelX+18, y, esc(desc))
-			y += 17
+			lineAt(panelX+18, 11, "", desc)
+			y += 3
 		}
-		if len(n.Sets) > 0 && !n.Sets[0].Lines {
-			line(9, ` fill="#444"`, "plane = dip/dip direction of the mean pole,")
-			line(9, ` fill="#444"`, "drawn as a dashed great circle")
+		s.printf("</g>\n")
+		if !n.Sets[0].Lines {
+			line(9, ` fill="#444"`, "plane = dip/dip direction of the mean pole, drawn as a dashed great circle")
 		}
 	}
 	if c := n.Density; c != nil && len(c.Levels) > 0 {
@@ -522,15 +536,17 @@ func (s *svgw) panel(n Net) {
 			}
 			s.printf(`<rect x="%.1f" y="%.1f" width="22" height="13" fill="%s" stroke="#3a3a3a" stroke-width="0.5"/>`+"\n",
 				panelX, y-11, rampColour(k, len(c.Levels)))
-			s.printf(`<text x="%.1f" y="%.1f" font-size="11">%s</text>`+"\n", panelX+30, y, esc(label))
-			y += 16
+			lineAt(panelX+30, 11, "", label)
+			y -= 1
 		}
 		mt, mp := geom.LineOf(c.MaxAt).Trend, geom.LineOf(c.MaxAt).Plunge
 		line(10, ` fill="#444"`, fmt.Sprintf("maximum %s at %03.0f/%02.0f", fmtNum(math.Round(c.Max*100)/100), mt, mp))
 	}
+	height := math.Max(sheetH, y+60)
 	if n.Caution != "" {
-		s.wrapped(24, sheetH-38, 112, 9.5, n.Caution)
+		s.wrapped(24, height-38, 112, 9.5, n.Caution)
 	}
+	return height
 }
 
 // wrapped writes text broken into lines of at most width characters.

@@ -56,14 +56,15 @@ func checkMeasurement(m *domain.Measurement, h domain.Hole, vocab []domain.TypeC
 	if m.Depth > h.FinalDepth {
 		return domain.FieldErr("depth", "depth %v is past the final depth %v of hole %s", m.Depth, h.FinalDepth, h.Name)
 	}
-	if !slices.ContainsFunc(vocab, func(tc domain.TypeCode) bool { return tc.Code == m.TypeCode }) {
+	i := slices.IndexFunc(vocab, func(tc domain.TypeCode) bool { return tc.Code == m.TypeCode })
+	if i < 0 {
 		codes := make([]string, len(vocab))
 		for i, tc := range vocab {
 			codes[i] = tc.Code
 		}
 		return domain.FieldErr("type", "type %q is not in the project's vocabulary (%s)", m.TypeCode, strings.Join(codes, ", "))
 	}
-	return nil
+	return domain.CheckKind(*m, vocab[i])
 }
 
 // CreateMeasurement logs a structure measurement (log). LoggedBy defaults to

@@ -4,6 +4,7 @@ import (
 	"context"
 
 	"corvane/internal/domain"
+	"corvane/internal/visual"
 )
 
 // CreateProject creates a project (site admin only) with its conventions;
@@ -108,6 +109,11 @@ func (s *Service) PutTypeCode(ctx context.Context, projectID int64, tc domain.Ty
 		if err != nil {
 			return err
 		}
+		vocab, err := st.ListTypeCodes(ctx, projectID)
+		if err != nil {
+			return err
+		}
+		styleType(&tc, vocab)
 		if err := st.PutTypeCode(ctx, tc); err != nil {
 			return err
 		}
@@ -121,7 +127,59 @@ func (s *Service) ListTypeCodes(ctx context.Context, projectID int64) ([]domain.
 	if _, _, err := s.project(ctx, s.store, projectID, domain.RoleRead); err != nil {
 		return nil, err
 	}
-	return s.store.ListTypeCodes(ctx, projectID)
+	vocab, err := s.store.ListTypeCodes(ctx, projectID)
+	return styled(vocab), err
+}
+
+// styleType completes tc's colour and mark: a part left empty keeps what the
+// stored entry has, else takes the next default the rest of the vocabulary
+// (defaults filled) does not use.
+func styleType(tc *domain.TypeCode, vocab []domain.TypeCode) {
+	var used []visual.Style
+	for _, v := range styled(vocab) {
+		if v.Code == tc.Code {
+			if tc.Colour == "" {
+				tc.Colour = v.Colour
+			}
+			if tc.Mark == "" {
+				tc.Mark = v.Mark
+			}
+			continue
+		}
+		used = append(used, visual.Style{Colour: v.Colour, Mark: v.Mark})
+	}
+	if tc.Colour == "" || tc.Mark == "" {
+		nx := visual.Next(used)
+		if tc.Colour == "" {
+			tc.Colour = nx.Colour
+		}
+		if tc.Mark == "" {
+			tc.Mark = nx.Mark
+		}
+	}
+}
+
+// styled gives types stored without a colour or mark (before they could be
+// chosen) the defaults of the visual language, in code order.
+func styled(vocab []domain.TypeCode) []domain.TypeCode {
+	st := make([]visual.Style, len(vocab))
+	for i, v := range vocab {
+		st[i] = visual.Style{Colour: v.Colour, Mark: v.Mark}
+	}
+	visual.Fill(st)
+	for i := range vocab {
+		vocab[i].Colour, vocab[i].Mark = st[i].Colour, st[i].Mark
+	}
+	return vocab
+}
+
+// TypeStyles maps each type code of the project to how it is drawn.
+func TypeStyles(vocab []domain.TypeCode) map[string]visual.Style {
+	m := make(map[string]visual.Style, len(vocab))
+	for _, v := range styled(vocab) {
+		m[v.Code] = visual.Style{Colour: v.Colour, Mark: v.Mark}
+	}
+	return m
 }
 
 // DeleteTypeCode removes a word of the vocabulary (admin); Conflict while in use.

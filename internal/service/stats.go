@@ -209,6 +209,11 @@ func (s *Service) Net(ctx context.Context, projectID int64, q NetQuery, w io.Wri
 	if err := ctx.Err(); err != nil {
 		return err
 	}
+	vocab, err := s.store.ListTypeCodes(ctx, projectID)
+	if err != nil {
+		return err
+	}
+	o.TypeStyles = TypeStyles(vocab)
 	n, err := fabric.Net(in, o)
 	if err != nil {
 		return optionErr(err)

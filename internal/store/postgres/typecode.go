@@ -8,16 +8,17 @@ import (
 )
 
 const (
-	upsertTypeCode = `INSERT INTO type_codes (project_id, code, description, kind) VALUES ($1, $2, $3, $4)
-	ON CONFLICT (project_id, code) DO UPDATE SET description = excluded.description, kind = excluded.kind`
-	listTypeCodes  = `SELECT project_id, code, description, kind FROM type_codes WHERE project_id = $1 ORDER BY code`
+	upsertTypeCode = `INSERT INTO type_codes (project_id, code, description, kind, colour, mark) VALUES ($1, $2, $3, $4, $5, $6)
+	ON CONFLICT (project_id, code) DO UPDATE SET description = excluded.description, kind = excluded.kind,
+	colour = excluded.colour, mark = excluded.mark`
+	listTypeCodes  = `SELECT project_id, code, description, kind, colour, mark FROM type_codes WHERE project_id = $1 ORDER BY code`
 	deleteTypeCode = `DELETE FROM type_codes WHERE project_id = $1 AND code = $2`
 )
 
 // PutTypeCode creates or replaces a vocabulary entry.
 func (s *Store) PutTypeCode(ctx context.Context, tc domain.TypeCode) error {
 	return s.write(ctx, func(q querier) error {
-		_, err := q.Exec(ctx, upsertTypeCode, tc.ProjectID, tc.Code, tc.Description, tc.Kind)
+		_, err := q.Exec(ctx, upsertTypeCode, tc.ProjectID, tc.Code, tc.Description, tc.Kind, tc.Colour, tc.Mark)
 		return translate(err)
 	})
 }
@@ -30,7 +31,7 @@ func (s *Store) ListTypeCodes(ctx context.Context, projectID int64) ([]domain.Ty
 	}
 	return collect(rows, func(r scanner) (domain.TypeCode, error) {
 		var tc domain.TypeCode
-		err := r.Scan(&tc.ProjectID, &tc.Code, &tc.Description, &tc.Kind)
+		err := r.Scan(&tc.ProjectID, &tc.Code, &tc.Description, &tc.Kind, &tc.Colour, &tc.Mark)
 		return tc, err
 	})
 }

@@ -1,0 +1,2 @@
+ALTER TABLE type_codes DROP COLUMN mark;
+ALTER TABLE type_codes DROP COLUMN colour;
