@@ -499,9 +499,6 @@ func (s *svgw) panel(n Net) float64 {
 		s.printf(`<g id="set-legend">` + "\n")
 		for i, st := range n.Sets {
 			col, shape := setStyle(&n, i)
-			s.marker(shape, panelX+7, y-4, 5.5, fmt.Sprintf(`fill="%s" stroke="#000" stroke-width="1.2"`, col))
-			lineAt(panelX+18, 11, ` font-weight="bold"`, fmt.Sprintf("%s  n=%d", st.Name, st.Count))
-			y -= 3
 			t, p := geom.LineOf(st.Mean).Trend, geom.LineOf(st.Mean).Plunge
 			desc := fmt.Sprintf("line %03.0f/%02.0f", t, p)
 			if !st.Lines {
@@ -511,8 +508,15 @@ func (s *svgw) panel(n Net) float64 {
 			if st.Cone > 0 && !math.IsNaN(st.Cone) {
 				desc += fmt.Sprintf("  \u00b1%.1f\u00b0", st.Cone)
 			}
+			// data-* carry the key for a page that shows it beside the net.
+			s.printf(`<g class="set-key" data-name="%s" data-colour="%s" data-mark="%s" data-count="%d" data-desc="%s">`+"\n",
+				esc(st.Name), col, shape, st.Count, esc(desc))
+			s.marker(shape, panelX+7, y-4, 5.5, fmt.Sprintf(`fill="%s" stroke="#000" stroke-width="1.2"`, col))
+			lineAt(panelX+18, 11, ` font-weight="bold"`, fmt.Sprintf("%s  n=%d", st.Name, st.Count))
+			y -= 3
 			lineAt(panelX+18, 11, "", desc)
 			y += 3
+			s.printf("</g>\n")
 		}
 		s.printf("</g>\n")
 		if !n.Sets[0].Lines {
