@@ -127,6 +127,9 @@ type Store interface {
 	CreateMeasurements(ctx context.Context, ms []Measurement) (int, error)
 	GetMeasurement(ctx context.Context, id int64) (Measurement, error)
 	ListMeasurements(ctx context.Context, f MeasurementFilter, page Page) ([]Measurement, error)
+	// ListMeasurementsByDepth lists in (depth, id) order, paged by keyset:
+	// with page.After > 0 it starts after the row (afterDepth, page.After).
+	ListMeasurementsByDepth(ctx context.Context, f MeasurementFilter, afterDepth float64, page Page) ([]Measurement, error)
 	CountMeasurements(ctx context.Context, f MeasurementFilter) (int64, error)
 	UpdateMeasurement(ctx context.Context, m *Measurement, ifVersion int64) error
 	DeleteMeasurement(ctx context.Context, id, ifVersion int64) error

@@ -268,10 +268,11 @@ func TestContractTour(t *testing.T) {
 		"measurements": []map[string]any{{"hole_id": "A", "depth": 5, "alpha": 20, "beta": 180}},
 	}, nil)
 	f.must(200, f.site, "GET", "/v1/projects", nil, nil)
+	f.must(200, f.site, "GET", "/v1/legend", nil, nil)
 	r := f.must(200, f.site, "GET", base, nil, nil)
 	f.must(200, f.site, "PUT", base, map[string]any{"name": "Tour", "description": "edited"}, nil, "If-Match", r.Header.Get("ETag"))
 	f.must(200, f.site, "GET", base+"/types", nil, nil)
-	f.must(200, f.site, "PUT", base+"/types/FT", map[string]string{"description": "fault", "kind": "plane"}, nil)
+	f.must(200, f.site, "PUT", base+"/types/FT", map[string]string{"description": "fault", "kind": "plane", "colour": "#cc79a7", "mark": "star"}, nil)
 	f.must(204, f.site, "DELETE", base+"/types/FT", nil, nil)
 	f.must(200, f.site, "GET", base+"/holes", nil, nil)
 	r = f.must(200, f.site, "GET", hb, nil, nil)
@@ -298,7 +299,7 @@ func TestContractTour(t *testing.T) {
 	var m view
 	f.must(201, f.site, "POST", base+"/measurements", map[string]any{"hole_id": h.ID, "depth": 2, "alpha": 30, "beta": 200, "gamma": 40, "type": "LN", "apparent_thickness": 0.3}, &m)
 	mb := base + "/measurements/" + itoa(m.ID)
-	f.must(200, f.site, "GET", base+"/measurements?hole=TR001&min_depth=0&max_depth=10&type=LN&from=2000-01-01&to=2100-01-01", nil, nil)
+	f.must(200, f.site, "GET", base+"/measurements?hole=TR001&min_depth=0&max_depth=10&type=LN&from=2000-01-01&to=2100-01-01&order=depth", nil, nil)
 	f.must(200, f.site, "GET", mb, nil, nil)
 	f.must(200, f.site, "PUT", mb, map[string]any{"hole_id": h.ID, "depth": 2.1, "alpha": 31, "beta": 200, "type": "JN"}, nil, "If-Match", `"1"`)
 	f.must(200, f.site, "GET", base+"/measurements.csv", nil, nil)

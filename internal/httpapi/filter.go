@@ -20,6 +20,13 @@ func query(c *gin.Context) (service.MeasurementQuery, error) {
 	var q service.MeasurementQuery
 	q.Holes = splitList(c.QueryArray("hole"))
 	q.Types = splitList(c.QueryArray("type"))
+	switch o := c.Query("order"); o {
+	case "", "id":
+	case "depth":
+		q.ByDepth = true
+	default:
+		return q, domain.FieldErr("order", "query parameter order=%q: want id or depth", o)
+	}
 	num := func(name string) (*float64, error) {
 		v := c.Query(name)
 		if v == "" {

@@ -11,6 +11,7 @@ import (
 
 	"corvane/internal/domain"
 	"corvane/internal/service"
+	"corvane/internal/visual"
 )
 
 // Handlers are thin: decode, call one service method, render.
@@ -121,6 +122,12 @@ func (s *Server) deleteProject(c *gin.Context) {
 
 // ---- vocabulary
 
+// legend serves the visual language: the one definition of type colours
+// and marks, run-confidence fills and severity marks the page draws with.
+func (s *Server) legend(c *gin.Context) {
+	c.JSON(http.StatusOK, visual.TheLegend())
+}
+
 func (s *Server) listTypes(c *gin.Context) {
 	pid, err := pathID(c, "project")
 	if err != nil {
@@ -147,13 +154,15 @@ func (s *Server) putType(c *gin.Context) {
 	var in struct {
 		Description string `json:"description"`
 		Kind        string `json:"kind"`
+		Colour      string `json:"colour"`
+		Mark        string `json:"mark"`
 	}
 	if err := s.decodeJSON(c, &in); err != nil {
 		fail(c, err)
 		return
 	}
 	tc, err := s.opt.Service.PutTypeCode(c.Request.Context(), pid,
-		domain.TypeCode{Code: c.Param("code"), Description: in.Description, Kind: in.Kind})
+		domain.TypeCode{Code: c.Param("code"), Description: in.Description, Kind: in.Kind, Colour: in.Colour, Mark: in.Mark})
 	if err != nil {
 		fail(c, err)
 		return

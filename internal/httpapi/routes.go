@@ -33,6 +33,7 @@ func (s *Server) routes() {
 	v1 := e.Group("/v1", s.authenticate)
 	v1.POST("/convert", s.heavy, s.convert)
 	v1.GET("/audit", s.listSiteAudit)
+	v1.GET("/legend", s.legend)
 
 	v1.GET("/projects", s.listProjects)
 	v1.POST("/projects", need(domain.RoleAdmin), s.createProject)

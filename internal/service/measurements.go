@@ -26,6 +26,9 @@ type MeasurementQuery struct {
 	Types      []string   // type codes
 	LoggedFrom *time.Time // logged_at >= LoggedFrom
 	LoggedTo   *time.Time // logged_at <= LoggedTo
+	// ByDepth lists in (depth, id) order; the page's After is still the id
+	// of the last row of the previous page.
+	ByDepth bool
 }
 
 // filter resolves q's hole names into the store filter.
@@ -143,7 +146,20 @@ func (s *Service) ListMeasurements(ctx context.Context, projectID int64, q Measu
 	if err != nil {
 		return out, err
 	}
-	ms, err := s.store.ListMeasurements(ctx, f, pg)
+	var ms []domain.Measurement
+	if q.ByDepth {
+		var after float64
+		if pg.After > 0 {
+			last, err := measurement(ctx, s.store, projectID, pg.After)
+			if err != nil {
+				return out, domain.FieldErr("after", "after=%d: %v", pg.After, err)
+			}
+			after = last.Depth
+		}
+		ms, err = s.store.ListMeasurementsByDepth(ctx, f, after, pg)
+	} else {
+		ms, err = s.store.ListMeasurements(ctx, f, pg)
+	}
 	if err != nil {
 		return out, err
 	}

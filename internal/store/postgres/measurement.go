@@ -166,6 +166,24 @@ func (s *Store) ListMeasurements(ctx context.Context, f domain.MeasurementFilter
 	return collect(rows, scanMeasurement)
 }
 
+// ListMeasurementsByDepth lists the measurements that pass f in (depth, id)
+// order after the row (afterDepth, page.After) when page.After > 0.
+func (s *Store) ListMeasurementsByDepth(ctx context.Context, f domain.MeasurementFilter, afterDepth float64, page domain.Page) ([]domain.Measurement, error) {
+	page = page.Norm()
+	w, args := where(f)
+	if page.After > 0 {
+		args = append(args, afterDepth, page.After)
+		w += fmt.Sprintf(` AND (depth, id) > ($%d, $%d)`, len(args)-1, len(args))
+	}
+	args = append(args, page.Limit)
+	rows, err := s.read().Query(ctx, `SELECT `+measurementCols+` FROM measurements`+w+
+		fmt.Sprintf(` ORDER BY depth, id LIMIT $%d`, len(args)), args...)
+	if err != nil {
+		return nil, translate(err)
+	}
+	return collect(rows, scanMeasurement)
+}
+
 // CountMeasurements counts the measurements that pass f.
 func (s *Store) CountMeasurements(ctx context.Context, f domain.MeasurementFilter) (int64, error) {
 	w, args := where(f)

@@ -1,6 +1,8 @@
 package postgres_test
 
 import (
+	"fmt"
+	"io/fs"
 	"os"
 	"testing"
 
@@ -8,6 +10,7 @@ import (
 	"corvane/internal/pgtest"
 	"corvane/internal/store/postgres"
 	"corvane/internal/store/storetest"
+	"corvane/migrations"
 )
 
 func TestMain(m *testing.M) {
@@ -55,7 +58,7 @@ func TestMigrationBackfill(t *testing.T) {
 func TestMigrateUpDownVersion(t *testing.T) {
 	url := pgtest.DB(t) // already migrated from the template
 	v, dirty, err := postgres.Version(url)
-	if err != nil || v != 3 || dirty {
+	if err != nil || v != latestMigration(t, migrations.Postgres, "postgres") || dirty {
 		t.Fatalf("template copy: version %d dirty %v err %v", v, dirty, err)
 	}
 	if err := postgres.MigrateDownAll(url); err != nil {
@@ -67,7 +70,24 @@ func TestMigrateUpDownVersion(t *testing.T) {
 	if err := postgres.Migrate(url, 0); err != nil {
 		t.Fatal(err)
 	}
-	if v, _, _ = postgres.Version(url); v != 3 {
+	if v, _, _ = postgres.Version(url); v != latestMigration(t, migrations.Postgres, "postgres") {
 		t.Fatalf("after up: version %d", v)
 	}
+}
+
+// latestMigration is the highest version number among the migration files.
+func latestMigration(t *testing.T, fsys fs.FS, dir string) uint {
+	t.Helper()
+	es, err := fs.ReadDir(fsys, dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var max uint
+	for _, e := range es {
+		var v uint
+		if _, err := fmt.Sscanf(e.Name(), "%d_", &v); err == nil && v > max {
+			max = v
+		}
+	}
+	return max
 }

@@ -135,6 +135,23 @@ func (s *Store) ListMeasurements(ctx context.Context, f domain.MeasurementFilter
 	return collect(rows, scanMeasurement)
 }
 
+// ListMeasurementsByDepth lists the measurements that pass f in (depth, id)
+// order after the row (afterDepth, page.After) when page.After > 0.
+func (s *Store) ListMeasurementsByDepth(ctx context.Context, f domain.MeasurementFilter, afterDepth float64, page domain.Page) ([]domain.Measurement, error) {
+	page = page.Norm()
+	w, args := where(f)
+	if page.After > 0 {
+		w += ` AND (depth > ? OR (depth = ? AND id > ?))`
+		args = append(args, afterDepth, afterDepth, page.After)
+	}
+	args = append(args, page.Limit)
+	rows, err := s.read().QueryContext(ctx, `SELECT `+measurementCols+` FROM measurements`+w+` ORDER BY depth, id LIMIT ?`, args...)
+	if err != nil {
+		return nil, translate(err)
+	}
+	return collect(rows, scanMeasurement)
+}
+
 // CountMeasurements counts the measurements that pass f.
 func (s *Store) CountMeasurements(ctx context.Context, f domain.MeasurementFilter) (int64, error) {
 	w, args := where(f)

@@ -3,6 +3,7 @@ package sqlite_test
 import (
 	"database/sql"
 	"errors"
+	"fmt"
 	"io/fs"
 	"os"
 	"path/filepath"
@@ -11,6 +12,7 @@ import (
 	"corvane/internal/domain"
 	"corvane/internal/store/sqlite"
 	"corvane/internal/store/storetest"
+	"corvane/migrations"
 )
 
 func TestConformance(t *testing.T) {
@@ -39,8 +41,8 @@ func TestMigrateUpDownVersion(t *testing.T) {
 	if err := sqlite.Migrate(path, 0); err != nil {
 		t.Fatal(err)
 	}
-	if v, _, _ = sqlite.Version(path); v != 3 {
-		t.Fatalf("after up: version %d, want 3", v)
+	if v, _, _ = sqlite.Version(path); v != latestMigration(t, migrations.SQLite, "sqlite") {
+		t.Fatalf("after up: version %d, want %d", v, latestMigration(t, migrations.SQLite, "sqlite"))
 	}
 	if err := sqlite.Migrate(path, 0); err != nil { // idempotent
 		t.Fatalf("second up: %v", err)
@@ -129,4 +131,21 @@ func TestLockedFileIsUnavailable(t *testing.T) {
 	if err := s.CreateProject(t.Context(), &p); err != nil {
 		t.Fatalf("the write once the lock is gone: %v", err)
 	}
+}
+
+// latestMigration is the highest version number among the migration files.
+func latestMigration(t *testing.T, fsys fs.FS, dir string) uint {
+	t.Helper()
+	es, err := fs.ReadDir(fsys, dir)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var max uint
+	for _, e := range es {
+		var v uint
+		if _, err := fmt.Sscanf(e.Name(), "%d_", &v); err == nil && v > max {
+			max = v
+		}
+	}
+	return max
 }

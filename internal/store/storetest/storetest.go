@@ -169,10 +169,11 @@ func testTypeCodes(t *testing.T, s domain.Store) {
 	p := newProject(t, s, "vocab")
 	must(t, s.PutTypeCode(c, domain.TypeCode{ProjectID: p.ID, Code: "BD", Description: "bedding plane", Kind: "plane"}))
 	must(t, s.PutTypeCode(c, domain.TypeCode{ProjectID: p.ID, Code: "LN", Description: "lineation", Kind: "line"}))
+	must(t, s.PutTypeCode(c, domain.TypeCode{ProjectID: p.ID, Code: "BD", Description: "bedding plane", Kind: "plane", Colour: "#CC79A7", Mark: "star"}))
 	got, err := s.ListTypeCodes(c, p.ID)
 	must(t, err)
 	diff(t, "vocabulary", []domain.TypeCode{
-		{ProjectID: p.ID, Code: "BD", Description: "bedding plane", Kind: "plane"},
+		{ProjectID: p.ID, Code: "BD", Description: "bedding plane", Kind: "plane", Colour: "#CC79A7", Mark: "star"},
 		{ProjectID: p.ID, Code: "JN", Description: "joint", Kind: "plane"},
 		{ProjectID: p.ID, Code: "LN", Description: "lineation", Kind: "line"},
 	}, got)
@@ -359,6 +360,30 @@ func testMeasurements(t *testing.T, s domain.Store) {
 	}
 	if len(seen) != 251 {
 		t.Fatalf("paged %d rows, want 251", len(seen))
+	}
+	// Page in depth order by keyset on (depth, id): no row lost or repeated,
+	// depths never decreasing, ties broken by id.
+	seen = map[int64]bool{}
+	var last domain.Measurement
+	for {
+		page, err := s.ListMeasurementsByDepth(c, domain.MeasurementFilter{ProjectID: p.ID}, last.Depth, domain.Page{Limit: 40, After: last.ID})
+		must(t, err)
+		for _, x := range page {
+			if seen[x.ID] {
+				t.Fatalf("measurement %d on two depth pages", x.ID)
+			}
+			if last.ID != 0 && (x.Depth < last.Depth || (x.Depth == last.Depth && x.ID < last.ID)) {
+				t.Fatalf("depth order broken: (%v, %d) after (%v, %d)", x.Depth, x.ID, last.Depth, last.ID)
+			}
+			seen[x.ID] = true
+			last = x
+		}
+		if len(page) < 40 {
+			break
+		}
+	}
+	if len(seen) != 251 {
+		t.Fatalf("paged %d rows by depth, want 251", len(seen))
 	}
 	// Bulk rows get IDs in the order given.
 	byDepth, err := s.ListMeasurements(c, domain.MeasurementFilter{ProjectID: p.ID, TypeCodes: []string{"JN"}, MinDepth: f64(0)}, domain.Page{Limit: 1000})
