@@ -106,13 +106,15 @@ type Net struct {
 
 // sheet geometry in SVG user units (1/96 inch)
 const (
-	sheetW  = 860.0
-	sheetH  = 690.0
-	netCX   = 315.0
-	netCY   = 355.0
-	netR    = 250.0
-	panelX  = 620.0
-	fontCSS = "font-family:'DejaVu Sans',Helvetica,Arial,sans-serif"
+	sheetW = 860.0
+	sheetH = 690.0
+	netCX  = 315.0
+	netCY  = 355.0
+	netR   = 250.0
+	panelX = 620.0
+	// fontFamily is a presentation attribute rather than a style, so a page
+	// under a strict Content Security Policy can show the sheet inline.
+	fontFamily = "'DejaVu Sans',Helvetica,Arial,sans-serif"
 )
 
 type svgw struct {
@@ -317,8 +319,8 @@ func WriteNet(w io.Writer, n Net) error {
 	}
 	out := bufio.NewWriter(w)
 	fmt.Fprintf(out, `<?xml version="1.0" encoding="UTF-8"?>`+"\n")
-	fmt.Fprintf(out, `<svg xmlns="http://www.w3.org/2000/svg" width="%.0f" height="%.0f" viewBox="0 0 %.0f %.0f" style="%s">`+"\n",
-		sheetW, height, sheetW, height, fontCSS)
+	fmt.Fprintf(out, `<svg xmlns="http://www.w3.org/2000/svg" width="%.0f" height="%.0f" viewBox="0 0 %.0f %.0f" font-family="%s">`+"\n",
+		sheetW, height, sheetW, height, fontFamily)
 	if _, err := out.Write(body.Bytes()); err != nil {
 		return err
 	}

@@ -89,8 +89,8 @@ func WriteRose(w io.Writer, r Rose) error {
 	}
 	s := &svgw{w: bufio.NewWriter(w)}
 	s.printf(`<?xml version="1.0" encoding="UTF-8"?>` + "\n")
-	s.printf(`<svg xmlns="http://www.w3.org/2000/svg" width="%.0f" height="%.0f" viewBox="0 0 %.0f %.0f" style="%s">`+"\n",
-		sheetW, sheetH, sheetW, sheetH, fontCSS)
+	s.printf(`<svg xmlns="http://www.w3.org/2000/svg" width="%.0f" height="%.0f" viewBox="0 0 %.0f %.0f" font-family="%s">`+"\n",
+		sheetW, sheetH, sheetW, sheetH, fontFamily)
 	s.printf("<title>%s</title>\n", esc(orDefault(r.Title, "Rose diagram")))
 	s.printf(`<rect width="100%%" height="100%%" fill="#ffffff"/>` + "\n")
 	// ring values: round counts

@@ -113,7 +113,14 @@ func browserContext(t *testing.T) context.Context {
 func newPage(t *testing.T, base string, width, height int) *page {
 	t.Helper()
 	ctx, cancel := chromedp.NewContext(browserContext(t))
-	p := &page{t: t, ctx: ctx, base: base, shots: t.TempDir()}
+	shots := t.TempDir()
+	if d := os.Getenv("CORVANE_SCREENSHOTS_DIR"); d != "" { // keep them to look at
+		shots = filepath.Join(d, t.Name())
+		if err := os.MkdirAll(shots, 0o755); err != nil {
+			t.Fatal(err)
+		}
+	}
+	p := &page{t: t, ctx: ctx, base: base, shots: shots}
 	if err := chromedp.Do(ctx, chromedp.EmulateViewport(int64(width), int64(height))); err != nil {
 		cancel()
 		t.Fatalf("opening a tab: %v", err)

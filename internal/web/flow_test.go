@@ -87,15 +87,16 @@ type derived struct {
 }
 
 type measurement struct {
-	ID      int64   `json:"id"`
-	HoleID  int64   `json:"hole_id"`
-	Depth   float64 `json:"depth"`
-	Alpha   float64 `json:"alpha"`
-	Beta    float64 `json:"beta"`
-	Type    string  `json:"type"`
-	Comment string  `json:"comment"`
-	Version int64   `json:"version"`
-	Derived derived `json:"derived"`
+	ID       int64   `json:"id"`
+	HoleID   int64   `json:"hole_id"`
+	Depth    float64 `json:"depth"`
+	Alpha    float64 `json:"alpha"`
+	Beta     float64 `json:"beta"`
+	Type     string  `json:"type"`
+	Comment  string  `json:"comment"`
+	LoggedBy string  `json:"logged_by"`
+	Version  int64   `json:"version"`
+	Derived  derived `json:"derived"`
 }
 
 func (s *server) holes(t *testing.T) []hole {
@@ -185,7 +186,8 @@ func TestOverview(t *testing.T) {
 		t.Errorf("no QA report from the server (HTTP %d)", code)
 	}
 	// The token lives in sessionStorage only: nothing in localStorage or cookies.
-	if ok := eval[bool](p, fmt.Sprintf(`sessionStorage.getItem("corvane.token") === %q && localStorage.length === 0 && document.cookie === ""`, s.Token)); !ok {
+	// (localStorage may hold the logger's name, never the token.)
+	if ok := eval[bool](p, fmt.Sprintf(`sessionStorage.getItem("corvane.token") === %q && !Object.values(localStorage).some((v) => v.includes(%q)) && document.cookie === ""`, s.Token, s.Token)); !ok {
 		t.Error("the token is not kept in sessionStorage alone")
 	}
 	// Changing the section azimuth redraws the section.
@@ -258,7 +260,7 @@ func TestLoggingWithKeyboard(t *testing.T) {
 	p.keys("\t")
 	typ := eval[string](p, `document.querySelector('#f-type option:nth-child(2)').value`)
 	p.keys(typ[:1])
-	p.keys("\t35\t210\t\t\tlogged from the browser test")
+	p.keys("\t35\t210\t\t\tlogged from the browser test\tL7")
 	p.waitFor("converted orientation", `document.querySelector('#pv-dip') !== null && document.querySelector('#pv-dipdir') !== null`)
 	shownDip := p.text("#pv-dip")
 	shownDir := p.text("#pv-dipdir")
@@ -285,6 +287,14 @@ func TestLoggingWithKeyboard(t *testing.T) {
 	}
 	if saved.Alpha != 35 || saved.Beta != 210 || saved.Depth != depth || saved.Type != typ {
 		t.Errorf("saved %+v; typed depth %v type %s alpha 35 beta 210", *saved, depth, typ)
+	}
+	// The measurement carries the person's name typed at the bench, not the
+	// token's name, and the browser remembers it for the next one.
+	if saved.LoggedBy != "L7" {
+		t.Errorf("saved measurement logged_by %q, want the person typed on the page (L7)", saved.LoggedBy)
+	}
+	if got := eval[string](p, `document.querySelector('#f-logged_by').value`); got != "L7" {
+		t.Errorf("logger field after saving reads %q, want L7 kept", got)
 	}
 	// What the page showed while typing is what the server derives for the
 	// stored row.
@@ -353,7 +363,8 @@ func checkPolePosition(t *testing.T, p *page, trend, plunge float64) {
 	x, y := equalAreaXY(trend, plunge)
 	wx, wy := geo["cx"]+geo["r"]*x, geo["cy"]+geo["r"]*y
 	// Marker centres: circles by cx/cy, other shapes by the centre of their box.
-	d := eval[float64](p, fmt.Sprintf(`Math.min(...[...document.querySelectorAll('#log-net .pole-old > *')].map(e => { const b = e.getBBox(); return Math.hypot(b.x + b.width/2 - %f, b.y + b.height/2 - %f); }))`, wx, wy))
+	// Marks are drawn at a unit size and placed by their transform.
+	d := eval[float64](p, fmt.Sprintf(`Math.min(...[...document.querySelectorAll('#log-net .pole-old > *')].map(e => { const b = e.getBBox(); const t = e.transform.baseVal.consolidate(); const m = t ? t.matrix : new DOMMatrix(); const c = new DOMPoint(b.x + b.width/2, b.y + b.height/2).matrixTransform(m); return Math.hypot(c.x - %f, c.y - %f); }))`, wx, wy))
 	if d > 1.0 {
 		t.Errorf("no pole marker within 1 px of the equal-area position of %.1f/%.1f (nearest %.2f px)", trend, plunge, d)
 	}
@@ -373,7 +384,7 @@ func TestServerRefusalKeepsTyping(t *testing.T) {
 	p.keys("12.5\t")
 	typ := eval[string](p, `document.querySelector('#f-type option:nth-child(2)').value`)
 	p.keys(typ[:1])
-	p.keys("\t40\t120\t\t\tread-only try\r")
+	p.keys("\t40\t120\t\t\tread-only try\tL3\r")
 	p.waitFor("server reason shown", `document.querySelector('#form-msg').textContent.includes('Not saved')`)
 	msg := p.text("#form-msg")
 	if !strings.Contains(msg, "403") || !strings.Contains(msg, "still here") {
@@ -452,7 +463,7 @@ func TestHoleView(t *testing.T) {
 
 	// Sorting by dip, then descending.
 	p.do("sort by dip", chromedp.Click(chromedp.CSS(`th[data-key="dip"] button`)))
-	dips := eval[[]float64](p, `[...document.querySelectorAll('#measurements tbody tr')].map(r => r.children[6].textContent).filter(t => t !== '').map(Number)`)
+	dips := eval[[]float64](p, `[...document.querySelectorAll('#measurements tbody td[data-key=dip]')].map(c => c.textContent).filter(t => t !== '').map(Number)`)
 	for i := 1; i < len(dips); i++ {
 		if dips[i] < dips[i-1] {
 			t.Fatalf("dips not ascending after sorting: %v", dips)
@@ -488,7 +499,7 @@ func TestNetsAndQA(t *testing.T) {
 	p.signIn(s.Token)
 	p.do("open nets", chromedp.Navigate(fmt.Sprintf("%s/#/p/%d/nets", s.URL, s.Project)))
 	p.waitFor("net shown", `document.querySelector('#net img, #net svg') !== null && document.querySelector('#rose svg, #rose img') !== null && document.querySelector('#stats-table') !== null`)
-	p.waitFor("net image loaded", `[...document.querySelectorAll('#net img')].every(i => i.complete && i.naturalWidth > 0)`)
+	p.waitFor("net drawn", `document.querySelector('#net svg.served-net') !== null`)
 	p.shot("nets")
 
 	// Terzaghi weighting puts the weighted figures beside the unweighted ones,
@@ -499,7 +510,7 @@ func TestNetsAndQA(t *testing.T) {
 	if _, err := chromedp.CallBrowser(p.ctx, browser.SetDownloadBehavior, browser.SetDownloadBehaviorParams{Behavior: browser.SetDownloadBehaviorBehaviorAllow, DownloadPath: dl}); err != nil {
 		t.Fatalf("allowing downloads: %v", err)
 	}
-	p.waitFor("net image loaded", `document.querySelector('#net img') !== null && document.querySelector('#net img').complete`)
+	p.waitFor("net drawn", `document.querySelector('#net svg.served-net') !== null`)
 	p.do("download SVG", chromedp.Click(chromedp.CSS("#download-svg")))
 	svg := waitFile(t, dl, ".svg")
 	if !strings.Contains(string(svg), "<svg") {

@@ -3,22 +3,46 @@
 
 const NS = "http://www.w3.org/2000/svg";
 
-// Okabe & Ito (2008) colour-blind-safe palette, each paired with a marker
-// shape so that no distinction rests on colour alone.
-const PALETTE = ["#0072B2", "#D55E00", "#009E73", "#CC79A7", "#E69F00", "#56B4E9", "#000000", "#F0E442"];
-const SHAPES = ["circle", "square", "triangle", "diamond", "down", "cross", "plus", "star"];
+// The visual language (type colours and marks, run confidence, severity)
+// is defined once, on the server (package visual), and served by
+// GET /v1/legend; main.js hands it here with useLegend before any view draws.
+let L = null;
 
-export function styleFor(i) {
-  return { colour: PALETTE[i % PALETTE.length], shape: SHAPES[i % SHAPES.length] };
+export function useLegend(legend) {
+  L = legend;
 }
 
-// Confidence of orientation runs: fill colour and a pattern, plus a letter.
-export const CONFIDENCE = {
-  good: { fill: "#0072B2", pattern: "", letter: "G", label: "good" },
-  fair: { fill: "#56B4E9", pattern: "hatch", letter: "F", label: "fair" },
-  poor: { fill: "#E69F00", pattern: "dots", letter: "P", label: "poor" },
-  none: { fill: "#ffffff", pattern: "cross", letter: "N", label: "none (unusable)" },
-};
+export function legend() {
+  return L;
+}
+
+// styleOfType is how a type code is drawn everywhere: the colour and mark
+// stored with the project's vocabulary.
+export function styleOfType(types, code) {
+  const t = types.find((x) => x.code === code);
+  return t ? { colour: t.colour, shape: t.mark } : { colour: "#6b6b6b", shape: "circle" };
+}
+
+// confidence returns {code, word, fill, pattern} of a run rating; unknown
+// ratings are drawn as the last (none).
+export function confidence(code) {
+  const cs = L.confidences;
+  return cs.find((c) => c.code === String(code || "").trim().toLowerCase()) || cs[cs.length - 1];
+}
+
+export function confidences() {
+  return L.confidences;
+}
+
+// severity returns {code, word, fill, mark} of a QA severity.
+export function severity(code) {
+  const ss = L.severities;
+  return ss.find((s) => s.code === code) || ss[ss.length - 1];
+}
+
+export function severities() {
+  return L.severities;
+}
 
 export function el(name, attrs = {}, ...children) {
   const e = document.createElementNS(NS, name);
@@ -48,40 +72,18 @@ function equalArea(trend, plunge) {
   return { x: r * Math.sin(rad(trend)), y: r * Math.cos(rad(trend)) };
 }
 
+// marker draws a mark of the legend centred at (x, y) with size r. The
+// served paths are drawn at size 100 round the origin.
 export function marker(shape, x, y, r, attrs = {}) {
-  const a = { ...attrs };
-  switch (shape) {
-    case "square":
-      return el("rect", { x: f2(x - r * 0.85), y: f2(y - r * 0.85), width: f2(r * 1.7), height: f2(r * 1.7), ...a });
-    case "triangle":
-      return el("path", { d: `M${f2(x)} ${f2(y - r * 1.1)}L${f2(x + r)} ${f2(y + r * 0.75)}L${f2(x - r)} ${f2(y + r * 0.75)}Z`, ...a });
-    case "down":
-      return el("path", { d: `M${f2(x)} ${f2(y + r * 1.1)}L${f2(x + r)} ${f2(y - r * 0.75)}L${f2(x - r)} ${f2(y - r * 0.75)}Z`, ...a });
-    case "diamond":
-      return el("path", { d: `M${f2(x)} ${f2(y - r * 1.2)}L${f2(x + r)} ${f2(y)}L${f2(x)} ${f2(y + r * 1.2)}L${f2(x - r)} ${f2(y)}Z`, ...a });
-    case "cross":
-      return el("path", { d: `M${f2(x - r)} ${f2(y - r)}L${f2(x + r)} ${f2(y + r)}M${f2(x + r)} ${f2(y - r)}L${f2(x - r)} ${f2(y + r)}`, ...a, fill: "none", stroke: a.fill || a.stroke, "stroke-width": 2.2 });
-    case "plus":
-      return el("path", { d: `M${f2(x - r * 1.2)} ${f2(y)}L${f2(x + r * 1.2)} ${f2(y)}M${f2(x)} ${f2(y - r * 1.2)}L${f2(x)} ${f2(y + r * 1.2)}`, ...a, fill: "none", stroke: a.fill || a.stroke, "stroke-width": 2.2 });
-    case "star": {
-      let d = "";
-      for (let i = 0; i < 10; i++) {
-        const rr = i % 2 ? r * 0.5 : r * 1.25;
-        const t = (Math.PI / 5) * i;
-        d += (i ? "L" : "M") + f2(x + rr * Math.sin(t)) + " " + f2(y - rr * Math.cos(t));
-      }
-      return el("path", { d: d + "Z", ...a });
-    }
-    default:
-      return el("circle", { cx: f2(x), cy: f2(y), r: f2(r), ...a });
-  }
+  const d = (L && (L.mark_paths[shape] || L.mark_paths.circle)) || "";
+  return el("path", { d, transform: `translate(${f2(x)} ${f2(y)}) scale(${r / 100})`, "vector-effect": "non-scaling-stroke", "data-mark": shape, ...attrs });
 }
 
 // smallNet draws a lower-hemisphere equal-area net of poles. groups is a list
 // of {label, style, poles: [{trend, plunge}], emphasis}. The emphasised group
 // (the pole being typed) is drawn last, large, with a ring.
 export function smallNet(groups, { size = 260, label = "Equal-area net, lower hemisphere" } = {}) {
-  const pad = 22;
+  const pad = 26;
   const R = (size - 2 * pad) / 2;
   const cx = size / 2;
   const cy = size / 2;
@@ -176,17 +178,24 @@ export function planView(holes, { w = 560, h = 420, line, unit = "m", onPick } =
   if (line) {
     const dx = Math.sin(rad(line.azimuth)) * line.half;
     const dy = Math.cos(rad(line.azimuth)) * line.half;
-    s.append(el("line", { class: "section-line", x1: f2(fr.X(line.through.e - dx)), y1: f2(fr.Y(line.through.n - dy)), x2: f2(fr.X(line.through.e + dx)), y2: f2(fr.Y(line.through.n + dy)) }));
-    s.append(el("text", { class: "section-end", x: f2(fr.X(line.through.e - dx)), y: f2(fr.Y(line.through.n - dy) - 6) }, "A"));
-    s.append(el("text", { class: "section-end", x: f2(fr.X(line.through.e + dx)), y: f2(fr.Y(line.through.n + dy) - 6) }, "B"));
+    const a = clipSegment([fr.X(line.through.e - dx), fr.Y(line.through.n - dy)], [fr.X(line.through.e + dx), fr.Y(line.through.n + dy)], pad.l, pad.t, w - pad.r, h - pad.b);
+    if (a) {
+      const [[x1, y1], [x2, y2]] = a;
+      s.append(el("line", { class: "section-line", x1: f2(x1), y1: f2(y1), x2: f2(x2), y2: f2(y2) }));
+      // End labels sit just inside the frame, beside the line's ends.
+      const ux = (x2 - x1) / Math.hypot(x2 - x1, y2 - y1 || 1e-9), uy = (y2 - y1) / Math.hypot(x2 - x1, y2 - y1 || 1e-9);
+      s.append(el("text", { class: "section-end", x: f2(x1 + ux * 14 - uy * 12), y: f2(y1 + uy * 14 + ux * 12 + 5), "text-anchor": "middle" }, "A"));
+      s.append(el("text", { class: "section-end", x: f2(x2 - ux * 14 - uy * 12), y: f2(y2 - uy * 14 + ux * 12 + 5), "text-anchor": "middle" }, "B"));
+    }
   }
+  const placed = [];
   holes.forEach((hd) => {
     const d = hd.path.map((p, i) => (i ? "L" : "M") + f2(fr.X(p.easting)) + " " + f2(fr.Y(p.northing))).join("");
     const g = el("g", { class: "trace", "data-hole": hd.name, tabindex: onPick ? 0 : null });
     g.append(el("path", { d, fill: "none" }));
     const c = hd.path[0];
     g.append(el("circle", { cx: f2(fr.X(c.easting)), cy: f2(fr.Y(c.northing)), r: 5 }));
-    g.append(el("text", { x: f2(fr.X(c.easting) + 8), y: f2(fr.Y(c.northing) - 8) }, hd.name));
+    g.append(placeLabel(placed, fr.X(c.easting) + 8, fr.Y(c.northing) - 8, hd.name));
     if (onPick) {
       g.addEventListener("click", () => onPick(hd));
       g.addEventListener("keydown", (e) => { if (e.key === "Enter") onPick(hd); });
@@ -217,6 +226,7 @@ export function sectionView(holes, { w = 560, h = 360, line, unit = "m" } = {}) 
   grid(s, fr, w, h, pad, `Distance along A\u2013B (${unit}), azimuth ${Math.round(line.azimuth)}\u00b0`, `Elevation (${unit})`);
   s.append(el("text", { class: "section-end", x: f2(fr.X(0)), y: pad.t + 12 }, "A"));
   s.append(el("text", { class: "section-end", x: f2(fr.X(2 * line.half)), y: pad.t + 12, "text-anchor": "end" }, "B"));
+  const placed = [{ x: fr.X(0) - 8, y: pad.t, w: 16, h: 16 }, { x: fr.X(2 * line.half) - 16, y: pad.t, w: 16, h: 16 }];
   holes.forEach((hd) => {
     const pp = hd.path.map(proj);
     const far = pp.every((p) => p.off > line.width);
@@ -224,10 +234,37 @@ export function sectionView(holes, { w = 560, h = 360, line, unit = "m" } = {}) 
     const g = el("g", { class: "trace" + (far ? " far" : ""), "data-hole": hd.name });
     g.append(el("path", { d, fill: "none" }));
     g.append(el("circle", { cx: f2(fr.X(pp[0].x)), cy: f2(fr.Y(pp[0].z)), r: 4.5 }));
-    g.append(el("text", { x: f2(fr.X(pp[0].x) + 6), y: f2(fr.Y(pp[0].z) - 8) }, hd.name));
+    g.append(placeLabel(placed, fr.X(pp[0].x) + 6, fr.Y(pp[0].z) - 8, hd.name));
     s.append(g);
   });
   return s;
+}
+
+// clipSegment clips the segment p-q to the box [x0, x1] x [y0, y1]
+// (Liang-Barsky); null when it misses the box.
+function clipSegment(p, q, x0, y0, x1, y1) {
+  let t0 = 0, t1 = 1;
+  const dx = q[0] - p[0], dy = q[1] - p[1];
+  for (const [pp, qq] of [[-dx, p[0] - x0], [dx, x1 - p[0]], [-dy, p[1] - y0], [dy, y1 - p[1]]]) {
+    if (pp === 0) { if (qq < 0) return null; continue; }
+    const r = qq / pp;
+    if (pp < 0) { if (r > t1) return null; if (r > t0) t0 = r; } else { if (r < t0) return null; if (r < t1) t1 = r; }
+  }
+  return [[p[0] + t0 * dx, p[1] + t0 * dy], [p[0] + t1 * dx, p[1] + t1 * dy]];
+}
+
+// placeLabel returns a text at (x, y), moved up (then down) in line steps
+// until its box clears every label already placed; the box is recorded.
+// Widths are estimated at 0.75 em a character (12 px bold), generously.
+function placeLabel(placed, x, y, text) {
+  const w = text.length * 9 + 2, hgt = 16;
+  const hits = (yy) => placed.some((b) => x < b.x + b.w && b.x < x + w && yy - hgt < b.y + b.h && b.y < yy + 3);
+  let yy = y;
+  for (const dy of [0, -18, -36, 18, 36, -54, 54, -72, 72]) {
+    if (!hits(y + dy)) { yy = y + dy; break; }
+  }
+  placed.push({ x, y: yy - hgt, w, h: hgt });
+  return el("text", { x: f2(x), y: f2(yy), class: "hole-label" }, text);
 }
 
 function bounds(pts) {
@@ -239,28 +276,40 @@ function bounds(pts) {
   return [xmin, xmax, ymin, ymax];
 }
 
-// patternDefs holds the fill patterns of the run confidences (url(#pat-...)),
-// shared by the depth strip and the overview's bars.
+// patternDefs holds the fill patterns of the run confidences
+// (url(#conf-...)), as served in the legend.
 export function patternDefs() {
   const defs = el("defs");
-  defs.append(el("pattern", { id: "pat-hatch", width: 6, height: 6, patternUnits: "userSpaceOnUse", patternTransform: "rotate(45)" },
-    el("rect", { width: 6, height: 6, fill: CONFIDENCE.fair.fill }), el("line", { x1: 0, y1: 0, x2: 0, y2: 6, stroke: "#000", "stroke-width": 1.6 })));
-  defs.append(el("pattern", { id: "pat-dots", width: 6, height: 6, patternUnits: "userSpaceOnUse" },
-    el("rect", { width: 6, height: 6, fill: CONFIDENCE.poor.fill }), el("circle", { cx: 3, cy: 3, r: 1.3, fill: "#000" })));
-  defs.append(el("pattern", { id: "pat-cross", width: 8, height: 8, patternUnits: "userSpaceOnUse" },
-    el("rect", { width: 8, height: 8, fill: "#fff" }), el("path", { d: "M0 0L8 8M8 0L0 8", stroke: "#555", "stroke-width": 1.2 })));
+  const doc = new DOMParser().parseFromString(`<svg xmlns="${NS}">${L.confidences.map((c) => c.svg).join("")}</svg>`, "image/svg+xml");
+  for (const p of [...doc.documentElement.children]) defs.append(document.importNode(p, true));
   return defs;
 }
 
 export function confidenceFill(c) {
-  const k = CONFIDENCE[c] || CONFIDENCE.none;
-  return k.pattern ? `url(#pat-${k.pattern})` : k.fill;
+  const k = confidence(c);
+  return k.pattern ? `url(#conf-${k.code})` : k.fill;
+}
+
+// confSwatch is a legend swatch of a run confidence (the patterns come from
+// the page's shared defs).
+export function confSwatch(code) {
+  const s = svg(26, 14, "");
+  s.setAttribute("aria-hidden", "true");
+  s.classList.add("keyshape", "wide");
+  s.append(el("rect", { x: 0.75, y: 0.75, width: 24.5, height: 12.5, fill: confidenceFill(code), stroke: "#000", "stroke-width": 1.5, "data-confidence": code }));
+  return s;
+}
+
+// severityKey is a legend swatch of a QA severity: its mark and fill.
+export function severityKey(code) {
+  const v = severity(code);
+  return shapeKey({ colour: v.fill, shape: v.mark });
 }
 
 // depthStrip draws one hole down the page: runs by confidence, measurements
 // by type in columns, QA flags at depth. onPick(kind, item) is called on a
 // click or Enter on a measurement or flag.
-export function depthStrip({ depth, runs, measurements, types, flags, unit = "m", onPick, highlightRun }) {
+export function depthStrip({ depth, runs, measurements, types, flags, unit = "m", onPick, highlightRun, vocab }) {
   const colW = 52;
   const typeCols = types.length || 1;
   const w = 90 + 56 + typeCols * colW + 70 + 20;
@@ -280,9 +329,9 @@ export function depthStrip({ depth, runs, measurements, types, flags, unit = "m"
   const xRun = 70;
   s.append(el("text", { x: xRun + 18, y: top - 12, "text-anchor": "middle", class: "head" }, "Runs"));
   for (const r of runs) {
-    const k = CONFIDENCE[r.confidence] || CONFIDENCE.none;
+    const k = confidence(r.confidence);
     const rect = el("rect", { x: xRun, y: f2(Y(r.from)), width: 36, height: f2(Math.max(1, Y(r.to) - Y(r.from))), fill: confidenceFill(r.confidence), stroke: "#000", "stroke-width": 0.7, "data-confidence": r.confidence, "data-id": r.id, class: highlightRun && String(r.id) === String(highlightRun) ? "hl-run" : null });
-    rect.append(el("title", {}, `${r.from}\u2013${r.to} ${unit}: ${k.label}${r.mismatch != null ? `, mismatch ${r.mismatch}\u00b0` : ""}`));
+    rect.append(el("title", {}, `${r.from}\u2013${r.to} ${unit}: ${k.word}${r.mismatch != null ? `, mismatch ${r.mismatch}\u00b0` : ""}`));
     s.append(rect);
   }
   const x0 = xRun + 56;
@@ -295,7 +344,7 @@ export function depthStrip({ depth, runs, measurements, types, flags, unit = "m"
   const mg = el("g", { class: "strip-m" });
   for (const m of measurements) {
     const i = colOf.has(m.type) ? colOf.get(m.type) : 0;
-    const st = styleFor(i);
+    const st = styleOfType(vocab || types, m.type);
     const mk = marker(st.shape, x0 + i * colW + colW / 2, Y(m.depth), 4.2, { fill: st.colour, stroke: "#000", "stroke-width": 0.6, "data-id": m.id, tabindex: onPick ? 0 : null });
     mk.append(el("title", {}, `${m.type} at ${m.depth} ${unit}`));
     if (onPick) {
@@ -310,7 +359,8 @@ export function depthStrip({ depth, runs, measurements, types, flags, unit = "m"
   for (const f of flags || []) {
     const sev = f.severity || "info";
     const y = Y(f.depth || 0);
-    const tri = el("path", { d: `M${xf} ${f2(y)}l12 -7v14z`, class: "flag " + sev, tabindex: onPick ? 0 : null });
+    const sv = severity(sev);
+    const tri = marker(sv.mark, xf + 6, y, 5.5, { fill: sv.fill, stroke: "#000", "stroke-width": 1.2, class: "flag " + sev, tabindex: onPick ? 0 : null });
     tri.append(el("title", {}, `${f.check} at ${f.depth} ${unit}: ${f.message}`));
     if (onPick) {
       tri.addEventListener("click", () => onPick("flag", f));

@@ -2,10 +2,15 @@
 // QA flags at depth), the measurements with derived values (sortable, with
 // the server's filters), export of the current filter to CSV, and the survey.
 
-import { download, query } from "./api.js";
+import { download, query, get } from "./api.js";
 import { h, fmt, az, say, problemText, add, put } from "./dom.js";
-import { survey, runs, measurements, qaReport } from "./data.js";
-import { depthStrip, CONFIDENCE, styleFor, shapeKey } from "./draw.js";
+import { survey, runs, qaReport } from "./data.js";
+import { depthStrip } from "./draw.js";
+import { confidenceLegend, severityLegend, typeLegend } from "./legend.js";
+
+// PAGE is how many rows the hole view asks for at a time: the server pages
+// in depth order by keyset, so a long hole opens as fast as a short one.
+const PAGE = 250;
 
 const COLUMNS = [
   { key: "id", label: "Id", num: true, get: (m) => m.id },
@@ -20,7 +25,7 @@ const COLUMNS = [
   { key: "line", label: "Line tr./pl.", get: (m) => m.derived && m.derived.line_trend, text: (m) => (m.derived && m.derived.line_trend != null ? `${az(m.derived.line_trend)} / ${fmt(m.derived.line_plunge, 0)}` : "") },
   { key: "true_thickness", label: "True thick.", num: true, unit: true, get: (m) => m.derived && m.derived.true_thickness, d: 2 },
   { key: "run", label: "Run", get: (m) => m.derived && m.derived.run_confidence },
-  { key: "warnings", label: "Warnings", get: (m) => ((m.derived && m.derived.warnings) || []).join("; ") + (m.derived && m.derived.error ? m.derived.error : "") },
+  { key: "warnings", label: "Warnings", wide: true, get: (m) => ((m.derived && m.derived.warnings) || []).join("; ") + (m.derived && m.derived.error ? m.derived.error : "") },
   { key: "logged_by", label: "Logged by", get: (m) => m.logged_by },
 ];
 
@@ -54,16 +59,22 @@ export async function holeView(ctx, holeId) {
   const surveyBox = h("section", { class: "card" });
   add(host, h("div", { class: "hole-grid" }, stripBox, tableBox), surveyBox);
 
-  const [rs, srv, all, qa] = await Promise.all([
+  // Filters: exactly the server's measurement filters, so the table and the
+  // CSV export always hold the same rows.
+  const serverFilter = (q) => ({ hole: ho.name, type: q.type, min_depth: q.min_depth, max_depth: q.max_depth, from: q.from, to: q.to });
+  const pageOf = (after) => get(`/v1/projects/${p.id}/measurements` + query({ ...serverFilter(f), order: "depth", limit: PAGE, after }));
+
+  const [rs, srv, first, qa] = await Promise.all([
     runs(p.id, ho.id),
     survey(p.id, ho.id, true),
-    measurements(p.id, { hole: ho.name }),
+    pageOf(""),
     qaReport(p.id, ho.id).catch((e) => ({ error: e })),
   ]);
   if (!ctx.isCurrent()) return;
   const flags = !qa.error ? (qa.findings || []).filter((x) => !x.hole_id || x.hole_id === ho.name) : [];
+  let filtered = first.items || [];
+  let nextAfter = first.next_after;
 
-  const typesUsed = p.types.filter((t) => all.some((m) => m.type === t.code));
   const highlightM = params.get("m");
   const highlightS = params.get("station");
 
@@ -74,11 +85,18 @@ export async function holeView(ctx, holeId) {
       else say(`${item.check} at ${item.depth} ${unit}: ${item.message}`);
     }
   };
-  put(stripBox, h("h2", {}, "Depth strip"),
-    h("div", { class: "strip-host" }, depthStrip({ depth: ho.final_depth, runs: rs, measurements: all, types: typesUsed, flags, unit, onPick, highlightRun: params.get("run") })),
-    h("p", { class: "legend" }, "Runs: ", Object.entries(CONFIDENCE).map(([k, v]) => h("span", { class: "key" }, h("span", { class: `swatch conf-${k}` }), v.label))),
-    h("p", { class: "legend" }, typesUsed.map((t, i) => h("span", { class: "key" }, shapeKey(styleFor(i)), t.code))),
-    h("p", { class: "legend" }, "QA: ", h("span", { class: "key" }, h("span", { class: "flagkey flag" }), "flag"), h("span", { class: "key" }, h("span", { class: "flagkey warning" }), "warning"), h("span", { class: "key" }, h("span", { class: "flagkey info" }), "note")),
+  const stripHost = h("div", { class: "strip-host" });
+  const stripNote = h("p", { class: "help", id: "strip-note" });
+  const typeKey = h("div", {});
+  function drawStrip() {
+    const used = [...new Set(filtered.map((m) => m.type))];
+    const typesUsed = p.types.filter((t) => used.includes(t.code));
+    put(stripHost, depthStrip({ depth: ho.final_depth, runs: rs, measurements: filtered, types: typesUsed, vocab: p.types, flags, unit, onPick, highlightRun: params.get("run") }));
+    put(typeKey, typeLegend(p.types, typesUsed.map((t) => t.code)));
+    stripNote.textContent = nextAfter != null ? `Measurements drawn: the ${filtered.length} shown in the table (to ${fmt(filtered[filtered.length - 1].depth, 2)} ${unit}).` : "";
+  }
+  put(stripBox, h("h2", {}, "Depth strip"), stripHost, stripNote,
+    confidenceLegend(), typeKey, severityLegend(),
     qa.error ? h("p", { class: "msg bad" }, "QA could not be read: " + problemText(qa.error)) : null);
 
   // Filters: exactly the server's measurement filters, so the table and the
@@ -117,10 +135,6 @@ export async function holeView(ctx, holeId) {
     return q;
   }
 
-  function serverFilter(q) {
-    return { hole: ho.name, type: q.type, min_depth: q.min_depth, max_depth: q.max_depth, from: q.from, to: q.to };
-  }
-
   async function exportCsv() {
     const q = readFilter();
     if (!q) return;
@@ -132,13 +146,8 @@ export async function holeView(ctx, holeId) {
     }
   }
 
-  const filtered = f.type.length || f.min_depth || f.max_depth || f.from || f.to
-    ? await measurements(p.id, serverFilter(f))
-    : all;
-  if (!ctx.isCurrent()) return;
-
   const tbody = h("tbody");
-  const headRow = h("tr", {}, COLUMNS.map((c) => {
+  const headRow = h("tr", {}, h("th", { scope: "col" }, h("span", { class: "sr" }, "Actions")), COLUMNS.map((c) => {
     const label = c.unit ? `${c.label} (${unit})` : c.label;
     const btn = h("button", { type: "button", class: "sort", "data-key": c.key }, label);
     btn.addEventListener("click", () => {
@@ -148,10 +157,11 @@ export async function holeView(ctx, holeId) {
       renderRows();
     });
     return h("th", { scope: "col", "aria-sort": "none", "data-key": c.key }, btn);
-  }), h("th", { scope: "col" }, h("span", { class: "sr" }, "Actions")));
+  }));
   const table = h("table", { class: "data", id: "measurements" }, h("thead", {}, headRow), tbody);
 
   function renderRows() {
+    drawStrip();
     const col = COLUMNS.find((c) => c.key === sort.key) || COLUMNS[1];
     const rows = [...filtered].sort((a, b) => {
       const x = col.get(a), y = col.get(b);
@@ -163,13 +173,13 @@ export async function holeView(ctx, holeId) {
     });
     for (const th of headRow.querySelectorAll("th[data-key]")) th.setAttribute("aria-sort", th.dataset.key === sort.key ? (sort.dir > 0 ? "ascending" : "descending") : "none");
     put(tbody, ...rows.map((m) => h("tr", { "data-id": m.id, id: `m-${m.id}`, class: m.derived && (m.derived.error || (m.derived.warnings || []).length) ? "warned" : "" },
+      h("td", { "data-key": "edit" }, h("a", { href: `#/p/${p.id}/log?hole=${ho.id}&edit=${m.id}` }, "Edit")),
       COLUMNS.map((c) => {
         const v = c.get(m);
         let t = c.text ? c.text(m) : v;
         if (!c.text && c.num) t = v == null ? "" : c.az ? az(v) : fmt(v, c.d ?? 0);
-        return h("td", { class: c.num ? "num" : c.key === "warnings" ? "warn" : "" }, t ?? "");
-      }),
-      h("td", {}, h("a", { href: `#/p/${p.id}/log?hole=${ho.id}&edit=${m.id}` }, "Edit")))));
+        return h("td", { class: c.num ? "num" : c.key === "warnings" ? "warn" : "", "data-key": c.key }, t ?? "");
+      }))));
   }
 
   function focusRow(id) {
@@ -182,9 +192,36 @@ export async function holeView(ctx, holeId) {
     if (a) a.focus({ preventScroll: true });
   }
 
-  put(tableBox, h("h2", {}, `Measurements (${filtered.length}${filtered.length !== all.length ? ` of ${all.length}` : ""})`),
-    filterForm, h("div", { class: "scroll tall" }, table),
-    h("p", { class: "help" }, `Dip directions, strikes and trends in degrees from ${p.project.output_azimuth_ref} north; derived on each read from the current survey. Click a heading to sort.`));
+  const heading = h("h2", {});
+  const more = h("button", { type: "button", id: "more-rows" }, `Show the next ${PAGE}`);
+  const moreRow = h("div", { class: "actions" }, more);
+  // The hole's QA report counts its measurements: the total when no filter
+  // narrows the rows.
+  const unfiltered = !(f.type.length || f.min_depth || f.max_depth || f.from || f.to);
+  const hr = !qa.error && unfiltered ? (qa.holes || []).find((x) => x.hole_id === ho.name) : null;
+  const total = hr ? hr.measurements : null;
+  function setHeading() {
+    heading.textContent = `Measurements (${filtered.length}${total != null && total !== filtered.length ? ` of ${total}` : nextAfter != null ? ", more below" : ""})`;
+    moreRow.hidden = nextAfter == null;
+  }
+  more.addEventListener("click", async () => {
+    more.disabled = true;
+    try {
+      const pg = await pageOf(nextAfter);
+      filtered = filtered.concat(pg.items || []);
+      nextAfter = pg.next_after;
+      setHeading();
+      renderRows();
+    } catch (e) {
+      say(problemText(e), "bad");
+    } finally {
+      more.disabled = false;
+    }
+  });
+  put(tableBox, heading,
+    filterForm, h("div", { class: "scroll tall" }, table), moreRow,
+    h("p", { class: "help" }, `Rows come in depth order, ${PAGE} at a time; a click on a heading sorts the rows shown. Dip directions, strikes and trends in degrees from ${p.project.output_azimuth_ref} north; derived on each read from the current survey.`));
+  setHeading();
   renderRows();
 
   // Survey stations, so QA flags on a station have somewhere to point.
@@ -202,7 +239,18 @@ export async function holeView(ctx, holeId) {
       : h("p", {}, "No survey: the collar direction is used for the whole hole."),
     srv ? h("p", { class: "help" }, `Survey ${srv.survey_date || "undated"}, azimuths from ${srv.azimuth_ref} north.`) : null);
 
-  if (highlightM) focusRow(highlightM);
+  if (highlightM) {
+    // A finding may point below the first page: fetch on until the row is in.
+    for (let guard = 0; guard < 200 && nextAfter != null && !filtered.some((m) => String(m.id) === String(highlightM)); guard++) {
+      const pg = await pageOf(nextAfter);
+      if (!ctx.isCurrent()) return;
+      filtered = filtered.concat(pg.items || []);
+      nextAfter = pg.next_after;
+    }
+    setHeading();
+    renderRows();
+    focusRow(highlightM);
+  }
   const runRect = stripBox.querySelector("rect.hl-run");
   if (runRect) {
     const r = rs.find((x) => String(x.id) === params.get("run"));

@@ -7,7 +7,7 @@
 import { request, ApiError } from "./api.js";
 import { h, fmt, az, clear, say, problemText, add, put } from "./dom.js";
 import { preview as previewOf, measurements, runs } from "./data.js";
-import { smallNet, styleFor, shapeKey } from "./draw.js";
+import { smallNet, styleOfType, shapeKey } from "./draw.js";
 
 // FIELDS lists the form's inputs with the range each must hold. The ranges
 // are the API's own (conventions: alpha 0..90, beta and gamma 0..360).
@@ -19,14 +19,18 @@ const FIELDS = [
   { name: "gamma", label: "Gamma (\u00b0)", min: 0, max: 360, hint: "for a lineation; leave empty for a plane" },
   { name: "apparent_thickness", label: "Thickness", unit: true, min: 0, hint: "apparent, along the core" },
   { name: "comment", label: "Comment" },
+  { name: "logged_by", label: "Logged by", required: true, hint: "the person logging; remembered in this browser" },
 ];
+
+// LOGGER_KEY keeps the logger's name in this browser, so the bench asks once.
+const LOGGER_KEY = "corvane.logger";
 
 // check returns the message for a value out of range or unreadable, "" when
 // the value is fine. Numbers may be typed with a decimal comma.
 export function check(f, raw, finalDepth) {
   const v = String(raw ?? "").trim();
   if (!v) return f.required ? `${f.label.replace(/ \(.*\)/, "")} is required.` : "";
-  if (f.name === "type" || f.name === "comment") return f.name === "comment" && v.length > 2000 ? "Comment is longer than 2000 characters." : "";
+  if (f.name === "type" || f.name === "comment" || f.name === "logged_by") return f.name === "comment" && v.length > 2000 ? "Comment is longer than 2000 characters." : "";
   const x = Number(v.replace(",", "."));
   if (!Number.isFinite(x)) return `\u201c${v}\u201d is not a number.`;
   const name = f.label.replace(/ \(.*\)/, "");
@@ -68,6 +72,8 @@ export async function logging(ctx) {
         : h("input", { id: "f-type", name: "type", autocomplete: "off" });
     } else if (f.name === "comment") {
       input = h("input", { id: "f-comment", name: "comment", autocomplete: "off", maxlength: 2000 });
+    } else if (f.name === "logged_by") {
+      input = h("input", { id: "f-logged_by", name: "logged_by", autocomplete: "off", list: "loggers", maxlength: 200, value: localStorage.getItem(LOGGER_KEY) || "" });
     } else {
       input = h("input", { id: `f-${f.name}`, name: f.name, inputmode: "decimal", autocomplete: "off", spellcheck: "false" });
     }
@@ -78,12 +84,13 @@ export async function logging(ctx) {
     return h("div", { class: "field", "data-field": f.name }, h("label", { for: input.id }, label), input, msgs[f.name]);
   });
   const formMsg = h("div", { class: "form-msg", id: "form-msg", role: "alert" });
+  const loggers = h("datalist", { id: "loggers" });
   const saveBtn = h("button", { type: "submit", class: "primary", id: "save" }, "Save");
   const title = h("h1", {}, "Log a measurement");
   const mode = h("p", { class: "mode", id: "mode" });
   const form = h("form", { class: "log-form card", id: "log-form", novalidate: true },
     h("div", { class: "field", "data-field": "hole" }, h("label", { for: "f-hole" }, "Hole"), holeSel, h("span", { class: "field-msg", id: "m-hole" })),
-    fields,
+    fields, loggers,
     h("div", { class: "actions" }, saveBtn, h("button", { type: "button", class: "quiet", id: "clear", onclick: () => clearAngles() }, "Clear angles"),
       h("span", { class: "keys" }, h("kbd", {}, "Enter"), " saves \u00b7 ", h("kbd", {}, "Esc"), " clears the angles \u00b7 ", h("kbd", {}, "Tab"), " next field")),
     formMsg);
@@ -107,6 +114,8 @@ export async function logging(ctx) {
     const ho = hole();
     [existing, holeRuns] = await Promise.all([measurements(p.id, { hole: ho.name }), runs(p.id, ho.id)]);
     if (!ctx.isCurrent()) return;
+    const names = new Set([localStorage.getItem(LOGGER_KEY) || "", ...existing.map((m) => m.logged_by)].filter(Boolean));
+    put(loggers, ...[...names].sort().map((n) => h("option", { value: n })));
     drawNet();
     update();
   }
@@ -120,14 +129,12 @@ export async function logging(ctx) {
       if (!byType.has(m.type)) byType.set(m.type, []);
       byType.get(m.type).push({ trend: d.pole_trend, plunge: d.pole_plunge });
     }
-    const codes = p.types.map((t) => t.code);
-    const idx = (c) => (codes.indexOf(c) >= 0 ? codes.indexOf(c) : codes.length + [...byType.keys()].indexOf(c));
-    const groups = [...byType.entries()].map(([code, poles]) => ({ label: code, style: styleFor(idx(code)), poles }));
-    if (newPole) groups.push({ label: "new", style: styleFor(idx(inputs.type.value)), poles: [newPole], emphasis: true });
+    const groups = [...byType.entries()].map(([code, poles]) => ({ label: code, style: styleOfType(p.types, code), poles }));
+    if (newPole) groups.push({ label: "new", style: styleOfType(p.types, inputs.type.value), poles: [newPole], emphasis: true });
     const ho = hole();
     put(netHost, smallNet(groups, { size: 280, label: `Poles of hole ${ho.name}, equal-area, lower hemisphere` }));
     put(legend, ...[
-      ...groups.filter((g) => !g.emphasis).map((g) => h("span", { class: "key" }, shapeKey(g.style), `${g.label} (${g.poles.length})`)),
+      ...groups.filter((g) => !g.emphasis).map((g) => h("span", { class: "key", "data-type": g.label, "data-colour": g.style.colour, "data-mark": g.style.shape }, shapeKey(g.style), `${g.label} (${g.poles.length})`)),
       newPole ? h("span", { class: "key new" }, h("span", { class: "ring" }), "the pole being typed") : null,
       h("span", { class: "help" }, " Equal-area net, lower hemisphere; poles to planes.")].filter(Boolean));
   }
@@ -165,7 +172,17 @@ export async function logging(ctx) {
   let timer = 0;
   let inflight = null;
   function update() {
-    validate(false);
+    const bad = validate(false);
+    // "Not saved" stays only while a field is still wrong.
+    if (formMsg.classList.contains("bad") && !bad && !document.querySelector("#log-form [aria-invalid=true]")) {
+      formMsg.textContent = "";
+      formMsg.className = "form-msg";
+    }
+    if (formMsg.classList.contains("ok")) {
+      formMsg.textContent = "";
+      formMsg.className = "form-msg";
+    }
+    typeHint();
     clearTimeout(timer);
     timer = setTimeout(runPreview, 120);
   }
@@ -247,13 +264,22 @@ export async function logging(ctx) {
     inputs.gamma.value = m.gamma ?? "";
     inputs.apparent_thickness.value = m.apparent_thickness ?? "";
     inputs.comment.value = m.comment || "";
+    inputs.logged_by.value = m.logged_by || inputs.logged_by.value;
+  }
+
+  // typeHint says what the chosen type asks of gamma; the server holds the
+  // rule and refuses a measurement that breaks it.
+  function typeHint() {
+    const t = p.types.find((x) => x.code === inputs.type.value);
+    const hint = !t ? FIELDS[4].hint : t.kind === "line" ? `required: ${t.code} is a line type` : `leave empty: ${t.code} is a plane type`;
+    if (!msgs.gamma.classList.contains("bad")) msgs.gamma.textContent = hint;
   }
 
   function body() {
     const v = values();
     return {
       hole_id: Number(holeSel.value), depth: num(v.depth), type: v.type.trim(), alpha: num(v.alpha), beta: num(v.beta),
-      gamma: num(v.gamma), apparent_thickness: num(v.apparent_thickness), comment: v.comment,
+      gamma: num(v.gamma), apparent_thickness: num(v.apparent_thickness), comment: v.comment, logged_by: v.logged_by.trim(),
     };
   }
 
@@ -289,7 +315,7 @@ export async function logging(ctx) {
         r = await request("POST", `/v1/projects/${p.id}/measurements`, { body: body() });
       }
       const m = r.data;
-      say(editing ? `Saved the change to measurement ${m.id}.` : `Saved measurement ${m.id} at ${m.depth} ${unit}.`, "ok");
+      localStorage.setItem(LOGGER_KEY, m.logged_by || "");
       addRecent(m, r.etag);
       existing = existing.filter((x) => x.id !== m.id).concat([m]);
       if (editing) {
@@ -299,7 +325,7 @@ export async function logging(ctx) {
         history.replaceState(null, "", `#/p/${p.id}/log?hole=${holeSel.value}`);
       }
       formMsg.className = "form-msg ok";
-      formMsg.textContent = `Saved: ${m.type} at ${m.depth} ${unit}, dip ${fmt(m.derived && m.derived.dip, 0)} \u2192 ${az(m.derived && m.derived.dip_direction)}.`;
+      formMsg.textContent = `Saved measurement ${m.id} by ${m.logged_by}: ${m.type} at ${m.depth} ${unit}, dip ${fmt(m.derived && m.derived.dip, 0)} \u2192 ${az(m.derived && m.derived.dip_direction)}.`;
       for (const n of ["alpha", "beta", "gamma", "apparent_thickness", "comment"]) inputs[n].value = "";
       newPole = null;
       drawNet();

@@ -8,6 +8,7 @@ import { logging } from "./logging.js";
 import { holeView } from "./hole.js";
 import { netsView } from "./nets.js";
 import { qaView } from "./qa.js";
+import { useLegend, patternDefs, svg } from "./draw.js";
 
 const main = document.getElementById("main");
 const nav = document.getElementById("nav");
@@ -18,7 +19,27 @@ const projectName = document.getElementById("project-name");
 // loaded once per project and refreshed on demand.
 const cache = new Map();
 
+// The visual language is loaded once per page: served by the server, it is
+// the only definition of type marks, run confidence fills and severities.
+let legendLoaded = null;
+function loadLegend() {
+  if (!legendLoaded) {
+    legendLoaded = get("/v1/legend").then((l) => {
+      useLegend(l);
+      const defs = svg(0, 0, "");
+      defs.setAttribute("aria-hidden", "true");
+      defs.classList.add("defs-only");
+      defs.id = "shared-defs";
+      defs.append(patternDefs());
+      document.body.append(defs);
+      return l;
+    }).catch((e) => { legendLoaded = null; throw e; });
+  }
+  return legendLoaded;
+}
+
 export async function programme(pid, fresh = false) {
+  await loadLegend();
   if (!fresh && cache.has(pid)) return cache.get(pid);
   const [project, holes, types] = await Promise.all([
     get(`/v1/projects/${pid}`),
@@ -58,6 +79,7 @@ signout.addEventListener("click", () => {
 
 function setNav(pid, view, holeId) {
   nav.hidden = !pid;
+  document.body.dataset.view = pid ? view : "signin";
   for (const a of nav.querySelectorAll("a")) {
     const v = a.dataset.view;
     let href = `#/p/${pid}`;
@@ -79,6 +101,7 @@ async function route() {
   const { parts, params } = parseHash();
   signout.hidden = !getToken();
   if (!getToken() || parts[0] === "signin") {
+    signout.hidden = true;
     setNav("", "");
     projectName.textContent = "";
     return signIn();

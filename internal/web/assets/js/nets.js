@@ -4,6 +4,34 @@
 
 import { request, query, save, download } from "./api.js";
 import { h, fmt, az, say, problemText, add, put } from "./dom.js";
+import { shapeKey } from "./draw.js";
+
+// showNet puts the served net sheet in host without its side panel (the
+// net fills the panel) and returns the set key read from the sheet's own
+// legend, for the HTML legend beside it. The download keeps the whole sheet.
+function showNet(host, text, label) {
+  const doc = new DOMParser().parseFromString(text, "image/svg+xml");
+  const root = doc.documentElement;
+  if (root.nodeName !== "svg") {
+    put(host, h("p", { class: "msg bad" }, "The server sent a net this page cannot read."));
+    return { sets: [] };
+  }
+  const sets = [...root.querySelectorAll("g.set-key")].map((g) => ({
+    name: g.getAttribute("data-name"), colour: g.getAttribute("data-colour"), mark: g.getAttribute("data-mark"),
+    count: g.getAttribute("data-count"), desc: g.getAttribute("data-desc"),
+  }));
+  const density = [...root.querySelectorAll("#density title")].length;
+  // The net circle with its azimuth labels spans x 36..594 and y 70..640.
+  root.setAttribute("viewBox", "30 62 570 580");
+  root.removeAttribute("width");
+  root.removeAttribute("style"); // the page's stylesheet sets the face (no inline styles under the CSP)
+  root.removeAttribute("height");
+  root.setAttribute("role", "img");
+  root.setAttribute("aria-label", label);
+  root.setAttribute("class", "chart served-net");
+  put(host, document.importNode(root, true));
+  return { sets, density };
+}
 
 function showSvg(host, text, label) {
   const url = URL.createObjectURL(new Blob([text], { type: "image/svg+xml" }));
@@ -68,7 +96,7 @@ function statsTable(doc) {
           weighted ? [h("td", { class: "num" }, w ? meanOf(w, kind) : "\u2013"), h("td", { class: "num" }, w ? fmt(w.k, 1) : "\u2013"), h("td", { class: "num" }, w ? fmt(w.cone95, 1) : "\u2013")] : null);
       })))),
     h("p", { class: "help" }, `${doc.rows} measurements matched, ${doc.rows_used} used` + (skipped.length ? `; ${skipped.join("; ")}` : "") + (unassigned ? `; ${unassigned} in no set` : "") + `. Sets: ${method}.` + (doc.azimuth_ref ? ` Azimuths from ${doc.azimuth_ref} north.` : "")),
-    doc.caution ? h("p", { class: "help" }, doc.caution) : null);
+    doc.caution ? h("p", { class: "caution", id: "nets-caution" }, doc.caution) : null);
   return out;
 }
 
@@ -119,10 +147,11 @@ export async function netsView(ctx) {
     h("div", { class: "actions" }, h("button", { type: "submit", class: "primary" }, "Draw"), h("button", { type: "button", id: "download-svg" }, "Download SVG"), h("button", { type: "button", id: "download-rose" }, "Download rose SVG"), msg),
     h("div", { class: "field inline" }, h("label", { for: "n-transfer" }, "Export the selection for modelling"), transferFormat, h("button", { type: "button", id: "download-transfer" }, "Download")));
   const netHost = h("div", { class: "net-big", id: "net" }, h("p", { class: "loading" }, "Drawing\u2026"));
+  const netKey = h("div", { class: "net-key", id: "net-legend" });
   const roseHost = h("div", { class: "rose", id: "rose" });
   const statsHost = h("section", { class: "card" }, h("h2", {}, "Set statistics"));
-  add(host, form, h("div", { class: "two" }, h("section", { class: "card" }, h("h2", {}, "Net"), netHost), h("section", { class: "card" }, h("h2", {}, "Rose"), roseHost)), statsHost,
-    h("p", { class: "caution" }, "Sets and their statistics describe the logged data. They feed slope and excavation design only through a licensed practitioner working to local codes."));
+  add(host, form, h("section", { class: "card net-card" }, h("h2", {}, "Net"), h("div", { class: "net-row" }, netHost, netKey)),
+    statsHost, h("section", { class: "card rose-card" }, h("h2", {}, "Rose"), roseHost));
 
   const checked = (boxes) => boxes.map((l) => l.firstChild).filter((c) => c.checked).map((c) => c.value);
   function read() {
@@ -190,7 +219,12 @@ export async function netsView(ctx) {
     put(netHost, h("p", { class: "msg bad" }, "The net could not be drawn: " + problemText(netSvg.error)));
   } else {
     lastSvg = netSvg;
-    showSvg(netHost, netSvg, "Equal-area net of the selection, as served");
+    const key = showNet(netHost, netSvg, `${sel.projection === "equal-angle" ? "Equal-angle" : "Equal-area"} net of the selection, lower hemisphere`);
+    put(netKey, h("h3", {}, `Lower hemisphere, ${sel.projection === "equal-angle" ? "equal-angle" : "equal-area"}`),
+      key.sets.length ? h("ul", { class: "set-keys" }, key.sets.map((k) => h("li", { class: "key", "data-type": k.name, "data-colour": k.colour, "data-mark": k.mark },
+        shapeKey({ colour: k.colour, shape: k.mark }), h("span", {}, h("strong", {}, k.name), ` n=${k.count}`, h("br"), h("span", { class: "help" }, k.desc))))) : null,
+      h("p", { class: "help" }, "Filled marks: poles to planes; open marks: lines. A set's mean is the large mark, with its 95% cone; the dashed great circle is the mean plane."),
+      sel.show.includes("density") ? h("p", { class: "help" }, "Shaded: Kamb density of the poles, darker is denser (levels in the downloaded SVG).") : null);
   }
 
   if (roseSvg.error) {

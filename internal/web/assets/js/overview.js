@@ -4,7 +4,8 @@
 
 import { h, fmt, az, clear, problemText, add, put } from "./dom.js";
 import { runs, holePath, qaReport } from "./data.js";
-import { planView, sectionView, CONFIDENCE, confidenceFill, el, svg, patternDefs } from "./draw.js";
+import { planView, sectionView, confidenceFill, el, svg, severity, severityKey } from "./draw.js";
+import { confidenceLegend, severityLegend } from "./legend.js";
 
 // orientedShare returns the length under runs of each confidence (overlaps
 // counted once, the better rating winning) and the total, in hole units.
@@ -42,11 +43,6 @@ function shareBar(s, depth) {
   return g;
 }
 
-function legendConfidence() {
-  return h("p", { class: "legend" }, "Runs: ",
-    Object.entries(CONFIDENCE).map(([k, v]) => h("span", { class: "key" }, h("span", { class: `swatch conf-${k}` }), `${v.label}`)));
-}
-
 export async function overview(ctx) {
   const { p, host } = ctx;
   const unit = p.unit;
@@ -55,13 +51,6 @@ export async function overview(ctx) {
   const planBox = h("section", { class: "card" }, h("h2", {}, "Plan"), h("p", { class: "loading" }, "Loading hole paths\u2026"));
   const secBox = h("section", { class: "card" }, h("h2", {}, "Section"));
   add(host, tableBox, h("div", { class: "two" }, planBox, secBox));
-
-  // Hidden SVG with the run patterns, shared by the share bars.
-  const defsHost = svg(0, 0, "");
-  defsHost.setAttribute("aria-hidden", "true");
-  defsHost.classList.add("defs-only");
-  add(defsHost, patternDefs());
-  add(host, defsHost);
 
   const [allRuns, qa] = await Promise.all([
     Promise.all(p.holes.map((ho) => runs(p.id, ho.id))),
@@ -88,19 +77,20 @@ export async function overview(ctx) {
       h("td", { class: "num" }, fmt(ho.final_depth, 1)),
       h("td", { class: "share" }, shareBar(s, ho.final_depth), h("span", { class: "num" }, ` ${Math.round(s.share * 100)}%`)),
       h("td", { class: "num" }, qaOk
-        ? (f.flag + f.warning ? h("a", { href: `#/p/${p.id}/qa?hole=${encodeURIComponent(ho.name)}`, class: f.flag ? "flags has-flag" : "flags" }, `${f.flag} flag${f.flag === 1 ? "" : "s"}, ${f.warning} warn.`) : "none")
+        ? (f.flag + f.warning ? h("a", { href: `#/p/${p.id}/qa?hole=${encodeURIComponent(ho.name)}`, class: f.flag ? "flags has-flag" : "flags" },
+          ["flag", "warning"].map((k) => h("span", { class: "sevcount", "data-severity": k }, severityKey(k), String(f[k]), h("span", { class: "sr" }, ` ${severity(k).word}${f[k] === 1 ? "" : "s"} `)))) : "none")
         : "n/a"),
       h("td", {}, h("a", { href: `#/p/${p.id}/log?hole=${ho.id}`, class: "button small" }, "Log")));
   });
   put(tableBox, h("h2", { id: "holes-h" }, `Holes (${p.holes.length})`),
     h("div", { class: "scroll" }, h("table", { class: "data", id: "holes-table" },
-      h("caption", { class: "help" }, `Collar coordinates, elevations and depths in ${unit === "ft" ? "feet" : "metres"}; collar azimuth from ${p.project.output_azimuth_ref} north, dip negative down.`),
       h("thead", {}, h("tr", {},
         h("th", { scope: "col" }, "Hole"), h("th", { scope: "col", class: "num" }, "Easting"), h("th", { scope: "col", class: "num" }, "Northing"),
         h("th", { scope: "col", class: "num" }, "Elevation"), h("th", { scope: "col", class: "num" }, "Azimuth / dip"), h("th", { scope: "col", class: "num" }, "Final depth"),
         h("th", { scope: "col" }, "Oriented core"), h("th", { scope: "col" }, "QA flags"), h("th", { scope: "col" }, h("span", { class: "sr" }, "Actions")))),
       h("tbody", {}, rows))),
-    legendConfidence(),
+    h("p", { class: "help" }, `Collar coordinates, elevations and depths in ${unit === "ft" ? "feet" : "metres"}; collar azimuth from ${p.project.output_azimuth_ref} north, dip negative down.`),
+    confidenceLegend(), severityLegend(["flag", "warning"]),
     qa.error ? h("p", { class: "msg bad" }, "QA could not be read: " + problemText(qa.error)) : null);
 
   let paths;

@@ -5,9 +5,10 @@
 import { h, fmt, problemText, add, put } from "./dom.js";
 import { qaReport } from "./data.js";
 import { query } from "./api.js";
+import { severity, severities, severityKey } from "./draw.js";
+import { severityLegend } from "./legend.js";
 
-const SEVERITY = { flag: "Flag", warning: "Warning", info: "Note" };
-const ORDER = { flag: 0, warning: 1, info: 2 };
+const cap = (w) => w.charAt(0).toUpperCase() + w.slice(1);
 
 // linkFor returns where a finding points: the measurement or run by its store
 // id, the survey station by depth, else the hole.
@@ -63,10 +64,9 @@ export async function qaView(ctx) {
         h("dt", {}, "Measurements"), h("dd", {}, sum.measurements ?? "\u2013"),
         h("dt", {}, "Runs"), h("dd", {}, sum.runs ?? "\u2013"),
         h("dt", {}, "Oriented core"), h("dd", {}, cov.oriented_share != null ? `${Math.round(cov.oriented_share * 100)}% (confident ${Math.round((cov.confident_share || 0) * 100)}%)` : "\u2013"),
-        h("dt", {}, "Flags"), h("dd", { id: "qa-count-flag" }, sev.flag ?? 0),
-        h("dt", {}, "Warnings"), h("dd", {}, sev.warning ?? 0),
-        h("dt", {}, "Notes"), h("dd", {}, sev.info ?? 0),
-        h("dt", {}, "Runs flagged for mark rotation"), h("dd", {}, sum.runs_flagged ?? 0))));
+        severities().flatMap((v) => [h("dt", {}, severityKey(v.code), ` ${cap(v.word)}s`), h("dd", { id: `qa-count-${v.code}` }, sev[v.code] ?? 0)]),
+        h("dt", {}, "Runs flagged for mark rotation"), h("dd", {}, sum.runs_flagged ?? 0)),
+      severityLegend()));
 
   const groups = new Map();
   for (const f of findings) {
@@ -80,7 +80,8 @@ export async function qaView(ctx) {
   const clean = (rep.holes || []).map((x) => x.hole_id).filter((n) => !groups.has(n) && (!onlyHole || n === onlyHole));
   if (clean.length) add(body, h("p", { class: "ok" }, `No findings in ${clean.join(", ")}.`));
   for (const k of keys) {
-    const list = groups.get(k).sort((a, b) => (ORDER[a.severity] ?? 3) - (ORDER[b.severity] ?? 3) || a.depth - b.depth);
+    const order = (x) => { const i = severities().findIndex((v) => v.code === x.severity); return i < 0 ? 99 : i; };
+    const list = groups.get(k).sort((a, b) => order(a) - order(b) || a.depth - b.depth);
     const ho = byName.get(k);
     add(body, h("section", { class: "card qa-hole", "data-hole": k },
       h("h2", {}, k ? (ho ? h("a", { href: `#/p/${p.id}/hole/${ho.id}` }, `Hole ${k}`) : `Hole ${k}`) : "Programme-wide"),
@@ -90,7 +91,7 @@ export async function qaView(ctx) {
         h("tbody", {}, list.map((f) => {
           const link = ho ? linkFor(p.id, ho.id, f) : null;
           return h("tr", { class: `sev-${f.severity}` },
-            h("td", {}, h("span", { class: `badge ${f.severity}` }, SEVERITY[f.severity] || f.severity)),
+            h("td", {}, h("span", { class: `badge ${f.severity}`, "data-severity": f.severity }, severityKey(f.severity), cap(severity(f.severity).word))),
             h("td", { class: "num" }, k ? fmt(f.depth, 2) + (f.depth_to ? `\u2013${fmt(f.depth_to, 2)}` : "") : ""),
             h("td", {}, h("code", {}, f.check)),
             h("td", {}, f.message, f.logged_by ? ` (${f.logged_by})` : ""),
