@@ -5,9 +5,11 @@
 // equal-area nets of the persistent fabric of each flagged run before and
 // after the suggested correction.
 //
-// Colours are from the Okabe & Ito (2008) colour-blind-safe palette, and every
-// coloured meaning is also carried by a pattern or a marker shape, so the
-// page reads in greyscale.
+// Run confidences and finding severities are drawn in corvane's one visual
+// language (package visual), with the same words, fills and marks as the web
+// page; the other colours are from the same Okabe & Ito (2008)
+// colour-blind-safe palette. Every coloured meaning is also carried by a
+// pattern or a marker shape, so the page reads in greyscale.
 package qapage
 
 import (
@@ -21,14 +23,13 @@ import (
 	"corvane/internal/geom"
 	"corvane/internal/projection"
 	"corvane/internal/qa"
+	"corvane/internal/visual"
 )
 
 // Okabe-Ito colours.
 const (
 	colBlue     = "#0072B2"
-	colOrange   = "#E69F00"
 	colVermil   = "#D55E00"
-	colSky      = "#56B4E9"
 	colGreen    = "#009E73"
 	colPurple   = "#CC79A7"
 	colInk      = "#1d1d1f"
@@ -56,10 +57,8 @@ th,td{border-bottom:1px solid var(--line);padding:4px 8px;text-align:left;vertic
 th{font-weight:600;background:#f1f1ee}
 td.n{text-align:right;font-variant-numeric:tabular-nums;white-space:nowrap}
 .sev-flag{font-weight:700}
-.sev-flag::before{content:"\25BC  "}
-.sev-warning::before{content:"\25CB  "}
 .sev-info{color:var(--muted)}
-.sev-info::before{content:"\00B7  "}
+td.chk svg{vertical-align:-2px;margin-right:4px}
 .legend{display:flex;flex-wrap:wrap;gap:14px;align-items:center;font-size:13px;margin:8px 0}
 .legend svg{vertical-align:middle;margin-right:4px}
 .legend .li{display:inline-flex;align-items:center;white-space:nowrap}
@@ -74,11 +73,32 @@ footer{margin-top:40px;color:var(--muted);font-size:12.5px}
 @media print{body{background:#fff}.strip,.net,.card,table{break-inside:avoid}}
 `
 
-// svgDefs are the patterns shared by every strip.
-const svgDefs = `<svg width="0" height="0" style="position:absolute" aria-hidden="true"><defs>
-<pattern id="p-other" width="6" height="6" patternUnits="userSpaceOnUse" patternTransform="rotate(45)"><rect width="6" height="6" fill="#fff"/><rect width="3" height="6" fill="` + colOrange + `"/></pattern>
-<pattern id="p-unusable" width="6" height="6" patternUnits="userSpaceOnUse"><rect width="6" height="6" fill="#fff"/><path d="M0 0L6 6M6 0L0 6" stroke="` + colVermil + `" stroke-width="1.6"/></pattern>
-</defs></svg>`
+// svgDefs are the run-confidence patterns of the visual language, shared by
+// every strip and legend.
+var svgDefs = `<svg width="0" height="0" style="position:absolute" aria-hidden="true"><defs>` + visual.PatternDefs() + `</defs></svg>`
+
+// runFill is the fill of a run in the visual language: its rating's, or for
+// a rating the language does not name, that of its QA class.
+func runFill(run qa.RunReport) string {
+	c := strings.ToLower(strings.TrimSpace(run.Confidence))
+	if visual.ConfidenceOf(c).Code == c {
+		return visual.FillOf(c)
+	}
+	switch run.Class {
+	case qa.ClassConfident:
+		return visual.FillOf("good")
+	case qa.ClassUnusable:
+		return visual.FillOf("none")
+	}
+	return visual.FillOf("fair")
+}
+
+// sevMark is the inline SVG mark of a severity, w pixels square.
+func sevMark(code string, w float64) string {
+	v := visual.SeverityOf(code)
+	return fmt.Sprintf(`<svg width="%.0f" height="%.0f" aria-hidden="true"><path d="%s" fill="%s" stroke="#000" stroke-width="1.2"/></svg>`,
+		w, w, visual.MarkPath(v.Mark, w/2, w/2, w*0.3), v.Fill)
+}
 
 func esc(s string) string { return html.EscapeString(s) }
 
@@ -173,12 +193,18 @@ func writeLegend(b *strings.Builder) {
 		fmt.Fprintf(b, "<span class=\"li\">%s%s</span>", svg, text)
 	}
 	b.WriteString("<div class=\"legend\" aria-label=\"legend\">")
-	item(swatch(colBlue, colInk), "run rated confident")
-	item(swatch("url(#p-other)", colInk), "run rated usable with care")
-	item(swatch("url(#p-unusable)", colInk), "run rated unusable")
+	b.WriteString("<b>Runs:</b>")
+	for _, c := range visual.Confidences {
+		item(swatch(visual.FillOf(c.Code), colInk), c.Word)
+	}
 	item(swatch("#fff", colHairline), "no run")
-	item(`<svg width="14" height="12"><path d="M1 1H13L7 11Z" fill="`+colInk+`"/></svg>`, "flag")
-	item(`<svg width="14" height="12"><circle cx="7" cy="6" r="4.5" fill="#fff" stroke="`+colInk+`" stroke-width="1.6"/></svg>`, "warning")
+	b.WriteString("<b>QA:</b>")
+	for _, v := range visual.Severities {
+		if v.Code == qa.SeverityInfo {
+			continue // notes are listed, not drawn on the strip
+		}
+		item(sevMark(v.Code, 14), v.Word)
+	}
 	item(`<svg width="26" height="12"><rect x="9" y="1" width="8" height="10" fill="`+colPurple+`" stroke="`+colInk+`"/></svg>`, "estimated mark rotation (flagged: outlined, labelled; grey: not flagged; pale: too few measurements)")
 	item(`<svg width="14" height="14"><line x1="7" x2="7" y1="2" y2="14" stroke="`+colGreen+`" stroke-width="2"/></svg>`, "survey station (taller: further off its neighbours' path)")
 	b.WriteString("</div>")
@@ -247,8 +273,8 @@ func findingTable(b *strings.Builder, fs []qa.Finding) {
 		if f.Line > 0 {
 			src += fmt.Sprintf(" line %d", f.Line)
 		}
-		fmt.Fprintf(b, "<tr><td class=\"n\">%s</td><td class=\"chk sev-%s\">%s</td><td>%s</td><td class=\"chk\">%s</td></tr>",
-			depth, esc(f.Severity), esc(f.Check), esc(f.Message), src)
+		fmt.Fprintf(b, "<tr><td class=\"n\">%s</td><td class=\"chk sev-%s\">%s%s</td><td>%s: %s</td><td class=\"chk\">%s</td></tr>",
+			depth, esc(f.Severity), sevMark(f.Severity, 13), esc(f.Check), esc(visual.SeverityOf(f.Severity).Word), esc(f.Message), src)
 	}
 	b.WriteString("</table>")
 }
@@ -274,13 +300,7 @@ func writeStrip(b *strings.Builder, h *qa.HoleReport, fs []qa.Finding) {
 	label(yRuns+laneRuns/2+4, "runs")
 	fmt.Fprintf(b, `<rect x="%.1f" y="%.1f" width="%.1f" height="%.1f" fill="#fff" stroke="%s"/>`, x(0), yRuns, x(total)-x(0), laneRuns, colHairline)
 	for _, run := range h.Runs {
-		fill := colBlue
-		switch run.Class {
-		case qa.ClassOther:
-			fill = "url(#p-other)"
-		case qa.ClassUnusable:
-			fill = "url(#p-unusable)"
-		}
+		fill := runFill(run)
 		w := math.Max(x(run.To)-x(run.From), 0.6)
 		fmt.Fprintf(b, `<rect x="%.2f" y="%.1f" width="%.2f" height="%.1f" fill="%s" stroke="#fff" stroke-width="0.4"><title>run %.2f-%.2f: %s (%d measurements)</title></rect>`,
 			x(run.From), yRuns, w, laneRuns, fill, run.From, run.To, esc(run.Confidence), run.Measurements)
@@ -339,11 +359,8 @@ func writeStrip(b *strings.Builder, h *qa.HoleReport, fs []qa.Finding) {
 		if f.DepthTo > f.Depth {
 			fmt.Fprintf(b, `<line x1="%.1f" x2="%.1f" y1="%.1f" y2="%.1f" stroke="%s" stroke-width="2"/>`, cx, x(f.DepthTo), yFlags+laneFlags-3, yFlags+laneFlags-3, colInk)
 		}
-		if f.Severity == qa.SeverityFlag {
-			fmt.Fprintf(b, `<path d="M%.1f %.1fh12l-6 11z" fill="%s">%s</path>`, cx-6, yFlags+4, colInk, title)
-		} else {
-			fmt.Fprintf(b, `<circle cx="%.1f" cy="%.1f" r="4.5" fill="#fff" stroke="%s" stroke-width="1.6">%s</circle>`, cx, yFlags+10, colInk, title)
-		}
+		v := visual.SeverityOf(f.Severity)
+		fmt.Fprintf(b, `<path d="%s" fill="%s" stroke="#000" stroke-width="1.2">%s</path>`, visual.MarkPath(v.Mark, cx, yFlags+10, 5), v.Fill, title)
 	}
 	// Survey lane: a tick per station, taller with the leave-one-out residual.
 	label(ySurv+laneSurv/2+4, "survey")

@@ -10,6 +10,7 @@ import (
 	"testing"
 
 	"corvane/internal/qa"
+	"corvane/internal/visual"
 )
 
 func sampleReport() qa.Report {
@@ -83,5 +84,35 @@ func TestWritePage(t *testing.T) {
 			s = strings.Replace(s, "<svg", `<svg xmlns="http://www.w3.org/2000/svg"`, 1)
 			os.WriteFile(dir+"/svg"+string(rune('a'+i))+".svg", []byte(svgs[0][:0]+s), 0o644)
 		}
+	}
+}
+
+// The report speaks the visual language of the page: the same words and
+// fills for run confidence, the same words and marks for severity.
+func TestSameLanguageAsThePage(t *testing.T) {
+	var buf bytes.Buffer
+	if err := Write(&buf, sampleReport(), "QA"); err != nil {
+		t.Fatal(err)
+	}
+	page := buf.String()
+	for _, c := range visual.Confidences {
+		if !strings.Contains(page, `fill="`+visual.FillOf(c.Code)+`"`) || !strings.Contains(page, c.Word) {
+			t.Errorf("run confidence %s: no swatch filled %s worded %q", c.Code, visual.FillOf(c.Code), c.Word)
+		}
+	}
+	// The sample's runs are rated good, poor and none: each is drawn with its fill.
+	for _, r := range []string{"good", "poor", "none"} {
+		if !regexp.MustCompile(`<rect [^>]*fill="` + regexp.QuoteMeta(visual.FillOf(r)) + `"[^>]*><title>run [^<]*: ` + r).MatchString(page) {
+			t.Errorf("no run rated %s drawn with %s", r, visual.FillOf(r))
+		}
+	}
+	for _, v := range visual.Severities[:2] {
+		mark := visual.MarkPath(v.Mark, 7, 7, 14*0.3)
+		if !strings.Contains(page, mark) || !strings.Contains(page, ">"+v.Word+"<") {
+			t.Errorf("severity %s: legend lacks its mark or the word %q", v.Code, v.Word)
+		}
+	}
+	if strings.Contains(page, "p-other") || strings.Contains(page, "p-unusable") {
+		t.Error("the report still uses its own run patterns")
 	}
 }
