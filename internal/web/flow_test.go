@@ -13,6 +13,8 @@ import (
 	"testing"
 	"time"
 
+	"corvane/internal/service"
+
 	"github.com/chromedp/cdproto/browser"
 	"github.com/chromedp/chromedp"
 )
@@ -24,6 +26,7 @@ type server struct {
 	Token     string // may log and edit in the demo project
 	ReadToken string // may only read the demo project
 	Project   int64
+	svc       *service.Service // for tests that set up data of their own
 }
 
 // api calls the service from Go, as a second user would.
@@ -224,6 +227,10 @@ func TestSignInRefusesBadToken(t *testing.T) {
 	p.allow("401") // the browser logs the refused request
 	p.do("open page", chromedp.Navigate(s.URL+"/"), chromedp.WaitVisible(chromedp.CSS("#token")), chromedp.SendKeys(chromedp.CSS("#token"), "not-a-token\r"))
 	p.waitFor("refusal", `document.querySelector('#token-msg').textContent.includes('does not accept')`)
+	// The sign-in screen shows neither the views nor "Sign out".
+	if eval[bool](p, `getComputedStyle(document.querySelector('#nav')).display !== 'none' || getComputedStyle(document.querySelector('#signout')).display !== 'none'`) {
+		t.Error("the navigation or Sign out shows on the sign-in screen")
+	}
 	if eval[bool](p, `sessionStorage.getItem("corvane.token") !== null`) {
 		t.Error("a refused token was kept")
 	}
@@ -269,9 +276,13 @@ func TestLoggingWithKeyboard(t *testing.T) {
 	p.waitFor("new pole on the net", `document.querySelector('#log-net .pole-new') !== null && document.querySelector('#log-net .pole-new').children.length > 0`)
 	p.shot("logging")
 
-	// Enter saves.
+	// Enter saves. The message appears without moving the form.
+	top := eval[float64](p, `document.querySelector('#save').getBoundingClientRect().top + window.scrollY`)
 	p.keys("\r")
 	p.waitFor("saved", `document.querySelector('#form-msg').textContent.startsWith('Saved')`)
+	if now := eval[float64](p, `document.querySelector('#save').getBoundingClientRect().top + window.scrollY`); now != top {
+		t.Errorf("the Saved message moved the form: Save button at %v, was %v", now, top)
+	}
 	after := s.measurements(t, "hole="+h.Name)
 	if len(after) != len(before)+1 {
 		t.Fatalf("measurements of %s: %d before, %d after saving one", h.Name, len(before), len(after))
@@ -339,7 +350,20 @@ func TestLoggingWithKeyboard(t *testing.T) {
 	if vals["alpha"] != "95" || vals["beta"] != "100" || vals["comment"] != "second try" || vals["depth"] == "" {
 		t.Errorf("typed values lost after the refusal: %v", vals)
 	}
+	// Never both messages at once, and the form has not moved.
+	if eval[bool](p, `/Saved/.test(document.body.innerText.replace(document.querySelector('#form-msg').innerText, '').replace(/Saved in this session/g, '')) && document.querySelector('#form-msg').textContent.includes('Not saved')`) {
+		t.Error(`"Saved" is shown beside "Not saved"`)
+	}
+	if now := eval[float64](p, `document.querySelector('#save').getBoundingClientRect().top + window.scrollY`); now != top {
+		t.Errorf("the Not saved message moved the form: Save button at %v, was %v", now, top)
+	}
 	p.shot("logging-refused")
+	// Fixing the field clears "Not saved".
+	p.do("fix alpha", chromedp.Evaluate[chromedp.Void](`document.querySelector('#f-alpha').select()`))
+	p.keys("35")
+	p.waitFor("Not saved cleared", `!document.querySelector('#form-msg').textContent.includes('Not saved') && document.querySelector('#f-alpha').getAttribute('aria-invalid') === null`)
+	p.do("focus depth again", chromedp.Focus(chromedp.CSS("#f-depth")))
+	p.do("break alpha again", chromedp.Evaluate[chromedp.Void](`document.querySelector('#f-alpha').value = '95'`))
 	if n := len(s.measurements(t, "hole="+h.Name)); n != len(after) {
 		t.Errorf("a refused measurement reached the server: %d rows, want %d", n, len(after))
 	}

@@ -1,9 +1,14 @@
 package web_test
 
 import (
+	"context"
 	"fmt"
 	"strings"
 	"testing"
+	"time"
+
+	"corvane/internal/domain"
+	"corvane/internal/service"
 
 	"github.com/chromedp/chromedp"
 )
@@ -161,4 +166,86 @@ func TestSameTypeSameLook(t *testing.T) {
 			t.Errorf("nothing drawn by type in the %s", w)
 		}
 	}
+}
+
+// TestLongHolePaged opens a hole of 12,500 measurements: the view shows the
+// first page of rows in depth order and fetches the next on request. The
+// time to the first rows is logged (a measurement, not an assertion).
+func TestLongHolePaged(t *testing.T) {
+	s := startService(t)
+	// A project of its own, so the other tests' programme stays as it is.
+	sys := service.WithActor(context.Background(), service.System)
+	pr, err := s.svc.CreateProject(sys, domain.Project{Name: "Long hole"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := s.svc.PutTypeCode(sys, pr.ID, domain.TypeCode{Code: "joint"}); err != nil {
+		t.Fatal(err)
+	}
+	h, err := s.svc.CreateHole(sys, pr.ID, domain.Hole{Name: "LONG1", East: 1000, North: 2000, Elevation: 400, Azimuth: 90, Dip: -60, FinalDepth: 1000})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var csv strings.Builder
+	csv.WriteString("hole_id,depth,alpha,beta,type,logged_by\n")
+	for i := range 12500 {
+		fmt.Fprintf(&csv, "LONG1,%.3f,%d,%d,joint,L4\n", float64((i*7919)%12500)*0.08, 20+i%60, (i*37)%360)
+	}
+	if _, err := s.svc.Import(sys, pr.ID, service.ImportRequest{Kind: "measurements", Body: strings.NewReader(csv.String())}); err != nil {
+		t.Fatalf("importing 12,500 rows: %v", err)
+	}
+	tok, _, err := s.svc.CreateToken(sys, pr.ID, domain.RoleRead, "long-hole reader")
+	if err != nil {
+		t.Fatal(err)
+	}
+	p := newPage(t, s.URL, 1366, 900)
+	p.allow("/survey") // the hole has no survey: the page asks and is told 404
+	p.signIn(tok)
+	start := time.Now()
+	p.do("open the long hole", chromedp.Navigate(fmt.Sprintf("%s/#/p/%d/hole/%d", s.URL, pr.ID, h.ID)))
+	p.waitFor("first rows", `document.querySelectorAll('#measurements tbody tr').length === 250`)
+	t.Logf("hole of 12,500 measurements: first 250 rows shown %v after navigating (measured, not asserted)", time.Since(start).Round(time.Millisecond))
+	depths := eval[[]float64](p, `[...document.querySelectorAll('#measurements tbody td[data-key=depth]')].map((c) => +c.textContent)`)
+	for i := 1; i < len(depths); i++ {
+		if depths[i] < depths[i-1] {
+			t.Fatalf("rows not in depth order at %d: %v then %v", i, depths[i-1], depths[i])
+		}
+	}
+	if got := p.text("#table-heading"); !strings.Contains(got, "250 of 12500") {
+		t.Errorf("heading reads %q, want 250 of 12500", got)
+	}
+	last := depths[len(depths)-1]
+	p.do("next page", chromedp.Click(chromedp.CSS("#more-rows")))
+	p.waitFor("next rows", `document.querySelectorAll('#measurements tbody tr').length === 500`)
+	more := eval[[]float64](p, `[...document.querySelectorAll('#measurements tbody td[data-key=depth]')].map((c) => +c.textContent)`)
+	if more[250] < last {
+		t.Errorf("the second page starts at %v, above the first page's last depth %v", more[250], last)
+	}
+}
+
+// TestGammaRuleShown: the page says what the chosen type asks of gamma, and
+// the server's refusal of a lineation angle on a plane type appears beside
+// the gamma field, with nothing typed lost.
+func TestGammaRuleShown(t *testing.T) {
+	s := startService(t)
+	h := s.holes(t)[7]
+	p := newPage(t, s.URL, 1366, 900)
+	p.allow("422") // the browser logs the refused save
+	p.signIn(s.Token)
+	p.do("open logging", chromedp.Navigate(fmt.Sprintf("%s/#/p/%d/log?hole=%d", s.URL, s.Project, h.ID)))
+	p.waitFor("form ready", `document.activeElement && document.activeElement.id === 'f-depth'`)
+	p.do("choose joint", chromedp.SetValue(chromedp.CSS("#f-type"), "joint"), chromedp.Evaluate[chromedp.Void](`document.querySelector('#f-type').dispatchEvent(new Event("input", {bubbles: true}))`))
+	p.waitFor("gamma hint", `document.querySelector('#m-gamma').textContent.includes('plane type')`)
+	p.do("focus depth", chromedp.Focus(chromedp.CSS("#f-depth")))
+	p.keys("12.5\t\t40\t120\t33\t\tgamma on a plane\tL5\r")
+	p.waitFor("refusal beside gamma", `document.querySelector('#m-gamma').classList.contains('bad') && document.querySelector('#form-msg').textContent.includes('Not saved')`)
+	if got := p.text("#m-gamma"); !strings.Contains(got, "plane type") {
+		t.Errorf("gamma message %q: want the server's rule", got)
+	}
+	if v := eval[string](p, `document.querySelector('#f-gamma').value`); v != "33" {
+		t.Errorf("gamma field reads %q after the refusal, want 33 kept", v)
+	}
+	// Clearing gamma clears the refusal.
+	p.do("clear gamma", chromedp.Evaluate[chromedp.Void](`const g = document.querySelector('#f-gamma'); g.value = ''; g.dispatchEvent(new Event("input", {bubbles: true}))`))
+	p.waitFor("Not saved cleared", `!document.querySelector('#form-msg').textContent.includes('Not saved')`)
 }

@@ -66,7 +66,7 @@ func start() (*server, error) {
 	}
 	ts := httptest.NewServer(httpapi.New(httpapi.Options{Service: svc, Web: web.Handler()}))
 	running.stop = append(running.stop, ts.Close)
-	return &server{URL: ts.URL, Token: logTok, ReadToken: readTok, Project: p.ID}, nil
+	return &server{URL: ts.URL, Token: logTok, ReadToken: readTok, Project: p.ID, svc: svc}, nil
 }
 
 // stopService stops the shared service (from TestMain).

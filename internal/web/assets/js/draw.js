@@ -310,9 +310,11 @@ export function severityKey(code) {
 // by type in columns, QA flags at depth. onPick(kind, item) is called on a
 // click or Enter on a measurement or flag.
 export function depthStrip({ depth, runs, measurements, types, flags, unit = "m", onPick, highlightRun, vocab }) {
-  const colW = 52;
+  // Columns are as wide as the longest type code needs (11 px bold heads).
+  const colW = Math.max(34, ...types.map((t) => t.code.length * 7.5 + 8));
   const typeCols = types.length || 1;
-  const w = 90 + 56 + typeCols * colW + 70 + 20;
+  const xRun = 46, x0 = xRun + 40;
+  const w = x0 + typeCols * colW + 44;
   const h = Math.max(520, Math.min(1600, depth * 2.2)) + 70;
   const top = 56, bottom = 14;
   const s = svg(w, h, "Depth strip: runs, measurements and QA flags");
@@ -321,20 +323,18 @@ export function depthStrip({ depth, runs, measurements, types, flags, unit = "m"
   const step = niceStep(depth, 12);
   const ax = el("g", { class: "grid" });
   for (let d = 0; d <= depth + 1e-9; d += step) {
-    ax.append(el("line", { x1: 60, y1: f2(Y(d)), x2: w - 10, y2: f2(Y(d)) }));
-    ax.append(el("text", { x: 54, y: f2(Y(d) + 4), "text-anchor": "end" }, String(Math.round(d))));
+    ax.append(el("line", { x1: 40, y1: f2(Y(d)), x2: w - 6, y2: f2(Y(d)) }));
+    ax.append(el("text", { x: 36, y: f2(Y(d) + 4), "text-anchor": "end" }, String(Math.round(d))));
   }
-  ax.append(el("text", { x: 14, y: top - 30, class: "axis" }, `Depth (${unit})`));
+  ax.append(el("text", { x: 4, y: top - 32, class: "axis" }, `Depth (${unit})`));
   s.append(ax);
-  const xRun = 70;
-  s.append(el("text", { x: xRun + 18, y: top - 12, "text-anchor": "middle", class: "head" }, "Runs"));
+  s.append(el("text", { x: xRun + 14, y: top - 12, "text-anchor": "middle", class: "head" }, "Runs"));
   for (const r of runs) {
     const k = confidence(r.confidence);
-    const rect = el("rect", { x: xRun, y: f2(Y(r.from)), width: 36, height: f2(Math.max(1, Y(r.to) - Y(r.from))), fill: confidenceFill(r.confidence), stroke: "#000", "stroke-width": 0.7, "data-confidence": r.confidence, "data-id": r.id, class: highlightRun && String(r.id) === String(highlightRun) ? "hl-run" : null });
+    const rect = el("rect", { x: xRun, y: f2(Y(r.from)), width: 28, height: f2(Math.max(1, Y(r.to) - Y(r.from))), fill: confidenceFill(r.confidence), stroke: "#000", "stroke-width": 0.7, "data-confidence": r.confidence, "data-id": r.id, class: highlightRun && String(r.id) === String(highlightRun) ? "hl-run" : null });
     rect.append(el("title", {}, `${r.from}\u2013${r.to} ${unit}: ${k.word}${r.mismatch != null ? `, mismatch ${r.mismatch}\u00b0` : ""}`));
     s.append(rect);
   }
-  const x0 = xRun + 56;
   types.forEach((t, i) => {
     const x = x0 + i * colW + colW / 2;
     s.append(el("text", { x, y: top - 12, "text-anchor": "middle", class: "head" }, t.code));
@@ -354,7 +354,7 @@ export function depthStrip({ depth, runs, measurements, types, flags, unit = "m"
     mg.append(mk);
   }
   s.append(mg);
-  const xf = x0 + typeCols * colW + 24;
+  const xf = x0 + typeCols * colW + 14;
   s.append(el("text", { x: xf + 8, y: top - 12, "text-anchor": "middle", class: "head" }, "QA"));
   for (const f of flags || []) {
     const sev = f.severity || "info";

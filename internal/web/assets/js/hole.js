@@ -192,7 +192,7 @@ export async function holeView(ctx, holeId) {
     if (a) a.focus({ preventScroll: true });
   }
 
-  const heading = h("h2", {});
+  const heading = h("h2", { id: "table-heading" });
   const more = h("button", { type: "button", id: "more-rows" }, `Show the next ${PAGE}`);
   const moreRow = h("div", { class: "actions" }, more);
   // The hole's QA report counts its measurements: the total when no filter

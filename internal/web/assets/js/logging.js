@@ -157,6 +157,7 @@ export async function logging(ctx) {
         setMsg(f.name, f.hint || "", false);
       }
     }
+    typeHint();
     return first;
   }
 
@@ -182,7 +183,6 @@ export async function logging(ctx) {
       formMsg.textContent = "";
       formMsg.className = "form-msg";
     }
-    typeHint();
     clearTimeout(timer);
     timer = setTimeout(runPreview, 120);
   }
@@ -379,7 +379,7 @@ export async function logging(ctx) {
 
   const recentBody = h("tbody");
   const recentTable = h("table", { class: "data", id: "recent" }, h("thead", {}, h("tr", {},
-    ["Id", "Hole", `Depth (${unit})`, "Type", "\u03b1", "\u03b2", "\u03b3", "Dip \u2192 dir.", "Warnings", ""].map((t) => h("th", { scope: "col" }, t)))), recentBody);
+    ["Id", "Hole", `Depth (${unit})`, "Type", "\u03b1", "\u03b2", "\u03b3", "Dip \u2192 dir.", "Warnings", "Logged by", ""].map((t) => h("th", { scope: "col" }, t)))), recentBody);
   function addRecent(m) {
     const old = recentBody.querySelector(`tr[data-id="${m.id}"]`);
     if (old) old.remove();
@@ -389,7 +389,7 @@ export async function logging(ctx) {
       h("td", { class: "num" }, m.id), h("td", {}, ho ? ho.name : m.hole || ""), h("td", { class: "num" }, fmt(m.depth, 2)), h("td", {}, m.type),
       h("td", { class: "num" }, fmt(m.alpha, 0)), h("td", { class: "num" }, fmt(m.beta, 0)), h("td", { class: "num" }, m.gamma == null ? "" : fmt(m.gamma, 0)),
       h("td", { class: "num" }, `${fmt(d.dip, 0)} \u2192 ${az(d.dip_direction)}`),
-      h("td", {}, (d.warnings || []).join("; ")),
+      h("td", {}, (d.warnings || []).join("; ")), h("td", { "data-key": "logged_by" }, m.logged_by),
       h("td", {}, h("a", { href: `#/p/${p.id}/log?hole=${m.hole_id}&edit=${m.id}` }, "Edit"))));
     const empty = recent.querySelector("#recent-empty");
     if (empty) { empty.remove(); add(recent, h("div", { class: "scroll" }, recentTable)); }
