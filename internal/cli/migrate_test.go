@@ -3,13 +3,17 @@ package cli
 import (
 	"bytes"
 	"context"
+	"fmt"
+	"io/fs"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
 	"corvane/internal/domain"
 	"corvane/internal/service"
 	"corvane/internal/store"
+	"corvane/migrations"
 )
 
 func runWithEnv(t *testing.T, env map[string]string, args ...string) (int, string, string) {
@@ -25,20 +29,22 @@ func TestMigrateCommand(t *testing.T) {
 	if code, out, errs := runWithEnv(t, env, "migrate", "version"); code != ExitOK || out != "schema version 0\n" {
 		t.Fatalf("version on a fresh file: %d %q %q", code, out, errs)
 	}
-	if code, out, errs := runWithEnv(t, env, "migrate", "up"); code != ExitOK || out != "schema version 3\n" {
+	vs := migrationVersions(t)
+	latest, before := vs[len(vs)-1], vs[len(vs)-2]
+	if code, out, errs := runWithEnv(t, env, "migrate", "up"); code != ExitOK || out != fmt.Sprintf("schema version %d\n", latest) {
 		t.Fatalf("up: %d %q %q", code, out, errs)
 	}
-	if code, out, _ := runWithEnv(t, nil, "migrate", "down", "--db", db); code != ExitOK || out != "schema version 2\n" {
+	if code, out, _ := runWithEnv(t, nil, "migrate", "down", "--db", db); code != ExitOK || out != fmt.Sprintf("schema version %d\n", before) {
 		t.Fatalf("down with --db: %d %q", code, out)
 	}
 	if code, _, errs := runWithEnv(t, env, "migrate", "down", "--all"); code != ExitUsage || !strings.Contains(errs, "--yes") {
 		t.Fatalf("down --all without --yes: %d %q", code, errs)
 	}
-	if code, out, _ := runWithEnv(t, env, "migrate", "version"); out != "schema version 2\n" {
+	if code, out, _ := runWithEnv(t, env, "migrate", "version"); out != fmt.Sprintf("schema version %d\n", before) {
 		t.Fatalf("down --all without --yes changed the schema: %d %q", code, out)
 	}
 	if code, _, errs := runWithEnv(t, env, "migrate", "down", "--steps", "5"); code != ExitRows || !strings.Contains(errs, "nothing was changed") {
-		t.Fatalf("down --steps 5 on schema 2: %d %q", code, errs)
+		t.Fatalf("down --steps 5 on schema %d: %d %q", before, code, errs)
 	}
 	if code, out, errs := runWithEnv(t, env, "migrate", "force", "2"); code != ExitOK || out != "schema version 2\n" {
 		t.Fatalf("force 2: %d %q %q", code, out, errs)
@@ -120,4 +126,23 @@ func TestMigrateAndTokenHidePasswords(t *testing.T) {
 			}
 		}
 	}
+}
+
+// migrationVersions lists the version numbers of the SQLite migrations in
+// ascending order.
+func migrationVersions(t *testing.T) []int {
+	t.Helper()
+	es, err := fs.ReadDir(migrations.SQLite, "sqlite")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var vs []int
+	for _, e := range es {
+		var v int
+		if _, err := fmt.Sscanf(e.Name(), "%d_", &v); err == nil && !slices.Contains(vs, v) {
+			vs = append(vs, v)
+		}
+	}
+	slices.Sort(vs)
+	return vs
 }

@@ -67,7 +67,7 @@ type NetOptions struct {
 	// the azimuths refer to, when known. Both go in the subtitle.
 	Source, AzimuthRef string
 	// TypeStyles draws the sets by type code in their type's colour and mark
-	// (nil: the visual language's defaults by set order).
+	// (nil: the visual language's defaults over the rows' codes in code order).
 	TypeStyles map[string]visual.Style
 }
 
@@ -106,6 +106,22 @@ func subtitle(source, ref string) string {
 	return source
 }
 
+// defaultStyles gives the type codes of rows the visual language's defaults
+// in code order, as a project gives a vocabulary stored without styles.
+func defaultStyles(rows []Row) map[string]visual.Style {
+	idx := make([]int, len(rows))
+	for i := range idx {
+		idx[i] = i
+	}
+	names := typeNames(rows, idx)
+	st := visual.Fill(make([]visual.Style, len(names)))
+	m := make(map[string]visual.Style, len(names))
+	for i, n := range names {
+		m[n] = st[i]
+	}
+	return m
+}
+
 // Net returns the net sheet of in: poles (filled markers), planes as great
 // circles, lines (open markers), set means with their 95% cones of
 // confidence, and filled density contours of the poles (of the lines when
@@ -118,6 +134,10 @@ func Net(in Input, o NetOptions) (netsvg.Net, error) {
 		return netsvg.Net{}, err
 	}
 	hasSets := o.Sets.any()
+	styles := o.TypeStyles
+	if styles == nil && o.Sets.ByType {
+		styles = defaultStyles(in.Rows)
+	}
 	n := netsvg.Net{Projection: o.Projection, Caution: Caution, Title: o.Title, Subtitle: subtitle(o.Source, o.AzimuthRef)}
 	// Sets: poles' sets first (their indices match markers), then lines'
 	// sets; lines' markers use indices offset by the number of pole sets.
@@ -145,7 +165,7 @@ func Net(in Input, o NetOptions) (netsvg.Net, error) {
 				}
 				sm := netsvg.SetMark{Name: name, Count: len(vs), Lines: ofLines, Mean: f.Mean, Cone: f.Cone95}
 				if o.Sets.ByType {
-					sm.Style = o.TypeStyles[name]
+					sm.Style = styles[name]
 				}
 				if ofLines {
 					sm.Name = name + " (lines)"
