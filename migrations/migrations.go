@@ -4,7 +4,11 @@
 // the same schema on either store.
 package migrations
 
-import "embed"
+import (
+	"embed"
+	"fmt"
+	"io/fs"
+)
 
 // Postgres holds the PostgreSQL migrations under the directory "postgres".
 //
@@ -15,3 +19,20 @@ var Postgres embed.FS
 //
 //go:embed sqlite/*.sql
 var SQLite embed.FS
+
+// Versions lists the version numbers of the migrations in SQLite (the same
+// on both stores), ascending: the last is the schema a fresh database gets.
+func Versions() []uint {
+	ents, err := fs.ReadDir(SQLite, "sqlite")
+	if err != nil {
+		panic(err) // embedded at build time: cannot fail
+	}
+	var out []uint
+	for _, e := range ents {
+		var v uint
+		if _, err := fmt.Sscanf(e.Name(), "%d_", &v); err == nil && (len(out) == 0 || out[len(out)-1] != v) {
+			out = append(out, v)
+		}
+	}
+	return out
+}

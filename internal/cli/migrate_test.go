@@ -4,9 +4,7 @@ import (
 	"bytes"
 	"context"
 	"fmt"
-	"io/fs"
 	"path/filepath"
-	"slices"
 	"strings"
 	"testing"
 
@@ -29,7 +27,7 @@ func TestMigrateCommand(t *testing.T) {
 	if code, out, errs := runWithEnv(t, env, "migrate", "version"); code != ExitOK || out != "schema version 0\n" {
 		t.Fatalf("version on a fresh file: %d %q %q", code, out, errs)
 	}
-	vs := migrationVersions(t)
+	vs := migrations.Versions()
 	latest, before := vs[len(vs)-1], vs[len(vs)-2]
 	if code, out, errs := runWithEnv(t, env, "migrate", "up"); code != ExitOK || out != fmt.Sprintf("schema version %d\n", latest) {
 		t.Fatalf("up: %d %q %q", code, out, errs)
@@ -126,23 +124,4 @@ func TestMigrateAndTokenHidePasswords(t *testing.T) {
 			}
 		}
 	}
-}
-
-// migrationVersions lists the version numbers of the SQLite migrations in
-// ascending order.
-func migrationVersions(t *testing.T) []int {
-	t.Helper()
-	es, err := fs.ReadDir(migrations.SQLite, "sqlite")
-	if err != nil {
-		t.Fatal(err)
-	}
-	var vs []int
-	for _, e := range es {
-		var v int
-		if _, err := fmt.Sscanf(e.Name(), "%d_", &v); err == nil && !slices.Contains(vs, v) {
-			vs = append(vs, v)
-		}
-	}
-	slices.Sort(vs)
-	return vs
 }

@@ -550,32 +550,18 @@ func (s *svgw) panel(n Net) float64 {
 	}
 	height := math.Max(sheetH, y+60)
 	if n.Caution != "" {
-		s.wrapped(24, height-38, 112, 9.5, n.Caution)
+		s.wrapped(24, height-38, height, 112, 9.5, n.Caution)
 	}
 	return height
 }
 
-// wrapped writes text broken into lines of at most width characters.
-func (s *svgw) wrapped(x, y float64, width int, size float64, text string) {
-	var lines []string
-	var cur string
-	for _, w := range strings.Fields(text) {
-		if cur != "" && len(cur)+1+len(w) > width {
-			lines = append(lines, cur)
-			cur = w
-			continue
-		}
-		if cur != "" {
-			cur += " "
-		}
-		cur += w
-	}
-	if cur != "" {
-		lines = append(lines, cur)
-	}
+// wrapped writes text broken into lines of at most width characters,
+// moved up when needed so that its last line stays above bottom.
+func (s *svgw) wrapped(x, y, bottom float64, width int, size float64, text string) {
+	lines := wrapText(text, width)
 	// Move a long text up so that its last line stays on the sheet.
-	if last := y + float64(len(lines)-1)*(size+4); last > sheetH-8 {
-		y -= last - (sheetH - 8)
+	if last := y + float64(len(lines)-1)*(size+4); last > bottom-8 {
+		y -= last - (bottom - 8)
 	}
 	for _, l := range lines {
 		s.printf(`<text x="%.1f" y="%.1f" font-size="%.1f" fill="#333" font-style="italic">%s</text>`+"\n", x, y, size, esc(l))

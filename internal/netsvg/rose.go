@@ -159,7 +159,7 @@ func WriteRose(w io.Writer, r Rose) error {
 		txt(11, "", n)
 	}
 	if r.Caution != "" {
-		s.wrapped(24, sheetH-38, 112, 9.5, r.Caution)
+		s.wrapped(24, sheetH-38, sheetH, 112, 9.5, r.Caution)
 	}
 	s.printf("</svg>\n")
 	if s.err != nil {
