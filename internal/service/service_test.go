@@ -73,9 +73,10 @@ func programme(t testing.TB, s *service.Service, ctx context.Context, p domain.P
 		p.Name = "Tallowmere test"
 	}
 	p = must(s.CreateProject(ctx, p))
-	for _, c := range []string{"BD", "JN", "LN"} {
+	for _, c := range []string{"BD", "JN"} {
 		must(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: c}))
 	}
+	must(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "LN", Kind: "line"})) // lineations: gamma required
 	h := must(s.CreateHole(ctx, p.ID, domain.Hole{Name: "TM001", East: 1000, North: 2000, Elevation: 300, Azimuth: 0, Dip: -60, FinalDepth: 200}))
 	return p, h
 }
