@@ -269,6 +269,16 @@ func TestLoggingWithKeyboard(t *testing.T) {
 	p.keys(typ[:1])
 	p.keys("\t35\t210\t\t\tlogged from the browser test\tL7")
 	p.waitFor("converted orientation", `document.querySelector('#pv-dip') !== null && document.querySelector('#pv-dipdir') !== null`)
+	// Previews of the half-typed numbers may still be on screen (a busy
+	// machine): wait for the one of the numbers in the form, asked of the
+	// same route by the test itself.
+	final := eval[float64](p, fmt.Sprintf(`(async () => {
+	  const v = (n) => +document.querySelector('#f-' + n).value;
+	  const r = await fetch('/v1/projects/%d/holes/%d/preview', {method: 'POST', headers: {Authorization: 'Bearer ' + sessionStorage.getItem('corvane.token'), 'Content-Type': 'application/json', Accept: 'application/json'},
+	    body: JSON.stringify({measurements: [{depth: v('depth'), alpha: v('alpha'), beta: v('beta')}]})});
+	  return (await r.json()).results[0].derived.dip;
+	})()`, s.Project, h.ID))
+	p.waitFor("the preview of the typed numbers", fmt.Sprintf(`Math.abs(+document.querySelector('#pv-dip').dataset.value - %v) < 1e-9`, final))
 	shownDip := p.text("#pv-dip")
 	shownDir := p.text("#pv-dipdir")
 	exactDip := eval[float64](p, `+document.querySelector('#pv-dip').dataset.value`)
