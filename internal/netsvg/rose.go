@@ -141,9 +141,11 @@ func WriteRose(w io.Writer, r Rose) error {
 		s.printf(`<text x="24" y="54" font-size="11" fill="#444">%s</text>`+"\n", esc(r.Subtitle))
 	}
 	y := 40.0
-	txt := func(size float64, attrs, t string) {
-		s.printf(`<text x="%.1f" y="%.1f" font-size="%.0f"%s>%s</text>`+"\n", panelX, y, size, attrs, esc(t))
-		y += size + 6
+	txt := func(size float64, attrs, t string) { // wrapped to the panel, as on the net
+		for _, l := range wrapText(t, panelChars(size)) {
+			s.printf(`<text x="%.1f" y="%.1f" font-size="%.0f"%s>%s</text>`+"\n", panelX, y, size, attrs, esc(l))
+			y += size + 6
+		}
 	}
 	q := orDefault(r.Quantity, "azimuth")
 	txt(13, ` font-weight="bold"`, "Rose of "+q)
