@@ -1,19 +1,17 @@
-// Package palette is corvane's one colour scheme for structure types. Every
-// output that colours structures by type (3D models, and any later view)
-// takes its colours from here, so a type looks the same everywhere.
-//
-// The colours are the eight of the Okabe-Ito palette (Okabe and Ito, "Color
-// Universal Design", 2002), chosen because they stay distinguishable for
-// the common forms of colour-vision deficiency; the web page already uses
-// them. Types are given colours in the sorted order of the project's
-// vocabulary codes, so a project's colours do not depend on which
-// measurements a selection holds; past seven types the colours repeat.
+// Package palette turns the visual language's type styles (package
+// [corvane/internal/visual], the one place that says how a structure type
+// is drawn) into the colour values that binary outputs such as glTF need.
+// It holds no colours of its own beyond those of hole traces: a type has the
+// same colour in a 3D scene as on the page, the nets and the QA report.
 package palette
 
 import (
 	"math"
 	"slices"
+	"strconv"
 	"strings"
+
+	"corvane/internal/visual"
 )
 
 // RGB is a colour with sRGB components in 0..255.
@@ -23,6 +21,18 @@ type RGB struct{ R, G, B uint8 }
 func (c RGB) Hex() string {
 	const d = "0123456789abcdef"
 	return string([]byte{'#', d[c.R>>4], d[c.R&15], d[c.G>>4], d[c.G&15], d[c.B>>4], d[c.B&15]})
+}
+
+// ParseHex reads a #rrggbb colour; ok is false for anything else.
+func ParseHex(s string) (c RGB, ok bool) {
+	if len(s) != 7 || s[0] != '#' {
+		return RGB{}, false
+	}
+	v, err := strconv.ParseUint(s[1:], 16, 32)
+	if err != nil {
+		return RGB{}, false
+	}
+	return RGB{uint8(v >> 16), uint8(v >> 8), uint8(v)}, true
 }
 
 // Linear returns the colour's components converted from sRGB to linear
@@ -39,24 +49,6 @@ func (c RGB) Linear() [3]float64 {
 	return [3]float64{f(c.R), f(c.G), f(c.B)}
 }
 
-// Colours is the palette in the order types receive it: Okabe-Ito without
-// its black first, which is kept for type codes outside the vocabulary
-// ([Unknown]).
-//
-// The order is the one the web page's type markers and the nets' sets use
-// (blue, vermillion, bluish green, reddish purple, orange, sky blue,
-// yellow), so the n-th type of a vocabulary has the same colour on the page
-// and in a 3D scene.
-var Colours = []RGB{
-	{0x00, 0x72, 0xB2}, // blue
-	{0xD5, 0x5E, 0x00}, // vermillion
-	{0x00, 0x9E, 0x73}, // bluish green
-	{0xCC, 0x79, 0xA7}, // reddish purple
-	{0xE6, 0x9F, 0x00}, // orange
-	{0x56, 0xB4, 0xE9}, // sky blue
-	{0xF0, 0xE4, 0x42}, // yellow
-}
-
 // Trace and TraceExtrapolated are the colours of hole traces: the surveyed
 // part dark grey, the part below the last survey station (extrapolated)
 // light grey.
@@ -65,31 +57,56 @@ var (
 	TraceExtrapolated = RGB{0xA0, 0xA0, 0xA0}
 )
 
-// Unknown is the colour of a type code that is not in the vocabulary given
-// to [New] (black, the eighth Okabe-Ito colour).
-var Unknown = RGB{0, 0, 0}
+// Unknown is the colour of a type code that has no style in the scheme
+// (mid grey, outside the type palette).
+var Unknown = RGB{0x80, 0x80, 0x80}
 
-// Scheme maps type codes to colours.
+// Scheme maps type codes (matched without regard to case) to colours.
 type Scheme struct {
-	codes []string // sorted, distinct, upper-cased
+	colours map[string]RGB
 }
 
-// New returns the scheme of a vocabulary: the codes, in any order, with
-// repeats ignored. Codes are matched without regard to case.
+func key(code string) string { return strings.ToUpper(strings.TrimSpace(code)) }
+
+// New returns the scheme of a vocabulary known only by its codes (a file
+// with no stored styles): the visual language's default styles given in
+// sorted code order, as a project whose types were stored without a style
+// gets them ([visual.Fill]). Repeats are ignored.
 func New(codes []string) Scheme {
 	cs := make([]string, 0, len(codes))
 	for _, c := range codes {
-		cs = append(cs, strings.ToUpper(strings.TrimSpace(c)))
+		cs = append(cs, key(c))
 	}
 	slices.Sort(cs)
-	return Scheme{codes: slices.Compact(cs)}
+	cs = slices.Compact(cs)
+	st := visual.Fill(make([]visual.Style, len(cs)))
+	m := make(map[string]visual.Style, len(cs))
+	for i, c := range cs {
+		m[c] = st[i]
+	}
+	return FromStyles(m)
 }
 
-// Colour returns the colour of type code.
-func (s Scheme) Colour(code string) RGB {
-	i, ok := slices.BinarySearch(s.codes, strings.ToUpper(strings.TrimSpace(code)))
-	if !ok {
-		return Unknown
+// FromStyles returns the scheme of a project's stored type styles (code ->
+// style, as the service's TypeStyles gives them). A style whose colour is
+// not #rrggbb draws as [Unknown].
+func FromStyles(styles map[string]visual.Style) Scheme {
+	s := Scheme{colours: make(map[string]RGB, len(styles))}
+	for code, st := range styles {
+		c, ok := ParseHex(st.Colour)
+		if !ok {
+			c = Unknown
+		}
+		s.colours[key(code)] = c
 	}
-	return Colours[i%len(Colours)]
+	return s
+}
+
+// Colour returns the colour of type code, [Unknown] for a code outside the
+// scheme.
+func (s Scheme) Colour(code string) RGB {
+	if c, ok := s.colours[key(code)]; ok {
+		return c
+	}
+	return Unknown
 }

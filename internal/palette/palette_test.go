@@ -3,33 +3,48 @@ package palette
 import (
 	"math"
 	"testing"
+
+	"corvane/internal/visual"
 )
 
-func TestColourByVocabularyOrder(t *testing.T) {
+// A vocabulary known only by its codes takes the visual language's default
+// styles in sorted code order, so a 3D scene colours a type as the nets do.
+func TestNewFollowsTheVisualDefaults(t *testing.T) {
 	s := New([]string{"VN", "jn", "BD", "JN", "FLT"})
 	// Sorted distinct codes: BD, FLT, JN, VN.
-	want := map[string]RGB{"BD": Colours[0], "flt": Colours[1], " JN ": Colours[2], "VN": Colours[3]}
-	for code, c := range want {
-		if got := s.Colour(code); got != c {
-			t.Errorf("Colour(%q) = %v, want %v", code, got, c)
+	for i, code := range []string{"BD", "flt", " JN ", "VN"} {
+		want, _ := ParseHex(visual.Pair(i).Colour)
+		if got := s.Colour(code); got != want {
+			t.Errorf("Colour(%q) = %v, want %v (visual.Pair(%d))", code, got, want, i)
 		}
 	}
 	if got := s.Colour("SH"); got != Unknown {
 		t.Errorf("a code outside the vocabulary gets %v, want Unknown", got)
 	}
-	// Past the palette's length the colours repeat.
-	many := make([]string, len(Colours)+1)
-	for i := range many {
-		many[i] = string(rune('A' + i))
+}
+
+// Stored styles win: a project that chose a colour sees it in 3D too.
+func TestFromStyles(t *testing.T) {
+	s := FromStyles(map[string]visual.Style{"JN": {Colour: "#123456", Mark: "circle"}, "BD": {Colour: "bad"}})
+	if got := s.Colour("jn"); got != (RGB{0x12, 0x34, 0x56}) {
+		t.Errorf("stored colour: %v", got)
 	}
-	if got := New(many).Colour(many[len(Colours)]); got != Colours[0] {
-		t.Errorf("colour %d = %v, want the first colour again", len(Colours), got)
+	if got := s.Colour("BD"); got != Unknown {
+		t.Errorf("unreadable colour: %v, want Unknown", got)
 	}
 }
 
 func TestHex(t *testing.T) {
 	if got := (RGB{0xE6, 0x9F, 0x00}).Hex(); got != "#e69f00" {
 		t.Errorf("Hex = %s", got)
+	}
+	if c, ok := ParseHex("#E69F00"); !ok || c != (RGB{0xE6, 0x9F, 0x00}) {
+		t.Errorf("ParseHex = %v %v", c, ok)
+	}
+	for _, bad := range []string{"", "E69F00", "#E69F0", "#GGGGGG"} {
+		if _, ok := ParseHex(bad); ok {
+			t.Errorf("ParseHex(%q) accepted", bad)
+		}
 	}
 }
 

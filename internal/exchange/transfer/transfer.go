@@ -28,6 +28,7 @@ import (
 	"corvane/internal/exchange/gltf"
 	"corvane/internal/northref"
 	"corvane/internal/palette"
+	"corvane/internal/visual"
 )
 
 // Hole is one hole of the programme as recorded, with the path its hole
@@ -52,11 +53,14 @@ type Hole struct {
 type Programme struct {
 	// Name of the project (AGS4 PROJ_ID and PROJ_NAME).
 	Name string
-	// Types is the vocabulary of structure type codes that colours are given
-	// to (palette.New); the codes of the structures when the caller has no
-	// vocabulary.
+	// Types is the vocabulary of structure type codes; the codes of the
+	// structures when the caller has no vocabulary.
 	Types []string
-	Holes []Hole
+	// Styles are the project's stored type styles (code -> style); nil
+	// gives Types the visual language's defaults in code order
+	// (palette.New), as a file with no vocabulary gets them.
+	Styles map[string]visual.Style
+	Holes  []Hole
 	// Structures are the measurements with a plane and a position.
 	Structures []exchange.Structure
 	// Skipped counts the measurements left out: no dip direction (a
@@ -155,6 +159,15 @@ type SceneOptions struct {
 	DiscRadius float64
 }
 
+// colours is the one type colour scheme of p's scene: its stored styles,
+// or the defaults of its vocabulary.
+func (p *Programme) colours() palette.Scheme {
+	if p.Styles != nil {
+		return palette.FromStyles(p.Styles)
+	}
+	return palette.New(p.Types)
+}
+
 func (p *Programme) scene(o SceneOptions) ([]exchange.Trace, gltf.Options, error) {
 	if err := p.Check(); err != nil {
 		return nil, gltf.Options{}, err
@@ -163,7 +176,7 @@ func (p *Programme) scene(o SceneOptions) ([]exchange.Trace, gltf.Options, error
 	if err != nil {
 		return nil, gltf.Options{}, err
 	}
-	g := gltf.Options{Origin: gltf.OriginOf(traces, p.Structures), DiscRadius: o.DiscRadius, Colours: palette.New(p.Types)}
+	g := gltf.Options{Origin: gltf.OriginOf(traces, p.Structures), DiscRadius: o.DiscRadius, Colours: p.colours()}
 	if o.Origin != nil {
 		g.Origin.X, g.Origin.Y, g.Origin.Z = o.Origin[0], o.Origin[1], o.Origin[2]
 	}
