@@ -7,8 +7,11 @@ package cli
 
 import (
 	"context"
+	"errors"
+	"flag"
 	"fmt"
 	"io"
+	"runtime/debug"
 	"sort"
 )
 
@@ -47,11 +50,20 @@ func register(c command) {
 // process exit code.
 func Main(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io.Writer, getenv func(string) string) int {
 	env := &Env{Stdin: stdin, Stdout: stdout, Stderr: stderr, Getenv: getenv}
-	if len(args) == 0 || args[0] == "help" || args[0] == "-h" || args[0] == "--help" {
+	if len(args) == 0 || args[0] == "help" || isHelp(args[0]) {
+		if len(args) == 2 && args[0] == "help" {
+			if _, ok := commands[args[1]]; ok {
+				return Main(ctx, []string{args[1], "--help"}, stdin, stdout, stderr, getenv)
+			}
+		}
 		usage(stdout)
 		if len(args) == 0 {
 			return ExitUsage
 		}
+		return ExitOK
+	}
+	if args[0] == "--version" || args[0] == "-version" || args[0] == "version" {
+		fmt.Fprintln(stdout, "corvane", Version())
 		return ExitOK
 	}
 	c, ok := commands[args[0]]
@@ -65,7 +77,8 @@ func Main(ctx context.Context, args []string, stdin io.Reader, stdout, stderr io
 
 func usage(w io.Writer) {
 	fmt.Fprintln(w, "corvane: oriented drill core, from core angles to true orientations.")
-	fmt.Fprintln(w, "\nUsage: corvane COMMAND [options]   (corvane COMMAND -h for its options)")
+	fmt.Fprintln(w, "\nUsage: corvane COMMAND [options]   (corvane COMMAND --help for its options)")
+	fmt.Fprintln(w, "       corvane --version")
 	fmt.Fprintln(w, "\nCommands:")
 	names := make([]string, 0, len(commands))
 	for n := range commands {
@@ -75,4 +88,74 @@ func usage(w io.Writer) {
 	for _, n := range names {
 		fmt.Fprintf(w, "  %-12s %s\n", n, commands[n].summary)
 	}
+}
+
+// version is the release, set at link time:
+//
+//	go build -ldflags "-X corvane/internal/cli.version=v1.4.0" ./cmd/corvane
+var version string
+
+// Version is the version corvane reports: the one set at link time, else the
+// module version the binary was installed at (go install corvane/cmd/corvane@v...),
+// else the source revision recorded by the build (builds with VCS stamping),
+// else "devel".
+func Version() string {
+	if version != "" {
+		return version
+	}
+	bi, ok := debug.ReadBuildInfo()
+	if !ok {
+		return "devel"
+	}
+	if v := bi.Main.Version; v != "" && v != "(devel)" {
+		return v
+	}
+	var rev, modified string
+	for _, s := range bi.Settings {
+		switch s.Key {
+		case "vcs.revision":
+			rev = s.Value
+		case "vcs.modified":
+			modified = s.Value
+		}
+	}
+	if rev != "" {
+		if len(rev) > 12 {
+			rev = rev[:12]
+		}
+		if modified == "true" {
+			rev += "+modified"
+		}
+		return "devel " + rev
+	}
+	return "devel"
+}
+
+func isHelp(a string) bool { return a == "-h" || a == "-help" || a == "--help" }
+
+// flagSetMade, when set (by tests), sees every flag set a subcommand makes,
+// so a test can check that --help documents each flag of every command.
+var flagSetMade func(*flag.FlagSet)
+
+// newFlagSet is the flag set of a subcommand: errors are returned, and
+// messages go to the command's standard error.
+func newFlagSet(env *Env, name string) *flag.FlagSet {
+	fs := flag.NewFlagSet(name, flag.ContinueOnError)
+	fs.SetOutput(env.Stderr)
+	if flagSetMade != nil {
+		flagSetMade(fs)
+	}
+	return fs
+}
+
+// parseFlags parses args into fs. done is true, with the exit code, when the
+// command must stop: 0 after --help (the usage was printed), 2 after a bad flag.
+func parseFlags(fs *flag.FlagSet, args []string) (code int, done bool) {
+	if err := fs.Parse(args); err != nil {
+		if errors.Is(err, flag.ErrHelp) {
+			return ExitOK, true
+		}
+		return ExitUsage, true
+	}
+	return ExitOK, false
 }

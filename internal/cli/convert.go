@@ -157,8 +157,7 @@ func loadHoles(collars, surveys string, opt convert.Options) ([]csvio.CollarRow,
 }
 
 func runConvert(ctx context.Context, env *Env, args []string) int {
-	fs := flag.NewFlagSet("convert", flag.ContinueOnError)
-	fs.SetOutput(env.Stderr)
+	fs := newFlagSet(env, "convert")
 	fs.Usage = func() {
 		fmt.Fprint(env.Stderr, convertUsage)
 		fs.PrintDefaults()

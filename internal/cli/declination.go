@@ -66,14 +66,15 @@ Options:
 `
 
 func runDeclination(_ context.Context, env *Env, args []string) int {
-	fs := flag.NewFlagSet("declination", flag.ContinueOnError)
-	fs.SetOutput(env.Stderr)
+	fs := newFlagSet(env, "declination")
 	fs.Usage = func() {
 		fmt.Fprint(env.Stderr, declinationUsage)
 		fs.PrintDefaults()
 	}
-	lat := fs.Float64("lat", math.NaN(), "latitude, WGS 84 degrees, north positive")
-	lon := fs.Float64("lon", math.NaN(), "longitude, WGS 84 degrees, east positive")
+	// No default: the flags are required (checked below), so the help
+	// shows none.
+	lat := fs.Float64("lat", 0, "latitude, WGS 84 degrees, north positive (required without --in)")
+	lon := fs.Float64("lon", 0, "longitude, WGS 84 degrees, east positive (required without --in)")
 	hkm := fs.Float64("height-km", 0, "height above the WGS 84 ellipsoid, km")
 	date := fs.String("date", "", "date: YYYY-MM-DD or decimal year")
 	zone := fs.String("utm-zone", "", "UTM zone for grid convergence and scale, e.g. 50S")

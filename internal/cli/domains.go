@@ -3,7 +3,6 @@ package cli
 import (
 	"context"
 	"errors"
-	"flag"
 	"fmt"
 
 	"corvane/internal/fabric"
@@ -42,8 +41,7 @@ Options:
 `
 
 func runDomains(_ context.Context, env *Env, args []string) int {
-	fs := flag.NewFlagSet("domains", flag.ContinueOnError)
-	fs.SetOutput(env.Stderr)
+	fs := newFlagSet(env, "domains")
 	fs.Usage = func() {
 		fmt.Fprint(env.Stderr, domainsUsage)
 		fs.PrintDefaults()

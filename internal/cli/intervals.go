@@ -2,7 +2,6 @@ package cli
 
 import (
 	"context"
-	"flag"
 	"fmt"
 
 	"corvane/internal/csvio"
@@ -83,8 +82,7 @@ func readIntervalsFile(env *Env, path, collars string) ([]csvio.IntervalRow, err
 }
 
 func runIntervals(_ context.Context, env *Env, args []string) int {
-	fs := flag.NewFlagSet("intervals", flag.ContinueOnError)
-	fs.SetOutput(env.Stderr)
+	fs := newFlagSet(env, "intervals")
 	fs.Usage = func() {
 		fmt.Fprint(env.Stderr, intervalsUsage)
 		fs.PrintDefaults()

@@ -26,27 +26,28 @@ func dbFlag(fs *flag.FlagSet, env *Env) *string {
 }
 
 func runMigrate(ctx context.Context, env *Env, args []string) int {
-	fs := flag.NewFlagSet("migrate", flag.ContinueOnError)
-	fs.SetOutput(env.Stderr)
+	fs := newFlagSet(env, "migrate")
 	fs.Usage = func() {
-		fmt.Fprintln(env.Stderr, "Usage: corvane migrate up|down|force VERSION|version [--db URL] [--steps N] [--all --yes]")
-		fmt.Fprintln(env.Stderr, "  up             apply every pending migration")
-		fmt.Fprintln(env.Stderr, "  down           roll back one migration (--steps N for N; --all --yes for every one,")
-		fmt.Fprintln(env.Stderr, "                 which drops every table and all data)")
-		fmt.Fprintln(env.Stderr, "  force VERSION  mark a dirty schema, repaired by hand, as clean at VERSION (0: none)")
-		fmt.Fprintln(env.Stderr, "  version        print the schema version")
+		w := fs.Output()
+		fmt.Fprintln(w, "Usage: corvane migrate up|down|force VERSION|version [--db URL] [--steps N] [--all --yes]")
+		fmt.Fprintln(w, "\nMoves the database schema (corvane serve applies pending migrations itself at start).")
+		fmt.Fprintln(w, "  up             apply every pending migration")
+		fmt.Fprintln(w, "  down           roll back one migration (--steps N for N; --all --yes for every one,")
+		fmt.Fprintln(w, "                 which drops every table and all data)")
+		fmt.Fprintln(w, "  force VERSION  mark a dirty schema, repaired by hand, as clean at VERSION (0: none)")
+		fmt.Fprintln(w, "  version        print the schema version")
+		fmt.Fprintln(w, "\nOptions:")
 		fs.PrintDefaults()
 	}
-	if len(args) == 0 || strings.HasPrefix(args[0], "-") {
-		fs.Usage()
-		return ExitUsage
+	action := ""
+	if len(args) > 0 && !strings.HasPrefix(args[0], "-") {
+		action, args = args[0], args[1:]
 	}
-	action := args[0]
 	db := dbFlag(fs, env)
 	all := fs.Bool("all", false, "down: roll back every migration (needs --yes)")
 	yes := fs.Bool("yes", false, "down --all: yes, drop every table and all data")
 	steps := fs.Int("steps", 1, "down: number of migrations to roll back")
-	rest := args[1:]
+	rest := args
 	var force uint64
 	if action == "force" {
 		if len(rest) == 0 || strings.HasPrefix(rest[0], "-") {
@@ -60,7 +61,11 @@ func runMigrate(ctx context.Context, env *Env, args []string) int {
 		}
 		force, rest = n, rest[1:]
 	}
-	if err := fs.Parse(rest); err != nil {
+	if code, done := parseFlags(fs, rest); done {
+		return code
+	}
+	if action == "" {
+		fs.Usage()
 		return ExitUsage
 	}
 	if fs.NArg() > 0 {

@@ -3,7 +3,6 @@ package cli
 import (
 	"context"
 	"errors"
-	"flag"
 	"fmt"
 	"io"
 	"path/filepath"
@@ -42,8 +41,7 @@ Options:
 `
 
 func runNet(_ context.Context, env *Env, args []string) int {
-	fs := flag.NewFlagSet("net", flag.ContinueOnError)
-	fs.SetOutput(env.Stderr)
+	fs := newFlagSet(env, "net")
 	fs.Usage = func() {
 		fmt.Fprint(env.Stderr, netUsage)
 		fs.PrintDefaults()

@@ -93,8 +93,7 @@ func (z *zoneFlags) Set(s string) error {
 }
 
 func runQA(_ context.Context, env *Env, args []string) int {
-	fs := flag.NewFlagSet("qa", flag.ContinueOnError)
-	fs.SetOutput(env.Stderr)
+	fs := newFlagSet(env, "qa")
 	fs.Usage = func() {
 		fmt.Fprint(env.Stderr, qaUsage)
 		fs.PrintDefaults()
@@ -112,8 +111,9 @@ func runQA(_ context.Context, env *Env, args []string) int {
 	refLine := fs.String("reference-line", "bottom", "orientation line: bottom or top of hole")
 	betaApex := fs.String("beta-apex", "downhole", "beta measured to the downhole or uphole apex")
 	outRef := fs.String("output-reference", "grid", "north reference of the checks: grid or true")
-	decl := fs.Float64("declination", math.NaN(), "magnetic declination for every hole, degrees east (collar column declination wins)")
-	conv := fs.Float64("grid-convergence", math.NaN(), "grid convergence for every hole, degrees (collar column grid_convergence wins)")
+	var decl, conv convert.Given
+	fs.Var(floatFlag{&decl}, "declination", "magnetic declination for every hole, degrees east (collar column declination wins)")
+	fs.Var(floatFlag{&conv}, "grid-convergence", "grid convergence for every hole, degrees (collar column grid_convergence wins)")
 	feet := fs.Bool("feet", false, "depths in feet: dogleg severity per 100 ft")
 	var zones zoneFlags
 	fs.Var(&zones, "magnetic-zone", "HOLE:FROM-TO where magnetic surveys are unreliable (repeatable)")
@@ -187,7 +187,7 @@ func runQA(_ context.Context, env *Env, args []string) int {
 		return ExitUsage
 	}
 
-	in, rejected, err := readQAInput(*collars, *surveys, *structures, *runsF, *picks, *outRef, *decl, *conv, *feet)
+	in, rejected, err := readQAInput(*collars, *surveys, *structures, *runsF, *picks, *outRef, givenOrNaN(decl), givenOrNaN(conv), *feet)
 	if err != nil {
 		csvio.Report(env.Stderr, err)
 		return ExitUsage
@@ -350,4 +350,12 @@ func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl,
 			Type: cell(row.Record, iType), Logger: cell(row.Record, iLogger), Line: row.Line})
 	}
 	return in, rejected, nil
+}
+
+// givenOrNaN is a correction given on the command line, or NaN (not given).
+func givenOrNaN(g convert.Given) float64 {
+	if !g.Set {
+		return math.NaN()
+	}
+	return g.Value
 }

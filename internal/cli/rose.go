@@ -3,7 +3,6 @@ package cli
 import (
 	"context"
 	"errors"
-	"flag"
 	"fmt"
 	"io"
 	"path/filepath"
@@ -35,8 +34,7 @@ Options:
 `
 
 func runRose(_ context.Context, env *Env, args []string) int {
-	fs := flag.NewFlagSet("rose", flag.ContinueOnError)
-	fs.SetOutput(env.Stderr)
+	fs := newFlagSet(env, "rose")
 	fs.Usage = func() {
 		fmt.Fprint(env.Stderr, roseUsage)
 		fs.PrintDefaults()

@@ -24,16 +24,29 @@ func init() {
 	register(command{name: "serve", summary: "run the HTTP service (add --demo for a demonstration programme)", run: runServe})
 }
 
+const serveUsage = `Usage: corvane serve [--addr host:port] [--db postgres://...|file.db] [--demo] [options]
+
+Runs the HTTP service: the API under /v1 (every request needs a token), the web page
+at /, and /healthz, /readyz, /metrics. It applies pending schema migrations at start,
+prints the URL it listens on, and stops cleanly on Ctrl-C or SIGTERM.
+
+--demo loads the fictional demonstration programme and prints a fresh admin token
+for it. Without --demo, make a token first with corvane token create (see README,
+"First hour"). Every option can also be set by the environment variable named
+beside it; flags win.
+
+Options:
+`
+
 func runServe(ctx context.Context, env *Env, args []string) int {
 	cfg, err := config.FromEnv(env.Getenv)
 	if err != nil {
 		fmt.Fprintln(env.Stderr, "corvane serve:", err)
 		return ExitUsage
 	}
-	fs := flag.NewFlagSet("serve", flag.ContinueOnError)
-	fs.SetOutput(env.Stderr)
+	fs := newFlagSet(env, "serve")
 	fs.Usage = func() {
-		fmt.Fprintln(env.Stderr, "Usage: corvane serve [--addr host:port] [--db postgres://...|file.db] [--demo] [options]")
+		fmt.Fprint(fs.Output(), serveUsage)
 		fs.PrintDefaults()
 	}
 	cfg.Bind(fs)

@@ -2,7 +2,6 @@ package cli
 
 import (
 	"context"
-	"flag"
 	"fmt"
 	"path/filepath"
 
@@ -53,8 +52,7 @@ Options:
 `
 
 func runSlopeCheck(_ context.Context, env *Env, args []string) int {
-	fs := flag.NewFlagSet("slope-check", flag.ContinueOnError)
-	fs.SetOutput(env.Stderr)
+	fs := newFlagSet(env, "slope-check")
 	fs.Usage = func() {
 		fmt.Fprint(env.Stderr, slopeCheckUsage)
 		fs.PrintDefaults()

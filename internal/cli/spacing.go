@@ -2,7 +2,6 @@ package cli
 
 import (
 	"context"
-	"flag"
 	"fmt"
 	"math"
 	"path/filepath"
@@ -82,8 +81,7 @@ func (f *capFlag) Set(s string) error {
 }
 
 func runSpacing(_ context.Context, env *Env, args []string) int {
-	fs := flag.NewFlagSet("spacing", flag.ContinueOnError)
-	fs.SetOutput(env.Stderr)
+	fs := newFlagSet(env, "spacing")
 	fs.Usage = func() {
 		fmt.Fprint(env.Stderr, spacingUsage)
 		fs.PrintDefaults()

@@ -184,8 +184,7 @@ func orientExit(oi *orientInput) int {
 }
 
 func runStats(_ context.Context, env *Env, args []string) int {
-	fs := flag.NewFlagSet("stats", flag.ContinueOnError)
-	fs.SetOutput(env.Stderr)
+	fs := newFlagSet(env, "stats")
 	fs.Usage = func() {
 		fmt.Fprint(env.Stderr, statsUsage)
 		fs.PrintDefaults()

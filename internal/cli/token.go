@@ -2,7 +2,6 @@ package cli
 
 import (
 	"context"
-	"flag"
 	"fmt"
 	"strconv"
 	"strings"
@@ -34,23 +33,13 @@ Options:
 `
 
 func runToken(ctx context.Context, env *Env, args []string) int {
-	usage := func() int {
-		fmt.Fprint(env.Stderr, tokenUsage)
-		fmt.Fprintln(env.Stderr, "  --db, --project, --role, --name, --id (see above)")
-		return ExitUsage
+	action := ""
+	if len(args) > 0 && !strings.HasPrefix(args[0], "-") {
+		action, args = args[0], args[1:]
 	}
-	if len(args) == 0 {
-		return usage()
-	}
-	action := args[0]
-	if action != "create" && action != "list" && action != "revoke" {
-		fmt.Fprintf(env.Stderr, "corvane token: unknown action %q (want create, list or revoke)\n", action)
-		return usage()
-	}
-	fs := flag.NewFlagSet("token "+action, flag.ContinueOnError)
-	fs.SetOutput(env.Stderr)
+	fs := newFlagSet(env, strings.TrimSpace("token "+action))
 	fs.Usage = func() {
-		fmt.Fprint(env.Stderr, tokenUsage)
+		fmt.Fprint(fs.Output(), tokenUsage)
 		fs.PrintDefaults()
 	}
 	db := dbFlag(fs, env)
@@ -58,7 +47,17 @@ func runToken(ctx context.Context, env *Env, args []string) int {
 	role := fs.String("role", "", "read, log or admin (create)")
 	name := fs.String("name", "", "who or what the token is for, e.g. \"rig 2 logger\" (create; revoke by name)")
 	id := fs.Int64("id", 0, "token id, as token list shows it (revoke)")
-	if err := fs.Parse(args[1:]); err != nil {
+	if code, done := parseFlags(fs, args); done {
+		return code
+	}
+	switch action {
+	case "create", "list", "revoke":
+	case "":
+		fs.Usage()
+		return ExitUsage
+	default:
+		fmt.Fprintf(env.Stderr, "corvane token: unknown action %q (want create, list or revoke)\n", action)
+		fs.Usage()
 		return ExitUsage
 	}
 	fail := func(code int, format string, a ...any) int {
