@@ -154,6 +154,10 @@ func serve(ctx context.Context, env *Env, cfg config.Config, log *slog.Logger) e
 		if err != nil {
 			return err
 		}
+	} else if empty, err := svc.Unconfigured(ctx); err != nil {
+		return fmt.Errorf("store: %w", err)
+	} else if empty {
+		demoLine = firstTokenHint(cfg.DatabaseURL)
 	}
 	h := httpapi.New(httpapi.Options{
 		Service:         svc,
@@ -172,6 +176,18 @@ func serve(ctx context.Context, env *Env, cfg config.Config, log *slog.Logger) e
 			fmt.Fprintln(env.Stdout, demoLine)
 		}
 	})
+}
+
+// firstTokenHint is what serve prints on a database with no project and no
+// site token: how to make the first token.
+func firstTokenHint(db string) string {
+	dbArg := ""
+	if db != config.DefaultDatabase {
+		dbArg = " --db " + store.Redact(db)
+	}
+	return "corvane: the database is empty; make the first (site admin) token with\n" +
+		"  corvane token create --project all --role admin --name \"first admin\"" + dbArg + "\n" +
+		"then create a project (POST /v1/projects), or start with --demo to try the demonstration programme"
 }
 
 // DemoTokenName is the name of the admin token serve --demo prints.

@@ -273,3 +273,33 @@ func TestServeRefusesBadSettings(t *testing.T) {
 		}
 	}
 }
+
+// TestServeEmptyHint starts serve on a fresh store without --demo: it prints
+// how to make the first token, and that command, run as printed, makes a
+// site admin token that can create a project.
+func TestServeEmptyHint(t *testing.T) {
+	db := filepath.Join(t.TempDir(), "corvane.db")
+	s := start(t, db)
+	out := s.out.String()
+	for i := 0; i < 50 && !strings.Contains(out, "first admin"); i++ {
+		time.Sleep(20 * time.Millisecond) // the hint follows the URL line
+		out = s.out.String()
+	}
+	if !strings.Contains(out, "the database is empty") || !strings.Contains(out, "corvane token create --project all --role admin") {
+		t.Fatalf("no first-token hint on an empty database:\n%s", out)
+	}
+	cmd := exec.Command(binary, "token", "create", "--project", "all", "--role", "admin", "--name", "first admin", "--db", db)
+	secret, err := cmd.Output()
+	if err != nil {
+		t.Fatalf("token create: %v", err)
+	}
+	s.Token = strings.TrimSpace(string(secret))
+	s.mustJSON(t, 201, "POST", "/v1/projects", map[string]any{"name": "Firstlight"}, nil)
+	s.stop(t)
+	s2 := start(t, db)
+	time.Sleep(200 * time.Millisecond)
+	if strings.Contains(s2.out.String(), "the database is empty") {
+		t.Errorf("the hint is printed on a database with a project and a token:\n%s", s2.out)
+	}
+	s2.stop(t)
+}

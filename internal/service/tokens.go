@@ -171,3 +171,15 @@ func (s *Service) RevokeTokensNamed(ctx context.Context, projectID int64, name s
 	})
 	return gone, err
 }
+
+// Unconfigured reports whether the store holds no project and no site token:
+// a fresh database, where the first step is a site admin token made on the
+// command line.
+func (s *Service) Unconfigured(ctx context.Context) (bool, error) {
+	ps, err := s.store.ListProjects(ctx, domain.Page{Limit: 1})
+	if err != nil || len(ps) > 0 {
+		return false, err
+	}
+	ts, err := s.store.ListTokens(ctx, domain.AllProjects)
+	return err == nil && len(ts) == 0, err
+}
