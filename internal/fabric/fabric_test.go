@@ -100,6 +100,29 @@ func TestStatsExactGeometry(t *testing.T) {
 	}
 }
 
+// TestAutoSetNames: automatic sets are lettered A, B, C (not S1, S2, which
+// the trade reads as bedding and foliations).
+func TestAutoSetNames(t *testing.T) {
+	var rows []Row
+	for _, dd := range []float64{10, 12, 14, 130, 132, 134, 250, 252, 254} {
+		rows = append(rows, Row{HasPlane: true, Plane: geom.Plane{Dip: 60, DipDirection: dd}})
+	}
+	rep, err := Stats(Input{Rows: rows}, Options{Sets: Sets{Auto: 3, Seed: 1}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var names []string
+	for _, st := range rep.Planes.Sets {
+		names = append(names, st.Name)
+	}
+	if strings.Join(names, ",") != "A,B,C" {
+		t.Errorf("automatic set names %v, want A,B,C", names)
+	}
+	if AutoSetName(MaxAutoSets-1) != string(rune('A'+MaxAutoSets-1)) {
+		t.Errorf("last automatic set name %q", AutoSetName(MaxAutoSets-1))
+	}
+}
+
 func isOption(err error, name string) bool {
 	var oe *OptionError
 	return errors.As(err, &oe) && oe.Option == name

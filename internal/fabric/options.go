@@ -54,6 +54,16 @@ func ParseWeighting(s string) (Weighting, error) {
 // MaxAutoSets bounds the number of automatic sets.
 const MaxAutoSets = 20
 
+// AutoSetName is the label of the automatic set with index j (from 0): A, B,
+// C, ... Letters, not S1, S2, ..., which the trade reads as bedding and
+// foliations. The CLI, the API and the page all show these labels.
+func AutoSetName(j int) string {
+	if j < 0 || j >= MaxAutoSets || MaxAutoSets > 26 {
+		panic(fmt.Sprintf("fabric: automatic set index %d out of range", j))
+	}
+	return string(rune('A' + j))
+}
+
 // Sets says how measurements are grouped into sets.
 type Sets struct {
 	Auto    int              // > 0: that many sets by k-means on axes

@@ -89,7 +89,7 @@ func (g *group) assignSets(rows []Row, s Sets) error {
 		}
 		g.assign = c.Assign
 		for j := 0; j < s.Auto; j++ {
-			g.setNames = append(g.setNames, fmt.Sprintf("S%d", j+1))
+			g.setNames = append(g.setNames, AutoSetName(j))
 		}
 		g.method = dirstat.ClusterMethod
 	case s.ByType:
