@@ -144,12 +144,11 @@ func loadHoles(collars, surveys string, opt convert.Options) ([]csvio.CollarRow,
 		return nil, nil, nil, err
 	}
 	defer sf.Close()
-	crows, err := csvio.ReadCollars(cf, collars)
-	if err != nil {
-		return nil, nil, nil, err
-	}
-	srows, err := csvio.ReadSurveys(sf, surveys)
-	if err != nil {
+	// Both files are read whatever the first holds, so that the problems
+	// of both are reported at once (errors.Join; see reportAll).
+	crows, cerr := csvio.ReadCollars(cf, collars)
+	srows, serr := csvio.ReadSurveys(sf, surveys)
+	if err := errors.Join(cerr, serr); err != nil {
 		return nil, nil, nil, err
 	}
 	holes, err := convert.Build(crows, srows, opt)
@@ -205,8 +204,7 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 
 	_, srows, holes, err := loadHoles(*collars, *surveys, opt)
 	if err != nil {
-		fmt.Fprint(env.Stderr, "corvane convert: ")
-		csvio.Report(env.Stderr, err)
+		reportAll(env, "convert", err)
 		return ExitUsage
 	}
 	var in io.Reader = env.Stdin
@@ -242,8 +240,7 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 	sum, err := holes.Convert(ctx, in, tmp)
 	if err != nil {
 		tmp.Close()
-		fmt.Fprint(env.Stderr, "corvane convert: ")
-		csvio.Report(env.Stderr, err)
+		reportAll(env, "convert", err)
 		return ExitUsage
 	}
 	if *summary != "" {
@@ -290,4 +287,21 @@ func holeSummary(env *Env, file string, perHole []convert.HoleRows, holes *conve
 		return ExitUsage
 	}
 	return ExitOK
+}
+
+// reportAll writes each non-nil error as "corvane CMD: ..." with its row
+// problems, and says whether there was any.
+// Errors joined with errors.Join are reported one by one.
+func reportAll(env *Env, cmd string, errs ...error) bool {
+	failed := false
+	for _, err := range errs {
+		if j, ok := err.(interface{ Unwrap() []error }); ok {
+			failed = reportAll(env, cmd, j.Unwrap()...) || failed
+		} else if err != nil {
+			failed = true
+			fmt.Fprintf(env.Stderr, "corvane %s: ", cmd)
+			csvio.Report(env.Stderr, err)
+		}
+	}
+	return failed
 }

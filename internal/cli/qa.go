@@ -189,7 +189,7 @@ func runQA(_ context.Context, env *Env, args []string) int {
 
 	in, rejected, err := readQAInput(*collars, *surveys, *structures, *runsF, *picks, *outRef, givenOrNaN(decl), givenOrNaN(conv), *feet)
 	if err != nil {
-		csvio.Report(env.Stderr, err)
+		reportAll(env, "qa", err)
 		return ExitUsage
 	}
 	in.MagneticZones = zones
@@ -231,20 +231,23 @@ func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl,
 		}
 		return f, nil
 	}
-	f, err := open(collars)
-	if err != nil {
-		return in, 0, err
+	// The three tables are read before any is used, so that the problems of
+	// every file are reported at once.
+	readTable := func(name string, read func(io.Reader, string) error) error {
+		f, err := open(name)
+		if err != nil {
+			return err
+		}
+		defer f.Close()
+		return read(f, name)
 	}
-	crows, err := csvio.ReadCollars(f, collars)
-	f.Close()
-	if err != nil {
-		return in, 0, err
-	}
-	if f, err = open(surveys); err != nil {
-		return in, 0, err
-	}
-	srows, err := csvio.ReadSurveys(f, surveys)
-	f.Close()
+	var crows []csvio.CollarRow
+	var srows []csvio.SurveyRow
+	var rrows []csvio.RunRow
+	err = errors.Join(
+		readTable(collars, func(r io.Reader, n string) (err error) { crows, err = csvio.ReadCollars(r, n); return }),
+		readTable(surveys, func(r io.Reader, n string) (err error) { srows, err = csvio.ReadSurveys(r, n); return }),
+		readTable(runs, func(r io.Reader, n string) (err error) { rrows, err = csvio.ReadRuns(r, n); return }))
 	if err != nil {
 		return in, 0, err
 	}
@@ -286,14 +289,6 @@ func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl,
 		}
 	}
 
-	if f, err = open(runs); err != nil {
-		return in, 0, err
-	}
-	rrows, err := csvio.ReadRuns(f, runs)
-	f.Close()
-	if err != nil {
-		return in, 0, err
-	}
 	for _, r := range rrows {
 		run := qa.OrientationRun{HoleID: r.HoleID, From: r.From, To: r.To, Confidence: r.Confidence, Line: r.Line}
 		if !math.IsNaN(r.Mismatch) {
@@ -304,7 +299,8 @@ func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl,
 	}
 
 	if picks != "" {
-		if f, err = open(picks); err != nil {
+		f, err := open(picks)
+		if err != nil {
 			return in, 0, err
 		}
 		prows, err := csvio.ReadPicks(f, picks)
@@ -317,7 +313,8 @@ func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl,
 		}
 	}
 
-	if f, err = open(structures); err != nil {
+	f, err := open(structures)
+	if err != nil {
 		return in, 0, err
 	}
 	defer f.Close()

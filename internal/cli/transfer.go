@@ -2,7 +2,6 @@ package cli
 
 import (
 	"context"
-	"flag"
 	"fmt"
 	"io"
 	"math"
@@ -63,8 +62,7 @@ Options:
 `
 
 func runTransfer(ctx context.Context, env *Env, args []string) int {
-	fs := flag.NewFlagSet("transfer", flag.ContinueOnError)
-	fs.SetOutput(env.Stderr)
+	fs := newFlagSet(env, "transfer")
 	fs.Usage = func() {
 		fmt.Fprint(env.Stderr, transferUsage)
 		fs.PrintDefaults()
@@ -108,8 +106,7 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 	// through the hole model).
 	crows, _, holes, err := loadHoles(*collars, *surveys, opt)
 	if err != nil {
-		fmt.Fprint(env.Stderr, "corvane transfer: ")
-		csvio.Report(env.Stderr, err)
+		reportAll(env, "transfer", err)
 		return ExitUsage
 	}
 	prog := transfer.Programme{Name: *project, TraceStep: *step, Feet: opt.Unit == desurvey.Feet}

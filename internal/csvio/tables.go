@@ -60,9 +60,6 @@ const (
 	RefMagnetic = "magnetic"
 )
 
-// maxProblems caps the row problems a whole-file reader collects.
-const maxProblems = 1000
-
 // Header is a parsed header line.
 type Header struct {
 	File  string   // file name used in messages
@@ -115,10 +112,18 @@ func readHeader(cr interface{ Read() ([]string, error) }, file string, required 
 		}
 		h.idx[k] = i
 	}
+	var missing []string
 	for _, c := range required {
 		if !h.Has(c) {
-			return nil, invalid(file, 1, c, "missing column %q (the header has %s)", c, strings.Join(h.Names, ", "))
+			missing = append(missing, c)
 		}
+	}
+	switch len(missing) {
+	case 0:
+	case 1:
+		return nil, invalid(file, 1, missing[0], "missing column %q (the header has %s)", missing[0], strings.Join(h.Names, ", "))
+	default:
+		return nil, invalid(file, 1, "", "missing columns %q (the header has %s)", missing, strings.Join(h.Names, ", "))
 	}
 	return h, nil
 }
@@ -136,34 +141,32 @@ func parseErr(file string, err error) *domain.Error {
 	return domain.Errorf(domain.Invalid, "reading: %w", err).At(domain.Location{File: file})
 }
 
-// collect gathers row problems of a whole-file reader.
+// collect gathers row problems of a whole-file reader: all of them,
+// identical ones summarised (see [domain.ProblemList]).
 type collect struct {
-	file     string
-	problems []*domain.Error
-	more     int
+	file string
+	pl   domain.ProblemList
 }
 
-func (c *collect) add(e *domain.Error) {
-	if len(c.problems) < maxProblems {
-		c.problems = append(c.problems, e)
-	} else {
-		c.more++
-	}
-}
+func (c *collect) add(e *domain.Error) { c.pl.Add(e) }
 
 // err returns nil when there were no problems, else one error listing them.
 func (c *collect) err(what string) error {
-	if len(c.problems) == 0 {
+	n := c.pl.Len()
+	if n == 0 {
 		return nil
 	}
-	n := len(c.problems) + c.more
-	e := &domain.Error{Kind: domain.Invalid, Loc: domain.Location{File: c.file}, Problems: c.problems}
-	if n == 1 {
-		first := c.problems[0]
-		e.Loc, e.Msg = first.Loc, first.Msg
+	ps := c.pl.Errors()
+	e := &domain.Error{Kind: domain.Invalid, Loc: domain.Location{File: c.file}, Problems: ps}
+	if len(ps) == 1 && c.pl.Unlisted() == 0 {
+		// One problem, or one summarised for all its rows.
+		e.Loc, e.Msg = ps[0].Loc, ps[0].Msg
 		return e
 	}
-	e.Msg = fmt.Sprintf("%d bad %s rows, the first at %s: %s", n, what, c.problems[0].Loc, c.problems[0].Msg)
+	e.Msg = fmt.Sprintf("%d bad %s rows", n, what)
+	if u := c.pl.Unlisted(); u > 0 {
+		e.Msg += fmt.Sprintf(" (%d further rows with other problems are not listed)", u)
+	}
 	return e
 }
 
@@ -172,11 +175,7 @@ func (c *collect) err(what string) error {
 func Report(w io.Writer, err error) {
 	var de *domain.Error
 	if errors.As(err, &de) && len(de.Problems) > 1 {
-		if de.Loc.File != "" {
-			fmt.Fprintf(w, "%d problems in %s:\n", len(de.Problems), de.Loc.File)
-		} else {
-			fmt.Fprintf(w, "%d problems:\n", len(de.Problems))
-		}
+		fmt.Fprintf(w, "%v:\n", de)
 		for _, p := range de.Problems {
 			fmt.Fprintf(w, "  %v\n", p)
 		}

@@ -26,9 +26,6 @@ const (
 	ImportMeasurements = "measurements" // hole_id, depth, alpha, beta, type [, gamma, apparent_thickness, comment, logged_by, logged_at]
 )
 
-// MaxReportedProblems bounds the row problems listed in one error.
-const MaxReportedProblems = 1000
-
 // importBatch is the number of measurement rows written per store call.
 const importBatch = 5000
 
@@ -78,8 +75,8 @@ func ImportRole(kind string) (domain.Role, error) {
 // Import reads a CSV file of one kind (or, for discontinuities, an AGS4
 // file whose DISC rows become measurements) into the project, all or nothing: when
 // any row is bad nothing is written and the Invalid error lists every bad row
-// (up to MaxReportedProblems) with its file, line, column and reason in
-// Problems. Collars and surveys need the admin role, runs and measurements
+// with its file, line, column and reason in Problems, identical problems
+// summarised with their count and lines (domain.ProblemList). Collars and surveys need the admin role, runs and measurements
 // the log role. Collars update holes of the same name; a survey file replaces
 // the whole survey set of each hole it names; runs and measurements are
 // added. One audit entry records each import.
@@ -191,27 +188,23 @@ func replay(prev domain.Idempotency, hash string) (ImportResult, error) {
 	return res, nil
 }
 
-// problems gathers row problems, keeping the first MaxReportedProblems.
+// problems gathers row problems: all of them, identical ones summarised
+// (see [domain.ProblemList]).
 type problems struct {
 	file string
-	list []*domain.Error
+	pl   domain.ProblemList
 	n    int
 }
 
 func (ps *problems) add(line int, column, format string, args ...any) {
-	ps.n++
-	if len(ps.list) < MaxReportedProblems {
-		e := domain.Errorf(domain.Invalid, format, args...)
-		e.Loc = domain.Location{File: ps.file, Line: line, Column: column}
-		ps.list = append(ps.list, e)
-	}
+	e := domain.Errorf(domain.Invalid, format, args...)
+	e.Loc = domain.Location{File: ps.file, Line: line, Column: column}
+	ps.addErr(e)
 }
 
 func (ps *problems) addErr(e *domain.Error) {
 	ps.n++
-	if len(ps.list) < MaxReportedProblems {
-		ps.list = append(ps.list, e)
-	}
+	ps.pl.Add(e)
 }
 
 // err returns the all-or-nothing error, or nil when there were no problems.
@@ -219,14 +212,11 @@ func (ps *problems) err() error {
 	if ps.n == 0 {
 		return nil
 	}
-	msg := fmt.Sprintf("%d bad rows; nothing was imported", ps.n)
-	if ps.n == 1 {
-		msg = "1 bad row; nothing was imported"
+	msg := domain.Plural(ps.n, "bad row") + "; nothing was imported"
+	if u := ps.pl.Unlisted(); u > 0 {
+		msg += fmt.Sprintf(" (%d rows with further kinds of problem are not listed)", u)
 	}
-	if ps.n > len(ps.list) {
-		msg += fmt.Sprintf(" (the first %d are listed)", len(ps.list))
-	}
-	return &domain.Error{Kind: domain.Invalid, Msg: msg, Loc: domain.Location{File: ps.file}, Problems: ps.list}
+	return &domain.Error{Kind: domain.Invalid, Msg: msg, Loc: domain.Location{File: ps.file}, Problems: ps.pl.Errors()}
 }
 
 // fileErr makes sure a reader's error names the file and is Invalid.

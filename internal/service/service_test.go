@@ -7,7 +7,6 @@ import (
 	"errors"
 	"math"
 	"path/filepath"
-	"slices"
 	"strconv"
 	"strings"
 	"testing"
@@ -439,28 +438,23 @@ TM001,abc,10,10,JN
 		t.Fatalf("a rejected file wrote rows: %d", n)
 	}
 
-	// Every row naming an unknown hole is reported, the second as the first.
-	for _, f := range []struct{ kind, body string }{
-		{"surveys", "hole_id,depth,azimuth,dip\nTM001,0,0,-60\nTM009,0,0,-60\nTM009,50,0,-60\n"},
-		{"runs", "hole_id,from,to,confidence\nTM009,0,3,good\nTM001,6,9,good\nTM009,3,6,good\n"},
+	// Every row naming an unknown hole is reported, the second as the first:
+	// identical problems as one, with their count and lines.
+	for _, f := range []struct{ kind, body, lines string }{
+		{"surveys", "hole_id,depth,azimuth,dip\nTM001,0,0,-60\nTM009,0,0,-60\nTM009,50,0,-60\n", "(lines 3-4)"},
+		{"runs", "hole_id,from,to,confidence\nTM009,0,3,good\nTM001,6,9,good\nTM009,3,6,good\n", "(lines 2, 4)"},
 	} {
 		_, err = doImport(t, s, ctx, p.ID, f.kind, f.body, false, "")
 		if !errors.As(err, &e) || e.Kind != domain.Invalid {
 			t.Fatalf("%s with an unknown hole: %v", f.kind, err)
 		}
-		var lines []int
-		for _, pr := range e.Problems {
-			if pr.Loc.Column != "hole_id" || !strings.Contains(pr.Msg, `"TM009"`) {
-				t.Errorf("%s problem at %+v: %s", f.kind, pr.Loc, pr.Msg)
-			}
-			lines = append(lines, pr.Loc.Line)
+		if len(e.Problems) != 1 {
+			t.Fatalf("%s: %d problems, want one summary: %v", f.kind, len(e.Problems), e.Problems)
 		}
-		want := []int{3, 4}
-		if f.kind == "runs" {
-			want = []int{2, 4}
-		}
-		if !slices.Equal(lines, want) {
-			t.Errorf("%s: problems on lines %v, want %v", f.kind, lines, want)
+		pr := e.Problems[0]
+		if pr.Loc.Column != "hole_id" || !strings.Contains(pr.Msg, `"TM009"`) || !strings.HasPrefix(pr.Msg, "2 rows: ") ||
+			!strings.HasSuffix(pr.Msg, f.lines) || !strings.HasPrefix(e.Msg, "2 bad rows") {
+			t.Errorf("%s: %s: problem at %+v: %s", f.kind, e.Msg, pr.Loc, pr.Msg)
 		}
 	}
 
