@@ -44,7 +44,7 @@ func doorsProgramme(t *testing.T) (srv *httptest.Server, token string, pid int64
 		t.Fatal(err)
 	}
 	// The lineation needs a line type of its own (a plane type refuses gamma).
-	if _, err := svc.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "lineation", Kind: "line"}); err != nil {
+	if _, _, err := svc.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "lineation", Kind: "line"}); err != nil {
 		t.Fatal(err)
 	}
 	g := 30.0

@@ -168,6 +168,31 @@ func checkOptRange(field string, v *float64, lo, hi float64) *Error {
 	return checkRange(field, *v, lo, hi)
 }
 
+// FindTypeCode finds code in a project's vocabulary. Type codes are matched
+// without regard to case, everywhere (imports, the API, filters, the
+// commands): "jn" is the vocabulary's "JN", and the vocabulary's spelling is
+// the one stored and shown. A project cannot hold two codes that differ only
+// in case.
+func FindTypeCode(vocab []TypeCode, code string) (TypeCode, bool) {
+	code = strings.TrimSpace(code)
+	for _, tc := range vocab {
+		if strings.EqualFold(tc.Code, code) {
+			return tc, true
+		}
+	}
+	return TypeCode{}, false
+}
+
+// UnknownTypeCode is the error for a code not in vocab, naming the codes
+// there are; field is the field or column that gave it.
+func UnknownTypeCode(field, code string, vocab []TypeCode) *Error {
+	codes := make([]string, len(vocab))
+	for i, tc := range vocab {
+		codes[i] = tc.Code
+	}
+	return FieldErr(field, "type %q is not in the project's vocabulary (%s)", code, strings.Join(codes, ", "))
+}
+
 // Normalize validates tc; Kind defaults to "plane".
 func (tc *TypeCode) Normalize() error {
 	tc.Code = strings.TrimSpace(tc.Code)

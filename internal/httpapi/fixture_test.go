@@ -174,7 +174,7 @@ func (f *fixture) project(name string, conventions map[string]any) int64 {
 	var p domain.Project
 	f.must(201, f.site, "POST", "/v1/projects", in, &p)
 	for _, tc := range []struct{ code, kind string }{{"JN", "plane"}, {"BD", "plane"}, {"LN", "line"}} {
-		f.must(200, f.site, "PUT", "/v1/projects/"+itoa(p.ID)+"/types/"+tc.code,
+		f.must(201, f.site, "PUT", "/v1/projects/"+itoa(p.ID)+"/types/"+tc.code,
 			map[string]string{"description": tc.code + " test type", "kind": tc.kind}, nil)
 	}
 	return p.ID

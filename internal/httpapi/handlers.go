@@ -161,10 +161,14 @@ func (s *Server) putType(c *gin.Context) {
 		fail(c, err)
 		return
 	}
-	tc, err := s.opt.Service.PutTypeCode(c.Request.Context(), pid,
+	tc, created, err := s.opt.Service.PutTypeCode(c.Request.Context(), pid,
 		domain.TypeCode{Code: c.Param("code"), Description: in.Description, Kind: in.Kind, Colour: in.Colour, Mark: in.Mark})
 	if err != nil {
 		fail(c, err)
+		return
+	}
+	if created {
+		c.JSON(http.StatusCreated, tc)
 		return
 	}
 	c.JSON(http.StatusOK, tc)

@@ -20,7 +20,7 @@ func TestConcurrentRetriesWriteOnce(t *testing.T) {
 func checkRetries(t *testing.T, s *service.Service, ctx context.Context) {
 	p := must(s.CreateProject(ctx, domain.Project{Name: "race"}))
 	for _, c := range []string{"BD", "JN"} {
-		must(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: c}))
+		mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: c}))
 	}
 	must(doImport(t, s, ctx, p.ID, "collars", collarsCSV, false, ""))
 	const callers = 6

@@ -22,7 +22,7 @@ func FuzzImportMeasurements(f *testing.F) {
 	s, ctx := newService(f)
 	p := must(s.CreateProject(ctx, domain.Project{Name: "fuzz"}))
 	for _, c := range []string{"BD", "JN"} {
-		must(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: c}))
+		mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: c}))
 	}
 	must(s.Import(ctx, p.ID, service.ImportRequest{Kind: "collars", Body: strings.NewReader(collarsCSV)}))
 	f.Fuzz(func(t *testing.T, body string) {

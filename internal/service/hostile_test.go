@@ -59,9 +59,9 @@ func checkTextRules(t *testing.T, s *service.Service, ctx context.Context) {
 		t.Fatalf("refused projects stored: %+v", l.Items)
 	}
 	p := must(s.CreateProject(ctx, domain.Project{Name: "text", Description: "tab\tallowed"}))
-	_, err = s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "BD", Description: "bed\x00ding"})
+	_, _, err = s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "BD", Description: "bed\x00ding"})
 	wantField(t, err, "description", "type description with NUL")
-	must(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "BD", Description: "bedding"}))
+	mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "BD", Description: "bedding"}))
 
 	hole := func(name, crs string) domain.Hole {
 		return domain.Hole{Name: name, Azimuth: 90, Dip: -60, FinalDepth: 100, CRS: crs}
@@ -154,7 +154,7 @@ func TestDepthRules(t *testing.T) {
 // every door: the use cases and the CSV imports. Issue item 7.
 func checkDepthRules(t *testing.T, s *service.Service, ctx context.Context) {
 	p := must(s.CreateProject(ctx, domain.Project{Name: "depths"}))
-	must(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "BD"}))
+	mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "BD"}))
 	h := must(s.CreateHole(ctx, p.ID, domain.Hole{Name: "DH1", Azimuth: 90, Dip: -60, FinalDepth: 200}))
 	must(s.PutSurvey(ctx, p.ID, h.ID, 0, domain.SurveySet{AzimuthRef: "grid", Stations: []domain.Station{{Depth: 0, Azimuth: 90, Dip: -60}, {Depth: 90, Azimuth: 91, Dip: -59}}}))
 	r := must(s.CreateRun(ctx, p.ID, h.ID, domain.Run{From: 100, To: 150}))

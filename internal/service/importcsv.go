@@ -436,7 +436,7 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 	if iType < 0 {
 		return &domain.Error{Kind: domain.Invalid, Msg: `missing column "type" (a code of the project's vocabulary)`, Loc: domain.Location{File: res.File, Line: 1}}
 	}
-	_, codes, err := vocabulary(ctx, st, p.ID)
+	vocab, err := st.ListTypeCodes(ctx, p.ID)
 	if err != nil {
 		return err
 	}
@@ -507,10 +507,12 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 			}
 			m.LoggedAt = t
 		}
-		if !codes[m.TypeCode] {
-			ps.add(r.Line, colType, "type %q is not in the project's vocabulary", m.TypeCode)
+		tc, ok := domain.FindTypeCode(vocab, m.TypeCode)
+		if !ok {
+			ps.addErr(domain.UnknownTypeCode("", m.TypeCode, vocab).At(domain.Location{File: res.File, Line: r.Line, Column: colType}))
 			continue
 		}
+		m.TypeCode = tc.Code
 		if err := m.Normalize(); err != nil {
 			var e *domain.Error
 			errors.As(err, &e)

@@ -2,8 +2,6 @@ package service
 
 import (
 	"context"
-	"slices"
-	"strings"
 	"time"
 
 	"corvane/internal/domain"
@@ -34,7 +32,21 @@ type MeasurementQuery struct {
 // filter resolves q's hole names into the store filter.
 func filter(ctx context.Context, st domain.Store, projectID int64, q MeasurementQuery) (domain.MeasurementFilter, error) {
 	f := domain.MeasurementFilter{ProjectID: projectID, MinDepth: q.MinDepth, MaxDepth: q.MaxDepth,
-		TypeCodes: q.Types, LoggedFrom: q.LoggedFrom, LoggedTo: q.LoggedTo}
+		LoggedFrom: q.LoggedFrom, LoggedTo: q.LoggedTo}
+	if len(q.Types) > 0 {
+		// An unknown type is an error, as an unknown hole is.
+		vocab, err := st.ListTypeCodes(ctx, projectID)
+		if err != nil {
+			return f, err
+		}
+		for _, code := range q.Types {
+			tc, ok := domain.FindTypeCode(vocab, code)
+			if !ok {
+				return f, domain.UnknownTypeCode("type", code, vocab)
+			}
+			f.TypeCodes = append(f.TypeCodes, tc.Code)
+		}
+	}
 	for _, name := range q.Holes {
 		h, err := st.GetHoleByName(ctx, projectID, name)
 		if domain.IsKind(err, domain.NotFound) {
@@ -59,15 +71,12 @@ func checkMeasurement(m *domain.Measurement, h domain.Hole, vocab []domain.TypeC
 	if m.Depth > h.FinalDepth {
 		return domain.FieldErr("depth", "depth %v is past the final depth %v of hole %s", m.Depth, h.FinalDepth, h.Name)
 	}
-	i := slices.IndexFunc(vocab, func(tc domain.TypeCode) bool { return tc.Code == m.TypeCode })
-	if i < 0 {
-		codes := make([]string, len(vocab))
-		for i, tc := range vocab {
-			codes[i] = tc.Code
-		}
-		return domain.FieldErr("type", "type %q is not in the project's vocabulary (%s)", m.TypeCode, strings.Join(codes, ", "))
+	tc, ok := domain.FindTypeCode(vocab, m.TypeCode)
+	if !ok {
+		return domain.UnknownTypeCode("type", m.TypeCode, vocab)
 	}
-	return domain.CheckKind(*m, vocab[i])
+	m.TypeCode = tc.Code
+	return domain.CheckKind(*m, tc)
 }
 
 // CreateMeasurement logs a structure measurement (log). LoggedBy defaults to

@@ -22,7 +22,7 @@ var negativeZero = regexp.MustCompile(`(^|[^0-9.])-0(\.0+)?([^.0-9]|$)`)
 // back (PostgreSQL keeps the sign of a float8 zero, SQLite does not).
 func checkNoNegativeZero(t *testing.T, s *service.Service, ctx context.Context) {
 	p := must(s.CreateProject(ctx, domain.Project{Name: "negzero"}))
-	must(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "BD"}))
+	mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "BD"}))
 	must(doImport(t, s, ctx, p.ID, "collars", collarsCSV, false, ""))
 	must(doImport(t, s, ctx, p.ID, "surveys", surveysCSV, false, ""))
 	must(doImport(t, s, ctx, p.ID, "measurements", "hole_id,depth,alpha,beta,gamma,type\nTM001,10,40,-0,-0.0,BD\n", false, ""))

@@ -98,13 +98,16 @@ func (s *Service) DeleteProject(ctx context.Context, id, ifVersion int64) error 
 	})
 }
 
-// PutTypeCode adds or replaces a word of the project's vocabulary (admin).
-func (s *Service) PutTypeCode(ctx context.Context, projectID int64, tc domain.TypeCode) (domain.TypeCode, error) {
+// PutTypeCode adds or replaces a word of the project's vocabulary (admin);
+// created says whether it was new. A code differing only in case from one
+// the vocabulary has replaces that one and keeps its spelling (see
+// domain.FindTypeCode).
+func (s *Service) PutTypeCode(ctx context.Context, projectID int64, tc domain.TypeCode) (_ domain.TypeCode, created bool, err error) {
 	tc.ProjectID = projectID
 	if err := tc.Normalize(); err != nil {
-		return tc, err
+		return tc, false, err
 	}
-	err := s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
+	err = s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
 		_, a, err := s.project(ctx, st, projectID, domain.RoleAdmin)
 		if err != nil {
 			return err
@@ -113,13 +116,19 @@ func (s *Service) PutTypeCode(ctx context.Context, projectID int64, tc domain.Ty
 		if err != nil {
 			return err
 		}
+		action := domain.ActionCreate
+		var before any
+		if old, ok := domain.FindTypeCode(vocab, tc.Code); ok {
+			tc.Code, action, before = old.Code, domain.ActionUpdate, old
+		}
+		created = action == domain.ActionCreate
 		styleType(&tc, vocab)
 		if err := st.PutTypeCode(ctx, tc); err != nil {
 			return err
 		}
-		return audit(ctx, st, a, projectID, "type_code", tc.Code, domain.ActionUpdate, nil, tc)
+		return audit(ctx, st, a, projectID, "type_code", tc.Code, action, before, tc)
 	})
-	return tc, err
+	return tc, created, err
 }
 
 // ListTypeCodes returns the project's vocabulary (read).
@@ -188,6 +197,13 @@ func (s *Service) DeleteTypeCode(ctx context.Context, projectID int64, code stri
 		_, a, err := s.project(ctx, st, projectID, domain.RoleAdmin)
 		if err != nil {
 			return err
+		}
+		vocab, err := st.ListTypeCodes(ctx, projectID)
+		if err != nil {
+			return err
+		}
+		if tc, ok := domain.FindTypeCode(vocab, code); ok {
+			code = tc.Code
 		}
 		if err := st.DeleteTypeCode(ctx, projectID, code); err != nil {
 			return err

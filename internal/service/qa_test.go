@@ -152,7 +152,7 @@ func buildQAHole(t *testing.T, s *service.Service, ctx context.Context, rotation
 	var fx qaFixture
 	fx.p = must(s.CreateProject(ctx, domain.Project{Name: "Kestrel Flats QA", Convergence: f64(qaConv)}))
 	for _, c := range []string{"BD", "JN"} {
-		must(s.PutTypeCode(ctx, fx.p.ID, domain.TypeCode{Code: c}))
+		mustPut(s.PutTypeCode(ctx, fx.p.ID, domain.TypeCode{Code: c}))
 	}
 	fx.h = must(s.CreateHole(ctx, fx.p.ID, domain.Hole{Name: "KF001", East: 5000, North: 8000, Elevation: 420, Azimuth: 70, Dip: -60, FinalDepth: 120}))
 	var mag []domain.Station

@@ -40,6 +40,9 @@ func must[T any](v T, err error) T {
 	return v
 }
 
+// mustPut is must for PutTypeCode.
+func mustPut(tc domain.TypeCode, _ bool, err error) domain.TypeCode { return must(tc, err) }
+
 func wantKind(t testing.TB, err error, k domain.Kind, what string) {
 	t.Helper()
 	if got := domain.KindOf(err); err == nil || got != k {
@@ -73,9 +76,9 @@ func programme(t testing.TB, s *service.Service, ctx context.Context, p domain.P
 	}
 	p = must(s.CreateProject(ctx, p))
 	for _, c := range []string{"BD", "JN"} {
-		must(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: c}))
+		mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: c}))
 	}
-	must(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "LN", Kind: "line"})) // lineations: gamma required
+	mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "LN", Kind: "line"})) // lineations: gamma required
 	h := must(s.CreateHole(ctx, p.ID, domain.Hole{Name: "TM001", East: 1000, North: 2000, Elevation: 300, Azimuth: 0, Dip: -60, FinalDepth: 200}))
 	return p, h
 }
@@ -373,7 +376,7 @@ func TestImportExport(t *testing.T) {
 func checkImportExport(t *testing.T, s *service.Service, ctx context.Context) {
 	p := must(s.CreateProject(ctx, domain.Project{Name: "imp"}))
 	for _, c := range []string{"BD", "JN"} {
-		must(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: c}))
+		mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: c}))
 	}
 	// Dry run writes nothing.
 	r := must(doImport(t, s, ctx, p.ID, "collars", collarsCSV, true, ""))

@@ -46,7 +46,7 @@ func measurementRows(n int, comment string) string {
 // export's first and second pages.
 func checkExportDuringImport(t *testing.T, s *service.Service, ctx context.Context) {
 	p := must(s.CreateProject(ctx, domain.Project{Name: "snap"}))
-	must(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "BD"}))
+	mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "BD"}))
 	must(doImport(t, s, ctx, p.ID, "collars", collarsCSV, false, ""))
 	const before, during = 1500, 2500 // the export reads pages of 1000
 	if r := must(doImport(t, s, ctx, p.ID, "measurements", measurementRows(before, "before"), false, "")); r.Created != before {

@@ -32,7 +32,7 @@ func TestAGS4RoundTrip(t *testing.T) {
 	q = must(s.CreateProject(ctx, q))
 	for _, tc := range must(s.ListTypeCodes(ctx, demo.ID)) {
 		tc.ProjectID = q.ID
-		must(s.PutTypeCode(ctx, q.ID, tc))
+		mustPut(s.PutTypeCode(ctx, q.ID, tc))
 	}
 	for _, kind := range []string{"collars", "surveys"} {
 		b, err := os.ReadFile("../../testdata/tallowmere/" + kind + ".csv")

@@ -18,14 +18,14 @@ func TestTypeStyles(t *testing.T) {
 	s, ctx := newService(t)
 	p := must(s.CreateProject(ctx, domain.Project{Name: "styles"}))
 	for _, c := range []string{"BD", "JN"} {
-		must(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: c}))
+		mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: c}))
 	}
-	fx := must(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "FX", Colour: "#cc79a7", Mark: "star"}))
+	fx := mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "FX", Colour: "#cc79a7", Mark: "star"}))
 	if fx.Colour != "#CC79A7" || fx.Mark != "star" {
 		t.Fatalf("chosen style not kept: %+v", fx)
 	}
 	// A type stored later takes the first default no other type uses.
-	ln := must(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "LN", Kind: "line"}))
+	ln := mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "LN", Kind: "line"}))
 	if ln.Colour != visual.Pair(2).Colour || ln.Mark != visual.Pair(2).Mark {
 		t.Errorf("LN got %s %s, want the third default %+v", ln.Colour, ln.Mark, visual.Pair(2))
 	}
@@ -37,15 +37,15 @@ func TestTypeStyles(t *testing.T) {
 		t.Errorf("defaults in order of creation: BD %+v JN %+v", got["BD"], got["JN"])
 	}
 	// Replaced without a style (a description change): the style stays.
-	must(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "FX", Description: "fault, renamed"}))
+	mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "FX", Description: "fault, renamed"}))
 	for _, tc := range must(s.ListTypeCodes(ctx, p.ID)) {
 		if tc.Code == "FX" && (tc.Colour != "#CC79A7" || tc.Mark != "star" || tc.Description != "fault, renamed") {
 			t.Errorf("FX after a replace: %+v", tc)
 		}
 	}
-	_, err := s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "QZ", Colour: "teal"})
+	_, _, err := s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "QZ", Colour: "teal"})
 	wantKind(t, err, domain.Invalid, "colour teal")
-	_, err = s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "QZ", Mark: "pentagon"})
+	_, _, err = s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "QZ", Mark: "pentagon"})
 	wantKind(t, err, domain.Invalid, "mark pentagon")
 	if e, ok := err.(*domain.Error); !ok || e.Loc.Field != "mark" {
 		t.Errorf("mark error not located on the field: %v", err)
@@ -57,8 +57,8 @@ func TestTypeStyles(t *testing.T) {
 func TestLineationRule(t *testing.T) {
 	s, ctx := newService(t)
 	p := must(s.CreateProject(ctx, domain.Project{Name: "kinds"}))
-	must(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "BD", Kind: "plane"}))
-	must(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "LN", Kind: "line"}))
+	mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "BD", Kind: "plane"}))
+	mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "LN", Kind: "line"}))
 	h := must(s.CreateHole(ctx, p.ID, domain.Hole{Name: "H1", Azimuth: 0, Dip: -60, FinalDepth: 100}))
 	g := 40.0
 	for _, c := range []struct {

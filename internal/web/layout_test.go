@@ -179,7 +179,7 @@ func TestLongHolePaged(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if _, err := s.svc.PutTypeCode(sys, pr.ID, domain.TypeCode{Code: "joint"}); err != nil {
+	if _, _, err := s.svc.PutTypeCode(sys, pr.ID, domain.TypeCode{Code: "joint"}); err != nil {
 		t.Fatal(err)
 	}
 	h, err := s.svc.CreateHole(sys, pr.ID, domain.Hole{Name: "LONG1", East: 1000, North: 2000, Elevation: 400, Azimuth: 90, Dip: -60, FinalDepth: 1000})

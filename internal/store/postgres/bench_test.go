@@ -32,7 +32,7 @@ func benchProgramme(b *testing.B, n int) (*service.Service, context.Context, dom
 		b.Fatal(err)
 	}
 	for _, c := range []string{"BD", "JN", "FLT"} {
-		if _, err := svc.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: c}); err != nil {
+		if _, _, err := svc.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: c}); err != nil {
 			b.Fatal(err)
 		}
 	}
