@@ -239,6 +239,17 @@ func ids(c *gin.Context, name string) (int64, int64, error) {
 	return pid, id, err
 }
 
+// holeIDs reads the project id and the hole of the path: the hole's id, or
+// its name (service.ResolveHole).
+func (s *Server) holeIDs(c *gin.Context) (int64, int64, error) {
+	pid, err := pathID(c, "project")
+	if err != nil {
+		return 0, 0, err
+	}
+	hid, err := s.opt.Service.ResolveHole(c.Request.Context(), pid, c.Param("hole"))
+	return pid, hid, err
+}
+
 // deleteVersioned deletes, with del, the row of the project named by the
 // path's project id and the id called name, at the version in If-Match, and
 // answers 204.
@@ -248,6 +259,12 @@ func deleteVersioned(c *gin.Context, name string, del func(ctx context.Context, 
 		fail(c, err)
 		return
 	}
+	deleteVersionedID(c, pid, id, del)
+}
+
+// deleteVersionedID deletes row id of project pid with del at the version in
+// If-Match, and answers 204.
+func deleteVersionedID(c *gin.Context, pid, id int64, del func(ctx context.Context, pid, id, version int64) error) {
 	v, err := ifMatch(c)
 	if err != nil {
 		fail(c, err)
@@ -261,7 +278,7 @@ func deleteVersioned(c *gin.Context, name string, del func(ctx context.Context, 
 }
 
 func (s *Server) getHole(c *gin.Context) {
-	pid, hid, err := ids(c, "hole")
+	pid, hid, err := s.holeIDs(c)
 	if err != nil {
 		fail(c, err)
 		return
@@ -276,7 +293,7 @@ func (s *Server) getHole(c *gin.Context) {
 }
 
 func (s *Server) updateHole(c *gin.Context) {
-	pid, hid, err := ids(c, "hole")
+	pid, hid, err := s.holeIDs(c)
 	if err != nil {
 		fail(c, err)
 		return
@@ -287,7 +304,7 @@ func (s *Server) updateHole(c *gin.Context) {
 		return
 	}
 	var in domain.Hole
-	if err := s.decodeJSON(c, &in); err != nil {
+	if err := s.decodeEcho(c, &in, service.HoleView{}); err != nil {
 		fail(c, err)
 		return
 	}
@@ -301,13 +318,18 @@ func (s *Server) updateHole(c *gin.Context) {
 }
 
 func (s *Server) deleteHole(c *gin.Context) {
-	deleteVersioned(c, "hole", s.opt.Service.DeleteHole)
+	pid, hid, err := s.holeIDs(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	deleteVersionedID(c, pid, hid, s.opt.Service.DeleteHole)
 }
 
 // ---- surveys
 
 func (s *Server) getSurvey(c *gin.Context) {
-	pid, hid, err := ids(c, "hole")
+	pid, hid, err := s.holeIDs(c)
 	if err != nil {
 		fail(c, err)
 		return
@@ -324,7 +346,7 @@ func (s *Server) getSurvey(c *gin.Context) {
 // putSurvey replaces the whole survey set. If-Match carries the version
 // last read; a hole's first set is created with If-None-Match: * instead.
 func (s *Server) putSurvey(c *gin.Context) {
-	pid, hid, err := ids(c, "hole")
+	pid, hid, err := s.holeIDs(c)
 	if err != nil {
 		fail(c, err)
 		return
@@ -353,7 +375,7 @@ func (s *Server) putSurvey(c *gin.Context) {
 // ---- runs
 
 func (s *Server) listRuns(c *gin.Context) {
-	pid, hid, err := ids(c, "hole")
+	pid, hid, err := s.holeIDs(c)
 	if err != nil {
 		fail(c, err)
 		return
@@ -370,7 +392,7 @@ func (s *Server) listRuns(c *gin.Context) {
 }
 
 func (s *Server) createRun(c *gin.Context) {
-	pid, hid, err := ids(c, "hole")
+	pid, hid, err := s.holeIDs(c)
 	if err != nil {
 		fail(c, err)
 		return
@@ -475,7 +497,7 @@ type measurementInput struct {
 
 func (s *Server) measurementIn(c *gin.Context) (domain.Measurement, error) {
 	var in measurementInput
-	if err := s.decodeJSON(c, &in); err != nil {
+	if err := s.decodeEcho(c, &in, service.MeasurementView{}); err != nil {
 		return domain.Measurement{}, err
 	}
 	m := domain.Measurement{HoleID: in.HoleID, Depth: in.Depth, Alpha: in.Alpha, Beta: in.Beta, Gamma: in.Gamma,

@@ -13,7 +13,7 @@ import (
 
 // holePath serves the desurveyed path of a hole at ?step= (default 5).
 func (s *Server) holePath(c *gin.Context) {
-	pid, hid, err := ids(c, "hole")
+	pid, hid, err := s.holeIDs(c)
 	if err != nil {
 		fail(c, err)
 		return

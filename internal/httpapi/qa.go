@@ -82,7 +82,7 @@ func renderQA(c *gin.Context, rep qa.Report, title string) {
 func (s *Server) projectQA(c *gin.Context) { s.runProjectQA(c, false) }
 
 func (s *Server) holeQA(c *gin.Context) {
-	pid, hid, err := ids(c, "hole")
+	pid, hid, err := s.holeIDs(c)
 	if err != nil {
 		fail(c, err)
 		return

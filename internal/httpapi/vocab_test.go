@@ -56,3 +56,60 @@ func TestTypeCodeRules(t *testing.T) {
 		t.Errorf("audit of type FLT: %v, want create,update", actions)
 	}
 }
+
+// TestHoleByName: hole routes take the name as well as the id; digits are
+// the id, name:DIGITS the hole named so; an unknown name is 404.
+func TestHoleByName(t *testing.T) {
+	f := newFixture(t)
+	pid := f.project("Names", nil)
+	base := "/v1/projects/" + itoa(pid) + "/holes/"
+	kr := f.hole(pid, "KR-01", 0, -60)
+	num := f.hole(pid, "1042", 90, -60)
+	var byName, byID domain.Hole
+	f.must(200, f.site, "GET", base+"KR-01", nil, &byName)
+	f.must(200, f.site, "GET", base+itoa(kr.ID), nil, &byID)
+	if byName.ID != kr.ID || byID.ID != kr.ID {
+		t.Errorf("GET by name gave hole %d, by id %d, want %d", byName.ID, byID.ID, kr.ID)
+	}
+	var h domain.Hole
+	f.must(200, f.site, "GET", base+"name:1042", nil, &h)
+	if h.ID != num.ID {
+		t.Errorf("name:1042 gave hole %d, want %d", h.ID, num.ID)
+	}
+	f.must(200, f.site, "GET", base+"KR-01/path?step=10", nil, nil)
+	f.must(200, f.site, "GET", base+"KR-01/runs", nil, nil)
+	if p := f.do(f.site, "GET", base+"KR-99", nil).problem(t); p.Status != 404 {
+		t.Errorf("unknown hole name: %d, want 404", p.Status)
+	}
+}
+
+// TestGetBodyPutsBack: a GET body, read-only fields and all, can be PUT back
+// (the read-only fields are ignored); a field the resource does not have is
+// still refused.
+func TestGetBodyPutsBack(t *testing.T) {
+	f := newFixture(t)
+	pid := f.project("Echo", nil)
+	base := "/v1/projects/" + itoa(pid)
+	h := f.hole(pid, "EC001", 0, -60)
+	var m struct {
+		ID int64 `json:"id"`
+	}
+	f.must(201, f.site, "POST", base+"/measurements", map[string]any{"hole_id": h.ID, "depth": 5, "alpha": 45, "beta": 90, "type": "JN"}, &m)
+	for _, path := range []string{base + "/holes/" + itoa(h.ID), base + "/measurements/" + itoa(m.ID)} {
+		var body map[string]any
+		r := f.must(200, f.site, "GET", path, nil, &body)
+		if _, ok := body["corrections"]; !ok && strings.Contains(path, "/holes/") {
+			t.Fatalf("GET %s has no corrections: %v", path, body)
+		}
+		body["comment"] = "edited"
+		if strings.Contains(path, "/holes/") {
+			delete(body, "comment")
+			body["crs"] = "EPSG:32750"
+		}
+		r = f.must(200, f.site, "PUT", path, body, nil, "If-Match", r.Header.Get("ETag"))
+		body["no_such_field"] = 1
+		if p := f.do(f.site, "PUT", path, body, "If-Match", r.Header.Get("ETag")).problem(t); p.Status != 422 && p.Status != 400 {
+			t.Errorf("PUT %s with an unknown field: %d, want 400 or 422", path, p.Status)
+		}
+	}
+}

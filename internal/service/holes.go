@@ -3,6 +3,7 @@ package service
 import (
 	"context"
 	"strconv"
+	"strings"
 
 	"corvane/internal/domain"
 )
@@ -37,6 +38,33 @@ func (s *Service) GetHole(ctx context.Context, projectID, holeID int64) (domain.
 		return domain.Hole{}, err
 	}
 	return hole(ctx, s.store, projectID, holeID)
+}
+
+// HoleNamePrefix marks a hole reference as a name even when it is all digits.
+const HoleNamePrefix = "name:"
+
+// ResolveHole finds the id of the hole that ref names in the project (read):
+// a reference of digits only is the hole's id; "name:" followed by anything
+// is the hole of that name (for names made of digits); anything else is the
+// hole's name. This is the one rule for a hole in a route.
+func (s *Service) ResolveHole(ctx context.Context, projectID int64, ref string) (int64, error) {
+	if _, err := allow(ctx, projectID, domain.RoleRead); err != nil {
+		return 0, err
+	}
+	name, byName := strings.CutPrefix(ref, HoleNamePrefix)
+	if !byName {
+		if id, err := strconv.ParseInt(ref, 10, 64); err == nil {
+			if id < 1 {
+				return 0, domain.Errorf(domain.NotFound, "hole %q: no such hole (ids are positive)", ref)
+			}
+			return id, nil
+		}
+	}
+	h, err := s.store.GetHoleByName(ctx, projectID, name)
+	if domain.IsKind(err, domain.NotFound) {
+		return 0, domain.Errorf(domain.NotFound, "no hole named %q in project %d", name, projectID)
+	}
+	return h.ID, err
 }
 
 // ListHoles returns one page of the project's holes (read).

@@ -1,0 +1,69 @@
+package httpapi
+
+import (
+	"bytes"
+	"encoding/json"
+	"reflect"
+	"strings"
+
+	"github.com/gin-gonic/gin"
+)
+
+// decodeEcho decodes a JSON object body into in like decodeJSON, but also
+// accepts, and ignores, the read-only fields of the resource's
+// representation view (the body a GET returns): the fields of view's type
+// that in's type does not take, such as a hole's "corrections" or a
+// measurement's "derived". So a GET body can be edited and PUT back. Fields
+// that are in neither are still refused as unknown.
+func (s *Server) decodeEcho(c *gin.Context, in, view any) error {
+	var obj map[string]json.RawMessage
+	if err := s.decodeJSON(c, &obj); err != nil {
+		return err
+	}
+	takes := jsonNames(reflect.TypeOf(in))
+	for name := range jsonNames(reflect.TypeOf(view)) {
+		if !takes[name] {
+			delete(obj, name)
+		}
+	}
+	b, err := json.Marshal(obj)
+	if err != nil {
+		return jsonError(err)
+	}
+	dec := json.NewDecoder(bytes.NewReader(b))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(in); err != nil {
+		return jsonError(err)
+	}
+	return nil
+}
+
+// jsonNames returns the JSON names of the fields of struct type t (or a
+// pointer to one), with those of embedded structs.
+func jsonNames(t reflect.Type) map[string]bool {
+	for t.Kind() == reflect.Pointer {
+		t = t.Elem()
+	}
+	names := map[string]bool{}
+	if t.Kind() != reflect.Struct {
+		return names
+	}
+	for i := 0; i < t.NumField(); i++ {
+		f := t.Field(i)
+		tag := f.Tag.Get("json")
+		name, _, _ := strings.Cut(tag, ",")
+		switch {
+		case name == "-":
+		case f.Anonymous && name == "":
+			for n := range jsonNames(f.Type) {
+				names[n] = true
+			}
+		case !f.IsExported():
+		case name == "":
+			names[f.Name] = true
+		default:
+			names[name] = true
+		}
+	}
+	return names
+}
