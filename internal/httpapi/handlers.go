@@ -773,7 +773,7 @@ func (s *Server) importCSV(c *gin.Context) {
 	}
 	res, err := s.opt.Service.Import(c.Request.Context(), pid, service.ImportRequest{
 		Kind: c.Param("kind"), File: c.GetHeader("X-Filename"), Body: body,
-		DryRun: dry, IdempotencyKey: c.GetHeader("Idempotency-Key"),
+		DryRun: dry, Duplicates: c.Query("duplicates"), IdempotencyKey: c.GetHeader("Idempotency-Key"),
 	})
 	if err != nil {
 		fail(c, err)

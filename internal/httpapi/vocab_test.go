@@ -113,3 +113,28 @@ func TestGetBodyPutsBack(t *testing.T) {
 		}
 	}
 }
+
+// TestImportDuplicatesOverHTTP: the duplicates query parameter reaches the
+// import's one rule (service tests cover the rule itself).
+func TestImportDuplicatesOverHTTP(t *testing.T) {
+	f := newFixture(t)
+	pid := f.project("Dups", nil)
+	base := "/v1/projects/" + itoa(pid)
+	f.hole(pid, "DP001", 0, -60)
+	csv := "hole_id,depth,alpha,beta,type\nDP001,5,40,100,JN\nDP001,6,40,100,JN\n"
+	f.must(201, f.site, "POST", base+"/imports/measurements", csv, nil)
+	p := f.do(f.site, "POST", base+"/imports/measurements", csv).problem(t)
+	if p.Status != 422 || len(p.Errors) != 1 || !strings.Contains(p.Errors[0].Detail, "2 rows: duplicate of a stored measurement") {
+		t.Errorf("second import: %d %s %+v", p.Status, p.Detail, p.Errors)
+	}
+	var res struct {
+		Created, Skipped, Duplicates int
+	}
+	f.must(201, f.site, "POST", base+"/imports/measurements?duplicates=skip", csv, &res)
+	if res.Created != 0 || res.Skipped != 2 || res.Duplicates != 2 {
+		t.Errorf("duplicates=skip: %+v", res)
+	}
+	if p := f.do(f.site, "POST", base+"/imports/measurements?duplicates=twice", csv).problem(t); p.Status != 422 {
+		t.Errorf("duplicates=twice: %d, want 422", p.Status)
+	}
+}

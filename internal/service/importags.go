@@ -44,7 +44,7 @@ func (s *Service) importDiscontinuities(ctx context.Context, st domain.Store, p 
 	if len(data.Discontinuities) == 0 {
 		return &domain.Error{Kind: domain.Invalid, Msg: "no DISC group: nothing to import", Loc: domain.Location{File: res.File}}
 	}
-	vocab, codes, err := vocabulary(ctx, st, p.ID)
+	vocab, err := st.ListTypeCodes(ctx, p.ID)
 	if err != nil {
 		return err
 	}
@@ -68,8 +68,8 @@ func (s *Service) importDiscontinuities(ctx context.Context, st domain.Store, p 
 			ps.add(r.Line, "LOCA_ID", "no hole %q in the project", r.Hole)
 			continue
 		}
-		if !codes[r.Type] {
-			ps.add(r.Line, "DISC_TYPE", "type %q is not in the project's vocabulary", r.Type)
+		if _, ok := domain.FindTypeCode(vocab, r.Type); !ok {
+			ps.addErr(domain.UnknownTypeCode("", r.Type, vocab).At(domain.Location{File: res.File, Line: r.Line, Column: "DISC_TYPE"}))
 			continue
 		}
 		if math.IsNaN(r.Dip) || math.IsNaN(r.DipDirection) {

@@ -37,6 +37,10 @@ type ImportRequest struct {
 	// DryRun checks everything, including holes and type codes in the
 	// store, and writes nothing.
 	DryRun bool
+	// Duplicates says how measurement rows that duplicate a stored row or an
+	// earlier row of the file are treated (domain.ParseDuplicates): ""
+	// or "refuse" (each is a row problem), "skip" or "keep".
+	Duplicates string
 	// IdempotencyKey, when not empty, makes a retry of the same request
 	// return the first result and write nothing. The same key with another
 	// body is a Conflict.
@@ -54,6 +58,11 @@ type ImportResult struct {
 	// runs or measurements.
 	Created int `json:"created"`
 	Updated int `json:"updated"`
+	// Duplicates counts the measurement rows that duplicate a stored row or
+	// an earlier row of the file (see domain.KeyOf); Skipped those left out
+	// (duplicates=skip).
+	Duplicates int `json:"duplicates"`
+	Skipped    int `json:"skipped"`
 	// Replayed is true when the result is the remembered one of an earlier
 	// request with the same idempotency key; nothing was written this time.
 	Replayed bool `json:"replayed"`
@@ -98,6 +107,10 @@ func (s *Service) Import(ctx context.Context, projectID int64, req ImportRequest
 	if err := domain.CheckText("idempotency_key", req.IdempotencyKey, domain.MaxKeyLen, false); err != nil {
 		return res, err
 	}
+	dups, err := domain.ParseDuplicates(req.Duplicates)
+	if err != nil {
+		return res, err
+	}
 	p, a, err := s.project(ctx, s.store, projectID, role)
 	if err != nil {
 		return res, err
@@ -107,6 +120,9 @@ func (s *Service) Import(ctx context.Context, projectID int64, req ImportRequest
 	}
 	h := sha256.New()
 	fmt.Fprintf(h, "%s\x00%t\x00", req.Kind, req.DryRun)
+	if dups != domain.DuplicatesRefuse {
+		fmt.Fprintf(h, "duplicates=%s\x00", dups)
+	}
 	body := io.TeeReader(req.Body, h)
 	key := req.IdempotencyKey
 	if key != "" && !req.DryRun {
@@ -129,7 +145,7 @@ func (s *Service) Import(ctx context.Context, projectID int64, req ImportRequest
 		case ImportRuns:
 			err = importRuns(ctx, st, p, body, &res)
 		case ImportMeasurements:
-			err = s.importMeasurements(ctx, st, p, a, body, &res)
+			err = s.importMeasurements(ctx, st, p, a, body, dups, &res)
 		case ImportDiscontinuities:
 			err = s.importDiscontinuities(ctx, st, p, a, body, &res)
 		}
@@ -160,8 +176,9 @@ func (s *Service) Import(ctx context.Context, projectID int64, req ImportRequest
 	switch {
 	case errors.Is(err, errDryRun):
 		return res, nil
-	case key != "" && domain.IsKind(err, domain.Conflict):
-		// Another request with the same key committed first.
+	case key != "" && (domain.IsKind(err, domain.Conflict) || domain.IsKind(err, domain.Invalid)):
+		// Another request with the same key committed first (this one then
+		// clashed on the key, or found that request's rows as duplicates).
 		if prev, gerr := s.store.GetIdempotency(ctx, projectID, key); gerr == nil {
 			return replay(prev, sum(h))
 		}
@@ -427,7 +444,7 @@ func parseLoggedAt(s string) (time.Time, bool) {
 	return time.Time{}, false
 }
 
-func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p domain.Project, a Actor, body io.Reader, res *ImportResult) error {
+func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p domain.Project, a Actor, body io.Reader, dups string, res *ImportResult) error {
 	sr, err := csvio.NewStructureReader(body, res.File)
 	if err != nil {
 		return fileErr(res.File, err)
@@ -441,6 +458,7 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 		return err
 	}
 	holes := newHoleNames(st, p.ID)
+	seen := newDuplicates(st, p.ID)
 	ps := &problems{file: res.File}
 	now := s.now()
 	batch := make([]domain.Measurement, 0, importBatch)
@@ -523,6 +541,25 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 			ps.add(r.Line, csvio.ColDepth, "depth %v is past the final depth %v of hole %s", m.Depth, h.FinalDepth, h.Name)
 			continue
 		}
+		stored, earlier, err := seen.check(ctx, m, r.Line)
+		if err != nil {
+			return err
+		}
+		if stored || earlier > 0 {
+			res.Duplicates++
+			switch {
+			case dups == domain.DuplicatesSkip:
+				res.Skipped++
+				continue
+			case dups == domain.DuplicatesKeep:
+			case stored:
+				ps.add(r.Line, "", "%s", domain.DuplicateStoredMsg)
+				continue
+			default:
+				ps.add(r.Line, "", "same hole, depth, type, alpha, beta and gamma as line %d; send duplicates=skip to leave such rows out or duplicates=keep to store them", earlier)
+				continue
+			}
+		}
 		if ps.n > 0 || res.DryRun {
 			if res.DryRun && ps.n == 0 {
 				res.Created++
@@ -544,16 +581,6 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 		return err
 	}
 	return nil
-}
-
-// vocabulary returns the project's type codes, also as a set of codes.
-func vocabulary(ctx context.Context, st domain.Store, projectID int64) ([]domain.TypeCode, map[string]bool, error) {
-	vocab, err := st.ListTypeCodes(ctx, projectID)
-	codes := make(map[string]bool, len(vocab))
-	for _, tc := range vocab {
-		codes[tc.Code] = true
-	}
-	return vocab, codes, err
 }
 
 // orDefault returns s, or def when s is empty.
@@ -590,9 +617,55 @@ func (hn *holeNames) get(ctx context.Context, name string) (h domain.Hole, ok bo
 	}
 }
 
+// orDefault returns s, or def when s is empty.
 func orDefault(s, def string) string {
 	if s == "" {
 		return def
 	}
 	return s
+}
+
+// duplicates finds, for an import, the measurements that repeat a stored row
+// or an earlier row of the file (domain.KeyOf). The stored rows of a hole
+// are read once, when the file first names the hole.
+type duplicates struct {
+	st        domain.Store
+	projectID int64
+	stored    map[int64]map[domain.MeasurementKey]bool // by hole id
+	file      map[domain.MeasurementKey]int            // line of the first row with the key
+}
+
+func newDuplicates(st domain.Store, projectID int64) *duplicates {
+	return &duplicates{st: st, projectID: projectID, stored: map[int64]map[domain.MeasurementKey]bool{}, file: map[domain.MeasurementKey]int{}}
+}
+
+// check reports whether m repeats a stored measurement, and the line of the
+// earlier row of the file it repeats (0 when none); the first row with a
+// key is remembered at line.
+func (d *duplicates) check(ctx context.Context, m domain.Measurement, line int) (stored bool, earlier int, err error) {
+	keys, ok := d.stored[m.HoleID]
+	if !ok {
+		keys = map[domain.MeasurementKey]bool{}
+		pg := domain.Page{Limit: domain.MaxLimit}
+		for {
+			ms, err := d.st.ListMeasurements(ctx, domain.MeasurementFilter{ProjectID: d.projectID, HoleIDs: []int64{m.HoleID}}, pg)
+			if err != nil {
+				return false, 0, err
+			}
+			for _, sm := range ms {
+				keys[domain.KeyOf(sm)] = true
+			}
+			if len(ms) < pg.Limit {
+				break
+			}
+			pg.After = ms[len(ms)-1].ID
+		}
+		d.stored[m.HoleID] = keys
+	}
+	k := domain.KeyOf(m)
+	earlier = d.file[k]
+	if earlier == 0 {
+		d.file[k] = line
+	}
+	return keys[k], earlier, nil
 }

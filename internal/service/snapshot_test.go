@@ -35,7 +35,9 @@ func measurementRows(n int, comment string) string {
 	var b strings.Builder
 	b.WriteString("hole_id,depth,alpha,beta,type,comment\n")
 	for i := range n {
-		fmt.Fprintf(&b, "TM001,%d.5,%d,%d,BD,%s\n", i%190, 10+i%70, i%360, comment)
+		// Distinct rows (no duplicates, domain.KeyOf), within a file and
+		// between files of different comments.
+		fmt.Fprintf(&b, "TM001,%d.%03d,%d,%d,BD,%s\n", i%190, i/190, 10+i%70, (i+int(comment[0]))%360, comment)
 	}
 	return b.String()
 }

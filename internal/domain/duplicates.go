@@ -1,0 +1,52 @@
+package domain
+
+// Duplicate measurements: the one rule, used by the measurement import.
+//
+// Two measurements are duplicates when they have the same hole, depth, type
+// code, alpha, beta and gamma (both without a gamma, or the same gamma),
+// compared as the numbers stored (after the type code is matched to the
+// vocabulary's spelling and beta or gamma 360 folded to 0). Comment, logger
+// and thickness do not count. An import refuses a file with duplicates, of
+// rows already stored or of an earlier row of the same file, unless the
+// upload says how to treat them: DuplicatesSkip leaves them out,
+// DuplicatesKeep stores them anyway.
+
+// Duplicate treatments.
+const (
+	DuplicatesRefuse = "refuse" // the default: each duplicate is a row problem
+	DuplicatesSkip   = "skip"   // leave duplicates out and count them
+	DuplicatesKeep   = "keep"   // store duplicates and count them
+)
+
+// ParseDuplicates reads a duplicate treatment; "" is DuplicatesRefuse.
+func ParseDuplicates(s string) (string, error) {
+	switch s {
+	case "":
+		return DuplicatesRefuse, nil
+	case DuplicatesRefuse, DuplicatesSkip, DuplicatesKeep:
+		return s, nil
+	}
+	return "", FieldErr("duplicates", "duplicates=%q: want refuse, skip or keep", s)
+}
+
+// MeasurementKey is what makes two measurements duplicates.
+type MeasurementKey struct {
+	HoleID             int64
+	Type               string
+	Depth, Alpha, Beta float64
+	HasGamma           bool
+	Gamma              float64
+}
+
+// KeyOf returns m's duplicate key.
+func KeyOf(m Measurement) MeasurementKey {
+	k := MeasurementKey{HoleID: m.HoleID, Type: m.TypeCode, Depth: m.Depth, Alpha: m.Alpha, Beta: m.Beta}
+	if m.Gamma != nil {
+		k.HasGamma, k.Gamma = true, *m.Gamma
+	}
+	return k
+}
+
+// DuplicateStoredMsg is the problem of a row that repeats a stored measurement.
+const DuplicateStoredMsg = "duplicate of a stored measurement (same hole, depth, type, alpha, beta and gamma); " +
+	"send duplicates=skip to leave such rows out or duplicates=keep to store them"

@@ -1,0 +1,70 @@
+package service_test
+
+import (
+	"context"
+	"errors"
+	"strings"
+	"testing"
+
+	"corvane/internal/domain"
+	"corvane/internal/service"
+)
+
+func TestImportDuplicates(t *testing.T) {
+	s, ctx := newService(t)
+	checkImportDuplicates(t, s, ctx)
+}
+
+// checkImportDuplicates: the same measurements file imported twice is
+// refused the second time with one summarised, located problem, unless the
+// upload says skip or keep; a row repeating an earlier row of the file is
+// refused naming that line; a dry run reports the duplicates.
+func checkImportDuplicates(t *testing.T, s *service.Service, ctx context.Context) {
+	p := must(s.CreateProject(ctx, domain.Project{Name: "dups"}))
+	for _, c := range []string{"BD", "JN"} {
+		mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: c}))
+	}
+	must(doImport(t, s, ctx, p.ID, "collars", collarsCSV, false, ""))
+	imp := func(body, mode string, dry bool) (service.ImportResult, error) {
+		return s.Import(ctx, p.ID, service.ImportRequest{Kind: "measurements", Body: strings.NewReader(body), DryRun: dry, Duplicates: mode})
+	}
+	must(imp(measurementsCSV, "", false))
+	count := func() int64 { return must(s.CountMeasurements(ctx, p.ID, service.MeasurementQuery{})) }
+
+	for _, dry := range []bool{true, false} {
+		_, err := imp(measurementsCSV, "", dry)
+		var e *domain.Error
+		if !errors.As(err, &e) || e.Kind != domain.Invalid || len(e.Problems) != 1 {
+			t.Fatalf("second import (dry run %t): %v, want one summarised problem", dry, err)
+		}
+		if pr := e.Problems[0]; pr.Msg != "3 rows: "+domain.DuplicateStoredMsg+" (lines 2-4)" || pr.Loc.Line != 2 || pr.Loc.File != "measurements.csv" {
+			t.Errorf("second import (dry run %t): %v", dry, pr)
+		}
+	}
+	if n := count(); n != 3 {
+		t.Fatalf("%d rows after a refused import, want 3", n)
+	}
+	// A lower-case type and beta 360 are the same measurement as JN and 0.
+	again := "hole_id,depth,alpha,beta,gamma,type\nTM001,4.5,45,90,30,jn\nTM001,7,30,360,,BD\nTM001,7,30,0,,BD\nTM001,8,30,0,,BD\n"
+	res, err := imp(again, domain.DuplicatesSkip, true)
+	if err != nil || res.Duplicates != 2 || res.Skipped != 2 || res.Created != 2 {
+		t.Errorf("dry run with skip: %+v, %v; want 2 duplicates skipped, 2 to create", res, err)
+	}
+	_, err = imp(again, "", false)
+	var e *domain.Error
+	if !errors.As(err, &e) || len(e.Problems) != 2 || e.Problems[0].Loc.Line != 2 || e.Problems[1].Loc.Line != 4 ||
+		!strings.Contains(e.Problems[1].Msg, "as line 3") {
+		t.Fatalf("refused: %v %v", err, e.Problems)
+	}
+	res = must(imp(again, domain.DuplicatesSkip, false))
+	if res.Created != 2 || res.Skipped != 2 || count() != 5 {
+		t.Errorf("skip: %+v, %d rows; want 2 created, 5 stored", res, count())
+	}
+	res = must(imp(again, domain.DuplicatesKeep, false))
+	if res.Created != 4 || res.Duplicates != 4 || count() != 9 {
+		t.Errorf("keep: %+v, %d rows; want 4 created, 9 stored", res, count())
+	}
+	if _, err := imp(again, "maybe", false); !domain.IsKind(err, domain.Invalid) {
+		t.Errorf("duplicates=maybe: %v, want an Invalid error", err)
+	}
+}
