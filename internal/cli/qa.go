@@ -19,6 +19,7 @@ import (
 	"corvane/internal/qa"
 	"corvane/internal/qa/qapage"
 	"corvane/internal/uncertainty"
+	"corvane/internal/words"
 )
 
 func init() {
@@ -212,8 +213,10 @@ func runQA(_ context.Context, env *Env, args []string) int {
 		fmt.Fprintf(env.Stderr, "corvane qa: %v\n", err)
 		return ExitUsage
 	}
-	fmt.Fprintf(env.Stderr, "corvane qa: %d holes, %d measurements: %d flags, %d warnings, %d runs with a suspect mark\n",
-		rep.Summary.Holes, rep.Summary.Measurements, rep.Summary.BySeverity[qa.SeverityFlag], rep.Summary.BySeverity[qa.SeverityWarning], rep.Summary.RunsFlagged)
+	fmt.Fprintf(env.Stderr, "corvane qa: %s, %s: %s, %s, %s with a suspect mark\n",
+		words.Plural(rep.Summary.Holes, "hole"), words.Plural(rep.Summary.Measurements, "measurement"),
+		words.Plural(rep.Summary.BySeverity[qa.SeverityFlag], "flag"), words.Plural(rep.Summary.BySeverity[qa.SeverityWarning], "warning"),
+		words.Plural(rep.Summary.RunsFlagged, "run"))
 	if rejected > 0 {
 		return ExitRows
 	}

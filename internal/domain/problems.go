@@ -116,11 +116,3 @@ func LineRanges(lines []int) string {
 	}
 	return s
 }
-
-// Plural is "1 row", "2 rows": n and the word, with an s unless n is 1.
-func Plural(n int, word string) string {
-	if n == 1 {
-		return "1 " + word
-	}
-	return strconv.Itoa(n) + " " + word + "s"
-}

@@ -43,7 +43,4 @@ func TestLineRanges(t *testing.T) {
 	if got := LineRanges(many); !strings.HasSuffix(got, "110 and 8 more") {
 		t.Errorf("LineRanges of 20 lines = %q", got)
 	}
-	if Plural(1, "run") != "1 run" || Plural(0, "run") != "0 runs" || Plural(3, "run") != "3 runs" {
-		t.Error("Plural")
-	}
 }

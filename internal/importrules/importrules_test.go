@@ -34,6 +34,7 @@ var pure = map[string]bool{
 	"corvane/internal/structdomain": true,
 	"corvane/internal/kinematic":    true,
 	"corvane/internal/geotech":      true,
+	"corvane/internal/words":        true,
 	"corvane/internal/palette":      true,
 	// Transfer formats: neutral inputs and their writers/readers.
 	"corvane/internal/exchange":              true,

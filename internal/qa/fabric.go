@@ -8,6 +8,7 @@ import (
 
 	"corvane/internal/coreangle"
 	"corvane/internal/geom"
+	"corvane/internal/words"
 
 	"gonum.org/v1/gonum/stat/distuv"
 )
@@ -484,12 +485,12 @@ func rotationChecks(h *holeData, conv coreangle.Convention, o Options, readSD fu
 		lo, hi := e.Offset-e.HalfWidth95, e.Offset+e.HalfWidth95
 		out = append(out, Finding{Check: CheckMarkRotation, Severity: SeverityFlag, HoleID: h.c.HoleID, Depth: run.From, DepthTo: run.To,
 			Size: math.Abs(e.Offset), Unit: "deg", Source: "runs", Line: run.Line, ID: run.ID,
-			Message: fmt.Sprintf("run %.2f-%.2f: its %s fits the %s fabric (%03.0f/%02.0f, %d poles) after turning the core %+.1f deg about its axis "+
-				"(95%% interval %+.1f to %+.1f, from n = %d measurement%s), beyond the %.0f deg tolerance: the mark is likely off. "+
+			Message: fmt.Sprintf("run %.2f-%.2f: its %s fits the %s fabric (mean pole %03.0f/%02.0f from %s) after turning the core %+.1f deg about its axis "+
+				"(95%% interval %+.1f to %+.1f, from n = %d %s of the run), beyond the %.0f deg tolerance: the mark is likely off. "+
 				"Correcting it (logged beta %+.1f, not applied) would move the run's %d measurements' poles by up to %.1f deg, "+
 				"dip directions by up to %.1f deg and dips by up to %.1f deg; median misfit %.1f -> %.1f deg",
 				run.From, run.To, o.PersistentType, map[string]string{"neighbours": "neighbouring runs'", "hole": "hole-wide"}[e.RefSource],
-				e.Reference.Trend, e.Reference.Plunge, e.ReferenceN, e.Offset, lo, hi, e.N, plural(e.N), o.RotationTolerance,
+				e.Reference.Trend, e.Reference.Plunge, words.Plural(e.ReferenceN, "pole"), e.Offset, lo, hi, e.N, words.Noun(e.N, "measurement"), o.RotationTolerance,
 				e.Offset, len(rr.Suggestions), maxTurn, maxDD, maxDip, e.MisfitBefore, e.MisfitAfter)})
 	}
 	if total > 0 && 2*used < total {
@@ -498,13 +499,6 @@ func rotationChecks(h *holeData, conv coreangle.Convention, o Options, readSD fu
 				used, total, o.PersistentType, minAxisAngle, minRefAlpha)})
 	}
 	return out
-}
-
-func plural(n int) string {
-	if n == 1 {
-		return ""
-	}
-	return "s"
 }
 
 // finiteOr returns v, or def when v is not finite (JSON has no infinities).

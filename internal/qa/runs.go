@@ -53,6 +53,11 @@ func unionLength(iv [][2]float64, limit float64) float64 {
 }
 
 func (c *Coverage) shares() {
+	// Lengths are sums and differences of depths logged to a few decimals:
+	// rounded to 1e-6 they read as logged (72.65, not 72.64999999999995).
+	for _, v := range []*float64{&c.Length, &c.Oriented, &c.Confident, &c.Unusable} {
+		*v = math.Round(*v*1e6) / 1e6
+	}
 	if c.Length > 0 {
 		c.OrientedShare = c.Oriented / c.Length
 		c.ConfidentShare = c.Confident / c.Length

@@ -275,3 +275,13 @@ func TestT975(t *testing.T) {
 		t.Errorf("chi2q99(3) = %.4f", chi2q99(3))
 	}
 }
+
+// TestCoverageRounded: lengths summed from depths logged to 0.01 read as
+// logged (no 72.64999999999995 in the report).
+func TestCoverageRounded(t *testing.T) {
+	c := Coverage{Length: 0.1 + 0.2, Unusable: 241.74 - 169.09}
+	c.shares()
+	if c.Length != 0.3 || c.Unusable != 72.65 {
+		t.Errorf("coverage %v, %v; want 0.3, 72.65", c.Length, c.Unusable)
+	}
+}

@@ -15,6 +15,7 @@ import (
 
 	"corvane/internal/csvio"
 	"corvane/internal/domain"
+	"corvane/internal/words"
 )
 
 // Import kinds: the CSV files the service accepts, with the converter's
@@ -229,7 +230,7 @@ func (ps *problems) err() error {
 	if ps.n == 0 {
 		return nil
 	}
-	msg := domain.Plural(ps.n, "bad row") + "; nothing was imported"
+	msg := words.Plural(ps.n, "bad row") + "; nothing was imported"
 	if u := ps.pl.Unlisted(); u > 0 {
 		msg += fmt.Sprintf(" (%d rows with further kinds of problem are not listed)", u)
 	}

@@ -24,6 +24,7 @@ import (
 	"corvane/internal/projection"
 	"corvane/internal/qa"
 	"corvane/internal/visual"
+	"corvane/internal/words"
 )
 
 // Okabe-Ito colours.
@@ -141,14 +142,14 @@ func writeSummary(b *strings.Builder, r qa.Report) {
 	card := func(v, label string) {
 		fmt.Fprintf(b, "<div class=\"card\"><b>%s</b><span>%s</span></div>", v, esc(label))
 	}
-	card(fmt.Sprint(s.Holes), "holes")
-	card(fmt.Sprint(s.Measurements), "measurements")
-	card(pct(s.Coverage.OrientedShare), fmt.Sprintf("of %.0f core under orientation runs", s.Coverage.Length))
+	card(fmt.Sprint(s.Holes), words.Noun(s.Holes, "hole"))
+	card(fmt.Sprint(s.Measurements), words.Noun(s.Measurements, "measurement"))
+	card(pct(s.Coverage.OrientedShare), fmt.Sprintf("of %.0f %s of core under orientation runs", s.Coverage.Length, lengthUnit(r.Options.Feet)))
 	card(pct(s.Coverage.ConfidentShare), "oriented with confidence")
-	card(fmt.Sprint(s.BySeverity[qa.SeverityFlag]), "flags")
-	card(fmt.Sprint(s.BySeverity[qa.SeverityWarning]), "warnings")
-	card(fmt.Sprint(s.RunsFlagged), "runs with a suspect mark")
-	card(fmt.Sprint(s.OutsideRuns+s.InUnusable), "measurements outside usable runs")
+	card(fmt.Sprint(s.BySeverity[qa.SeverityFlag]), words.Noun(s.BySeverity[qa.SeverityFlag], "flag"))
+	card(fmt.Sprint(s.BySeverity[qa.SeverityWarning]), words.Noun(s.BySeverity[qa.SeverityWarning], "warning"))
+	card(fmt.Sprint(s.RunsFlagged), words.Noun(s.RunsFlagged, "run")+" with a suspect mark")
+	card(fmt.Sprint(s.OutsideRuns+s.InUnusable), words.Noun(s.OutsideRuns+s.InUnusable, "measurement")+" outside usable runs")
 	b.WriteString("</div>")
 	if len(s.ByCheck) > 0 {
 		keys := make([]string, 0, len(s.ByCheck))
@@ -594,4 +595,12 @@ func orDash(s string) string {
 		return "-"
 	}
 	return s
+}
+
+// lengthUnit names the unit of depths.
+func lengthUnit(feet bool) string {
+	if feet {
+		return "ft"
+	}
+	return "m"
 }
