@@ -13,6 +13,7 @@ import (
 	"corvane/internal/coreangle"
 	"corvane/internal/csvio"
 	"corvane/internal/desurvey"
+	"corvane/internal/progress"
 )
 
 func init() {
@@ -208,6 +209,7 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 		return ExitUsage
 	}
 	var in io.Reader = env.Stdin
+	var size int64
 	if *structures != "-" {
 		f, err := os.Open(*structures)
 		if err != nil {
@@ -215,7 +217,14 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 		}
 		defer f.Close()
 		in = f
+		if fi, err := f.Stat(); err == nil {
+			size = fi.Size()
+		}
 	}
+	// Progress on a terminal (rows, rows/s, time left); nothing when
+	// standard error is a pipe or a file.
+	meter := progress.New(env.Stderr, "corvane convert", size)
+	in = meter.Reader(in)
 
 	// Write to a temporary file first: a file that turns out to be unreadable
 	// half-way leaves no partial output behind. With -o it is the output
@@ -238,6 +247,7 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 		defer os.Remove(tmp.Name())
 	}
 	sum, err := holes.Convert(ctx, in, tmp)
+	meter.Done()
 	if err != nil {
 		tmp.Close()
 		reportAll(env, "convert", err)

@@ -33,3 +33,20 @@ func TestConvertReportsEveryFile(t *testing.T) {
 		}
 	}
 }
+
+// TestConvertQuietWhenPiped: with standard error not a terminal (here a
+// buffer) convert and qa print no progress line.
+func TestConvertQuietWhenPiped(t *testing.T) {
+	d := filepath.Join("..", "..", "testdata", "tallowmere")
+	p := func(n string) string { return filepath.Join(d, n) }
+	out := filepath.Join(t.TempDir(), "o.csv")
+	for _, args := range [][]string{
+		{"convert", "--collars", p("collars.csv"), "--surveys", p("surveys.csv"), "--structures", p("structures.csv"), "-o", out},
+		{"qa", "--collars", p("collars.csv"), "--surveys", p("surveys.csv"), "--structures", p("structures.csv"), "--runs", p("runs.csv"), "-o", out},
+	} {
+		code, _, stderr := runCLI(args...)
+		if code != ExitOK || strings.Contains(stderr, "\r") || strings.Contains(stderr, "rows/s") {
+			t.Errorf("%s: exit %d, stderr %q", args[0], code, stderr)
+		}
+	}
+}

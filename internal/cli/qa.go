@@ -16,6 +16,7 @@ import (
 	"corvane/internal/coreangle"
 	"corvane/internal/csvio"
 	"corvane/internal/desurvey"
+	"corvane/internal/progress"
 	"corvane/internal/qa"
 	"corvane/internal/qa/qapage"
 	"corvane/internal/uncertainty"
@@ -188,7 +189,7 @@ func runQA(_ context.Context, env *Env, args []string) int {
 		return ExitUsage
 	}
 
-	in, rejected, err := readQAInput(*collars, *surveys, *structures, *runsF, *picks, *outRef, givenOrNaN(decl), givenOrNaN(conv), *feet)
+	in, rejected, err := readQAInput(*collars, *surveys, *structures, *runsF, *picks, *outRef, givenOrNaN(decl), givenOrNaN(conv), *feet, env.Stderr)
 	if err != nil {
 		reportAll(env, "qa", err)
 		return ExitUsage
@@ -223,10 +224,11 @@ func runQA(_ context.Context, env *Env, args []string) int {
 	return ExitOK
 }
 
-// readQAInput reads the files. Whole-file problems (missing files or
+// readQAInput reads the files, showing the progress of the structures on
+// stderr when it is a terminal. Whole-file problems (missing files or
 // columns, bad collar, survey, run or pick rows) are errors; bad structure
 // rows become findings in the report and are counted in rejected.
-func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl, conv float64, feet bool) (in qa.Input, rejected int, err error) {
+func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl, conv float64, feet bool, stderr io.Writer) (in qa.Input, rejected int, err error) {
 	open := func(name string) (*os.File, error) {
 		f, err := os.Open(name)
 		if err != nil {
@@ -321,7 +323,13 @@ func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl,
 		return in, 0, err
 	}
 	defer f.Close()
-	sr, err := csvio.NewStructureReader(f, structures)
+	var size int64
+	if fi, err := f.Stat(); err == nil {
+		size = fi.Size()
+	}
+	meter := progress.New(stderr, "corvane qa: reading "+structures, size)
+	defer meter.Done()
+	sr, err := csvio.NewStructureReader(meter.Reader(f), structures)
 	if err != nil {
 		return in, 0, err
 	}

@@ -5,6 +5,7 @@ import (
 	"context"
 	"encoding/json"
 	"fmt"
+	"io"
 	"math"
 	"os"
 	"path/filepath"
@@ -157,7 +158,7 @@ func TestQAInputFeetElevation(t *testing.T) {
 	if atM.Declination == atFt.Declination {
 		t.Fatalf("declination %v does not depend on elevation here: the check below could not fail", atM.Declination)
 	}
-	in, _, err := readQAInput(p("collars.csv"), p("surveys.csv"), p("structures.csv"), p("runs.csv"), p("picks.csv"), "true", math.NaN(), math.NaN(), true)
+	in, _, err := readQAInput(p("collars.csv"), p("surveys.csv"), p("structures.csv"), p("runs.csv"), p("picks.csv"), "true", math.NaN(), math.NaN(), true, io.Discard)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -182,7 +183,7 @@ func TestQAHoleProblems(t *testing.T) {
 		"KW1,30,70,-60,grid\nKW1,60,70,-60,grid\nKW2,30,70,-60,grid\nKW2,90,70,-60,grid\nKW3,30,70,-60,magnetic\n"), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	in, _, err := readQAInput(p("collars.csv"), p("surveys.csv"), p("structures.csv"), p("runs.csv"), "", "grid", math.NaN(), 0, false) // --grid-convergence 0
+	in, _, err := readQAInput(p("collars.csv"), p("surveys.csv"), p("structures.csv"), p("runs.csv"), "", "grid", math.NaN(), 0, false, io.Discard) // --grid-convergence 0
 	if err != nil {
 		t.Fatalf("one hole's station refused the whole input: %v", err)
 	}
