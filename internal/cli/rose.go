@@ -20,7 +20,7 @@ func init() {
 }
 
 const roseUsage = `Usage:
-  corvane rose --in FILE -o ROSE.svg [--of dip-direction|strike|trend] [--bin DEG]
+  corvane rose --in FILE -o ROSE.svg [--of dip_direction|strike|trend] [--bin DEG]
                [--min-dip DEG] [--weighting terzaghi[:CAP]] [--type TYPE]
 
 Draws a rose diagram from the same CSV as corvane stats: dip directions of planes
@@ -41,7 +41,7 @@ func runRose(_ context.Context, env *Env, args []string) int {
 	}
 	var c orientFlags
 	c.register(fs, false)
-	fs.StringVar(&c.of, "of", "dip-direction", "dip-direction, strike or trend")
+	fs.StringVar(&c.of, "of", fabric.RoseDipDirection, "dip_direction (or dip-direction), strike or trend")
 	bin := fs.Float64("bin", fabric.DefaultBin, "bin width in degrees (must divide 180)")
 	minDip := fs.Float64("min-dip", 0, "leave out planes dipping less than this")
 	title := fs.String("title", "", "title on the sheet")

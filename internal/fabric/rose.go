@@ -5,6 +5,7 @@ import (
 	"strconv"
 
 	"corvane/internal/netsvg"
+	"corvane/internal/words"
 )
 
 // Rose quantities.
@@ -29,14 +30,17 @@ type RoseOptions struct {
 }
 
 // ParseRose reads the rose options: of "" (dip_direction), "dip_direction"
-// (also spelt dip-direction), "strike" or "trend"; the bin width must be
-// one netsvg.CheckBinWidth takes (1 to 90 degrees, dividing 180); min_dip is
-// 0..90.
+// (also spelt dip-direction, see words.Option), "strike" or "trend"; the
+// bin width must be one netsvg.CheckBinWidth takes (1 to 90 degrees,
+// dividing 180); min_dip is 0..90.
 func ParseRose(of string, bin, minDip float64) (string, float64, float64, error) {
-	switch of {
-	case "", "dip-direction", RoseDipDirection:
+	switch words.Option(of) {
+	case "", "dip-direction":
 		of = RoseDipDirection
-	case RoseStrike, RoseTrend:
+	case RoseStrike:
+		of = RoseStrike
+	case RoseTrend:
+		of = RoseTrend
 	default:
 		return "", 0, 0, optErr("of", of, "want dip_direction, strike or trend")
 	}

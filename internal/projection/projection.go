@@ -11,7 +11,8 @@
 //	equal-angle: r = tan(t/2)
 //	x = r sin T, y = r cos T
 //
-// projection imports only the standard library and internal/geom.
+// projection imports only the standard library, internal/geom and
+// internal/words.
 package projection
 
 import (
@@ -19,6 +20,7 @@ import (
 	"math"
 
 	"corvane/internal/geom"
+	"corvane/internal/words"
 )
 
 // Kind is a net projection.
@@ -41,9 +43,10 @@ func (k Kind) String() string {
 	return fmt.Sprintf("Kind(%d)", int(k))
 }
 
-// Parse returns the Kind named s ("equal-area" or "equal-angle").
+// Parse returns the Kind named s ("equal-area" or "equal-angle"; case, and
+// "_" for "-", do not matter: see words.Option).
 func Parse(s string) (Kind, error) {
-	switch s {
+	switch words.Option(s) {
 	case "equal-area", "":
 		return EqualArea, nil
 	case "equal-angle":

@@ -15,3 +15,11 @@ func TestPlural(t *testing.T) {
 		t.Error("Noun")
 	}
 }
+
+func TestOption(t *testing.T) {
+	for _, s := range []string{"dip_direction", "dip-direction", " Dip_Direction "} {
+		if Option(s) != "dip-direction" {
+			t.Errorf("Option(%q) = %q", s, Option(s))
+		}
+	}
+}
