@@ -483,8 +483,11 @@ func (s *Server) listMeasurements(c *gin.Context) {
 }
 
 // measurementInput is what a client sends to log or replace a measurement.
+// The hole is given by its id (hole_id) or its name (hole, as in the CSV's
+// hole_id column); with both they must name the same hole.
 type measurementInput struct {
 	HoleID            int64    `json:"hole_id"`
+	Hole              string   `json:"hole"`
 	Depth             float64  `json:"depth"`
 	Alpha             float64  `json:"alpha"`
 	Beta              float64  `json:"beta"`
@@ -495,15 +498,28 @@ type measurementInput struct {
 	LoggedBy          string   `json:"logged_by"`
 }
 
-func (s *Server) measurementIn(c *gin.Context) (domain.Measurement, error) {
+func (s *Server) measurementIn(c *gin.Context, pid int64) (domain.Measurement, error) {
 	var in measurementInput
 	if err := s.decodeEcho(c, &in, service.MeasurementView{}); err != nil {
 		return domain.Measurement{}, err
 	}
+	if in.Hole != "" {
+		id, err := s.opt.Service.ResolveHole(c.Request.Context(), pid, service.HoleNamePrefix+in.Hole)
+		if domain.IsKind(err, domain.NotFound) {
+			return domain.Measurement{}, domain.FieldErr("hole", "no hole named %q in project %d", in.Hole, pid)
+		}
+		if err != nil {
+			return domain.Measurement{}, err
+		}
+		if in.HoleID != 0 && in.HoleID != id {
+			return domain.Measurement{}, domain.FieldErr("hole", "hole %q is hole_id %d, not %d: give one of them", in.Hole, id, in.HoleID)
+		}
+		in.HoleID = id
+	}
 	m := domain.Measurement{HoleID: in.HoleID, Depth: in.Depth, Alpha: in.Alpha, Beta: in.Beta, Gamma: in.Gamma,
 		TypeCode: in.Type, ApparentThickness: in.ApparentThickness, Comment: in.Comment, LoggedBy: in.LoggedBy}
 	if in.HoleID <= 0 {
-		return m, domain.FieldErr("hole_id", "hole_id (the id of a hole of this project) is required")
+		return m, domain.FieldErr("hole_id", "hole_id (the id of a hole of this project) or hole (its name) is required")
 	}
 	return m, nil
 }
@@ -514,7 +530,7 @@ func (s *Server) createMeasurement(c *gin.Context) {
 		fail(c, err)
 		return
 	}
-	m, err := s.measurementIn(c)
+	m, err := s.measurementIn(c, pid)
 	if err != nil {
 		fail(c, err)
 		return
@@ -555,7 +571,7 @@ func (s *Server) updateMeasurement(c *gin.Context) {
 		fail(c, err)
 		return
 	}
-	m, err := s.measurementIn(c)
+	m, err := s.measurementIn(c, pid)
 	if err != nil {
 		fail(c, err)
 		return

@@ -138,3 +138,29 @@ func TestImportDuplicatesOverHTTP(t *testing.T) {
 		t.Errorf("duplicates=twice: %d, want 422", p.Status)
 	}
 }
+
+// TestMeasurementByHoleName: a measurement may name its hole as the CSV
+// does; a name and an id that disagree are refused.
+func TestMeasurementByHoleName(t *testing.T) {
+	f := newFixture(t)
+	pid := f.project("HoleName", nil)
+	base := "/v1/projects/" + itoa(pid)
+	a := f.hole(pid, "HN-01", 0, -60)
+	b := f.hole(pid, "HN-02", 0, -60)
+	var m struct {
+		HoleID int64  `json:"hole_id"`
+		Hole   string `json:"hole"`
+	}
+	f.must(201, f.site, "POST", base+"/measurements", map[string]any{"hole": "HN-02", "depth": 5, "alpha": 45, "beta": 90, "type": "JN"}, &m)
+	if m.HoleID != b.ID || m.Hole != "HN-02" {
+		t.Errorf("logged by hole name: %+v, want hole %d", m, b.ID)
+	}
+	for _, body := range []map[string]any{
+		{"hole": "HN-02", "hole_id": a.ID, "depth": 6, "alpha": 45, "beta": 90, "type": "JN"},
+		{"hole": "HN-99", "depth": 6, "alpha": 45, "beta": 90, "type": "JN"},
+	} {
+		if p := f.do(f.site, "POST", base+"/measurements", body).problem(t); p.Status != 422 {
+			t.Errorf("%v: %d %s, want 422", body, p.Status, p.Detail)
+		}
+	}
+}
