@@ -14,6 +14,7 @@ import (
 	"corvane/internal/csvio"
 	"corvane/internal/desurvey"
 	"corvane/internal/progress"
+	"corvane/internal/words"
 )
 
 func init() {
@@ -274,8 +275,8 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 			return usageErr("writing the output: %v", err)
 		}
 	}
-	fmt.Fprintf(env.Stderr, "corvane convert: %d rows (%d with warnings, %d below the last survey station), %d with errors; azimuths referenced to %v north, convention %v\n",
-		sum.Rows, sum.WarnRows, sum.Extrapols, sum.BadRows, opt.Output, opt.Convention)
+	fmt.Fprintf(env.Stderr, "corvane convert: %s (%d with warnings, %d below the last survey station), %d with errors; azimuths referenced to %v north, convention %v\n",
+		words.Plural(sum.Rows, "row"), sum.WarnRows, sum.Extrapols, sum.BadRows, opt.Output, opt.Convention)
 	if sum.BadRows > 0 {
 		return ExitRows
 	}

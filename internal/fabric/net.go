@@ -9,6 +9,7 @@ import (
 	"corvane/internal/netsvg"
 	"corvane/internal/projection"
 	"corvane/internal/visual"
+	"corvane/internal/words"
 )
 
 // Show says what a net draws.
@@ -198,7 +199,7 @@ func Net(in Input, o NetOptions) (netsvg.Net, error) {
 			n.Lines = append(n.Lines, netsvg.Mark{Axis: a, Set: markSet(lines, i, lineOffset)})
 		}
 	}
-	notes := []string{fmt.Sprintf("%d rows", len(in.Rows))}
+	notes := []string{words.Plural(len(in.Rows), "row")}
 	notes = append(notes, skipNotes(skipped)...)
 	if o.Show.Density {
 		g, of := planes, "poles"
@@ -236,7 +237,7 @@ func Net(in Input, o NetOptions) (netsvg.Net, error) {
 		}
 	}
 	if in.Rejected > 0 {
-		notes = append(notes, fmt.Sprintf("%d rows rejected (see messages)", in.Rejected))
+		notes = append(notes, words.Plural(in.Rejected, "row")+" rejected (see messages)")
 	}
 	n.Notes = notes
 	return n, nil

@@ -94,16 +94,16 @@ func Rose(in Input, o RoseOptions) (netsvg.Rose, error) {
 			r.Weights = append(r.Weights, g.weights[i])
 		}
 	}
-	r.Notes = []string{fmt.Sprintf("%d rows: %d %s", len(in.Rows), len(g.axes), kind)}
+	r.Notes = []string{fmt.Sprintf("%s: %d %s", words.Plural(len(in.Rows), "row"), len(g.axes), kind)}
 	r.Notes = append(r.Notes, skipNotes(skipped)...)
 	if flat > 0 {
-		r.Notes = append(r.Notes, fmt.Sprintf("%d planes dipping less than %g left out", flat, minDip))
+		r.Notes = append(r.Notes, fmt.Sprintf("%s dipping less than %g left out", words.Plural(flat, "plane"), minDip))
 	}
 	if o.Weighting.On {
 		r.Notes = append(r.Notes, fmt.Sprintf("Terzaghi weights, cap %.3g", o.Weighting.Cap))
 	}
 	if in.Rejected > 0 {
-		r.Notes = append(r.Notes, fmt.Sprintf("%d rows rejected (see messages)", in.Rejected))
+		r.Notes = append(r.Notes, words.Plural(in.Rejected, "row")+" rejected (see messages)")
 	}
 	return r, nil
 }

@@ -8,6 +8,7 @@ import (
 
 	"corvane/internal/coreangle"
 	"corvane/internal/geom"
+	"corvane/internal/words"
 )
 
 // NoLogger names the logger of measurements that do not say who logged them.
@@ -88,8 +89,8 @@ func measurementChecks(h *holeData, conv coreangle.Convention, o Options, logger
 	if nv > 0 {
 		out = append(out, Finding{Check: CheckNearVertical, Severity: SeverityWarning, HoleID: id, Depth: nvFrom, DepthTo: nvTo, Size: float64(nv),
 			Source: "structures",
-			Message: fmt.Sprintf("%d measurements between %.1f and %.1f lie where the hole is within %.0f deg of vertical: gravity-based orientation marks are unreliable there",
-				nv, nvFrom, nvTo, o.NearVertical)})
+			Message: fmt.Sprintf("%s between %.1f and %.1f %s where the hole is within %.0f deg of vertical: gravity-based orientation marks are unreliable there",
+				words.Plural(nv, "measurement"), nvFrom, nvTo, map[bool]string{true: "lies", false: "lie"}[nv == 1], o.NearVertical)})
 	}
 
 	// Outside any run (grouped into stretches between runs) and in unusable runs.
@@ -115,7 +116,7 @@ func measurementChecks(h *holeData, conv coreangle.Convention, o Options, logger
 		hr.OutsideRuns += cnt
 		out = append(out, Finding{Check: CheckOutsideRun, Severity: SeverityWarning, HoleID: id, Depth: x.m.Depth, DepthTo: h.ms[j].m.Depth,
 			Size: float64(cnt), Source: "structures", Line: x.m.Line, ID: x.m.ID,
-			Message: fmt.Sprintf("%d measurements between %.2f and %.2f lie outside any orientation run: their beta has no mark to refer to", cnt, x.m.Depth, h.ms[j].m.Depth)})
+			Message: outsideRunMessage(cnt, x.m.Depth, h.ms[j].m.Depth)})
 		i = j
 	}
 	for r, n := range inUnusable {
@@ -123,7 +124,9 @@ func measurementChecks(h *holeData, conv coreangle.Convention, o Options, logger
 			run := h.runs[r]
 			out = append(out, Finding{Check: CheckUnusableRun, Severity: SeverityWarning, HoleID: id, Depth: run.From, DepthTo: run.To,
 				Size: float64(n), Source: "runs", Line: run.Line, ID: run.ID,
-				Message: fmt.Sprintf("%d measurements lie in the run %.2f-%.2f rated %q (unusable): their orientations cannot be trusted", n, run.From, run.To, run.Confidence)})
+				Message: fmt.Sprintf("%s in the run %.2f-%.2f rated %q (unusable): %s cannot be trusted",
+					map[bool]string{true: "1 measurement lies", false: fmt.Sprintf("%d measurements lie", n)}[n == 1], run.From, run.To, run.Confidence,
+					map[bool]string{true: "its orientation", false: "their orientations"}[n == 1])})
 		}
 	}
 
@@ -170,4 +173,13 @@ func loggerChecks(loggers map[string]*loggerData, o Options) ([]DigitTest, []Bet
 		zeros = append(zeros, betaZeroTest(n, l.beta, o.BetaZeroP, o.BetaZeroShare))
 	}
 	return digits, zeros
+}
+
+// outsideRunMessage says that n measurements from depth a to b lie outside
+// any orientation run.
+func outsideRunMessage(n int, a, b float64) string {
+	if n == 1 {
+		return fmt.Sprintf("1 measurement at %.2f lies outside any orientation run: its beta has no mark to refer to", a)
+	}
+	return fmt.Sprintf("%d measurements between %.2f and %.2f lie outside any orientation run: their beta has no mark to refer to", n, a, b)
 }

@@ -224,8 +224,9 @@ const (
 
 func writeHole(b *strings.Builder, h *qa.HoleReport, r qa.Report) {
 	fmt.Fprintf(b, "<h2 id=\"hole-%s\">%s</h2>", esc(h.HoleID), esc(h.HoleID))
-	fmt.Fprintf(b, "<p class=\"sub\">collar azimuth %.1f, dip %.1f, final depth %.1f &middot; %d measurements &middot; oriented %s, with confidence %s &middot; %d flags, %d warnings",
-		h.Azimuth, h.Dip, h.Depth, h.Measurements, pct(h.Coverage.OrientedShare), pct(h.Coverage.ConfidentShare), h.Flags, h.Warnings)
+	fmt.Fprintf(b, "<p class=\"sub\">collar azimuth %.1f, dip %.1f, final depth %.1f &middot; %s &middot; oriented %s, with confidence %s &middot; %s, %s",
+		h.Azimuth, h.Dip, h.Depth, words.Plural(h.Measurements, "measurement"), pct(h.Coverage.OrientedShare), pct(h.Coverage.ConfidentShare),
+		words.Plural(h.Flags, "flag"), words.Plural(h.Warnings, "warning"))
 	if h.Fabric != nil {
 		fmt.Fprintf(b, " &middot; %s pole %03.0f/%02.0f (n = %d)", esc(r.Options.PersistentType), h.Fabric.Trend, h.Fabric.Plunge, h.FabricN)
 	}
@@ -303,8 +304,8 @@ func writeStrip(b *strings.Builder, h *qa.HoleReport, fs []qa.Finding) {
 	for _, run := range h.Runs {
 		fill := runFill(run)
 		w := math.Max(x(run.To)-x(run.From), 0.6)
-		fmt.Fprintf(b, `<rect x="%.2f" y="%.1f" width="%.2f" height="%.1f" fill="%s" stroke="#fff" stroke-width="0.4"><title>run %.2f-%.2f: %s (%d measurements)</title></rect>`,
-			x(run.From), yRuns, w, laneRuns, fill, run.From, run.To, esc(run.Confidence), run.Measurements)
+		fmt.Fprintf(b, `<rect x="%.2f" y="%.1f" width="%.2f" height="%.1f" fill="%s" stroke="#fff" stroke-width="0.4"><title>run %.2f-%.2f: %s (%s)</title></rect>`,
+			x(run.From), yRuns, w, laneRuns, fill, run.From, run.To, esc(run.Confidence), words.Plural(run.Measurements, "measurement"))
 	}
 	// Rotation lane: bars from a zero line, scale +-60 deg (clipped).
 	label(yRot+12, "mark rotation")
