@@ -18,6 +18,7 @@ import (
 	"corvane/internal/geotech"
 	"corvane/internal/netsvg"
 	"corvane/internal/structdomain"
+	"corvane/internal/words"
 )
 
 // domainFlags collects repeated --domain NAME=HOLE[:FROM..TO],...[;rock=A|B].
@@ -171,7 +172,7 @@ func readTypedRows(env *Env, path, typ string, opt csvio.OrientationOptions) ([]
 	}
 	kept := rows[:0]
 	for _, row := range rows {
-		if typ == "" || strings.EqualFold(row.Type, typ) {
+		if typ == "" || words.SameCode(row.Type, typ) {
 			kept = append(kept, row)
 		}
 	}

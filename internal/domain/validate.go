@@ -11,6 +11,7 @@ import (
 	"unicode/utf8"
 
 	"corvane/internal/visual"
+	"corvane/internal/words"
 )
 
 func finite(x float64) bool { return !math.IsNaN(x) && !math.IsInf(x, 0) }
@@ -174,9 +175,8 @@ func checkOptRange(field string, v *float64, lo, hi float64) *Error {
 // the one stored and shown. A project cannot hold two codes that differ only
 // in case.
 func FindTypeCode(vocab []TypeCode, code string) (TypeCode, bool) {
-	code = strings.TrimSpace(code)
 	for _, tc := range vocab {
-		if strings.EqualFold(tc.Code, code) {
+		if words.SameCode(tc.Code, code) {
 			return tc, true
 		}
 	}

@@ -3,7 +3,6 @@ package qa
 import (
 	"fmt"
 	"math"
-	"strings"
 	"sync"
 
 	"corvane/internal/coreangle"
@@ -358,7 +357,7 @@ func rotationChecks(h *holeData, conv coreangle.Convention, o Options, readSD fu
 	}
 	var holeT tensor
 	for _, x := range h.ms {
-		if !x.ok || x.run < 0 || hr.Runs[x.run].Class == ClassUnusable || !strings.EqualFold(strings.TrimSpace(x.m.Type), o.PersistentType) {
+		if !x.ok || x.run < 0 || hr.Runs[x.run].Class == ClassUnusable || !words.SameCode(x.m.Type, o.PersistentType) {
 			continue
 		}
 		sa, sb := readSD(x.m.Logger)

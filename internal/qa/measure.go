@@ -139,7 +139,7 @@ func measurementChecks(h *holeData, conv coreangle.Convention, o Options, logger
 		for a := i; a < j; a++ {
 			for b := a + 1; b <= j; b++ {
 				ma, mb := h.ms[a].m, h.ms[b].m
-				if ma.Alpha == mb.Alpha && ma.Beta == mb.Beta && strings.EqualFold(ma.Type, mb.Type) {
+				if ma.Alpha == mb.Alpha && ma.Beta == mb.Beta && words.SameCode(ma.Type, mb.Type) {
 					out = append(out, Finding{Check: CheckDuplicate, Severity: SeverityFlag, HoleID: id, Depth: mb.Depth,
 						Source: "structures", Line: mb.Line, ID: mb.ID, Logger: mb.Logger,
 						Message: fmt.Sprintf("measurement at %.2f (alpha %g, beta %g) repeats the one on line %d", mb.Depth, mb.Alpha, mb.Beta, ma.Line)})

@@ -28,3 +28,10 @@ func Noun(n int, word string) string {
 	}
 	return word + "s"
 }
+
+// SameCode reports whether two type codes are the same code: codes match
+// without regard to case or surrounding space, everywhere (imports, the API,
+// filters, the commands, QA).
+func SameCode(a, b string) bool {
+	return strings.EqualFold(strings.TrimSpace(a), strings.TrimSpace(b))
+}

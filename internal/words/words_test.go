@@ -23,3 +23,9 @@ func TestOption(t *testing.T) {
 		}
 	}
 }
+
+func TestSameCode(t *testing.T) {
+	if !SameCode("Joint", " joint") || SameCode("joint", "joints") {
+		t.Error("SameCode")
+	}
+}
