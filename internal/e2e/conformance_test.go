@@ -411,8 +411,8 @@ func importProject(t *testing.T, s *server, prefix string, pg programme, files .
 	var p struct{ ID int64 }
 	s.mustJSON(t, 201, "POST", "/v1/projects", body, &p)
 	base := fmt.Sprintf("/v1/projects/%d", p.ID)
-	s.mustJSON(t, 200, "PUT", base+"/types/BD", map[string]string{"description": "bedding", "kind": "plane"}, nil)
-	s.mustJSON(t, 200, "PUT", base+"/types/LN", map[string]string{"description": "lineation", "kind": "line"}, nil)
+	s.mustJSON(t, 201, "PUT", base+"/types/BD", map[string]string{"description": "bedding", "kind": "plane"}, nil)
+	s.mustJSON(t, 201, "PUT", base+"/types/LN", map[string]string{"description": "lineation", "kind": "line"}, nil)
 	for _, f := range files {
 		s.mustJSON(t, 201, "POST", base+"/imports/"+f[0], f[1], nil)
 	}
