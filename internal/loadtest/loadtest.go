@@ -186,7 +186,7 @@ func Run(ctx context.Context, cfg Config) (Result, error) {
 	}
 	if code == "" {
 		code = "LOADJT"
-		if err := c.json(ctx, 200, "PUT", p+"/types/"+code, map[string]string{"description": "load test joint", "kind": "plane"}, nil); err != nil {
+		if err := c.json(ctx, 201, "PUT", p+"/types/"+code, map[string]string{"description": "load test joint", "kind": "plane"}, nil); err != nil {
 			return Result{}, err
 		}
 	}
