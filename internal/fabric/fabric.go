@@ -23,6 +23,7 @@ import (
 	"strconv"
 
 	"corvane/internal/geom"
+	"corvane/internal/jsonnum"
 )
 
 // Caution is shown with every statistics report, net and rose.
@@ -125,11 +126,7 @@ func (v Num) MarshalJSON() ([]byte, error) {
 	if math.IsNaN(f) || math.IsInf(f, 0) {
 		return []byte("null"), nil
 	}
-	f = math.Round(f*1e6) / 1e6
-	if f == 0 {
-		f = 0 // no -0
-	}
-	return strconv.AppendFloat(nil, f, 'f', -1, 64), nil
+	return strconv.AppendFloat(nil, jsonnum.Round(f), 'f', -1, 64), nil
 }
 
 func nptr(v float64) *Num { n := Num(v); return &n }

@@ -35,6 +35,7 @@ var pure = map[string]bool{
 	"corvane/internal/kinematic":    true,
 	"corvane/internal/geotech":      true,
 	"corvane/internal/words":        true,
+	"corvane/internal/jsonnum":      true,
 	"corvane/internal/palette":      true,
 	// Transfer formats: neutral inputs and their writers/readers.
 	"corvane/internal/exchange":              true,

@@ -1,8 +1,10 @@
 package qa
 
 import (
+	"encoding/json"
 	"math"
 	"math/rand/v2"
+	"strings"
 	"testing"
 
 	"gonum.org/v1/gonum/mat"
@@ -283,5 +285,18 @@ func TestCoverageRounded(t *testing.T) {
 	c.shares()
 	if c.Length != 0.3 || c.Unusable != 72.65 {
 		t.Errorf("coverage %v, %v; want 0.3, 72.65", c.Length, c.Unusable)
+	}
+}
+
+// TestReportJSONRounded: the report's numbers are rounded to 1e-6 at every
+// door (Report.MarshalJSON, jsonnum.RoundAll).
+func TestReportJSONRounded(t *testing.T) {
+	r := Report{Summary: Summary{Coverage: Coverage{Length: 0.9999999999999999, Unusable: -1e-9}}}
+	b, err := json.Marshal(r)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if s := string(b); !strings.Contains(s, `"length":1,`) || !strings.Contains(s, `"unusable":0`) || strings.Contains(s, "99999") {
+		t.Errorf("report JSON not rounded: %s", s)
 	}
 }

@@ -1,6 +1,11 @@
 package qa
 
-import "corvane/internal/desurvey"
+import (
+	"encoding/json"
+
+	"corvane/internal/desurvey"
+	"corvane/internal/jsonnum"
+)
 
 // Caution is stated in every report: QA findings guide judgement, they do not
 // replace it.
@@ -358,4 +363,16 @@ type Report struct {
 	Digits     []DigitTest    `json:"digit_preference"`
 	BetaZero   []BetaZeroTest `json:"beta_zero"`
 	Findings   []Finding      `json:"findings"`
+}
+
+// MarshalJSON writes the report with every number rounded to 1e-6
+// (jsonnum.RoundAll), so every door gives the same figures without
+// floating-point noise such as 0.9999999999999999.
+func (r Report) MarshalJSON() ([]byte, error) {
+	type plain Report
+	b, err := json.Marshal(plain(r))
+	if err != nil {
+		return nil, err
+	}
+	return jsonnum.RoundAll(b)
 }
