@@ -37,7 +37,7 @@ func (s *Server) holePath(c *gin.Context) {
 
 // previewHole orients unsaved angles against the stored hole.
 func (s *Server) previewHole(c *gin.Context) {
-	pid, hid, err := ids(c, "hole")
+	pid, hid, err := s.holeIDs(c)
 	if err != nil {
 		fail(c, err)
 		return
