@@ -125,7 +125,7 @@ func runQA(_ context.Context, env *Env, args []string) int {
 	fs.IntVar(&o.Neighbours, "neighbours", def.Neighbours, "runs on each side forming the neighbours' reference")
 	fs.Float64Var(&o.RotationTolerance, "rotation-tolerance", def.RotationTolerance, "mark rotation: flag when the 95% interval excludes zero by more than this, degrees")
 	fs.IntVar(&o.MinReference, "min-reference", def.MinReference, "mark rotation: poles the neighbours must hold, else the hole-wide fabric is the reference")
-	errModel := fs.String("error-model", "", "JSON file of standard errors in degrees (alpha, beta, gamma, mark_good, mark_fair, mark_poor, mark_unrated, magnetic/gyro/unknown {azimuth, dip}); absent fields take the defaults")
+	errModel := fs.String("error-model", "", errorModelUsage)
 	fs.Float64Var(&o.RotationThreshold, "rotation-threshold", def.RotationThreshold, "reference picks: beta offset to flag, degrees")
 	fs.IntVar(&o.MinRunCount, "min-run-count", def.MinRunCount, "reference picks: matches a run's flag must rest on")
 	fs.Float64Var(&o.DoglegThreshold, "dogleg-threshold", def.DoglegThreshold, "dogleg severity to flag, degrees per 30 m (per 100 ft with --feet)")
@@ -171,18 +171,9 @@ func runQA(_ context.Context, env *Env, args []string) int {
 	}
 	o.PersistentType = strings.TrimSpace(*persistent)
 	o.Feet = *feet
-	if *errModel != "" {
-		f, err := os.Open(*errModel)
-		if err != nil {
-			fmt.Fprintf(env.Stderr, "corvane qa: --error-model: %v\n", err)
-			return ExitUsage
-		}
-		o.Errors, err = uncertainty.ReadModel(f)
-		f.Close()
-		if err != nil {
-			fmt.Fprintf(env.Stderr, "corvane qa: --error-model %s: %v\n", *errModel, err)
-			return ExitUsage
-		}
+	if o.Errors, err = readErrorModel(*errModel); err != nil {
+		fmt.Fprintf(env.Stderr, "corvane qa: %v\n", err)
+		return ExitUsage
 	}
 	if err := o.Check(); err != nil {
 		fmt.Fprintf(env.Stderr, "corvane qa: %v\n", err)
@@ -366,4 +357,24 @@ func givenOrNaN(g convert.Given) float64 {
 		return math.NaN()
 	}
 	return g.Value
+}
+
+// errorModelUsage is the help of every command's --error-model option.
+const errorModelUsage = "JSON file of standard errors in degrees (alpha, beta, gamma, mark_good, mark_fair, mark_poor, mark_unrated, magnetic/gyro/unknown {azimuth, dip}); absent fields take the defaults"
+
+// readErrorModel reads the --error-model file; "" is the default model.
+func readErrorModel(path string) (uncertainty.Model, error) {
+	if path == "" {
+		return uncertainty.Model{}, nil
+	}
+	f, err := os.Open(path)
+	if err != nil {
+		return uncertainty.Model{}, fmt.Errorf("--error-model: %w", err)
+	}
+	defer f.Close()
+	m, err := uncertainty.ReadModel(f)
+	if err != nil {
+		return uncertainty.Model{}, fmt.Errorf("--error-model %s: %w", path, err)
+	}
+	return m, nil
 }

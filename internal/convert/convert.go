@@ -5,12 +5,14 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"runtime"
 	"strings"
 
 	"corvane/internal/csvio"
 	"corvane/internal/domain"
 	"corvane/internal/holemodel"
+	"corvane/internal/uncertainty"
 )
 
 // Measurement is one core-angle measurement to convert.
@@ -71,8 +73,21 @@ const (
 	ColDeclinationSource = "declination_source"
 	ColGridConvergence   = "grid_convergence"
 	ColConvergenceSource = "convergence_source"
+	ColPoleCone95        = "pole_cone95"
+	ColPoleLong95        = "pole_long95"
+	ColPoleShort95       = "pole_short95"
+	ColPoleMethod        = "pole_method"
+	ColLineCone95        = "line_cone95"
+	ColLineLong95        = "line_long95"
+	ColLineShort95       = "line_short95"
+	ColLineMethod        = "line_method"
 	ColError             = "error"
 )
+
+// UncertaintyColumns are the columns of a measurement's 95% regions (see
+// [WriteResult]).
+var UncertaintyColumns = []string{ColPoleCone95, ColPoleLong95, ColPoleShort95, ColPoleMethod,
+	ColLineCone95, ColLineLong95, ColLineShort95, ColLineMethod}
 
 // OutputColumns returns the columns Convert appends to the input columns.
 func OutputColumns(thickness bool) []string {
@@ -81,7 +96,9 @@ func OutputColumns(thickness bool) []string {
 	if thickness {
 		cols = append(cols, ColTrueThickness)
 	}
-	return append(cols, ColAzimuthReference, ColDeclination, ColDeclinationSource, ColGridConvergence, ColConvergenceSource, ColError)
+	cols = append(cols, ColAzimuthReference, ColDeclination, ColDeclinationSource, ColGridConvergence, ColConvergenceSource)
+	cols = append(cols, UncertaintyColumns...)
+	return append(cols, ColError)
 }
 
 // Decimals written in the output: angles to 0.01 degree, positions and
@@ -101,7 +118,8 @@ func Decimals(col string) int {
 		return lengthDecimals
 	case ColDeclination, ColGridConvergence:
 		return correctionDecimals
-	case ColHoleAzimuth, ColHoleDip, ColDip, ColDipDirection, ColStrike, ColLineTrend, ColLinePlunge, ColPoleTrend, ColPolePlunge:
+	case ColHoleAzimuth, ColHoleDip, ColDip, ColDipDirection, ColStrike, ColLineTrend, ColLinePlunge, ColPoleTrend, ColPolePlunge,
+		ColPoleCone95, ColPoleLong95, ColPoleShort95, ColLineCone95, ColLineLong95, ColLineShort95:
 		return angleDecimals
 	}
 	return -1
@@ -268,8 +286,9 @@ func (cv *converter) start(workers int) *pipeline {
 	go cv.read(p)
 	for i := 0; i < workers; i++ {
 		go func() {
+			ms := cv.hs.measurer.Fork() // the worker's own buffers, the normals shared
 			for b := range p.work {
-				cv.convert(b)
+				cv.convert(b, ms)
 				close(b.done)
 			}
 		}()
@@ -325,8 +344,9 @@ func (cv *converter) read(p *pipeline) {
 	}
 }
 
-// convert parses, converts and formats the rows of b into b.out.
-func (cv *converter) convert(b *batch) {
+// convert parses, converts and formats the rows of b into b.out, measuring
+// uncertainty with ms.
+func (cv *converter) convert(b *batch, ms *uncertainty.Measurer) {
 	cw := b.out
 	cw.Reset()
 	b.sum = Summary{}
@@ -418,7 +438,11 @@ func (cv *converter) convert(b *batch) {
 		if res.Point.Extrapolated {
 			sum.Extrapols++
 		}
-		b.tail = WriteResult(cw, &res, last.Hole, cv.thick, Warnings(&res, last.Hole), last.tail, b.tail)
+		var u *uncertainty.Result
+		if ur, ok := last.Uncertainty(ms, cv.hs.opt.ErrorModel, &res, m.Measurement, "", math.NaN()); ok {
+			u = &ur
+		}
+		b.tail = WriteResult(cw, &res, last.Hole, cv.thick, Warnings(&res, last.Hole), last.tail, b.tail, u)
 		cw.Empty() // error
 		cw.EndRow()
 	}
@@ -458,9 +482,11 @@ func writeEmpty(cw *csvio.Writer, n int) {
 // (error) for result r of a measurement on hole h: the one writer of
 // oriented measurements, used by `corvane convert` and the service's CSV
 // export. warn is the warnings cell (see [Warnings]); tail, when not nil,
-// is the hole's formatted correction columns ([AppendCorrections]);
-// scratch is reused and returned.
-func WriteResult(cw *csvio.Writer, r *holemodel.Result, h *holemodel.Hole, thick bool, warn string, tail, scratch []byte) []byte {
+// is the hole's formatted correction columns ([AppendCorrections]); u is
+// the measurement's uncertainty (holemodel.Hole.Uncertainty), nil when it
+// has none (a vertical hole): the sizes of the region in use and which
+// method gave it; scratch is reused and returned.
+func WriteResult(cw *csvio.Writer, r *holemodel.Result, h *holemodel.Hole, thick bool, warn string, tail, scratch []byte, u *uncertainty.Result) []byte {
 	cw.Float(r.HoleAzimuth, angleDecimals)
 	cw.Float(r.HoleDip, angleDecimals)
 	cw.Float(r.Point.Pos.X, lengthDecimals)
@@ -489,7 +515,27 @@ func WriteResult(cw *csvio.Writer, r *holemodel.Result, h *holemodel.Hole, thick
 		scratch = AppendCorrections(scratch[:0], h.Output, r.Declination, r.Convergence)
 		cw.Raw(scratch)
 	}
+	var ue, le *uncertainty.Estimate
+	if u != nil {
+		ue, le = &u.Pole, u.Line
+	}
+	writeEstimate(cw, ue)
+	writeEstimate(cw, le)
 	return scratch
+}
+
+// writeEstimate writes the cone, long and short semi-axes of the region in
+// use and its method, all empty for nil.
+func writeEstimate(cw *csvio.Writer, e *uncertainty.Estimate) {
+	if e == nil {
+		writeEmpty(cw, 4)
+		return
+	}
+	g := e.Region()
+	cw.Float(g.Cone95, angleDecimals)
+	cw.Float(g.Long95, angleDecimals)
+	cw.Float(g.Short95, angleDecimals)
+	cw.String(e.Used)
 }
 
 // WriteError writes the derived columns of a row that could not be

@@ -20,6 +20,7 @@
 package convert
 
 import (
+	"corvane/internal/uncertainty"
 	"fmt"
 	"io"
 	"math"
@@ -87,6 +88,11 @@ type Options struct {
 	// NoCompute turns off computing missing corrections with package
 	// northref; a hole that needs one then has an error.
 	NoCompute bool
+	// ErrorModel is the project's error model for the uncertainty columns
+	// (zero: the defaults of package uncertainty). Structures files carry
+	// no runs, so every measurement's mark takes the error of an unrated
+	// run.
+	ErrorModel uncertainty.Model
 	// File names used in messages.
 	CollarsFile, SurveysFile, StructuresFile string
 	// Workers is the number of goroutines that convert batches of structure
@@ -114,9 +120,10 @@ type Hole struct {
 // Holes is a loaded programme: the desurveyed holes and the options.
 // It is immutable after Load and safe for concurrent use.
 type Holes struct {
-	opt   Options
-	holes map[string]*Hole
-	order []*Hole
+	opt      Options
+	measurer *uncertainty.Measurer // uncertainty.PerMeasurement's normals
+	holes    map[string]*Hole
+	order    []*Hole
 }
 
 // Hole returns the hole with the given id, or nil.
@@ -156,7 +163,7 @@ func Load(collars, surveys io.Reader, opt Options) (*Holes, error) {
 // built by package holemodel from the neutral input of [HoleInput].
 func Build(crows []csvio.CollarRow, srows []csvio.SurveyRow, opt Options) (*Holes, error) {
 	cf, sf := nameOr(opt.CollarsFile, "collars"), nameOr(opt.SurveysFile, "surveys")
-	hs := &Holes{opt: opt, holes: make(map[string]*Hole, len(crows))}
+	hs := &Holes{opt: opt, holes: make(map[string]*Hole, len(crows)), measurer: uncertainty.NewMeasurer(uncertainty.PerMeasurement)}
 	byHole := map[string][]csvio.SurveyRow{}
 	var problems []*domain.Error
 	idx := map[string]int{}
@@ -214,6 +221,9 @@ func HoleInput(c csvio.CollarRow, st []csvio.SurveyRow) holemodel.Input {
 		Declination: given(c.Declination), GridConvergence: given(c.GridConvergence)}
 	in.Stations = make([]holemodel.Station, len(st))
 	for i, s := range st {
+		if s.Instrument != "" {
+			in.Instrument = s.Instrument
+		}
 		in.Stations[i] = holemodel.Station{Depth: s.Station.Depth, Azimuth: s.Station.Azimuth, Dip: s.Station.Dip,
 			Ref: s.AzimuthRef, Date: s.Date, Line: s.Line}
 	}

@@ -1,6 +1,7 @@
 package csvio
 
 import (
+	"corvane/internal/uncertainty"
 	"io"
 	"math"
 	"math/bits"
@@ -93,13 +94,18 @@ type SurveyRow struct {
 	// Date is the survey date (survey_date column, YYYY-MM-DD); zero when
 	// not given.
 	Date time.Time
+	// Instrument is the kind of survey instrument (instrument column:
+	// magnetic, gyro or unknown), "" when not given. Every row of a hole
+	// that gives one must give the same.
+	Instrument uncertainty.Instrument
 }
 
 // SurveyColumns are the required columns of a surveys file.
 var SurveyColumns = []string{ColHoleID, ColDepth, ColAzimuth, ColDip}
 
 // ReadSurveys reads a whole surveys file: hole_id, depth (>= 0), azimuth
-// (0..360) and dip (-90..90); optional azimuth_reference and survey_date.
+// (0..360) and dip (-90..90); optional azimuth_reference, survey_date and
+// instrument (magnetic, gyro or unknown; one per hole).
 // The stations of each hole must come in strictly increasing depth order (the
 // holes may be interleaved). Errors as for [ReadCollars].
 func ReadSurveys(r io.Reader, file string) ([]SurveyRow, error) {
@@ -108,6 +114,11 @@ func ReadSurveys(r io.Reader, file string) ([]SurveyRow, error) {
 		line  int
 	}
 	prev := map[string]last{}
+	type named struct {
+		k    uncertainty.Instrument
+		line int
+	}
+	inst := map[string]named{} // the first row of each hole that names an instrument
 	return readRows(r, file, "survey", SurveyColumns, func(rw *row) SurveyRow {
 		line := rw.line
 		s := SurveyRow{Line: line, HoleID: rw.cell(ColHoleID)}
@@ -136,6 +147,17 @@ func ReadSurveys(r io.Reader, file string) ([]SurveyRow, error) {
 			s.AzimuthRef = ref
 		}
 		s.Date = rw.date(ColSurveyDate)
+		if c := rw.cell(ColInstrument); c != "" {
+			k, err := uncertainty.ParseInstrument(c)
+			if err != nil {
+				rw.fail(ColInstrument, "%v", err)
+			} else if p, seen := inst[s.HoleID]; seen && p.k != k {
+				rw.fail(ColInstrument, "instrument %q of hole %q differs from %q on line %d: one instrument per hole", k, s.HoleID, p.k, p.line)
+			} else if !seen {
+				inst[s.HoleID] = named{k, line}
+			}
+			s.Instrument = k
+		}
 		if rw.bad == nil {
 			prev[s.HoleID] = last{s.Station.Depth, line}
 		}

@@ -42,6 +42,7 @@ const (
 	ColAzimuthRef      = "azimuth_reference"
 	ColCRS             = "crs"
 	ColSurveyDate      = "survey_date"
+	ColInstrument      = "instrument"
 	ColAlpha           = "alpha"
 	ColBeta            = "beta"
 	ColGamma           = "gamma"

@@ -613,6 +613,25 @@ func checkForwardModel(t *testing.T, pg programme, rows []row, got []map[string]
 		if g[convert.ColAzimuthReference] != pg.out {
 			t.Errorf("%s: azimuth_reference %q, want %q", pg.name, g[convert.ColAzimuthReference], pg.out)
 		}
+		// Every measurement with a dip direction has a pole region (and a
+		// line region with gamma), positive, long >= short; in a vertical
+		// hole none (the dip direction is unknown, not uncertain).
+		for _, e := range []struct {
+			cone, long, short, method string
+			want                      bool
+		}{{convert.ColPoleCone95, convert.ColPoleLong95, convert.ColPoleShort95, convert.ColPoleMethod, !math.IsNaN(r.wantDD)},
+			{convert.ColLineCone95, convert.ColLineLong95, convert.ColLineShort95, convert.ColLineMethod, !math.IsNaN(r.wantTrend)}} {
+			if !e.want {
+				if g[e.cone] != "" || g[e.method] != "" {
+					t.Errorf("%s %s at %v: %s %q %q, want none", pg.name, r.hole, r.depth, e.cone, g[e.cone], g[e.method])
+				}
+				continue
+			}
+			if c, l, sh := val(g, e.cone), val(g, e.long), val(g, e.short); !(c > 0 && sh > 0 && l >= sh) ||
+				(g[e.method] != "first-order" && g[e.method] != "monte-carlo") {
+				t.Errorf("%s %s at %v: region %s/%s/%s by %q", pg.name, r.hole, r.depth, g[e.cone], g[e.long], g[e.short], g[e.method])
+			}
+		}
 		// Only what is applied is reported.
 		h := pg.hole(r.hole)
 		if needConv := (h.ref == "grid") != (pg.out == "grid") && h.ref != ""; needConv != (g[convert.ColConvergenceSource] != "none") {

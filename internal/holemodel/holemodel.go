@@ -48,6 +48,7 @@ import (
 	"corvane/internal/desurvey"
 	"corvane/internal/geom"
 	"corvane/internal/northref"
+	"corvane/internal/uncertainty"
 )
 
 // North references, in the words of the files and the API.
@@ -111,6 +112,9 @@ type Input struct {
 	SurveyDate time.Time
 	// Stations in increasing depth.
 	Stations []Station
+	// Instrument is the kind of survey instrument behind the stations, for
+	// the survey's share of each measurement's uncertainty; "" is unknown.
+	Instrument uncertainty.Instrument
 }
 
 // Project holds the choices every hole of a project shares.
@@ -565,4 +569,23 @@ func (h *Hole) CoreAngles(md float64, p geom.Plane) (alpha, beta float64, err er
 		return 0, 0, errorf(FieldDipDirection, "hole %q is vertical at depth %g: beta has no reference line, so the plane cannot be put on the core", h.In.ID, md)
 	}
 	return alpha, beta, nil
+}
+
+// Uncertainty returns the 95% regions of the pole and lineation of
+// measurement m, oriented by this hole as r, measured by ms. The standard
+// errors come from the project's error model em for the hole's survey
+// instrument and the run holding the measurement (its confidence rating,
+// "" when no run covers it, and its logged mismatch, NaN when none). ok is
+// false when the measurement has no regions: in a vertical hole its dip
+// direction is unknown, not uncertain. Every door that shows the
+// uncertainty of a measurement calls this, with ms from
+// uncertainty.PerMeasurement.
+func (h *Hole) Uncertainty(ms *uncertainty.Measurer, em uncertainty.Model, r *Result, m Measurement, confidence string, mismatch float64) (u uncertainty.Result, ok bool) {
+	rd := uncertainty.Reading{Hole: r.Point.Dir, Alpha: m.Alpha, Beta: m.Beta, Gamma: math.NaN(), Conv: h.conv,
+		Sigma: em.Sigmas(h.In.Instrument, confidence, mismatch, 0)}
+	if m.HasGamma {
+		rd.Gamma = m.Gamma
+	}
+	u, err := ms.Measure(rd)
+	return u, err == nil
 }

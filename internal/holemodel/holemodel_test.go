@@ -11,6 +11,7 @@ import (
 	"corvane/internal/coreangle"
 	"corvane/internal/desurvey"
 	"corvane/internal/northref"
+	"corvane/internal/uncertainty"
 )
 
 func f(v float64) *float64 { return &v }
@@ -253,5 +254,46 @@ func TestCoreAnglesInvertsOrient(t *testing.T) {
 	v.Collar.Dip, v.Stations = -90, nil
 	if _, _, err := New(v, Project{}).CoreAngles(50, geom.Plane{Dip: 30, DipDirection: 10}); err == nil || err.(*Error).Field != FieldDipDirection {
 		t.Errorf("vertical hole: %v", err)
+	}
+}
+
+// The uncertainty of an oriented measurement is centred on the orientation
+// the hole gave it (the same conversion), grows with a poorer mark and a
+// less precise survey instrument, and is absent in a vertical hole.
+func TestUncertainty(t *testing.T) {
+	ms := uncertainty.NewMeasurer(uncertainty.MC{Draws: 300, Seed: 3})
+	em := uncertainty.DefaultModel()
+	cone := func(k uncertainty.Instrument, conf string) float64 {
+		in := input(True)
+		in.Instrument = k
+		h := New(in, Project{})
+		m := Measurement{Depth: 50, Alpha: 40, Beta: 120, Gamma: 30, HasGamma: true}
+		r, err := h.Orient(m)
+		if err != nil {
+			t.Fatal(err)
+		}
+		u, ok := h.Uncertainty(ms, em, &r, m, conf, math.NaN())
+		if !ok || u.Line == nil {
+			t.Fatalf("no regions: %+v", u)
+		}
+		if p := r.Pole(); math.Abs(u.Pole.Plunge-p.Plunge) > 1e-6 || geom.AxialAngle(p.Vec(), geom.Line{Trend: u.Pole.Trend, Plunge: u.Pole.Plunge}.Vec()) > 1e-6 {
+			t.Errorf("pole %v/%v, oriented %+v", u.Pole.Trend, u.Pole.Plunge, p)
+		}
+		if math.Abs(u.Line.Trend-r.Line.Trend) > 1e-6 || math.Abs(u.Line.Plunge-r.Line.Plunge) > 1e-6 {
+			t.Errorf("line %v/%v, oriented %+v", u.Line.Trend, u.Line.Plunge, r.Line)
+		}
+		return u.Pole.FirstOrder.Cone95
+	}
+	if g, p := cone(uncertainty.Gyro, "good"), cone(uncertainty.Gyro, "poor"); !(p > g) {
+		t.Errorf("poor mark cone %v not wider than good %v", p, g)
+	}
+	if g, u := cone(uncertainty.Gyro, "good"), cone("", "good"); !(u > g) {
+		t.Errorf("unknown instrument cone %v not wider than gyro %v", u, g)
+	}
+	h := New(Input{ID: "V", Collar: desurvey.Collar{Azimuth: 0, Dip: -90, Depth: 50}}, Project{})
+	m := Measurement{Depth: 20, Alpha: 30}
+	r, _ := h.Orient(m)
+	if _, ok := h.Uncertainty(ms, em, &r, m, "good", math.NaN()); ok {
+		t.Error("regions in a vertical hole")
 	}
 }

@@ -113,6 +113,7 @@ func (s *Service) Convert(ctx context.Context, req ConvertRequest) (ConvertRespo
 		surveys[sv.HoleID] = &ss
 	}
 	models := map[string]*holeModel{}
+	ms := perMeasurement.Fork()
 	for i, cl := range req.Collars {
 		h := domain.Hole{Name: cl.HoleID, East: cl.East, North: cl.North, Elevation: cl.Elevation,
 			Azimuth: cl.Azimuth, AzimuthRef: orDefault(cl.AzimuthRef, c.OutputAzimuthRef), Dip: cl.Dip, FinalDepth: cl.FinalDepth, CRS: cl.CRS,
@@ -127,6 +128,7 @@ func (s *Service) Convert(ctx context.Context, req ConvertRequest) (ConvertRespo
 		if ss != nil {
 		}
 		models[h.Name] = newHoleModel(c, h, ss, nil)
+		models[h.Name].ms = ms
 	}
 	for id := range surveys {
 		if models[id] == nil {

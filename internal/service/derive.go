@@ -11,6 +11,7 @@ import (
 	"corvane/internal/desurvey"
 	"corvane/internal/domain"
 	"corvane/internal/holemodel"
+	"corvane/internal/uncertainty"
 )
 
 // Derived holds the values computed from a measurement, its hole's current
@@ -56,6 +57,22 @@ type Derived struct {
 	// collar on the survey date).
 	Declination       *float64 `json:"declination"`
 	DeclinationSource string   `json:"declination_source"`
+	// PoleCone95, PoleLong95 and PoleShort95 are the 95% region of the
+	// pole, degrees: the cone's half-angle and the elongated region's
+	// semi-axes, of the region in use; PoleMethod says which method gave it
+	// ("first-order" or "monte-carlo", see package uncertainty). The Line
+	// fields are the same for the lineation. Null and "" when there is no
+	// region (a vertical hole, no lineation). The errors are the project's
+	// error model for the hole's survey instrument and the run covering the
+	// depth; the Monte Carlo run is uncertainty.PerMeasurement at every door.
+	PoleCone95  *float64 `json:"pole_cone95"`
+	PoleLong95  *float64 `json:"pole_long95"`
+	PoleShort95 *float64 `json:"pole_short95"`
+	PoleMethod  string   `json:"pole_method"`
+	LineCone95  *float64 `json:"line_cone95"`
+	LineLong95  *float64 `json:"line_long95"`
+	LineShort95 *float64 `json:"line_short95"`
+	LineMethod  string   `json:"line_method"`
 	// RunConfidence is the confidence of the orientation run covering the
 	// depth, "" when no run covers it.
 	RunConfidence string `json:"run_confidence"`
@@ -145,6 +162,11 @@ func holeInput(h domain.Hole, ss *domain.SurveySet) holemodel.Input {
 // holemodel, the stored hole and survey set it was built from, its runs.
 type holeModel struct {
 	*holemodel.Hole
+	// ms measures the uncertainty of the hole's measurements (shared by the
+	// models of one request, which uses them on one goroutine); nil for a
+	// model that derives no measurements.
+	ms     *uncertainty.Measurer
+	em     uncertainty.Model
 	name   string
 	conv   Conventions
 	runs   []domain.Run
@@ -158,6 +180,30 @@ func newHoleModel(c Conventions, h domain.Hole, ss *domain.SurveySet, runs []dom
 	return &holeModel{Hole: holemodel.New(holeInput(h, ss), c.project()), name: h.Name, conv: c, runs: runs, hole: h, survey: ss}
 }
 
+// perMeasurement holds the normals of uncertainty.PerMeasurement, drawn
+// once; each request forks its own measurer from it.
+var perMeasurement = uncertainty.NewMeasurer(uncertainty.PerMeasurement)
+
+// uncertainty returns the 95% regions of the measurement oriented as r (nil
+// when it has none), with the run covering its depth.
+func (m *holeModel) uncertainty(r *holemodel.Result, hm holemodel.Measurement) *uncertainty.Result {
+	if m.ms == nil {
+		return nil
+	}
+	conf, mismatch := "", math.NaN()
+	if run := m.runCovering(hm.Depth); run != nil {
+		conf = run.Confidence
+		if run.Mismatch != nil {
+			mismatch = *run.Mismatch
+		}
+	}
+	u, ok := m.Uncertainty(m.ms, m.em, r, hm, conf, mismatch)
+	if !ok {
+		return nil
+	}
+	return &u
+}
+
 func opt(x float64) *float64 {
 	if math.IsNaN(x) {
 		return nil
@@ -165,26 +211,34 @@ func opt(x float64) *float64 {
 	return &x
 }
 
-// orient orients one measurement with the hole model.
-func (m *holeModel) orient(depth, alpha, beta float64, gamma, apparent *float64) (holemodel.Result, error) {
-	hm := holemodel.Measurement{Depth: depth, Alpha: alpha, Beta: beta}
+// orient orients one measurement with the hole model; hm is the
+// measurement as the hole model takes it.
+func (m *holeModel) orient(depth, alpha, beta float64, gamma, apparent *float64) (r holemodel.Result, hm holemodel.Measurement, err error) {
+	hm = holemodel.Measurement{Depth: depth, Alpha: alpha, Beta: beta}
 	if gamma != nil {
 		hm.Gamma, hm.HasGamma = *gamma, true
 	}
 	if apparent != nil {
 		hm.Thickness, hm.HasThickness = *apparent, true
 	}
-	return m.Orient(hm)
+	r, err = m.Orient(hm)
+	return r, hm, err
 }
 
 // derive computes the derived values of one measurement, with r and err
 // from orient.
 func (m *holeModel) derive(depth, alpha, beta float64, gamma, apparent *float64) Derived {
-	r, err := m.orient(depth, alpha, beta, gamma, apparent)
-	return m.derived(depth, &r, err)
+	r, hm, err := m.orient(depth, alpha, beta, gamma, apparent)
+	var u *uncertainty.Result
+	if err == nil {
+		u = m.uncertainty(&r, hm)
+	}
+	return m.derived(depth, &r, err, u)
 }
 
-func (m *holeModel) derived(depth float64, r *holemodel.Result, err error) Derived {
+// derived is the derived values of the measurement at depth oriented as r
+// (or err) with uncertainty u (nil when none).
+func (m *holeModel) derived(depth float64, r *holemodel.Result, err error, u *uncertainty.Result) Derived {
 	d := Derived{AzimuthRef: m.Output, Warnings: []string{}}
 	conv, decl := m.Convergence, m.Declination(depth)
 	if err == nil {
@@ -208,23 +262,39 @@ func (m *holeModel) derived(depth float64, r *holemodel.Result, err error) Deriv
 	if s := convert.Warnings(r, m.Hole); s != "" {
 		d.Warnings = append(d.Warnings, strings.Split(s, "; ")...)
 	}
+	if u != nil {
+		g := u.Pole.Region()
+		d.PoleCone95, d.PoleLong95, d.PoleShort95, d.PoleMethod = &g.Cone95, &g.Long95, &g.Short95, u.Pole.Used
+		if u.Line != nil {
+			g := u.Line.Region()
+			d.LineCone95, d.LineLong95, d.LineShort95, d.LineMethod = &g.Cone95, &g.Long95, &g.Short95, u.Line.Used
+		}
+	}
 	d.RunConfidence, d.Warnings = m.runAt(depth, d.Warnings)
 	return d
+}
+
+// runCovering returns the orientation run covering depth, nil when none.
+func (m *holeModel) runCovering(depth float64) *domain.Run {
+	for i := range m.runs {
+		if r := &m.runs[i]; depth >= r.From && depth <= r.To {
+			return r
+		}
+	}
+	return nil
 }
 
 // runAt returns the confidence of the orientation run covering depth (""
 // when none) and warn with the run's warning added.
 func (m *holeModel) runAt(depth float64, warn []string) (string, []string) {
-	for _, r := range m.runs {
-		if depth >= r.From && depth <= r.To {
-			switch r.Confidence {
-			case "none":
-				warn = append(warn, "orientation run rated unusable")
-			case "poor":
-				warn = append(warn, "orientation run rated poor")
-			}
-			return r.Confidence, warn
+	if r := m.runCovering(depth); r != nil {
+		switch r.Confidence {
+		case "none":
+			warn = append(warn, "orientation run rated unusable")
+		case "poor":
+			warn = append(warn, "orientation run rated poor")
 		}
+		return r.Confidence, warn
 	}
 	if len(m.runs) > 0 {
 		warn = append(warn, "no orientation run covers this depth")
@@ -238,10 +308,12 @@ type deriver struct {
 	st     domain.Store
 	conv   Conventions
 	models map[int64]*holeModel
+	ms     *uncertainty.Measurer
+	em     uncertainty.Model
 }
 
 func newDeriver(st domain.Store, p domain.Project) *deriver {
-	return &deriver{st: st, conv: ConventionsOf(p), models: map[int64]*holeModel{}}
+	return &deriver{st: st, conv: ConventionsOf(p), models: map[int64]*holeModel{}, ms: perMeasurement.Fork()}
 }
 
 func (d *deriver) model(ctx context.Context, holeID int64) (*holeModel, error) {
@@ -261,6 +333,7 @@ func (d *deriver) model(ctx context.Context, holeID int64) (*holeModel, error) {
 		return nil, err
 	}
 	m := newHoleModel(d.conv, h, ss, runs)
+	m.ms, m.em = d.ms, d.em
 	d.models[holeID] = m
 	return m, nil
 }

@@ -64,7 +64,7 @@ func (s *Service) exportMeasurements(ctx context.Context, st domain.Store, proje
 			if err != nil {
 				return err
 			}
-			r, oerr := hm.orient(m.Depth, m.Alpha, m.Beta, m.Gamma, m.ApparentThickness)
+			r, hmm, oerr := hm.orient(m.Depth, m.Alpha, m.Beta, m.Gamma, m.ApparentThickness)
 			cw.String(strconv.FormatInt(m.ID, 10))
 			cw.String(hm.name)
 			cw.Float(m.Depth, 3)
@@ -84,7 +84,7 @@ func (s *Service) exportMeasurements(ctx context.Context, st domain.Store, proje
 				var conf string
 				conf, warn = hm.runAt(m.Depth, warn)
 				cw.String(conf)
-				scratch = convert.WriteResult(cw, &r, hm.Hole, true, strings.Join(warn, "; "), nil, scratch)
+				scratch = convert.WriteResult(cw, &r, hm.Hole, true, strings.Join(warn, "; "), nil, scratch, hm.uncertainty(&r, hmm))
 				cw.Empty() // error
 			}
 			cw.EndRow()

@@ -109,8 +109,8 @@ func (s *Service) Transfer(ctx context.Context, projectID int64, q MeasurementQu
 			if err != nil {
 				return nil, err
 			}
-			r, oerr := hm.orient(m.Depth, m.Alpha, m.Beta, m.Gamma, m.ApparentThickness)
-			dv := hm.derived(m.Depth, &r, oerr)
+			r, _, oerr := hm.orient(m.Depth, m.Alpha, m.Beta, m.Gamma, m.ApparentThickness)
+			dv := hm.derived(m.Depth, &r, oerr, nil)
 			placed := oerr == nil && !math.IsNaN(r.Plane.DipDirection)
 			prog.Count(hm.name, placed, dv.Error != "" || len(dv.Warnings) > 0)
 			if placed {

@@ -636,3 +636,31 @@ func MeasureAll(rs []Reading, mc MC, workers int) (out []Result, errs []error) {
 	}
 	return out, errs
 }
+
+// PerMeasurement is the Monte Carlo run every door uses for per-measurement
+// regions (convert output, API, export, preview, net): 1,000 draws and a
+// fixed seed, so every door gives the same figures for the same
+// measurement.
+var PerMeasurement = MC{Draws: 1000, Seed: 12}
+
+// Measurer measures one reading at a time with the normals of one Monte
+// Carlo run, for callers that convert row by row (a CSV stream, a page of
+// stored measurements). A Measurer is not safe for concurrent use; [Measurer.Fork]
+// gives another that shares the normals. Its results equal [Measure]'s with
+// the same MC.
+type Measurer struct{ sc scratch }
+
+// NewMeasurer draws the normals of mc once.
+func NewMeasurer(mc MC) *Measurer {
+	m := &Measurer{}
+	if mc.Draws > 0 {
+		m.sc.z = newNormals(mc)
+	}
+	return m
+}
+
+// Fork returns a Measurer with the same normals and buffers of its own.
+func (m *Measurer) Fork() *Measurer { return &Measurer{sc: scratch{z: m.sc.z}} }
+
+// Measure is [Measure] for one reading.
+func (m *Measurer) Measure(r Reading) (Result, error) { return measure(r, &m.sc) }

@@ -225,6 +225,13 @@ func TestMeasureDeterministicAndVertical(t *testing.T) {
 	if errs[0] != nil || *all[0].Pole.MonteCarlo != *a.Pole.MonteCarlo || *all[2].Pole.MonteCarlo != *a.Pole.MonteCarlo {
 		t.Errorf("MeasureAll streams: %+v %+v", all[0].Pole.MonteCarlo, all[1].Pole.MonteCarlo)
 	}
+	ms := NewMeasurer(MC{Draws: 500, Seed: 1})
+	for _, m := range []*Measurer{ms, ms.Fork(), ms} {
+		c, err := m.Measure(rd)
+		if err != nil || *c.Pole.MonteCarlo != *a.Pole.MonteCarlo || c.Pole.FirstOrder != a.Pole.FirstOrder {
+			t.Errorf("Measurer differs from Measure: %+v %+v (%v)", c.Pole.MonteCarlo, a.Pole.MonteCarlo, err)
+		}
+	}
 	rd.Hole = geom.Vec3{Z: -1}
 	if _, err := Measure(rd, MC{}); err != ErrVertical {
 		t.Errorf("vertical hole: %v", err)
