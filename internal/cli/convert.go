@@ -174,6 +174,7 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 		fmt.Fprint(env.Stderr, convertUsage)
 		fs.PrintDefaults()
 	}
+	var opt convert.Options
 	collars := fs.String("collars", "", "collars CSV file (required)")
 	surveys := fs.String("surveys", "", "surveys CSV file (required)")
 	structures := fs.String("structures", "", "structures CSV file (required; - for standard input)")
@@ -182,8 +183,8 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 	apex := fs.String("beta-apex", "downhole", "ellipse apex beta is measured to: downhole or uphole")
 	sense := fs.String("gamma-sense", "clockwise", "sense of gamma looking along the down-hole plane normal: clockwise or anticlockwise")
 	errModel := fs.String("error-model", "", errorModelUsage)
+	fs.BoolVar(&opt.NoUncertainty, "no-uncertainty", false, "leave the uncertainty columns empty (their Monte Carlo is most of the conversion's time)")
 	summary := fs.String("hole-summary", "", "also write one row per hole to this CSV file: azimuth references, corrections and their sources, row counts, caution, error")
-	var opt convert.Options
 	paths := addPathFlags(fs, &opt)
 	if err := fs.Parse(args); err != nil {
 		if errors.Is(err, flag.ErrHelp) {

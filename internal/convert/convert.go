@@ -439,8 +439,10 @@ func (cv *converter) convert(b *batch, ms *uncertainty.Measurer) {
 			sum.Extrapols++
 		}
 		var u *uncertainty.Result
-		if ur, ok := last.Uncertainty(ms, cv.hs.opt.ErrorModel, &res, m.Measurement, "", math.NaN()); ok {
-			u = &ur
+		if !cv.hs.opt.NoUncertainty {
+			if ur, ok := last.Uncertainty(ms, cv.hs.opt.ErrorModel, &res, m.Measurement, "", math.NaN()); ok {
+				u = &ur
+			}
 		}
 		b.tail = WriteResult(cw, &res, last.Hole, cv.thick, Warnings(&res, last.Hole), last.tail, b.tail, u)
 		cw.Empty() // error

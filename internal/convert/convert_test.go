@@ -22,6 +22,7 @@ import (
 	"corvane/internal/domain"
 	"corvane/internal/geom"
 	"corvane/internal/northref"
+	"corvane/internal/uncertainty"
 )
 
 func near(a, b, tol float64) bool { return math.Abs(a-b) <= tol }
@@ -580,5 +581,42 @@ func TestDeclinationByDateAndFeet(t *testing.T) {
 	// Below the second station the hole runs along its (true) azimuth 40 + d2.
 	if !near(num(t, rows[1]["hole_azimuth"]), 40+d2, 0.006) {
 		t.Errorf("azimuth %v, want %v", rows[1]["hole_azimuth"], 40+d2)
+	}
+}
+
+// The uncertainty columns follow the survey's instrument and the error
+// model, are empty in a vertical hole and with NoUncertainty, and a hole
+// whose survey rows name two instruments is refused at the row.
+func TestUncertaintyColumns(t *testing.T) {
+	const structures = "hole_id,depth,alpha,beta,gamma\nH1,50,40,120,30\nV1,50,40,120,\n"
+	cone := func(inst string, opt Options) []map[string]string {
+		surveys := "hole_id,depth,azimuth,dip,instrument\nH1,0,0,-60," + inst + "\nH1,100,0,-60,\n"
+		rows, _ := run(t, load(t, collarsCSV, surveys, opt), structures)
+		return rows
+	}
+	f := func(s string) float64 {
+		v, err := strconv.ParseFloat(s, 64)
+		if err != nil {
+			t.Fatalf("%q: %v", s, err)
+		}
+		return v
+	}
+	gyro, unknown := cone("gyro", Options{}), cone("", Options{})
+	if !(f(gyro[0][ColPoleCone95]) < f(unknown[0][ColPoleCone95])) || !(f(gyro[0][ColLineCone95]) < f(unknown[0][ColLineCone95])) {
+		t.Errorf("gyro %v not narrower than unknown %v", gyro[0], unknown[0])
+	}
+	if gyro[1][ColPoleCone95] != "" || gyro[1][ColPoleMethod] != "" {
+		t.Errorf("vertical hole has a region: %v", gyro[1])
+	}
+	wide := cone("gyro", Options{ErrorModel: uncertainty.Model{MarkUnrated: 30}})
+	if !(f(wide[0][ColPoleLong95]) > f(gyro[0][ColPoleLong95])) {
+		t.Errorf("a wider mark error did not widen the region: %v vs %v", wide[0][ColPoleLong95], gyro[0][ColPoleLong95])
+	}
+	if none := cone("gyro", Options{NoUncertainty: true}); none[0][ColPoleCone95] != "" || none[0][ColDip] != gyro[0][ColDip] {
+		t.Errorf("NoUncertainty: %v", none[0])
+	}
+	_, err := Load(strings.NewReader(collarsCSV), strings.NewReader("hole_id,depth,azimuth,dip,instrument\nH1,0,0,-60,gyro\nH1,100,0,-60,magnetic\n"), Options{SurveysFile: "s.csv"})
+	if err == nil || !strings.Contains(err.Error(), "s.csv:line 3") || !strings.Contains(err.Error(), "instrument") {
+		t.Errorf("two instruments in one hole: %v", err)
 	}
 }

@@ -93,6 +93,9 @@ type Options struct {
 	// no runs, so every measurement's mark takes the error of an unrated
 	// run.
 	ErrorModel uncertainty.Model
+	// NoUncertainty leaves the uncertainty columns empty (their Monte Carlo
+	// is most of the conversion's time).
+	NoUncertainty bool
 	// File names used in messages.
 	CollarsFile, SurveysFile, StructuresFile string
 	// Workers is the number of goroutines that convert batches of structure
