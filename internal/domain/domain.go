@@ -12,6 +12,7 @@
 package domain
 
 import (
+	"corvane/internal/uncertainty"
 	"encoding/json"
 	"time"
 )
@@ -62,10 +63,17 @@ type Project struct {
 	// positive when grid north is east of true north (grid = true - C); nil
 	// until someone sets it. It applies to holes without their own; when it
 	// is unset it is computed from the collar's crs label (a UTM EPSG code).
-	Convergence *float64  `json:"convergence"`
-	Version     int64     `json:"version"`
-	CreatedAt   time.Time `json:"created_at"`
-	UpdatedAt   time.Time `json:"updated_at"`
+	Convergence *float64 `json:"convergence"`
+	// ErrorModel is the project's standard errors for the uncertainty of
+	// its orientations (package uncertainty; a zero field is its default).
+	ErrorModel uncertainty.Model `json:"error_model"`
+	// PersistentFabric is the type code of the fabric that runs through
+	// the holes (e.g. bedding), used by the QA's fabric checks when a
+	// request names none; "" when not set.
+	PersistentFabric string    `json:"persistent_fabric"`
+	Version          int64     `json:"version"`
+	CreatedAt        time.Time `json:"created_at"`
+	UpdatedAt        time.Time `json:"updated_at"`
 }
 
 // TypeCode is one word of a project's structure vocabulary, e.g. "BD" for
@@ -143,10 +151,14 @@ type SurveySet struct {
 	// not. It is read-only: the service sets it and ignores what a client
 	// sends. (A declination the magnetic model gives is computed on every
 	// read by the hole model, never stored.)
-	DeclinationSource string    `json:"declination_source"`
-	Stations          []Station `json:"stations"`
-	Version           int64     `json:"version"`
-	UpdatedAt         time.Time `json:"updated_at"`
+	DeclinationSource string `json:"declination_source"`
+	// Instrument is the kind of survey instrument: "magnetic", "gyro" or
+	// "unknown" (the default), for the survey's share of each
+	// measurement's uncertainty.
+	Instrument string    `json:"instrument"`
+	Stations   []Station `json:"stations"`
+	Version    int64     `json:"version"`
+	UpdatedAt  time.Time `json:"updated_at"`
 }
 
 // Run confidence ratings, best first.

@@ -1,6 +1,7 @@
 package domain
 
 import (
+	"corvane/internal/uncertainty"
 	"math"
 	"regexp"
 	"slices"
@@ -158,6 +159,13 @@ func (p *Project) Normalize() error {
 			return e
 		}
 	}
+	if err := p.ErrorModel.Check(); err != nil {
+		return FieldErr("error_model", "%v", err)
+	}
+	p.PersistentFabric = strings.TrimSpace(p.PersistentFabric)
+	if e := checkTexts(textField{"persistent_fabric", p.PersistentFabric, MaxNameLen, false}); e != nil {
+		return e
+	}
 	return nil
 }
 
@@ -281,6 +289,11 @@ func (s *SurveySet) Normalize() error {
 	if e := CheckDate("survey_date", s.SurveyDate); e != nil {
 		return e
 	}
+	k, err := uncertainty.ParseInstrument(s.Instrument)
+	if err != nil {
+		return FieldErr("instrument", "%v", err)
+	}
+	s.Instrument = string(k)
 	s.DeclinationSource = ""
 	if s.Declination != nil {
 		if e := checkRange("declination", *s.Declination, -180, 180); e != nil {

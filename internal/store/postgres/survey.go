@@ -11,10 +11,10 @@ import (
 )
 
 const (
-	selectSurveySet  = `SELECT hole_id, azimuth_ref, survey_date, declination, declination_source, version, updated_at FROM survey_sets WHERE hole_id = $1`
+	selectSurveySet  = `SELECT hole_id, azimuth_ref, survey_date, declination, declination_source, instrument, version, updated_at FROM survey_sets WHERE hole_id = $1`
 	selectStations   = `SELECT depth, azimuth, dip FROM survey_stations WHERE hole_id = $1 ORDER BY depth`
-	insertSurveySet  = `INSERT INTO survey_sets (hole_id, azimuth_ref, survey_date, declination, declination_source, version, updated_at) VALUES ($1, $2, $3, $4, $5, 1, $6)`
-	updateSurveySet  = `UPDATE survey_sets SET azimuth_ref = $1, survey_date = $2, declination = $3, declination_source = $4, version = version + 1, updated_at = $5 WHERE hole_id = $6 AND version = $7 RETURNING version`
+	insertSurveySet  = `INSERT INTO survey_sets (hole_id, azimuth_ref, survey_date, declination, declination_source, instrument, version, updated_at) VALUES ($1, $2, $3, $4, $5, $6, 1, $7)`
+	updateSurveySet  = `UPDATE survey_sets SET azimuth_ref = $1, survey_date = $2, declination = $3, declination_source = $4, instrument = $5, version = version + 1, updated_at = $6 WHERE hole_id = $7 AND version = $8 RETURNING version`
 	deleteStations   = `DELETE FROM survey_stations WHERE hole_id = $1`
 	insertStation    = `INSERT INTO survey_stations (hole_id, depth, azimuth, dip) VALUES ($1, $2, $3, $4)`
 	deleteSurveySet  = `DELETE FROM survey_sets WHERE hole_id = $1 AND version = $2`
@@ -36,7 +36,7 @@ func (s *Store) GetSurvey(ctx context.Context, holeID int64) (domain.SurveySet, 
 	}
 	var decl *float64
 	var u time.Time
-	err := q.QueryRow(ctx, selectSurveySet, holeID).Scan(&ss.HoleID, &ss.AzimuthRef, &ss.SurveyDate, &decl, &ss.DeclinationSource, &ss.Version, &u)
+	err := q.QueryRow(ctx, selectSurveySet, holeID).Scan(&ss.HoleID, &ss.AzimuthRef, &ss.SurveyDate, &decl, &ss.DeclinationSource, &ss.Instrument, &ss.Version, &u)
 	if err != nil {
 		return ss, one(err, "survey of hole", holeID)
 	}
@@ -55,6 +55,7 @@ func (s *Store) GetSurvey(ctx context.Context, holeID int64) (domain.SurveySet, 
 
 // PutSurvey replaces the hole's whole survey set in one transaction.
 func (s *Store) PutSurvey(ctx context.Context, ss *domain.SurveySet, ifVersion int64) error {
+	ss.Instrument = storekit.Instrument(ss.Instrument)
 	t := storekit.Now()
 	return s.write(ctx, func(q querier) error {
 		var cur int64
@@ -64,7 +65,7 @@ func (s *Store) PutSurvey(ctx context.Context, ss *domain.SurveySet, ifVersion i
 			if ifVersion != 0 {
 				return domain.Errorf(domain.PreconditionFailed, "hole %d has no survey at version %d", ss.HoleID, ifVersion)
 			}
-			if _, err := q.Exec(ctx, insertSurveySet, ss.HoleID, ss.AzimuthRef, ss.SurveyDate, storekit.NullFloat(ss.Declination), ss.DeclinationSource, t); err != nil {
+			if _, err := q.Exec(ctx, insertSurveySet, ss.HoleID, ss.AzimuthRef, ss.SurveyDate, storekit.NullFloat(ss.Declination), ss.DeclinationSource, ss.Instrument, t); err != nil {
 				return storekit.SurveyCreateFailed(translate(err), violation(err), ss.HoleID)
 			}
 			ss.Version = 1
@@ -74,7 +75,7 @@ func (s *Store) PutSurvey(ctx context.Context, ss *domain.SurveySet, ifVersion i
 			if ifVersion != cur {
 				return domain.Errorf(domain.PreconditionFailed, "survey of hole %d is at version %d, not %d: reload and retry", ss.HoleID, cur, ifVersion)
 			}
-			if err := q.QueryRow(ctx, updateSurveySet, ss.AzimuthRef, ss.SurveyDate, storekit.NullFloat(ss.Declination), ss.DeclinationSource, t, ss.HoleID, ifVersion).Scan(&ss.Version); err != nil {
+			if err := q.QueryRow(ctx, updateSurveySet, ss.AzimuthRef, ss.SurveyDate, storekit.NullFloat(ss.Declination), ss.DeclinationSource, ss.Instrument, t, ss.HoleID, ifVersion).Scan(&ss.Version); err != nil {
 				if errors.Is(err, pgx.ErrNoRows) {
 					return storekit.SurveyMoved(versionGone(ctx, q, "survey_sets", "survey of hole", ss.HoleID, ifVersion), ss.HoleID, ifVersion)
 				}

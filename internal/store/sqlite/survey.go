@@ -10,10 +10,10 @@ import (
 )
 
 const (
-	selectSurveySet  = `SELECT hole_id, azimuth_ref, survey_date, declination, declination_source, version, updated_at FROM survey_sets WHERE hole_id = ?`
+	selectSurveySet  = `SELECT hole_id, azimuth_ref, survey_date, declination, declination_source, instrument, version, updated_at FROM survey_sets WHERE hole_id = ?`
 	selectStations   = `SELECT depth, azimuth, dip FROM survey_stations WHERE hole_id = ? ORDER BY depth`
-	insertSurveySet  = `INSERT INTO survey_sets (hole_id, azimuth_ref, survey_date, declination, declination_source, version, updated_at) VALUES (?, ?, ?, ?, ?, 1, ?)`
-	updateSurveySet  = `UPDATE survey_sets SET azimuth_ref = ?, survey_date = ?, declination = ?, declination_source = ?, version = version + 1, updated_at = ? WHERE hole_id = ? AND version = ? RETURNING version`
+	insertSurveySet  = `INSERT INTO survey_sets (hole_id, azimuth_ref, survey_date, declination, declination_source, instrument, version, updated_at) VALUES (?, ?, ?, ?, ?, ?, 1, ?)`
+	updateSurveySet  = `UPDATE survey_sets SET azimuth_ref = ?, survey_date = ?, declination = ?, declination_source = ?, instrument = ?, version = version + 1, updated_at = ? WHERE hole_id = ? AND version = ? RETURNING version`
 	deleteStations   = `DELETE FROM survey_stations WHERE hole_id = ?`
 	insertStation    = `INSERT INTO survey_stations (hole_id, depth, azimuth, dip) VALUES (?, ?, ?, ?)`
 	deleteSurveySet  = `DELETE FROM survey_sets WHERE hole_id = ? AND version = ?`
@@ -35,7 +35,7 @@ func (s *Store) GetSurvey(ctx context.Context, holeID int64) (domain.SurveySet, 
 	}
 	var decl sql.NullFloat64
 	var u int64
-	err := q.QueryRowContext(ctx, selectSurveySet, holeID).Scan(&ss.HoleID, &ss.AzimuthRef, &ss.SurveyDate, &decl, &ss.DeclinationSource, &ss.Version, &u)
+	err := q.QueryRowContext(ctx, selectSurveySet, holeID).Scan(&ss.HoleID, &ss.AzimuthRef, &ss.SurveyDate, &decl, &ss.DeclinationSource, &ss.Instrument, &ss.Version, &u)
 	if err != nil {
 		return ss, one(err, "survey of hole", holeID)
 	}
@@ -54,6 +54,7 @@ func (s *Store) GetSurvey(ctx context.Context, holeID int64) (domain.SurveySet, 
 
 // PutSurvey replaces the hole's whole survey set in one transaction.
 func (s *Store) PutSurvey(ctx context.Context, ss *domain.SurveySet, ifVersion int64) error {
+	ss.Instrument = storekit.Instrument(ss.Instrument)
 	t := storekit.Now()
 	return s.write(ctx, func(q querier) error {
 		var cur int64
@@ -63,7 +64,7 @@ func (s *Store) PutSurvey(ctx context.Context, ss *domain.SurveySet, ifVersion i
 			if ifVersion != 0 {
 				return domain.Errorf(domain.PreconditionFailed, "hole %d has no survey at version %d", ss.HoleID, ifVersion)
 			}
-			if _, err := q.ExecContext(ctx, insertSurveySet, ss.HoleID, ss.AzimuthRef, ss.SurveyDate, storekit.NullFloat(ss.Declination), ss.DeclinationSource, micro(t)); err != nil {
+			if _, err := q.ExecContext(ctx, insertSurveySet, ss.HoleID, ss.AzimuthRef, ss.SurveyDate, storekit.NullFloat(ss.Declination), ss.DeclinationSource, ss.Instrument, micro(t)); err != nil {
 				return storekit.SurveyCreateFailed(translate(err), violation(err), ss.HoleID)
 			}
 			ss.Version = 1
@@ -73,7 +74,7 @@ func (s *Store) PutSurvey(ctx context.Context, ss *domain.SurveySet, ifVersion i
 			if ifVersion != cur {
 				return domain.Errorf(domain.PreconditionFailed, "survey of hole %d is at version %d, not %d: reload and retry", ss.HoleID, cur, ifVersion)
 			}
-			if err := q.QueryRowContext(ctx, updateSurveySet, ss.AzimuthRef, ss.SurveyDate, storekit.NullFloat(ss.Declination), ss.DeclinationSource, micro(t), ss.HoleID, ifVersion).Scan(&ss.Version); err != nil {
+			if err := q.QueryRowContext(ctx, updateSurveySet, ss.AzimuthRef, ss.SurveyDate, storekit.NullFloat(ss.Declination), ss.DeclinationSource, ss.Instrument, micro(t), ss.HoleID, ifVersion).Scan(&ss.Version); err != nil {
 				if errors.Is(err, sql.ErrNoRows) {
 					return storekit.SurveyMoved(versionGone(ctx, q, "survey_sets", "survey of hole", ss.HoleID, ifVersion), ss.HoleID, ifVersion)
 				}

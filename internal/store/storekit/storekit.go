@@ -6,10 +6,13 @@
 package storekit
 
 import (
+	"encoding/json"
 	"errors"
+	"strings"
 	"time"
 
 	"corvane/internal/domain"
+	"corvane/internal/uncertainty"
 )
 
 // Violation names the class of a schema constraint a driver error broke.
@@ -119,4 +122,31 @@ func ProjectArg(id int64) any {
 		return nil
 	}
 	return id
+}
+
+// ModelText is the stored text of a project's error model: "" for the
+// defaults (the zero model), else its JSON.
+func ModelText(m uncertainty.Model) string {
+	if m == (uncertainty.Model{}) {
+		return ""
+	}
+	b, _ := json.Marshal(m) // a struct of numbers always marshals
+	return string(b)
+}
+
+// ModelOf reads the stored text of a project's error model.
+func ModelOf(s string) (uncertainty.Model, error) {
+	if s == "" {
+		return uncertainty.Model{}, nil
+	}
+	return uncertainty.ReadModel(strings.NewReader(s))
+}
+
+// Instrument is the stored survey instrument kind: "unknown" for "" (a set
+// written without one).
+func Instrument(s string) string {
+	if s == "" {
+		return string(uncertainty.UnknownSurvey)
+	}
+	return s
 }

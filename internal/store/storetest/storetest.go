@@ -5,6 +5,7 @@ package storetest
 
 import (
 	"context"
+	"corvane/internal/uncertainty"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -108,7 +109,8 @@ func newHole(t *testing.T, s domain.Store, projectID int64, name string) domain.
 func testProjects(t *testing.T, s domain.Store) {
 	c := ctx(t)
 	p := domain.Project{Name: "Tallowmere", Description: "fictional prospect", RefLine: "top", BetaApex: "uphole",
-		GammaSense: "anticlockwise", LengthUnit: "ft", OutputAzimuthRef: "true", Declination: f64(1.5), Convergence: f64(-0.75)}
+		GammaSense: "anticlockwise", LengthUnit: "ft", OutputAzimuthRef: "true", Declination: f64(1.5), Convergence: f64(-0.75),
+		ErrorModel: uncertainty.Model{Beta: 4.5, MarkPoor: 20, Gyro: uncertainty.SurveyError{Azimuth: 0.25}}, PersistentFabric: "BD"}
 	must(t, s.CreateProject(c, &p))
 	if p.ID == 0 || p.Version != 1 || p.CreatedAt.IsZero() || !p.CreatedAt.Equal(p.UpdatedAt) {
 		t.Fatalf("create did not set id/version/times: %+v", p)
@@ -125,8 +127,9 @@ func testProjects(t *testing.T, s domain.Store) {
 	dup := domain.Project{Name: "Tallowmere", RefLine: "bottom", BetaApex: "downhole", GammaSense: "clockwise", LengthUnit: "m", OutputAzimuthRef: "grid"}
 	wantKind(t, s.CreateProject(c, &dup), domain.Conflict, "duplicate project name")
 
-	// Project defaults are unset until someone sets them.
-	p.Description, p.Declination = "changed", nil
+	// Project defaults are unset until someone sets them; the error model
+	// back to every default and the persistent fabric unset round-trip too.
+	p.Description, p.Declination, p.ErrorModel, p.PersistentFabric = "changed", nil, uncertainty.Model{}, ""
 	must(t, s.UpdateProject(c, &p, 1))
 	if p.Version != 2 {
 		t.Fatalf("version after update = %d, want 2", p.Version)
@@ -233,7 +236,7 @@ func testSurvey(t *testing.T, s domain.Store) {
 	_, err := s.GetSurvey(c, h.ID)
 	wantKind(t, err, domain.NotFound, "no survey yet")
 	ss := domain.SurveySet{HoleID: h.ID, AzimuthRef: "magnetic", SurveyDate: "2026-03-05", Declination: f64(2.25), DeclinationSource: "computed",
-		Stations: []domain.Station{st(0, 45, -60), st(50, 46.5, -59), st(100, 48, -58.25)}}
+		Instrument: "gyro", Stations: []domain.Station{st(0, 45, -60), st(50, 46.5, -59), st(100, 48, -58.25)}}
 	must(t, s.PutSurvey(c, &ss, 0))
 	if ss.Version != 1 {
 		t.Fatalf("first survey version %d", ss.Version)
@@ -249,6 +252,9 @@ func testSurvey(t *testing.T, s domain.Store) {
 	must(t, s.PutSurvey(c, &repl, 1))
 	got, _ = s.GetSurvey(c, h.ID)
 	diff(t, "replaced survey", repl, got)
+	if got.Instrument != "unknown" {
+		t.Errorf("survey written without an instrument reads back %q, want unknown", got.Instrument)
+	}
 	if got.Declination != nil || got.DeclinationSource != "" {
 		t.Errorf("replaced survey without a declination kept %v from %q", got.Declination, got.DeclinationSource)
 	}
