@@ -183,7 +183,7 @@ type row struct {
 func (pg programme) files(t *testing.T) (collars, surveys, structures string, rows []row) {
 	var c, s, m strings.Builder
 	c.WriteString("hole_id,easting,northing,elevation,azimuth,dip,depth,crs,declination,grid_convergence,survey_date\n")
-	s.WriteString("hole_id,depth,azimuth,dip,azimuth_reference,survey_date\n")
+	s.WriteString("hole_id,depth,azimuth,dip,azimuth_reference,survey_date,instrument\n")
 	m.WriteString("hole_id,depth,alpha,beta,gamma,apparent_thickness,type\n")
 	f := func(v float64) string { return strconv.FormatFloat(v, 'f', 6, 64) }
 	for _, h := range pg.holes {
@@ -204,8 +204,13 @@ func (pg programme) files(t *testing.T) (collars, surveys, structures string, ro
 		}
 		outAz := geom.NormAzimuth(h.trueAz + shift)
 		fmt.Fprintf(&c, "%s,%s,%s,%s,%s,%s,%s,%s,%s,%s,%s\n", h.id, f(h.east), f(h.north), f(h.elev), f(rec), f(h.dip), f(h.depth), h.crs, h.decl, h.conv, h.collarDate)
+		// The survey instrument, for the uncertainty columns: magnetic
+		// surveys by a magnetic instrument, grid ones by a gyro, the rest
+		// not given (unknown); on the first station only.
+		inst := map[string]string{"magnetic": "magnetic", "grid": "gyro"}[h.ref]
 		for _, d := range []float64{0, h.depth / 2} {
-			fmt.Fprintf(&s, "%s,%s,%s,%s,%s,%s\n", h.id, f(d), f(rec), f(h.dip), h.ref, h.stDate)
+			fmt.Fprintf(&s, "%s,%s,%s,%s,%s,%s,%s\n", h.id, f(d), f(rec), f(h.dip), h.ref, h.stDate, inst)
+			inst = ""
 		}
 		dir := geom.HoleDirection(outAz, h.dip)
 		at := func(md float64) (e, n, z float64) {
@@ -366,6 +371,9 @@ func convertJSON(t *testing.T, s *server, pg programme, collars, surveys, struct
 			}
 			byHole[r.HoleID] = sm
 			ss = append(ss, sm)
+		}
+		if r.Instrument != "" {
+			sm["instrument"] = string(r.Instrument)
 		}
 		sm["stations"] = append(sm["stations"].([]map[string]float64), map[string]float64{"depth": r.Station.Depth, "azimuth": r.Station.Azimuth, "dip": r.Station.Dip})
 	}

@@ -49,6 +49,7 @@ type ConvertSurvey struct {
 	AzimuthRef  string           `json:"azimuth_ref"` // true, grid or magnetic; default the output reference
 	Declination *float64         `json:"declination"` // given with the set: wins over the hole's and the conventions' declination
 	SurveyDate  string           `json:"survey_date"` // YYYY-MM-DD; with the collar's crs gives a magnetic survey its declination
+	Instrument  string           `json:"instrument"`  // magnetic, gyro or unknown (default), for the uncertainty
 	Stations    []domain.Station `json:"stations"`
 }
 
@@ -103,7 +104,7 @@ func (s *Service) Convert(ctx context.Context, req ConvertRequest) (ConvertRespo
 	resp.Conventions = c
 	surveys := map[string]*domain.SurveySet{}
 	for i, sv := range req.Surveys {
-		ss := domain.SurveySet{AzimuthRef: orDefault(sv.AzimuthRef, c.OutputAzimuthRef), Declination: sv.Declination, SurveyDate: sv.SurveyDate, Stations: sv.Stations}
+		ss := domain.SurveySet{AzimuthRef: orDefault(sv.AzimuthRef, c.OutputAzimuthRef), Declination: sv.Declination, SurveyDate: sv.SurveyDate, Instrument: sv.Instrument, Stations: sv.Stations}
 		if err := ss.Normalize(); err != nil {
 			return resp, prefixField(err, "surveys["+strconv.Itoa(i)+"].")
 		}

@@ -93,18 +93,21 @@ type Conventions struct {
 	OutputAzimuthRef string   `json:"output_azimuth_ref"`
 	Declination      *float64 `json:"declination"`
 	Convergence      *float64 `json:"convergence"`
+	// ErrorModel is the project's error model for the uncertainty of each
+	// orientation (a zero field is its default).
+	ErrorModel uncertainty.Model `json:"error_model"`
 }
 
 // ConventionsOf returns the project's conventions.
 func ConventionsOf(p domain.Project) Conventions {
 	return Conventions{RefLine: p.RefLine, BetaApex: p.BetaApex, GammaSense: p.GammaSense, LengthUnit: p.LengthUnit,
-		OutputAzimuthRef: p.OutputAzimuthRef, Declination: p.Declination, Convergence: p.Convergence}
+		OutputAzimuthRef: p.OutputAzimuthRef, Declination: p.Declination, Convergence: p.Convergence, ErrorModel: p.ErrorModel}
 }
 
 // normalize fills defaults and validates c, reusing the project rules.
 func (c *Conventions) normalize() error {
 	p := domain.Project{Name: "x", RefLine: c.RefLine, BetaApex: c.BetaApex, GammaSense: c.GammaSense, LengthUnit: c.LengthUnit,
-		OutputAzimuthRef: c.OutputAzimuthRef, Declination: c.Declination, Convergence: c.Convergence}
+		OutputAzimuthRef: c.OutputAzimuthRef, Declination: c.Declination, Convergence: c.Convergence, ErrorModel: c.ErrorModel}
 	if err := p.Normalize(); err != nil {
 		return err
 	}
@@ -145,6 +148,7 @@ func holeInput(h domain.Hole, ss *domain.SurveySet) holemodel.Input {
 		Declination: h.Declination, GridConvergence: h.GridConvergence}
 	in.SurveyDate, _ = time.Parse(time.DateOnly, h.SurveyDate)
 	if ss != nil {
+		in.Instrument = uncertainty.Instrument(ss.Instrument)
 		in.SurveyDeclination = ss.Declination
 		var date time.Time
 		if ss.SurveyDate != "" {
@@ -177,7 +181,7 @@ type holeModel struct {
 // newHoleModel builds the model of the stored hole h with survey set ss (nil
 // when the hole has none) and runs.
 func newHoleModel(c Conventions, h domain.Hole, ss *domain.SurveySet, runs []domain.Run) *holeModel {
-	return &holeModel{Hole: holemodel.New(holeInput(h, ss), c.project()), name: h.Name, conv: c, runs: runs, hole: h, survey: ss}
+	return &holeModel{Hole: holemodel.New(holeInput(h, ss), c.project()), em: c.ErrorModel, name: h.Name, conv: c, runs: runs, hole: h, survey: ss}
 }
 
 // perMeasurement holds the normals of uncertainty.PerMeasurement, drawn
@@ -309,7 +313,6 @@ type deriver struct {
 	conv   Conventions
 	models map[int64]*holeModel
 	ms     *uncertainty.Measurer
-	em     uncertainty.Model
 }
 
 func newDeriver(st domain.Store, p domain.Project) *deriver {
@@ -333,7 +336,7 @@ func (d *deriver) model(ctx context.Context, holeID int64) (*holeModel, error) {
 		return nil, err
 	}
 	m := newHoleModel(d.conv, h, ss, runs)
-	m.ms, m.em = d.ms, d.em
+	m.ms = d.ms
 	d.models[holeID] = m
 	return m, nil
 }

@@ -346,6 +346,9 @@ func importSurveys(ctx context.Context, st domain.Store, p domain.Project, body 
 			ps.add(r.Line, csvio.ColSurveyDate, "hole %s has survey dates %s and %s; one survey set has one date (give the date of each survey in its own file)", r.HoleID, orDefault(s.ss.SurveyDate, "(none)"), date)
 			continue
 		}
+		if r.Instrument != "" {
+			s.ss.Instrument = string(r.Instrument) // one per hole: csvio.ReadSurveys checks
+		}
 		if r.Station.Depth > s.hole.FinalDepth {
 			ps.add(r.Line, csvio.ColDepth, "station depth %v is past the final depth %v of hole %s", r.Station.Depth, s.hole.FinalDepth, r.HoleID)
 			continue
