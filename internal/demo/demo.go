@@ -103,11 +103,14 @@ type Data struct {
 	RefLine, BetaApex, GammaSense string
 	OutputReference               string // grid
 	LengthUnit                    string // m
-	Sets                          []Set
-	Collars                       []Collar
-	Surveys                       []Survey
-	Runs                          []Run
-	Structures                    []Structure
+	// PersistentFabric is the structure type that runs through every hole
+	// (the bedding), the project setting QA's fabric checks use.
+	PersistentFabric string
+	Sets             []Set
+	Collars          []Collar
+	Surveys          []Survey
+	Runs             []Run
+	Structures       []Structure
 }
 
 // Sets returns the four structure sets of Tallowmere.
@@ -135,6 +138,7 @@ func Programme() Data {
 		LengthUnit:      "m",
 		Sets:            sets(),
 	}
+	d.PersistentFabric = d.Sets[0].Type // the bedding
 	type plan struct {
 		az, dip, depth float64
 		date           string

@@ -33,7 +33,7 @@ func (s *Service) LoadDemo(ctx context.Context) (p domain.Project, loaded bool, 
 		return p, false, err
 	}
 	p = domain.Project{Name: d.Name, Description: d.Description, RefLine: d.RefLine, BetaApex: d.BetaApex,
-		GammaSense: d.GammaSense, LengthUnit: d.LengthUnit, OutputAzimuthRef: d.OutputReference}
+		GammaSense: d.GammaSense, LengthUnit: d.LengthUnit, OutputAzimuthRef: d.OutputReference, PersistentFabric: d.PersistentFabric}
 	holes := make([]domain.Hole, len(d.Collars))
 	for i, c := range d.Collars {
 		holes[i] = domain.Hole{Name: c.HoleID, East: c.East, North: c.North, Elevation: c.Elevation, Azimuth: c.Azimuth,

@@ -6,6 +6,7 @@ import (
 
 	"corvane/internal/domain"
 	"corvane/internal/qa"
+	"corvane/internal/uncertainty"
 )
 
 // MaxQAMeasurements bounds the measurements one QA request reads; a larger
@@ -13,7 +14,9 @@ import (
 const MaxQAMeasurements = 500000
 
 // QARequest is a QA run over stored data with what the store does not hold:
-// the thresholds and, optionally, reference picks and magnetic zones.
+// the thresholds and, optionally, reference picks and magnetic zones. An
+// empty Options.PersistentType takes the project's persistent fabric and a
+// zero Options.Errors the project's error model.
 type QARequest struct {
 	// Options are the QA thresholds and the persistent structure type.
 	// Convention and Feet are always taken from the project.
@@ -53,6 +56,14 @@ func (s *Service) QAWith(ctx context.Context, projectID, holeID int64, req QAReq
 	p, _, err := s.project(ctx, s.store, projectID, domain.RoleRead)
 	if err != nil {
 		return qa.Report{}, err
+	}
+	// The project's settings stand when the request names none: its
+	// persistent fabric for the fabric checks and its error model.
+	if opt.PersistentType == "" {
+		opt.PersistentType = p.PersistentFabric
+	}
+	if opt.Errors == (uncertainty.Model{}) {
+		opt.Errors = p.ErrorModel
 	}
 	var holes []domain.Hole
 	if holeID != 0 {

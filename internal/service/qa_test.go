@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"math"
 	"math/rand/v2"
+	"reflect"
 	"testing"
 
 	"corvane/internal/coreangle"
@@ -30,6 +31,18 @@ func TestQADemoProgramme(t *testing.T) {
 	rep, err := s.QA(ctx, p.ID, 0, qa.Options{PersistentType: "bedding"})
 	if err != nil {
 		t.Fatal(err)
+	}
+	// The demo project's persistent fabric is the bedding: a QA that names
+	// none runs the same fabric checks and finds the planted mark error.
+	if p.PersistentFabric != "bedding" {
+		t.Errorf("demo project persistent fabric %q, want bedding", p.PersistentFabric)
+	}
+	byDefault := must(s.QA(ctx, p.ID, 0, qa.Options{}))
+	if !reflect.DeepEqual(byDefault.Holes, rep.Holes) {
+		t.Error("QA without a persistent type differs from QA with the project's persistent fabric")
+	}
+	if none := must(s.QA(ctx, p.ID, 0, qa.Options{PersistentType: "no-such-type"})); reflect.DeepEqual(none.Holes, rep.Holes) {
+		t.Error("the fabric checks found the same with a type no measurement has: the comparison above cannot fail")
 	}
 	if rep.Caution != qa.Caution || rep.Caution == "" {
 		t.Errorf("caution %q, want package qa's", rep.Caution)
