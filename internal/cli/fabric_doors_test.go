@@ -49,7 +49,7 @@ func doorsProgramme(t *testing.T) (srv *httptest.Server, token string, pid int64
 	}
 	g := 30.0
 	for i, a := range []float64{35, 50, 62} {
-		m := domain.Measurement{HoleID: h.ID, Depth: 20 + 10*float64(i), Alpha: a, Beta: 40 * float64(i), TypeCode: types[0].Code}
+		m := domain.Measurement{HoleID: h.ID, Depth: 20 + 10*float64(i), Alpha: a, Beta: f64(40 * float64(i)), TypeCode: types[0].Code}
 		if i == 1 {
 			m.Gamma = &g
 			m.TypeCode = "lineation"
@@ -271,3 +271,5 @@ func sheetText(svg []byte) string {
 	}
 	return strings.Join(parts, " ")
 }
+
+func f64(v float64) *float64 { return &v }

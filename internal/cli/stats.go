@@ -112,7 +112,7 @@ func loadOrientations(env *Env, path, typ string) (*orientInput, error) {
 	for _, row := range rows {
 		oi.in.Rows = append(oi.in.Rows, fabric.Row{Type: row.Type, HasPlane: row.HasPlane, Plane: row.Plane,
 			HasLine: row.HasLine, Line: row.LineDir, HasHole: row.HasHole, Hole: row.Hole,
-			NoAzimuth: row.NoAzimuth, Error: row.Error})
+			NoAzimuth: row.NoAzimuth, Unoriented: row.Unoriented, Error: row.Error})
 		refs[row.AzimuthRef] = true
 	}
 	if len(refs) == 1 {

@@ -414,7 +414,7 @@ func (cv *converter) convert(b *batch, ms *uncertainty.Measurer) {
 		if last == nil || last.ID != row.HoleID {
 			last = cv.hs.holes[row.HoleID]
 		}
-		m = Measurement{HoleID: row.HoleID, Measurement: holemodel.Measurement{Depth: row.Depth, Alpha: row.Alpha, Beta: row.Beta,
+		m = Measurement{HoleID: row.HoleID, Measurement: holemodel.Measurement{Depth: row.Depth, Alpha: row.Alpha, Beta: row.Beta, NoBeta: !row.HasBeta,
 			Gamma: row.Gamma, HasGamma: row.HasGamma, Thickness: row.Thickness, HasThickness: row.HasThickness}}
 		res, err := cv.hs.orient(last, &m)
 		if err != nil {

@@ -620,3 +620,36 @@ func TestUncertaintyColumns(t *testing.T) {
 		t.Errorf("two instruments in one hole: %v", err)
 	}
 }
+
+// An unoriented measurement (alpha without beta) gives what it can: the hole
+// direction and position at the depth, no dip, dip direction, strike or
+// pole, and a note in the warnings, not an error. In a vertical hole the dip
+// is still 90 - alpha (common practice). A lineation needs beta.
+func TestConvertUnoriented(t *testing.T) {
+	hs := load(t, collarsCSV, surveysCSV, Options{})
+	rows, sum := run(t, hs, "hole_id,depth,alpha,beta,gamma\nH1,50,40,,\nV1,20,70,,\nH1,51,40,,30\nH1,52,95,,\n")
+	if sum.Rows != 4 || sum.BadRows != 2 {
+		t.Fatalf("summary %+v", sum)
+	}
+	r := rows[0]
+	if r["error"] != "" || r["hole_azimuth"] != "0.00" || r["hole_dip"] != "-60.00" || r["northing"] == "" {
+		t.Errorf("unoriented row: hole direction and position missing: %v", r)
+	}
+	for _, c := range []string{"dip", "dip_direction", "strike", "pole_trend", "pole_plunge", "line_trend", "line_plunge"} {
+		if r[c] != "" {
+			t.Errorf("unoriented row: %s = %q, want empty", c, r[c])
+		}
+	}
+	if !strings.Contains(r["warnings"], "unoriented (no beta)") {
+		t.Errorf("warnings %q", r["warnings"])
+	}
+	if v := rows[1]; v["dip"] != "20.00" || v["dip_direction"] != "" || v["error"] != "" || !strings.Contains(v["warnings"], "unoriented") {
+		t.Errorf("unoriented row in a vertical hole %v", v)
+	}
+	if e := rows[2]["error"]; !strings.Contains(e, `column "gamma"`) || !strings.Contains(e, "gamma needs beta") {
+		t.Errorf("gamma without beta: error %q", e)
+	}
+	if e := rows[3]["error"]; !strings.Contains(e, `column "alpha"`) {
+		t.Errorf("alpha out of range without beta: error %q", e)
+	}
+}

@@ -144,8 +144,12 @@ const (
 	// Extrapolated: the depth is below the last survey station; the hole
 	// direction is extrapolated straight on.
 	Extrapolated
+	// Unoriented: the measurement has no beta (unoriented core): the angle
+	// to the core axis and the hole direction are known, the dip and dip
+	// direction are not (except the dip in a vertical hole).
+	Unoriented
 
-	warnCount = 4
+	warnCount = 5
 )
 
 // NearVerticalLimit is the angle from vertical, in degrees, inside which a
@@ -171,6 +175,7 @@ var warnNames = [warnCount]string{
 	"vertical hole: dip = 90 - alpha, no dip direction",
 	"alpha >= 85: beta poorly defined",
 	"extrapolated below last survey station",
+	"unoriented (no beta): angle to the core axis only, no dip or dip direction",
 }
 
 var warnStrings = func() (s [1 << warnCount]string) {

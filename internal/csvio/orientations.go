@@ -53,7 +53,8 @@ type OrientationRow struct {
 	// Unoriented is true for a row with alpha and a hole direction but no
 	// plane (no beta, so no dip and dip direction; or a vertical hole, where
 	// convert writes a dip without a dip direction): an unoriented
-	// measurement. Such rows are kept only with Geotech.
+	// measurement. Without Geotech only a row with no plane, no line, no
+	// error and an alpha is so marked (the statistics count it as left out).
 	Unoriented bool
 }
 
@@ -240,6 +241,14 @@ func ReadOrientationsWith(r io.Reader, name string, opt OrientationOptions) (row
 				case row.Error == "":
 					bad = domain.Errorf(domain.Invalid, "an unoriented row (alpha without dip and dip_direction) needs hole_azimuth and hole_dip").At(domain.Location{File: name, Line: line})
 				}
+			}
+		}
+		if !opt.Geotech && bad == nil && hole && row.HasHole && !row.HasPlane && !row.HasLine && !row.NoAzimuth && row.Error == "" {
+			// An unoriented measurement as `corvane convert` writes it
+			// (alpha and hole direction, no plane): kept and marked, for
+			// the statistics to count it as left out.
+			if _, ok := num(ColAlpha, 0, 90); ok {
+				row.Unoriented = true
 			}
 		}
 		if bad == nil && !row.HasPlane && !row.HasLine && !row.NoAzimuth && row.Error == "" && !row.Unoriented {

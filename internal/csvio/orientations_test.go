@@ -128,10 +128,16 @@ func TestReadOrientationsGeotech(t *testing.T) {
 			t.Errorf("problem %d: %q, want %q", i, problems[i].Error(), w)
 		}
 	}
-	// Without the option the unoriented row is a problem, as before.
-	_, problems, _ = ReadOrientations(strings.NewReader(in), "g.csv")
-	if len(problems) != 4 {
-		t.Errorf("default reader: %v", problems)
+	// Without the option an unoriented row with its hole direction is kept
+	// and marked (the statistics count it as left out); depth is not read,
+	// alpha must still be an angle.
+	rows, problems, _ = ReadOrientations(strings.NewReader(in), "g.csv")
+	if len(rows) != 3 || !rows[1].Unoriented || rows[1].Line != 3 || !rows[2].Unoriented || rows[2].Line != 5 || rows[0].Unoriented {
+		t.Errorf("default reader rows: %+v", rows)
+	}
+	if len(problems) != 2 || problems[0].Error() != "g.csv:line 4: no plane and no line on this row" ||
+		problems[1].Error() != `g.csv:line 6, column "alpha": alpha 95 is outside [0, 90]` {
+		t.Errorf("default reader problems: %v", problems)
 	}
 }
 

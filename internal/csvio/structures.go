@@ -24,7 +24,10 @@ type StructureRow struct {
 	HoleID string
 	Depth  float64
 	Alpha  float64
-	Beta   float64
+	// Beta is NaN and HasBeta false when the beta cell is empty: an
+	// unoriented measurement (alpha without beta).
+	Beta    float64
+	HasBeta bool
 	// Gamma is the lineation angle; HasGamma is false (and Gamma NaN) when
 	// the gamma column is absent or the cell empty.
 	Gamma    float64
@@ -40,7 +43,8 @@ type StructureRow struct {
 }
 
 // StructureReader streams the rows of a structures file: required columns
-// hole_id, depth (>= 0), alpha (0..90), beta (0..360), optional gamma
+// hole_id, depth (>= 0), alpha (0..90), beta (0..360, or empty for an
+// unoriented measurement), optional gamma
 // (0..360, empty when there is no lineation) and apparent_thickness or
 // thickness (>= 0); any further columns are carried in Record. Memory use
 // does not grow with the number of rows.
@@ -147,7 +151,7 @@ func (s *StructureReader) Parse(r *StructureRow) {
 	if r.Alpha, ok = s.num(r, s.iAlpha, true); ok && !(r.Alpha >= 0 && r.Alpha <= 90) {
 		s.fail(r, s.iAlpha, "alpha %g is outside 0..90", r.Alpha)
 	}
-	if r.Beta, ok = s.num(r, s.iBeta, true); ok && !(r.Beta >= 0 && r.Beta <= 360) {
+	if r.Beta, r.HasBeta = s.num(r, s.iBeta, false); r.HasBeta && !(r.Beta >= 0 && r.Beta <= 360) {
 		s.fail(r, s.iBeta, "beta %g is outside 0..360", r.Beta)
 	}
 	if s.iGamma >= 0 {

@@ -191,7 +191,10 @@ type Measurement struct {
 	HoleID    int64   `json:"hole_id"`
 	Depth     float64 `json:"depth"`
 	Alpha     float64 `json:"alpha"`
-	Beta      float64 `json:"beta"`
+	// Beta is nil for an unoriented measurement (core without an
+	// orientation mark): it keeps its angle to the core axis and the hole
+	// direction, and has no dip or dip direction.
+	Beta *float64 `json:"beta"`
 	// Gamma locates a lineation on the plane; nil for a plane alone.
 	Gamma             *float64  `json:"gamma"`
 	TypeCode          string    `json:"type"`

@@ -3,7 +3,8 @@ package domain
 // Duplicate measurements: the one rule, used by the measurement import.
 //
 // Two measurements are duplicates when they have the same hole, depth, type
-// code, alpha, beta and gamma (both without a gamma, or the same gamma),
+// code, alpha, beta and gamma (both without a beta — unoriented — or the
+// same beta; both without a gamma, or the same gamma),
 // compared as the numbers stored (after the type code is matched to the
 // vocabulary's spelling and beta or gamma 360 folded to 0). Comment, logger
 // and thickness do not count. An import refuses a file with duplicates, of
@@ -34,13 +35,17 @@ type MeasurementKey struct {
 	HoleID             int64
 	Type               string
 	Depth, Alpha, Beta float64
+	HasBeta            bool // false for an unoriented measurement
 	HasGamma           bool
 	Gamma              float64
 }
 
 // KeyOf returns m's duplicate key.
 func KeyOf(m Measurement) MeasurementKey {
-	k := MeasurementKey{HoleID: m.HoleID, Type: m.TypeCode, Depth: m.Depth, Alpha: m.Alpha, Beta: m.Beta}
+	k := MeasurementKey{HoleID: m.HoleID, Type: m.TypeCode, Depth: m.Depth, Alpha: m.Alpha}
+	if m.Beta != nil {
+		k.HasBeta, k.Beta = true, *m.Beta
+	}
 	if m.Gamma != nil {
 		k.HasGamma, k.Gamma = true, *m.Gamma
 	}

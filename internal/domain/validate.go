@@ -348,18 +348,25 @@ func (r *Run) Normalize() error {
 	return nil
 }
 
-// Normalize validates m: depth >= 0, alpha in [0, 90], beta and gamma in
-// [0, 360] (360 folded to 0), a type code, apparent thickness >= 0.
+// Normalize validates m: depth >= 0, alpha in [0, 90], beta (nil for an
+// unoriented measurement) and gamma in [0, 360] (360 folded to 0), no gamma
+// without beta, a type code, apparent thickness >= 0.
 func (m *Measurement) Normalize() error {
 	m.TypeCode = strings.TrimSpace(m.TypeCode)
 	for _, e := range []*Error{
 		checkRange("depth", m.Depth, 0, 1e5),
 		checkRange("alpha", m.Alpha, 0, 90),
-		checkAzimuth("beta", &m.Beta),
 	} {
 		if e != nil {
 			return e
 		}
+	}
+	if m.Beta != nil {
+		if e := checkAzimuth("beta", m.Beta); e != nil {
+			return e
+		}
+	} else if m.Gamma != nil {
+		return FieldErr("gamma", "gamma needs beta: a lineation cannot be placed on an unoriented measurement")
 	}
 	if m.Gamma != nil {
 		if e := checkAzimuth("gamma", m.Gamma); e != nil {

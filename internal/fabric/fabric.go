@@ -11,7 +11,10 @@
 // or a plunge but no trend — a measurement in a vertical hole, where core
 // angles give the dip alone — is skipped and counted under
 // [SkipNoDipDirection]; a row that could not be oriented at all is skipped
-// under [SkipNotOriented]. Neither fails the run.
+// under [SkipNotOriented]; an unoriented measurement (alpha without beta:
+// the hole direction and the angle to the core axis, no dip direction) is
+// skipped under [SkipUnoriented], so it never enters a set mean. None fails
+// the run.
 //
 // fabric is pure: it imports the standard library and corvane's math
 // packages only.
@@ -35,6 +38,7 @@ const Caution = "Statistics and nets summarise the measurements given; they are 
 const (
 	SkipNoDipDirection = "no dip direction (a vertical hole: dip = 90 - alpha, no azimuth)"
 	SkipNotOriented    = "not oriented (the conversion gave an error)"
+	SkipUnoriented     = "unoriented (alpha without beta: no dip direction)"
 )
 
 // Row is one measurement: a plane, a line on it or alone, or both, with the
@@ -55,6 +59,10 @@ type Row struct {
 	// (or trend), as a measurement in a vertical hole does. Such a row with
 	// no plane and no line is skipped.
 	NoAzimuth bool
+	// Unoriented: a measurement without beta (the hole direction and alpha
+	// are known, the plane is not). Such a row is skipped; a vertical
+	// hole's (NoAzimuth) is counted as such first, as the CSV cannot tell.
+	Unoriented bool
 	// Error says why the row could not be oriented; "" when it was.
 	Error string
 }
@@ -68,6 +76,8 @@ func skipReason(r Row) string {
 		return ""
 	case r.NoAzimuth:
 		return SkipNoDipDirection
+	case r.Unoriented:
+		return SkipUnoriented
 	default:
 		return SkipNotOriented
 	}
@@ -99,7 +109,7 @@ func usable(rows []Row) (used []Row, skipped []SkipCount) {
 		used = append(used, r)
 	}
 	skipped = []SkipCount{}
-	for _, why := range []string{SkipNoDipDirection, SkipNotOriented} {
+	for _, why := range []string{SkipNoDipDirection, SkipUnoriented, SkipNotOriented} {
 		if n[why] > 0 {
 			skipped = append(skipped, SkipCount{Reason: why, Count: n[why]})
 		}

@@ -426,6 +426,9 @@ func New(in Input, p Project) *Hole {
 type Measurement struct {
 	Depth       float64
 	Alpha, Beta float64
+	// NoBeta marks an unoriented measurement (alpha without beta): Beta is
+	// ignored and the result has the hole direction and alpha only.
+	NoBeta bool
 	// Gamma is used when HasGamma.
 	Gamma    float64
 	HasGamma bool
@@ -452,6 +455,10 @@ type Result struct {
 	// TrueThickness is apparent thickness x sin(alpha), NaN without thickness.
 	TrueThickness float64
 	Warn          coreangle.Warn
+	// Unoriented is true for a measurement without beta: Plane is NaN
+	// (only its dip is known, in a vertical hole) and Warn has
+	// coreangle.Unoriented. Alpha still gives the angle to the core axis.
+	Unoriented bool
 	// Declination and Convergence applied at the depth.
 	Declination, Convergence Correction
 }
@@ -508,7 +515,14 @@ func (h *Hole) orient(m *Measurement) (Result, error) {
 	if h.Err != nil {
 		return Result{}, &Error{Field: FieldHoleID, Station: -1, Msg: h.Err.Msg}
 	}
-	if err := coreangle.CheckAngles(m.Alpha, m.Beta, m.Gamma, m.HasGamma); err != nil {
+	beta := m.Beta
+	if m.NoBeta {
+		if m.HasGamma {
+			return Result{}, errorf(FieldGamma, "gamma needs beta: a lineation cannot be placed on an unoriented plane")
+		}
+		beta = 0
+	}
+	if err := coreangle.CheckAngles(m.Alpha, beta, m.Gamma, m.HasGamma); err != nil {
 		var ae *coreangle.AngleError
 		errors.As(err, &ae)
 		return Result{}, errorf(ae.Field, "%v", err)
@@ -525,7 +539,15 @@ func (h *Hole) orient(m *Measurement) (Result, error) {
 	}
 	r := Result{Point: pt, TrueThickness: math.NaN(), Convergence: h.Convergence, Declination: h.Declination(m.Depth)}
 	r.HoleAzimuth, r.HoleDip = azimuthDip(pt.Dir)
-	r.Plane, r.Warn = coreangle.Plane(pt.Dir, m.Alpha, m.Beta, h.conv)
+	r.Plane, r.Warn = coreangle.Plane(pt.Dir, m.Alpha, beta, h.conv)
+	if m.NoBeta {
+		// Without beta only a vertical hole gives the dip (90 - alpha).
+		if !r.Warn.Has(coreangle.Vertical) {
+			r.Plane = geom.Plane{Dip: math.NaN(), DipDirection: math.NaN()}
+		}
+		r.Warn = r.Warn&^coreangle.AlphaHigh | coreangle.Unoriented
+		r.Unoriented = true
+	}
 	if m.HasGamma {
 		var lw coreangle.Warn
 		r.Line, lw = coreangle.Line(pt.Dir, m.Alpha, m.Beta, m.Gamma, h.conv)
@@ -577,10 +599,14 @@ func (h *Hole) CoreAngles(md float64, p geom.Plane) (alpha, beta float64, err er
 // instrument and the run holding the measurement (its confidence rating,
 // "" when no run covers it, and its logged mismatch, NaN when none). ok is
 // false when the measurement has no regions: in a vertical hole its dip
-// direction is unknown, not uncertain. Every door that shows the
+// direction is unknown, not uncertain, and an unoriented measurement has
+// no plane at all. Every door that shows the
 // uncertainty of a measurement calls this, with ms from
 // uncertainty.PerMeasurement.
 func (h *Hole) Uncertainty(ms *uncertainty.Measurer, em uncertainty.Model, r *Result, m Measurement, confidence string, mismatch float64) (u uncertainty.Result, ok bool) {
+	if r.Unoriented || m.NoBeta {
+		return u, false // no plane, so no region around it
+	}
 	rd := uncertainty.Reading{Hole: r.Point.Dir, Alpha: m.Alpha, Beta: m.Beta, Gamma: math.NaN(), Conv: h.conv,
 		Sigma: em.Sigmas(h.In.Instrument, confidence, mismatch, 0)}
 	if m.HasGamma {

@@ -490,7 +490,7 @@ type measurementInput struct {
 	Hole              string   `json:"hole"`
 	Depth             float64  `json:"depth"`
 	Alpha             float64  `json:"alpha"`
-	Beta              float64  `json:"beta"`
+	Beta              *float64 `json:"beta"` // null or absent: an unoriented measurement
 	Gamma             *float64 `json:"gamma"`
 	Type              string   `json:"type"`
 	ApparentThickness *float64 `json:"apparent_thickness"`

@@ -32,7 +32,11 @@ func measurementChecks(h *holeData, conv coreangle.Convention, o Options, logger
 	for i := range h.ms {
 		x := &h.ms[i]
 		m := x.m
-		if err := coreangle.CheckAngles(m.Alpha, m.Beta, 0, false); err != nil || math.IsNaN(m.Depth) || m.Depth < 0 {
+		beta := m.Beta
+		if math.IsNaN(beta) {
+			beta = 0 // unoriented: see below
+		}
+		if err := coreangle.CheckAngles(m.Alpha, beta, 0, false); err != nil || math.IsNaN(m.Depth) || m.Depth < 0 {
 			msg := "depth is not a usable number"
 			if err != nil {
 				msg = err.Error()
@@ -50,14 +54,18 @@ func measurementChecks(h *holeData, conv coreangle.Convention, o Options, logger
 			ld = &loggerData{}
 			loggers[name] = ld
 		}
-		ld.alpha = append(ld.alpha, m.Alpha)
-		ld.beta = append(ld.beta, m.Beta)
-
+		if !math.IsNaN(m.Beta) {
+			ld.alpha = append(ld.alpha, m.Alpha)
+			ld.beta = append(ld.beta, m.Beta)
+		}
 		if m.Depth > h.c.Depth {
 			out = append(out, Finding{Check: CheckPastFinalDepth, Severity: SeverityFlag, HoleID: id, Depth: m.Depth,
 				Size: m.Depth - h.c.Depth, Source: "structures", Line: m.Line, ID: m.ID, Logger: m.Logger,
 				Message: fmt.Sprintf("measurement at %.2f lies %.2f past the final depth %.2f", m.Depth, m.Depth-h.c.Depth, h.c.Depth)})
 			continue
+		}
+		if math.IsNaN(m.Beta) {
+			continue // unoriented: no beta to check, no plane
 		}
 		pt, err := h.path.At(m.Depth)
 		if err != nil {

@@ -69,6 +69,8 @@ type Measurement struct {
 	HoleID string  `json:"hole_id"`
 	Depth  float64 `json:"depth"`
 	Alpha  float64 `json:"alpha"`
+	// Beta is NaN for an unoriented measurement (no beta): its depth is
+	// checked, nothing that needs an orientation.
 	Beta   float64 `json:"beta"`
 	Type   string  `json:"type,omitempty"`
 	Logger string  `json:"logged_by,omitempty"`

@@ -68,7 +68,7 @@ func TestConcurrentLoggers(t *testing.T) {
 		go func() {
 			defer wg.Done()
 			for i := range each {
-				_, err := s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: float64(l*each + i), Alpha: 40, Beta: 100, TypeCode: "JN"})
+				_, err := s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: float64(l*each + i), Alpha: 40, Beta: f64(100), TypeCode: "JN"})
 				if err != nil {
 					fail <- err
 				}

@@ -58,7 +58,7 @@ type ConvertMeasurement struct {
 	HoleID            string   `json:"hole_id"`
 	Depth             float64  `json:"depth"`
 	Alpha             float64  `json:"alpha"`
-	Beta              float64  `json:"beta"`
+	Beta              *float64 `json:"beta"` // null or absent: unoriented
 	Gamma             *float64 `json:"gamma"`
 	Type              string   `json:"type"`
 	ApparentThickness *float64 `json:"apparent_thickness"`

@@ -110,7 +110,7 @@ func (s *Service) LoadDemo(ctx context.Context) (p domain.Project, loaded bool, 
 		}
 		ms := make([]domain.Measurement, 0, len(d.Structures))
 		for _, m := range d.Structures {
-			dm := domain.Measurement{ProjectID: p.ID, HoleID: byName[m.HoleID].ID, Depth: m.Depth, Alpha: m.Alpha, Beta: m.Beta,
+			dm := domain.Measurement{ProjectID: p.ID, HoleID: byName[m.HoleID].ID, Depth: m.Depth, Alpha: m.Alpha, Beta: &m.Beta,
 				TypeCode: m.Type, Comment: m.Comment, LoggedBy: m.LoggedBy, LoggedAt: logged[m.HoleID]}
 			if !math.IsNaN(m.Gamma) {
 				g := m.Gamma

@@ -86,7 +86,7 @@ func checkDemo(t *testing.T, s *service.Service, ctx context.Context, ordered bo
 func find(t *testing.T, ss []demo.Structure, v service.MeasurementView) demo.Structure {
 	t.Helper()
 	for _, x := range ss {
-		if x.HoleID == v.Hole && x.Depth == v.Depth && x.Alpha == v.Alpha && x.Beta == v.Beta {
+		if x.HoleID == v.Hole && x.Depth == v.Depth && x.Alpha == v.Alpha && v.Beta != nil && x.Beta == *v.Beta {
 			return x
 		}
 	}

@@ -73,6 +73,11 @@ type Derived struct {
 	LineLong95  *float64 `json:"line_long95"`
 	LineShort95 *float64 `json:"line_short95"`
 	LineMethod  string   `json:"line_method"`
+	// Unoriented is true for a measurement without beta: the hole
+	// direction, position and angle to the core axis are known, the dip
+	// direction, strike, pole and line are null (the dip too, except in a
+	// vertical hole). Statistics leave it out of set means and count it.
+	Unoriented bool `json:"unoriented"`
 	// RunConfidence is the confidence of the orientation run covering the
 	// depth, "" when no run covers it.
 	RunConfidence string `json:"run_confidence"`
@@ -215,10 +220,15 @@ func opt(x float64) *float64 {
 	return &x
 }
 
-// orient orients one measurement with the hole model; hm is the
-// measurement as the hole model takes it.
-func (m *holeModel) orient(depth, alpha, beta float64, gamma, apparent *float64) (r holemodel.Result, hm holemodel.Measurement, err error) {
-	hm = holemodel.Measurement{Depth: depth, Alpha: alpha, Beta: beta}
+// orient orients one measurement with the hole model (beta nil: an
+// unoriented measurement); hm is the measurement as the hole model takes it.
+func (m *holeModel) orient(depth, alpha float64, beta, gamma, apparent *float64) (r holemodel.Result, hm holemodel.Measurement, err error) {
+	hm = holemodel.Measurement{Depth: depth, Alpha: alpha}
+	if beta != nil {
+		hm.Beta = *beta
+	} else {
+		hm.NoBeta = true
+	}
 	if gamma != nil {
 		hm.Gamma, hm.HasGamma = *gamma, true
 	}
@@ -231,7 +241,7 @@ func (m *holeModel) orient(depth, alpha, beta float64, gamma, apparent *float64)
 
 // derive computes the derived values of one measurement, with r and err
 // from orient.
-func (m *holeModel) derive(depth, alpha, beta float64, gamma, apparent *float64) Derived {
+func (m *holeModel) derive(depth, alpha float64, beta, gamma, apparent *float64) Derived {
 	r, hm, err := m.orient(depth, alpha, beta, gamma, apparent)
 	var u *uncertainty.Result
 	if err == nil {
@@ -263,6 +273,7 @@ func (m *holeModel) derived(depth float64, r *holemodel.Result, err error, u *un
 		d.LineTrend, d.LinePlunge = opt(r.Line.Trend), opt(r.Line.Plunge)
 	}
 	d.TrueThickness = opt(r.TrueThickness)
+	d.Unoriented = r.Unoriented
 	if s := convert.Warnings(r, m.Hole); s != "" {
 		d.Warnings = append(d.Warnings, strings.Split(s, "; ")...)
 	}

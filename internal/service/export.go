@@ -69,7 +69,7 @@ func (s *Service) exportMeasurements(ctx context.Context, st domain.Store, proje
 			cw.String(hm.name)
 			cw.Float(m.Depth, 3)
 			cw.Float(m.Alpha, 2)
-			cw.Float(m.Beta, 2)
+			optFloat(cw, m.Beta, 2)
 			optFloat(cw, m.Gamma, 2)
 			optFloat(cw, m.ApparentThickness, 3)
 			cw.Strings([]string{m.TypeCode, m.Comment, m.LoggedBy, m.LoggedAt.UTC().Format(time.RFC3339)})

@@ -52,7 +52,7 @@ func TestHoleCorrectionsComputed(t *testing.T) {
 
 	// The same numbers as the derived values of a measurement on the hole,
 	// the hole list and the hole path.
-	m := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 100, Alpha: 40, Beta: 200, TypeCode: "JN"}))
+	m := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 100, Alpha: 40, Beta: f64(200), TypeCode: "JN"}))
 	if m.Derived.Declination == nil || *m.Derived.Declination != *c.Declination || m.Derived.DeclinationSource != *c.DeclinationSource ||
 		*m.Derived.GridConvergence != *c.GridConvergence || m.Derived.ConvergenceSource != c.ConvergenceSource {
 		t.Errorf("derived values %+v disagree with the hole's corrections %+v", m.Derived, c)
@@ -173,7 +173,7 @@ func TestDeclinationSourceOfSurveySet(t *testing.T) {
 	stations := []domain.Station{{Depth: 0, Azimuth: 90, Dip: -60}}
 	derived := func(holeID int64) service.Derived {
 		t.Helper()
-		return must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: holeID, Depth: 50, Alpha: 40, Beta: 200, TypeCode: "JN"})).Derived
+		return must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: holeID, Depth: 50, Alpha: 40, Beta: f64(200), TypeCode: "JN"})).Derived
 	}
 
 	ss := must(s.PutSurvey(ctx, p.ID, h.ID, 0, domain.SurveySet{AzimuthRef: domain.AzimuthMagnetic, SurveyDate: "2026-03-15",
@@ -233,7 +233,7 @@ func TestHoleCorrectionsCautions(t *testing.T) {
 		t.Errorf("near the magnetic pole: cautions %q, want %q", c.Cautions, want.Caution())
 	}
 	near(t, "declination near the pole", c.Declination, want.Declination, 1e-9)
-	m := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: hp.ID, Depth: 50, Alpha: 40, Beta: 200, TypeCode: "JN"}))
+	m := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: hp.ID, Depth: 50, Alpha: 40, Beta: f64(200), TypeCode: "JN"}))
 	if !strings.Contains(strings.Join(m.Derived.Warnings, "; "), want.Caution()) {
 		t.Errorf("measurement warnings %q lack the caution", m.Derived.Warnings)
 	}

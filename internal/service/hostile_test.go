@@ -88,7 +88,7 @@ func checkTextRules(t *testing.T, s *service.Service, ctx context.Context) {
 	must(s.CreateRun(ctx, p.ID, h.ID, domain.Run{From: 0, To: 3, Comment: "tab\tkept"}))
 
 	meas := func(comment, by string) domain.Measurement {
-		return domain.Measurement{HoleID: h.ID, Depth: 1, Alpha: 30, Beta: 40, TypeCode: "BD", Comment: comment, LoggedBy: by}
+		return domain.Measurement{HoleID: h.ID, Depth: 1, Alpha: 30, Beta: f64(40), TypeCode: "BD", Comment: comment, LoggedBy: by}
 	}
 	for _, tc := range []struct {
 		m     domain.Measurement
@@ -158,7 +158,7 @@ func checkDepthRules(t *testing.T, s *service.Service, ctx context.Context) {
 	h := must(s.CreateHole(ctx, p.ID, domain.Hole{Name: "DH1", Azimuth: 90, Dip: -60, FinalDepth: 200}))
 	must(s.PutSurvey(ctx, p.ID, h.ID, 0, domain.SurveySet{AzimuthRef: "grid", Stations: []domain.Station{{Depth: 0, Azimuth: 90, Dip: -60}, {Depth: 90, Azimuth: 91, Dip: -59}}}))
 	r := must(s.CreateRun(ctx, p.ID, h.ID, domain.Run{From: 100, To: 150}))
-	m := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 180, Alpha: 30, Beta: 40, TypeCode: "BD"}))
+	m := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 180, Alpha: 30, Beta: f64(40), TypeCode: "BD"}))
 
 	shrink := h
 	shrink.FinalDepth = 80

@@ -94,7 +94,7 @@ func (s *Service) importDiscontinuities(ctx context.Context, st domain.Store, p 
 			ps.add(r.Line, col, "%v", err)
 			continue
 		}
-		m := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: r.Top, Alpha: alpha, Beta: beta, TypeCode: r.Type,
+		m := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: r.Top, Alpha: alpha, Beta: &beta, TypeCode: r.Type,
 			Comment: r.Remarks, LoggedBy: a.Name, LoggedAt: now}
 		if err := checkMeasurement(&m, h, vocab); err != nil {
 			var e *domain.Error

@@ -508,8 +508,12 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 			ps.add(r.Line, csvio.ColHoleID, "no hole %q in the project", r.HoleID)
 			continue
 		}
-		m := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: r.Depth, Alpha: r.Alpha, Beta: r.Beta,
+		m := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: r.Depth, Alpha: r.Alpha,
 			TypeCode: cell(iType), Comment: cell(iComment), LoggedBy: cell(iBy), LoggedAt: now}
+		if r.HasBeta {
+			b := r.Beta
+			m.Beta = &b
+		}
 		if r.HasGamma {
 			g := r.Gamma
 			m.Gamma = &g

@@ -14,7 +14,7 @@ const MaxPreviewMeasurements = 1000
 type PreviewMeasurement struct {
 	Depth             float64  `json:"depth"`
 	Alpha             float64  `json:"alpha"`
-	Beta              float64  `json:"beta"`
+	Beta              *float64 `json:"beta"` // null or absent: unoriented
 	Gamma             *float64 `json:"gamma"`
 	ApparentThickness *float64 `json:"apparent_thickness"`
 }

@@ -24,8 +24,8 @@ func TestPreviewIsTheSavedDerivation(t *testing.T) {
 	rctx := service.WithActor(context.Background(), must(s.Authenticate(admin, readSecret)))
 
 	g := 35.0
-	pm := service.PreviewMeasurement{Depth: 42.5, Alpha: 33, Beta: 250, Gamma: &g}
-	out := must(s.Preview(rctx, p.ID, h.ID, service.PreviewRequest{Measurements: []service.PreviewMeasurement{pm, {Depth: 500, Alpha: 33, Beta: 250}}}))
+	pm := service.PreviewMeasurement{Depth: 42.5, Alpha: 33, Beta: f64(250), Gamma: &g}
+	out := must(s.Preview(rctx, p.ID, h.ID, service.PreviewRequest{Measurements: []service.PreviewMeasurement{pm, {Depth: 500, Alpha: 33, Beta: f64(250)}}}))
 	if len(out) != 2 {
 		t.Fatalf("%d results", len(out))
 	}
@@ -42,7 +42,7 @@ func TestPreviewIsTheSavedDerivation(t *testing.T) {
 	if !strings.Contains(out[1].Derived.Error, "past the final depth") || out[1].Derived.Dip != nil {
 		t.Errorf("depth past the hole: %+v", out[1].Derived)
 	}
-	_, err := s.Preview(rctx, p.ID, h.ID, service.PreviewRequest{Measurements: []service.PreviewMeasurement{{Depth: 5, Alpha: 95, Beta: 0}}})
+	_, err := s.Preview(rctx, p.ID, h.ID, service.PreviewRequest{Measurements: []service.PreviewMeasurement{{Depth: 5, Alpha: 95, Beta: f64(0)}}})
 	wantKind(t, err, domain.Invalid, "alpha 95")
 	if e, ok := err.(*domain.Error); !ok || e.Loc.Field != "measurements[0].alpha" {
 		t.Errorf("alpha 95: %v, want field measurements[0].alpha", err)

@@ -3,6 +3,7 @@ package service
 import (
 	"context"
 	"fmt"
+	"math"
 
 	"corvane/internal/domain"
 	"corvane/internal/qa"
@@ -167,7 +168,11 @@ func (s *Service) qaInput(ctx context.Context, p domain.Project, holes []domain.
 			if len(in.Measurements) >= MaxQAMeasurements {
 				return in, domain.Errorf(domain.Invalid, "more than %d measurements in project %d: run the QA hole by hole", MaxQAMeasurements, p.ID)
 			}
-			in.Measurements = append(in.Measurements, qa.Measurement{HoleID: name, Depth: m.Depth, Alpha: m.Alpha, Beta: m.Beta,
+			beta := math.NaN() // unoriented
+			if m.Beta != nil {
+				beta = *m.Beta
+			}
+			in.Measurements = append(in.Measurements, qa.Measurement{HoleID: name, Depth: m.Depth, Alpha: m.Alpha, Beta: beta,
 				Type: m.TypeCode, Logger: m.LoggedBy, ID: m.ID})
 		}
 		if len(ms) < domain.MaxLimit {

@@ -113,7 +113,7 @@ func TestQADemoProgramme(t *testing.T) {
 	for _, h := range holes {
 		ss := must(s.GetSurvey(ctx, p.ID, h.ID))
 		st := ss.Stations[1]
-		v := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: st.Depth, Alpha: 45, Beta: 30, TypeCode: "joint"}))
+		v := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: st.Depth, Alpha: 45, Beta: f64(30), TypeCode: "joint"}))
 		if v.Derived.Declination == nil || v.Derived.GridConvergence == nil || v.Derived.ConvergenceSource != "computed" {
 			t.Fatalf("hole %s: derived corrections %+v", h.Name, v.Derived)
 		}
@@ -232,7 +232,7 @@ func TestQAFindsRotatedRun(t *testing.T) {
 
 	// A measurement exactly at a station: its derived hole azimuth is the
 	// station's azimuth in the output reference.
-	atStation := must(s.CreateMeasurement(ctx, fx.p.ID, domain.Measurement{HoleID: fx.h.ID, Depth: 60, Alpha: 40, Beta: 20, TypeCode: "JN"}))
+	atStation := must(s.CreateMeasurement(ctx, fx.p.ID, domain.Measurement{HoleID: fx.h.ID, Depth: 60, Alpha: 40, Beta: f64(20), TypeCode: "JN"}))
 
 	rep, err := s.QA(ctx, fx.p.ID, fx.h.ID, qa.Options{PersistentType: "bd"})
 	if err != nil {
@@ -363,7 +363,7 @@ func TestQARolesAndProjects(t *testing.T) {
 	s, admin := newService(t)
 	p, h := programme(t, s, admin, domain.Project{})
 	q, qh := programme(t, s, admin, domain.Project{Name: "other"})
-	must(s.CreateMeasurement(admin, p.ID, domain.Measurement{HoleID: h.ID, Depth: 10, Alpha: 40, Beta: 100, TypeCode: "BD"}))
+	must(s.CreateMeasurement(admin, p.ID, domain.Measurement{HoleID: h.ID, Depth: 10, Alpha: 40, Beta: f64(100), TypeCode: "BD"}))
 	secret, _ := mustToken(t, s, admin, p.ID, domain.RoleRead)
 	rctx := service.WithActor(context.Background(), must(s.Authenticate(admin, secret)))
 

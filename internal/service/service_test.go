@@ -100,7 +100,7 @@ func TestDerivedPlanesReferenceCases(t *testing.T) {
 		{30, 180, 30, 0}, // conventions.md "Check": alpha 30 beta 180 dips 30 toward 000
 	}
 	for _, c := range cases {
-		v := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 50, Alpha: c.alpha, Beta: c.beta, TypeCode: "JN"}))
+		v := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 50, Alpha: c.alpha, Beta: f64(c.beta), TypeCode: "JN"}))
 		d := v.Derived
 		if d.Error != "" {
 			t.Fatalf("alpha %v beta %v: %s", c.alpha, c.beta, d.Error)
@@ -128,7 +128,7 @@ func TestDerivedVerticalHole(t *testing.T) {
 	s, ctx := newService(t)
 	p, _ := programme(t, s, ctx, domain.Project{})
 	h := must(s.CreateHole(ctx, p.ID, domain.Hole{Name: "V1", Dip: -90, FinalDepth: 100}))
-	v := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 10, Alpha: 35, Beta: 120, TypeCode: "BD"}))
+	v := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 10, Alpha: 35, Beta: f64(120), TypeCode: "BD"}))
 	near(t, "dip", v.Derived.Dip, 55, 1e-9)
 	if v.Derived.DipDirection != nil || v.Derived.Strike != nil {
 		t.Errorf("vertical hole has a dip direction: %v", *v.Derived.DipDirection)
@@ -145,7 +145,7 @@ func TestDerivedFollowSurveyAndConventions(t *testing.T) {
 	// A collar without a crs: the true survey needs the project's
 	// convergence for grid output (set to 0 here; unset it is an error).
 	p, h := programme(t, s, ctx, domain.Project{Convergence: f64(0)})
-	m := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 50, Alpha: 20, Beta: 180, TypeCode: "BD"}))
+	m := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 50, Alpha: 20, Beta: f64(180), TypeCode: "BD"}))
 	near(t, "dip before", m.Derived.Dip, 40, 1e-6)
 
 	// A survey that turns the hole vertical from the collar down.
@@ -202,8 +202,8 @@ func TestDerivedPositionMinimumCurvature(t *testing.T) {
 	h := must(s.CreateHole(ctx, p.ID, domain.Hole{Name: "L1", Azimuth: 20, Dip: -75, FinalDepth: 4000}))
 	must(s.PutSurvey(ctx, p.ID, h.ID, 0, domain.SurveySet{AzimuthRef: "true", Stations: []domain.Station{
 		{Depth: 0, Azimuth: 20, Dip: -75}, {Depth: 3500, Azimuth: 20, Dip: -75}, {Depth: 3600, Azimuth: 45, Dip: -65}}}))
-	a := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 3500, Alpha: 45, Beta: 0, TypeCode: "BD"}))
-	b := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 3600, Alpha: 45, Beta: 0, TypeCode: "BD"}))
+	a := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 3500, Alpha: 45, Beta: f64(0), TypeCode: "BD"}))
+	b := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 3600, Alpha: 45, Beta: f64(0), TypeCode: "BD"}))
 	dn := *b.Derived.North - *a.Derived.North
 	de := *b.Derived.East - *a.Derived.East
 	dz := *a.Derived.Elevation - *b.Derived.Elevation
@@ -232,9 +232,9 @@ func TestRolesAndProjects(t *testing.T) {
 	wantKind(t, err, domain.Unauthorized, "wrong secret")
 	_, err = s.GetProject(context.Background(), p.ID)
 	wantKind(t, err, domain.Unauthorized, "no actor")
-	_, err = s.CreateMeasurement(rctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 5, Alpha: 10, Beta: 10, TypeCode: "BD"})
+	_, err = s.CreateMeasurement(rctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 5, Alpha: 10, Beta: f64(10), TypeCode: "BD"})
 	wantKind(t, err, domain.Forbidden, "reader logging")
-	m := must(s.CreateMeasurement(lctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 5, Alpha: 10, Beta: 10, TypeCode: "BD"}))
+	m := must(s.CreateMeasurement(lctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 5, Alpha: 10, Beta: f64(10), TypeCode: "BD"}))
 	if m.LoggedBy != logger.Name {
 		t.Errorf("logged_by %q, want the token's name %q", m.LoggedBy, logger.Name)
 	}
@@ -276,7 +276,7 @@ func TestHashTokenIsSHA256(t *testing.T) {
 func TestVersionsAndAudit(t *testing.T) {
 	s, ctx := newService(t)
 	p, h := programme(t, s, ctx, domain.Project{})
-	m := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 5, Alpha: 10, Beta: 10, TypeCode: "BD"}))
+	m := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 5, Alpha: 10, Beta: f64(10), TypeCode: "BD"}))
 	upd := m.Measurement
 	upd.Alpha = 11
 	v2 := must(s.UpdateMeasurement(ctx, p.ID, m.ID, m.Version, upd))
@@ -286,9 +286,9 @@ func TestVersionsAndAudit(t *testing.T) {
 	upd.Alpha = 12
 	_, err := s.UpdateMeasurement(ctx, p.ID, m.ID, m.Version, upd)
 	wantKind(t, err, domain.PreconditionFailed, "second logger with the old version")
-	_, err = s.UpdateMeasurement(ctx, p.ID, m.ID, v2.Version, domain.Measurement{Depth: 5, Alpha: 10, Beta: 10, TypeCode: "NOPE"})
+	_, err = s.UpdateMeasurement(ctx, p.ID, m.ID, v2.Version, domain.Measurement{Depth: 5, Alpha: 10, Beta: f64(10), TypeCode: "NOPE"})
 	wantKind(t, err, domain.Invalid, "type outside the vocabulary")
-	_, err = s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 500, Alpha: 10, Beta: 10, TypeCode: "BD"})
+	_, err = s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 500, Alpha: 10, Beta: f64(10), TypeCode: "BD"})
 	wantKind(t, err, domain.Invalid, "depth past the final depth")
 	wantKind(t, s.DeleteMeasurement(ctx, p.ID, m.ID, 1), domain.PreconditionFailed, "stale delete")
 	if err := s.DeleteMeasurement(ctx, p.ID, m.ID, 2); err != nil {
@@ -314,9 +314,9 @@ func TestConvertStateless(t *testing.T) {
 	req := service.ConvertRequest{
 		Collars: []service.ConvertCollar{{HoleID: "A", Azimuth: 0, Dip: -60, FinalDepth: 100}},
 		Measurements: []service.ConvertMeasurement{
-			{HoleID: "A", Depth: 10, Alpha: 45, Beta: 90, ApparentThickness: f64(2)},
-			{HoleID: "B", Depth: 10, Alpha: 45, Beta: 90},
-			{HoleID: "A", Depth: 150, Alpha: 45, Beta: 90},
+			{HoleID: "A", Depth: 10, Alpha: 45, Beta: f64(90), ApparentThickness: f64(2)},
+			{HoleID: "B", Depth: 10, Alpha: 45, Beta: f64(90)},
+			{HoleID: "A", Depth: 150, Alpha: 45, Beta: f64(90)},
 		},
 	}
 	resp := must(s.Convert(ctx, req))

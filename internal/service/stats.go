@@ -115,7 +115,7 @@ func (s *Service) gather(ctx context.Context, projectID int64, q MeasurementQuer
 
 // fabricRow is the pipeline's row for derived values dv.
 func fabricRow(typ string, dv Derived) fabric.Row {
-	r := fabric.Row{Type: typ, Error: dv.Error}
+	r := fabric.Row{Type: typ, Error: dv.Error, Unoriented: dv.Unoriented}
 	if dv.Dip != nil && dv.DipDirection != nil {
 		r.HasPlane, r.Plane = true, geom.Plane{Dip: *dv.Dip, DipDirection: *dv.DipDirection}
 	} else if dv.Dip != nil {

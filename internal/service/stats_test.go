@@ -24,9 +24,9 @@ func TestStatisticsExactGeometry(t *testing.T) {
 	s, ctx := newService(t)
 	p, h := programme(t, s, ctx, domain.Project{})
 	for _, a := range []float64{30, 20, 10} {
-		must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 20, Alpha: a, Beta: 180, TypeCode: "BD"}))
+		must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 20, Alpha: a, Beta: f64(180), TypeCode: "BD"}))
 	}
-	must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 20, Alpha: 45, Beta: 90, TypeCode: "JN"}))
+	must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 20, Alpha: 45, Beta: f64(90), TypeCode: "JN"}))
 	res := must(s.Statistics(ctx, p.ID, service.StatsQuery{MeasurementQuery: service.MeasurementQuery{Types: []string{"BD"}},
 		SetQuery: service.SetQuery{Sets: "type"}, Weighting: "terzaghi"}))
 	if res.Rows != 3 || res.Planes == nil || len(res.Planes.Sets) != 1 || res.Planes.Sets[0].Name != "BD" || res.Caution == "" {
@@ -117,5 +117,33 @@ func nearNum(t *testing.T, what string, got *fabric.Num, want, tol float64) {
 	t.Helper()
 	if got == nil || math.Abs(float64(*got)-want) > tol {
 		t.Errorf("%s = %v, want %v", what, got, want)
+	}
+}
+
+// An unoriented measurement (no beta) is stored, its derived values give the
+// hole direction and say unoriented, and the statistics leave it out of the
+// set means with a count under the one skip rule (package fabric). A gamma
+// without beta is refused, naming the field.
+func TestUnorientedMeasurement(t *testing.T) {
+	s, ctx := newService(t)
+	p, h := programme(t, s, ctx, domain.Project{})
+	for _, a := range []float64{30, 20, 10} {
+		must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 20, Alpha: a, Beta: f64(180), TypeCode: "BD"}))
+	}
+	v := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 21, Alpha: 40, TypeCode: "BD"}))
+	d := v.Derived
+	if v.Beta != nil || !d.Unoriented || d.Error != "" || d.HoleAzimuth == nil || d.HoleDip == nil || d.Dip != nil || d.DipDirection != nil ||
+		d.PoleTrend != nil || d.Strike != nil || !strings.Contains(strings.Join(d.Warnings, "; "), "unoriented") {
+		t.Fatalf("unoriented view %+v, derived %+v", v, d)
+	}
+	res := must(s.Statistics(ctx, p.ID, service.StatsQuery{SetQuery: service.SetQuery{Sets: "type"}}))
+	if res.Rows != 4 || res.RowsUsed != 3 || len(res.RowsSkipped) != 1 || res.RowsSkipped[0] != (fabric.SkipCount{Reason: fabric.SkipUnoriented, Count: 1}) {
+		t.Fatalf("rows %d used %d skipped %+v", res.Rows, res.RowsUsed, res.RowsSkipped)
+	}
+	nearNum(t, "mean dip without the unoriented one", res.Planes.Sets[0].Unweighted.Mean.Dip, 40, 1e-6)
+	_, err := s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 22, Alpha: 40, Gamma: f64(10), TypeCode: "BD"})
+	wantKind(t, err, domain.Invalid, "gamma without beta")
+	if e, ok := err.(*domain.Error); !ok || e.Loc.Field != "gamma" {
+		t.Errorf("gamma without beta: %#v", err)
 	}
 }

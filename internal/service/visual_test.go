@@ -72,7 +72,7 @@ func TestLineationRule(t *testing.T) {
 		{"line with gamma", "LN", &g, true},
 		{"line without gamma", "LN", nil, false},
 	} {
-		_, err := s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 10, Alpha: 40, Beta: 100, Gamma: c.gamma, TypeCode: c.typ, LoggedBy: "L1"})
+		_, err := s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 10, Alpha: 40, Beta: f64(100), Gamma: c.gamma, TypeCode: c.typ, LoggedBy: "L1"})
 		if c.ok {
 			if err != nil {
 				t.Errorf("%s refused: %v", c.what, err)
@@ -84,7 +84,7 @@ func TestLineationRule(t *testing.T) {
 			t.Errorf("%s: error not on the gamma field: %v", c.what, err)
 		}
 	}
-	m := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 20, Alpha: 40, Beta: 100, TypeCode: "BD", LoggedBy: "L1"}))
+	m := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 20, Alpha: 40, Beta: f64(100), TypeCode: "BD", LoggedBy: "L1"}))
 	m.Measurement.TypeCode = "LN" // a line type now, still without gamma
 	_, err := s.UpdateMeasurement(ctx, p.ID, m.ID, m.Version, m.Measurement)
 	wantKind(t, err, domain.Invalid, "update to a line type without gamma")
@@ -97,7 +97,7 @@ func TestListByDepth(t *testing.T) {
 	p, h := programme(t, s, ctx, domain.Project{})
 	depths := []float64{50, 10, 30, 10, 70, 20, 30}
 	for _, d := range depths {
-		must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: d, Alpha: 40, Beta: 100, TypeCode: "BD", LoggedBy: "L2", LoggedAt: time.Now()}))
+		must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: d, Alpha: 40, Beta: f64(100), TypeCode: "BD", LoggedBy: "L2", LoggedAt: time.Now()}))
 	}
 	var got []domain.Measurement
 	var after int64

@@ -69,7 +69,7 @@ func where(f domain.MeasurementFilter) (string, []any) {
 
 func insertOne(ctx context.Context, q querier, m *domain.Measurement, t time.Time) error {
 	m.LoggedAt = m.LoggedAt.UTC().Truncate(time.Microsecond)
-	err := q.QueryRow(ctx, insertMeasurement, m.ProjectID, m.HoleID, m.Depth, m.Alpha, m.Beta, storekit.NullFloat(m.Gamma),
+	err := q.QueryRow(ctx, insertMeasurement, m.ProjectID, m.HoleID, m.Depth, m.Alpha, storekit.NullFloat(m.Beta), storekit.NullFloat(m.Gamma),
 		m.TypeCode, storekit.NullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, m.LoggedAt, t, t).Scan(&m.ID)
 	if err != nil {
 		return translate(err)
@@ -197,7 +197,7 @@ func (s *Store) UpdateMeasurement(ctx context.Context, m *domain.Measurement, if
 	t := storekit.Now()
 	m.LoggedAt = m.LoggedAt.UTC().Truncate(time.Microsecond)
 	return s.write(ctx, func(q querier) error {
-		err := q.QueryRow(ctx, updateMeasurement, m.HoleID, m.Depth, m.Alpha, m.Beta, storekit.NullFloat(m.Gamma),
+		err := q.QueryRow(ctx, updateMeasurement, m.HoleID, m.Depth, m.Alpha, storekit.NullFloat(m.Beta), storekit.NullFloat(m.Gamma),
 			m.TypeCode, storekit.NullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, m.LoggedAt,
 			t, m.ID, ifVersion).Scan(&m.Version)
 		if err == pgx.ErrNoRows {

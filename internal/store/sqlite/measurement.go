@@ -26,11 +26,11 @@ const (
 
 func scanMeasurement(r scanner) (domain.Measurement, error) {
 	var m domain.Measurement
-	var g, th sql.NullFloat64
+	var b, g, th sql.NullFloat64
 	var l, c, u int64
-	err := r.Scan(&m.ID, &m.ProjectID, &m.HoleID, &m.Depth, &m.Alpha, &m.Beta, &g, &m.TypeCode, &th,
+	err := r.Scan(&m.ID, &m.ProjectID, &m.HoleID, &m.Depth, &m.Alpha, &b, &g, &m.TypeCode, &th,
 		&m.Comment, &m.LoggedBy, &l, &m.Version, &c, &u)
-	m.Gamma, m.ApparentThickness = floatPtr(g), floatPtr(th)
+	m.Beta, m.Gamma, m.ApparentThickness = floatPtr(b), floatPtr(g), floatPtr(th)
 	m.LoggedAt, m.CreatedAt, m.UpdatedAt = fromMicro(l), fromMicro(c), fromMicro(u)
 	return m, err
 }
@@ -73,7 +73,7 @@ func where(f domain.MeasurementFilter) (string, []any) {
 
 func insertOne(ctx context.Context, q querier, m *domain.Measurement, t time.Time) error {
 	m.LoggedAt = m.LoggedAt.UTC().Truncate(time.Microsecond)
-	err := q.QueryRowContext(ctx, insertMeasurement, m.ProjectID, m.HoleID, m.Depth, m.Alpha, m.Beta, storekit.NullFloat(m.Gamma),
+	err := q.QueryRowContext(ctx, insertMeasurement, m.ProjectID, m.HoleID, m.Depth, m.Alpha, storekit.NullFloat(m.Beta), storekit.NullFloat(m.Gamma),
 		m.TypeCode, storekit.NullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, micro(m.LoggedAt), micro(t), micro(t)).Scan(&m.ID)
 	if err != nil {
 		return translate(err)
@@ -102,7 +102,7 @@ func (s *Store) CreateMeasurements(ctx context.Context, ms []domain.Measurement)
 		for i := range ms {
 			m := &ms[i]
 			m.LoggedAt = m.LoggedAt.UTC().Truncate(time.Microsecond)
-			err := stmt.QueryRowContext(ctx, m.ProjectID, m.HoleID, m.Depth, m.Alpha, m.Beta, storekit.NullFloat(m.Gamma),
+			err := stmt.QueryRowContext(ctx, m.ProjectID, m.HoleID, m.Depth, m.Alpha, storekit.NullFloat(m.Beta), storekit.NullFloat(m.Gamma),
 				m.TypeCode, storekit.NullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, micro(m.LoggedAt), micro(t), micro(t)).Scan(&m.ID)
 			if err != nil {
 				return translate(err)
@@ -165,7 +165,7 @@ func (s *Store) UpdateMeasurement(ctx context.Context, m *domain.Measurement, if
 	t := storekit.Now()
 	m.LoggedAt = m.LoggedAt.UTC().Truncate(time.Microsecond)
 	return s.write(ctx, func(q querier) error {
-		err := q.QueryRowContext(ctx, updateMeasurement, m.HoleID, m.Depth, m.Alpha, m.Beta, storekit.NullFloat(m.Gamma),
+		err := q.QueryRowContext(ctx, updateMeasurement, m.HoleID, m.Depth, m.Alpha, storekit.NullFloat(m.Beta), storekit.NullFloat(m.Gamma),
 			m.TypeCode, storekit.NullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, micro(m.LoggedAt),
 			micro(t), m.ID, ifVersion).Scan(&m.Version)
 		if err == sql.ErrNoRows {

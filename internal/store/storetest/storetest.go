@@ -181,12 +181,12 @@ func testTypeCodes(t *testing.T, s domain.Store) {
 		{ProjectID: p.ID, Code: "LN", Description: "lineation", Kind: "line"},
 	}, got)
 	h := newHole(t, s, p.ID, "H1")
-	m := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: 10, Alpha: 30, Beta: 100, TypeCode: "JN", LoggedAt: time.Now()}
+	m := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: 10, Alpha: 30, Beta: f64(100), TypeCode: "JN", LoggedAt: time.Now()}
 	must(t, s.CreateMeasurement(c, &m))
 	wantKind(t, s.DeleteTypeCode(c, p.ID, "JN"), domain.Conflict, "delete code in use")
 	must(t, s.DeleteTypeCode(c, p.ID, "LN"))
 	wantKind(t, s.DeleteTypeCode(c, p.ID, "LN"), domain.NotFound, "delete missing code")
-	bad := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: 10, Alpha: 30, Beta: 100, TypeCode: "NOPE", LoggedAt: time.Now()}
+	bad := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: 10, Alpha: 30, Beta: f64(100), TypeCode: "NOPE", LoggedAt: time.Now()}
 	wantKind(t, s.CreateMeasurement(c, &bad), domain.Conflict, "measurement with unknown code")
 }
 
@@ -304,7 +304,7 @@ func testMeasurements(t *testing.T, s domain.Store) {
 	p := newProject(t, s, "meas")
 	h := newHole(t, s, p.ID, "M1")
 	logged := time.Date(2026, 3, 2, 10, 30, 15, 123456789, time.FixedZone("AWST", 8*3600))
-	m := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: 12.34, Alpha: 35, Beta: 210.5, Gamma: f64(80),
+	m := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: 12.34, Alpha: 35, Beta: f64(210.5), Gamma: f64(80),
 		TypeCode: "BD", ApparentThickness: f64(0.12), Comment: "sharp contact", LoggedBy: "ana", LoggedAt: logged}
 	must(t, s.CreateMeasurement(c, &m))
 	if !m.LoggedAt.Equal(logged.Truncate(time.Microsecond)) {
@@ -313,12 +313,32 @@ func testMeasurements(t *testing.T, s domain.Store) {
 	got, err := s.GetMeasurement(c, m.ID)
 	must(t, err)
 	diff(t, "GetMeasurement", m, got)
-	plain := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: 13, Alpha: 60, Beta: 0, TypeCode: "JN", LoggedAt: logged}
+	plain := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: 13, Alpha: 60, Beta: f64(0), TypeCode: "JN", LoggedAt: logged}
 	must(t, s.CreateMeasurement(c, &plain))
 	got, _ = s.GetMeasurement(c, plain.ID)
-	if got.Gamma != nil || got.ApparentThickness != nil {
-		t.Errorf("nil optionals came back as %v, %v", got.Gamma, got.ApparentThickness)
+	if got.Gamma != nil || got.ApparentThickness != nil || got.Beta == nil || *got.Beta != 0 {
+		t.Errorf("nil optionals came back as %v, %v; beta 0 as %v", got.Gamma, got.ApparentThickness, got.Beta)
 	}
+	// An unoriented measurement (no beta) keeps its missing beta, one at a
+	// time and in bulk.
+	unor := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: 14, Alpha: 50, TypeCode: "JN", LoggedAt: logged}
+	must(t, s.CreateMeasurement(c, &unor))
+	got, _ = s.GetMeasurement(c, unor.ID)
+	diff(t, "unoriented measurement", unor, got)
+	if _, err := s.CreateMeasurements(c, []domain.Measurement{unor}); err != nil {
+		t.Fatal(err)
+	}
+	ms, err := s.ListMeasurements(c, domain.MeasurementFilter{ProjectID: p.ID, MinDepth: f64(14), MaxDepth: f64(14)}, domain.Page{})
+	must(t, err)
+	if len(ms) != 2 || ms[0].Beta != nil || ms[1].Beta != nil {
+		t.Errorf("unoriented measurements listed as %+v", ms)
+	}
+	unor.Beta = f64(33)
+	must(t, s.UpdateMeasurement(c, &unor, 1))
+	got, _ = s.GetMeasurement(c, unor.ID)
+	diff(t, "unoriented measurement given a beta", unor, got)
+	must(t, s.DeleteMeasurement(c, unor.ID, 2))
+	must(t, s.DeleteMeasurement(c, ms[1].ID, 1))
 	m.Alpha, m.Gamma = 36, nil
 	must(t, s.UpdateMeasurement(c, &m, 1))
 	got, _ = s.GetMeasurement(c, m.ID)
@@ -331,7 +351,7 @@ func testMeasurements(t *testing.T, s domain.Store) {
 
 	bulk := make([]domain.Measurement, 250)
 	for i := range bulk {
-		bulk[i] = domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: float64(i), Alpha: float64(i % 90), Beta: float64(i % 360),
+		bulk[i] = domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: float64(i), Alpha: float64(i % 90), Beta: f64(float64(i % 360)),
 			TypeCode: "JN", LoggedBy: "bulk", LoggedAt: logged}
 		if i%2 == 0 {
 			bulk[i].Gamma = f64(float64(i % 180))
@@ -410,8 +430,8 @@ func testMeasurements(t *testing.T, s domain.Store) {
 	}
 	// A bulk batch with one bad row writes nothing.
 	bad := []domain.Measurement{
-		{ProjectID: p.ID, HoleID: h.ID, Depth: 1, Alpha: 1, Beta: 1, TypeCode: "JN", LoggedAt: logged},
-		{ProjectID: p.ID, HoleID: h.ID, Depth: 2, Alpha: 1, Beta: 1, TypeCode: "UNKNOWN", LoggedAt: logged},
+		{ProjectID: p.ID, HoleID: h.ID, Depth: 1, Alpha: 1, Beta: f64(1), TypeCode: "JN", LoggedAt: logged},
+		{ProjectID: p.ID, HoleID: h.ID, Depth: 2, Alpha: 1, Beta: f64(1), TypeCode: "UNKNOWN", LoggedAt: logged},
 	}
 	if _, err := s.CreateMeasurements(c, bad); err == nil {
 		t.Fatal("bulk insert with an unknown type code succeeded")
@@ -438,10 +458,10 @@ func testMeasurementFilters(t *testing.T, s domain.Store) {
 		{HoleID: h2.ID, Depth: 35, TypeCode: "JN", LoggedAt: day(5)},
 	}
 	for i := range rows {
-		rows[i].ProjectID, rows[i].Alpha, rows[i].Beta = p.ID, 45, 90
+		rows[i].ProjectID, rows[i].Alpha, rows[i].Beta = p.ID, 45, f64(90)
 		must(t, s.CreateMeasurement(c, &rows[i]))
 	}
-	o := domain.Measurement{ProjectID: other.ID, HoleID: ho.ID, Depth: 15, Alpha: 1, Beta: 1, TypeCode: "JN", LoggedAt: day(2)}
+	o := domain.Measurement{ProjectID: other.ID, HoleID: ho.ID, Depth: 15, Alpha: 1, Beta: f64(1), TypeCode: "JN", LoggedAt: day(2)}
 	must(t, s.CreateMeasurement(c, &o))
 	from, to := day(2), day(4)
 	cases := []struct {
@@ -526,7 +546,7 @@ func testSnapshot(t *testing.T, s domain.Store) {
 	batch := func(n int) []domain.Measurement {
 		ms := make([]domain.Measurement, n)
 		for i := range ms {
-			ms[i] = domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: float64(10 + i%200), Alpha: 40, Beta: 120,
+			ms[i] = domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: float64(10 + i%200), Alpha: 40, Beta: f64(120),
 				TypeCode: "BD", LoggedAt: time.Date(2026, 3, 2, 0, 0, 0, 0, time.UTC)}
 		}
 		return ms
@@ -739,7 +759,7 @@ func testCascade(t *testing.T, s domain.Store) {
 	must(t, s.PutSurvey(c, &ss, 0))
 	r := domain.Run{HoleID: h.ID, From: 0, To: 3, Confidence: "good"}
 	must(t, s.CreateRun(c, &r))
-	m := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: 1, Alpha: 10, Beta: 10, TypeCode: "BD", LoggedAt: time.Now()}
+	m := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: 1, Alpha: 10, Beta: f64(10), TypeCode: "BD", LoggedAt: time.Now()}
 	must(t, s.CreateMeasurement(c, &m))
 	tk := domain.Token{ProjectID: p.ID, Name: "x", Role: domain.RoleRead, Hash: "ff"}
 	must(t, s.CreateToken(c, &tk))
@@ -768,7 +788,7 @@ func testConcurrentWriters(t *testing.T, s domain.Store) {
 		go func() {
 			defer wg.Done()
 			for i := range each {
-				m := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: float64(w*each + i), Alpha: 45, Beta: 90, TypeCode: "JN", LoggedAt: time.Now()}
+				m := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: float64(w*each + i), Alpha: 45, Beta: f64(90), TypeCode: "JN", LoggedAt: time.Now()}
 				if err := s.CreateMeasurement(c, &m); err != nil {
 					errs <- err
 				}
