@@ -96,3 +96,22 @@ func FuzzReadIntervals(f *testing.F) {
 		}
 	})
 }
+
+// WriteIntervals writes what ReadIntervals reads back to the same values.
+func TestWriteIntervalsRoundTrip(t *testing.T) {
+	in := "hole_id,from,to,recovered,solid,sound,pieces,natural_breaks,induced_breaks,confidence\n" +
+		"TM001,0,3,2.9,2.5,2.1,,4,2,good\n" +
+		"TM001,3,6.1,3,2.8,,0.5;0.05;0.3333333333333333,0,,\n" +
+		"TM002,10,12,,,,,,,\n"
+	rows, err := ReadIntervals(strings.NewReader(in), "iv.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	var b bytes.Buffer
+	if err := WriteIntervals(&b, rows); err != nil {
+		t.Fatal(err)
+	}
+	if b.String() != in {
+		t.Errorf("written\n%s\nwant\n%s", b.String(), in)
+	}
+}

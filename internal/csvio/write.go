@@ -4,6 +4,7 @@ import (
 	"io"
 	"math"
 	"strconv"
+	"strings"
 	"time"
 )
 
@@ -65,6 +66,33 @@ func WriteRuns(w io.Writer, rows []RunRow) error {
 	cw.EndRow()
 	for _, r := range rows {
 		cw.Strings([]string{r.HoleID, num(r.From), num(r.To), r.Confidence, num(r.Mismatch)})
+		cw.EndRow()
+	}
+	return cw.Flush()
+}
+
+// WriteIntervals writes rows as a core intervals file that [ReadIntervals]
+// reads back to the same values (Line aside): hole_id, from, to, recovered,
+// solid, sound, pieces (";"-separated), natural_breaks, induced_breaks,
+// confidence.
+func WriteIntervals(w io.Writer, rows []IntervalRow) error {
+	cw := NewWriter(w)
+	cw.Strings(append(append([]string{}, IntervalColumns...), ColRecovered, ColSolid, ColSound, ColPieces, ColNaturalBreaks, ColInducedBreaks, ColConfidence))
+	cw.EndRow()
+	count := func(n int) string {
+		if n < 0 {
+			return ""
+		}
+		return strconv.Itoa(n)
+	}
+	for _, r := range rows {
+		iv := r.Interval
+		pieces := make([]string, len(iv.Pieces))
+		for i, p := range iv.Pieces {
+			pieces[i] = num(p)
+		}
+		cw.Strings([]string{r.HoleID, num(iv.From), num(iv.To), num(iv.Recovered), num(iv.Solid), num(iv.Sound),
+			strings.Join(pieces, ";"), count(iv.NaturalBreaks), count(iv.InducedBreaks), iv.Confidence})
 		cw.EndRow()
 	}
 	return cw.Flush()

@@ -277,3 +277,32 @@ type Idempotency struct {
 	Result      json.RawMessage `json:"result"`
 	CreatedAt   time.Time       `json:"created_at"`
 }
+
+// CoreInterval is one core interval of a hole logged for rock-mass quality
+// (a core run or a logged length): the lengths recovered, of solid core and
+// of sound pieces, or the pieces themselves, and the counts of breaks.
+// Optional values are nil when not logged. A hole's intervals are replaced
+// as a whole; the service validates them with package coreinterval (no
+// overlaps, inside the hole, solid <= recovered <= length, sound <= solid).
+type CoreInterval struct {
+	ID     int64   `json:"id"`
+	HoleID int64   `json:"hole_id"`
+	From   float64 `json:"from"`
+	To     float64 `json:"to"`
+	// Recovered is the length of core recovered; Solid the length of solid
+	// (full-diameter) core; Sound the summed length of sound pieces at least
+	// 100 mm long measured along the core axis (give Sound or Pieces).
+	Recovered *float64 `json:"recovered"`
+	Solid     *float64 `json:"solid"`
+	Sound     *float64 `json:"sound"`
+	// Pieces are the lengths of the core pieces between natural breaks
+	// along the core axis; empty when not logged.
+	Pieces []float64 `json:"pieces"`
+	// NaturalBreaks and InducedBreaks count the natural and the
+	// drilling-induced breaks.
+	NaturalBreaks *int `json:"natural_breaks"`
+	InducedBreaks *int `json:"induced_breaks"`
+	// Confidence is the run's orientation confidence, one of [Confidences],
+	// or "" when not given.
+	Confidence string `json:"confidence"`
+}

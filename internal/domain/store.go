@@ -134,6 +134,13 @@ type Store interface {
 	UpdateMeasurement(ctx context.Context, m *Measurement, ifVersion int64) error
 	DeleteMeasurement(ctx context.Context, id, ifVersion int64) error
 
+	// ListCoreIntervals lists the hole's core intervals ordered by From
+	// (all of them).
+	ListCoreIntervals(ctx context.Context, holeID int64) ([]CoreInterval, error)
+	// PutCoreIntervals replaces all the hole's core intervals with ivs (none
+	// deletes them) in one transaction and sets their IDs and HoleID.
+	PutCoreIntervals(ctx context.Context, holeID int64, ivs []CoreInterval) error
+
 	AppendAudit(ctx context.Context, e *AuditEntry) error
 	// ListAudit lists the entries of one project (AllProjects: of the site's
 	// own actions), whether or not the project still exists.

@@ -305,6 +305,13 @@ func TestContractTour(t *testing.T) {
 	f.must(200, f.site, "PUT", mb, map[string]any{"hole_id": h.ID, "depth": 2.1, "alpha": 31, "beta": 200, "type": "JN"}, nil, "If-Match", `"1"`)
 	f.must(200, f.site, "GET", base+"/measurements.csv", nil, nil)
 	f.must(201, f.site, "POST", base+"/imports/runs", "hole_id,from,to,confidence\nTR001,3,6,good\n", nil)
+	f.must(201, f.site, "POST", base+"/measurements", map[string]any{"hole_id": h.ID, "depth": 4, "alpha": 50, "type": "JN"}, nil) // unoriented
+	f.must(200, f.site, "PUT", hb+"/intervals", map[string]any{"intervals": []map[string]any{
+		{"from": 0, "to": 3, "recovered": 2.9, "solid": 2.5, "pieces": []float64{0.5, 0.05, 1.2}, "natural_breaks": 4, "confidence": "good"},
+		{"from": 3, "to": 6, "recovered": 3, "sound": 2.2, "natural_breaks": 3, "induced_breaks": 1}}}, nil)
+	f.must(200, f.site, "GET", hb+"/intervals", nil, nil)
+	f.must(201, f.site, "POST", base+"/imports/intervals", "hole_id,from,to,recovered,natural_breaks\nTR001,6,9,2.8,5\n", nil)
+	f.must(200, f.site, "GET", base+"/intervals.csv", nil, nil)
 	f.must(200, f.site, "GET", base+"/statistics", nil, nil)
 	f.must(200, f.site, "GET", base+"/net", nil, nil)
 	f.must(200, f.site, "GET", base+"/rose?of=strike&bin=15", nil, nil)

@@ -848,3 +848,55 @@ func (s *Server) listAudit(c *gin.Context) {
 	}
 	renderPage(c, l)
 }
+
+// ---- core intervals
+
+func (s *Server) listIntervals(c *gin.Context) {
+	pid, hid, err := ids(c, "hole")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	ivs, err := s.opt.Service.CoreIntervals(c.Request.Context(), pid, hid)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	c.JSON(http.StatusOK, gin.H{"items": ivs})
+}
+
+// intervalsInput is the body that replaces a hole's core intervals.
+type intervalsInput struct {
+	Intervals []domain.CoreInterval `json:"intervals"`
+}
+
+func (s *Server) putIntervals(c *gin.Context) {
+	pid, hid, err := ids(c, "hole")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	var in intervalsInput
+	if err := s.decodeJSON(c, &in); err != nil {
+		fail(c, err)
+		return
+	}
+	ivs, err := s.opt.Service.PutCoreIntervals(c.Request.Context(), pid, hid, in.Intervals)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	c.JSON(http.StatusOK, gin.H{"items": ivs})
+}
+
+func (s *Server) exportIntervals(c *gin.Context) {
+	pid, err := pathID(c, "project")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	c.Header("Content-Disposition", `attachment; filename="intervals-`+itoa(pid)+`.csv"`)
+	stream(c, "text/csv; charset=utf-8", func(w *trackingWriter) error {
+		return s.opt.Service.ExportIntervals(c.Request.Context(), pid, w)
+	})
+}

@@ -55,6 +55,10 @@ func (s *Server) routes() {
 	p.GET("/holes/:hole/survey", s.getSurvey)
 	p.PUT("/holes/:hole/survey", need(domain.RoleAdmin), s.putSurvey)
 
+	p.GET("/holes/:hole/intervals", s.listIntervals)
+	p.PUT("/holes/:hole/intervals", need(domain.RoleLog), s.putIntervals)
+	p.GET("/intervals.csv", s.exportIntervals)
+
 	p.GET("/holes/:hole/runs", s.listRuns)
 	p.POST("/holes/:hole/runs", need(domain.RoleLog), s.createRun)
 	p.GET("/runs/:run", s.getRun)

@@ -24,7 +24,7 @@ const (
 	ImportCollars      = "collars"      // hole_id, easting, northing, elevation, azimuth, dip, depth [, azimuth_reference, crs, declination, grid_convergence, survey_date]
 	ImportSurveys      = "surveys"      // hole_id, depth, azimuth, dip [, azimuth_reference, survey_date]
 	ImportRuns         = "runs"         // hole_id, from, to, confidence [, mismatch]
-	ImportMeasurements = "measurements" // hole_id, depth, alpha, beta, type [, gamma, apparent_thickness, comment, logged_by, logged_at]
+	ImportMeasurements = "measurements" // hole_id, depth, alpha, beta (empty: unoriented), type [, gamma, apparent_thickness, comment, logged_by, logged_at]
 )
 
 // importBatch is the number of measurement rows written per store call.
@@ -56,7 +56,8 @@ type ImportResult struct {
 	// Rows is the number of data rows read.
 	Rows int `json:"rows"`
 	// Created and Updated count holes (collars), survey sets (surveys),
-	// runs or measurements.
+	// runs or measurements; Created counts the core intervals stored
+	// (intervals).
 	Created int `json:"created"`
 	Updated int `json:"updated"`
 	// Duplicates counts the measurement rows that duplicate a stored row or
@@ -70,26 +71,28 @@ type ImportResult struct {
 }
 
 // ImportRole is the role an import of kind needs: admin for collars and
-// surveys, log for runs, measurements and discontinuities (AGS4); Invalid
-// for an unknown kind.
+// surveys, log for runs, measurements, intervals and discontinuities (AGS4);
+// Invalid for an unknown kind.
 func ImportRole(kind string) (domain.Role, error) {
 	switch kind {
 	case ImportCollars, ImportSurveys:
 		return domain.RoleAdmin, nil
-	case ImportRuns, ImportMeasurements, ImportDiscontinuities:
+	case ImportRuns, ImportMeasurements, ImportIntervals, ImportDiscontinuities:
 		return domain.RoleLog, nil
 	}
-	return "", domain.FieldErr("kind", "import kind must be collars, surveys, runs, measurements or discontinuities, got %q", kind)
+	return "", domain.FieldErr("kind", "import kind must be collars, surveys, runs, measurements, intervals or discontinuities, got %q", kind)
 }
 
 // Import reads a CSV file of one kind (or, for discontinuities, an AGS4
 // file whose DISC rows become measurements) into the project, all or nothing: when
 // any row is bad nothing is written and the Invalid error lists every bad row
 // with its file, line, column and reason in Problems, identical problems
-// summarised with their count and lines (domain.ProblemList). Collars and surveys need the admin role, runs and measurements
-// the log role. Collars update holes of the same name; a survey file replaces
-// the whole survey set of each hole it names; runs and measurements are
-// added. One audit entry records each import.
+// summarised with their count and lines (domain.ProblemList). Collars and
+// surveys need the admin role, runs, measurements and core intervals the log
+// role. Collars update holes of the same name; a survey file replaces the
+// whole survey set of each hole it names, an intervals file all the core
+// intervals of each hole it names; runs and measurements are added. One
+// audit entry records each import.
 func (s *Service) Import(ctx context.Context, projectID int64, req ImportRequest) (ImportResult, error) {
 	res := ImportResult{Kind: req.Kind, File: req.File, DryRun: req.DryRun}
 	if res.File == "" {
@@ -149,6 +152,8 @@ func (s *Service) Import(ctx context.Context, projectID int64, req ImportRequest
 			err = s.importMeasurements(ctx, st, p, a, body, dups, &res)
 		case ImportDiscontinuities:
 			err = s.importDiscontinuities(ctx, st, p, a, body, &res)
+		case ImportIntervals:
+			err = importIntervals(ctx, st, p, body, &res)
 		}
 		if err != nil {
 			return err

@@ -8,6 +8,8 @@ package storekit
 import (
 	"encoding/json"
 	"errors"
+	"fmt"
+	"strconv"
 	"strings"
 	"time"
 
@@ -149,4 +151,43 @@ func Instrument(s string) string {
 		return string(uncertainty.UnknownSurvey)
 	}
 	return s
+}
+
+// NullInt converts an optional count for a query argument.
+func NullInt(p *int) any {
+	if p == nil {
+		return nil
+	}
+	return int64(*p)
+}
+
+// JoinPieces is the stored text of a core interval's piece lengths: the
+// shortest exact decimals separated by ';' ("" for none). SplitPieces
+// reads it back.
+func JoinPieces(ps []float64) string {
+	var b []byte
+	for i, p := range ps {
+		if i > 0 {
+			b = append(b, ';')
+		}
+		b = strconv.AppendFloat(b, p, 'g', -1, 64)
+	}
+	return string(b)
+}
+
+// SplitPieces reads the text [JoinPieces] wrote; "" is no pieces (nil).
+func SplitPieces(s string) ([]float64, error) {
+	if s == "" {
+		return nil, nil
+	}
+	parts := strings.Split(s, ";")
+	out := make([]float64, len(parts))
+	for i, p := range parts {
+		v, err := strconv.ParseFloat(p, 64)
+		if err != nil {
+			return nil, fmt.Errorf("stored core pieces %q: %w", s, err)
+		}
+		out[i] = v
+	}
+	return out, nil
 }

@@ -33,6 +33,7 @@ func Run(t *testing.T, newStore func(t *testing.T) domain.Store) {
 		{"Runs", testRuns},
 		{"Measurements", testMeasurements},
 		{"MeasurementFilters", testMeasurementFilters},
+		{"CoreIntervals", testCoreIntervals},
 		{"Transactions", testTransactions},
 		{"Snapshot", testSnapshot},
 		{"Exclusive", testExclusive},
@@ -868,5 +869,52 @@ func MigrationBackfill(t *testing.T, open func(t *testing.T) domain.Store, redo 
 	must(t, err)
 	if got.DeclinationSource != "given" || got.Declination == nil || *got.Declination != 1 {
 		t.Errorf("set with a given declination after the migration: %v from %q, want 1 given", got.Declination, got.DeclinationSource)
+	}
+}
+
+func testCoreIntervals(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	p := newProject(t, s, "intervals")
+	h := newHole(t, s, p.ID, "I1")
+	other := newHole(t, s, p.ID, "I2")
+	n := func(v int) *int { return &v }
+	ivs := []domain.CoreInterval{
+		{From: 3, To: 6, Recovered: f64(2.9), Solid: f64(2.5), Pieces: []float64{0.35, 0.1, 1.0 / 3}, NaturalBreaks: n(7), InducedBreaks: n(0), Confidence: "fair"},
+		{From: 0, To: 3, Recovered: f64(3), Solid: f64(2.75), Sound: f64(2.125), NaturalBreaks: n(4)},
+	}
+	must(t, s.PutCoreIntervals(c, h.ID, ivs))
+	if ivs[0].ID == 0 || ivs[1].ID == 0 || ivs[0].HoleID != h.ID {
+		t.Fatalf("ids not set: %+v", ivs)
+	}
+	must(t, s.PutCoreIntervals(c, other.ID, []domain.CoreInterval{{From: 0, To: 1}}))
+	got, err := s.ListCoreIntervals(c, h.ID)
+	must(t, err)
+	// Ordered by depth; pieces, optionals and their absence come back exactly.
+	diff(t, "core intervals", []domain.CoreInterval{ivs[1], ivs[0]}, got)
+	// Replacing keeps nothing of the old set; the other hole is untouched.
+	must(t, s.PutCoreIntervals(c, h.ID, []domain.CoreInterval{{From: 10, To: 12}}))
+	got, _ = s.ListCoreIntervals(c, h.ID)
+	if len(got) != 1 || got[0].From != 10 || got[0].Recovered != nil || got[0].Pieces != nil || got[0].NaturalBreaks != nil {
+		t.Errorf("after replace: %+v", got)
+	}
+	// A failing replacement inside a transaction leaves the old intervals.
+	err = s.InTx(c, func(c context.Context, tx domain.Store) error {
+		if err := tx.PutCoreIntervals(c, h.ID, nil); err != nil {
+			return err
+		}
+		return domain.Errorf(domain.Invalid, "roll back")
+	})
+	wantKind(t, err, domain.Invalid, "rolled back replacement")
+	if got, _ = s.ListCoreIntervals(c, h.ID); len(got) != 1 {
+		t.Errorf("rolled back replacement changed the intervals: %+v", got)
+	}
+	if got, _ = s.ListCoreIntervals(c, other.ID); len(got) != 1 {
+		t.Errorf("other hole: %+v", got)
+	}
+	// Deleting the hole deletes its intervals.
+	hh, _ := s.GetHole(c, h.ID)
+	must(t, s.DeleteHole(c, h.ID, hh.Version))
+	if got, err = s.ListCoreIntervals(c, h.ID); err != nil || len(got) != 0 {
+		t.Errorf("intervals of a deleted hole: %+v %v", got, err)
 	}
 }
