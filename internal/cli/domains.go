@@ -7,6 +7,7 @@ import (
 
 	"corvane/internal/fabric"
 	"corvane/internal/geotech"
+	"corvane/internal/structdomain"
 )
 
 func init() {
@@ -18,7 +19,7 @@ func init() {
 }
 
 const domainsUsage = `Usage:
-  corvane domains --in FILE --domain ` + domainSyntax + ` --domain ...
+  corvane domains --in FILE --domain ` + structdomain.Syntax + ` --domain ...
                   (--sets auto:N | --set NAME:TREND/PLUNGE:CONE ...) [--type TYPE] [-o OUT.json]
 
 Structural domains are named parts of the rock mass: hole intervals (a hole without a

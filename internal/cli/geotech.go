@@ -6,16 +6,14 @@ import (
 	"flag"
 	"fmt"
 	"io"
-	"math"
 	"os"
-	"strconv"
-	"strings"
 
 	"corvane/internal/csvio"
 	"corvane/internal/domain"
 	"corvane/internal/fabric"
 	"corvane/internal/geom"
 	"corvane/internal/geotech"
+	"corvane/internal/kinematic"
 	"corvane/internal/netsvg"
 	"corvane/internal/structdomain"
 	"corvane/internal/words"
@@ -26,37 +24,10 @@ type domainFlags []structdomain.Domain
 
 func (d *domainFlags) String() string { return fmt.Sprint(len(*d), " domains") }
 
-const domainSyntax = "NAME=HOLE[:FROM..TO][,HOLE[:FROM..TO]...][;rock=TYPE|TYPE...]"
-
 func (d *domainFlags) Set(s string) error {
-	name, rest, ok := strings.Cut(s, "=")
-	if !ok || strings.TrimSpace(name) == "" || strings.TrimSpace(rest) == "" {
-		return fmt.Errorf("%q: want %s", s, domainSyntax)
-	}
-	dom := structdomain.Domain{Name: strings.TrimSpace(name)}
-	parts, rock, hasRock := strings.Cut(rest, ";")
-	if hasRock {
-		r, ok := strings.CutPrefix(strings.TrimSpace(rock), "rock=")
-		if !ok || strings.TrimSpace(r) == "" {
-			return fmt.Errorf("%q: %q: want rock=TYPE|TYPE...", s, rock)
-		}
-		for _, t := range strings.Split(r, "|") {
-			dom.RockTypes = append(dom.RockTypes, strings.TrimSpace(t))
-		}
-	}
-	for _, p := range strings.Split(parts, ",") {
-		hole, rng, hasRange := strings.Cut(strings.TrimSpace(p), ":")
-		part := structdomain.Part{Hole: strings.TrimSpace(hole), From: 0, To: math.Inf(1)}
-		if hasRange {
-			a, b, ok := strings.Cut(rng, "..")
-			from, e1 := strconv.ParseFloat(strings.TrimSpace(a), 64)
-			to, e2 := strconv.ParseFloat(strings.TrimSpace(b), 64)
-			if !ok || e1 != nil || e2 != nil {
-				return fmt.Errorf("%q: depth range %q: want FROM..TO", s, rng)
-			}
-			part.From, part.To = from, to
-		}
-		dom.Parts = append(dom.Parts, part)
+	dom, err := structdomain.Parse(s)
+	if err != nil {
+		return err
 	}
 	all := append(append([]structdomain.Domain(nil), *d...), dom)
 	if err := structdomain.Validate(all); err != nil {
@@ -135,20 +106,18 @@ func writeJSON(env *Env, fail func(error) int, path string, v any) int {
 	return ExitOK
 }
 
-// parseFace parses DIP/DIPDIRECTION.
+// parseFace parses --face DIP/DIP_DIRECTION.
 func parseFace(s string) (geom.Plane, error) {
-	a, b, ok := strings.Cut(s, "/")
-	dip, e1 := strconv.ParseFloat(strings.TrimSpace(a), 64)
-	dd, e2 := strconv.ParseFloat(strings.TrimSpace(b), 64)
-	if !ok || e1 != nil || e2 != nil || !(dip > 0 && dip <= 90) || !(dd >= 0 && dd <= 360) {
-		return geom.Plane{}, fmt.Errorf("--face %q: want DIP/DIP_DIRECTION with 0 < dip <= 90 and dip direction 0..360", s)
+	p, err := kinematic.ParseFace(s)
+	if err != nil {
+		return p, fmt.Errorf("--face %w", err)
 	}
-	return geom.Plane{Dip: dip, DipDirection: geom.NormAzimuth(dd)}, nil
+	return p, nil
 }
 
 // registerDomainFlags adds --domain.
 func registerDomainFlags(fs *flag.FlagSet, d *domainFlags) {
-	fs.Var(d, "domain", "a structural domain "+domainSyntax+" (repeatable; a hole without a range is the whole hole)")
+	fs.Var(d, "domain", "a structural domain "+structdomain.Syntax+" (repeatable; a hole without a range is the whole hole)")
 }
 
 // readTypedRows reads path ("-" for standard input) with opt and returns

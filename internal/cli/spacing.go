@@ -12,6 +12,7 @@ import (
 	"corvane/internal/geotech"
 	"corvane/internal/projection"
 	"corvane/internal/spacing"
+	"corvane/internal/structdomain"
 )
 
 func init() {
@@ -24,7 +25,7 @@ func init() {
 
 const spacingUsage = `Usage:
   corvane spacing --in FILE (--sets auto:N | --set NAME:TREND/PLUNGE:CONE ...)
-                  [--intervals I.csv] [--domain ` + domainSyntax + ` ...]
+                  [--intervals I.csv] [--domain ` + structdomain.Syntax + ` ...]
                   [--cap W] [--type TYPE] [-o OUT.json]
 
 Reads structures from a CSV such as the one corvane convert writes (hole_id, depth,

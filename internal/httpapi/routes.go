@@ -87,6 +87,12 @@ func (s *Server) routes() {
 		p.GET("/"+name, need(domain.RoleRead), s.heavy, s.transferExport(name))
 	}
 
+	p.GET("/intervals/summary", need(domain.RoleRead), s.heavy, s.intervalsReport)
+	p.GET("/spacing", need(domain.RoleRead), s.heavy, s.spacingReport)
+	p.GET("/domains", need(domain.RoleRead), s.heavy, s.domainsReport)
+	p.GET("/slope-check", need(domain.RoleRead), s.heavy, s.slopeCheck)
+	p.GET("/slope-check/:check", need(domain.RoleRead), s.heavy, s.slopeNet)
+
 	p.POST("/imports/:kind", s.importCSV)
 	p.GET("/audit", s.listAudit)
 }

@@ -23,6 +23,8 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"strconv"
+	"strings"
 
 	"corvane/internal/geom"
 )
@@ -272,4 +274,17 @@ func (p Params) CheckPair(a, b geom.Plane) (PairResult, error) {
 		return PairResult{}, ErrParallel
 	}
 	return PairResult{Line: l, Wedge: p.Wedge(l), Direct: p.Direct(l)}, nil
+}
+
+// ParseFace reads a face as DIP/DIP_DIRECTION (0 < dip <= 90, dip direction
+// 0..360, 360 read as 0): the command line's --face and the service's face
+// query parameter.
+func ParseFace(s string) (geom.Plane, error) {
+	a, b, ok := strings.Cut(s, "/")
+	dip, e1 := strconv.ParseFloat(strings.TrimSpace(a), 64)
+	dd, e2 := strconv.ParseFloat(strings.TrimSpace(b), 64)
+	if !ok || e1 != nil || e2 != nil || !(dip > 0 && dip <= 90) || !(dd >= 0 && dd <= 360) {
+		return geom.Plane{}, fmt.Errorf("%q: want DIP/DIP_DIRECTION with 0 < dip <= 90 and dip direction 0..360", s)
+	}
+	return geom.Plane{Dip: dip, DipDirection: geom.NormAzimuth(dd)}, nil
 }

@@ -75,6 +75,15 @@ func parseWeighting(s string) (fabric.Weighting, error) {
 // error, one in a vertical hole (a dip without a dip direction) is marked
 // so; package fabric decides what to do with them.
 func (s *Service) gather(ctx context.Context, projectID int64, q MeasurementQuery) (p domain.Project, in fabric.Input, err error) {
+	p, err = s.eachView(ctx, projectID, q, func(v MeasurementView) {
+		in.Rows = append(in.Rows, fabricRow(v.TypeCode, v.Derived))
+	})
+	return p, in, err
+}
+
+// eachView derives every measurement passing q (read), at most
+// MaxStatsMeasurements, and hands each to fn in id order.
+func (s *Service) eachView(ctx context.Context, projectID int64, q MeasurementQuery, fn func(MeasurementView)) (p domain.Project, err error) {
 	p, _, err = s.project(ctx, s.store, projectID, domain.RoleRead)
 	if err != nil {
 		return
@@ -85,6 +94,7 @@ func (s *Service) gather(ctx context.Context, projectID int64, q MeasurementQuer
 	}
 	d := newDeriver(s.store, p)
 	var after int64
+	n := 0
 	for {
 		var ms []domain.Measurement
 		ms, err = s.store.ListMeasurements(ctx, f, domain.Page{Limit: domain.MaxLimit, After: after})
@@ -96,7 +106,7 @@ func (s *Service) gather(ctx context.Context, projectID int64, q MeasurementQuer
 				err = ctx.Err()
 				return
 			}
-			if len(in.Rows) >= MaxStatsMeasurements {
+			if n >= MaxStatsMeasurements {
 				err = domain.Errorf(domain.Invalid, "more than %d measurements match: narrow the filter", MaxStatsMeasurements)
 				return
 			}
@@ -104,7 +114,8 @@ func (s *Service) gather(ctx context.Context, projectID int64, q MeasurementQuer
 			if v, err = d.view(ctx, m); err != nil {
 				return
 			}
-			in.Rows = append(in.Rows, fabricRow(m.TypeCode, v.Derived))
+			fn(v)
+			n++
 		}
 		if len(ms) < domain.MaxLimit {
 			return

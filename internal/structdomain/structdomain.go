@@ -11,6 +11,7 @@ package structdomain
 import (
 	"fmt"
 	"math"
+	"strconv"
 	"strings"
 )
 
@@ -92,4 +93,44 @@ func Validate(ds []Domain) error {
 		}
 	}
 	return nil
+}
+
+// Syntax is the text form of one domain that [Parse] reads (the command
+// line's --domain and the service's domain query parameter).
+const Syntax = "NAME=HOLE[:FROM..TO][,HOLE[:FROM..TO]...][;rock=TYPE|TYPE...]"
+
+// Parse reads one domain in the form of [Syntax]; a hole without a range is
+// the whole hole. The domains of a run are then checked together with
+// [Validate].
+func Parse(s string) (Domain, error) {
+	name, rest, ok := strings.Cut(s, "=")
+	if !ok || strings.TrimSpace(name) == "" || strings.TrimSpace(rest) == "" {
+		return Domain{}, fmt.Errorf("%q: want %s", s, Syntax)
+	}
+	dom := Domain{Name: strings.TrimSpace(name)}
+	parts, rock, hasRock := strings.Cut(rest, ";")
+	if hasRock {
+		r, ok := strings.CutPrefix(strings.TrimSpace(rock), "rock=")
+		if !ok || strings.TrimSpace(r) == "" {
+			return Domain{}, fmt.Errorf("%q: %q: want rock=TYPE|TYPE...", s, rock)
+		}
+		for _, t := range strings.Split(r, "|") {
+			dom.RockTypes = append(dom.RockTypes, strings.TrimSpace(t))
+		}
+	}
+	for _, p := range strings.Split(parts, ",") {
+		hole, rng, hasRange := strings.Cut(strings.TrimSpace(p), ":")
+		part := Part{Hole: strings.TrimSpace(hole), From: 0, To: math.Inf(1)}
+		if hasRange {
+			a, b, ok := strings.Cut(rng, "..")
+			from, e1 := strconv.ParseFloat(strings.TrimSpace(a), 64)
+			to, e2 := strconv.ParseFloat(strings.TrimSpace(b), 64)
+			if !ok || e1 != nil || e2 != nil {
+				return Domain{}, fmt.Errorf("%q: depth range %q: want FROM..TO", s, rng)
+			}
+			part.From, part.To = from, to
+		}
+		dom.Parts = append(dom.Parts, part)
+	}
+	return dom, nil
 }

@@ -1,0 +1,225 @@
+package cli
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"fmt"
+	"net/http/httptest"
+	"net/url"
+	"os"
+	"path/filepath"
+	"reflect"
+	"strconv"
+	"strings"
+	"testing"
+
+	"corvane/internal/domain"
+	"corvane/internal/httpapi"
+	"corvane/internal/kinematic"
+	"corvane/internal/service"
+	"corvane/internal/store/sqlite"
+)
+
+// geoProgramme is the demo programme on a fresh SQLite store behind the real
+// HTTP server, with unoriented measurements (no beta) and core intervals
+// logged on its first two holes. It returns the server, a reader token, the
+// project, the first two hole names, and the files the commands read: the
+// stored measurements with their derived values in the converter's columns
+// (shortest exact text, so both doors start from the same numbers) and the
+// stored core intervals as exported.
+func geoProgramme(t *testing.T) (srv *httptest.Server, token string, pid int64, holes [2]string, geoCSV, ivCSV string) {
+	t.Helper()
+	ctx := service.WithActor(context.Background(), service.System)
+	path := filepath.Join(t.TempDir(), "corvane.db")
+	if err := sqlite.Migrate(path, 0); err != nil {
+		t.Fatal(err)
+	}
+	st, err := sqlite.Open(ctx, path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { st.Close() })
+	svc := service.New(st, nil)
+	p, _, err := svc.LoadDemo(ctx)
+	if err != nil {
+		t.Fatal(err)
+	}
+	hs, err := svc.ListHoles(ctx, p.ID, domain.Page{})
+	if err != nil || len(hs.Items) < 2 {
+		t.Fatalf("holes %+v %v", hs, err)
+	}
+	types, err := svc.ListTypeCodes(ctx, p.ID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for k, h := range hs.Items[:2] {
+		holes[k] = h.Name
+		for i := 0; i < 6; i++ {
+			m := domain.Measurement{HoleID: h.ID, Depth: 12 + 7*float64(i), Alpha: 25 + 9*float64(i), TypeCode: types[i%len(types)].Code}
+			if _, err := svc.CreateMeasurement(ctx, p.ID, m); err != nil {
+				t.Fatal(err)
+			}
+		}
+		var ivs []domain.CoreInterval
+		for i := 0; i < 20; i++ {
+			n := 2 + (i*7+k)%9
+			ivs = append(ivs, domain.CoreInterval{From: 3 * float64(i), To: 3 * float64(i+1), Recovered: f64(2.7 + 0.01*float64(i%10)),
+				Solid: f64(2.4), Sound: f64(1.5 + 0.05*float64(i%7)), NaturalBreaks: &n})
+		}
+		if _, err := svc.PutCoreIntervals(ctx, p.ID, h.ID, ivs); err != nil {
+			t.Fatal(err)
+		}
+	}
+	token, _, err = svc.CreateToken(ctx, p.ID, domain.RoleRead, "reader")
+	if err != nil {
+		t.Fatal(err)
+	}
+	srv = httptest.NewServer(httpapi.New(httpapi.Options{Service: svc}))
+	t.Cleanup(srv.Close)
+
+	var b strings.Builder
+	b.WriteString("hole_id,depth,alpha,type,dip,dip_direction,hole_azimuth,hole_dip,error\n")
+	num := func(p *float64) string {
+		if p == nil {
+			return ""
+		}
+		return strconv.FormatFloat(*p, 'g', -1, 64)
+	}
+	unoriented := 0
+	var after int64
+	for {
+		page, err := svc.ListMeasurements(ctx, p.ID, service.MeasurementQuery{}, domain.Page{Limit: domain.MaxLimit, After: after})
+		if err != nil {
+			t.Fatal(err)
+		}
+		for _, v := range page.Items {
+			d := v.Derived
+			if d.Unoriented {
+				unoriented++
+			}
+			fmt.Fprintf(&b, "%s,%s,%s,%s,%s,%s,%s,%s,%q\n", v.Hole, num(&v.Depth), num(&v.Alpha), v.TypeCode, num(d.Dip), num(d.DipDirection),
+				num(d.HoleAzimuth), num(d.HoleDip), d.Error)
+			after = v.ID
+		}
+		if len(page.Items) < domain.MaxLimit {
+			break
+		}
+	}
+	if unoriented != 12 {
+		t.Fatalf("%d unoriented measurements, want 12", unoriented)
+	}
+	dir := t.TempDir()
+	geoCSV, ivCSV = filepath.Join(dir, "geo.csv"), filepath.Join(dir, "intervals.csv")
+	var ivb bytes.Buffer
+	if err := svc.ExportIntervals(ctx, p.ID, &ivb); err != nil {
+		t.Fatal(err)
+	}
+	for name, text := range map[string]string{geoCSV: b.String(), ivCSV: ivb.String()} {
+		if err := os.WriteFile(name, []byte(text), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	return srv, token, p.ID, holes, geoCSV, ivCSV
+}
+
+// TestGeotechEqualAtEveryDoor feeds the intervals, spacing, domains and
+// slope-check commands and the service's routes the same data with the same
+// options and compares the outputs: the JSON field for field and the slope
+// nets byte for byte. What a door says of its source is put aside: "input"
+// (the file read, or the route's selection), "intervals" (the intervals
+// file, or the stored intervals), an interval's "line" in its file, and the
+// nets' subtitle (the file's name, or the selection).
+func TestGeotechEqualAtEveryDoor(t *testing.T) {
+	srv, token, pid, holes, in, ivs := geoProgramme(t)
+	base := fmt.Sprintf("/v1/projects/%d", pid)
+	doms := []string{holes[0] + "=" + holes[0] + ":0..40", holes[1] + "+=" + holes[0] + ":40..1000," + holes[1]}
+	domArgs := func(cli bool) []string {
+		var out []string
+		for _, d := range doms {
+			if cli {
+				out = append(out, "--domain", d)
+			} else {
+				out = append(out, "domain="+url.QueryEscape(d))
+			}
+		}
+		return out
+	}
+	strip := func(v any, keys ...string) {
+		var walk func(any)
+		walk = func(v any) {
+			switch x := v.(type) {
+			case map[string]any:
+				for _, k := range keys {
+					delete(x, k)
+				}
+				for _, e := range x {
+					walk(e)
+				}
+			case []any:
+				for _, e := range x {
+					walk(e)
+				}
+			}
+		}
+		walk(v)
+	}
+	cases := []struct {
+		name  string
+		cli   []string
+		route string
+	}{
+		{"intervals", []string{"intervals", "--intervals", ivs}, "/intervals/summary"},
+		{"spacing by type", []string{"spacing", "--in", in, "--sets", "type", "--intervals", ivs}, "/spacing?sets=type"},
+		{"spacing auto, domains, cap, values", append([]string{"spacing", "--in", in, "--sets", "auto:3", "--seed", "5", "--cap", "4", "--values", "--intervals", ivs}, domArgs(true)...),
+			"/spacing?sets=auto:3&seed=5&cap=4&values=true&" + strings.Join(domArgs(false), "&")},
+		{"domains", append([]string{"domains", "--in", in, "--sets", "type"}, domArgs(true)...), "/domains?sets=type&" + strings.Join(domArgs(false), "&")},
+		{"slope check", []string{"slope-check", "--in", in, "--sets", "type", "--face", "65/180", "--friction", "30"}, "/slope-check?sets=type&face=65/180&friction=30"},
+		{"slope check one type, lateral", []string{"slope-check", "--in", in, "--type", "joint", "--sets", "auto:2", "--face", "70/200", "--friction", "25", "--lateral", "30"},
+			"/slope-check?type=joint&sets=auto:2&face=70/200&friction=25&lateral=30"},
+	}
+	for _, c := range cases {
+		code, stdout, stderr := runCmd(t, c.cli...)
+		if code != ExitOK {
+			t.Fatalf("%s: exit %d: %s", c.name, code, stderr)
+		}
+		cli := decodeJSON(t, "CLI", []byte(stdout))
+		route := decodeJSON(t, "route", getRoute(t, srv, token, base+c.route))
+		strip(cli, "input", "intervals", "line")
+		strip(route, "input", "intervals", "line")
+		if !reflect.DeepEqual(cli, route) {
+			cj, _ := json.MarshalIndent(cli, "", " ")
+			rj, _ := json.MarshalIndent(route, "", " ")
+			t.Errorf("%s: the CLI and the route differ\nCLI:   %.4000s\nroute: %.4000s", c.name, cj, rj)
+		}
+		if strings.HasPrefix(c.name, "slope") && route["caution"] != kinematic.Caution {
+			t.Errorf("%s: caution %v", c.name, route["caution"])
+		}
+		if strings.HasPrefix(c.name, "spacing") && !strings.Contains(string(getRoute(t, srv, token, base+c.route)), `"unoriented"`) {
+			t.Errorf("%s: no count of the unoriented measurements", c.name)
+		}
+	}
+
+	// The nets of the slope check, one per check, with the caution.
+	prefix := filepath.Join(t.TempDir(), "slope")
+	if code, _, stderr := runCmd(t, "slope-check", "--in", in, "--sets", "type", "--face", "65/180", "--friction", "30", "--svg", prefix); code != ExitOK {
+		t.Fatalf("slope-check --svg: exit %d: %s", code, stderr)
+	}
+	for _, check := range []string{"planar", "wedge", "flexural", "direct"} {
+		cli, err := os.ReadFile(prefix + "-" + check + ".svg")
+		if err != nil {
+			t.Fatal(err)
+		}
+		route := getRoute(t, srv, token, base+"/slope-check/"+check+"?sets=type&face=65/180&friction=30")
+		if !bytes.Contains(cli, []byte(">geo.csv")) {
+			t.Fatalf("%s: the CLI's net does not name its input", check)
+		}
+		cli = bytes.ReplaceAll(cli, []byte(">geo.csv"), []byte(">all measurements"))
+		if !bytes.Equal(cli, route) {
+			t.Errorf("%s: the CLI's net (%d bytes) and the route's (%d bytes) differ at byte %d", check, len(cli), len(route), firstDiff(cli, route))
+		}
+		if !bytes.Contains(route, []byte("Kinematically possible is not unstable")) {
+			t.Errorf("%s: the route's net has no caution", check)
+		}
+	}
+}

@@ -1,0 +1,163 @@
+package httpapi
+
+import (
+	"math"
+	"net/http"
+	"strconv"
+
+	"github.com/gin-gonic/gin"
+
+	"corvane/internal/domain"
+	"corvane/internal/service"
+)
+
+// The geotechnical reports: the corvane intervals, spacing, domains and
+// slope-check commands over the stored data, with the commands' options as
+// query parameters (domain repeatable, in the form of --domain).
+
+// numParam reads an optional finite number query parameter.
+func numParam(c *gin.Context, name string) (*float64, error) {
+	v := c.Query(name)
+	if v == "" {
+		return nil, nil
+	}
+	x, err := strconv.ParseFloat(v, 64)
+	if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
+		return nil, domain.FieldErr(name, "query parameter %s=%q: want a number", name, v)
+	}
+	return &x, nil
+}
+
+// geoQuery reads the measurement filter, the set options and the domains.
+func geoQuery(c *gin.Context) (service.GeoQuery, error) {
+	mq, err := query(c)
+	if err != nil {
+		return service.GeoQuery{}, err
+	}
+	sq, err := setQuery(c)
+	if err != nil {
+		return service.GeoQuery{}, err
+	}
+	return service.GeoQuery{MeasurementQuery: mq, SetQuery: sq, Domains: c.QueryArray("domain")}, nil
+}
+
+// slopeQuery reads the slope check's options: face, friction, lateral.
+func slopeQuery(c *gin.Context) (service.SlopeQuery, error) {
+	gq, err := geoQuery(c)
+	if err != nil {
+		return service.SlopeQuery{}, err
+	}
+	q := service.SlopeQuery{GeoQuery: gq, Face: c.Query("face")}
+	f, err := numParam(c, "friction")
+	if err != nil {
+		return q, err
+	}
+	if f == nil {
+		return q, domain.FieldErr("friction", "query parameter friction (the friction angle in degrees) is required")
+	}
+	q.Friction = *f
+	q.Lateral, err = numParam(c, "lateral")
+	return q, err
+}
+
+func (s *Server) intervalsReport(c *gin.Context) {
+	pid, err := pathID(c, "project")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	mq, err := query(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	rep, err := s.opt.Service.IntervalsReport(c.Request.Context(), pid, mq.Holes)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	c.JSON(http.StatusOK, rep)
+}
+
+func (s *Server) spacingReport(c *gin.Context) {
+	pid, err := pathID(c, "project")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	gq, err := geoQuery(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	q := service.SpacingQuery{GeoQuery: gq}
+	if q.Cap, err = numParam(c, "cap"); err != nil {
+		fail(c, err)
+		return
+	}
+	if q.Values, err = boolParam(c, "values"); err != nil {
+		fail(c, err)
+		return
+	}
+	rep, err := s.opt.Service.Spacing(c.Request.Context(), pid, q)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	c.JSON(http.StatusOK, rep)
+}
+
+func (s *Server) domainsReport(c *gin.Context) {
+	pid, err := pathID(c, "project")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	q, err := geoQuery(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	rep, err := s.opt.Service.Domains(c.Request.Context(), pid, q)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	c.JSON(http.StatusOK, rep)
+}
+
+func (s *Server) slopeCheck(c *gin.Context) {
+	pid, err := pathID(c, "project")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	q, err := slopeQuery(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	rep, err := s.opt.Service.SlopeCheck(c.Request.Context(), pid, q)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	c.JSON(http.StatusOK, rep)
+}
+
+func (s *Server) slopeNet(c *gin.Context) {
+	pid, err := pathID(c, "project")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	q, err := slopeQuery(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	check, proj := c.Param("check"), c.Query("projection")
+	stream(c, "image/svg+xml", func(w *trackingWriter) error {
+		return s.opt.Service.SlopeNet(c.Request.Context(), pid, q, check, proj, w)
+	})
+}
