@@ -2,7 +2,6 @@ package cli
 
 import (
 	"bytes"
-	"context"
 	"encoding/json"
 	"fmt"
 	"net/http/httptest"
@@ -15,10 +14,8 @@ import (
 	"testing"
 
 	"corvane/internal/domain"
-	"corvane/internal/httpapi"
 	"corvane/internal/kinematic"
 	"corvane/internal/service"
-	"corvane/internal/store/sqlite"
 )
 
 // geoProgramme is the demo programme on a fresh SQLite store behind the real
@@ -30,21 +27,7 @@ import (
 // stored core intervals as exported.
 func geoProgramme(t *testing.T) (srv *httptest.Server, token string, pid int64, holes [2]string, geoCSV, ivCSV string) {
 	t.Helper()
-	ctx := service.WithActor(context.Background(), service.System)
-	path := filepath.Join(t.TempDir(), "corvane.db")
-	if err := sqlite.Migrate(path, 0); err != nil {
-		t.Fatal(err)
-	}
-	st, err := sqlite.Open(ctx, path)
-	if err != nil {
-		t.Fatal(err)
-	}
-	t.Cleanup(func() { st.Close() })
-	svc := service.New(st, nil)
-	p, _, err := svc.LoadDemo(ctx)
-	if err != nil {
-		t.Fatal(err)
-	}
+	ctx, svc, p := demoService(t)
 	hs, err := svc.ListHoles(ctx, p.ID, domain.Page{})
 	if err != nil || len(hs.Items) < 2 {
 		t.Fatalf("holes %+v %v", hs, err)
@@ -71,12 +54,7 @@ func geoProgramme(t *testing.T) (srv *httptest.Server, token string, pid int64, 
 			t.Fatal(err)
 		}
 	}
-	token, _, err = svc.CreateToken(ctx, p.ID, domain.RoleRead, "reader")
-	if err != nil {
-		t.Fatal(err)
-	}
-	srv = httptest.NewServer(httpapi.New(httpapi.Options{Service: svc}))
-	t.Cleanup(srv.Close)
+	srv, token = readerServer(t, ctx, svc, p.ID)
 
 	var b strings.Builder
 	b.WriteString("hole_id,depth,alpha,type,dip,dip_direction,hole_azimuth,hole_dip,error\n")

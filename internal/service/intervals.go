@@ -207,26 +207,18 @@ func (s *Service) ExportIntervals(ctx context.Context, projectID int64, w io.Wri
 		if _, _, err := s.project(ctx, st, projectID, domain.RoleRead); err != nil {
 			return err
 		}
-		var rows []csvio.IntervalRow
-		pg := domain.Page{Limit: domain.MaxLimit}
-		for {
-			hs, err := st.ListHoles(ctx, projectID, pg)
-			if err != nil {
-				return err
-			}
-			for _, h := range hs {
-				ivs, err := st.ListCoreIntervals(ctx, h.ID)
-				if err != nil {
-					return err
-				}
-				for _, iv := range ivs {
-					rows = append(rows, csvio.IntervalRow{HoleID: h.Name, Interval: interval(iv)})
-				}
-			}
-			if len(hs) < domain.MaxLimit {
-				return csvio.WriteIntervals(w, rows)
-			}
-			pg.After = hs[len(hs)-1].ID
+		hs, err := holesOf(ctx, st, projectID, nil)
+		if err != nil {
+			return err
 		}
+		ivs, err := storedIntervals(ctx, st, hs)
+		if err != nil {
+			return err
+		}
+		rows := make([]csvio.IntervalRow, len(ivs))
+		for i, r := range ivs {
+			rows[i] = csvio.IntervalRow{HoleID: r.HoleID, Interval: r.Interval}
+		}
+		return csvio.WriteIntervals(w, rows)
 	})
 }
