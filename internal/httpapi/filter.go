@@ -27,17 +27,7 @@ func query(c *gin.Context) (service.MeasurementQuery, error) {
 	default:
 		return q, domain.FieldErr("order", "query parameter order=%q: want id or depth", o)
 	}
-	num := func(name string) (*float64, error) {
-		v := c.Query(name)
-		if v == "" {
-			return nil, nil
-		}
-		x, err := strconv.ParseFloat(v, 64)
-		if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
-			return nil, domain.FieldErr(name, "query parameter %s=%q: want a number", name, v)
-		}
-		return &x, nil
-	}
+	num := func(name string) (*float64, error) { return numParam(c, name) }
 	var err error
 	if q.MinDepth, err = num("min_depth"); err != nil {
 		return q, err
@@ -52,6 +42,19 @@ func query(c *gin.Context) (service.MeasurementQuery, error) {
 		return q, err
 	}
 	return q, nil
+}
+
+// numParam reads an optional finite number query parameter.
+func numParam(c *gin.Context, name string) (*float64, error) {
+	v := c.Query(name)
+	if v == "" {
+		return nil, nil
+	}
+	x, err := strconv.ParseFloat(v, 64)
+	if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
+		return nil, domain.FieldErr(name, "query parameter %s=%q: want a number", name, v)
+	}
+	return &x, nil
 }
 
 // when parses a date or instant; a bare date at the end of a range means the

@@ -1,9 +1,7 @@
 package httpapi
 
 import (
-	"math"
 	"net/http"
-	"strconv"
 
 	"github.com/gin-gonic/gin"
 
@@ -14,19 +12,6 @@ import (
 // The geotechnical reports: the corvane intervals, spacing, domains and
 // slope-check commands over the stored data, with the commands' options as
 // query parameters (domain repeatable, in the form of --domain).
-
-// numParam reads an optional finite number query parameter.
-func numParam(c *gin.Context, name string) (*float64, error) {
-	v := c.Query(name)
-	if v == "" {
-		return nil, nil
-	}
-	x, err := strconv.ParseFloat(v, 64)
-	if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
-		return nil, domain.FieldErr(name, "query parameter %s=%q: want a number", name, v)
-	}
-	return &x, nil
-}
 
 // geoQuery reads the measurement filter, the set options and the domains.
 func geoQuery(c *gin.Context) (service.GeoQuery, error) {
