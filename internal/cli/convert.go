@@ -13,6 +13,7 @@ import (
 	"corvane/internal/coreangle"
 	"corvane/internal/csvio"
 	"corvane/internal/desurvey"
+	"corvane/internal/northref"
 )
 
 func init() {
@@ -58,9 +59,11 @@ separated by ";".
 Azimuths: true = magnetic + declination; grid = true - grid_convergence. A survey
 azimuth without azimuth_reference is taken to be in the output reference. Corrections
 come from the collar's columns, else from --declination / --grid-convergence, else are
-computed from the collar's crs (EPSG:326NN / EPSG:327NN) and the survey date (World
-Magnetic Model 2025); the *_source columns say which (given, project, computed or
-none). A collars file may give survey_date, the date of a hole's survey for survey rows
+computed from the collar's crs (EPSG:326NN / EPSG:327NN) and the survey date with the
+magnetic model chosen by --model (auto: World Magnetic Model 2025 for 2025-2030, IGRF-14
+before); the *_source columns say which (given, project, computed or none; a computed
+declination names its model and decimal year, e.g. "computed (IGRF-14 at 2023.5808)").
+A collars file may give survey_date, the date of a hole's survey for survey rows
 without their own.
 
 Exit status: 0 all rows converted; 1 some rows have a message in the error column
@@ -98,9 +101,9 @@ func (f floatFlag) Set(s string) error {
 // north their azimuths refer to. convert and transfer share them, so both
 // read the same holes the same way.
 type pathFlags struct {
-	opt             *convert.Options
-	outRef, method  *string
-	feet, noCompute *bool
+	opt                      *convert.Options
+	outRef, method, magModel *string
+	feet, noCompute          *bool
 }
 
 func addPathFlags(fs *flag.FlagSet, opt *convert.Options) *pathFlags {
@@ -109,6 +112,7 @@ func addPathFlags(fs *flag.FlagSet, opt *convert.Options) *pathFlags {
 	p.method = fs.String("method", "minimum-curvature", "desurvey method: minimum-curvature, balanced-tangential or tangential")
 	p.feet = fs.Bool("feet", false, "lengths are in feet (collar elevations are converted to metres for the magnetic model)")
 	p.noCompute = fs.Bool("no-computed-corrections", false, "never compute declination or grid convergence; holes that need one get an error")
+	p.magModel = fs.String("model", "auto", "magnetic model of computed declinations: auto (WMM2025 for 2025-2030, IGRF-14 before), wmm or igrf")
 	fs.Var(floatFlag{&opt.Declination}, "declination", "magnetic declination in degrees for holes whose collar gives none (true = magnetic + D)")
 	fs.Var(floatFlag{&opt.GridConvergence}, "grid-convergence", "grid convergence in degrees for holes whose collar gives none (grid = true - C)")
 	return p
@@ -127,6 +131,9 @@ func (p *pathFlags) apply() error {
 		p.opt.Unit = desurvey.Feet
 	}
 	p.opt.NoCompute = *p.noCompute
+	if p.opt.MagneticModel, err = northref.ParseMagneticModel(*p.magModel); err != nil {
+		return fmt.Errorf("--model: %v", err)
+	}
 	return nil
 }
 

@@ -29,6 +29,7 @@ import (
 	"corvane/internal/desurvey"
 	"corvane/internal/domain"
 	"corvane/internal/holemodel"
+	"corvane/internal/northref"
 )
 
 // Reference is a north reference for azimuths.
@@ -84,6 +85,9 @@ type Options struct {
 	// to every hole whose collar row does not give its own (source
 	// "project").
 	Declination, GridConvergence Given
+	// MagneticModel chooses the model of computed declinations ("" is
+	// northref.ModelAuto).
+	MagneticModel northref.MagneticModel
 	// NoCompute turns off computing missing corrections with package
 	// northref; a hole that needs one then has an error.
 	NoCompute bool
@@ -195,7 +199,7 @@ func Build(crows []csvio.CollarRow, srows []csvio.SurveyRow, opt Options) (*Hole
 // Project returns the holemodel project of the options: the value for all
 // holes is the project's default.
 func (o Options) Project() holemodel.Project {
-	p := holemodel.Project{Convention: o.Convention, Method: o.Method, Unit: o.Unit, Output: o.Output.String(), NoCompute: o.NoCompute}
+	p := holemodel.Project{Convention: o.Convention, Method: o.Method, Unit: o.Unit, Output: o.Output.String(), NoCompute: o.NoCompute, Model: o.MagneticModel}
 	if o.Declination.Set {
 		v := o.Declination.Value
 		p.Declination = &v

@@ -159,8 +159,7 @@ func TestErrors(t *testing.T) {
 		{"wrong hemisphere", "EPSG:32650", e, n + 4e6, elev, time.Date(2026, 3, 1, 0, 0, 0, 0, time.UTC), FieldNorthing, "hemisphere"},
 		{"south too far", "EPSG:32750", e, 500000, elev, time.Date(2026, 3, 1, 0, 0, 0, 0, time.UTC), FieldNorthing, "southern zone"},
 		{"no date", "EPSG:32750", e, n, elev, time.Time{}, FieldSurveyDate, "no survey date"},
-		{"before model", "EPSG:32750", e, n, elev, time.Date(2024, 12, 31, 0, 0, 0, 0, time.UTC), FieldSurveyDate, "2025.0 to 2030.0"},
-		{"after model", "EPSG:32750", e, n, elev, time.Date(2030, 1, 2, 0, 0, 0, 0, time.UTC), FieldSurveyDate, "outside the validity"},
+		{"after both models", "EPSG:32750", e, n, elev, time.Date(2030, 1, 2, 0, 0, 0, 0, time.UTC), FieldSurveyDate, `survey_date "2030-01-02": is outside the years of both magnetic models (IGRF-14 covers 1900.0 to 2030.0; WMM-2025 covers 2025.0 to 2030.0)`},
 		{"elevation in mm", "EPSG:32750", e, n, 312000, time.Date(2026, 3, 1, 0, 0, 0, 0, time.UTC), FieldElevation, "metres"},
 		{"unknown label", "GDA94 / MGA zone 50", e, n, elev, time.Date(2026, 3, 1, 0, 0, 0, 0, time.UTC), FieldCRS, "unknown"},
 		{"NaN northing", "EPSG:32750", e, math.NaN(), elev, time.Date(2026, 3, 1, 0, 0, 0, 0, time.UTC), FieldNorthing, "not a number"},
@@ -172,10 +171,17 @@ func TestErrors(t *testing.T) {
 			t.Errorf("%s: %v; want a %s error mentioning %q", c.name, err, c.field, c.msg)
 		}
 	}
-	var re *wmm.RangeError
+	var re *RangeError
 	_, err := Corrections("EPSG:32750", e, n, elev, time.Date(2031, 1, 1, 0, 0, 0, 0, time.UTC), true, false)
 	if !errors.As(err, &re) {
-		t.Errorf("a date past the model should unwrap to a wmm.RangeError: %v", err)
+		t.Errorf("a date past the models should unwrap to a RangeError: %v", err)
+	}
+	// A date before the WMM with the WMM chosen: the message names the WMM's
+	// years and the other model, and gives the date once, as given.
+	_, err = CorrectionsModel(ModelWMM, "EPSG:32750", e, n, elev, time.Date(2023, 8, 1, 0, 0, 0, 0, time.UTC), true, false)
+	want := `survey_date "2023-08-01": is outside the years of magnetic model WMM-2025 (2025.0 to 2030.0); IGRF-14 covers 1900.0 to 2030.0: choose model igrf or auto`
+	if err == nil || err.Error() != want {
+		t.Errorf("2023 with the WMM:\n got %v\nwant %s", err, want)
 	}
 	// Nothing wanted: only the label is checked, coordinates are not used.
 	if _, err := Corrections("EPSG:32750", 0, 0, 0, time.Time{}, false, false); err != nil {
@@ -199,7 +205,7 @@ func TestAzimuths(t *testing.T) {
 		t.Errorf("GridAzimuth(1, 0, 2) = %v, want 359", got)
 	}
 	from, to := ValidYears()
-	if from != 2025 || to != 2030 {
+	if from != 1900 || to != 2030 {
 		t.Errorf("ValidYears = %v, %v", from, to)
 	}
 	if y, err := ParseDate("2028-03-01"); err != nil || y != 2028+60.0/366 {
