@@ -47,8 +47,9 @@ Latitude and longitude are WGS 84 degrees; height is kilometres above the WGS 84
 ellipsoid (not above sea level; the difference is negligible for declination).
 DATE is YYYY-MM-DD or a decimal year such as 2027.5; a calendar date becomes
 year + (day of year - 1)/(days in the year), leap years having 366 days.
-A UTM zone is its number and the hemisphere letter N or S (not a latitude band),
-or an EPSG:326NN / EPSG:327NN label.
+A UTM zone is its number and the hemisphere letter N or S (not a latitude band) for
+WGS 84 / UTM, or an EPSG label of a supported grid: WGS 84 / UTM (EPSG:326NN, 327NN),
+NAD83 / UTM, ETRS89 / UTM, GDA94 and GDA2020 / MGA, SIRGAS 2000 / UTM (see README).
 
 Signs: declination is positive when magnetic north is east of true north
 (true = magnetic + declination); convergence is positive when grid north is east of
@@ -169,13 +170,24 @@ func parseFinite(s string) (float64, error) {
 	return v, nil
 }
 
-// parseZoneLabel reads "50S"-style zones and EPSG:326NN/327NN labels.
-func parseZoneLabel(s string) (utm.Zone, error) {
+// parseZoneLabel reads "50S"-style zones (WGS 84 / UTM) and the EPSG labels
+// northref places collars in (UTM and MGA zones of several datums); it
+// returns the zone and its projection.
+func parseZoneLabel(s string) (utm.Zone, *utm.TransverseMercator, error) {
 	if strings.HasPrefix(strings.ToUpper(strings.TrimSpace(s)), "EPSG:") {
 		c, err := northref.ParseCRS(s)
-		return c.Zone, err
+		return c.Zone, c.Grid, err
 	}
-	return utm.ParseZone(s)
+	z, err := utm.ParseZone(s)
+	if err != nil {
+		return z, nil, err
+	}
+	code := 32600 + z.Number // WGS 84 / UTM north
+	if z.South {
+		code += 100
+	}
+	c, err := utm.LookupEPSG(code)
+	return z, c.TM, err
 }
 
 // declinationPoint validates and computes one point from its text fields.
@@ -214,14 +226,15 @@ func declinationPoint(latS, lonS, hS, dateS, zoneS string, wantZone bool, model 
 		return nil, &fieldError{"date", err}
 	}
 	if wantZone {
-		if p.zone, err = parseZoneLabel(zoneS); err != nil {
+		var tm *utm.TransverseMercator
+		if p.zone, tm, err = parseZoneLabel(zoneS); err != nil {
 			return nil, &fieldError{"zone", err}
 		}
 		if p.zone.South && p.lat > 0 || !p.zone.South && p.lat < 0 {
 			return nil, &fieldError{"zone", fmt.Errorf("zone %v is in the %s hemisphere but latitude %v is not (the letter is the hemisphere, N or S, not a latitude band)",
 				p.zone, map[bool]string{true: "southern", false: "northern"}[p.zone.South], p.lat)}
 		}
-		if p.grid, err = utm.Forward(p.zone, p.lat, p.lon); err != nil {
+		if p.grid, err = tm.Forward(p.lat, p.lon); err != nil {
 			return nil, &fieldError{"zone", err}
 		}
 		p.hasGrid = true

@@ -11,9 +11,10 @@
 //
 // So a magnetic azimuth becomes a grid azimuth as grid = magnetic + D - C.
 //
-// Collars are placed by a coordinate system label: EPSG:326NN for WGS 84 /
-// UTM zone NN north and EPSG:327NN for zone NN south (NN = 01..60), written in
-// any letter case. The collar's easting and northing are projected back to
+// Collars are placed by a coordinate system label "EPSG:code" for the UTM
+// zones of WGS 84 (EPSG:326NN north, 327NN south), NAD83, ETRS89, GDA94 and
+// GDA2020 (MGA) and SIRGAS 2000 (the table [utm.Families]), written in any
+// letter case. The collar's easting and northing are projected back to
 // latitude and longitude with package utm (Krüger series, Karney 2011), the
 // declination comes from the magnetic model chosen (see [MagneticModel]:
 // the World Magnetic Model in package wmm for 2025.0-2030.0, the
@@ -86,19 +87,30 @@ func (e *Error) Error() string {
 
 func (e *Error) Unwrap() error { return e.Err }
 
-// CRS is a coordinate system corvane can place collars in: a WGS 84 / UTM zone.
+// CRS is a coordinate system corvane can place collars in: a UTM zone of one
+// of the datums in [utm.Families] (WGS 84, NAD83, ETRS89, GDA94 and GDA2020
+// MGA, SIRGAS 2000).
 type CRS struct {
-	EPSG int      // 32601..32660 or 32701..32760
+	EPSG int      // e.g. 32750 or 7850
 	Zone utm.Zone // zone number and hemisphere
+	// Name is EPSG's name, e.g. "GDA2020 / MGA zone 50"; Grid the
+	// projection on the datum's ellipsoid.
+	Name string
+	Grid *utm.TransverseMercator
 }
 
 // String returns the canonical label, e.g. "EPSG:32750".
 func (c CRS) String() string { return "EPSG:" + strconv.Itoa(c.EPSG) }
 
-// ParseCRS reads a coordinate system label of the form EPSG:326NN (WGS 84 /
-// UTM zone NN north) or EPSG:327NN (zone NN south), NN = 01..60. Case and
+// ParseCRS reads a coordinate system label "EPSG:code" for a code of the
+// table [utm.Families]: WGS 84 / UTM (326NN north, 327NN south), NAD83 /
+// UTM, ETRS89 / UTM, GDA94 and GDA2020 / MGA, SIRGAS 2000 / UTM. Case and
 // surrounding spaces are ignored ("epsg:32750" is accepted). Other labels,
-// including local mine grids, give an *Error: corvane cannot place them.
+// including local mine grids, give an *Error naming the supported families.
+//
+// Latitude and longitude are then on the label's datum; the datums differ
+// from WGS 84 by a few metres at most, which changes neither the
+// declination nor the convergence measurably, so no datum shift is applied.
 func ParseCRS(label string) (CRS, error) {
 	s := strings.ToUpper(strings.TrimSpace(label))
 	fail := func(msg string) (CRS, error) {
@@ -109,25 +121,17 @@ func ParseCRS(label string) (CRS, error) {
 	}
 	code, ok := strings.CutPrefix(s, "EPSG:")
 	if !ok {
-		return fail("unknown coordinate system label; corvane can place collars given as EPSG:326NN (WGS 84 / UTM zone NN north) or EPSG:327NN (zone NN south)")
+		return fail("unknown coordinate system label; corvane can place collars given as EPSG codes of these families: " + utm.SupportedText())
 	}
 	n, err := strconv.Atoi(strings.TrimSpace(code))
 	if err != nil {
 		return fail("the EPSG code is not a number")
 	}
-	var z utm.Zone
-	switch {
-	case n/100 == 326:
-		z = utm.Zone{Number: n % 100}
-	case n/100 == 327:
-		z = utm.Zone{Number: n % 100, South: true}
-	default:
-		return fail("unsupported coordinate system; corvane can place collars given as EPSG:326NN (WGS 84 / UTM zone NN north) or EPSG:327NN (zone NN south)")
+	c, err := utm.LookupEPSG(n)
+	if err != nil {
+		return fail("unsupported coordinate system; corvane can place collars given as EPSG codes of these families: " + utm.SupportedText())
 	}
-	if err := z.Valid(); err != nil {
-		return fail(fmt.Sprintf("UTM zone %02d is out of range (zones are 01 to 60)", z.Number))
-	}
-	return CRS{EPSG: n, Zone: z}, nil
+	return CRS{EPSG: n, Zone: c.Zone, Name: c.Name, Grid: c.TM}, nil
 }
 
 // Limits on collar coordinates: outside them the numbers are almost surely
@@ -244,7 +248,7 @@ func correctionsYear(model MagneticModel, crs string, easting, northing, elevati
 		return Result{}, &Error{Field: FieldElevation, Value: num(elevationM),
 			Msg: fmt.Sprintf("is not a collar elevation in metres (expected -%.0f to %.0f)", MaxAbsElevation, MaxAbsElevation)}
 	}
-	geo, err := utm.Inverse(c.Zone, easting, northing)
+	geo, err := c.Grid.Inverse(easting, northing)
 	if err != nil {
 		return Result{}, &Error{Field: FieldEasting, Value: num(easting), Msg: err.Error(), Err: err}
 	}

@@ -18,6 +18,11 @@ func TestParseCRS(t *testing.T) {
 		" EPSG:32601 ": {Number: 1},
 		"Epsg:32660":   {Number: 60},
 		"EPSG:32706":   {Number: 6, South: true},
+		"EPSG:28350":   {Number: 50, South: true}, // GDA94 / MGA zone 50
+		"EPSG:7850":    {Number: 50, South: true}, // GDA2020 / MGA zone 50
+		"EPSG:26911":   {Number: 11},              // NAD83 / UTM zone 11N
+		"EPSG:25832":   {Number: 32},              // ETRS89 / UTM zone 32N
+		"EPSG:31983":   {Number: 23, South: true}, // SIRGAS 2000 / UTM zone 23S
 	}
 	for s, want := range good {
 		c, err := ParseCRS(s)
@@ -30,10 +35,10 @@ func TestParseCRS(t *testing.T) {
 	}
 	bad := map[string]string{
 		"":           "no coordinate system",
-		"EPSG:32600": "out of range",
-		"EPSG:32761": "out of range",
-		"EPSG:4326":  "unsupported",
-		"EPSG:28350": "unsupported",
+		"EPSG:32600": "unsupported",
+		"EPSG:32761": "unsupported",
+		"EPSG:4326":  "GDA2020 / MGA EPSG:7846-7859",
+		"EPSG:2193":  "unsupported",
 		"MINEGRID":   "unknown coordinate system",
 		"EPSG:abc":   "not a number",
 	}
@@ -243,4 +248,14 @@ func FuzzParseCRS(f *testing.F) {
 			t.Fatalf("ParseCRS(%q) = %v does not round trip: %v %v", s, c, c2, err)
 		}
 	})
+}
+
+// A collar in GDA2020 / MGA zone 50 gets the convergence PROJ 9.1.1 gives
+// for its position (internal/utm/testdata/proj_checks.txt, EPSG:7850 line:
+// -31.95, 115.86 -> E 392259.361885, N 6464539.163993, C 0.60332222).
+func TestCorrectionsMGA(t *testing.T) {
+	r, err := Corrections("EPSG:7850", 392259.361885, 6464539.163993, 30, time.Time{}, false, true)
+	if err != nil || math.Abs(r.Convergence-0.60332222) > 1e-6 || math.Abs(r.Lat+31.95) > 1e-9 || r.CRS.Name != "GDA2020 / MGA zone 50" {
+		t.Errorf("%+v %v", r, err)
+	}
 }
