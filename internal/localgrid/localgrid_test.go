@@ -204,7 +204,7 @@ func TestSpec(t *testing.T) {
 		t.Errorf("%+v %v %v", tr, fit, err)
 	}
 	bad := map[string]string{
-		`{"rotation":1,"origin":{}}`: "grid_crs is required",
+		`{"rotation":1,"origin":{}}`:                                      "grid_crs is required",
 		`{"grid_crs":"EPSG:28350","rotation":1,"control_points":[{},{}]}`: "not both",
 		`{"grid_crs":"EPSG:28350","rotation":1}`:                          "give rotation and origin",
 		`{"grid_crs":"EPSG:28350","rotation":1,"scale":3.28,"origin":{}}`: "are the local units metres",
