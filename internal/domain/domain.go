@@ -31,6 +31,10 @@ const (
 	UnitMetre = "m"
 	UnitFoot  = "ft"
 
+	MagneticAuto = "auto" // magnetic model choices (package northref's words)
+	MagneticWMM  = "wmm"
+	MagneticIGRF = "igrf"
+
 	AzimuthTrue     = "true"
 	AzimuthGrid     = "grid"
 	AzimuthMagnetic = "magnetic"
@@ -56,16 +60,25 @@ type Project struct {
 	// D); nil until someone sets it. It applies to magnetic azimuths of holes
 	// without a declination of their own (survey set, then hole); when it is
 	// unset the declination is computed from the collar's crs and the survey
-	// date, and a hole where that is impossible has an error.
+	// date with the project's magnetic model, and a hole where that is
+	// impossible has an error.
 	Declination *float64 `json:"declination"`
 	// Convergence is the project's default grid convergence in degrees,
 	// positive when grid north is east of true north (grid = true - C); nil
 	// until someone sets it. It applies to holes without their own; when it
-	// is unset it is computed from the collar's crs label (a UTM EPSG code).
-	Convergence *float64  `json:"convergence"`
-	Version     int64     `json:"version"`
-	CreatedAt   time.Time `json:"created_at"`
-	UpdatedAt   time.Time `json:"updated_at"`
+	// is unset it is computed from the collar's crs label (an EPSG code).
+	Convergence *float64 `json:"convergence"`
+	// MagneticModel chooses the model of computed declinations: "auto"
+	// (default: the World Magnetic Model for 2025.0-2030.0, IGRF-14 before),
+	// "wmm" or "igrf".
+	MagneticModel string `json:"magnetic_model"`
+	// LocalGrid declares the project's local (mine) grid, null when none: a
+	// JSON object of package localgrid's Spec (name, grid_crs, and rotation,
+	// scale, origin or control_points). The service checks it.
+	LocalGrid json.RawMessage `json:"local_grid"`
+	Version   int64           `json:"version"`
+	CreatedAt time.Time       `json:"created_at"`
+	UpdatedAt time.Time       `json:"updated_at"`
 }
 
 // TypeCode is one word of a project's structure vocabulary, e.g. "BD" for

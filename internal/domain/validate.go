@@ -138,6 +138,10 @@ func (p *Project) Normalize() error {
 	def(&p.GammaSense, GammaClockwise)
 	def(&p.LengthUnit, UnitMetre)
 	def(&p.OutputAzimuthRef, AzimuthGrid)
+	def(&p.MagneticModel, MagneticAuto)
+	if string(p.LocalGrid) == "null" {
+		p.LocalGrid = nil
+	}
 	if p.Name == "" {
 		return FieldErr("name", "name must be 1 to %d characters", MaxNameLen)
 	}
@@ -150,6 +154,7 @@ func (p *Project) Normalize() error {
 		checkOneOf("gamma_sense", p.GammaSense, GammaClockwise, GammaAnticlockwise),
 		checkOneOf("length_unit", p.LengthUnit, UnitMetre, UnitFoot),
 		checkOneOf("output_azimuth_ref", p.OutputAzimuthRef, AzimuthGrid, AzimuthTrue),
+		checkOneOf("magnetic_model", p.MagneticModel, MagneticAuto, MagneticWMM, MagneticIGRF),
 		checkOptRange("declination", p.Declination, -180, 180),
 		checkOptRange("convergence", p.Convergence, -90, 90),
 	} {

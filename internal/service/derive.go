@@ -11,6 +11,7 @@ import (
 	"corvane/internal/desurvey"
 	"corvane/internal/domain"
 	"corvane/internal/holemodel"
+	"corvane/internal/northref"
 )
 
 // Derived holds the values computed from a measurement, its hole's current
@@ -76,18 +77,21 @@ type Conventions struct {
 	OutputAzimuthRef string   `json:"output_azimuth_ref"`
 	Declination      *float64 `json:"declination"`
 	Convergence      *float64 `json:"convergence"`
+	// MagneticModel chooses the model of computed declinations: "auto"
+	// (default), "wmm" or "igrf" (see domain.Project).
+	MagneticModel string `json:"magnetic_model"`
 }
 
 // ConventionsOf returns the project's conventions.
 func ConventionsOf(p domain.Project) Conventions {
 	return Conventions{RefLine: p.RefLine, BetaApex: p.BetaApex, GammaSense: p.GammaSense, LengthUnit: p.LengthUnit,
-		OutputAzimuthRef: p.OutputAzimuthRef, Declination: p.Declination, Convergence: p.Convergence}
+		OutputAzimuthRef: p.OutputAzimuthRef, Declination: p.Declination, Convergence: p.Convergence, MagneticModel: p.MagneticModel}
 }
 
 // normalize fills defaults and validates c, reusing the project rules.
 func (c *Conventions) normalize() error {
 	p := domain.Project{Name: "x", RefLine: c.RefLine, BetaApex: c.BetaApex, GammaSense: c.GammaSense, LengthUnit: c.LengthUnit,
-		OutputAzimuthRef: c.OutputAzimuthRef, Declination: c.Declination, Convergence: c.Convergence}
+		OutputAzimuthRef: c.OutputAzimuthRef, Declination: c.Declination, Convergence: c.Convergence, MagneticModel: c.MagneticModel}
 	if err := p.Normalize(); err != nil {
 		return err
 	}
@@ -113,7 +117,7 @@ func (c Conventions) core() coreangle.Convention {
 // curvature, the project's unit, output reference and defaults.
 func (c Conventions) project() holemodel.Project {
 	p := holemodel.Project{Convention: c.core(), Method: desurvey.MinimumCurvature, Output: c.OutputAzimuthRef,
-		Declination: c.Declination, GridConvergence: c.Convergence}
+		Declination: c.Declination, GridConvergence: c.Convergence, Model: northref.MagneticModel(c.MagneticModel)}
 	if c.LengthUnit == domain.UnitFoot {
 		p.Unit = desurvey.Feet
 	}

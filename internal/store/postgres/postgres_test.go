@@ -34,17 +34,18 @@ func TestMigrationBackfill(t *testing.T) {
 		}
 		return s
 	}, func(t *testing.T) {
-		// Roll back to version 2 (before 000003), then up again.
+		// Roll back one migration at a time down to version 1 (undoing
+		// 000002 and every later one).
 		for {
 			v, _, err := postgres.Version(url)
 			if err != nil {
 				t.Fatal(err)
 			}
-			if v <= 2 {
+			if v <= 1 {
 				break
 			}
 			if err := postgres.Migrate(url, -1); err != nil {
-				t.Fatalf("rolling back %d: %v", v, err)
+				t.Fatalf("rolling back from version %d: %v", v, err)
 			}
 		}
 		if err := postgres.Migrate(url, 0); err != nil {

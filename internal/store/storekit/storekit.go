@@ -6,6 +6,7 @@
 package storekit
 
 import (
+	"encoding/json"
 	"errors"
 	"time"
 
@@ -119,4 +120,20 @@ func ProjectArg(id int64) any {
 		return nil
 	}
 	return id
+}
+
+// JSONText is the column text of an optional JSON document: "" when none.
+func JSONText(doc json.RawMessage) string {
+	if len(doc) == 0 || string(doc) == "null" {
+		return ""
+	}
+	return string(doc)
+}
+
+// JSONFromText is the inverse of JSONText: nil for "".
+func JSONFromText(s string) json.RawMessage {
+	if s == "" {
+		return nil
+	}
+	return json.RawMessage(s)
 }

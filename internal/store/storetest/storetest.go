@@ -108,7 +108,8 @@ func newHole(t *testing.T, s domain.Store, projectID int64, name string) domain.
 func testProjects(t *testing.T, s domain.Store) {
 	c := ctx(t)
 	p := domain.Project{Name: "Tallowmere", Description: "fictional prospect", RefLine: "top", BetaApex: "uphole",
-		GammaSense: "anticlockwise", LengthUnit: "ft", OutputAzimuthRef: "true", Declination: f64(1.5), Convergence: f64(-0.75)}
+		GammaSense: "anticlockwise", LengthUnit: "ft", OutputAzimuthRef: "true", Declination: f64(1.5), Convergence: f64(-0.75),
+		MagneticModel: "igrf", LocalGrid: json.RawMessage(`{"name":"mine grid","grid_crs":"EPSG:28350","rotation":-37.25,"origin":{"local_easting":5000,"local_northing":10000,"easting":391250,"northing":6465480}}`)}
 	must(t, s.CreateProject(c, &p))
 	if p.ID == 0 || p.Version != 1 || p.CreatedAt.IsZero() || !p.CreatedAt.Equal(p.UpdatedAt) {
 		t.Fatalf("create did not set id/version/times: %+v", p)
@@ -122,11 +123,14 @@ func testProjects(t *testing.T, s domain.Store) {
 
 	_, err = s.GetProject(c, p.ID+1000)
 	wantKind(t, err, domain.NotFound, "missing project")
-	dup := domain.Project{Name: "Tallowmere", RefLine: "bottom", BetaApex: "downhole", GammaSense: "clockwise", LengthUnit: "m", OutputAzimuthRef: "grid"}
+	dup := domain.Project{Name: "Tallowmere", RefLine: "bottom", BetaApex: "downhole", GammaSense: "clockwise", LengthUnit: "m", OutputAzimuthRef: "grid", MagneticModel: "auto"}
 	wantKind(t, s.CreateProject(c, &dup), domain.Conflict, "duplicate project name")
 
-	// Project defaults are unset until someone sets them.
+	// Project defaults are unset until someone sets them; the
+	// north-reference settings round-trip through an update too: a new model
+	// choice and no local grid.
 	p.Description, p.Declination = "changed", nil
+	p.MagneticModel, p.LocalGrid = "wmm", nil
 	must(t, s.UpdateProject(c, &p, 1))
 	if p.Version != 2 {
 		t.Fatalf("version after update = %d, want 2", p.Version)

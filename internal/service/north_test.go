@@ -1,0 +1,80 @@
+package service_test
+
+import (
+	"encoding/json"
+	"errors"
+	"math"
+	"strings"
+	"testing"
+	"time"
+
+	"corvane/internal/domain"
+	"corvane/internal/northref"
+)
+
+// The project's magnetic model choice is stored and applies to declinations
+// computed when a survey set is stored: a 2023 survey gets the IGRF-14
+// value under auto, none under wmm (the WMM starts in 2025: the project's
+// default then applies).
+func TestProjectMagneticModel(t *testing.T) {
+	s, ctx := newService(t)
+	p := must(s.CreateProject(ctx, domain.Project{Name: "older programme"}))
+	if p.MagneticModel != "auto" || p.LocalGrid != nil {
+		t.Fatalf("defaults: %q %s", p.MagneticModel, p.LocalGrid)
+	}
+	h := must(s.CreateHole(ctx, p.ID, domain.Hole{Name: "OP001", East: 391250, North: 6465480, Elevation: 312, Azimuth: 45, Dip: -60, FinalDepth: 200, CRS: "EPSG:28350"}))
+	ss := domain.SurveySet{AzimuthRef: "magnetic", SurveyDate: "2023-08-01", Stations: []domain.Station{{Depth: 0, Azimuth: 45, Dip: -60}}}
+	got := must(s.PutSurvey(ctx, p.ID, h.ID, 0, ss))
+	want, err := northref.CorrectionsModel(northref.ModelIGRF, "EPSG:28350", 391250, 6465480, 312, time.Date(2023, 8, 1, 0, 0, 0, 0, time.UTC), true, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got.Declination == nil || math.Abs(*got.Declination-want.Declination) > 1e-12 || got.DeclinationSource != "computed" {
+		t.Errorf("auto: declination %v (%s), IGRF-14 gives %v", got.Declination, got.DeclinationSource, want.Declination)
+	}
+
+	p.MagneticModel = "wmm"
+	p = must(s.UpdateProject(ctx, p.ID, p.Version, p))
+	if p2 := must(s.GetProject(ctx, p.ID)); p2.MagneticModel != "wmm" {
+		t.Fatalf("model read back %q", p2.MagneticModel)
+	}
+	got = must(s.PutSurvey(ctx, p.ID, h.ID, got.Version, ss))
+	if got.Declination != nil {
+		t.Errorf("wmm for a 2023 survey computed %v", *got.Declination)
+	}
+	p.MagneticModel = "emm"
+	_, err = s.UpdateProject(ctx, p.ID, p.Version, p)
+	if wantKind(t, err, domain.Invalid, "unknown model"); !strings.Contains(err.Error(), "auto, wmm, igrf") {
+		t.Errorf("unknown model: %v", err)
+	}
+}
+
+// A local grid declaration is checked and stored in canonical form; a bad
+// one is refused naming the field, and the project keeps what it had.
+func TestProjectLocalGrid(t *testing.T) {
+	s, ctx := newService(t)
+	grid := json.RawMessage(`{"name":"Tallowmere mine grid","grid_crs":"EPSG:28350","control_points":[
+		{"id":"CP1","local_easting":5000,"local_northing":10000,"easting":391250,"northing":6465480},
+		{"id":"CP2","local_easting":6000,"local_northing":10000,"easting":392045.6,"northing":6464875.8}]}`)
+	p := must(s.CreateProject(ctx, domain.Project{Name: "mine", LocalGrid: grid}))
+	var back map[string]any
+	if err := json.Unmarshal(must(s.GetProject(ctx, p.ID)).LocalGrid, &back); err != nil || back["grid_crs"] != "EPSG:28350" || len(back["control_points"].([]any)) != 2 {
+		t.Errorf("stored local grid %v %v", back, err)
+	}
+	for text, msg := range map[string]string{
+		`{"grid_crs":"EPSG:2193","rotation":10,"origin":{"local_easting":0,"local_northing":0,"easting":1,"northing":2}}`: "grid_crs",
+		`{"grid_crs":"EPSG:28350","rotation":10}`: "give rotation and origin",
+		`{"grid_crs":"EPSG:28350","turn":10}`:     "unknown field",
+	} {
+		q := p
+		q.LocalGrid = json.RawMessage(text)
+		_, err := s.UpdateProject(ctx, p.ID, p.Version, q)
+		var e *domain.Error
+		if err == nil || !strings.Contains(err.Error(), msg) || !errors.As(err, &e) || e.Loc.Field != "local_grid" {
+			t.Errorf("%s: %v", text, err)
+		}
+	}
+	if cur := must(s.GetProject(ctx, p.ID)); cur.Version != p.Version {
+		t.Errorf("a refused update changed the project: version %d", cur.Version)
+	}
+}
