@@ -13,7 +13,9 @@ import (
 	"corvane/internal/coreangle"
 	"corvane/internal/csvio"
 	"corvane/internal/desurvey"
+	"corvane/internal/localgrid"
 	"corvane/internal/northref"
+	"corvane/internal/service"
 )
 
 func init() {
@@ -59,12 +61,20 @@ separated by ";".
 Azimuths: true = magnetic + declination; grid = true - grid_convergence. A survey
 azimuth without azimuth_reference is taken to be in the output reference. Corrections
 come from the collar's columns, else from --declination / --grid-convergence, else are
-computed from the collar's crs (EPSG:326NN / EPSG:327NN) and the survey date with the
-magnetic model chosen by --model (auto: World Magnetic Model 2025 for 2025-2030, IGRF-14
-before); the *_source columns say which (given, project, computed or none; a computed
+computed from the collar's crs (an EPSG code of a supported UTM or MGA grid, see the
+README) and the survey date with the magnetic model chosen by --model (auto: World
+Magnetic Model 2025 for 2025-2030, IGRF-14 before); the *_source columns say which (given, project, computed or none; a computed
 declination names its model and decimal year, e.g. "computed (IGRF-14 at 2023.5808)").
 A collars file may give survey_date, the date of a hole's survey for survey rows
 without their own.
+
+--local-grid GRID.json declares a local (mine) grid (a JSON object: name, grid_crs, and
+rotation, scale and origin, or control_points; see the README). A collar whose crs is
+"local" is then in that grid: its easting and northing are carried into grid_crs, and
+its azimuths referenced to grid (given as grid, or without a reference when the output
+reference is grid) are local-grid azimuths, turned into grid azimuths by the rotation.
+Output positions and grid azimuths are in grid_crs. The transformation (and the control
+points' residuals when fitted) is printed on standard error. Not with --feet.
 
 Exit status: 0 all rows converted; 1 some rows have a message in the error column
 (all rows are still written); 2 bad options or a file that cannot be read as a whole
@@ -178,6 +188,7 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 	apex := fs.String("beta-apex", "downhole", "ellipse apex beta is measured to: downhole or uphole")
 	sense := fs.String("gamma-sense", "clockwise", "sense of gamma looking along the down-hole plane normal: clockwise or anticlockwise")
 	summary := fs.String("hole-summary", "", "also write one row per hole to this CSV file: azimuth references, corrections and their sources, row counts, caution, error")
+	gridFile := fs.String("local-grid", "", "JSON file declaring a local grid for collars whose crs is \"local\"")
 	var opt convert.Options
 	paths := addPathFlags(fs, &opt)
 	if err := fs.Parse(args); err != nil {
@@ -209,13 +220,30 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 	if err := paths.apply(); err != nil {
 		return usageErr("%v", err)
 	}
+	if *gridFile != "" {
+		if opt.Unit == desurvey.Feet {
+			return usageErr("--local-grid cannot be combined with --feet (the local grid is in metres)")
+		}
+		if code := applyLocalGrid(env, *gridFile, &opt); code != ExitOK {
+			return code
+		}
+	}
 	opt.CollarsFile, opt.SurveysFile, opt.StructuresFile = *collars, *surveys, *structures
 
-	_, srows, holes, err := loadHoles(*collars, *surveys, opt)
+	crows, srows, holes, err := loadHoles(*collars, *surveys, opt)
 	if err != nil {
 		fmt.Fprint(env.Stderr, "corvane convert: ")
 		csvio.Report(env.Stderr, err)
 		return ExitUsage
+	}
+	if opt.LocalGrid != nil {
+		n := 0
+		for _, c := range crows {
+			if convert.IsLocal(c.CRS) {
+				n++
+			}
+		}
+		fmt.Fprintf(env.Stderr, "corvane convert: %d collar(s) carried from the local grid into %s\n", n, opt.LocalGrid.Spec.GridCRS)
 	}
 	var in io.Reader = env.Stdin
 	if *structures != "-" {
@@ -298,4 +326,40 @@ func holeSummary(env *Env, file string, perHole []convert.HoleRows, holes *conve
 		return ExitUsage
 	}
 	return ExitOK
+}
+
+// applyLocalGrid reads the local grid declaration in path (the rules of a
+// project's local_grid setting), sets it in opt so the collars labelled
+// "local" are carried into its projected grid (convert.LocalGrid.Apply, as
+// the service does with a project's local grid), and reports the
+// transformation on standard error.
+func applyLocalGrid(env *Env, path string, opt *convert.Options) int {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		fmt.Fprintf(env.Stderr, "corvane convert: --local-grid: %v\n", err)
+		return ExitUsage
+	}
+	spec, err := service.ParseLocalGrid(data)
+	if err != nil {
+		fmt.Fprintf(env.Stderr, "corvane convert: --local-grid %s: %v\n", path, err)
+		return ExitUsage
+	}
+	t, fit, _ := spec.Resolve() // ParseLocalGrid resolved it already
+	opt.LocalGrid = &convert.LocalGrid{Spec: spec, T: t}
+	reportLocalGrid(env.Stderr, spec, t, fit)
+	return ExitOK
+}
+
+// reportLocalGrid prints a local grid's transformation and, when fitted,
+// each control point's residual.
+func reportLocalGrid(w io.Writer, spec localgrid.Spec, t localgrid.Transform, fit *localgrid.Fit) {
+	fmt.Fprintf(w, "local grid %q -> %s: rotation %.6f deg (grid azimuth of local north), scale %.9f, local origin at E %.3f N %.3f\n",
+		spec.Name, spec.GridCRS, t.Rotation, t.Scale, t.E0, t.N0)
+	if fit == nil {
+		return
+	}
+	fmt.Fprintf(w, "fitted to %d control points, rms %.4f m; residuals (observed - computed):\n", len(fit.Residuals), fit.RMS)
+	for _, r := range fit.Residuals {
+		fmt.Fprintf(w, "  %-12s dE %+.4f dN %+.4f (%.4f m)\n", r.ID, r.DE, r.DN, r.Distance)
+	}
 }

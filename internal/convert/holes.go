@@ -88,6 +88,9 @@ type Options struct {
 	// MagneticModel chooses the model of computed declinations ("" is
 	// northref.ModelAuto).
 	MagneticModel northref.MagneticModel
+	// LocalGrid, when set, carries holes whose collar crs is "local" from
+	// that local grid into its projected grid (see [LocalGrid.Apply]).
+	LocalGrid *LocalGrid
 	// NoCompute turns off computing missing corrections with package
 	// northref; a hole that needs one then has an error.
 	NoCompute bool
@@ -183,7 +186,9 @@ func Build(crows []csvio.CollarRow, srows []csvio.SurveyRow, opt Options) (*Hole
 	}
 	p := opt.Project()
 	for _, c := range crows {
-		m := holemodel.New(HoleInput(c, byHole[c.HoleID]), p)
+		in := HoleInput(c, byHole[c.HoleID])
+		opt.LocalGrid.Apply(&in, p.Output)
+		m := holemodel.New(in, p)
 		h := &Hole{Hole: m, ID: c.HoleID, Line: c.Line}
 		if m.Err != nil {
 			h.Err = Locate(m.Err, c.Line, cf, sf)
