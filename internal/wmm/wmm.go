@@ -293,17 +293,27 @@ func (e *RangeError) Error() string {
 // outside [-90, 90], non-finite input or a height below -10 km or above
 // 850 km (the model's stated range is -1 km to 850 km) give plain errors.
 func (m *Model) At(lat, lon, hKm, year float64) (Field, error) {
-	switch {
-	case math.IsNaN(lat) || lat < -90 || lat > 90:
-		return Field{}, fmt.Errorf("latitude %v is outside -90..90 degrees", lat)
-	case math.IsNaN(lon) || math.IsInf(lon, 0):
-		return Field{}, fmt.Errorf("longitude %v is not a finite number", lon)
-	case math.IsNaN(hKm) || hKm < -10 || hKm > 850:
+	if err := m.check("latitude", lat, lon, year); err != nil {
+		return Field{}, err
+	}
+	if math.IsNaN(hKm) || hKm < -10 || hKm > 850 {
 		return Field{}, fmt.Errorf("height %v km is outside the model's range (-10 to 850 km above the ellipsoid)", hKm)
-	case math.IsNaN(year) || year < m.ValidFrom() || year > m.ValidTo():
-		return Field{}, &RangeError{Year: year, From: m.ValidFrom(), To: m.ValidTo(), Model: m.Name}
 	}
 	return m.eval(lat, lon, hKm, year), nil
+}
+
+// check reports a latitude (named latName), longitude or date the model
+// cannot take; the date gives a *RangeError.
+func (m *Model) check(latName string, lat, lon, year float64) error {
+	switch {
+	case math.IsNaN(lat) || lat < -90 || lat > 90:
+		return fmt.Errorf("%s %v is outside -90..90 degrees", latName, lat)
+	case math.IsNaN(lon) || math.IsInf(lon, 0):
+		return fmt.Errorf("longitude %v is not a finite number", lon)
+	case math.IsNaN(year) || year < m.ValidFrom() || year > m.ValidTo():
+		return &RangeError{Year: year, From: m.ValidFrom(), To: m.ValidTo(), Model: m.Name}
+	}
+	return nil
 }
 
 func (m *Model) eval(lat, lon, hKm, year float64) Field {
@@ -342,15 +352,11 @@ func (m *Model) eval(lat, lon, hKm, year float64) Field {
 // spherical-harmonic models are given. Errors as for [Model.At]; the
 // radius must lie within 6300 to 7300 km.
 func (m *Model) AtGeocentric(latc, lon, rKm, year float64) (Field, error) {
-	switch {
-	case math.IsNaN(latc) || latc < -90 || latc > 90:
-		return Field{}, fmt.Errorf("geocentric latitude %v is outside -90..90 degrees", latc)
-	case math.IsNaN(lon) || math.IsInf(lon, 0):
-		return Field{}, fmt.Errorf("longitude %v is not a finite number", lon)
-	case math.IsNaN(rKm) || rKm < 6300 || rKm > 7300:
+	if err := m.check("geocentric latitude", latc, lon, year); err != nil {
+		return Field{}, err
+	}
+	if math.IsNaN(rKm) || rKm < 6300 || rKm > 7300 {
 		return Field{}, fmt.Errorf("radius %v km is outside 6300 to 7300 km", rKm)
-	case math.IsNaN(year) || year < m.ValidFrom() || year > m.ValidTo():
-		return Field{}, &RangeError{Year: year, From: m.ValidFrom(), To: m.ValidTo(), Model: m.Name}
 	}
 	t, u := math.Sincos(latc * math.Pi / 180)
 	if u < 1e-12 {
