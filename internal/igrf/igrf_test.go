@@ -148,7 +148,7 @@ func TestDatedDeclinationsIndependent(t *testing.T) {
 			t.Fatal(err)
 		}
 		d, inc := ref.declination(p.lat, p.lon, p.hm/1000, p.year)
-		if math.Abs(f.Declination-d) > 1e-5 || math.Abs(f.Inclination-inc) > 1e-5 {
+		if math.Abs(f.Declination-d) > 1e-6 || math.Abs(f.Inclination-inc) > 1e-6 {
 			t.Errorf("%+v: D %.7f I %.7f, independent %.7f %.7f", p, f.Declination, f.Inclination, d, inc)
 		}
 	}
