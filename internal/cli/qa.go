@@ -16,6 +16,7 @@ import (
 	"corvane/internal/coreangle"
 	"corvane/internal/csvio"
 	"corvane/internal/desurvey"
+	"corvane/internal/northref"
 	"corvane/internal/qa"
 	"corvane/internal/qa/qapage"
 	"corvane/internal/uncertainty"
@@ -115,6 +116,7 @@ func runQA(_ context.Context, env *Env, args []string) int {
 	decl := fs.Float64("declination", math.NaN(), "magnetic declination for every hole, degrees east (collar column declination wins)")
 	conv := fs.Float64("grid-convergence", math.NaN(), "grid convergence for every hole, degrees (collar column grid_convergence wins)")
 	feet := fs.Bool("feet", false, "depths in feet: dogleg severity per 100 ft")
+	magModel := fs.String("model", "auto", "magnetic model of computed declinations: auto (WMM2025 for 2025-2030, IGRF-14 before), wmm or igrf")
 	var zones zoneFlags
 	fs.Var(&zones, "magnetic-zone", "HOLE:FROM-TO where magnetic surveys are unreliable (repeatable)")
 	o := def
@@ -167,6 +169,11 @@ func runQA(_ context.Context, env *Env, args []string) int {
 		fmt.Fprintf(env.Stderr, "corvane qa: --beta-apex: %v\n", err)
 		return ExitUsage
 	}
+	model, err := northref.ParseMagneticModel(*magModel)
+	if err != nil {
+		fmt.Fprintf(env.Stderr, "corvane qa: --model: %v\n", err)
+		return ExitUsage
+	}
 	o.PersistentType = strings.TrimSpace(*persistent)
 	o.Feet = *feet
 	if *errModel != "" {
@@ -187,7 +194,7 @@ func runQA(_ context.Context, env *Env, args []string) int {
 		return ExitUsage
 	}
 
-	in, rejected, err := readQAInput(*collars, *surveys, *structures, *runsF, *picks, *outRef, *decl, *conv, *feet)
+	in, rejected, err := readQAInput(*collars, *surveys, *structures, *runsF, *picks, *outRef, *decl, *conv, *feet, model)
 	if err != nil {
 		csvio.Report(env.Stderr, err)
 		return ExitUsage
@@ -223,7 +230,7 @@ func runQA(_ context.Context, env *Env, args []string) int {
 // readQAInput reads the files. Whole-file problems (missing files or
 // columns, bad collar, survey, run or pick rows) are errors; bad structure
 // rows become findings in the report and are counted in rejected.
-func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl, conv float64, feet bool) (in qa.Input, rejected int, err error) {
+func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl, conv float64, feet bool, model northref.MagneticModel) (in qa.Input, rejected int, err error) {
 	open := func(name string) (*os.File, error) {
 		f, err := os.Open(name)
 		if err != nil {
@@ -251,7 +258,7 @@ func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl,
 	// The holes as corvane convert builds them: one hole model corrects
 	// north (package holemodel). A hole it cannot build is a problem of
 	// that hole, reported once, as in convert.
-	opt := convert.Options{Output: convert.Grid, CollarsFile: collars, SurveysFile: surveys}
+	opt := convert.Options{Output: convert.Grid, CollarsFile: collars, SurveysFile: surveys, MagneticModel: model}
 	if outRef == "true" {
 		opt.Output = convert.True
 	}
@@ -270,7 +277,7 @@ func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl,
 	}
 	for _, h := range holes.List() {
 		c := qa.Collar{HoleID: h.ID, East: h.Collar.East, North: h.Collar.North, Elevation: h.Collar.Elevation,
-			Azimuth: h.Collar.Azimuth, Dip: h.Collar.Dip, Depth: h.Collar.Depth, Line: h.Line, Path: h.Path}
+			Azimuth: h.Collar.Azimuth, Dip: h.Collar.Dip, Depth: h.Collar.Depth, Line: h.Line, Path: h.Path, DeclinationSource: h.DeclinationSource()}
 		if h.Err != nil {
 			c.Problem, c.ProblemSource, c.ProblemLine = h.Hole.Err.Msg, "collars", h.Err.Loc.Line
 			if h.Err.Loc.File == surveys {

@@ -43,6 +43,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 	"time"
 
@@ -222,6 +223,20 @@ func (h *Hole) Declination(md float64) Correction {
 		}
 	}
 	return h.decl[lo].c
+}
+
+// DeclinationSource says where the declinations applied to the hole came
+// from: the distinct sources in depth order joined by "; " (a computed one
+// names its model and decimal year), "" when no magnetic azimuth was
+// involved.
+func (h *Hole) DeclinationSource() string {
+	var out []string
+	for i, x := range h.decl {
+		if i == 0 || !slices.Contains(out, string(x.c.Source)) {
+			out = append(out, string(x.c.Source))
+		}
+	}
+	return strings.Join(out, "; ")
 }
 
 // ConstantDeclination reports whether the declination is the same at every

@@ -176,7 +176,7 @@ func RunContext(ctx context.Context, in Input, opt Options) (Report, error) {
 		if err := ctx.Err(); err != nil {
 			return Report{}, err
 		}
-		h.report = &HoleReport{HoleID: h.c.HoleID, Depth: h.c.Depth, Azimuth: geom.NormAzimuth(h.c.Azimuth), Dip: h.c.Dip}
+		h.report = &HoleReport{HoleID: h.c.HoleID, DeclinationSource: h.c.DeclinationSource, Depth: h.c.Depth, Azimuth: geom.NormAzimuth(h.c.Azimuth), Dip: h.c.Dip}
 		add(checkHole(h, conv, o, loggers)...)
 	}
 	// The logger tests come before the fabric check: a logger who rounds

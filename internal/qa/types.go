@@ -30,6 +30,10 @@ type Collar struct {
 	// Path is the hole's path from the hole model (package holemodel), built
 	// from the same collar and stations; nil to build it here.
 	Path *desurvey.Path `json:"-"`
+	// DeclinationSource says where the declination applied to the hole's
+	// magnetic azimuths came from, as the hole model reports it (a computed
+	// one names its model and decimal year); "" when none was applied.
+	DeclinationSource string `json:"-"`
 }
 
 // Station is one survey station. Azimuth is in the same north reference as
@@ -310,18 +314,22 @@ type StationReport struct {
 
 // HoleReport is what QA found about one hole.
 type HoleReport struct {
-	HoleID       string          `json:"hole_id"`
-	Depth        float64         `json:"depth"`
-	Azimuth      float64         `json:"azimuth"`
-	Dip          float64         `json:"dip"`
-	Coverage     Coverage        `json:"coverage"`
-	Measurements int             `json:"measurements"`
-	OutsideRuns  int             `json:"outside_runs"`
-	InUnusable   int             `json:"in_unusable_runs"`
-	Fabric       *Pole           `json:"fabric,omitempty"` // hole-wide mean pole of the persistent type
-	FabricN      int             `json:"fabric_n,omitempty"`
-	Runs         []RunReport     `json:"runs"`
-	Stations     []StationReport `json:"stations"`
+	HoleID string `json:"hole_id"`
+	// DeclinationSource is the collar's: where the declination applied to
+	// the hole's magnetic azimuths came from, e.g.
+	// "computed (IGRF-14 at 2023.5808)"; absent when none was applied.
+	DeclinationSource string          `json:"declination_source,omitempty"`
+	Depth             float64         `json:"depth"`
+	Azimuth           float64         `json:"azimuth"`
+	Dip               float64         `json:"dip"`
+	Coverage          Coverage        `json:"coverage"`
+	Measurements      int             `json:"measurements"`
+	OutsideRuns       int             `json:"outside_runs"`
+	InUnusable        int             `json:"in_unusable_runs"`
+	Fabric            *Pole           `json:"fabric,omitempty"` // hole-wide mean pole of the persistent type
+	FabricN           int             `json:"fabric_n,omitempty"`
+	Runs              []RunReport     `json:"runs"`
+	Stations          []StationReport `json:"stations"`
 	// ScatterMAD is the hole's robust scatter of leave-one-out residuals
 	// (1.4826 x median absolute deviation, degrees).
 	ScatterMAD float64 `json:"survey_scatter"`

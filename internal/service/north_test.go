@@ -10,27 +10,47 @@ import (
 
 	"corvane/internal/domain"
 	"corvane/internal/northref"
+	"corvane/internal/qa"
 )
 
-// The project's magnetic model choice is stored and applies to declinations
-// computed when a survey set is stored: a 2023 survey gets the IGRF-14
-// value under auto, none under wmm (the WMM starts in 2025: the project's
-// default then applies).
+// The project's magnetic model choice is stored and chooses the model of
+// every declination the hole model computes on read: a 2023 magnetic survey
+// gets IGRF-14's value under auto (WMM2025 starts in 2025.0), named with
+// model and decimal year in the hole's corrections, the derived values and
+// the QA report; under wmm the hole has an error naming the WMM's years and
+// the other model. The expected value comes from package igrf through
+// northref (igrf's own tests check IGRF-14 against published values).
 func TestProjectMagneticModel(t *testing.T) {
 	s, ctx := newService(t)
-	p := must(s.CreateProject(ctx, domain.Project{Name: "older programme"}))
+	p, _ := programme(t, s, ctx, domain.Project{Name: "older programme"})
 	if p.MagneticModel != "auto" || p.LocalGrid != nil {
 		t.Fatalf("defaults: %q %s", p.MagneticModel, p.LocalGrid)
 	}
 	h := must(s.CreateHole(ctx, p.ID, domain.Hole{Name: "OP001", East: 391250, North: 6465480, Elevation: 312, Azimuth: 45, Dip: -60, FinalDepth: 200, CRS: "EPSG:28350"}))
 	ss := domain.SurveySet{AzimuthRef: "magnetic", SurveyDate: "2023-08-01", Stations: []domain.Station{{Depth: 0, Azimuth: 45, Dip: -60}}}
-	got := must(s.PutSurvey(ctx, p.ID, h.ID, 0, ss))
+	must(s.PutSurvey(ctx, p.ID, h.ID, 0, ss))
 	want, err := northref.CorrectionsModel(northref.ModelIGRF, "EPSG:28350", 391250, 6465480, 312, time.Date(2023, 8, 1, 0, 0, 0, 0, time.UTC), true, false)
 	if err != nil {
 		t.Fatal(err)
 	}
-	if got.Declination == nil || math.Abs(*got.Declination-want.Declination) > 1e-12 || got.DeclinationSource != "computed" {
-		t.Errorf("auto: declination %v (%s), IGRF-14 gives %v", got.Declination, got.DeclinationSource, want.Declination)
+	const src = "computed (IGRF-14 at 2023.5808)"
+	c := must(s.GetHoleView(ctx, p.ID, h.ID)).Corrections
+	if c.Declination == nil || math.Abs(*c.Declination-want.Declination) > 1e-12 || c.DeclinationSource == nil || *c.DeclinationSource != src {
+		t.Errorf("auto: declination %v (%v), IGRF-14 gives %v", c.Declination, c.DeclinationSource, want.Declination)
+	}
+	m := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 100, Alpha: 40, Beta: 200, TypeCode: "JN"}))
+	if m.Derived.DeclinationSource != src || *m.Derived.Declination != *c.Declination {
+		t.Errorf("derived: %v from %q", m.Derived.Declination, m.Derived.DeclinationSource)
+	}
+	rep := must(s.QA(ctx, p.ID, h.ID, qa.DefaultOptions()))
+	found := false
+	for _, hr := range rep.Holes {
+		if hr.HoleID == "OP001" {
+			found = hr.DeclinationSource == src
+		}
+	}
+	if !found {
+		t.Errorf("QA report holes %+v: OP001 should name %s", rep.Holes, src)
 	}
 
 	p.MagneticModel = "wmm"
@@ -38,9 +58,9 @@ func TestProjectMagneticModel(t *testing.T) {
 	if p2 := must(s.GetProject(ctx, p.ID)); p2.MagneticModel != "wmm" {
 		t.Fatalf("model read back %q", p2.MagneticModel)
 	}
-	got = must(s.PutSurvey(ctx, p.ID, h.ID, got.Version, ss))
-	if got.Declination != nil {
-		t.Errorf("wmm for a 2023 survey computed %v", *got.Declination)
+	c = must(s.GetHoleView(ctx, p.ID, h.ID)).Corrections
+	if c.Declination != nil || !strings.Contains(c.Error, "outside the years of magnetic model WMM-2025 (2025.0 to 2030.0); IGRF-14 covers 1900.0 to 2030.0") {
+		t.Errorf("wmm for a 2023 survey: %v, error %q", c.Declination, c.Error)
 	}
 	p.MagneticModel = "emm"
 	_, err = s.UpdateProject(ctx, p.ID, p.Version, p)

@@ -118,7 +118,7 @@ func (s *Service) qaInput(ctx context.Context, p domain.Project, holes []domain.
 		// cannot build is reported once, as in corvane qa.
 		m := newHoleModel(conv, h, ss, runs)
 		c := m.Collar
-		qc := qa.Collar{HoleID: h.Name, East: c.East, North: c.North, Elevation: c.Elevation, Azimuth: c.Azimuth, Dip: c.Dip, Depth: c.Depth, Path: m.Path}
+		qc := qa.Collar{HoleID: h.Name, East: c.East, North: c.North, Elevation: c.Elevation, Azimuth: c.Azimuth, Dip: c.Dip, Depth: c.Depth, Path: m.Path, DeclinationSource: m.DeclinationSource()}
 		if m.Err != nil {
 			qc.Problem, qc.ProblemSource = m.Err.Msg, "collars"
 			if m.Err.Station >= 0 {

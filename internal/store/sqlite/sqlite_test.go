@@ -66,14 +66,14 @@ func TestMigrationBackfill(t *testing.T) {
 		}
 		return s
 	}, func(t *testing.T) {
-		// Roll back one migration at a time down to version 1 (undoing
-		// 000002 and every later one).
+		// Roll back one migration at a time to version 2 (before 000003,
+		// undoing 000004 on the way), then up again.
 		for {
 			v, _, err := sqlite.Version(path)
 			if err != nil {
 				t.Fatal(err)
 			}
-			if v <= 1 {
+			if v <= 2 {
 				break
 			}
 			if err := sqlite.Migrate(path, -1); err != nil {
