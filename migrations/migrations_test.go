@@ -38,15 +38,3 @@ func TestSameVersionsOnBothStores(t *testing.T) {
 		}
 	}
 }
-
-// The latest schema version is 000004 (north reference: the project's
-// magnetic model choice and local grid).
-func TestLatestVersion(t *testing.T) {
-	ents, err := fs.ReadDir(SQLite, "sqlite")
-	if err != nil || len(ents) == 0 {
-		t.Fatal(err)
-	}
-	if last := ents[len(ents)-1].Name(); last != "000004_north_reference.up.sql" {
-		t.Errorf("latest migration %q, want 000004_north_reference.up.sql", last)
-	}
-}
