@@ -62,6 +62,7 @@ type holeData struct {
 	ms      []meas
 	picks   []Pick
 	zones   []MagneticZone
+	sets    []SurveySet
 	path    *desurvey.Path
 	report  *HoleReport
 	pending []Finding
@@ -150,6 +151,13 @@ func RunContext(ctx context.Context, in Input, opt Options) (Report, error) {
 			h.zones = append(h.zones, z)
 		} else {
 			noHole(z.HoleID, "magnetic zones")
+		}
+	}
+	for _, ss := range in.SurveySets {
+		if h := holes[ss.HoleID]; h != nil {
+			h.sets = append(h.sets, ss)
+		} else {
+			noHole(ss.HoleID, "survey sets")
 		}
 	}
 	ids := make([]string, 0, len(unknown))

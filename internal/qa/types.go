@@ -101,6 +101,9 @@ type Input struct {
 	Measurements  []Measurement    `json:"measurements"`
 	Picks         []Pick           `json:"picks,omitempty"`
 	MagneticZones []MagneticZone   `json:"magnetic_zones,omitempty"`
+	// SurveySets are a hole's several surveys by kind; a magnetic and a gyro
+	// set of one hole are compared (see [CompareSets]).
+	SurveySets []SurveySet `json:"survey_sets,omitempty"`
 	// Problems are findings made while reading the inputs (for example rows
 	// that could not be parsed); they are carried into the report as given.
 	Problems []Finding `json:"problems,omitempty"`
@@ -131,6 +134,8 @@ const (
 	CheckSurveyShort        = "survey-short-of-final-depth"
 	CheckCollarDisagree     = "survey-collar-disagreement"
 	CheckMagneticZone       = "survey-magnetic-in-zone"
+	CheckInterference       = "survey-magnetic-interference"
+	CheckSetOffset          = "survey-set-offset"
 	CheckSurveyInvalid      = "survey-invalid"
 	CheckHighAlpha          = "alpha-85-or-more"
 	CheckNearVertical       = "near-vertical-hole"
