@@ -76,7 +76,11 @@ type Project struct {
 	// JSON object of package localgrid's Spec (name, grid_crs, and rotation,
 	// scale, origin or control_points). The service checks it.
 	LocalGrid json.RawMessage `json:"local_grid"`
-	Version   int64           `json:"version"`
+	// SurveyPriority orders the survey set kinds for holes with several
+	// sets and none preferred, e.g. "gyro,magnetic,planned": the first kind a
+	// hole has is used. "" leaves such holes on their survey set.
+	SurveyPriority string          `json:"survey_priority"`
+	Version        int64           `json:"version"`
 	CreatedAt time.Time       `json:"created_at"`
 	UpdatedAt time.Time       `json:"updated_at"`
 }
@@ -160,6 +164,53 @@ type SurveySet struct {
 	Stations          []Station `json:"stations"`
 	Version           int64     `json:"version"`
 	UpdatedAt         time.Time `json:"updated_at"`
+}
+
+// Kinds of survey set: a hole may have one set of each kind beside its
+// survey set (see [KindSet]).
+const (
+	SurveyGyro     = "gyro"
+	SurveyMagnetic = "magnetic"
+	SurveyPlanned  = "planned"
+	SurveyOther    = "other"
+)
+
+// SurveyKinds lists the kinds in the order files and messages show them.
+var SurveyKinds = []string{SurveyGyro, SurveyMagnetic, SurveyPlanned, SurveyOther}
+
+// KindSet is one of a hole's several survey sets, at most one of each kind
+// (a gyro survey after a magnetic single-shot one, the planned path). Each
+// is replaced as a whole. At most one set of a hole is Preferred; without
+// one the project's SurveyPriority chooses, and without either the hole's
+// survey set ([SurveySet]) is used. The set in use is the one derived
+// values, paths and corrections are built from, and they name it.
+type KindSet struct {
+	HoleID int64 `json:"hole_id"`
+	// Kind is gyro, magnetic, planned or other.
+	Kind string `json:"kind"`
+	// Instrument names the tool or survey company's instrument, free text.
+	Instrument string `json:"instrument"`
+	// AzimuthRef is the north the station azimuths were measured from:
+	// "true", "grid" or "magnetic".
+	AzimuthRef string `json:"azimuth_ref"`
+	SurveyDate string `json:"survey_date"` // YYYY-MM-DD or empty
+	// Declination is a declination given with the set for its magnetic
+	// azimuths; nil means none (the hole's, the project's or a computed one).
+	Declination *float64  `json:"declination"`
+	Preferred   bool      `json:"preferred"`
+	Stations    []Station `json:"stations"`
+	Version     int64     `json:"version"`
+	UpdatedAt   time.Time `json:"updated_at"`
+}
+
+// Survey returns the set as a [SurveySet], the shape the hole model reads.
+func (k KindSet) Survey() SurveySet {
+	ss := SurveySet{HoleID: k.HoleID, AzimuthRef: k.AzimuthRef, SurveyDate: k.SurveyDate, Declination: k.Declination,
+		Stations: k.Stations, Version: k.Version, UpdatedAt: k.UpdatedAt}
+	if k.Declination != nil {
+		ss.DeclinationSource = SourceGiven
+	}
+	return ss
 }
 
 // Run confidence ratings, best first.

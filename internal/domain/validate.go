@@ -139,6 +139,11 @@ func (p *Project) Normalize() error {
 	def(&p.LengthUnit, UnitMetre)
 	def(&p.OutputAzimuthRef, AzimuthGrid)
 	def(&p.MagneticModel, MagneticAuto)
+	pr, e := ParseSurveyPriority(p.SurveyPriority)
+	if e != nil {
+		return e
+	}
+	p.SurveyPriority = pr
 	if string(p.LocalGrid) == "null" {
 		p.LocalGrid = nil
 	}
@@ -285,6 +290,44 @@ func (s *SurveySet) Normalize() error {
 		}
 	}
 	return nil
+}
+
+// Normalize validates k: a known kind, the instrument's text, and the
+// rules of a [SurveySet] (reference, date, declination, stations).
+func (k *KindSet) Normalize() error {
+	k.Kind = strings.ToLower(strings.TrimSpace(k.Kind))
+	if e := checkOneOf("kind", k.Kind, SurveyKinds...); e != nil {
+		return e
+	}
+	if e := CheckText("instrument", k.Instrument, MaxNameLen, false); e != nil {
+		return e
+	}
+	ss := k.Survey()
+	if e := ss.Normalize(); e != nil {
+		return e
+	}
+	k.AzimuthRef = ss.AzimuthRef
+	return nil
+}
+
+// ParseSurveyPriority reads a survey priority: kinds separated by commas,
+// each at most once, in any case; "" is none. It returns the canonical text.
+func ParseSurveyPriority(s string) (string, *Error) {
+	if strings.TrimSpace(s) == "" {
+		return "", nil
+	}
+	var out []string
+	for _, w := range strings.Split(s, ",") {
+		k := strings.ToLower(strings.TrimSpace(w))
+		if !slices.Contains(SurveyKinds, k) {
+			return "", FieldErr("survey_priority", "survey_priority: %q is not a survey set kind (want kinds among %s, separated by commas)", w, strings.Join(SurveyKinds, ", "))
+		}
+		if slices.Contains(out, k) {
+			return "", FieldErr("survey_priority", "survey_priority: %s is named twice", k)
+		}
+		out = append(out, k)
+	}
+	return strings.Join(out, ","), nil
 }
 
 // Normalize validates r: 0 <= From < To, a known confidence, mismatch in [0, 180].

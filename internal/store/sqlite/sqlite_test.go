@@ -67,7 +67,7 @@ func TestMigrationBackfill(t *testing.T) {
 		return s
 	}, func(t *testing.T) {
 		// Roll back one migration at a time to version 2 (before 000003,
-		// undoing 000004 on the way), then up again.
+		// undoing 000010 and 000004 on the way), then up again.
 		for {
 			v, _, err := sqlite.Version(path)
 			if err != nil {
