@@ -79,10 +79,10 @@ type Project struct {
 	// SurveyPriority orders the survey set kinds for holes with several
 	// sets and none preferred, e.g. "gyro,magnetic,planned": the first kind a
 	// hole has is used. "" leaves such holes on their survey set.
-	SurveyPriority string          `json:"survey_priority"`
-	Version        int64           `json:"version"`
-	CreatedAt time.Time       `json:"created_at"`
-	UpdatedAt time.Time       `json:"updated_at"`
+	SurveyPriority string    `json:"survey_priority"`
+	Version        int64     `json:"version"`
+	CreatedAt      time.Time `json:"created_at"`
+	UpdatedAt      time.Time `json:"updated_at"`
 }
 
 // TypeCode is one word of a project's structure vocabulary, e.g. "BD" for
