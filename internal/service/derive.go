@@ -57,6 +57,12 @@ type Derived struct {
 	// collar on the survey date).
 	Declination       *float64 `json:"declination"`
 	DeclinationSource string   `json:"declination_source"`
+	// SurveySet names the survey the hole's path was built from: "survey"
+	// (the hole's survey set), the kind of a set by kind ("gyro",
+	// "magnetic", "planned", "other": the preferred one, else the first of
+	// the project's survey priority the hole has), absent when the hole has
+	// no survey.
+	SurveySet string `json:"survey_set,omitempty"`
 	// RunConfidence is the confidence of the orientation run covering the
 	// depth, "" when no run covers it.
 	RunConfidence string `json:"run_confidence"`
@@ -154,6 +160,9 @@ type holeModel struct {
 	runs   []domain.Run
 	hole   domain.Hole
 	survey *domain.SurveySet
+	// set names the survey the model was built from: "survey" (the hole's
+	// survey set), a kind of set ("gyro"...), "" when none.
+	set string
 }
 
 // newHoleModel builds the model of the stored hole h with survey set ss (nil
@@ -189,7 +198,7 @@ func (m *holeModel) derive(depth, alpha, beta float64, gamma, apparent *float64)
 }
 
 func (m *holeModel) derived(depth float64, r *holemodel.Result, err error) Derived {
-	d := Derived{AzimuthRef: m.Output, Warnings: []string{}}
+	d := Derived{AzimuthRef: m.Output, SurveySet: m.set, Warnings: []string{}}
 	conv, decl := m.Convergence, m.Declination(depth)
 	if err == nil {
 		conv, decl = r.Convergence, r.Declination
@@ -239,13 +248,14 @@ func (m *holeModel) runAt(depth float64, warn []string) (string, []string) {
 // deriver builds hole models on demand within one request, so a list of
 // measurements desurveys each hole once, from the store state of that request.
 type deriver struct {
-	st     domain.Store
-	conv   Conventions
-	models map[int64]*holeModel
+	st       domain.Store
+	conv     Conventions
+	priority string // the project's survey priority
+	models   map[int64]*holeModel
 }
 
 func newDeriver(st domain.Store, p domain.Project) *deriver {
-	return &deriver{st: st, conv: ConventionsOf(p), models: map[int64]*holeModel{}}
+	return &deriver{st: st, conv: ConventionsOf(p), priority: p.SurveyPriority, models: map[int64]*holeModel{}}
 }
 
 func (d *deriver) model(ctx context.Context, holeID int64) (*holeModel, error) {
@@ -256,7 +266,7 @@ func (d *deriver) model(ctx context.Context, holeID int64) (*holeModel, error) {
 	if err != nil {
 		return nil, err
 	}
-	ss, err := surveyOf(ctx, d.st, holeID)
+	ss, set, _, err := usedSurvey(ctx, d.st, holeID, d.priority)
 	if err != nil {
 		return nil, err
 	}
@@ -265,21 +275,9 @@ func (d *deriver) model(ctx context.Context, holeID int64) (*holeModel, error) {
 		return nil, err
 	}
 	m := newHoleModel(d.conv, h, ss, runs)
+	m.set = set
 	d.models[holeID] = m
 	return m, nil
-}
-
-// surveyOf returns the hole's survey set from st, nil when it has none.
-func surveyOf(ctx context.Context, st domain.Store, holeID int64) (*domain.SurveySet, error) {
-	ss, err := st.GetSurvey(ctx, holeID)
-	switch {
-	case err == nil:
-		return &ss, nil
-	case domain.IsKind(err, domain.NotFound):
-		return nil, nil
-	default:
-		return nil, err
-	}
 }
 
 // view returns the measurement with its hole name and derived values.
