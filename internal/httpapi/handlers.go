@@ -346,6 +346,68 @@ func (s *Server) putSurvey(c *gin.Context) {
 	c.JSON(http.StatusOK, ss)
 }
 
+// listKindSets lists the hole's survey sets by kind and the set in use.
+func (s *Server) listKindSets(c *gin.Context) {
+	pid, hid, err := ids(c, "hole")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	ks, err := s.opt.Service.ListKindSets(c.Request.Context(), pid, hid)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	c.JSON(http.StatusOK, ks)
+}
+
+// putKindSet replaces the hole's survey set of a kind, as putSurvey does
+// (If-Match, or If-None-Match: * to create).
+func (s *Server) putKindSet(c *gin.Context) {
+	pid, hid, err := ids(c, "hole")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	var v int64
+	if strings.TrimSpace(c.GetHeader("If-None-Match")) == "*" && c.GetHeader("If-Match") == "" {
+		v = 0
+	} else if v, err = ifMatch(c); err != nil {
+		fail(c, err)
+		return
+	}
+	var in domain.KindSet
+	if err := s.decodeJSON(c, &in); err != nil {
+		fail(c, err)
+		return
+	}
+	k, err := s.opt.Service.PutKindSet(c.Request.Context(), pid, hid, c.Param("kind"), v, in)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	setETag(c, k.Version)
+	c.JSON(http.StatusOK, k)
+}
+
+func (s *Server) deleteKindSet(c *gin.Context) {
+	pid, hid, err := ids(c, "hole")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	v, err := ifMatch(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	if err := s.opt.Service.DeleteKindSet(c.Request.Context(), pid, hid, c.Param("kind"), v); err != nil {
+		fail(c, err)
+		return
+	}
+	c.Status(http.StatusNoContent)
+}
+
 // ---- runs
 
 func (s *Server) listRuns(c *gin.Context) {
