@@ -13,6 +13,7 @@ import (
 	"corvane/internal/coreangle"
 	"corvane/internal/csvio"
 	"corvane/internal/desurvey"
+	"corvane/internal/domain"
 	"corvane/internal/localgrid"
 	"corvane/internal/northref"
 	"corvane/internal/service"
@@ -111,9 +112,9 @@ func (f floatFlag) Set(s string) error {
 // north their azimuths refer to. convert and transfer share them, so both
 // read the same holes the same way.
 type pathFlags struct {
-	opt                      *convert.Options
-	outRef, method, magModel *string
-	feet, noCompute          *bool
+	opt                                *convert.Options
+	outRef, method, magModel, priority *string
+	feet, noCompute                    *bool
 }
 
 func addPathFlags(fs *flag.FlagSet, opt *convert.Options) *pathFlags {
@@ -123,6 +124,7 @@ func addPathFlags(fs *flag.FlagSet, opt *convert.Options) *pathFlags {
 	p.feet = fs.Bool("feet", false, "lengths are in feet (collar elevations are converted to metres for the magnetic model)")
 	p.noCompute = fs.Bool("no-computed-corrections", false, "never compute declination or grid convergence; holes that need one get an error")
 	p.magModel = fs.String("model", "auto", "magnetic model of computed declinations: auto (WMM2025 for 2025-2030, IGRF-14 before), wmm or igrf")
+	p.priority = fs.String("survey-priority", "", "survey set kinds by priority for holes with sets by kind (surveys column kind), e.g. gyro,magnetic,planned")
 	fs.Var(floatFlag{&opt.Declination}, "declination", "magnetic declination in degrees for holes whose collar gives none (true = magnetic + D)")
 	fs.Var(floatFlag{&opt.GridConvergence}, "grid-convergence", "grid convergence in degrees for holes whose collar gives none (grid = true - C)")
 	return p
@@ -144,6 +146,11 @@ func (p *pathFlags) apply() error {
 	if p.opt.MagneticModel, err = northref.ParseMagneticModel(*p.magModel); err != nil {
 		return fmt.Errorf("--model: %v", err)
 	}
+	pr, perr := domain.ParseSurveyPriority(*p.priority)
+	if perr != nil {
+		return fmt.Errorf("--survey-priority: %v", perr)
+	}
+	p.opt.SurveyPriority = pr
 	return nil
 }
 

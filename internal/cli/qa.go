@@ -16,6 +16,7 @@ import (
 	"corvane/internal/coreangle"
 	"corvane/internal/csvio"
 	"corvane/internal/desurvey"
+	"corvane/internal/domain"
 	"corvane/internal/northref"
 	"corvane/internal/qa"
 	"corvane/internal/qa/qapage"
@@ -117,6 +118,7 @@ func runQA(_ context.Context, env *Env, args []string) int {
 	conv := fs.Float64("grid-convergence", math.NaN(), "grid convergence for every hole, degrees (collar column grid_convergence wins)")
 	feet := fs.Bool("feet", false, "depths in feet: dogleg severity per 100 ft")
 	magModel := fs.String("model", "auto", "magnetic model of computed declinations: auto (WMM2025 for 2025-2030, IGRF-14 before), wmm or igrf")
+	priority := fs.String("survey-priority", "", "survey set kinds by priority for holes with sets by kind (surveys column kind), e.g. gyro,magnetic,planned")
 	var zones zoneFlags
 	fs.Var(&zones, "magnetic-zone", "HOLE:FROM-TO where magnetic surveys are unreliable (repeatable)")
 	o := def
@@ -174,6 +176,11 @@ func runQA(_ context.Context, env *Env, args []string) int {
 		fmt.Fprintf(env.Stderr, "corvane qa: --model: %v\n", err)
 		return ExitUsage
 	}
+	pr, perr := domain.ParseSurveyPriority(*priority)
+	if perr != nil {
+		fmt.Fprintf(env.Stderr, "corvane qa: --survey-priority: %v\n", perr)
+		return ExitUsage
+	}
 	o.PersistentType = strings.TrimSpace(*persistent)
 	o.Feet = *feet
 	if *errModel != "" {
@@ -194,7 +201,7 @@ func runQA(_ context.Context, env *Env, args []string) int {
 		return ExitUsage
 	}
 
-	in, rejected, err := readQAInput(*collars, *surveys, *structures, *runsF, *picks, *outRef, *decl, *conv, *feet, model)
+	in, rejected, err := readQAInput(*collars, *surveys, *structures, *runsF, *picks, qaHoles{*outRef, *decl, *conv, *feet, model, pr})
 	if err != nil {
 		csvio.Report(env.Stderr, err)
 		return ExitUsage
@@ -230,7 +237,18 @@ func runQA(_ context.Context, env *Env, args []string) int {
 // readQAInput reads the files. Whole-file problems (missing files or
 // columns, bad collar, survey, run or pick rows) are errors; bad structure
 // rows become findings in the report and are counted in rejected.
-func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl, conv float64, feet bool, model northref.MagneticModel) (in qa.Input, rejected int, err error) {
+// qaHoles are the options that build the holes, as in corvane convert: the
+// output reference, the values for all holes (NaN when not given), feet, the
+// magnetic model and the survey priority.
+type qaHoles struct {
+	outRef     string
+	decl, conv float64
+	feet       bool
+	model      northref.MagneticModel
+	priority   string
+}
+
+func readQAInput(collars, surveys, structures, runs, picks string, o qaHoles) (in qa.Input, rejected int, err error) {
 	open := func(name string) (*os.File, error) {
 		f, err := os.Open(name)
 		if err != nil {
@@ -258,17 +276,17 @@ func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl,
 	// The holes as corvane convert builds them: one hole model corrects
 	// north (package holemodel). A hole it cannot build is a problem of
 	// that hole, reported once, as in convert.
-	opt := convert.Options{Output: convert.Grid, CollarsFile: collars, SurveysFile: surveys, MagneticModel: model}
-	if outRef == "true" {
+	opt := convert.Options{Output: convert.Grid, CollarsFile: collars, SurveysFile: surveys, MagneticModel: o.model, SurveyPriority: o.priority}
+	if o.outRef == "true" {
 		opt.Output = convert.True
 	}
-	if !math.IsNaN(decl) {
-		opt.Declination = convert.Given{Value: decl, Set: true}
+	if !math.IsNaN(o.decl) {
+		opt.Declination = convert.Given{Value: o.decl, Set: true}
 	}
-	if !math.IsNaN(conv) {
-		opt.GridConvergence = convert.Given{Value: conv, Set: true}
+	if !math.IsNaN(o.conv) {
+		opt.GridConvergence = convert.Given{Value: o.conv, Set: true}
 	}
-	if feet {
+	if o.feet {
 		opt.Unit = desurvey.Feet
 	}
 	holes, err := convert.Build(crows, srows, opt)
@@ -290,6 +308,20 @@ func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl,
 		for i, st := range h.Stations {
 			in.Surveys = append(in.Surveys, qa.Station{HoleID: h.ID, Depth: st.Depth, Azimuth: st.Azimuth, Dip: st.Dip,
 				Magnetic: h.Magnetic[i], Line: h.In.Stations[i].Line})
+		}
+		// The sets by kind, each in the output reference through the hole
+		// model, for the comparison of magnetic and gyro sets; a set the
+		// model cannot build is left out of it.
+		for _, k := range h.Sets {
+			if k.Hole.Err != nil {
+				continue
+			}
+			qs := qa.SurveySet{HoleID: h.ID, Kind: k.Kind}
+			for i, st := range k.Hole.Stations {
+				qs.Stations = append(qs.Stations, qa.Station{HoleID: h.ID, Depth: st.Depth, Azimuth: st.Azimuth, Dip: st.Dip,
+					Magnetic: k.Hole.Magnetic[i], Line: k.Hole.In.Stations[i].Line})
+			}
+			in.SurveySets = append(in.SurveySets, qs)
 		}
 	}
 

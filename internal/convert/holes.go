@@ -91,6 +91,9 @@ type Options struct {
 	// LocalGrid, when set, carries holes whose collar crs is "local" from
 	// that local grid into its projected grid (see [LocalGrid.Apply]).
 	LocalGrid *LocalGrid
+	// SurveyPriority orders survey set kinds for holes with sets by kind
+	// (canonical, see domain.ParseSurveyPriority); "" for none.
+	SurveyPriority string
 	// NoCompute turns off computing missing corrections with package
 	// northref; a hole that needs one then has an error.
 	NoCompute bool
@@ -116,6 +119,19 @@ type Hole struct {
 	// tail is the formatted reference and correction columns when they are
 	// the same on every row of the hole, nil otherwise.
 	tail []byte
+	// Survey names the survey the hole is built from (domain.UsedSurvey):
+	// "survey" (rows without a kind), a kind, "" when the hole has none.
+	Survey string
+	// Sets are the hole's survey sets by kind (rows with a kind column), each
+	// built by the hole model on its own, in kind order.
+	Sets []KindSet
+}
+
+// KindSet is one of a hole's survey sets by kind, built by the hole model.
+type KindSet struct {
+	Kind       string
+	Instrument string
+	Hole       *holemodel.Hole
 }
 
 // Holes is a loaded programme: the desurveyed holes and the options.
@@ -186,10 +202,33 @@ func Build(crows []csvio.CollarRow, srows []csvio.SurveyRow, opt Options) (*Hole
 	}
 	p := opt.Project()
 	for _, c := range crows {
-		in := HoleInput(c, byHole[c.HoleID])
-		opt.LocalGrid.Apply(&in, p.Output)
-		m := holemodel.New(in, p)
-		h := &Hole{Hole: m, ID: c.HoleID, Line: c.Line}
+		// The hole's rows by set: its survey set (no kind) and its sets by
+		// kind; the survey in use by the one rule of domain.UsedSurvey.
+		bySet := map[string][]csvio.SurveyRow{}
+		for _, r := range byHole[c.HoleID] {
+			bySet[r.Kind] = append(bySet[r.Kind], r)
+		}
+		var kinds []string
+		for _, k := range domain.SurveyKinds {
+			if len(bySet[k]) > 0 {
+				kinds = append(kinds, k)
+			}
+		}
+		used := domain.UsedSurvey(kinds, "", opt.SurveyPriority, len(bySet[""]) > 0)
+		key := used
+		if used == domain.SurveyOfHole {
+			key = ""
+		}
+		input := func(rows []csvio.SurveyRow) holemodel.Input {
+			in := HoleInput(c, rows)
+			opt.LocalGrid.Apply(&in, p.Output)
+			return in
+		}
+		m := holemodel.New(input(bySet[key]), p)
+		h := &Hole{Hole: m, ID: c.HoleID, Line: c.Line, Survey: used}
+		for _, k := range kinds {
+			h.Sets = append(h.Sets, KindSet{Kind: k, Instrument: bySet[k][0].Instrument, Hole: holemodel.New(input(bySet[k]), p)})
+		}
 		if m.Err != nil {
 			h.Err = Locate(m.Err, c.Line, cf, sf)
 		} else {

@@ -4,11 +4,13 @@ import (
 	"io"
 	"math"
 	"math/bits"
+	"slices"
 	"strconv"
 	"strings"
 	"time"
 
 	"corvane/internal/desurvey"
+	"corvane/internal/domain"
 )
 
 // CollarRow is one row of a collars file.
@@ -93,15 +95,20 @@ type SurveyRow struct {
 	// Date is the survey date (survey_date column, YYYY-MM-DD); zero when
 	// not given.
 	Date time.Time
+	// Kind is the kind of survey set the row belongs to (gyro, magnetic,
+	// planned, other; kind column), "" for the hole's survey set;
+	// Instrument the set's instrument (instrument column).
+	Kind, Instrument string
 }
 
 // SurveyColumns are the required columns of a surveys file.
 var SurveyColumns = []string{ColHoleID, ColDepth, ColAzimuth, ColDip}
 
 // ReadSurveys reads a whole surveys file: hole_id, depth (>= 0), azimuth
-// (0..360) and dip (-90..90); optional azimuth_reference and survey_date.
-// The stations of each hole must come in strictly increasing depth order (the
-// holes may be interleaved). Errors as for [ReadCollars].
+// (0..360) and dip (-90..90); optional azimuth_reference, survey_date, kind
+// and instrument. The stations of each hole's set (its survey set, or its set
+// of a kind) must come in strictly increasing depth order (the holes and sets
+// may be interleaved). Errors as for [ReadCollars].
 func ReadSurveys(r io.Reader, file string) ([]SurveyRow, error) {
 	type last struct {
 		depth float64
@@ -110,16 +117,20 @@ func ReadSurveys(r io.Reader, file string) ([]SurveyRow, error) {
 	prev := map[string]last{}
 	return readRows(r, file, "survey", SurveyColumns, func(rw *row) SurveyRow {
 		line := rw.line
-		s := SurveyRow{Line: line, HoleID: rw.cell(ColHoleID)}
+		s := SurveyRow{Line: line, HoleID: rw.cell(ColHoleID), Kind: strings.ToLower(rw.cell(ColKind)), Instrument: rw.cell(ColInstrument)}
 		if s.HoleID == "" {
 			rw.fail(ColHoleID, "hole_id is empty")
 		}
+		if s.Kind != "" && !slices.Contains(domain.SurveyKinds, s.Kind) {
+			rw.fail(ColKind, "kind %q is not one of %s (or empty for the hole's survey set)", rw.cell(ColKind), strings.Join(domain.SurveyKinds, ", "))
+		}
+		key := s.HoleID + "\x00" + s.Kind
 		var ok bool
 		s.Station.Depth, ok = rw.num(ColDepth, true)
 		if ok && s.Station.Depth < 0 {
 			rw.fail(ColDepth, "depth %g is negative", s.Station.Depth)
 		}
-		if p, seen := prev[s.HoleID]; ok && seen && rw.bad == nil {
+		if p, seen := prev[key]; ok && seen && rw.bad == nil {
 			if s.Station.Depth == p.depth {
 				rw.fail(ColDepth, "depth %g of hole %q repeats line %d", s.Station.Depth, s.HoleID, p.line)
 			} else if s.Station.Depth < p.depth {
@@ -137,7 +148,7 @@ func ReadSurveys(r io.Reader, file string) ([]SurveyRow, error) {
 		}
 		s.Date = rw.date(ColSurveyDate)
 		if rw.bad == nil {
-			prev[s.HoleID] = last{s.Station.Depth, line}
+			prev[key] = last{s.Station.Depth, line}
 		}
 		return s
 	})

@@ -13,6 +13,8 @@ package domain
 
 import (
 	"encoding/json"
+	"slices"
+	"strings"
 	"time"
 )
 
@@ -201,6 +203,39 @@ type KindSet struct {
 	Stations    []Station `json:"stations"`
 	Version     int64     `json:"version"`
 	UpdatedAt   time.Time `json:"updated_at"`
+}
+
+// SurveyOfHole names the hole's survey set where a survey in use is named
+// ("survey"); a set by kind is named by its kind.
+const SurveyOfHole = "survey"
+
+// UsedSurvey is the one rule that picks the survey a hole's derived values,
+// path and corrections are built from, at every door: the kind of its
+// preferred set (preferred, "" when none); else the first kind of the
+// project's priority (canonical, see [ParseSurveyPriority]) the hole has;
+// else its survey set ("survey") when it has one; else its first kind in the
+// order gyro, magnetic, planned, other. kinds are the kinds of the hole's
+// sets. "" when the hole has no survey at all.
+func UsedSurvey(kinds []string, preferred, priority string, hasSurvey bool) string {
+	if preferred != "" {
+		return preferred
+	}
+	if priority != "" {
+		for _, k := range strings.Split(priority, ",") {
+			if slices.Contains(kinds, k) {
+				return k
+			}
+		}
+	}
+	if hasSurvey {
+		return SurveyOfHole
+	}
+	for _, k := range SurveyKinds {
+		if slices.Contains(kinds, k) {
+			return k
+		}
+	}
+	return ""
 }
 
 // Survey returns the set as a [SurveySet], the shape the hole model reads.

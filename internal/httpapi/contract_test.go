@@ -293,6 +293,7 @@ func TestContractTour(t *testing.T) {
 	f.must(204, f.site, "DELETE", hb+"/surveys/planned", nil, nil, "If-Match", `"1"`)
 	f.must(200, f.site, "GET", hb+"/path?step=10", nil, nil)
 	f.must(200, f.site, "GET", base+"/holes.csv", nil, nil)
+	f.must(200, f.site, "GET", base+"/surveys.csv", nil, nil)
 	f.must(200, f.site, "POST", hb+"/preview", map[string]any{"measurements": []map[string]any{{"depth": 2, "alpha": 30, "beta": 200, "gamma": 40}}}, nil)
 	var run domain.Run
 	f.must(201, f.site, "POST", hb+"/runs", map[string]any{"from": 0, "to": 3, "confidence": "good"}, &run)

@@ -676,6 +676,19 @@ func (s *Server) exportCollars(c *gin.Context) {
 	})
 }
 
+// exportSurveys streams the project's surveys, every set, as a surveys file.
+func (s *Server) exportSurveys(c *gin.Context) {
+	pid, err := pathID(c, "project")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	c.Header("Content-Disposition", `attachment; filename="surveys-`+itoa(pid)+`.csv"`)
+	stream(c, "text/csv; charset=utf-8", func(w *trackingWriter) error {
+		return s.opt.Service.ExportSurveys(c.Request.Context(), pid, w)
+	})
+}
+
 // ---- statistics and nets
 
 // boolParam reads an optional true/false query parameter.

@@ -71,6 +71,7 @@ func (s *Server) routes() {
 	p.DELETE("/measurements/:measurement", s.deleteMeasurement)
 	p.GET("/measurements.csv", s.exportMeasurements)
 	p.GET("/holes.csv", s.exportCollars)
+	p.GET("/surveys.csv", s.exportSurveys)
 
 	p.GET("/qa", need(domain.RoleRead), s.heavy, s.projectQA)
 	p.POST("/qa", need(domain.RoleRead), s.heavy, s.projectQAWith)

@@ -186,6 +186,7 @@ func RunContext(ctx context.Context, in Input, opt Options) (Report, error) {
 		}
 		h.report = &HoleReport{HoleID: h.c.HoleID, DeclinationSource: h.c.DeclinationSource, Depth: h.c.Depth, Azimuth: geom.NormAzimuth(h.c.Azimuth), Dip: h.c.Dip}
 		add(checkHole(h, conv, o, loggers)...)
+		add(setFindings(h.c.HoleID, h.sets, o)...)
 	}
 	// The logger tests come before the fabric check: a logger who rounds
 	// has a wider reading error there.

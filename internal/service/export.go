@@ -153,3 +153,50 @@ func (s *Service) exportCollars(ctx context.Context, st domain.Store, projectID 
 		pg.After = hs[len(hs)-1].ID
 	}
 }
+
+// ExportSurveys writes the project's surveys as a surveys file (read) that
+// the surveys import reads back: each hole's survey set (rows without a
+// kind), then its sets by kind (kind and instrument columns), in hole order,
+// from one snapshot.
+func (s *Service) ExportSurveys(ctx context.Context, projectID int64, w io.Writer) error {
+	return s.store.Snapshot(ctx, func(ctx context.Context, st domain.Store) error {
+		if _, _, err := s.project(ctx, st, projectID, domain.RoleRead); err != nil {
+			return err
+		}
+		var rows []csvio.SurveyRow
+		add := func(name string, ss domain.SurveySet, kind, instrument string) {
+			date, _ := time.Parse(time.DateOnly, ss.SurveyDate)
+			for _, x := range ss.Stations {
+				rows = append(rows, csvio.SurveyRow{HoleID: name, Station: desurvey.Station{Depth: x.Depth, Azimuth: x.Azimuth, Dip: x.Dip},
+					AzimuthRef: ss.AzimuthRef, Date: date, Kind: kind, Instrument: instrument})
+			}
+		}
+		pg := domain.Page{Limit: domain.MaxLimit}
+		for {
+			hs, err := st.ListHoles(ctx, projectID, pg)
+			if err != nil {
+				return err
+			}
+			for _, h := range hs {
+				ss, err := st.GetSurvey(ctx, h.ID)
+				switch {
+				case err == nil:
+					add(h.Name, ss, "", "")
+				case !domain.IsKind(err, domain.NotFound):
+					return err
+				}
+				sets, err := st.ListKindSets(ctx, h.ID)
+				if err != nil {
+					return err
+				}
+				for _, k := range sets {
+					add(h.Name, k.Survey(), k.Kind, k.Instrument)
+				}
+			}
+			if len(hs) < domain.MaxLimit {
+				return csvio.WriteSurveys(w, rows)
+			}
+			pg.After = hs[len(hs)-1].ID
+		}
+	})
+}

@@ -3,14 +3,13 @@ package service
 import (
 	"context"
 	"strconv"
-	"strings"
 
 	"corvane/internal/domain"
 )
 
 // SetSurvey names the hole's survey set (the survey route's single set) in
 // derived values; a set by kind is named by its kind.
-const SetSurvey = "survey"
+const SetSurvey = domain.SurveyOfHole
 
 // KindSets is a hole's survey sets by kind and the set its derived values
 // use ("survey", a kind, or "" when the hole has no survey at all).
@@ -20,43 +19,37 @@ type KindSets struct {
 }
 
 // usedSurvey returns the survey a hole's derived values, path and
-// corrections are built from, and its name: the hole's preferred set by
-// kind; else the first kind in the project's survey priority ("gyro,
-// magnetic" say) that the hole has; else the hole's survey set ("survey");
-// else its first set in the order gyro, magnetic, planned, other. It
-// returns nil and "" when the hole has no survey at all. sets are the hole's
+// corrections are built from and its name, by the rule of
+// [domain.UsedSurvey]; nil and "" when the hole has no survey at all. sets are the hole's
 // sets by kind, as read.
 func usedSurvey(ctx context.Context, st domain.Store, holeID int64, priority string) (*domain.SurveySet, string, []domain.KindSet, error) {
 	sets, err := st.ListKindSets(ctx, holeID)
 	if err != nil {
 		return nil, "", nil, err
 	}
-	pick := func(k domain.KindSet) (*domain.SurveySet, string, []domain.KindSet, error) {
-		ss := k.Survey()
-		return &ss, k.Kind, sets, nil
+	ss, err := st.GetSurvey(ctx, holeID)
+	if err != nil && !domain.IsKind(err, domain.NotFound) {
+		return nil, "", nil, err
+	}
+	kinds, preferred := make([]string, len(sets)), ""
+	for i, k := range sets {
+		kinds[i] = k.Kind
+		if k.Preferred {
+			preferred = k.Kind
+		}
+	}
+	used := domain.UsedSurvey(kinds, preferred, priority, err == nil)
+	switch used {
+	case "":
+		return nil, "", sets, nil
+	case SetSurvey:
+		return &ss, used, sets, nil
 	}
 	for _, k := range sets {
-		if k.Preferred {
-			return pick(k)
+		if k.Kind == used {
+			ks := k.Survey()
+			return &ks, used, sets, nil
 		}
-	}
-	if priority != "" {
-		for _, kind := range strings.Split(priority, ",") {
-			for _, k := range sets {
-				if k.Kind == kind {
-					return pick(k)
-				}
-			}
-		}
-	}
-	ss, err := st.GetSurvey(ctx, holeID)
-	switch {
-	case err == nil:
-		return &ss, SetSurvey, sets, nil
-	case !domain.IsKind(err, domain.NotFound):
-		return nil, "", nil, err
-	case len(sets) > 0:
-		return pick(sets[0]) // kind order: gyro, magnetic, planned, other
 	}
 	return nil, "", sets, nil
 }
