@@ -67,7 +67,10 @@ README) and the survey date with the magnetic model chosen by --model (auto: Wor
 Magnetic Model 2025 for 2025-2030, IGRF-14 before); the *_source columns say which (given, project, computed or none; a computed
 declination names its model and decimal year, e.g. "computed (IGRF-14 at 2023.5808)").
 A collars file may give survey_date, the date of a hole's survey for survey rows
-without their own.
+without their own. A surveys file may give kind (gyro, magnetic, planned, other) and
+instrument: a hole may then have several survey sets, and the one used is chosen by
+--survey-priority, else the rows without a kind, else the first kind in that order
+(the --hole-summary column survey_set names it).
 
 --local-grid GRID.json declares a local (mine) grid (a JSON object: name, grid_crs, and
 rotation, scale and origin, or control_points; see the README). A collar whose crs is

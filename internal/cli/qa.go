@@ -51,7 +51,8 @@ holes from another source (hole_id, depth, dip, dip_direction).
                       gets a wider reading error, not flags
   reference picks     depth shift, matches, misfit per hole and run, implied offsets
   surveys             dogleg severity, leave-one-out outliers, gaps, short surveys,
-                      first station against the collar, magnetic shots in magnetic zones
+                      first station against the collar, magnetic shots in magnetic zones,
+                      a magnetic set against the hole's gyro set (surveys column kind)
   measurements        alpha >= 85, near-vertical holes, past the final depth,
                       duplicates, beta 0/360 in bulk, round-number preference per logger
                       (structures column logged_by; type from the column type)
@@ -132,6 +133,7 @@ func runQA(_ context.Context, env *Env, args []string) int {
 	fs.IntVar(&o.MinRunCount, "min-run-count", def.MinRunCount, "reference picks: matches a run's flag must rest on")
 	fs.Float64Var(&o.DoglegThreshold, "dogleg-threshold", def.DoglegThreshold, "dogleg severity to flag, degrees per 30 m (per 100 ft with --feet)")
 	fs.Float64Var(&o.GapThreshold, "gap-threshold", def.GapThreshold, "survey gap to flag, length units")
+	fs.Float64Var(&o.InterferenceThreshold, "interference-threshold", def.InterferenceThreshold, "magnetic set's departure from the hole's gyro set to flag as likely magnetic interference, degrees")
 	fs.Float64Var(&o.PickWindow, "pick-window", def.PickWindow, "depth window for matching picks, length units")
 	fs.Float64Var(&o.MaxDepthShift, "max-depth-shift", def.MaxDepthShift, "largest depth shift between picks and core searched, length units")
 	if err := fs.Parse(args); err != nil {
