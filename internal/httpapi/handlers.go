@@ -317,6 +317,15 @@ func (s *Server) getSurvey(c *gin.Context) {
 	c.JSON(http.StatusOK, ss)
 }
 
+// putVersion is the version a replace-whole PUT expects: 0 with
+// If-None-Match: * (create) and no If-Match, else If-Match's.
+func putVersion(c *gin.Context) (int64, error) {
+	if strings.TrimSpace(c.GetHeader("If-None-Match")) == "*" && c.GetHeader("If-Match") == "" {
+		return 0, nil
+	}
+	return ifMatch(c)
+}
+
 // putSurvey replaces the whole survey set. If-Match carries the version
 // last read; a hole's first set is created with If-None-Match: * instead.
 func (s *Server) putSurvey(c *gin.Context) {
@@ -325,10 +334,8 @@ func (s *Server) putSurvey(c *gin.Context) {
 		fail(c, err)
 		return
 	}
-	var v int64
-	if strings.TrimSpace(c.GetHeader("If-None-Match")) == "*" && c.GetHeader("If-Match") == "" {
-		v = 0
-	} else if v, err = ifMatch(c); err != nil {
+	v, err := putVersion(c)
+	if err != nil {
 		fail(c, err)
 		return
 	}
@@ -369,10 +376,8 @@ func (s *Server) putKindSet(c *gin.Context) {
 		fail(c, err)
 		return
 	}
-	var v int64
-	if strings.TrimSpace(c.GetHeader("If-None-Match")) == "*" && c.GetHeader("If-Match") == "" {
-		v = 0
-	} else if v, err = ifMatch(c); err != nil {
+	v, err := putVersion(c)
+	if err != nil {
 		fail(c, err)
 		return
 	}

@@ -8,12 +8,11 @@ import (
 	"corvane/internal/geom"
 )
 
-// Kinds of survey set (the words of the files and the API).
+// The kinds of survey set the comparison looks at (the words of the files
+// and the API; the others are not compared).
 const (
 	KindGyro     = "gyro"
 	KindMagnetic = "magnetic"
-	KindPlanned  = "planned"
-	KindOther    = "other"
 )
 
 // SurveySet is one of a hole's several surveys: its kind (gyro, magnetic,
