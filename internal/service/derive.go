@@ -86,12 +86,25 @@ type Conventions struct {
 	// MagneticModel chooses the model of computed declinations: "auto"
 	// (default), "wmm" or "igrf" (see domain.Project).
 	MagneticModel string `json:"magnetic_model"`
+	// grid is the project's local grid, nil when none: holes whose crs is
+	// "local" are carried into its projected grid.
+	grid *convert.LocalGrid
 }
 
-// ConventionsOf returns the project's conventions.
+// ConventionsOf returns the project's conventions, with its local grid
+// (checked when the project was stored; one that no longer reads is left
+// out, so its "local" holes have the error of a collar that cannot be
+// placed).
 func ConventionsOf(p domain.Project) Conventions {
-	return Conventions{RefLine: p.RefLine, BetaApex: p.BetaApex, GammaSense: p.GammaSense, LengthUnit: p.LengthUnit,
+	c := Conventions{RefLine: p.RefLine, BetaApex: p.BetaApex, GammaSense: p.GammaSense, LengthUnit: p.LengthUnit,
 		OutputAzimuthRef: p.OutputAzimuthRef, Declination: p.Declination, Convergence: p.Convergence, MagneticModel: p.MagneticModel}
+	if len(p.LocalGrid) > 0 {
+		if spec, err := ParseLocalGrid(p.LocalGrid); err == nil {
+			t, _, _ := spec.Resolve()
+			c.grid = &convert.LocalGrid{Spec: spec, T: t}
+		}
+	}
+	return c
 }
 
 // normalize fills defaults and validates c, reusing the project rules.
@@ -168,7 +181,10 @@ type holeModel struct {
 // newHoleModel builds the model of the stored hole h with survey set ss (nil
 // when the hole has none) and runs.
 func newHoleModel(c Conventions, h domain.Hole, ss *domain.SurveySet, runs []domain.Run) *holeModel {
-	return &holeModel{Hole: holemodel.New(holeInput(h, ss), c.project()), name: h.Name, conv: c, runs: runs, hole: h, survey: ss}
+	p := c.project()
+	in := holeInput(h, ss)
+	c.grid.Apply(&in, p.Output)
+	return &holeModel{Hole: holemodel.New(in, p), name: h.Name, conv: c, runs: runs, hole: h, survey: ss}
 }
 
 func opt(x float64) *float64 {

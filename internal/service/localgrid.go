@@ -21,6 +21,9 @@ func checkLocalGrid(p *domain.Project) error {
 	if err != nil {
 		return domain.FieldErr("local_grid", "%v", err)
 	}
+	if p.LengthUnit == domain.UnitFoot {
+		return domain.FieldErr("local_grid", "local grid: a project in feet cannot have one (the local grid is in metres)")
+	}
 	canon, err := json.Marshal(spec)
 	if err != nil {
 		return err

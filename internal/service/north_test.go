@@ -9,6 +9,7 @@ import (
 	"time"
 
 	"corvane/internal/domain"
+	"corvane/internal/localgrid"
 	"corvane/internal/northref"
 	"corvane/internal/qa"
 )
@@ -96,5 +97,42 @@ func TestProjectLocalGrid(t *testing.T) {
 	}
 	if cur := must(s.GetProject(ctx, p.ID)); cur.Version != p.Version {
 		t.Errorf("a refused update changed the project: version %d", cur.Version)
+	}
+}
+
+// The project's local grid applies to its holes: a hole whose crs is
+// "local" (position and grid azimuths in the mine grid) gets the same
+// derived values as the same hole given in the projected grid, its position
+// carried by the similarity transformation and its grid azimuths turned by
+// the rotation (package localgrid, checked against PROJ), as corvane
+// convert --local-grid does. A project in feet cannot declare one.
+func TestProjectLocalGridApplied(t *testing.T) {
+	s, ctx := newService(t)
+	grid := json.RawMessage(`{"name":"Tallowmere mine grid","grid_crs":"EPSG:28350","rotation":-37.25,"scale":0.99975,
+		"origin":{"local_easting":5000,"local_northing":10000,"easting":391250,"northing":6465480}}`)
+	p, _ := programme(t, s, ctx, domain.Project{Name: "mine grid", LocalGrid: grid})
+	tr := localgrid.FromOrigin(5000, 10000, 391250, 6465480, -37.25, 0.99975)
+	e, n := tr.ToGrid(5100, 10050)
+	loc := must(s.CreateHole(ctx, p.ID, domain.Hole{Name: "L1", East: 5100, North: 10050, Elevation: 300, Azimuth: 30, AzimuthRef: "grid", Dip: -60, FinalDepth: 200, CRS: "local"}))
+	prj := must(s.CreateHole(ctx, p.ID, domain.Hole{Name: "P1", East: e, North: n, Elevation: 300, Azimuth: tr.LocalToGridAzimuth(30), AzimuthRef: "grid", Dip: -60, FinalDepth: 200, CRS: "EPSG:28350"}))
+	must(s.PutSurvey(ctx, p.ID, loc.ID, 0, domain.SurveySet{AzimuthRef: "grid", Stations: []domain.Station{{Depth: 0, Azimuth: 30, Dip: -60}, {Depth: 100, Azimuth: 35, Dip: -58}}}))
+	must(s.PutSurvey(ctx, p.ID, prj.ID, 0, domain.SurveySet{AzimuthRef: "grid", Stations: []domain.Station{{Depth: 0, Azimuth: tr.LocalToGridAzimuth(30), Dip: -60}, {Depth: 100, Azimuth: tr.LocalToGridAzimuth(35), Dip: -58}}}))
+	a := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: loc.ID, Depth: 150, Alpha: 60, Beta: 200, TypeCode: "BD"})).Derived
+	b := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: prj.ID, Depth: 150, Alpha: 60, Beta: 200, TypeCode: "BD"})).Derived
+	if a.Error != "" || b.Error != "" {
+		t.Fatalf("errors %q %q", a.Error, b.Error)
+	}
+	for _, c := range []struct {
+		name string
+		x, y *float64
+	}{{"easting", a.East, b.East}, {"northing", a.North, b.North}, {"hole azimuth", a.HoleAzimuth, b.HoleAzimuth}, {"dip direction", a.DipDirection, b.DipDirection}, {"dip", a.Dip, b.Dip}} {
+		if c.x == nil || c.y == nil || math.Abs(*c.x-*c.y) > 1e-6 {
+			t.Errorf("%s: local hole %v, projected hole %v", c.name, c.x, c.y)
+		}
+	}
+	q := p
+	q.LengthUnit = domain.UnitFoot
+	if _, err := s.UpdateProject(ctx, p.ID, p.Version, q); !domain.IsKind(err, domain.Invalid) || !strings.Contains(err.Error(), "feet") {
+		t.Errorf("a local grid in a project in feet: %v", err)
 	}
 }
