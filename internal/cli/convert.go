@@ -13,7 +13,11 @@ import (
 	"corvane/internal/coreangle"
 	"corvane/internal/csvio"
 	"corvane/internal/desurvey"
+	"corvane/internal/domain"
+	"corvane/internal/localgrid"
+	"corvane/internal/northref"
 	"corvane/internal/progress"
+	"corvane/internal/service"
 	"corvane/internal/words"
 )
 
@@ -38,7 +42,8 @@ Input files have a header; names are case-insensitive and columns may come in an
               optional: declination, grid_convergence, azimuth_reference, crs
   surveys:    hole_id, depth, azimuth, dip   (stations of a hole in increasing depth)
               optional: azimuth_reference (true, grid or magnetic), survey_date (YYYY-MM-DD),
-              instrument (magnetic, gyro or unknown; one per hole)
+              kind (gyro, magnetic, planned or other), instrument (magnetic, gyro or
+              unknown; one per survey set)
   structures: hole_id, depth, alpha, beta
               optional: gamma (empty when there is no lineation), apparent_thickness or
               thickness; any other columns are carried through to the output.
@@ -56,7 +61,7 @@ pole and of the lineation (the cone's half-angle and the elongated region's long
 short semi-axes, degrees) and which method gave it: first-order, or monte-carlo when
 the errors are too large for the first-order figures (1,000 seeded draws, the same at
 every door). The errors come from --error-model (defaults of common practice
-otherwise), the survey's instrument column, and an unrated orientation mark (the
+otherwise), the instrument column of the survey set in use, and an unrated orientation mark (the
 structures file carries no runs). The figures depend on the error model and are no
 substitute for the reviewer's judgement or local practice.
 
@@ -71,10 +76,23 @@ separated by ";".
 Azimuths: true = magnetic + declination; grid = true - grid_convergence. A survey
 azimuth without azimuth_reference is taken to be in the output reference. Corrections
 come from the collar's columns, else from --declination / --grid-convergence, else are
-computed from the collar's crs (EPSG:326NN / EPSG:327NN) and the survey date (World
-Magnetic Model 2025); the *_source columns say which (given, project, computed or
-none). A collars file may give survey_date, the date of a hole's survey for survey rows
-without their own.
+computed from the collar's crs (an EPSG code of a supported UTM or MGA grid, see the
+README) and the survey date with the magnetic model chosen by --model (auto: World
+Magnetic Model 2025 for 2025-2030, IGRF-14 before); the *_source columns say which (given, project, computed or none; a computed
+declination names its model and decimal year, e.g. "computed (IGRF-14 at 2023.5808)").
+A collars file may give survey_date, the date of a hole's survey for survey rows
+without their own. A surveys file may give kind (gyro, magnetic, planned, other), each
+kind's set with its own instrument: a hole may then have several survey sets, and the one used is chosen by
+--survey-priority, else the rows without a kind, else the first kind in that order
+(the --hole-summary column survey_set names it).
+
+--local-grid GRID.json declares a local (mine) grid (a JSON object: name, grid_crs, and
+rotation, scale and origin, or control_points; see the README). A collar whose crs is
+"local" is then in that grid: its easting and northing are carried into grid_crs, and
+its azimuths referenced to grid (given as grid, or without a reference when the output
+reference is grid) are local-grid azimuths, turned into grid azimuths by the rotation.
+Output positions and grid azimuths are in grid_crs. The transformation (and the control
+points' residuals when fitted) is printed on standard error. Not with --feet.
 
 Exit status: 0 all rows converted; 1 some rows have a message in the error column
 (all rows are still written); 2 bad options or a file that cannot be read as a whole
@@ -111,9 +129,9 @@ func (f floatFlag) Set(s string) error {
 // north their azimuths refer to. convert and transfer share them, so both
 // read the same holes the same way.
 type pathFlags struct {
-	opt             *convert.Options
-	outRef, method  *string
-	feet, noCompute *bool
+	opt                                *convert.Options
+	outRef, method, magModel, priority *string
+	feet, noCompute                    *bool
 }
 
 func addPathFlags(fs *flag.FlagSet, opt *convert.Options) *pathFlags {
@@ -122,6 +140,8 @@ func addPathFlags(fs *flag.FlagSet, opt *convert.Options) *pathFlags {
 	p.method = fs.String("method", "minimum-curvature", "desurvey method: minimum-curvature, balanced-tangential or tangential")
 	p.feet = fs.Bool("feet", false, "lengths are in feet (collar elevations are converted to metres for the magnetic model)")
 	p.noCompute = fs.Bool("no-computed-corrections", false, "never compute declination or grid convergence; holes that need one get an error")
+	p.magModel = fs.String("model", "auto", "magnetic model of computed declinations: auto (WMM2025 for 2025-2030, IGRF-14 before), wmm or igrf")
+	p.priority = fs.String("survey-priority", "", "survey set kinds by priority for holes with sets by kind (surveys column kind), e.g. gyro,magnetic,planned")
 	fs.Var(floatFlag{&opt.Declination}, "declination", "magnetic declination in degrees for holes whose collar gives none (true = magnetic + D)")
 	fs.Var(floatFlag{&opt.GridConvergence}, "grid-convergence", "grid convergence in degrees for holes whose collar gives none (grid = true - C)")
 	return p
@@ -140,6 +160,14 @@ func (p *pathFlags) apply() error {
 		p.opt.Unit = desurvey.Feet
 	}
 	p.opt.NoCompute = *p.noCompute
+	if p.opt.MagneticModel, err = northref.ParseMagneticModel(*p.magModel); err != nil {
+		return fmt.Errorf("--model: %v", err)
+	}
+	pr, perr := domain.ParseSurveyPriority(*p.priority)
+	if perr != nil {
+		return fmt.Errorf("--survey-priority: %v", perr)
+	}
+	p.opt.SurveyPriority = pr
 	return nil
 }
 
@@ -185,6 +213,7 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 	errModel := fs.String("error-model", "", errorModelUsage)
 	fs.BoolVar(&opt.NoUncertainty, "no-uncertainty", false, "leave the uncertainty columns empty (their Monte Carlo is most of the conversion's time)")
 	summary := fs.String("hole-summary", "", "also write one row per hole to this CSV file: azimuth references, corrections and their sources, row counts, caution, error")
+	gridFile := fs.String("local-grid", "", "JSON file declaring a local grid for collars whose crs is \"local\"")
 	paths := addPathFlags(fs, &opt)
 	if err := fs.Parse(args); err != nil {
 		if errors.Is(err, flag.ErrHelp) {
@@ -218,12 +247,29 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 	if opt.ErrorModel, err = readErrorModel(*errModel); err != nil {
 		return usageErr("%v", err)
 	}
+	if *gridFile != "" {
+		if opt.Unit == desurvey.Feet {
+			return usageErr("--local-grid cannot be combined with --feet (the local grid is in metres)")
+		}
+		if code := applyLocalGrid(env, *gridFile, &opt); code != ExitOK {
+			return code
+		}
+	}
 	opt.CollarsFile, opt.SurveysFile, opt.StructuresFile = *collars, *surveys, *structures
 
-	_, srows, holes, err := loadHoles(*collars, *surveys, opt)
+	crows, srows, holes, err := loadHoles(*collars, *surveys, opt)
 	if err != nil {
 		reportAll(env, "convert", err)
 		return ExitUsage
+	}
+	if opt.LocalGrid != nil {
+		n := 0
+		for _, c := range crows {
+			if convert.IsLocal(c.CRS) {
+				n++
+			}
+		}
+		fmt.Fprintf(env.Stderr, "corvane convert: %d collar(s) carried from the local grid into %s\n", n, opt.LocalGrid.Spec.GridCRS)
 	}
 	var in io.Reader = env.Stdin
 	var size int64
@@ -331,4 +377,40 @@ func reportAll(env *Env, cmd string, errs ...error) bool {
 		}
 	}
 	return failed
+}
+
+// applyLocalGrid reads the local grid declaration in path (the rules of a
+// project's local_grid setting), sets it in opt so the collars labelled
+// "local" are carried into its projected grid (convert.LocalGrid.Apply, as
+// the service does with a project's local grid), and reports the
+// transformation on standard error.
+func applyLocalGrid(env *Env, path string, opt *convert.Options) int {
+	data, err := os.ReadFile(path)
+	if err != nil {
+		fmt.Fprintf(env.Stderr, "corvane convert: --local-grid: %v\n", err)
+		return ExitUsage
+	}
+	spec, err := service.ParseLocalGrid(data)
+	if err != nil {
+		fmt.Fprintf(env.Stderr, "corvane convert: --local-grid %s: %v\n", path, err)
+		return ExitUsage
+	}
+	t, fit, _ := spec.Resolve() // ParseLocalGrid resolved it already
+	opt.LocalGrid = &convert.LocalGrid{Spec: spec, T: t}
+	reportLocalGrid(env.Stderr, spec, t, fit)
+	return ExitOK
+}
+
+// reportLocalGrid prints a local grid's transformation and, when fitted,
+// each control point's residual.
+func reportLocalGrid(w io.Writer, spec localgrid.Spec, t localgrid.Transform, fit *localgrid.Fit) {
+	fmt.Fprintf(w, "local grid %q -> %s: rotation %.6f deg (grid azimuth of local north), scale %.9f, local origin at E %.3f N %.3f\n",
+		spec.Name, spec.GridCRS, t.Rotation, t.Scale, t.E0, t.N0)
+	if fit == nil {
+		return
+	}
+	fmt.Fprintf(w, "fitted to %d control points, rms %.4f m; residuals (observed - computed):\n", len(fit.Residuals), fit.RMS)
+	for _, r := range fit.Residuals {
+		fmt.Fprintf(w, "  %-12s dE %+.4f dN %+.4f (%.4f m)\n", r.ID, r.DE, r.DN, r.Distance)
+	}
 }

@@ -22,7 +22,7 @@ import (
 func init() {
 	register(command{
 		name:    "declination",
-		summary: "magnetic declination (WMM2025) and UTM grid convergence at points",
+		summary: "magnetic declination (WMM2025, IGRF-14) and grid convergence at points",
 		run:     runDeclination,
 	})
 }
@@ -33,10 +33,13 @@ const declinationConventions = "declination positive east (true = magnetic + dec
 	"(day of year - 1)/(days in year); angles in degrees, intensities in nT, rates per year"
 
 const declinationUsage = `Usage:
-  corvane declination --lat DEG --lon DEG --date DATE [--height-km KM] [--utm-zone 50S]
-  corvane declination --in POINTS.csv [-o OUT.csv]
+  corvane declination --lat DEG --lon DEG --date DATE [--height-km KM] [--utm-zone 50S] [--model auto]
+  corvane declination --in POINTS.csv [-o OUT.csv] [--model auto]
 
-Computes the magnetic field of the World Magnetic Model 2025 (valid 2025.0 to 2030.0):
+Computes the magnetic field of a magnetic model (--model): auto (the default) uses the
+World Magnetic Model 2025 for 2025.0 to 2030.0 and the International Geomagnetic
+Reference Field IGRF-14 before, back to 1900.0; wmm uses WMM2025 only; igrf IGRF-14 only.
+The output names the model used. It gives
 declination, inclination, horizontal and total intensity and the yearly rate of
 declination, and with a UTM zone the grid convergence and scale factor of WGS 84 / UTM.
 
@@ -44,8 +47,9 @@ Latitude and longitude are WGS 84 degrees; height is kilometres above the WGS 84
 ellipsoid (not above sea level; the difference is negligible for declination).
 DATE is YYYY-MM-DD or a decimal year such as 2027.5; a calendar date becomes
 year + (day of year - 1)/(days in the year), leap years having 366 days.
-A UTM zone is its number and the hemisphere letter N or S (not a latitude band),
-or an EPSG:326NN / EPSG:327NN label.
+A UTM zone is its number and the hemisphere letter N or S (not a latitude band) for
+WGS 84 / UTM, or an EPSG label of a supported grid: WGS 84 / UTM (EPSG:326NN, 327NN),
+NAD83 / UTM, ETRS89 / UTM, GDA94 and GDA2020 / MGA, SIRGAS 2000 / UTM (see README).
 
 Signs: declination is positive when magnetic north is east of true north
 (true = magnetic + declination); convergence is positive when grid north is east of
@@ -54,8 +58,8 @@ true north (grid = true - convergence).
 One point prints JSON. With --in, the CSV needs a header with the columns lat, lon,
 height_km, date and optionally zone (or utm_zone); the output CSV repeats them and adds
 decimal_year, declination, inclination, horizontal_intensity, total_intensity,
-declination_rate (and grid_convergence, scale_factor with a zone column), caution and
-error. Rows that cannot be computed are reported with line and column and give exit
+declination_rate (and grid_convergence, scale_factor with a zone column), model (the
+magnetic model that computed the row), caution and error. Rows that cannot be computed are reported with line and column and give exit
 status 1.
 
 Declinations are model values of the main field: local magnetic anomalies are not
@@ -80,6 +84,7 @@ func runDeclination(_ context.Context, env *Env, args []string) int {
 	zone := fs.String("utm-zone", "", "UTM zone for grid convergence and scale, e.g. 50S")
 	in := fs.String("in", "", "CSV file of points (columns lat, lon, height_km, date [, zone])")
 	out := fs.String("o", "", "output file for --in (default standard output)")
+	modelS := fs.String("model", "auto", "magnetic model: auto, wmm or igrf")
 	if err := fs.Parse(args); err != nil {
 		if errors.Is(err, flag.ErrHelp) {
 			return ExitOK
@@ -88,6 +93,11 @@ func runDeclination(_ context.Context, env *Env, args []string) int {
 	}
 	if fs.NArg() > 0 {
 		fmt.Fprintf(env.Stderr, "corvane declination: unexpected argument %q\n", fs.Arg(0))
+		return ExitUsage
+	}
+	model, err := northref.ParseMagneticModel(*modelS)
+	if err != nil {
+		fmt.Fprintf(env.Stderr, "corvane declination: --model: %v\n", err)
 		return ExitUsage
 	}
 	set := map[string]bool{}
@@ -99,7 +109,7 @@ func runDeclination(_ context.Context, env *Env, args []string) int {
 				return ExitUsage
 			}
 		}
-		return declinationFile(env, *in, *out)
+		return declinationFile(env, *in, *out, model)
 	}
 	if set["o"] {
 		fmt.Fprintln(env.Stderr, "corvane declination: -o is for --in; one point prints JSON to standard output")
@@ -111,16 +121,16 @@ func runDeclination(_ context.Context, env *Env, args []string) int {
 			return ExitUsage
 		}
 	}
-	p, err := declinationPoint(strconv.FormatFloat(*lat, 'f', -1, 64), strconv.FormatFloat(*lon, 'f', -1, 64),
-		strconv.FormatFloat(*hkm, 'f', -1, 64), *date, *zone, set["utm-zone"])
-	if err != nil {
-		name := err.field
+	p, ferr := declinationPoint(strconv.FormatFloat(*lat, 'f', -1, 64), strconv.FormatFloat(*lon, 'f', -1, 64),
+		strconv.FormatFloat(*hkm, 'f', -1, 64), *date, *zone, set["utm-zone"], model)
+	if ferr != nil {
+		name := ferr.field
 		if name == "height_km" {
 			name = "height-km"
 		} else if name == "zone" {
 			name = "utm-zone"
 		}
-		fmt.Fprintf(env.Stderr, "corvane declination: --%s: %v\n", name, err.err)
+		fmt.Fprintf(env.Stderr, "corvane declination: --%s: %v\n", name, ferr.err)
 		return ExitUsage
 	}
 	enc := json.NewEncoder(env.Stdout)
@@ -161,17 +171,28 @@ func parseFinite(s string) (float64, error) {
 	return v, nil
 }
 
-// parseZoneLabel reads "50S"-style zones and EPSG:326NN/327NN labels.
-func parseZoneLabel(s string) (utm.Zone, error) {
+// parseZoneLabel reads "50S"-style zones (WGS 84 / UTM) and the EPSG labels
+// northref places collars in (UTM and MGA zones of several datums); it
+// returns the zone and its projection.
+func parseZoneLabel(s string) (utm.Zone, *utm.TransverseMercator, error) {
 	if strings.HasPrefix(strings.ToUpper(strings.TrimSpace(s)), "EPSG:") {
 		c, err := northref.ParseCRS(s)
-		return c.Zone, err
+		return c.Zone, c.Grid, err
 	}
-	return utm.ParseZone(s)
+	z, err := utm.ParseZone(s)
+	if err != nil {
+		return z, nil, err
+	}
+	code := 32600 + z.Number // WGS 84 / UTM north
+	if z.South {
+		code += 100
+	}
+	c, err := utm.LookupEPSG(code)
+	return z, c.TM, err
 }
 
 // declinationPoint validates and computes one point from its text fields.
-func declinationPoint(latS, lonS, hS, dateS, zoneS string, wantZone bool) (*declPoint, *fieldError) {
+func declinationPoint(latS, lonS, hS, dateS, zoneS string, wantZone bool, model northref.MagneticModel) (*declPoint, *fieldError) {
 	p := &declPoint{date: strings.TrimSpace(dateS)}
 	var err error
 	if p.lat, err = parseFinite(latS); err != nil {
@@ -198,20 +219,23 @@ func declinationPoint(latS, lonS, hS, dateS, zoneS string, wantZone bool) (*decl
 	if p.year, err = wmm.ParseDate(dateS); err != nil {
 		return nil, &fieldError{"date", err}
 	}
-	m := wmm.Default()
-	p.model = m.Name
-	if p.field, err = m.At(p.lat, p.lon, p.hkm, p.year); err != nil {
+	if p.field, p.model, err = northref.FieldAt(model, p.lat, p.lon, p.hkm, p.year); err != nil {
+		var re *northref.RangeError
+		if errors.As(err, &re) {
+			err = fmt.Errorf("%s %w", p.date, err) // the date once, as typed
+		}
 		return nil, &fieldError{"date", err}
 	}
 	if wantZone {
-		if p.zone, err = parseZoneLabel(zoneS); err != nil {
+		var tm *utm.TransverseMercator
+		if p.zone, tm, err = parseZoneLabel(zoneS); err != nil {
 			return nil, &fieldError{"zone", err}
 		}
 		if p.zone.South && p.lat > 0 || !p.zone.South && p.lat < 0 {
 			return nil, &fieldError{"zone", fmt.Errorf("zone %v is in the %s hemisphere but latitude %v is not (the letter is the hemisphere, N or S, not a latitude band)",
 				p.zone, map[bool]string{true: "southern", false: "northern"}[p.zone.South], p.lat)}
 		}
-		if p.grid, err = utm.Forward(p.zone, p.lat, p.lon); err != nil {
+		if p.grid, err = tm.Forward(p.lat, p.lon); err != nil {
 			return nil, &fieldError{"zone", err}
 		}
 		p.hasGrid = true
@@ -291,7 +315,7 @@ func (p *declPoint) json() declJSON {
 }
 
 // declinationFile runs the CSV mode.
-func declinationFile(env *Env, inPath, outPath string) int {
+func declinationFile(env *Env, inPath, outPath string, model northref.MagneticModel) int {
 	fail := func(format string, a ...any) int {
 		fmt.Fprintf(env.Stderr, "corvane declination: "+format+"\n", a...)
 		return ExitUsage
@@ -374,7 +398,7 @@ func declinationFile(env *Env, inPath, outPath string) int {
 	if withZone {
 		outHeader = append(outHeader, "grid_convergence", "scale_factor")
 	}
-	outHeader = append(outHeader, "caution", "error")
+	outHeader = append(outHeader, "model", "caution", "error")
 	_ = cw.Write(outHeader)
 
 	bad := 0
@@ -396,9 +420,9 @@ func declinationFile(env *Env, inPath, outPath string) int {
 		if len(rw.rec) != len(header) {
 			ferr = &fieldError{"", fmt.Errorf("has %d fields, the header has %d", len(rw.rec), len(header))}
 		} else {
-			p, ferr = declinationPoint(get(rw, "lat"), get(rw, "lon"), get(rw, "height_km"), get(rw, "date"), get(rw, "zone"), withZone)
+			p, ferr = declinationPoint(get(rw, "lat"), get(rw, "lon"), get(rw, "height_km"), get(rw, "date"), get(rw, "zone"), withZone, model)
 		}
-		nOut := 6
+		nOut := 7
 		if withZone {
 			nOut += 2
 		}
@@ -422,7 +446,7 @@ func declinationFile(env *Env, inPath, outPath string) int {
 		if withZone {
 			out = append(out, ff(p.grid.Convergence, 6), ff(p.grid.Scale, 8))
 		}
-		out = append(out, p.caution(), "")
+		out = append(out, p.model, p.caution(), "")
 		_ = cw.Write(out)
 	}
 	cw.Flush()

@@ -11,6 +11,8 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+
+	"corvane/internal/igrf"
 )
 
 func runDeclinationCmd(t *testing.T, args ...string) (code int, stdout, stderr string) {
@@ -85,8 +87,11 @@ func TestDeclinationUsageErrors(t *testing.T) {
 		msg  string
 	}{
 		{[]string{"--lat", "10", "--lon", "10"}, "--date is required"},
-		{[]string{"--lat", "10", "--lon", "10", "--date", "2024-06-01"}, "2025.0 to 2030.0"},
-		{[]string{"--lat", "10", "--lon", "10", "--date", "2031.0"}, "outside the validity"},
+		// A date before the WMM with the WMM chosen names both models' years
+		// and gives the date once, as typed (no decimal-year rewrite).
+		{[]string{"--lat", "10", "--lon", "10", "--date", "2023-08-01", "--model", "wmm"}, "--date: 2023-08-01 is outside the years of magnetic model WMM-2025 (2025.0 to 2030.0); IGRF-14 covers 1900.0 to 2030.0: choose model igrf or auto\n"},
+		{[]string{"--lat", "10", "--lon", "10", "--date", "2031.0"}, "--date: 2031.0 is outside the years of both magnetic models"},
+		{[]string{"--lat", "10", "--lon", "10", "--date", "2026.0", "--model", "chaos"}, "--model: magnetic model \"chaos\" is not one of auto, wmm, igrf"},
 		{[]string{"--lat", "95", "--lon", "10", "--date", "2026.0"}, "--lat"},
 		{[]string{"--lat", "10", "--lon", "10", "--date", "2026-02-30"}, "--date"},
 		{[]string{"--lat", "10", "--lon", "10", "--date", "2026.0", "--height-km", "1200"}, "is it in metres"},
@@ -114,7 +119,7 @@ func TestDeclinationCSV(t *testing.T) {
 		"0,120,100,2027.5\n" + // D -0.23 I -14.81 H 37711.8 F 39007.4 Ddot -0.03
 		"-80,240,100,2027.5\n" + // D 67.93 I -72.10 H 15927.0 F 51825.7 Ddot -0.11
 		"12,abc,0,2026-01-01\n" + // line 5: bad longitude
-		"12,40,0,2019-01-01\n" + // line 6: date before the model
+		"12,40,0,2031-01-01\n" + // line 6: date after the models
 		"12,40\n" // line 7: short row
 	if err := os.WriteFile(in, []byte(text), 0o644); err != nil {
 		t.Fatal(err)
@@ -123,7 +128,7 @@ func TestDeclinationCSV(t *testing.T) {
 	if code != ExitRows {
 		t.Fatalf("exit %d, want %d (rows rejected): %s", code, ExitRows, errs)
 	}
-	for _, want := range []string{"points.csv:5:4: column \"lon\" (field 2)", "points.csv:6:", "column \"date\"", "2025.0 to 2030.0", "points.csv:7: row has 2 fields", "3 of 6 rows"} {
+	for _, want := range []string{"points.csv:5:4: column \"lon\" (field 2)", "points.csv:6:", "column \"date\"", "2031-01-01 is outside the years of both magnetic models", "points.csv:7: row has 2 fields", "3 of 6 rows"} {
 		if !strings.Contains(errs, want) {
 			t.Errorf("stderr lacks %q:\n%s", want, errs)
 		}
@@ -137,7 +142,7 @@ func TestDeclinationCSV(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	wantHeader := "lat,lon,height_km,date,decimal_year,declination,inclination,horizontal_intensity,total_intensity,declination_rate,caution,error"
+	wantHeader := "lat,lon,height_km,date,decimal_year,declination,inclination,horizontal_intensity,total_intensity,declination_rate,model,caution,error"
 	if got := strings.Join(recs[0], ","); got != wantHeader {
 		t.Fatalf("header %s\nwant   %s", got, wantHeader)
 	}
@@ -158,12 +163,12 @@ func TestDeclinationCSV(t *testing.T) {
 				t.Errorf("row %d %s = %q, official %v", i+1, recs[0][5+k], rec[5+k], w[k])
 			}
 		}
-		if rec[11] != "" {
-			t.Errorf("row %d error %q", i+1, rec[11])
+		if rec[12] != "" || rec[10] != "WMM-2025" {
+			t.Errorf("row %d model %q error %q", i+1, rec[10], rec[12])
 		}
 	}
 	for i := 4; i <= 6; i++ {
-		if recs[i][11] == "" || recs[i][5] != "" {
+		if recs[i][12] == "" || recs[i][5] != "" {
 			t.Errorf("bad row %d written as %v", i, recs[i])
 		}
 	}
@@ -189,7 +194,7 @@ func TestDeclinationCSVZone(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if h := strings.Join(recs[0], ","); !strings.Contains(h, "declination_rate,grid_convergence,scale_factor,caution,error") || !strings.HasPrefix(h, "lat,lon,height_km,date,zone,") {
+	if h := strings.Join(recs[0], ","); !strings.Contains(h, "declination_rate,grid_convergence,scale_factor,model,caution,error") || !strings.HasPrefix(h, "lat,lon,height_km,date,zone,") {
 		t.Fatalf("header %s", h)
 	}
 	conv := []float64{2.29900844, 1.00417196, -0.65169556}
@@ -231,5 +236,26 @@ func TestDeclinationCSVFileErrors(t *testing.T) {
 		if _, err := os.Stat(out); err == nil {
 			t.Errorf("%s: output written despite a file error", c.path)
 		}
+	}
+}
+
+// A survey dated 2023 is computed under the default model choice (auto) by
+// IGRF-14, and the output says so; its value is the IGRF package's (checked
+// against the BGS check values there).
+func TestDeclinationOldDateAuto(t *testing.T) {
+	code, out, errs := runDeclinationCmd(t, "--lat", "-31.9", "--lon", "115.8", "--date", "2023-08-01")
+	if code != ExitOK {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	var got struct {
+		Model       string  `json:"model"`
+		Declination float64 `json:"declination"`
+	}
+	if err := json.Unmarshal([]byte(out), &got); err != nil {
+		t.Fatal(err)
+	}
+	f, _ := igrf.Default().At(-31.9, 115.8, 0, 2023+212.0/365)
+	if got.Model != "IGRF-14" || math.Abs(got.Declination-f.Declination) > 1e-6 {
+		t.Errorf("model %q D %v; IGRF-14 gives %v", got.Model, got.Declination, f.Declination)
 	}
 }

@@ -1,7 +1,6 @@
 package cli
 
 import (
-	"corvane/internal/holemodel"
 	"encoding/csv"
 	"fmt"
 	"io"
@@ -11,10 +10,12 @@ import (
 
 	"corvane/internal/convert"
 	"corvane/internal/csvio"
+	"corvane/internal/domain"
+	"corvane/internal/holemodel"
 )
 
 // Columns of the hole summary written by convert --hole-summary.
-var holeSummaryColumns = []string{"hole_id", "survey_azimuth_reference", "output_azimuth_reference",
+var holeSummaryColumns = []string{"hole_id", "survey_set", "survey_azimuth_reference", "output_azimuth_reference",
 	"declination", "declination_source", "grid_convergence", "convergence_source",
 	"rows", "rows_with_warnings", "rows_with_errors", "caution", "error"}
 
@@ -23,7 +24,8 @@ type holeCounts struct{ rows, warn, bad int }
 
 // writeHoleSummary writes one row per hole of hs (collar-file order), then
 // one per hole id that appears only in the structure rows: the azimuth
-// references, the corrections applied and where they came from, the row
+// survey in use (survey_set: "survey" for rows without a kind, else a kind),
+// its azimuth references, the corrections applied and where they came from, the row
 // counts from counts, any caution, and the hole's error. A hole whose
 // declination changes with the survey date lists each value and source, in
 // depth order, separated by ";".
@@ -32,6 +34,10 @@ func writeHoleSummary(w io.Writer, hs *convert.Holes, srows []csvio.SurveyRow, c
 	refs := map[string][]string{}
 	depths := map[string][]float64{}
 	for _, s := range srows {
+		// Only the rows of the survey in use (domain.UsedSurvey).
+		if h := hs.Hole(s.HoleID); h == nil || s.Kind != h.Survey && (s.Kind != "" || h.Survey != domain.SurveyOfHole) {
+			continue
+		}
 		r := s.AzimuthRef
 		if r == "" {
 			r = out // a survey azimuth without a reference is in the output reference
@@ -77,7 +83,7 @@ func writeHoleSummary(w io.Writer, hs *convert.Holes, srows []csvio.SurveyRow, c
 		if h.Err != nil {
 			msg = h.Err.Error()
 		}
-		if err := cw.Write([]string{h.ID, strings.Join(refs[h.ID], ";"), out,
+		if err := cw.Write([]string{h.ID, h.Survey, strings.Join(refs[h.ID], ";"), out,
 			strings.Join(vals, ";"), strings.Join(srcs, ";"), num(h.Convergence.Value), string(h.Convergence.Source),
 			strconv.Itoa(c.rows), strconv.Itoa(c.warn), strconv.Itoa(c.bad), h.Caution(), msg}); err != nil {
 			return err
@@ -88,7 +94,7 @@ func writeHoleSummary(w io.Writer, hs *convert.Holes, srows []csvio.SurveyRow, c
 			continue
 		}
 		c := counts[id]
-		if err := cw.Write([]string{id, "", out, "", "", "", "", strconv.Itoa(c.rows), strconv.Itoa(c.warn), strconv.Itoa(c.bad), "",
+		if err := cw.Write([]string{id, "", "", out, "", "", "", "", strconv.Itoa(c.rows), strconv.Itoa(c.warn), strconv.Itoa(c.bad), "",
 			fmt.Sprintf("hole %q is not in the collars file", id)}); err != nil {
 			return err
 		}

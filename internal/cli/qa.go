@@ -16,6 +16,8 @@ import (
 	"corvane/internal/coreangle"
 	"corvane/internal/csvio"
 	"corvane/internal/desurvey"
+	"corvane/internal/domain"
+	"corvane/internal/northref"
 	"corvane/internal/progress"
 	"corvane/internal/qa"
 	"corvane/internal/qa/qapage"
@@ -51,7 +53,8 @@ holes from another source (hole_id, depth, dip, dip_direction).
                       gets a wider reading error, not flags
   reference picks     depth shift, matches, misfit per hole and run, implied offsets
   surveys             dogleg severity, leave-one-out outliers, gaps, short surveys,
-                      first station against the collar, magnetic shots in magnetic zones
+                      first station against the collar, magnetic shots in magnetic zones,
+                      a magnetic set against the hole's gyro set (surveys column kind)
   measurements        alpha >= 85, near-vertical holes, past the final depth,
                       duplicates, beta 0/360 in bulk, round-number preference per logger
                       (structures column logged_by; type from the column type)
@@ -117,6 +120,8 @@ func runQA(_ context.Context, env *Env, args []string) int {
 	fs.Var(floatFlag{&decl}, "declination", "magnetic declination for every hole, degrees east (collar column declination wins)")
 	fs.Var(floatFlag{&conv}, "grid-convergence", "grid convergence for every hole, degrees (collar column grid_convergence wins)")
 	feet := fs.Bool("feet", false, "depths in feet: dogleg severity per 100 ft")
+	magModel := fs.String("model", "auto", "magnetic model of computed declinations: auto (WMM2025 for 2025-2030, IGRF-14 before), wmm or igrf")
+	priority := fs.String("survey-priority", "", "survey set kinds by priority for holes with sets by kind (surveys column kind), e.g. gyro,magnetic,planned")
 	var zones zoneFlags
 	fs.Var(&zones, "magnetic-zone", "HOLE:FROM-TO where magnetic surveys are unreliable (repeatable)")
 	o := def
@@ -130,6 +135,7 @@ func runQA(_ context.Context, env *Env, args []string) int {
 	fs.IntVar(&o.MinRunCount, "min-run-count", def.MinRunCount, "reference picks: matches a run's flag must rest on")
 	fs.Float64Var(&o.DoglegThreshold, "dogleg-threshold", def.DoglegThreshold, "dogleg severity to flag, degrees per 30 m (per 100 ft with --feet)")
 	fs.Float64Var(&o.GapThreshold, "gap-threshold", def.GapThreshold, "survey gap to flag, length units")
+	fs.Float64Var(&o.InterferenceThreshold, "interference-threshold", def.InterferenceThreshold, "magnetic set's departure from the hole's gyro set to flag as likely magnetic interference, degrees")
 	fs.Float64Var(&o.PickWindow, "pick-window", def.PickWindow, "depth window for matching picks, length units")
 	fs.Float64Var(&o.MaxDepthShift, "max-depth-shift", def.MaxDepthShift, "largest depth shift between picks and core searched, length units")
 	if err := fs.Parse(args); err != nil {
@@ -169,6 +175,16 @@ func runQA(_ context.Context, env *Env, args []string) int {
 		fmt.Fprintf(env.Stderr, "corvane qa: --beta-apex: %v\n", err)
 		return ExitUsage
 	}
+	model, err := northref.ParseMagneticModel(*magModel)
+	if err != nil {
+		fmt.Fprintf(env.Stderr, "corvane qa: --model: %v\n", err)
+		return ExitUsage
+	}
+	pr, perr := domain.ParseSurveyPriority(*priority)
+	if perr != nil {
+		fmt.Fprintf(env.Stderr, "corvane qa: --survey-priority: %v\n", perr)
+		return ExitUsage
+	}
 	o.PersistentType = strings.TrimSpace(*persistent)
 	o.Feet = *feet
 	if o.Errors, err = readErrorModel(*errModel); err != nil {
@@ -180,7 +196,7 @@ func runQA(_ context.Context, env *Env, args []string) int {
 		return ExitUsage
 	}
 
-	in, rejected, err := readQAInput(*collars, *surveys, *structures, *runsF, *picks, *outRef, givenOrNaN(decl), givenOrNaN(conv), *feet, env.Stderr)
+	in, rejected, err := readQAInput(*collars, *surveys, *structures, *runsF, *picks, qaHoles{*outRef, givenOrNaN(decl), givenOrNaN(conv), *feet, model, pr}, env.Stderr)
 	if err != nil {
 		reportAll(env, "qa", err)
 		return ExitUsage
@@ -219,7 +235,18 @@ func runQA(_ context.Context, env *Env, args []string) int {
 // stderr when it is a terminal. Whole-file problems (missing files or
 // columns, bad collar, survey, run or pick rows) are errors; bad structure
 // rows become findings in the report and are counted in rejected.
-func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl, conv float64, feet bool, stderr io.Writer) (in qa.Input, rejected int, err error) {
+// qaHoles are the options that build the holes, as in corvane convert: the
+// output reference, the values for all holes (NaN when not given), feet, the
+// magnetic model and the survey priority.
+type qaHoles struct {
+	outRef     string
+	decl, conv float64
+	feet       bool
+	model      northref.MagneticModel
+	priority   string
+}
+
+func readQAInput(collars, surveys, structures, runs, picks string, o qaHoles, stderr io.Writer) (in qa.Input, rejected int, err error) {
 	open := func(name string) (*os.File, error) {
 		f, err := os.Open(name)
 		if err != nil {
@@ -250,17 +277,17 @@ func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl,
 	// The holes as corvane convert builds them: one hole model corrects
 	// north (package holemodel). A hole it cannot build is a problem of
 	// that hole, reported once, as in convert.
-	opt := convert.Options{Output: convert.Grid, CollarsFile: collars, SurveysFile: surveys}
-	if outRef == "true" {
+	opt := convert.Options{Output: convert.Grid, CollarsFile: collars, SurveysFile: surveys, MagneticModel: o.model, SurveyPriority: o.priority}
+	if o.outRef == "true" {
 		opt.Output = convert.True
 	}
-	if !math.IsNaN(decl) {
-		opt.Declination = convert.Given{Value: decl, Set: true}
+	if !math.IsNaN(o.decl) {
+		opt.Declination = convert.Given{Value: o.decl, Set: true}
 	}
-	if !math.IsNaN(conv) {
-		opt.GridConvergence = convert.Given{Value: conv, Set: true}
+	if !math.IsNaN(o.conv) {
+		opt.GridConvergence = convert.Given{Value: o.conv, Set: true}
 	}
-	if feet {
+	if o.feet {
 		opt.Unit = desurvey.Feet
 	}
 	holes, err := convert.Build(crows, srows, opt)
@@ -269,7 +296,7 @@ func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl,
 	}
 	for _, h := range holes.List() {
 		c := qa.Collar{HoleID: h.ID, East: h.Collar.East, North: h.Collar.North, Elevation: h.Collar.Elevation,
-			Azimuth: h.Collar.Azimuth, Dip: h.Collar.Dip, Depth: h.Collar.Depth, Line: h.Line, Path: h.Path}
+			Azimuth: h.Collar.Azimuth, Dip: h.Collar.Dip, Depth: h.Collar.Depth, Line: h.Line, Path: h.Path, DeclinationSource: h.DeclinationSource()}
 		if h.Err != nil {
 			c.Problem, c.ProblemSource, c.ProblemLine = h.Hole.Err.Msg, "collars", h.Err.Loc.Line
 			if h.Err.Loc.File == surveys {
@@ -282,6 +309,20 @@ func readQAInput(collars, surveys, structures, runs, picks, outRef string, decl,
 		for i, st := range h.Stations {
 			in.Surveys = append(in.Surveys, qa.Station{HoleID: h.ID, Depth: st.Depth, Azimuth: st.Azimuth, Dip: st.Dip,
 				Magnetic: h.Magnetic[i], Line: h.In.Stations[i].Line})
+		}
+		// The sets by kind, each in the output reference through the hole
+		// model, for the comparison of magnetic and gyro sets; a set the
+		// model cannot build is left out of it.
+		for _, k := range h.Sets {
+			if k.Hole.Err != nil {
+				continue
+			}
+			qs := qa.SurveySet{HoleID: h.ID, Kind: k.Kind}
+			for i, st := range k.Hole.Stations {
+				qs.Stations = append(qs.Stations, qa.Station{HoleID: h.ID, Depth: st.Depth, Azimuth: st.Azimuth, Dip: st.Dip,
+					Magnetic: k.Hole.Magnetic[i], Line: k.Hole.In.Stations[i].Line})
+			}
+			in.SurveySets = append(in.SurveySets, qs)
 		}
 	}
 

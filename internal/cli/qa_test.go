@@ -158,7 +158,7 @@ func TestQAInputFeetElevation(t *testing.T) {
 	if atM.Declination == atFt.Declination {
 		t.Fatalf("declination %v does not depend on elevation here: the check below could not fail", atM.Declination)
 	}
-	in, _, err := readQAInput(p("collars.csv"), p("surveys.csv"), p("structures.csv"), p("runs.csv"), p("picks.csv"), "true", math.NaN(), math.NaN(), true, io.Discard)
+	in, _, err := readQAInput(p("collars.csv"), p("surveys.csv"), p("structures.csv"), p("runs.csv"), p("picks.csv"), qaHoles{"true", math.NaN(), math.NaN(), true, northref.ModelAuto, ""}, io.Discard)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -183,7 +183,7 @@ func TestQAHoleProblems(t *testing.T) {
 		"KW1,30,70,-60,grid\nKW1,60,70,-60,grid\nKW2,30,70,-60,grid\nKW2,90,70,-60,grid\nKW3,30,70,-60,magnetic\n"), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	in, _, err := readQAInput(p("collars.csv"), p("surveys.csv"), p("structures.csv"), p("runs.csv"), "", "grid", math.NaN(), 0, false, io.Discard) // --grid-convergence 0
+	in, _, err := readQAInput(p("collars.csv"), p("surveys.csv"), p("structures.csv"), p("runs.csv"), "", qaHoles{"grid", math.NaN(), 0, false, northref.ModelAuto, ""}, io.Discard) // --grid-convergence 0
 	if err != nil {
 		t.Fatalf("one hole's station refused the whole input: %v", err)
 	}
@@ -241,5 +241,68 @@ func TestQACommandErrorModel(t *testing.T) {
 	}
 	if code, _, msg := run(`{"betta": 2}`); code != ExitUsage || !strings.Contains(msg, "betta") {
 		t.Errorf("unknown field: exit %d, %q", code, msg)
+	}
+}
+
+// corvane qa --model chooses the magnetic model as convert --model does: a
+// magnetic survey dated 2023 is corrected with IGRF-14 under the default
+// (auto) and the report's hole names model and decimal year; under wmm the
+// hole is a located problem naming the WMM's years and the other model.
+func TestQAModel(t *testing.T) {
+	dir := t.TempDir()
+	writeQAFiles(t, dir)
+	p := func(n string) string { return filepath.Join(dir, n) }
+	if err := os.WriteFile(p("collars.csv"), []byte("hole_id,easting,northing,elevation,azimuth,dip,depth,crs\nKW1,400000,6500000,350,70,-60,60,EPSG:32750\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	if err := os.WriteFile(p("surveys.csv"), []byte("hole_id,depth,azimuth,dip,azimuth_reference,survey_date\nKW1,30,70,-60,magnetic,2023-08-01\nKW1,60,70,-60,magnetic,2023-08-01\n"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	want, err := northref.CorrectionsModel(northref.ModelIGRF, "EPSG:32750", 400000, 6500000, 350, time.Date(2023, 8, 1, 0, 0, 0, 0, time.UTC), true, true)
+	if err != nil {
+		t.Fatal(err)
+	}
+	run := func(model string) qa.Report {
+		t.Helper()
+		args := []string{"qa", "--collars", p("collars.csv"), "--surveys", p("surveys.csv"), "--structures", p("structures.csv"), "--runs", p("runs.csv")}
+		if model != "" {
+			args = append(args, "--model", model)
+		}
+		code, out, errs := runWithEnv(t, nil, args...)
+		if code == ExitUsage {
+			t.Fatalf("qa --model %q: %d %s", model, code, errs)
+		}
+		var rep qa.Report
+		if err := json.Unmarshal([]byte(out), &rep); err != nil {
+			t.Fatal(err)
+		}
+		return rep
+	}
+	for _, m := range []string{"", "auto", "igrf"} {
+		rep := run(m)
+		if len(rep.Holes) != 1 || rep.Holes[0].DeclinationSource != "computed (IGRF-14 at 2023.5808)" {
+			t.Errorf("--model %q: holes %+v", m, rep.Holes)
+		}
+	}
+	in, _, err := readQAInput(p("collars.csv"), p("surveys.csv"), p("structures.csv"), p("runs.csv"), "", qaHoles{"grid", math.NaN(), math.NaN(), false, northref.ModelAuto, ""}, io.Discard)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if got, wantAz := in.Surveys[0].Azimuth, geom.NormAzimuth(70+want.Declination-want.Convergence); math.Abs(got-wantAz) > 1e-9 {
+		t.Errorf("station azimuth %v, want 70 + IGRF-14 declination - convergence = %v", got, wantAz)
+	}
+	rep := run("wmm")
+	found := false
+	for _, f := range rep.Findings {
+		if f.HoleID == "KW1" && f.Check == qa.CheckSurveyInvalid && f.Source == "surveys" &&
+			strings.Contains(f.Message, "WMM-2025 (2025.0 to 2030.0); IGRF-14 covers 1900.0 to 2030.0") {
+			found = true
+		}
+	}
+	if !found {
+		t.Errorf("--model wmm on a 2023 survey: findings %+v", rep.Findings)
+	}
+	if code, _, errs := runWithEnv(t, nil, "qa", "--collars", p("collars.csv"), "--surveys", p("surveys.csv"), "--structures", p("structures.csv"), "--runs", p("runs.csv"), "--model", "emm"); code != ExitUsage || !strings.Contains(errs, "auto, wmm, igrf") {
+		t.Errorf("--model emm: %d %q", code, errs)
 	}
 }

@@ -274,7 +274,8 @@ func TestComputedCorrections(t *testing.T) {
 		t.Fatalf("summary %+v: %v", sum, rows)
 	}
 	r := rows[0]
-	if r["declination_source"] != "computed" || !near(num(t, r["declination"]), res.Declination, 0.0005) || r["convergence_source"] != "none" {
+	// The source names the model and the decimal year of the survey date.
+	if r["declination_source"] != "computed (WMM-2025 at 2026.3288)" || !near(num(t, r["declination"]), res.Declination, 0.0005) || r["convergence_source"] != "none" {
 		t.Errorf("C1 %v, want declination %v computed", r, res.Declination)
 	}
 	if e := rows[1]["error"]; !strings.Contains(e, `hole "C2"`) || !strings.Contains(e, "crs") {
@@ -651,5 +652,52 @@ func TestConvertUnoriented(t *testing.T) {
 	}
 	if e := rows[3]["error"]; !strings.Contains(e, `column "alpha"`) {
 		t.Errorf("alpha out of range without beta: error %q", e)
+	}
+}
+
+// With sets by kind each set has its own instrument, and the uncertainty
+// follows the instrument of the set in use (domain.UsedSurvey): the same
+// stations surveyed by gyro and by magnetic instrument give the gyro's
+// narrower region when the gyro set is used, the magnetic's when it is.
+func TestUncertaintyFollowsSetInUse(t *testing.T) {
+	const structures = "hole_id,depth,alpha,beta,gamma\nH1,50,40,120,30\n"
+	surveys := "hole_id,depth,azimuth,dip,kind,instrument\n" +
+		"H1,0,0,-60,gyro,gyro\nH1,100,0,-60,gyro,\n" +
+		"H1,0,0,-60,magnetic,magnetic\nH1,100,0,-60,magnetic,magnetic\n"
+	cone := func(priority string) float64 {
+		hs := load(t, collarsCSV, surveys, Options{SurveyPriority: priority})
+		if h := hs.Hole("H1"); h.Survey != priority || h.In.Instrument != uncertainty.Instrument(priority) {
+			t.Fatalf("priority %s: hole uses %q with instrument %q", priority, h.Survey, h.In.Instrument)
+		}
+		rows, _ := run(t, hs, structures)
+		v, err := strconv.ParseFloat(rows[0][ColPoleCone95], 64)
+		if err != nil {
+			t.Fatalf("%q: %v", rows[0][ColPoleCone95], err)
+		}
+		return v
+	}
+	if g, m := cone("gyro"), cone("magnetic"); !(g < m) {
+		t.Errorf("gyro set in use: cone %v, not narrower than with the magnetic set in use %v", g, m)
+	}
+}
+
+// A magnetic survey dated 2023 is corrected under the default model choice
+// by IGRF-14 and says so; with the WMM chosen, the hole's error names the
+// WMM's years and the other model, and gives the survey date once, as typed.
+func TestOlderSurveyModelChoice(t *testing.T) {
+	collars := "hole_id,easting,northing,elevation,azimuth,dip,depth,crs\nC1,400000,6500000,350,0,-60,200,EPSG:32750\n"
+	surveys := "hole_id,depth,azimuth,dip,azimuth_reference,survey_date\nC1,0,40,-60,magnetic,2023-08-01\n"
+	res, err := northref.CorrectionsModel(northref.ModelIGRF, "EPSG:32750", 400000, 6500000, 350, time.Date(2023, 8, 1, 0, 0, 0, 0, time.UTC), true, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	rows, _ := run(t, load(t, collars, surveys, Options{Output: True}), "hole_id,depth,alpha,beta\nC1,50,45,90\n")
+	if r := rows[0]; r["declination_source"] != "computed (IGRF-14 at 2023.5808)" || !near(num(t, r["declination"]), res.Declination, 0.0005) {
+		t.Errorf("auto: %v, want IGRF-14 declination %v", r, res.Declination)
+	}
+	rows, _ = run(t, load(t, collars, surveys, Options{Output: True, MagneticModel: northref.ModelWMM}), "hole_id,depth,alpha,beta\nC1,50,45,90\n")
+	e := rows[0]["error"]
+	if !strings.Contains(e, `survey_date "2023-08-01": is outside the years of magnetic model WMM-2025 (2025.0 to 2030.0); IGRF-14 covers 1900.0 to 2030.0`) || strings.Count(e, "2023") != 1 {
+		t.Errorf("wmm: error %q", e)
 	}
 }

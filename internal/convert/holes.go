@@ -30,6 +30,7 @@ import (
 	"corvane/internal/desurvey"
 	"corvane/internal/domain"
 	"corvane/internal/holemodel"
+	"corvane/internal/northref"
 )
 
 // Reference is a north reference for azimuths.
@@ -85,6 +86,15 @@ type Options struct {
 	// to every hole whose collar row does not give its own (source
 	// "project").
 	Declination, GridConvergence Given
+	// MagneticModel chooses the model of computed declinations ("" is
+	// northref.ModelAuto).
+	MagneticModel northref.MagneticModel
+	// LocalGrid, when set, carries holes whose collar crs is "local" from
+	// that local grid into its projected grid (see [LocalGrid.Apply]).
+	LocalGrid *LocalGrid
+	// SurveyPriority orders survey set kinds for holes with sets by kind
+	// (canonical, see domain.ParseSurveyPriority); "" for none.
+	SurveyPriority string
 	// NoCompute turns off computing missing corrections with package
 	// northref; a hole that needs one then has an error.
 	NoCompute bool
@@ -118,6 +128,19 @@ type Hole struct {
 	// tail is the formatted reference and correction columns when they are
 	// the same on every row of the hole, nil otherwise.
 	tail []byte
+	// Survey names the survey the hole is built from (domain.UsedSurvey):
+	// "survey" (rows without a kind), a kind, "" when the hole has none.
+	Survey string
+	// Sets are the hole's survey sets by kind (rows with a kind column), each
+	// built by the hole model on its own, in kind order.
+	Sets []KindSet
+}
+
+// KindSet is one of a hole's survey sets by kind, built by the hole model
+// (its instrument, from the set's instrument column, is Hole.In.Instrument).
+type KindSet struct {
+	Kind string
+	Hole *holemodel.Hole
 }
 
 // Holes is a loaded programme: the desurveyed holes and the options.
@@ -189,8 +212,33 @@ func Build(crows []csvio.CollarRow, srows []csvio.SurveyRow, opt Options) (*Hole
 	}
 	p := opt.Project()
 	for _, c := range crows {
-		m := holemodel.New(HoleInput(c, byHole[c.HoleID]), p)
-		h := &Hole{Hole: m, ID: c.HoleID, Line: c.Line}
+		// The hole's rows by set: its survey set (no kind) and its sets by
+		// kind; the survey in use by the one rule of domain.UsedSurvey.
+		bySet := map[string][]csvio.SurveyRow{}
+		for _, r := range byHole[c.HoleID] {
+			bySet[r.Kind] = append(bySet[r.Kind], r)
+		}
+		var kinds []string
+		for _, k := range domain.SurveyKinds {
+			if len(bySet[k]) > 0 {
+				kinds = append(kinds, k)
+			}
+		}
+		used := domain.UsedSurvey(kinds, "", opt.SurveyPriority, len(bySet[""]) > 0)
+		key := used
+		if used == domain.SurveyOfHole {
+			key = ""
+		}
+		input := func(rows []csvio.SurveyRow) holemodel.Input {
+			in := HoleInput(c, rows)
+			opt.LocalGrid.Apply(&in, p.Output)
+			return in
+		}
+		m := holemodel.New(input(bySet[key]), p)
+		h := &Hole{Hole: m, ID: c.HoleID, Line: c.Line, Survey: used}
+		for _, k := range kinds {
+			h.Sets = append(h.Sets, KindSet{Kind: k, Hole: holemodel.New(input(bySet[k]), p)})
+		}
 		if m.Err != nil {
 			h.Err = Locate(m.Err, c.Line, cf, sf)
 		} else {
@@ -205,7 +253,7 @@ func Build(crows []csvio.CollarRow, srows []csvio.SurveyRow, opt Options) (*Hole
 // Project returns the holemodel project of the options: the value for all
 // holes is the project's default.
 func (o Options) Project() holemodel.Project {
-	p := holemodel.Project{Convention: o.Convention, Method: o.Method, Unit: o.Unit, Output: o.Output.String(), NoCompute: o.NoCompute}
+	p := holemodel.Project{Convention: o.Convention, Method: o.Method, Unit: o.Unit, Output: o.Output.String(), NoCompute: o.NoCompute, Model: o.MagneticModel}
 	if o.Declination.Set {
 		v := o.Declination.Value
 		p.Declination = &v
@@ -217,8 +265,10 @@ func (o Options) Project() holemodel.Project {
 	return p
 }
 
-// HoleInput is the neutral hole-model input of a collar row and the hole's
-// survey rows.
+// HoleInput is the neutral hole-model input of a collar row and the survey
+// rows of one of the hole's sets (the set in use, for the hole itself): the
+// set's instrument is the one its rows name (csvio.ReadSurveys allows one
+// per set).
 func HoleInput(c csvio.CollarRow, st []csvio.SurveyRow) holemodel.Input {
 	in := holemodel.Input{ID: c.HoleID, Collar: c.Collar, CollarRef: c.AzimuthRef, CRS: c.CRS, SurveyDate: c.SurveyDate,
 		Declination: given(c.Declination), GridConvergence: given(c.GridConvergence)}

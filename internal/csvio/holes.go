@@ -2,14 +2,17 @@ package csvio
 
 import (
 	"corvane/internal/uncertainty"
+	"fmt"
 	"io"
 	"math"
 	"math/bits"
+	"slices"
 	"strconv"
 	"strings"
 	"time"
 
 	"corvane/internal/desurvey"
+	"corvane/internal/domain"
 )
 
 // CollarRow is one row of a collars file.
@@ -94,9 +97,13 @@ type SurveyRow struct {
 	// Date is the survey date (survey_date column, YYYY-MM-DD); zero when
 	// not given.
 	Date time.Time
-	// Instrument is the kind of survey instrument (instrument column:
-	// magnetic, gyro or unknown), "" when not given. Every row of a hole
-	// that gives one must give the same.
+	// Kind is the kind of survey set the row belongs to (gyro, magnetic,
+	// planned, other; kind column), "" for the hole's survey set.
+	Kind string
+	// Instrument is the kind of survey instrument of the row's set
+	// (instrument column: magnetic, gyro or unknown), "" when not given.
+	// Every row of one set (a hole's survey set, or its set of a kind) that
+	// gives one must give the same.
 	Instrument uncertainty.Instrument
 }
 
@@ -104,10 +111,11 @@ type SurveyRow struct {
 var SurveyColumns = []string{ColHoleID, ColDepth, ColAzimuth, ColDip}
 
 // ReadSurveys reads a whole surveys file: hole_id, depth (>= 0), azimuth
-// (0..360) and dip (-90..90); optional azimuth_reference, survey_date and
-// instrument (magnetic, gyro or unknown; one per hole).
-// The stations of each hole must come in strictly increasing depth order (the
-// holes may be interleaved). Errors as for [ReadCollars].
+// (0..360) and dip (-90..90); optional azimuth_reference, survey_date, kind
+// and instrument (magnetic, gyro or unknown; one per set). The stations of
+// each hole's set (its survey set, or its set of a kind) must come in
+// strictly increasing depth order (the holes and sets may be interleaved).
+// Errors as for [ReadCollars].
 func ReadSurveys(r io.Reader, file string) ([]SurveyRow, error) {
 	type last struct {
 		depth float64
@@ -118,19 +126,23 @@ func ReadSurveys(r io.Reader, file string) ([]SurveyRow, error) {
 		k    uncertainty.Instrument
 		line int
 	}
-	inst := map[string]named{} // the first row of each hole that names an instrument
+	inst := map[string]named{} // the first row of each set that names an instrument
 	return readRows(r, file, "survey", SurveyColumns, func(rw *row) SurveyRow {
 		line := rw.line
-		s := SurveyRow{Line: line, HoleID: rw.cell(ColHoleID)}
+		s := SurveyRow{Line: line, HoleID: rw.cell(ColHoleID), Kind: strings.ToLower(rw.cell(ColKind))}
 		if s.HoleID == "" {
 			rw.fail(ColHoleID, "hole_id is empty")
 		}
+		if s.Kind != "" && !slices.Contains(domain.SurveyKinds, s.Kind) {
+			rw.fail(ColKind, "kind %q is not one of %s (or empty for the hole's survey set)", rw.cell(ColKind), strings.Join(domain.SurveyKinds, ", "))
+		}
+		key := s.HoleID + "\x00" + s.Kind
 		var ok bool
 		s.Station.Depth, ok = rw.num(ColDepth, true)
 		if ok && s.Station.Depth < 0 {
 			rw.fail(ColDepth, "depth %g is negative", s.Station.Depth)
 		}
-		if p, seen := prev[s.HoleID]; ok && seen && rw.bad == nil {
+		if p, seen := prev[key]; ok && seen && rw.bad == nil {
 			if s.Station.Depth == p.depth {
 				rw.fail(ColDepth, "depth %g of hole %q repeats line %d", s.Station.Depth, s.HoleID, p.line)
 			} else if s.Station.Depth < p.depth {
@@ -151,18 +163,27 @@ func ReadSurveys(r io.Reader, file string) ([]SurveyRow, error) {
 			k, err := uncertainty.ParseInstrument(c)
 			if err != nil {
 				rw.fail(ColInstrument, "%v", err)
-			} else if p, seen := inst[s.HoleID]; seen && p.k != k {
-				rw.fail(ColInstrument, "instrument %q of hole %q differs from %q on line %d: one instrument per hole", k, s.HoleID, p.k, p.line)
+			} else if p, seen := inst[key]; seen && p.k != k {
+				rw.fail(ColInstrument, "instrument %q of %s differs from %q on line %d: one instrument per survey set", k, setName(s), p.k, p.line)
 			} else if !seen {
-				inst[s.HoleID] = named{k, line}
+				inst[key] = named{k, line}
 			}
 			s.Instrument = k
 		}
 		if rw.bad == nil {
-			prev[s.HoleID] = last{s.Station.Depth, line}
+			prev[key] = last{s.Station.Depth, line}
 		}
 		return s
 	})
+}
+
+// setName names a row's survey set in messages: the hole's survey set, or
+// its set of a kind.
+func setName(s SurveyRow) string {
+	if s.Kind == "" {
+		return fmt.Sprintf("the survey set of hole %q", s.HoleID)
+	}
+	return fmt.Sprintf("the %s survey set of hole %q", s.Kind, s.HoleID)
 }
 
 // Run confidence ratings, best first. A run rated ConfidenceNone is unusable:

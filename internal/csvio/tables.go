@@ -42,7 +42,8 @@ const (
 	ColAzimuthRef      = "azimuth_reference"
 	ColCRS             = "crs"
 	ColSurveyDate      = "survey_date"
-	ColInstrument      = "instrument"
+	ColKind            = "kind"       // surveys: the kind of survey set a row belongs to
+	ColInstrument      = "instrument" // surveys: the instrument of that set
 	ColAlpha           = "alpha"
 	ColBeta            = "beta"
 	ColGamma           = "gamma"

@@ -12,6 +12,7 @@ import (
 	"testing"
 
 	"corvane/internal/domain"
+	"corvane/internal/uncertainty"
 )
 
 func problems(t *testing.T, err error) []*domain.Error {
@@ -112,6 +113,41 @@ func TestReadSurveys(t *testing.T) {
 	if len(ps) != 4 || !strings.Contains(ps[0].Msg, "repeats line 2") || ps[0].Loc.Column != "depth" ||
 		!strings.Contains(ps[1].Msg, "sorted by depth") || ps[1].Loc.Line != 4 ||
 		ps[2].Loc.Column != "azimuth_reference" || ps[3].Loc.Column != "survey_date" {
+		t.Fatalf("problems: %v", ps)
+	}
+}
+
+// The instrument belongs to a survey set: each set by kind has its own, the
+// hole's survey set (rows without a kind) one, and a second instrument within
+// one set is refused at its row, naming the set and the first row.
+func TestReadSurveysInstrumentPerSet(t *testing.T) {
+	in := "hole_id,depth,azimuth,dip,kind,instrument\n" +
+		"A,0,45,-60,,Magnetic\n" +
+		"A,0,44,-60,gyro,gyro\n" +
+		"A,0,45,-60,magnetic,magnetic\n" +
+		"A,30,46,-59,,\n" + // not given: the set's, read as absent
+		"A,30,45,-59,gyro,GYRO\n"
+	rows, err := ReadSurveys(strings.NewReader(in), "s.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := []uncertainty.Instrument{uncertainty.Magnetic, uncertainty.Gyro, uncertainty.Magnetic, "", uncertainty.Gyro}
+	for i, r := range rows {
+		if r.Instrument != want[i] {
+			t.Errorf("row %d instrument %q, want %q", i+1, r.Instrument, want[i])
+		}
+	}
+	bad := "hole_id,depth,azimuth,dip,kind,instrument\n" +
+		"A,0,44,-60,gyro,gyro\n" +
+		"A,0,45,-60,,gyro\n" +
+		"A,30,45,-59,gyro,magnetic\n" + // a second instrument in the gyro set
+		"A,30,46,-59,,unknown\n" + // and in the survey set
+		"A,40,46,-59,,compass\n"
+	_, err = ReadSurveys(strings.NewReader(bad), "s.csv")
+	ps := problems(t, err)
+	if len(ps) != 3 || ps[0].Loc.Line != 4 || ps[0].Loc.Column != "instrument" || !strings.Contains(ps[0].Msg, `the gyro survey set of hole "A" differs from "gyro" on line 2`) ||
+		ps[1].Loc.Line != 5 || !strings.Contains(ps[1].Msg, `the survey set of hole "A" differs from "gyro" on line 3`) ||
+		ps[2].Loc.Line != 6 || !strings.Contains(ps[2].Msg, "want magnetic, gyro or unknown") {
 		t.Fatalf("problems: %v", ps)
 	}
 }

@@ -45,14 +45,15 @@ func date(t time.Time) string {
 }
 
 // WriteSurveys writes rows as a surveys file that [ReadSurveys] reads back:
-// hole_id, depth, azimuth, dip, azimuth_reference, survey_date.
+// hole_id, depth, azimuth, dip, azimuth_reference, survey_date, kind,
+// instrument.
 func WriteSurveys(w io.Writer, rows []SurveyRow) error {
 	cw := NewWriter(w)
-	cw.Strings(append(append([]string{}, SurveyColumns...), ColAzimuthRef, ColSurveyDate))
+	cw.Strings(append(append([]string{}, SurveyColumns...), ColAzimuthRef, ColSurveyDate, ColKind, ColInstrument))
 	cw.EndRow()
 	for _, r := range rows {
 		s := r.Station
-		cw.Strings([]string{r.HoleID, num(s.Depth), num(s.Azimuth), num(s.Dip), r.AzimuthRef, date(r.Date)})
+		cw.Strings([]string{r.HoleID, num(s.Depth), num(s.Azimuth), num(s.Dip), r.AzimuthRef, date(r.Date), r.Kind, string(r.Instrument)})
 		cw.EndRow()
 	}
 	return cw.Flush()

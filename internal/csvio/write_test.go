@@ -39,6 +39,9 @@ func TestWriteReadRoundTrip(t *testing.T) {
 			}
 			surveys = append(surveys, SurveyRow{HoleID: id, Station: desurvey.Station{Depth: d, Azimuth: r.Float64() * 360, Dip: -r.Float64() * 90},
 				AzimuthRef: []string{"", "magnetic"}[r.IntN(2)], Date: date})
+			// The same depth again in a set by kind of the hole.
+			surveys = append(surveys, SurveyRow{HoleID: id, Station: desurvey.Station{Depth: d, Azimuth: r.Float64() * 360, Dip: -r.Float64() * 90},
+				Kind: "gyro", Instrument: "gyro"})
 			runs = append(runs, RunRow{HoleID: id, From: d, To: d + 0.1 + r.Float64()*3, Confidence: Confidences[r.IntN(4)], Mismatch: opt(r.Float64() * 180)})
 		}
 	}
@@ -67,7 +70,7 @@ func TestWriteReadRoundTrip(t *testing.T) {
 	}
 	for i, s := range surveys {
 		g := gotS[i]
-		if g.HoleID != s.HoleID || g.Station != s.Station || g.AzimuthRef != s.AzimuthRef || !g.Date.Equal(s.Date) {
+		if g.HoleID != s.HoleID || g.Station != s.Station || g.AzimuthRef != s.AzimuthRef || !g.Date.Equal(s.Date) || g.Kind != s.Kind || g.Instrument != s.Instrument {
 			t.Fatalf("survey %d: %+v, wrote %+v", i, g, s)
 		}
 	}

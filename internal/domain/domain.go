@@ -14,6 +14,8 @@ package domain
 import (
 	"corvane/internal/uncertainty"
 	"encoding/json"
+	"slices"
+	"strings"
 	"time"
 )
 
@@ -31,6 +33,10 @@ const (
 
 	UnitMetre = "m"
 	UnitFoot  = "ft"
+
+	MagneticAuto = "auto" // magnetic model choices (package northref's words)
+	MagneticWMM  = "wmm"
+	MagneticIGRF = "igrf"
 
 	AzimuthTrue     = "true"
 	AzimuthGrid     = "grid"
@@ -57,23 +63,36 @@ type Project struct {
 	// D); nil until someone sets it. It applies to magnetic azimuths of holes
 	// without a declination of their own (survey set, then hole); when it is
 	// unset the declination is computed from the collar's crs and the survey
-	// date, and a hole where that is impossible has an error.
+	// date with the project's magnetic model, and a hole where that is
+	// impossible has an error.
 	Declination *float64 `json:"declination"`
 	// Convergence is the project's default grid convergence in degrees,
 	// positive when grid north is east of true north (grid = true - C); nil
 	// until someone sets it. It applies to holes without their own; when it
-	// is unset it is computed from the collar's crs label (a UTM EPSG code).
+	// is unset it is computed from the collar's crs label (an EPSG code).
 	Convergence *float64 `json:"convergence"`
+	// MagneticModel chooses the model of computed declinations: "auto"
+	// (default: the World Magnetic Model for 2025.0-2030.0, IGRF-14 before),
+	// "wmm" or "igrf".
+	MagneticModel string `json:"magnetic_model"`
+	// LocalGrid declares the project's local (mine) grid, null when none: a
+	// JSON object of package localgrid's Spec (name, grid_crs, and rotation,
+	// scale, origin or control_points). The service checks it.
+	LocalGrid json.RawMessage `json:"local_grid"`
 	// ErrorModel is the project's standard errors for the uncertainty of
 	// its orientations (package uncertainty; a zero field is its default).
 	ErrorModel uncertainty.Model `json:"error_model"`
 	// PersistentFabric is the type code of the fabric that runs through
 	// the holes (e.g. bedding), used by the QA's fabric checks when a
 	// request names none; "" when not set.
-	PersistentFabric string    `json:"persistent_fabric"`
-	Version          int64     `json:"version"`
-	CreatedAt        time.Time `json:"created_at"`
-	UpdatedAt        time.Time `json:"updated_at"`
+	PersistentFabric string `json:"persistent_fabric"`
+	// SurveyPriority orders the survey set kinds for holes with several
+	// sets and none preferred, e.g. "gyro,magnetic,planned": the first kind a
+	// hole has is used. "" leaves such holes on their survey set.
+	SurveyPriority string    `json:"survey_priority"`
+	Version        int64     `json:"version"`
+	CreatedAt      time.Time `json:"created_at"`
+	UpdatedAt      time.Time `json:"updated_at"`
 }
 
 // TypeCode is one word of a project's structure vocabulary, e.g. "BD" for
@@ -159,6 +178,88 @@ type SurveySet struct {
 	Stations   []Station `json:"stations"`
 	Version    int64     `json:"version"`
 	UpdatedAt  time.Time `json:"updated_at"`
+}
+
+// Kinds of survey set: a hole may have one set of each kind beside its
+// survey set (see [KindSet]).
+const (
+	SurveyGyro     = "gyro"
+	SurveyMagnetic = "magnetic"
+	SurveyPlanned  = "planned"
+	SurveyOther    = "other"
+)
+
+// SurveyKinds lists the kinds in the order files and messages show them.
+var SurveyKinds = []string{SurveyGyro, SurveyMagnetic, SurveyPlanned, SurveyOther}
+
+// KindSet is one of a hole's several survey sets, at most one of each kind
+// (a gyro survey after a magnetic single-shot one, the planned path). Each
+// is replaced as a whole. At most one set of a hole is Preferred; without
+// one the project's SurveyPriority chooses, and without either the hole's
+// survey set ([SurveySet]) is used. The set in use is the one derived
+// values, paths and corrections are built from, and they name it.
+type KindSet struct {
+	HoleID int64 `json:"hole_id"`
+	// Kind is gyro, magnetic, planned or other.
+	Kind string `json:"kind"`
+	// Instrument is the kind of survey instrument that made the set:
+	// "magnetic", "gyro" or "unknown" (the default), for the survey's share
+	// of the uncertainty of measurements when the set is in use.
+	Instrument string `json:"instrument"`
+	// AzimuthRef is the north the station azimuths were measured from:
+	// "true", "grid" or "magnetic".
+	AzimuthRef string `json:"azimuth_ref"`
+	SurveyDate string `json:"survey_date"` // YYYY-MM-DD or empty
+	// Declination is a declination given with the set for its magnetic
+	// azimuths; nil means none (the hole's, the project's or a computed one).
+	Declination *float64  `json:"declination"`
+	Preferred   bool      `json:"preferred"`
+	Stations    []Station `json:"stations"`
+	Version     int64     `json:"version"`
+	UpdatedAt   time.Time `json:"updated_at"`
+}
+
+// SurveyOfHole names the hole's survey set where a survey in use is named
+// ("survey"); a set by kind is named by its kind.
+const SurveyOfHole = "survey"
+
+// UsedSurvey is the one rule that picks the survey a hole's derived values,
+// path and corrections are built from, at every door: the kind of its
+// preferred set (preferred, "" when none); else the first kind of the
+// project's priority (canonical, see [ParseSurveyPriority]) the hole has;
+// else its survey set ("survey") when it has one; else its first kind in the
+// order gyro, magnetic, planned, other. kinds are the kinds of the hole's
+// sets. "" when the hole has no survey at all.
+func UsedSurvey(kinds []string, preferred, priority string, hasSurvey bool) string {
+	if preferred != "" {
+		return preferred
+	}
+	if priority != "" {
+		for _, k := range strings.Split(priority, ",") {
+			if slices.Contains(kinds, k) {
+				return k
+			}
+		}
+	}
+	if hasSurvey {
+		return SurveyOfHole
+	}
+	for _, k := range SurveyKinds {
+		if slices.Contains(kinds, k) {
+			return k
+		}
+	}
+	return ""
+}
+
+// Survey returns the set as a [SurveySet], the shape the hole model reads.
+func (k KindSet) Survey() SurveySet {
+	ss := SurveySet{HoleID: k.HoleID, AzimuthRef: k.AzimuthRef, SurveyDate: k.SurveyDate, Declination: k.Declination,
+		Instrument: k.Instrument, Stations: k.Stations, Version: k.Version, UpdatedAt: k.UpdatedAt}
+	if k.Declination != nil {
+		ss.DeclinationSource = SourceGiven
+	}
+	return ss
 }
 
 // Run confidence ratings, best first.

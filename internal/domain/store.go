@@ -112,6 +112,15 @@ type Store interface {
 	PutSurvey(ctx context.Context, s *SurveySet, ifVersion int64) error
 	DeleteSurvey(ctx context.Context, holeID, ifVersion int64) error
 
+	// ListKindSets returns the hole's survey sets by kind (gyro, magnetic,
+	// planned, other order), stations in depth order; none is an empty list.
+	ListKindSets(ctx context.Context, holeID int64) ([]KindSet, error)
+	// PutKindSet replaces the hole's set of k.Kind whole, like PutSurvey
+	// (ifVersion 0 creates). When k.Preferred, the hole's other sets stop
+	// being preferred (their versions move on).
+	PutKindSet(ctx context.Context, k *KindSet, ifVersion int64) error
+	DeleteKindSet(ctx context.Context, holeID int64, kind string, ifVersion int64) error
+
 	CreateRun(ctx context.Context, r *Run) error
 	GetRun(ctx context.Context, id int64) (Run, error)
 	// ListRuns lists the hole's runs ordered by From depth (all of them; a

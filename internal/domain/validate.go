@@ -140,6 +140,15 @@ func (p *Project) Normalize() error {
 	def(&p.GammaSense, GammaClockwise)
 	def(&p.LengthUnit, UnitMetre)
 	def(&p.OutputAzimuthRef, AzimuthGrid)
+	def(&p.MagneticModel, MagneticAuto)
+	pr, e := ParseSurveyPriority(p.SurveyPriority)
+	if e != nil {
+		return e
+	}
+	p.SurveyPriority = pr
+	if string(p.LocalGrid) == "null" {
+		p.LocalGrid = nil
+	}
 	if p.Name == "" {
 		return FieldErr("name", "name must be 1 to %d characters", MaxNameLen)
 	}
@@ -152,6 +161,7 @@ func (p *Project) Normalize() error {
 		checkOneOf("gamma_sense", p.GammaSense, GammaClockwise, GammaAnticlockwise),
 		checkOneOf("length_unit", p.LengthUnit, UnitMetre, UnitFoot),
 		checkOneOf("output_azimuth_ref", p.OutputAzimuthRef, AzimuthGrid, AzimuthTrue),
+		checkOneOf("magnetic_model", p.MagneticModel, MagneticAuto, MagneticWMM, MagneticIGRF),
 		checkOptRange("declination", p.Declination, -180, 180),
 		checkOptRange("convergence", p.Convergence, -90, 90),
 	} {
@@ -318,6 +328,42 @@ func (s *SurveySet) Normalize() error {
 		}
 	}
 	return nil
+}
+
+// Normalize validates k: a known kind and the rules of a [SurveySet]
+// (reference, date, instrument, declination, stations).
+func (k *KindSet) Normalize() error {
+	k.Kind = strings.ToLower(strings.TrimSpace(k.Kind))
+	if e := checkOneOf("kind", k.Kind, SurveyKinds...); e != nil {
+		return e
+	}
+	ss := k.Survey()
+	if e := ss.Normalize(); e != nil {
+		return e
+	}
+	k.AzimuthRef = ss.AzimuthRef
+	k.Instrument = ss.Instrument
+	return nil
+}
+
+// ParseSurveyPriority reads a survey priority: kinds separated by commas,
+// each at most once, in any case; "" is none. It returns the canonical text.
+func ParseSurveyPriority(s string) (string, *Error) {
+	if strings.TrimSpace(s) == "" {
+		return "", nil
+	}
+	var out []string
+	for _, w := range strings.Split(s, ",") {
+		k := strings.ToLower(strings.TrimSpace(w))
+		if !slices.Contains(SurveyKinds, k) {
+			return "", FieldErr("survey_priority", "survey_priority: %q is not a survey set kind (want kinds among %s, separated by commas)", w, strings.Join(SurveyKinds, ", "))
+		}
+		if slices.Contains(out, k) {
+			return "", FieldErr("survey_priority", "survey_priority: %s is named twice", k)
+		}
+		out = append(out, k)
+	}
+	return strings.Join(out, ","), nil
 }
 
 // Normalize validates r: 0 <= From < To, a known confidence, mismatch in [0, 180].

@@ -34,13 +34,17 @@ import (
 // hole is one straight hole of a fixture: its true direction, how its
 // azimuths are recorded, and the planes logged in it.
 type hole struct {
-	id                   string
-	east, north, elev    float64
-	trueAz, dip, depth   float64
-	crs                  string
-	ref                  string // survey azimuth reference ("" = output reference)
-	decl, conv           string // collar declination, grid_convergence cells
-	collarDate, stDate   string // collar survey_date cell, survey rows' survey_date
+	id                 string
+	east, north, elev  float64
+	trueAz, dip, depth float64
+	crs                string
+	ref                string // survey azimuth reference ("" = output reference)
+	decl, conv         string // collar declination, grid_convergence cells
+	collarDate, stDate string // collar survey_date cell, survey rows' survey_date
+	// model is the magnetic model the programme chooses ("" is auto) and
+	// wantSource the declination_source every door must report, "" to skip.
+	model                northref.MagneticModel
+	wantSource           string
 	planes               []geom.Plane
 	lines                bool // log a lineation (the plane's dip line) with each plane
 	alphaBeta            [][2]float64
@@ -91,7 +95,17 @@ func programmes() []programme {
 			{id: "C1", east: 402500, north: 7402500, elev: 420, trueAz: 140, dip: -70, depth: 250, crs: "EPSG:32750", ref: "magnetic", stDate: "2026-05-04", planes: planes, lines: true},
 			// The date from the collar, for survey rows without one.
 			{id: "C2", east: 403500, north: 7403500, elev: 380, trueAz: 200, dip: -62, depth: 200, crs: "EPSG:32750", ref: "magnetic", collarDate: "2028-11-20", planes: planes},
+			// A survey before WMM2025's years: IGRF-14 under auto.
+			{id: "C3", east: 404500, north: 7402500, elev: 400, trueAz: 65, dip: -58, depth: 180, crs: "EPSG:32750", ref: "magnetic", stDate: "2023-08-01",
+				planes: planes, lines: true, wantSource: "computed (IGRF-14 at 2023.5808)"},
 		}},
+		{name: "magnetic-model-igrf", out: "grid", flags: []string{"--model", "igrf"}, project: map[string]any{"magnetic_model": "igrf"},
+			holes: []hole{
+				{id: "G1", east: 402500, north: 7402500, elev: 420, trueAz: 140, dip: -70, depth: 250, crs: "EPSG:32750", ref: "magnetic", stDate: "2026-05-04",
+					model: northref.ModelIGRF, planes: planes, lines: true, wantSource: "computed (IGRF-14 at 2026.3370)"},
+				{id: "G2", east: 403500, north: 7403500, elev: 380, trueAz: 200, dip: -62, depth: 200, crs: "EPSG:32750", ref: "magnetic", stDate: "1998-02-10",
+					model: northref.ModelIGRF, planes: planes, wantSource: "computed (IGRF-14 at 1998.1096)"},
+			}},
 		{name: "true-output", out: "true", flags: []string{"--output-reference", "true"}, project: map[string]any{"output_azimuth_ref": "true"},
 			holes: []hole{
 				{id: "O1", east: 1000, north: 2000, elev: 100, trueAz: 10, dip: -60, depth: 150, ref: "grid", conv: "1.5", planes: planes, lines: true},
@@ -153,7 +167,7 @@ func (h hole) corrections(t *testing.T, feet bool) (decl, conv float64) {
 	if feet {
 		elev *= 0.3048
 	}
-	r, err := northref.Corrections(h.crs, h.east, h.north, elev, when, h.decl == "" && h.ref == "magnetic", h.conv == "")
+	r, err := northref.CorrectionsModel(h.model, h.crs, h.east, h.north, elev, when, h.decl == "" && h.ref == "magnetic", h.conv == "")
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -668,6 +682,9 @@ func checkForwardModel(t *testing.T, pg programme, rows []row, got []map[string]
 		}
 		if (h.ref == "magnetic") != (g[convert.ColDeclinationSource] != "none") {
 			t.Errorf("%s %s: declination %s from %s with %q surveys", pg.name, r.hole, g[convert.ColDeclination], g[convert.ColDeclinationSource], h.ref)
+		}
+		if h.wantSource != "" && g[convert.ColDeclinationSource] != h.wantSource {
+			t.Errorf("%s %s: declination source %q, want %q", pg.name, r.hole, g[convert.ColDeclinationSource], h.wantSource)
 		}
 	}
 }

@@ -22,7 +22,9 @@
 //     the survey set first, then the hole's own) — source "given";
 //  2. the project's default, when someone set it — source "project";
 //  3. computed by package northref from the collar's crs label and position
-//     (and, for the declination, the survey date) — source "computed".
+//     (and, for the declination, the survey date with the project's magnetic
+//     model) — source "computed"; a computed declination's source names the
+//     model and decimal year, e.g. "computed (IGRF-14 at 2023.5808)".
 //
 // A correction is looked up only when an azimuth needs it, and only what was
 // applied is reported (source "none" otherwise). A correction that is needed
@@ -41,6 +43,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"slices"
 	"strings"
 	"time"
 
@@ -63,11 +66,20 @@ type Source string
 
 // The sources of a correction.
 const (
-	SourceNone     Source = "none"     // not applied: no azimuth needed it
-	SourceGiven    Source = "given"    // a number given for the hole or its survey
-	SourceProject  Source = "project"  // the project's default, set by someone
-	SourceComputed Source = "computed" // computed by package northref
+	SourceNone    Source = "none"    // not applied: no azimuth needed it
+	SourceGiven   Source = "given"   // a number given for the hole or its survey
+	SourceProject Source = "project" // the project's default, set by someone
+	// SourceComputed is a correction computed by package northref; a
+	// computed declination's source adds the model and decimal year in
+	// brackets ([Source.Computed] tells both apart from the others).
+	SourceComputed Source = "computed"
 )
+
+// Computed reports whether s is SourceComputed, with or without the model
+// and year of a computed declination.
+func (s Source) Computed() bool {
+	return s == SourceComputed || strings.HasPrefix(string(s), string(SourceComputed)+" (")
+}
 
 // Fields named by an [Error]: the column names of the files.
 const (
@@ -130,6 +142,9 @@ type Project struct {
 	// NoCompute turns off computing a missing correction with package
 	// northref; a hole that needs one then has an error.
 	NoCompute bool
+	// Model chooses the magnetic model of computed declinations ("" is
+	// northref.ModelAuto: WMM2025 for 2025-2030, IGRF-14 before).
+	Model northref.MagneticModel
 }
 
 // Correction is a declination or grid convergence as applied.
@@ -212,6 +227,20 @@ func (h *Hole) Declination(md float64) Correction {
 		}
 	}
 	return h.decl[lo].c
+}
+
+// DeclinationSource says where the declinations applied to the hole came
+// from: the distinct sources in depth order joined by "; " (a computed one
+// names its model and decimal year), "" when no magnetic azimuth was
+// involved.
+func (h *Hole) DeclinationSource() string {
+	var out []string
+	for i, x := range h.decl {
+		if i == 0 || !slices.Contains(out, string(x.c.Source)) {
+			out = append(out, string(x.c.Source))
+		}
+	}
+	return strings.Join(out, "; ")
 }
 
 // ConstantDeclination reports whether the declination is the same at every
@@ -342,7 +371,7 @@ func New(in Input, p Project) *Hole {
 		if v, ok := computed[date]; ok {
 			return v, nil
 		}
-		res, err := northref.Corrections(in.CRS, in.Collar.East, in.Collar.North, elev, date, true, false)
+		res, err := northref.CorrectionsModel(p.Model, in.CRS, in.Collar.East, in.Collar.North, elev, date, true, false)
 		if err != nil {
 			e := errorf(FieldDeclination, "hole %q: magnetic azimuths need a declination and it cannot be computed: %v; give it for the hole (declination) or as the project's default", in.ID, err)
 			e.Station = station
@@ -354,7 +383,7 @@ func New(in Input, p Project) *Hole {
 		if c := res.Caution(); c != "" && len(h.Cautions) == 0 {
 			h.Cautions = append(h.Cautions, c)
 		}
-		v := Correction{res.Declination, SourceComputed}
+		v := Correction{res.Declination, Source(res.ComputedSource())}
 		computed[date] = v
 		return v, nil
 	}

@@ -10,6 +10,7 @@ import (
 
 	"corvane/internal/coreangle"
 	"corvane/internal/desurvey"
+	"corvane/internal/igrf"
 	"corvane/internal/northref"
 	"corvane/internal/uncertainty"
 )
@@ -47,7 +48,7 @@ func TestCorrectionsAndPrecedence(t *testing.T) {
 		{"project defaults", func(in *Input) {}, Project{Declination: f(3), GridConvergence: f(-1)},
 			Correction{3, SourceProject}, Correction{-1, SourceProject}},
 		{"computed", func(in *Input) { in.SurveyDate = date }, Project{},
-			Correction{want.Declination, SourceComputed}, Correction{want.Convergence, SourceComputed}},
+			Correction{want.Declination, Source(want.ComputedSource())}, Correction{want.Convergence, SourceComputed}},
 	}
 	for _, c := range cases {
 		t.Run(c.name, func(t *testing.T) {
@@ -295,5 +296,49 @@ func TestUncertainty(t *testing.T) {
 	r, _ := h.Orient(m)
 	if _, ok := h.Uncertainty(ms, em, &r, m, "good", math.NaN()); ok {
 		t.Error("regions in a vertical hole")
+	}
+}
+
+// The project's magnetic model chooses the model of computed declinations,
+// and the source names model and decimal year: a 2023 magnetic survey under
+// auto is computed with IGRF-14 (WMM2025 starts in 2025.0), with the same
+// value as package igrf gives at the collar; under wmm the hole has an
+// error naming the WMM's years and the other model.
+func TestMagneticModelChoice(t *testing.T) {
+	old := time.Date(2023, 8, 1, 0, 0, 0, 0, time.UTC)
+	want, err := northref.CorrectionsModel(northref.ModelIGRF, "EPSG:32750", 500000, 7000000, 400, old, true, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	fld, err := igrf.Default().At(want.Lat, want.Lon, 0.4, northref.DecimalYear(old))
+	if err != nil || fld.Declination != want.Declination {
+		t.Fatalf("IGRF-14 at the collar: %v %v, northref gives %v", fld.Declination, err, want.Declination)
+	}
+	for _, m := range []northref.MagneticModel{"", northref.ModelAuto, northref.ModelIGRF} {
+		in := input(Magnetic)
+		in.SurveyDate = old
+		h := New(in, Project{GridConvergence: f(0), Model: m})
+		if h.Err != nil {
+			t.Fatalf("model %q: %v", m, h.Err)
+		}
+		d := h.Declination(50)
+		if d.Value != want.Declination || d.Source != "computed (IGRF-14 at 2023.5808)" || !d.Source.Computed() {
+			t.Errorf("model %q: declination %+v, want %v computed (IGRF-14 at 2023.5808)", m, d, want.Declination)
+		}
+	}
+	in := input(Magnetic)
+	in.SurveyDate = old
+	h := New(in, Project{GridConvergence: f(0), Model: northref.ModelWMM})
+	if h.Err == nil || h.Err.Field != FieldDeclination || !strings.Contains(h.Err.Msg, "WMM-2025 (2025.0 to 2030.0); IGRF-14 covers 1900.0 to 2030.0") {
+		t.Errorf("2023 under wmm: %v", h.Err)
+	}
+	// A recent survey under igrf: IGRF-14's value, named so.
+	in.SurveyDate = time.Date(2026, 3, 1, 0, 0, 0, 0, time.UTC)
+	h = New(in, Project{GridConvergence: f(0), Model: northref.ModelIGRF})
+	if d := h.Declination(0); h.Err != nil || !strings.HasPrefix(string(d.Source), "computed (IGRF-14 at 2026.") {
+		t.Errorf("2026 under igrf: %+v %v", d, h.Err)
+	}
+	if SourceProject.Computed() || !SourceComputed.Computed() {
+		t.Error("Source.Computed")
 	}
 }

@@ -287,8 +287,14 @@ func TestContractTour(t *testing.T) {
 	f.must(200, f.site, "PUT", hb+"/survey", map[string]any{"azimuth_ref": "grid",
 		"stations": []map[string]float64{{"depth": 0, "azimuth": 120, "dip": -65}, {"depth": 200, "azimuth": 125, "dip": -62}}}, nil, "If-None-Match", "*")
 	f.must(200, f.site, "GET", hb+"/survey", nil, nil)
+	f.must(200, f.site, "PUT", hb+"/surveys/gyro", map[string]any{"instrument": "gyro", "azimuth_ref": "grid", "preferred": true,
+		"stations": []map[string]float64{{"depth": 0, "azimuth": 121, "dip": -65}, {"depth": 150, "azimuth": 124, "dip": -63}}}, nil, "If-None-Match", "*")
+	f.must(200, f.site, "PUT", hb+"/surveys/planned", map[string]any{"stations": []map[string]float64{{"depth": 0, "azimuth": 120, "dip": -65}}}, nil, "If-None-Match", "*")
+	f.must(200, f.site, "GET", hb+"/surveys", nil, nil)
+	f.must(204, f.site, "DELETE", hb+"/surveys/planned", nil, nil, "If-Match", `"1"`)
 	f.must(200, f.site, "GET", hb+"/path?step=10", nil, nil)
 	f.must(200, f.site, "GET", base+"/holes.csv", nil, nil)
+	f.must(200, f.site, "GET", base+"/surveys.csv", nil, nil)
 	f.must(200, f.site, "POST", hb+"/preview", map[string]any{"measurements": []map[string]any{{"depth": 2, "alpha": 30, "beta": 200, "gamma": 40}}}, nil)
 	var run domain.Run
 	f.must(201, f.site, "POST", hb+"/runs", map[string]any{"from": 0, "to": 3, "confidence": "good"}, &run)

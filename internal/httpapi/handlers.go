@@ -343,6 +343,15 @@ func (s *Server) getSurvey(c *gin.Context) {
 	c.JSON(http.StatusOK, ss)
 }
 
+// putVersion is the version a replace-whole PUT expects: 0 with
+// If-None-Match: * (create) and no If-Match, else If-Match's.
+func putVersion(c *gin.Context) (int64, error) {
+	if strings.TrimSpace(c.GetHeader("If-None-Match")) == "*" && c.GetHeader("If-Match") == "" {
+		return 0, nil
+	}
+	return ifMatch(c)
+}
+
 // putSurvey replaces the whole survey set. If-Match carries the version
 // last read; a hole's first set is created with If-None-Match: * instead.
 func (s *Server) putSurvey(c *gin.Context) {
@@ -351,10 +360,8 @@ func (s *Server) putSurvey(c *gin.Context) {
 		fail(c, err)
 		return
 	}
-	var v int64
-	if strings.TrimSpace(c.GetHeader("If-None-Match")) == "*" && c.GetHeader("If-Match") == "" {
-		v = 0
-	} else if v, err = ifMatch(c); err != nil {
+	v, err := putVersion(c)
+	if err != nil {
 		fail(c, err)
 		return
 	}
@@ -370,6 +377,66 @@ func (s *Server) putSurvey(c *gin.Context) {
 	}
 	setETag(c, ss.Version)
 	c.JSON(http.StatusOK, ss)
+}
+
+// listKindSets lists the hole's survey sets by kind and the set in use.
+func (s *Server) listKindSets(c *gin.Context) {
+	pid, hid, err := ids(c, "hole")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	ks, err := s.opt.Service.ListKindSets(c.Request.Context(), pid, hid)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	c.JSON(http.StatusOK, ks)
+}
+
+// putKindSet replaces the hole's survey set of a kind, as putSurvey does
+// (If-Match, or If-None-Match: * to create).
+func (s *Server) putKindSet(c *gin.Context) {
+	pid, hid, err := ids(c, "hole")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	v, err := putVersion(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	var in domain.KindSet
+	if err := s.decodeJSON(c, &in); err != nil {
+		fail(c, err)
+		return
+	}
+	k, err := s.opt.Service.PutKindSet(c.Request.Context(), pid, hid, c.Param("kind"), v, in)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	setETag(c, k.Version)
+	c.JSON(http.StatusOK, k)
+}
+
+func (s *Server) deleteKindSet(c *gin.Context) {
+	pid, hid, err := ids(c, "hole")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	v, err := ifMatch(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	if err := s.opt.Service.DeleteKindSet(c.Request.Context(), pid, hid, c.Param("kind"), v); err != nil {
+		fail(c, err)
+		return
+	}
+	c.Status(http.StatusNoContent)
 }
 
 // ---- runs
@@ -653,6 +720,19 @@ func (s *Server) exportCollars(c *gin.Context) {
 	c.Header("Content-Disposition", `attachment; filename="collars-`+itoa(pid)+`.csv"`)
 	stream(c, "text/csv; charset=utf-8", func(w *trackingWriter) error {
 		return s.opt.Service.ExportCollars(c.Request.Context(), pid, w)
+	})
+}
+
+// exportSurveys streams the project's surveys, every set, as a surveys file.
+func (s *Server) exportSurveys(c *gin.Context) {
+	pid, err := pathID(c, "project")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	c.Header("Content-Disposition", `attachment; filename="surveys-`+itoa(pid)+`.csv"`)
+	stream(c, "text/csv; charset=utf-8", func(w *trackingWriter) error {
+		return s.opt.Service.ExportSurveys(c.Request.Context(), pid, w)
 	})
 }
 

@@ -39,7 +39,7 @@ func TestHoleCorrectionsOverHTTP(t *testing.T) {
 	}
 	f.must(200, f.site, "GET", hb, nil, &h)
 	c := h.Corrections
-	if c.Declination == nil || math.Abs(*c.Declination-want.Declination) > 1e-9 || *c.DeclinationSource != "computed" ||
+	if c.Declination == nil || math.Abs(*c.Declination-want.Declination) > 1e-9 || *c.DeclinationSource != string(want.ComputedSource()) ||
 		c.GridConvergence == nil || math.Abs(*c.GridConvergence-want.Convergence) > 1e-9 || c.ConvergenceSource != "computed" || *c.SurveyAzimuthRef != "magnetic" {
 		t.Errorf("GET hole: %+v, want declination %v and convergence %v", c, want.Declination, want.Convergence)
 	}

@@ -54,6 +54,9 @@ func (s *Server) routes() {
 
 	p.GET("/holes/:hole/survey", s.getSurvey)
 	p.PUT("/holes/:hole/survey", need(domain.RoleAdmin), s.putSurvey)
+	p.GET("/holes/:hole/surveys", s.listKindSets)
+	p.PUT("/holes/:hole/surveys/:kind", need(domain.RoleAdmin), s.putKindSet)
+	p.DELETE("/holes/:hole/surveys/:kind", need(domain.RoleAdmin), s.deleteKindSet)
 
 	p.GET("/holes/:hole/intervals", s.listIntervals)
 	p.PUT("/holes/:hole/intervals", need(domain.RoleLog), s.putIntervals)
@@ -72,6 +75,7 @@ func (s *Server) routes() {
 	p.DELETE("/measurements/:measurement", s.deleteMeasurement)
 	p.GET("/measurements.csv", s.exportMeasurements)
 	p.GET("/holes.csv", s.exportCollars)
+	p.GET("/surveys.csv", s.exportSurveys)
 
 	p.GET("/qa", need(domain.RoleRead), s.heavy, s.projectQA)
 	p.POST("/qa", need(domain.RoleRead), s.heavy, s.projectQAWith)

@@ -23,6 +23,8 @@ var pure = map[string]bool{
 	"corvane/internal/netsvg":       true,
 	"corvane/internal/visual":       true,
 	"corvane/internal/wmm":          true,
+	"corvane/internal/igrf":         true,
+	"corvane/internal/localgrid":    true,
 	"corvane/internal/utm":          true,
 	"corvane/internal/northref":     true,
 	"corvane/internal/holemodel":    true,

@@ -15,7 +15,7 @@ import (
 // invented programme's true azimuths into recorded magnetic ones, the
 // forward model of its data, and corrects nothing.
 func TestOnlyHoleModelCorrectsNorth(t *testing.T) {
-	compute := regexp.MustCompile(`northref\.Corrections\(`)
+	compute := regexp.MustCompile(`northref\.Corrections(Model|Year)?\(`)
 	// An azimuth and a declination or convergence in one sum.
 	apply := regexp.MustCompile(`(?i)(azimuth\w*|\baz\b)\s*[-+]=?\s*[\w.()]*(decl|conv)|(decl|conv)\w*(\.value)?\s*[-+]\s*[\w.()]*azimuth`)
 	allowCompute := map[string]bool{"internal/holemodel": true, "internal/demo": true}

@@ -33,5 +33,5 @@ func ExampleCorrections_unplaceable() {
 	_, err := northref.Corrections("MINE GRID", 5120, 10240, 300, time.Date(2026, 5, 20, 0, 0, 0, 0, time.UTC), true, false)
 	fmt.Println(err)
 	// Output:
-	// crs "MINE GRID": unknown coordinate system label; corvane can place collars given as EPSG:326NN (WGS 84 / UTM zone NN north) or EPSG:327NN (zone NN south)
+	// crs "MINE GRID": unknown coordinate system label; corvane can place collars given as EPSG codes of these families: WGS 84 / UTM EPSG:32601-32660 (zones 1N-60N), 32701-32760 (zones 1S-60S); NAD83 / UTM EPSG:26901-26923 (zones 1N-23N), 3372-3373 (zones 59N-60N); ETRS89 / UTM EPSG:25828-25838 (zones 28N-38N); GDA94 / MGA EPSG:28348-28358 (zones 48S-58S); GDA2020 / MGA EPSG:7846-7859 (zones 46S-59S); SIRGAS 2000 / UTM EPSG:31965-31976 (zones 11N-22N), 6210-6211 (zones 23N-24N), 31977-31985 (zones 17S-25S), 5396 (zone 26S)
 }

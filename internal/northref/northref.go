@@ -11,12 +11,15 @@
 //
 // So a magnetic azimuth becomes a grid azimuth as grid = magnetic + D - C.
 //
-// Collars are placed by a coordinate system label: EPSG:326NN for WGS 84 /
-// UTM zone NN north and EPSG:327NN for zone NN south (NN = 01..60), written in
-// any letter case. The collar's easting and northing are projected back to
+// Collars are placed by a coordinate system label "EPSG:code" for the UTM
+// zones of WGS 84 (EPSG:326NN north, 327NN south), NAD83, ETRS89, GDA94 and
+// GDA2020 (MGA) and SIRGAS 2000 (the table [utm.Families]), written in any
+// letter case. The collar's easting and northing are projected back to
 // latitude and longitude with package utm (Krüger series, Karney 2011), the
-// declination comes from the World Magnetic Model in package wmm, and the
-// collar elevation (metres) is used as height above the WGS 84 ellipsoid.
+// declination comes from the magnetic model chosen (see [MagneticModel]:
+// the World Magnetic Model in package wmm for 2025.0-2030.0, the
+// International Geomagnetic Reference Field in package igrf for 1900.0
+// onwards), and the collar elevation (metres) is used as height above the WGS 84 ellipsoid.
 // Collar elevations are usually above the geoid (sea level); the two differ by
 // at most about 100 m, which changes the declination by far less than the
 // model's own uncertainty, so no geoid model is applied.
@@ -84,19 +87,30 @@ func (e *Error) Error() string {
 
 func (e *Error) Unwrap() error { return e.Err }
 
-// CRS is a coordinate system corvane can place collars in: a WGS 84 / UTM zone.
+// CRS is a coordinate system corvane can place collars in: a UTM zone of one
+// of the datums in [utm.Families] (WGS 84, NAD83, ETRS89, GDA94 and GDA2020
+// MGA, SIRGAS 2000).
 type CRS struct {
-	EPSG int      // 32601..32660 or 32701..32760
+	EPSG int      // e.g. 32750 or 7850
 	Zone utm.Zone // zone number and hemisphere
+	// Name is EPSG's name, e.g. "GDA2020 / MGA zone 50"; Grid the
+	// projection on the datum's ellipsoid.
+	Name string
+	Grid *utm.TransverseMercator
 }
 
 // String returns the canonical label, e.g. "EPSG:32750".
 func (c CRS) String() string { return "EPSG:" + strconv.Itoa(c.EPSG) }
 
-// ParseCRS reads a coordinate system label of the form EPSG:326NN (WGS 84 /
-// UTM zone NN north) or EPSG:327NN (zone NN south), NN = 01..60. Case and
+// ParseCRS reads a coordinate system label "EPSG:code" for a code of the
+// table [utm.Families]: WGS 84 / UTM (326NN north, 327NN south), NAD83 /
+// UTM, ETRS89 / UTM, GDA94 and GDA2020 / MGA, SIRGAS 2000 / UTM. Case and
 // surrounding spaces are ignored ("epsg:32750" is accepted). Other labels,
-// including local mine grids, give an *Error: corvane cannot place them.
+// including local mine grids, give an *Error naming the supported families.
+//
+// Latitude and longitude are then on the label's datum; the datums differ
+// from WGS 84 by a few metres at most, which changes neither the
+// declination nor the convergence measurably, so no datum shift is applied.
 func ParseCRS(label string) (CRS, error) {
 	s := strings.ToUpper(strings.TrimSpace(label))
 	fail := func(msg string) (CRS, error) {
@@ -107,25 +121,17 @@ func ParseCRS(label string) (CRS, error) {
 	}
 	code, ok := strings.CutPrefix(s, "EPSG:")
 	if !ok {
-		return fail("unknown coordinate system label; corvane can place collars given as EPSG:326NN (WGS 84 / UTM zone NN north) or EPSG:327NN (zone NN south)")
+		return fail("unknown coordinate system label; corvane can place collars given as EPSG codes of these families: " + utm.SupportedText())
 	}
 	n, err := strconv.Atoi(strings.TrimSpace(code))
 	if err != nil {
 		return fail("the EPSG code is not a number")
 	}
-	var z utm.Zone
-	switch {
-	case n/100 == 326:
-		z = utm.Zone{Number: n % 100}
-	case n/100 == 327:
-		z = utm.Zone{Number: n % 100, South: true}
-	default:
-		return fail("unsupported coordinate system; corvane can place collars given as EPSG:326NN (WGS 84 / UTM zone NN north) or EPSG:327NN (zone NN south)")
+	c, err := utm.LookupEPSG(n)
+	if err != nil {
+		return fail("unsupported coordinate system; corvane can place collars given as EPSG codes of these families: " + utm.SupportedText())
 	}
-	if err := z.Valid(); err != nil {
-		return fail(fmt.Sprintf("UTM zone %02d is out of range (zones are 01 to 60)", z.Number))
-	}
-	return CRS{EPSG: n, Zone: z}, nil
+	return CRS{EPSG: n, Zone: c.Zone, Name: c.Name, Grid: c.TM}, nil
 }
 
 // Limits on collar coordinates: outside them the numbers are almost surely
@@ -149,7 +155,7 @@ type Result struct {
 	Declination    float64
 	HasDeclination bool
 	Year           float64   // decimal year the declination is for
-	Model          string    // magnetic model name, e.g. "WMM-2025"
+	Model          string    // magnetic model name, e.g. "WMM-2025" or "IGRF-14"
 	Field          wmm.Field // the full model result at the collar
 	// PoleZone is the WMM report's class by horizontal intensity: caution
 	// below 6000 nT, blackout below 2000 nT. See [Result.Caution].
@@ -186,9 +192,17 @@ func (r Result) Caution() string {
 //
 // Errors (*Error): an unknown or missing label, coordinates outside the
 // zone's plausible range, a missing date (zero time) when a declination is
-// wanted, or a date outside the magnetic model's validity (2025.0 to 2030.0
-// for WMM2025).
+// wanted, or a date outside the years of the magnetic model (a *[RangeError];
+// 1900.0 to 2030.0 under [ModelAuto]).
+//
+// The magnetic model is [ModelAuto]; [CorrectionsModel] takes a choice.
 func Corrections(crs string, easting, northing, elevationM float64, date time.Time, wantDecl, wantConv bool) (Result, error) {
+	return CorrectionsModel(ModelAuto, crs, easting, northing, elevationM, date, wantDecl, wantConv)
+}
+
+// CorrectionsModel is [Corrections] with the magnetic model chosen by model
+// ("" is [ModelAuto]).
+func CorrectionsModel(model MagneticModel, crs string, easting, northing, elevationM float64, date time.Time, wantDecl, wantConv bool) (Result, error) {
 	year := 0.0
 	if wantDecl {
 		if date.IsZero() {
@@ -196,12 +210,18 @@ func Corrections(crs string, easting, northing, elevationM float64, date time.Ti
 		}
 		year = DecimalYear(date)
 	}
-	return CorrectionsYear(crs, easting, northing, elevationM, year, wantDecl, wantConv)
+	return correctionsYear(model, crs, easting, northing, elevationM, year, date.Format(time.DateOnly), wantDecl, wantConv)
 }
 
 // CorrectionsYear is [Corrections] with the date given as a decimal year
 // (for example from [ParseDate]).
 func CorrectionsYear(crs string, easting, northing, elevationM, year float64, wantDecl, wantConv bool) (Result, error) {
+	return correctionsYear(ModelAuto, crs, easting, northing, elevationM, year, strconv.FormatFloat(year, 'f', -1, 64), wantDecl, wantConv)
+}
+
+// correctionsYear computes the corrections; dateText is the date as the
+// caller had it, for messages.
+func correctionsYear(model MagneticModel, crs string, easting, northing, elevationM, year float64, dateText string, wantDecl, wantConv bool) (Result, error) {
 	c, err := ParseCRS(crs)
 	if err != nil {
 		return Result{}, err
@@ -228,7 +248,7 @@ func CorrectionsYear(crs string, easting, northing, elevationM, year float64, wa
 		return Result{}, &Error{Field: FieldElevation, Value: num(elevationM),
 			Msg: fmt.Sprintf("is not a collar elevation in metres (expected -%.0f to %.0f)", MaxAbsElevation, MaxAbsElevation)}
 	}
-	geo, err := utm.Inverse(c.Zone, easting, northing)
+	geo, err := c.Grid.Inverse(easting, northing)
 	if err != nil {
 		return Result{}, &Error{Field: FieldEasting, Value: num(easting), Msg: err.Error(), Err: err}
 	}
@@ -237,13 +257,12 @@ func CorrectionsYear(crs string, easting, northing, elevationM, year float64, wa
 		res.Convergence, res.ScaleFactor, res.HasConvergence = geo.Convergence, geo.Scale, true
 	}
 	if wantDecl {
-		m := wmm.Default()
-		f, err := m.At(geo.Lat, geo.Lon, elevationM/1000, year)
+		f, name, err := FieldAt(model, geo.Lat, geo.Lon, elevationM/1000, year)
 		if err != nil {
-			return Result{}, &Error{Field: FieldSurveyDate, Value: strconv.FormatFloat(year, 'f', 4, 64), Msg: err.Error(), Err: err}
+			return Result{}, &Error{Field: FieldSurveyDate, Value: dateText, Msg: err.Error(), Err: err}
 		}
 		res.Declination, res.HasDeclination = f.Declination, true
-		res.Year, res.Model, res.Field, res.PoleZone = year, m.Name, f, f.Zone
+		res.Year, res.Model, res.Field, res.PoleZone = year, name, f, f.Zone
 	}
 	return res, nil
 }
@@ -257,12 +276,9 @@ func DecimalYear(t time.Time) float64 { return wmm.DecimalYear(t) }
 // returns a decimal year. See [wmm.ParseDate].
 func ParseDate(s string) (float64, error) { return wmm.ParseDate(s) }
 
-// ValidYears returns the first and last decimal year the embedded magnetic
-// model covers (2025.0 and 2030.0 for WMM2025).
-func ValidYears() (from, to float64) {
-	m := wmm.Default()
-	return m.ValidFrom(), m.ValidTo()
-}
+// ValidYears returns the first and last decimal year the magnetic models
+// cover together under [ModelAuto] (1900.0 and 2030.0).
+func ValidYears() (from, to float64) { return ModelAuto.Years() }
 
 // GridAzimuth turns an azimuth measured against magnetic north into one
 // against grid north, grid = magnetic + declination - convergence,

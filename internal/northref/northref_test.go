@@ -18,6 +18,11 @@ func TestParseCRS(t *testing.T) {
 		" EPSG:32601 ": {Number: 1},
 		"Epsg:32660":   {Number: 60},
 		"EPSG:32706":   {Number: 6, South: true},
+		"EPSG:28350":   {Number: 50, South: true}, // GDA94 / MGA zone 50
+		"EPSG:7850":    {Number: 50, South: true}, // GDA2020 / MGA zone 50
+		"EPSG:26911":   {Number: 11},              // NAD83 / UTM zone 11N
+		"EPSG:25832":   {Number: 32},              // ETRS89 / UTM zone 32N
+		"EPSG:31983":   {Number: 23, South: true}, // SIRGAS 2000 / UTM zone 23S
 	}
 	for s, want := range good {
 		c, err := ParseCRS(s)
@@ -30,10 +35,10 @@ func TestParseCRS(t *testing.T) {
 	}
 	bad := map[string]string{
 		"":           "no coordinate system",
-		"EPSG:32600": "out of range",
-		"EPSG:32761": "out of range",
-		"EPSG:4326":  "unsupported",
-		"EPSG:28350": "unsupported",
+		"EPSG:32600": "unsupported",
+		"EPSG:32761": "unsupported",
+		"EPSG:4326":  "GDA2020 / MGA EPSG:7846-7859",
+		"EPSG:2193":  "unsupported",
 		"MINEGRID":   "unknown coordinate system",
 		"EPSG:abc":   "not a number",
 	}
@@ -159,8 +164,7 @@ func TestErrors(t *testing.T) {
 		{"wrong hemisphere", "EPSG:32650", e, n + 4e6, elev, time.Date(2026, 3, 1, 0, 0, 0, 0, time.UTC), FieldNorthing, "hemisphere"},
 		{"south too far", "EPSG:32750", e, 500000, elev, time.Date(2026, 3, 1, 0, 0, 0, 0, time.UTC), FieldNorthing, "southern zone"},
 		{"no date", "EPSG:32750", e, n, elev, time.Time{}, FieldSurveyDate, "no survey date"},
-		{"before model", "EPSG:32750", e, n, elev, time.Date(2024, 12, 31, 0, 0, 0, 0, time.UTC), FieldSurveyDate, "2025.0 to 2030.0"},
-		{"after model", "EPSG:32750", e, n, elev, time.Date(2030, 1, 2, 0, 0, 0, 0, time.UTC), FieldSurveyDate, "outside the validity"},
+		{"after both models", "EPSG:32750", e, n, elev, time.Date(2030, 1, 2, 0, 0, 0, 0, time.UTC), FieldSurveyDate, `survey_date "2030-01-02": is outside the years of both magnetic models (IGRF-14 covers 1900.0 to 2030.0; WMM-2025 covers 2025.0 to 2030.0)`},
 		{"elevation in mm", "EPSG:32750", e, n, 312000, time.Date(2026, 3, 1, 0, 0, 0, 0, time.UTC), FieldElevation, "metres"},
 		{"unknown label", "GDA94 / MGA zone 50", e, n, elev, time.Date(2026, 3, 1, 0, 0, 0, 0, time.UTC), FieldCRS, "unknown"},
 		{"NaN northing", "EPSG:32750", e, math.NaN(), elev, time.Date(2026, 3, 1, 0, 0, 0, 0, time.UTC), FieldNorthing, "not a number"},
@@ -172,10 +176,17 @@ func TestErrors(t *testing.T) {
 			t.Errorf("%s: %v; want a %s error mentioning %q", c.name, err, c.field, c.msg)
 		}
 	}
-	var re *wmm.RangeError
+	var re *RangeError
 	_, err := Corrections("EPSG:32750", e, n, elev, time.Date(2031, 1, 1, 0, 0, 0, 0, time.UTC), true, false)
 	if !errors.As(err, &re) {
-		t.Errorf("a date past the model should unwrap to a wmm.RangeError: %v", err)
+		t.Errorf("a date past the models should unwrap to a RangeError: %v", err)
+	}
+	// A date before the WMM with the WMM chosen: the message names the WMM's
+	// years and the other model, and gives the date once, as given.
+	_, err = CorrectionsModel(ModelWMM, "EPSG:32750", e, n, elev, time.Date(2023, 8, 1, 0, 0, 0, 0, time.UTC), true, false)
+	want := `survey_date "2023-08-01": is outside the years of magnetic model WMM-2025 (2025.0 to 2030.0); IGRF-14 covers 1900.0 to 2030.0: choose model igrf or auto`
+	if err == nil || err.Error() != want {
+		t.Errorf("2023 with the WMM:\n got %v\nwant %s", err, want)
 	}
 	// Nothing wanted: only the label is checked, coordinates are not used.
 	if _, err := Corrections("EPSG:32750", 0, 0, 0, time.Time{}, false, false); err != nil {
@@ -199,7 +210,7 @@ func TestAzimuths(t *testing.T) {
 		t.Errorf("GridAzimuth(1, 0, 2) = %v, want 359", got)
 	}
 	from, to := ValidYears()
-	if from != 2025 || to != 2030 {
+	if from != 1900 || to != 2030 {
 		t.Errorf("ValidYears = %v, %v", from, to)
 	}
 	if y, err := ParseDate("2028-03-01"); err != nil || y != 2028+60.0/366 {
@@ -237,4 +248,14 @@ func FuzzParseCRS(f *testing.F) {
 			t.Fatalf("ParseCRS(%q) = %v does not round trip: %v %v", s, c, c2, err)
 		}
 	})
+}
+
+// A collar in GDA2020 / MGA zone 50 gets the convergence PROJ 9.1.1 gives
+// for its position (internal/utm/testdata/proj_checks.txt, EPSG:7850 line:
+// -31.95, 115.86 -> E 392259.361885, N 6464539.163993, C 0.60332222).
+func TestCorrectionsMGA(t *testing.T) {
+	r, err := Corrections("EPSG:7850", 392259.361885, 6464539.163993, 30, time.Time{}, false, true)
+	if err != nil || math.Abs(r.Convergence-0.60332222) > 1e-6 || math.Abs(r.Lat+31.95) > 1e-9 || r.CRS.Name != "GDA2020 / MGA zone 50" {
+		t.Errorf("%+v %v", r, err)
+	}
 }

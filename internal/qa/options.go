@@ -101,6 +101,14 @@ type Options struct {
 	// direction by this plus the dogleg threshold over its depth. Default 5.
 	CollarTolerance float64 `json:"collar_tolerance"`
 
+	// InterferenceThreshold, degrees: where a hole has a magnetic and a gyro
+	// survey set, magnetic stations whose azimuth departs from the gyro
+	// set's by more than this (beyond the two sets' median difference) are
+	// flagged as likely magnetic interference. Default 2 (about twice a
+	// magnetic single-shot's azimuth uncertainty of about 1 degree, from
+	// memory).
+	InterferenceThreshold float64 `json:"interference_threshold"`
+
 	// HighAlpha: measurements with alpha at or above it are noted (beta
 	// poorly defined). Default 85.
 	HighAlpha float64 `json:"high_alpha"`
@@ -166,6 +174,7 @@ func (o Options) withDefaults() Options {
 	def(&o.GapThreshold, 60)
 	def(&o.ShortTolerance, 30)
 	def(&o.CollarTolerance, 5)
+	def(&o.InterferenceThreshold, 2)
 	def(&o.HighAlpha, 85)
 	def(&o.NearVertical, 5)
 	defi(&o.DigitMinCount, 50)
@@ -218,7 +227,7 @@ func (o Options) Check() error {
 		{"fabric_misfit", o.FabricMisfit}, {"pick_window", o.PickWindow}, {"max_depth_shift", o.MaxDepthShift},
 		{"shift_step", o.ShiftStep}, {"dogleg_threshold", o.DoglegThreshold}, {"outlier_factor", o.OutlierFactor},
 		{"outlier_floor", o.OutlierFloor}, {"nominal_residual", o.NominalResidual}, {"gap_threshold", o.GapThreshold},
-		{"short_tolerance", o.ShortTolerance}, {"collar_tolerance", o.CollarTolerance}, {"high_alpha", o.HighAlpha},
+		{"short_tolerance", o.ShortTolerance}, {"collar_tolerance", o.CollarTolerance}, {"interference_threshold", o.InterferenceThreshold}, {"high_alpha", o.HighAlpha},
 		{"near_vertical", o.NearVertical}, {"digit_p", o.DigitP}, {"digit_share_0_5", o.DigitShare05},
 		{"beta_zero_p", o.BetaZeroP}, {"beta_zero_share", o.BetaZeroShare},
 	} {

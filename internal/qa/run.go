@@ -62,6 +62,7 @@ type holeData struct {
 	ms      []meas
 	picks   []Pick
 	zones   []MagneticZone
+	sets    []SurveySet
 	path    *desurvey.Path
 	report  *HoleReport
 	pending []Finding
@@ -152,6 +153,13 @@ func RunContext(ctx context.Context, in Input, opt Options) (Report, error) {
 			noHole(z.HoleID, "magnetic zones")
 		}
 	}
+	for _, ss := range in.SurveySets {
+		if h := holes[ss.HoleID]; h != nil {
+			h.sets = append(h.sets, ss)
+		} else {
+			noHole(ss.HoleID, "survey sets")
+		}
+	}
 	ids := make([]string, 0, len(unknown))
 	for id := range unknown {
 		ids = append(ids, id)
@@ -176,8 +184,9 @@ func RunContext(ctx context.Context, in Input, opt Options) (Report, error) {
 		if err := ctx.Err(); err != nil {
 			return Report{}, err
 		}
-		h.report = &HoleReport{HoleID: h.c.HoleID, Depth: h.c.Depth, Azimuth: geom.NormAzimuth(h.c.Azimuth), Dip: h.c.Dip}
+		h.report = &HoleReport{HoleID: h.c.HoleID, DeclinationSource: h.c.DeclinationSource, Depth: h.c.Depth, Azimuth: geom.NormAzimuth(h.c.Azimuth), Dip: h.c.Dip}
 		add(checkHole(h, conv, o, loggers)...)
+		add(setFindings(h.c.HoleID, h.sets, o)...)
 	}
 	// The logger tests come before the fabric check: a logger who rounds
 	// has a wider reading error there.

@@ -35,6 +35,10 @@ type Collar struct {
 	// Path is the hole's path from the hole model (package holemodel), built
 	// from the same collar and stations; nil to build it here.
 	Path *desurvey.Path `json:"-"`
+	// DeclinationSource says where the declination applied to the hole's
+	// magnetic azimuths came from, as the hole model reports it (a computed
+	// one names its model and decimal year); "" when none was applied.
+	DeclinationSource string `json:"-"`
 }
 
 // Station is one survey station. Azimuth is in the same north reference as
@@ -104,6 +108,9 @@ type Input struct {
 	Measurements  []Measurement    `json:"measurements"`
 	Picks         []Pick           `json:"picks,omitempty"`
 	MagneticZones []MagneticZone   `json:"magnetic_zones,omitempty"`
+	// SurveySets are a hole's several surveys by kind; a magnetic and a gyro
+	// set of one hole are compared (see [CompareSets]).
+	SurveySets []SurveySet `json:"survey_sets,omitempty"`
 	// Problems are findings made while reading the inputs (for example rows
 	// that could not be parsed); they are carried into the report as given.
 	Problems []Finding `json:"problems,omitempty"`
@@ -134,6 +141,8 @@ const (
 	CheckSurveyShort        = "survey-short-of-final-depth"
 	CheckCollarDisagree     = "survey-collar-disagreement"
 	CheckMagneticZone       = "survey-magnetic-in-zone"
+	CheckInterference       = "survey-magnetic-interference"
+	CheckSetOffset          = "survey-set-offset"
 	CheckSurveyInvalid      = "survey-invalid"
 	CheckHighAlpha          = "alpha-85-or-more"
 	CheckNearVertical       = "near-vertical-hole"
@@ -317,18 +326,22 @@ type StationReport struct {
 
 // HoleReport is what QA found about one hole.
 type HoleReport struct {
-	HoleID       string          `json:"hole_id"`
-	Depth        float64         `json:"depth"`
-	Azimuth      float64         `json:"azimuth"`
-	Dip          float64         `json:"dip"`
-	Coverage     Coverage        `json:"coverage"`
-	Measurements int             `json:"measurements"`
-	OutsideRuns  int             `json:"outside_runs"`
-	InUnusable   int             `json:"in_unusable_runs"`
-	Fabric       *Pole           `json:"fabric,omitempty"` // hole-wide mean pole of the persistent type
-	FabricN      int             `json:"fabric_n,omitempty"`
-	Runs         []RunReport     `json:"runs"`
-	Stations     []StationReport `json:"stations"`
+	HoleID string `json:"hole_id"`
+	// DeclinationSource is the collar's: where the declination applied to
+	// the hole's magnetic azimuths came from, e.g.
+	// "computed (IGRF-14 at 2023.5808)"; absent when none was applied.
+	DeclinationSource string          `json:"declination_source,omitempty"`
+	Depth             float64         `json:"depth"`
+	Azimuth           float64         `json:"azimuth"`
+	Dip               float64         `json:"dip"`
+	Coverage          Coverage        `json:"coverage"`
+	Measurements      int             `json:"measurements"`
+	OutsideRuns       int             `json:"outside_runs"`
+	InUnusable        int             `json:"in_unusable_runs"`
+	Fabric            *Pole           `json:"fabric,omitempty"` // hole-wide mean pole of the persistent type
+	FabricN           int             `json:"fabric_n,omitempty"`
+	Runs              []RunReport     `json:"runs"`
+	Stations          []StationReport `json:"stations"`
 	// ScatterMAD is the hole's robust scatter of leave-one-out residuals
 	// (1.4826 x median absolute deviation, degrees).
 	ScatterMAD float64 `json:"survey_scatter"`

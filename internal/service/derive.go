@@ -11,6 +11,7 @@ import (
 	"corvane/internal/desurvey"
 	"corvane/internal/domain"
 	"corvane/internal/holemodel"
+	"corvane/internal/northref"
 	"corvane/internal/uncertainty"
 )
 
@@ -78,6 +79,12 @@ type Derived struct {
 	// direction, strike, pole and line are null (the dip too, except in a
 	// vertical hole). Statistics leave it out of set means and count it.
 	Unoriented bool `json:"unoriented"`
+	// SurveySet names the survey the hole's path was built from: "survey"
+	// (the hole's survey set), the kind of a set by kind ("gyro",
+	// "magnetic", "planned", "other": the preferred one, else the first of
+	// the project's survey priority the hole has), absent when the hole has
+	// no survey.
+	SurveySet string `json:"survey_set,omitempty"`
 	// RunConfidence is the confidence of the orientation run covering the
 	// depth, "" when no run covers it.
 	RunConfidence string `json:"run_confidence"`
@@ -101,18 +108,36 @@ type Conventions struct {
 	// ErrorModel is the project's error model for the uncertainty of each
 	// orientation (a zero field is its default).
 	ErrorModel uncertainty.Model `json:"error_model"`
+	// MagneticModel chooses the model of computed declinations: "auto"
+	// (default), "wmm" or "igrf" (see domain.Project).
+	MagneticModel string `json:"magnetic_model"`
+	// grid is the project's local grid, nil when none: holes whose crs is
+	// "local" are carried into its projected grid.
+	grid *convert.LocalGrid
 }
 
-// ConventionsOf returns the project's conventions.
+// ConventionsOf returns the project's conventions, with its local grid
+// (checked when the project was stored; one that no longer reads is left
+// out, so its "local" holes have the error of a collar that cannot be
+// placed).
 func ConventionsOf(p domain.Project) Conventions {
-	return Conventions{RefLine: p.RefLine, BetaApex: p.BetaApex, GammaSense: p.GammaSense, LengthUnit: p.LengthUnit,
-		OutputAzimuthRef: p.OutputAzimuthRef, Declination: p.Declination, Convergence: p.Convergence, ErrorModel: p.ErrorModel}
+	c := Conventions{RefLine: p.RefLine, BetaApex: p.BetaApex, GammaSense: p.GammaSense, LengthUnit: p.LengthUnit,
+		OutputAzimuthRef: p.OutputAzimuthRef, Declination: p.Declination, Convergence: p.Convergence, ErrorModel: p.ErrorModel,
+		MagneticModel: p.MagneticModel}
+	if len(p.LocalGrid) > 0 {
+		if spec, err := ParseLocalGrid(p.LocalGrid); err == nil {
+			t, _, _ := spec.Resolve()
+			c.grid = &convert.LocalGrid{Spec: spec, T: t}
+		}
+	}
+	return c
 }
 
 // normalize fills defaults and validates c, reusing the project rules.
 func (c *Conventions) normalize() error {
 	p := domain.Project{Name: "x", RefLine: c.RefLine, BetaApex: c.BetaApex, GammaSense: c.GammaSense, LengthUnit: c.LengthUnit,
-		OutputAzimuthRef: c.OutputAzimuthRef, Declination: c.Declination, Convergence: c.Convergence, ErrorModel: c.ErrorModel}
+		OutputAzimuthRef: c.OutputAzimuthRef, Declination: c.Declination, Convergence: c.Convergence, ErrorModel: c.ErrorModel,
+		MagneticModel: c.MagneticModel}
 	if err := p.Normalize(); err != nil {
 		return err
 	}
@@ -138,7 +163,7 @@ func (c Conventions) core() coreangle.Convention {
 // curvature, the project's unit, output reference and defaults.
 func (c Conventions) project() holemodel.Project {
 	p := holemodel.Project{Convention: c.core(), Method: desurvey.MinimumCurvature, Output: c.OutputAzimuthRef,
-		Declination: c.Declination, GridConvergence: c.Convergence}
+		Declination: c.Declination, GridConvergence: c.Convergence, Model: northref.MagneticModel(c.MagneticModel)}
 	if c.LengthUnit == domain.UnitFoot {
 		p.Unit = desurvey.Feet
 	}
@@ -181,12 +206,18 @@ type holeModel struct {
 	runs   []domain.Run
 	hole   domain.Hole
 	survey *domain.SurveySet
+	// set names the survey the model was built from: "survey" (the hole's
+	// survey set), a kind of set ("gyro"...), "" when none.
+	set string
 }
 
 // newHoleModel builds the model of the stored hole h with survey set ss (nil
 // when the hole has none) and runs.
 func newHoleModel(c Conventions, h domain.Hole, ss *domain.SurveySet, runs []domain.Run) *holeModel {
-	return &holeModel{Hole: holemodel.New(holeInput(h, ss), c.project()), em: c.ErrorModel, name: h.Name, conv: c, runs: runs, hole: h, survey: ss}
+	p := c.project()
+	in := holeInput(h, ss)
+	c.grid.Apply(&in, p.Output)
+	return &holeModel{Hole: holemodel.New(in, p), em: c.ErrorModel, name: h.Name, conv: c, runs: runs, hole: h, survey: ss}
 }
 
 // perMeasurement holds the normals of uncertainty.PerMeasurement, drawn
@@ -253,7 +284,7 @@ func (m *holeModel) derive(depth, alpha float64, beta, gamma, apparent *float64)
 // derived is the derived values of the measurement at depth oriented as r
 // (or err) with uncertainty u (nil when none).
 func (m *holeModel) derived(depth float64, r *holemodel.Result, err error, u *uncertainty.Result) Derived {
-	d := Derived{AzimuthRef: m.Output, Warnings: []string{}}
+	d := Derived{AzimuthRef: m.Output, SurveySet: m.set, Warnings: []string{}}
 	conv, decl := m.Convergence, m.Declination(depth)
 	if err == nil {
 		conv, decl = r.Convergence, r.Declination
@@ -320,14 +351,15 @@ func (m *holeModel) runAt(depth float64, warn []string) (string, []string) {
 // deriver builds hole models on demand within one request, so a list of
 // measurements desurveys each hole once, from the store state of that request.
 type deriver struct {
-	st     domain.Store
-	conv   Conventions
-	models map[int64]*holeModel
-	ms     *uncertainty.Measurer
+	st       domain.Store
+	conv     Conventions
+	priority string // the project's survey priority
+	models   map[int64]*holeModel
+	ms       *uncertainty.Measurer
 }
 
 func newDeriver(st domain.Store, p domain.Project) *deriver {
-	return &deriver{st: st, conv: ConventionsOf(p), models: map[int64]*holeModel{}, ms: perMeasurement.Fork()}
+	return &deriver{st: st, conv: ConventionsOf(p), priority: p.SurveyPriority, models: map[int64]*holeModel{}, ms: perMeasurement.Fork()}
 }
 
 func (d *deriver) model(ctx context.Context, holeID int64) (*holeModel, error) {
@@ -338,7 +370,7 @@ func (d *deriver) model(ctx context.Context, holeID int64) (*holeModel, error) {
 	if err != nil {
 		return nil, err
 	}
-	ss, err := surveyOf(ctx, d.st, holeID)
+	ss, set, _, err := usedSurvey(ctx, d.st, holeID, d.priority)
 	if err != nil {
 		return nil, err
 	}
@@ -348,21 +380,9 @@ func (d *deriver) model(ctx context.Context, holeID int64) (*holeModel, error) {
 	}
 	m := newHoleModel(d.conv, h, ss, runs)
 	m.ms = d.ms
+	m.set = set
 	d.models[holeID] = m
 	return m, nil
-}
-
-// surveyOf returns the hole's survey set from st, nil when it has none.
-func surveyOf(ctx context.Context, st domain.Store, holeID int64) (*domain.SurveySet, error) {
-	ss, err := st.GetSurvey(ctx, holeID)
-	switch {
-	case err == nil:
-		return &ss, nil
-	case domain.IsKind(err, domain.NotFound):
-		return nil, nil
-	default:
-		return nil, err
-	}
 }
 
 // view returns the measurement with its hole name and derived values.

@@ -12,6 +12,7 @@ import (
 	"corvane/internal/csvio"
 	"corvane/internal/desurvey"
 	"corvane/internal/domain"
+	"corvane/internal/uncertainty"
 )
 
 // ExportColumns are the columns of the measurements export: the stored
@@ -152,4 +153,57 @@ func (s *Service) exportCollars(ctx context.Context, st domain.Store, projectID 
 		}
 		pg.After = hs[len(hs)-1].ID
 	}
+}
+
+// ExportSurveys writes the project's surveys as a surveys file (read) that
+// the surveys import reads back: each hole's survey set (rows without a
+// kind), then its sets by kind (kind column), each with its instrument, in hole order,
+// from one snapshot.
+func (s *Service) ExportSurveys(ctx context.Context, projectID int64, w io.Writer) error {
+	return s.store.Snapshot(ctx, func(ctx context.Context, st domain.Store) error {
+		if _, _, err := s.project(ctx, st, projectID, domain.RoleRead); err != nil {
+			return err
+		}
+		var rows []csvio.SurveyRow
+		add := func(name string, ss domain.SurveySet, kind string) {
+			date, _ := time.Parse(time.DateOnly, ss.SurveyDate)
+			// The instrument of the set; unknown, the default, is written
+			// as the absent value it reads back from.
+			instrument := uncertainty.Instrument(ss.Instrument)
+			if instrument == uncertainty.UnknownSurvey {
+				instrument = ""
+			}
+			for _, x := range ss.Stations {
+				rows = append(rows, csvio.SurveyRow{HoleID: name, Station: desurvey.Station{Depth: x.Depth, Azimuth: x.Azimuth, Dip: x.Dip},
+					AzimuthRef: ss.AzimuthRef, Date: date, Kind: kind, Instrument: instrument})
+			}
+		}
+		pg := domain.Page{Limit: domain.MaxLimit}
+		for {
+			hs, err := st.ListHoles(ctx, projectID, pg)
+			if err != nil {
+				return err
+			}
+			for _, h := range hs {
+				ss, err := st.GetSurvey(ctx, h.ID)
+				switch {
+				case err == nil:
+					add(h.Name, ss, "")
+				case !domain.IsKind(err, domain.NotFound):
+					return err
+				}
+				sets, err := st.ListKindSets(ctx, h.ID)
+				if err != nil {
+					return err
+				}
+				for _, k := range sets {
+					add(h.Name, k.Survey(), k.Kind)
+				}
+			}
+			if len(hs) < domain.MaxLimit {
+				return csvio.WriteSurveys(w, rows)
+			}
+			pg.After = hs[len(hs)-1].ID
+		}
+	})
 }

@@ -31,6 +31,9 @@ type HoleCorrections struct {
 	// applied; ConvergenceSource is "given", "project", "computed" or "none".
 	GridConvergence   *float64 `json:"grid_convergence"`
 	ConvergenceSource string   `json:"convergence_source"`
+	// SurveySet names the survey the corrections apply to (see
+	// Derived.SurveySet), absent when the hole has none.
+	SurveySet string `json:"survey_set,omitempty"`
 	// Cautions about the corrections, e.g. a collar near a magnetic pole.
 	Cautions []string `json:"cautions"`
 	// Error is the hole's problem (a correction it needs and cannot have, a
@@ -47,7 +50,7 @@ type HoleView struct {
 
 // corrections returns what the hole model applies to the hole.
 func (m *holeModel) corrections() HoleCorrections {
-	hc := HoleCorrections{OutputAzimuthRef: m.Output, CollarAzimuthRef: m.hole.AzimuthRef,
+	hc := HoleCorrections{OutputAzimuthRef: m.Output, CollarAzimuthRef: m.hole.AzimuthRef, SurveySet: m.set,
 		GridConvergence: opt(m.Convergence.Value), ConvergenceSource: string(m.Convergence.Source), Cautions: append([]string{}, m.Cautions...)}
 	if hc.CollarAzimuthRef == "" {
 		hc.CollarAzimuthRef = m.Output
@@ -76,11 +79,13 @@ func holeViews(ctx context.Context, st domain.Store, p domain.Project, hs []doma
 	c := ConventionsOf(p)
 	out := make([]HoleView, len(hs))
 	for i, h := range hs {
-		ss, err := surveyOf(ctx, st, h.ID)
+		ss, set, _, err := usedSurvey(ctx, st, h.ID, p.SurveyPriority)
 		if err != nil {
 			return nil, err
 		}
-		out[i] = HoleView{Hole: h, Corrections: newHoleModel(c, h, ss, nil).corrections()}
+		m := newHoleModel(c, h, ss, nil)
+		m.set = set
+		out[i] = HoleView{Hole: h, Corrections: m.corrections()}
 	}
 	return out, nil
 }

@@ -34,10 +34,11 @@ func TestHoleCorrectionsComputed(t *testing.T) {
 		t.Errorf("references: %+v", c)
 	}
 	// The declination is computed on read by the hole model, never stored:
-	// the hole's corrections and the derived values say "computed".
+	// the hole's corrections and the derived values say "computed" and name
+	// the model and decimal year.
 	near(t, "declination", c.Declination, want.Declination, 1e-9)
-	if c.DeclinationSource == nil || *c.DeclinationSource != "computed" {
-		t.Errorf("declination source %v, want computed", c.DeclinationSource)
+	if c.DeclinationSource == nil || *c.DeclinationSource != "computed (WMM-2025 at 2026.2000)" {
+		t.Errorf("declination source %v, want computed (WMM-2025 at 2026.2000)", c.DeclinationSource)
 	}
 	if ss := must(s.GetSurvey(ctx, p.ID, h.ID)); ss.DeclinationSource != "" || ss.Declination != nil {
 		t.Errorf("stored survey set: declination %v from %q, want none stored", ss.Declination, ss.DeclinationSource)
@@ -199,7 +200,7 @@ func TestDeclinationSourceOfSurveySet(t *testing.T) {
 	p.Declination = nil
 	p = must(s.UpdateProject(ctx, p.ID, p.Version, p))
 	want := must(northref.Corrections("EPSG:32750", 412345, 6543210, 320, time.Date(2026, 3, 15, 0, 0, 0, 0, time.UTC), true, false))
-	if d := derived(h.ID); d.Declination == nil || math.Abs(*d.Declination-want.Declination) > 1e-9 || d.DeclinationSource != "computed" {
+	if d := derived(h.ID); d.Declination == nil || math.Abs(*d.Declination-want.Declination) > 1e-9 || d.DeclinationSource != string(want.ComputedSource()) {
 		t.Errorf("derived with a computed declination: %v from %q, want %v computed", d.Declination, d.DeclinationSource, want.Declination)
 	}
 	// A collar without a crs label and no default: the hole's error, never

@@ -25,7 +25,7 @@ func checkRunInHole(r domain.Run, h domain.Hole) error {
 }
 
 // checkFinalDepth refuses to shrink hole h (as stored) to a final depth
-// above its stored data: survey stations, runs and measurements deeper than
+// above its stored data: survey stations (of every set), runs and measurements deeper than
 // depth. The Conflict lists what is deeper (up to maxDeeperListed rows), so
 // the caller knows what to move or delete first.
 func checkFinalDepth(ctx context.Context, st domain.Store, h domain.Hole, depth float64) error {
@@ -45,6 +45,17 @@ func checkFinalDepth(ctx context.Context, st domain.Store, h domain.Hole, depth 
 	for _, s := range ss.Stations {
 		if s.Depth > depth && len(deeper) < maxDeeperListed {
 			add("survey station at %v", s.Depth)
+		}
+	}
+	sets, err := st.ListKindSets(ctx, h.ID)
+	if err != nil {
+		return err
+	}
+	for _, k := range sets {
+		for _, s := range k.Stations {
+			if s.Depth > depth && len(deeper) < maxDeeperListed {
+				add("%s survey station at %v", k.Kind, s.Depth)
+			}
 		}
 	}
 	runs, err := st.ListRuns(ctx, h.ID)

@@ -313,8 +313,11 @@ func importSurveys(ctx context.Context, st domain.Store, p domain.Project, body 
 	}
 	res.Rows = len(rows)
 	ps := &problems{file: res.File}
+	// One set per hole and kind: rows without a kind are the hole's survey
+	// set, rows with one its set of that kind.
 	type set struct {
 		ss   domain.SurveySet
+		kind string
 		line int
 		hole domain.Hole
 	}
@@ -322,7 +325,12 @@ func importSurveys(ctx context.Context, st domain.Store, p domain.Project, body 
 	sets := map[string]*set{}
 	holes := newHoleNames(st, p.ID)
 	for _, r := range rows {
-		s := sets[r.HoleID]
+		key := r.HoleID + "\x00" + r.Kind
+		s := sets[key]
+		what := "survey set"
+		if r.Kind != "" {
+			what = r.Kind + " survey set"
+		}
 		if s == nil {
 			h, ok, err := holes.get(ctx, r.HoleID)
 			if err != nil {
@@ -336,23 +344,23 @@ func importSurveys(ctx context.Context, st domain.Store, p domain.Project, body 
 			if ref == "" { // as the converter: no reference means the output one
 				ref = p.OutputAzimuthRef
 			}
-			s = &set{ss: domain.SurveySet{HoleID: h.ID, AzimuthRef: ref}, line: r.Line, hole: h}
+			s = &set{ss: domain.SurveySet{HoleID: h.ID, AzimuthRef: ref}, kind: r.Kind, line: r.Line, hole: h}
 			if !r.Date.IsZero() {
 				s.ss.SurveyDate = r.Date.Format(time.DateOnly)
 			}
-			sets[r.HoleID] = s
-			order = append(order, r.HoleID)
+			sets[key] = s
+			order = append(order, key)
 		}
 		if r.AzimuthRef != "" && r.AzimuthRef != s.ss.AzimuthRef {
-			ps.add(r.Line, csvio.ColAzimuthRef, "hole %s mixes azimuth references %s and %s; one survey set has one reference", r.HoleID, s.ss.AzimuthRef, r.AzimuthRef)
+			ps.add(r.Line, csvio.ColAzimuthRef, "hole %s mixes azimuth references %s and %s; one %s has one reference", r.HoleID, s.ss.AzimuthRef, r.AzimuthRef, what)
 			continue
 		}
 		if date := r.Date.Format(time.DateOnly); !r.Date.IsZero() && s.ss.SurveyDate != date {
-			ps.add(r.Line, csvio.ColSurveyDate, "hole %s has survey dates %s and %s; one survey set has one date (give the date of each survey in its own file)", r.HoleID, orDefault(s.ss.SurveyDate, "(none)"), date)
+			ps.add(r.Line, csvio.ColSurveyDate, "hole %s has survey dates %s and %s; one %s has one date (give the date of each survey in its own file or kind)", r.HoleID, orDefault(s.ss.SurveyDate, "(none)"), date, what)
 			continue
 		}
 		if r.Instrument != "" {
-			s.ss.Instrument = string(r.Instrument) // one per hole: csvio.ReadSurveys checks
+			s.ss.Instrument = string(r.Instrument) // one per set: csvio.ReadSurveys checks
 		}
 		if r.Station.Depth > s.hole.FinalDepth {
 			ps.add(r.Line, csvio.ColDepth, "station depth %v is past the final depth %v of hole %s", r.Station.Depth, s.hole.FinalDepth, r.HoleID)
@@ -363,10 +371,20 @@ func importSurveys(ctx context.Context, st domain.Store, p domain.Project, body 
 	if err := ps.err(); err != nil {
 		return err
 	}
-	for _, id := range order {
-		s := sets[id]
+	for _, key := range order {
+		s := sets[key]
+		if s.kind != "" {
+			if err := putKindSetRows(ctx, st, s.ss, s.kind, res); err != nil {
+				if e, ok := err.(*domain.Error); ok && e.Kind == domain.Invalid {
+					ps.add(s.line, "", "hole %s: %v", s.hole.Name, err)
+					continue
+				}
+				return err
+			}
+			continue
+		}
 		if err := s.ss.Normalize(); err != nil {
-			ps.add(s.line, "", "hole %s: %v", id, err)
+			ps.add(s.line, "", "hole %s: %v", s.hole.Name, err)
 			continue
 		}
 		cur, err := st.GetSurvey(ctx, s.ss.HoleID)
@@ -385,6 +403,31 @@ func importSurveys(ctx context.Context, st domain.Store, p domain.Project, body 
 		}
 	}
 	return ps.err()
+}
+
+// putKindSetRows stores an imported set of a kind, replacing the hole's set
+// of that kind and keeping its preferred flag.
+func putKindSetRows(ctx context.Context, st domain.Store, ss domain.SurveySet, kind string, res *ImportResult) error {
+	k := domain.KindSet{HoleID: ss.HoleID, Kind: kind, Instrument: ss.Instrument, AzimuthRef: ss.AzimuthRef, SurveyDate: ss.SurveyDate, Stations: ss.Stations}
+	if err := k.Normalize(); err != nil {
+		return err
+	}
+	cur, err := st.ListKindSets(ctx, ss.HoleID)
+	if err != nil {
+		return err
+	}
+	var v int64
+	for _, c := range cur {
+		if c.Kind == kind {
+			v, k.Preferred = c.Version, c.Preferred
+		}
+	}
+	if v == 0 {
+		res.Created++
+	} else {
+		res.Updated++
+	}
+	return st.PutKindSet(ctx, &k, v)
 }
 
 func importRuns(ctx context.Context, st domain.Store, p domain.Project, body io.Reader, res *ImportResult) error {

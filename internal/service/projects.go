@@ -20,6 +20,9 @@ func (s *Service) CreateProject(ctx context.Context, p domain.Project) (domain.P
 	if err := p.Normalize(); err != nil {
 		return p, err
 	}
+	if err := checkLocalGrid(&p); err != nil {
+		return p, err
+	}
 	err = s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
 		if err := st.CreateProject(ctx, &p); err != nil {
 			return nameTaken(err, p.Name)
@@ -65,6 +68,9 @@ func (s *Service) ListProjects(ctx context.Context, pg domain.Page) (List[domain
 // (admin). Derived values follow at once: they are computed on read.
 func (s *Service) UpdateProject(ctx context.Context, id, ifVersion int64, p domain.Project) (domain.Project, error) {
 	if err := p.Normalize(); err != nil {
+		return p, err
+	}
+	if err := checkLocalGrid(&p); err != nil {
 		return p, err
 	}
 	err := s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {

@@ -117,9 +117,24 @@ func (s *Service) qaInput(ctx context.Context, p domain.Project, holes []domain.
 	names := make(map[int64]string, len(holes))
 	for _, h := range holes {
 		names[h.ID] = h.Name
-		ss, err := surveyOf(ctx, s.store, h.ID)
+		ss, _, sets, err := usedSurvey(ctx, s.store, h.ID, p.SurveyPriority)
 		if err != nil {
 			return in, err
+		}
+		// Each set by kind goes to QA in the output reference through the
+		// hole model, so a magnetic and a gyro set can be compared; a set the
+		// model cannot build is left out of the comparison.
+		for _, k := range sets {
+			ks := k.Survey()
+			km := newHoleModel(conv, h, &ks, nil)
+			if km.Err != nil {
+				continue
+			}
+			qs := qa.SurveySet{HoleID: h.Name, Kind: k.Kind}
+			for _, st := range km.Stations {
+				qs.Stations = append(qs.Stations, qa.Station{HoleID: h.Name, Depth: st.Depth, Azimuth: st.Azimuth, Dip: st.Dip, Magnetic: k.AzimuthRef == domain.AzimuthMagnetic})
+			}
+			in.SurveySets = append(in.SurveySets, qs)
 		}
 		runs, err := s.store.ListRuns(ctx, h.ID)
 		if err != nil {
@@ -130,7 +145,7 @@ func (s *Service) qaInput(ctx context.Context, p domain.Project, holes []domain.
 		// cannot build is reported once, as in corvane qa.
 		m := newHoleModel(conv, h, ss, runs)
 		c := m.Collar
-		qc := qa.Collar{HoleID: h.Name, East: c.East, North: c.North, Elevation: c.Elevation, Azimuth: c.Azimuth, Dip: c.Dip, Depth: c.Depth, Path: m.Path}
+		qc := qa.Collar{HoleID: h.Name, East: c.East, North: c.North, Elevation: c.Elevation, Azimuth: c.Azimuth, Dip: c.Dip, Depth: c.Depth, Path: m.Path, DeclinationSource: m.DeclinationSource()}
 		if m.Err != nil {
 			qc.Problem, qc.ProblemSource = m.Err.Msg, "collars"
 			if m.Err.Station >= 0 {

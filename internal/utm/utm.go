@@ -39,16 +39,30 @@ const (
 	FalseNorthingSouth = 10000000.0
 )
 
-var (
-	e2 = F * (2 - F)
-	e  = math.Sqrt(e2)
-	n  = F / (2 - F)
-	// rectA is Karney's A: the radius of the sphere with the same meridian
-	// length, A = a/(1+n) (1 + n^2/4 + n^4/64 + n^6/256 + 25 n^8/16384).
-	rectA = A / (1 + n) * (1 + n*n/4 + math.Pow(n, 4)/64 + math.Pow(n, 6)/256 + 25*math.Pow(n, 8)/16384)
-	alpha = krugerAlpha(n)
-	beta  = krugerBeta(n)
-)
+// series holds the constants of the transverse Mercator series for one
+// ellipsoid.
+type series struct {
+	a, e2, e    float64 // semi-major axis (m), eccentricity squared, eccentricity
+	rectA       float64 // Karney's A
+	alpha, beta [6]float64
+}
+
+// newSeries prepares the series for an ellipsoid of semi-major axis a and
+// flattening f.
+func newSeries(a, f float64) *series {
+	n := f / (2 - f)
+	e2 := f * (2 - f)
+	return &series{
+		a: a, e2: e2, e: math.Sqrt(e2),
+		// Karney's A: the radius of the sphere with the same meridian length,
+		// A = a/(1+n) (1 + n^2/4 + n^4/64 + n^6/256 + 25 n^8/16384).
+		rectA: a / (1 + n) * (1 + n*n/4 + math.Pow(n, 4)/64 + math.Pow(n, 6)/256 + 25*math.Pow(n, 8)/16384),
+		alpha: krugerAlpha(n), beta: krugerBeta(n),
+	}
+}
+
+// wgs84 is the series of UTM on WGS 84.
+var wgs84 = newSeries(A, F)
 
 // krugerAlpha returns alpha_1..alpha_6 of Karney (2011) eq. 35 (forward series).
 func krugerAlpha(n float64) [6]float64 {
@@ -167,7 +181,7 @@ func Forward(z Zone, lat, lon float64) (Grid, error) {
 		return Grid{}, fmt.Errorf("longitude %v is %.1f degrees from the central meridian of UTM zone %v (%v); more than %v is outside the projection's accurate range",
 			lon, math.Abs(dl), z, z.CentralMeridian(), MaxOffset)
 	}
-	x, y, gam, k := tmForward(lat, dl)
+	x, y, gam, k := wgs84.forward(K0, lat, dl)
 	g := Grid{Easting: FalseEasting + x, Northing: y, Convergence: gam, Scale: k}
 	if z.South {
 		g.Northing += FalseNorthingSouth
@@ -175,11 +189,11 @@ func Forward(z Zone, lat, lon float64) (Grid, error) {
 	return g, nil
 }
 
-// tmForward is the transverse Mercator on the WGS 84 ellipsoid with scale K0,
-// for latitude phi and longitude dl from the central meridian (degrees).
+// forward is the transverse Mercator on the series' ellipsoid with central
+// scale k0, for latitude phi and longitude dl from the central meridian (degrees).
 // It returns x (east) and y (north) in metres without false origins, the
 // convergence in degrees and the scale factor (Karney 2011, eqs. 7-13, 25, 26).
-func tmForward(phiDeg, dlDeg float64) (x, y, gamma, k float64) {
+func (sr *series) forward(k0, phiDeg, dlDeg float64) (x, y, gamma, k float64) {
 	phi := phiDeg * math.Pi / 180
 	lam := dlDeg * math.Pi / 180
 	sphi, cphi := math.Sincos(phi)
@@ -189,14 +203,14 @@ func tmForward(phiDeg, dlDeg float64) (x, y, gamma, k float64) {
 		cphi = 1e-300
 		tau = math.Copysign(1e300, sphi)
 	}
-	taup := taupf(tau)
+	taup := sr.taupf(tau)
 	xip := math.Atan2(taup, clam)
 	etap := math.Asinh(slam / math.Hypot(taup, clam))
 
 	xi, eta := xip, etap
 	pp, qp := 1.0, 0.0
 	for j := 1; j <= 6; j++ {
-		a := alpha[j-1]
+		a := sr.alpha[j-1]
 		s2, c2 := math.Sincos(2 * float64(j) * xip)
 		sh, ch := math.Sinh(2*float64(j)*etap), math.Cosh(2*float64(j)*etap)
 		xi += a * s2 * ch
@@ -204,8 +218,8 @@ func tmForward(phiDeg, dlDeg float64) (x, y, gamma, k float64) {
 		pp += 2 * float64(j) * a * c2 * ch
 		qp += 2 * float64(j) * a * s2 * sh
 	}
-	x = K0 * rectA * eta
-	y = K0 * rectA * xi
+	x = k0 * sr.rectA * eta
+	y = k0 * sr.rectA * xi
 
 	// Convergence: gamma' = atan(tau'/sqrt(1+tau'^2) tan lam), gamma'' = atan2(q', p').
 	gp := math.Atan2(taup*slam, math.Sqrt(1+taup*taup)*clam)
@@ -213,27 +227,27 @@ func tmForward(phiDeg, dlDeg float64) (x, y, gamma, k float64) {
 	gamma = (gp + gpp) * 180 / math.Pi
 
 	// Scale: k = K0 (A/a) sqrt(p'^2+q'^2) sqrt(1-e^2 sin^2 phi) sqrt(1+tau^2) / sqrt(tau'^2 + cos^2 lam).
-	kp := math.Sqrt(1-e2*sphi*sphi) / cphi / math.Hypot(taup, clam)
-	kpp := rectA / A * math.Hypot(pp, qp)
-	k = K0 * kp * kpp
+	kp := math.Sqrt(1-sr.e2*sphi*sphi) / cphi / math.Hypot(taup, clam)
+	kpp := sr.rectA / sr.a * math.Hypot(pp, qp)
+	k = k0 * kp * kpp
 	return
 }
 
 // taupf returns tau' = tan(conformal latitude) from tau = tan(latitude),
 // tau' = tau sqrt(1+sigma^2) - sigma sqrt(1+tau^2), sigma = sinh(e atanh(e tau/sqrt(1+tau^2)))
 // (Karney 2011, eqs. 7-9).
-func taupf(tau float64) float64 {
+func (sr *series) taupf(tau float64) float64 {
 	t1 := math.Hypot(1, tau)
-	sig := math.Sinh(e * math.Atanh(e*tau/t1))
+	sig := math.Sinh(sr.e * math.Atanh(sr.e*tau/t1))
 	return tau*math.Hypot(1, sig) - sig*t1
 }
 
 // tauf inverts taupf by Newton's method (Karney 2011, eqs. 19-21).
-func tauf(taup float64) float64 {
-	tau := taup / (1 - e2) // good start near the equator and the poles alike
+func (sr *series) tauf(taup float64) float64 {
+	tau := taup / (1 - sr.e2) // good start near the equator and the poles alike
 	for i := 0; i < 10; i++ {
-		tp := taupf(tau)
-		d := (taup - tp) / math.Hypot(1, tp) * (1 + (1-e2)*tau*tau) / ((1 - e2) * math.Hypot(1, tau))
+		tp := sr.taupf(tau)
+		d := (taup - tp) / math.Hypot(1, tp) * (1 + (1-sr.e2)*tau*tau) / ((1 - sr.e2) * math.Hypot(1, tau))
 		tau += d
 		if math.Abs(d) <= 1e-15*math.Max(1, math.Abs(tau)) {
 			break
@@ -261,7 +275,7 @@ func Inverse(z Zone, easting, northing float64) (Geo, error) {
 	if z.South {
 		y -= FalseNorthingSouth
 	}
-	lat, dl, gam, k := tmInverse(easting-FalseEasting, y)
+	lat, dl, gam, k := wgs84.inverse(K0, easting-FalseEasting, y)
 	if math.IsNaN(lat) || math.IsNaN(dl) || math.Abs(dl) > MaxOffset {
 		return Geo{}, fmt.Errorf("easting %v, northing %v is outside the accurate range of UTM zone %v", easting, northing, z)
 	}
@@ -272,17 +286,17 @@ func Inverse(z Zone, easting, northing float64) (Geo, error) {
 	return Geo{Lat: lat, Lon: lon, Convergence: gam, Scale: k}, nil
 }
 
-// tmInverse returns latitude and longitude from the central meridian
+// inverse returns latitude and longitude from the central meridian
 // (degrees) for x, y in metres without false origins, with the convergence
 // (degrees) and scale there, computed from the inverse series directly
 // (Karney 2011, eqs. 11, 15-21, 27-28).
-func tmInverse(x, y float64) (lat, dl, gamma, k float64) {
-	xi := y / (K0 * rectA)
-	eta := x / (K0 * rectA)
+func (sr *series) inverse(k0, x, y float64) (lat, dl, gamma, k float64) {
+	xi := y / (k0 * sr.rectA)
+	eta := x / (k0 * sr.rectA)
 	xip, etap := xi, eta
 	pp, qp := 1.0, 0.0
 	for j := 1; j <= 6; j++ {
-		b := beta[j-1]
+		b := sr.beta[j-1]
 		jj := 2 * float64(j)
 		s2, c2 := math.Sincos(jj * xi)
 		sh, ch := math.Sinh(jj*eta), math.Cosh(jj*eta)
@@ -296,13 +310,13 @@ func tmInverse(x, y float64) (lat, dl, gamma, k float64) {
 	r := math.Hypot(shetap, cxip)
 	taup := sxip / r
 	lam := math.Atan2(shetap, cxip)
-	tau := tauf(taup)
+	tau := sr.tauf(taup)
 	phi := math.Atan(tau)
 
 	// Convergence: gamma' = atan(tan xi' tanh eta'), gamma'' = atan2(q, p).
 	gamma = (math.Atan2(sxip*shetap, cxip*chetap) + math.Atan2(qp, pp)) * 180 / math.Pi
 	// Scale: k = K0 (A/a) sqrt(1 - e^2 sin^2 phi) sqrt(1 + tau^2) sqrt(sinh^2 eta' + cos^2 xi') / sqrt(p^2 + q^2).
 	sphi := math.Sin(phi)
-	k = K0 * rectA / A * math.Sqrt(1-e2*sphi*sphi) * math.Hypot(1, tau) * r / math.Hypot(pp, qp)
+	k = k0 * sr.rectA / sr.a * math.Sqrt(1-sr.e2*sphi*sphi) * math.Hypot(1, tau) * r / math.Hypot(pp, qp)
 	return phi * 180 / math.Pi, lam * 180 / math.Pi, gamma, k
 }

@@ -65,8 +65,8 @@ func TestCentralMeridian(t *testing.T) {
 	if want := K0 * 10001965.7293; math.Abs(g.Northing-want) > 1e-3 {
 		t.Errorf("northing at the pole %.4f, want %.4f", g.Northing, want)
 	}
-	if math.Abs(rectA-6367449.1458) > 1e-4 {
-		t.Errorf("rectifying radius %.5f", rectA)
+	if math.Abs(wgs84.rectA-6367449.1458) > 1e-4 {
+		t.Errorf("rectifying radius %.5f", wgs84.rectA)
 	}
 }
 
@@ -96,7 +96,7 @@ func TestScaleLines(t *testing.T) {
 // M = a (1 - e^2) / (1 - e^2 sin^2 lat)^(3/2) (common practice).
 func meridianRadius(lat float64) float64 {
 	s := math.Sin(lat * math.Pi / 180)
-	return A * (1 - e2) / math.Pow(1-e2*s*s, 1.5)
+	return A * (1 - wgs84.e2) / math.Pow(1-wgs84.e2*s*s, 1.5)
 }
 
 // TestConvergenceAndScaleByDifferences checks convergence and scale against

@@ -225,6 +225,31 @@ func Parse(r io.Reader) (*Model, error) {
 	return m, nil
 }
 
+// Index returns the position of the coefficient of degree n and order m in
+// the slices given to [New]: n(n+1)/2 + m.
+func Index(n, m int) int { return idx(n, m) }
+
+// New builds a model of degree maxDeg from Gauss coefficients g, h at epoch
+// (nT, Schmidt semi-normalised) and their yearly changes gdot, hdot (nT/yr),
+// each slice indexed by [Index] and of length Index(maxDeg, maxDeg)+1 (the
+// entries for n = 0 are ignored). The model covers epoch to epoch + 5 years
+// like a WMM file; other spherical-harmonic models (IGRF) build one model per
+// five-year interval this way. The slices are copied.
+func New(name string, epoch float64, maxDeg int, g, h, gdot, hdot []float64) (*Model, error) {
+	size := idx(maxDeg, maxDeg) + 1
+	if maxDeg < 1 || maxDeg > 100 {
+		return nil, fmt.Errorf("wmm: degree %d is outside 1..100", maxDeg)
+	}
+	for _, s := range [][]float64{g, h, gdot, hdot} {
+		if len(s) != size {
+			return nil, fmt.Errorf("wmm: %d coefficients given, degree %d needs %d", len(s), maxDeg, size)
+		}
+	}
+	return &Model{Name: name, Epoch: epoch, MaxDeg: maxDeg,
+		g: append([]float64(nil), g...), h: append([]float64(nil), h...),
+		gd: append([]float64(nil), gdot...), hd: append([]float64(nil), hdot...)}, nil
+}
+
 // Field is the geomagnetic field at one place and time.
 type Field struct {
 	X, Y, Z float64 // north, east, down components, nT
@@ -248,7 +273,7 @@ type RangeError struct {
 }
 
 func (e *RangeError) Error() string {
-	return fmt.Sprintf("date %.4f is outside the validity of magnetic model %s (%.1f to %.1f); a newer coefficient file is needed",
+	return fmt.Sprintf("decimal year %.4f is outside the range of magnetic model %s (%.1f to %.1f)",
 		e.Year, e.Model, e.From, e.To)
 }
 
@@ -268,22 +293,31 @@ func (e *RangeError) Error() string {
 // outside [-90, 90], non-finite input or a height below -10 km or above
 // 850 km (the model's stated range is -1 km to 850 km) give plain errors.
 func (m *Model) At(lat, lon, hKm, year float64) (Field, error) {
-	switch {
-	case math.IsNaN(lat) || lat < -90 || lat > 90:
-		return Field{}, fmt.Errorf("latitude %v is outside -90..90 degrees", lat)
-	case math.IsNaN(lon) || math.IsInf(lon, 0):
-		return Field{}, fmt.Errorf("longitude %v is not a finite number", lon)
-	case math.IsNaN(hKm) || hKm < -10 || hKm > 850:
+	if err := m.check("latitude", lat, lon, year); err != nil {
+		return Field{}, err
+	}
+	if math.IsNaN(hKm) || hKm < -10 || hKm > 850 {
 		return Field{}, fmt.Errorf("height %v km is outside the model's range (-10 to 850 km above the ellipsoid)", hKm)
-	case math.IsNaN(year) || year < m.ValidFrom() || year > m.ValidTo():
-		return Field{}, &RangeError{Year: year, From: m.ValidFrom(), To: m.ValidTo(), Model: m.Name}
 	}
 	return m.eval(lat, lon, hKm, year), nil
 }
 
+// check reports a latitude (named latName), longitude or date the model
+// cannot take; the date gives a *RangeError.
+func (m *Model) check(latName string, lat, lon, year float64) error {
+	switch {
+	case math.IsNaN(lat) || lat < -90 || lat > 90:
+		return fmt.Errorf("%s %v is outside -90..90 degrees", latName, lat)
+	case math.IsNaN(lon) || math.IsInf(lon, 0):
+		return fmt.Errorf("longitude %v is not a finite number", lon)
+	case math.IsNaN(year) || year < m.ValidFrom() || year > m.ValidTo():
+		return &RangeError{Year: year, From: m.ValidFrom(), To: m.ValidTo(), Model: m.Name}
+	}
+	return nil
+}
+
 func (m *Model) eval(lat, lon, hKm, year float64) Field {
 	phi := lat * math.Pi / 180
-	lam := lon * math.Pi / 180
 	sphi, cphi := math.Sincos(phi)
 
 	// Geodetic -> geocentric spherical.
@@ -294,10 +328,67 @@ func (m *Model) eval(lat, lon, hKm, year float64) Field {
 	if p < 1e-12 { // exactly at a pole: keep the meridian of lon defined
 		p = 1e-12
 	}
-	t := z / r // sin(phi')
-	u := p / r // cos(phi')
-	phic := math.Atan2(z, p)
+	b, s := m.synth(r, z/r, p/r, lon*math.Pi/180, year-m.Epoch)
 
+	// Rotate from geocentric to geodetic.
+	psi := math.Atan2(z, p) - phi
+	sp, cp := math.Sincos(psi)
+	var f Field
+	f.X = b[0]*cp - b[2]*sp
+	f.Y = b[1]
+	f.Z = b[0]*sp + b[2]*cp
+	f.XDot = s[0]*cp - s[2]*sp
+	f.YDot = s[1]
+	f.ZDot = s[0]*sp + s[2]*cp
+	f.derive()
+	return f
+}
+
+// AtGeocentric evaluates the model at geocentric latitude latc (degrees,
+// the angle at the Earth's centre, 90 - colatitude), longitude lon (degrees)
+// and geocentric radius rKm (km) on decimal year year. The components X, Y,
+// Z are those of the geocentric spherical frame (north along the meridian
+// of the sphere, east, towards the centre), as published check values of
+// spherical-harmonic models are given. Errors as for [Model.At]; the
+// radius must lie within 6300 to 7300 km.
+func (m *Model) AtGeocentric(latc, lon, rKm, year float64) (Field, error) {
+	if err := m.check("geocentric latitude", latc, lon, year); err != nil {
+		return Field{}, err
+	}
+	if math.IsNaN(rKm) || rKm < 6300 || rKm > 7300 {
+		return Field{}, fmt.Errorf("radius %v km is outside 6300 to 7300 km", rKm)
+	}
+	t, u := math.Sincos(latc * math.Pi / 180)
+	if u < 1e-12 {
+		u = 1e-12
+	}
+	b, s := m.synth(rKm, t, u, lon*math.Pi/180, year-m.Epoch)
+	f := Field{X: b[0], Y: b[1], Z: b[2], XDot: s[0], YDot: s[1], ZDot: s[2]}
+	f.derive()
+	return f, nil
+}
+
+// derive fills the intensities, angles, their rates and the zone from the
+// components and their rates.
+func (f *Field) derive() {
+	f.H = math.Hypot(f.X, f.Y)
+	f.F = math.Hypot(f.H, f.Z)
+	f.Declination = math.Atan2(f.Y, f.X) * 180 / math.Pi
+	f.Inclination = math.Atan2(f.Z, f.H) * 180 / math.Pi
+	if f.H > 0 {
+		f.HDot = (f.X*f.XDot + f.Y*f.YDot) / f.H
+		f.DeclinationDot = (f.X*f.YDot - f.Y*f.XDot) / (f.H * f.H) * 180 / math.Pi
+	}
+	f.FDot = (f.X*f.XDot + f.Y*f.YDot + f.Z*f.ZDot) / f.F
+	f.InclinationDot = (f.H*f.ZDot - f.Z*f.HDot) / (f.F * f.F) * 180 / math.Pi
+	f.Zone = ZoneOf(f.H)
+}
+
+// synth sums the expansion at geocentric radius r (km), t = sin and u = cos
+// of the geocentric latitude, longitude lam (radians), dt years after the
+// epoch. It returns the field b and its secular variation s as north, east
+// and down components in the geocentric spherical frame.
+func (m *Model) synth(r, t, u, lam, dt float64) (b, s [3]float64) {
 	nmax := m.MaxDeg
 	size := idx(nmax, nmax) + 1
 	var pbuf, dpbuf [idxCap]float64
@@ -326,7 +417,6 @@ func (m *Model) eval(lat, lon, hKm, year float64) Field {
 		sm[k] = sm[k-1]*cm[1] + cm[k-1]*sm[1]
 	}
 
-	dt := year - m.Epoch
 	ar := refRadius / r
 	arn := ar * ar // (a/r)^(n+2) starts at n = 0
 	var bx, by, bz, sx, sy, sz float64
@@ -355,32 +445,7 @@ func (m *Model) eval(lat, lon, hKm, year float64) Field {
 		sy += arn * ys
 		sz -= float64(n+1) * arn * zs
 	}
-	by /= u
-	sy /= u
-
-	// Rotate from geocentric to geodetic.
-	psi := phic - phi
-	sp, cp := math.Sincos(psi)
-	var f Field
-	f.X = bx*cp - bz*sp
-	f.Y = by
-	f.Z = bx*sp + bz*cp
-	f.XDot = sx*cp - sz*sp
-	f.YDot = sy
-	f.ZDot = sx*sp + sz*cp
-
-	f.H = math.Hypot(f.X, f.Y)
-	f.F = math.Hypot(f.H, f.Z)
-	f.Declination = math.Atan2(f.Y, f.X) * 180 / math.Pi
-	f.Inclination = math.Atan2(f.Z, f.H) * 180 / math.Pi
-	if f.H > 0 {
-		f.HDot = (f.X*f.XDot + f.Y*f.YDot) / f.H
-		f.DeclinationDot = (f.X*f.YDot - f.Y*f.XDot) / (f.H * f.H) * 180 / math.Pi
-	}
-	f.FDot = (f.X*f.XDot + f.Y*f.YDot + f.Z*f.ZDot) / f.F
-	f.InclinationDot = (f.H*f.ZDot - f.Z*f.HDot) / (f.F * f.F) * 180 / math.Pi
-	f.Zone = ZoneOf(f.H)
-	return f
+	return [3]float64{bx, by / u, bz}, [3]float64{sx, sy / u, sz}
 }
 
 // Stack buffers cover models up to degree 13 without allocation.

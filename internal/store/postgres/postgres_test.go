@@ -34,7 +34,8 @@ func TestMigrationBackfill(t *testing.T) {
 		}
 		return s
 	}, func(t *testing.T) {
-		// Roll back to version 2 (before 000003), then up again.
+		// Roll back one migration at a time to version 2 (before 000003,
+		// undoing 000010 and 000004 on the way), then up again.
 		for {
 			v, _, err := postgres.Version(url)
 			if err != nil {
@@ -44,7 +45,7 @@ func TestMigrationBackfill(t *testing.T) {
 				break
 			}
 			if err := postgres.Migrate(url, -1); err != nil {
-				t.Fatalf("rolling back %d: %v", v, err)
+				t.Fatalf("rolling back from version %d: %v", v, err)
 			}
 		}
 		if err := postgres.Migrate(url, 0); err != nil {

@@ -11,19 +11,19 @@ import (
 )
 
 const projectCols = `id, name, description, ref_line, beta_apex, gamma_sense, length_unit,
-	output_azimuth_ref, declination, convergence, error_model, persistent_fabric, version, created_at, updated_at`
+	output_azimuth_ref, declination, convergence, magnetic_model, local_grid, error_model, persistent_fabric, survey_priority, version, created_at, updated_at`
 
 const (
 	insertProject = `INSERT INTO projects (name, description, ref_line, beta_apex, gamma_sense,
-	length_unit, output_azimuth_ref, declination, convergence, error_model, persistent_fabric, version, created_at, updated_at)
-	VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, 1, $12, $13) RETURNING id`
+	length_unit, output_azimuth_ref, declination, convergence, magnetic_model, local_grid, error_model, persistent_fabric, survey_priority, version, created_at, updated_at)
+	VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, 1, $15, $16) RETURNING id`
 	selectProject       = `SELECT ` + projectCols + ` FROM projects WHERE id = $1`
 	selectProjectByName = `SELECT ` + projectCols + ` FROM projects WHERE name = $1`
 	listProjects        = `SELECT ` + projectCols + ` FROM projects WHERE id > $1 ORDER BY id LIMIT $2`
 	updateProject       = `UPDATE projects SET name = $1, description = $2, ref_line = $3, beta_apex = $4,
 	gamma_sense = $5, length_unit = $6, output_azimuth_ref = $7, declination = $8, convergence = $9,
-	error_model = $10, persistent_fabric = $11,
-	version = version + 1, updated_at = $12 WHERE id = $13 AND version = $14 RETURNING version`
+	magnetic_model = $10, local_grid = $11, error_model = $12, persistent_fabric = $13, survey_priority = $14,
+	version = version + 1, updated_at = $15 WHERE id = $16 AND version = $17 RETURNING version`
 	deleteProject = `DELETE FROM projects WHERE id = $1 AND version = $2`
 	// Measurements go first: they refer to both holes and the vocabulary,
 	// which the project's deletion cascades to in no guaranteed order.
@@ -36,8 +36,10 @@ func scanProject(r scanner) (domain.Project, error) {
 	var p domain.Project
 	var em string
 	var c, u time.Time
+	var grid string
 	err := r.Scan(&p.ID, &p.Name, &p.Description, &p.RefLine, &p.BetaApex, &p.GammaSense, &p.LengthUnit,
-		&p.OutputAzimuthRef, &p.Declination, &p.Convergence, &em, &p.PersistentFabric, &p.Version, &c, &u)
+		&p.OutputAzimuthRef, &p.Declination, &p.Convergence, &p.MagneticModel, &grid, &em, &p.PersistentFabric, &p.SurveyPriority, &p.Version, &c, &u)
+	p.LocalGrid = storekit.JSONFromText(grid)
 	if err == nil {
 		p.ErrorModel, err = storekit.ModelOf(em)
 	}
@@ -50,7 +52,7 @@ func (s *Store) CreateProject(ctx context.Context, p *domain.Project) error {
 	t := storekit.Now()
 	return s.write(ctx, func(q querier) error {
 		err := q.QueryRow(ctx, insertProject, p.Name, p.Description, p.RefLine, p.BetaApex, p.GammaSense,
-			p.LengthUnit, p.OutputAzimuthRef, storekit.NullFloat(p.Declination), storekit.NullFloat(p.Convergence), storekit.ModelText(p.ErrorModel), p.PersistentFabric, t, t).Scan(&p.ID)
+			p.LengthUnit, p.OutputAzimuthRef, storekit.NullFloat(p.Declination), storekit.NullFloat(p.Convergence), p.MagneticModel, storekit.JSONText(p.LocalGrid), storekit.ModelText(p.ErrorModel), p.PersistentFabric, p.SurveyPriority, t, t).Scan(&p.ID)
 		if err != nil {
 			return translate(err)
 		}
@@ -86,7 +88,7 @@ func (s *Store) UpdateProject(ctx context.Context, p *domain.Project, ifVersion 
 	t := storekit.Now()
 	return s.write(ctx, func(q querier) error {
 		err := q.QueryRow(ctx, updateProject, p.Name, p.Description, p.RefLine, p.BetaApex, p.GammaSense,
-			p.LengthUnit, p.OutputAzimuthRef, storekit.NullFloat(p.Declination), storekit.NullFloat(p.Convergence), storekit.ModelText(p.ErrorModel), p.PersistentFabric, t, p.ID, ifVersion).Scan(&p.Version)
+			p.LengthUnit, p.OutputAzimuthRef, storekit.NullFloat(p.Declination), storekit.NullFloat(p.Convergence), p.MagneticModel, storekit.JSONText(p.LocalGrid), storekit.ModelText(p.ErrorModel), p.PersistentFabric, p.SurveyPriority, t, p.ID, ifVersion).Scan(&p.Version)
 		if err == pgx.ErrNoRows {
 			return versionGone(ctx, q, "projects", "project", p.ID, ifVersion)
 		}

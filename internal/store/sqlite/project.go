@@ -9,18 +9,18 @@ import (
 )
 
 const projectCols = `id, name, description, ref_line, beta_apex, gamma_sense, length_unit,
-	output_azimuth_ref, declination, convergence, error_model, persistent_fabric, version, created_at, updated_at`
+	output_azimuth_ref, declination, convergence, magnetic_model, local_grid, error_model, persistent_fabric, survey_priority, version, created_at, updated_at`
 
 const (
 	insertProject = `INSERT INTO projects (name, description, ref_line, beta_apex, gamma_sense,
-	length_unit, output_azimuth_ref, declination, convergence, error_model, persistent_fabric, version, created_at, updated_at)
-	VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1, ?, ?) RETURNING id`
+	length_unit, output_azimuth_ref, declination, convergence, magnetic_model, local_grid, error_model, persistent_fabric, survey_priority, version, created_at, updated_at)
+	VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1, ?, ?) RETURNING id`
 	selectProject       = `SELECT ` + projectCols + ` FROM projects WHERE id = ?`
 	selectProjectByName = `SELECT ` + projectCols + ` FROM projects WHERE name = ?`
 	listProjects        = `SELECT ` + projectCols + ` FROM projects WHERE id > ? ORDER BY id LIMIT ?`
 	updateProject       = `UPDATE projects SET name = ?, description = ?, ref_line = ?, beta_apex = ?,
 	gamma_sense = ?, length_unit = ?, output_azimuth_ref = ?, declination = ?, convergence = ?,
-	error_model = ?, persistent_fabric = ?,
+	magnetic_model = ?, local_grid = ?, error_model = ?, persistent_fabric = ?, survey_priority = ?,
 	version = version + 1, updated_at = ? WHERE id = ? AND version = ? RETURNING version`
 	deleteProject = `DELETE FROM projects WHERE id = ? AND version = ?`
 	// Measurements go first: they refer to both holes and the vocabulary,
@@ -34,8 +34,10 @@ func scanProject(r scanner) (domain.Project, error) {
 	var p domain.Project
 	var em string
 	var c, u int64
+	var grid string
 	err := r.Scan(&p.ID, &p.Name, &p.Description, &p.RefLine, &p.BetaApex, &p.GammaSense, &p.LengthUnit,
-		&p.OutputAzimuthRef, &p.Declination, &p.Convergence, &em, &p.PersistentFabric, &p.Version, &c, &u)
+		&p.OutputAzimuthRef, &p.Declination, &p.Convergence, &p.MagneticModel, &grid, &em, &p.PersistentFabric, &p.SurveyPriority, &p.Version, &c, &u)
+	p.LocalGrid = storekit.JSONFromText(grid)
 	if err == nil {
 		p.ErrorModel, err = storekit.ModelOf(em)
 	}
@@ -48,7 +50,7 @@ func (s *Store) CreateProject(ctx context.Context, p *domain.Project) error {
 	t := storekit.Now()
 	return s.write(ctx, func(q querier) error {
 		err := q.QueryRowContext(ctx, insertProject, p.Name, p.Description, p.RefLine, p.BetaApex, p.GammaSense,
-			p.LengthUnit, p.OutputAzimuthRef, storekit.NullFloat(p.Declination), storekit.NullFloat(p.Convergence), storekit.ModelText(p.ErrorModel), p.PersistentFabric, micro(t), micro(t)).Scan(&p.ID)
+			p.LengthUnit, p.OutputAzimuthRef, storekit.NullFloat(p.Declination), storekit.NullFloat(p.Convergence), p.MagneticModel, storekit.JSONText(p.LocalGrid), storekit.ModelText(p.ErrorModel), p.PersistentFabric, p.SurveyPriority, micro(t), micro(t)).Scan(&p.ID)
 		if err != nil {
 			return translate(err)
 		}
@@ -84,7 +86,7 @@ func (s *Store) UpdateProject(ctx context.Context, p *domain.Project, ifVersion 
 	t := storekit.Now()
 	return s.write(ctx, func(q querier) error {
 		err := q.QueryRowContext(ctx, updateProject, p.Name, p.Description, p.RefLine, p.BetaApex, p.GammaSense,
-			p.LengthUnit, p.OutputAzimuthRef, storekit.NullFloat(p.Declination), storekit.NullFloat(p.Convergence), storekit.ModelText(p.ErrorModel), p.PersistentFabric, micro(t), p.ID, ifVersion).Scan(&p.Version)
+			p.LengthUnit, p.OutputAzimuthRef, storekit.NullFloat(p.Declination), storekit.NullFloat(p.Convergence), p.MagneticModel, storekit.JSONText(p.LocalGrid), storekit.ModelText(p.ErrorModel), p.PersistentFabric, p.SurveyPriority, micro(t), p.ID, ifVersion).Scan(&p.Version)
 		if err == sql.ErrNoRows {
 			return versionGone(ctx, q, "projects", "project", p.ID, ifVersion)
 		}

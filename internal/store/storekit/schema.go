@@ -97,12 +97,22 @@ func (s Schema) state() (known []uint, at int, version uint, err error) {
 	return nil, 0, version, fmt.Errorf("the database schema is at version %d, which this corvane does not carry (it has %v)", version, known)
 }
 
-// Up applies every pending migration.
+// Up applies every pending migration. A dirty flag read before the
+// migrator holds the database's lock may be another replica's migration in
+// progress (replicas starting together): Up then leaves the check to the
+// migrator, which waits for the lock and checks again before it touches
+// anything.
 func (s Schema) Up() error {
-	if _, _, _, err := s.state(); err != nil {
+	var dirty *DirtyError
+	if _, _, _, err := s.state(); err != nil && !errors.As(err, &dirty) {
 		return err
 	}
-	return s.run(func(m *migrate.Migrate) error { return m.Up() })
+	err := s.run(func(m *migrate.Migrate) error { return m.Up() })
+	var md migrate.ErrDirty
+	if errors.As(err, &md) {
+		return &DirtyError{Version: uint(md.Version)}
+	}
+	return err
 }
 
 // Steps applies n up migrations (n > 0) or rolls n back (n < 0), refusing

@@ -191,3 +191,33 @@ func SplitPieces(s string) ([]float64, error) {
 	}
 	return out, nil
 }
+
+// JSONText is the column text of an optional JSON document: "" when none.
+func JSONText(doc json.RawMessage) string {
+	if len(doc) == 0 || string(doc) == "null" {
+		return ""
+	}
+	return string(doc)
+}
+
+// JSONFromText is the inverse of JSONText: nil for "".
+func JSONFromText(s string) json.RawMessage {
+	if s == "" {
+		return nil
+	}
+	return json.RawMessage(s)
+}
+
+// KindOrder orders survey sets by kind: gyro, magnetic, planned, other.
+const KindOrder = `CASE kind WHEN 'gyro' THEN 1 WHEN 'magnetic' THEN 2 WHEN 'planned' THEN 3 ELSE 4 END`
+
+// KindSetMissing is a version-checked write of a hole's set of a kind that
+// does not exist (any more): the caller's version is stale (412).
+func KindSetMissing(holeID int64, kind string, ifVersion int64) error {
+	return domain.Errorf(domain.PreconditionFailed, "hole %d has no %s survey at version %d: reload and retry", holeID, kind, ifVersion)
+}
+
+// KindSetStale is a write of a hole's set of a kind at the wrong version.
+func KindSetStale(holeID int64, kind string, have, want int64) error {
+	return domain.Errorf(domain.PreconditionFailed, "%s survey of hole %d is at version %d, not %d: reload and retry", kind, holeID, have, want)
+}

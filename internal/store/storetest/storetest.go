@@ -30,6 +30,7 @@ func Run(t *testing.T, newStore func(t *testing.T) domain.Store) {
 		{"TypeCodes", testTypeCodes},
 		{"Holes", testHoles},
 		{"Survey", testSurvey},
+		{"KindSets", testKindSets},
 		{"Runs", testRuns},
 		{"Measurements", testMeasurements},
 		{"MeasurementFilters", testMeasurementFilters},
@@ -111,7 +112,8 @@ func testProjects(t *testing.T, s domain.Store) {
 	c := ctx(t)
 	p := domain.Project{Name: "Tallowmere", Description: "fictional prospect", RefLine: "top", BetaApex: "uphole",
 		GammaSense: "anticlockwise", LengthUnit: "ft", OutputAzimuthRef: "true", Declination: f64(1.5), Convergence: f64(-0.75),
-		ErrorModel: uncertainty.Model{Beta: 4.5, MarkPoor: 20, Gyro: uncertainty.SurveyError{Azimuth: 0.25}}, PersistentFabric: "BD"}
+		ErrorModel: uncertainty.Model{Beta: 4.5, MarkPoor: 20, Gyro: uncertainty.SurveyError{Azimuth: 0.25}}, PersistentFabric: "BD",
+		MagneticModel: "igrf", SurveyPriority: "gyro,magnetic", LocalGrid: json.RawMessage(`{"name":"mine grid","grid_crs":"EPSG:28350","rotation":-37.25,"origin":{"local_easting":5000,"local_northing":10000,"easting":391250,"northing":6465480}}`)}
 	must(t, s.CreateProject(c, &p))
 	if p.ID == 0 || p.Version != 1 || p.CreatedAt.IsZero() || !p.CreatedAt.Equal(p.UpdatedAt) {
 		t.Fatalf("create did not set id/version/times: %+v", p)
@@ -125,12 +127,15 @@ func testProjects(t *testing.T, s domain.Store) {
 
 	_, err = s.GetProject(c, p.ID+1000)
 	wantKind(t, err, domain.NotFound, "missing project")
-	dup := domain.Project{Name: "Tallowmere", RefLine: "bottom", BetaApex: "downhole", GammaSense: "clockwise", LengthUnit: "m", OutputAzimuthRef: "grid"}
+	dup := domain.Project{Name: "Tallowmere", RefLine: "bottom", BetaApex: "downhole", GammaSense: "clockwise", LengthUnit: "m", OutputAzimuthRef: "grid", MagneticModel: "auto"}
 	wantKind(t, s.CreateProject(c, &dup), domain.Conflict, "duplicate project name")
 
 	// Project defaults are unset until someone sets them; the error model
-	// back to every default and the persistent fabric unset round-trip too.
+	// back to every default and the persistent fabric unset round-trip too,
+	// and the north-reference and survey settings through an update: a new
+	// model choice, no local grid, another survey priority.
 	p.Description, p.Declination, p.ErrorModel, p.PersistentFabric = "changed", nil, uncertainty.Model{}, ""
+	p.MagneticModel, p.LocalGrid, p.SurveyPriority = "wmm", nil, "magnetic"
 	must(t, s.UpdateProject(c, &p, 1))
 	if p.Version != 2 {
 		t.Fatalf("version after update = %d, want 2", p.Version)
@@ -228,6 +233,67 @@ func testHoles(t *testing.T, s domain.Store) {
 	must(t, s.DeleteHole(c, h.ID, h.Version))
 	_, err = s.GetHole(c, h.ID)
 	wantKind(t, err, domain.NotFound, "deleted hole")
+}
+
+// A hole's survey sets by kind: one per kind, replaced whole, versioned,
+// at most one preferred (preferring one moves the other on), listed in kind
+// order, deleted with the hole; the hole's survey set is untouched.
+func testKindSets(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	p := newProject(t, s, "kind sets")
+	h := newHole(t, s, p.ID, "K1")
+	sets, err := s.ListKindSets(c, h.ID)
+	must(t, err)
+	if len(sets) != 0 {
+		t.Fatalf("new hole has sets %+v", sets)
+	}
+	mag := domain.KindSet{HoleID: h.ID, Kind: "magnetic", Instrument: "magnetic", AzimuthRef: "magnetic", SurveyDate: "2023-08-01",
+		Declination: f64(-1.25), Preferred: true, Stations: []domain.Station{st(0, 45, -60), st(30, 46, -59)}}
+	must(t, s.PutKindSet(c, &mag, 0))
+	gyro := domain.KindSet{HoleID: h.ID, Kind: "gyro", Instrument: "gyro", AzimuthRef: "true", SurveyDate: "2024-02-10",
+		Stations: []domain.Station{st(0, 44, -60), st(10, 44.5, -59.5), st(40, 45, -59)}}
+	must(t, s.PutKindSet(c, &gyro, 0))
+	if mag.Version != 1 || gyro.Version != 1 {
+		t.Fatalf("versions %d %d", mag.Version, gyro.Version)
+	}
+	again := gyro
+	wantKind(t, s.PutKindSet(c, &again, 0), domain.PreconditionFailed, "create over an existing gyro set")
+	sets, err = s.ListKindSets(c, h.ID)
+	must(t, err)
+	if len(sets) != 2 {
+		t.Fatalf("sets %+v", sets)
+	}
+	diff(t, "gyro set", gyro, sets[0])
+	diff(t, "magnetic set", mag, sets[1])
+
+	// Preferring the gyro set moves the magnetic set on.
+	gyro.Preferred = true
+	must(t, s.PutKindSet(c, &gyro, 1))
+	sets, _ = s.ListKindSets(c, h.ID)
+	if !sets[0].Preferred || sets[1].Preferred || sets[1].Version != 2 || sets[0].Version != 2 {
+		t.Errorf("after preferring gyro: %+v", sets)
+	}
+	stale := mag
+	wantKind(t, s.PutKindSet(c, &stale, 1), domain.PreconditionFailed, "magnetic set at its old version")
+	// Replaced whole: fewer stations.
+	gyro.Stations = []domain.Station{st(0, 44, -60)}
+	must(t, s.PutKindSet(c, &gyro, 2))
+	sets, _ = s.ListKindSets(c, h.ID)
+	diff(t, "replaced gyro set", gyro, sets[0])
+	wantKind(t, s.DeleteKindSet(c, h.ID, "gyro", 1), domain.PreconditionFailed, "delete at a stale version")
+	must(t, s.DeleteKindSet(c, h.ID, "gyro", 3))
+	wantKind(t, s.DeleteKindSet(c, h.ID, "gyro", 3), domain.NotFound, "delete a deleted set")
+	wantKind(t, s.PutKindSet(c, &domain.KindSet{HoleID: h.ID + 1000, Kind: "gyro", AzimuthRef: "true"}, 0), domain.NotFound, "set of a missing hole")
+	if _, err := s.GetSurvey(c, h.ID); !domain.IsKind(err, domain.NotFound) {
+		t.Errorf("the hole's survey set appeared: %v", err)
+	}
+	cur, err := s.GetHole(c, h.ID)
+	must(t, err)
+	must(t, s.DeleteHole(c, h.ID, cur.Version))
+	sets, err = s.ListKindSets(c, h.ID)
+	if err != nil || len(sets) != 0 {
+		t.Errorf("sets of a deleted hole: %+v %v", sets, err)
+	}
 }
 
 func testSurvey(t *testing.T, s domain.Store) {

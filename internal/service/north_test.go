@@ -1,0 +1,138 @@
+package service_test
+
+import (
+	"encoding/json"
+	"errors"
+	"math"
+	"strings"
+	"testing"
+	"time"
+
+	"corvane/internal/domain"
+	"corvane/internal/localgrid"
+	"corvane/internal/northref"
+	"corvane/internal/qa"
+)
+
+// The project's magnetic model choice is stored and chooses the model of
+// every declination the hole model computes on read: a 2023 magnetic survey
+// gets IGRF-14's value under auto (WMM2025 starts in 2025.0), named with
+// model and decimal year in the hole's corrections, the derived values and
+// the QA report; under wmm the hole has an error naming the WMM's years and
+// the other model. The expected value comes from package igrf through
+// northref (igrf's own tests check IGRF-14 against published values).
+func TestProjectMagneticModel(t *testing.T) {
+	s, ctx := newService(t)
+	p, _ := programme(t, s, ctx, domain.Project{Name: "older programme"})
+	if p.MagneticModel != "auto" || p.LocalGrid != nil {
+		t.Fatalf("defaults: %q %s", p.MagneticModel, p.LocalGrid)
+	}
+	h := must(s.CreateHole(ctx, p.ID, domain.Hole{Name: "OP001", East: 391250, North: 6465480, Elevation: 312, Azimuth: 45, Dip: -60, FinalDepth: 200, CRS: "EPSG:28350"}))
+	ss := domain.SurveySet{AzimuthRef: "magnetic", SurveyDate: "2023-08-01", Stations: []domain.Station{{Depth: 0, Azimuth: 45, Dip: -60}}}
+	must(s.PutSurvey(ctx, p.ID, h.ID, 0, ss))
+	want, err := northref.CorrectionsModel(northref.ModelIGRF, "EPSG:28350", 391250, 6465480, 312, time.Date(2023, 8, 1, 0, 0, 0, 0, time.UTC), true, false)
+	if err != nil {
+		t.Fatal(err)
+	}
+	const src = "computed (IGRF-14 at 2023.5808)"
+	c := must(s.GetHoleView(ctx, p.ID, h.ID)).Corrections
+	if c.Declination == nil || math.Abs(*c.Declination-want.Declination) > 1e-12 || c.DeclinationSource == nil || *c.DeclinationSource != src {
+		t.Errorf("auto: declination %v (%v), IGRF-14 gives %v", c.Declination, c.DeclinationSource, want.Declination)
+	}
+	m := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 100, Alpha: 40, Beta: f64(200), TypeCode: "JN"}))
+	if m.Derived.DeclinationSource != src || *m.Derived.Declination != *c.Declination {
+		t.Errorf("derived: %v from %q", m.Derived.Declination, m.Derived.DeclinationSource)
+	}
+	rep := must(s.QA(ctx, p.ID, h.ID, qa.DefaultOptions()))
+	found := false
+	for _, hr := range rep.Holes {
+		if hr.HoleID == "OP001" {
+			found = hr.DeclinationSource == src
+		}
+	}
+	if !found {
+		t.Errorf("QA report holes %+v: OP001 should name %s", rep.Holes, src)
+	}
+
+	p.MagneticModel = "wmm"
+	p = must(s.UpdateProject(ctx, p.ID, p.Version, p))
+	if p2 := must(s.GetProject(ctx, p.ID)); p2.MagneticModel != "wmm" {
+		t.Fatalf("model read back %q", p2.MagneticModel)
+	}
+	c = must(s.GetHoleView(ctx, p.ID, h.ID)).Corrections
+	if c.Declination != nil || !strings.Contains(c.Error, "outside the years of magnetic model WMM-2025 (2025.0 to 2030.0); IGRF-14 covers 1900.0 to 2030.0") {
+		t.Errorf("wmm for a 2023 survey: %v, error %q", c.Declination, c.Error)
+	}
+	p.MagneticModel = "emm"
+	_, err = s.UpdateProject(ctx, p.ID, p.Version, p)
+	if wantKind(t, err, domain.Invalid, "unknown model"); !strings.Contains(err.Error(), "auto, wmm, igrf") {
+		t.Errorf("unknown model: %v", err)
+	}
+}
+
+// A local grid declaration is checked and stored in canonical form; a bad
+// one is refused naming the field, and the project keeps what it had.
+func TestProjectLocalGrid(t *testing.T) {
+	s, ctx := newService(t)
+	grid := json.RawMessage(`{"name":"Tallowmere mine grid","grid_crs":"EPSG:28350","control_points":[
+		{"id":"CP1","local_easting":5000,"local_northing":10000,"easting":391250,"northing":6465480},
+		{"id":"CP2","local_easting":6000,"local_northing":10000,"easting":392045.6,"northing":6464875.8}]}`)
+	p := must(s.CreateProject(ctx, domain.Project{Name: "mine", LocalGrid: grid}))
+	var back map[string]any
+	if err := json.Unmarshal(must(s.GetProject(ctx, p.ID)).LocalGrid, &back); err != nil || back["grid_crs"] != "EPSG:28350" || len(back["control_points"].([]any)) != 2 {
+		t.Errorf("stored local grid %v %v", back, err)
+	}
+	for text, msg := range map[string]string{
+		`{"grid_crs":"EPSG:2193","rotation":10,"origin":{"local_easting":0,"local_northing":0,"easting":1,"northing":2}}`: "grid_crs",
+		`{"grid_crs":"EPSG:28350","rotation":10}`: "give rotation and origin",
+		`{"grid_crs":"EPSG:28350","turn":10}`:     "unknown field",
+	} {
+		q := p
+		q.LocalGrid = json.RawMessage(text)
+		_, err := s.UpdateProject(ctx, p.ID, p.Version, q)
+		var e *domain.Error
+		if err == nil || !strings.Contains(err.Error(), msg) || !errors.As(err, &e) || e.Loc.Field != "local_grid" {
+			t.Errorf("%s: %v", text, err)
+		}
+	}
+	if cur := must(s.GetProject(ctx, p.ID)); cur.Version != p.Version {
+		t.Errorf("a refused update changed the project: version %d", cur.Version)
+	}
+}
+
+// The project's local grid applies to its holes: a hole whose crs is
+// "local" (position and grid azimuths in the mine grid) gets the same
+// derived values as the same hole given in the projected grid, its position
+// carried by the similarity transformation and its grid azimuths turned by
+// the rotation (package localgrid, checked against PROJ), as corvane
+// convert --local-grid does. A project in feet cannot declare one.
+func TestProjectLocalGridApplied(t *testing.T) {
+	s, ctx := newService(t)
+	grid := json.RawMessage(`{"name":"Tallowmere mine grid","grid_crs":"EPSG:28350","rotation":-37.25,"scale":0.99975,
+		"origin":{"local_easting":5000,"local_northing":10000,"easting":391250,"northing":6465480}}`)
+	p, _ := programme(t, s, ctx, domain.Project{Name: "mine grid", LocalGrid: grid})
+	tr := localgrid.FromOrigin(5000, 10000, 391250, 6465480, -37.25, 0.99975)
+	e, n := tr.ToGrid(5100, 10050)
+	loc := must(s.CreateHole(ctx, p.ID, domain.Hole{Name: "L1", East: 5100, North: 10050, Elevation: 300, Azimuth: 30, AzimuthRef: "grid", Dip: -60, FinalDepth: 200, CRS: "local"}))
+	prj := must(s.CreateHole(ctx, p.ID, domain.Hole{Name: "P1", East: e, North: n, Elevation: 300, Azimuth: tr.LocalToGridAzimuth(30), AzimuthRef: "grid", Dip: -60, FinalDepth: 200, CRS: "EPSG:28350"}))
+	must(s.PutSurvey(ctx, p.ID, loc.ID, 0, domain.SurveySet{AzimuthRef: "grid", Stations: []domain.Station{{Depth: 0, Azimuth: 30, Dip: -60}, {Depth: 100, Azimuth: 35, Dip: -58}}}))
+	must(s.PutSurvey(ctx, p.ID, prj.ID, 0, domain.SurveySet{AzimuthRef: "grid", Stations: []domain.Station{{Depth: 0, Azimuth: tr.LocalToGridAzimuth(30), Dip: -60}, {Depth: 100, Azimuth: tr.LocalToGridAzimuth(35), Dip: -58}}}))
+	a := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: loc.ID, Depth: 150, Alpha: 60, Beta: f64(200), TypeCode: "BD"})).Derived
+	b := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: prj.ID, Depth: 150, Alpha: 60, Beta: f64(200), TypeCode: "BD"})).Derived
+	if a.Error != "" || b.Error != "" {
+		t.Fatalf("errors %q %q", a.Error, b.Error)
+	}
+	for _, c := range []struct {
+		name string
+		x, y *float64
+	}{{"easting", a.East, b.East}, {"northing", a.North, b.North}, {"hole azimuth", a.HoleAzimuth, b.HoleAzimuth}, {"dip direction", a.DipDirection, b.DipDirection}, {"dip", a.Dip, b.Dip}} {
+		if c.x == nil || c.y == nil || math.Abs(*c.x-*c.y) > 1e-6 {
+			t.Errorf("%s: local hole %v, projected hole %v", c.name, c.x, c.y)
+		}
+	}
+	q := p
+	q.LengthUnit = domain.UnitFoot
+	if _, err := s.UpdateProject(ctx, p.ID, p.Version, q); !domain.IsKind(err, domain.Invalid) || !strings.Contains(err.Error(), "feet") {
+		t.Errorf("a local grid in a project in feet: %v", err)
+	}
+}

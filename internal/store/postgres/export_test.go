@@ -1,0 +1,4 @@
+package postgres
+
+// SchemaOf is the migrator of the database at addr, for tests.
+var SchemaOf = schema

@@ -1,0 +1,3 @@
+ALTER TABLE projects DROP COLUMN survey_priority;
+DROP TABLE kind_survey_stations;
+DROP TABLE kind_survey_sets;
