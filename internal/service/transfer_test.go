@@ -2,6 +2,7 @@ package service_test
 
 import (
 	"bytes"
+	"context"
 	"encoding/json"
 	"errors"
 	"math"
@@ -146,23 +147,7 @@ func TestAGS4ImportRefusals(t *testing.T) {
 			if c.name == "unknown type" {
 				bad.Abbreviations = append(bad.Abbreviations, ags4.Abbreviation{Heading: "DISC_TYPE", Code: "ZZ", Description: "zz"})
 			}
-			var b bytes.Buffer
-			if err := ags4.Write(&b, &bad); err != nil {
-				t.Fatal(err)
-			}
-			_, err := s.Import(ctx, demo.ID, service.ImportRequest{Kind: service.ImportDiscontinuities, File: "bad.ags", Body: &b})
-			var e *domain.Error
-			if !asErr(err, &e) || e.Kind != domain.Invalid || len(e.Problems) != 1 {
-				t.Fatalf("%v, want one located problem", err)
-			}
-			p := e.Problems[0]
-			j, _ := json.Marshal(p)
-			if p.Loc.File != "bad.ags" || p.Loc.Line == 0 || p.Loc.Column != c.heading {
-				t.Errorf("problem %s, want bad.ags at a line, heading %s", j, c.heading)
-			}
-			if n := must(s.CountMeasurements(ctx, demo.ID, service.MeasurementQuery{})); n != before {
-				t.Errorf("%d measurements stored after a refused import, want %d", n, before)
-			}
+			importRefused(t, s, ctx, demo.ID, &bad, c.heading, before)
 		})
 	}
 }
@@ -202,27 +187,34 @@ func TestAGS4ImportCoreRefusals(t *testing.T) {
 			if c.name == "unknown hole" {
 				bad.Locations = append(bad.Locations, ags4.Location{ID: "NOPE", Type: "RC", East: nan(), North: nan(), GroundLevel: nan(), FinalDepth: 99999})
 			}
-			var b bytes.Buffer
-			if err := ags4.Write(&b, &bad); err != nil {
-				t.Fatal(err)
-			}
-			_, err := s.Import(ctx, demo.ID, service.ImportRequest{Kind: service.ImportDiscontinuities, File: "bad.ags", Body: &b})
-			var e *domain.Error
-			if !asErr(err, &e) || e.Kind != domain.Invalid || len(e.Problems) != 1 {
-				t.Fatalf("%v, want one located problem", err)
-			}
-			p := e.Problems[0]
-			j, _ := json.Marshal(p)
-			if p.Loc.File != "bad.ags" || p.Loc.Line == 0 || p.Loc.Column != c.heading {
-				t.Errorf("problem %s, want bad.ags at a line, heading %s", j, c.heading)
-			}
-			if n := must(s.CountMeasurements(ctx, demo.ID, service.MeasurementQuery{})); n != before {
-				t.Errorf("%d measurements stored after a refused import, want %d", n, before)
-			}
+			importRefused(t, s, ctx, demo.ID, &bad, c.heading, before)
 			if ivs := must(s.CoreIntervals(ctx, demo.ID, h.ID)); len(ivs) != 0 {
 				t.Errorf("%d core intervals stored after a refused import", len(ivs))
 			}
 		})
+	}
+}
+
+// importRefused imports bad and wants it refused with one problem located
+// at a line of bad.ags and heading, and no measurement stored beyond before.
+func importRefused(t *testing.T, s *service.Service, ctx context.Context, pid int64, bad *ags4.Data, heading string, before int64) {
+	t.Helper()
+	var b bytes.Buffer
+	if err := ags4.Write(&b, bad); err != nil {
+		t.Fatal(err)
+	}
+	_, err := s.Import(ctx, pid, service.ImportRequest{Kind: service.ImportDiscontinuities, File: "bad.ags", Body: &b})
+	var e *domain.Error
+	if !asErr(err, &e) || e.Kind != domain.Invalid || len(e.Problems) != 1 {
+		t.Fatalf("%v, want one located problem", err)
+	}
+	p := e.Problems[0]
+	j, _ := json.Marshal(p)
+	if p.Loc.File != "bad.ags" || p.Loc.Line == 0 || p.Loc.Column != heading {
+		t.Errorf("problem %s, want bad.ags at a line, heading %s", j, heading)
+	}
+	if n := must(s.CountMeasurements(ctx, pid, service.MeasurementQuery{})); n != before {
+		t.Errorf("%d measurements stored after a refused import, want %d", n, before)
 	}
 }
 
