@@ -15,6 +15,7 @@ import (
 	"testing"
 	"time"
 
+	"corvane/internal/domain"
 	"corvane/internal/exchange/ags4"
 	"corvane/internal/exchange/exchangetest"
 )
@@ -27,8 +28,10 @@ import (
 // of `corvane convert`, one writer). Both doors then write every format
 // through package transfer from hole-model paths.
 //
-// GeoJSON and the AGS4 LOCA and HORN groups come only from the holes, so
-// they must be the same bytes. The structures differ by rounding only: the
+// GeoJSON and the AGS4 LOCA and HORN groups come only from the holes, and
+// CORE and FRAC from the core intervals (stored, and given to the command
+// line as the route's intervals file) and the depths, so they must be the
+// same. The structures differ by rounding only: the
 // command line reads positions to 0.001 m and angles to 0.01 degree from
 // the converted CSV, the route has full precision. So points, disc nodes
 // and DISC rows are compared as parsed values within those roundings, and
@@ -51,12 +54,30 @@ func TestTransferDoors(t *testing.T) {
 	if err := os.WriteFile(converted, getRoute(t, srv, token, base+"/measurements.csv"), 0o644); err != nil {
 		t.Fatal(err)
 	}
+	// Core intervals stored in the service; the command line reads the
+	// route's intervals file.
+	hs, err := svc.ListHoles(ctx, p.ID, domain.Page{})
+	if err != nil {
+		t.Fatal(err)
+	}
+	length := func(v float64) *float64 { return &v }
+	if _, err := svc.PutCoreIntervals(ctx, p.ID, hs.Items[0].ID, []domain.CoreInterval{
+		{From: 9, To: 12, Recovered: length(2.87), Solid: length(2.41), Sound: length(1.93)},
+		{From: 12, To: 15.5, Recovered: length(3.5), Pieces: []float64{0.05, 0.4, 0.12, 1.3}},
+		{From: 40, To: 41},
+	}); err != nil {
+		t.Fatal(err)
+	}
+	intervals := filepath.Join(dir, "intervals.csv")
+	if err := os.WriteFile(intervals, getRoute(t, srv, token, base+"/intervals.csv"), 0o644); err != nil {
+		t.Fatal(err)
+	}
 	out := func(n string) string { return filepath.Join(dir, n) }
 	d := "../../testdata/tallowmere/"
 	code, _, stderr := runCLI("transfer", "--collars", d+"collars.csv", "--surveys", d+"surveys.csv", "--converted", converted,
 		"--output-reference", p.OutputAzimuthRef, "--types", strings.Join(codes, ","), "--project", p.Name,
 		"--glb", out("scene.glb"), "--geojson", out("holes.geojson"), "--points", out("points.csv"), "--ags", out("transfer.ags"),
-		"--disc-radius", "0.5", "--trace-step", "10")
+		"--intervals", intervals, "--disc-radius", "0.5", "--trace-step", "10")
 	if code != ExitOK {
 		t.Fatalf("transfer: exit %d: %s", code, stderr)
 	}
@@ -187,6 +208,16 @@ func TestTransferDoors(t *testing.T) {
 	eq("LOCA", ca.Locations, ha.Locations)
 	eq("HORN", ca.Orientations, ha.Orientations)
 	eq("ABBR", ca.Abbreviations, ha.Abbreviations)
+	// CORE and FRAC: the same rows (printed, as NaN has no JSON).
+	for _, g := range []struct {
+		what string
+		a, b any
+		n    int
+	}{{"CORE", ca.Cores, ha.Cores, len(ha.Cores)}, {"FRAC", ca.Spacings, ha.Spacings, len(ha.Spacings)}} {
+		if fa, fb := fmt.Sprintf("%+v", g.a), fmt.Sprintf("%+v", g.b); fa != fb || g.n != 3 {
+			t.Errorf("AGS4 %s (%d rows, want 3) differs:\n%.600s\n%.600s", g.what, g.n, fa, fb)
+		}
+	}
 	if len(ca.Discontinuities) != len(ha.Discontinuities) || len(ca.Discontinuities) != len(cliPts)-1 {
 		t.Fatalf("DISC: %d rows by the command line, %d by the route, want %d", len(ca.Discontinuities), len(ha.Discontinuities), len(cliPts)-1)
 	}

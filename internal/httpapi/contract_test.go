@@ -335,8 +335,8 @@ func TestContractTour(t *testing.T) {
 		Created int `json:"created"`
 	}
 	f.must(200, f.site, "POST", base+"/imports/discontinuities?dry_run=true", string(ags.Body), &imp, "Content-Type", "text/plain")
-	if imp.Created != 1 {
-		t.Errorf("dry run of the exported AGS4: %d measurements, want the 1 plane of TR001", imp.Created)
+	if imp.Created != 2 {
+		t.Errorf("dry run of the exported AGS4: %d measurements and core intervals, want the 1 plane and the 1 core interval of TR001", imp.Created)
 	}
 	f.must(200, f.site, "GET", base+"/qa", nil, nil)
 	f.must(200, f.site, "POST", base+"/qa?persistent=JN", map[string]any{"picks": []map[string]any{{"hole_id": "TR001", "depth": 2, "dip": 40, "dip_direction": 100}}}, nil)

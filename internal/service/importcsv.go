@@ -57,7 +57,8 @@ type ImportResult struct {
 	Rows int `json:"rows"`
 	// Created and Updated count holes (collars), survey sets (surveys),
 	// runs or measurements; Created counts the core intervals stored
-	// (intervals).
+	// (intervals), and the measurements and core intervals together
+	// (discontinuities: DISC and CORE rows).
 	Created int `json:"created"`
 	Updated int `json:"updated"`
 	// Duplicates counts the measurement rows that duplicate a stored row or

@@ -21,7 +21,7 @@ const MaxTransferStructures = MaxStatsMeasurements
 // Transfer gathers the programme that the transfer formats (glTF, GeoJSON,
 // points with normals, AGS4) are written from (read): the selected holes
 // (q.Holes, or every hole of the project) built by the hole model the
-// derived values use, and the measurements passing q placed in space. A
+// derived values use, their stored core intervals, and the measurements passing q placed in space. A
 // measurement without a plane and a position (an error, a vertical hole's
 // plane without a dip direction) is skipped and counted; one whose derived
 // values carry a warning or an error counts as a QA flag of its hole.
@@ -62,6 +62,13 @@ func (s *Service) Transfer(ctx context.Context, projectID int64, q MeasurementQu
 			th.Path = m.Path
 		}
 		prog.Holes = append(prog.Holes, th)
+		ivs, err := s.store.ListCoreIntervals(ctx, h.ID)
+		if err != nil {
+			return err
+		}
+		for _, iv := range ivs {
+			prog.Intervals = append(prog.Intervals, transfer.Interval{Hole: h.Name, Interval: interval(iv)})
+		}
 		return nil
 	}
 	if len(f.HoleIDs) > 0 {

@@ -2,6 +2,7 @@ package service_test
 
 import (
 	"bytes"
+	"context"
 	"encoding/json"
 	"errors"
 	"math"
@@ -14,8 +15,9 @@ import (
 	"corvane/internal/service"
 )
 
-// TestAGS4RoundTrip: the demo programme exported as AGS4 and imported (its
-// DISC rows) into a second project holding the same holes gives the same
+// TestAGS4RoundTrip: the demo programme with core intervals exported as
+// AGS4 and imported (its DISC and CORE rows) into a second project holding
+// the same holes gives the same (CORE, DISC and FRAC included)
 // AGS4 back: export -> import -> export is identical in every group but
 // PROJ and TRAN (another project, another day). The import turns each
 // plane into alpha and beta with the hole model, so this also checks that
@@ -23,6 +25,17 @@ import (
 func TestAGS4RoundTrip(t *testing.T) {
 	s, ctx := newService(t)
 	demo, _ := must2(s.LoadDemo(ctx))
+	// Core intervals over logged structures: lengths, pieces, nothing but
+	// depths, and one interval with no structure in it.
+	num := func(v float64) *float64 { return &v }
+	hs := must(s.ListHoles(ctx, demo.ID, domain.Page{})).Items
+	must(s.PutCoreIntervals(ctx, demo.ID, hs[0].ID, []domain.CoreInterval{
+		{From: 9, To: 12, Recovered: num(2.87), Solid: num(2.41), Sound: num(1.93)},
+		{From: 12, To: 15.5, Recovered: num(3.5), Solid: num(3.1), Pieces: []float64{0.05, 0.4, 0.12, 0.09, 1.3}},
+		{From: 15.5, To: 18},
+		{From: 0.5, To: 0.8, Recovered: num(0.1)},
+	}))
+	must(s.PutCoreIntervals(ctx, demo.ID, hs[1].ID, []domain.CoreInterval{{From: 20, To: 23, Recovered: num(3), Solid: num(2.5), Sound: num(2.25)}}))
 	var a1 bytes.Buffer
 	if err := s.WriteTransfer(ctx, demo.ID, service.FormatAGS, service.TransferQuery{}, &a1, nil); err != nil {
 		t.Fatal(err)
@@ -46,8 +59,37 @@ func TestAGS4RoundTrip(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if res.Created != len(d1.Discontinuities) || res.Created < 100 || res.File != "discontinuities.ags" {
-		t.Fatalf("import: %+v, want %d measurements", res, len(d1.Discontinuities))
+	if res.Created != len(d1.Discontinuities)+5 || len(d1.Discontinuities) < 100 || res.File != "discontinuities.ags" {
+		t.Fatalf("import: %+v, want %d measurements and 5 core intervals", res, len(d1.Discontinuities))
+	}
+	if len(d1.Cores) != 5 {
+		t.Fatalf("%d CORE rows, want 5", len(d1.Cores))
+	}
+	// CORE percentages of the interval length (TCR 2.87 / 3 m = 96 %, RQD
+	// from the pieces >= 0.1 m: (0.4+0.12+1.3) / 3.5 = 52 %), FRAC over the
+	// same intervals from the DISC depths in them. Intervals come by depth.
+	if c := d1.Cores[1]; c.Hole != hs[0].Name || c.Top != 9 || c.TotalRecovery != 96 || c.SolidRecovery != 80 || c.RQD != 64 {
+		t.Errorf("CORE row 2 %+v", c)
+	}
+	if c := d1.Cores[2]; c.RQD != 52 || !math.IsNaN(d1.Cores[3].TotalRecovery) {
+		t.Errorf("CORE rows 3, 4 %+v %+v", c, d1.Cores[3])
+	}
+	if len(d1.Spacings) < 5 {
+		t.Fatalf("%d FRAC rows, want one or more per core interval", len(d1.Spacings))
+	}
+	for _, sp := range d1.Spacings {
+		var in []float64
+		for _, x := range d1.Discontinuities {
+			if x.Hole == sp.Hole && x.Top >= sp.From && x.Top < sp.To && x.Set == sp.Set {
+				in = append(in, x.Top)
+			}
+		}
+		if want := float64(len(in)) / (sp.To - sp.From); math.Abs(sp.Index-want) > 0.005 {
+			t.Errorf("FRAC %s %g-%g: fracture index %v, want %d DISC rows over %g m = %v", sp.Hole, sp.From, sp.To, sp.Index, len(in), sp.To-sp.From, want)
+		}
+		if sp.Hole == hs[0].Name && sp.From == 0.5 && sp.Index != 0 {
+			t.Errorf("an interval without structures: FRAC %+v", sp)
+		}
 	}
 	var a2 bytes.Buffer
 	if err := s.WriteTransfer(ctx, q.ID, service.FormatAGS, service.TransferQuery{}, &a2, nil); err != nil {
@@ -105,24 +147,74 @@ func TestAGS4ImportRefusals(t *testing.T) {
 			if c.name == "unknown type" {
 				bad.Abbreviations = append(bad.Abbreviations, ags4.Abbreviation{Heading: "DISC_TYPE", Code: "ZZ", Description: "zz"})
 			}
-			var b bytes.Buffer
-			if err := ags4.Write(&b, &bad); err != nil {
-				t.Fatal(err)
+			importRefused(t, s, ctx, demo.ID, &bad, c.heading, before)
+		})
+	}
+}
+
+// TestAGS4ImportCoreRefusals: a CORE row that cannot become a core
+// interval (a percentage past 100, an overlap, past the end of the hole,
+// an unknown hole) is refused at its file line and heading, and neither
+// the file's intervals nor its discontinuities are stored.
+func TestAGS4ImportCoreRefusals(t *testing.T) {
+	s, ctx := newService(t)
+	demo, _ := must2(s.LoadDemo(ctx))
+	h := must(s.ListHoles(ctx, demo.ID, domain.Page{})).Items[0]
+	var a bytes.Buffer
+	if err := s.WriteTransfer(ctx, demo.ID, service.FormatAGS, service.TransferQuery{MeasurementQuery: service.MeasurementQuery{Holes: []string{h.Name}}}, &a, nil); err != nil {
+		t.Fatal(err)
+	}
+	d, err := ags4.Read(bytes.NewReader(a.Bytes()), "a.ags")
+	if err != nil {
+		t.Fatal(err)
+	}
+	before := must(s.CountMeasurements(ctx, demo.ID, service.MeasurementQuery{}))
+	core := func(top, base, prec float64) ags4.Core {
+		return ags4.Core{Hole: h.Name, Top: top, Base: base, TotalRecovery: prec, SolidRecovery: nan(), RQD: nan(), Diameter: nan()}
+	}
+	for _, c := range []struct {
+		name, heading string
+		rows          []ags4.Core
+	}{
+		{"percentage past 100", "CORE_PREC", []ags4.Core{core(1, 2, 101)}},
+		{"overlap", "CORE_TOP", []ags4.Core{core(1, 3, 90), core(2, 4, 90)}},
+		{"past the end", "CORE_BASE", []ags4.Core{core(h.FinalDepth, h.FinalDepth+1, 90)}},
+		{"unknown hole", "LOCA_ID", []ags4.Core{{Hole: "NOPE", Top: 1, Base: 2, TotalRecovery: nan(), SolidRecovery: nan(), RQD: nan(), Diameter: nan()}}},
+	} {
+		t.Run(c.name, func(t *testing.T) {
+			bad := *d
+			bad.Cores = c.rows
+			if c.name == "unknown hole" {
+				bad.Locations = append(bad.Locations, ags4.Location{ID: "NOPE", Type: "RC", East: nan(), North: nan(), GroundLevel: nan(), FinalDepth: 99999})
 			}
-			_, err := s.Import(ctx, demo.ID, service.ImportRequest{Kind: service.ImportDiscontinuities, File: "bad.ags", Body: &b})
-			var e *domain.Error
-			if !asErr(err, &e) || e.Kind != domain.Invalid || len(e.Problems) != 1 {
-				t.Fatalf("%v, want one located problem", err)
-			}
-			p := e.Problems[0]
-			j, _ := json.Marshal(p)
-			if p.Loc.File != "bad.ags" || p.Loc.Line == 0 || p.Loc.Column != c.heading {
-				t.Errorf("problem %s, want bad.ags at a line, heading %s", j, c.heading)
-			}
-			if n := must(s.CountMeasurements(ctx, demo.ID, service.MeasurementQuery{})); n != before {
-				t.Errorf("%d measurements stored after a refused import, want %d", n, before)
+			importRefused(t, s, ctx, demo.ID, &bad, c.heading, before)
+			if ivs := must(s.CoreIntervals(ctx, demo.ID, h.ID)); len(ivs) != 0 {
+				t.Errorf("%d core intervals stored after a refused import", len(ivs))
 			}
 		})
+	}
+}
+
+// importRefused imports bad and wants it refused with one problem located
+// at a line of bad.ags and heading, and no measurement stored beyond before.
+func importRefused(t *testing.T, s *service.Service, ctx context.Context, pid int64, bad *ags4.Data, heading string, before int64) {
+	t.Helper()
+	var b bytes.Buffer
+	if err := ags4.Write(&b, bad); err != nil {
+		t.Fatal(err)
+	}
+	_, err := s.Import(ctx, pid, service.ImportRequest{Kind: service.ImportDiscontinuities, File: "bad.ags", Body: &b})
+	var e *domain.Error
+	if !asErr(err, &e) || e.Kind != domain.Invalid || len(e.Problems) != 1 {
+		t.Fatalf("%v, want one located problem", err)
+	}
+	p := e.Problems[0]
+	j, _ := json.Marshal(p)
+	if p.Loc.File != "bad.ags" || p.Loc.Line == 0 || p.Loc.Column != heading {
+		t.Errorf("problem %s, want bad.ags at a line, heading %s", j, heading)
+	}
+	if n := must(s.CountMeasurements(ctx, pid, service.MeasurementQuery{})); n != before {
+		t.Errorf("%d measurements stored after a refused import, want %d", n, before)
 	}
 }
 

@@ -60,6 +60,9 @@ type Core struct {
 	TotalRecovery, SolidRecovery, RQD float64 // CORE_PREC, CORE_SREC, CORE_RQD
 	Diameter                          float64 // CORE_DIAM
 	Remarks                           string
+	// Line is the file line of the row when read ([Read]); 0 when built.
+	// Writing ignores it.
+	Line int
 }
 
 // Discontinuity is a DISC row. Base is the bottom of the discontinuity
@@ -322,7 +325,7 @@ func Read(r io.Reader, name string) (*Data, error) {
 	})
 	each("CORE", func(c *cells) {
 		d.Cores = append(d.Cores, Core{Hole: c.s("LOCA_ID"), Top: c.n("CORE_TOP"), Base: c.n("CORE_BASE"), TotalRecovery: c.n("CORE_PREC"),
-			SolidRecovery: c.n("CORE_SREC"), RQD: c.n("CORE_RQD"), Diameter: c.n("CORE_DIAM"), Remarks: c.s("CORE_REM")})
+			SolidRecovery: c.n("CORE_SREC"), RQD: c.n("CORE_RQD"), Diameter: c.n("CORE_DIAM"), Remarks: c.s("CORE_REM"), Line: c.line})
 	})
 	each("DISC", func(c *cells) {
 		d.Discontinuities = append(d.Discontinuities, Discontinuity{Hole: c.s("LOCA_ID"), Top: c.n("DISC_TOP"), Base: c.n("DISC_BASE"),

@@ -274,7 +274,7 @@ type AGSOptions struct {
 // path between survey stations (direction at the top of each section, in
 // the output reference), CORE from the core intervals (recoveries and RQD
 // by package coreinterval), DISC from the structures numbered per hole in
-// order.
+// order, FRAC from the structures in each core interval (see spacings).
 func (p *Programme) AGS(o AGSOptions) *ags4.Data {
 	if o.Recipient == "" {
 		o.Recipient = "geotechnical database"
@@ -333,12 +333,54 @@ func (p *Programme) AGS(o AGSOptions) *ags4.Data {
 		d.Abbreviations = append(d.Abbreviations, ags4.Abbreviation{Heading: "DISC_TYPE", Code: t, Description: "structure type " + t})
 	}
 	n := map[string]int{}
+	byHole := map[string][]exchange.Structure{}
 	for _, s := range p.Structures {
 		n[s.Hole]++
 		d.Discontinuities = append(d.Discontinuities, ags4.Discontinuity{Hole: s.Hole, Top: s.Depth, Base: s.Depth, Set: s.Set,
 			Number: fmt.Sprint(n[s.Hole]), Type: s.Type, Dip: s.Dip, DipDirection: s.DipDirection})
+		byHole[s.Hole] = append(byHole[s.Hole], s)
 	}
+	d.Spacings = spacings(p.Intervals, byHole)
 	return d
+}
+
+// spacings returns the FRAC rows of the core intervals (ags4.SpacingOf):
+// over each interval [From, To), one row per set of the hole's structures
+// in it, sorted by set. FRAC_SET is the structures' set name; it is empty
+// for the structures assigned to no set, so a hole whose structures carry
+// no set has one row per interval covering all of them (an interval with
+// none has that row with fracture index 0). Set names are not empty, so
+// the KEY fields (LOCA_ID, FRAC_FROM, FRAC_TO, FRAC_SET) never repeat
+// within one interval (AGS4 rule 10a). Every placed structure counts,
+// whatever its type; an interval that is empty (To <= From, refused by the
+// interval rules) has no row.
+func spacings(ivs []Interval, byHole map[string][]exchange.Structure) []ags4.Spacing {
+	var out []ags4.Spacing
+	for _, iv := range ivs {
+		depths := map[string][]float64{}
+		var sets []string
+		for _, s := range byHole[iv.Hole] {
+			if s.Depth < iv.From || s.Depth >= iv.To {
+				continue
+			}
+			if _, ok := depths[s.Set]; !ok {
+				sets = append(sets, s.Set)
+			}
+			depths[s.Set] = append(depths[s.Set], s.Depth)
+		}
+		if len(sets) == 0 {
+			sets = []string{""}
+		}
+		slices.Sort(sets)
+		for _, set := range sets {
+			sp, err := ags4.SpacingOf(iv.Hole, set, iv.From, iv.To, depths[set])
+			if err != nil {
+				continue
+			}
+			out = append(out, sp)
+		}
+	}
+	return out
 }
 
 // WriteAGS writes the AGS4 file of [Programme.AGS].

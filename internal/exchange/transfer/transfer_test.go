@@ -1,8 +1,12 @@
 package transfer
 
 import (
+	"math"
 	"strings"
 	"testing"
+
+	"corvane/internal/coreinterval"
+	"corvane/internal/exchange"
 )
 
 // The counts a GeoJSON hole carries and the grid the map is drawn through.
@@ -28,5 +32,38 @@ func TestCountAndInverse(t *testing.T) {
 	q := Programme{Holes: []Hole{{Name: "A"}}}
 	if _, err := q.Inverse(""); err == nil {
 		t.Error("no system at all: no error")
+	}
+}
+
+// FRAC rows: one per set of the structures in each core interval, the
+// unassigned ones under an empty FRAC_SET, an interval without structures
+// one empty-set row with index 0; structures of another hole or outside
+// [From, To) do not count.
+func TestAGSSpacingsPerSet(t *testing.T) {
+	st := func(hole string, z float64, set string) exchange.Structure {
+		return exchange.Structure{Hole: hole, Depth: z, Set: set, Type: "JN", Dip: 40, DipDirection: 100, Uncertainty: math.NaN()}
+	}
+	p := Programme{Name: "P", Holes: []Hole{{Name: "A"}, {Name: "B"}},
+		Structures: []exchange.Structure{st("A", 1.0, "S2"), st("A", 1.2, "S1"), st("A", 1.5, "S1"), st("A", 1.9, ""), st("A", 2.0, "S1"), st("B", 1.1, "")},
+		Intervals: []Interval{{Hole: "A", Interval: coreinterval.Interval{From: 1, To: 2}}, {Hole: "A", Interval: coreinterval.Interval{From: 2, To: 3}},
+			{Hole: "B", Interval: coreinterval.Interval{From: 5, To: 6}}},
+	}
+	got := p.AGS(AGSOptions{}).Spacings
+	type row struct {
+		hole, set string
+		from      float64
+		index     float64
+		mean      float64
+	}
+	want := []row{{"A", "", 1, 1, math.NaN()}, {"A", "S1", 1, 2, 300}, {"A", "S2", 1, 1, math.NaN()}, {"A", "S1", 2, 1, math.NaN()}, {"B", "", 5, 0, math.NaN()}}
+	if len(got) != len(want) {
+		t.Fatalf("%d FRAC rows %+v, want %d", len(got), got, len(want))
+	}
+	for i, w := range want {
+		g := got[i]
+		if g.Hole != w.hole || g.Set != w.set || g.From != w.from || math.Abs(g.Index-w.index) > 1e-12 ||
+			(math.IsNaN(w.mean) != math.IsNaN(g.Mean)) || (!math.IsNaN(w.mean) && math.Abs(g.Mean-w.mean) > 1e-9) {
+			t.Errorf("FRAC row %d %+v, want %+v", i+1, g, w)
+		}
 	}
 }
