@@ -35,6 +35,18 @@ func UTM(z utm.Zone) Inverse {
 	}
 }
 
+// Grid returns the inverse of a transverse Mercator grid of any supported
+// EPSG family (utm.LookupEPSG). Latitude and longitude come out on the
+// grid's own datum (NAD83, ETRS89, GDA94, GDA2020, SIRGAS 2000 or WGS 84);
+// they are written as WGS 84 without a datum shift, which for these datums
+// is at the metre level at most.
+func Grid(tm *utm.TransverseMercator) Inverse {
+	return func(e, n float64) (float64, float64, error) {
+		g, err := tm.Inverse(e, n)
+		return g.Lat, g.Lon, err
+	}
+}
+
 // Hole is one hole of the map: its collar, its summary and its trace.
 type Hole struct {
 	Name                   string

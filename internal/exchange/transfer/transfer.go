@@ -232,6 +232,9 @@ func (p *Programme) Inverse(crs string) (geojson.Inverse, error) {
 	if err != nil {
 		return nil, err
 	}
+	if c.Grid != nil {
+		return geojson.Grid(c.Grid), nil // any supported EPSG family, on its own ellipsoid
+	}
 	return geojson.UTM(c.Zone), nil
 }
 

@@ -67,3 +67,24 @@ func TestAGSSpacingsPerSet(t *testing.T) {
 		}
 	}
 }
+
+// The map's grid inverse follows the collars' EPSG family, on its own
+// ellipsoid: a GDA2020 / MGA zone 50 collar goes back to the latitude and
+// longitude PROJ 9.1.1 gave for it (internal/utm/testdata/proj_checks.txt,
+// `proj +proj=utm +zone=50 +south +ellps=GRS80`: -31.95, 115.86 ->
+// 392259.361885 E, 6464539.163993 N).
+func TestInverseFollowsTheEPSGFamily(t *testing.T) {
+	for _, crs := range []string{"EPSG:7850", "EPSG:28350"} {
+		p := Programme{Holes: []Hole{{Name: "A", CRS: crs}}}
+		inv, err := p.Inverse("")
+		if err != nil {
+			t.Fatalf("%s: %v", crs, err)
+		}
+		lat, lon, err := inv(392259.361885, 6464539.163993)
+		// 1e-10 degree (about 0.01 mm): PROJ's 1e-6 m rounding is 1e-11 degree,
+		// while the WGS 84 ellipsoid in place of GRS80 is off by 9e-10.
+		if err != nil || math.Abs(lat+31.95) > 1e-10 || math.Abs(lon-115.86) > 1e-10 {
+			t.Errorf("%s: %.10f %.10f %v, want -31.95 115.86", crs, lat, lon, err)
+		}
+	}
+}
