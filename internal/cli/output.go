@@ -15,14 +15,29 @@ import (
 // Commit, so a command that fails part-way leaves no partial output behind.
 // Every command that writes a file goes through [createOutput] or
 // [writeOutput].
+//
+// A path that exists and is not a regular file (a device such as /dev/null
+// or /dev/stdout, a named pipe) is written in place instead: renaming over
+// it would replace the device with a plain file.
 type outputFile struct {
 	*os.File
-	path string
-	done bool
+	path   string
+	done   bool
+	direct bool // written in place: Commit and Abort only close
 }
 
 // createOutput starts writing the file path.
 func createOutput(path string) (*outputFile, error) {
+	if fi, err := os.Stat(path); err == nil && !fi.Mode().IsRegular() {
+		if fi.IsDir() {
+			return nil, errors.New(path + " is a directory")
+		}
+		f, err := os.OpenFile(path, os.O_WRONLY, 0)
+		if err != nil {
+			return nil, err
+		}
+		return &outputFile{File: f, path: path, direct: true}, nil
+	}
 	dir, base := filepath.Split(path)
 	if dir == "" {
 		dir = "."
@@ -46,6 +61,9 @@ func createOutput(path string) (*outputFile, error) {
 // Commit closes the file and moves it to its path.
 func (o *outputFile) Commit() error {
 	o.done = true
+	if o.direct {
+		return o.File.Close()
+	}
 	if err := o.File.Close(); err != nil {
 		os.Remove(o.Name())
 		return err
@@ -65,7 +83,9 @@ func (o *outputFile) Abort() {
 	}
 	o.done = true
 	o.File.Close()
-	os.Remove(o.Name())
+	if !o.direct {
+		os.Remove(o.Name())
+	}
 }
 
 // writeOutput writes the file path with write, through [createOutput]: a

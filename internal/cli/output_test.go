@@ -3,6 +3,7 @@
 package cli
 
 import (
+	"io"
 	"os"
 	"path/filepath"
 	"syscall"
@@ -59,5 +60,40 @@ func TestOutputFileModes(t *testing.T) {
 				t.Errorf("umask %03o: %s has mode %04o, want %04o", umask, e.Name(), info.Mode().Perm(), want)
 			}
 		}
+	}
+}
+
+// An output path that is a named pipe (or a device such as /dev/null) is
+// written in place: renaming a temporary file over it would replace the
+// pipe or device with a plain file. The pipe stands in for /dev/null so a
+// failure cannot break the machine's /dev/null.
+func TestOutputToSpecialFile(t *testing.T) {
+	fifo := filepath.Join(t.TempDir(), "out.pipe")
+	if err := syscall.Mkfifo(fifo, 0o600); err != nil {
+		t.Skipf("no named pipes here: %v", err)
+	}
+	got := make(chan []byte, 1)
+	go func() {
+		b, _ := os.ReadFile(fifo) // blocks until the writer opens and closes it
+		got <- b
+	}()
+	if err := writeOutput(fifo, func(w io.Writer) error {
+		_, err := io.WriteString(w, "hole_id,depth\n")
+		return err
+	}); err != nil {
+		t.Fatal(err)
+	}
+	if b := <-got; string(b) != "hole_id,depth\n" {
+		t.Errorf("the pipe's reader got %q", b)
+	}
+	fi, err := os.Lstat(fifo)
+	if err != nil || fi.Mode()&os.ModeNamedPipe == 0 {
+		t.Errorf("after writing, %s is %v (%v), want the named pipe still", fifo, fi.Mode(), err)
+	}
+	if ents, _ := os.ReadDir(filepath.Dir(fifo)); len(ents) != 1 {
+		t.Errorf("files left beside the pipe: %v", ents)
+	}
+	if err := writeOutput(t.TempDir(), func(io.Writer) error { return nil }); err == nil {
+		t.Error("a directory as output: no error")
 	}
 }
