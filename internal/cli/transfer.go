@@ -16,7 +16,6 @@ import (
 	"corvane/internal/exchange"
 	"corvane/internal/exchange/gltf"
 	"corvane/internal/exchange/transfer"
-	"corvane/internal/geom"
 )
 
 func init() {
@@ -165,11 +164,11 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 
 	so := transfer.SceneOptions{DiscRadius: *radius}
 	if *originFlag != "" {
-		o, err := parseOrigin(*originFlag)
+		o, err := transfer.ParseOrigin(*originFlag)
 		if err != nil {
 			return usageErr("--origin: %v", err)
 		}
-		so.Origin = &[3]float64{o.X, o.Y, o.Z}
+		so.Origin = o
 	}
 	if *geoOut != "" {
 		if _, err := prog.Inverse(*crsFlag); err != nil {
@@ -220,20 +219,4 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 	fmt.Fprintf(env.Stderr, "corvane transfer: %d holes (%d with a trace), %d structures written; %d rows without a plane or position skipped\n",
 		len(prog.Holes), traced, len(prog.Structures), prog.Skipped)
 	return ExitOK
-}
-
-func parseOrigin(s string) (geom.Vec3, error) {
-	parts := strings.Split(s, ",")
-	if len(parts) != 3 {
-		return geom.Vec3{}, fmt.Errorf("%q: want EASTING,NORTHING,ELEVATION", s)
-	}
-	var v [3]float64
-	for i, p := range parts {
-		x, msg := csvio.ParseNumber(strings.TrimSpace(p))
-		if msg != "" {
-			return geom.Vec3{}, fmt.Errorf("%q: %s", p, msg)
-		}
-		v[i] = x
-	}
-	return geom.Vec3{X: v[0], Y: v[1], Z: v[2]}, nil
 }

@@ -1,13 +1,13 @@
 package httpapi
 
 import (
-	"math"
 	"strconv"
 	"strings"
 
 	"github.com/gin-gonic/gin"
 
 	"corvane/internal/domain"
+	"corvane/internal/exchange/transfer"
 	"corvane/internal/service"
 )
 
@@ -21,6 +21,16 @@ var transferFormats = map[string]struct{ format, contentType, file string }{
 	"holes.geojson": {service.FormatGeoJSON, "application/geo+json", "holes-%d.geojson"},
 	"points.csv":    {service.FormatPoints, "text/csv; charset=utf-8", "points-%d.csv"},
 	"transfer.ags":  {service.FormatAGS, "text/plain; charset=us-ascii", "transfer-%d.ags"},
+}
+
+// optNum reads an optional number parameter through numParam; absent is 0
+// (the service's default).
+func optNum(c *gin.Context, name string) (float64, error) {
+	p, err := numParam(c, name)
+	if p == nil || err != nil {
+		return 0, err
+	}
+	return *p, nil
 }
 
 // transferExport serves one transfer format of the measurements selected
@@ -41,35 +51,19 @@ func (s *Server) transferExport(name string) gin.HandlerFunc {
 			return
 		}
 		q := service.TransferQuery{MeasurementQuery: mq, CRS: c.Query("crs"), Recipient: c.Query("recipient")}
-		for _, p := range []struct {
-			name string
-			dst  *float64
-		}{{"disc_radius", &q.DiscRadius}, {"trace_step", &q.TraceStep}} {
-			v := c.Query(p.name)
-			if v == "" {
-				continue
-			}
-			x, err := strconv.ParseFloat(v, 64)
-			if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
-				fail(c, domain.FieldErr(p.name, "query parameter %s=%q: want a number", p.name, v))
-				return
-			}
-			*p.dst = x
+		if q.DiscRadius, err = optNum(c, "disc_radius"); err != nil {
+			fail(c, err)
+			return
+		}
+		if q.TraceStep, err = optNum(c, "trace_step"); err != nil {
+			fail(c, err)
+			return
 		}
 		if v := c.Query("origin"); v != "" {
-			parts := strings.Split(v, ",")
-			var o [3]float64
-			ok := len(parts) == 3
-			for i := 0; ok && i < 3; i++ {
-				x, err := strconv.ParseFloat(strings.TrimSpace(parts[i]), 64)
-				ok = err == nil && !math.IsNaN(x) && !math.IsInf(x, 0)
-				o[i] = x
-			}
-			if !ok {
-				fail(c, domain.FieldErr("origin", "query parameter origin=%q: want EASTING,NORTHING,ELEVATION", v))
+			if q.Origin, err = transfer.ParseOrigin(v); err != nil {
+				fail(c, domain.FieldErr("origin", "query parameter origin=%v", err))
 				return
 			}
-			q.Origin = &o
 		}
 		c.Header("Content-Disposition", `attachment; filename="`+strings.Replace(f.file, "%d", itoa(pid), 1)+`"`)
 		stream(c, f.contentType, func(w *trackingWriter) error {

@@ -92,6 +92,24 @@ func (p *Programme) Check() error {
 	return nil
 }
 
+// ParseOrigin reads a scene origin written EASTING,NORTHING,ELEVATION
+// (metres, finite), as the CLI's --origin and the route's origin take it.
+func ParseOrigin(s string) (*[3]float64, error) {
+	parts := strings.Split(s, ",")
+	if len(parts) != 3 {
+		return nil, fmt.Errorf("%q: want EASTING,NORTHING,ELEVATION", s)
+	}
+	var o [3]float64
+	for i, p := range parts {
+		x, msg := csvio.ParseNumber(strings.TrimSpace(p))
+		if msg != "" {
+			return nil, fmt.Errorf("%q: %s", p, msg)
+		}
+		o[i] = x
+	}
+	return &o, nil
+}
+
 // Interval is one logged core interval of a hole.
 type Interval struct {
 	Hole string

@@ -88,3 +88,16 @@ func TestInverseFollowsTheEPSGFamily(t *testing.T) {
 		}
 	}
 }
+
+// ParseOrigin is the one reader of a scene origin for the CLI and the route.
+func TestParseOrigin(t *testing.T) {
+	o, err := ParseOrigin(" 1000, 2000.5 ,-3")
+	if err != nil || *o != [3]float64{1000, 2000.5, -3} {
+		t.Errorf("ParseOrigin: %v %v", o, err)
+	}
+	for _, bad := range []string{"1,2", "1,2,3,4", "1,x,3", "1,NaN,3", "1,2,Inf"} {
+		if _, err := ParseOrigin(bad); err == nil {
+			t.Errorf("ParseOrigin(%q): no error", bad)
+		}
+	}
+}
