@@ -137,11 +137,16 @@ func isHelp(a string) bool { return a == "-h" || a == "-help" || a == "--help" }
 // so a test can check that --help documents each flag of every command.
 var flagSetMade func(*flag.FlagSet)
 
-// newFlagSet is the flag set of a subcommand: errors are returned, and
-// messages go to the command's standard error.
-func newFlagSet(env *Env, name string) *flag.FlagSet {
+// newFlagSet is the flag set of a subcommand: errors are returned,
+// messages go to the command's standard error, and --help prints usage
+// followed by every flag's default and description.
+func newFlagSet(env *Env, name, usage string) *flag.FlagSet {
 	fs := flag.NewFlagSet(name, flag.ContinueOnError)
 	fs.SetOutput(env.Stderr)
+	fs.Usage = func() {
+		fmt.Fprint(fs.Output(), usage)
+		fs.PrintDefaults()
+	}
 	if flagSetMade != nil {
 		flagSetMade(fs)
 	}

@@ -197,11 +197,7 @@ func loadHoles(collars, surveys string, opt convert.Options) ([]csvio.CollarRow,
 }
 
 func runConvert(ctx context.Context, env *Env, args []string) int {
-	fs := newFlagSet(env, "convert")
-	fs.Usage = func() {
-		fmt.Fprint(env.Stderr, convertUsage)
-		fs.PrintDefaults()
-	}
+	fs := newFlagSet(env, "convert", convertUsage)
 	var opt convert.Options
 	collars := fs.String("collars", "", "collars CSV file (required)")
 	surveys := fs.String("surveys", "", "surveys CSV file (required)")

@@ -70,11 +70,7 @@ Options:
 `
 
 func runDeclination(_ context.Context, env *Env, args []string) int {
-	fs := newFlagSet(env, "declination")
-	fs.Usage = func() {
-		fmt.Fprint(env.Stderr, declinationUsage)
-		fs.PrintDefaults()
-	}
+	fs := newFlagSet(env, "declination", declinationUsage)
 	// No default: the flags are required (checked below), so the help
 	// shows none.
 	lat := fs.Float64("lat", 0, "latitude, WGS 84 degrees, north positive (required without --in)")

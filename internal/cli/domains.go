@@ -3,7 +3,6 @@ package cli
 import (
 	"context"
 	"errors"
-	"fmt"
 
 	"corvane/internal/fabric"
 	"corvane/internal/geotech"
@@ -42,11 +41,7 @@ Options:
 `
 
 func runDomains(_ context.Context, env *Env, args []string) int {
-	fs := newFlagSet(env, "domains")
-	fs.Usage = func() {
-		fmt.Fprint(env.Stderr, domainsUsage)
-		fs.PrintDefaults()
-	}
+	fs := newFlagSet(env, "domains", domainsUsage)
 	var c orientFlags
 	registerGeoFlags(fs, &c)
 	var doms domainFlags

@@ -82,11 +82,7 @@ func readIntervalsFile(env *Env, path, collars string) ([]csvio.IntervalRow, err
 }
 
 func runIntervals(_ context.Context, env *Env, args []string) int {
-	fs := newFlagSet(env, "intervals")
-	fs.Usage = func() {
-		fmt.Fprint(env.Stderr, intervalsUsage)
-		fs.PrintDefaults()
-	}
+	fs := newFlagSet(env, "intervals", intervalsUsage)
 	in := fs.String("intervals", "", "core intervals CSV (required; - for standard input)")
 	collars := fs.String("collars", "", "collars CSV: check that every interval lies inside its hole")
 	feet := fs.Bool("feet", false, "lengths are in feet (RQD pieces from 0.328 ft)")

@@ -25,20 +25,20 @@ func dbFlag(fs *flag.FlagSet, env *Env) *string {
 	return fs.String("db", def, "postgres:// URL, key=value PostgreSQL string or SQLite file path (env "+config.EnvDatabaseURL+")")
 }
 
+const migrateUsage = `Usage: corvane migrate up|down|force VERSION|version [--db URL] [--steps N] [--all --yes]
+
+Moves the database schema (corvane serve applies pending migrations itself at start).
+  up             apply every pending migration
+  down           roll back one migration (--steps N for N; --all --yes for every one,
+                 which drops every table and all data)
+  force VERSION  mark a dirty schema, repaired by hand, as clean at VERSION (0: none)
+  version        print the schema version
+
+Options:
+`
+
 func runMigrate(ctx context.Context, env *Env, args []string) int {
-	fs := newFlagSet(env, "migrate")
-	fs.Usage = func() {
-		w := fs.Output()
-		fmt.Fprintln(w, "Usage: corvane migrate up|down|force VERSION|version [--db URL] [--steps N] [--all --yes]")
-		fmt.Fprintln(w, "\nMoves the database schema (corvane serve applies pending migrations itself at start).")
-		fmt.Fprintln(w, "  up             apply every pending migration")
-		fmt.Fprintln(w, "  down           roll back one migration (--steps N for N; --all --yes for every one,")
-		fmt.Fprintln(w, "                 which drops every table and all data)")
-		fmt.Fprintln(w, "  force VERSION  mark a dirty schema, repaired by hand, as clean at VERSION (0: none)")
-		fmt.Fprintln(w, "  version        print the schema version")
-		fmt.Fprintln(w, "\nOptions:")
-		fs.PrintDefaults()
-	}
+	fs := newFlagSet(env, "migrate", migrateUsage)
 	action := ""
 	if len(args) > 0 && !strings.HasPrefix(args[0], "-") {
 		action, args = args[0], args[1:]

@@ -41,11 +41,7 @@ Options:
 `
 
 func runNet(_ context.Context, env *Env, args []string) int {
-	fs := newFlagSet(env, "net")
-	fs.Usage = func() {
-		fmt.Fprint(env.Stderr, netUsage)
-		fs.PrintDefaults()
-	}
+	fs := newFlagSet(env, "net", netUsage)
 	var c orientFlags
 	c.register(fs, true)
 	proj := fs.String("projection", "equal-area", "equal-area or equal-angle")

@@ -98,11 +98,7 @@ func (z *zoneFlags) Set(s string) error {
 }
 
 func runQA(_ context.Context, env *Env, args []string) int {
-	fs := newFlagSet(env, "qa")
-	fs.Usage = func() {
-		fmt.Fprint(env.Stderr, qaUsage)
-		fs.PrintDefaults()
-	}
+	fs := newFlagSet(env, "qa", qaUsage)
 	def := qa.DefaultOptions()
 	collars := fs.String("collars", "", "collars CSV (required)")
 	surveys := fs.String("surveys", "", "surveys CSV (required)")

@@ -3,7 +3,6 @@ package cli
 import (
 	"context"
 	"errors"
-	"fmt"
 	"io"
 	"path/filepath"
 
@@ -34,11 +33,7 @@ Options:
 `
 
 func runRose(_ context.Context, env *Env, args []string) int {
-	fs := newFlagSet(env, "rose")
-	fs.Usage = func() {
-		fmt.Fprint(env.Stderr, roseUsage)
-		fs.PrintDefaults()
-	}
+	fs := newFlagSet(env, "rose", roseUsage)
 	var c orientFlags
 	c.register(fs, false)
 	fs.StringVar(&c.of, "of", fabric.RoseDipDirection, "dip_direction (or dip-direction), strike or trend")

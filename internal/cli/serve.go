@@ -44,11 +44,7 @@ func runServe(ctx context.Context, env *Env, args []string) int {
 		fmt.Fprintln(env.Stderr, "corvane serve:", err)
 		return ExitUsage
 	}
-	fs := newFlagSet(env, "serve")
-	fs.Usage = func() {
-		fmt.Fprint(fs.Output(), serveUsage)
-		fs.PrintDefaults()
-	}
+	fs := newFlagSet(env, "serve", serveUsage)
 	cfg.Bind(fs)
 	if err := fs.Parse(args); err != nil {
 		if errors.Is(err, flag.ErrHelp) {

@@ -52,11 +52,7 @@ Options:
 `
 
 func runSlopeCheck(_ context.Context, env *Env, args []string) int {
-	fs := newFlagSet(env, "slope-check")
-	fs.Usage = func() {
-		fmt.Fprint(env.Stderr, slopeCheckUsage)
-		fs.PrintDefaults()
-	}
+	fs := newFlagSet(env, "slope-check", slopeCheckUsage)
 	var c orientFlags
 	registerGeoFlags(fs, &c)
 	face := fs.String("face", "", "the face as DIP/DIP_DIRECTION, e.g. 65/180 (required)")

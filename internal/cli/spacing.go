@@ -82,11 +82,7 @@ func (f *capFlag) Set(s string) error {
 }
 
 func runSpacing(_ context.Context, env *Env, args []string) int {
-	fs := newFlagSet(env, "spacing")
-	fs.Usage = func() {
-		fmt.Fprint(env.Stderr, spacingUsage)
-		fs.PrintDefaults()
-	}
+	fs := newFlagSet(env, "spacing", spacingUsage)
 	var c orientFlags
 	registerGeoFlags(fs, &c)
 	var doms domainFlags

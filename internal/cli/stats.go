@@ -184,11 +184,7 @@ func orientExit(oi *orientInput) int {
 }
 
 func runStats(_ context.Context, env *Env, args []string) int {
-	fs := newFlagSet(env, "stats")
-	fs.Usage = func() {
-		fmt.Fprint(env.Stderr, statsUsage)
-		fs.PrintDefaults()
-	}
+	fs := newFlagSet(env, "stats", statsUsage)
 	var c orientFlags
 	c.register(fs, true)
 	fs.StringVar(&c.of, "of", "both", "planes, lines or both (those present)")

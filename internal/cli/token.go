@@ -37,11 +37,7 @@ func runToken(ctx context.Context, env *Env, args []string) int {
 	if len(args) > 0 && !strings.HasPrefix(args[0], "-") {
 		action, args = args[0], args[1:]
 	}
-	fs := newFlagSet(env, strings.TrimSpace("token "+action))
-	fs.Usage = func() {
-		fmt.Fprint(fs.Output(), tokenUsage)
-		fs.PrintDefaults()
-	}
+	fs := newFlagSet(env, strings.TrimSpace("token "+action), tokenUsage)
 	db := dbFlag(fs, env)
 	project := fs.String("project", "", "project id or name, or all for the site tokens")
 	role := fs.String("role", "", "read, log or admin (create)")

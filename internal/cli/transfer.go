@@ -61,11 +61,7 @@ Options:
 `
 
 func runTransfer(ctx context.Context, env *Env, args []string) int {
-	fs := newFlagSet(env, "transfer")
-	fs.Usage = func() {
-		fmt.Fprint(env.Stderr, transferUsage)
-		fs.PrintDefaults()
-	}
+	fs := newFlagSet(env, "transfer", transferUsage)
 	collars := fs.String("collars", "", "collars CSV file (required)")
 	surveys := fs.String("surveys", "", "surveys CSV file (required)")
 	converted := fs.String("converted", "", "output of corvane convert (required)")
