@@ -107,22 +107,6 @@ func subtitle(source, ref string) string {
 	return source
 }
 
-// defaultStyles gives the type codes of rows the visual language's defaults
-// in code order, as a project gives a vocabulary stored without styles.
-func defaultStyles(rows []Row) map[string]visual.Style {
-	idx := make([]int, len(rows))
-	for i := range idx {
-		idx[i] = i
-	}
-	names := typeNames(rows, idx)
-	st := visual.Fill(make([]visual.Style, len(names)))
-	m := make(map[string]visual.Style, len(names))
-	for i, n := range names {
-		m[n] = st[i]
-	}
-	return m
-}
-
 // Net returns the net sheet of in: poles (filled markers), planes as great
 // circles, lines (open markers), set means with their 95% cones of
 // confidence, and filled density contours of the poles (of the lines when
@@ -137,7 +121,11 @@ func Net(in Input, o NetOptions) (netsvg.Net, error) {
 	hasSets := o.Sets.any()
 	styles := o.TypeStyles
 	if styles == nil && o.Sets.ByType {
-		styles = defaultStyles(in.Rows)
+		codes := make([]string, len(in.Rows))
+		for i, r := range in.Rows {
+			codes[i] = r.Type
+		}
+		styles = visual.Defaults(codes)
 	}
 	n := netsvg.Net{Projection: o.Projection, Caution: Caution, Title: o.Title, Subtitle: subtitle(o.Source, o.AzimuthRef)}
 	// Sets: poles' sets first (their indices match markers), then lines'

@@ -7,7 +7,6 @@ package palette
 
 import (
 	"math"
-	"slices"
 	"strconv"
 	"strings"
 
@@ -77,14 +76,7 @@ func New(codes []string) Scheme {
 	for _, c := range codes {
 		cs = append(cs, key(c))
 	}
-	slices.Sort(cs)
-	cs = slices.Compact(cs)
-	st := visual.Fill(make([]visual.Style, len(cs)))
-	m := make(map[string]visual.Style, len(cs))
-	for i, c := range cs {
-		m[c] = st[i]
-	}
-	return FromStyles(m)
+	return FromStyles(visual.Defaults(cs))
 }
 
 // FromStyles returns the scheme of a project's stored type styles (code ->

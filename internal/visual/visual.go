@@ -19,6 +19,7 @@ import (
 	"fmt"
 	"math"
 	"regexp"
+	"slices"
 	"strconv"
 	"strings"
 )
@@ -62,6 +63,21 @@ func Next(used []Style) Style {
 		}
 	}
 	return Pair(len(used))
+}
+
+// Defaults gives type codes that have no stored style (a file with no
+// vocabulary) the default styles in sorted code order, as a project whose
+// types were stored without a style gets them ([Fill]); repeats are ignored.
+func Defaults(codes []string) map[string]Style {
+	cs := slices.Clone(codes)
+	slices.Sort(cs)
+	cs = slices.Compact(cs)
+	st := Fill(make([]Style, len(cs)))
+	m := make(map[string]Style, len(cs))
+	for i, c := range cs {
+		m[c] = st[i]
+	}
+	return m
 }
 
 // Fill gives every empty style in styles (in order) the next free default,

@@ -99,3 +99,17 @@ func TestConfidenceAndSeverity(t *testing.T) {
 		t.Fatal("severity lookup")
 	}
 }
+
+// Defaults is the one rule for codes with no stored style: the default
+// pairs in sorted code order, repeats ignored, as Fill gives a vocabulary.
+func TestDefaults(t *testing.T) {
+	m := Defaults([]string{"JN", "BD", "JN", "FLT"})
+	if len(m) != 3 {
+		t.Fatalf("%d styles, want 3: %v", len(m), m)
+	}
+	for i, code := range []string{"BD", "FLT", "JN"} {
+		if m[code] != Pair(i) {
+			t.Errorf("%s: %v, want Pair(%d) %v", code, m[code], i, Pair(i))
+		}
+	}
+}
