@@ -1,7 +1,7 @@
 #!/usr/bin/env bash
 # Renders the example nets and rose diagram to SVG with corvane and then to PNG
 # with rsvg-convert (Debian package librsvg2-bin); the PNGs go to testdata/figures/.
-# Input: the demo programme testdata/tallowmere/ (a fictional prospect), converted
+# Input: the demo programme testdata/zelvorra/ (a fictional prospect), converted
 # with corvane convert; without it, a generated demo set from internal/cli's test
 # helper.
 set -euo pipefail
@@ -19,8 +19,8 @@ trap 'rm -rf "$work"' EXIT
 go build -o "$work/corvane" ./cmd/corvane
 c=$work/corvane
 
-in=$work/tallowmere-orientations.csv
-d=testdata/tallowmere
+in=$work/zelvorra-orientations.csv
+d=testdata/zelvorra
 if [ -f $d/collars.csv ] && [ -f $d/surveys.csv ] && [ -f $d/structures.csv ]; then
   # the demo programme, converted from core angles by corvane itself
   $c convert --collars $d/collars.csv --surveys $d/surveys.csv --structures $d/structures.csv -o "$in" || [ $? -eq 1 ]
@@ -29,10 +29,10 @@ else
 fi
 echo "input: $in"
 
-$c net --in "$in" -o "$work/net-density.svg" --show poles,density --title "Tallowmere: poles and density" || [ $? -eq 1 ]
+$c net --in "$in" -o "$work/net-density.svg" --show poles,density --title "Zelvorra Reach: poles and density" || [ $? -eq 1 ]
 $c net --in "$in" -o "$work/net-equal-angle-sets.svg" --projection equal-angle \
-  --show planes,poles,sets --sets auto:4 --title "Tallowmere: planes, equal-angle, 4 sets" || [ $? -eq 1 ]
-$c rose --in "$in" -o "$work/rose-dip-directions.svg" --title "Tallowmere: dip directions" || [ $? -eq 1 ]
+  --show planes,poles,sets --sets auto:4 --title "Zelvorra Reach: planes, equal-angle, 4 sets" || [ $? -eq 1 ]
+$c rose --in "$in" -o "$work/rose-dip-directions.svg" --title "Zelvorra Reach: dip directions" || [ $? -eq 1 ]
 
 for s in "$work"/*.svg; do
   png=$out/$(basename "${s%.svg}").png

@@ -29,8 +29,8 @@ func runCLI(args ...string) (code int, stdout, stderr string) {
 
 // The demo programme converts with the one command the README gives.
 func TestConvertDemo(t *testing.T) {
-	out := filepath.Join(t.TempDir(), "tallowmere-oriented.csv")
-	d := "../../testdata/tallowmere/"
+	out := filepath.Join(t.TempDir(), "zelvorra-oriented.csv")
+	d := "../../testdata/zelvorra/"
 	code, _, stderr := runCLI("convert", "--collars", d+"collars.csv", "--surveys", d+"surveys.csv", "--structures", d+"structures.csv", "-o", out)
 	if code != ExitOK {
 		t.Fatalf("exit %d: %s", code, stderr)

@@ -25,7 +25,7 @@ import (
 // checks that convert applies them with the right signs and says where they
 // came from.
 func TestMagneticHoleEndToEnd(t *testing.T) {
-	// A collar of the fictional Tallowmere prospect, placed in UTM zone 50S.
+	// A collar of the fictional Zelvorra Reach prospect, placed in UTM zone 50S.
 	const lat, lon, elev, date = -31.95, 115.86, 30.0, "2026-05-20"
 	zone := utm.Zone{Number: 50, South: true}
 	g, err := utm.Forward(zone, lat, lon)

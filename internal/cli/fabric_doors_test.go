@@ -17,6 +17,7 @@ import (
 	"strings"
 	"testing"
 
+	"corvane/internal/demo"
 	"corvane/internal/domain"
 	"corvane/internal/fabric"
 	"corvane/internal/httpapi"
@@ -39,20 +40,17 @@ func doorsProgramme(t *testing.T) (srv *httptest.Server, token string, pid int64
 	if err != nil || len(types) == 0 {
 		t.Fatalf("type codes: %v %v", types, err)
 	}
-	h, err := svc.CreateHole(ctx, p.ID, domain.Hole{Name: "TMV01", East: 431300, North: 6652500, Elevation: 400, Azimuth: 0, Dip: -90, FinalDepth: 120})
+	h, err := svc.CreateHole(ctx, p.ID, domain.Hole{Name: "ZRV01", East: 431300, North: 5400100, Elevation: 400, Azimuth: 0, Dip: -90, FinalDepth: 120})
 	if err != nil {
 		t.Fatal(err)
 	}
-	// The lineation needs a line type of its own (a plane type refuses gamma).
-	if _, _, err := svc.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "lineation", Kind: "line"}); err != nil {
-		t.Fatal(err)
-	}
+	// The lineation takes the demo's line type (a plane type refuses gamma).
 	g := 30.0
 	for i, a := range []float64{35, 50, 62} {
 		m := domain.Measurement{HoleID: h.ID, Depth: 20 + 10*float64(i), Alpha: a, Beta: f64(40 * float64(i)), TypeCode: types[0].Code}
 		if i == 1 {
 			m.Gamma = &g
-			m.TypeCode = "lineation"
+			m.TypeCode = demo.LineType
 		}
 		if _, err := svc.CreateMeasurement(ctx, p.ID, m); err != nil {
 			t.Fatal(err)

@@ -32,9 +32,16 @@ func geoProgramme(t *testing.T) (srv *httptest.Server, token string, pid int64, 
 	if err != nil || len(hs.Items) < 2 {
 		t.Fatalf("holes %+v %v", hs, err)
 	}
-	types, err := svc.ListTypeCodes(ctx, p.ID)
+	all, err := svc.ListTypeCodes(ctx, p.ID)
 	if err != nil {
 		t.Fatal(err)
+	}
+	// Unoriented planes: the plane types (a line type needs gamma).
+	var types []domain.TypeCode
+	for _, tc := range all {
+		if tc.Kind != "line" {
+			types = append(types, tc)
+		}
 	}
 	for k, h := range hs.Items[:2] {
 		holes[k] = h.Name

@@ -53,7 +53,7 @@ func atoi(t *testing.T, s string) int {
 func TestConvertHoleSummaryDemo(t *testing.T) {
 	dir := t.TempDir()
 	out, sum := filepath.Join(dir, "out.csv"), filepath.Join(dir, "holes.csv")
-	d := "../../testdata/tallowmere/"
+	d := "../../testdata/zelvorra/"
 	code, _, stderr := runCLI("convert", "--collars", d+"collars.csv", "--surveys", d+"surveys.csv", "--structures", d+"structures.csv",
 		"-o", out, "--hole-summary", sum)
 	if code != ExitOK {

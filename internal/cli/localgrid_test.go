@@ -20,7 +20,7 @@ func TestConvertLocalGrid(t *testing.T) {
 	e, n := tr.ToGrid(5100, 10050)
 	az := func(a float64) string { return fmt.Sprintf("%.10f", tr.LocalToGridAzimuth(a)) }
 	dir := convertFiles(t, map[string]string{
-		"grid.json": `{"name":"Tallowmere mine grid","grid_crs":"EPSG:28350","rotation":-37.25,"scale":0.99975,
+		"grid.json": `{"name":"Zelvorra Reach mine grid","grid_crs":"EPSG:28350","rotation":-37.25,"scale":0.99975,
 			"origin":{"local_easting":5000,"local_northing":10000,"easting":391250,"northing":6465480}}`,
 		"c.csv": "hole_id,easting,northing,elevation,azimuth,dip,depth,crs,azimuth_reference\n" +
 			"L1,5100,10050,300,30,-60,200,LOCAL,grid\n" +
@@ -36,7 +36,7 @@ func TestConvertLocalGrid(t *testing.T) {
 	if code != ExitOK {
 		t.Fatalf("exit %d: %s", code, errs)
 	}
-	if !strings.Contains(errs, `local grid "Tallowmere mine grid" -> EPSG:28350: rotation -37.250000`) || !strings.Contains(errs, "1 collar(s) carried") {
+	if !strings.Contains(errs, `local grid "Zelvorra Reach mine grid" -> EPSG:28350: rotation -37.250000`) || !strings.Contains(errs, "1 collar(s) carried") {
 		t.Errorf("stderr: %s", errs)
 	}
 	rows := e2eReadRows(t, out)

@@ -86,11 +86,11 @@ func TestTokenCommand(t *testing.T) {
 		t.Fatalf("printed secret authenticates as %+v, %v", a, err)
 	}
 	// The site token can create a project; a project token by name follows.
-	p, err := svc.CreateProject(service.WithActor(ctx, a), domain.Project{Name: "Tallowmere"})
+	p, err := svc.CreateProject(service.WithActor(ctx, a), domain.Project{Name: "Zelvorra Reach"})
 	if err != nil {
 		t.Fatal(err)
 	}
-	code, out, errs = runWithEnv(t, env, "token", "create", "--project", "Tallowmere", "--role", "log")
+	code, out, errs = runWithEnv(t, env, "token", "create", "--project", "Zelvorra Reach", "--role", "log")
 	if code != ExitOK {
 		t.Fatalf("project token: %d %q", code, errs)
 	}

@@ -14,7 +14,7 @@ import (
 // new file is created, mode 0666 less the umask (0644 under the usual 022,
 // 0640 under 027), and leaves no temporary file behind.
 func TestOutputFileModes(t *testing.T) {
-	d := "../../testdata/tallowmere/"
+	d := "../../testdata/zelvorra/"
 	dir := t.TempDir()
 	oriented := filepath.Join(dir, "oriented.csv")
 	points := filepath.Join(dir, "points.csv")

@@ -37,7 +37,7 @@ func TestConvertReportsEveryFile(t *testing.T) {
 // TestConvertQuietWhenPiped: with standard error not a terminal (here a
 // buffer) convert and qa print no progress line.
 func TestConvertQuietWhenPiped(t *testing.T) {
-	d := filepath.Join("..", "..", "testdata", "tallowmere")
+	d := filepath.Join("..", "..", "testdata", "zelvorra")
 	p := func(n string) string { return filepath.Join(d, n) }
 	out := filepath.Join(t.TempDir(), "o.csv")
 	for _, args := range [][]string{

@@ -13,14 +13,14 @@ import (
 )
 
 // Equal answers at both doors of the mark-rotation check: corvane qa on the
-// demo's files (testdata/tallowmere) and the QA route on the demo programme
+// demo's files (testdata/zelvorra) and the QA route on the demo programme
 // loaded into a store give the same rotation estimate, interval, n and flag
 // for every run, at default settings and with the tolerance changed.
 func TestQAMarkRotationDoors(t *testing.T) {
 	ctx, svc, p := demoService(t)
 	srv, token := readerServer(t, ctx, svc, p.ID)
 
-	dir := filepath.Join("..", "..", "testdata", "tallowmere")
+	dir := filepath.Join("..", "..", "testdata", "zelvorra")
 	flagged := map[string]int{}
 	for _, tol := range []string{"", "25"} {
 		args := []string{"qa", "--collars", filepath.Join(dir, "collars.csv"), "--surveys", filepath.Join(dir, "surveys.csv"),

@@ -27,7 +27,7 @@ func runCmd(t *testing.T, args ...string) (code int, stdout, stderr string) {
 }
 
 // demoOrientationsCSV returns measurements in the converter's column layout
-// for a fictional prospect, Tallowmere: three joint sets, bedding and
+// for a fictional prospect, Zelvorra Reach: three joint sets, bedding and
 // lineations logged in four inclined holes. Planes are kept with
 // probability |cos delta| (delta between pole and hole), so the sample carries
 // the sampling bias that Terzaghi weighting corrects.

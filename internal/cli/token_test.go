@@ -32,19 +32,19 @@ func TestTokenListRevoke(t *testing.T) {
 	defer st.Close()
 	svc := service.New(st, nil)
 	sys := service.WithActor(ctx, service.System)
-	p, err := svc.CreateProject(sys, domain.Project{Name: "Tallowmere"})
+	p, err := svc.CreateProject(sys, domain.Project{Name: "Zelvorra Reach"})
 	if err != nil {
 		t.Fatal(err)
 	}
 	create := func(name string) string {
-		code, out, errs := runWithEnv(t, env, "token", "create", "--project", "Tallowmere", "--role", "log", "--name", name)
+		code, out, errs := runWithEnv(t, env, "token", "create", "--project", "Zelvorra Reach", "--role", "log", "--name", name)
 		if code != ExitOK {
 			t.Fatalf("create %s: %d %q", name, code, errs)
 		}
 		return strings.TrimSpace(out)
 	}
 	rig, bench1, bench2 := create("rig 2"), create("bench"), create("bench")
-	code, out, errs := runWithEnv(t, env, "token", "list", "--project", "Tallowmere")
+	code, out, errs := runWithEnv(t, env, "token", "list", "--project", "Zelvorra Reach")
 	if code != ExitOK {
 		t.Fatalf("list: %d %q", code, errs)
 	}
@@ -88,7 +88,7 @@ func TestTokenListRevoke(t *testing.T) {
 			t.Errorf("token revoked by name authenticates: %v", err)
 		}
 	}
-	if code, out, _ := runWithEnv(t, env, "token", "list", "--project", "Tallowmere"); code != ExitOK || strings.Count(out, "\n") != 1 {
+	if code, out, _ := runWithEnv(t, env, "token", "list", "--project", "Zelvorra Reach"); code != ExitOK || strings.Count(out, "\n") != 1 {
 		t.Errorf("list after revoking all: %q", out)
 	}
 }

@@ -73,7 +73,7 @@ func TestTransferDoors(t *testing.T) {
 		t.Fatal(err)
 	}
 	out := func(n string) string { return filepath.Join(dir, n) }
-	d := "../../testdata/tallowmere/"
+	d := "../../testdata/zelvorra/"
 	code, _, stderr := runCLI("transfer", "--collars", d+"collars.csv", "--surveys", d+"surveys.csv", "--converted", converted,
 		"--output-reference", p.OutputAzimuthRef, "--types", strings.Join(codes, ","), "--project", p.Name,
 		"--glb", out("scene.glb"), "--geojson", out("holes.geojson"), "--points", out("points.csv"), "--ags", out("transfer.ags"),

@@ -23,14 +23,14 @@ import (
 // converted rows with a plane; GeoJSON has a collar per hole.
 func TestTransferDemo(t *testing.T) {
 	dir := t.TempDir()
-	d := "../../testdata/tallowmere/"
+	d := "../../testdata/zelvorra/"
 	conv := filepath.Join(dir, "oriented.csv")
 	if code, _, stderr := runCLI("convert", "--collars", d+"collars.csv", "--surveys", d+"surveys.csv", "--structures", d+"structures.csv", "-o", conv); code != ExitOK {
 		t.Fatalf("convert: exit %d: %s", code, stderr)
 	}
 	out := func(n string) string { return filepath.Join(dir, n) }
 	code, _, stderr := runCLI("transfer", "--collars", d+"collars.csv", "--surveys", d+"surveys.csv", "--converted", conv,
-		"--glb", out("scene.glb"), "--gltf", out("scene.gltf"), "--geojson", out("holes.geojson"), "--points", out("points.csv"), "--ags", out("tallowmere.ags"),
+		"--glb", out("scene.glb"), "--gltf", out("scene.gltf"), "--geojson", out("holes.geojson"), "--points", out("points.csv"), "--ags", out("zelvorra.ags"),
 		"--disc-radius", "0.5")
 	if code != ExitOK {
 		t.Fatalf("transfer: exit %d: %s", code, stderr)
@@ -134,8 +134,8 @@ func TestTransferDemo(t *testing.T) {
 	}
 
 	// AGS4 reads back with a DISC row per structure.
-	af, _ := os.Open(out("tallowmere.ags"))
-	data, err := ags4.Read(af, "tallowmere.ags")
+	af, _ := os.Open(out("zelvorra.ags"))
+	data, err := ags4.Read(af, "zelvorra.ags")
 	af.Close()
 	if err != nil {
 		t.Fatal(err)
@@ -160,7 +160,7 @@ func TestTransferUsage(t *testing.T) {
 		{[]string{"transfer"}, "are required"},
 		{[]string{"transfer", "--collars", "c", "--surveys", "s", "--converted", "x"}, "nothing to write"},
 		{[]string{"transfer", "--collars", "c", "--surveys", "s", "--converted", "x", "--glb", "g", "--method", "spline"}, "--method"},
-		{[]string{"transfer", "--collars", "../../testdata/tallowmere/collars.csv", "--surveys", "../../testdata/tallowmere/surveys.csv",
+		{[]string{"transfer", "--collars", "../../testdata/zelvorra/collars.csv", "--surveys", "../../testdata/zelvorra/surveys.csv",
 			"--converted", "x", "--glb", "g", "--feet"}, "written in metres"},
 	} {
 		code, _, stderr := runCLI(c.args...)
@@ -178,13 +178,13 @@ func TestTransferUsage(t *testing.T) {
 // pieces or sound has an empty RQD. An interval past the hole is refused.
 func TestTransferCoreIntervals(t *testing.T) {
 	dir := t.TempDir()
-	d := "../../testdata/tallowmere/"
+	d := "../../testdata/zelvorra/"
 	conv := filepath.Join(dir, "oriented.csv")
 	if code, _, stderr := runCLI("convert", "--collars", d+"collars.csv", "--surveys", d+"surveys.csv", "--structures", d+"structures.csv", "-o", conv); code != ExitOK {
 		t.Fatalf("convert: exit %d: %s", code, stderr)
 	}
 	iv := filepath.Join(dir, "intervals.csv")
-	if err := os.WriteFile(iv, []byte("hole_id,from,to,recovered,solid,pieces,natural_breaks\nTM001,0,3,2.85,2.4,0.5;0.05;0.3;0.08;1.2,4\nTM001,3,6,3,3,,0\n"), 0o644); err != nil {
+	if err := os.WriteFile(iv, []byte("hole_id,from,to,recovered,solid,pieces,natural_breaks\nZR001,0,3,2.85,2.4,0.5;0.05;0.3;0.08;1.2,4\nZR001,3,6,3,3,,0\n"), 0o644); err != nil {
 		t.Fatal(err)
 	}
 	ags := filepath.Join(dir, "t.ags")
@@ -201,13 +201,13 @@ func TestTransferCoreIntervals(t *testing.T) {
 		t.Fatalf("%d CORE rows, want 2", len(data.Cores))
 	}
 	c := data.Cores[0]
-	if c.Hole != "TM001" || c.Top != 0 || c.Base != 3 || c.TotalRecovery != 95 || c.SolidRecovery != 80 || c.RQD != 67 {
+	if c.Hole != "ZR001" || c.Top != 0 || c.Base != 3 || c.TotalRecovery != 95 || c.SolidRecovery != 80 || c.RQD != 67 {
 		t.Errorf("CORE row 1: %+v", c)
 	}
 	if c := data.Cores[1]; c.TotalRecovery != 100 || !math.IsNaN(c.RQD) {
 		t.Errorf("CORE row 2: %+v", c)
 	}
-	if err := os.WriteFile(iv, []byte("hole_id,from,to\nTM001,250,260\n"), 0o644); err != nil {
+	if err := os.WriteFile(iv, []byte("hole_id,from,to\nZR001,250,260\n"), 0o644); err != nil {
 		t.Fatal(err)
 	}
 	code, _, stderr := runCLI("transfer", "--collars", d+"collars.csv", "--surveys", d+"surveys.csv", "--converted", conv, "--ags", ags, "--intervals", iv)

@@ -12,9 +12,9 @@ import (
 
 func TestReadIntervals(t *testing.T) {
 	in := "Hole_ID,from,to,recovered,solid,sound,pieces,natural_breaks,induced_breaks,confidence\n" +
-		"TM001,0,3,2.9,2.5,2.1,,4,2,good\n" +
-		"TM001,3,6,3,2.8,,0.5;0.05;1.2,3,,\n" +
-		"TM002,10,12,,,,,,,\n"
+		"ZR001,0,3,2.9,2.5,2.1,,4,2,good\n" +
+		"ZR001,3,6,3,2.8,,0.5;0.05;1.2,3,,\n" +
+		"ZR002,10,12,,,,,,,\n"
 	rows, err := ReadIntervals(strings.NewReader(in), "iv.csv")
 	if err != nil {
 		t.Fatal(err)
@@ -23,7 +23,7 @@ func TestReadIntervals(t *testing.T) {
 		t.Fatalf("%d rows", len(rows))
 	}
 	r := rows[1]
-	if r.Line != 3 || r.HoleID != "TM001" || len(r.Interval.Pieces) != 3 || r.Interval.Pieces[2] != 1.2 ||
+	if r.Line != 3 || r.HoleID != "ZR001" || len(r.Interval.Pieces) != 3 || r.Interval.Pieces[2] != 1.2 ||
 		r.Interval.NaturalBreaks != 3 || r.Interval.InducedBreaks != -1 || !math.IsNaN(r.Interval.Sound) {
 		t.Errorf("row 2: %+v", r)
 	}
@@ -100,9 +100,9 @@ func FuzzReadIntervals(f *testing.F) {
 // WriteIntervals writes what ReadIntervals reads back to the same values.
 func TestWriteIntervalsRoundTrip(t *testing.T) {
 	in := "hole_id,from,to,recovered,solid,sound,pieces,natural_breaks,induced_breaks,confidence\n" +
-		"TM001,0,3,2.9,2.5,2.1,,4,2,good\n" +
-		"TM001,3,6.1,3,2.8,,0.5;0.05;0.3333333333333333,0,,\n" +
-		"TM002,10,12,,,,,,,\n"
+		"ZR001,0,3,2.9,2.5,2.1,,4,2,good\n" +
+		"ZR001,3,6.1,3,2.8,,0.5;0.05;0.3333333333333333,0,,\n" +
+		"ZR002,10,12,,,,,,,\n"
 	rows, err := ReadIntervals(strings.NewReader(in), "iv.csv")
 	if err != nil {
 		t.Fatal(err)

@@ -143,9 +143,9 @@ func TestReadOrientationsGeotech(t *testing.T) {
 
 func TestReadOrientationsPositions(t *testing.T) {
 	in := "hole_id,depth,easting,northing,elevation,dip,dip_direction,type,set,warnings\n" +
-		"TM001,12.5,431290.1,6652450.2,395.3,30,45,JN,2,\n" +
-		"TM001,13,,,,40,50,BD,,below the last survey station\n" +
-		"TM001,14,4312x,6652450,395,40,50,BD,,\n"
+		"ZR001,12.5,431290.1,6652450.2,395.3,30,45,JN,2,\n" +
+		"ZR001,13,,,,40,50,BD,,below the last survey station\n" +
+		"ZR001,14,4312x,6652450,395,40,50,BD,,\n"
 	rows, problems, err := ReadOrientations(strings.NewReader(in), "c.csv")
 	if err != nil {
 		t.Fatal(err)

@@ -9,12 +9,12 @@ import (
 )
 
 func TestReadPicks(t *testing.T) {
-	in := "Hole_ID,DEPTH,dip,dip_direction,source\nTM001,12.5,45,120,log\nTM001,13,0,360,log\n"
+	in := "Hole_ID,DEPTH,dip,dip_direction,source\nZR001,12.5,45,120,log\nZR001,13,0,360,log\n"
 	rows, err := ReadPicks(strings.NewReader(in), "picks.csv")
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(rows) != 2 || rows[0] != (PickRow{Line: 2, HoleID: "TM001", Depth: 12.5, Dip: 45, DipDirection: 120}) || rows[1].Line != 3 {
+	if len(rows) != 2 || rows[0] != (PickRow{Line: 2, HoleID: "ZR001", Depth: 12.5, Dip: 45, DipDirection: 120}) || rows[1].Line != 3 {
 		t.Errorf("rows %+v", rows)
 	}
 }

@@ -29,13 +29,13 @@ func problems(t *testing.T, err error) []*domain.Error {
 
 func TestReadCollars(t *testing.T) {
 	in := "\ufeffHole_ID, Easting ,NORTHING,elevation,dip,azimuth,depth,declination,crs,site\n" +
-		"TM001,512000.5,6123000,410.2,-60,45,250.5,1.5,EPSG:32750,north\n" +
-		"TM002,512100,6123100,412,-75,360,300,,,\n"
+		"ZR001,512000.5,6123000,410.2,-60,45,250.5,1.5,EPSG:32750,north\n" +
+		"ZR002,512100,6123100,412,-75,360,300,,,\n"
 	rows, err := ReadCollars(strings.NewReader(in), "c.csv")
 	if err != nil {
 		t.Fatal(err)
 	}
-	if len(rows) != 2 || rows[0].HoleID != "TM001" || rows[0].Collar.East != 512000.5 || rows[0].Collar.Dip != -60 ||
+	if len(rows) != 2 || rows[0].HoleID != "ZR001" || rows[0].Collar.East != 512000.5 || rows[0].Collar.Dip != -60 ||
 		rows[0].Collar.Azimuth != 45 || rows[0].Collar.Depth != 250.5 || rows[0].Declination != 1.5 || rows[0].CRS != "EPSG:32750" || rows[0].Line != 2 {
 		t.Fatalf("rows = %+v", rows)
 	}

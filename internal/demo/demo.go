@@ -1,8 +1,15 @@
-// Package demo generates Tallowmere, corvane's fictional demonstration
+// Package demo generates Zelvorra Reach, corvane's fictional demonstration
 // prospect: eight inclined, curving diamond holes with magnetic surveys,
 // orientation runs rated by confidence, and a few hundred oriented-core
 // measurements from four structure sets (bedding, two joint sets and a fault
 // set with slickenline lineations).
+//
+// The scenario is invented: the name is made up, the collars are placed on
+// purpose in open ocean (WGS 84 / UTM zone 50S, near 41.55 S 116.18 E in the
+// Southern Ocean, far from any coast), and the loggers are L1, L2 and L3.
+// Gamma is logged only on the line type (slickenline, the fault plane with
+// its lineation); plane types never carry one (the rule of
+// domain.CheckKind).
 //
 // The data are made by forward modelling: true planes and lines are drawn
 // around each set's mean (Fisher-distributed), sampled with the bias of a
@@ -16,7 +23,7 @@
 // recovers grid orientations.
 //
 // Everything is deterministic: [Programme] returns the same values every
-// time, and the CSV files in testdata/tallowmere are exactly what [WriteCSV]
+// time, and the CSV files in testdata/zelvorra are exactly what [WriteCSV]
 // writes (a test checks it; regenerate with go test ./internal/demo -update).
 package demo
 
@@ -71,7 +78,7 @@ type Structure struct {
 	Depth       float64
 	Alpha, Beta float64
 	Gamma       float64 // NaN when there is no lineation
-	Type        string  // bedding, joint or fault
+	Type        string  // bedding, joint, fault (planes) or slickenline (a line: fault plane and gamma)
 	Comment     string
 	LoggedBy    string
 	ApparentThk float64 // along-core thickness (fault zones), NaN otherwise
@@ -92,7 +99,11 @@ type Set struct {
 	// Pitch of the lineation on the plane, degrees from the strike line
 	// (right-hand strike); NaN for sets without lineations.
 	Pitch float64
-	share float64
+	// LineType is the type code of a measurement of this set that logs the
+	// lineation (a line type, with gamma); "" when the set's lineation is
+	// not logged.
+	LineType string
+	share    float64
 }
 
 // Data is the whole demonstration programme.
@@ -113,23 +124,37 @@ type Data struct {
 	Structures       []Structure
 }
 
-// Sets returns the four structure sets of Tallowmere.
+// Sets returns the four structure sets of Zelvorra Reach.
 func sets() []Set {
 	return []Set{
 		{Name: "S0", Type: "bedding", Mean: geom.Plane{Dip: 38, DipDirection: 118}, Kappa: 60, Pitch: 25, share: 0.40},
 		{Name: "J1", Type: "joint", Mean: geom.Plane{Dip: 78, DipDirection: 212}, Kappa: 35, Pitch: math.NaN(), share: 0.25},
 		{Name: "J2", Type: "joint", Mean: geom.Plane{Dip: 62, DipDirection: 322}, Kappa: 30, Pitch: math.NaN(), share: 0.20},
-		{Name: "F1", Type: "fault", Mean: geom.Plane{Dip: 55, DipDirection: 38}, Kappa: 40, Pitch: 80, share: 0.15},
+		{Name: "F1", Type: "fault", Mean: geom.Plane{Dip: 55, DipDirection: 38}, Kappa: 40, Pitch: 80, LineType: LineType, share: 0.15},
 	}
 }
 
-var loggers = []string{"AQ", "MR", "TSV"}
+// LineType is the demo's one line type: a fault plane logged with its
+// slickenline (gamma). The other types are planes.
+const LineType = "slickenline"
 
-// Programme returns the Tallowmere programme. It is deterministic.
+// loggers are neutral tags, not anyone's initials.
+var loggers = []string{"L1", "L2", "L3"}
+
+// Kind returns the kind of one of the demo's type codes: "line" for
+// LineType, else "plane".
+func Kind(typeCode string) string {
+	if typeCode == LineType {
+		return "line"
+	}
+	return "plane"
+}
+
+// Programme returns the Zelvorra Reach programme. It is deterministic.
 func Programme() Data {
 	r := rand.New(rand.NewPCG(2026, 1117))
 	d := Data{
-		Name:            "Tallowmere",
+		Name:            "Zelvorra Reach",
 		Description:     "Fictional demonstration prospect: eight oriented diamond holes through folded metasediments cut by two joint sets and a fault set.",
 		RefLine:         "bottom",
 		BetaApex:        "downhole",
@@ -150,9 +175,10 @@ func Programme() Data {
 	}
 	for i, p := range plans {
 		c := Collar{
-			HoleID:    fmt.Sprintf("TM%03d", i+1),
+			HoleID: fmt.Sprintf("ZR%03d", i+1),
+			// Open ocean on purpose (about 41.55 S 116.18 E).
 			East:      round(431250+float64(i%4)*180+r.Float64()*40, 2),
-			North:     round(6652400+float64(i/4)*220+r.Float64()*40, 2),
+			North:     round(5400000+float64(i/4)*220+r.Float64()*40, 2),
 			Elevation: round(388+r.Float64()*25, 2),
 			Azimuth:   p.az, Dip: p.dip, Depth: p.depth,
 			AzimuthRef: "grid", CRS: "EPSG:32750",
@@ -323,9 +349,16 @@ func (d *Data) structureOf(r *rand.Rand, c Collar, path *desurvey.Path, md, rot 
 			dipv := p.DipVector()
 			sp, cp := math.Sincos(geom.Rad(pitch))
 			l := geom.LineOf(strike.Scale(cp).Add(dipv.Scale(sp)))
+			// The draws are made for every set with a pitch (the bedding's
+			// lineation is seen but not logged), so the programme's random
+			// sequence does not depend on which lineations are logged.
 			if g, err := coreangle.Gamma(h, p, l, coreangle.Convention{}); err == nil {
-				s.TrueLine = l
-				s.Gamma = geom.NormAzimuth(math.Round(g + r.NormFloat64()*3))
+				noise := r.NormFloat64() * 3
+				if set.LineType != "" {
+					s.TrueLine = l
+					s.Gamma = geom.NormAzimuth(math.Round(g + noise))
+					s.Type = set.LineType
+				}
 			}
 		}
 		switch set.Type {

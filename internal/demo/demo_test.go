@@ -16,9 +16,9 @@ import (
 	"corvane/internal/geom"
 )
 
-var update = flag.Bool("update", false, "rewrite testdata/tallowmere from the generator")
+var update = flag.Bool("update", false, "rewrite testdata/zelvorra from the generator")
 
-const dir = "../../testdata/tallowmere"
+const dir = "../../testdata/zelvorra"
 
 // The committed CSV files are exactly what the generator writes.
 func TestCommittedCSV(t *testing.T) {

@@ -114,7 +114,7 @@ type TypeCode struct {
 type Hole struct {
 	ID        int64   `json:"id"`
 	ProjectID int64   `json:"project_id"`
-	Name      string  `json:"name"` // the hole id used in files, e.g. "TM001"; unique in a project
+	Name      string  `json:"name"` // the hole id used in files, e.g. "ZR001"; unique in a project
 	East      float64 `json:"easting"`
 	North     float64 `json:"northing"`
 	Elevation float64 `json:"elevation"`

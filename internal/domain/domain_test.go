@@ -8,8 +8,8 @@ import (
 
 func TestErrorKindsAndLocation(t *testing.T) {
 	cause := errors.New("disk full")
-	e := Errorf(Internal, "saving hole %s: %w", "TM001", cause)
-	if !errors.Is(e, cause) || e.Msg != "saving hole TM001" {
+	e := Errorf(Internal, "saving hole %s: %w", "ZR001", cause)
+	if !errors.Is(e, cause) || e.Msg != "saving hole ZR001" {
 		t.Fatalf("Errorf did not wrap: %#v", e)
 	}
 	wrapped := fmt.Errorf("outer: %w", FieldErr("dip", "dip out of range").At(Location{File: "collars.csv", Line: 7, Column: "dip"}))
@@ -64,11 +64,11 @@ func TestNormalizeRejects(t *testing.T) {
 }
 
 func TestNormalizeDefaultsAndFolds(t *testing.T) {
-	p := Project{Name: " Tallowmere "}
+	p := Project{Name: " Zelvorra Reach "}
 	if err := p.Normalize(); err != nil {
 		t.Fatal(err)
 	}
-	if p.Name != "Tallowmere" || p.RefLine != "bottom" || p.BetaApex != "downhole" || p.GammaSense != "clockwise" || p.LengthUnit != "m" || p.OutputAzimuthRef != "grid" {
+	if p.Name != "Zelvorra Reach" || p.RefLine != "bottom" || p.BetaApex != "downhole" || p.GammaSense != "clockwise" || p.LengthUnit != "m" || p.OutputAzimuthRef != "grid" {
 		t.Errorf("defaults not applied: %+v", p)
 	}
 	// 360 is accepted and stored as 0 (conventions.md, "Directions").

@@ -124,7 +124,7 @@ func TestGracefulShutdown(t *testing.T) {
 		var projects page
 		s.mustJSON(t, 200, "GET", "/v1/projects", nil, &projects)
 		base := fmt.Sprintf("/v1/projects/%d", projects.Items[0].ID)
-		before := count(t, s, base+"/measurements?hole=TM001")
+		before := count(t, s, base+"/measurements?hole=ZR001")
 		code := ""
 		var vocab struct {
 			Items []struct {
@@ -171,7 +171,7 @@ func TestGracefulShutdown(t *testing.T) {
 		const rows = 400
 		fmt.Fprintln(pw, "hole_id,depth,alpha,beta,type,comment")
 		for i := range rows / 2 {
-			fmt.Fprintf(pw, "TM001,%.2f,40,120,%s,in flight\n", 1+float64(i)*0.01, code)
+			fmt.Fprintf(pw, "ZR001,%.2f,40,120,%s,in flight\n", 1+float64(i)*0.01, code)
 		}
 		// The request is in flight; ask the server to stop.
 		time.Sleep(200 * time.Millisecond)
@@ -180,7 +180,7 @@ func TestGracefulShutdown(t *testing.T) {
 		}
 		time.Sleep(300 * time.Millisecond)
 		for i := rows / 2; i < rows; i++ {
-			fmt.Fprintf(pw, "TM001,%.2f,40,120,%s,in flight\n", 1+float64(i)*0.01, code)
+			fmt.Fprintf(pw, "ZR001,%.2f,40,120,%s,in flight\n", 1+float64(i)*0.01, code)
 		}
 		pw.Close()
 		var r result
@@ -202,8 +202,8 @@ func TestGracefulShutdown(t *testing.T) {
 		}
 		s2 := start(t, db)
 		s2.Token = s.Token
-		if n := count(t, s2, base+"/measurements?hole=TM001"); n != before+rows {
-			t.Errorf("after restart: %d measurements in TM001, want %d", n, before+rows)
+		if n := count(t, s2, base+"/measurements?hole=ZR001"); n != before+rows {
+			t.Errorf("after restart: %d measurements in ZR001, want %d", n, before+rows)
 		}
 		s2.stop(t)
 	})

@@ -554,7 +554,7 @@ func TestSpoolLargeBody(t *testing.T) {
 }
 
 // TestQA runs QA over the demo programme. The demo plants one misread
-// orientation mark (package demo: hole TM004, the run holding 201 m, beta
+// orientation mark (package demo: hole ZR004, the run holding 201 m, beta
 // off by 40 degrees) under closely logged bedding; with bedding as the
 // persistent fabric the mark-rotation check must flag that run — a known
 // error put into the data from outside the QA code.
@@ -582,7 +582,7 @@ func TestQA(t *testing.T) {
 	}
 	found := false
 	for _, fd := range rep.Findings {
-		if fd.Check == "mark-rotation" && fd.HoleID == "TM004" && fd.Depth <= 201 && 201 <= fd.DepthTo {
+		if fd.Check == "mark-rotation" && fd.HoleID == "ZR004" && fd.Depth <= 201 && 201 <= fd.DepthTo {
 			found = true
 			if math.Abs(math.Abs(fd.Size)-40) > 10 {
 				t.Errorf("planted 40 degree misread estimated as %.1f degrees", fd.Size)
@@ -590,7 +590,7 @@ func TestQA(t *testing.T) {
 		}
 	}
 	if !found {
-		t.Errorf("the planted misread mark of TM004 at 201 m was not flagged; findings: %+v", rep.Findings)
+		t.Errorf("the planted misread mark of ZR004 at 201 m was not flagged; findings: %+v", rep.Findings)
 	}
 	// The tolerance reaches the check: beyond the planted error's lower
 	// bound nothing is flagged.
@@ -609,15 +609,15 @@ func TestQA(t *testing.T) {
 	f.must(200, f.site, "GET", base+"/holes", nil, &holes)
 	var tm004 domain.Hole
 	for _, h := range holes.Items {
-		if h.Name == "TM004" {
+		if h.Name == "ZR004" {
 			tm004 = h
 		}
 	}
 	var one report
 	f.must(200, f.site, "GET", base+"/holes/"+itoa(tm004.ID)+"/qa?persistent=bedding", nil, &one)
 	for _, fd := range one.Findings {
-		if fd.HoleID != "" && fd.HoleID != "TM004" {
-			t.Errorf("QA of TM004 reports hole %s", fd.HoleID)
+		if fd.HoleID != "" && fd.HoleID != "ZR004" {
+			t.Errorf("QA of ZR004 reports hole %s", fd.HoleID)
 		}
 	}
 	r := f.must(200, f.site, "GET", base+"/qa?format=html&persistent=bedding", nil, nil)
@@ -625,7 +625,7 @@ func TestQA(t *testing.T) {
 		t.Errorf("HTML report: %q %.60s", ct, r.Body)
 	}
 	f.must(200, f.site, "POST", base+"/qa", map[string]any{
-		"magnetic_zones": []map[string]any{{"hole_id": "TM001", "from": 50, "to": 80}},
+		"magnetic_zones": []map[string]any{{"hole_id": "ZR001", "from": 50, "to": 80}},
 	}, nil)
 	if p := f.do(f.site, "GET", base+"/qa?colour=blue", nil).problem(t); p.Status != 422 || p.Errors[0].Field != "colour" {
 		t.Errorf("unknown QA parameter: %+v", p)

@@ -26,7 +26,7 @@ var queryNames = []string{
 // document's enums do not say.
 var queryValues = []string{
 	"0", "-1", "1", "10", "15", "2.5", "1e308", "-1e308", "1e-300", "1.6370904631912708e-10", "NaN", "Inf", "-Inf",
-	"abc", "true", "false", "TM001", "JN", "LN,BD", "equal-angle", "strike", "html", "json", "hole", "neighbours",
+	"abc", "true", "false", "ZR001", "JN", "LN,BD", "equal-angle", "strike", "html", "json", "hole", "neighbours",
 	"auto:3", "auto:100000", "terzaghi:5", "J1:135/20:25", "kamb", "sigma", "both", "lines", "2026-01-01", "2026-13-45", "2026-01-01T00:00:00Z", "\x00", "\x1b[31m", "é", "\xff\xfe", strings.Repeat("9", 400),
 	"99999999999999999999", "0x10", " 5", "5 ", "1,2,3", "%", "'; DROP TABLE holes; --",
 }
@@ -79,7 +79,7 @@ func TestFuzzQueryParameters(t *testing.T) {
 	}
 	f := newFixture(t)
 	pid := f.project("Fuzz", nil)
-	h := f.hole(pid, "TM001", 120, -65)
+	h := f.hole(pid, "ZR001", 120, -65)
 	base := "/v1/projects/" + itoa(pid)
 	var run domain.Run
 	f.must(201, f.site, "POST", base+"/holes/"+itoa(h.ID)+"/runs", map[string]any{"from": 0, "to": 30, "confidence": "good"}, &run)
@@ -101,7 +101,7 @@ func TestFuzzQueryParameters(t *testing.T) {
 		}
 		paths = append(paths, p)
 	}
-	picks := map[string]any{"picks": []map[string]any{{"hole_id": "TM001", "depth": 2, "dip": 40, "dip_direction": 100}}}
+	picks := map[string]any{"picks": []map[string]any{{"hole_id": "ZR001", "depth": 2, "dip": 40, "dip_direction": 100}}}
 	for i := range n {
 		for _, p := range paths {
 			q := randomQuery(r)

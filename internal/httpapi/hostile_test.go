@@ -341,9 +341,9 @@ func TestUploadTempDirFull(t *testing.T) {
 	dir := t.TempDir()
 	f := newFixture(t, func(o *Options) { o.TempDir = dir })
 	pid := f.project("Temp", nil)
-	f.hole(pid, "TM001", 90, -60)
+	f.hole(pid, "ZR001", 90, -60)
 	path := "/v1/projects/" + itoa(pid) + "/imports/measurements"
-	csv := bigCSV("TM001", spoolMemory+1<<20)
+	csv := bigCSV("ZR001", spoolMemory+1<<20)
 
 	f.srv.createTemp = func(dir string) (spoolFile, error) {
 		return fullFile{name: filepath.Join(dir, spoolPrefix+"full.csv")}, nil
@@ -416,7 +416,7 @@ func TestUploadTempFilesCleaned(t *testing.T) {
 	}
 
 	pid := f.project("Clean", nil)
-	f.hole(pid, "TM001", 90, -60)
+	f.hole(pid, "ZR001", 90, -60)
 	path := "/v1/projects/" + itoa(pid) + "/imports/measurements"
 	left := func(when string) {
 		t.Helper()
@@ -425,7 +425,7 @@ func TestUploadTempFilesCleaned(t *testing.T) {
 			t.Errorf("%s: %s left in the temp dir", when, e.Name())
 		}
 	}
-	good := bigCSV("TM001", spoolMemory+1<<20)
+	good := bigCSV("ZR001", spoolMemory+1<<20)
 	f.must(201, f.site, "POST", path, good, nil)
 	left("after an import")
 	if r := f.do(f.site, "POST", path, bigCSV("NOSUCH", spoolMemory+1<<20)); r.Code != 422 {
@@ -453,14 +453,14 @@ func TestTextAndDepthRulesOverHTTP(t *testing.T) {
 	if p := r.problem(t); len(p.Errors) != 1 || p.Errors[0].Field != "description" {
 		t.Errorf("description with NUL: %+v", p)
 	}
-	h := f.hole(pid, "TM001", 90, -60)
+	h := f.hole(pid, "ZR001", 90, -60)
 	var m view
 	f.must(201, f.site, "POST", base+"/measurements", map[string]any{"hole_id": h.ID, "depth": 300, "alpha": 30, "beta": 20, "type": "JN"}, &m)
 	r = f.must(409, f.site, "POST", base+"/holes/"+itoa(h.ID)+"/runs", map[string]any{"from": 390, "to": 401}, nil)
 	if p := r.problem(t); len(p.Errors) != 1 || p.Errors[0].Field != "to" {
 		t.Errorf("run past the end: %+v", p)
 	}
-	in := map[string]any{"name": "TM001", "easting": 1000, "northing": 2000, "elevation": 300, "azimuth": 90, "dip": -60, "final_depth": 250, "crs": "EPSG:32750"}
+	in := map[string]any{"name": "ZR001", "easting": 1000, "northing": 2000, "elevation": 300, "azimuth": 90, "dip": -60, "final_depth": 250, "crs": "EPSG:32750"}
 	r = f.must(409, f.site, "PUT", base+"/holes/"+itoa(h.ID), in, nil, "If-Match", etag(h.Version))
 	if p := r.problem(t); len(p.Errors) != 1 || !strings.Contains(p.Errors[0].Detail, "measurement "+itoa(m.ID)+" at 300") {
 		t.Errorf("shrink below a measurement: %+v", p)

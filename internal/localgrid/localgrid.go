@@ -205,7 +205,7 @@ func FitControl(pts []ControlPoint) (Fit, error) {
 // EPSG:28350) and either the parameters (Rotation, Scale and one point known
 // in both grids, Origin) or control points.
 type Spec struct {
-	// Name of the local grid, free text, e.g. "Tallowmere mine grid".
+	// Name of the local grid, free text, e.g. "Zelvorra Reach mine grid".
 	Name string `json:"name"`
 	// GridCRS is the label of the projected grid, e.g. "EPSG:28350".
 	GridCRS string `json:"grid_crs"`

@@ -195,7 +195,7 @@ func TestFitErrors(t *testing.T) {
 
 func TestSpec(t *testing.T) {
 	var s Spec
-	if err := json.Unmarshal([]byte(`{"name":"Tallowmere mine grid","grid_crs":"EPSG:28350","rotation":-37.25,"scale":0.99975,
+	if err := json.Unmarshal([]byte(`{"name":"Zelvorra Reach mine grid","grid_crs":"EPSG:28350","rotation":-37.25,"scale":0.99975,
 		"origin":{"local_easting":5000,"local_northing":10000,"easting":391250,"northing":6465480}}`), &s); err != nil {
 		t.Fatal(err)
 	}

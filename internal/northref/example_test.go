@@ -7,7 +7,7 @@ import (
 	"corvane/internal/northref"
 )
 
-// A collar of the fictional Tallowmere prospect, surveyed with a magnetic
+// A collar of the fictional Zelvorra Reach prospect, surveyed with a magnetic
 // instrument on 20 May 2026: its survey azimuths become grid azimuths as
 // grid = magnetic + declination - convergence.
 func ExampleCorrections() {

@@ -151,7 +151,7 @@ func TestPoleCaution(t *testing.T) {
 }
 
 func TestErrors(t *testing.T) {
-	// A collar of the fictional Tallowmere prospect, zone 50S.
+	// A collar of the fictional Zelvorra Reach prospect, zone 50S.
 	const e, n, elev = 391250.0, 6465480.0, 312.0
 	cases := []struct {
 		name       string

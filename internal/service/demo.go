@@ -46,17 +46,17 @@ func (s *Service) LoadDemo(ctx context.Context) (p domain.Project, loaded bool, 
 		if err := st.CreateProject(ctx, &p); err != nil {
 			return err
 		}
-		types := map[string]bool{}
+		types := map[string]domain.TypeCode{}
 		for _, m := range d.Structures {
-			if !types[m.Type] {
-				types[m.Type] = true
-				tc := domain.TypeCode{ProjectID: p.ID, Code: m.Type, Description: m.Type}
+			if _, ok := types[m.Type]; !ok {
+				tc := domain.TypeCode{ProjectID: p.ID, Code: m.Type, Description: m.Type, Kind: demo.Kind(m.Type)}
 				if err := tc.Normalize(); err != nil {
 					return err
 				}
 				if err := st.PutTypeCode(ctx, tc); err != nil {
 					return err
 				}
+				types[m.Type] = tc
 			}
 		}
 		byName := map[string]*domain.Hole{}
@@ -121,6 +121,9 @@ func (s *Service) LoadDemo(ctx context.Context) (p domain.Project, loaded bool, 
 				dm.ApparentThickness = &th
 			}
 			if err := dm.Normalize(); err != nil {
+				return err
+			}
+			if err := domain.CheckKind(dm, types[m.Type]); err != nil {
 				return err
 			}
 			ms = append(ms, dm)

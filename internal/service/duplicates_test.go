@@ -45,7 +45,7 @@ func checkImportDuplicates(t *testing.T, s *service.Service, ctx context.Context
 		t.Fatalf("%d rows after a refused import, want 3", n)
 	}
 	// A lower-case type and beta 360 are the same measurement as JN and 0.
-	again := "hole_id,depth,alpha,beta,gamma,type\nTM001,4.5,45,90,30,jn\nTM001,7,30,360,,BD\nTM001,7,30,0,,BD\nTM001,8,30,0,,BD\n"
+	again := "hole_id,depth,alpha,beta,gamma,type\nZR001,4.5,45,90,30,jn\nZR001,7,30,360,,BD\nZR001,7,30,0,,BD\nZR001,8,30,0,,BD\n"
 	res, err := imp(again, domain.DuplicatesSkip, true)
 	if err != nil || res.Duplicates != 2 || res.Skipped != 2 || res.Created != 2 {
 		t.Errorf("dry run with skip: %+v, %v; want 2 duplicates skipped, 2 to create", res, err)

@@ -31,8 +31,8 @@ func ExampleService_Convert() {
 	ctx := service.WithActor(context.Background(), service.System)
 
 	resp, err := svc.Convert(ctx, service.ConvertRequest{
-		Collars:      []service.ConvertCollar{{HoleID: "TM001", Azimuth: 0, Dip: -60, FinalDepth: 120}},
-		Measurements: []service.ConvertMeasurement{{HoleID: "TM001", Depth: 42, Alpha: 45, Beta: f64(90)}},
+		Collars:      []service.ConvertCollar{{HoleID: "ZR001", Azimuth: 0, Dip: -60, FinalDepth: 120}},
+		Measurements: []service.ConvertMeasurement{{HoleID: "ZR001", Depth: 42, Alpha: 45, Beta: f64(90)}},
 	})
 	if err != nil {
 		fmt.Println(err)

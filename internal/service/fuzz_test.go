@@ -15,8 +15,8 @@ import (
 // body writes nothing.
 func FuzzImportMeasurements(f *testing.F) {
 	f.Add(measurementsCSV)
-	f.Add("hole_id,depth,alpha,beta,type\nTM001,1,2,3,BD\n")
-	f.Add("hole_id,depth,alpha,beta,type\nTM001,1,200,3,BD\nTM002,\"x,1,2,3,JN\n")
+	f.Add("hole_id,depth,alpha,beta,type\nZR001,1,2,3,BD\n")
+	f.Add("hole_id,depth,alpha,beta,type\nZR001,1,200,3,BD\nZR002,\"x,1,2,3,JN\n")
 	f.Add("type\n")
 	f.Add("")
 	s, ctx := newService(f)

@@ -103,7 +103,13 @@ func (s *Service) importDiscontinuities(ctx context.Context, st domain.Store, p 
 		if err := checkMeasurement(&m, h, vocab); err != nil {
 			var e *domain.Error
 			errors.As(err, &e)
-			ps.add(r.Line, "DISC_TOP", "%s", e.Msg)
+			col := "DISC_TOP"
+			if e.Loc.Field == "gamma" {
+				// AGS4 DISC rows are planes: a line type (which needs gamma)
+				// cannot be imported from them (domain.CheckKind).
+				col = "DISC_TYPE"
+			}
+			ps.add(r.Line, col, "%s", e.Msg)
 			continue
 		}
 		batch = append(batch, m)

@@ -77,8 +77,8 @@ func TestImportExportIntervals(t *testing.T) {
 	p, h := programme(t, s, ctx, domain.Project{})
 	must(s.PutCoreIntervals(ctx, p.ID, h.ID, []domain.CoreInterval{{From: 50, To: 51}}))
 	file := "hole_id,from,to,recovered,solid,sound,pieces,natural_breaks,induced_breaks,confidence\n" +
-		"TM001,0,3,2.9,2.5,,0.5;0.05;1.2,4,2,good\n" +
-		"TM001,3,6,3,2.8,2.2,,3,,\n"
+		"ZR001,0,3,2.9,2.5,,0.5;0.05;1.2,4,2,good\n" +
+		"ZR001,3,6,3,2.8,2.2,,3,,\n"
 	res := must(s.Import(ctx, p.ID, service.ImportRequest{Kind: service.ImportIntervals, File: "iv.csv", Body: strings.NewReader(file)}))
 	if res.Rows != 2 || res.Created != 2 {
 		t.Errorf("result %+v", res)
@@ -93,7 +93,7 @@ func TestImportExportIntervals(t *testing.T) {
 	if out.String() != file {
 		t.Errorf("export\n%s\nwant\n%s", out.String(), file)
 	}
-	bad := "hole_id,from,to\nTM001,0,3\nNOPE,0,1\nTM001,150,250\nTM001,2,4\n"
+	bad := "hole_id,from,to\nZR001,0,3\nNOPE,0,1\nZR001,150,250\nZR001,2,4\n"
 	_, err := s.Import(ctx, p.ID, service.ImportRequest{Kind: service.ImportIntervals, File: "bad.csv", Body: strings.NewReader(bad)})
 	var de *domain.Error
 	if !errors.As(err, &de) || de.Kind != domain.Invalid {
@@ -109,7 +109,7 @@ func TestImportExportIntervals(t *testing.T) {
 	if !strings.Contains(msg, "bad.csv:line 5") || !strings.Contains(msg, "overlaps") {
 		t.Errorf("overlap not located: %s", msg)
 	}
-	bad = "hole_id,from,to\nTM001,0,3\nNOPE,0,1\nTM001,150,250\n"
+	bad = "hole_id,from,to\nZR001,0,3\nNOPE,0,1\nZR001,150,250\n"
 	_, err = s.Import(ctx, p.ID, service.ImportRequest{Kind: service.ImportIntervals, File: "bad.csv", Body: strings.NewReader(bad)})
 	errors.As(err, &de)
 	msg = ""

@@ -18,7 +18,7 @@ type MeasurementView struct {
 // MeasurementQuery selects measurements of a project. Zero fields do not
 // filter; bounds are inclusive.
 type MeasurementQuery struct {
-	Holes      []string   // hole names, e.g. "TM001"
+	Holes      []string   // hole names, e.g. "ZR001"
 	MinDepth   *float64   // depth >= MinDepth
 	MaxDepth   *float64   // depth <= MaxDepth
 	Types      []string   // type codes

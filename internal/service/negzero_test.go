@@ -25,7 +25,7 @@ func checkNoNegativeZero(t *testing.T, s *service.Service, ctx context.Context) 
 	mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "BD"}))
 	must(doImport(t, s, ctx, p.ID, "collars", collarsCSV, false, ""))
 	must(doImport(t, s, ctx, p.ID, "surveys", surveysCSV, false, ""))
-	must(doImport(t, s, ctx, p.ID, "measurements", "hole_id,depth,alpha,beta,gamma,type\nTM001,10,40,-0,-0.0,BD\n", false, ""))
+	must(doImport(t, s, ctx, p.ID, "measurements", "hole_id,depth,alpha,beta,gamma,type\nZR001,10,40,-0,-0.0,BD\n", false, ""))
 	h := must(s.ListHoles(ctx, p.ID, domain.Page{}))
 	must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.Items[0].ID, Depth: 20, Alpha: 30, Beta: f64(math.Copysign(0, -1)), TypeCode: "BD"}))
 

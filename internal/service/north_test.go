@@ -74,7 +74,7 @@ func TestProjectMagneticModel(t *testing.T) {
 // one is refused naming the field, and the project keeps what it had.
 func TestProjectLocalGrid(t *testing.T) {
 	s, ctx := newService(t)
-	grid := json.RawMessage(`{"name":"Tallowmere mine grid","grid_crs":"EPSG:28350","control_points":[
+	grid := json.RawMessage(`{"name":"Zelvorra Reach mine grid","grid_crs":"EPSG:28350","control_points":[
 		{"id":"CP1","local_easting":5000,"local_northing":10000,"easting":391250,"northing":6465480},
 		{"id":"CP2","local_easting":6000,"local_northing":10000,"easting":392045.6,"northing":6464875.8}]}`)
 	p := must(s.CreateProject(ctx, domain.Project{Name: "mine", LocalGrid: grid}))
@@ -108,7 +108,7 @@ func TestProjectLocalGrid(t *testing.T) {
 // convert --local-grid does. A project in feet cannot declare one.
 func TestProjectLocalGridApplied(t *testing.T) {
 	s, ctx := newService(t)
-	grid := json.RawMessage(`{"name":"Tallowmere mine grid","grid_crs":"EPSG:28350","rotation":-37.25,"scale":0.99975,
+	grid := json.RawMessage(`{"name":"Zelvorra Reach mine grid","grid_crs":"EPSG:28350","rotation":-37.25,"scale":0.99975,
 		"origin":{"local_easting":5000,"local_northing":10000,"easting":391250,"northing":6465480}}`)
 	p, _ := programme(t, s, ctx, domain.Project{Name: "mine grid", LocalGrid: grid})
 	tr := localgrid.FromOrigin(5000, 10000, 391250, 6465480, -37.25, 0.99975)

@@ -72,14 +72,14 @@ func near(t testing.TB, what string, got *float64, want, tol float64) {
 func programme(t testing.TB, s *service.Service, ctx context.Context, p domain.Project) (domain.Project, domain.Hole) {
 	t.Helper()
 	if p.Name == "" {
-		p.Name = "Tallowmere test"
+		p.Name = "Zelvorra Reach test"
 	}
 	p = must(s.CreateProject(ctx, p))
 	for _, c := range []string{"BD", "JN"} {
 		mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: c}))
 	}
 	mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "LN", Kind: "line"})) // lineations: gamma required
-	h := must(s.CreateHole(ctx, p.ID, domain.Hole{Name: "TM001", East: 1000, North: 2000, Elevation: 300, Azimuth: 0, Dip: -60, FinalDepth: 200}))
+	h := must(s.CreateHole(ctx, p.ID, domain.Hole{Name: "ZR001", East: 1000, North: 2000, Elevation: 300, Azimuth: 0, Dip: -60, FinalDepth: 200}))
 	return p, h
 }
 
@@ -342,25 +342,25 @@ func TestConvertStateless(t *testing.T) {
 }
 
 const collarsCSV = `hole_id,easting,northing,elevation,azimuth,dip,depth
-TM001,1000,2000,300,0,-60,200
-TM002,1100,2000,305,90,-55,150
+ZR001,1000,2000,300,0,-60,200
+ZR002,1100,2000,305,90,-55,150
 `
 
 const surveysCSV = `hole_id,depth,azimuth,dip,azimuth_reference
-TM001,0,0,-60,grid
-TM001,100,0,-60,grid
-TM002,0,90,-55,grid
+ZR001,0,0,-60,grid
+ZR001,100,0,-60,grid
+ZR002,0,90,-55,grid
 `
 
 const runsCSV = `hole_id,from,to,confidence,mismatch
-TM001,0,3,good,2
-TM001,3,6,poor,
+ZR001,0,3,good,2
+ZR001,3,6,poor,
 `
 
 const measurementsCSV = `hole_id,depth,alpha,beta,gamma,apparent_thickness,type,comment,logged_by,logged_at
-TM001,1.5,20,180,,0.5,BD,contact,ana,2026-03-02
-TM001,4.5,45,90,30,,JN,,,
-TM002,10,70,180,,,BD,"quoted, comment",ben,2026-03-03T10:00:00+08:00
+ZR001,1.5,20,180,,0.5,BD,contact,ana,2026-03-02
+ZR001,4.5,45,90,30,,JN,,,
+ZR002,10,70,180,,,BD,"quoted, comment",ben,2026-03-03T10:00:00+08:00
 `
 
 func doImport(t testing.TB, s *service.Service, ctx context.Context, pid int64, kind, body string, dry bool, key string) (service.ImportResult, error) {
@@ -411,17 +411,17 @@ func checkImportExport(t *testing.T, s *service.Service, ctx context.Context) {
 	if n := must(s.CountMeasurements(ctx, p.ID, service.MeasurementQuery{})); n != 3 {
 		t.Fatalf("%d measurements after a retried upload, want 3", n)
 	}
-	_, err := doImport(t, s, ctx, p.ID, "measurements", measurementsCSV+"TM001,7,10,10,,,BD,,,\n", false, "upload-1")
+	_, err := doImport(t, s, ctx, p.ID, "measurements", measurementsCSV+"ZR001,7,10,10,,,BD,,,\n", false, "upload-1")
 	wantKind(t, err, domain.Conflict, "same key, other body")
 
 	// Every bad row is reported with line and column; nothing is written.
 	bad := `hole_id,depth,alpha,beta,type
-TM001,8,10,10,BD
-TM009,9,10,10,BD
-TM001,9,95,10,BD
-TM001,9,10,10,XX
-TM001,900,10,10,JN
-TM001,abc,10,10,JN
+ZR001,8,10,10,BD
+ZR009,9,10,10,BD
+ZR001,9,95,10,BD
+ZR001,9,10,10,XX
+ZR001,900,10,10,JN
+ZR001,abc,10,10,JN
 `
 	_, err = doImport(t, s, ctx, p.ID, "measurements", bad, false, "")
 	var e *domain.Error
@@ -444,8 +444,8 @@ TM001,abc,10,10,JN
 	// Every row naming an unknown hole is reported, the second as the first:
 	// identical problems as one, with their count and lines.
 	for _, f := range []struct{ kind, body, lines string }{
-		{"surveys", "hole_id,depth,azimuth,dip\nTM001,0,0,-60\nTM009,0,0,-60\nTM009,50,0,-60\n", "(lines 3-4)"},
-		{"runs", "hole_id,from,to,confidence\nTM009,0,3,good\nTM001,6,9,good\nTM009,3,6,good\n", "(lines 2, 4)"},
+		{"surveys", "hole_id,depth,azimuth,dip\nZR001,0,0,-60\nZR009,0,0,-60\nZR009,50,0,-60\n", "(lines 3-4)"},
+		{"runs", "hole_id,from,to,confidence\nZR009,0,3,good\nZR001,6,9,good\nZR009,3,6,good\n", "(lines 2, 4)"},
 	} {
 		_, err = doImport(t, s, ctx, p.ID, f.kind, f.body, false, "")
 		if !errors.As(err, &e) || e.Kind != domain.Invalid {
@@ -455,14 +455,14 @@ TM001,abc,10,10,JN
 			t.Fatalf("%s: %d problems, want one summary: %v", f.kind, len(e.Problems), e.Problems)
 		}
 		pr := e.Problems[0]
-		if pr.Loc.Column != "hole_id" || !strings.Contains(pr.Msg, `"TM009"`) || !strings.HasPrefix(pr.Msg, "2 rows: ") ||
+		if pr.Loc.Column != "hole_id" || !strings.Contains(pr.Msg, `"ZR009"`) || !strings.HasPrefix(pr.Msg, "2 rows: ") ||
 			!strings.HasSuffix(pr.Msg, f.lines) || !strings.HasPrefix(e.Msg, "2 bad rows") {
 			t.Errorf("%s: %s: problem at %+v: %s", f.kind, e.Msg, pr.Loc, pr.Msg)
 		}
 	}
 
 	// Filters.
-	l := must(s.ListMeasurements(ctx, p.ID, service.MeasurementQuery{Holes: []string{"TM001"}, Types: []string{"JN"}}, domain.Page{}))
+	l := must(s.ListMeasurements(ctx, p.ID, service.MeasurementQuery{Holes: []string{"ZR001"}, Types: []string{"JN"}}, domain.Page{}))
 	if len(l.Items) != 1 || l.Items[0].Depth != 4.5 || l.Items[0].Gamma == nil {
 		t.Fatalf("filtered list %+v", l.Items)
 	}
@@ -491,7 +491,7 @@ TM001,abc,10,10,JN
 	first := recs[1]
 	// Row 1: alpha 20 beta 180 in hole 000/-60 (grid survey, grid output) -> 000/40
 	// (references README section 2); true thickness 0.5 sin 20.
-	if first[col["hole_id"]] != "TM001" || first[col["dip"]] != "40.00" || first[col["dip_direction"]] != "0.00" {
+	if first[col["hole_id"]] != "ZR001" || first[col["dip"]] != "40.00" || first[col["dip_direction"]] != "0.00" {
 		t.Errorf("export row %v", first)
 	}
 	if tt, _ := strconv.ParseFloat(first[col["true_thickness"]], 64); math.Abs(tt-0.5*math.Sin(20*math.Pi/180)) > 1e-3 {

@@ -37,7 +37,7 @@ func measurementRows(n int, comment string) string {
 	for i := range n {
 		// Distinct rows (no duplicates, domain.KeyOf), within a file and
 		// between files of different comments.
-		fmt.Fprintf(&b, "TM001,%d.%03d,%d,%d,BD,%s\n", i%190, i/190, 10+i%70, (i+int(comment[0]))%360, comment)
+		fmt.Fprintf(&b, "ZR001,%d.%03d,%d,%d,BD,%s\n", i%190, i/190, 10+i%70, (i+int(comment[0]))%360, comment)
 	}
 	return b.String()
 }

@@ -43,16 +43,35 @@ func TestAGS4RoundTrip(t *testing.T) {
 	q := demo
 	q.ID, q.Name = 0, "Round trip"
 	q = must(s.CreateProject(ctx, q))
-	for _, tc := range must(s.ListTypeCodes(ctx, demo.ID)) {
+	vocab := must(s.ListTypeCodes(ctx, demo.ID))
+	for _, tc := range vocab {
 		tc.ProjectID = q.ID
 		mustPut(s.PutTypeCode(ctx, q.ID, tc))
 	}
 	for _, kind := range []string{"collars", "surveys"} {
-		b, err := os.ReadFile("../../testdata/tallowmere/" + kind + ".csv")
+		b, err := os.ReadFile("../../testdata/zelvorra/" + kind + ".csv")
 		if err != nil {
 			t.Fatal(err)
 		}
 		must(doImport(t, s, ctx, q.ID, kind, string(b), false, ""))
+	}
+	// AGS4 DISC rows are planes: the demo's line type (slickenline, which
+	// needs gamma) is refused at its DISC_TYPE, every such row located, and
+	// nothing is stored.
+	_, err := s.Import(ctx, q.ID, service.ImportRequest{Kind: service.ImportDiscontinuities, Body: bytes.NewReader(a1.Bytes())})
+	var e *domain.Error
+	if !errors.As(err, &e) || len(e.Problems) != 1 || e.Problems[0].Loc.Column != "DISC_TYPE" || !strings.Contains(e.Problems[0].Msg, "line type") {
+		t.Fatalf("AGS import of a line type: %v %+v, want the rows refused at DISC_TYPE", err, e)
+	}
+	if n := must(s.CountMeasurements(ctx, q.ID, service.MeasurementQuery{})); n != 0 {
+		t.Fatalf("%d measurements stored by a refused import", n)
+	}
+	// Taken as a plane type, the same rows import.
+	for _, tc := range vocab {
+		if tc.Kind == "line" {
+			tc.ProjectID, tc.Kind = q.ID, "plane"
+			mustPut(s.PutTypeCode(ctx, q.ID, tc))
+		}
 	}
 	res := must(s.Import(ctx, q.ID, service.ImportRequest{Kind: service.ImportDiscontinuities, Body: bytes.NewReader(a1.Bytes())}))
 	d1, err := ags4.Read(bytes.NewReader(a1.Bytes()), "a1.ags")
@@ -113,6 +132,10 @@ func TestAGS4RoundTrip(t *testing.T) {
 	}
 }
 
+// planeTypes are the demo's plane types: AGS4 DISC rows are planes, and the
+// demo's line type would be refused on import (it needs gamma).
+var planeTypes = []string{"bedding", "joint", "fault"}
+
 // TestAGS4ImportRefusals: a DISC row that cannot become a measurement (an
 // unknown hole or type, no dip direction, a depth past the hole) is refused
 // at its file line and heading, and nothing of the file is stored.
@@ -120,7 +143,7 @@ func TestAGS4ImportRefusals(t *testing.T) {
 	s, ctx := newService(t)
 	demo, _ := must2(s.LoadDemo(ctx))
 	var a bytes.Buffer
-	if err := s.WriteTransfer(ctx, demo.ID, service.FormatAGS, service.TransferQuery{MeasurementQuery: service.MeasurementQuery{Holes: []string{"TM001"}}}, &a, nil); err != nil {
+	if err := s.WriteTransfer(ctx, demo.ID, service.FormatAGS, service.TransferQuery{MeasurementQuery: service.MeasurementQuery{Holes: []string{"ZR001"}, Types: planeTypes}}, &a, nil); err != nil {
 		t.Fatal(err)
 	}
 	d, err := ags4.Read(bytes.NewReader(a.Bytes()), "a.ags")
@@ -161,7 +184,7 @@ func TestAGS4ImportCoreRefusals(t *testing.T) {
 	demo, _ := must2(s.LoadDemo(ctx))
 	h := must(s.ListHoles(ctx, demo.ID, domain.Page{})).Items[0]
 	var a bytes.Buffer
-	if err := s.WriteTransfer(ctx, demo.ID, service.FormatAGS, service.TransferQuery{MeasurementQuery: service.MeasurementQuery{Holes: []string{h.Name}}}, &a, nil); err != nil {
+	if err := s.WriteTransfer(ctx, demo.ID, service.FormatAGS, service.TransferQuery{MeasurementQuery: service.MeasurementQuery{Holes: []string{h.Name}, Types: planeTypes}}, &a, nil); err != nil {
 		t.Fatal(err)
 	}
 	d, err := ags4.Read(bytes.NewReader(a.Bytes()), "a.ags")

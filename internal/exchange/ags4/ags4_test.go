@@ -13,13 +13,13 @@ import (
 	"corvane/internal/exchange/exchangetest"
 )
 
-// sample is a transfer of the invented Tallowmere prospect: three holes with
+// sample is a transfer of the invented Zelvorra Reach prospect: three holes with
 // their orientation sections, core runs, discontinuities (one unoriented,
 // one with quotes in its remark) and fracture spacing.
 func sample(t *testing.T) *Data {
 	t.Helper()
 	d := &Data{
-		Project: Project{ID: "TM-2026", Name: "Tallowmere prospect", Location: "Tallowmere", Client: "Tallowmere Minerals", Memo: "oriented core, 2026 campaign"},
+		Project: Project{ID: "TM-2026", Name: "Zelvorra Reach prospect", Location: "Zelvorra Reach", Client: "Zelvorra Reach Minerals", Memo: "oriented core, 2026 campaign"},
 		Transmission: Transmission{IssueNo: "1", Date: time.Date(2026, 12, 3, 0, 0, 0, 0, time.UTC), Producer: "corvane", Status: "Draft",
 			Description: "discontinuities from oriented core", Recipient: "site geotechnical database"},
 		Abbreviations: []Abbreviation{

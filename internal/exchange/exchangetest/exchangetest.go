@@ -1,5 +1,5 @@
 // Package exchangetest builds the small invented scene that the tests of the
-// transfer-format writers share: three holes of the fictional Tallowmere
+// transfer-format writers share: three holes of the fictional Zelvorra Reach
 // prospect (one with an extrapolated tail below its last survey station)
 // and structures of several types placed on them.
 package exchangetest

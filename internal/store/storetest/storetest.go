@@ -110,7 +110,7 @@ func newHole(t *testing.T, s domain.Store, projectID int64, name string) domain.
 
 func testProjects(t *testing.T, s domain.Store) {
 	c := ctx(t)
-	p := domain.Project{Name: "Tallowmere", Description: "fictional prospect", RefLine: "top", BetaApex: "uphole",
+	p := domain.Project{Name: "Zelvorra Reach", Description: "fictional prospect", RefLine: "top", BetaApex: "uphole",
 		GammaSense: "anticlockwise", LengthUnit: "ft", OutputAzimuthRef: "true", Declination: f64(1.5), Convergence: f64(-0.75),
 		ErrorModel: uncertainty.Model{Beta: 4.5, MarkPoor: 20, Gyro: uncertainty.SurveyError{Azimuth: 0.25}}, PersistentFabric: "BD",
 		MagneticModel: "igrf", SurveyPriority: "gyro,magnetic", LocalGrid: json.RawMessage(`{"name":"mine grid","grid_crs":"EPSG:28350","rotation":-37.25,"origin":{"local_easting":5000,"local_northing":10000,"easting":391250,"northing":6465480}}`)}
@@ -121,13 +121,13 @@ func testProjects(t *testing.T, s domain.Store) {
 	got, err := s.GetProject(c, p.ID)
 	must(t, err)
 	diff(t, "GetProject", p, got)
-	got, err = s.GetProjectByName(c, "Tallowmere")
+	got, err = s.GetProjectByName(c, "Zelvorra Reach")
 	must(t, err)
 	diff(t, "GetProjectByName", p, got)
 
 	_, err = s.GetProject(c, p.ID+1000)
 	wantKind(t, err, domain.NotFound, "missing project")
-	dup := domain.Project{Name: "Tallowmere", RefLine: "bottom", BetaApex: "downhole", GammaSense: "clockwise", LengthUnit: "m", OutputAzimuthRef: "grid", MagneticModel: "auto"}
+	dup := domain.Project{Name: "Zelvorra Reach", RefLine: "bottom", BetaApex: "downhole", GammaSense: "clockwise", LengthUnit: "m", OutputAzimuthRef: "grid", MagneticModel: "auto"}
 	wantKind(t, s.CreateProject(c, &dup), domain.Conflict, "duplicate project name")
 
 	// Project defaults are unset until someone sets them; the error model
@@ -200,18 +200,18 @@ func testHoles(t *testing.T, s domain.Store) {
 	c := ctx(t)
 	p := newProject(t, s, "holes")
 	q := newProject(t, s, "other")
-	h := newHole(t, s, p.ID, "TM001")
+	h := newHole(t, s, p.ID, "ZR001")
 	got, err := s.GetHole(c, h.ID)
 	must(t, err)
 	diff(t, "GetHole", h, got)
-	got, err = s.GetHoleByName(c, p.ID, "TM001")
+	got, err = s.GetHoleByName(c, p.ID, "ZR001")
 	must(t, err)
 	diff(t, "GetHoleByName", h, got)
-	_, err = s.GetHoleByName(c, q.ID, "TM001")
+	_, err = s.GetHoleByName(c, q.ID, "ZR001")
 	wantKind(t, err, domain.NotFound, "hole in other project")
-	dup := domain.Hole{AzimuthRef: "grid", ProjectID: p.ID, Name: "TM001", Dip: -90}
+	dup := domain.Hole{AzimuthRef: "grid", ProjectID: p.ID, Name: "ZR001", Dip: -90}
 	wantKind(t, s.CreateHole(c, &dup), domain.Conflict, "duplicate hole name")
-	newHole(t, s, q.ID, "TM001") // the same name in another project is fine
+	newHole(t, s, q.ID, "ZR001") // the same name in another project is fine
 	orphan := domain.Hole{AzimuthRef: "grid", ProjectID: 424242, Name: "X", Dip: -90}
 	wantKind(t, s.CreateHole(c, &orphan), domain.Conflict, "hole of missing project")
 
@@ -703,9 +703,9 @@ func testAudit(t *testing.T, s domain.Store) {
 	p := newProject(t, s, "audit")
 	at := time.Date(2026, 3, 1, 8, 0, 0, 0, time.UTC)
 	e1 := domain.AuditEntry{ProjectID: p.ID, ActorName: "ana", TokenID: 3, Entity: "hole", EntityID: "7", Action: "create", At: at,
-		After: json.RawMessage(`{"name":"TM001","dip":-60}`)}
+		After: json.RawMessage(`{"name":"ZR001","dip":-60}`)}
 	e2 := domain.AuditEntry{ProjectID: p.ID, ActorName: "ben", Entity: "hole", EntityID: "7", Action: "delete", At: at.Add(time.Hour),
-		Before: json.RawMessage(`{"name":"TM001","dip":-60}`)}
+		Before: json.RawMessage(`{"name":"ZR001","dip":-60}`)}
 	must(t, s.AppendAudit(c, &e1))
 	must(t, s.AppendAudit(c, &e2))
 	got, err := s.ListAudit(c, p.ID, domain.Page{})
