@@ -19,9 +19,7 @@ func TestConcurrentRetriesWriteOnce(t *testing.T) {
 
 func checkRetries(t *testing.T, s *service.Service, ctx context.Context) {
 	p := must(s.CreateProject(ctx, domain.Project{Name: "race"}))
-	for _, c := range []string{"BD", "JN"} {
-		mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: c}))
-	}
+	putImportTypes(s, ctx, p.ID)
 	must(doImport(t, s, ctx, p.ID, "collars", collarsCSV, false, ""))
 	const callers = 6
 	var wg sync.WaitGroup

@@ -21,9 +21,7 @@ func TestImportDuplicates(t *testing.T) {
 // refused naming that line; a dry run reports the duplicates.
 func checkImportDuplicates(t *testing.T, s *service.Service, ctx context.Context) {
 	p := must(s.CreateProject(ctx, domain.Project{Name: "dups"}))
-	for _, c := range []string{"BD", "JN"} {
-		mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: c}))
-	}
+	putImportTypes(s, ctx, p.ID)
 	must(doImport(t, s, ctx, p.ID, "collars", collarsCSV, false, ""))
 	imp := func(body, mode string, dry bool) (service.ImportResult, error) {
 		return s.Import(ctx, p.ID, service.ImportRequest{Kind: "measurements", Body: strings.NewReader(body), DryRun: dry, Duplicates: mode})
@@ -44,8 +42,8 @@ func checkImportDuplicates(t *testing.T, s *service.Service, ctx context.Context
 	if n := count(); n != 3 {
 		t.Fatalf("%d rows after a refused import, want 3", n)
 	}
-	// A lower-case type and beta 360 are the same measurement as JN and 0.
-	again := "hole_id,depth,alpha,beta,gamma,type\nZR001,4.5,45,90,30,jn\nZR001,7,30,360,,BD\nZR001,7,30,0,,BD\nZR001,8,30,0,,BD\n"
+	// A lower-case type and beta 360 are the same measurement as LN and 0.
+	again := "hole_id,depth,alpha,beta,gamma,type\nZR001,4.5,45,90,30,ln\nZR001,7,30,360,,BD\nZR001,7,30,0,,BD\nZR001,8,30,0,,BD\n"
 	res, err := imp(again, domain.DuplicatesSkip, true)
 	if err != nil || res.Duplicates != 2 || res.Skipped != 2 || res.Created != 2 {
 		t.Errorf("dry run with skip: %+v, %v; want 2 duplicates skipped, 2 to create", res, err)

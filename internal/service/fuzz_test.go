@@ -21,9 +21,7 @@ func FuzzImportMeasurements(f *testing.F) {
 	f.Add("")
 	s, ctx := newService(f)
 	p := must(s.CreateProject(ctx, domain.Project{Name: "fuzz"}))
-	for _, c := range []string{"BD", "JN"} {
-		mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: c}))
-	}
+	putImportTypes(s, ctx, p.ID)
 	must(s.Import(ctx, p.ID, service.ImportRequest{Kind: "collars", Body: strings.NewReader(collarsCSV)}))
 	f.Fuzz(func(t *testing.T, body string) {
 		before := must(s.CountMeasurements(ctx, p.ID, service.MeasurementQuery{}))

@@ -588,7 +588,11 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 			continue
 		}
 		m.TypeCode = tc.Code
-		if err := m.Normalize(); err != nil {
+		err = m.Normalize()
+		if err == nil {
+			err = domain.CheckKind(m, tc) // the one gamma-vs-kind rule, as for the API
+		}
+		if err != nil {
 			var e *domain.Error
 			errors.As(err, &e)
 			ps.add(r.Line, e.Loc.Field, "%s", e.Msg)

@@ -22,10 +22,10 @@ var negativeZero = regexp.MustCompile(`(^|[^0-9.])-0(\.0+)?([^.0-9]|$)`)
 // back (PostgreSQL keeps the sign of a float8 zero, SQLite does not).
 func checkNoNegativeZero(t *testing.T, s *service.Service, ctx context.Context) {
 	p := must(s.CreateProject(ctx, domain.Project{Name: "negzero"}))
-	mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "BD"}))
+	putImportTypes(s, ctx, p.ID)
 	must(doImport(t, s, ctx, p.ID, "collars", collarsCSV, false, ""))
 	must(doImport(t, s, ctx, p.ID, "surveys", surveysCSV, false, ""))
-	must(doImport(t, s, ctx, p.ID, "measurements", "hole_id,depth,alpha,beta,gamma,type\nZR001,10,40,-0,-0.0,BD\n", false, ""))
+	must(doImport(t, s, ctx, p.ID, "measurements", "hole_id,depth,alpha,beta,gamma,type\nZR001,10,40,-0,-0.0,LN\n", false, ""))
 	h := must(s.ListHoles(ctx, p.ID, domain.Page{}))
 	must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.Items[0].ID, Depth: 20, Alpha: 30, Beta: f64(math.Copysign(0, -1)), TypeCode: "BD"}))
 

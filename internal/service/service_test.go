@@ -357,9 +357,17 @@ ZR001,0,3,good,2
 ZR001,3,6,poor,
 `
 
+// putImportTypes stores the vocabulary measurementsCSV is logged with: BD
+// and JN planes, LN a line (its rows carry gamma, domain.CheckKind).
+func putImportTypes(s *service.Service, ctx context.Context, pid int64) {
+	for _, tc := range []domain.TypeCode{{Code: "BD"}, {Code: "JN"}, {Code: "LN", Kind: "line"}} {
+		mustPut(s.PutTypeCode(ctx, pid, tc))
+	}
+}
+
 const measurementsCSV = `hole_id,depth,alpha,beta,gamma,apparent_thickness,type,comment,logged_by,logged_at
 ZR001,1.5,20,180,,0.5,BD,contact,ana,2026-03-02
-ZR001,4.5,45,90,30,,JN,,,
+ZR001,4.5,45,90,30,,LN,,,
 ZR002,10,70,180,,,BD,"quoted, comment",ben,2026-03-03T10:00:00+08:00
 `
 
@@ -375,9 +383,7 @@ func TestImportExport(t *testing.T) {
 
 func checkImportExport(t *testing.T, s *service.Service, ctx context.Context) {
 	p := must(s.CreateProject(ctx, domain.Project{Name: "imp"}))
-	for _, c := range []string{"BD", "JN"} {
-		mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: c}))
-	}
+	putImportTypes(s, ctx, p.ID)
 	// Dry run writes nothing.
 	r := must(doImport(t, s, ctx, p.ID, "collars", collarsCSV, true, ""))
 	if r.Created != 2 || !r.DryRun {
@@ -462,7 +468,7 @@ ZR001,abc,10,10,JN
 	}
 
 	// Filters.
-	l := must(s.ListMeasurements(ctx, p.ID, service.MeasurementQuery{Holes: []string{"ZR001"}, Types: []string{"JN"}}, domain.Page{}))
+	l := must(s.ListMeasurements(ctx, p.ID, service.MeasurementQuery{Holes: []string{"ZR001"}, Types: []string{"LN"}}, domain.Page{}))
 	if len(l.Items) != 1 || l.Items[0].Depth != 4.5 || l.Items[0].Gamma == nil {
 		t.Fatalf("filtered list %+v", l.Items)
 	}
