@@ -25,8 +25,9 @@ import (
 // checks that convert applies them with the right signs and says where they
 // came from.
 func TestMagneticHoleEndToEnd(t *testing.T) {
-	// A collar of the fictional Zelvorra Reach prospect, placed in UTM zone 50S.
-	const lat, lon, elev, date = -31.95, 115.86, 30.0, "2026-05-20"
+	// A collar of the fictional Zelvorra Reach prospect, in UTM zone 50S
+	// and in open ocean on purpose.
+	const lat, lon, elev, date = -41.55, 116.18, 405.0, "2026-05-20"
 	zone := utm.Zone{Number: 50, South: true}
 	g, err := utm.Forward(zone, lat, lon)
 	if err != nil {

@@ -143,9 +143,9 @@ func TestReadOrientationsGeotech(t *testing.T) {
 
 func TestReadOrientationsPositions(t *testing.T) {
 	in := "hole_id,depth,easting,northing,elevation,dip,dip_direction,type,set,warnings\n" +
-		"ZR001,12.5,431290.1,6652450.2,395.3,30,45,JN,2,\n" +
+		"ZR001,12.5,431290.1,5400050.2,395.3,30,45,JN,2,\n" +
 		"ZR001,13,,,,40,50,BD,,below the last survey station\n" +
-		"ZR001,14,4312x,6652450,395,40,50,BD,,\n"
+		"ZR001,14,4312x,5400050,395,40,50,BD,,\n"
 	rows, problems, err := ReadOrientations(strings.NewReader(in), "c.csv")
 	if err != nil {
 		t.Fatal(err)
@@ -154,7 +154,7 @@ func TestReadOrientationsPositions(t *testing.T) {
 		t.Fatalf("rows %+v problems %v", rows, problems)
 	}
 	r := rows[0]
-	if r.Depth != 12.5 || !r.HasPos || r.Pos != (geom.Vec3{X: 431290.1, Y: 6652450.2, Z: 395.3}) || r.Set != "2" || r.Type != "JN" || r.Warnings != "" {
+	if r.Depth != 12.5 || !r.HasPos || r.Pos != (geom.Vec3{X: 431290.1, Y: 5400050.2, Z: 395.3}) || r.Set != "2" || r.Type != "JN" || r.Warnings != "" {
 		t.Errorf("row 1: %+v", r)
 	}
 	if r := rows[1]; r.HasPos || r.Warnings != "below the last survey station" {

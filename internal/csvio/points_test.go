@@ -19,7 +19,7 @@ func TestWritePoints(t *testing.T) {
 	// hand from the direction formula of the conventions.
 	pl := geom.Plane{Dip: 30, DipDirection: 45}
 	ss := []exchange.Structure{
-		{Hole: "ZR001", Depth: 12.3456, Pos: geom.Vec3{X: 431280.38049, Y: 6652438.9604, Z: 405.6949}, Pole: pl.Normal(),
+		{Hole: "ZR001", Depth: 12.3456, Pos: geom.Vec3{X: 431280.38049, Y: 5400038.9604, Z: 405.6949}, Pole: pl.Normal(),
 			Dip: 30, DipDirection: 45, Type: "JN", Set: "2", Uncertainty: math.NaN()},
 		{Hole: "TM,002", Depth: 3, Pos: geom.Vec3{X: 1, Y: 2, Z: -3}, Pole: geom.Vec3{Z: -1}, Dip: 0, DipDirection: 0, Type: "BD", Uncertainty: 4.567},
 	}
@@ -33,7 +33,7 @@ func TestWritePoints(t *testing.T) {
 	}
 	want := [][]string{
 		{"x", "y", "z", "nx", "ny", "nz", "dip", "dip_direction", "type", "set", "hole_id", "depth", "uncertainty"},
-		{"431280.380", "6652438.960", "405.695", "-0.353553", "-0.353553", "-0.866025", "30.00", "45.00", "JN", "2", "ZR001", "12.346", ""},
+		{"431280.380", "5400038.960", "405.695", "-0.353553", "-0.353553", "-0.866025", "30.00", "45.00", "JN", "2", "ZR001", "12.346", ""},
 		{"1.000", "2.000", "-3.000", "0.000000", "0.000000", "-1.000000", "0.00", "0.00", "BD", "", "TM,002", "3.000", "4.57"},
 	}
 	if len(rows) != len(want) {

@@ -351,7 +351,7 @@ func TestContractTour(t *testing.T) {
 	f.must(201, f.site, "POST", "/v1/projects", map[string]any{"name": "Tour 2"}, nil)
 	p2 := f.project("Tour 3", nil)
 	f.must(201, f.site, "POST", "/v1/projects/"+itoa(p2)+"/holes", map[string]any{"name": "H", "easting": 0, "northing": 0, "elevation": 0, "azimuth": 0, "dip": -90, "final_depth": 10}, nil)
-	f.must(201, f.site, "POST", "/v1/projects/"+itoa(p2)+"/holes", map[string]any{"name": "G", "easting": 431300, "northing": 6652500, "elevation": 400, "azimuth": 20, "dip": -60, "final_depth": 100, "crs": "EPSG:32750"}, nil)
+	f.must(201, f.site, "POST", "/v1/projects/"+itoa(p2)+"/holes", map[string]any{"name": "G", "easting": 431300, "northing": 5400100, "elevation": 400, "azimuth": 20, "dip": -60, "final_depth": 100, "crs": "EPSG:32750"}, nil)
 	f.must(200, f.site, "GET", "/v1/projects/"+itoa(p2)+"/holes.geojson?hole=G", nil, nil)
 
 	seen := f.check.operations()

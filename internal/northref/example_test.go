@@ -7,11 +7,12 @@ import (
 	"corvane/internal/northref"
 )
 
-// A collar of the fictional Zelvorra Reach prospect, surveyed with a magnetic
-// instrument on 20 May 2026: its survey azimuths become grid azimuths as
-// grid = magnetic + declination - convergence.
+// Collar ZR001 of the fictional Zelvorra Reach prospect (in open ocean on
+// purpose), surveyed with a magnetic instrument on 20 May 2026: its survey
+// azimuths become grid azimuths as grid = magnetic + declination -
+// convergence.
 func ExampleCorrections() {
-	r, err := northref.Corrections("EPSG:32750", 392259.4, 6464539.2, 30,
+	r, err := northref.Corrections("EPSG:32750", 431280.38, 5400038.96, 405.69,
 		time.Date(2026, 5, 20, 0, 0, 0, 0, time.UTC), true, true)
 	if err != nil {
 		fmt.Println(err)
@@ -22,10 +23,10 @@ func ExampleCorrections() {
 	fmt.Printf("convergence %+.4f, scale %.6f\n", r.Convergence, r.ScaleFactor)
 	fmt.Printf("magnetic 045.0 -> grid %.2f\n", northref.GridAzimuth(45, r.Declination, r.Convergence))
 	// Output:
-	// collar -31.9500, 115.8600
-	// declination -1.495 (WMM-2025, 2026.3808)
-	// convergence +0.6033, scale 0.999743
-	// magnetic 045.0 -> grid 42.90
+	// collar -41.5484, 116.1760
+	// declination -6.762 (WMM-2025, 2026.3808)
+	// convergence +0.5465, scale 0.999658
+	// magnetic 045.0 -> grid 37.69
 }
 
 // A collar on a local mine grid cannot be placed: the error names the field.

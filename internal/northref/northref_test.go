@@ -151,8 +151,9 @@ func TestPoleCaution(t *testing.T) {
 }
 
 func TestErrors(t *testing.T) {
-	// A collar of the fictional Zelvorra Reach prospect, zone 50S.
-	const e, n, elev = 391250.0, 6465480.0, 312.0
+	// Collar ZR001 of the fictional Zelvorra Reach prospect, zone 50S (in
+	// open ocean on purpose).
+	const e, n, elev = 431280.38, 5400038.96, 405.69
 	cases := []struct {
 		name       string
 		crs        string
@@ -161,11 +162,11 @@ func TestErrors(t *testing.T) {
 		field, msg string
 	}{
 		{"local grid", "EPSG:32750", 5120, 10240, elev, time.Date(2026, 3, 1, 0, 0, 0, 0, time.UTC), FieldEasting, "local grid"},
-		{"wrong hemisphere", "EPSG:32650", e, n + 4e6, elev, time.Date(2026, 3, 1, 0, 0, 0, 0, time.UTC), FieldNorthing, "hemisphere"},
+		{"wrong hemisphere", "EPSG:32650", e, n + 5e6, elev, time.Date(2026, 3, 1, 0, 0, 0, 0, time.UTC), FieldNorthing, "hemisphere"},
 		{"south too far", "EPSG:32750", e, 500000, elev, time.Date(2026, 3, 1, 0, 0, 0, 0, time.UTC), FieldNorthing, "southern zone"},
 		{"no date", "EPSG:32750", e, n, elev, time.Time{}, FieldSurveyDate, "no survey date"},
 		{"after both models", "EPSG:32750", e, n, elev, time.Date(2030, 1, 2, 0, 0, 0, 0, time.UTC), FieldSurveyDate, `survey_date "2030-01-02": is outside the years of both magnetic models (IGRF-14 covers 1900.0 to 2030.0; WMM-2025 covers 2025.0 to 2030.0)`},
-		{"elevation in mm", "EPSG:32750", e, n, 312000, time.Date(2026, 3, 1, 0, 0, 0, 0, time.UTC), FieldElevation, "metres"},
+		{"elevation in mm", "EPSG:32750", e, n, 405690, time.Date(2026, 3, 1, 0, 0, 0, 0, time.UTC), FieldElevation, "metres"},
 		{"unknown label", "GDA94 / MGA zone 50", e, n, elev, time.Date(2026, 3, 1, 0, 0, 0, 0, time.UTC), FieldCRS, "unknown"},
 		{"NaN northing", "EPSG:32750", e, math.NaN(), elev, time.Date(2026, 3, 1, 0, 0, 0, 0, time.UTC), FieldNorthing, "not a number"},
 	}
@@ -221,7 +222,7 @@ func TestAzimuths(t *testing.T) {
 func BenchmarkCorrections(b *testing.B) {
 	d := time.Date(2026, 5, 20, 0, 0, 0, 0, time.UTC)
 	for b.Loop() {
-		_, _ = Corrections("EPSG:32750", 391250, 6465480, 312, d, true, true)
+		_, _ = Corrections("EPSG:32750", 431280.38, 5400038.96, 405.69, d, true, true)
 	}
 }
 

@@ -19,7 +19,7 @@ import (
 func sample(t *testing.T) *Data {
 	t.Helper()
 	d := &Data{
-		Project: Project{ID: "TM-2026", Name: "Zelvorra Reach prospect", Location: "Zelvorra Reach", Client: "Zelvorra Reach Minerals", Memo: "oriented core, 2026 campaign"},
+		Project: Project{ID: "ZR-2026", Name: "Zelvorra Reach prospect", Location: "Zelvorra Reach", Client: "Zelvorra Reach Minerals", Memo: "oriented core, 2026 campaign"},
 		Transmission: Transmission{IssueNo: "1", Date: time.Date(2026, 12, 3, 0, 0, 0, 0, time.UTC), Producer: "corvane", Status: "Draft",
 			Description: "discontinuities from oriented core", Recipient: "site geotechnical database"},
 		Abbreviations: []Abbreviation{
@@ -57,7 +57,7 @@ func sample(t *testing.T) *Data {
 	d.Discontinuities[3].Dip, d.Discontinuities[3].DipDirection = math.NaN(), math.NaN()
 	d.Discontinuities[3].Remarks = "unoriented: core not marked"
 	d.Discontinuities[4].Remarks = `logged as "open", 2 mm`
-	sp, err := SpacingOf("TM101", "", 0, 50, []float64{3.1, 9.8, 22.45, 40})
+	sp, err := SpacingOf("ZR101", "", 0, 50, []float64{3.1, 9.8, 22.45, 40})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -319,12 +319,12 @@ func TestRule7Order(t *testing.T) {
 // downward.
 func TestRule8Types(t *testing.T) {
 	d := sample(t)
-	d.Cores = []Core{{Hole: "TM101", Top: 5, Base: 8.004999, TotalRecovery: 99.5, SolidRecovery: -0.2, RQD: math.NaN(), Diameter: 63.5}}
-	d.Orientations = []Orientation{{Hole: "TM101", Top: 0, Base: 15, Azimuth: 359.7, Dip: -60.4}}
+	d.Cores = []Core{{Hole: "ZR101", Top: 5, Base: 8.004999, TotalRecovery: 99.5, SolidRecovery: -0.2, RQD: math.NaN(), Diameter: 63.5}}
+	d.Orientations = []Orientation{{Hole: "ZR101", Top: 0, Base: 15, Azimuth: 359.7, Dip: -60.4}}
 	b := string(write(t, d))
 	for _, want := range []string{
-		`"DATA","TM101","5.00","8.00","100","0","","64",""`, // 2DP and 0DP; -0 written as 0, a missing RQD empty
-		`"DATA","TM101","0.00","15.00","0","60",""`,         // azimuth 359.7 rounds to 360 = 0; dip -60.4 is HORN_INCL 60
+		`"DATA","ZR101","5.00","8.00","100","0","","64",""`, // 2DP and 0DP; -0 written as 0, a missing RQD empty
+		`"DATA","ZR101","0.00","15.00","0","60",""`,         // azimuth 359.7 rounds to 360 = 0; dip -60.4 is HORN_INCL 60
 		`"DATA","1","2026-12-03","corvane"`,                 // TRAN_DATE as DT yyyy-mm-dd
 		`"UNIT","","yyyy-mm-dd","",`,
 	} {
@@ -364,7 +364,7 @@ func TestRule9Dictionary(t *testing.T) {
 	}
 	checkErr(t, f, "9")
 	f = built(t)
-	f.Groups = append(f.Groups, &Group{Name: "ORNT", Headings: []string{"LOCA_ID"}, Units: []string{""}, Types: []string{"ID"}, Rows: [][]string{{"TM101"}}})
+	f.Groups = append(f.Groups, &Group{Name: "ORNT", Headings: []string{"LOCA_ID"}, Units: []string{""}, Types: []string{"ID"}, Rows: [][]string{{"ZR101"}}})
 	checkErr(t, f, "9")
 }
 
@@ -482,10 +482,10 @@ func TestRule19Names(t *testing.T) {
 
 func TestReadErrors(t *testing.T) {
 	b := write(t, sample(t))
-	bad := bytes.Replace(b, []byte(`"DATA","TM101","5.00"`), []byte(`"DATA","TM101","five"`), 1)
+	bad := bytes.Replace(b, []byte(`"DATA","ZR101","5.00"`), []byte(`"DATA","ZR101","five"`), 1)
 	if bytes.Equal(bad, b) {
-		// The sample's first TM101 DISC row may start elsewhere; spoil a CORE row instead.
-		bad = bytes.Replace(b, []byte(`"DATA","TM101","0.00","3.00"`), []byte(`"DATA","TM101","zero","3.00"`), 1)
+		// The sample's first ZR101 DISC row may start elsewhere; spoil a CORE row instead.
+		bad = bytes.Replace(b, []byte(`"DATA","ZR101","0.00","3.00"`), []byte(`"DATA","ZR101","zero","3.00"`), 1)
 	}
 	_, err := Read(bytes.NewReader(bad), "bad.ags")
 	var pe *ParseError

@@ -25,11 +25,11 @@ type Hole struct {
 // Holes returns the scene's holes, desurveyed by minimum curvature.
 func Holes() []Hole {
 	hs := []Hole{
-		{Name: "TM101", Collar: desurvey.Collar{East: 431280.38, North: 6652438.96, Elevation: 405.69, Azimuth: 20, Dip: -60, Depth: 250.3},
+		{Name: "ZR101", Collar: desurvey.Collar{East: 431280.38, North: 5400038.96, Elevation: 405.69, Azimuth: 20, Dip: -60, Depth: 250.3},
 			Stations: []desurvey.Station{{Depth: 15, Azimuth: 21.9, Dip: -59.6}, {Depth: 120, Azimuth: 23.5, Dip: -57.8}, {Depth: 201, Azimuth: 25.1, Dip: -56.0}}},
-		{Name: "TM102", Collar: desurvey.Collar{East: 431457.93, North: 6652434.47, Elevation: 408.90, Azimuth: 35, Dip: -55, Depth: 180},
+		{Name: "ZR102", Collar: desurvey.Collar{East: 431457.93, North: 5400034.47, Elevation: 408.90, Azimuth: 35, Dip: -55, Depth: 180},
 			Stations: []desurvey.Station{{Depth: 30, Azimuth: 35.5, Dip: -54.0}, {Depth: 180, Azimuth: 38.0, Dip: -51.5}}},
-		{Name: "TM103 \"west\"", Collar: desurvey.Collar{East: 431102.5, North: 6652611.0, Elevation: 398.2, Azimuth: 300, Dip: -90, Depth: 95},
+		{Name: "ZR103 \"west\"", Collar: desurvey.Collar{East: 431102.5, North: 5400211.0, Elevation: 398.2, Azimuth: 300, Dip: -90, Depth: 95},
 			Stations: []desurvey.Station{{Depth: 50, Azimuth: 300, Dip: -88}}},
 	}
 	for i := range hs {

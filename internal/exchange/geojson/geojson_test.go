@@ -172,9 +172,9 @@ func TestFeatures(t *testing.T) {
 	for _, ft := range f.Features {
 		kinds = append(kinds, ft.Properties["hole"].(string)+" "+ft.Properties["feature"].(string)+" "+ft.Geometry.Type)
 	}
-	// TM103 is drilled straight down to 50 m and nearly so below: its
+	// ZR103 is drilled straight down to 50 m and nearly so below: its
 	// surface projection still moves (dip -88), so it has a trace.
-	want := `TM101 collar Point|TM101 trace LineString|TM102 collar Point|TM102 trace LineString|TM103 "west" collar Point|TM103 "west" trace LineString`
+	want := `ZR101 collar Point|ZR101 trace LineString|ZR102 collar Point|ZR102 trace LineString|ZR103 "west" collar Point|ZR103 "west" trace LineString`
 	if got := strings.Join(kinds, "|"); got != want {
 		t.Errorf("features\n got %s\nwant %s", got, want)
 	}
@@ -186,12 +186,12 @@ func TestFeatures(t *testing.T) {
 		t.Errorf("trace properties %v", p)
 	}
 	if _, ok := f.Features[3].Properties["extrapolated_below"]; ok {
-		t.Errorf("TM102 is surveyed to its end but has extrapolated_below")
+		t.Errorf("ZR102 is surveyed to its end but has extrapolated_below")
 	}
-	// Coordinate order: longitude (about 116 E) before latitude (about 30 S).
+	// Coordinate order: longitude (about 116 E) before latitude (about 41.5 S).
 	var c [2]float64
 	json.Unmarshal(f.Features[0].Geometry.Coordinates, &c)
-	if !(c[0] > 115 && c[0] < 117 && c[1] > -31 && c[1] < -29) {
+	if !(c[0] > 115 && c[0] < 117 && c[1] > -42 && c[1] < -41) {
 		t.Errorf("collar at %v, want [lon, lat]", c)
 	}
 }
@@ -199,8 +199,8 @@ func TestFeatures(t *testing.T) {
 // TestVerticalHole: a trace whose surface projection is one position gets
 // no LineString (RFC 7946 section 3.1.4 asks for two or more positions).
 func TestVerticalHole(t *testing.T) {
-	h := Hole{Name: "V1", East: 431280, North: 6652438, Azimuth: 0, Dip: -90, Depth: 50, Trace: exchange.Trace{Hole: "V1", Points: []exchange.TracePoint{
-		{Depth: 0, Pos: geom.Vec3{X: 431280, Y: 6652438, Z: 400}}, {Depth: 50, Pos: geom.Vec3{X: 431280, Y: 6652438, Z: 350}}}}}
+	h := Hole{Name: "V1", East: 431280, North: 5400038, Azimuth: 0, Dip: -90, Depth: 50, Trace: exchange.Trace{Hole: "V1", Points: []exchange.TracePoint{
+		{Depth: 0, Pos: geom.Vec3{X: 431280, Y: 5400038, Z: 400}}, {Depth: 50, Pos: geom.Vec3{X: 431280, Y: 5400038, Z: 350}}}}}
 	var b bytes.Buffer
 	if err := Write(&b, UTM(utm.Zone{Number: 50, South: true}), []Hole{h}); err != nil {
 		t.Fatal(err)
