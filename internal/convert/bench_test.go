@@ -77,7 +77,7 @@ func benchFiles(b *testing.B, dir string, holes, rows int) (collars, surveys, st
 				if k%4 == 0 {
 					g = fmt.Sprintf("%d", r.IntN(360))
 				}
-				fmt.Fprintf(w, "B%04d,%.2f,%d,%d,%s,%s,core %d,AQ\n", i, float64(k)*390/float64(per), r.IntN(91), r.IntN(360), g, types[k%4], k)
+				fmt.Fprintf(w, "B%04d,%.2f,%d,%d,%s,%s,core %d,L1\n", i, float64(k)*390/float64(per), r.IntN(91), r.IntN(360), g, types[k%4], k)
 			}
 		}
 	})

@@ -13,6 +13,7 @@ import (
 
 	"corvane/internal/convert"
 	"corvane/internal/csvio"
+	"corvane/internal/domain"
 	"corvane/internal/geom"
 )
 
@@ -142,5 +143,29 @@ func TestConvertRecoversSets(t *testing.T) {
 		if a := geom.AxialAngle(sums[set.Name], set.Mean.Normal()); a > 6 {
 			t.Errorf("set %s: converted mean %.1f degrees from %v", set.Name, a, set.Mean)
 		}
+	}
+}
+
+// The demo keeps the one gamma-vs-kind rule (domain.CheckKind): gamma only on
+// its line type, the line type always with gamma; and its loggers are the
+// neutral tags L1, L2, L3.
+func TestKindsAndLoggers(t *testing.T) {
+	lines := 0
+	for _, s := range Programme().Structures {
+		m := domain.Measurement{TypeCode: s.Type}
+		if !math.IsNaN(s.Gamma) {
+			g := s.Gamma
+			m.Gamma = &g
+			lines++
+		}
+		if err := domain.CheckKind(m, domain.TypeCode{Code: s.Type, Kind: Kind(s.Type)}); err != nil {
+			t.Fatalf("%s %.2f: %v", s.HoleID, s.Depth, err)
+		}
+		if s.LoggedBy != "L1" && s.LoggedBy != "L2" && s.LoggedBy != "L3" {
+			t.Fatalf("%s %.2f: logger %q, want L1..L3", s.HoleID, s.Depth, s.LoggedBy)
+		}
+	}
+	if lines == 0 {
+		t.Fatal("no lineations: the line type is never logged")
 	}
 }
