@@ -304,3 +304,47 @@ func BenchmarkCount4000(b *testing.B) {
 		face.Count(planes)
 	}
 }
+
+// TestWedgeWorkedExample: the wedge of the comprehensive wedge analysis in
+// Hoek & Bray (1981, App. 2) restated by Wyllie & Mah (2004, section 7.4),
+// recalled from memory (not in the shared references): plane A 45/105 and
+// plane B 70/235 (dip/dip direction) under a slope face 65/185, friction
+// angles 20 (A) and 30 (B). The book's line of intersection plunges 31.2
+// toward 157.6 and the wedge can slide (it goes on to a factor of safety
+// near 1.2 without water). The intersection is computed here to 0.2 degrees
+// of the printed value, which also checks the recalled input; kinematically
+// the wedge daylights (the face's apparent dip toward 157.7 is
+// atan(tan 65 cos 27.3) = 62.3) and its line is steeper than either
+// friction angle, so Markland's test counts it with 20 and with 30, and not
+// with a friction angle of 32.
+func TestWedgeWorkedExample(t *testing.T) {
+	a, b := geom.Plane{Dip: 45, DipDirection: 105}, geom.Plane{Dip: 70, DipDirection: 235}
+	for _, phi := range []float64{20, 30} {
+		f := Params{Face: geom.Plane{Dip: 65, DipDirection: 185}, Friction: phi, Lateral: DefaultLateral}
+		r, err := f.CheckPair(a, b)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if math.Abs(r.Line.Trend-157.6) > 0.2 || math.Abs(r.Line.Plunge-31.2) > 0.05 {
+			t.Fatalf("intersection %v, want 157.6/31.2 (Wyllie & Mah 2004, section 7.4)", r.Line)
+		}
+		if !r.Wedge {
+			t.Errorf("friction %v: the worked example's wedge is kinematically possible", phi)
+		}
+		if r.Direct != NotToppling {
+			t.Errorf("friction %v: a line plunging out of the face is not a toppling case", phi)
+		}
+		// Neither plane alone slides: A dips 80 degrees off the face's dip
+		// direction, B 50 degrees off (outside the lateral limit).
+		if f.Planar(a) || f.Planar(b) {
+			t.Errorf("friction %v: plane sliding on A or B alone counted", phi)
+		}
+		if got := f.apparentDip(r.Line.Trend); math.Abs(got-62.3) > 0.1 {
+			t.Errorf("apparent dip of the face toward %v: %v, want 62.3", r.Line.Trend, got)
+		}
+	}
+	f := Params{Face: geom.Plane{Dip: 65, DipDirection: 185}, Friction: 32, Lateral: DefaultLateral}
+	if r, _ := f.CheckPair(a, b); r.Wedge {
+		t.Error("friction 32 above the line's plunge 31.2: not a wedge case")
+	}
+}
