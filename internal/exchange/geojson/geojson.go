@@ -38,13 +38,45 @@ func UTM(z utm.Zone) Inverse {
 // Grid returns the inverse of a transverse Mercator grid of any supported
 // EPSG family (utm.LookupEPSG). Latitude and longitude come out on the
 // grid's own datum (NAD83, ETRS89, GDA94, GDA2020, SIRGAS 2000 or WGS 84);
-// they are written as WGS 84 without a datum shift, which for these datums
-// is at the metre level at most.
+// they are written as WGS 84 without a datum shift, and the file says so
+// ([Datum]).
 func Grid(tm *utm.TransverseMercator) Inverse {
 	return func(e, n float64) (float64, float64, error) {
 		g, err := tm.Inverse(e, n)
 		return g.Lat, g.Lon, err
 	}
+}
+
+// DatumApproximation is what a file from a grid on another datum than WGS
+// 84 says of its coordinates. The sizes are recalled from memory, not
+// computed by corvane: the datums of the supported grids (NAD83, ETRS89,
+// GDA94, GDA2020, SIRGAS 2000) were tied to the international terrestrial
+// frame at their reference epochs, and WGS 84 follows that frame today, so
+// the two drift apart with the plate's motion (centimetres a year): a few
+// decimetres (GDA2020, SIRGAS 2000) to about 1 m (ETRS89) and 1 to 2 m
+// (NAD83, GDA94).
+const DatumApproximation = "longitude and latitude are on the grid's own datum and are written as WGS 84 " +
+	"without a datum shift; for NAD83, ETRS89, GDA94, GDA2020 and SIRGAS 2000 the two differ by a few " +
+	"decimetres up to about 2 m, growing with the plate's motion since the datum's reference epoch; " +
+	"where that matters, transform from the grid coordinates with a tool that knows the datum shift"
+
+// Datum is the "datum" foreign member of the FeatureCollection (RFC 7946
+// section 6.1): the grid the coordinates came from and whether a datum
+// shift was applied (never: corvane applies none).
+type Datum struct {
+	Grid         string `json:"grid"`
+	ShiftApplied bool   `json:"shift_applied"`
+	Note         string `json:"note"`
+}
+
+// DatumOf describes coordinates from grid (its name and EPSG code); wgs84
+// says the grid is on WGS 84 itself, which then needs no shift.
+func DatumOf(grid string, wgs84 bool) Datum {
+	d := Datum{Grid: grid, Note: "longitude and latitude are on WGS 84, the grid's own datum"}
+	if !wgs84 {
+		d.Note = DatumApproximation
+	}
+	return d
 }
 
 // Hole is one hole of the map: its collar, its summary and its trace.
@@ -86,15 +118,22 @@ func opt(v float64) *float64 {
 	return &v
 }
 
-// Write writes holes as one FeatureCollection to w, feature by feature: for
+// Write writes holes as one FeatureCollection to w, with the member
+// "datum" (see [Datum]) before the features, feature by feature: for
 // each hole its collar Point, then its trace LineString (a MultiLineString
 // cut at the antimeridian, RFC 7946 section 3.1.9, in the rare case a trace
 // crosses it). A trace whose surface projection is a single position (a
 // vertical hole) has no LineString. A point the inverse rejects is an
 // error naming the hole.
-func Write(w io.Writer, inv Inverse, holes []Hole) error {
+func Write(w io.Writer, inv Inverse, datum Datum, holes []Hole) error {
 	bw := bufio.NewWriterSize(w, 64<<10)
-	bw.WriteString(`{"type":"FeatureCollection","features":[`)
+	dj, err := json.Marshal(datum)
+	if err != nil {
+		return err
+	}
+	bw.WriteString(`{"type":"FeatureCollection","datum":`)
+	bw.Write(dj)
+	bw.WriteString(`,"features":[`)
 	first := true
 	feature := func(geom []byte, p properties) error {
 		pj, err := json.Marshal(p)

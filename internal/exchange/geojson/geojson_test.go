@@ -122,7 +122,7 @@ func TestAgainstPROJ(t *testing.T) {
 			h.Trace.Points = append(h.Trace.Points, exchange.TracePoint{Depth: float64(i), Pos: geom.Vec3{X: p.east, Y: p.north, Z: 400 - float64(i)}})
 		}
 		var b bytes.Buffer
-		if err := Write(&b, UTM(z), []Hole{h}); err != nil {
+		if err := Write(&b, UTM(z), DatumOf("test grid", true), []Hole{h}); err != nil {
 			t.Fatal(err)
 		}
 		schemaCheck(t, b.Bytes())
@@ -160,7 +160,7 @@ func TestFeatures(t *testing.T) {
 			Measurements: 10 * (i + 1), QAFlags: i, Trace: tr})
 	}
 	var b bytes.Buffer
-	if err := Write(&b, UTM(utm.Zone{Number: 50, South: true}), holes); err != nil {
+	if err := Write(&b, UTM(utm.Zone{Number: 50, South: true}), DatumOf("test grid", true), holes); err != nil {
 		t.Fatal(err)
 	}
 	schemaCheck(t, b.Bytes())
@@ -202,7 +202,7 @@ func TestVerticalHole(t *testing.T) {
 	h := Hole{Name: "V1", East: 431280, North: 5400038, Azimuth: 0, Dip: -90, Depth: 50, Trace: exchange.Trace{Hole: "V1", Points: []exchange.TracePoint{
 		{Depth: 0, Pos: geom.Vec3{X: 431280, Y: 5400038, Z: 400}}, {Depth: 50, Pos: geom.Vec3{X: 431280, Y: 5400038, Z: 350}}}}}
 	var b bytes.Buffer
-	if err := Write(&b, UTM(utm.Zone{Number: 50, South: true}), []Hole{h}); err != nil {
+	if err := Write(&b, UTM(utm.Zone{Number: 50, South: true}), DatumOf("test grid", true), []Hole{h}); err != nil {
 		t.Fatal(err)
 	}
 	if f := decode(t, b.Bytes()); len(f.Features) != 1 || f.Features[0].Geometry.Type != "Point" {
@@ -219,7 +219,7 @@ func TestAntimeridian(t *testing.T) {
 	h := Hole{Name: "X", East: 179.99, North: -16, Trace: exchange.Trace{Points: []exchange.TracePoint{
 		{Pos: geom.Vec3{X: 179.99, Y: -16}}, {Pos: geom.Vec3{X: -179.99, Y: -16.02}}, {Pos: geom.Vec3{X: -179.98, Y: -16.03}}}}}
 	var b bytes.Buffer
-	if err := Write(&b, inv, []Hole{h}); err != nil {
+	if err := Write(&b, inv, DatumOf("test grid", true), []Hole{h}); err != nil {
 		t.Fatal(err)
 	}
 	schemaCheck(t, b.Bytes())
@@ -237,7 +237,7 @@ func TestInverseError(t *testing.T) {
 		return n, e, nil
 	}
 	h := Hole{Name: "TM9", Trace: exchange.Trace{Points: []exchange.TracePoint{{Depth: 0}, {Depth: 40, Pos: geom.Vec3{X: 11}}}}}
-	err := Write(&bytes.Buffer{}, inv, []Hole{h})
+	err := Write(&bytes.Buffer{}, inv, DatumOf("test grid", true), []Hole{h})
 	if err == nil || err.Error() != "hole TM9: trace at depth 40: outside the zone" {
 		t.Errorf("error %v", err)
 	}

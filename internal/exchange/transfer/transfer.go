@@ -28,6 +28,7 @@ import (
 	"corvane/internal/exchange/gltf"
 	"corvane/internal/northref"
 	"corvane/internal/palette"
+	"corvane/internal/utm"
 	"corvane/internal/visual"
 )
 
@@ -234,6 +235,15 @@ func (p *Programme) WritePoints(w io.Writer) error {
 // Inverse returns the grid inverse of the collars' coordinate system: crs
 // when not empty, else the collars' labels, which must then name one system.
 func (p *Programme) Inverse(crs string) (geojson.Inverse, error) {
+	c, err := p.grid(crs)
+	if err != nil {
+		return nil, err
+	}
+	return inverseOf(c), nil
+}
+
+// grid returns the coordinate system of [Programme.Inverse].
+func (p *Programme) grid(crs string) (northref.CRS, error) {
 	label := strings.TrimSpace(crs)
 	if label == "" {
 		for _, h := range p.Holes {
@@ -242,27 +252,28 @@ func (p *Programme) Inverse(crs string) (geojson.Inverse, error) {
 			case label == "":
 				label = h.CRS
 			case !strings.EqualFold(label, h.CRS):
-				return nil, fmt.Errorf("collars are in %s and %s; write one coordinate system at a time or name one", label, h.CRS)
+				return northref.CRS{}, fmt.Errorf("collars are in %s and %s; write one coordinate system at a time or name one", label, h.CRS)
 			}
 		}
 	}
-	c, err := northref.ParseCRS(label)
-	if err != nil {
-		return nil, err
-	}
+	return northref.ParseCRS(label)
+}
+
+func inverseOf(c northref.CRS) geojson.Inverse {
 	if c.Grid != nil {
-		return geojson.Grid(c.Grid), nil // any supported EPSG family, on its own ellipsoid
+		return geojson.Grid(c.Grid) // any supported EPSG family, on its own ellipsoid
 	}
-	return geojson.UTM(c.Zone), nil
+	return geojson.UTM(c.Zone)
 }
 
 // WriteGeoJSON writes collars and surface traces in WGS 84 through the
-// grid inverse of crs (see [Programme.Inverse]).
+// grid inverse of crs (see [Programme.Inverse]); the file names the grid
+// and says that its datum is taken as WGS 84 (see [geojson.Datum]).
 func (p *Programme) WriteGeoJSON(w io.Writer, crs string) error {
 	if err := p.Check(); err != nil {
 		return err
 	}
-	inv, err := p.Inverse(crs)
+	c, err := p.grid(crs)
 	if err != nil {
 		return err
 	}
@@ -282,7 +293,13 @@ func (p *Programme) WriteGeoJSON(w io.Writer, crs string) error {
 		}
 		gh = append(gh, g)
 	}
-	return geojson.Write(w, inv, gh)
+	name := c.Name
+	if name == "" {
+		name = c.String()
+	} else {
+		name += " (" + c.String() + ")"
+	}
+	return geojson.Write(w, inverseOf(c), geojson.DatumOf(name, c.Grid == nil || c.Grid.Ellipsoid == utm.EllipsoidWGS84), gh)
 }
 
 // AGSOptions are the transmission details of an AGS4 file.

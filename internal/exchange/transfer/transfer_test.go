@@ -1,12 +1,15 @@
 package transfer
 
 import (
+	"encoding/json"
 	"math"
 	"strings"
 	"testing"
 
 	"corvane/internal/coreinterval"
+	"corvane/internal/desurvey"
 	"corvane/internal/exchange"
+	"corvane/internal/exchange/geojson"
 )
 
 // The counts a GeoJSON hole carries and the grid the map is drawn through.
@@ -98,6 +101,40 @@ func TestParseOrigin(t *testing.T) {
 	for _, bad := range []string{"1,2", "1,2,3,4", "1,x,3", "1,NaN,3", "1,2,Inf"} {
 		if _, err := ParseOrigin(bad); err == nil {
 			t.Errorf("ParseOrigin(%q): no error", bad)
+		}
+	}
+}
+
+// The map says which grid its coordinates came from and that no datum shift
+// was applied: a note of the approximation for a GRS80 grid (GDA2020 / MGA
+// zone 50), none for WGS 84 / UTM (RFC 7946 section 4 asks for WGS 84;
+// section 6.1 allows the foreign member).
+func TestGeoJSONStatesTheDatum(t *testing.T) {
+	for _, c := range []struct {
+		crs, grid string
+		approx    bool
+	}{
+		{"EPSG:7850", "GDA2020 / MGA zone 50 (EPSG:7850)", true},
+		{"EPSG:32750", "WGS 84 / UTM zone 50S (EPSG:32750)", false},
+	} {
+		p := Programme{Holes: []Hole{{Name: "A", CRS: c.crs, Collar: desurvey.Collar{East: 392259, North: 6464539, Depth: 10}}}}
+		var b strings.Builder
+		if err := p.WriteGeoJSON(&b, ""); err != nil {
+			t.Fatal(err)
+		}
+		var f struct {
+			Datum struct {
+				Grid         string `json:"grid"`
+				ShiftApplied *bool  `json:"shift_applied"`
+				Note         string `json:"note"`
+			} `json:"datum"`
+		}
+		if err := json.Unmarshal([]byte(b.String()), &f); err != nil {
+			t.Fatal(err)
+		}
+		d := f.Datum
+		if d.Grid != c.grid || d.ShiftApplied == nil || *d.ShiftApplied || (d.Note == geojson.DatumApproximation) != c.approx {
+			t.Errorf("%s: datum member %+v", c.crs, d)
 		}
 	}
 }
