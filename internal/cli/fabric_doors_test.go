@@ -9,6 +9,7 @@ import (
 	"io"
 	"net/http"
 	"net/http/httptest"
+	"net/url"
 	"os"
 	"path/filepath"
 	"reflect"
@@ -59,7 +60,7 @@ func doorsProgramme(t *testing.T) (srv *httptest.Server, token string, pid int64
 	srv, token = readerServer(t, ctx, svc, p.ID)
 
 	var b strings.Builder
-	b.WriteString("hole_id,type,dip,dip_direction,line_trend,line_plunge,hole_azimuth,hole_dip,azimuth_reference,error\n")
+	b.WriteString("hole_id,depth,type,dip,dip_direction,line_trend,line_plunge,hole_azimuth,hole_dip,azimuth_reference,error\n")
 	num := func(p *float64) string {
 		if p == nil {
 			return ""
@@ -78,7 +79,7 @@ func doorsProgramme(t *testing.T) (srv *httptest.Server, token string, pid int64
 			if d.Dip != nil && d.DipDirection == nil {
 				vertical++
 			}
-			fmt.Fprintf(&b, "%s,%s,%s,%s,%s,%s,%s,%s,%s,%q\n", v.Hole, v.TypeCode, num(d.Dip), num(d.DipDirection), num(d.LineTrend), num(d.LinePlunge),
+			fmt.Fprintf(&b, "%s,%s,%s,%s,%s,%s,%s,%s,%s,%s,%q\n", v.Hole, num(&v.Depth), v.TypeCode, num(d.Dip), num(d.DipDirection), num(d.LineTrend), num(d.LinePlunge),
 				num(d.HoleAzimuth), num(d.HoleDip), d.AzimuthRef, d.Error)
 			after = v.ID
 		}
@@ -220,7 +221,14 @@ func TestStatsNetRoseEqualAtEveryDoor(t *testing.T) {
 	sameSource := func(svg []byte) []byte {
 		return bytes.Replace(svg, []byte(">doors.csv; azimuths"), []byte(">all measurements; azimuths"), 1)
 	}
+	// One structural domain per net: part of one demo hole and the vertical
+	// hole; sets formed on every row (auto:3 here, so the domain's net keeps
+	// the whole selection's set names and colours).
+	hole := strings.Split(strings.Split(string(must(os.ReadFile(in))), "\n")[1], ",")[0]
+	dom := "Upper=" + hole + ":0..120,TMV01"
 	svgCases := []struct{ cmd, cli, route string }{
+		{"net", "--domain " + dom + " --sets auto:3 --seed 5", "domain=" + url.QueryEscape(dom) + "&sets=auto:3&seed=5"},
+		{"net", "--domain " + dom + " --sets type --show poles,planes,lines,sets", "domain=" + url.QueryEscape(dom) + "&sets=type&show=poles,planes,lines,sets"},
 		{"net", "", ""},
 		{"net", "--projection equal-angle --show poles,planes,lines,sets --sets type --sets-on both", "projection=equal-angle&show=poles,planes,lines,sets&sets=type&sets_on=both"},
 		{"net", "--sets auto:4 --density kamb --units sigma --grid 80 --weighting terzaghi", "sets=auto:4&density=kamb&units=sigma&grid=80&weighting=terzaghi"},
@@ -244,6 +252,9 @@ func TestStatsNetRoseEqualAtEveryDoor(t *testing.T) {
 		}
 		if !bytes.Equal(sameSource(cli), route) {
 			t.Errorf("%s %q: the CLI's SVG (%d bytes) and the route's (%d bytes) differ at byte %d", c.cmd, c.cli, len(cli), len(route), firstDiff(sameSource(cli), route))
+		}
+		if strings.Contains(c.cli, "--domain") && !strings.Contains(sheetText(route), "domain Upper: ") {
+			t.Errorf("%s %q: the sheet does not name the domain", c.cmd, c.cli)
 		}
 		if !strings.Contains(sheetText(route), "3 rows left out: "+fabric.SkipNoDipDirection) {
 			t.Errorf("%s %q: the sheet does not count the rows without a dip direction", c.cmd, c.cli)
@@ -271,3 +282,10 @@ func sheetText(svg []byte) string {
 }
 
 func f64(v float64) *float64 { return &v }
+
+func must[T any](v T, err error) T {
+	if err != nil {
+		panic(err)
+	}
+	return v
+}

@@ -7,9 +7,11 @@ import (
 	"io"
 	"path/filepath"
 
+	"corvane/internal/csvio"
 	"corvane/internal/fabric"
 	"corvane/internal/netsvg"
 	"corvane/internal/projection"
+	"corvane/internal/structdomain"
 )
 
 func init() {
@@ -24,12 +26,18 @@ const netUsage = `Usage:
   corvane net --in FILE -o NET.svg [--projection equal-area|equal-angle]
               [--show poles,planes,lines,density,sets] [--sets auto:N|type | --set NAME:TREND/PLUNGE:CONE ...]
               [--density exponential|kamb] [--units mud|sigma] [--weighting terzaghi[:CAP]] [--type TYPE]
+              [--domain ` + structdomain.Syntax + `]
 
 Draws a lower-hemisphere net as SVG from the same CSV as corvane stats: poles to planes
 (filled markers), planes as great circles, lines (open markers), set means with their
 95% cones of confidence drawn as small circles, and filled density contours of the poles
 (of the lines when the file has no planes). Sets use the same options as corvane stats;
 with "sets" in --show and no set options, the mean of all measurements is drawn.
+
+With --domain the net draws one structural domain (as corvane domains defines it; the
+file needs hole_id and depth, and rock_type for a domain of rock types): only the rows in
+the domain are drawn, while sets are formed on all rows, so each set keeps the name and
+colour it has in corvane stats and corvane domains. Run once per domain for a net each.
 
 Density: exponential smoothing (Vollmer 1995, default) or Kamb (1959) counting, in
 multiples of uniform density (default) or sigma units; Terzaghi weights are honoured
@@ -50,6 +58,8 @@ func runNet(_ context.Context, env *Env, args []string) int {
 	units := fs.String("units", "mud", "density units: mud (multiples of uniform density) or sigma")
 	title := fs.String("title", "", "title on the sheet (default from the input file name)")
 	grid := fs.Int("grid", fabric.DefaultGrid, fmt.Sprintf("density grid nodes per side (%d to %d)", fabric.MinGrid, fabric.MaxGrid))
+	var domainSpec onceFlag
+	fs.Var(&domainSpec, "domain", "draw only this structural domain "+structdomain.Syntax+" (once; sets still formed on all rows)")
 	fail, code, done := parseOrientArgs(env, fs, "net", args)
 	if done {
 		return code
@@ -71,9 +81,24 @@ func runNet(_ context.Context, env *Env, args []string) int {
 	if o.Weighting, o.Sets, err = c.options(); err != nil {
 		return fail(err)
 	}
-	oi, err := loadOrientations(env, c.in, c.typ)
+	var dom *structdomain.Domain
+	if domainSpec != "" {
+		d, err := structdomain.ParseOne(string(domainSpec))
+		if err != nil {
+			return fail(fmt.Errorf("--domain %v", err))
+		}
+		dom = &d
+	}
+	readOpt := csvio.OrientationOptions{Geotech: dom != nil} // the rock type, read as corvane domains reads it
+	oi, err := loadOrientationsWith(env, c.in, c.typ, readOpt)
 	if err != nil {
 		return fail(err)
+	}
+	if dom != nil {
+		o.Part = &fabric.Part{Name: "domain " + dom.Name}
+		for _, w := range oi.where {
+			o.Part.Keep = append(o.Part.Keep, dom.Contains(w.hole, w.depth, w.rock))
+		}
 	}
 	if o.Title == "" {
 		o.Title = "Net: " + filepath.Base(oi.file)
@@ -96,4 +121,17 @@ func orientSource(oi *orientInput, typ string) string {
 		s += "  (type " + typ + ")"
 	}
 	return s
+}
+
+// onceFlag is a string flag that may be given once.
+type onceFlag string
+
+func (f *onceFlag) String() string { return string(*f) }
+
+func (f *onceFlag) Set(s string) error {
+	if *f != "" {
+		return errors.New("given twice; a net draws one domain (run once per domain)")
+	}
+	*f = onceFlag(s)
+	return nil
 }

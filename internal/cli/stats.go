@@ -97,12 +97,25 @@ type orientInput struct {
 	in         fabric.Input
 	azimuthRef string // the azimuth_reference shared by every row, "" when absent or mixed
 	problems   []*domain.Error
+	// where each row was logged (hole, depth, rock type), for domains
+	where []rowWhere
+}
+
+type rowWhere struct {
+	hole, rock string
+	depth      float64
 }
 
 // loadOrientations reads path ("-" for standard input) and keeps the rows of
 // type typ (all when typ is empty). Problems are also written to stderr.
 func loadOrientations(env *Env, path, typ string) (*orientInput, error) {
-	rows, problems, err := readTypedRows(env, path, typ, csvio.OrientationOptions{})
+	return loadOrientationsWith(env, path, typ, csvio.OrientationOptions{})
+}
+
+// loadOrientationsWith is loadOrientations with read options (Geotech to
+// read the rock type, as the domains report does).
+func loadOrientationsWith(env *Env, path, typ string, opt csvio.OrientationOptions) (*orientInput, error) {
+	rows, problems, err := readTypedRows(env, path, typ, opt)
 	if err != nil {
 		return nil, err
 	}
@@ -113,6 +126,7 @@ func loadOrientations(env *Env, path, typ string) (*orientInput, error) {
 		oi.in.Rows = append(oi.in.Rows, fabric.Row{Type: row.Type, HasPlane: row.HasPlane, Plane: row.Plane,
 			HasLine: row.HasLine, Line: row.LineDir, HasHole: row.HasHole, Hole: row.Hole,
 			NoAzimuth: row.NoAzimuth, Unoriented: row.Unoriented, Error: row.Error})
+		oi.where = append(oi.where, rowWhere{hole: row.HoleID, depth: row.Depth, rock: row.RockType})
 		refs[row.AzimuthRef] = true
 	}
 	if len(refs) == 1 {

@@ -70,6 +70,19 @@ type NetOptions struct {
 	// TypeStyles draws the sets by type code in their type's colour and mark
 	// (nil: the visual language's defaults over the rows' codes in code order).
 	TypeStyles map[string]visual.Style
+	// Part, when not nil, draws only part of the rows (a structural domain,
+	// see package structdomain): Keep[i] says whether in.Rows[i] is drawn.
+	// Sets are still formed on every row, so a set keeps its name and
+	// members from the whole selection (as in the statistics and the
+	// domains report); the net shows the kept members, their means and
+	// cones, and their density.
+	Part *Part
+}
+
+// Part is the part of a net's rows that is drawn (see [NetOptions].Part).
+type Part struct {
+	Name string // e.g. "domain North", said on the sheet
+	Keep []bool // one per input row
 }
 
 // ParseDensity reads the density method and units: method "" (exponential),
@@ -113,10 +126,29 @@ func subtitle(source, ref string) string {
 // there are no planes). With sets shown and no set method, the mean of all
 // poles and of all lines is drawn.
 func Net(in Input, o NetOptions) (netsvg.Net, error) {
+	if o.Part != nil && len(o.Part.Keep) != len(in.Rows) {
+		return netsvg.Net{}, fmt.Errorf("fabric: part %q has %d flags for %d rows", o.Part.Name, len(o.Part.Keep), len(in.Rows))
+	}
 	used, skipped := usable(in.Rows)
 	planes, lines, err := groups(used, o.Weighting, o.Sets, "both")
 	if err != nil {
 		return netsvg.Net{}, err
+	}
+	kept := len(in.Rows)
+	if o.Part != nil {
+		// keepUsed[k]: whether used row k is in the part (usable keeps the
+		// rows in order).
+		var keepUsed []bool
+		kept = 0
+		for i, r := range in.Rows {
+			if o.Part.Keep[i] {
+				kept++
+			}
+			if skipReason(r) == "" {
+				keepUsed = append(keepUsed, o.Part.Keep[i])
+			}
+		}
+		planes, lines = planes.only(keepUsed), lines.only(keepUsed)
 	}
 	hasSets := o.Sets.any()
 	styles := o.TypeStyles
@@ -128,11 +160,19 @@ func Net(in Input, o NetOptions) (netsvg.Net, error) {
 		styles = visual.Defaults(codes)
 	}
 	n := netsvg.Net{Projection: o.Projection, Caution: Caution, Title: o.Title, Subtitle: subtitle(o.Source, o.AzimuthRef)}
-	// Sets: poles' sets first (their indices match markers), then lines'
-	// sets; lines' markers use indices offset by the number of pole sets.
-	lineOffset := 0
+	// Sets: poles' sets first, then lines' sets. A set is drawn in the
+	// style of its index (poles' set j: j; lines' set j: the number of
+	// poles' sets + j) and its members' markers point at its place in
+	// n.Sets (pos), so a set with no members in the rows drawn (a domain
+	// without it) leaves the others' colours and markers as they are.
+	var pos [2][]int // [poles, lines][set] -> index in n.Sets, -1 when not drawn
 	if o.Show.Sets {
+		styleBase := 0
 		addSets := func(g *group, ofLines bool) {
+			if len(g.axes) == 0 && g.assign != nil {
+				// sets formed on all rows, none of them in the part drawn
+				styleBase += len(g.setNames)
+			}
 			if len(g.axes) == 0 || (hasSets && g.assign == nil) {
 				return
 			}
@@ -142,35 +182,44 @@ func Net(in Input, o NetOptions) (netsvg.Net, error) {
 					if ofLines {
 						name = "mean of lines"
 					}
-					n.Sets = append(n.Sets, netsvg.SetMark{Name: name, Mean: f.Mean, Cone: f.Cone95, Count: f.N, Lines: ofLines})
+					n.Sets = append(n.Sets, netsvg.SetMark{Name: name, Mean: f.Mean, Cone: f.Cone95, Count: f.N, Lines: ofLines,
+						Style: visual.Pair(styleBase)})
+					styleBase++
 				}
 				return
 			}
+			k := 0
+			if ofLines {
+				k = 1
+			}
+			pos[k] = make([]int, len(g.setNames))
 			for j, name := range g.setNames {
+				pos[k][j] = -1
 				vs, ws := g.members(j)
 				f, err := dirstat.FisherMean(vs, ws, true)
 				if err != nil {
 					continue
 				}
-				sm := netsvg.SetMark{Name: name, Count: len(vs), Lines: ofLines, Mean: f.Mean, Cone: f.Cone95}
+				sm := netsvg.SetMark{Name: name, Count: len(vs), Lines: ofLines, Mean: f.Mean, Cone: f.Cone95, Style: visual.Pair(styleBase + j)}
 				if o.Sets.ByType {
 					sm.Style = styles[name]
 				}
 				if ofLines {
 					sm.Name = name + " (lines)"
 				}
+				pos[k][j] = len(n.Sets)
 				n.Sets = append(n.Sets, sm)
 			}
+			styleBase += len(g.setNames)
 		}
 		addSets(planes, false)
-		lineOffset = len(n.Sets)
 		addSets(lines, true)
 	}
-	markSet := func(g *group, i, offset int) int {
-		if g.assign == nil || !o.Show.Sets || g.assign[i] < 0 {
+	markSet := func(g *group, i, k int) int {
+		if g.assign == nil || !o.Show.Sets || g.assign[i] < 0 || pos[k] == nil {
 			return -1
 		}
-		return g.assign[i] + offset
+		return pos[k][g.assign[i]]
 	}
 	if o.Show.Poles {
 		for i, a := range planes.axes {
@@ -184,10 +233,13 @@ func Net(in Input, o NetOptions) (netsvg.Net, error) {
 	}
 	if o.Show.Lines {
 		for i, a := range lines.axes {
-			n.Lines = append(n.Lines, netsvg.Mark{Axis: a, Set: markSet(lines, i, lineOffset)})
+			n.Lines = append(n.Lines, netsvg.Mark{Axis: a, Set: markSet(lines, i, 1)})
 		}
 	}
 	notes := []string{words.Plural(len(in.Rows), "row")}
+	if o.Part != nil {
+		notes = append(notes, fmt.Sprintf("%s: %d of the %s drawn; sets formed on all rows", o.Part.Name, kept, words.Plural(len(in.Rows), "row")))
+	}
 	notes = append(notes, skipNotes(skipped)...)
 	if o.Show.Density {
 		g, of := planes, "poles"

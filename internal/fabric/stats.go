@@ -140,6 +140,29 @@ func (g *group) members(j int) ([]geom.Vec3, []float64) {
 	return vs, ws
 }
 
+// only returns the group of the axes whose used rows keepUsed marks, with
+// their weights and sets (set names and method unchanged).
+func (g *group) only(keepUsed []bool) *group {
+	o := &group{kind: g.kind, setNames: g.setNames, method: g.method}
+	for i, r := range g.rows {
+		if !keepUsed[r] {
+			continue
+		}
+		o.axes = append(o.axes, g.axes[i])
+		o.rows = append(o.rows, r)
+		if g.weights != nil {
+			o.weights = append(o.weights, g.weights[i])
+		}
+		if g.assign != nil {
+			o.assign = append(o.assign, g.assign[i])
+		}
+	}
+	if g.assign != nil && o.assign == nil {
+		o.assign = []int{}
+	}
+	return o
+}
+
 func (g *group) unassigned() int {
 	n := 0
 	for _, a := range g.assign {

@@ -811,7 +811,11 @@ func (s *Server) net(c *gin.Context) {
 		return
 	}
 	q := service.NetQuery{MeasurementQuery: mq, SetQuery: sq, Weighting: c.Query("weighting"), Projection: c.Query("projection"),
-		Show: c.Query("show"), Density: c.Query("density"), Units: c.Query("units"), Title: c.Query("title")}
+		Show: c.Query("show"), Density: c.Query("density"), Units: c.Query("units"), Title: c.Query("title"), Domain: c.Query("domain")}
+	if ds := c.QueryArray("domain"); len(ds) > 1 {
+		fail(c, domain.FieldErr("domain", "a net draws one domain; got %d (ask once per domain)", len(ds)))
+		return
+	}
 	if v := c.Query("grid"); v != "" {
 		if q.Grid, err = strconv.Atoi(v); err != nil {
 			fail(c, domain.FieldErr("grid", "query parameter grid=%q: want a whole number", v))

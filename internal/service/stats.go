@@ -13,6 +13,7 @@ import (
 	"corvane/internal/geom"
 	"corvane/internal/netsvg"
 	"corvane/internal/projection"
+	"corvane/internal/structdomain"
 )
 
 // MaxStatsMeasurements bounds the measurements one statistics or net request
@@ -187,6 +188,11 @@ type NetQuery struct {
 	Units      string // "mud" (default) or "sigma"
 	Grid       int    // density grid nodes per side; 0 means fabric.DefaultGrid
 	Title      string // default: the project's name
+	// Domain, when not "", draws one structural domain (structdomain.Syntax)
+	// as corvane net --domain does: sets formed on every measurement passing
+	// the filter, only the domain's drawn. Stored measurements carry no rock
+	// type, so a domain of rock types draws nothing.
+	Domain string
 }
 
 // Net writes the SVG net of the measurements passing q to w (read), from
@@ -213,7 +219,20 @@ func (s *Service) Net(ctx context.Context, projectID int64, q NetQuery, w io.Wri
 	if o.Weighting, err = parseWeighting(q.Weighting); err != nil {
 		return err
 	}
-	in, err := s.sheet(ctx, projectID, q.MeasurementQuery, &o.Title, &o.Source, &o.AzimuthRef)
+	var dom *structdomain.Domain
+	if q.Domain != "" {
+		d, err := structdomain.ParseOne(q.Domain)
+		if err != nil {
+			return domain.FieldErr("domain", "domain %v", err)
+		}
+		dom = &d
+		o.Part = &fabric.Part{Name: "domain " + d.Name}
+	}
+	in, err := s.sheetWith(ctx, projectID, q.MeasurementQuery, &o.Title, &o.Source, &o.AzimuthRef, func(v MeasurementView) {
+		if dom != nil {
+			o.Part.Keep = append(o.Part.Keep, dom.Contains(v.Hole, v.Depth, ""))
+		}
+	})
 	if err != nil {
 		return err
 	}
@@ -239,7 +258,19 @@ func (s *Service) Net(ctx context.Context, projectID int64, q NetQuery, w io.Wri
 // words: the title (the project's name unless one is given), the selection
 // and the north reference of its azimuths.
 func (s *Service) sheet(ctx context.Context, projectID int64, q MeasurementQuery, title, source, ref *string) (fabric.Input, error) {
-	p, in, err := s.gather(ctx, projectID, q)
+	return s.sheetWith(ctx, projectID, q, title, source, ref, nil)
+}
+
+// sheetWith is sheet that also hands each measurement to each (nil: none),
+// in the order of the input's rows.
+func (s *Service) sheetWith(ctx context.Context, projectID int64, q MeasurementQuery, title, source, ref *string, each func(MeasurementView)) (fabric.Input, error) {
+	var in fabric.Input
+	p, err := s.eachView(ctx, projectID, q, func(v MeasurementView) {
+		in.Rows = append(in.Rows, fabricRow(v.TypeCode, v.Derived))
+		if each != nil {
+			each(v)
+		}
+	})
 	if err != nil {
 		return in, err
 	}

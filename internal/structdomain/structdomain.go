@@ -99,6 +99,16 @@ func Validate(ds []Domain) error {
 // line's --domain and the service's domain query parameter).
 const Syntax = "NAME=HOLE[:FROM..TO][,HOLE[:FROM..TO]...][;rock=TYPE|TYPE...]"
 
+// ParseOne reads one domain and checks it as [Validate] does: the one
+// domain of a net.
+func ParseOne(s string) (Domain, error) {
+	d, err := Parse(s)
+	if err != nil {
+		return d, err
+	}
+	return d, Validate([]Domain{d})
+}
+
 // Parse reads one domain in the form of [Syntax]; a hole without a range is
 // the whole hole. The domains of a run are then checked together with
 // [Validate].
