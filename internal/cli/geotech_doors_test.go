@@ -190,6 +190,24 @@ func TestGeotechEqualAtEveryDoor(t *testing.T) {
 	if code, _, stderr := runCmd(t, "slope-check", "--in", in, "--sets", "type", "--face", "65/180", "--friction", "30", "--svg", prefix); code != ExitOK {
 		t.Fatalf("slope-check --svg: exit %d: %s", code, stderr)
 	}
+	// The net of the sets and the unoriented measurements' cones.
+	svg := filepath.Join(t.TempDir(), "spacing.svg")
+	if code, _, stderr := runCmd(t, "spacing", "--in", in, "--sets", "auto:3", "--seed", "5", "--svg", svg); code != ExitOK {
+		t.Fatalf("spacing --svg: exit %d: %s", code, stderr)
+	}
+	cliNet, err := os.ReadFile(svg)
+	if err != nil {
+		t.Fatal(err)
+	}
+	cliNet = bytes.ReplaceAll(cliNet, []byte(">geo.csv"), []byte(">all measurements"))
+	routeNet := getRoute(t, srv, token, base+"/spacing/net?sets=auto:3&seed=5")
+	if !bytes.Equal(cliNet, routeNet) {
+		t.Errorf("spacing net: the CLI's (%d bytes) and the route's (%d bytes) differ at byte %d", len(cliNet), len(routeNet), firstDiff(cliNet, routeNet))
+	}
+	if !strings.Contains(sheetText(routeNet), "possible poles of 12 unoriented") {
+		t.Errorf("spacing net: no cones of the 12 unoriented measurements: %.300s", sheetText(routeNet))
+	}
+
 	for _, check := range []string{"planar", "wedge", "flexural", "direct"} {
 		cli, err := os.ReadFile(prefix + "-" + check + ".svg")
 		if err != nil {

@@ -9,6 +9,7 @@ import (
 	"corvane/internal/netsvg"
 	"corvane/internal/projection"
 	"corvane/internal/spacing"
+	"corvane/internal/visual"
 	"corvane/internal/structdomain"
 )
 
@@ -319,14 +320,23 @@ func UnorientedNet(in Input, s fabric.Sets, kind projection.Kind, subtitle strin
 		return netsvg.Net{}, err
 	}
 	n := netsvg.Net{Projection: kind, Title: "Sets and unoriented measurements", Subtitle: subtitle, Caution: RockMassCaution}
-	for k, v := range g.axes {
-		n.Poles = append(n.Poles, netsvg.Mark{Axis: v, Set: g.assign[k]})
-	}
+	// Set j is drawn in the style of its index; pos[j] is its place in
+	// n.Sets (-1 for a set without members, which is not drawn).
+	pos := make([]int, len(g.names))
 	for j, name := range g.names {
+		pos[j] = -1
 		vs := g.members(j, nil)
 		if f, err := dirstat.FisherMean(vs, nil, true); err == nil {
-			n.Sets = append(n.Sets, netsvg.SetMark{Name: name, Mean: f.Mean, Cone: f.Cone95, Count: len(vs)})
+			pos[j] = len(n.Sets)
+			n.Sets = append(n.Sets, netsvg.SetMark{Name: name, Mean: f.Mean, Cone: f.Cone95, Count: len(vs), Style: visual.Pair(j)})
 		}
+	}
+	for k, v := range g.axes {
+		set := g.assign[k]
+		if set >= 0 {
+			set = pos[set]
+		}
+		n.Poles = append(n.Poles, netsvg.Mark{Axis: v, Set: set})
 	}
 	count := 0
 	for _, r := range in.Rows {

@@ -146,3 +146,19 @@ func (s *Server) slopeNet(c *gin.Context) {
 		return s.opt.Service.SlopeNet(c.Request.Context(), pid, q, check, proj, w)
 	})
 }
+
+func (s *Server) spacingNet(c *gin.Context) {
+	pid, err := pathID(c, "project")
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	q, err := geoQuery(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	stream(c, "image/svg+xml", func(w *trackingWriter) error {
+		return s.opt.Service.SpacingNet(c.Request.Context(), pid, q, w)
+	})
+}

@@ -93,6 +93,7 @@ func (s *Server) routes() {
 
 	p.GET("/intervals/summary", need(domain.RoleRead), s.heavy, s.intervalsReport)
 	p.GET("/spacing", need(domain.RoleRead), s.heavy, s.spacingReport)
+	p.GET("/spacing/net", need(domain.RoleRead), s.heavy, s.spacingNet)
 	p.GET("/domains", need(domain.RoleRead), s.heavy, s.domainsReport)
 	p.GET("/slope-check", need(domain.RoleRead), s.heavy, s.slopeCheck)
 	p.GET("/slope-check/:check", need(domain.RoleRead), s.heavy, s.slopeNet)

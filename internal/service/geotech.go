@@ -292,6 +292,25 @@ func (s *Service) SlopeCheck(ctx context.Context, projectID int64, q SlopeQuery)
 	return rep, nil
 }
 
+// SpacingNet writes the net of corvane spacing --svg to w (read): the poles
+// by set, the set means with their 95% cones, and each unoriented
+// measurement's cone of possible poles as a dashed small circle.
+func (s *Service) SpacingNet(ctx context.Context, projectID int64, q GeoQuery, w io.Writer) error {
+	sets, err := q.SetQuery.parse()
+	if err != nil {
+		return err
+	}
+	_, in, err := s.geoInput(ctx, projectID, q.MeasurementQuery)
+	if err != nil {
+		return err
+	}
+	n, err := geotech.UnorientedNet(in, sets, projection.EqualArea, describe(q.MeasurementQuery))
+	if err != nil {
+		return geoFail(err)
+	}
+	return netsvg.WriteNet(w, n)
+}
+
 // SlopeNet writes the net of one check (one of geotech.SlopeChecks) with
 // its critical zone shaded, as corvane slope-check --svg does, to w (read).
 // The net carries the caution.
