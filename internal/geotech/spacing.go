@@ -9,8 +9,8 @@ import (
 	"corvane/internal/netsvg"
 	"corvane/internal/projection"
 	"corvane/internal/spacing"
-	"corvane/internal/visual"
 	"corvane/internal/structdomain"
+	"corvane/internal/visual"
 )
 
 // Dist is a distribution of spacings in a report.
