@@ -16,6 +16,7 @@ import (
 	"corvane/internal/exchange"
 	"corvane/internal/exchange/gltf"
 	"corvane/internal/exchange/transfer"
+	"corvane/internal/fabric"
 )
 
 func init() {
@@ -49,6 +50,12 @@ was made from, desurveys the holes the same way (give the same --method, --feet,
                   and RQD as corvane intervals computes them), DISC (structures; dip and
                   dip direction to the whole degree).
 
+Sets: with --sets auto:N, --sets type or --set windows (the options of corvane stats)
+each structure is labelled with its set (A, B, C... for automatic sets), formed on the
+poles of the structures written by the statistics' own grouping; the label goes to the
+points' set column, the glTF disc's extras and AGS4 FRAC_SET (DISC and FRAC). Without
+them, the converted file's set column is carried as it is.
+
 Rows of the converted file without a plane and position (no dip direction, an error, a
 lineation alone) are skipped and counted. GeoJSON's qa_flags counts a hole's rows that
 carry a warning or an error. Structure types are coloured in the sorted order of
@@ -79,6 +86,10 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 	date := fs.String("date", "", "AGS4 TRAN_DATE, YYYY-MM-DD (default today)")
 	intervals := fs.String("intervals", "", "core intervals CSV (as corvane intervals reads it): AGS4 CORE rows with recoveries and RQD")
 	typesFlag := fs.String("types", "", "the project's type codes, comma-separated, that colours are given to in sorted order (default: the types in the converted file)")
+	setsFlag := fs.String("sets", "", "label structures with sets: auto:N (k-means on the poles) or type (one set per type code)")
+	var windows windowFlags
+	fs.Var(&windows, "set", "label structures with a set window NAME:TREND/PLUNGE:CONE on the poles (repeatable)")
+	seed := fs.Uint64("seed", fabric.DefaultSeed, "seed for --sets auto:N")
 	var opt convert.Options
 	paths := addPathFlags(fs, &opt)
 	fail, code, done := parseOrientArgs(env, fs, "transfer", args)
@@ -141,6 +152,13 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 			prog.Structures = append(prog.Structures, exchange.Structure{Hole: r.HoleID, Depth: r.Depth, Pos: r.Pos, Pole: r.Plane.Normal(),
 				Dip: r.Plane.Dip, DipDirection: r.Plane.DipDirection, Type: r.Type, Set: r.Set, Uncertainty: math.NaN()})
 		}
+	}
+	sets, err := fabric.ParseSets(*setsFlag, "planes", windows, *seed)
+	if err != nil {
+		return fail(err)
+	}
+	if _, err := prog.LabelSets(sets); err != nil {
+		return fail(err)
 	}
 	if *intervals != "" {
 		ivs, err := readIntervalsFile(env, *intervals, *collars)

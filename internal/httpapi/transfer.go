@@ -35,8 +35,9 @@ func optNum(c *gin.Context, name string) (float64, error) {
 
 // transferExport serves one transfer format of the measurements selected
 // with the filter of the statistics routes (hole, type, min_depth,
-// max_depth, from, to) and the options disc_radius, trace_step, origin
-// (EASTING,NORTHING,ELEVATION), crs and recipient.
+// max_depth, from, to), their set options (sets, set, seed) and the options
+// disc_radius, trace_step, origin (EASTING,NORTHING,ELEVATION), crs and
+// recipient.
 func (s *Server) transferExport(name string) gin.HandlerFunc {
 	f := transferFormats[name]
 	return func(c *gin.Context) {
@@ -50,7 +51,12 @@ func (s *Server) transferExport(name string) gin.HandlerFunc {
 			fail(c, err)
 			return
 		}
-		q := service.TransferQuery{MeasurementQuery: mq, CRS: c.Query("crs"), Recipient: c.Query("recipient")}
+		sq, err := setQuery(c)
+		if err != nil {
+			fail(c, err)
+			return
+		}
+		q := service.TransferQuery{MeasurementQuery: mq, SetQuery: sq, CRS: c.Query("crs"), Recipient: c.Query("recipient")}
 		if q.DiscRadius, err = optNum(c, "disc_radius"); err != nil {
 			fail(c, err)
 			return

@@ -150,6 +150,9 @@ const (
 // its options. Zero values mean the defaults of `corvane transfer`.
 type TransferQuery struct {
 	MeasurementQuery
+	// SetQuery, when it asks for sets, labels each structure with its set
+	// (transfer.Programme.LabelSets), as the statistics group the planes.
+	SetQuery
 	// DiscRadius of the glTF discs, MinDiscRadius..MaxDiscRadius.
 	DiscRadius float64
 	// TraceStep is the largest spacing of trace points, MinPathStep..MaxPathStep.
@@ -210,9 +213,16 @@ func (s *Service) WriteTransfer(ctx context.Context, projectID int64, format str
 	default:
 		return domain.FieldErr("format", "unknown transfer format %q; want glb, geojson, points or ags", format)
 	}
+	sets, err := q.SetQuery.parse()
+	if err != nil {
+		return err
+	}
 	prog, err := s.Transfer(ctx, projectID, q.MeasurementQuery)
 	if err != nil {
 		return err
+	}
+	if _, err := prog.LabelSets(sets); err != nil {
+		return optionErr(err)
 	}
 	prog.TraceStep = q.TraceStep
 	if counted != nil {

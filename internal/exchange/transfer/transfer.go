@@ -26,6 +26,8 @@ import (
 	"corvane/internal/exchange/ags4"
 	"corvane/internal/exchange/geojson"
 	"corvane/internal/exchange/gltf"
+	"corvane/internal/fabric"
+	"corvane/internal/geom"
 	"corvane/internal/northref"
 	"corvane/internal/palette"
 	"corvane/internal/utm"
@@ -140,6 +142,32 @@ func (p *Programme) Count(hole string, placed, flagged bool) {
 	if flagged {
 		p.Holes[i].QAFlags++
 	}
+}
+
+// LabelSets forms the sets s on the poles of the programme's structures by
+// the statistics' own grouping (fabric.PlaneSets: k-means on the axes, one
+// set per type code, or windows; the same options as the statistics) and
+// writes each structure's set name, "" for a structure in no set. It
+// returns the method's description, "" when s asks for no sets, in which
+// case the structures keep the sets they came with. The structures are the
+// planes placed in space, so the sets are those of the statistics over the
+// same selection whenever every plane has a position.
+func (p *Programme) LabelSets(s fabric.Sets) (string, error) {
+	rows := make([]fabric.Row, len(p.Structures))
+	for i, st := range p.Structures {
+		rows[i] = fabric.Row{Type: st.Type, HasPlane: true, Plane: geom.Plane{Dip: st.Dip, DipDirection: st.DipDirection}}
+	}
+	assign, names, method, err := fabric.PlaneSets(rows, s)
+	if err != nil || method == "" {
+		return "", err
+	}
+	for i := range p.Structures {
+		p.Structures[i].Set = ""
+		if j := assign[i]; j >= 0 {
+			p.Structures[i].Set = names[j]
+		}
+	}
+	return method, nil
 }
 
 // TypesOf returns the sorted, distinct type codes of structures: the

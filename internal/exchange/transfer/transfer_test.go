@@ -8,8 +8,10 @@ import (
 
 	"corvane/internal/coreinterval"
 	"corvane/internal/desurvey"
+	"corvane/internal/dirstat"
 	"corvane/internal/exchange"
 	"corvane/internal/exchange/geojson"
+	"corvane/internal/fabric"
 )
 
 // The counts a GeoJSON hole carries and the grid the map is drawn through.
@@ -136,5 +138,31 @@ func TestGeoJSONStatesTheDatum(t *testing.T) {
 		if d.Grid != c.grid || d.ShiftApplied == nil || *d.ShiftApplied || (d.Note == geojson.DatumApproximation) != c.approx {
 			t.Errorf("%s: datum member %+v", c.crs, d)
 		}
+	}
+}
+
+// LabelSets writes the statistics' sets on the structures: windows by
+// name, "" for a pole in no window (exact geometry: the pole of 80/010
+// plunges 10 toward 190); without set options the structures keep theirs.
+func TestLabelSets(t *testing.T) {
+	p := Programme{Structures: []exchange.Structure{
+		{Dip: 80, DipDirection: 10, Type: "JN", Set: "old"},
+		{Dip: 20, DipDirection: 250, Type: "BD", Set: "old"},
+	}}
+	if m, err := p.LabelSets(fabric.Sets{}); err != nil || m != "" || p.Structures[0].Set != "old" {
+		t.Fatalf("no sets: %q %v %+v", m, err, p.Structures)
+	}
+	w, err := fabric.ParseWindow("J1:190/10:5", nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, err := p.LabelSets(fabric.Sets{Windows: []dirstat.Window{w}}); err != nil {
+		t.Fatal(err)
+	}
+	if p.Structures[0].Set != "J1" || p.Structures[1].Set != "" {
+		t.Errorf("windows: %+v", p.Structures)
+	}
+	if _, err := p.LabelSets(fabric.Sets{ByType: true}); err != nil || p.Structures[0].Set != "JN" || p.Structures[1].Set != "BD" {
+		t.Errorf("by type: %v %+v", err, p.Structures)
 	}
 }
