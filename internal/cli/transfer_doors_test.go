@@ -1,11 +1,13 @@
 package cli
 
 import (
+	"archive/zip"
 	"bytes"
 	"encoding/binary"
 	"encoding/csv"
 	"encoding/json"
 	"fmt"
+	"io"
 	"math"
 	"net/http"
 	"os"
@@ -76,7 +78,7 @@ func TestTransferDoors(t *testing.T) {
 	d := "../../testdata/zelvorra/"
 	code, _, stderr := runCLI("transfer", "--collars", d+"collars.csv", "--surveys", d+"surveys.csv", "--converted", converted,
 		"--output-reference", p.OutputAzimuthRef, "--types", strings.Join(codes, ","), "--project", p.Name,
-		"--glb", out("scene.glb"), "--geojson", out("holes.geojson"), "--points", out("points.csv"), "--ags", out("transfer.ags"),
+		"--glb", out("scene.glb"), "--gltf", out("scene.gltf"), "--geojson", out("holes.geojson"), "--points", out("points.csv"), "--ags", out("transfer.ags"),
 		"--intervals", intervals, "--disc-radius", "0.5", "--trace-step", "10")
 	if code != ExitOK {
 		t.Fatalf("transfer: exit %d: %s", code, stderr)
@@ -139,42 +141,33 @@ func TestTransferDoors(t *testing.T) {
 	if len(cliBin) != len(httpBin) {
 		t.Errorf("glb binary chunk: %d bytes by the command line, %d by the route", len(cliBin), len(httpBin))
 	}
-	cn, hn := cliDoc["nodes"].([]any), httpDoc["nodes"].([]any)
-	if len(cn) != len(hn) {
-		t.Fatalf("glTF nodes: %d by the command line, %d by the route", len(cn), len(hn))
+	compareScenes(t, "glb", cliDoc, httpDoc, len(cliPts)-1)
+
+	// The .gltf + .bin pair: the route's zip holds scene.gltf and the
+	// scene.bin it names; the command line's --gltf writes the same pair.
+	cliGLTF, cliGLTFBin := map[string]any{}, read("scene.bin")
+	if err := json.Unmarshal(read("scene.gltf"), &cliGLTF); err != nil {
+		t.Fatal(err)
 	}
-	discs := 0
-	for i := range cn {
-		a, b := cn[i].(map[string]any), hn[i].(map[string]any)
-		if _, ok := a["rotation"]; ok {
-			discs++
-			for _, k := range []string{"translation", "rotation"} {
-				va, vb := a[k].([]any), b[k].([]any)
-				for j := range va {
-					if math.Abs(va[j].(float64)-vb[j].(float64)) > 2e-3 {
-						t.Fatalf("glTF node %d %s: %v by the command line, %v by the route", i, k, va, vb)
-					}
-				}
-				delete(a, k)
-				delete(b, k)
-			}
-			delete(a, "extras") // dip and dip direction, as in the points
-			delete(b, "extras")
-		}
-		ja, _ := json.Marshal(a)
-		jb, _ := json.Marshal(b)
-		if !bytes.Equal(ja, jb) {
-			t.Fatalf("glTF node %d: %s by the command line, %s by the route", i, ja, jb)
-		}
+	zipped := unzip(t, getRoute(t, srv, token, base+"/scene.gltf.zip?disc_radius=0.5&trace_step=10"))
+	if len(zipped) != 2 || zipped["scene.gltf"] == nil || zipped["scene.bin"] == nil {
+		t.Fatalf("scene.gltf.zip holds %d files, want scene.gltf and scene.bin", len(zipped))
 	}
-	if discs != len(cliPts)-1 {
-		t.Errorf("%d disc nodes, want %d", discs, len(cliPts)-1)
+	httpGLTF := map[string]any{}
+	if err := json.Unmarshal(zipped["scene.gltf"], &httpGLTF); err != nil {
+		t.Fatal(err)
 	}
-	for _, k := range []string{"asset", "materials", "meshes", "accessors", "bufferViews", "buffers", "scenes"} {
-		ja, _ := json.Marshal(cliDoc[k])
-		jb, _ := json.Marshal(httpDoc[k])
-		if !bytes.Equal(ja, jb) {
-			t.Errorf("glTF %s differs: %.300s by the command line, %.300s by the route", k, ja, jb)
+	if len(cliGLTFBin) != len(zipped["scene.bin"]) || len(zipped["scene.bin"]) != len(httpBin) {
+		t.Errorf(".bin: %d bytes by the command line, %d in the route's zip, %d in the .glb", len(cliGLTFBin), len(zipped["scene.bin"]), len(httpBin))
+	}
+	compareScenes(t, "gltf", cliGLTF, httpGLTF, len(cliPts)-1)
+	zdir := filepath.Join(dir, "zip")
+	if err := os.MkdirAll(zdir, 0o755); err != nil {
+		t.Fatal(err)
+	}
+	for n, b := range zipped {
+		if err := os.WriteFile(filepath.Join(zdir, n), b, 0o644); err != nil {
+			t.Fatal(err)
 		}
 	}
 
@@ -184,7 +177,7 @@ func TestTransferDoors(t *testing.T) {
 		t.Fatal(err)
 	}
 	t.Run("khronos", func(t *testing.T) {
-		exchangetest.RequireValid(t, exchangetest.ValidatorDir(t), out("scene.glb"), out("route.glb"))
+		exchangetest.RequireValid(t, exchangetest.ValidatorDir(t), out("scene.glb"), out("route.glb"), out("scene.gltf"), filepath.Join(zdir, "scene.gltf"))
 	})
 
 	// AGS4: LOCA and HORN the same; DISC the same rows, whole degrees equal
@@ -272,4 +265,72 @@ func glbParts(t *testing.T, b []byte) (map[string]any, []byte) {
 	rest := b[20+jl:]
 	bl := int(binary.LittleEndian.Uint32(rest))
 	return doc, rest[8 : 8+bl]
+}
+
+// compareScenes compares the glTF documents of the two doors: the same JSON
+// but for the disc nodes' translations and rotations (positions and poles,
+// within the converted CSV's roundings) and their extras (dip and dip
+// direction, as in the points).
+func compareScenes(t *testing.T, what string, cliDoc, httpDoc map[string]any, wantDiscs int) {
+	t.Helper()
+	cn, hn := cliDoc["nodes"].([]any), httpDoc["nodes"].([]any)
+	if len(cn) != len(hn) {
+		t.Fatalf(what+" glTF nodes: %d by the command line, %d by the route", len(cn), len(hn))
+	}
+	discs := 0
+	for i := range cn {
+		a, b := cn[i].(map[string]any), hn[i].(map[string]any)
+		if _, ok := a["rotation"]; ok {
+			discs++
+			for _, k := range []string{"translation", "rotation"} {
+				va, vb := a[k].([]any), b[k].([]any)
+				for j := range va {
+					if math.Abs(va[j].(float64)-vb[j].(float64)) > 2e-3 {
+						t.Fatalf("glTF node %d %s: %v by the command line, %v by the route", i, k, va, vb)
+					}
+				}
+				delete(a, k)
+				delete(b, k)
+			}
+			delete(a, "extras") // dip and dip direction, as in the points
+			delete(b, "extras")
+		}
+		ja, _ := json.Marshal(a)
+		jb, _ := json.Marshal(b)
+		if !bytes.Equal(ja, jb) {
+			t.Fatalf("glTF node %d: %s by the command line, %s by the route", i, ja, jb)
+		}
+	}
+	if discs != wantDiscs {
+		t.Errorf("%s: %d disc nodes, want %d", what, discs, wantDiscs)
+	}
+	for _, k := range []string{"asset", "materials", "meshes", "accessors", "bufferViews", "buffers", "scenes"} {
+		ja, _ := json.Marshal(cliDoc[k])
+		jb, _ := json.Marshal(httpDoc[k])
+		if !bytes.Equal(ja, jb) {
+			t.Errorf("%s: glTF %s differs: %.300s by the command line, %.300s by the route", what, k, ja, jb)
+		}
+	}
+}
+
+// unzip returns the files of a zip archive by name.
+func unzip(t *testing.T, b []byte) map[string][]byte {
+	t.Helper()
+	zr, err := zip.NewReader(bytes.NewReader(b), int64(len(b)))
+	if err != nil {
+		t.Fatal(err)
+	}
+	out := map[string][]byte{}
+	for _, f := range zr.File {
+		r, err := f.Open()
+		if err != nil {
+			t.Fatal(err)
+		}
+		out[f.Name], err = io.ReadAll(r)
+		r.Close()
+		if err != nil {
+			t.Fatal(err)
+		}
+	}
+	return out
 }

@@ -87,7 +87,7 @@ func (s *Server) routes() {
 	p.GET("/net", need(domain.RoleRead), s.heavy, s.net)
 	p.GET("/rose", need(domain.RoleRead), s.heavy, s.rose)
 
-	for _, name := range []string{"scene.glb", "holes.geojson", "points.csv", "transfer.ags"} {
+	for _, name := range []string{"scene.glb", "scene.gltf.zip", "holes.geojson", "points.csv", "transfer.ags"} {
 		p.GET("/"+name, need(domain.RoleRead), s.heavy, s.transferExport(name))
 	}
 

@@ -13,14 +13,15 @@ import (
 
 // transferFormats are the transfer export routes: path suffix -> format,
 // content type and file name. A .gltf with its .bin is two files, which one
-// HTTP response cannot carry without a wrapper; the routes serve the
-// single-file .glb, which every glTF reader takes, and `corvane transfer
-// --gltf` writes the pair.
+// HTTP response carries as a zip archive (scene.gltf and scene.bin, as
+// `corvane transfer --gltf` writes them); the single-file .glb is the other
+// form of the same scene.
 var transferFormats = map[string]struct{ format, contentType, file string }{
-	"scene.glb":     {service.FormatGLB, "model/gltf-binary", "scene-%d.glb"},
-	"holes.geojson": {service.FormatGeoJSON, "application/geo+json", "holes-%d.geojson"},
-	"points.csv":    {service.FormatPoints, "text/csv; charset=utf-8", "points-%d.csv"},
-	"transfer.ags":  {service.FormatAGS, "text/plain; charset=us-ascii", "transfer-%d.ags"},
+	"scene.glb":      {service.FormatGLB, "model/gltf-binary", "scene-%d.glb"},
+	"scene.gltf.zip": {service.FormatGLTFZip, "application/zip", "scene-%d.gltf.zip"},
+	"holes.geojson":  {service.FormatGeoJSON, "application/geo+json", "holes-%d.geojson"},
+	"points.csv":     {service.FormatPoints, "text/csv; charset=utf-8", "points-%d.csv"},
+	"transfer.ags":   {service.FormatAGS, "text/plain; charset=us-ascii", "transfer-%d.ags"},
 }
 
 // optNum reads an optional number parameter through numParam; absent is 0

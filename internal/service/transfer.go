@@ -134,10 +134,11 @@ func (s *Service) Transfer(ctx context.Context, projectID int64, q MeasurementQu
 
 // Transfer formats of [Service.WriteTransfer].
 const (
-	FormatGLB     = "glb"     // binary glTF 2.0 scene
-	FormatGeoJSON = "geojson" // RFC 7946 collars and surface traces
-	FormatPoints  = "points"  // points with normals CSV
-	FormatAGS     = "ags"     // AGS4
+	FormatGLB     = "glb"      // binary glTF 2.0 scene
+	FormatGLTFZip = "gltf-zip" // glTF 2.0 scene as .gltf + .bin in a zip archive
+	FormatGeoJSON = "geojson"  // RFC 7946 collars and surface traces
+	FormatPoints  = "points"   // points with normals CSV
+	FormatAGS     = "ags"      // AGS4
 )
 
 // Bounds of the transfer options (in metres or the project's length unit).
@@ -209,9 +210,9 @@ func (s *Service) WriteTransfer(ctx context.Context, projectID int64, format str
 		return err
 	}
 	switch format {
-	case FormatGLB, FormatGeoJSON, FormatPoints, FormatAGS:
+	case FormatGLB, FormatGLTFZip, FormatGeoJSON, FormatPoints, FormatAGS:
 	default:
-		return domain.FieldErr("format", "unknown transfer format %q; want glb, geojson, points or ags", format)
+		return domain.FieldErr("format", "unknown transfer format %q; want glb, gltf-zip, geojson, points or ags", format)
 	}
 	sets, err := q.SetQuery.parse()
 	if err != nil {
@@ -231,6 +232,8 @@ func (s *Service) WriteTransfer(ctx context.Context, projectID int64, format str
 	switch format {
 	case FormatGLB:
 		return prog.WriteGLB(w, transfer.SceneOptions{Origin: q.Origin, DiscRadius: q.DiscRadius})
+	case FormatGLTFZip:
+		return prog.WriteGLTFZip(w, "scene", transfer.SceneOptions{Origin: q.Origin, DiscRadius: q.DiscRadius})
 	case FormatGeoJSON:
 		if _, err := prog.Inverse(q.CRS); err != nil {
 			return domain.FieldErr("crs", "GeoJSON needs the collars' coordinate system: %v", err)

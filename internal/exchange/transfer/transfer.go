@@ -11,6 +11,7 @@
 package transfer
 
 import (
+	"archive/zip"
 	"errors"
 	"fmt"
 	"io"
@@ -250,6 +251,53 @@ func (p *Programme) WriteGLTF(jsonW, binW io.Writer, binName string, o SceneOpti
 		return err
 	}
 	return gltf.WriteGLTF(jsonW, binW, binName, traces, p.Structures, g)
+}
+
+// WriteGLTFZip writes the programme as a zip archive of name.gltf and the
+// buffer name.bin it refers to (beside it, by that relative name): the
+// .gltf + .bin pair in one file, as one HTTP answer can carry it. The
+// buffer is streamed into the archive first, then the JSON.
+func (p *Programme) WriteGLTFZip(w io.Writer, name string, o SceneOptions) error {
+	if name == "" || strings.ContainsAny(name, `/\`) {
+		return fmt.Errorf("scene name %q: want a plain file name", name)
+	}
+	zw := zip.NewWriter(w)
+	when := time.Now().UTC()
+	entry := func(file string) (io.Writer, error) {
+		return zw.CreateHeader(&zip.FileHeader{Name: file, Method: zip.Deflate, Modified: when})
+	}
+	bin, err := entry(name + ".bin")
+	if err != nil {
+		return err
+	}
+	js := &lazyEntry{open: func() (io.Writer, error) { return entry(name + ".gltf") }}
+	if err := p.WriteGLTF(js, bin, name+".bin", o); err != nil {
+		return err
+	}
+	if js.w == nil { // nothing written: still a .gltf entry
+		if _, err := js.Write(nil); err != nil {
+			return err
+		}
+	}
+	return zw.Close()
+}
+
+// lazyEntry opens its zip entry at the first write, so that an entry
+// written before it (the buffer) is complete when it starts.
+type lazyEntry struct {
+	open func() (io.Writer, error)
+	w    io.Writer
+}
+
+func (l *lazyEntry) Write(b []byte) (int, error) {
+	if l.w == nil {
+		w, err := l.open()
+		if err != nil {
+			return 0, err
+		}
+		l.w = w
+	}
+	return l.w.Write(b)
 }
 
 // WritePoints writes the structures as points with normals (csvio.WritePoints).
