@@ -56,6 +56,11 @@ var (
 	TraceExtrapolated = RGB{0xA0, 0xA0, 0xA0}
 )
 
+// Uncertainty is the colour of a structure's 95% uncertainty region drawn in
+// 3D (translucent, over the type colour of its disc): a neutral light
+// violet-grey that no type colour uses.
+var Uncertainty = RGB{0xB8, 0xB0, 0xD0}
+
 // Unknown is the colour of a type code that has no style in the scheme
 // (mid grey, outside the type palette).
 var Unknown = RGB{0x80, 0x80, 0x80}

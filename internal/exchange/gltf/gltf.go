@@ -65,6 +65,12 @@ type Options struct {
 	DiscSegments int
 	// Colours colours the discs by type (see palette.New).
 	Colours palette.Scheme
+	// Uncertainty draws, for each structure with an uncertainty below 90
+	// degrees, its 95% cone of possible poles: a translucent double cone
+	// with its apex at the disc's centre, its axis along the pole, the
+	// half-angle of the uncertainty and a slant length of the disc radius
+	// (a child node of the disc, one shared mesh scaled per structure).
+	Uncertainty bool
 }
 
 // Defaults of [Options].
@@ -72,6 +78,11 @@ const (
 	DefaultDiscRadius   = 1.0
 	DefaultDiscSegments = 24
 )
+
+// UncertaintyNote is what the asset's extras say of the uncertainty cones.
+const UncertaintyNote = "each structure with an uncertainty has a child node \"uncertainty\": a translucent double cone " +
+	"about the pole, apex at the disc centre, half-angle = the 95% cone of the pole's uncertainty (extras.cone95, degrees), " +
+	"slant length = the disc radius; directions inside it are the poles within the 95% region"
 
 // Frame is the sentence the asset's extras carry about the axes.
 const Frame = "glTF axes: x = East, y = Up, z = -North (South); right-handed; metres relative to the origin in extras.origin (easting, northing, elevation of the inputs' frame)"
@@ -173,7 +184,44 @@ type layout struct {
 	discAcc      int // first disc accessor (positions, normals, indices)
 	traceMeshes0 int
 	discMesh0    int
+	cones        int // structures drawn with an uncertainty cone
+	coneOff      int // byte offset of the cone vertices, then its indices
+	coneAcc      int // cone accessors (positions, indices)
 }
+
+// ConeOf reports whether structure d gets an uncertainty cone under o, and
+// the node scale that turns the shared unit double cone (apex at the
+// origin, rims of radius 1 at y = +-1) into the cone of half-angle
+// d.Uncertainty with slant length o.DiscRadius.
+func ConeOf(d exchange.Structure, o Options) ([3]float64, bool) {
+	if !o.Uncertainty || !d.HasUncertainty() || !(d.Uncertainty > 0 && d.Uncertainty < 90) {
+		return [3]float64{}, false
+	}
+	r := o.DiscRadius
+	if r == 0 {
+		r = DefaultDiscRadius
+	}
+	sn, cs := math.Sincos(geom.Rad(d.Uncertainty))
+	return [3]float64{r * sn, r * cs, r * sn}, true
+}
+
+// coneVertex returns vertex k of the unit double cone: 0 the apex, 1..s the
+// upper rim, s+1..2s the lower rim.
+func coneVertex(k, segs int) [3]float32 {
+	if k == 0 {
+		return [3]float32{}
+	}
+	y := float32(1)
+	if k > segs {
+		k -= segs
+		y = -1
+	}
+	a := 2 * math.Pi * float64(k-1) / float64(segs)
+	return [3]float32{float32(math.Cos(a)), y, float32(-math.Sin(a))}
+}
+
+func (L *layout) coneVertexBytes() int { return 12 * (2*L.o.DiscSegments + 1) }
+func (L *layout) coneIndexCount() int  { return 6 * L.o.DiscSegments }
 
 func (o *Options) fill() error {
 	if o.DiscRadius == 0 {
@@ -273,6 +321,17 @@ func plan(traces []exchange.Trace, discs []exchange.Structure, o Options) (*layo
 	}
 	L.traceOff = L.discBytes
 	L.binLen = L.discBytes + L.traceBytes
+	for _, d := range discs {
+		if _, ok := ConeOf(d, o); ok {
+			L.cones++
+		}
+	}
+	if L.cones > 0 {
+		L.coneOff = L.binLen
+		L.coneAcc = acc
+		acc += 2
+		L.binLen += L.coneVertexBytes() + pad4(2*L.coneIndexCount())
+	}
 	L.nAccessors = acc
 	// Meshes: one per trace, then one per disc type.
 	L.traceMeshes0 = 0
@@ -402,6 +461,23 @@ func (L *layout) writeBin(w *bufio.Writer) error {
 			for _, pt := range t.Points[p.from : p.from+p.n] {
 				put(vertex(pt.Pos, c))
 			}
+		}
+	}
+	if L.cones > 0 {
+		s := L.o.DiscSegments
+		for k := 0; k <= 2*s; k++ {
+			put(coneVertex(k, s))
+		}
+		for k := 1; k <= s; k++ {
+			next := k%s + 1
+			// upper and lower sheet, both seen from outside
+			for _, i := range []int{0, next, k, 0, s + k, s + next} {
+				binary.LittleEndian.PutUint16(b[:], uint16(i))
+				w.Write(b[:2])
+			}
+		}
+		for i := 2 * L.coneIndexCount(); i < pad4(2*L.coneIndexCount()); i++ {
+			w.WriteByte(0)
 		}
 	}
 	return nil

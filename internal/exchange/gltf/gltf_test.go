@@ -35,6 +35,7 @@ type doc struct {
 		Children    []int           `json:"children"`
 		Translation [3]float64      `json:"translation"`
 		Rotation    *[4]float64     `json:"rotation"`
+		Scale       *[3]float64     `json:"scale"`
 		Extras      json.RawMessage `json:"extras"`
 	} `json:"nodes"`
 	Meshes []struct {
@@ -381,6 +382,94 @@ func TestKhronosValidator(t *testing.T) {
 	os.WriteFile(filepath.Join(tmp, "traces.glb"), tonly.Bytes(), 0o644)
 	os.WriteFile(filepath.Join(tmp, "discs.glb"), donly.Bytes(), 0o644)
 	exchangetest.RequireValid(t, dir, glb, gl, filepath.Join(tmp, "traces.glb"), filepath.Join(tmp, "discs.glb"))
+}
+
+// TestUncertaintyCones reads the cones back: every structure with an
+// uncertainty (every third of the test structures) has one child node whose
+// mesh, under the node transforms (the disc's translation and rotation,
+// the cone's scale), has its apex at the structure's position and every rim
+// vertex at the disc radius from it and at the uncertainty's angle from the
+// pole (exact geometry of the transforms, glTF 2.0 section 3.5.3: a child's
+// matrix is the parent's times its own T R S). Structures without an
+// uncertainty have none, and without the option no structure has one.
+// Every file passes the Khronos validator.
+func TestUncertaintyCones(t *testing.T) {
+	traces := exchangetest.Traces()
+	discs := exchangetest.Structures(60)
+	o := Options{Origin: OriginOf(traces, discs), DiscRadius: 1.5, Colours: palette.New(exchangetest.Types), Uncertainty: true, DiscSegments: 16}
+	var buf bytes.Buffer
+	if err := WriteGLB(&buf, traces, discs, o); err != nil {
+		t.Fatal(err)
+	}
+	d, bin := readGLB(t, buf.Bytes())
+	org := o.Origin
+	byName := discNodes(d)
+	cones := 0
+	for _, s := range discs {
+		name := s.Hole + " " + fmt.Sprint(s.Depth)
+		n := d.Nodes[byName[name]]
+		if !s.HasUncertainty() {
+			if len(n.Children) != 0 {
+				t.Errorf("%s: a cone without an uncertainty", name)
+			}
+			continue
+		}
+		if len(n.Children) != 1 {
+			t.Fatalf("%s: %d children, want the cone", name, len(n.Children))
+		}
+		cones++
+		c := d.Nodes[n.Children[0]]
+		if c.Scale == nil || c.Mesh == nil || c.Rotation != nil || c.Translation != [3]float64{} {
+			t.Fatalf("%s: cone node %+v", name, c)
+		}
+		p := d.Meshes[*c.Mesh].Primitives[0]
+		if d.Materials[p.Material].Name != "uncertainty 95%" {
+			t.Errorf("%s: cone material %q", name, d.Materials[p.Material].Name)
+		}
+		world := func(i int) geom.Vec3 {
+			v := d.vec3(bin, p.Attributes["POSITION"], i)
+			for k := range v {
+				v[k] *= c.Scale[k]
+			}
+			r := Rotate(*n.Rotation, v)
+			return FromGLTF([3]float64{r[0] + n.Translation[0], r[1] + n.Translation[1], r[2] + n.Translation[2]}).Add(org)
+		}
+		if apex := world(0); !near(apex, s.Pos, 1e-6) {
+			t.Errorf("%s: apex %v, want %v", name, apex, s.Pos)
+		}
+		count := d.Accessors[p.Attributes["POSITION"]].Count
+		if count != 2*16+1 {
+			t.Fatalf("cone of %d vertices", count)
+		}
+		for i := 1; i < count; i++ {
+			r := world(i).Sub(s.Pos)
+			ang := geom.Deg(math.Acos(math.Min(1, math.Abs(r.Unit().Dot(s.Pole)))))
+			if math.Abs(r.Norm()-o.DiscRadius) > 1e-5 || math.Abs(ang-s.Uncertainty) > 1e-4 {
+				t.Fatalf("%s: rim vertex %d at %.6g m and %.6g degrees from the pole, want %v and %v", name, i, r.Norm(), ang, o.DiscRadius, s.Uncertainty)
+			}
+		}
+	}
+	if cones != 20 {
+		t.Errorf("%d cones, want 20", cones)
+	}
+	var plain bytes.Buffer
+	o2 := o
+	o2.Uncertainty = false
+	if err := WriteGLB(&plain, traces, discs, o2); err != nil {
+		t.Fatal(err)
+	}
+	if pd, _ := readGLB(t, plain.Bytes()); len(pd.Nodes) != len(d.Nodes)-20 {
+		t.Errorf("without the option: %d nodes, want %d", len(pd.Nodes), len(d.Nodes)-20)
+	}
+	tmp := t.TempDir()
+	var js, bn bytes.Buffer
+	if err := WriteGLTF(&js, &bn, "cones.bin", traces, discs, o); err != nil {
+		t.Fatal(err)
+	}
+	os.WriteFile(filepath.Join(tmp, "cones.glb"), buf.Bytes(), 0o644)
+	os.WriteFile(filepath.Join(tmp, "cones.gltf"), js.Bytes(), 0o644)
+	os.WriteFile(filepath.Join(tmp, "cones.bin"), bn.Bytes(), 0o644)
+	exchangetest.RequireValid(t, exchangetest.ValidatorDir(t), filepath.Join(tmp, "cones.glb"), filepath.Join(tmp, "cones.gltf"))
 }
 
 // BenchmarkWriteGLB100k writes 1e5 discs and the three traces as .glb.

@@ -134,6 +134,10 @@ func (L *layout) writeJSON(w io.Writer, binName string) error {
 		j.raw(`,"disc_radius":`)
 		j.num(o.DiscRadius)
 	}
+	if L.cones > 0 {
+		j.raw(`,"uncertainty":`)
+		j.str(UncertaintyNote)
+	}
 	j.raw(`}},"scene":0,"scenes":[{"name":"corvane","nodes":[`)
 
 	// Nodes: [holes group] [structures group] trace nodes, type nodes, disc nodes.
@@ -152,6 +156,8 @@ func (L *layout) writeJSON(w io.Writer, binName string) error {
 	type0 := n
 	n += len(L.types)
 	disc0 := n
+	cone0 := disc0 + len(L.discs)
+	cone := 0 // cone nodes written so far
 	if holesNode >= 0 {
 		j.int(holesNode)
 	}
@@ -253,6 +259,32 @@ func (L *layout) writeJSON(w io.Writer, binName string) error {
 				j.raw(`,"uncertainty":`)
 				j.optNum(d.Uncertainty)
 			}
+			j.raw("}")
+			if _, ok := ConeOf(d, o); ok {
+				j.raw(`,"children":[`)
+				j.int(cone0 + cone)
+				j.raw("]")
+				cone++
+			}
+			j.raw("}")
+		}
+	}
+	// Cone nodes, in the order of their discs.
+	for ti := range L.types {
+		for _, d := range L.discs {
+			sc, ok := ConeOf(d, o)
+			if L.typeIndex[d.Type] != ti || !ok {
+				continue
+			}
+			sep()
+			j.raw(`{"name":`)
+			j.str(d.Hole + " " + strconv.FormatFloat(d.Depth, 'f', -1, 64) + " uncertainty")
+			j.raw(`,"mesh":`)
+			j.int(L.discMesh0 + len(L.types))
+			j.raw(`,"scale":`)
+			j.vec(sc)
+			j.raw(`,"extras":{"cone95":`)
+			j.num(d.Uncertainty)
 			j.raw("}}")
 		}
 	}
@@ -299,6 +331,18 @@ func (L *layout) writeJSON(w io.Writer, binName string) error {
 		j.int(typeMat0 + i)
 		j.raw("}]}")
 	}
+	if L.cones > 0 {
+		sep()
+		j.raw(`{"name":"uncertainty cone","primitives":[{"attributes":{"POSITION":`)
+		j.int(L.coneAcc)
+		j.raw(`},"indices":`)
+		j.int(L.coneAcc + 1)
+		j.raw(`,"mode":`)
+		j.int(modeTris)
+		j.raw(`,"material":`)
+		j.int(typeMat0 + len(L.types))
+		j.raw("}]}")
+	}
 
 	// Materials: the two trace materials (when there are traces), then one
 	// per type.
@@ -329,6 +373,15 @@ func (L *layout) writeJSON(w io.Writer, binName string) error {
 		sep()
 		material("type "+t, o.Colours.Colour(t), true)
 	}
+	if L.cones > 0 {
+		sep()
+		j.raw(`{"name":"uncertainty 95%","pbrMetallicRoughness":{"baseColorFactor":[`)
+		for _, x := range palette.Uncertainty.Linear() {
+			j.num(x)
+			j.raw(",")
+		}
+		j.raw(`0.35],"metallicFactor":0,"roughnessFactor":1},"alphaMode":"BLEND","doubleSided":true}`)
+	}
 
 	// Accessors: trace primitives, then the disc's positions, normals, indices.
 	j.raw(`],"accessors":[`)
@@ -342,6 +395,10 @@ func (L *layout) writeJSON(w io.Writer, binName string) error {
 	if L.traceBytes > 0 {
 		traceView = views
 		views++
+	}
+	coneView := views
+	if L.cones > 0 {
+		views += 2
 	}
 	for i := range L.traces {
 		for _, p := range L.tl[i].prims {
@@ -398,6 +455,36 @@ func (L *layout) writeJSON(w io.Writer, binName string) error {
 		j.int(s)
 		j.raw(`]}`)
 	}
+	if L.cones > 0 {
+		sep()
+		j.raw(`{"bufferView":`)
+		j.int(coneView)
+		j.raw(`,"componentType":`)
+		j.int(compFloat)
+		j.raw(`,"count":`)
+		j.int(2*s + 1)
+		var lo, hi [3]float32
+		for k := 0; k <= 2*s; k++ {
+			v := coneVertex(k, s)
+			for c := 0; c < 3; c++ {
+				lo[c] = min(lo[c], v[c])
+				hi[c] = max(hi[c], v[c])
+			}
+		}
+		j.raw(`,"type":"VEC3","min":`)
+		j.vec32(lo)
+		j.raw(`,"max":`)
+		j.vec32(hi)
+		j.raw(`},{"bufferView":`)
+		j.int(coneView + 1)
+		j.raw(`,"componentType":`)
+		j.int(compUShort)
+		j.raw(`,"count":`)
+		j.int(L.coneIndexCount())
+		j.raw(`,"type":"SCALAR","min":[0],"max":[`)
+		j.int(2 * s)
+		j.raw(`]}`)
+	}
 
 	// Buffer views and the buffer.
 	j.raw(`],"bufferViews":[`)
@@ -425,6 +512,10 @@ func (L *layout) writeJSON(w io.Writer, binName string) error {
 	}
 	if L.traceBytes > 0 {
 		view(L.traceOff, L.traceBytes, targetVert)
+	}
+	if L.cones > 0 {
+		view(L.coneOff, L.coneVertexBytes(), targetVert)
+		view(L.coneOff+L.coneVertexBytes(), 2*L.coneIndexCount(), targetIdx)
 	}
 	j.raw(`],"buffers":[{"byteLength":`)
 	j.int(L.binLen)
