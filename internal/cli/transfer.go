@@ -7,6 +7,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"time"
 
@@ -50,6 +51,10 @@ was made from, desurveys the holes the same way (give the same --method, --feet,
                   and RQD as corvane intervals computes them), DISC (structures; dip and
                   dip direction to the whole degree).
 
+Uncertainty: with --uncertainty each structure carries the 95% cone of its pole's
+uncertainty from the converted file's pole_cone95 column: the points get an uncertainty
+column and each glTF disc a translucent cone about its pole of that half-angle.
+
 Sets: with --sets auto:N, --sets type or --set windows (the options of corvane stats)
 each structure is labelled with its set (A, B, C... for automatic sets), formed on the
 poles of the structures written by the statistics' own grouping; the label goes to the
@@ -90,6 +95,7 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 	var windows windowFlags
 	fs.Var(&windows, "set", "label structures with a set window NAME:TREND/PLUNGE:CONE on the poles (repeatable)")
 	seed := fs.Uint64("seed", fabric.DefaultSeed, "seed for --sets auto:N")
+	withUnc := fs.Bool("uncertainty", false, "carry each structure's 95% uncertainty cone (the converted file's pole_cone95): the points' uncertainty column and a cone per disc in glTF")
 	var opt convert.Options
 	paths := addPathFlags(fs, &opt)
 	fail, code, done := parseOrientArgs(env, fs, "transfer", args)
@@ -149,9 +155,16 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 		placed := r.HasPlane && r.HasPos && !math.IsNaN(r.Depth) // not: no dip direction, an error, a lineation alone
 		prog.Count(r.HoleID, placed, r.Warnings != "" || r.Error != "")
 		if placed {
-			prog.Structures = append(prog.Structures, exchange.Structure{Hole: r.HoleID, Depth: r.Depth, Pos: r.Pos, Pole: r.Plane.Normal(),
-				Dip: r.Plane.Dip, DipDirection: r.Plane.DipDirection, Type: r.Type, Set: r.Set, Uncertainty: math.NaN()})
+			st := exchange.Structure{Hole: r.HoleID, Depth: r.Depth, Pos: r.Pos, Pole: r.Plane.Normal(),
+				Dip: r.Plane.Dip, DipDirection: r.Plane.DipDirection, Type: r.Type, Set: r.Set, Uncertainty: math.NaN()}
+			if *withUnc {
+				st.Uncertainty = r.PoleCone95
+			}
+			prog.Structures = append(prog.Structures, st)
 		}
+	}
+	if *withUnc && !slices.ContainsFunc(prog.Structures, exchange.Structure.HasUncertainty) {
+		return usageErr("--uncertainty: %s has no %s values (convert writes them unless told not to)", *converted, csvio.ColPoleCone95)
 	}
 	sets, err := fabric.ParseSets(*setsFlag, "planes", windows, *seed)
 	if err != nil {
@@ -176,7 +189,7 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 		prog.Types = strings.Split(*typesFlag, ",")
 	}
 
-	so := transfer.SceneOptions{DiscRadius: *radius}
+	so := transfer.SceneOptions{DiscRadius: *radius, Uncertainty: *withUnc}
 	if *originFlag != "" {
 		o, err := transfer.ParseOrigin(*originFlag)
 		if err != nil {

@@ -3,6 +3,7 @@ package cli
 import (
 	"bytes"
 	"fmt"
+	"math"
 	"os"
 	"path/filepath"
 	"reflect"
@@ -11,6 +12,7 @@ import (
 	"testing"
 
 	"corvane/internal/exchange/ags4"
+	"corvane/internal/exchange/exchangetest"
 )
 
 // TestTransferSetsDoors: with the statistics' set options, both doors label
@@ -144,4 +146,78 @@ func jsonInt(t *testing.T, v any) int {
 		t.Fatalf("%v: not a whole number", v)
 	}
 	return n
+}
+
+// TestTransferUncertaintyDoors: with --uncertainty (the route's
+// uncertainty=true) both doors carry each structure's 95% cone: the points'
+// uncertainty column (the command line reads the converted file's
+// pole_cone95, written to 0.01 degree; the route has full precision) and
+// one cone node per disc in glTF, scaled to the same half-angle; both
+// scenes pass the Khronos validator.
+func TestTransferUncertaintyDoors(t *testing.T) {
+	ctx, svc, p := demoService(t)
+	dir := t.TempDir()
+	srv, token := readerServer(t, ctx, svc, p.ID)
+	base := "/v1/projects/" + strconv.FormatInt(p.ID, 10)
+	converted := filepath.Join(dir, "measurements.csv")
+	if err := os.WriteFile(converted, getRoute(t, srv, token, base+"/measurements.csv"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	d := "../../testdata/tallowmere/"
+	out := func(n string) string { return filepath.Join(dir, n) }
+	if code, _, stderr := runCLI("transfer", "--collars", d+"collars.csv", "--surveys", d+"surveys.csv", "--converted", converted,
+		"--output-reference", p.OutputAzimuthRef, "--project", p.Name, "--uncertainty",
+		"--glb", out("scene.glb"), "--points", out("points.csv")); code != ExitOK {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	cliPts := parseCSV(t, must(os.ReadFile(out("points.csv"))))
+	httpPts := parseCSV(t, getRoute(t, srv, token, base+"/points.csv?uncertainty=true"))
+	col := len(cliPts[0]) - 1
+	if cliPts[0][col] != "uncertainty" || httpPts[0][col] != "uncertainty" || len(cliPts) != len(httpPts) {
+		t.Fatalf("headers %v and %v, %d and %d rows", cliPts[0], httpPts[0], len(cliPts), len(httpPts))
+	}
+	with := 0
+	for i := 1; i < len(cliPts); i++ {
+		a, b := cliPts[i][col], httpPts[i][col]
+		if (a == "") != (b == "") {
+			t.Fatalf("row %d: uncertainty %q by the command line, %q by the route", i, a, b)
+		}
+		if a == "" {
+			continue
+		}
+		with++
+		if math.Abs(num(t, a)-num(t, b)) > 0.0101 {
+			t.Fatalf("row %d: uncertainty %s by the command line, %s by the route", i, a, b)
+		}
+	}
+	if with < 100 {
+		t.Fatalf("%d structures with an uncertainty", with)
+	}
+	httpGLB := getRoute(t, srv, token, base+"/scene.glb?uncertainty=true")
+	cones := func(b []byte) []float64 {
+		doc, _ := glbParts(t, b)
+		var out []float64
+		for _, n := range doc["nodes"].([]any) {
+			m := n.(map[string]any)
+			if sc, ok := m["scale"].([]any); ok {
+				out = append(out, sc[1].(float64)) // disc radius * cos(half-angle)
+			}
+		}
+		return out
+	}
+	a, b := cones(must(os.ReadFile(out("scene.glb")))), cones(httpGLB)
+	if len(a) != with || len(b) != with {
+		t.Fatalf("cones: %d by the command line, %d by the route, want %d", len(a), len(b), with)
+	}
+	for i := range a {
+		if math.Abs(a[i]-b[i]) > 2e-4 {
+			t.Fatalf("cone %d: scale %v by the command line, %v by the route", i, a[i], b[i])
+		}
+	}
+	if err := os.WriteFile(out("route.glb"), httpGLB, 0o644); err != nil {
+		t.Fatal(err)
+	}
+	t.Run("khronos", func(t *testing.T) {
+		exchangetest.RequireValid(t, exchangetest.ValidatorDir(t), out("scene.glb"), out("route.glb"))
+	})
 }

@@ -73,7 +73,7 @@ const (
 	ColDeclinationSource = "declination_source"
 	ColGridConvergence   = "grid_convergence"
 	ColConvergenceSource = "convergence_source"
-	ColPoleCone95        = "pole_cone95"
+	ColPoleCone95        = csvio.ColPoleCone95
 	ColPoleLong95        = "pole_long95"
 	ColPoleShort95       = "pole_short95"
 	ColPoleMethod        = "pole_method"

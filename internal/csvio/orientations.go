@@ -46,6 +46,10 @@ type OrientationRow struct {
 	Pos    geom.Vec3
 	// Set and Warnings are the set and warnings columns, "" when absent.
 	Set, Warnings string
+	// PoleCone95 is the pole_cone95 column (the 95% cone of the pole's
+	// uncertainty, degrees, as `corvane convert` writes it), NaN when the
+	// file has none or the cell is empty.
+	PoleCone95 float64
 
 	// Read only with [OrientationOptions].Geotech:
 	Alpha    float64 // alpha column, NaN when absent or empty
@@ -80,6 +84,9 @@ const (
 	colAzimuthRef   = "azimuth_reference"
 	colRockType     = "rock_type"
 	colWarnings     = "warnings"
+	// ColPoleCone95 is the half-angle of the 95% cone of the pole's
+	// uncertainty in degrees, as `corvane convert` writes it.
+	ColPoleCone95 = "pole_cone95"
 )
 
 // ReadOrientations reads planes and lines from a CSV file whose header has
@@ -272,6 +279,14 @@ func ReadOrientationsWith(r io.Reader, name string, opt OrientationOptions) (row
 		}
 		if okE && okN && okZ {
 			row.HasPos, row.Pos = true, geom.Vec3{X: e, Y: n, Z: z}
+		}
+		row.PoleCone95 = math.NaN()
+		if v, ok := num(ColPoleCone95, 0, 180); ok {
+			row.PoleCone95 = v
+		}
+		if bad != nil {
+			problems = append(problems, bad)
+			continue
 		}
 		row.Type = cell(colType)
 		row.HoleID = cell(colHoleID)

@@ -62,6 +62,10 @@ func (s *Server) transferExport(name string) gin.HandlerFunc {
 			fail(c, err)
 			return
 		}
+		if q.Uncertainty, err = boolParam(c, "uncertainty"); err != nil {
+			fail(c, err)
+			return
+		}
 		if q.TraceStep, err = optNum(c, "trace_step"); err != nil {
 			fail(c, err)
 			return

@@ -25,9 +25,11 @@ const MaxTransferStructures = MaxStatsMeasurements
 // measurement without a plane and a position (an error, a vertical hole's
 // plane without a dip direction) is skipped and counted; one whose derived
 // values carry a warning or an error counts as a QA flag of its hole.
-// Colours go to the project's type vocabulary. The caller writes the files
-// with the Programme's methods, as `corvane transfer` does.
-func (s *Service) Transfer(ctx context.Context, projectID int64, q MeasurementQuery) (*transfer.Programme, error) {
+// Colours go to the project's type vocabulary. With withUncertainty each
+// structure carries the 95% cone of its pole's uncertainty, as the derived
+// values give it (NaN when it has none). The caller writes the files with
+// the Programme's methods, as `corvane transfer` does.
+func (s *Service) Transfer(ctx context.Context, projectID int64, q MeasurementQuery, withUncertainty bool) (*transfer.Programme, error) {
 	p, _, err := s.project(ctx, s.store, projectID, domain.RoleRead)
 	if err != nil {
 		return nil, err
@@ -116,13 +118,19 @@ func (s *Service) Transfer(ctx context.Context, projectID int64, q MeasurementQu
 			if err != nil {
 				return nil, err
 			}
-			r, _, oerr := hm.orient(m.Depth, m.Alpha, m.Beta, m.Gamma, m.ApparentThickness)
+			r, hmm, oerr := hm.orient(m.Depth, m.Alpha, m.Beta, m.Gamma, m.ApparentThickness)
 			dv := hm.derived(m.Depth, &r, oerr, nil)
 			placed := oerr == nil && !math.IsNaN(r.Plane.DipDirection)
 			prog.Count(hm.name, placed, dv.Error != "" || len(dv.Warnings) > 0)
 			if placed {
-				prog.Structures = append(prog.Structures, exchange.Structure{Hole: hm.name, Depth: m.Depth, Pos: r.Point.Pos, Pole: r.Plane.Normal(),
-					Dip: r.Plane.Dip, DipDirection: r.Plane.DipDirection, Type: m.TypeCode, Uncertainty: math.NaN()})
+				st := exchange.Structure{Hole: hm.name, Depth: m.Depth, Pos: r.Point.Pos, Pole: r.Plane.Normal(),
+					Dip: r.Plane.Dip, DipDirection: r.Plane.DipDirection, Type: m.TypeCode, Uncertainty: math.NaN()}
+				if withUncertainty {
+					if u := hm.uncertainty(&r, hmm); u != nil {
+						st.Uncertainty = u.Pole.Region().Cone95
+					}
+				}
+				prog.Structures = append(prog.Structures, st)
 			}
 		}
 		if len(ms) < domain.MaxLimit {
@@ -165,6 +173,10 @@ type TransferQuery struct {
 	CRS string
 	// Recipient is the AGS4 TRAN_RECV.
 	Recipient string
+	// Uncertainty carries each structure's 95% cone of the pole's
+	// uncertainty: the points' uncertainty column and, in glTF, a cone per
+	// structure (gltf.Options.Uncertainty).
+	Uncertainty bool
 }
 
 // check bounds the options that size work or land in a file, naming the
@@ -218,7 +230,7 @@ func (s *Service) WriteTransfer(ctx context.Context, projectID int64, format str
 	if err != nil {
 		return err
 	}
-	prog, err := s.Transfer(ctx, projectID, q.MeasurementQuery)
+	prog, err := s.Transfer(ctx, projectID, q.MeasurementQuery, q.Uncertainty)
 	if err != nil {
 		return err
 	}
@@ -231,9 +243,9 @@ func (s *Service) WriteTransfer(ctx context.Context, projectID int64, format str
 	}
 	switch format {
 	case FormatGLB:
-		return prog.WriteGLB(w, transfer.SceneOptions{Origin: q.Origin, DiscRadius: q.DiscRadius})
+		return prog.WriteGLB(w, transfer.SceneOptions{Origin: q.Origin, DiscRadius: q.DiscRadius, Uncertainty: q.Uncertainty})
 	case FormatGLTFZip:
-		return prog.WriteGLTFZip(w, "scene", transfer.SceneOptions{Origin: q.Origin, DiscRadius: q.DiscRadius})
+		return prog.WriteGLTFZip(w, "scene", transfer.SceneOptions{Origin: q.Origin, DiscRadius: q.DiscRadius, Uncertainty: q.Uncertainty})
 	case FormatGeoJSON:
 		if _, err := prog.Inverse(q.CRS); err != nil {
 			return domain.FieldErr("crs", "GeoJSON needs the collars' coordinate system: %v", err)

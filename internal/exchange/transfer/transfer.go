@@ -205,6 +205,9 @@ type SceneOptions struct {
 	Origin *[3]float64
 	// DiscRadius in metres; 0 means gltf.DefaultDiscRadius.
 	DiscRadius float64
+	// Uncertainty draws each structure's 95% uncertainty cone
+	// (gltf.Options.Uncertainty).
+	Uncertainty bool
 }
 
 // colours is the one type colour scheme of p's scene: its stored styles,
@@ -224,7 +227,7 @@ func (p *Programme) scene(o SceneOptions) ([]exchange.Trace, gltf.Options, error
 	if err != nil {
 		return nil, gltf.Options{}, err
 	}
-	g := gltf.Options{Origin: gltf.OriginOf(traces, p.Structures), DiscRadius: o.DiscRadius, Colours: p.colours()}
+	g := gltf.Options{Origin: gltf.OriginOf(traces, p.Structures), DiscRadius: o.DiscRadius, Colours: p.colours(), Uncertainty: o.Uncertainty}
 	if o.Origin != nil {
 		g.Origin.X, g.Origin.Y, g.Origin.Z = o.Origin[0], o.Origin[1], o.Origin[2]
 	}
