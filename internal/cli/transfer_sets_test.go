@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"fmt"
 	"math"
+	"net/http/httptest"
 	"os"
 	"path/filepath"
 	"reflect"
@@ -11,6 +12,7 @@ import (
 	"strings"
 	"testing"
 
+	"corvane/internal/domain"
 	"corvane/internal/exchange/ags4"
 	"corvane/internal/exchange/exchangetest"
 )
@@ -21,15 +23,8 @@ import (
 // and FRAC), and the labels are those of the statistics route over the same
 // selection: the count of each label equals the set's count there.
 func TestTransferSetsDoors(t *testing.T) {
-	ctx, svc, p := demoService(t)
-	dir := t.TempDir()
-	srv, token := readerServer(t, ctx, svc, p.ID)
-	base := "/v1/projects/" + strconv.FormatInt(p.ID, 10)
-	converted := filepath.Join(dir, "measurements.csv")
-	if err := os.WriteFile(converted, getRoute(t, srv, token, base+"/measurements.csv"), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	d := "../../testdata/tallowmere/"
+	tp := newTransferPair(t)
+	p, dir, srv, token, base, converted, d := tp.p, tp.dir, tp.srv, tp.token, tp.base, tp.converted, tp.data
 	for _, c := range []struct{ cli, route string }{
 		{"--sets auto:3 --seed 4", "sets=auto:3&seed=4"},
 		{"--sets type", "sets=type"},
@@ -155,15 +150,8 @@ func jsonInt(t *testing.T, v any) int {
 // one cone node per disc in glTF, scaled to the same half-angle; both
 // scenes pass the Khronos validator.
 func TestTransferUncertaintyDoors(t *testing.T) {
-	ctx, svc, p := demoService(t)
-	dir := t.TempDir()
-	srv, token := readerServer(t, ctx, svc, p.ID)
-	base := "/v1/projects/" + strconv.FormatInt(p.ID, 10)
-	converted := filepath.Join(dir, "measurements.csv")
-	if err := os.WriteFile(converted, getRoute(t, srv, token, base+"/measurements.csv"), 0o644); err != nil {
-		t.Fatal(err)
-	}
-	d := "../../testdata/tallowmere/"
+	tp := newTransferPair(t)
+	p, dir, srv, token, base, converted, d := tp.p, tp.dir, tp.srv, tp.token, tp.base, tp.converted, tp.data
 	out := func(n string) string { return filepath.Join(dir, n) }
 	if code, _, stderr := runCLI("transfer", "--collars", d+"collars.csv", "--surveys", d+"surveys.csv", "--converted", converted,
 		"--output-reference", p.OutputAzimuthRef, "--project", p.Name, "--uncertainty",
@@ -220,4 +208,26 @@ func TestTransferUncertaintyDoors(t *testing.T) {
 	t.Run("khronos", func(t *testing.T) {
 		exchangetest.RequireValid(t, exchangetest.ValidatorDir(t), out("scene.glb"), out("route.glb"))
 	})
+}
+
+// transferPair is the demo programme in a store behind the HTTP server and,
+// for the command line, the service's measurements.csv export as the
+// converted file beside the demo's collars and surveys (data).
+type transferPair struct {
+	p                          domain.Project
+	dir, base, converted, data string
+	srv                        *httptest.Server
+	token                      string
+}
+
+func newTransferPair(t *testing.T) transferPair {
+	t.Helper()
+	ctx, svc, p := demoService(t)
+	tp := transferPair{p: p, dir: t.TempDir(), base: "/v1/projects/" + strconv.FormatInt(p.ID, 10), data: "../../testdata/tallowmere/"}
+	tp.srv, tp.token = readerServer(t, ctx, svc, p.ID)
+	tp.converted = filepath.Join(tp.dir, "measurements.csv")
+	if err := os.WriteFile(tp.converted, getRoute(t, tp.srv, tp.token, tp.base+"/measurements.csv"), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return tp
 }
