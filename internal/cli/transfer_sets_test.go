@@ -223,7 +223,7 @@ type transferPair struct {
 func newTransferPair(t *testing.T) transferPair {
 	t.Helper()
 	ctx, svc, p := demoService(t)
-	tp := transferPair{p: p, dir: t.TempDir(), base: "/v1/projects/" + strconv.FormatInt(p.ID, 10), data: "../../testdata/tallowmere/"}
+	tp := transferPair{p: p, dir: t.TempDir(), base: "/v1/projects/" + strconv.FormatInt(p.ID, 10), data: "../../testdata/zelvorra/"}
 	tp.srv, tp.token = readerServer(t, ctx, svc, p.ID)
 	tp.converted = filepath.Join(tp.dir, "measurements.csv")
 	if err := os.WriteFile(tp.converted, getRoute(t, tp.srv, tp.token, tp.base+"/measurements.csv"), 0o644); err != nil {
