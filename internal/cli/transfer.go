@@ -58,7 +58,10 @@ column and each glTF disc a translucent cone about its pole of that half-angle.
 Sets: with --sets auto:N, --sets type or --set windows (the options of corvane stats)
 each structure is labelled with its set (A, B, C... for automatic sets), formed on the
 poles of the structures written by the statistics' own grouping; the label goes to the
-points' set column, the glTF disc's extras and AGS4 FRAC_SET (DISC and FRAC). Without
+points' set column, the glTF disc's extras and AGS4 FRAC_SET (DISC and FRAC); with
+--colour-by set the glTF discs are grouped and coloured by set (the nets' colours of the
+sets; sets by type keep their types' colours; structures in no set grey; without set
+options, the converted file's sets in sorted order). Without
 them, the converted file's set column is carried as it is.
 
 Rows of the converted file without a plane and position (no dip direction, an error, a
@@ -95,6 +98,7 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 	var windows windowFlags
 	fs.Var(&windows, "set", "label structures with a set window NAME:TREND/PLUNGE:CONE on the poles (repeatable)")
 	seed := fs.Uint64("seed", fabric.DefaultSeed, "seed for --sets auto:N")
+	colourBy := fs.String("colour-by", "type", "group and colour the glTF discs by type or by set (set needs the set options)")
 	withUnc := fs.Bool("uncertainty", false, "carry each structure's 95% uncertainty cone (the converted file's pole_cone95): the points' uncertainty column and a cone per disc in glTF")
 	var opt convert.Options
 	paths := addPathFlags(fs, &opt)
@@ -190,6 +194,12 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 	}
 
 	so := transfer.SceneOptions{DiscRadius: *radius, Uncertainty: *withUnc}
+	if so.BySet, err = transfer.ParseColourBy(*colourBy); err != nil {
+		return usageErr("--colour-by %v", err)
+	}
+	if so.BySet && !prog.HasSets() && (*glbOut != "" || *gltfOut != "") {
+		return usageErr("--colour-by set: %v", transfer.ErrNoSets)
+	}
 	if *originFlag != "" {
 		o, err := transfer.ParseOrigin(*originFlag)
 		if err != nil {

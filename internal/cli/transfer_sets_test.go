@@ -2,8 +2,10 @@ package cli
 
 import (
 	"bytes"
+	"encoding/json"
 	"fmt"
 	"math"
+	"net/http"
 	"net/http/httptest"
 	"os"
 	"path/filepath"
@@ -15,6 +17,8 @@ import (
 	"corvane/internal/domain"
 	"corvane/internal/exchange/ags4"
 	"corvane/internal/exchange/exchangetest"
+	"corvane/internal/palette"
+	"corvane/internal/visual"
 )
 
 // TestTransferSetsDoors: with the statistics' set options, both doors label
@@ -131,6 +135,60 @@ func TestTransferSetsDoors(t *testing.T) {
 		if fa, fb := fmt.Sprintf("%+v", ca.Spacings), fmt.Sprintf("%+v", ha.Spacings); fa != fb {
 			t.Errorf("%s: FRAC differs between the doors", c.cli)
 		}
+
+		// Discs grouped and coloured by set: the same materials at both
+		// doors; an automatic or window set j in the nets' colour of set j
+		// (visual.Pair), sets by type in their types' colours.
+		args = append(args, "--colour-by", "set")
+		if code, _, stderr := runCLI(args...); code != ExitOK {
+			t.Fatalf("%s --colour-by set: exit %d: %s", c.cli, code, stderr)
+		}
+		cliDoc, _ := glbParts(t, read("scene.glb"))
+		httpDoc, _ := glbParts(t, getRoute(t, srv, token, base+"/scene.glb?colour_by=set&"+c.route))
+		cm, hm := must(json.Marshal(cliDoc["materials"])), must(json.Marshal(httpDoc["materials"]))
+		if !bytes.Equal(cm, hm) {
+			t.Errorf("%s: materials by set differ:\n%s\n%s", c.cli, cm, hm)
+		}
+		if !strings.Contains(c.cli, "type") {
+			first := "A"
+			if strings.HasPrefix(c.cli, "--set ") {
+				first = "J1"
+			}
+			rgb, ok := palette.ParseHex(visual.Pair(0).Colour)
+			if !ok {
+				t.Fatal(visual.Pair(0))
+			}
+			lin := rgb.Linear()
+			var found bool
+			for _, m := range httpDoc["materials"].([]any) {
+				mm := m.(map[string]any)
+				if mm["name"] == "set "+first {
+					found = true
+					got := mm["pbrMetallicRoughness"].(map[string]any)["baseColorFactor"].([]any)
+					if math.Abs(got[0].(float64)-lin[0]) > 1e-9 {
+						t.Errorf("%s: set %s coloured %v, want %v", c.cli, first, got, lin)
+					}
+				}
+			}
+			if !found {
+				t.Errorf("%s: no material for set %s", c.cli, first)
+			}
+		}
+	}
+	// Discs by set need sets, at both doors.
+	if code, _, stderr := runCLI("transfer", "--collars", d+"collars.csv", "--surveys", d+"surveys.csv", "--converted", converted,
+		"--glb", filepath.Join(dir, "x.glb"), "--colour-by", "set"); code != ExitUsage || !strings.Contains(stderr, "needs sets") {
+		t.Errorf("--colour-by set without sets: exit %d: %s", code, stderr)
+	}
+	req, _ := http.NewRequest(http.MethodGet, srv.URL+base+"/scene.glb?colour_by=set", nil)
+	req.Header.Set("Authorization", "Bearer "+token)
+	res, err := srv.Client().Do(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	res.Body.Close()
+	if res.StatusCode != http.StatusUnprocessableEntity {
+		t.Errorf("colour_by=set without sets: status %d", res.StatusCode)
 	}
 }
 

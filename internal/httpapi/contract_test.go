@@ -329,7 +329,7 @@ func TestContractTour(t *testing.T) {
 	f.must(200, f.site, "GET", base+"/net?sets=type&domain=A%3DTR001:0..3", nil, nil)
 	f.must(422, f.site, "GET", base+"/net?domain=A%3DTR001&domain=B%3DTR001", nil, nil)
 	f.must(200, f.site, "GET", base+"/rose?of=strike&bin=15", nil, nil)
-	f.must(200, f.site, "GET", base+"/scene.glb?disc_radius=0.5&trace_step=10&origin=1000,2000,300&hole=TR001&sets=type", nil, nil)
+	f.must(200, f.site, "GET", base+"/scene.glb?disc_radius=0.5&trace_step=10&origin=1000,2000,300&hole=TR001&sets=type&colour_by=set", nil, nil)
 	f.must(200, f.site, "GET", base+"/scene.gltf.zip?hole=TR001&uncertainty=true", nil, nil)
 	f.must(422, f.site, "GET", base+"/holes.geojson?crs=EPSG:32750", nil, nil) // the fixture's collar is not in zone 50S
 	f.must(422, f.site, "GET", base+"/scene.glb?disc_radius=-1", nil, nil)

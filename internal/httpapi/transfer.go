@@ -62,6 +62,10 @@ func (s *Server) transferExport(name string) gin.HandlerFunc {
 			fail(c, err)
 			return
 		}
+		if q.BySet, err = transfer.ParseColourBy(c.Query("colour_by")); err != nil {
+			fail(c, domain.FieldErr("colour_by", "query parameter colour_by=%v", err))
+			return
+		}
 		if q.Uncertainty, err = boolParam(c, "uncertainty"); err != nil {
 			fail(c, err)
 			return

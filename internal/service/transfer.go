@@ -177,6 +177,13 @@ type TransferQuery struct {
 	// uncertainty: the points' uncertainty column and, in glTF, a cone per
 	// structure (gltf.Options.Uncertainty).
 	Uncertainty bool
+	// BySet groups and colours the glTF discs by set (transfer.ParseColourBy).
+	BySet bool
+}
+
+// scene is the glTF options of q.
+func (q TransferQuery) scene() transfer.SceneOptions {
+	return transfer.SceneOptions{Origin: q.Origin, DiscRadius: q.DiscRadius, Uncertainty: q.Uncertainty, BySet: q.BySet}
 }
 
 // check bounds the options that size work or land in a file, naming the
@@ -237,15 +244,18 @@ func (s *Service) WriteTransfer(ctx context.Context, projectID int64, format str
 	if _, err := prog.LabelSets(sets); err != nil {
 		return optionErr(err)
 	}
+	if q.BySet && !prog.HasSets() && (format == FormatGLB || format == FormatGLTFZip) {
+		return domain.FieldErr("colour_by", "%v", transfer.ErrNoSets)
+	}
 	prog.TraceStep = q.TraceStep
 	if counted != nil {
 		counted(TransferCounts{Holes: len(prog.Holes), Structures: len(prog.Structures), Skipped: prog.Skipped})
 	}
 	switch format {
 	case FormatGLB:
-		return prog.WriteGLB(w, transfer.SceneOptions{Origin: q.Origin, DiscRadius: q.DiscRadius, Uncertainty: q.Uncertainty})
+		return prog.WriteGLB(w, q.scene())
 	case FormatGLTFZip:
-		return prog.WriteGLTFZip(w, "scene", transfer.SceneOptions{Origin: q.Origin, DiscRadius: q.DiscRadius, Uncertainty: q.Uncertainty})
+		return prog.WriteGLTFZip(w, "scene", q.scene())
 	case FormatGeoJSON:
 		if _, err := prog.Inverse(q.CRS); err != nil {
 			return domain.FieldErr("crs", "GeoJSON needs the collars' coordinate system: %v", err)

@@ -65,6 +65,11 @@ type Options struct {
 	DiscSegments int
 	// Colours colours the discs by type (see palette.New).
 	Colours palette.Scheme
+	// BySet groups and colours the discs by their set instead of their
+	// type: one group node, mesh and material per set ("set A", ...; a
+	// structure in no set goes to "set (none)"), coloured by Colours looked
+	// up with the set's name.
+	BySet bool
 	// Uncertainty draws, for each structure with an uncertainty below 90
 	// degrees, its 95% cone of possible poles: a translucent double cone
 	// with its apex at the disc's centre, its axis along the pole, the
@@ -304,9 +309,9 @@ func plan(traces []exchange.Trace, discs []exchange.Structure, o Options) (*layo
 		if _, err := Rotation(d.Pole); err != nil {
 			return nil, fmt.Errorf("structure %d (hole %q, depth %g): %w", i+1, d.Hole, d.Depth, err)
 		}
-		if _, ok := L.typeIndex[d.Type]; !ok {
-			L.typeIndex[d.Type] = 0
-			L.types = append(L.types, d.Type)
+		if _, ok := L.typeIndex[L.group(d)]; !ok {
+			L.typeIndex[L.group(d)] = 0
+			L.types = append(L.types, L.group(d))
 		}
 	}
 	slices.Sort(L.types)
@@ -340,6 +345,36 @@ func plan(traces []exchange.Trace, discs []exchange.Structure, o Options) (*layo
 }
 
 func pad4(n int) int { return (n + 3) &^ 3 }
+
+// NoSet is the group of the structures in no set when discs go by set.
+const NoSet = "(none)"
+
+// group returns the group of disc d: its type, or its set with BySet.
+func (L *layout) group(d exchange.Structure) string {
+	if !L.o.BySet {
+		return d.Type
+	}
+	if d.Set == "" {
+		return NoSet
+	}
+	return d.Set
+}
+
+// meshName is the name of the disc mesh of group g.
+func (L *layout) meshName(g string) string {
+	if L.o.BySet {
+		return "disc set " + g
+	}
+	return "disc " + g
+}
+
+// groupWord names what the disc groups are ("type" or "set").
+func (L *layout) groupWord() string {
+	if L.o.BySet {
+		return "set"
+	}
+	return "type"
+}
 
 // vertex returns p relative to base in glTF axes as 32-bit floats.
 func vertex(p, base geom.Vec3) [3]float32 {

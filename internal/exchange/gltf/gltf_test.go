@@ -9,6 +9,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"slices"
 	"strings"
 	"testing"
 
@@ -470,6 +471,51 @@ func TestUncertaintyCones(t *testing.T) {
 	os.WriteFile(filepath.Join(tmp, "cones.gltf"), js.Bytes(), 0o644)
 	os.WriteFile(filepath.Join(tmp, "cones.bin"), bn.Bytes(), 0o644)
 	exchangetest.RequireValid(t, exchangetest.ValidatorDir(t), filepath.Join(tmp, "cones.glb"), filepath.Join(tmp, "cones.gltf"))
+}
+
+// TestDiscsBySet: with BySet the discs are grouped and coloured by set (the
+// test structures carry sets "1" to "3"; one without a set goes to
+// NoSet), each disc under its set's node with its set's material and
+// colour; the scene passes the Khronos validator.
+func TestDiscsBySet(t *testing.T) {
+	traces := exchangetest.Traces()
+	discs := exchangetest.Structures(30)
+	discs[4].Set = ""
+	sets := palette.New([]string{"1", "2", "3"})
+	o := Options{Origin: OriginOf(traces, discs), Colours: sets, BySet: true}
+	var buf bytes.Buffer
+	if err := WriteGLB(&buf, traces, discs, o); err != nil {
+		t.Fatal(err)
+	}
+	d, _ := readGLB(t, buf.Bytes())
+	groups := map[string][]int{}
+	for _, n := range d.Nodes {
+		if strings.HasPrefix(n.Name, "set ") {
+			groups[strings.TrimPrefix(n.Name, "set ")] = n.Children
+		}
+	}
+	if len(groups) != 4 || groups[NoSet] == nil {
+		t.Fatalf("set groups %v", groups)
+	}
+	for _, s := range discs {
+		name := s.Hole + " " + fmt.Sprint(s.Depth)
+		ni := discNodes(d)[name]
+		want := s.Set
+		if want == "" {
+			want = NoSet
+		}
+		if !slices.Contains(groups[want], ni) {
+			t.Errorf("%s (set %q) is not under set %s", name, s.Set, want)
+		}
+		m := d.Materials[d.Meshes[*d.Nodes[ni].Mesh].Primitives[0].Material]
+		lin := sets.Colour(s.Set).Linear()
+		if m.Name != "set "+want || math.Abs(m.PBR.BaseColorFactor[0]-lin[0]) > 1e-12 || math.Abs(m.PBR.BaseColorFactor[2]-lin[2]) > 1e-12 {
+			t.Errorf("%s: material %q %v, want set %s in %v", name, m.Name, m.PBR.BaseColorFactor, want, lin)
+		}
+	}
+	tmp := t.TempDir()
+	os.WriteFile(filepath.Join(tmp, "sets.glb"), buf.Bytes(), 0o644)
+	exchangetest.RequireValid(t, exchangetest.ValidatorDir(t), filepath.Join(tmp, "sets.glb"))
 }
 
 // BenchmarkWriteGLB100k writes 1e5 discs and the three traces as .glb.

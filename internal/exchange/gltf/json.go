@@ -210,7 +210,7 @@ func (L *layout) writeJSON(w io.Writer, binName string) error {
 	// Disc nodes are numbered by type, in input order within a type.
 	perType := make([]int, len(L.types))
 	for _, d := range L.discs {
-		perType[L.typeIndex[d.Type]]++
+		perType[L.typeIndex[L.group(d)]]++
 	}
 	start := make([]int, len(L.types))
 	for i := 1; i < len(L.types); i++ {
@@ -219,13 +219,13 @@ func (L *layout) writeJSON(w io.Writer, binName string) error {
 	for i, t := range L.types {
 		sep()
 		j.raw(`{"name":`)
-		j.str("type " + t)
+		j.str(L.groupWord() + " " + t)
 		children(disc0+start[i], perType[i])
 		j.raw("}")
 	}
 	for ti := range L.types {
 		for _, d := range L.discs {
-			if L.typeIndex[d.Type] != ti {
+			if L.typeIndex[L.group(d)] != ti {
 				continue
 			}
 			sep()
@@ -273,7 +273,7 @@ func (L *layout) writeJSON(w io.Writer, binName string) error {
 	for ti := range L.types {
 		for _, d := range L.discs {
 			sc, ok := ConeOf(d, o)
-			if L.typeIndex[d.Type] != ti || !ok {
+			if L.typeIndex[L.group(d)] != ti || !ok {
 				continue
 			}
 			sep()
@@ -318,7 +318,7 @@ func (L *layout) writeJSON(w io.Writer, binName string) error {
 	for i, t := range L.types {
 		sep()
 		j.raw(`{"name":`)
-		j.str("disc " + t)
+		j.str(L.meshName(t))
 		j.raw(`,"primitives":[{"attributes":{"POSITION":`)
 		j.int(L.discAcc)
 		j.raw(`,"NORMAL":`)
@@ -371,7 +371,7 @@ func (L *layout) writeJSON(w io.Writer, binName string) error {
 	}
 	for _, t := range L.types {
 		sep()
-		material("type "+t, o.Colours.Colour(t), true)
+		material(L.groupWord()+" "+t, o.Colours.Colour(t), true)
 	}
 	if L.cones > 0 {
 		sep()

@@ -83,6 +83,10 @@ type Programme struct {
 	Feet bool
 
 	index map[string]int // hole name -> index in Holes, built by Count
+	// sets are the set names of LabelSets in set order, bySetType whether
+	// they are type codes (sets by type).
+	sets      []string
+	bySetType bool
 }
 
 // ErrFeet refuses a programme in feet (see [Programme].Feet).
@@ -162,6 +166,7 @@ func (p *Programme) LabelSets(s fabric.Sets) (string, error) {
 	if err != nil || method == "" {
 		return "", err
 	}
+	p.sets, p.bySetType = names, s.ByType
 	for i := range p.Structures {
 		p.Structures[i].Set = ""
 		if j := assign[i]; j >= 0 {
@@ -208,7 +213,47 @@ type SceneOptions struct {
 	// Uncertainty draws each structure's 95% uncertainty cone
 	// (gltf.Options.Uncertainty).
 	Uncertainty bool
+	// BySet groups and colours the discs by the sets of [Programme.LabelSets]
+	// (gltf.Options.BySet): set j in the nets' style of set j
+	// (visual.Pair), sets by type in their types' colours, the structures in
+	// no set grey. It needs sets ([ErrNoSets]).
+	BySet bool
 }
+
+// setNames returns the sets of [Programme.LabelSets] in set order, or else
+// the sets the structures came with, sorted; nil when no structure has one.
+func (p *Programme) setNames() []string {
+	if len(p.sets) > 0 {
+		return p.sets
+	}
+	var names []string
+	for _, s := range p.Structures {
+		if s.Set != "" {
+			names = append(names, s.Set)
+		}
+	}
+	slices.Sort(names)
+	return slices.Compact(names)
+}
+
+// HasSets reports whether the structures carry sets (for discs by set).
+func (p *Programme) HasSets() bool { return len(p.setNames()) > 0 }
+
+// ParseColourBy reads how the discs are grouped and coloured, as the CLI's
+// --colour-by and the route's colour_by take it: "" or "type" (false),
+// "set" (true).
+func ParseColourBy(s string) (bySet bool, err error) {
+	switch strings.TrimSpace(s) {
+	case "", "type":
+		return false, nil
+	case "set":
+		return true, nil
+	}
+	return false, fmt.Errorf("%q: want type or set", s)
+}
+
+// ErrNoSets refuses discs by set when no sets were formed.
+var ErrNoSets = errors.New("colouring the discs by set needs sets: give the set options (automatic, by type code or windows)")
 
 // colours is the one type colour scheme of p's scene: its stored styles,
 // or the defaults of its vocabulary.
@@ -227,7 +272,20 @@ func (p *Programme) scene(o SceneOptions) ([]exchange.Trace, gltf.Options, error
 	if err != nil {
 		return nil, gltf.Options{}, err
 	}
-	g := gltf.Options{Origin: gltf.OriginOf(traces, p.Structures), DiscRadius: o.DiscRadius, Colours: p.colours(), Uncertainty: o.Uncertainty}
+	g := gltf.Options{Origin: gltf.OriginOf(traces, p.Structures), DiscRadius: o.DiscRadius, Colours: p.colours(), Uncertainty: o.Uncertainty, BySet: o.BySet}
+	if o.BySet {
+		names := p.setNames()
+		if len(names) == 0 {
+			return nil, gltf.Options{}, ErrNoSets
+		}
+		if !p.bySetType {
+			styles := make(map[string]visual.Style, len(names))
+			for j, name := range names {
+				styles[name] = visual.Pair(j)
+			}
+			g.Colours = palette.FromStyles(styles)
+		}
+	}
 	if o.Origin != nil {
 		g.Origin.X, g.Origin.Y, g.Origin.Z = o.Origin[0], o.Origin[1], o.Origin[2]
 	}
