@@ -92,15 +92,25 @@ func (s *Server) spacingReport(c *gin.Context) {
 	c.JSON(http.StatusOK, rep)
 }
 
-func (s *Server) domainsReport(c *gin.Context) {
+// projectGeo reads the project and the geotechnical query; false when it
+// has answered with the problem.
+func projectGeo(c *gin.Context) (int64, service.GeoQuery, bool) {
 	pid, err := pathID(c, "project")
 	if err != nil {
 		fail(c, err)
-		return
+		return 0, service.GeoQuery{}, false
 	}
 	q, err := geoQuery(c)
 	if err != nil {
 		fail(c, err)
+		return 0, service.GeoQuery{}, false
+	}
+	return pid, q, true
+}
+
+func (s *Server) domainsReport(c *gin.Context) {
+	pid, q, ok := projectGeo(c)
+	if !ok {
 		return
 	}
 	rep, err := s.opt.Service.Domains(c.Request.Context(), pid, q)
@@ -148,14 +158,8 @@ func (s *Server) slopeNet(c *gin.Context) {
 }
 
 func (s *Server) spacingNet(c *gin.Context) {
-	pid, err := pathID(c, "project")
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	q, err := geoQuery(c)
-	if err != nil {
-		fail(c, err)
+	pid, q, ok := projectGeo(c)
+	if !ok {
 		return
 	}
 	stream(c, "image/svg+xml", func(w *trackingWriter) error {

@@ -8,6 +8,7 @@ import (
 
 	"corvane/internal/dirstat"
 	"corvane/internal/domain"
+	"corvane/internal/fabric"
 	"corvane/internal/geotech"
 	"corvane/internal/kinematic"
 	"corvane/internal/netsvg"
@@ -68,6 +69,17 @@ func (s *Service) geoInput(ctx context.Context, projectID int64, q MeasurementQu
 	var in geotech.Input
 	p, err := s.eachView(ctx, projectID, q, func(v MeasurementView) { in.Rows = append(in.Rows, geotechRow(v)) })
 	return p, in, err
+}
+
+// setsAndInput parses q's set options and derives the measurements passing
+// its filter.
+func (s *Service) setsAndInput(ctx context.Context, projectID int64, q GeoQuery) (fabric.Sets, geotech.Input, error) {
+	sets, err := q.SetQuery.parse()
+	if err != nil {
+		return sets, geotech.Input{}, err
+	}
+	_, in, err := s.geoInput(ctx, projectID, q.MeasurementQuery)
+	return sets, in, err
 }
 
 // parseDomains reads the domain parameters and checks them together.
@@ -276,11 +288,7 @@ func (s *Service) SlopeCheck(ctx context.Context, projectID int64, q SlopeQuery)
 	if err != nil {
 		return geotech.SlopeReport{}, err
 	}
-	sets, err := q.SetQuery.parse()
-	if err != nil {
-		return geotech.SlopeReport{}, err
-	}
-	_, in, err := s.geoInput(ctx, projectID, q.MeasurementQuery)
+	sets, in, err := s.setsAndInput(ctx, projectID, q.GeoQuery)
 	if err != nil {
 		return geotech.SlopeReport{}, err
 	}
@@ -296,11 +304,7 @@ func (s *Service) SlopeCheck(ctx context.Context, projectID int64, q SlopeQuery)
 // by set, the set means with their 95% cones, and each unoriented
 // measurement's cone of possible poles as a dashed small circle.
 func (s *Service) SpacingNet(ctx context.Context, projectID int64, q GeoQuery, w io.Writer) error {
-	sets, err := q.SetQuery.parse()
-	if err != nil {
-		return err
-	}
-	_, in, err := s.geoInput(ctx, projectID, q.MeasurementQuery)
+	sets, in, err := s.setsAndInput(ctx, projectID, q)
 	if err != nil {
 		return err
 	}
@@ -330,11 +334,7 @@ func (s *Service) SlopeNet(ctx context.Context, projectID int64, q SlopeQuery, c
 	if err != nil {
 		return err
 	}
-	sets, err := q.SetQuery.parse()
-	if err != nil {
-		return err
-	}
-	_, in, err := s.geoInput(ctx, projectID, q.MeasurementQuery)
+	sets, in, err := s.setsAndInput(ctx, projectID, q.GeoQuery)
 	if err != nil {
 		return err
 	}
