@@ -88,28 +88,18 @@ func runToken(ctx context.Context, env *Env, args []string) int {
 			return fail(ExitUsage, "--name needs --project ID|NAME|all")
 		}
 	}
-	if v, _, err := store.Version(*db); err != nil {
-		return fail(ExitRows, "reading the schema version of %s: %s", store.Redact(*db), store.RedactIn(err.Error(), *db))
-	} else if v == 0 {
-		return fail(ExitRows, "the database %s has no schema yet: run corvane migrate up first", store.Redact(*db))
-	}
-	st, err := store.Open(ctx, *db)
-	if err != nil {
-		return fail(ExitRows, "%s", store.RedactIn(err.Error(), *db))
+	st, code := openStore(ctx, env, "token "+action, *db)
+	if st == nil {
+		return code
 	}
 	defer st.Close()
 	ctx = service.WithActor(ctx, service.Actor{Name: "command line", ProjectID: domain.AllProjects, Role: domain.RoleAdmin})
 	svc := service.New(st, nil)
 	pid := domain.AllProjects
 	if *project != "" && *project != "all" {
-		if n, err := strconv.ParseInt(*project, 10, 64); err == nil && n > 0 {
-			pid = n
-		} else {
-			p, err := st.GetProjectByName(ctx, *project)
-			if err != nil {
-				return fail(ExitRows, "no project with id or name %q", *project)
-			}
-			pid = p.ID
+		var err error
+		if pid, err = findProject(ctx, st, *project); err != nil {
+			return fail(ExitRows, "%s", domain.Public(err))
 		}
 	}
 	switch action {
@@ -143,6 +133,7 @@ func runToken(ctx context.Context, env *Env, args []string) int {
 			}
 			gone = append(gone, t)
 		} else {
+			var err error
 			if gone, err = svc.RevokeTokensNamed(ctx, pid, *name); err != nil {
 				return fail(ExitRows, "%s", domain.Public(err))
 			}
@@ -159,6 +150,42 @@ func runToken(ctx context.Context, env *Env, args []string) int {
 	fmt.Fprintf(env.Stderr, "token %d %q, role %s, for %s. Keep the secret below: it is not shown again.\n", t.ID, t.Name, t.Role, scopeOf(pid))
 	fmt.Fprintln(env.Stdout, secret)
 	return ExitOK
+}
+
+// openStore opens the database db for a command that works on it: a
+// database without a schema yet is refused with the command that makes
+// one. On failure the store is nil and code the exit status (the problem is
+// on standard error, passwords masked).
+func openStore(ctx context.Context, env *Env, cmd, db string) (st domain.Store, code int) {
+	if v, _, err := store.Version(db); err != nil {
+		fmt.Fprintf(env.Stderr, "corvane %s: reading the schema version of %s: %s\n", cmd, store.Redact(db), store.RedactIn(err.Error(), db))
+		return nil, ExitRows
+	} else if v == 0 {
+		fmt.Fprintf(env.Stderr, "corvane %s: the database %s has no schema yet: run corvane migrate up first\n", cmd, store.Redact(db))
+		return nil, ExitRows
+	}
+	st, err := store.Open(ctx, db)
+	if err != nil {
+		fmt.Fprintf(env.Stderr, "corvane %s: %s\n", cmd, store.RedactIn(err.Error(), db))
+		return nil, ExitRows
+	}
+	return st, ExitOK
+}
+
+// findProject is the project a --project flag names: a positive whole number
+// is its id (as in the routes), anything else its name.
+func findProject(ctx context.Context, st domain.Store, ref string) (int64, error) {
+	if n, err := strconv.ParseInt(ref, 10, 64); err == nil && n > 0 {
+		return n, nil
+	}
+	p, err := st.GetProjectByName(ctx, ref)
+	if err != nil {
+		if domain.IsKind(err, domain.NotFound) {
+			return 0, domain.Errorf(domain.NotFound, "no project with id or name %q", ref)
+		}
+		return 0, err
+	}
+	return p.ID, nil
 }
 
 func scopeOf(pid int64) string {

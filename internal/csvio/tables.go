@@ -173,10 +173,11 @@ func (c *collect) err(what string) error {
 }
 
 // Report writes err to w: the message, and then each row problem on its own
-// line when err lists several.
+// line when err lists several, or one that its message does not already say
+// (an import's "1 bad row; nothing was imported" and that row's problem).
 func Report(w io.Writer, err error) {
 	var de *domain.Error
-	if errors.As(err, &de) && len(de.Problems) > 1 {
+	if errors.As(err, &de) && (len(de.Problems) > 1 || len(de.Problems) == 1 && de.Problems[0].Error() != de.Error()) {
 		fmt.Fprintf(w, "%v:\n", de)
 		for _, p := range de.Problems {
 			fmt.Fprintf(w, "  %v\n", p)

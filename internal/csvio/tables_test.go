@@ -78,6 +78,25 @@ func TestReadCollarsErrors(t *testing.T) {
 	if strings.Count(buf.String(), "\n") != 7 {
 		t.Errorf("report:\n%s", buf.String())
 	}
+	// One problem under a heading of its own (as an import's "1 bad row;
+	// nothing was imported") is listed; one that is the message is not
+	// repeated.
+	one := domain.Errorf(domain.Invalid, "no hole %q", "Q").At(domain.Location{File: "m.csv", Line: 2, Column: "hole_id"})
+	for _, c := range []struct {
+		err  error
+		want string
+	}{
+		{&domain.Error{Kind: domain.Invalid, Msg: "1 bad row; nothing was imported", Loc: domain.Location{File: "m.csv"}, Problems: []*domain.Error{one}},
+			"m.csv: 1 bad row; nothing was imported:\n  m.csv:line 2, column \"hole_id\": no hole \"Q\"\n"},
+		{&domain.Error{Kind: domain.Invalid, Msg: one.Msg, Loc: one.Loc, Problems: []*domain.Error{one}},
+			"m.csv:line 2, column \"hole_id\": no hole \"Q\"\n"},
+	} {
+		buf.Reset()
+		Report(&buf, c.err)
+		if buf.String() != c.want {
+			t.Errorf("report of one problem:\n got %q\nwant %q", buf.String(), c.want)
+		}
+	}
 	_, err = ReadCollars(strings.NewReader("hole_id,easting,northing,elevation,azimuth,dip,depth\n\"A,1\n"), "c.csv")
 	if err == nil || !strings.Contains(err.Error(), "c.csv:line 2") || !strings.Contains(err.Error(), "broken CSV") {
 		t.Fatalf("broken CSV: %v", err)
