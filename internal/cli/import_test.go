@@ -220,6 +220,7 @@ func TestImportDoors(t *testing.T) {
 	} {
 		same(k.kind, k.kind, d+k.file, "")
 	}
+	same("intervals", "intervals", write("intervals.csv", "hole_id,from,to,recovered,solid,sound\nZR001,9,12,2.87,2.41,1.93\nZR001,12,15.5,3.5,3.1,2.2\n"), "")
 	same("measurements, dry run", "measurements", d+"structures.csv", "dry_run=true", "--dry-run")
 	same("measurements", "measurements", d+"structures.csv", "")
 
@@ -306,8 +307,8 @@ func TestImportDoors(t *testing.T) {
 			}
 		}
 	}
-	if imports != 5 { // collars, surveys, runs, measurements, the mended file
-		t.Errorf("%d import entries in the audit log, want 5", imports)
+	if imports != 6 { // collars, surveys, runs, intervals, measurements, the mended file
+		t.Errorf("%d import entries in the audit log, want 6", imports)
 	}
 }
 
