@@ -381,7 +381,7 @@ func (s *Server) putSurvey(c *gin.Context) {
 
 // listKindSets lists the hole's survey sets by kind and the set in use.
 func (s *Server) listKindSets(c *gin.Context) {
-	pid, hid, err := ids(c, "hole")
+	pid, hid, err := s.holeIDs(c)
 	if err != nil {
 		fail(c, err)
 		return
@@ -397,7 +397,7 @@ func (s *Server) listKindSets(c *gin.Context) {
 // putKindSet replaces the hole's survey set of a kind, as putSurvey does
 // (If-Match, or If-None-Match: * to create).
 func (s *Server) putKindSet(c *gin.Context) {
-	pid, hid, err := ids(c, "hole")
+	pid, hid, err := s.holeIDs(c)
 	if err != nil {
 		fail(c, err)
 		return
@@ -422,7 +422,7 @@ func (s *Server) putKindSet(c *gin.Context) {
 }
 
 func (s *Server) deleteKindSet(c *gin.Context) {
-	pid, hid, err := ids(c, "hole")
+	pid, hid, err := s.holeIDs(c)
 	if err != nil {
 		fail(c, err)
 		return
@@ -936,7 +936,7 @@ func (s *Server) listAudit(c *gin.Context) {
 // ---- core intervals
 
 func (s *Server) listIntervals(c *gin.Context) {
-	pid, hid, err := ids(c, "hole")
+	pid, hid, err := s.holeIDs(c)
 	if err != nil {
 		fail(c, err)
 		return
@@ -955,7 +955,7 @@ type intervalsInput struct {
 }
 
 func (s *Server) putIntervals(c *gin.Context) {
-	pid, hid, err := ids(c, "hole")
+	pid, hid, err := s.holeIDs(c)
 	if err != nil {
 		fail(c, err)
 		return

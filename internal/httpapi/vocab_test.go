@@ -76,8 +76,19 @@ func TestHoleByName(t *testing.T) {
 	if h.ID != num.ID {
 		t.Errorf("name:1042 gave hole %d, want %d", h.ID, num.ID)
 	}
-	f.must(200, f.site, "GET", base+"KR-01/path?step=10", nil, nil)
-	f.must(200, f.site, "GET", base+"KR-01/runs", nil, nil)
+	// Every route under /holes/{hole} takes the name.
+	for _, sub := range []string{"path?step=10", "runs", "surveys", "intervals", "qa"} {
+		f.must(200, f.site, "GET", base+"KR-01/"+sub, nil, nil)
+	}
+	var ivs struct {
+		Items []domain.CoreInterval `json:"items"`
+	}
+	f.must(200, f.site, "PUT", base+"KR-01/intervals", map[string]any{"intervals": []map[string]any{{"from": 1, "to": 2}}}, &ivs)
+	if len(ivs.Items) != 1 || ivs.Items[0].HoleID != kr.ID {
+		t.Errorf("intervals put by hole name: %+v, want one of hole %d", ivs.Items, kr.ID)
+	}
+	f.must(200, f.site, "PUT", base+"KR-01/surveys/gyro", map[string]any{"azimuth_ref": "true", "stations": []map[string]any{{"depth": 0, "azimuth": 0, "dip": -60}, {"depth": 50, "azimuth": 1, "dip": -60}}}, nil, "If-None-Match", "*")
+	f.must(204, f.site, "DELETE", base+"KR-01/surveys/gyro", nil, nil, "If-Match", `"1"`)
 	if p := f.do(f.site, "GET", base+"KR-99", nil).problem(t); p.Status != 404 {
 		t.Errorf("unknown hole name: %d, want 404", p.Status)
 	}
