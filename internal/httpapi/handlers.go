@@ -157,7 +157,9 @@ func (s *Server) putType(c *gin.Context) {
 		Colour      string `json:"colour"`
 		Mark        string `json:"mark"`
 	}
-	if err := s.decodeJSON(c, &in); err != nil {
+	// A type as GET .../types lists it may be sent back: its project_id
+	// and code are read-only (the path names the code).
+	if err := s.decodeEcho(c, &in, domain.TypeCode{}); err != nil {
 		fail(c, err)
 		return
 	}

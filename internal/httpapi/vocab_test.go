@@ -123,6 +123,31 @@ func TestGetBodyPutsBack(t *testing.T) {
 			t.Errorf("PUT %s with an unknown field: %d, want 400 or 422", path, p.Status)
 		}
 	}
+	// A type code as GET .../types lists it (project_id and code are
+	// read-only: the path names the code).
+	var types struct {
+		Items []map[string]any `json:"items"`
+	}
+	f.must(200, f.site, "GET", base+"/types", nil, &types)
+	var jn map[string]any
+	for _, it := range types.Items {
+		if it["code"] == "JN" {
+			jn = it
+		}
+	}
+	if jn == nil {
+		t.Fatalf("no type JN in %v", types.Items)
+	}
+	jn["description"] = "joint, edited"
+	var got domain.TypeCode
+	f.must(200, f.site, "PUT", base+"/types/JN", jn, &got)
+	if got.Code != "JN" || got.Description != "joint, edited" || got.Kind != jn["kind"] {
+		t.Errorf("type PUT back: %+v", got)
+	}
+	jn["no_such_field"] = 1
+	if p := f.do(f.site, "PUT", base+"/types/JN", jn).problem(t); p.Status != 422 && p.Status != 400 {
+		t.Errorf("PUT a type with an unknown field: %d, want 400 or 422", p.Status)
+	}
 }
 
 // TestImportDuplicatesOverHTTP: the duplicates query parameter reaches the
