@@ -9,6 +9,7 @@ import (
 	"math"
 	"os"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
 	"time"
@@ -304,5 +305,39 @@ func TestQAModel(t *testing.T) {
 	}
 	if code, _, errs := runWithEnv(t, nil, "qa", "--collars", p("collars.csv"), "--surveys", p("surveys.csv"), "--structures", p("structures.csv"), "--runs", p("runs.csv"), "--model", "emm"); code != ExitUsage || !strings.Contains(errs, "auto, wmm, igrf") {
 		t.Errorf("--model emm: %d %q", code, errs)
+	}
+}
+
+// TestQADemoWording: the demo's QA report (the README's command) counts in
+// plain English: no "1 measurements", "1 runs" or the like in any finding
+// (the demo flags runs with a single bedding measurement).
+func TestQADemoWording(t *testing.T) {
+	d := "../../testdata/zelvorra/"
+	out := filepath.Join(t.TempDir(), "qa.json")
+	code, _, errs := runCLI("qa", "--collars", d+"collars.csv", "--surveys", d+"surveys.csv", "--structures", d+"structures.csv",
+		"--runs", d+"runs.csv", "--persistent", "bedding", "-o", out)
+	if code != ExitOK {
+		t.Fatalf("qa: exit %d %s", code, errs)
+	}
+	b, err := os.ReadFile(out)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var rep qa.Report
+	if err := json.Unmarshal(b, &rep); err != nil {
+		t.Fatal(err)
+	}
+	onePlural := regexp.MustCompile(`\b1 (measurements|runs|poles|holes|rows|planes|lines|stations|findings)\b`)
+	single := 0
+	for _, f := range rep.Findings {
+		if m := onePlural.FindString(f.Message); m != "" {
+			t.Errorf("%s finding says %q: %s", f.Check, m, f.Message)
+		}
+		if strings.Contains(f.Message, "1 measurement's pole") {
+			single++
+		}
+	}
+	if single == 0 {
+		t.Error("no flag on a run with one measurement: the wording is not exercised")
 	}
 }

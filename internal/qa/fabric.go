@@ -3,6 +3,7 @@ package qa
 import (
 	"fmt"
 	"math"
+	"strconv"
 	"sync"
 
 	"corvane/internal/coreangle"
@@ -486,11 +487,11 @@ func rotationChecks(h *holeData, conv coreangle.Convention, o Options, readSD fu
 			Size: math.Abs(e.Offset), Unit: "deg", Source: "runs", Line: run.Line, ID: run.ID,
 			Message: fmt.Sprintf("run %.2f-%.2f: its %s fits the %s fabric (mean pole %03.0f/%02.0f from %s) after turning the core %+.1f deg about its axis "+
 				"(95%% interval %+.1f to %+.1f, from n = %d %s of the run), beyond the %.0f deg tolerance: the mark is likely off. "+
-				"Correcting it (logged beta %+.1f, not applied) would move the run's %d measurements' poles by up to %.1f deg, "+
+				"Correcting it (logged beta %+.1f, not applied) would move the run's %s by up to %.1f deg, "+
 				"dip directions by up to %.1f deg and dips by up to %.1f deg; median misfit %.1f -> %.1f deg",
 				run.From, run.To, o.PersistentType, map[string]string{"neighbours": "neighbouring runs'", "hole": "hole-wide"}[e.RefSource],
 				e.Reference.Trend, e.Reference.Plunge, words.Plural(e.ReferenceN, "pole"), e.Offset, lo, hi, e.N, words.Noun(e.N, "measurement"), o.RotationTolerance,
-				e.Offset, len(rr.Suggestions), maxTurn, maxDD, maxDip, e.MisfitBefore, e.MisfitAfter)})
+				e.Offset, polesOf(len(rr.Suggestions)), maxTurn, maxDD, maxDip, e.MisfitBefore, e.MisfitAfter)})
 	}
 	if total > 0 && 2*used < total {
 		out = append(out, Finding{Check: CheckMarkRotation, Severity: SeverityInfo, HoleID: h.c.HoleID, Size: float64(total - used), Source: "structures",
@@ -506,4 +507,12 @@ func finiteOr(v, def float64) float64 {
 		return def
 	}
 	return v
+}
+
+// polesOf is "1 measurement's pole" or "3 measurements' poles".
+func polesOf(n int) string {
+	if n == 1 {
+		return "1 measurement's pole"
+	}
+	return strconv.Itoa(n) + " measurements' poles"
 }
