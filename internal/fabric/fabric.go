@@ -27,6 +27,7 @@ import (
 
 	"corvane/internal/geom"
 	"corvane/internal/jsonnum"
+	"corvane/internal/words"
 )
 
 // Caution is shown with every statistics report, net and rose.
@@ -120,7 +121,7 @@ func usable(rows []Row) (used []Row, skipped []SkipCount) {
 func skipNotes(skipped []SkipCount) []string {
 	var out []string
 	for _, s := range skipped {
-		out = append(out, strconv.Itoa(s.Count)+" rows left out: "+s.Reason)
+		out = append(out, words.Plural(s.Count, "row")+" left out: "+s.Reason)
 	}
 	return out
 }

@@ -65,6 +65,22 @@ func TestSkipRule(t *testing.T) {
 		!strings.Contains(strings.Join(r.Notes, "\n"), "2 rows left out: "+SkipNoDipDirection) {
 		t.Errorf("rose of no usable rows: %+v, %v", r, err)
 	}
+	// Counts of one read as English: "1 row left out", "1 row: 1 plane".
+	one := []Row{rows[0], rows[1]}
+	r, err := Rose(Input{Rows: one}, RoseOptions{Of: RoseDipDirection, Bin: 10})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if notes := strings.Join(r.Notes, "\n"); notes != "2 rows: 1 plane\n1 row left out: "+SkipNoDipDirection {
+		t.Errorf("rose notes for one plane and one skipped row: %q", notes)
+	}
+	n, err := Net(Input{Rows: one}, NetOptions{Show: Show{Poles: true}})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if notes := strings.Join(n.Notes, "\n"); !strings.Contains(notes, "1 row left out: ") || strings.Contains(notes, "1 rows") {
+		t.Errorf("net notes for one skipped row: %q", notes)
+	}
 }
 
 // TestStatsExactGeometry: three poles 10 degrees apart in one vertical plane

@@ -3,6 +3,7 @@ package fabric
 import (
 	"fmt"
 	"strconv"
+	"strings"
 
 	"corvane/internal/netsvg"
 	"corvane/internal/words"
@@ -94,7 +95,7 @@ func Rose(in Input, o RoseOptions) (netsvg.Rose, error) {
 			r.Weights = append(r.Weights, g.weights[i])
 		}
 	}
-	r.Notes = []string{fmt.Sprintf("%s: %d %s", words.Plural(len(in.Rows), "row"), len(g.axes), kind)}
+	r.Notes = []string{words.Plural(len(in.Rows), "row") + ": " + words.Plural(len(g.axes), strings.TrimSuffix(kind, "s"))}
 	r.Notes = append(r.Notes, skipNotes(skipped)...)
 	if flat > 0 {
 		r.Notes = append(r.Notes, fmt.Sprintf("%s dipping less than %g left out", words.Plural(flat, "plane"), minDip))

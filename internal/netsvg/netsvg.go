@@ -10,7 +10,8 @@
 // Density fills use a light-to-dark ramp whose lightness falls steadily, so the
 // order of the levels survives greyscale printing too.
 //
-// netsvg imports only the standard library and corvane's math packages.
+// netsvg imports only the standard library, corvane's math packages and its
+// wording rules (package words).
 package netsvg
 
 import (
@@ -25,6 +26,7 @@ import (
 	"corvane/internal/geom"
 	"corvane/internal/projection"
 	"corvane/internal/visual"
+	"corvane/internal/words"
 )
 
 // densityRamp runs from light to dark with falling lightness.
@@ -446,13 +448,13 @@ func (s *svgw) panel(n Net) float64 {
 	line(12, "", n.Projection.String()+" projection")
 	y += 6
 	if len(n.Poles) > 0 {
-		line(11, "", fmt.Sprintf("%d poles to planes", len(n.Poles)))
+		line(11, "", words.Plural(len(n.Poles), "pole")+" to planes")
 	}
 	if len(n.Planes) > 0 {
-		line(11, "", fmt.Sprintf("%d great circles", len(n.Planes)))
+		line(11, "", words.Plural(len(n.Planes), "great circle"))
 	}
 	if len(n.Lines) > 0 {
-		line(11, "", fmt.Sprintf("%d lines", len(n.Lines)))
+		line(11, "", words.Plural(len(n.Lines), "line"))
 	}
 	for _, note := range n.Notes {
 		line(11, "", note)

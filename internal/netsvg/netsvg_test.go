@@ -203,7 +203,7 @@ func TestWriteNetWellFormed(t *testing.T) {
 		}
 		c := wellFormed(t, b.Bytes())
 		s := b.String()
-		for _, want := range []string{"Lower hemisphere", k.String() + " projection", "81 poles to planes", "80 great circles", "1 lines", "Test &amp; &lt;net&gt;", "For review only.", "clip-path", ">N<"} {
+		for _, want := range []string{"Lower hemisphere", k.String() + " projection", "81 poles to planes", "80 great circles", "1 line<", "Test &amp; &lt;net&gt;", "For review only.", "clip-path", ">N<"} {
 			if !strings.Contains(s, want) {
 				t.Errorf("%v: sheet lacks %q", k, want)
 			}
