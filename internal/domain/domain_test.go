@@ -92,3 +92,16 @@ func TestRoleRank(t *testing.T) {
 		t.Error("role order broken")
 	}
 }
+
+// TestParseDuplicates: the treatment is read as every option value is
+// (case and spaces do not count); anything else is refused on the field.
+func TestParseDuplicates(t *testing.T) {
+	for in, want := range map[string]string{"": DuplicatesRefuse, "skip": DuplicatesSkip, "Skip": DuplicatesSkip, " KEEP ": DuplicatesKeep, "refuse": DuplicatesRefuse} {
+		if got, err := ParseDuplicates(in); err != nil || got != want {
+			t.Errorf("ParseDuplicates(%q) = %q, %v; want %q", in, got, err, want)
+		}
+	}
+	if _, err := ParseDuplicates("twice"); err == nil || KindOf(err) != Invalid {
+		t.Errorf("ParseDuplicates(twice): %v", err)
+	}
+}

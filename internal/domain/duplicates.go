@@ -12,6 +12,8 @@ package domain
 // upload says how to treat them: DuplicatesSkip leaves them out,
 // DuplicatesKeep stores them anyway.
 
+import "corvane/internal/words"
+
 // Duplicate treatments.
 const (
 	DuplicatesRefuse = "refuse" // the default: each duplicate is a row problem
@@ -19,13 +21,14 @@ const (
 	DuplicatesKeep   = "keep"   // store duplicates and count them
 )
 
-// ParseDuplicates reads a duplicate treatment; "" is DuplicatesRefuse.
+// ParseDuplicates reads a duplicate treatment, spelt as any option value
+// (words.Option: "Skip" is skip); "" is DuplicatesRefuse.
 func ParseDuplicates(s string) (string, error) {
-	switch s {
+	switch v := words.Option(s); v {
 	case "":
 		return DuplicatesRefuse, nil
 	case DuplicatesRefuse, DuplicatesSkip, DuplicatesKeep:
-		return s, nil
+		return v, nil
 	}
 	return "", FieldErr("duplicates", "duplicates=%q: want refuse, skip or keep", s)
 }
