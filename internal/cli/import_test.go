@@ -263,6 +263,9 @@ func TestImportDoors(t *testing.T) {
 		if e.Column == "gamma" {
 			gammaLines[e.Line] = true
 		}
+		if e.Line == 5 && !strings.Contains(e.Detail, `no hole "ZX999" in the project (import its collar first)`) {
+			t.Errorf("line 5 (an unknown hole) does not say what to do: %+v", e)
+		}
 	}
 	if !reflect.DeepEqual(listed, want) {
 		t.Errorf("problem lists differ:\ncommand:\n  %s\nroute:\n  %s", strings.Join(listed, "\n  "), strings.Join(want, "\n  "))

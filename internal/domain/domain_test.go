@@ -3,6 +3,7 @@ package domain
 import (
 	"errors"
 	"fmt"
+	"strings"
 	"testing"
 )
 
@@ -103,5 +104,16 @@ func TestParseDuplicates(t *testing.T) {
 	}
 	if _, err := ParseDuplicates("twice"); err == nil || KindOf(err) != Invalid {
 		t.Errorf("ParseDuplicates(twice): %v", err)
+	}
+}
+
+// TestUnknownTypeCode names the codes there are, or says the vocabulary is
+// empty and what to do, instead of an empty list.
+func TestUnknownTypeCode(t *testing.T) {
+	if e := UnknownTypeCode("type", "vein", []TypeCode{{Code: "joint"}, {Code: "bedding"}}); e.Loc.Field != "type" || !strings.HasSuffix(e.Msg, "(joint, bedding)") {
+		t.Errorf("with a vocabulary: %v", e)
+	}
+	if e := UnknownTypeCode("type", "vein", nil); strings.Contains(e.Msg, "()") || !strings.Contains(e.Msg, "empty") || !strings.Contains(e.Msg, "/types/") {
+		t.Errorf("without one: %v", e)
 	}
 }

@@ -204,6 +204,9 @@ func FindTypeCode(vocab []TypeCode, code string) (TypeCode, bool) {
 // UnknownTypeCode is the error for a code not in vocab, naming the codes
 // there are; field is the field or column that gave it.
 func UnknownTypeCode(field, code string, vocab []TypeCode) *Error {
+	if len(vocab) == 0 {
+		return FieldErr(field, "type %q is not in the project's vocabulary, which is empty: add the project's type codes first (PUT .../types/{code})", code)
+	}
 	codes := make([]string, len(vocab))
 	for i, tc := range vocab {
 		codes[i] = tc.Code

@@ -69,7 +69,7 @@ func (s *Service) importDiscontinuities(ctx context.Context, st domain.Store, p 
 			return err
 		}
 		if !ok {
-			ps.add(r.Line, "LOCA_ID", "no hole %q in the project", r.Hole)
+			ps.add(r.Line, "LOCA_ID", "%s", noHoleMsg(r.Hole))
 			continue
 		}
 		if _, ok := domain.FindTypeCode(vocab, r.Type); !ok {
@@ -164,7 +164,7 @@ func coreIntervalsOf(ctx context.Context, rows []ags4.Core, holes *holeNames, ps
 			return nil, err
 		}
 		if !ok {
-			ps.add(r.Line, "LOCA_ID", "no hole %q in the project", r.Hole)
+			ps.add(r.Line, "LOCA_ID", "%s", noHoleMsg(r.Hole))
 			continue
 		}
 		bad := false

@@ -338,7 +338,7 @@ func importSurveys(ctx context.Context, st domain.Store, p domain.Project, body 
 				return err
 			}
 			if !ok {
-				ps.add(r.Line, csvio.ColHoleID, "no hole %q in the project (import its collar first)", r.HoleID)
+				ps.add(r.Line, csvio.ColHoleID, "%s", noHoleMsg(r.HoleID))
 				continue
 			}
 			ref := r.AzimuthRef
@@ -445,7 +445,7 @@ func importRuns(ctx context.Context, st domain.Store, p domain.Project, body io.
 			return err
 		}
 		if !ok {
-			ps.add(r.Line, csvio.ColHoleID, "no hole %q in the project", r.HoleID)
+			ps.add(r.Line, csvio.ColHoleID, "%s", noHoleMsg(r.HoleID))
 			continue
 		}
 		run := domain.Run{HoleID: h.ID, From: r.From, To: r.To, Confidence: r.Confidence}
@@ -554,7 +554,7 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 			return err
 		}
 		if !ok {
-			ps.add(r.Line, csvio.ColHoleID, "no hole %q in the project", r.HoleID)
+			ps.add(r.Line, csvio.ColHoleID, "%s", noHoleMsg(r.HoleID))
 			continue
 		}
 		m := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: r.Depth, Alpha: r.Alpha,
@@ -644,7 +644,12 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 	return nil
 }
 
-// orDefault returns s, or def when s is empty.
+// noHoleMsg is the problem of an imported row naming a hole the project
+// does not have, with what to do about it, the same for every import.
+func noHoleMsg(name string) string {
+	return fmt.Sprintf("no hole %q in the project (import its collar first)", name)
+}
+
 // holeNames finds a project's holes by name for an import, asking the store
 // once per name, whether the hole exists or not.
 type holeNames struct {
