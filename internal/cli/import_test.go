@@ -363,6 +363,18 @@ func TestImportCommandLine(t *testing.T) {
 	if code != ExitOK || out != "collars.csv: 8 rows read, 0 created, 8 updated (dry run: nothing was stored)\n" {
 		t.Errorf("dry run: exit %d, out %q, err %q", code, out, errs)
 	}
+	// A retry with the same idempotency key stores nothing again.
+	for i, want := range []string{"runs.csv: 688 rows read, 688 created, 0 updated\n",
+		"runs.csv: 688 rows read, 688 created, 0 updated (already imported with this idempotency key: nothing was stored again)\n"} {
+		code, out, errs := runCLI("import", "--db", db, "--project", "Firstlight", "--kind", "runs", "--as", "geo7", "--idempotency-key", "shift-0412", d+"runs.csv")
+		if code != ExitOK || out != want {
+			t.Errorf("runs, try %d: exit %d, out %q, err %q; want %q", i+1, code, out, errs, want)
+		}
+	}
+	rs, err := svc.ListRuns(ctx, pid, mustHole(t, ctx, svc, pid, "ZR001"))
+	if err != nil || len(rs) == 0 || len(rs) != countRows(t, d+"runs.csv", "ZR001") {
+		t.Errorf("runs of ZR001 after a retried import: %d (%v), want %d", len(rs), err, countRows(t, d+"runs.csv", "ZR001"))
+	}
 	al, err := svc.ListAudit(ctx, pid, domain.Page{Limit: domain.MaxLimit})
 	if err != nil {
 		t.Fatal(err)
@@ -373,7 +385,32 @@ func TestImportCommandLine(t *testing.T) {
 			actors = append(actors, a.ActorName)
 		}
 	}
-	if !reflect.DeepEqual(actors, []string{"geo7"}) {
-		t.Errorf("import audit entries by %v, want one by geo7 (the dry run stores nothing)", actors)
+	if !reflect.DeepEqual(actors, []string{"geo7", "geo7"}) {
+		t.Errorf("import audit entries by %v, want two by geo7 (collars and runs; the dry run and the retry store nothing)", actors)
 	}
+}
+
+func mustHole(t *testing.T, ctx context.Context, svc *service.Service, pid int64, name string) int64 {
+	t.Helper()
+	id, err := svc.ResolveHole(ctx, pid, name)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return id
+}
+
+// countRows counts the lines of a CSV file that start with hole.
+func countRows(t *testing.T, file, hole string) int {
+	t.Helper()
+	b, err := os.ReadFile(file)
+	if err != nil {
+		t.Fatal(err)
+	}
+	n := 0
+	for _, l := range strings.Split(string(b), "\n") {
+		if strings.HasPrefix(l, hole+",") {
+			n++
+		}
+	}
+	return n
 }
