@@ -21,6 +21,16 @@ func convertFiles(t *testing.T, files map[string]string) string {
 	return dir
 }
 
+// writeFile writes text to the file name in dir and returns its path.
+func writeFile(t *testing.T, dir, name, text string) string {
+	t.Helper()
+	p := filepath.Join(dir, name)
+	if err := os.WriteFile(p, []byte(text), 0o644); err != nil {
+		t.Fatal(err)
+	}
+	return p
+}
+
 func runCLI(args ...string) (code int, stdout, stderr string) {
 	var o, e bytes.Buffer
 	code = Main(context.Background(), args, strings.NewReader(""), &o, &e, func(string) string { return "" })

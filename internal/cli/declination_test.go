@@ -212,13 +212,7 @@ func TestDeclinationCSVZone(t *testing.T) {
 
 func TestDeclinationCSVFileErrors(t *testing.T) {
 	dir := t.TempDir()
-	write := func(name, text string) string {
-		p := filepath.Join(dir, name)
-		if err := os.WriteFile(p, []byte(text), 0o644); err != nil {
-			t.Fatal(err)
-		}
-		return p
-	}
+	write := func(name, text string) string { return writeFile(t, dir, name, text) }
 	cases := []struct {
 		path, msg string
 	}{

@@ -83,18 +83,7 @@ func postImport(t *testing.T, srv *httptest.Server, token string, pid int64, kin
 func storedRows(t *testing.T, ctx context.Context, svc *service.Service, pid int64) any {
 	t.Helper()
 	out := map[string]any{}
-	var holes []domain.Hole
-	for pg := (domain.Page{Limit: domain.MaxLimit}); ; {
-		l, err := svc.ListHoles(ctx, pid, pg)
-		if err != nil {
-			t.Fatal(err)
-		}
-		holes = append(holes, l.Items...)
-		if l.Next == 0 {
-			break
-		}
-		pg.After = l.Next
-	}
+	holes := allPages(t, func(pg domain.Page) (service.List[domain.Hole], error) { return svc.ListHoles(ctx, pid, pg) })
 	out["holes"] = holes
 	for _, h := range holes {
 		ss, err := svc.GetSurvey(ctx, pid, h.ID)
@@ -115,19 +104,9 @@ func storedRows(t *testing.T, ctx context.Context, svc *service.Service, pid int
 		}
 		out["hole "+h.Name] = []any{ss, ks, rs, ivs}
 	}
-	var ms []service.MeasurementView
-	for pg := (domain.Page{Limit: domain.MaxLimit}); ; {
-		l, err := svc.ListMeasurements(ctx, pid, service.MeasurementQuery{}, pg)
-		if err != nil {
-			t.Fatal(err)
-		}
-		ms = append(ms, l.Items...)
-		if l.Next == 0 {
-			break
-		}
-		pg.After = l.Next
-	}
-	out["measurements"] = ms
+	out["measurements"] = allPages(t, func(pg domain.Page) (service.List[service.MeasurementView], error) {
+		return svc.ListMeasurements(ctx, pid, service.MeasurementQuery{}, pg)
+	})
 	b, err := json.Marshal(out)
 	if err != nil {
 		t.Fatal(err)
@@ -137,6 +116,23 @@ func storedRows(t *testing.T, ctx context.Context, svc *service.Service, pid int
 		t.Fatal(err)
 	}
 	return dropTimes(v)
+}
+
+// allPages reads every page of a service list.
+func allPages[T any](t *testing.T, list func(domain.Page) (service.List[T], error)) []T {
+	t.Helper()
+	var all []T
+	for pg := (domain.Page{Limit: domain.MaxLimit}); ; {
+		l, err := list(pg)
+		if err != nil {
+			t.Fatal(err)
+		}
+		all = append(all, l.Items...)
+		if l.Next == 0 {
+			return all
+		}
+		pg.After = l.Next
+	}
 }
 
 func dropTimes(v any) any {
@@ -188,13 +184,7 @@ func TestImportDoors(t *testing.T) {
 	t.Cleanup(srv.Close)
 
 	dir := t.TempDir()
-	write := func(name, text string) string {
-		p := filepath.Join(dir, name)
-		if err := os.WriteFile(p, []byte(text), 0o644); err != nil {
-			t.Fatal(err)
-		}
-		return p
-	}
+	write := func(name, text string) string { return writeFile(t, dir, name, text) }
 	cli := func(kind, file string, opts ...string) (int, string, string) {
 		args := append([]string{"import", "--db", cliDB, "--project", "Firstlight", "--kind", kind, "--as", who, "--format", "json"}, opts...)
 		return runCLI(append(args, file)...)

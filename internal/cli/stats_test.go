@@ -386,13 +386,7 @@ func TestSetsOn(t *testing.T) {
 // succeed; the rows of the inclined hole are used.
 func TestStatsSkipsVerticalHoles(t *testing.T) {
 	dir := t.TempDir()
-	write := func(name, text string) string {
-		p := filepath.Join(dir, name)
-		if err := os.WriteFile(p, []byte(text), 0o644); err != nil {
-			t.Fatal(err)
-		}
-		return p
-	}
+	write := func(name, text string) string { return writeFile(t, dir, name, text) }
 	collars := write("collars.csv", "hole_id,easting,northing,elevation,azimuth,dip,depth\nV1,1000,2000,300,0,-90,100\nA1,1000,2100,300,45,-60,100\n")
 	surveys := write("surveys.csv", "hole_id,depth,azimuth,dip,azimuth_reference\nV1,0,0,-90,true\nV1,50,0,-90,true\nA1,0,45,-60,true\nA1,80,45,-60,true\n")
 	structures := write("structures.csv", "hole_id,depth,alpha,beta,gamma,type\nV1,10,40,30,,joint\nV1,20,50,100,20,joint\nA1,10,40,30,,joint\nA1,20,50,100,20,joint\nA1,30,45,200,,joint\n")
