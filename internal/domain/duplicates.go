@@ -56,5 +56,9 @@ func KeyOf(m Measurement) MeasurementKey {
 }
 
 // DuplicateStoredMsg is the problem of a row that repeats a stored measurement.
-const DuplicateStoredMsg = "duplicate of a stored measurement (same hole, depth, type, alpha, beta and gamma); " +
-	"send duplicates=skip to leave such rows out or duplicates=keep to store them"
+const DuplicateStoredMsg = "duplicate of a stored measurement (same hole, depth, type, alpha, beta and gamma); " + DuplicatesHint
+
+// DuplicatesHint says how to import duplicates anyway, in words that fit
+// every door (the route's duplicates=skip, the command's --duplicates skip,
+// the page's choice).
+const DuplicatesHint = "set duplicates to skip to leave such rows out, or to keep to store them"

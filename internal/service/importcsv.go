@@ -617,7 +617,7 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 				ps.add(r.Line, "", "%s", domain.DuplicateStoredMsg)
 				continue
 			default:
-				ps.add(r.Line, "", "same hole, depth, type, alpha, beta and gamma as line %d; send duplicates=skip to leave such rows out or duplicates=keep to store them", earlier)
+				ps.add(r.Line, "", "same hole, depth, type, alpha, beta and gamma as line %d; %s", earlier, domain.DuplicatesHint)
 				continue
 			}
 		}
