@@ -951,9 +951,12 @@ func (s *Server) listIntervals(c *gin.Context) {
 	c.JSON(http.StatusOK, gin.H{"items": ivs})
 }
 
-// intervalsInput is the body that replaces a hole's core intervals.
+// intervalsInput is the body that replaces a hole's core intervals:
+// "intervals", or "items" as GET returns them (so a GET body can be PUT
+// back; each interval's id and hole_id are ignored), not both.
 type intervalsInput struct {
 	Intervals []domain.CoreInterval `json:"intervals"`
+	Items     []domain.CoreInterval `json:"items"`
 }
 
 func (s *Server) putIntervals(c *gin.Context) {
@@ -966,6 +969,13 @@ func (s *Server) putIntervals(c *gin.Context) {
 	if err := s.decodeJSON(c, &in); err != nil {
 		fail(c, err)
 		return
+	}
+	switch {
+	case in.Intervals != nil && in.Items != nil:
+		fail(c, domain.FieldErr("items", "give the intervals once: as intervals, or as items (the body GET returns), not both"))
+		return
+	case in.Items != nil:
+		in.Intervals = in.Items
 	}
 	ivs, err := s.opt.Service.PutCoreIntervals(c.Request.Context(), pid, hid, in.Intervals)
 	if err != nil {

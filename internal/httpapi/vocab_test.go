@@ -123,6 +123,25 @@ func TestGetBodyPutsBack(t *testing.T) {
 			t.Errorf("PUT %s with an unknown field: %d, want 400 or 422", path, p.Status)
 		}
 	}
+	// A hole's core intervals as GET returns them ("items", each with its
+	// id and hole_id), edited and PUT back.
+	ivPath := base + "/holes/" + itoa(h.ID) + "/intervals"
+	f.must(200, f.site, "PUT", ivPath, map[string]any{"intervals": []map[string]any{{"from": 1, "to": 2}, {"from": 2, "to": 3.5}}}, nil)
+	var ivs map[string][]map[string]any
+	f.must(200, f.site, "GET", ivPath, nil, &ivs)
+	if len(ivs["items"]) != 2 || ivs["items"][0]["id"] == nil {
+		t.Fatalf("intervals GET: %v", ivs)
+	}
+	ivs["items"][1]["recovered"] = 1.2
+	var back map[string][]domain.CoreInterval
+	f.must(200, f.site, "PUT", ivPath, ivs, &back)
+	if got := back["items"]; len(got) != 2 || got[1].Recovered == nil || *got[1].Recovered != 1.2 {
+		t.Errorf("intervals PUT back: %+v", got)
+	}
+	ivs["intervals"] = ivs["items"]
+	if p := f.do(f.site, "PUT", ivPath, ivs).problem(t); p.Status != 422 {
+		t.Errorf("intervals given twice: %d, want 422", p.Status)
+	}
 	// A type code as GET .../types lists it (project_id and code are
 	// read-only: the path names the code).
 	var types struct {
