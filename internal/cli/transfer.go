@@ -18,6 +18,7 @@ import (
 	"corvane/internal/exchange/gltf"
 	"corvane/internal/exchange/transfer"
 	"corvane/internal/fabric"
+	"corvane/internal/words"
 )
 
 func init() {
@@ -253,7 +254,7 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 			traced++
 		}
 	}
-	fmt.Fprintf(env.Stderr, "corvane transfer: %d holes (%d with a trace), %d structures written; %d rows without a plane or position skipped\n",
-		len(prog.Holes), traced, len(prog.Structures), prog.Skipped)
+	fmt.Fprintf(env.Stderr, "corvane transfer: %s (%d with a trace), %s written; %s without a plane or position skipped\n",
+		words.Plural(len(prog.Holes), "hole"), traced, words.Plural(len(prog.Structures), "structure"), words.Plural(prog.Skipped, "row"))
 	return ExitOK
 }

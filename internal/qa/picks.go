@@ -7,6 +7,7 @@ import (
 	"sort"
 
 	"corvane/internal/geom"
+	"corvane/internal/words"
 )
 
 // coreItem is a core measurement as the pick matching sees it.
@@ -212,8 +213,8 @@ func pickChecks(h *holeData, o Options) []Finding {
 	if len(hp.UnmatchedPicks) > 0 {
 		out = append(out, Finding{Check: CheckPickUnmatched, Severity: SeverityInfo, HoleID: id, Depth: hp.UnmatchedPicks[0].Depth,
 			Size: float64(len(hp.UnmatchedPicks)), Source: "picks",
-			Message: fmt.Sprintf("%d of %d picks found no core measurement within %.2f after the depth shift; %d core measurements in the picked interval found no pick",
-				len(hp.UnmatchedPicks), len(picks), w, hp.UnmatchedCore)})
+			Message: fmt.Sprintf("%d of %s found no core measurement within %.2f after the depth shift; %s in the picked interval found no pick",
+				len(hp.UnmatchedPicks), words.Plural(len(picks), "pick"), w, words.Plural(hp.UnmatchedCore, "core measurement"))})
 	}
 	for r := 0; r < nr; r++ {
 		if len(runMis[r]) == 0 {

@@ -6,6 +6,7 @@ import (
 	"sort"
 
 	"corvane/internal/geom"
+	"corvane/internal/words"
 )
 
 // The kinds of survey set the comparison looks at (the words of the files
@@ -171,8 +172,8 @@ func setFindings(hole string, sets []SurveySet, o Options) []Finding {
 			for _, iv := range c.Intervals {
 				out = append(out, Finding{Check: CheckInterference, Severity: SeverityFlag, HoleID: hole, Depth: iv.From, DepthTo: iv.To,
 					Size: iv.Max, Unit: "deg", Source: "surveys",
-					Message: fmt.Sprintf("hole %s: from %g to %g (%d stations) the %s set's azimuths leave the %s set's by up to %.1f deg (mean %.1f) beyond their usual %.1f deg: likely magnetic interference; prefer the %s set there",
-						hole, iv.From, iv.To, iv.Stations, name(ms), name(gs), iv.Max, iv.Mean, c.Offset, name(gs))})
+					Message: fmt.Sprintf("hole %s: from %g to %g (%s) the %s set's azimuths leave the %s set's by up to %.1f deg (mean %.1f) beyond their usual %.1f deg: likely magnetic interference; prefer the %s set there",
+						hole, iv.From, iv.To, words.Plural(iv.Stations, "station"), name(ms), name(gs), iv.Max, iv.Mean, c.Offset, name(gs))})
 			}
 		}
 	}

@@ -484,8 +484,8 @@ func writePicks(b *strings.Builder, h *qa.HoleReport) {
 		return
 	}
 	b.WriteString("<h3>Reference picks</h3>")
-	fmt.Fprintf(b, "<p>%d picks, %d matched after a depth shift of %+.2f (core depth = pick depth %+.2f); misfit median %.1f&#176;, 90th percentile %.1f&#176;, max %.1f&#176;; %d picks and %d core measurements in the picked interval unmatched.</p>",
-		p.Picks, p.Matched, p.Shift, p.Shift, p.Misfit.Median, p.Misfit.P90, p.Misfit.Max, len(p.UnmatchedPicks), p.UnmatchedCore)
+	fmt.Fprintf(b, "<p>%s, %d matched after a depth shift of %+.2f (core depth = pick depth %+.2f); misfit median %.1f&#176;, 90th percentile %.1f&#176;, max %.1f&#176;; %s and %s in the picked interval unmatched.</p>",
+		words.Plural(p.Picks, "pick"), p.Matched, p.Shift, p.Shift, p.Misfit.Median, p.Misfit.P90, p.Misfit.Max, words.Plural(len(p.UnmatchedPicks), "pick"), words.Plural(p.UnmatchedCore, "core measurement"))
 	b.WriteString("<table><tr><th>run</th><th>matches</th><th>median misfit</th><th>implied beta offset</th></tr>")
 	for _, run := range h.Runs {
 		if run.Picks == nil {
