@@ -2,8 +2,11 @@ package httpapi
 
 import (
 	"math"
+	"strconv"
 	"testing"
 
+	"corvane/internal/convert"
+	"corvane/internal/csvio"
 	"corvane/internal/domain"
 	"corvane/internal/service"
 )
@@ -151,8 +154,15 @@ func TestHolePathCorrections(t *testing.T) {
 		var m view
 		f.must(201, f.site, "POST", "/v1/projects/"+itoa(pid)+"/measurements", map[string]any{"hole_id": h.ID, "depth": p.Depth, "alpha": 45, "beta": 0, "type": "JN"}, &m)
 		d := m.Derived
-		if d.East == nil || !pnear(*d.East, p.East) || !pnear(*d.North, p.North) || !pnear(*d.Elevation, p.Elevation) ||
-			!pnear(*d.HoleAzimuth, p.Azimuth) || !pnear(*d.HoleDip, p.Dip) {
+		// Derived values are written at the CSV's precision: positions to
+		// 0.001, angles to 0.01 (convert.Decimals).
+		at := func(v float64, col string) float64 {
+			x, _ := strconv.ParseFloat(csvio.FormatFloat(v, convert.Decimals(col)), 64)
+			return x
+		}
+		if d.East == nil || *d.East != at(p.East, convert.ColEasting) || *d.North != at(p.North, convert.ColNorthing) ||
+			*d.Elevation != at(p.Elevation, convert.ColElevation) ||
+			*d.HoleAzimuth != at(p.Azimuth, convert.ColHoleAzimuth) || *d.HoleDip != at(p.Dip, convert.ColHoleDip) {
 			t.Errorf("depth %v: path %+v, derived values of a measurement there %v %v %v %v/%v", p.Depth, p, *d.East, *d.North, *d.Elevation, *d.HoleAzimuth, *d.HoleDip)
 		}
 	}
