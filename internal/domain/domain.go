@@ -231,25 +231,42 @@ const SurveyOfHole = "survey"
 // order gyro, magnetic, planned, other. kinds are the kinds of the hole's
 // sets. "" when the hole has no survey at all.
 func UsedSurvey(kinds []string, preferred, priority string, hasSurvey bool) string {
+	used, _ := UsedSurveyWhy(kinds, preferred, priority, hasSurvey)
+	return used
+}
+
+// Reasons [UsedSurveyWhy] gives for the survey in use, one per step of the
+// rule.
+const (
+	UsedPreferred = "preferred"  // the hole's set marked preferred
+	UsedPriority  = "priority"   // the first kind of the project's survey priority the hole has
+	UsedOnlySet   = "survey-set" // the hole's survey set (no preferred set, no priority kind)
+	UsedKindOrder = "kind-order" // the first kind in the order gyro, magnetic, planned, other
+)
+
+// UsedSurveyWhy is [UsedSurvey] with the step of the rule that chose:
+// [UsedPreferred], [UsedPriority], [UsedOnlySet] or [UsedKindOrder]; "" with
+// no survey.
+func UsedSurveyWhy(kinds []string, preferred, priority string, hasSurvey bool) (used, why string) {
 	if preferred != "" {
-		return preferred
+		return preferred, UsedPreferred
 	}
 	if priority != "" {
 		for _, k := range strings.Split(priority, ",") {
 			if slices.Contains(kinds, k) {
-				return k
+				return k, UsedPriority
 			}
 		}
 	}
 	if hasSurvey {
-		return SurveyOfHole
+		return SurveyOfHole, UsedOnlySet
 	}
 	for _, k := range SurveyKinds {
 		if slices.Contains(kinds, k) {
-			return k
+			return k, UsedKindOrder
 		}
 	}
-	return ""
+	return "", ""
 }
 
 // Survey returns the set as a [SurveySet], the shape the hole model reads.

@@ -16,6 +16,10 @@ const SetSurvey = domain.SurveyOfHole
 type KindSets struct {
 	Sets []domain.KindSet `json:"sets"`
 	Used string           `json:"used"`
+	// UsedBecause is the step of the rule that chose Used
+	// (domain.UsedSurveyWhy): preferred, priority, survey-set or
+	// kind-order; "" with no survey.
+	UsedBecause string `json:"used_because"`
 }
 
 // usedSurvey returns the survey a hole's derived values, path and
@@ -23,13 +27,20 @@ type KindSets struct {
 // [domain.UsedSurvey]; nil and "" when the hole has no survey at all. sets are the hole's
 // sets by kind, as read.
 func usedSurvey(ctx context.Context, st domain.Store, holeID int64, priority string) (*domain.SurveySet, string, []domain.KindSet, error) {
+	ss, used, _, sets, err := usedSurveyWhy(ctx, st, holeID, priority)
+	return ss, used, sets, err
+}
+
+// usedSurveyWhy is usedSurvey with the step of the rule that chose
+// (domain.UsedSurveyWhy).
+func usedSurveyWhy(ctx context.Context, st domain.Store, holeID int64, priority string) (*domain.SurveySet, string, string, []domain.KindSet, error) {
 	sets, err := st.ListKindSets(ctx, holeID)
 	if err != nil {
-		return nil, "", nil, err
+		return nil, "", "", nil, err
 	}
 	ss, err := st.GetSurvey(ctx, holeID)
 	if err != nil && !domain.IsKind(err, domain.NotFound) {
-		return nil, "", nil, err
+		return nil, "", "", nil, err
 	}
 	kinds, preferred := make([]string, len(sets)), ""
 	for i, k := range sets {
@@ -38,20 +49,20 @@ func usedSurvey(ctx context.Context, st domain.Store, holeID int64, priority str
 			preferred = k.Kind
 		}
 	}
-	used := domain.UsedSurvey(kinds, preferred, priority, err == nil)
+	used, why := domain.UsedSurveyWhy(kinds, preferred, priority, err == nil)
 	switch used {
 	case "":
-		return nil, "", sets, nil
+		return nil, "", "", sets, nil
 	case SetSurvey:
-		return &ss, used, sets, nil
+		return &ss, used, why, sets, nil
 	}
 	for _, k := range sets {
 		if k.Kind == used {
 			ks := k.Survey()
-			return &ks, used, sets, nil
+			return &ks, used, why, sets, nil
 		}
 	}
-	return nil, "", sets, nil
+	return nil, "", "", sets, nil
 }
 
 // ListKindSets returns the hole's survey sets by kind and the set in use
@@ -64,8 +75,11 @@ func (s *Service) ListKindSets(ctx context.Context, projectID, holeID int64) (Ki
 	if _, err := hole(ctx, s.store, projectID, holeID); err != nil {
 		return KindSets{}, err
 	}
-	_, used, sets, err := usedSurvey(ctx, s.store, holeID, p.SurveyPriority)
-	return KindSets{Sets: sets, Used: used}, err
+	_, used, why, sets, err := usedSurveyWhy(ctx, s.store, holeID, p.SurveyPriority)
+	if err != nil {
+		return KindSets{}, err
+	}
+	return KindSets{Sets: sets, Used: used, UsedBecause: why}, nil
 }
 
 // PutKindSet replaces the hole's survey set of a kind whole (admin), as

@@ -46,9 +46,12 @@ func TestSurveySetsByKind(t *testing.T) {
 	// The uncertainty follows the instrument of the set in use: the pole's
 	// 95% cone at 140 m by the set used.
 	cones := map[string][]float64{}
-	used := func(want string) {
+	used := func(want, why string) {
 		t.Helper()
 		ks := must(s.ListKindSets(ctx, p.ID, h.ID))
+		if ks.UsedBecause != why {
+			t.Errorf("set in use %q because %q, want because %q", ks.Used, ks.UsedBecause, why)
+		}
 		ms := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 140, Alpha: 40, Beta: f64(200), TypeCode: "JN"}))
 		hv := must(s.GetHoleView(ctx, p.ID, h.ID))
 		if ks.Used != want || ms.Derived.SurveySet != want || hv.Corrections.SurveySet != want || len(ks.Sets) != 2 {
@@ -67,16 +70,16 @@ func TestSurveySetsByKind(t *testing.T) {
 		}
 		cones[want] = append(cones[want], *ms.Derived.PoleCone95)
 	}
-	used("gyro") // no preference, no priority, no survey set: kind order
+	used("gyro", domain.UsedKindOrder) // no preference, no priority, no survey set: kind order
 	p.SurveyPriority = "Magnetic, gyro"
 	p = must(s.UpdateProject(ctx, p.ID, p.Version, p))
 	if p.SurveyPriority != "magnetic,gyro" {
 		t.Fatalf("priority stored as %q", p.SurveyPriority)
 	}
-	used("magnetic")
+	used("magnetic", domain.UsedPriority)
 	g.Preferred = true
 	g = must(s.PutKindSet(ctx, p.ID, h.ID, "gyro", g.Version, g))
-	used("gyro")
+	used("gyro", domain.UsedPreferred)
 	if c := cones; c["gyro"][0] != c["gyro"][1] || !(c["gyro"][0] < c["magnetic"][0]) {
 		t.Errorf("pole cone95 with the gyro set in use %v, with the magnetic set %v: want the gyro's the same each time and narrower", c["gyro"], c["magnetic"])
 	}
@@ -112,13 +115,13 @@ func TestSurveySetsByKind(t *testing.T) {
 	if got := must(s.GetSurvey(ctx, p.ID, h.ID)); got.Version != ss.Version || len(got.Stations) != 1 {
 		t.Errorf("survey set %+v", got)
 	}
-	used("gyro")
+	used("gyro", domain.UsedPreferred)
 	if err := s.DeleteKindSet(ctx, p.ID, h.ID, "gyro", g.Version); err != nil {
 		t.Fatal(err)
 	}
 	p.SurveyPriority = ""
 	p = must(s.UpdateProject(ctx, p.ID, p.Version, p))
-	if ks := must(s.ListKindSets(ctx, p.ID, h.ID)); ks.Used != "survey" || len(ks.Sets) != 1 {
+	if ks := must(s.ListKindSets(ctx, p.ID, h.ID)); ks.Used != "survey" || ks.UsedBecause != domain.UsedOnlySet || len(ks.Sets) != 1 {
 		t.Errorf("after deleting the gyro set: %+v", ks)
 	}
 	// The final depth cannot shrink above a set's stations.

@@ -8,6 +8,7 @@ import { logging } from "./logging.js";
 import { holeView } from "./hole.js";
 import { netsView } from "./nets.js";
 import { qaView } from "./qa.js";
+import { importView } from "./imports.js";
 import { useLegend, patternDefs, svg } from "./draw.js";
 
 const main = document.getElementById("main");
@@ -87,6 +88,7 @@ function setNav(pid, view, holeId) {
     if (v === "hole") href += holeId ? `/hole/${holeId}` : "/hole";
     if (v === "nets") href += "/nets";
     if (v === "qa") href += "/qa";
+    if (v === "import") href += "/import";
     a.href = href;
     if (v === view) a.setAttribute("aria-current", "page");
     else a.removeAttribute("aria-current");
@@ -131,6 +133,7 @@ async function route() {
       case "hole": await holeView(ctx, parts[3] || lastHole || (p.holes[0] && p.holes[0].id)); break;
       case "nets": await netsView(ctx); break;
       case "qa": await qaView(ctx); break;
+      case "import": await importView(ctx); break;
       default: add(host, h("p", { class: "msg bad" }, `There is no view called \u201c${view}\u201d.`));
     }
   } catch (e) {

@@ -4,7 +4,7 @@
 
 import { h, fmt, problemText, add, put } from "./dom.js";
 import { qaReport } from "./data.js";
-import { query } from "./api.js";
+import { query, request, ApiError } from "./api.js";
 import { severity, severities, severityKey } from "./draw.js";
 import { severityLegend } from "./legend.js";
 
@@ -32,13 +32,38 @@ export async function qaView(ctx) {
   add(host, h("h1", {}, "Quality checks"));
   const onlyHole = params.get("hole") || "";
   const holeSel = h("select", { id: "qa-hole" }, h("option", { value: "" }, "whole programme"), p.holes.map((x) => h("option", { value: x.name, selected: x.name === onlyHole }, x.name)));
+  // The fabric of the mark-rotation and fabric checks is the project's
+  // setting unless this view is asked for another one: the server uses the
+  // project's persistent fabric whenever a request names none.
+  const projectFabric = p.project.persistent_fabric || "";
   const persistent = params.get("persistent") || "";
-  const fabricSel = h("select", { id: "qa-fabric" }, h("option", { value: "" }, "none (skip the check)"), p.types.map((t) => h("option", { value: t.code, selected: t.code === persistent }, t.code)));
+  const fabricSel = h("select", { id: "qa-fabric" },
+    h("option", { value: "" }, projectFabric ? `${projectFabric} (the project's setting)` : "none set for the project"),
+    p.types.filter((t) => t.code !== projectFabric).map((t) => h("option", { value: t.code, selected: t.code === persistent }, `${t.code} (this view only)`)));
   const reload = () => ctx.go(`#/p/${p.id}/qa` + query({ hole: holeSel.value, persistent: fabricSel.value }));
   holeSel.addEventListener("change", reload);
   fabricSel.addEventListener("change", reload);
+  const fabricMsg = h("span", { class: "field-msg", id: "qa-fabric-msg", role: "status" });
+  const keep = persistent && persistent !== projectFabric
+    ? h("button", { type: "button", id: "qa-fabric-keep", onclick: () => keepFabric(persistent) }, `Make ${persistent} the project's fabric`)
+    : null;
+  async function keepFabric(code) {
+    keep.disabled = true;
+    try {
+      const pr = p.project;
+      await request("PUT", `/v1/projects/${p.id}`, { body: { ...pr, persistent_fabric: code }, ifMatch: `"${pr.version}"` });
+      await ctx.refresh();
+      ctx.go(`#/p/${p.id}/qa` + query({ hole: holeSel.value }));
+    } catch (e) {
+      keep.disabled = false;
+      fabricMsg.textContent = e instanceof ApiError && e.status === 403
+        ? "Only an admin token can change the project's settings."
+        : "Not changed: " + problemText(e);
+    }
+  }
   add(host, h("div", { class: "title-row" }, h("label", { for: "qa-hole" }, "Show"), holeSel,
-    h("label", { for: "qa-fabric" }, "Persistent fabric for the mark-rotation check"), fabricSel));
+    h("label", { for: "qa-fabric" }, "Persistent fabric"), fabricSel, keep),
+    h("p", { class: "help", id: "qa-fabric-help" }, "The persistent fabric is the structure type that runs through the holes (bedding, a foliation). The mark-rotation check compares each run's poles of it with the neighbouring runs'; the programme overview and this view use the project's setting.", h("br"), fabricMsg));
   const body = h("div", {}, h("p", { class: "loading" }, "Running the checks\u2026"));
   add(host, body);
 
@@ -65,7 +90,8 @@ export async function qaView(ctx) {
         h("dt", {}, "Runs"), h("dd", {}, sum.runs ?? "\u2013"),
         h("dt", {}, "Oriented core"), h("dd", {}, cov.oriented_share != null ? `${Math.round(cov.oriented_share * 100)}% (confident ${Math.round((cov.confident_share || 0) * 100)}%)` : "\u2013"),
         severities().flatMap((v) => [h("dt", {}, severityKey(v.code), ` ${cap(v.word)}s`), h("dd", { id: `qa-count-${v.code}` }, sev[v.code] ?? 0)]),
-        h("dt", {}, "Runs flagged for mark rotation"), h("dd", {}, sum.runs_flagged ?? 0)),
+        h("dt", {}, "Runs flagged for mark rotation"), h("dd", {}, sum.runs_flagged ?? 0),
+        h("dt", {}, "Persistent fabric used"), h("dd", { id: "qa-fabric-used" }, (rep.options && rep.options.persistent_type) || "none (fabric checks skipped)")),
       severityLegend()));
 
   const groups = new Map();
