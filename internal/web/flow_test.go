@@ -585,8 +585,8 @@ func TestNetsAndQA(t *testing.T) {
 	p.do("open QA", chromedp.Navigate(fmt.Sprintf("%s/#/p/%d/qa?persistent=bedding", s.URL, s.Project)))
 	p.waitFor("QA shown", `document.querySelector('#qa-caution') !== null`)
 	p.shot("qa")
-	if got := eval[string](p, `document.querySelector('#qa-fabric').value`); got != "bedding" {
-		t.Errorf("fabric select shows %q, want bedding", got)
+	if got := p.text("#qa-fabric-used"); got != "bedding" {
+		t.Errorf("QA ran with the fabric %q, want bedding", got)
 	}
 	var rep struct {
 		Summary struct {

@@ -4,7 +4,8 @@
 
 import { download, query, get } from "./api.js";
 import { h, fmt, az, say, problemText, add, put } from "./dom.js";
-import { survey, runs, qaReport } from "./data.js";
+import { runs, qaReport } from "./data.js";
+import { surveyCard } from "./surveys.js";
 import { depthStrip } from "./draw.js";
 import { confidenceLegend, severityLegend, typeLegend } from "./legend.js";
 
@@ -64,9 +65,8 @@ export async function holeView(ctx, holeId) {
   const serverFilter = (q) => ({ hole: ho.name, type: q.type, min_depth: q.min_depth, max_depth: q.max_depth, from: q.from, to: q.to });
   const pageOf = (after) => get(`/v1/projects/${p.id}/measurements` + query({ ...serverFilter(f), order: "depth", limit: PAGE, after }));
 
-  const [rs, srv, first, qa] = await Promise.all([
+  const [rs, first, qa] = await Promise.all([
     runs(p.id, ho.id),
-    survey(p.id, ho.id, true),
     pageOf(""),
     qaReport(p.id, ho.id).catch((e) => ({ error: e })),
   ]);
@@ -224,20 +224,10 @@ export async function holeView(ctx, holeId) {
   setHeading();
   renderRows();
 
-  // Survey stations, so QA flags on a station have somewhere to point.
-  const st = (srv && srv.stations) || [];
-  put(surveyBox, h("h2", {}, "Survey"),
-    st.length
-      ? h("div", { class: "scroll" }, h("table", { class: "data compact", id: "stations" },
-        h("thead", {}, h("tr", {}, h("th", { scope: "col", class: "num" }, "#"), h("th", { scope: "col", class: "num" }, `Depth (${unit})`), h("th", { scope: "col", class: "num" }, `Azimuth (${srv.azimuth_ref})`), h("th", { scope: "col", class: "num" }, "Dip"), h("th", { scope: "col" }, "QA"))),
-        h("tbody", {}, st.map((s, i) => {
-          const fl = flags.filter((x) => x.source === "surveys" && (x.station ? x.station === i + 1 : Math.abs(x.depth - s.depth) < 1e-6));
-          return h("tr", { id: `st-${i}`, "data-depth": s.depth, class: highlightS !== null && Math.abs(Number(highlightS) - s.depth) < 1e-6 ? "hl" : "" },
-            h("td", { class: "num" }, i + 1), h("td", { class: "num" }, fmt(s.depth, 1)), h("td", { class: "num" }, fmt(s.azimuth, 1)), h("td", { class: "num" }, fmt(s.dip, 1)),
-            h("td", {}, fl.map((x) => x.message).join("; ")));
-        }))))
-      : h("p", {}, "No survey: the collar direction is used for the whole hole."),
-    srv ? h("p", { class: "help" }, `Survey ${srv.survey_date || "undated"}, azimuths from ${srv.azimuth_ref} north.`) : null);
+  // Surveys: the sets, the one in use and why, its stations with QA flags
+  // (so QA flags on a station have somewhere to point).
+  await surveyCard(ctx, surveyBox, ho, flags, highlightS);
+  if (!ctx.isCurrent()) return;
 
   if (highlightM) {
     // A finding may point below the first page: fetch on until the row is in.

@@ -123,8 +123,8 @@ export async function importView(ctx) {
         barText.textContent = "Stopped; nothing was stored.";
         return;
       }
-      barText.textContent = "";
       if (!(e instanceof ApiError)) throw e;
+      barText.textContent = e.status ? `Answered in ${((performance.now() - t0) / 1000).toFixed(1)} s.` : "";
       if (e.status !== 401) showProblem(e, dryRun);
     } finally {
       busy = null;

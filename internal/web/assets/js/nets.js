@@ -5,6 +5,7 @@
 import { request, query, save, download } from "./api.js";
 import { h, fmt, az, say, problemText, add, put } from "./dom.js";
 import { shapeKey } from "./draw.js";
+import { geotechView, PARTS } from "./geotech.js";
 
 // showNet puts the served net sheet in host without its side panel (the
 // net fills the panel) and returns the set key read from the sheet's own
@@ -100,9 +101,23 @@ function statsTable(doc) {
   return out;
 }
 
+// partTabs links the parts of the view: the sets and nets of the
+// orientations, and the geotechnical parts.
+function partTabs(pid, part) {
+  const all = [{ code: "sets", label: "Sets and nets" }, ...PARTS];
+  return h("nav", { class: "tabs", "aria-label": "Parts of the nets view", id: "nets-parts" }, all.map((x) =>
+    h("a", { href: `#/p/${pid}/nets` + (x.code === "sets" ? "" : `?part=${x.code}`), "aria-current": x.code === part ? "page" : null, "data-part": x.code }, x.label)));
+}
+
 export async function netsView(ctx) {
   const { p, host, params } = ctx;
   const unit = p.unit;
+  const part = params.get("part") || "sets";
+  if (part !== "sets") {
+    add(host, h("h1", {}, "Nets and sets: " + ((PARTS.find((x) => x.code === part) || {}).label || part).toLowerCase()), partTabs(p.id, part));
+    await geotechView(ctx, part);
+    return;
+  }
   const sel = {
     hole: (params.get("hole") || "").split(",").filter(Boolean),
     type: (params.get("type") || "").split(",").filter(Boolean),
@@ -114,7 +129,7 @@ export async function netsView(ctx) {
     show: (params.get("show") || "density").split(",").filter(Boolean),
     rose: params.get("rose") === "strike" ? "strike" : "dip_direction",
   };
-  add(host, h("h1", {}, "Nets and sets"));
+  add(host, h("h1", {}, "Nets and sets"), partTabs(p.id, "sets"));
   const holeBoxes = p.holes.map((x) => h("label", { class: "check" }, h("input", { type: "checkbox", name: "hole", value: x.name, checked: !sel.hole.length || sel.hole.includes(x.name) }), x.name));
   const typeBoxes = p.types.map((t, i) => h("label", { class: "check" }, h("input", { type: "checkbox", name: "type", value: t.code, checked: !sel.type.length || sel.type.includes(t.code) }), t.code));
   const showBoxes = [["planes", "planes (great circles)"], ["density", "density (Kamb contours)"]].map(([v, l]) => h("label", { class: "check" }, h("input", { type: "checkbox", name: "show", value: v, checked: sel.show.includes(v) }), l));

@@ -92,7 +92,7 @@ export async function overview(ctx) {
     h("p", { class: "help" }, `Collar coordinates, elevations and depths in ${unit === "ft" ? "feet" : "metres"}; collar azimuth from ${p.project.output_azimuth_ref} north, dip negative down.`),
     confidenceLegend(), severityLegend(["flag", "warning"]),
     h("p", { class: "help", id: "overview-fabric" }, qaOk && qa.options && qa.options.persistent_type
-      ? [`QA flags with the project's persistent fabric, ${qa.options.persistent_type} (`, h("a", { href: `#/p/${p.id}/qa` }, "QA"), ").")]
+      ? [`QA flags with the project's persistent fabric, ${qa.options.persistent_type} (`, h("a", { href: `#/p/${p.id}/qa` }, "QA"), ")."]
       : ["QA flags without a persistent fabric: the mark-rotation check is skipped until the project names one (", h("a", { href: `#/p/${p.id}/qa` }, "QA"), ")."]),
     qa.error ? h("p", { class: "msg bad" }, "QA could not be read: " + problemText(qa.error)) : null);
 
