@@ -10,6 +10,7 @@ import (
 	"path/filepath"
 	"strings"
 	"testing"
+	"time"
 
 	"corvane/internal/domain"
 	"corvane/internal/service"
@@ -34,6 +35,13 @@ func (p *page) checkLayout(name string) {
 		p.t.Errorf("%s:\n  %s", name, strings.Join(bad, "\n  "))
 	}
 	p.shot(name)
+	if os.Getenv("CORVANE_SCREENSHOTS_DIR") != "" { // the window alone, to read at full size
+		ctx, cancel := context.WithTimeout(p.ctx, 30*time.Second)
+		defer cancel()
+		if buf, err := chromedp.Run(ctx, chromedp.CaptureScreenshot()); err == nil {
+			_ = os.WriteFile(filepath.Join(p.shots, name+"-window.png"), buf, 0o644)
+		}
+	}
 }
 
 // adminToken makes a token that may change the demo project's settings.

@@ -366,7 +366,7 @@ function showZoneNet(host, text, label) {
   const m = 40;
   for (const t of [...root.querySelectorAll("text")]) {
     const x = Number(t.getAttribute("x")), y = Number(t.getAttribute("y"));
-    if (x > cx + r + m || y > cy + r + m || y < cy - r - m) t.remove();
+    if (x > cx + r + m || y > cy + r + 30 || y < cy - r - m || t.getAttribute("font-style") === "italic") t.remove();
   }
   for (const g of [...root.querySelectorAll("#set-legend")]) g.remove();
   for (const e of [...root.querySelectorAll("rect[fill^='url(#zone'], path")]) {
