@@ -55,6 +55,14 @@ const (
 	ColMismatch        = "mismatch"
 )
 
+// aliases are other names a header may give a column: the JSON field's
+// name where it differs from the column's (one vocabulary, README). A
+// header that has both names of one column is refused.
+var aliases = map[string]string{
+	"hole":        ColHoleID,     // JSON's hole (the name); the column hole_id holds the name too
+	"azimuth_ref": ColAzimuthRef, // JSON's azimuth_ref
+}
+
 // Azimuth references accepted in an azimuth_reference column.
 const (
 	RefTrue     = "true"
@@ -113,6 +121,16 @@ func readHeader(cr interface{ Read() ([]string, error) }, file string, required 
 			return nil, invalid(file, 1, n, "column %q appears twice in the header", n)
 		}
 		h.idx[k] = i
+	}
+	for alias, col := range aliases {
+		i, ok := h.idx[alias]
+		if !ok {
+			continue
+		}
+		if j, both := h.idx[col]; both {
+			return nil, invalid(file, 1, h.Names[max(i, j)], "columns %q and %q are the same column; keep one", h.Names[j], h.Names[i])
+		}
+		h.idx[col] = i
 	}
 	var missing []string
 	for _, c := range required {

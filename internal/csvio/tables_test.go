@@ -7,6 +7,7 @@ import (
 	"io"
 	"math"
 	"math/rand/v2"
+	"reflect"
 	"strconv"
 	"strings"
 	"testing"
@@ -437,5 +438,29 @@ func TestUint64Len(t *testing.T) {
 	r := rand.New(rand.NewPCG(5, 5))
 	for i := 0; i < 100000; i++ {
 		check(r.Uint64() >> r.IntN(64))
+	}
+}
+
+// TestHeaderAliases: a header may name a column as the JSON field does
+// (hole for hole_id, azimuth_ref for azimuth_reference; one vocabulary),
+// with the same rows as a result; both names of one column are refused.
+func TestHeaderAliases(t *testing.T) {
+	canon := "hole_id,depth,azimuth,dip,azimuth_reference\nTM001,0,45,-60,magnetic\nTM001,30,46,-59,magnetic\n"
+	alias := "Hole,depth,azimuth,dip,azimuth_ref\nTM001,0,45,-60,magnetic\nTM001,30,46,-59,magnetic\n"
+	a, err := ReadSurveys(strings.NewReader(canon), "a.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, err := ReadSurveys(strings.NewReader(alias), "b.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(b) != 2 || !reflect.DeepEqual(a, b) || b[1].HoleID != "TM001" || b[1].AzimuthRef != RefMagnetic {
+		t.Errorf("aliased header read %+v, canonical %+v", b, a)
+	}
+	_, err = ReadSurveys(strings.NewReader("hole_id,hole,depth,azimuth,dip\nTM001,TM001,0,45,-60\n"), "c.csv")
+	var de *domain.Error
+	if !errors.As(err, &de) || de.Loc.Line != 1 || !strings.Contains(err.Error(), "same column") {
+		t.Errorf("both names of one column: %v", err)
 	}
 }
