@@ -134,7 +134,7 @@ export async function importView(ctx) {
   }
 
   function showResult(r, dryRun, dup) {
-    const dupWord = dup === "skip" ? "left out" : dup === "keep" ? "stored anyway" : "";
+    const dupWord = dup === "keep" ? (dryRun ? "would be stored anyway" : "stored anyway") : "";
     put(result,
       h("h2", {}, dryRun ? "Check: every row can be loaded" : r.replayed ? "Already loaded" : "Loaded"),
       r.replayed ? h("p", { class: "msg" }, "This is the answer to the earlier upload of the same file and choice; nothing was written again.") : null,
