@@ -58,6 +58,22 @@ function selection(params) {
   };
 }
 
+// domainQuery adds the domains as repeated domain= parameters (after a
+// query that has begun).
+const domainQuery = (defs) => defs.map((d) => "&domain=" + encodeURIComponent(d)).join("");
+
+// report reads a report into out: the report, or null with the problem
+// shown in out under the words given.
+async function report(ctx, out, path, failed) {
+  try {
+    const rep = await get(path);
+    return ctx.isCurrent() ? rep : null;
+  } catch (e) {
+    put(out, h("p", { class: "msg bad" }, `${failed}: ${problemText(e)}`));
+    return null;
+  }
+}
+
 function setsSelect(id, value) {
   const s = h("select", { id }, h("option", { value: "type" }, "by type code"), [2, 3, 4, 5, 6].map((n) => h("option", { value: `auto:${n}` }, `${n} automatic sets`)));
   s.value = value;
@@ -213,18 +229,12 @@ async function spacingPart(ctx) {
     h("p", { class: "help" }, "Domains are defined under Domains; spacing is reported for each."));
   form.addEventListener("submit", (e) => {
     e.preventDefault();
-    ctx.go(`#/p/${p.id}/nets` + query({ part: "spacing", sets: setsSel.value, show: domSel.value }) + sel.domain.map((d) => "&domain=" + encodeURIComponent(d)).join(""));
+    ctx.go(`#/p/${p.id}/nets` + query({ part: "spacing", sets: setsSel.value, show: domSel.value }) + domainQuery(sel.domain));
   });
   const out = h("div", {}, h("p", { class: "loading" }, "Computing spacing\u2026"));
   add(host, form, out);
-  let rep;
-  try {
-    rep = await get(`/v1/projects/${p.id}/spacing` + query({ sets: sel.sets }) + sel.domain.map((d) => "&domain=" + encodeURIComponent(d)).join(""));
-  } catch (e) {
-    put(out, h("p", { class: "msg bad" }, "Spacing could not be computed: " + problemText(e)));
-    return;
-  }
-  if (!ctx.isCurrent()) return;
+  const rep = await report(ctx, out, `/v1/projects/${p.id}/spacing` + query({ sets: sel.sets }) + domainQuery(sel.domain), "Spacing could not be computed");
+  if (!rep) return;
   const shown = (rep.domains || []).filter((d) => !domSel.value || d.name === domSel.value);
   put(out, ...shown.map((d) => {
     const max = Math.max(1e-9, ...(d.sets || []).map((s) => (s.true_spacing && s.true_spacing.p90) || 0));
@@ -273,7 +283,7 @@ async function domainsPart(ctx) {
       defs.setAttribute("aria-invalid", "true");
       return;
     }
-    ctx.go(`#/p/${p.id}/nets` + query({ part: "domains", sets: setsSel.value }) + lines.map((d) => "&domain=" + encodeURIComponent(d)).join(""));
+    ctx.go(`#/p/${p.id}/nets` + query({ part: "domains", sets: setsSel.value }) + domainQuery(lines));
   });
   add(host, form);
   if (!sel.domain.length) {
@@ -282,14 +292,8 @@ async function domainsPart(ctx) {
   }
   const out = h("div", {}, h("p", { class: "loading" }, "Comparing\u2026"));
   add(host, out);
-  let rep;
-  try {
-    rep = await get(`/v1/projects/${p.id}/domains` + query({ sets: sel.sets }) + sel.domain.map((d) => "&domain=" + encodeURIComponent(d)).join(""));
-  } catch (e) {
-    put(out, h("p", { class: "msg bad" }, "The domains could not be compared: " + problemText(e)));
-    return;
-  }
-  if (!ctx.isCurrent()) return;
+  const rep = await report(ctx, out, `/v1/projects/${p.id}/domains` + query({ sets: sel.sets }) + domainQuery(sel.domain), "The domains could not be compared");
+  if (!rep) return;
   const parsed = sel.domain.map(parseDomain).filter(Boolean);
   // The net of a domain: the nets part drawn with the domain's holes and
   // depth range, when the net route can express the domain.
