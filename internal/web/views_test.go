@@ -349,3 +349,41 @@ func TestQAWithProjectFabric(t *testing.T) {
 		})
 	}
 }
+
+// TestQAFabricKeptAsSetting: an admin who tries another fabric on the QA
+// view can keep it as the project's setting; the QA then runs with it
+// unasked, and the setting is the project's (read back from the API).
+func TestQAFabricKeptAsSetting(t *testing.T) {
+	s := startService(t)
+	sys := service.WithActor(context.Background(), service.System)
+	orig, err := s.svc.GetProject(sys, s.Project)
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() {
+		now, err := s.svc.GetProject(sys, s.Project)
+		if err == nil {
+			now.PersistentFabric = orig.PersistentFabric
+			_, err = s.svc.UpdateProject(sys, s.Project, now.Version, now)
+		}
+		if err != nil {
+			t.Errorf("restoring the project's fabric: %v", err)
+		}
+	})
+	p := newPage(t, s.URL, 1366, 900)
+	p.signIn(adminToken(t, s))
+	p.do("open QA with joints", chromedp.Navigate(fmt.Sprintf("%s/#/p/%d/qa?persistent=joint", s.URL, s.Project)))
+	p.waitFor("QA with joints", `document.querySelector('#qa-fabric-used') !== null && document.querySelector('#qa-fabric-used').textContent === 'joint'`)
+	p.do("keep joints", chromedp.Click(chromedp.CSS("#qa-fabric-keep")))
+	p.waitFor("kept", `!location.hash.includes('persistent=') && document.querySelector('#qa-fabric-used') !== null && document.querySelector('#qa-fabric-used').textContent === 'joint' && document.querySelector('#qa-fabric-keep') === null`)
+	var proj struct {
+		PersistentFabric string `json:"persistent_fabric"`
+	}
+	s.getJSON(t, fmt.Sprintf("/v1/projects/%d", s.Project), &proj)
+	if proj.PersistentFabric != "joint" {
+		t.Errorf("project fabric %q after keeping joint", proj.PersistentFabric)
+	}
+	if got := eval[string](p, `document.querySelector('#qa-fabric option[value=""]').textContent`); !strings.Contains(got, "joint") {
+		t.Errorf("the fabric choice reads %q", got)
+	}
+}
