@@ -1,9 +1,14 @@
 package httpapi
 
 import (
+	"bytes"
+	"encoding/csv"
+	"strconv"
 	"strings"
 	"testing"
 
+	"corvane/internal/convert"
+	"corvane/internal/csvio"
 	"corvane/internal/domain"
 )
 
@@ -217,5 +222,63 @@ func TestMeasurementByHoleName(t *testing.T) {
 		if p := f.do(f.site, "POST", base+"/measurements", body).problem(t); p.Status != 422 {
 			t.Errorf("%v: %d %s, want 422", body, p.Status, p.Detail)
 		}
+	}
+}
+
+// TestDerivedNumbersEqualAtBothDoors: the measurements' derived values read
+// as JSON and exported as CSV are the same figures: each JSON number,
+// written with the decimals the CSV uses for the column of the same name,
+// is the CSV's cell, and it carries no digit the CSV does not (no float
+// noise such as 72.64999999999995 in the JSON).
+func TestDerivedNumbersEqualAtBothDoors(t *testing.T) {
+	f := newFixture(t)
+	pid := f.project("Doors", map[string]any{"declination": 1.7, "convergence": -0.35})
+	base := "/v1/projects/" + itoa(pid)
+	h := f.hole(pid, "DR001", 33.3, -61.7)
+	for i, m := range [][3]float64{{12.34, 37, 211}, {56.78, 62, 14}, {101.1, 18, 299}} {
+		f.must(201, f.site, "POST", base+"/measurements", map[string]any{"hole_id": h.ID, "depth": m[0], "alpha": m[1], "beta": m[2],
+			"type": "JN", "apparent_thickness": 0.1 * float64(i+1)}, nil)
+	}
+	var l struct {
+		Items []struct {
+			ID      int64          `json:"id"`
+			Derived map[string]any `json:"derived"`
+		} `json:"items"`
+	}
+	f.must(200, f.site, "GET", base+"/measurements?order=depth", nil, &l)
+	r := f.must(200, f.site, "GET", base+"/measurements.csv", nil, nil)
+	rows, err := csv.NewReader(bytes.NewReader(r.Body)).ReadAll()
+	if err != nil || len(rows) != len(l.Items)+1 {
+		t.Fatalf("CSV export: %d rows, %v", len(rows), err)
+	}
+	col := map[string]int{}
+	for i, n := range rows[0] {
+		col[n] = i
+	}
+	checked := 0
+	for i, it := range l.Items {
+		for name, v := range it.Derived {
+			x, ok := v.(float64)
+			d := convert.Decimals(name)
+			if !ok || d < 0 {
+				continue
+			}
+			j, inCSV := col[name]
+			if !inCSV {
+				t.Errorf("derived %s has no CSV column", name)
+				continue
+			}
+			cell := rows[i+1][j]
+			if got := csvio.FormatFloat(x, d); got != cell {
+				t.Errorf("measurement %d %s: JSON %v, CSV %q", it.ID, name, x, cell)
+			}
+			if c, _ := strconv.ParseFloat(cell, 64); c != x {
+				t.Errorf("measurement %d %s: JSON %v carries more than the CSV's %q", it.ID, name, x, cell)
+			}
+			checked++
+		}
+	}
+	if checked < 3*12 {
+		t.Errorf("only %d derived numbers compared", checked)
 	}
 }
