@@ -346,6 +346,17 @@ func TestQAWithProjectFabric(t *testing.T) {
 				t.Error("no mark-rotation finding: the planted spun runs are not shown")
 			}
 			p.checkLayout("qa" + w.suffix)
+			// Another fabric tried for the view: the choice and the offer to
+			// keep it stay in the row at both widths.
+			p.do("QA with joints", chromedp.Navigate(fmt.Sprintf("%s/#/p/%d/qa?persistent=joint", s.URL, s.Project)))
+			p.waitFor("QA with joints", `document.querySelector('#qa-fabric-used') !== null && document.querySelector('#qa-fabric-used').textContent === 'joint' && document.querySelector('#qa-fabric-keep') !== null`)
+			if bad := eval[[]string](p, layoutProblems); len(bad) > 0 {
+				p.shot("failed-layout-qa-other-fabric" + w.suffix)
+				t.Errorf("QA with another fabric at %d px:\n  %s", w.width, strings.Join(bad, "\n  "))
+			}
+			if r := eval[[]float64](p, `(() => { const a = document.querySelector('#qa-fabric-keep').getBoundingClientRect(); return [a.right, document.documentElement.clientWidth]; })()`); r[0] > r[1] {
+				t.Errorf("the keep button ends at %v px, past the window's %v", r[0], r[1])
+			}
 		})
 	}
 }
