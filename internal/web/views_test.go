@@ -315,6 +315,23 @@ func TestGeotechParts(t *testing.T) {
 	if got := p.text(`#sl-modes tr[data-mode=planar] td:nth-child(2)`); got != fmt.Sprint(sl.Measurements.Planar.Count) {
 		t.Errorf("planar count %q, the route says %d", got, sl.Measurements.Planar.Count)
 	}
+	// Domains named under Domains travel with the tabs; the slope check of
+	// a domain of whole holes counts those holes only.
+	p.do("domains", chromedp.Navigate(fmt.Sprintf("%s/#/p/%d/nets?part=domains&sets=auto:4%s", s.URL, s.Project, domains)))
+	p.waitFor("domains compared", `document.querySelectorAll('#dm-tests tbody tr').length > 0`)
+	p.do("to the slope tab", chromedp.Click(chromedp.CSS(`#nets-parts a[data-part=slope]`)))
+	p.waitFor("slope with domains", `document.querySelector('#sl-domain') !== null && document.querySelector('#sl-modes') !== null`)
+	p.do("choose south", chromedp.SetValue(chromedp.CSS("#sl-domain"), "south"), chromedp.Click(chromedp.CSS(`#sl-form button[type=submit]`)))
+	p.waitFor("south checked", `location.hash.includes('in=south') && document.querySelector('#sl-over') !== null && document.querySelector('#sl-over').textContent.includes('domain south')`)
+	var south struct {
+		Measurements struct {
+			Poles int `json:"poles"`
+		} `json:"measurements"`
+	}
+	s.getJSON(t, fmt.Sprintf("/v1/projects/%d/slope-check?sets=auto:4&face=65/180&friction=30&lateral=20&hole=%s,%s", s.Project, holes[3].Name, holes[4].Name), &south)
+	if got := p.text(`#sl-modes tr[data-mode=planar] td:nth-child(4)`); got != fmt.Sprintf("%d poles", south.Measurements.Poles) {
+		t.Errorf("domain south: %q, the route says %d poles for its holes", got, south.Measurements.Poles)
+	}
 }
 
 // TestQAWithProjectFabric: the QA view and the programme overview run with

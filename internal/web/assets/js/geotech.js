@@ -406,12 +406,18 @@ async function slopePart(ctx) {
   };
   const num = (id, value, label, attrs = {}) => [h("label", { for: id }, label), h("input", { id, value, inputmode: "decimal", size: 5, ...attrs })];
   const checkSel = h("select", { id: "sl-check" }, CHECKS.map((c) => h("option", { value: c.code, selected: c.code === v.check }, c.label)));
+  // A domain named under Domains narrows the check to its holes and depth
+  // range, when the route can express it (see netFilterOf).
+  const doms = sel.domain.map(parseDomain).filter(Boolean);
+  const inDomain = doms.find((d) => d.name === params.get("in")) || null;
+  const domSel = h("select", { id: "sl-domain" }, h("option", { value: "" }, "all holes"), doms.map((d) => h("option", { value: d.name, selected: d === inDomain, disabled: !netFilterOf(d) }, netFilterOf(d) ? d.name : `${d.name} (per-hole ranges: not drawable)`)));
   const setsSel = setsSelect("sl-sets", sel.sets);
   const msg = h("span", { class: "field-msg", role: "alert", id: "sl-msg" });
   const form = h("form", { class: "card filters", id: "sl-form", novalidate: true },
     h("div", { class: "field inline" }, ...num("sl-dip", v.dip, "Face dip (\u00b0)"), ...num("sl-dir", v.dir, "dip direction (\u00b0)")),
     h("div", { class: "field inline" }, ...num("sl-friction", v.friction, "Friction angle (\u00b0)"), ...num("sl-lateral", v.lateral, "Lateral limit (\u00b1\u00b0)")),
     h("div", { class: "field inline" }, h("label", { for: "sl-check" }, "Net of"), checkSel, h("label", { for: "sl-sets" }, "Sets"), setsSel),
+    doms.length ? h("div", { class: "field inline" }, h("label", { for: "sl-domain" }, "Domain"), domSel) : null,
     h("div", { class: "actions" }, h("button", { type: "submit", class: "primary" }, "Check"), h("button", { type: "button", id: "sl-download" }, "Download SVG"), msg));
   const netHost = h("div", { class: "net-big", id: "sl-net" }, h("p", { class: "loading" }, "Drawing\u2026"));
   const netKey = h("div", { class: "net-key", id: "sl-legend" });
@@ -434,7 +440,7 @@ async function slopePart(ctx) {
   form.addEventListener("submit", (e) => {
     e.preventDefault();
     const r = read();
-    if (r) ctx.go(`#/p/${p.id}/nets` + query({ part: "slope", ...r, check: checkSel.value, sets: setsSel.value, hole: sel.hole }));
+    if (r) ctx.go(`#/p/${p.id}/nets` + query({ part: "slope", ...r, check: checkSel.value, sets: setsSel.value, hole: sel.hole, in: domSel.value }) + domainQuery(sel.domain));
   });
   let lastSvg = null;
   form.querySelector("#sl-download").addEventListener("click", () => {
@@ -443,7 +449,8 @@ async function slopePart(ctx) {
     say("SVG downloaded.", "ok");
   });
 
-  const q = query({ hole: sel.hole, sets: sel.sets, face: `${v.dip}/${v.dir}`, friction: v.friction, lateral: v.lateral });
+  const df = inDomain ? netFilterOf(inDomain) : null;
+  const q = query({ ...(df || { hole: sel.hole }), sets: sel.sets, face: `${v.dip}/${v.dir}`, friction: v.friction, lateral: v.lateral });
   const [rep, net] = await Promise.all([
     get(`/v1/projects/${p.id}/slope-check${q}`).catch((e) => ({ error: e })),
     request("GET", `/v1/projects/${p.id}/slope-check/${v.check}${q}`, { accept: "image/svg+xml" }).then((r) => r.data).catch((e) => ({ error: e })),
@@ -480,7 +487,7 @@ async function slopePart(ctx) {
           return h("tr", { "data-mode": k }, h("th", { scope: "row" }, word), h("td", { class: "num" }, c.count ?? "\u2013"), h("td", { class: "num" }, c.percent == null ? "\u2013" : `${fmt(c.percent, 1)}%`),
             h("td", {}, of === "poles" ? `${mm.poles ?? 0} poles` : `${mm.intersections ?? 0} intersections`));
         })))),
-      h("p", { class: "help" }, `Face ${rep.face ? `${fmt(rep.face.dip, 0)} \u2192 ${az(rep.face.dip_direction)}` : ""}, friction ${fmt(rep.friction_angle, 0)}\u00b0, lateral limit \u00b1${fmt(rep.lateral_limit, 0)}\u00b0.` +
+      h("p", { class: "help", id: "sl-over" }, `Face ${rep.face ? `${fmt(rep.face.dip, 0)} \u2192 ${az(rep.face.dip_direction)}` : ""}, friction ${fmt(rep.friction_angle, 0)}\u00b0, lateral limit \u00b1${fmt(rep.lateral_limit, 0)}\u00b0; ${df ? `domain ${inDomain.name} (${rep.input})` : rep.input}.` +
         (rep.unoriented_left_out ? ` ${rep.unoriented_left_out} unoriented measurements left out.` : ""))),
     h("section", { class: "card" }, h("h2", {}, "Per set"),
       h("div", { class: "scroll" }, h("table", { class: "data compact wrap-head", id: "sl-sets-table" },

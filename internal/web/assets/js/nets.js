@@ -103,10 +103,13 @@ function statsTable(doc) {
 
 // partTabs links the parts of the view: the sets and nets of the
 // orientations, and the geotechnical parts.
-function partTabs(pid, part) {
+// The geotechnical parts carry the sets and the domains from one to the
+// next, so domains named once serve spacing and the slope check too.
+function partTabs(pid, part, params) {
   const all = [{ code: "sets", label: "Sets and nets" }, ...PARTS];
+  const keep = part === "sets" ? "" : query({ sets: params.get("sets") || "" }).replace(/^\?/, "&") + params.getAll("domain").map((d) => "&domain=" + encodeURIComponent(d)).join("");
   return h("nav", { class: "tabs", "aria-label": "Parts of the nets view", id: "nets-parts" }, all.map((x) =>
-    h("a", { href: `#/p/${pid}/nets` + (x.code === "sets" ? "" : `?part=${x.code}`), "aria-current": x.code === part ? "page" : null, "data-part": x.code }, x.label)));
+    h("a", { href: `#/p/${pid}/nets` + (x.code === "sets" ? "" : `?part=${x.code}${keep}`), "aria-current": x.code === part ? "page" : null, "data-part": x.code }, x.label)));
 }
 
 export async function netsView(ctx) {
@@ -114,7 +117,7 @@ export async function netsView(ctx) {
   const unit = p.unit;
   const part = params.get("part") || "sets";
   if (part !== "sets") {
-    add(host, h("h1", {}, "Nets and sets: " + ((PARTS.find((x) => x.code === part) || {}).label || part).toLowerCase()), partTabs(p.id, part));
+    add(host, h("h1", {}, "Nets and sets: " + ((PARTS.find((x) => x.code === part) || {}).label || part).toLowerCase()), partTabs(p.id, part, params));
     await geotechView(ctx, part);
     return;
   }
@@ -129,7 +132,7 @@ export async function netsView(ctx) {
     show: (params.get("show") || "density").split(",").filter(Boolean),
     rose: params.get("rose") === "strike" ? "strike" : "dip_direction",
   };
-  add(host, h("h1", {}, "Nets and sets"), partTabs(p.id, "sets"));
+  add(host, h("h1", {}, "Nets and sets"), partTabs(p.id, "sets", params));
   const holeBoxes = p.holes.map((x) => h("label", { class: "check" }, h("input", { type: "checkbox", name: "hole", value: x.name, checked: !sel.hole.length || sel.hole.includes(x.name) }), x.name));
   const typeBoxes = p.types.map((t, i) => h("label", { class: "check" }, h("input", { type: "checkbox", name: "type", value: t.code, checked: !sel.type.length || sel.type.includes(t.code) }), t.code));
   const showBoxes = [["planes", "planes (great circles)"], ["density", "density (Kamb contours)"]].map(([v, l]) => h("label", { class: "check" }, h("input", { type: "checkbox", name: "show", value: v, checked: sel.show.includes(v) }), l));
