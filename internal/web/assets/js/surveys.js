@@ -43,7 +43,9 @@ export async function surveyCard(ctx, box, ho, flags, highlight) {
         ifMatch: `"${s.version}"`,
       });
       say(on ? `The ${s.kind} set is now preferred for ${ho.name}; derived values use it.` : `No set is preferred for ${ho.name} now.`, "ok");
-      await surveyCard(ctx, box, ho, flags, highlight);
+      // The whole view again: the derived values of the table change with
+      // the set in use.
+      ctx.go(location.hash);
     } catch (e) {
       if (!(e instanceof ApiError)) throw e;
       msg.textContent = e.status === 403 ? "Only an admin token can choose the preferred set."
