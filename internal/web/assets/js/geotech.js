@@ -9,6 +9,7 @@ import { request, get, query, save } from "./api.js";
 import { h, fmt, az, say, problemText, add, put } from "./dom.js";
 import { svg, el, confidenceFill, shapeKey } from "./draw.js";
 import { confidenceLegend } from "./legend.js";
+import { showNet, setKeys } from "./nets.js";
 
 const pct = (v) => (v == null ? "\u2013" : `${fmt(v, 0)}%`);
 const plane = (m) => (m ? `${fmt(m.dip, 0)} \u2192 ${az(m.dip_direction)}` : "\u2013");
@@ -28,10 +29,10 @@ export function parseDomain(def) {
   return parts.length ? { name: m[1].trim(), parts, rock: m[2].includes(";") } : null;
 }
 
-// netFilterOf returns the selection of the net route that draws a domain:
-// its holes, and its depth range when every hole shares one. The net route
-// takes one depth range for all holes and no rock type, so a domain with
-// different ranges per hole, or by rock type, cannot be drawn exactly: null.
+// netFilterOf returns the selection that the slope-check routes (which
+// take holes and one depth range, not a domain) can run a domain on: its
+// holes, and its depth range when every hole shares one; null for a domain
+// with different ranges per hole, or by rock type.
 export function netFilterOf(d) {
   if (!d || d.rock) return null;
   const ranges = new Set(d.parts.map((x) => `${x.from}..${x.to}`));
@@ -295,28 +296,41 @@ async function domainsPart(ctx) {
   const rep = await report(ctx, out, `/v1/projects/${p.id}/domains` + query({ sets: sel.sets }) + domainQuery(sel.domain), "The domains could not be compared");
   if (!rep) return;
   const parsed = sel.domain.map(parseDomain).filter(Boolean);
-  // The net of a domain: the nets part drawn with the domain's holes and
-  // depth range, when the net route can express the domain.
-  const netPick = h("select", { id: "dm-net" }, parsed.map((d) => h("option", { value: d.name }, d.name)));
-  const netMsg = h("span", { class: "field-msg", id: "dm-net-msg", role: "status" });
+  // The net of a domain: the net route draws one domain (sets formed on
+  // every measurement, only the domain's drawn, so each set keeps its name
+  // and colour).
+  const netPick = h("select", { id: "dm-net" }, parsed.map((d) => h("option", { value: d.name, selected: d.name === params.get("net") }, d.name)));
+  const netHost = h("div", { class: "net-big", id: "dm-net-svg" });
+  const netKey = h("div", { class: "net-key", id: "dm-net-legend" });
   const netGo = h("button", { type: "button", id: "dm-net-go" }, "Draw its net");
-  netGo.addEventListener("click", () => {
-    const d = parsed.find((x) => x.name === netPick.value);
-    const f = netFilterOf(d);
-    if (!f) {
-      netMsg.textContent = `The net route takes one depth range for all holes and no rock type; domain ${d.name} cannot be drawn exactly.`;
-      return;
+  let lastNet = null;
+  const netSave = h("button", { type: "button", id: "dm-net-save", onclick: () => lastNet && save(lastNet, `${p.project.name.replace(/\W+/g, "-")}-domain-${netPick.value}.svg`, "image/svg+xml") }, "Download SVG");
+  async function drawDomainNet() {
+    const i = parsed.findIndex((x) => x.name === netPick.value);
+    if (i < 0) return;
+    put(netHost, h("p", { class: "loading" }, "Drawing\u2026"));
+    try {
+      const r = await request("GET", `/v1/projects/${p.id}/net` + query({ sets: sel.sets, show: "poles,sets", domain: sel.domain[i] }), { accept: "image/svg+xml" });
+      if (!ctx.isCurrent()) return;
+      lastNet = r.data;
+      const key = showNet(netHost, r.data, `Equal-area net of domain ${parsed[i].name}, lower hemisphere`);
+      put(netKey, h("h3", {}, `Domain ${parsed[i].name}`), setKeys(key.sets),
+        h("p", { class: "help" }, "Lower hemisphere, equal-area; the sets are those of all the measurements, drawn with this domain's members only." + (parsed[i].rock ? " Stored measurements carry no rock type, so a domain by rock type draws nothing." : "")));
+    } catch (e) {
+      put(netHost, h("p", { class: "msg bad" }, "The net could not be drawn: " + problemText(e)));
     }
-    ctx.go(`#/p/${p.id}/nets` + query({ ...f, sets: sel.sets.startsWith("auto:") ? sel.sets.slice(5) : "" }));
-  });
+  }
+  netGo.addEventListener("click", drawDomainNet);
   put(out,
     h("section", { class: "card" }, h("h2", {}, "Sets per domain"),
-      h("div", { class: "field inline" }, h("label", { for: "dm-net" }, "Domain"), netPick, netGo, netMsg),
       ...(rep.domains || []).map((d) => [h("h3", {}, `${d.name}: ${d.rows} measurements, ${d.oriented_planes} oriented planes` + (d.unoriented_excluded_from_means ? `, ${d.unoriented_excluded_from_means} unoriented left out of means` : "")),
         h("div", { class: "scroll" }, h("table", { class: "data compact wrap-head dm-table", "data-domain": d.name },
           h("thead", {}, h("tr", {}, ["Set", "n", "Mean plane", "k", "cone 95 (\u00b0)", "spread (\u00b0)"].map((t) => h("th", { scope: "col" }, t)))),
           h("tbody", {}, (d.sets || []).map((s) => h("tr", {}, h("th", { scope: "row" }, s.name), h("td", { class: "num" }, s.count), h("td", { class: "num" }, plane(s.mean)),
             h("td", { class: "num" }, fmt(s.k, 1)), h("td", { class: "num" }, fmt(s.cone95, 1)), h("td", { class: "num" }, fmt(s.spread, 1)))))))])),
+    h("section", { class: "card net-card", id: "dm-net-card" }, h("h2", {}, "Net of a domain"),
+      h("div", { class: "field inline" }, h("label", { for: "dm-net" }, "Domain"), netPick, netGo, netSave),
+      h("div", { class: "net-row" }, netHost, netKey)),
     h("section", { class: "card" }, h("h2", {}, "Do the domains share each set's mean direction?"),
       h("div", { class: "scroll" }, h("table", { class: "data compact wrap-head", id: "dm-tests" },
         h("thead", {}, h("tr", {}, ["Set", "Domains", "n", "F", "df", "p-value", "At the 5% level"].map((t) => h("th", { scope: "col" }, t)))),
@@ -325,6 +339,7 @@ async function domainsPart(ctx) {
           h("td", {}, t.p_value == null ? (t.note || "not tested") : t.p_value < 0.05 ? "the means differ" : "no evidence they differ")))))),
       h("p", { class: "help" }, (rep.common_mean_method || "") + "."),
       caution(rep, "dm-caution")));
+  await drawDomainNet();
 }
 
 // ---- kinematic checks ----
@@ -410,7 +425,7 @@ async function slopePart(ctx) {
   // range, when the route can express it (see netFilterOf).
   const doms = sel.domain.map(parseDomain).filter(Boolean);
   const inDomain = doms.find((d) => d.name === params.get("in")) || null;
-  const domSel = h("select", { id: "sl-domain" }, h("option", { value: "" }, "all holes"), doms.map((d) => h("option", { value: d.name, selected: d === inDomain, disabled: !netFilterOf(d) }, netFilterOf(d) ? d.name : `${d.name} (per-hole ranges: not drawable)`)));
+  const domSel = h("select", { id: "sl-domain" }, h("option", { value: "" }, "all holes"), doms.map((d) => h("option", { value: d.name, selected: d === inDomain, disabled: !netFilterOf(d) }, netFilterOf(d) ? d.name : `${d.name} (per-hole ranges: not with this check)`)));
   const setsSel = setsSelect("sl-sets", sel.sets);
   const msg = h("span", { class: "field-msg", role: "alert", id: "sl-msg" });
   const form = h("form", { class: "card filters", id: "sl-form", novalidate: true },

@@ -10,7 +10,7 @@ import { geotechView, PARTS } from "./geotech.js";
 // showNet puts the served net sheet in host without its side panel (the
 // net fills the panel) and returns the set key read from the sheet's own
 // legend, for the HTML legend beside it. The download keeps the whole sheet.
-function showNet(host, text, label) {
+export function showNet(host, text, label) {
   const doc = new DOMParser().parseFromString(text, "image/svg+xml");
   const root = doc.documentElement;
   if (root.nodeName !== "svg") {
@@ -32,6 +32,13 @@ function showNet(host, text, label) {
   root.setAttribute("class", "chart served-net");
   put(host, document.importNode(root, true));
   return { sets, density };
+}
+
+// setKeys is the HTML key of a served net's sets (read from its sheet by
+// showNet).
+export function setKeys(sets) {
+  return sets.length ? h("ul", { class: "set-keys" }, sets.map((k) => h("li", { class: "key", "data-type": k.name, "data-colour": k.colour, "data-mark": k.mark },
+    shapeKey({ colour: k.colour, shape: k.mark }), h("span", {}, h("strong", {}, k.name), ` n=${k.count}`, h("br"), h("span", { class: "help" }, k.desc))))) : null;
 }
 
 function showSvg(host, text, label) {
@@ -239,8 +246,7 @@ export async function netsView(ctx) {
     lastSvg = netSvg;
     const key = showNet(netHost, netSvg, `${sel.projection === "equal-angle" ? "Equal-angle" : "Equal-area"} net of the selection, lower hemisphere`);
     put(netKey, h("h3", {}, `Lower hemisphere, ${sel.projection === "equal-angle" ? "equal-angle" : "equal-area"}`),
-      key.sets.length ? h("ul", { class: "set-keys" }, key.sets.map((k) => h("li", { class: "key", "data-type": k.name, "data-colour": k.colour, "data-mark": k.mark },
-        shapeKey({ colour: k.colour, shape: k.mark }), h("span", {}, h("strong", {}, k.name), ` n=${k.count}`, h("br"), h("span", { class: "help" }, k.desc))))) : null,
+      setKeys(key.sets),
       h("p", { class: "help" }, "Filled marks: poles to planes; open marks: lines. A set's mean is the large mark, with its 95% cone; the dashed great circle is the mean plane."),
       sel.show.includes("density") ? h("p", { class: "help" }, "Shaded: Kamb density of the poles, darker is denser (levels in the downloaded SVG).") : null);
   }
