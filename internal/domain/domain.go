@@ -108,11 +108,16 @@ type TypeCode struct {
 	// every view; the service fills empty ones with the next free default.
 	Colour string `json:"colour"`
 	Mark   string `json:"mark"`
+	// Version counts the entry's changes (sync compares it).
+	Version int64 `json:"version"`
 }
 
 // Hole is a drill hole: its collar and its planned direction.
 type Hole struct {
-	ID        int64   `json:"id"`
+	ID int64 `json:"id"`
+	// GlobalID is the hole's identity on every machine that holds it (a
+	// UUID made where the row was created); the store makes one when empty.
+	GlobalID  string  `json:"global_id"`
 	ProjectID int64   `json:"project_id"`
 	Name      string  `json:"name"` // the hole id used in files, e.g. "ZR001"; unique in a project
 	East      float64 `json:"easting"`
@@ -285,10 +290,11 @@ var Confidences = []string{"good", "fair", "poor", "none"}
 // Run is one orientation run: the core between two depths oriented from one
 // orientation mark.
 type Run struct {
-	ID     int64   `json:"id"`
-	HoleID int64   `json:"hole_id"`
-	From   float64 `json:"from"`
-	To     float64 `json:"to"`
+	ID       int64   `json:"id"`
+	GlobalID string  `json:"global_id"` // identity on every machine (see [Hole])
+	HoleID   int64   `json:"hole_id"`
+	From     float64 `json:"from"`
+	To       float64 `json:"to"`
 	// Confidence is the mark-confidence rating, one of [Confidences]; "none"
 	// means the run cannot be used for orientation.
 	Confidence string `json:"confidence"`
@@ -305,6 +311,7 @@ type Run struct {
 // not part of it: the service computes them on every read.
 type Measurement struct {
 	ID        int64   `json:"id"`
+	GlobalID  string  `json:"global_id"` // identity on every machine (see [Hole])
 	ProjectID int64   `json:"project_id"`
 	HoleID    int64   `json:"hole_id"`
 	Depth     float64 `json:"depth"`

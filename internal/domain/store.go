@@ -44,6 +44,8 @@ type MeasurementFilter struct {
 	TypeCodes  []string
 	LoggedFrom *time.Time
 	LoggedTo   *time.Time
+	// GlobalIDs keeps the measurements with these global ids.
+	GlobalIDs []string
 }
 
 // Store is the persistence contract. Both stores (SQLite and PostgreSQL)
@@ -172,4 +174,6 @@ type Store interface {
 	GetIdempotency(ctx context.Context, projectID int64, key string) (Idempotency, error)
 	// PutIdempotency remembers a result; Conflict when the key is taken.
 	PutIdempotency(ctx context.Context, r Idempotency) error
+
+	SyncStore
 }

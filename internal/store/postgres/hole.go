@@ -11,12 +11,12 @@ import (
 )
 
 const holeCols = `id, project_id, name, easting, northing, elevation, azimuth, azimuth_ref, dip, final_depth,
-	crs, started, finished, declination, grid_convergence, survey_date, version, created_at, updated_at`
+	crs, started, finished, declination, grid_convergence, survey_date, version, created_at, updated_at, global_id`
 
 const (
 	insertHole = `INSERT INTO holes (project_id, name, easting, northing, elevation, azimuth, azimuth_ref, dip,
-	final_depth, crs, started, finished, declination, grid_convergence, survey_date, version, created_at, updated_at)
-	VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15, 1, $16, $17) RETURNING id`
+	final_depth, crs, started, finished, declination, grid_convergence, survey_date, version, created_at, updated_at, global_id)
+	VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15, 1, $16, $17, $18) RETURNING id`
 	selectHole       = `SELECT ` + holeCols + ` FROM holes WHERE id = $1`
 	selectHoleByName = `SELECT ` + holeCols + ` FROM holes WHERE project_id = $1 AND name = $2`
 	listHoles        = `SELECT ` + holeCols + ` FROM holes WHERE project_id = $1 AND id > $2 ORDER BY id LIMIT $3`
@@ -31,7 +31,7 @@ func scanHole(r scanner) (domain.Hole, error) {
 	var h domain.Hole
 	var c, u time.Time
 	err := r.Scan(&h.ID, &h.ProjectID, &h.Name, &h.East, &h.North, &h.Elevation, &h.Azimuth, &h.AzimuthRef, &h.Dip,
-		&h.FinalDepth, &h.CRS, &h.Started, &h.Finished, &h.Declination, &h.GridConvergence, &h.SurveyDate, &h.Version, &c, &u)
+		&h.FinalDepth, &h.CRS, &h.Started, &h.Finished, &h.Declination, &h.GridConvergence, &h.SurveyDate, &h.Version, &c, &u, &h.GlobalID)
 	h.CreatedAt, h.UpdatedAt = c.UTC(), u.UTC()
 	return h, err
 }
@@ -39,10 +39,11 @@ func scanHole(r scanner) (domain.Hole, error) {
 // CreateHole inserts h and sets its ID, version and timestamps.
 func (s *Store) CreateHole(ctx context.Context, h *domain.Hole) error {
 	t := storekit.Now()
+	h.GlobalID = storekit.GlobalID(h.GlobalID)
 	return s.write(ctx, func(q querier) error {
 		err := q.QueryRow(ctx, insertHole, h.ProjectID, h.Name, h.East, h.North, h.Elevation, h.Azimuth,
 			h.AzimuthRef, h.Dip, h.FinalDepth, h.CRS, h.Started, h.Finished,
-			storekit.NullFloat(h.Declination), storekit.NullFloat(h.GridConvergence), h.SurveyDate, t, t).Scan(&h.ID)
+			storekit.NullFloat(h.Declination), storekit.NullFloat(h.GridConvergence), h.SurveyDate, t, t, h.GlobalID).Scan(&h.ID)
 		if err != nil {
 			return translate(err)
 		}

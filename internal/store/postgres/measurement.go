@@ -12,12 +12,12 @@ import (
 )
 
 const measurementCols = `id, project_id, hole_id, depth, alpha, beta, gamma, type_code, apparent_thickness,
-	comment, logged_by, logged_at, version, created_at, updated_at`
+	comment, logged_by, logged_at, version, created_at, updated_at, global_id`
 
 const (
 	insertMeasurement = `INSERT INTO measurements (project_id, hole_id, depth, alpha, beta, gamma, type_code,
-	apparent_thickness, comment, logged_by, logged_at, version, created_at, updated_at)
-	VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, 1, $12, $13) RETURNING id`
+	apparent_thickness, comment, logged_by, logged_at, version, created_at, updated_at, global_id)
+	VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, 1, $12, $13, $14) RETURNING id`
 	selectMeasurement = `SELECT ` + measurementCols + ` FROM measurements WHERE id = $1`
 	updateMeasurement = `UPDATE measurements SET hole_id = $1, depth = $2, alpha = $3, beta = $4, gamma = $5,
 	type_code = $6, apparent_thickness = $7, comment = $8, logged_by = $9, logged_at = $10,
@@ -30,7 +30,7 @@ func scanMeasurement(r scanner) (domain.Measurement, error) {
 	var g, th *float64
 	var l, c, u time.Time
 	err := r.Scan(&m.ID, &m.ProjectID, &m.HoleID, &m.Depth, &m.Alpha, &m.Beta, &g, &m.TypeCode, &th,
-		&m.Comment, &m.LoggedBy, &l, &m.Version, &c, &u)
+		&m.Comment, &m.LoggedBy, &l, &m.Version, &c, &u, &m.GlobalID)
 	m.Gamma, m.ApparentThickness = g, th
 	m.LoggedAt, m.CreatedAt, m.UpdatedAt = l.UTC(), c.UTC(), u.UTC()
 	return m, err
@@ -64,13 +64,17 @@ func where(f domain.MeasurementFilter) (string, []any) {
 	if f.LoggedTo != nil {
 		add(" AND logged_at <= $%d", *f.LoggedTo)
 	}
+	if len(f.GlobalIDs) > 0 {
+		add(" AND global_id = ANY($%d)", f.GlobalIDs)
+	}
 	return b.String(), args
 }
 
 func insertOne(ctx context.Context, q querier, m *domain.Measurement, t time.Time) error {
 	m.LoggedAt = m.LoggedAt.UTC().Truncate(time.Microsecond)
+	m.GlobalID = storekit.GlobalID(m.GlobalID)
 	err := q.QueryRow(ctx, insertMeasurement, m.ProjectID, m.HoleID, m.Depth, m.Alpha, storekit.NullFloat(m.Beta), storekit.NullFloat(m.Gamma),
-		m.TypeCode, storekit.NullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, m.LoggedAt, t, t).Scan(&m.ID)
+		m.TypeCode, storekit.NullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, m.LoggedAt, t, t, m.GlobalID).Scan(&m.ID)
 	if err != nil {
 		return translate(err)
 	}
@@ -91,16 +95,16 @@ const (
 	createStaging = `CREATE TEMP TABLE IF NOT EXISTS measurements_staging (
 	seq BIGINT, project_id BIGINT, hole_id BIGINT, depth DOUBLE PRECISION, alpha DOUBLE PRECISION, beta DOUBLE PRECISION,
 	gamma DOUBLE PRECISION, type_code TEXT, apparent_thickness DOUBLE PRECISION, comment TEXT, logged_by TEXT,
-	logged_at TIMESTAMPTZ) ON COMMIT DROP`
+	logged_at TIMESTAMPTZ, global_id TEXT) ON COMMIT DROP`
 	insertFromStaging = `INSERT INTO measurements (project_id, hole_id, depth, alpha, beta, gamma, type_code,
-	apparent_thickness, comment, logged_by, logged_at, version, created_at, updated_at)
+	apparent_thickness, comment, logged_by, logged_at, version, created_at, updated_at, global_id)
 	SELECT project_id, hole_id, depth, alpha, beta, gamma, type_code, apparent_thickness, comment, logged_by,
-	logged_at, 1, $1, $1 FROM measurements_staging ORDER BY seq`
+	logged_at, 1, $1, $1, global_id FROM measurements_staging ORDER BY seq`
 	truncateStaging = `TRUNCATE measurements_staging`
 )
 
 var stagingCols = []string{"seq", "project_id", "hole_id", "depth", "alpha", "beta", "gamma", "type_code",
-	"apparent_thickness", "comment", "logged_by", "logged_at"}
+	"apparent_thickness", "comment", "logged_by", "logged_at", "global_id"}
 
 // CreateMeasurements bulk-loads ms by COPY into a staging table and one
 // INSERT ... SELECT, in one transaction. It does not set the IDs.
@@ -125,8 +129,9 @@ func (s *Store) CreateMeasurements(ctx context.Context, ms []domain.Measurement)
 			m := &ms[i]
 			i++
 			m.LoggedAt = m.LoggedAt.UTC().Truncate(time.Microsecond)
+			m.GlobalID = storekit.GlobalID(m.GlobalID)
 			return []any{int64(i), m.ProjectID, m.HoleID, m.Depth, m.Alpha, m.Beta, m.Gamma, m.TypeCode,
-				m.ApparentThickness, m.Comment, m.LoggedBy, m.LoggedAt}, nil
+				m.ApparentThickness, m.Comment, m.LoggedBy, m.LoggedAt, m.GlobalID}, nil
 		})
 		if _, err := q.CopyFrom(ctx, pgx.Identifier{"measurements_staging"}, stagingCols, src); err != nil {
 			return translate(err)

@@ -10,11 +10,11 @@ import (
 	"corvane/internal/store/storekit"
 )
 
-const runCols = `id, hole_id, from_depth, to_depth, confidence, mismatch, comment, version, created_at, updated_at`
+const runCols = `id, hole_id, from_depth, to_depth, confidence, mismatch, comment, version, created_at, updated_at, global_id`
 
 const (
-	insertRun = `INSERT INTO runs (hole_id, from_depth, to_depth, confidence, mismatch, comment, version, created_at, updated_at)
-	VALUES ($1, $2, $3, $4, $5, $6, 1, $7, $8) RETURNING id`
+	insertRun = `INSERT INTO runs (hole_id, from_depth, to_depth, confidence, mismatch, comment, version, created_at, updated_at, global_id)
+	VALUES ($1, $2, $3, $4, $5, $6, 1, $7, $8, $9) RETURNING id`
 	selectRun = `SELECT ` + runCols + ` FROM runs WHERE id = $1`
 	listRuns  = `SELECT ` + runCols + ` FROM runs WHERE hole_id = $1 ORDER BY from_depth, id`
 	updateRun = `UPDATE runs SET from_depth = $1, to_depth = $2, confidence = $3, mismatch = $4, comment = $5,
@@ -26,7 +26,7 @@ func scanRun(r scanner) (domain.Run, error) {
 	var run domain.Run
 	var mm *float64
 	var c, u time.Time
-	err := r.Scan(&run.ID, &run.HoleID, &run.From, &run.To, &run.Confidence, &mm, &run.Comment, &run.Version, &c, &u)
+	err := r.Scan(&run.ID, &run.HoleID, &run.From, &run.To, &run.Confidence, &mm, &run.Comment, &run.Version, &c, &u, &run.GlobalID)
 	run.Mismatch, run.CreatedAt, run.UpdatedAt = mm, c.UTC(), u.UTC()
 	return run, err
 }
@@ -34,9 +34,10 @@ func scanRun(r scanner) (domain.Run, error) {
 // CreateRun inserts r and sets its ID, version and timestamps.
 func (s *Store) CreateRun(ctx context.Context, r *domain.Run) error {
 	t := storekit.Now()
+	r.GlobalID = storekit.GlobalID(r.GlobalID)
 	return s.write(ctx, func(q querier) error {
 		err := q.QueryRow(ctx, insertRun, r.HoleID, r.From, r.To, r.Confidence, storekit.NullFloat(r.Mismatch), r.Comment,
-			t, t).Scan(&r.ID)
+			t, t, r.GlobalID).Scan(&r.ID)
 		if err != nil {
 			return translate(err)
 		}

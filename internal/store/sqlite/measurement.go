@@ -11,12 +11,12 @@ import (
 )
 
 const measurementCols = `id, project_id, hole_id, depth, alpha, beta, gamma, type_code, apparent_thickness,
-	comment, logged_by, logged_at, version, created_at, updated_at`
+	comment, logged_by, logged_at, version, created_at, updated_at, global_id`
 
 const (
 	insertMeasurement = `INSERT INTO measurements (project_id, hole_id, depth, alpha, beta, gamma, type_code,
-	apparent_thickness, comment, logged_by, logged_at, version, created_at, updated_at)
-	VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1, ?, ?) RETURNING id`
+	apparent_thickness, comment, logged_by, logged_at, version, created_at, updated_at, global_id)
+	VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1, ?, ?, ?) RETURNING id`
 	selectMeasurement = `SELECT ` + measurementCols + ` FROM measurements WHERE id = ?`
 	updateMeasurement = `UPDATE measurements SET hole_id = ?, depth = ?, alpha = ?, beta = ?, gamma = ?,
 	type_code = ?, apparent_thickness = ?, comment = ?, logged_by = ?, logged_at = ?,
@@ -29,7 +29,7 @@ func scanMeasurement(r scanner) (domain.Measurement, error) {
 	var b, g, th sql.NullFloat64
 	var l, c, u int64
 	err := r.Scan(&m.ID, &m.ProjectID, &m.HoleID, &m.Depth, &m.Alpha, &b, &g, &m.TypeCode, &th,
-		&m.Comment, &m.LoggedBy, &l, &m.Version, &c, &u)
+		&m.Comment, &m.LoggedBy, &l, &m.Version, &c, &u, &m.GlobalID)
 	m.Beta, m.Gamma, m.ApparentThickness = floatPtr(b), floatPtr(g), floatPtr(th)
 	m.LoggedAt, m.CreatedAt, m.UpdatedAt = fromMicro(l), fromMicro(c), fromMicro(u)
 	return m, err
@@ -68,13 +68,20 @@ func where(f domain.MeasurementFilter) (string, []any) {
 		b.WriteString(" AND logged_at <= ?")
 		args = append(args, micro(*f.LoggedTo))
 	}
+	if len(f.GlobalIDs) > 0 {
+		b.WriteString(" AND global_id IN (?" + strings.Repeat(", ?", len(f.GlobalIDs)-1) + ")")
+		for _, g := range f.GlobalIDs {
+			args = append(args, g)
+		}
+	}
 	return b.String(), args
 }
 
 func insertOne(ctx context.Context, q querier, m *domain.Measurement, t time.Time) error {
 	m.LoggedAt = m.LoggedAt.UTC().Truncate(time.Microsecond)
+	m.GlobalID = storekit.GlobalID(m.GlobalID)
 	err := q.QueryRowContext(ctx, insertMeasurement, m.ProjectID, m.HoleID, m.Depth, m.Alpha, storekit.NullFloat(m.Beta), storekit.NullFloat(m.Gamma),
-		m.TypeCode, storekit.NullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, micro(m.LoggedAt), micro(t), micro(t)).Scan(&m.ID)
+		m.TypeCode, storekit.NullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, micro(m.LoggedAt), micro(t), micro(t), m.GlobalID).Scan(&m.ID)
 	if err != nil {
 		return translate(err)
 	}
@@ -102,8 +109,9 @@ func (s *Store) CreateMeasurements(ctx context.Context, ms []domain.Measurement)
 		for i := range ms {
 			m := &ms[i]
 			m.LoggedAt = m.LoggedAt.UTC().Truncate(time.Microsecond)
+			m.GlobalID = storekit.GlobalID(m.GlobalID)
 			err := stmt.QueryRowContext(ctx, m.ProjectID, m.HoleID, m.Depth, m.Alpha, storekit.NullFloat(m.Beta), storekit.NullFloat(m.Gamma),
-				m.TypeCode, storekit.NullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, micro(m.LoggedAt), micro(t), micro(t)).Scan(&m.ID)
+				m.TypeCode, storekit.NullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, micro(m.LoggedAt), micro(t), micro(t), m.GlobalID).Scan(&m.ID)
 			if err != nil {
 				return translate(err)
 			}

@@ -8,11 +8,11 @@ import (
 	"corvane/internal/store/storekit"
 )
 
-const runCols = `id, hole_id, from_depth, to_depth, confidence, mismatch, comment, version, created_at, updated_at`
+const runCols = `id, hole_id, from_depth, to_depth, confidence, mismatch, comment, version, created_at, updated_at, global_id`
 
 const (
-	insertRun = `INSERT INTO runs (hole_id, from_depth, to_depth, confidence, mismatch, comment, version, created_at, updated_at)
-	VALUES (?, ?, ?, ?, ?, ?, 1, ?, ?) RETURNING id`
+	insertRun = `INSERT INTO runs (hole_id, from_depth, to_depth, confidence, mismatch, comment, version, created_at, updated_at, global_id)
+	VALUES (?, ?, ?, ?, ?, ?, 1, ?, ?, ?) RETURNING id`
 	selectRun = `SELECT ` + runCols + ` FROM runs WHERE id = ?`
 	listRuns  = `SELECT ` + runCols + ` FROM runs WHERE hole_id = ? ORDER BY from_depth, id`
 	updateRun = `UPDATE runs SET from_depth = ?, to_depth = ?, confidence = ?, mismatch = ?, comment = ?,
@@ -24,7 +24,7 @@ func scanRun(r scanner) (domain.Run, error) {
 	var run domain.Run
 	var mm sql.NullFloat64
 	var c, u int64
-	err := r.Scan(&run.ID, &run.HoleID, &run.From, &run.To, &run.Confidence, &mm, &run.Comment, &run.Version, &c, &u)
+	err := r.Scan(&run.ID, &run.HoleID, &run.From, &run.To, &run.Confidence, &mm, &run.Comment, &run.Version, &c, &u, &run.GlobalID)
 	run.Mismatch, run.CreatedAt, run.UpdatedAt = floatPtr(mm), fromMicro(c), fromMicro(u)
 	return run, err
 }
@@ -32,9 +32,10 @@ func scanRun(r scanner) (domain.Run, error) {
 // CreateRun inserts r and sets its ID, version and timestamps.
 func (s *Store) CreateRun(ctx context.Context, r *domain.Run) error {
 	t := storekit.Now()
+	r.GlobalID = storekit.GlobalID(r.GlobalID)
 	return s.write(ctx, func(q querier) error {
 		err := q.QueryRowContext(ctx, insertRun, r.HoleID, r.From, r.To, r.Confidence, storekit.NullFloat(r.Mismatch), r.Comment,
-			micro(t), micro(t)).Scan(&r.ID)
+			micro(t), micro(t), r.GlobalID).Scan(&r.ID)
 		if err != nil {
 			return translate(err)
 		}

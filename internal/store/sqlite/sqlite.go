@@ -49,6 +49,9 @@ type Store struct {
 	tx *sql.Tx // set when bound to a transaction
 	// readOnly marks a Store bound to a [Store.Snapshot]: its writes fail.
 	readOnly bool
+	// sourced is set when [Store.SetChangeSource] marked the transaction's
+	// change log entries; InTx resets the mark before it commits.
+	sourced bool
 }
 
 var _ domain.Store = (*Store)(nil)
@@ -200,6 +203,12 @@ func (s *Store) InTx(ctx context.Context, fn func(ctx context.Context, tx domain
 	if err := fn(ctx, bound); err != nil {
 		tx.Rollback()
 		return err
+	}
+	if bound.sourced {
+		if _, err := tx.ExecContext(ctx, setChangeSource, "", ""); err != nil {
+			tx.Rollback()
+			return translate(err)
+		}
 	}
 	if err := tx.Commit(); err != nil {
 		return translate(err)

@@ -10,8 +10,8 @@ import (
 const (
 	upsertTypeCode = `INSERT INTO type_codes (project_id, code, description, kind, colour, mark) VALUES (?, ?, ?, ?, ?, ?)
 	ON CONFLICT (project_id, code) DO UPDATE SET description = excluded.description, kind = excluded.kind,
-	colour = excluded.colour, mark = excluded.mark`
-	listTypeCodes  = `SELECT project_id, code, description, kind, colour, mark FROM type_codes WHERE project_id = ? ORDER BY code`
+	colour = excluded.colour, mark = excluded.mark, version = type_codes.version + 1`
+	listTypeCodes  = `SELECT project_id, code, description, kind, colour, mark, version FROM type_codes WHERE project_id = ? ORDER BY code`
 	deleteTypeCode = `DELETE FROM type_codes WHERE project_id = ? AND code = ?`
 )
 
@@ -31,7 +31,7 @@ func (s *Store) ListTypeCodes(ctx context.Context, projectID int64) ([]domain.Ty
 	}
 	return collect(rows, func(r scanner) (domain.TypeCode, error) {
 		var tc domain.TypeCode
-		err := r.Scan(&tc.ProjectID, &tc.Code, &tc.Description, &tc.Kind, &tc.Colour, &tc.Mark)
+		err := r.Scan(&tc.ProjectID, &tc.Code, &tc.Description, &tc.Kind, &tc.Colour, &tc.Mark, &tc.Version)
 		return tc, err
 	})
 }

@@ -13,6 +13,8 @@ import (
 	"strings"
 	"time"
 
+	"github.com/google/uuid"
+
 	"corvane/internal/domain"
 	"corvane/internal/uncertainty"
 )
@@ -220,4 +222,46 @@ func KindSetMissing(holeID int64, kind string, ifVersion int64) error {
 // KindSetStale is a write of a hole's set of a kind at the wrong version.
 func KindSetStale(holeID int64, kind string, have, want int64) error {
 	return domain.Errorf(domain.PreconditionFailed, "%s survey of hole %d is at version %d, not %d: reload and retry", kind, holeID, have, want)
+}
+
+// GlobalID returns gid, or a new global id when gid is empty: a UUID of
+// version 7 (RFC 9562), random but rising with time, so rows made on any
+// machine never collide and the unique index stays local to its newest
+// pages. google/uuid makes it (a small, well-kept library; the random bits
+// come from crypto/rand).
+func GlobalID(gid string) string {
+	if gid != "" {
+		return gid
+	}
+	return uuid.Must(uuid.NewV7()).String()
+}
+
+// FindGlobalSQL returns the query, in the dialect whose n-th placeholder is
+// ph(n), that reads (id, version) of the synced record of table with the
+// global id: type codes by their code in the project (id 0), survey sets by
+// their hole's global id (id: the hole's), the rest by their own.
+func FindGlobalSQL(table string, projectID int64, gid string, ph func(int) string) (string, []any, error) {
+	switch table {
+	case domain.SyncTypes:
+		return `SELECT 0, version FROM type_codes WHERE project_id = ` + ph(1) + ` AND code = ` + ph(2), []any{projectID, gid}, nil
+	case domain.SyncSurveys:
+		return `SELECT s.hole_id, s.version FROM survey_sets s JOIN holes h ON h.id = s.hole_id WHERE h.global_id = ` + ph(1), []any{gid}, nil
+	case domain.SyncHoles, domain.SyncRuns, domain.SyncMeasurements:
+		return `SELECT id, version FROM ` + table + ` WHERE global_id = ` + ph(1), []any{gid}, nil
+	}
+	return "", nil, domain.FieldErr("table", "%q is not a synced table", table)
+}
+
+// RestampSQL returns the statement that sets the version of a synced record
+// (see [FindGlobalSQL]).
+func RestampSQL(table string, projectID int64, gid string, version int64, ph func(int) string) (string, []any, error) {
+	switch table {
+	case domain.SyncTypes:
+		return `UPDATE type_codes SET version = ` + ph(1) + ` WHERE project_id = ` + ph(2) + ` AND code = ` + ph(3), []any{version, projectID, gid}, nil
+	case domain.SyncSurveys:
+		return `UPDATE survey_sets SET version = ` + ph(1) + ` WHERE hole_id = (SELECT id FROM holes WHERE global_id = ` + ph(2) + `)`, []any{version, gid}, nil
+	case domain.SyncHoles, domain.SyncRuns, domain.SyncMeasurements:
+		return `UPDATE ` + table + ` SET version = ` + ph(1) + ` WHERE global_id = ` + ph(2), []any{version, gid}, nil
+	}
+	return "", nil, domain.FieldErr("table", "%q is not a synced table", table)
 }

@@ -182,9 +182,10 @@ func testTypeCodes(t *testing.T, s domain.Store) {
 	got, err := s.ListTypeCodes(c, p.ID)
 	must(t, err)
 	diff(t, "vocabulary", []domain.TypeCode{
-		{ProjectID: p.ID, Code: "BD", Description: "bedding plane", Kind: "plane", Colour: "#CC79A7", Mark: "star"},
-		{ProjectID: p.ID, Code: "JN", Description: "joint", Kind: "plane"},
-		{ProjectID: p.ID, Code: "LN", Description: "lineation", Kind: "line"},
+		// Each put counts as a change: BD was made with the project, then replaced twice.
+		{ProjectID: p.ID, Code: "BD", Description: "bedding plane", Kind: "plane", Colour: "#CC79A7", Mark: "star", Version: 3},
+		{ProjectID: p.ID, Code: "JN", Description: "joint", Kind: "plane", Version: 1},
+		{ProjectID: p.ID, Code: "LN", Description: "lineation", Kind: "line", Version: 1},
 	}, got)
 	h := newHole(t, s, p.ID, "H1")
 	m := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: 10, Alpha: 30, Beta: f64(100), TypeCode: "JN", LoggedAt: time.Now()}
@@ -392,7 +393,9 @@ func testMeasurements(t *testing.T, s domain.Store) {
 	must(t, s.CreateMeasurement(c, &unor))
 	got, _ = s.GetMeasurement(c, unor.ID)
 	diff(t, "unoriented measurement", unor, got)
-	if _, err := s.CreateMeasurements(c, []domain.Measurement{unor}); err != nil {
+	again := unor
+	again.GlobalID = "" // a new row: the store makes its global id
+	if _, err := s.CreateMeasurements(c, []domain.Measurement{again}); err != nil {
 		t.Fatal(err)
 	}
 	ms, err := s.ListMeasurements(c, domain.MeasurementFilter{ProjectID: p.ID, MinDepth: f64(14), MaxDepth: f64(14)}, domain.Page{})
