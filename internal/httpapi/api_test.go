@@ -17,14 +17,15 @@ import (
 )
 
 type view struct {
-	ID      int64           `json:"id"`
-	HoleID  int64           `json:"hole_id"`
-	Hole    string          `json:"hole"`
-	Depth   float64         `json:"depth"`
-	Alpha   float64         `json:"alpha"`
-	Beta    float64         `json:"beta"`
-	Version int64           `json:"version"`
-	Derived service.Derived `json:"derived"`
+	ID       int64           `json:"id"`
+	GlobalID string          `json:"global_id"`
+	HoleID   int64           `json:"hole_id"`
+	Hole     string          `json:"hole"`
+	Depth    float64         `json:"depth"`
+	Alpha    float64         `json:"alpha"`
+	Beta     float64         `json:"beta"`
+	Version  int64           `json:"version"`
+	Derived  service.Derived `json:"derived"`
 }
 
 func near(a *float64, want, tol float64) bool { return a != nil && math.Abs(*a-want) <= tol }

@@ -18,6 +18,7 @@ import (
 
 	"corvane/api"
 	"corvane/internal/domain"
+	"corvane/internal/service"
 )
 
 var (
@@ -311,7 +312,8 @@ func TestContractTour(t *testing.T) {
 	f.must(200, f.site, "PUT", mb, map[string]any{"hole_id": h.ID, "depth": 2.1, "alpha": 31, "beta": 200, "type": "JN"}, nil, "If-Match", `"1"`)
 	f.must(200, f.site, "GET", base+"/measurements.csv", nil, nil)
 	f.must(201, f.site, "POST", base+"/imports/runs", "hole_id,from,to,confidence\nTR001,3,6,good\n", nil)
-	f.must(201, f.site, "POST", base+"/measurements", map[string]any{"hole_id": h.ID, "depth": 4, "alpha": 50, "type": "JN"}, nil) // unoriented
+	var unoriented view
+	f.must(201, f.site, "POST", base+"/measurements", map[string]any{"hole_id": h.ID, "depth": 4, "alpha": 50, "type": "JN"}, &unoriented)
 	f.must(200, f.site, "PUT", hb+"/intervals", map[string]any{"intervals": []map[string]any{
 		{"from": 0, "to": 3, "recovered": 2.9, "solid": 2.5, "pieces": []float64{0.5, 0.05, 1.2}, "natural_breaks": 4, "confidence": "good"},
 		{"from": 3, "to": 6, "recovered": 3, "sound": 2.2, "natural_breaks": 3, "induced_breaks": 1}}}, nil)
@@ -347,6 +349,27 @@ func TestContractTour(t *testing.T) {
 	f.must(200, f.site, "GET", hb+"/qa?format=html", nil, nil)
 	f.must(200, f.site, "GET", base+"/audit", nil, nil)
 	f.must(200, f.site, "GET", "/v1/audit?project="+itoa(pid), nil, nil)
+	f.must(200, f.site, "GET", base+"/sync/changes?after=0&limit=50&holes=TR001", nil, nil)
+	var rec service.SyncRecord
+	f.must(200, f.site, "GET", base+"/sync/records/measurements/"+unoriented.GlobalID, nil, &rec)
+	edit := func(replica, comment string, baseVersion int64) service.PushRequest {
+		r := rec
+		m := *r.Measurement
+		m.Comment = comment
+		r.Measurement = &m
+		ch := []service.PushChange{{ChangeID: replica + ":1", Base: baseVersion, SyncRecord: r}}
+		return service.PushRequest{BatchID: service.BatchID(replica, ch), Replica: replica, Changes: ch}
+	}
+	var pushed service.PushResponse
+	f.must(200, f.site, "POST", base+"/sync/push", edit("tour-a", "seen again", rec.Version), &pushed)
+	f.must(200, f.site, "POST", base+"/sync/push", edit("tour-b", "seen otherwise", rec.Version), &pushed)
+	if len(pushed.Results) != 1 || pushed.Results[0].Status != service.PushConflict {
+		t.Fatalf("a push from a stale base: %+v, want one conflict", pushed.Results)
+	}
+	cid := pushed.Results[0].ConflictID
+	f.must(200, f.site, "GET", base+"/sync/conflicts?status=open", nil, nil)
+	f.must(200, f.site, "GET", base+"/sync/conflicts/"+cid, nil, nil)
+	f.must(200, f.site, "POST", base+"/sync/conflicts/"+cid+"/resolve", map[string]string{"keep": "remote"}, nil)
 	f.must(204, f.site, "DELETE", mb, nil, nil, "If-Match", `"2"`)
 	r = f.must(200, f.site, "GET", hb, nil, nil)
 	f.must(204, f.site, "DELETE", hb, nil, nil, "If-Match", r.Header.Get("ETag"))

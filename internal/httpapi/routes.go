@@ -98,6 +98,13 @@ func (s *Server) routes() {
 	p.GET("/slope-check", need(domain.RoleRead), s.heavy, s.slopeCheck)
 	p.GET("/slope-check/:check", need(domain.RoleRead), s.heavy, s.slopeNet)
 
+	p.GET("/sync/changes", s.syncChanges)
+	p.POST("/sync/push", need(domain.RoleLog), s.syncPush)
+	p.GET("/sync/records/:table/:gid", s.syncRecord)
+	p.GET("/sync/conflicts", s.listConflicts)
+	p.GET("/sync/conflicts/:conflict", s.getConflict)
+	p.POST("/sync/conflicts/:conflict/resolve", need(domain.RoleLog), s.resolveConflict)
+
 	p.POST("/imports/:kind", s.importCSV)
 	p.GET("/audit", s.listAudit)
 }

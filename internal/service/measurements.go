@@ -96,26 +96,33 @@ func (s *Service) CreateMeasurement(ctx context.Context, projectID int64, m doma
 		if err != nil {
 			return err
 		}
-		m.ProjectID = projectID
-		if m.LoggedBy == "" {
-			m.LoggedBy = a.Name
-		}
-		if m.LoggedAt.IsZero() {
-			m.LoggedAt = s.now()
-		}
-		if err := checkMeasurement(&m, h, vocab); err != nil {
-			return err
-		}
-		if err := st.CreateMeasurement(ctx, &m); err != nil {
-			return err
-		}
-		if err := audit(ctx, st, a, projectID, "measurement", m.ID, domain.ActionCreate, nil, m); err != nil {
+		if err := s.addMeasurement(ctx, st, a, projectID, &m, h, vocab); err != nil {
 			return err
 		}
 		v, err = newDeriver(st, p).view(ctx, m)
 		return err
 	})
 	return v, err
+}
+
+// addMeasurement checks m against its hole h and the vocabulary, stores it
+// and audits it, in the transaction of st: the one way a measurement is
+// created, by the route and by sync. The caller has checked a's role (log).
+func (s *Service) addMeasurement(ctx context.Context, st domain.Store, a Actor, projectID int64, m *domain.Measurement, h domain.Hole, vocab []domain.TypeCode) error {
+	m.ProjectID = projectID
+	if m.LoggedBy == "" {
+		m.LoggedBy = a.Name
+	}
+	if m.LoggedAt.IsZero() {
+		m.LoggedAt = s.now()
+	}
+	if err := checkMeasurement(m, h, vocab); err != nil {
+		return err
+	}
+	if err := st.CreateMeasurement(ctx, m); err != nil {
+		return err
+	}
+	return audit(ctx, st, a, projectID, "measurement", m.ID, domain.ActionCreate, nil, *m)
 }
 
 // measurement loads a measurement and checks it belongs to the project.
