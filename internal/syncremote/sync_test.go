@@ -375,6 +375,17 @@ func twoLaptops(t *testing.T, onPostgres bool) {
 	if repB.Conflicts != 2 {
 		t.Errorf("B's sync: %+v, want 2 conflicts", repB)
 	}
+	// Until a person chooses, each side keeps its own version.
+	for gid, want := range map[string]string{m0: "B: healed joint", m2: "B: second look"} {
+		if got := find(t, b.svc.Store(), pb, gid).Comment; got != want {
+			t.Errorf("B's %s after the conflict: %q, want its own %q kept", gid, got, want)
+		}
+	}
+	for gid, want := range map[string]string{m0: "A: open joint", m2: "centre: QA"} {
+		if got := find(t, c.svc.Store(), c.pid, gid).Comment; got != want {
+			t.Errorf("the centre's %s after the conflict: %q, want %q kept", gid, got, want)
+		}
+	}
 	if rep := a.mustSync(t, c); rep.Pulled == 0 || rep.Pushed != 0 {
 		t.Errorf("A's sync after B's: %+v, want B's changes pulled and nothing pushed", rep)
 	}
