@@ -129,6 +129,9 @@ type SyncStore interface {
 	// SyncBase returns the version this store and remote last agreed on for
 	// the record, 0 when none.
 	SyncBase(ctx context.Context, remote, table, globalID string) (int64, error)
+	// SyncBases returns the agreed versions of the records of table with
+	// the global ids (those without one are absent).
+	SyncBases(ctx context.Context, remote, table string, globalIDs []string) (map[string]int64, error)
 	// PutSyncBase records it; version 0 forgets it.
 	PutSyncBase(ctx context.Context, remote, table, globalID string, version int64) error
 

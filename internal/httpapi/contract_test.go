@@ -349,7 +349,7 @@ func TestContractTour(t *testing.T) {
 	f.must(200, f.site, "GET", hb+"/qa?format=html", nil, nil)
 	f.must(200, f.site, "GET", base+"/audit", nil, nil)
 	f.must(200, f.site, "GET", "/v1/audit?project="+itoa(pid), nil, nil)
-	f.must(200, f.site, "GET", base+"/sync/changes?after=0&limit=50&holes=TR001", nil, nil)
+	f.must(200, f.site, "GET", base+"/sync/changes?after=0&limit=50&holes=TR001&replica=tour-a", nil, nil)
 	var rec service.SyncRecord
 	f.must(200, f.site, "GET", base+"/sync/records/measurements/"+unoriented.GlobalID, nil, &rec)
 	edit := func(replica, comment string, baseVersion int64) service.PushRequest {

@@ -23,7 +23,8 @@ func (s *Server) syncChanges(c *gin.Context) {
 		fail(c, err)
 		return
 	}
-	page, err := s.opt.Service.SyncChanges(c.Request.Context(), pid, pg.After, splitList(c.QueryArray("holes")), pg.Limit)
+	page, err := s.opt.Service.SyncChanges(c.Request.Context(), pid, service.ChangesQuery{After: pg.After, Holes: splitList(c.QueryArray("holes")),
+		Limit: pg.Limit, Replica: c.Query("replica")})
 	if err != nil {
 		fail(c, err)
 		return

@@ -109,6 +109,19 @@ func (s *Service) CreateMeasurement(ctx context.Context, projectID int64, m doma
 // and audits it, in the transaction of st: the one way a measurement is
 // created, by the route and by sync. The caller has checked a's role (log).
 func (s *Service) addMeasurement(ctx context.Context, st domain.Store, a Actor, projectID int64, m *domain.Measurement, h domain.Hole, vocab []domain.TypeCode) error {
+	if err := s.newMeasurement(a, projectID, m, h, vocab); err != nil {
+		return err
+	}
+	if err := st.CreateMeasurement(ctx, m); err != nil {
+		return err
+	}
+	return audit(ctx, st, a, projectID, "measurement", m.ID, domain.ActionCreate, nil, *m)
+}
+
+// newMeasurement fills the defaults of a new measurement m (project,
+// logged by the caller, now) and checks it against its hole and the
+// vocabulary.
+func (s *Service) newMeasurement(a Actor, projectID int64, m *domain.Measurement, h domain.Hole, vocab []domain.TypeCode) error {
 	m.ProjectID = projectID
 	if m.LoggedBy == "" {
 		m.LoggedBy = a.Name
@@ -116,13 +129,7 @@ func (s *Service) addMeasurement(ctx context.Context, st domain.Store, a Actor, 
 	if m.LoggedAt.IsZero() {
 		m.LoggedAt = s.now()
 	}
-	if err := checkMeasurement(m, h, vocab); err != nil {
-		return err
-	}
-	if err := st.CreateMeasurement(ctx, m); err != nil {
-		return err
-	}
-	return audit(ctx, st, a, projectID, "measurement", m.ID, domain.ActionCreate, nil, *m)
+	return checkMeasurement(m, h, vocab)
 }
 
 // measurement loads a measurement and checks it belongs to the project.

@@ -333,11 +333,21 @@ func contentJSON(r SyncRecord) []byte {
 	return b
 }
 
-// SyncChanges returns the project's changes after the cursor after (read):
-// each record changed in the page once, as it is now, in the order of its
-// last change. holes (names) keeps the changes of those holes and the
-// vocabulary; none keeps all.
-func (s *Service) SyncChanges(ctx context.Context, projectID, after int64, holes []string, limit int) (SyncPage, error) {
+// ChangesQuery asks for a page of the change feed.
+type ChangesQuery struct {
+	After int64    // the cursor: Next of the previous page, 0 for all
+	Holes []string // hole names: the changes of those holes and the vocabulary; none for all
+	Limit int      // entries of the change log per page (at most SyncPageLimit)
+	// Replica names the asking store: records whose last change in the
+	// page is its own push, unchanged since, are left out (it has them).
+	Replica string
+}
+
+// SyncChanges returns the project's changes after the cursor (read): each
+// record changed in the page once, as it is now, in the order of its last
+// change.
+func (s *Service) SyncChanges(ctx context.Context, projectID int64, q ChangesQuery) (SyncPage, error) {
+	after, holes, limit := q.After, q.Holes, q.Limit
 	page := SyncPage{Items: []SyncChange{}, Next: after}
 	if _, _, err := s.project(ctx, s.store, projectID, domain.RoleRead); err != nil {
 		return page, err
@@ -367,14 +377,14 @@ func (s *Service) SyncChanges(ctx context.Context, projectID, after int64, holes
 		if len(changes) == 0 {
 			return nil
 		}
-		last := map[recordKey]int64{}
+		last := map[recordKey]domain.Change{}
 		for _, c := range changes {
-			last[recordKey{c.Table, c.GlobalID}] = c.Seq
+			last[recordKey{c.Table, c.GlobalID}] = c
 		}
 		var keys []recordKey
 		for _, c := range changes {
 			k := recordKey{c.Table, c.GlobalID}
-			if last[k] == c.Seq {
+			if last[k].Seq == c.Seq {
 				keys = append(keys, k)
 			}
 		}
@@ -383,7 +393,12 @@ func (s *Service) SyncChanges(ctx context.Context, projectID, after int64, holes
 			return err
 		}
 		for _, k := range keys {
-			page.Items = append(page.Items, SyncChange{Seq: last[k], SyncRecord: recs[k]})
+			c, rec := last[k], recs[k]
+			if q.Replica != "" && c.Origin == q.Replica &&
+				((rec.Deleted && c.Op == domain.ActionDelete) || (!rec.Deleted && rec.Version == c.Version)) {
+				continue
+			}
+			page.Items = append(page.Items, SyncChange{Seq: c.Seq, SyncRecord: rec})
 		}
 		page.Next = changes[len(changes)-1].Seq
 		page.More = len(changes) == limit
@@ -464,13 +479,32 @@ func (s *Service) SyncPush(ctx context.Context, projectID int64, req PushRequest
 			return err
 		}
 		ap := &applier{s: &Service{store: st, log: s.log, now: s.now}, st: st, a: a, projectID: projectID,
-			rr: newRecordReader(st, projectID), replica: req.Replica}
+			rr: newRecordReader(st, projectID), replica: req.Replica, batchID: req.BatchID}
+		// The records as they are here, read at once: a batch names each
+		// record once (a second mention meets a version that moved on).
+		keys := make([]recordKey, len(req.Changes))
+		for i, c := range req.Changes {
+			keys[i] = recordKey{c.Table, c.GlobalID}
+		}
+		curs, err := ap.rr.load(ctx, keys)
+		if err != nil {
+			return err
+		}
 		for _, c := range req.Changes {
-			r, err := ap.push(ctx, c)
+			cur := curs[recordKey{c.Table, c.GlobalID}]
+			if c.Table != domain.SyncMeasurements || c.Deleted || !cur.Deleted {
+				if err := ap.flush(ctx); err != nil {
+					return err
+				}
+			}
+			r, err := ap.push(ctx, c, cur)
 			if err != nil {
 				return err
 			}
 			resp.Results = append(resp.Results, r)
+		}
+		if err := ap.flush(ctx); err != nil {
+			return err
 		}
 		body, err := json.Marshal(resp)
 		if err != nil {
@@ -489,18 +523,34 @@ type applier struct {
 	projectID int64
 	rr        *recordReader
 	replica   string
+	batchID   string
+	// pending are new measurements checked and waiting to be stored at
+	// once (see flush).
+	pending []domain.Measurement
 }
 
-// push decides and applies one change. Errors that are the change's fault
-// come back as a refused result; others fail the batch.
-func (ap *applier) push(ctx context.Context, c PushChange) (PushResult, error) {
-	res := PushResult{ChangeID: c.ChangeID, Table: c.Table, GlobalID: c.GlobalID}
-	k := recordKey{c.Table, c.GlobalID}
-	curs, err := ap.rr.load(ctx, []recordKey{k})
-	if err != nil {
-		return res, err
+// flush stores the pending new measurements in one bulk insert and audits
+// them as one entry, as an import is audited.
+func (ap *applier) flush(ctx context.Context) error {
+	if len(ap.pending) == 0 {
+		return nil
 	}
-	cur := curs[k]
+	if _, err := ap.st.CreateMeasurements(ctx, ap.pending); err != nil {
+		return err
+	}
+	gids := make([]string, len(ap.pending))
+	for i, m := range ap.pending {
+		gids[i] = m.GlobalID
+	}
+	ap.pending = nil
+	return audit(ctx, ap.st, ap.a, ap.projectID, "measurement", "sync:"+ap.batchID, domain.ActionCreate, nil,
+		map[string]any{"replica": ap.replica, "created": len(gids), "global_ids": gids})
+}
+
+// push decides and applies one change to the record as it is here (cur). Errors that are the change's fault
+// come back as a refused result; others fail the batch.
+func (ap *applier) push(ctx context.Context, c PushChange, cur SyncRecord) (PushResult, error) {
+	res := PushResult{ChangeID: c.ChangeID, Table: c.Table, GlobalID: c.GlobalID}
 	clean := (cur.Deleted && c.Base == 0) || (!cur.Deleted && cur.Version == c.Base)
 	switch {
 	case c.Deleted && cur.Deleted:
@@ -674,8 +724,8 @@ func (ap *applier) apply(ctx context.Context, c PushChange, cur SyncRecord) (int
 		m := *c.Measurement
 		m.GlobalID, m.HoleID = c.GlobalID, h.ID
 		if cur.Deleted {
-			// The route's checks without its derived view, which a batch
-			// does not return.
+			// The route's role and checks; stored with the batch's other
+			// new measurements by flush.
 			if _, err := allow(ctx, pid, domain.RoleLog); err != nil {
 				return 0, err
 			}
@@ -683,10 +733,11 @@ func (ap *applier) apply(ctx context.Context, c PushChange, cur SyncRecord) (int
 			if err != nil {
 				return 0, err
 			}
-			if err := s.addMeasurement(ctx, ap.st, ap.a, pid, &m, h, vocab); err != nil {
+			if err := s.newMeasurement(ap.a, pid, &m, h, vocab); err != nil {
 				return 0, err
 			}
-			return m.Version, nil
+			ap.pending = append(ap.pending, m)
+			return 1, nil
 		}
 		if _, err := s.UpdateMeasurement(ctx, pid, cur.Measurement.ID, cur.Version, m); err != nil {
 			return 0, err
@@ -806,8 +857,12 @@ func (s *Service) ResolveConflict(ctx context.Context, projectID int64, id, keep
 				if err := st.SetChangeSource(ctx, c.Replica, a.Name); err != nil {
 					return err
 				}
-				ap := &applier{s: &Service{store: st, log: s.log, now: s.now}, st: st, a: a, projectID: projectID, rr: rr, replica: c.Replica}
+				ap := &applier{s: &Service{store: st, log: s.log, now: s.now}, st: st, a: a, projectID: projectID, rr: rr,
+					replica: c.Replica, batchID: "resolve:" + id}
 				if _, err := ap.apply(ctx, PushChange{ChangeID: id, Base: cur.Version, SyncRecord: local}, cur); err != nil {
+					return err
+				}
+				if err := ap.flush(ctx); err != nil {
 					return err
 				}
 				rr = newRecordReader(st, projectID)

@@ -16,7 +16,7 @@ import (
 type SyncRemote interface {
 	// Project returns the remote project named by ref (an id or a name).
 	Project(ctx context.Context, ref string) (domain.Project, error)
-	Changes(ctx context.Context, projectID, after int64, holes []string, limit int) (SyncPage, error)
+	Changes(ctx context.Context, projectID int64, q ChangesQuery) (SyncPage, error)
 	Push(ctx context.Context, projectID int64, req PushRequest) (PushResponse, error)
 	Conflict(ctx context.Context, projectID int64, id string) (ConflictView, error)
 	Record(ctx context.Context, projectID int64, table, gid string) (SyncRecord, error)
@@ -197,12 +197,12 @@ func (c *syncClient) batch(ctx context.Context, changes []domain.Change) (PushRe
 	if err != nil {
 		return req, err
 	}
+	bases, err := syncBases(ctx, c.s.store, c.opt.Remote, keys)
+	if err != nil {
+		return req, err
+	}
 	for _, k := range keys {
-		rec := recs[k]
-		base, err := c.s.store.SyncBase(ctx, c.opt.Remote, k.table, k.gid)
-		if err != nil {
-			return req, err
-		}
+		rec, base := recs[k], bases[k]
 		if (rec.Deleted && base == 0) || (!rec.Deleted && rec.Version == base) {
 			continue
 		}
@@ -210,6 +210,25 @@ func (c *syncClient) batch(ctx context.Context, changes []domain.Change) (PushRe
 	}
 	req.BatchID = BatchID(req.Replica, req.Changes)
 	return req, nil
+}
+
+// syncBases reads the agreed versions of keys with remote, table by table.
+func syncBases(ctx context.Context, st domain.Store, remote string, keys []recordKey) (map[recordKey]int64, error) {
+	byTable := map[string][]string{}
+	for _, k := range keys {
+		byTable[k.table] = append(byTable[k.table], k.gid)
+	}
+	out := make(map[recordKey]int64, len(keys))
+	for table, gids := range byTable {
+		vs, err := st.SyncBases(ctx, remote, table, gids)
+		if err != nil {
+			return nil, err
+		}
+		for g, v := range vs {
+			out[recordKey{table, g}] = v
+		}
+	}
+	return out, nil
 }
 
 // acknowledge records the remote's answer to one pushed change.
@@ -224,13 +243,17 @@ func (c *syncClient) acknowledge(ctx context.Context, st domain.Store, ch PushCh
 		if ch.Deleted {
 			return st.PutSyncBase(ctx, c.opt.Remote, ch.Table, ch.GlobalID, 0)
 		}
-		_, v, err := st.FindGlobal(ctx, c.lp.ID, ch.Table, ch.GlobalID)
-		if err != nil {
-			return err
-		}
-		if v == ch.Version && v != r.Version {
-			if err := st.Restamp(ctx, c.lp.ID, ch.Table, ch.GlobalID, r.Version); err != nil {
+		if ch.Version != r.Version {
+			// Take the remote's version number, unless the record changed
+			// here again meanwhile (that change is pushed next time).
+			_, v, err := st.FindGlobal(ctx, c.lp.ID, ch.Table, ch.GlobalID)
+			if err != nil {
 				return err
+			}
+			if v == ch.Version {
+				if err := st.Restamp(ctx, c.lp.ID, ch.Table, ch.GlobalID, r.Version); err != nil {
+					return err
+				}
 			}
 		}
 		return st.PutSyncBase(ctx, c.opt.Remote, ch.Table, ch.GlobalID, r.Version)
@@ -262,7 +285,7 @@ func (c *syncClient) acknowledge(ctx context.Context, st domain.Store, ch PushCh
 // pull applies the remote's changes after the pull cursor, page by page.
 func (c *syncClient) pull(ctx context.Context) error {
 	for {
-		page, err := c.remote.Changes(ctx, c.rp.ID, c.cur.Pulled, c.opt.Holes, SyncPageLimit)
+		page, err := c.remote.Changes(ctx, c.rp.ID, ChangesQuery{After: c.cur.Pulled, Holes: c.opt.Holes, Limit: SyncPageLimit, Replica: c.cur.Replica})
 		if err != nil {
 			return fmt.Errorf("pull: %w", err)
 		}
@@ -277,14 +300,57 @@ func (c *syncClient) pull(ctx context.Context) error {
 			if err != nil {
 				return err
 			}
+			bases, err := syncBases(ctx, st, c.opt.Remote, keys)
+			if err != nil {
+				return err
+			}
+			// New measurements, the bulk of a pull, are stored at once.
+			var pending []domain.Measurement
+			var pendingRecs []SyncRecord
+			flush := func() error {
+				if len(pending) == 0 {
+					return nil
+				}
+				if _, err := st.CreateMeasurements(ctx, pending); err != nil {
+					return err
+				}
+				for _, rec := range pendingRecs {
+					if rec.Version != 1 {
+						if err := st.Restamp(ctx, c.lp.ID, rec.Table, rec.GlobalID, rec.Version); err != nil {
+							return err
+						}
+					}
+					if err := st.PutSyncBase(ctx, c.opt.Remote, rec.Table, rec.GlobalID, rec.Version); err != nil {
+						return err
+					}
+				}
+				c.rep.Pulled += len(pending)
+				pending, pendingRecs = nil, nil
+				return nil
+			}
 			for i, it := range page.Items {
-				applied, err := c.adopt(ctx, st, rr, it.SyncRecord, locals[keys[i]], false)
+				here, base := locals[keys[i]], bases[keys[i]]
+				if it.Table == domain.SyncMeasurements && !it.Deleted && it.Measurement != nil && here.Deleted && base == 0 {
+					if h, err := rr.holeGID(ctx, it.Hole); err == nil {
+						m := *it.Measurement
+						m.ProjectID, m.HoleID, m.GlobalID = c.lp.ID, h.ID, it.GlobalID
+						pending, pendingRecs = append(pending, m), append(pendingRecs, it.SyncRecord)
+						continue
+					}
+				}
+				if err := flush(); err != nil {
+					return err
+				}
+				applied, err := c.adopt(ctx, st, rr, it.SyncRecord, here, base, false)
 				if err != nil {
 					return err
 				}
 				if applied {
 					c.rep.Pulled++
 				}
+			}
+			if err := flush(); err != nil {
+				return err
 			}
 			return st.PutSyncCursor(ctx, next)
 		})
@@ -301,12 +367,8 @@ func (c *syncClient) pull(ctx context.Context) error {
 // adopt makes the local record rec (the remote's version), unless the local
 // one (here) has changes of its own not yet pushed and force is false. It
 // reports whether it changed anything here.
-func (c *syncClient) adopt(ctx context.Context, st domain.Store, rr *recordReader, rec, here SyncRecord, force bool) (bool, error) {
+func (c *syncClient) adopt(ctx context.Context, st domain.Store, rr *recordReader, rec, here SyncRecord, base int64, force bool) (bool, error) {
 	remoteName := c.opt.Remote
-	base, err := st.SyncBase(ctx, remoteName, rec.Table, rec.GlobalID)
-	if err != nil {
-		return false, err
-	}
 	agree := func() (bool, error) {
 		if !rec.Deleted && !here.Deleted && here.Version != rec.Version {
 			if err := st.Restamp(ctx, c.lp.ID, rec.Table, rec.GlobalID, rec.Version); err != nil {
@@ -330,7 +392,8 @@ func (c *syncClient) adopt(ctx context.Context, st domain.Store, rr *recordReade
 		c.rep.Held++
 		return false, nil
 	}
-	if err := c.write(ctx, st, rr, rec, here); err != nil {
+	v, err := c.write(ctx, st, rr, rec, here)
+	if err != nil {
 		if domain.IsKind(err, domain.Internal) || domain.IsKind(err, domain.Unavailable) {
 			return false, err
 		}
@@ -341,9 +404,7 @@ func (c *syncClient) adopt(ctx context.Context, st domain.Store, rr *recordReade
 	if rec.Deleted {
 		return true, st.PutSyncBase(ctx, remoteName, rec.Table, rec.GlobalID, 0)
 	}
-	if _, v, err := st.FindGlobal(ctx, c.lp.ID, rec.Table, rec.GlobalID); err != nil {
-		return false, err
-	} else if v != rec.Version {
+	if v != rec.Version {
 		if err := st.Restamp(ctx, c.lp.ID, rec.Table, rec.GlobalID, rec.Version); err != nil {
 			return false, err
 		}
@@ -352,73 +413,86 @@ func (c *syncClient) adopt(ctx context.Context, st domain.Store, rr *recordReade
 }
 
 // write stores the remote's record here over the local one (here), through
-// the store: the remote checked it when it was made.
-func (c *syncClient) write(ctx context.Context, st domain.Store, rr *recordReader, rec, here SyncRecord) error {
+// the store (the remote checked it when it was made), and returns the
+// version it has here now (0 once deleted).
+func (c *syncClient) write(ctx context.Context, st domain.Store, rr *recordReader, rec, here SyncRecord) (int64, error) {
 	pid := c.lp.ID
 	if rec.Deleted {
 		switch rec.Table {
 		case domain.SyncTypes:
 			rr.vocabOK = false
-			return st.DeleteTypeCode(ctx, pid, rec.GlobalID)
+			return 0, st.DeleteTypeCode(ctx, pid, rec.GlobalID)
 		case domain.SyncHoles:
 			rr.forget(rec.GlobalID)
-			return st.DeleteHole(ctx, here.HoleRecord.ID, here.Version)
+			return 0, st.DeleteHole(ctx, here.HoleRecord.ID, here.Version)
 		case domain.SyncSurveys:
-			return st.DeleteSurvey(ctx, here.Survey.HoleID, here.Version)
+			return 0, st.DeleteSurvey(ctx, here.Survey.HoleID, here.Version)
 		case domain.SyncRuns:
-			return st.DeleteRun(ctx, here.Run.ID, here.Version)
+			return 0, st.DeleteRun(ctx, here.Run.ID, here.Version)
 		case domain.SyncMeasurements:
-			return st.DeleteMeasurement(ctx, here.Measurement.ID, here.Version)
+			return 0, st.DeleteMeasurement(ctx, here.Measurement.ID, here.Version)
 		}
-		return checkTable(rec.Table)
+		return 0, checkTable(rec.Table)
 	}
 	if err := rec.check(); err != nil {
-		return err
+		return 0, err
 	}
 	var h domain.Hole
 	if rec.Table == domain.SyncSurveys || rec.Table == domain.SyncRuns || rec.Table == domain.SyncMeasurements {
 		var err error
 		if h, err = rr.holeGID(ctx, rec.Hole); err != nil {
-			return fmt.Errorf("its hole %s: %w", rec.Hole, err)
+			return 0, fmt.Errorf("its hole %s: %w", rec.Hole, err)
 		}
 	}
+	var err error
 	switch rec.Table {
 	case domain.SyncTypes:
 		tc := *rec.Type
 		tc.ProjectID, tc.Code = pid, rec.GlobalID
 		rr.vocabOK = false
-		return st.PutTypeCode(ctx, tc)
+		if err := st.PutTypeCode(ctx, tc); err != nil {
+			return 0, err
+		}
+		_, v, err := st.FindGlobal(ctx, pid, rec.Table, rec.GlobalID)
+		return v, err
 	case domain.SyncHoles:
 		hr := *rec.HoleRecord
 		hr.ProjectID, hr.GlobalID = pid, rec.GlobalID
 		rr.forget(rec.GlobalID)
 		if here.Deleted {
-			return st.CreateHole(ctx, &hr)
+			err = st.CreateHole(ctx, &hr)
+		} else {
+			hr.ID = here.HoleRecord.ID
+			err = st.UpdateHole(ctx, &hr, here.Version)
 		}
-		hr.ID = here.HoleRecord.ID
-		return st.UpdateHole(ctx, &hr, here.Version)
+		return hr.Version, err
 	case domain.SyncSurveys:
 		ss := *rec.Survey
 		ss.HoleID = h.ID
-		return st.PutSurvey(ctx, &ss, here.Version)
+		err = st.PutSurvey(ctx, &ss, here.Version)
+		return ss.Version, err
 	case domain.SyncRuns:
 		r := *rec.Run
 		r.HoleID, r.GlobalID = h.ID, rec.GlobalID
 		if here.Deleted {
-			return st.CreateRun(ctx, &r)
+			err = st.CreateRun(ctx, &r)
+		} else {
+			r.ID = here.Run.ID
+			err = st.UpdateRun(ctx, &r, here.Version)
 		}
-		r.ID = here.Run.ID
-		return st.UpdateRun(ctx, &r, here.Version)
+		return r.Version, err
 	case domain.SyncMeasurements:
 		m := *rec.Measurement
 		m.ProjectID, m.HoleID, m.GlobalID = pid, h.ID, rec.GlobalID
 		if here.Deleted {
-			return st.CreateMeasurement(ctx, &m)
+			err = st.CreateMeasurement(ctx, &m)
+		} else {
+			m.ID = here.Measurement.ID
+			err = st.UpdateMeasurement(ctx, &m, here.Version)
 		}
-		m.ID = here.Measurement.ID
-		return st.UpdateMeasurement(ctx, &m, here.Version)
+		return m.Version, err
 	}
-	return checkTable(rec.Table)
+	return 0, checkTable(rec.Table)
 }
 
 // takeResolved takes over the conflicts a person resolved on the remote:
@@ -460,7 +534,11 @@ func (c *syncClient) settle(ctx context.Context, o domain.SyncConflict, rec Sync
 		here := heres[recordKey{o.Table, o.GlobalID}]
 		unchanged := (here.Deleted && o.LocalVersion == 0) || (!here.Deleted && here.Version == o.LocalVersion)
 		if unchanged || (kept == domain.KeepRemote && o.Kind == domain.ConflictRefused) {
-			if _, err := c.adopt(ctx, st, rr, rec, here, true); err != nil {
+			base, err := st.SyncBase(ctx, c.opt.Remote, o.Table, o.GlobalID)
+			if err != nil {
+				return err
+			}
+			if _, err := c.adopt(ctx, st, rr, rec, here, base, true); err != nil {
 				return err
 			}
 		} else {

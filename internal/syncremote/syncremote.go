@@ -137,13 +137,16 @@ func (c *Client) Project(ctx context.Context, ref string) (domain.Project, error
 }
 
 // Changes returns one page of the remote's change feed.
-func (c *Client) Changes(ctx context.Context, projectID, after int64, holes []string, limit int) (service.SyncPage, error) {
+func (c *Client) Changes(ctx context.Context, projectID int64, cq service.ChangesQuery) (service.SyncPage, error) {
 	var page service.SyncPage
 	q := url.Values{}
-	q.Set("after", strconv.FormatInt(after, 10))
-	q.Set("limit", strconv.Itoa(limit))
-	if len(holes) > 0 {
-		q.Set("holes", strings.Join(holes, ","))
+	q.Set("after", strconv.FormatInt(cq.After, 10))
+	q.Set("limit", strconv.Itoa(cq.Limit))
+	if len(cq.Holes) > 0 {
+		q.Set("holes", strings.Join(cq.Holes, ","))
+	}
+	if cq.Replica != "" {
+		q.Set("replica", cq.Replica)
 	}
 	return page, c.do(ctx, http.MethodGet, project(projectID)+"/sync/changes?"+q.Encode(), nil, &page)
 }

@@ -151,6 +151,28 @@ func (s *Store) SyncBase(ctx context.Context, remote, table, globalID string) (i
 	return v, translate(err)
 }
 
+// SyncBases returns the agreed versions of many records of one table.
+func (s *Store) SyncBases(ctx context.Context, remote, table string, globalIDs []string) (map[string]int64, error) {
+	out := make(map[string]int64, len(globalIDs))
+	if len(globalIDs) == 0 {
+		return out, nil
+	}
+	rows, err := s.read().Query(ctx, `SELECT global_id, version FROM sync_bases WHERE remote = $1 AND tbl = $2 AND global_id = ANY($3)`, remote, table, globalIDs)
+	if err != nil {
+		return nil, translate(err)
+	}
+	defer rows.Close()
+	for rows.Next() {
+		var g string
+		var v int64
+		if err := rows.Scan(&g, &v); err != nil {
+			return nil, translate(err)
+		}
+		out[g] = v
+	}
+	return out, translate(rows.Err())
+}
+
 // PutSyncBase records the version last agreed with remote (0 forgets it).
 func (s *Store) PutSyncBase(ctx context.Context, remote, table, globalID string, version int64) error {
 	return s.write(ctx, func(q querier) error {

@@ -150,6 +150,39 @@ func (s *Store) SyncBase(ctx context.Context, remote, table, globalID string) (i
 	return v, translate(err)
 }
 
+// SyncBases returns the agreed versions of many records of one table.
+func (s *Store) SyncBases(ctx context.Context, remote, table string, globalIDs []string) (map[string]int64, error) {
+	out := make(map[string]int64, len(globalIDs))
+	for start := 0; start < len(globalIDs); start += domain.MaxLimit {
+		part := globalIDs[start:min(len(globalIDs), start+domain.MaxLimit)]
+		args := []any{remote, table}
+		for _, g := range part {
+			args = append(args, g)
+		}
+		rows, err := s.read().QueryContext(ctx, `SELECT global_id, version FROM sync_bases WHERE remote = ? AND tbl = ? AND global_id IN (?`+
+			strings.Repeat(", ?", len(part)-1)+`)`, args...)
+		if err != nil {
+			return nil, translate(err)
+		}
+		for rows.Next() {
+			var g string
+			var v int64
+			if err := rows.Scan(&g, &v); err != nil {
+				rows.Close()
+				return nil, translate(err)
+			}
+			out[g] = v
+		}
+		if err := rows.Close(); err != nil {
+			return nil, translate(err)
+		}
+		if err := rows.Err(); err != nil {
+			return nil, translate(err)
+		}
+	}
+	return out, nil
+}
+
 // PutSyncBase records the version last agreed with remote (0 forgets it).
 func (s *Store) PutSyncBase(ctx context.Context, remote, table, globalID string, version int64) error {
 	return s.write(ctx, func(q querier) error {
