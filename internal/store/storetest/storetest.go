@@ -43,6 +43,8 @@ func Run(t *testing.T, newStore func(t *testing.T) domain.Store) {
 		{"Idempotency", testIdempotency},
 		{"Cascade", testCascade},
 		{"ConcurrentWriters", testConcurrentWriters},
+		{"ChangeLog", testChangeLog},
+		{"SyncState", testSyncState},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
