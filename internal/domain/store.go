@@ -44,8 +44,6 @@ type MeasurementFilter struct {
 	TypeCodes  []string
 	LoggedFrom *time.Time
 	LoggedTo   *time.Time
-	// GlobalIDs keeps the measurements with these global ids.
-	GlobalIDs []string
 }
 
 // Store is the persistence contract. Both stores (SQLite and PostgreSQL)

@@ -119,6 +119,9 @@ type SyncStore interface {
 	// with the global id (for type codes, the code of project projectID;
 	// their id is 0); NotFound when there is none.
 	FindGlobal(ctx context.Context, projectID int64, table, globalID string) (id, version int64, err error)
+	// MeasurementsByGlobalID returns the measurements with the global ids
+	// (those there are), in no particular order.
+	MeasurementsByGlobalID(ctx context.Context, globalIDs []string) ([]Measurement, error)
 	// Restamp sets the version of a record to the one another store gave it
 	// (the content is already equal), without other change.
 	Restamp(ctx context.Context, projectID int64, table, globalID string, version int64) error

@@ -94,10 +94,12 @@ type PushResponse struct {
 }
 
 // ConflictView is a conflict with the record as the store holds it now
-// (Current; a tombstone when it is gone).
+// (Current; a tombstone when it is gone) and its two versions side by side.
 type ConflictView struct {
 	domain.SyncConflict
 	Current *SyncRecord `json:"current"`
+	// Fields lines the two versions up field by field.
+	Fields []ConflictField `json:"fields"`
 }
 
 // Limits of the sync routes.
@@ -196,11 +198,14 @@ func (r *recordReader) load(ctx context.Context, keys []recordKey) (map[recordKe
 	}
 	for start := 0; start < len(mgids); start += domain.MaxLimit {
 		part := mgids[start:min(len(mgids), start+domain.MaxLimit)]
-		ms, err := r.st.ListMeasurements(ctx, domain.MeasurementFilter{ProjectID: r.projectID, GlobalIDs: part}, domain.Page{Limit: domain.MaxLimit})
+		ms, err := r.st.MeasurementsByGlobalID(ctx, part)
 		if err != nil {
 			return nil, err
 		}
 		for i := range ms {
+			if ms[i].ProjectID != r.projectID {
+				continue // another project's: not this one's to show or change
+			}
 			h, err := r.holeID(ctx, ms[i].HoleID)
 			if err != nil {
 				return nil, err
@@ -814,7 +819,7 @@ func conflictView(ctx context.Context, rr *recordReader, c domain.SyncConflict) 
 		return ConflictView{}, err
 	}
 	cur := recs[recordKey{c.Table, c.GlobalID}]
-	return ConflictView{SyncConflict: c, Current: &cur}, nil
+	return ConflictView{SyncConflict: c, Current: &cur, Fields: conflictFields(c)}, nil
 }
 
 // ResolveConflict resolves an open conflict as a person chose: keep

@@ -618,7 +618,8 @@ func (s *Service) ResolveSynced(ctx context.Context, remote SyncRemote, opt Sync
 }
 
 // SyncConflictText renders one conflict for a person, the two versions side
-// by side field by field.
+// by side field by field ([ConflictView.Fields]), * marking the fields that
+// differ.
 func SyncConflictText(v ConflictView) string {
 	var b strings.Builder
 	fmt.Fprintf(&b, "%s  %s %s %s  %s", v.ID, v.Kind, v.Table, v.GlobalID, v.Status)
@@ -629,7 +630,30 @@ func SyncConflictText(v ConflictView) string {
 	if v.Reason != "" {
 		fmt.Fprintf(&b, "  reason: %s\n", v.Reason)
 	}
-	local, remote := fieldsOf(v.LocalData), fieldsOf(v.RemoteData)
+	fmt.Fprintf(&b, "  %-20s %-28s %s\n", "field", "local (v"+fmt.Sprint(v.LocalVersion)+")", "remote (v"+fmt.Sprint(v.RemoteVersion)+")")
+	for _, f := range v.Fields {
+		mark := " "
+		if f.Differs {
+			mark = "*"
+		}
+		fmt.Fprintf(&b, "%s %-20s %-28s %s\n", mark, f.Field, f.Local, f.Remote)
+	}
+	return b.String()
+}
+
+// ConflictField is one field of a conflict's two versions, side by side:
+// the value of each as JSON text ("" when that version has no such field).
+type ConflictField struct {
+	Field   string `json:"field"`
+	Local   string `json:"local"`
+	Remote  string `json:"remote"`
+	Differs bool   `json:"differs"`
+}
+
+// conflictFields lines up the fields of the two versions of a conflict, by
+// name; each store's own fields (row ids, versions, timestamps) are left out.
+func conflictFields(c domain.SyncConflict) []ConflictField {
+	local, remote := fieldsOf(c.LocalData), fieldsOf(c.RemoteData)
 	var names []string
 	for k := range local {
 		names = append(names, k)
@@ -640,15 +664,11 @@ func SyncConflictText(v ConflictView) string {
 		}
 	}
 	slices.Sort(names)
-	fmt.Fprintf(&b, "  %-20s %-28s %s\n", "field", "local (v"+fmt.Sprint(v.LocalVersion)+")", "remote (v"+fmt.Sprint(v.RemoteVersion)+")")
-	for _, k := range names {
-		mark := " "
-		if local[k] != remote[k] {
-			mark = "*"
-		}
-		fmt.Fprintf(&b, "%s %-20s %-28s %s\n", mark, k, local[k], remote[k])
+	out := make([]ConflictField, len(names))
+	for i, k := range names {
+		out[i] = ConflictField{Field: k, Local: local[k], Remote: remote[k], Differs: local[k] != remote[k]}
 	}
-	return b.String()
+	return out
 }
 
 // fieldsOf flattens a sync record's content into field -> JSON text.

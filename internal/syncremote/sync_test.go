@@ -260,9 +260,9 @@ func (l *laptop) logged(t testing.TB, hole string, n int, from float64) []domain
 // byComment finds a measurement of the laptop by its comment.
 func find(t testing.TB, st domain.Store, pid int64, gid string) domain.Measurement {
 	t.Helper()
-	ms, err := st.ListMeasurements(context.Background(), domain.MeasurementFilter{ProjectID: pid, GlobalIDs: []string{gid}}, domain.Page{})
+	ms, err := st.MeasurementsByGlobalID(context.Background(), []string{gid})
 	must(t, err)
-	if len(ms) != 1 {
+	if len(ms) != 1 || ms[0].ProjectID != pid {
 		t.Fatalf("measurement %s: %d rows", gid, len(ms))
 	}
 	return ms[0]

@@ -644,3 +644,64 @@ func waitFile(t *testing.T, dir, suffix string) []byte {
 	t.Fatalf("no file *%s downloaded", suffix)
 	return nil
 }
+
+// The sync panel shows a conflict's two versions beside each other and
+// sends a person's choice.
+func TestSyncConflictsPanel(t *testing.T) {
+	s := startService(t)
+	hs := s.holes(t)
+	h := hs[len(hs)-1]
+	ms := s.measurements(t, "hole="+h.Name)
+	if len(ms) == 0 {
+		t.Fatal("no measurement")
+	}
+	var cur map[string]any
+	id := int64(0)
+	for _, m := range ms { // a plain plane: one the route would store again as it is
+		s.getJSON(t, fmt.Sprintf("/v1/projects/%d/measurements/%d", s.Project, m.ID), &cur)
+		if cur["gamma"] == nil {
+			id = m.ID
+			break
+		}
+	}
+	gid, _ := cur["global_id"].(string)
+	var rec service.SyncRecord
+	s.getJSON(t, fmt.Sprintf("/v1/projects/%d/sync/records/measurements/%s", s.Project, gid), &rec)
+	push := func(replica, comment string) service.PushResponse {
+		r := rec
+		m := *r.Measurement
+		m.Comment = comment
+		r.Measurement = &m
+		ch := []service.PushChange{{ChangeID: replica + ":1", Base: rec.Version, SyncRecord: r}}
+		code, _, b := s.api(t, http.MethodPost, fmt.Sprintf("/v1/projects/%d/sync/push", s.Project), "",
+			service.PushRequest{BatchID: service.BatchID(replica, ch), Replica: replica, Changes: ch})
+		var resp service.PushResponse
+		if code != http.StatusOK || json.Unmarshal(b, &resp) != nil {
+			t.Fatalf("push: %d %s", code, b)
+		}
+		return resp
+	}
+	if r := push("laptop-a", "open, iron-stained"); r.Results[0].Status != service.PushApplied {
+		t.Fatalf("first push: %+v", r.Results)
+	}
+	if r := push("laptop-b", "closed, calcite"); r.Results[0].Status != service.PushConflict {
+		t.Fatalf("second push: %+v, want a conflict", r.Results)
+	}
+	p := newPage(t, s.URL, 1366, 900)
+	p.signIn(s.Token)
+	p.do("open sync", chromedp.Navigate(fmt.Sprintf("%s/#/p/%d/sync", s.URL, s.Project)))
+	p.waitFor("conflict shown", `document.querySelector('section.conflict tr.differs')`)
+	row := p.text("section.conflict tr.differs")
+	if !strings.Contains(row, "comment") || !strings.Contains(row, "closed, calcite") || !strings.Contains(row, "open, iron-stained") {
+		t.Errorf("the differing row reads %q: want both comments beside each other", row)
+	}
+	p.shot("sync-conflicts")
+	p.do("keep local", chromedp.Click(chromedp.CSS(`section.conflict button[data-keep="local"]`)))
+	p.waitFor("resolved", `document.querySelector('#no-conflicts')`)
+	var end map[string]any
+	s.getJSON(t, fmt.Sprintf("/v1/projects/%d/measurements/%d", s.Project, id), &end)
+	if end["comment"] != "closed, calcite" {
+		t.Errorf("after keep local the comment is %v", end["comment"])
+	}
+	p.checkErrors()
+}

@@ -64,9 +64,7 @@ func where(f domain.MeasurementFilter) (string, []any) {
 	if f.LoggedTo != nil {
 		add(" AND logged_at <= $%d", *f.LoggedTo)
 	}
-	if len(f.GlobalIDs) > 0 {
-		add(" AND global_id = ANY($%d)", f.GlobalIDs)
-	}
+
 	return b.String(), args
 }
 
@@ -150,6 +148,19 @@ func (s *Store) CreateMeasurements(ctx context.Context, ms []domain.Measurement)
 		ms[i].Version, ms[i].CreatedAt, ms[i].UpdatedAt = 1, t, t
 	}
 	return int(n), nil
+}
+
+// MeasurementsByGlobalID returns the measurements with the global ids, by
+// the unique index alone.
+func (s *Store) MeasurementsByGlobalID(ctx context.Context, globalIDs []string) ([]domain.Measurement, error) {
+	if len(globalIDs) == 0 {
+		return nil, nil
+	}
+	rows, err := s.read().Query(ctx, `SELECT `+measurementCols+` FROM measurements WHERE global_id = ANY($1)`, globalIDs)
+	if err != nil {
+		return nil, translate(err)
+	}
+	return collect(rows, scanMeasurement)
 }
 
 // GetMeasurement returns the measurement with the given ID.

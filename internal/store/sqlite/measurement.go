@@ -68,12 +68,7 @@ func where(f domain.MeasurementFilter) (string, []any) {
 		b.WriteString(" AND logged_at <= ?")
 		args = append(args, micro(*f.LoggedTo))
 	}
-	if len(f.GlobalIDs) > 0 {
-		b.WriteString(" AND global_id IN (?" + strings.Repeat(", ?", len(f.GlobalIDs)-1) + ")")
-		for _, g := range f.GlobalIDs {
-			args = append(args, g)
-		}
-	}
+
 	return b.String(), args
 }
 
@@ -123,6 +118,29 @@ func (s *Store) CreateMeasurements(ctx context.Context, ms []domain.Measurement)
 		return 0, err
 	}
 	return len(ms), nil
+}
+
+// MeasurementsByGlobalID returns the measurements with the global ids, by
+// the unique index alone.
+func (s *Store) MeasurementsByGlobalID(ctx context.Context, globalIDs []string) ([]domain.Measurement, error) {
+	var out []domain.Measurement
+	for start := 0; start < len(globalIDs); start += domain.MaxLimit {
+		part := globalIDs[start:min(len(globalIDs), start+domain.MaxLimit)]
+		args := make([]any, len(part))
+		for i, g := range part {
+			args[i] = g
+		}
+		rows, err := s.read().QueryContext(ctx, `SELECT `+measurementCols+` FROM measurements WHERE global_id IN (?`+strings.Repeat(", ?", len(part)-1)+`)`, args...)
+		if err != nil {
+			return nil, translate(err)
+		}
+		ms, err := collect(rows, scanMeasurement)
+		if err != nil {
+			return nil, err
+		}
+		out = append(out, ms...)
+	}
+	return out, nil
 }
 
 // GetMeasurement returns the measurement with the given ID.

@@ -123,6 +123,11 @@ func testChangeLog(t *testing.T, s domain.Store) {
 	}
 	_, err = s.CreateMeasurements(c, ms)
 	must(t, err)
+	byGID, err := s.MeasurementsByGlobalID(c, []string{ms[0].GlobalID, ms[1].GlobalID, "no-such-id"})
+	must(t, err)
+	if len(byGID) != 2 || ms[0].GlobalID == "" || ms[0].GlobalID == ms[1].GlobalID {
+		t.Errorf("bulk-loaded rows by global id: %d rows, ids %q %q", len(byGID), ms[0].GlobalID, ms[1].GlobalID)
+	}
 	must(t, s.PutTypeCode(c, domain.TypeCode{ProjectID: p.ID, Code: "FT", Kind: "plane"}))
 	got, err = s.ListChanges(c, domain.ChangeFilter{ProjectID: p.ID, After: before, HoleIDs: []int64{h2.ID}})
 	must(t, err)

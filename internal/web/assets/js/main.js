@@ -9,6 +9,7 @@ import { holeView } from "./hole.js";
 import { netsView } from "./nets.js";
 import { qaView } from "./qa.js";
 import { importView } from "./imports.js";
+import { syncView } from "./sync.js";
 import { useLegend, patternDefs, svg } from "./draw.js";
 
 const main = document.getElementById("main");
@@ -89,6 +90,7 @@ function setNav(pid, view, holeId) {
     if (v === "nets") href += "/nets";
     if (v === "qa") href += "/qa";
     if (v === "import") href += "/import";
+    if (v === "sync") href += "/sync";
     a.href = href;
     if (v === view) a.setAttribute("aria-current", "page");
     else a.removeAttribute("aria-current");
@@ -134,6 +136,7 @@ async function route() {
       case "nets": await netsView(ctx); break;
       case "qa": await qaView(ctx); break;
       case "import": await importView(ctx); break;
+      case "sync": await syncView(ctx); break;
       default: add(host, h("p", { class: "msg bad" }, `There is no view called \u201c${view}\u201d.`));
     }
   } catch (e) {
