@@ -499,3 +499,34 @@ func twoLaptops(t *testing.T, onPostgres bool) {
 		}
 	}
 }
+
+// A laptop that pulls chosen holes gets those holes' records and the
+// vocabulary, nothing of the other holes; widening the choice pulls the rest.
+func TestSyncChosenHoles(t *testing.T) {
+	c := newCentral(t, false)
+	seedCentral(t, c)
+	l := newLaptop(t, "shed")
+	rc := c.remote(t, c.log, nil)
+	if _, err := l.svc.Sync(admin, rc, service.SyncOptions{Remote: c.url, Project: "Ridgeback", Holes: []string{"RB002"}}); err != nil {
+		t.Fatal(err)
+	}
+	rows := dump(t, l.svc.Store(), l.project(t))
+	holes := map[string]bool{}
+	for _, r := range rows {
+		if h, ok := r.Content.(domain.Hole); ok {
+			holes[h.Name] = true
+		}
+	}
+	if len(holes) != 1 || !holes["RB002"] || count(rows, "type") != 3 || count(rows, "measurement") != 5 || count(rows, "survey") != 1 || count(rows, "run") != 1 {
+		t.Errorf("with --holes RB002 the laptop holds holes %v, %d types, %d surveys, %d runs, %d measurements",
+			holes, count(rows, "type"), count(rows, "survey"), count(rows, "run"), count(rows, "measurement"))
+	}
+	if _, err := l.svc.Sync(admin, rc, service.SyncOptions{Remote: c.url, Project: "Ridgeback"}); err != nil {
+		t.Fatal(err)
+	}
+	sameStores(t, c, l)
+	if _, err := l.svc.Sync(admin, rc, service.SyncOptions{Remote: c.url, Project: "Ridgeback", Holes: []string{"RB404"}}); err == nil ||
+		!strings.Contains(err.Error(), "RB404") {
+		t.Errorf("an unknown hole: %v, want an error naming it", err)
+	}
+}
