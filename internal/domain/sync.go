@@ -56,7 +56,7 @@ type ChangeFilter struct {
 // the remote's last change pulled and applied here, and this store's last
 // change pushed and acknowledged. Holes is the hole selection Pulled belongs
 // to (names joined by commas, "" for all). Replica names this store to the
-// remote (a UUID made on the first sync).
+// remote (a random id made on the first sync).
 type SyncCursor struct {
 	Remote  string `json:"remote"`
 	Project string `json:"project"`

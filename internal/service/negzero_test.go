@@ -14,7 +14,9 @@ import (
 )
 
 // negativeZero matches a cell or JSON number that is a negative zero.
-var negativeZero = regexp.MustCompile(`(^|[^0-9.])-0(\.0+)?([^.0-9]|$)`)
+// A minus sign right after a letter or digit, or a "-0" followed by one, is part
+// of a word (a global id such as "…7a-0c4…"), not a number.
+var negativeZero = regexp.MustCompile(`(^|[^0-9A-Za-z.])-0(\.0+)?([^.0-9A-Za-z]|$)`)
 
 // checkNoNegativeZero stores a beta of -0 (typed "-0" in an import and sent
 // as -0 to the API) and a gamma of -0.0, and checks that the export and the

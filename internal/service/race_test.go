@@ -67,7 +67,7 @@ func checkRaceStatuses(t *testing.T, s *service.Service, ctx context.Context) {
 		// Everyone creates the survey (version 0) of a new hole: one wins, the
 		// others hold a stale "none yet".
 		nh := base
-		nh.Name = fmt.Sprintf("RACE%d", round)
+		nh.Name, nh.GlobalID = fmt.Sprintf("RACE%d", round), "" // a new hole: the store makes its global id
 		h := must(s.CreateHole(ctx, p.ID, nh))
 		errs := race(n, func(i int) error {
 			_, err := s.PutSurvey(ctx, p.ID, h.ID, 0, survey(float64(i)))

@@ -3,14 +3,13 @@ package service
 import (
 	"bytes"
 	"context"
+	"crypto/rand"
 	"crypto/sha256"
 	"encoding/hex"
 	"encoding/json"
 	"fmt"
 	"slices"
 	"time"
-
-	"github.com/google/uuid"
 
 	"corvane/internal/domain"
 )
@@ -616,8 +615,11 @@ func (ap *applier) ownMoves(ctx context.Context, c PushChange) (bool, error) {
 	return true, nil
 }
 
-// newID returns a new random id (a UUID) for a conflict.
-func newID() string { return uuid.NewString() }
+// newID returns a new random id (128 random bits from crypto/rand, as 26
+// base32 characters) for a conflict or a replica. (The stores make the
+// records' UUIDs; google/uuid reaches database/sql, which this package may
+// not.)
+func newID() string { return rand.Text() }
 
 // conflict keeps both versions; an open conflict of the same record from
 // the same replica is brought up to date instead of doubled.
