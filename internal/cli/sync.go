@@ -26,7 +26,7 @@ const syncUsage = `Usage:
   corvane sync --resolve ID --keep local|remote --remote URL --token T [--project P] [--db URL]
 
 Sync pushes the changes made in this database (creations, edits, deletions of type codes,
-holes, survey sets, runs and measurements) to the project on the remote service, then pulls
+holes, survey sets (also by kind), runs and measurements) to the project on the remote service, then pulls
 the remote's changes (of the holes named with --holes, or all). Only what changed since the
 last sync on each side travels; each batch is applied with its cursor in one transaction,
 so a sync cut off resumes where it stopped, and a sync with nothing new changes nothing.

@@ -3,23 +3,38 @@ package domain
 import (
 	"context"
 	"encoding/json"
+	"strings"
 	"time"
 )
 
 // The tables sync carries, as the change log names them. Type codes are
 // known across machines by their code, survey sets by their hole's global
-// id; holes, runs and measurements by their own global id.
+// id, survey sets by kind by it and their kind ([KindSetGlobalID]); holes,
+// runs and measurements by their own global id.
 const (
 	SyncTypes        = "type_codes"
 	SyncHoles        = "holes"
 	SyncSurveys      = "survey_sets"
+	SyncKindSets     = "kind_survey_sets" // known by "<hole global id>/<kind>"
 	SyncRuns         = "runs"
 	SyncMeasurements = "measurements"
 )
 
 // SyncTables lists the synced tables in the order a record's dependencies
 // come first (a hole before its runs; a type before the measurements).
-var SyncTables = []string{SyncTypes, SyncHoles, SyncSurveys, SyncRuns, SyncMeasurements}
+var SyncTables = []string{SyncTypes, SyncHoles, SyncSurveys, SyncKindSets, SyncRuns, SyncMeasurements}
+
+// KindSetGlobalID is the global id of a hole's survey set by kind.
+func KindSetGlobalID(holeGlobalID, kind string) string { return holeGlobalID + "/" + kind }
+
+// SplitKindSetGlobalID is the inverse of [KindSetGlobalID].
+func SplitKindSetGlobalID(gid string) (holeGlobalID, kind string) {
+	i := strings.LastIndexByte(gid, '/')
+	if i < 0 {
+		return gid, ""
+	}
+	return gid[:i], gid[i+1:]
+}
 
 // Change is one entry of a store's change log: a record of a synced table
 // was created, updated or deleted (a tombstone) at a version. The store

@@ -28,6 +28,7 @@ type SyncRecord struct {
 	Type        *domain.TypeCode    `json:"type,omitempty"`
 	HoleRecord  *domain.Hole        `json:"hole_record,omitempty"`
 	Survey      *domain.SurveySet   `json:"survey,omitempty"`
+	KindSet     *domain.KindSet     `json:"kind_set,omitempty"`
 	Run         *domain.Run         `json:"run,omitempty"`
 	Measurement *domain.Measurement `json:"measurement,omitempty"`
 }
@@ -109,7 +110,7 @@ const (
 
 // tableEntity names a synced table in the audit trail.
 var tableEntity = map[string]string{
-	domain.SyncTypes: "type_code", domain.SyncHoles: "hole", domain.SyncSurveys: "survey",
+	domain.SyncTypes: "type_code", domain.SyncHoles: "hole", domain.SyncSurveys: "survey", domain.SyncKindSets: "survey_set",
 	domain.SyncRuns: "run", domain.SyncMeasurements: "measurement",
 }
 
@@ -262,6 +263,23 @@ func (r *recordReader) one(ctx context.Context, k recordKey) (SyncRecord, error)
 			return gone(err)
 		}
 		rec.Version, rec.Hole, rec.Survey = ss.Version, h.GlobalID, &ss
+	case domain.SyncKindSets:
+		hgid, kind := domain.SplitKindSetGlobalID(k.gid)
+		h, err := r.holeGID(ctx, hgid)
+		if err != nil {
+			return gone(err)
+		}
+		sets, err := r.st.ListKindSets(ctx, h.ID)
+		if err != nil {
+			return rec, err
+		}
+		i := slices.IndexFunc(sets, func(s domain.KindSet) bool { return s.Kind == kind })
+		if i < 0 {
+			rec.Deleted = true
+			return rec, nil
+		}
+		ks := sets[i]
+		rec.Version, rec.Hole, rec.KindSet = ks.Version, h.GlobalID, &ks
 	case domain.SyncRuns:
 		id, _, err := r.st.FindGlobal(ctx, r.projectID, k.table, k.gid)
 		if err != nil {
@@ -321,6 +339,14 @@ func contentJSON(r SyncRecord) []byte {
 			ss.Stations = nil
 		}
 		r.Survey = &ss
+	}
+	if r.KindSet != nil {
+		ks := *r.KindSet
+		ks.HoleID, ks.Version, ks.UpdatedAt = 0, 0, time.Time{}
+		if len(ks.Stations) == 0 {
+			ks.Stations = nil
+		}
+		r.KindSet = &ks
 	}
 	if r.Run != nil {
 		run := *r.Run
@@ -665,6 +691,8 @@ func (ap *applier) apply(ctx context.Context, c PushChange, cur SyncRecord) (int
 			return 0, s.DeleteHole(ctx, pid, cur.HoleRecord.ID, cur.Version)
 		case domain.SyncSurveys:
 			return 0, domain.Errorf(domain.Invalid, "a survey set is not deleted on its own here (only with its hole)")
+		case domain.SyncKindSets:
+			return 0, s.DeleteKindSet(ctx, pid, cur.KindSet.HoleID, cur.KindSet.Kind, cur.Version)
 		case domain.SyncRuns:
 			return 0, s.DeleteRun(ctx, pid, cur.Run.ID, cur.Version)
 		case domain.SyncMeasurements:
@@ -675,7 +703,7 @@ func (ap *applier) apply(ctx context.Context, c PushChange, cur SyncRecord) (int
 		return 0, err
 	}
 	var h domain.Hole
-	if c.Table == domain.SyncSurveys || c.Table == domain.SyncRuns || c.Table == domain.SyncMeasurements {
+	if c.Table == domain.SyncSurveys || c.Table == domain.SyncKindSets || c.Table == domain.SyncRuns || c.Table == domain.SyncMeasurements {
 		var err error
 		if h, err = ap.rr.holeGID(ctx, c.Hole); domain.IsKind(err, domain.NotFound) {
 			return 0, domain.FieldErr("hole", "hole %s is not in project %d here", c.Hole, pid)
@@ -710,6 +738,13 @@ func (ap *applier) apply(ctx context.Context, c PushChange, cur SyncRecord) (int
 			return 0, domain.FieldErr("global_id", "a survey set is known by its hole's global id %s, not %s", c.Hole, c.GlobalID)
 		}
 		if _, err := s.PutSurvey(ctx, pid, h.ID, cur.Version, *c.Survey); err != nil {
+			return 0, err
+		}
+	case domain.SyncKindSets:
+		if hg, kind := domain.SplitKindSetGlobalID(c.GlobalID); hg != c.Hole || kind != c.KindSet.Kind {
+			return 0, domain.FieldErr("global_id", "a survey set by kind is known as %s, not %s", domain.KindSetGlobalID(c.Hole, c.KindSet.Kind), c.GlobalID)
+		}
+		if _, err := s.PutKindSet(ctx, pid, h.ID, c.KindSet.Kind, cur.Version, *c.KindSet); err != nil {
 			return 0, err
 		}
 	case domain.SyncRuns:
@@ -764,6 +799,8 @@ func (r SyncRecord) check() error {
 		ok = r.HoleRecord != nil
 	case domain.SyncSurveys:
 		ok = r.Survey != nil && r.Hole != ""
+	case domain.SyncKindSets:
+		ok = r.KindSet != nil && r.Hole != ""
 	case domain.SyncRuns:
 		ok = r.Run != nil && r.Hole != ""
 	case domain.SyncMeasurements:

@@ -427,6 +427,8 @@ func (c *syncClient) write(ctx context.Context, st domain.Store, rr *recordReade
 			return 0, st.DeleteHole(ctx, here.HoleRecord.ID, here.Version)
 		case domain.SyncSurveys:
 			return 0, st.DeleteSurvey(ctx, here.Survey.HoleID, here.Version)
+		case domain.SyncKindSets:
+			return 0, st.DeleteKindSet(ctx, here.KindSet.HoleID, here.KindSet.Kind, here.Version)
 		case domain.SyncRuns:
 			return 0, st.DeleteRun(ctx, here.Run.ID, here.Version)
 		case domain.SyncMeasurements:
@@ -438,7 +440,7 @@ func (c *syncClient) write(ctx context.Context, st domain.Store, rr *recordReade
 		return 0, err
 	}
 	var h domain.Hole
-	if rec.Table == domain.SyncSurveys || rec.Table == domain.SyncRuns || rec.Table == domain.SyncMeasurements {
+	if rec.Table == domain.SyncSurveys || rec.Table == domain.SyncKindSets || rec.Table == domain.SyncRuns || rec.Table == domain.SyncMeasurements {
 		var err error
 		if h, err = rr.holeGID(ctx, rec.Hole); err != nil {
 			return 0, fmt.Errorf("its hole %s: %w", rec.Hole, err)
@@ -471,6 +473,11 @@ func (c *syncClient) write(ctx context.Context, st domain.Store, rr *recordReade
 		ss.HoleID = h.ID
 		err = st.PutSurvey(ctx, &ss, here.Version)
 		return ss.Version, err
+	case domain.SyncKindSets:
+		ks := *rec.KindSet
+		ks.HoleID = h.ID
+		err = st.PutKindSet(ctx, &ks, here.Version)
+		return ks.Version, err
 	case domain.SyncRuns:
 		r := *rec.Run
 		r.HoleID, r.GlobalID = h.ID, rec.GlobalID
@@ -685,7 +692,7 @@ func fieldsOf(doc json.RawMessage) map[string]string {
 		out["(deleted)"] = "yes"
 		return out
 	}
-	for _, part := range []string{"type", "hole_record", "survey", "run", "measurement"} {
+	for _, part := range []string{"type", "hole_record", "survey", "kind_set", "run", "measurement"} {
 		var fields map[string]json.RawMessage
 		if json.Unmarshal(rec[part], &fields) != nil {
 			continue

@@ -1,3 +1,5 @@
+DROP TRIGGER kind_survey_sets_log ON kind_survey_sets;
+DROP FUNCTION kind_survey_sets_log();
 DROP TRIGGER type_codes_log ON type_codes;
 DROP FUNCTION type_codes_log();
 DROP TRIGGER holes_log ON holes;

@@ -1,7 +1,8 @@
 -- Sync: every record that sync carries gets a global id, made where the
 -- row is created (the store makes a UUID; rows already here get a random
 -- UUID now), so rows made on two machines never collide. Type codes are
--- known by their code and survey sets by their hole's global id; type codes
+-- known by their code, survey sets by their hole's global id and survey
+-- sets by kind by it and their kind ("<hole global id>/gyro"); type codes
 -- get the version counter the other records have.
 --
 -- change_log is written by triggers in the transaction of each change, so
@@ -54,6 +55,9 @@ INSERT INTO change_log (project_id, hole_id, tbl, global_id, op, version)
 
 INSERT INTO change_log (project_id, hole_id, tbl, global_id, op, version)
     SELECT (SELECT project_id FROM holes WHERE id = survey_sets.hole_id), survey_sets.hole_id, 'survey_sets', (SELECT global_id FROM holes WHERE id = survey_sets.hole_id), 'create', version FROM survey_sets ORDER BY version;
+
+INSERT INTO change_log (project_id, hole_id, tbl, global_id, op, version)
+    SELECT (SELECT project_id FROM holes WHERE id = kind_survey_sets.hole_id), kind_survey_sets.hole_id, 'kind_survey_sets', (SELECT global_id FROM holes WHERE id = kind_survey_sets.hole_id) || '/' || kind_survey_sets.kind, 'create', version FROM kind_survey_sets ORDER BY version;
 
 INSERT INTO change_log (project_id, hole_id, tbl, global_id, op, version)
     SELECT (SELECT project_id FROM holes WHERE id = runs.hole_id), runs.hole_id, 'runs', runs.global_id, 'create', version FROM runs ORDER BY version;
@@ -147,3 +151,18 @@ BEGIN
 END
 $$ LANGUAGE plpgsql;
 CREATE TRIGGER measurements_log AFTER INSERT OR UPDATE OR DELETE ON measurements FOR EACH ROW EXECUTE FUNCTION measurements_log();
+
+CREATE FUNCTION kind_survey_sets_log() RETURNS trigger AS $$
+BEGIN
+    IF TG_OP = 'DELETE' THEN
+        PERFORM corvane_log((SELECT project_id FROM holes WHERE id = OLD.hole_id), OLD.hole_id, 'kind_survey_sets', (SELECT global_id FROM holes WHERE id = OLD.hole_id) || '/' || OLD.kind, 'delete', OLD.version);
+        RETURN OLD;
+    ELSIF TG_OP = 'INSERT' THEN
+        PERFORM corvane_log((SELECT project_id FROM holes WHERE id = NEW.hole_id), NEW.hole_id, 'kind_survey_sets', (SELECT global_id FROM holes WHERE id = NEW.hole_id) || '/' || NEW.kind, 'create', NEW.version);
+    ELSE
+        PERFORM corvane_log((SELECT project_id FROM holes WHERE id = NEW.hole_id), NEW.hole_id, 'kind_survey_sets', (SELECT global_id FROM holes WHERE id = NEW.hole_id) || '/' || NEW.kind, 'update', NEW.version);
+    END IF;
+    RETURN NEW;
+END
+$$ LANGUAGE plpgsql;
+CREATE TRIGGER kind_survey_sets_log AFTER INSERT OR UPDATE OR DELETE ON kind_survey_sets FOR EACH ROW EXECUTE FUNCTION kind_survey_sets_log();

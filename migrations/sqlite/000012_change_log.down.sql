@@ -1,3 +1,6 @@
+DROP TRIGGER kind_survey_sets_log_insert;
+DROP TRIGGER kind_survey_sets_log_update;
+DROP TRIGGER kind_survey_sets_log_delete;
 DROP TRIGGER type_codes_log_insert;
 DROP TRIGGER type_codes_log_update;
 DROP TRIGGER type_codes_log_delete;

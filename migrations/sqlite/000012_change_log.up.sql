@@ -1,7 +1,8 @@
 -- Sync: every record that sync carries gets a global id, made where the
 -- row is created (the store makes a UUID; rows already here get a random
 -- version 4 UUID now), so rows made on two machines never collide. Type
--- codes are known by their code and survey sets by their hole's global id;
+-- codes are known by their code, survey sets by their hole's global id, and
+-- survey sets by kind by it and their kind ("<hole global id>/gyro");
 -- type codes get the version counter the other records have.
 --
 -- change_log is written by triggers in the transaction of each change, so
@@ -56,6 +57,9 @@ INSERT INTO change_log (project_id, hole_id, tbl, global_id, op, version, at)
 
 INSERT INTO change_log (project_id, hole_id, tbl, global_id, op, version, at)
     SELECT (SELECT project_id FROM holes WHERE id = survey_sets.hole_id), survey_sets.hole_id, 'survey_sets', (SELECT global_id FROM holes WHERE id = survey_sets.hole_id), 'create', version, CAST((julianday('now') - 2440587.5) * 86400000000 AS INTEGER) FROM survey_sets;
+
+INSERT INTO change_log (project_id, hole_id, tbl, global_id, op, version, at)
+    SELECT (SELECT project_id FROM holes WHERE id = kind_survey_sets.hole_id), kind_survey_sets.hole_id, 'kind_survey_sets', (SELECT global_id FROM holes WHERE id = kind_survey_sets.hole_id) || '/' || kind_survey_sets.kind, 'create', version, CAST((julianday('now') - 2440587.5) * 86400000000 AS INTEGER) FROM kind_survey_sets;
 
 INSERT INTO change_log (project_id, hole_id, tbl, global_id, op, version, at)
     SELECT (SELECT project_id FROM holes WHERE id = runs.hole_id), runs.hole_id, 'runs', runs.global_id, 'create', version, CAST((julianday('now') - 2440587.5) * 86400000000 AS INTEGER) FROM runs;
@@ -136,4 +140,19 @@ END;
 CREATE TRIGGER measurements_log_delete AFTER DELETE ON measurements BEGIN
     INSERT INTO change_log (project_id, hole_id, tbl, global_id, op, version, origin, actor, at)
     SELECT OLD.project_id, OLD.hole_id, 'measurements', OLD.global_id, 'delete', OLD.version, origin, actor, CAST((julianday('now') - 2440587.5) * 86400000000 AS INTEGER) FROM change_source;
+END;
+
+CREATE TRIGGER kind_survey_sets_log_insert AFTER INSERT ON kind_survey_sets WHEN (SELECT global_id FROM holes WHERE id = NEW.hole_id) || '/' || NEW.kind IS NOT NULL BEGIN
+    INSERT INTO change_log (project_id, hole_id, tbl, global_id, op, version, origin, actor, at)
+    SELECT (SELECT project_id FROM holes WHERE id = NEW.hole_id), NEW.hole_id, 'kind_survey_sets', (SELECT global_id FROM holes WHERE id = NEW.hole_id) || '/' || NEW.kind, 'create', NEW.version, origin, actor, CAST((julianday('now') - 2440587.5) * 86400000000 AS INTEGER) FROM change_source;
+END;
+
+CREATE TRIGGER kind_survey_sets_log_update AFTER UPDATE ON kind_survey_sets WHEN (SELECT global_id FROM holes WHERE id = NEW.hole_id) || '/' || NEW.kind IS NOT NULL BEGIN
+    INSERT INTO change_log (project_id, hole_id, tbl, global_id, op, version, origin, actor, at)
+    SELECT (SELECT project_id FROM holes WHERE id = NEW.hole_id), NEW.hole_id, 'kind_survey_sets', (SELECT global_id FROM holes WHERE id = NEW.hole_id) || '/' || NEW.kind, 'update', NEW.version, origin, actor, CAST((julianday('now') - 2440587.5) * 86400000000 AS INTEGER) FROM change_source;
+END;
+
+CREATE TRIGGER kind_survey_sets_log_delete AFTER DELETE ON kind_survey_sets WHEN (SELECT global_id FROM holes WHERE id = OLD.hole_id) || '/' || OLD.kind IS NOT NULL BEGIN
+    INSERT INTO change_log (project_id, hole_id, tbl, global_id, op, version, origin, actor, at)
+    SELECT (SELECT project_id FROM holes WHERE id = OLD.hole_id), OLD.hole_id, 'kind_survey_sets', (SELECT global_id FROM holes WHERE id = OLD.hole_id) || '/' || OLD.kind, 'delete', OLD.version, origin, actor, CAST((julianday('now') - 2440587.5) * 86400000000 AS INTEGER) FROM change_source;
 END;

@@ -246,6 +246,10 @@ func FindGlobalSQL(table string, projectID int64, gid string, ph func(int) strin
 		return `SELECT 0, version FROM type_codes WHERE project_id = ` + ph(1) + ` AND code = ` + ph(2), []any{projectID, gid}, nil
 	case domain.SyncSurveys:
 		return `SELECT s.hole_id, s.version FROM survey_sets s JOIN holes h ON h.id = s.hole_id WHERE h.global_id = ` + ph(1), []any{gid}, nil
+	case domain.SyncKindSets:
+		hole, kind := domain.SplitKindSetGlobalID(gid)
+		return `SELECT k.hole_id, k.version FROM kind_survey_sets k JOIN holes h ON h.id = k.hole_id WHERE h.global_id = ` + ph(1) +
+			` AND k.kind = ` + ph(2), []any{hole, kind}, nil
 	case domain.SyncHoles, domain.SyncRuns, domain.SyncMeasurements:
 		return `SELECT id, version FROM ` + table + ` WHERE global_id = ` + ph(1), []any{gid}, nil
 	}
@@ -260,6 +264,10 @@ func RestampSQL(table string, projectID int64, gid string, version int64, ph fun
 		return `UPDATE type_codes SET version = ` + ph(1) + ` WHERE project_id = ` + ph(2) + ` AND code = ` + ph(3), []any{version, projectID, gid}, nil
 	case domain.SyncSurveys:
 		return `UPDATE survey_sets SET version = ` + ph(1) + ` WHERE hole_id = (SELECT id FROM holes WHERE global_id = ` + ph(2) + `)`, []any{version, gid}, nil
+	case domain.SyncKindSets:
+		hole, kind := domain.SplitKindSetGlobalID(gid)
+		return `UPDATE kind_survey_sets SET version = ` + ph(1) + ` WHERE hole_id = (SELECT id FROM holes WHERE global_id = ` + ph(2) + `) AND kind = ` + ph(3),
+			[]any{version, hole, kind}, nil
 	case domain.SyncHoles, domain.SyncRuns, domain.SyncMeasurements:
 		return `UPDATE ` + table + ` SET version = ` + ph(1) + ` WHERE global_id = ` + ph(2), []any{version, gid}, nil
 	}

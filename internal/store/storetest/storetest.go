@@ -45,6 +45,7 @@ func Run(t *testing.T, newStore func(t *testing.T) domain.Store) {
 		{"ConcurrentWriters", testConcurrentWriters},
 		{"ChangeLog", testChangeLog},
 		{"SyncState", testSyncState},
+		{"KindSetLog", testKindSetLog},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {

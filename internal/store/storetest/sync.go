@@ -235,3 +235,25 @@ func testSyncState(t *testing.T, s domain.Store) {
 	_, err = s.GetConflict(c, "c-3")
 	wantKind(t, err, domain.NotFound, "a missing conflict")
 }
+
+// testKindSetLog: survey sets by kind are in the change log under
+// "<hole global id>/<kind>", found and restamped by it.
+func testKindSetLog(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	p := newProject(t, s, "kind sets")
+	h := newHole(t, s, p.ID, "K1")
+	before, _ := s.LastChangeSeq(c)
+	k := domain.KindSet{HoleID: h.ID, Kind: domain.SurveyGyro, AzimuthRef: "true", Stations: []domain.Station{st(0, 45, -60)}}
+	must(t, s.PutKindSet(c, &k, 0))
+	gid := domain.KindSetGlobalID(h.GlobalID, domain.SurveyGyro)
+	got, err := s.ListChanges(c, domain.ChangeFilter{ProjectID: p.ID, After: before})
+	must(t, err)
+	diff(t, "kind set entries", []op{{domain.SyncKindSets, gid, "create", 1, ""}}, ops(got))
+	must(t, s.Restamp(c, p.ID, domain.SyncKindSets, gid, 5))
+	if id, v, err := s.FindGlobal(c, p.ID, domain.SyncKindSets, gid); err != nil || id != h.ID || v != 5 {
+		t.Errorf("kind set by global id: %d v%d %v", id, v, err)
+	}
+	if hg, kind := domain.SplitKindSetGlobalID(gid); hg != h.GlobalID || kind != domain.SurveyGyro {
+		t.Errorf("split %q: %q %q", gid, hg, kind)
+	}
+}
