@@ -132,7 +132,7 @@ func (s *Store) ListMeasurements(ctx context.Context, f domain.MeasurementFilter
 	if err != nil {
 		return nil, translate(err)
 	}
-	return collect(rows, scanMeasurement)
+	return collectCap(rows, scanMeasurement, page.Limit)
 }
 
 // ListMeasurementsByDepth lists the measurements that pass f in (depth, id)
@@ -149,7 +149,7 @@ func (s *Store) ListMeasurementsByDepth(ctx context.Context, f domain.Measuremen
 	if err != nil {
 		return nil, translate(err)
 	}
-	return collect(rows, scanMeasurement)
+	return collectCap(rows, scanMeasurement, page.Limit)
 }
 
 // CountMeasurements counts the measurements that pass f.

@@ -1,0 +1,103 @@
+package service_test
+
+import (
+	"context"
+	"fmt"
+	"io"
+	"strings"
+	"testing"
+
+	"corvane/internal/domain"
+	"corvane/internal/qa"
+	"corvane/internal/service"
+)
+
+// storedProgramme loads a programme of holes x perHole measurements into s
+// through the service's CSV imports: holes of 300 m (azimuth and dip varying
+// by hole) with a survey station every 30 m, 3 m orientation runs, and
+// measurements of three types (bedding with a lineation on one row in five,
+// joints, veins) spread down each hole.
+func storedProgramme(b testing.TB, s *service.Service, ctx context.Context, holes, perHole int) domain.Project {
+	b.Helper()
+	p := must(s.CreateProject(ctx, domain.Project{Name: "speed", PersistentFabric: "BD"}))
+	for _, c := range []string{"BD", "JN", "VN"} {
+		mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: c}))
+	}
+	var col, sur, run, mea strings.Builder
+	col.WriteString("hole_id,easting,northing,elevation,azimuth,dip,depth\n")
+	sur.WriteString("hole_id,depth,azimuth,dip\n")
+	run.WriteString("hole_id,from,to,confidence\n")
+	mea.WriteString("hole_id,depth,alpha,beta,gamma,type,logged_by\n")
+	types := []string{"BD", "JN", "VN"}
+	for i := range holes {
+		id := fmt.Sprintf("S%03d", i)
+		az, dip := float64((i*37+10)%340), -50-float64(i%25)
+		fmt.Fprintf(&col, "%s,%d,%d,400,%g,%g,300\n", id, 1000+i*50, 2000+(i%20)*40, az, dip)
+		for d := 0; d <= 300; d += 30 {
+			fmt.Fprintf(&sur, "%s,%d,%.1f,%.1f\n", id, d, az+float64(d)*0.01, dip+float64(d)*0.02)
+		}
+		for d := 0; d < 300; d += 3 {
+			fmt.Fprintf(&run, "%s,%d,%d,good\n", id, d, d+3)
+		}
+		for j := range perHole {
+			k := i*perHole + j
+			gamma := ""
+			if k%5 == 0 {
+				gamma = fmt.Sprint(k % 180)
+			}
+			fmt.Fprintf(&mea, "%s,%.2f,%d,%d,%s,%s,L%d\n", id, 0.5+float64(j)*299/float64(perHole), 10+k%75, (k*37)%360, gamma, types[k%3], k%4)
+		}
+	}
+	for _, f := range []struct{ kind, body string }{{"collars", col.String()}, {"surveys", sur.String()}, {"runs", run.String()}, {"measurements", mea.String()}} {
+		if _, err := doImport(b, s, ctx, p.ID, f.kind, f.body, false, ""); err != nil {
+			b.Fatalf("%s: %v", f.kind, err)
+		}
+	}
+	return p
+}
+
+// BenchmarkStoredFabric: statistics, net and rose over 100,000 stored
+// measurements of 200 holes, and QA over the same programme, on the SQLite
+// store, warm (the programme is loaded once).
+func BenchmarkStoredFabric(b *testing.B) {
+	s, ctx := newService(b)
+	p := storedProgramme(b, s, ctx, 200, 500)
+	benchStoredFabric(b, s, ctx, p)
+}
+
+func benchStoredFabric(b *testing.B, s *service.Service, ctx context.Context, p domain.Project) {
+	b.Run("stats", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			rep := must(s.Statistics(ctx, p.ID, service.StatsQuery{SetQuery: service.SetQuery{Sets: "type"}}))
+			if rep.Planes == nil || rep.Planes.Count != 100000 {
+				b.Fatalf("%d rows used", rep.RowsUsed)
+			}
+		}
+	})
+	b.Run("net", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			if err := s.Net(ctx, p.ID, service.NetQuery{}, io.Discard); err != nil {
+				b.Fatal(err)
+			}
+		}
+	})
+	b.Run("rose", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			if err := s.Rose(ctx, p.ID, service.RoseQuery{}, io.Discard); err != nil {
+				b.Fatal(err)
+			}
+		}
+	})
+	b.Run("qa", func(b *testing.B) {
+		b.ReportAllocs()
+		for b.Loop() {
+			rep := must(s.QA(ctx, p.ID, 0, qa.Options{}))
+			if rep.Summary.Measurements != 100000 {
+				b.Fatalf("%d measurements", rep.Summary.Measurements)
+			}
+		}
+	})
+}
