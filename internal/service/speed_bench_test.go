@@ -4,6 +4,8 @@ import (
 	"context"
 	"fmt"
 	"io"
+	"os"
+	"strconv"
 	"strings"
 	"testing"
 
@@ -100,4 +102,65 @@ func benchStoredFabric(b *testing.B, s *service.Service, ctx context.Context, p 
 			}
 		}
 	})
+}
+
+// benchRows is the number of rows of the import benchmarks:
+// CORVANE_BENCH_ROWS, 100,000 by default.
+func benchRows(b *testing.B) int {
+	n := 100000
+	if v := os.Getenv("CORVANE_BENCH_ROWS"); v != "" {
+		var err error
+		if n, err = strconv.Atoi(v); err != nil || n <= 0 {
+			b.Fatalf("CORVANE_BENCH_ROWS=%q: want a positive number", v)
+		}
+	}
+	return n
+}
+
+// importProgramme makes a project of 100 holes of 1,000 m without surveys
+// and returns it with a measurements file of rows rows over those holes.
+func importProgramme(b *testing.B, s *service.Service, ctx context.Context, name string, rows int) (domain.Project, string) {
+	p := must(s.CreateProject(ctx, domain.Project{Name: name}))
+	for _, c := range []string{"BD", "JN", "VN"} {
+		mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: c}))
+	}
+	var col strings.Builder
+	col.WriteString("hole_id,easting,northing,elevation,azimuth,dip,depth\n")
+	for i := range 100 {
+		fmt.Fprintf(&col, "I%03d,%d,2000,400,%d,-60,1000\n", i, 1000+i*50, (i*37)%360)
+	}
+	if _, err := doImport(b, s, ctx, p.ID, "collars", col.String(), false, ""); err != nil {
+		b.Fatal(err)
+	}
+	var mea strings.Builder
+	mea.WriteString("hole_id,depth,alpha,beta,gamma,type,logged_by\n")
+	types := []string{"BD", "JN", "VN"}
+	for k := range rows {
+		gamma := ""
+		if k%5 == 0 {
+			gamma = strconv.Itoa(k % 180)
+		}
+		fmt.Fprintf(&mea, "I%03d,%.3f,%d,%d,%s,%s,L%d\n", k%100, float64(k/100)*0.0009+0.001, 10+k%75, (k*37)%360, gamma, types[k%3], k%4)
+	}
+	return p, mea.String()
+}
+
+// BenchmarkImportMeasurements: the service's CSV import of
+// CORVANE_BENCH_ROWS measurements (100,000 by default) into a fresh
+// project of the SQLite store, all or nothing.
+func BenchmarkImportMeasurements(b *testing.B) {
+	s, ctx := newService(b)
+	rows := benchRows(b)
+	i := 0
+	for b.Loop() {
+		b.StopTimer()
+		i++
+		p, body := importProgramme(b, s, ctx, fmt.Sprintf("import %d", i), rows)
+		b.StartTimer()
+		res, err := doImport(b, s, ctx, p.ID, "measurements", body, false, "")
+		if err != nil || res.Created != rows {
+			b.Fatalf("%d created of %d: %v", res.Created, rows, err)
+		}
+	}
+	b.ReportMetric(float64(rows)*float64(b.N)/b.Elapsed().Seconds(), "rows/s")
 }
