@@ -140,40 +140,71 @@ func (s *Service) Import(ctx context.Context, projectID int64, req ImportRequest
 			return res, err
 		}
 	}
-	err = s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
-		var err error
-		switch req.Kind {
-		case ImportCollars:
-			err = importCollars(ctx, st, p, body, &res)
-		case ImportSurveys:
-			err = importSurveys(ctx, st, p, body, &res)
-		case ImportRuns:
-			err = importRuns(ctx, st, p, body, &res)
-		case ImportMeasurements:
-			err = s.importMeasurements(ctx, st, p, a, body, dups, &res)
-		case ImportDiscontinuities:
-			err = s.importDiscontinuities(ctx, st, p, a, body, &res)
-		case ImportIntervals:
-			err = importIntervals(ctx, st, p, body, &res)
-		}
+	// A measurements file is checked and written outside the transaction,
+	// in batches of importBatch rows, each a short transaction of its own
+	// into an import batch whose rows nobody sees; the last transaction
+	// below shows them all at once (or, on any failure, the batch is
+	// dropped). A logger's single write waits for one batch, not for the
+	// whole file; nothing of a failed import is ever seen.
+	var staged *stagedImport
+	if req.Kind == ImportMeasurements && !req.DryRun {
+		staged = &stagedImport{}
+		staged.batch, err = s.store.OpenBatch(ctx, projectID)
 		if err != nil {
-			return err
+			return res, err
 		}
-		if req.DryRun {
-			return errDryRun
+		defer func() {
+			if !staged.committed {
+				// Best effort: a batch that cannot be dropped now stays
+				// invisible and is removed by a later import (StaleBatch).
+				_ = s.store.DropBatch(context.WithoutCancel(ctx), staged.batch)
+			}
+		}()
+		err = s.importMeasurements(ctx, s.store, p, a, body, dups, &res, staged)
+	}
+	if err == nil {
+		err = s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
+			var err error
+			switch req.Kind {
+			case ImportCollars:
+				err = importCollars(ctx, st, p, body, &res)
+			case ImportSurveys:
+				err = importSurveys(ctx, st, p, body, &res)
+			case ImportRuns:
+				err = importRuns(ctx, st, p, body, &res)
+			case ImportMeasurements:
+				if staged != nil {
+					err = staged.commit(ctx, st)
+				} else {
+					err = s.importMeasurements(ctx, st, p, a, body, dups, &res, nil)
+				}
+			case ImportDiscontinuities:
+				err = s.importDiscontinuities(ctx, st, p, a, body, &res)
+			case ImportIntervals:
+				err = importIntervals(ctx, st, p, body, &res)
+			}
+			if err != nil {
+				return err
+			}
+			if req.DryRun {
+				return errDryRun
+			}
+			if err := audit(ctx, st, a, projectID, "import", res.File, domain.ActionCreate, nil, res); err != nil {
+				return err
+			}
+			if key == "" {
+				return nil
+			}
+			if _, err := io.Copy(io.Discard, body); err != nil {
+				return domain.Errorf(domain.Invalid, "%s: reading the body: %w", res.File, err)
+			}
+			out, _ := json.Marshal(res)
+			return st.PutIdempotency(ctx, domain.Idempotency{ProjectID: projectID, Key: key, RequestHash: sum(h), Result: out})
+		})
+		if err == nil && staged != nil {
+			staged.committed = true
 		}
-		if err := audit(ctx, st, a, projectID, "import", res.File, domain.ActionCreate, nil, res); err != nil {
-			return err
-		}
-		if key == "" {
-			return nil
-		}
-		if _, err := io.Copy(io.Discard, body); err != nil {
-			return domain.Errorf(domain.Invalid, "%s: reading the body: %w", res.File, err)
-		}
-		out, _ := json.Marshal(res)
-		return st.PutIdempotency(ctx, domain.Idempotency{ProjectID: projectID, Key: key, RequestHash: sum(h), Result: out})
-	})
+	}
 	if domain.IsKind(err, domain.PreconditionFailed) {
 		// An import takes no If-Match: a version check that failed inside it
 		// is a row another writer changed between the import's read and its
@@ -497,7 +528,11 @@ func parseLoggedAt(s string) (time.Time, bool) {
 	return time.Time{}, false
 }
 
-func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p domain.Project, a Actor, body io.Reader, dups string, res *ImportResult) error {
+// importMeasurements checks every row of a measurements file and writes the
+// good ones while no row is bad: into st in the caller's transaction, or,
+// with staged, into its import batch (each batch of rows a transaction of
+// its own), remembering the holes the rows belong to.
+func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p domain.Project, a Actor, body io.Reader, dups string, res *ImportResult, staged *stagedImport) error {
 	sr, err := csvio.NewStructureReader(body, res.File)
 	if err != nil {
 		return fileErr(res.File, err)
@@ -520,7 +555,13 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 			batch = batch[:0]
 			return nil
 		}
-		n, err := st.CreateMeasurements(ctx, batch)
+		var n int
+		var err error
+		if staged != nil {
+			n, err = st.StageMeasurements(ctx, staged.batch, batch)
+		} else {
+			n, err = st.CreateMeasurements(ctx, batch)
+		}
 		res.Created += n
 		batch = batch[:0]
 		return err
@@ -641,6 +682,9 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 		res.Created = 0
 		return err
 	}
+	if staged != nil {
+		staged.holes = holes
+	}
 	return nil
 }
 
@@ -648,6 +692,33 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 // does not have, with what to do about it, the same for every import.
 func noHoleMsg(name string) string {
 	return fmt.Sprintf("no hole %q in the project (import its collar first)", name)
+}
+
+// stagedImport is a measurements import written into an import batch.
+type stagedImport struct {
+	batch     int64
+	holes     *holeNames // the holes the rows belong to, as read
+	committed bool
+}
+
+// commit shows the batch's rows in the import's last transaction st, after
+// checking that no hole the rows belong to changed or went while they were
+// written (its final depth, say, or a delete that took the rows with it):
+// that is a clash, and nothing is imported.
+func (si *stagedImport) commit(ctx context.Context, st domain.Store) error {
+	for name, h := range si.holes.seen {
+		if h == nil {
+			continue
+		}
+		now, err := st.GetHole(ctx, h.ID)
+		if err != nil && !domain.IsKind(err, domain.NotFound) {
+			return err
+		}
+		if err != nil || now.Version != h.Version {
+			return domain.Errorf(domain.Conflict, "hole %s changed while its measurements were imported; nothing was imported: retry", name)
+		}
+	}
+	return st.CommitBatch(ctx, si.batch)
 }
 
 // holeNames finds a project's holes by name for an import, asking the store

@@ -18,11 +18,11 @@ const (
 	insertMeasurement = `INSERT INTO measurements (project_id, hole_id, depth, alpha, beta, gamma, type_code,
 	apparent_thickness, comment, logged_by, logged_at, version, created_at, updated_at)
 	VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, 1, $12, $13) RETURNING id`
-	selectMeasurement = `SELECT ` + measurementCols + ` FROM measurements WHERE id = $1`
+	selectMeasurement = `SELECT ` + measurementCols + ` FROM measurements WHERE id = $1 AND ` + visible
 	updateMeasurement = `UPDATE measurements SET hole_id = $1, depth = $2, alpha = $3, beta = $4, gamma = $5,
 	type_code = $6, apparent_thickness = $7, comment = $8, logged_by = $9, logged_at = $10,
-	version = version + 1, updated_at = $11 WHERE id = $12 AND version = $13 RETURNING version`
-	deleteMeasurement = `DELETE FROM measurements WHERE id = $1 AND version = $2`
+	version = version + 1, updated_at = $11 WHERE id = $12 AND version = $13 AND ` + visible + ` RETURNING version`
+	deleteMeasurement = `DELETE FROM measurements WHERE id = $1 AND version = $2 AND ` + visible
 )
 
 func scanMeasurement(r scanner) (domain.Measurement, error) {
@@ -41,7 +41,7 @@ func scanMeasurement(r scanner) (domain.Measurement, error) {
 func where(f domain.MeasurementFilter) (string, []any) {
 	var b strings.Builder
 	args := []any{f.ProjectID}
-	b.WriteString(" WHERE project_id = $1")
+	b.WriteString(" WHERE project_id = $1 AND " + visible)
 	add := func(cond string, v any) {
 		args = append(args, v)
 		fmt.Fprintf(&b, cond, len(args))
