@@ -96,3 +96,34 @@ func TestImportBadRowLateLeavesNothing(t *testing.T) {
 		t.Fatalf("the same file without the bad row: %+v", r)
 	}
 }
+
+// A hole changed while its rows are being imported (its final depth cut
+// short, say) is a clash: nothing of the import is kept.
+func TestImportHoleChangedMidway(t *testing.T) {
+	s, ctx := newService(t)
+	p := must(s.CreateProject(ctx, domain.Project{Name: "clash"}))
+	mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "BD"}))
+	must(doImport(t, s, ctx, p.ID, "collars", collarsCSV, false, ""))
+	hid := must(s.ResolveHole(ctx, p.ID, "TM001"))
+	file := measurementRows(12000, "clash")
+	pr, pw := io.Pipe()
+	done := make(chan error, 1)
+	go func() {
+		_, err := s.Import(ctx, p.ID, service.ImportRequest{Kind: "measurements", Body: pr})
+		done <- err
+	}()
+	if _, err := io.WriteString(pw, file[:len(file)/2]); err != nil {
+		t.Fatal(err)
+	}
+	h := must(s.GetHole(ctx, p.ID, hid))
+	h.FinalDepth = 150
+	must(s.UpdateHole(ctx, p.ID, hid, h.Version, h))
+	if _, err := io.WriteString(pw, file[len(file)/2:]); err != nil {
+		t.Fatal(err)
+	}
+	pw.Close()
+	wantKind(t, <-done, domain.Conflict, "import across a change of its hole")
+	if l := must(s.ListMeasurements(ctx, p.ID, service.MeasurementQuery{}, domain.Page{Limit: 10})); len(l.Items) != 0 {
+		t.Fatalf("%d rows kept", len(l.Items))
+	}
+}

@@ -148,13 +148,9 @@ func (s *Service) Import(ctx context.Context, projectID int64, req ImportRequest
 	// whole file; nothing of a failed import is ever seen.
 	var staged *stagedImport
 	if req.Kind == ImportMeasurements && !req.DryRun {
-		staged = &stagedImport{}
-		staged.batch, err = s.store.OpenBatch(ctx, projectID)
-		if err != nil {
-			return res, err
-		}
+		staged = &stagedImport{st: s.store, project: projectID}
 		defer func() {
-			if !staged.committed {
+			if staged.batch != 0 && !staged.committed {
 				// Best effort: a batch that cannot be dropped now stays
 				// invisible and is removed by a later import (StaleBatch).
 				_ = s.store.DropBatch(context.WithoutCancel(ctx), staged.batch)
@@ -174,7 +170,7 @@ func (s *Service) Import(ctx context.Context, projectID int64, req ImportRequest
 				err = importRuns(ctx, st, p, body, &res)
 			case ImportMeasurements:
 				if staged != nil {
-					err = staged.commit(ctx, st)
+					err = staged.commit(ctx, st, &res)
 				} else {
 					err = s.importMeasurements(ctx, st, p, a, body, dups, &res, nil)
 				}
@@ -558,7 +554,7 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 		var n int
 		var err error
 		if staged != nil {
-			n, err = st.StageMeasurements(ctx, staged.batch, batch)
+			n, err = staged.stage(ctx, batch)
 		} else {
 			n, err = st.CreateMeasurements(ctx, batch)
 		}
@@ -675,6 +671,11 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 			}
 		}
 	}
+	if staged != nil {
+		// The last rows go in with the import's last transaction.
+		staged.rest = batch
+		batch = nil
+	}
 	if err := flush(); err != nil {
 		return err
 	}
@@ -694,18 +695,37 @@ func noHoleMsg(name string) string {
 	return fmt.Sprintf("no hole %q in the project (import its collar first)", name)
 }
 
-// stagedImport is a measurements import written into an import batch.
+// stagedImport is a measurements import written into an import batch: each
+// full batch of importBatch rows in a transaction of its own, the last rows
+// with the import's last transaction. A file of one batch or less opens no
+// batch and is written in that one transaction.
 type stagedImport struct {
-	batch     int64
-	holes     *holeNames // the holes the rows belong to, as read
+	st        domain.Store
+	project   int64
+	batch     int64                // 0 until the first full batch of rows
+	rest      []domain.Measurement // the rows of the last transaction
+	holes     *holeNames           // the holes the rows belong to, as read
 	committed bool
 }
 
-// commit shows the batch's rows in the import's last transaction st, after
-// checking that no hole the rows belong to changed or went while they were
-// written (its final depth, say, or a delete that took the rows with it):
-// that is a clash, and nothing is imported.
-func (si *stagedImport) commit(ctx context.Context, st domain.Store) error {
+// stage writes ms into the import batch, opening it first.
+func (si *stagedImport) stage(ctx context.Context, ms []domain.Measurement) (int, error) {
+	if si.batch == 0 {
+		b, err := si.st.OpenBatch(ctx, si.project)
+		if err != nil {
+			return 0, err
+		}
+		si.batch = b
+	}
+	return si.st.StageMeasurements(ctx, si.batch, ms)
+}
+
+// commit writes the last rows and shows the batch's rows in the import's
+// last transaction st, after checking that no hole the rows belong to
+// changed or went while they were written (its final depth, say, or a
+// delete that took the rows with it): that is a clash, and nothing is
+// imported. It adds the last rows to res.Created.
+func (si *stagedImport) commit(ctx context.Context, st domain.Store, res *ImportResult) error {
 	for name, h := range si.holes.seen {
 		if h == nil {
 			continue
@@ -717,6 +737,16 @@ func (si *stagedImport) commit(ctx context.Context, st domain.Store) error {
 		if err != nil || now.Version != h.Version {
 			return domain.Errorf(domain.Conflict, "hole %s changed while its measurements were imported; nothing was imported: retry", name)
 		}
+	}
+	if len(si.rest) > 0 {
+		n, err := st.CreateMeasurements(ctx, si.rest)
+		res.Created += n
+		if err != nil {
+			return err
+		}
+	}
+	if si.batch == 0 {
+		return nil
 	}
 	return st.CommitBatch(ctx, si.batch)
 }

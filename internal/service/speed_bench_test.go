@@ -5,9 +5,11 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"slices"
 	"strconv"
 	"strings"
 	"testing"
+	"time"
 
 	"corvane/internal/domain"
 	"corvane/internal/qa"
@@ -163,4 +165,55 @@ func BenchmarkImportMeasurements(b *testing.B) {
 		}
 	}
 	b.ReportMetric(float64(rows)*float64(b.N)/b.Elapsed().Seconds(), "rows/s")
+}
+
+// BenchmarkWriteDuringImport: a logger's single write (one measurement,
+// as POST .../measurements makes it) every 20 ms while the service imports
+// CORVANE_BENCH_ROWS measurements (100,000 by default) on the SQLite store;
+// reports the longest and the 99th-percentile wait of the writes and the
+// import's time.
+func BenchmarkWriteDuringImport(b *testing.B) {
+	s, ctx := newService(b)
+	rows := benchRows(b)
+	i := 0
+	var waits []time.Duration
+	var imports time.Duration
+	for b.Loop() {
+		b.StopTimer()
+		i++
+		p, body := importProgramme(b, s, ctx, fmt.Sprintf("busy %d", i), rows)
+		hid := must(s.ResolveHole(ctx, p.ID, "I000"))
+		b.StartTimer()
+		done := make(chan error, 1)
+		start := time.Now()
+		go func() {
+			_, err := doImport(b, s, ctx, p.ID, "measurements", body, false, "")
+			imports += time.Since(start)
+			done <- err
+		}()
+		for n := 0; ; n++ {
+			select {
+			case err := <-done:
+				if err != nil {
+					b.Fatal(err)
+				}
+				goto next
+			case <-time.After(20 * time.Millisecond):
+			}
+			t0 := time.Now()
+			_, err := s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: hid, Depth: 999 - float64(n)*0.001, Alpha: 30, Beta: f64(90), TypeCode: "BD", LoggedBy: "L1", LoggedAt: time.Now()})
+			if err != nil {
+				b.Fatal(err)
+			}
+			waits = append(waits, time.Since(t0))
+		}
+	next:
+	}
+	slices.Sort(waits)
+	if len(waits) > 0 {
+		b.ReportMetric(float64(waits[len(waits)-1].Microseconds())/1000, "max-write-ms")
+		b.ReportMetric(float64(waits[len(waits)*99/100].Microseconds())/1000, "p99-write-ms")
+	}
+	b.ReportMetric(float64(len(waits))/float64(b.N), "writes/op")
+	b.ReportMetric(imports.Seconds()/float64(b.N), "import-s")
 }
