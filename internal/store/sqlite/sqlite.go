@@ -64,8 +64,14 @@ func dsn(path string, immediate bool) string {
 	v.Add("_pragma", "journal_mode(WAL)")
 	v.Add("_pragma", "foreign_keys(1)")
 	v.Add("_pragma", "synchronous(NORMAL)")
+	// Statement journals (a multi-row INSERT keeps one) and temporary
+	// b-trees in memory rather than in temporary files.
+	v.Add("_pragma", "temp_store(MEMORY)")
 	if immediate {
 		v.Add("_txlock", "immediate")
+		// The writer keeps up to 32 MB of pages (default 2 MB), so a bulk
+		// import's inserts into the indexes find their pages in memory.
+		v.Add("_pragma", "cache_size(-32768)")
 	}
 	if strings.HasPrefix(path, "file:") {
 		if strings.Contains(path, "?") {
