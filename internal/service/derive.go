@@ -391,5 +391,13 @@ func (d *deriver) view(ctx context.Context, m domain.Measurement) (MeasurementVi
 	if err != nil {
 		return MeasurementView{}, err
 	}
-	return MeasurementView{Measurement: m, Hole: hm.name, Derived: hm.derive(m.Depth, m.Alpha, m.Beta, m.Gamma, m.ApparentThickness)}, nil
+	return hm.view(m), nil
+}
+
+// view returns the measurement m of the model's hole with its hole name and
+// derived values. It reads nothing from the store: a write reads the model
+// inside its transaction and derives after the commit, so the store's one
+// writer is not held while the uncertainty is computed.
+func (m *holeModel) view(ms domain.Measurement) MeasurementView {
+	return MeasurementView{Measurement: ms, Hole: m.name, Derived: m.derive(ms.Depth, ms.Alpha, ms.Beta, ms.Gamma, ms.ApparentThickness)}
 }

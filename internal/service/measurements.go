@@ -82,7 +82,7 @@ func checkMeasurement(m *domain.Measurement, h domain.Hole, vocab []domain.TypeC
 // CreateMeasurement logs a structure measurement (log). LoggedBy defaults to
 // the caller's name and LoggedAt to now.
 func (s *Service) CreateMeasurement(ctx context.Context, projectID int64, m domain.Measurement) (MeasurementView, error) {
-	var v MeasurementView
+	var hm *holeModel
 	err := s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
 		p, a, err := s.project(ctx, st, projectID, domain.RoleLog)
 		if err != nil {
@@ -112,10 +112,13 @@ func (s *Service) CreateMeasurement(ctx context.Context, projectID int64, m doma
 		if err := audit(ctx, st, a, projectID, "measurement", m.ID, domain.ActionCreate, nil, m); err != nil {
 			return err
 		}
-		v, err = newDeriver(st, p).view(ctx, m)
+		hm, err = newDeriver(st, p).model(ctx, m.HoleID)
 		return err
 	})
-	return v, err
+	if err != nil {
+		return MeasurementView{}, err
+	}
+	return hm.view(m), nil
 }
 
 // measurement loads a measurement and checks it belongs to the project.
@@ -198,7 +201,7 @@ func (s *Service) CountMeasurements(ctx context.Context, projectID int64, q Meas
 // another hole of the same project. An empty LoggedBy or zero LoggedAt keep
 // the stored ones.
 func (s *Service) UpdateMeasurement(ctx context.Context, projectID, id, ifVersion int64, m domain.Measurement) (MeasurementView, error) {
-	var v MeasurementView
+	var hm *holeModel
 	err := s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
 		p, a, err := s.project(ctx, st, projectID, domain.RoleLog)
 		if err != nil {
@@ -235,10 +238,13 @@ func (s *Service) UpdateMeasurement(ctx context.Context, projectID, id, ifVersio
 		if err := audit(ctx, st, a, projectID, "measurement", id, domain.ActionUpdate, before, m); err != nil {
 			return err
 		}
-		v, err = newDeriver(st, p).view(ctx, m)
+		hm, err = newDeriver(st, p).model(ctx, m.HoleID)
 		return err
 	})
-	return v, err
+	if err != nil {
+		return MeasurementView{}, err
+	}
+	return hm.view(m), nil
 }
 
 // DeleteMeasurement deletes a measurement (log).
