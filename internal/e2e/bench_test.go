@@ -19,8 +19,9 @@ import (
 // BenchmarkImportAPIvsPsqlCopy loads the same measurements into PostgreSQL
 // twice per iteration: once through the API (POST .../imports/measurements
 // to the running binary: upload, parse, check every row against the
-// project's holes and vocabulary, COPY into staging, INSERT ... SELECT, one
-// transaction), once with psql's \copy straight into the measurements table
+// project's holes and vocabulary, COPY in batches of 5,000 rows straight
+// into measurements as an import batch nobody sees until the last
+// transaction shows it), once with psql's \copy straight into the measurements table
 // (values already resolved to hole ids). The loads alternate so both meet
 // the same machine load. CORVANE_BENCH_ROWS sets the rows per load (default
 // 100000; the figure is 1000000).

@@ -97,18 +97,19 @@ func Path(databaseURL string) string {
 // migrate; call [Migrate] first.
 func Open(ctx context.Context, path string) (*Store, error) {
 	path = Path(path)
-	w, err := sql.Open("sqlite", dsn(path, true))
+	wc, err := newConnector(dsn(path, true))
 	if err != nil {
 		return nil, fmt.Errorf("opening %s: %w", path, err)
 	}
+	rc, err := newConnector(dsn(path, false))
+	if err != nil {
+		return nil, fmt.Errorf("opening %s: %w", path, err)
+	}
+	w := sql.OpenDB(wc)
 	w.SetMaxOpenConns(1)
 	w.SetMaxIdleConns(1)
 	w.SetConnMaxLifetime(0)
-	r, err := sql.Open("sqlite", dsn(path, false))
-	if err != nil {
-		w.Close()
-		return nil, fmt.Errorf("opening %s: %w", path, err)
-	}
+	r := sql.OpenDB(rc)
 	n := max(4, runtime.GOMAXPROCS(0))
 	r.SetMaxOpenConns(n)
 	r.SetMaxIdleConns(n)
