@@ -62,7 +62,13 @@ func BenchmarkImportAPIvsPsqlCopy(b *testing.B) {
 		} `json:"items"`
 	}
 	s.mustJSON(b, 200, "GET", base+"/types", nil, &types)
-	code := types.Items[0].Code
+	code := ""
+	for _, t := range types.Items {
+		if t.Kind == "plane" {
+			code = t.Code
+			break
+		}
+	}
 
 	// The same rows in the two forms: the API's CSV (hole names) and the
 	// table's columns (hole ids, timestamps).
@@ -87,7 +93,7 @@ func BenchmarkImportAPIvsPsqlCopy(b *testing.B) {
 	for range b.N {
 		t0 := time.Now()
 		ctx, cancel := context.WithTimeout(context.Background(), 30*time.Minute)
-		req, _ := http.NewRequestWithContext(ctx, "POST", s.URL+base+"/imports/measurements", bytes.NewReader(api.Bytes()))
+		req, _ := http.NewRequestWithContext(ctx, "POST", s.URL+base+"/imports/measurements?duplicates=keep", bytes.NewReader(api.Bytes()))
 		req.Header.Set("Authorization", "Bearer "+s.Token)
 		req.Header.Set("Content-Type", "text/csv")
 		resp, err := http.DefaultClient.Do(req)
