@@ -87,6 +87,11 @@ type Store interface {
 	// replicas must not do at once (the demo load) runs inside it.
 	Exclusive(ctx context.Context, name string, fn func(ctx context.Context) error) error
 
+	// ModelStamp returns the project's model stamp: a number that changes
+	// whenever anything a hole model is built from changes (the project's
+	// settings, its holes, survey sets, survey sets by kind, runs), by any
+	// writer; NotFound for no such project.
+	ModelStamp(ctx context.Context, projectID int64) (int64, error)
 	CreateProject(ctx context.Context, p *Project) error
 	GetProject(ctx context.Context, id int64) (Project, error)
 	GetProjectByName(ctx context.Context, name string) (Project, error)

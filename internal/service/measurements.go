@@ -83,6 +83,7 @@ func checkMeasurement(m *domain.Measurement, h domain.Hole, vocab []domain.TypeC
 // the caller's name and LoggedAt to now.
 func (s *Service) CreateMeasurement(ctx context.Context, projectID int64, m domain.Measurement) (MeasurementView, error) {
 	var hm *holeModel
+	var d *deriver
 	err := s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
 		p, a, err := s.project(ctx, st, projectID, domain.RoleLog)
 		if err != nil {
@@ -112,12 +113,14 @@ func (s *Service) CreateMeasurement(ctx context.Context, projectID int64, m doma
 		if err := audit(ctx, st, a, projectID, "measurement", m.ID, domain.ActionCreate, nil, m); err != nil {
 			return err
 		}
-		hm, err = newDeriver(st, p).model(ctx, m.HoleID)
+		d = s.deriver(st, p)
+		hm, err = d.model(ctx, m.HoleID)
 		return err
 	})
 	if err != nil {
 		return MeasurementView{}, err
 	}
+	d.keep()
 	return hm.view(m), nil
 }
 
@@ -143,7 +146,7 @@ func (s *Service) GetMeasurement(ctx context.Context, projectID, id int64) (Meas
 	if err != nil {
 		return MeasurementView{}, err
 	}
-	return newDeriver(s.store, p).view(ctx, m)
+	return s.deriver(s.store, p).view(ctx, m)
 }
 
 // ListMeasurements returns one page of the measurements passing q, with
@@ -175,7 +178,7 @@ func (s *Service) ListMeasurements(ctx context.Context, projectID int64, q Measu
 	if err != nil {
 		return out, err
 	}
-	d := newDeriver(s.store, p)
+	d := s.deriver(s.store, p)
 	views := make([]MeasurementView, len(ms))
 	for i, m := range ms {
 		if views[i], err = d.view(ctx, m); err != nil {
@@ -202,6 +205,7 @@ func (s *Service) CountMeasurements(ctx context.Context, projectID int64, q Meas
 // the stored ones.
 func (s *Service) UpdateMeasurement(ctx context.Context, projectID, id, ifVersion int64, m domain.Measurement) (MeasurementView, error) {
 	var hm *holeModel
+	var d *deriver
 	err := s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
 		p, a, err := s.project(ctx, st, projectID, domain.RoleLog)
 		if err != nil {
@@ -238,12 +242,14 @@ func (s *Service) UpdateMeasurement(ctx context.Context, projectID, id, ifVersio
 		if err := audit(ctx, st, a, projectID, "measurement", id, domain.ActionUpdate, before, m); err != nil {
 			return err
 		}
-		hm, err = newDeriver(st, p).model(ctx, m.HoleID)
+		d = s.deriver(st, p)
+		hm, err = d.model(ctx, m.HoleID)
 		return err
 	})
 	if err != nil {
 		return MeasurementView{}, err
 	}
+	d.keep()
 	return hm.view(m), nil
 }
 

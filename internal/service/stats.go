@@ -109,7 +109,7 @@ func (s *Service) eachRow(ctx context.Context, projectID int64, q MeasurementQue
 		}
 		reserve(int(min(c, MaxStatsMeasurements+1)))
 	}
-	d := newDeriver(s.store, p)
+	d := s.deriver(s.store, p)
 	var after int64
 	n := 0
 	for {

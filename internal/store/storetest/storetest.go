@@ -44,6 +44,7 @@ func Run(t *testing.T, newStore func(t *testing.T) domain.Store) {
 		{"Cascade", testCascade},
 		{"ConcurrentWriters", testConcurrentWriters},
 		{"ImportBatches", testImportBatches},
+		{"ModelStamp", testModelStamp},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
@@ -1087,4 +1088,57 @@ func testImportBatches(t *testing.T, s domain.Store) {
 	count("after a rolled-back commit", 2+1201)
 	must(t, s.DropBatch(c, e))
 	count("after dropping it", 2+1201)
+}
+
+// The model stamp moves with every change of what a hole model is built
+// from, and with nothing else; another project's stamp stays.
+func testModelStamp(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	p := newProject(t, s, "stamps")
+	other := newProject(t, s, "stamps other")
+	stamp := func(pid int64) int64 {
+		t.Helper()
+		n, err := s.ModelStamp(c, pid)
+		must(t, err)
+		return n
+	}
+	otherAt := stamp(other.ID)
+	last := stamp(p.ID)
+	moved := func(what string, want bool) {
+		t.Helper()
+		now := stamp(p.ID)
+		if (now != last) != want {
+			t.Fatalf("%s: stamp %d -> %d, want moved %t", what, last, now, want)
+		}
+		last = now
+	}
+	h := newHole(t, s, p.ID, "M1")
+	moved("hole created", true)
+	h.Azimuth = 50
+	must(t, s.UpdateHole(c, &h, h.Version))
+	moved("collar changed", true)
+	ss := domain.SurveySet{HoleID: h.ID, AzimuthRef: "true", Stations: []domain.Station{st(0, 45, -60), st(50, 46.5, -59)}}
+	must(t, s.PutSurvey(c, &ss, 0))
+	moved("survey set", true)
+	ks := domain.KindSet{HoleID: h.ID, Kind: "gyro", Instrument: "gyro", AzimuthRef: "true", Stations: []domain.Station{st(0, 44, -60)}}
+	must(t, s.PutKindSet(c, &ks, 0))
+	moved("survey set by kind", true)
+	r := domain.Run{HoleID: h.ID, From: 0, To: 3, Confidence: "good"}
+	must(t, s.CreateRun(c, &r))
+	moved("run", true)
+	m := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: 10, Alpha: 40, Beta: f64(120), TypeCode: "BD", LoggedAt: time.Date(2026, 3, 2, 0, 0, 0, 0, time.UTC)}
+	must(t, s.CreateMeasurement(c, &m))
+	moved("measurement", false)
+	p.RefLine = "top"
+	must(t, s.UpdateProject(c, &p, p.Version))
+	moved("project setting", true)
+	must(t, s.DeleteRun(c, r.ID, r.Version))
+	moved("run deleted", true)
+	must(t, s.DeleteHole(c, h.ID, h.Version))
+	moved("hole deleted", true)
+	if stamp(other.ID) != otherAt {
+		t.Fatal("another project's stamp moved")
+	}
+	_, err := s.ModelStamp(c, 1<<40)
+	wantKind(t, err, domain.NotFound, "stamp of no project")
 }
