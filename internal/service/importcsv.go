@@ -11,6 +11,7 @@ import (
 	"io"
 	"math"
 	"strings"
+	"sync"
 	"time"
 
 	"corvane/internal/csvio"
@@ -150,6 +151,7 @@ func (s *Service) Import(ctx context.Context, projectID int64, req ImportRequest
 	if req.Kind == ImportMeasurements && !req.DryRun {
 		staged = &stagedImport{st: s.store, project: projectID}
 		defer func() {
+			staged.wait() // an import that stopped early: its writer stops too
 			if staged.batch != 0 && !staged.committed {
 				// Best effort: a batch that cannot be dropped now stays
 				// invisible and is removed by a later import (StaleBatch).
@@ -554,12 +556,14 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 		var n int
 		var err error
 		if staged != nil {
+			// The writer owns the rows now; the next ones go into a new slice.
 			n, err = staged.stage(ctx, batch)
+			batch = make([]domain.Measurement, 0, importBatch)
 		} else {
 			n, err = st.CreateMeasurements(ctx, batch)
+			batch = batch[:0]
 		}
 		res.Created += n
-		batch = batch[:0]
 		return err
 	}
 	for {
@@ -679,6 +683,11 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 	if err := flush(); err != nil {
 		return err
 	}
+	if staged != nil {
+		if err := staged.wait(); err != nil {
+			return err
+		}
+	}
 	if err := ps.err(); err != nil {
 		res.Created = 0
 		return err
@@ -698,7 +707,9 @@ func noHoleMsg(name string) string {
 // stagedImport is a measurements import written into an import batch: each
 // full batch of importBatch rows in a transaction of its own, the last rows
 // with the import's last transaction. A file of one batch or less opens no
-// batch and is written in that one transaction.
+// batch and is written in that one transaction. The batches are written by
+// a goroutine of their own, in order, while the next rows are read and
+// checked (one batch ahead at most), so reading and writing use both cores.
 type stagedImport struct {
 	st        domain.Store
 	project   int64
@@ -706,18 +717,67 @@ type stagedImport struct {
 	rest      []domain.Measurement // the rows of the last transaction
 	holes     *holeNames           // the holes the rows belong to, as read
 	committed bool
+
+	work   chan []domain.Measurement // batches for the writer; nil until the first
+	done   chan struct{}             // closed when the writer has stopped
+	mu     sync.Mutex
+	werr   error // the writer's first error
+	closed bool
 }
 
-// stage writes ms into the import batch, opening it first.
+// stage hands ms to the writer, opening the import batch and starting the
+// writer first. It returns the writer's error if it has failed.
 func (si *stagedImport) stage(ctx context.Context, ms []domain.Measurement) (int, error) {
-	if si.batch == 0 {
+	if si.work == nil {
 		b, err := si.st.OpenBatch(ctx, si.project)
 		if err != nil {
 			return 0, err
 		}
 		si.batch = b
+		si.work, si.done = make(chan []domain.Measurement, 1), make(chan struct{})
+		go si.write(ctx)
 	}
-	return si.st.StageMeasurements(ctx, si.batch, ms)
+	if err := si.err(); err != nil {
+		return 0, err
+	}
+	si.work <- ms
+	return len(ms), nil
+}
+
+// write stages the batches in order until the work is closed; after an
+// error it stages nothing more.
+func (si *stagedImport) write(ctx context.Context) {
+	defer close(si.done)
+	for ms := range si.work {
+		if si.err() != nil {
+			continue
+		}
+		if _, err := si.st.StageMeasurements(ctx, si.batch, ms); err != nil {
+			si.mu.Lock()
+			si.werr = err
+			si.mu.Unlock()
+		}
+	}
+}
+
+func (si *stagedImport) err() error {
+	si.mu.Lock()
+	defer si.mu.Unlock()
+	return si.werr
+}
+
+// wait lets the writer finish the batches handed to it and returns its
+// error. It may be called more than once.
+func (si *stagedImport) wait() error {
+	if si.work == nil {
+		return nil
+	}
+	if !si.closed {
+		close(si.work)
+		si.closed = true
+	}
+	<-si.done
+	return si.err()
 }
 
 // commit writes the last rows and shows the batch's rows in the import's
