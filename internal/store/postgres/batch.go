@@ -2,7 +2,6 @@ package postgres
 
 import (
 	"context"
-	"time"
 
 	"github.com/jackc/pgx/v5"
 
@@ -58,20 +57,9 @@ func (s *Store) StageMeasurements(ctx context.Context, batch int64, ms []domain.
 		if err := q.QueryRow(ctx, `SELECT nextval(pg_get_serial_sequence('measurements', 'id'))`).Scan(&lo); err != nil {
 			return translate(err)
 		}
-		i := 0
-		src := pgx.CopyFromFunc(func() ([]any, error) {
-			if i == len(ms) {
-				return nil, nil
-			}
-			m := &ms[i]
-			i++
-			m.LoggedAt = m.LoggedAt.UTC().Truncate(time.Microsecond)
-			return []any{m.ProjectID, m.HoleID, m.Depth, m.Alpha, m.Beta, m.Gamma, m.TypeCode,
-				m.ApparentThickness, m.Comment, m.LoggedBy, m.LoggedAt, int64(1), t, t, batch}, nil
-		})
 		var err error
-		if n, err = q.CopyFrom(ctx, pgx.Identifier{"measurements"}, batchCols, src); err != nil {
-			return translate(err)
+		if n, err = copyMeasurements(ctx, q, ms, t, &batch); err != nil {
+			return err
 		}
 		if err := q.QueryRow(ctx, `SELECT currval(pg_get_serial_sequence('measurements', 'id'))`).Scan(&hi); err != nil {
 			return translate(err)
@@ -88,9 +76,6 @@ func (s *Store) StageMeasurements(ctx context.Context, batch int64, ms []domain.
 	})
 	if err != nil {
 		return 0, err
-	}
-	for i := range ms {
-		ms[i].Version, ms[i].CreatedAt, ms[i].UpdatedAt = 1, t, t
 	}
 	return int(n), nil
 }
