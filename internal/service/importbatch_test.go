@@ -26,7 +26,7 @@ func checkWriteDuringImport(t *testing.T, s *service.Service, ctx context.Contex
 	p := must(s.CreateProject(ctx, domain.Project{Name: "busy"}))
 	mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "BD"}))
 	must(doImport(t, s, ctx, p.ID, "collars", collarsCSV, false, ""))
-	hid := must(s.ResolveHole(ctx, p.ID, "TM002"))
+	hid := must(s.ResolveHole(ctx, p.ID, "ZR002"))
 	const rows = 12000 // more than two of the import's batches
 	file := measurementRows(rows, "imported")
 	pr, pw := io.Pipe()
@@ -83,7 +83,7 @@ func TestImportBadRowLateLeavesNothing(t *testing.T) {
 	p := must(s.CreateProject(ctx, domain.Project{Name: "late"}))
 	mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "BD"}))
 	must(doImport(t, s, ctx, p.ID, "collars", collarsCSV, false, ""))
-	file := measurementRows(12000, "x") + "TM001,10,95,10,BD,x\n"
+	file := measurementRows(12000, "x") + "ZR001,10,95,10,BD,x\n"
 	_, err := doImport(t, s, ctx, p.ID, "measurements", file, false, "")
 	wantKind(t, err, domain.Invalid, "alpha 95 on the last line")
 	if !strings.Contains(err.Error(), "1 bad row") {
@@ -104,7 +104,7 @@ func TestImportHoleChangedMidway(t *testing.T) {
 	p := must(s.CreateProject(ctx, domain.Project{Name: "clash"}))
 	mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: "BD"}))
 	must(doImport(t, s, ctx, p.ID, "collars", collarsCSV, false, ""))
-	hid := must(s.ResolveHole(ctx, p.ID, "TM001"))
+	hid := must(s.ResolveHole(ctx, p.ID, "ZR001"))
 	file := measurementRows(12000, "clash")
 	pr, pw := io.Pipe()
 	done := make(chan error, 1)

@@ -253,9 +253,9 @@ func (s *Service) Net(ctx context.Context, projectID int64, q NetQuery, w io.Wri
 		dom = &d
 		o.Part = &fabric.Part{Name: "domain " + d.Name}
 	}
-	in, err := s.sheetWith(ctx, projectID, q.MeasurementQuery, &o.Title, &o.Source, &o.AzimuthRef, func(v MeasurementView) {
+	in, err := s.sheetWith(ctx, projectID, q.MeasurementQuery, &o.Title, &o.Source, &o.AzimuthRef, func(m domain.Measurement, hole string) {
 		if dom != nil {
-			o.Part.Keep = append(o.Part.Keep, dom.Contains(v.Hole, v.Depth, ""))
+			o.Part.Keep = append(o.Part.Keep, dom.Contains(hole, m.Depth, ""))
 		}
 	})
 	if err != nil {
@@ -286,16 +286,17 @@ func (s *Service) sheet(ctx context.Context, projectID int64, q MeasurementQuery
 	return s.sheetWith(ctx, projectID, q, title, source, ref, nil)
 }
 
-// sheetWith is sheet that also hands each measurement to each (nil: none),
-// in the order of the input's rows.
-func (s *Service) sheetWith(ctx context.Context, projectID int64, q MeasurementQuery, title, source, ref *string, each func(MeasurementView)) (fabric.Input, error) {
+// sheetWith is sheet that also hands each measurement, with its hole's
+// name, to each (nil: none), in the order of the input's rows.
+func (s *Service) sheetWith(ctx context.Context, projectID int64, q MeasurementQuery, title, source, ref *string, each func(m domain.Measurement, hole string)) (fabric.Input, error) {
 	var in fabric.Input
-	p, err := s.eachView(ctx, projectID, q, func(v MeasurementView) {
-		in.Rows = append(in.Rows, fabricRow(v.TypeCode, v.Derived))
-		if each != nil {
-			each(v)
-		}
-	})
+	p, err := s.eachRow(ctx, projectID, q, func(n int) { in.Rows = make([]fabric.Row, 0, n) },
+		func(m domain.Measurement, hole string, r fabric.Row) {
+			in.Rows = append(in.Rows, r)
+			if each != nil {
+				each(m, hole)
+			}
+		})
 	if err != nil {
 		return in, err
 	}
