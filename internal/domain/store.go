@@ -15,6 +15,11 @@ type Page struct {
 }
 
 // Page size bounds.
+// StaleBatch is how long an open import batch may go without a write
+// before a later import takes it for abandoned (its process died) and
+// removes it with its rows.
+const StaleBatch = time.Hour
+
 const (
 	DefaultLimit = 100
 	MaxLimit     = 1000
@@ -82,6 +87,11 @@ type Store interface {
 	// replicas must not do at once (the demo load) runs inside it.
 	Exclusive(ctx context.Context, name string, fn func(ctx context.Context) error) error
 
+	// ModelStamp returns the project's model stamp: a number that changes
+	// whenever anything a hole model is built from changes (the project's
+	// settings, its holes, survey sets, survey sets by kind, runs), by any
+	// writer; NotFound for no such project.
+	ModelStamp(ctx context.Context, projectID int64) (int64, error)
 	CreateProject(ctx context.Context, p *Project) error
 	GetProject(ctx context.Context, id int64) (Project, error)
 	GetProjectByName(ctx context.Context, name string) (Project, error)
@@ -134,6 +144,22 @@ type Store interface {
 	// sets IDs on ms only when the store can do so cheaply; callers that need
 	// IDs use CreateMeasurement.
 	CreateMeasurements(ctx context.Context, ms []Measurement) (int, error)
+	// A batch lets a long import write its measurements in short
+	// transactions of their own, outside any transaction of the caller, so
+	// other writers wait at most for one of them, while the rows stay
+	// invisible to every read (list, count, get, update, delete) until the
+	// batch commits: all or nothing, as one transaction would be.
+	// OpenBatch starts a batch for the project (and first removes the
+	// batches of any project left open for StaleBatch: a crashed import);
+	// StageMeasurements writes ms into it, each call one transaction (it
+	// sets IDs on ms only when the store can do so cheaply); CommitBatch,
+	// called inside the import's last transaction, shows every staged row at
+	// once (NotFound when the batch is gone); DropBatch removes the batch and
+	// its rows, in short transactions.
+	OpenBatch(ctx context.Context, projectID int64) (int64, error)
+	StageMeasurements(ctx context.Context, batch int64, ms []Measurement) (int, error)
+	CommitBatch(ctx context.Context, batch int64) error
+	DropBatch(ctx context.Context, batch int64) error
 	GetMeasurement(ctx context.Context, id int64) (Measurement, error)
 	ListMeasurements(ctx context.Context, f MeasurementFilter, page Page) ([]Measurement, error)
 	// ListMeasurementsByDepth lists in (depth, id) order, paged by keyset:

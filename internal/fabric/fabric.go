@@ -102,6 +102,7 @@ type SkipCount struct {
 // fixed order of reasons.
 func usable(rows []Row) (used []Row, skipped []SkipCount) {
 	n := map[string]int{}
+	used = make([]Row, 0, len(rows))
 	for _, r := range rows {
 		if why := skipReason(r); why != "" {
 			n[why]++

@@ -342,3 +342,38 @@ func TestMagneticModelChoice(t *testing.T) {
 		t.Error("Source.Computed")
 	}
 }
+
+var sinkResult Result
+
+// BenchmarkOrientPlane is one plane through the hole model: depth lookup on
+// the path, hole direction, alpha/beta to dip/dip direction, corrections.
+func BenchmarkOrientPlane(b *testing.B) {
+	h := New(input(Grid), Project{})
+	b.ReportAllocs()
+	m := Measurement{Depth: 50, Alpha: 40, Beta: 120}
+	for b.Loop() {
+		m.Beta += 1.1
+		if m.Beta > 360 {
+			m.Beta = 0
+		}
+		r, err := h.Orient(m)
+		if err != nil {
+			b.Fatal(err)
+		}
+		sinkResult = r
+	}
+}
+
+// BenchmarkOrientLine is one plane with a lineation through the hole model.
+func BenchmarkOrientLine(b *testing.B) {
+	h := New(input(Grid), Project{})
+	b.ReportAllocs()
+	m := Measurement{Depth: 50, Alpha: 40, Beta: 120, Gamma: 30, HasGamma: true}
+	for b.Loop() {
+		r, err := h.Orient(m)
+		if err != nil {
+			b.Fatal(err)
+		}
+		sinkResult = r
+	}
+}

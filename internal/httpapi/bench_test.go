@@ -2,7 +2,12 @@ package httpapi
 
 import (
 	"fmt"
+	"net/http/httptest"
+	"os"
 	"testing"
+	"time"
+
+	"corvane/internal/loadtest"
 )
 
 // BenchmarkLogMeasurement measures one POST .../measurements through the
@@ -44,4 +49,36 @@ func BenchmarkListMeasurements(b *testing.B) {
 			b.Fatalf("status %d: %s", r.Code, r.Body)
 		}
 	}
+}
+
+// BenchmarkLoad runs the project's load generator (package loadtest: 16
+// clients logging measurements one by one and importing 20-row files with a
+// retried idempotency key) against the edge on the SQLite store over
+// loopback for CORVANE_LOAD_DURATION (2 s by default) per iteration, clients
+// and server in one process, and reports its latency percentiles. Run it
+// with -cpuprofile to see where the server spends the time under load.
+func BenchmarkLoad(b *testing.B) {
+	f := newFixture(b)
+	pid := f.project("Load", nil)
+	ts := httptest.NewServer(f.srv)
+	defer ts.Close()
+	d := 2 * time.Second
+	if v := os.Getenv("CORVANE_LOAD_DURATION"); v != "" {
+		var err error
+		if d, err = time.ParseDuration(v); err != nil {
+			b.Fatal(err)
+		}
+	}
+	var res loadtest.Result
+	for b.Loop() {
+		var err error
+		res, err = loadtest.Run(b.Context(), loadtest.Config{BaseURL: ts.URL, Token: f.site, Project: pid,
+			Clients: 16, Duration: d, ImportRow: 20, ImportEvery: 8, Seed: 7})
+		if err != nil || !res.OK() {
+			b.Fatalf("%v\n%s", err, res)
+		}
+	}
+	b.ReportMetric(float64(res.P50.Microseconds())/1000, "p50-ms")
+	b.ReportMetric(float64(res.P99.Microseconds())/1000, "p99-ms")
+	b.ReportMetric(res.RequestsPerSecond(), "req/s")
 }

@@ -4,6 +4,7 @@ import (
 	"context"
 	"math"
 	"strings"
+	"sync"
 	"time"
 
 	"corvane/internal/convert"
@@ -349,22 +350,58 @@ func (m *holeModel) runAt(depth float64, warn []string) (string, []string) {
 }
 
 // deriver builds hole models on demand within one request, so a list of
-// measurements desurveys each hole once, from the store state of that request.
+// measurements desurveys each hole once, from the store state of that
+// request. With a cache (the service's), it first reads the project's model
+// stamp and takes the models built at that stamp and project version from
+// the cache; models it builds go into the cache at once when st is not a
+// transaction, or by keep after the caller's transaction has committed.
 type deriver struct {
 	st       domain.Store
 	conv     Conventions
 	priority string // the project's survey priority
 	models   map[int64]*holeModel
 	ms       *uncertainty.Measurer
+
+	cache    *modelCache // nil: no cache
+	inTx     bool        // st is a transaction: keep the new models until keep
+	project  domain.Project
+	stamp    int64
+	stamped  bool
+	newModel []*holeModel // built in a transaction, for keep
 }
 
 func newDeriver(st domain.Store, p domain.Project) *deriver {
-	return &deriver{st: st, conv: ConventionsOf(p), priority: p.SurveyPriority, models: map[int64]*holeModel{}, ms: perMeasurement.Fork()}
+	return &deriver{st: st, conv: ConventionsOf(p), priority: p.SurveyPriority, models: map[int64]*holeModel{}, ms: perMeasurement.Fork(), project: p}
+}
+
+// deriver returns a deriver over st (the service's store, or a transaction
+// of it) that uses the service's model cache.
+func (s *Service) deriver(st domain.Store, p domain.Project) *deriver {
+	d := newDeriver(st, p)
+	d.cache, d.inTx = s.models, st != s.store
+	return d
 }
 
 func (d *deriver) model(ctx context.Context, holeID int64) (*holeModel, error) {
 	if m, ok := d.models[holeID]; ok {
 		return m, nil
+	}
+	if d.cache != nil && !d.stamped {
+		// The stamp is read before anything a model is built from, so a
+		// model is never older than the stamp it is kept at.
+		n, err := d.st.ModelStamp(ctx, d.project.ID)
+		if err != nil {
+			return nil, err
+		}
+		d.stamp, d.stamped = n, true
+	}
+	if d.cache != nil {
+		if c := d.cache.get(holeID, d.project, d.stamp); c != nil {
+			m := *c
+			m.ms = d.ms
+			d.models[holeID] = &m
+			return &m, nil
+		}
 	}
 	h, err := d.st.GetHole(ctx, holeID)
 	if err != nil {
@@ -379,10 +416,67 @@ func (d *deriver) model(ctx context.Context, holeID int64) (*holeModel, error) {
 		return nil, err
 	}
 	m := newHoleModel(d.conv, h, ss, runs)
-	m.ms = d.ms
 	m.set = set
-	d.models[holeID] = m
-	return m, nil
+	if d.cache != nil && h.ProjectID == d.project.ID {
+		if d.inTx {
+			d.newModel = append(d.newModel, m)
+		} else {
+			d.cache.put(m, d.project, d.stamp)
+		}
+	}
+	use := *m
+	use.ms = d.ms
+	d.models[holeID] = &use
+	return &use, nil
+}
+
+// keep puts the models built in the transaction into the cache; call it
+// once the transaction has committed (what it read is then the committed
+// state at the stamp it read).
+func (d *deriver) keep() {
+	for _, m := range d.newModel {
+		d.cache.put(m, d.project, d.stamp)
+	}
+	d.newModel = nil
+}
+
+// modelCache keeps hole models between requests, each with the project
+// version and model stamp it was built at (domain.Store.ModelStamp: any
+// change of a project's settings, holes, surveys or runs, by any writer,
+// moves the stamp). A model is used only at the same version and stamp, so
+// it is never stale. Models hold no per-request state (their measurer is
+// set per use). Safe for concurrent use.
+type modelCache struct {
+	mu sync.Mutex
+	m  map[int64]cachedModel // by hole id
+}
+
+type cachedModel struct {
+	project, version, stamp int64
+	model                   *holeModel
+}
+
+// maxCachedModels bounds the cache; past it the cache starts afresh.
+const maxCachedModels = 20000
+
+func newModelCache() *modelCache { return &modelCache{m: map[int64]cachedModel{}} }
+
+func (c *modelCache) get(holeID int64, p domain.Project, stamp int64) *holeModel {
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	if e, ok := c.m[holeID]; ok && e.project == p.ID && e.version == p.Version && e.stamp == stamp {
+		return e.model
+	}
+	return nil
+}
+
+func (c *modelCache) put(m *holeModel, p domain.Project, stamp int64) {
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	if len(c.m) >= maxCachedModels {
+		clear(c.m)
+	}
+	c.m[m.hole.ID] = cachedModel{project: p.ID, version: p.Version, stamp: stamp, model: m}
 }
 
 // view returns the measurement with its hole name and derived values.
@@ -391,5 +485,13 @@ func (d *deriver) view(ctx context.Context, m domain.Measurement) (MeasurementVi
 	if err != nil {
 		return MeasurementView{}, err
 	}
-	return MeasurementView{Measurement: m, Hole: hm.name, Derived: hm.derive(m.Depth, m.Alpha, m.Beta, m.Gamma, m.ApparentThickness)}, nil
+	return hm.view(m), nil
+}
+
+// view returns the measurement m of the model's hole with its hole name and
+// derived values. It reads nothing from the store: a write reads the model
+// inside its transaction and derives after the commit, so the store's one
+// writer is not held while the uncertainty is computed.
+func (m *holeModel) view(ms domain.Measurement) MeasurementView {
+	return MeasurementView{Measurement: ms, Hole: m.name, Derived: m.derive(ms.Depth, ms.Alpha, ms.Beta, ms.Gamma, ms.ApparentThickness)}
 }

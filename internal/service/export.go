@@ -51,7 +51,7 @@ func (s *Service) exportMeasurements(ctx context.Context, st domain.Store, proje
 	cw := csvio.NewWriter(w)
 	cw.Strings(ExportColumns)
 	cw.EndRow()
-	d := newDeriver(st, p)
+	d := s.deriver(st, p)
 	var scratch []byte
 	var warn []string
 	var after int64
@@ -100,7 +100,7 @@ func (s *Service) exportMeasurements(ctx context.Context, st domain.Store, proje
 		// The deriver's cache of hole paths is dropped when it grows large, to
 		// bound memory; re-reading gives the same holes (one snapshot).
 		if len(d.models) > 256 {
-			d = newDeriver(st, p)
+			d = s.deriver(st, p)
 		}
 	}
 }

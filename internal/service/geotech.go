@@ -57,17 +57,18 @@ type SlopeQuery struct {
 // the statistics' row (fabricRow) with hole, depth and alpha. A row with a
 // hole direction and no plane (no beta, or a vertical hole) is unoriented,
 // the rule csvio applies to the files the commands read.
-func geotechRow(v MeasurementView) geotech.Row {
-	fr := fabricRow(v.TypeCode, v.Derived)
-	return geotech.Row{HoleID: v.Hole, Depth: v.Depth, Type: v.TypeCode, HasPlane: fr.HasPlane, Plane: fr.Plane,
-		HasHole: fr.HasHole, Hole: fr.Hole, Alpha: v.Alpha, Unoriented: !fr.HasPlane && fr.HasHole,
+func geotechRow(m domain.Measurement, hole string, fr fabric.Row) geotech.Row {
+	return geotech.Row{HoleID: hole, Depth: m.Depth, Type: m.TypeCode, HasPlane: fr.HasPlane, Plane: fr.Plane,
+		HasHole: fr.HasHole, Hole: fr.Hole, Alpha: m.Alpha, Unoriented: !fr.HasPlane && fr.HasHole,
 		NoAzimuth: fr.NoAzimuth, Error: fr.Error}
 }
 
 // geoInput derives the measurements passing q as the pipeline's input.
 func (s *Service) geoInput(ctx context.Context, projectID int64, q MeasurementQuery) (domain.Project, geotech.Input, error) {
 	var in geotech.Input
-	p, err := s.eachView(ctx, projectID, q, func(v MeasurementView) { in.Rows = append(in.Rows, geotechRow(v)) })
+	p, err := s.eachRow(ctx, projectID, q, nil, func(m domain.Measurement, hole string, r fabric.Row) {
+		in.Rows = append(in.Rows, geotechRow(m, hole, r))
+	})
 	return p, in, err
 }
 

@@ -53,7 +53,7 @@ func (s *Service) importDiscontinuities(ctx context.Context, st domain.Store, p 
 		return err
 	}
 	holes := newHoleNames(st, p.ID)
-	d := newDeriver(st, p)
+	d := s.deriver(st, p)
 	ps := &problems{file: res.File}
 	now := s.now()
 	var batch []domain.Measurement

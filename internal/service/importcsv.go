@@ -11,6 +11,7 @@ import (
 	"io"
 	"math"
 	"strings"
+	"sync"
 	"time"
 
 	"corvane/internal/csvio"
@@ -140,40 +141,68 @@ func (s *Service) Import(ctx context.Context, projectID int64, req ImportRequest
 			return res, err
 		}
 	}
-	err = s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
-		var err error
-		switch req.Kind {
-		case ImportCollars:
-			err = importCollars(ctx, st, p, body, &res)
-		case ImportSurveys:
-			err = importSurveys(ctx, st, p, body, &res)
-		case ImportRuns:
-			err = importRuns(ctx, st, p, body, &res)
-		case ImportMeasurements:
-			err = s.importMeasurements(ctx, st, p, a, body, dups, &res)
-		case ImportDiscontinuities:
-			err = s.importDiscontinuities(ctx, st, p, a, body, &res)
-		case ImportIntervals:
-			err = importIntervals(ctx, st, p, body, &res)
+	// A measurements file is checked and written outside the transaction,
+	// in batches of importBatch rows, each a short transaction of its own
+	// into an import batch whose rows nobody sees; the last transaction
+	// below shows them all at once (or, on any failure, the batch is
+	// dropped). A logger's single write waits for one batch, not for the
+	// whole file; nothing of a failed import is ever seen.
+	var staged *stagedImport
+	if req.Kind == ImportMeasurements && !req.DryRun {
+		staged = &stagedImport{st: s.store, project: projectID}
+		defer func() {
+			staged.wait() // an import that stopped early: its writer stops too
+			if staged.batch != 0 && !staged.committed {
+				// Best effort: a batch that cannot be dropped now stays
+				// invisible and is removed by a later import (StaleBatch).
+				_ = s.store.DropBatch(context.WithoutCancel(ctx), staged.batch)
+			}
+		}()
+		err = s.importMeasurements(ctx, s.store, p, a, body, dups, &res, staged)
+	}
+	if err == nil {
+		err = s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
+			var err error
+			switch req.Kind {
+			case ImportCollars:
+				err = importCollars(ctx, st, p, body, &res)
+			case ImportSurveys:
+				err = importSurveys(ctx, st, p, body, &res)
+			case ImportRuns:
+				err = importRuns(ctx, st, p, body, &res)
+			case ImportMeasurements:
+				if staged != nil {
+					err = staged.commit(ctx, st, &res)
+				} else {
+					err = s.importMeasurements(ctx, st, p, a, body, dups, &res, nil)
+				}
+			case ImportDiscontinuities:
+				err = s.importDiscontinuities(ctx, st, p, a, body, &res)
+			case ImportIntervals:
+				err = importIntervals(ctx, st, p, body, &res)
+			}
+			if err != nil {
+				return err
+			}
+			if req.DryRun {
+				return errDryRun
+			}
+			if err := audit(ctx, st, a, projectID, "import", res.File, domain.ActionCreate, nil, res); err != nil {
+				return err
+			}
+			if key == "" {
+				return nil
+			}
+			if _, err := io.Copy(io.Discard, body); err != nil {
+				return domain.Errorf(domain.Invalid, "%s: reading the body: %w", res.File, err)
+			}
+			out, _ := json.Marshal(res)
+			return st.PutIdempotency(ctx, domain.Idempotency{ProjectID: projectID, Key: key, RequestHash: sum(h), Result: out})
+		})
+		if err == nil && staged != nil {
+			staged.committed = true
 		}
-		if err != nil {
-			return err
-		}
-		if req.DryRun {
-			return errDryRun
-		}
-		if err := audit(ctx, st, a, projectID, "import", res.File, domain.ActionCreate, nil, res); err != nil {
-			return err
-		}
-		if key == "" {
-			return nil
-		}
-		if _, err := io.Copy(io.Discard, body); err != nil {
-			return domain.Errorf(domain.Invalid, "%s: reading the body: %w", res.File, err)
-		}
-		out, _ := json.Marshal(res)
-		return st.PutIdempotency(ctx, domain.Idempotency{ProjectID: projectID, Key: key, RequestHash: sum(h), Result: out})
-	})
+	}
 	if domain.IsKind(err, domain.PreconditionFailed) {
 		// An import takes no If-Match: a version check that failed inside it
 		// is a row another writer changed between the import's read and its
@@ -497,7 +526,11 @@ func parseLoggedAt(s string) (time.Time, bool) {
 	return time.Time{}, false
 }
 
-func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p domain.Project, a Actor, body io.Reader, dups string, res *ImportResult) error {
+// importMeasurements checks every row of a measurements file and writes the
+// good ones while no row is bad: into st in the caller's transaction, or,
+// with staged, into its import batch (each batch of rows a transaction of
+// its own), remembering the holes the rows belong to.
+func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p domain.Project, a Actor, body io.Reader, dups string, res *ImportResult, staged *stagedImport) error {
 	sr, err := csvio.NewStructureReader(body, res.File)
 	if err != nil {
 		return fileErr(res.File, err)
@@ -520,9 +553,17 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 			batch = batch[:0]
 			return nil
 		}
-		n, err := st.CreateMeasurements(ctx, batch)
+		var n int
+		var err error
+		if staged != nil {
+			// The writer owns the rows now; the next ones go into a new slice.
+			n, err = staged.stage(ctx, batch)
+			batch = make([]domain.Measurement, 0, importBatch)
+		} else {
+			n, err = st.CreateMeasurements(ctx, batch)
+			batch = batch[:0]
+		}
 		res.Created += n
-		batch = batch[:0]
 		return err
 	}
 	for {
@@ -634,12 +675,25 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 			}
 		}
 	}
+	if staged != nil {
+		// The last rows go in with the import's last transaction.
+		staged.rest = batch
+		batch = nil
+	}
 	if err := flush(); err != nil {
 		return err
+	}
+	if staged != nil {
+		if err := staged.wait(); err != nil {
+			return err
+		}
 	}
 	if err := ps.err(); err != nil {
 		res.Created = 0
 		return err
+	}
+	if staged != nil {
+		staged.holes = holes
 	}
 	return nil
 }
@@ -648,6 +702,113 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 // does not have, with what to do about it, the same for every import.
 func noHoleMsg(name string) string {
 	return fmt.Sprintf("no hole %q in the project (import its collar first)", name)
+}
+
+// stagedImport is a measurements import written into an import batch: each
+// full batch of importBatch rows in a transaction of its own, the last rows
+// with the import's last transaction. A file of one batch or less opens no
+// batch and is written in that one transaction. The batches are written by
+// a goroutine of their own, in order, while the next rows are read and
+// checked (one batch ahead at most), so reading and writing use both cores.
+type stagedImport struct {
+	st        domain.Store
+	project   int64
+	batch     int64                // 0 until the first full batch of rows
+	rest      []domain.Measurement // the rows of the last transaction
+	holes     *holeNames           // the holes the rows belong to, as read
+	committed bool
+
+	work   chan []domain.Measurement // batches for the writer; nil until the first
+	done   chan struct{}             // closed when the writer has stopped
+	mu     sync.Mutex
+	werr   error // the writer's first error
+	closed bool
+}
+
+// stage hands ms to the writer, opening the import batch and starting the
+// writer first. It returns the writer's error if it has failed.
+func (si *stagedImport) stage(ctx context.Context, ms []domain.Measurement) (int, error) {
+	if si.work == nil {
+		b, err := si.st.OpenBatch(ctx, si.project)
+		if err != nil {
+			return 0, err
+		}
+		si.batch = b
+		si.work, si.done = make(chan []domain.Measurement, 1), make(chan struct{})
+		go si.write(ctx)
+	}
+	if err := si.err(); err != nil {
+		return 0, err
+	}
+	si.work <- ms
+	return len(ms), nil
+}
+
+// write stages the batches in order until the work is closed; after an
+// error it stages nothing more.
+func (si *stagedImport) write(ctx context.Context) {
+	defer close(si.done)
+	for ms := range si.work {
+		if si.err() != nil {
+			continue
+		}
+		if _, err := si.st.StageMeasurements(ctx, si.batch, ms); err != nil {
+			si.mu.Lock()
+			si.werr = err
+			si.mu.Unlock()
+		}
+	}
+}
+
+func (si *stagedImport) err() error {
+	si.mu.Lock()
+	defer si.mu.Unlock()
+	return si.werr
+}
+
+// wait lets the writer finish the batches handed to it and returns its
+// error. It may be called more than once.
+func (si *stagedImport) wait() error {
+	if si.work == nil {
+		return nil
+	}
+	if !si.closed {
+		close(si.work)
+		si.closed = true
+	}
+	<-si.done
+	return si.err()
+}
+
+// commit writes the last rows and shows the batch's rows in the import's
+// last transaction st, after checking that no hole the rows belong to
+// changed or went while they were written (its final depth, say, or a
+// delete that took the rows with it): that is a clash, and nothing is
+// imported. It adds the last rows to res.Created.
+func (si *stagedImport) commit(ctx context.Context, st domain.Store, res *ImportResult) error {
+	for name, h := range si.holes.seen {
+		if h == nil {
+			continue
+		}
+		now, err := st.GetHole(ctx, h.ID)
+		if err != nil && !domain.IsKind(err, domain.NotFound) {
+			return err
+		}
+		if err != nil || now.Version != h.Version {
+			return domain.Errorf(domain.Conflict, "hole %s changed while its measurements were imported; nothing was imported: retry", name)
+		}
+	}
+	if len(si.rest) > 0 {
+		n, err := st.CreateMeasurements(ctx, si.rest)
+		res.Created += n
+		if err != nil {
+			return err
+		}
+	}
+	if si.batch == 0 {
+		return nil
+	}
+	return st.CommitBatch(ctx, si.batch)
 }
 
 // holeNames finds a project's holes by name for an import, asking the store

@@ -82,7 +82,8 @@ func checkMeasurement(m *domain.Measurement, h domain.Hole, vocab []domain.TypeC
 // CreateMeasurement logs a structure measurement (log). LoggedBy defaults to
 // the caller's name and LoggedAt to now.
 func (s *Service) CreateMeasurement(ctx context.Context, projectID int64, m domain.Measurement) (MeasurementView, error) {
-	var v MeasurementView
+	var hm *holeModel
+	var d *deriver
 	err := s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
 		p, a, err := s.project(ctx, st, projectID, domain.RoleLog)
 		if err != nil {
@@ -99,10 +100,15 @@ func (s *Service) CreateMeasurement(ctx context.Context, projectID int64, m doma
 		if err := s.addMeasurement(ctx, st, a, projectID, &m, h, vocab); err != nil {
 			return err
 		}
-		v, err = newDeriver(st, p).view(ctx, m)
+		d = s.deriver(st, p)
+		hm, err = d.model(ctx, m.HoleID)
 		return err
 	})
-	return v, err
+	if err != nil {
+		return MeasurementView{}, err
+	}
+	d.keep()
+	return hm.view(m), nil
 }
 
 // addMeasurement checks m against its hole h and the vocabulary, stores it
@@ -154,7 +160,7 @@ func (s *Service) GetMeasurement(ctx context.Context, projectID, id int64) (Meas
 	if err != nil {
 		return MeasurementView{}, err
 	}
-	return newDeriver(s.store, p).view(ctx, m)
+	return s.deriver(s.store, p).view(ctx, m)
 }
 
 // ListMeasurements returns one page of the measurements passing q, with
@@ -186,7 +192,7 @@ func (s *Service) ListMeasurements(ctx context.Context, projectID int64, q Measu
 	if err != nil {
 		return out, err
 	}
-	d := newDeriver(s.store, p)
+	d := s.deriver(s.store, p)
 	views := make([]MeasurementView, len(ms))
 	for i, m := range ms {
 		if views[i], err = d.view(ctx, m); err != nil {
@@ -212,7 +218,8 @@ func (s *Service) CountMeasurements(ctx context.Context, projectID int64, q Meas
 // another hole of the same project. An empty LoggedBy or zero LoggedAt keep
 // the stored ones.
 func (s *Service) UpdateMeasurement(ctx context.Context, projectID, id, ifVersion int64, m domain.Measurement) (MeasurementView, error) {
-	var v MeasurementView
+	var hm *holeModel
+	var d *deriver
 	err := s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
 		p, a, err := s.project(ctx, st, projectID, domain.RoleLog)
 		if err != nil {
@@ -249,10 +256,15 @@ func (s *Service) UpdateMeasurement(ctx context.Context, projectID, id, ifVersio
 		if err := audit(ctx, st, a, projectID, "measurement", id, domain.ActionUpdate, before, m); err != nil {
 			return err
 		}
-		v, err = newDeriver(st, p).view(ctx, m)
+		d = s.deriver(st, p)
+		hm, err = d.model(ctx, m.HoleID)
 		return err
 	})
-	return v, err
+	if err != nil {
+		return MeasurementView{}, err
+	}
+	d.keep()
+	return hm.view(m), nil
 }
 
 // DeleteMeasurement deletes a measurement (log).

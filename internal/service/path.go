@@ -68,7 +68,7 @@ func (s *Service) holePath(ctx context.Context, projectID, holeID int64, step fl
 	if _, err := hole(ctx, s.store, projectID, holeID); err != nil {
 		return nil, nil, err
 	}
-	m, err := newDeriver(s.store, p).model(ctx, holeID)
+	m, err := s.deriver(s.store, p).model(ctx, holeID)
 	if err != nil {
 		return nil, nil, err
 	}

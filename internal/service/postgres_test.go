@@ -49,6 +49,10 @@ func TestOnPostgres(t *testing.T) {
 		s, ctx := open(t)
 		checkDepthRules(t, s, ctx)
 	})
+	t.Run("WriteDuringImport", func(t *testing.T) {
+		s, ctx := open(t)
+		checkWriteDuringImport(t, s, ctx)
+	})
 	t.Run("ExportDuringImport", func(t *testing.T) {
 		s, ctx := open(t)
 		checkExportDuringImport(t, s, ctx)

@@ -47,7 +47,7 @@ func (s *Service) Preview(ctx context.Context, projectID, holeID int64, req Prev
 	if _, err := hole(ctx, s.store, projectID, holeID); err != nil {
 		return nil, err
 	}
-	m, err := newDeriver(s.store, p).model(ctx, holeID)
+	m, err := s.deriver(s.store, p).model(ctx, holeID)
 	if err != nil {
 		return nil, err
 	}

@@ -35,6 +35,8 @@ type Service struct {
 	store domain.Store
 	log   *slog.Logger
 	now   func() time.Time
+	// models keeps hole models between requests (see modelCache).
+	models *modelCache
 }
 
 // New returns a Service over st. A nil log discards.
@@ -42,7 +44,7 @@ func New(st domain.Store, log *slog.Logger) *Service {
 	if log == nil {
 		log = slog.New(slog.DiscardHandler)
 	}
-	return &Service{store: st, log: log, now: time.Now}
+	return &Service{store: st, log: log, now: time.Now, models: newModelCache()}
 }
 
 // Store returns the underlying store (for the composition root and tests).

@@ -5,12 +5,14 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"strings"
 
 	"corvane/internal/dirstat"
 	"corvane/internal/domain"
 	"corvane/internal/fabric"
 	"corvane/internal/geom"
+	"corvane/internal/holemodel"
 	"corvane/internal/netsvg"
 	"corvane/internal/projection"
 	"corvane/internal/structdomain"
@@ -71,20 +73,27 @@ func parseWeighting(s string) (fabric.Weighting, error) {
 	return w, optionErr(err)
 }
 
-// gather derives every measurement passing q and returns them as rows of
-// the statistics pipeline: a measurement whose derivation failed carries its
-// error, one in a vertical hole (a dip without a dip direction) is marked
-// so; package fabric decides what to do with them.
+// gather orients every measurement passing q and returns them as rows of
+// the statistics pipeline: a measurement whose orientation failed carries
+// its error, one in a vertical hole (a dip without a dip direction) is
+// marked so; package fabric decides what to do with them.
 func (s *Service) gather(ctx context.Context, projectID int64, q MeasurementQuery) (p domain.Project, in fabric.Input, err error) {
-	p, err = s.eachView(ctx, projectID, q, func(v MeasurementView) {
-		in.Rows = append(in.Rows, fabricRow(v.TypeCode, v.Derived))
-	})
+	p, err = s.eachRow(ctx, projectID, q, func(n int) { in.Rows = make([]fabric.Row, 0, n) },
+		func(_ domain.Measurement, _ string, r fabric.Row) { in.Rows = append(in.Rows, r) })
 	return p, in, err
 }
 
-// eachView derives every measurement passing q (read), at most
-// MaxStatsMeasurements, and hands each to fn in id order.
-func (s *Service) eachView(ctx context.Context, projectID int64, q MeasurementQuery, fn func(MeasurementView)) (p domain.Project, err error) {
+// eachRow orients every measurement passing q (read), at most
+// MaxStatsMeasurements, and hands each to fn in id order with its hole's
+// name and its row of the statistics pipeline; reserve, when not nil, is
+// first told how many rows to expect (the store's count, at most
+// MaxStatsMeasurements + 1), so that a caller gathering the rows allocates
+// once. The rows come straight from
+// the hole model's result: the statistics, nets, roses and geotechnical
+// reports need the planes, lines and hole directions only, not the rest of
+// the derived values (the 95% regions of each measurement, a Monte Carlo
+// run each, took most of a request's time).
+func (s *Service) eachRow(ctx context.Context, projectID int64, q MeasurementQuery, reserve func(n int), fn func(m domain.Measurement, hole string, r fabric.Row)) (p domain.Project, err error) {
 	p, _, err = s.project(ctx, s.store, projectID, domain.RoleRead)
 	if err != nil {
 		return
@@ -93,7 +102,14 @@ func (s *Service) eachView(ctx context.Context, projectID int64, q MeasurementQu
 	if err != nil {
 		return
 	}
-	d := newDeriver(s.store, p)
+	if reserve != nil {
+		var c int64
+		if c, err = s.store.CountMeasurements(ctx, f); err != nil {
+			return
+		}
+		reserve(int(min(c, MaxStatsMeasurements+1)))
+	}
+	d := s.deriver(s.store, p)
 	var after int64
 	n := 0
 	for {
@@ -102,7 +118,8 @@ func (s *Service) eachView(ctx context.Context, projectID int64, q MeasurementQu
 		if err != nil {
 			return
 		}
-		for i, m := range ms {
+		for i := range ms {
+			m := &ms[i]
 			if i%1024 == 0 && ctx.Err() != nil {
 				err = ctx.Err()
 				return
@@ -111,11 +128,12 @@ func (s *Service) eachView(ctx context.Context, projectID int64, q MeasurementQu
 				err = domain.Errorf(domain.Invalid, "more than %d measurements match: narrow the filter", MaxStatsMeasurements)
 				return
 			}
-			var v MeasurementView
-			if v, err = d.view(ctx, m); err != nil {
+			var hm *holeModel
+			if hm, err = d.model(ctx, m.HoleID); err != nil {
 				return
 			}
-			fn(v)
+			r, _, oerr := hm.orient(m.Depth, m.Alpha, m.Beta, m.Gamma, m.ApparentThickness)
+			fn(*m, hm.name, fabricRow(m.TypeCode, &r, oerr))
 			n++
 		}
 		if len(ms) < domain.MaxLimit {
@@ -125,23 +143,30 @@ func (s *Service) eachView(ctx context.Context, projectID int64, q MeasurementQu
 	}
 }
 
-// fabricRow is the pipeline's row for derived values dv.
-func fabricRow(typ string, dv Derived) fabric.Row {
-	r := fabric.Row{Type: typ, Error: dv.Error, Unoriented: dv.Unoriented}
-	if dv.Dip != nil && dv.DipDirection != nil {
-		r.HasPlane, r.Plane = true, geom.Plane{Dip: *dv.Dip, DipDirection: *dv.DipDirection}
-	} else if dv.Dip != nil {
-		r.NoAzimuth = true
+// fabricRow is the pipeline's row of a measurement of type typ oriented as
+// r, or not oriented for err. A value the orientation does not have (the dip
+// direction in a vertical hole) is NaN in r, as it is null in [Derived].
+func fabricRow(typ string, r *holemodel.Result, err error) fabric.Row {
+	if err != nil {
+		return fabric.Row{Type: typ, Error: err.Error()}
 	}
-	if dv.LineTrend != nil && dv.LinePlunge != nil {
-		r.HasLine, r.Line = true, geom.Line{Trend: *dv.LineTrend, Plunge: *dv.LinePlunge}
-	} else if dv.LinePlunge != nil {
-		r.NoAzimuth = true
+	row := fabric.Row{Type: typ, Unoriented: r.Unoriented}
+	if dip, dd := r.Plane.Dip, r.Plane.DipDirection; !math.IsNaN(dip) && !math.IsNaN(dd) {
+		row.HasPlane, row.Plane = true, r.Plane
+	} else if !math.IsNaN(dip) {
+		row.NoAzimuth = true
 	}
-	if dv.HoleAzimuth != nil && dv.HoleDip != nil {
-		r.HasHole, r.Hole = true, geom.HoleDirection(*dv.HoleAzimuth, *dv.HoleDip)
+	if r.HasLine {
+		if !math.IsNaN(r.Line.Trend) && !math.IsNaN(r.Line.Plunge) {
+			row.HasLine, row.Line = true, r.Line
+		} else if !math.IsNaN(r.Line.Plunge) {
+			row.NoAzimuth = true
+		}
 	}
-	return r
+	if !math.IsNaN(r.HoleAzimuth) && !math.IsNaN(r.HoleDip) {
+		row.HasHole, row.Hole = true, geom.HoleDirection(r.HoleAzimuth, r.HoleDip)
+	}
+	return row
 }
 
 // Statistics returns the statistics report of the measurements passing q
@@ -228,9 +253,9 @@ func (s *Service) Net(ctx context.Context, projectID int64, q NetQuery, w io.Wri
 		dom = &d
 		o.Part = &fabric.Part{Name: "domain " + d.Name}
 	}
-	in, err := s.sheetWith(ctx, projectID, q.MeasurementQuery, &o.Title, &o.Source, &o.AzimuthRef, func(v MeasurementView) {
+	in, err := s.sheetWith(ctx, projectID, q.MeasurementQuery, &o.Title, &o.Source, &o.AzimuthRef, func(m domain.Measurement, hole string) {
 		if dom != nil {
-			o.Part.Keep = append(o.Part.Keep, dom.Contains(v.Hole, v.Depth, ""))
+			o.Part.Keep = append(o.Part.Keep, dom.Contains(hole, m.Depth, ""))
 		}
 	})
 	if err != nil {
@@ -261,16 +286,17 @@ func (s *Service) sheet(ctx context.Context, projectID int64, q MeasurementQuery
 	return s.sheetWith(ctx, projectID, q, title, source, ref, nil)
 }
 
-// sheetWith is sheet that also hands each measurement to each (nil: none),
-// in the order of the input's rows.
-func (s *Service) sheetWith(ctx context.Context, projectID int64, q MeasurementQuery, title, source, ref *string, each func(MeasurementView)) (fabric.Input, error) {
+// sheetWith is sheet that also hands each measurement, with its hole's
+// name, to each (nil: none), in the order of the input's rows.
+func (s *Service) sheetWith(ctx context.Context, projectID int64, q MeasurementQuery, title, source, ref *string, each func(m domain.Measurement, hole string)) (fabric.Input, error) {
 	var in fabric.Input
-	p, err := s.eachView(ctx, projectID, q, func(v MeasurementView) {
-		in.Rows = append(in.Rows, fabricRow(v.TypeCode, v.Derived))
-		if each != nil {
-			each(v)
-		}
-	})
+	p, err := s.eachRow(ctx, projectID, q, func(n int) { in.Rows = make([]fabric.Row, 0, n) },
+		func(m domain.Measurement, hole string, r fabric.Row) {
+			in.Rows = append(in.Rows, r)
+			if each != nil {
+				each(m, hole)
+			}
+		})
 	if err != nil {
 		return in, err
 	}

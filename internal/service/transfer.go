@@ -50,7 +50,7 @@ func (s *Service) Transfer(ctx context.Context, projectID int64, q MeasurementQu
 		prog.Types = append(prog.Types, tc.Code)
 	}
 	prog.Styles = TypeStyles(vocab)
-	d := newDeriver(s.store, p)
+	d := s.deriver(s.store, p)
 	addHole := func(h domain.Hole) error {
 		m, err := d.model(ctx, h.ID)
 		if err != nil {

@@ -17,16 +17,19 @@
 ALTER TABLE holes ADD COLUMN global_id TEXT;
 UPDATE holes SET global_id = gen_random_uuid()::text;
 ALTER TABLE holes ALTER COLUMN global_id SET NOT NULL;
+ALTER TABLE holes ALTER COLUMN global_id SET DEFAULT gen_random_uuid()::text; -- rows loaded around the store
 CREATE UNIQUE INDEX holes_global_id ON holes (global_id);
 
 ALTER TABLE runs ADD COLUMN global_id TEXT;
 UPDATE runs SET global_id = gen_random_uuid()::text;
 ALTER TABLE runs ALTER COLUMN global_id SET NOT NULL;
+ALTER TABLE runs ALTER COLUMN global_id SET DEFAULT gen_random_uuid()::text; -- rows loaded around the store
 CREATE UNIQUE INDEX runs_global_id ON runs (global_id);
 
 ALTER TABLE measurements ADD COLUMN global_id TEXT;
 UPDATE measurements SET global_id = gen_random_uuid()::text;
 ALTER TABLE measurements ALTER COLUMN global_id SET NOT NULL;
+ALTER TABLE measurements ALTER COLUMN global_id SET DEFAULT gen_random_uuid()::text; -- rows loaded around the store
 CREATE UNIQUE INDEX measurements_global_id ON measurements (global_id);
 
 ALTER TABLE type_codes ADD COLUMN version BIGINT NOT NULL DEFAULT 1;

@@ -18,11 +18,11 @@ const (
 	insertMeasurement = `INSERT INTO measurements (project_id, hole_id, depth, alpha, beta, gamma, type_code,
 	apparent_thickness, comment, logged_by, logged_at, version, created_at, updated_at, global_id)
 	VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, 1, $12, $13, $14) RETURNING id`
-	selectMeasurement = `SELECT ` + measurementCols + ` FROM measurements WHERE id = $1`
+	selectMeasurement = `SELECT ` + measurementCols + ` FROM measurements WHERE id = $1 AND ` + visible
 	updateMeasurement = `UPDATE measurements SET hole_id = $1, depth = $2, alpha = $3, beta = $4, gamma = $5,
 	type_code = $6, apparent_thickness = $7, comment = $8, logged_by = $9, logged_at = $10,
-	version = version + 1, updated_at = $11 WHERE id = $12 AND version = $13 RETURNING version`
-	deleteMeasurement = `DELETE FROM measurements WHERE id = $1 AND version = $2`
+	version = version + 1, updated_at = $11 WHERE id = $12 AND version = $13 AND ` + visible + ` RETURNING version`
+	deleteMeasurement = `DELETE FROM measurements WHERE id = $1 AND version = $2 AND ` + visible
 )
 
 func scanMeasurement(r scanner) (domain.Measurement, error) {
@@ -41,7 +41,7 @@ func scanMeasurement(r scanner) (domain.Measurement, error) {
 func where(f domain.MeasurementFilter) (string, []any) {
 	var b strings.Builder
 	args := []any{f.ProjectID}
-	b.WriteString(" WHERE project_id = $1")
+	b.WriteString(" WHERE project_id = $1 AND " + visible)
 	add := func(cond string, v any) {
 		args = append(args, v)
 		fmt.Fprintf(&b, cond, len(args))
@@ -64,7 +64,6 @@ func where(f domain.MeasurementFilter) (string, []any) {
 	if f.LoggedTo != nil {
 		add(" AND logged_at <= $%d", *f.LoggedTo)
 	}
-
 	return b.String(), args
 }
 
@@ -86,26 +85,9 @@ func (s *Store) CreateMeasurement(ctx context.Context, m *domain.Measurement) er
 	return s.write(ctx, func(q querier) error { return insertOne(ctx, q, m, t) })
 }
 
-// Bulk load through a staging table: COPY the rows into a temporary table
-// of the transaction, then INSERT ... SELECT into measurements in the order
-// given (seq), so IDs follow the input order as they do on SQLite.
-const (
-	createStaging = `CREATE TEMP TABLE IF NOT EXISTS measurements_staging (
-	seq BIGINT, project_id BIGINT, hole_id BIGINT, depth DOUBLE PRECISION, alpha DOUBLE PRECISION, beta DOUBLE PRECISION,
-	gamma DOUBLE PRECISION, type_code TEXT, apparent_thickness DOUBLE PRECISION, comment TEXT, logged_by TEXT,
-	logged_at TIMESTAMPTZ, global_id TEXT) ON COMMIT DROP`
-	insertFromStaging = `INSERT INTO measurements (project_id, hole_id, depth, alpha, beta, gamma, type_code,
-	apparent_thickness, comment, logged_by, logged_at, version, created_at, updated_at, global_id)
-	SELECT project_id, hole_id, depth, alpha, beta, gamma, type_code, apparent_thickness, comment, logged_by,
-	logged_at, 1, $1, $1, global_id FROM measurements_staging ORDER BY seq`
-	truncateStaging = `TRUNCATE measurements_staging`
-)
-
-var stagingCols = []string{"seq", "project_id", "hole_id", "depth", "alpha", "beta", "gamma", "type_code",
-	"apparent_thickness", "comment", "logged_by", "logged_at", "global_id"}
-
-// CreateMeasurements bulk-loads ms by COPY into a staging table and one
-// INSERT ... SELECT, in one transaction. It does not set the IDs.
+// CreateMeasurements bulk-loads ms by COPY straight into measurements (IDs
+// follow the order of ms, as on SQLite), in one transaction. It does not set
+// the IDs.
 func (s *Store) CreateMeasurements(ctx context.Context, ms []domain.Measurement) (int, error) {
 	if len(ms) == 0 {
 		return 0, nil
@@ -113,41 +95,39 @@ func (s *Store) CreateMeasurements(ctx context.Context, ms []domain.Measurement)
 	t := storekit.Now()
 	var n int64
 	err := s.write(ctx, func(q querier) error {
-		if _, err := q.Exec(ctx, createStaging); err != nil {
-			return translate(err)
-		}
-		if _, err := q.Exec(ctx, truncateStaging); err != nil {
-			return translate(err)
-		}
-		i := 0
-		src := pgx.CopyFromFunc(func() ([]any, error) {
-			if i == len(ms) {
-				return nil, nil
-			}
-			m := &ms[i]
-			i++
-			m.LoggedAt = m.LoggedAt.UTC().Truncate(time.Microsecond)
-			m.GlobalID = storekit.GlobalID(m.GlobalID)
-			return []any{int64(i), m.ProjectID, m.HoleID, m.Depth, m.Alpha, m.Beta, m.Gamma, m.TypeCode,
-				m.ApparentThickness, m.Comment, m.LoggedBy, m.LoggedAt, m.GlobalID}, nil
-		})
-		if _, err := q.CopyFrom(ctx, pgx.Identifier{"measurements_staging"}, stagingCols, src); err != nil {
-			return translate(err)
-		}
-		tag, err := q.Exec(ctx, insertFromStaging, t)
-		if err != nil {
-			return translate(err)
-		}
-		n = tag.RowsAffected()
-		return nil
+		var err error
+		n, err = copyMeasurements(ctx, q, ms, t, nil)
+		return err
 	})
 	if err != nil {
 		return 0, err
 	}
+	return int(n), nil
+}
+
+// copyMeasurements COPYs ms into measurements at time t, in import batch
+// batch (nil: none, seen at once), and sets their versions and times.
+func copyMeasurements(ctx context.Context, q querier, ms []domain.Measurement, t time.Time, batch *int64) (int64, error) {
+	i := 0
+	src := pgx.CopyFromFunc(func() ([]any, error) {
+		if i == len(ms) {
+			return nil, nil
+		}
+		m := &ms[i]
+		i++
+		m.LoggedAt = m.LoggedAt.UTC().Truncate(time.Microsecond)
+		m.GlobalID = storekit.GlobalID(m.GlobalID)
+		return []any{m.ProjectID, m.HoleID, m.Depth, m.Alpha, m.Beta, m.Gamma, m.TypeCode,
+			m.ApparentThickness, m.Comment, m.LoggedBy, m.LoggedAt, int64(1), t, t, batch, m.GlobalID}, nil
+	})
+	n, err := q.CopyFrom(ctx, pgx.Identifier{"measurements"}, batchCols, src)
+	if err != nil {
+		return 0, translate(err)
+	}
 	for i := range ms {
 		ms[i].Version, ms[i].CreatedAt, ms[i].UpdatedAt = 1, t, t
 	}
-	return int(n), nil
+	return n, nil
 }
 
 // MeasurementsByGlobalID returns the measurements with the global ids, by
@@ -156,7 +136,7 @@ func (s *Store) MeasurementsByGlobalID(ctx context.Context, globalIDs []string) 
 	if len(globalIDs) == 0 {
 		return nil, nil
 	}
-	rows, err := s.read().Query(ctx, `SELECT `+measurementCols+` FROM measurements WHERE global_id = ANY($1)`, globalIDs)
+	rows, err := s.read().Query(ctx, `SELECT `+measurementCols+` FROM measurements WHERE global_id = ANY($1) AND `+visible, globalIDs)
 	if err != nil {
 		return nil, translate(err)
 	}

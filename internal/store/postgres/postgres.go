@@ -1,6 +1,7 @@
 // Package postgres implements the [domain.Store] contract on PostgreSQL
 // through a pgx/v5 connection pool, for deployments shared by a whole team.
-// Bulk measurement loads use COPY into a staging table.
+// Bulk measurement loads COPY straight into measurements (a long import in
+// import batches, see [Store.OpenBatch]).
 package postgres
 
 import (

@@ -3,6 +3,7 @@ package sqlite
 import (
 	"context"
 	"database/sql"
+	"slices"
 	"strings"
 	"time"
 
@@ -17,11 +18,11 @@ const (
 	insertMeasurement = `INSERT INTO measurements (project_id, hole_id, depth, alpha, beta, gamma, type_code,
 	apparent_thickness, comment, logged_by, logged_at, version, created_at, updated_at, global_id)
 	VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1, ?, ?, ?) RETURNING id`
-	selectMeasurement = `SELECT ` + measurementCols + ` FROM measurements WHERE id = ?`
+	selectMeasurement = `SELECT ` + measurementCols + ` FROM measurements WHERE id = ? AND ` + visible
 	updateMeasurement = `UPDATE measurements SET hole_id = ?, depth = ?, alpha = ?, beta = ?, gamma = ?,
 	type_code = ?, apparent_thickness = ?, comment = ?, logged_by = ?, logged_at = ?,
-	version = version + 1, updated_at = ? WHERE id = ? AND version = ? RETURNING version`
-	deleteMeasurement = `DELETE FROM measurements WHERE id = ? AND version = ?`
+	version = version + 1, updated_at = ? WHERE id = ? AND version = ? AND ` + visible + ` RETURNING version`
+	deleteMeasurement = `DELETE FROM measurements WHERE id = ? AND version = ? AND ` + visible
 )
 
 func scanMeasurement(r scanner) (domain.Measurement, error) {
@@ -39,7 +40,7 @@ func scanMeasurement(r scanner) (domain.Measurement, error) {
 func where(f domain.MeasurementFilter) (string, []any) {
 	var b strings.Builder
 	args := []any{f.ProjectID}
-	b.WriteString(" WHERE project_id = ?")
+	b.WriteString(" WHERE project_id = ? AND " + visible)
 	if len(f.HoleIDs) > 0 {
 		b.WriteString(" AND hole_id IN (?" + strings.Repeat(", ?", len(f.HoleIDs)-1) + ")")
 		for _, id := range f.HoleIDs {
@@ -68,7 +69,6 @@ func where(f domain.MeasurementFilter) (string, []any) {
 		b.WriteString(" AND logged_at <= ?")
 		args = append(args, micro(*f.LoggedTo))
 	}
-
 	return b.String(), args
 }
 
@@ -90,34 +90,104 @@ func (s *Store) CreateMeasurement(ctx context.Context, m *domain.Measurement) er
 	return s.write(ctx, func(q querier) error { return insertOne(ctx, q, m, t) })
 }
 
-// CreateMeasurements inserts all of ms in one transaction with a prepared
-// statement, setting their IDs.
+// CreateMeasurements inserts all of ms in one transaction, setting their
+// IDs (in the order of ms). Rows go in by multi-row INSERT statements of
+// insertRows rows, prepared once per call: one statement per row spent most
+// of its time in the driver's per-statement work.
 func (s *Store) CreateMeasurements(ctx context.Context, ms []domain.Measurement) (int, error) {
 	t := storekit.Now()
-	err := s.write(ctx, func(q querier) error {
-		tx := q.(*sql.Tx)
-		stmt, err := tx.PrepareContext(ctx, insertMeasurement)
-		if err != nil {
-			return translate(err)
-		}
-		defer stmt.Close()
-		for i := range ms {
-			m := &ms[i]
-			m.LoggedAt = m.LoggedAt.UTC().Truncate(time.Microsecond)
-			m.GlobalID = storekit.GlobalID(m.GlobalID)
-			err := stmt.QueryRowContext(ctx, m.ProjectID, m.HoleID, m.Depth, m.Alpha, storekit.NullFloat(m.Beta), storekit.NullFloat(m.Gamma),
-				m.TypeCode, storekit.NullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, micro(m.LoggedAt), micro(t), micro(t), m.GlobalID).Scan(&m.ID)
-			if err != nil {
-				return translate(err)
-			}
-			m.Version, m.CreatedAt, m.UpdatedAt = 1, t, t
-		}
-		return nil
-	})
+	err := s.write(ctx, func(q querier) error { _, _, err := insertMany(ctx, q.(*sql.Tx), ms, t, 0); return err })
 	if err != nil {
 		return 0, err
 	}
 	return len(ms), nil
+}
+
+// insertRows is the number of rows of one multi-row INSERT (16 values
+// each, well under SQLite's limit of 32,766 variables).
+const insertRows = 128
+
+// insertValues is the VALUES list of n measurement rows.
+func insertValues(n int) string {
+	const row = "(?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1, ?, ?, ?, ?)"
+	return strings.Repeat(row+", ", n-1) + row
+}
+
+const insertManyHead = `INSERT INTO measurements (project_id, hole_id, depth, alpha, beta, gamma, type_code,
+	apparent_thickness, comment, logged_by, logged_at, version, created_at, updated_at, batch, global_id) VALUES `
+
+var insertManyFull = insertManyHead + insertValues(insertRows) + ` RETURNING id`
+
+// insertMany inserts ms in tx at time t by multi-row INSERTs, in import
+// batch batch (0: none, visible at once), sets their IDs, versions and
+// times, and returns the least and greatest ID. SQLite hands out the
+// AUTOINCREMENT ids of one statement in increasing order as it inserts the
+// rows of its VALUES list in order, so the returned ids, sorted, belong to
+// the rows in order.
+func insertMany(ctx context.Context, tx *sql.Tx, ms []domain.Measurement, t time.Time, batch int64) (lo, hi int64, err error) {
+	var full *sql.Stmt
+	var bv any // NULL without a batch
+	if batch != 0 {
+		bv = batch
+	}
+	args := make([]any, 0, 14*insertRows)
+	ids := make([]int64, 0, insertRows)
+	ct := micro(t)
+	for len(ms) > 0 {
+		n := min(len(ms), insertRows)
+		chunk := ms[:n]
+		ms = ms[n:]
+		args = args[:0]
+		for i := range chunk {
+			m := &chunk[i]
+			m.LoggedAt = m.LoggedAt.UTC().Truncate(time.Microsecond)
+			m.GlobalID = storekit.GlobalID(m.GlobalID)
+			args = append(args, m.ProjectID, m.HoleID, m.Depth, m.Alpha, storekit.NullFloat(m.Beta), storekit.NullFloat(m.Gamma),
+				m.TypeCode, storekit.NullFloat(m.ApparentThickness), m.Comment, m.LoggedBy, micro(m.LoggedAt), ct, ct, bv, m.GlobalID)
+		}
+		var rows *sql.Rows
+		if n == insertRows {
+			if full == nil {
+				if full, err = tx.PrepareContext(ctx, insertManyFull); err != nil {
+					return 0, 0, translate(err)
+				}
+				defer full.Close()
+			}
+			rows, err = full.QueryContext(ctx, args...)
+		} else {
+			rows, err = tx.QueryContext(ctx, insertManyHead+insertValues(n)+` RETURNING id`, args...)
+		}
+		if err != nil {
+			return 0, 0, translate(err)
+		}
+		ids = ids[:0]
+		for rows.Next() {
+			var id int64
+			if err := rows.Scan(&id); err != nil {
+				rows.Close()
+				return 0, 0, translate(err)
+			}
+			ids = append(ids, id)
+		}
+		if err := rows.Close(); err != nil {
+			return 0, 0, translate(err)
+		}
+		if err := rows.Err(); err != nil {
+			return 0, 0, translate(err)
+		}
+		if len(ids) != n {
+			return 0, 0, domain.Errorf(domain.Internal, "sqlite: %d ids returned for %d rows", len(ids), n)
+		}
+		slices.Sort(ids)
+		for i := range chunk {
+			chunk[i].ID, chunk[i].Version, chunk[i].CreatedAt, chunk[i].UpdatedAt = ids[i], 1, t, t
+		}
+		if lo == 0 {
+			lo = ids[0]
+		}
+		hi = ids[n-1]
+	}
+	return lo, hi, nil
 }
 
 // MeasurementsByGlobalID returns the measurements with the global ids, by
@@ -130,7 +200,7 @@ func (s *Store) MeasurementsByGlobalID(ctx context.Context, globalIDs []string) 
 		for i, g := range part {
 			args[i] = g
 		}
-		rows, err := s.read().QueryContext(ctx, `SELECT `+measurementCols+` FROM measurements WHERE global_id IN (?`+strings.Repeat(", ?", len(part)-1)+`)`, args...)
+		rows, err := s.read().QueryContext(ctx, `SELECT `+measurementCols+` FROM measurements WHERE global_id IN (?`+strings.Repeat(", ?", len(part)-1)+`) AND `+visible, args...)
 		if err != nil {
 			return nil, translate(err)
 		}
@@ -158,7 +228,7 @@ func (s *Store) ListMeasurements(ctx context.Context, f domain.MeasurementFilter
 	if err != nil {
 		return nil, translate(err)
 	}
-	return collect(rows, scanMeasurement)
+	return collectCap(rows, scanMeasurement, page.Limit)
 }
 
 // ListMeasurementsByDepth lists the measurements that pass f in (depth, id)
@@ -175,7 +245,7 @@ func (s *Store) ListMeasurementsByDepth(ctx context.Context, f domain.Measuremen
 	if err != nil {
 		return nil, translate(err)
 	}
-	return collect(rows, scanMeasurement)
+	return collectCap(rows, scanMeasurement, page.Limit)
 }
 
 // CountMeasurements counts the measurements that pass f.

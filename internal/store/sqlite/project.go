@@ -123,8 +123,13 @@ func deleteVersioned(ctx context.Context, q querier, stmt, table, entity string,
 // collect scans every row with scan and closes rows. It never returns a nil
 // slice, so empty lists encode as [].
 func collect[T any](rows *sql.Rows, scan func(scanner) (T, error)) ([]T, error) {
+	return collectCap(rows, scan, 0)
+}
+
+// collectCap is collect with room for n rows made at once (a page's limit).
+func collectCap[T any](rows *sql.Rows, scan func(scanner) (T, error), n int) ([]T, error) {
 	defer rows.Close()
-	out := []T{}
+	out := make([]T, 0, n)
 	for rows.Next() {
 		v, err := scan(rows)
 		if err != nil {

@@ -67,8 +67,14 @@ func dsn(path string, immediate bool) string {
 	v.Add("_pragma", "journal_mode(WAL)")
 	v.Add("_pragma", "foreign_keys(1)")
 	v.Add("_pragma", "synchronous(NORMAL)")
+	// Statement journals (a multi-row INSERT keeps one) and temporary
+	// b-trees in memory rather than in temporary files.
+	v.Add("_pragma", "temp_store(MEMORY)")
 	if immediate {
 		v.Add("_txlock", "immediate")
+		// The writer keeps up to 32 MB of pages (default 2 MB), so a bulk
+		// import's inserts into the indexes find their pages in memory.
+		v.Add("_pragma", "cache_size(-32768)")
 	}
 	if strings.HasPrefix(path, "file:") {
 		if strings.Contains(path, "?") {
@@ -94,18 +100,19 @@ func Path(databaseURL string) string {
 // migrate; call [Migrate] first.
 func Open(ctx context.Context, path string) (*Store, error) {
 	path = Path(path)
-	w, err := sql.Open("sqlite", dsn(path, true))
+	wc, err := newConnector(dsn(path, true))
 	if err != nil {
 		return nil, fmt.Errorf("opening %s: %w", path, err)
 	}
+	rc, err := newConnector(dsn(path, false))
+	if err != nil {
+		return nil, fmt.Errorf("opening %s: %w", path, err)
+	}
+	w := sql.OpenDB(wc)
 	w.SetMaxOpenConns(1)
 	w.SetMaxIdleConns(1)
 	w.SetConnMaxLifetime(0)
-	r, err := sql.Open("sqlite", dsn(path, false))
-	if err != nil {
-		w.Close()
-		return nil, fmt.Errorf("opening %s: %w", path, err)
-	}
+	r := sql.OpenDB(rc)
 	n := max(4, runtime.GOMAXPROCS(0))
 	r.SetMaxOpenConns(n)
 	r.SetMaxIdleConns(n)

@@ -46,6 +46,8 @@ func Run(t *testing.T, newStore func(t *testing.T) domain.Store) {
 		{"ChangeLog", testChangeLog},
 		{"SyncState", testSyncState},
 		{"KindSetLog", testKindSetLog},
+		{"ImportBatches", testImportBatches},
+		{"ModelStamp", testModelStamp},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
@@ -989,4 +991,160 @@ func testCoreIntervals(t *testing.T, s domain.Store) {
 	if got, err = s.ListCoreIntervals(c, h.ID); err != nil || len(got) != 0 {
 		t.Errorf("intervals of a deleted hole: %+v %v", got, err)
 	}
+}
+
+// Rows staged into an import batch are seen by no read until the batch
+// commits, and then all at once; a dropped batch leaves nothing; a batch
+// that is gone cannot be committed or written to.
+func testImportBatches(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	p := newProject(t, s, "batches")
+	h := newHole(t, s, p.ID, "B1")
+	rows := func(n int, alpha float64) []domain.Measurement {
+		ms := make([]domain.Measurement, n)
+		for i := range ms {
+			ms[i] = domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: float64(1 + i%250), Alpha: alpha, Beta: f64(120),
+				TypeCode: "BD", LoggedAt: time.Date(2026, 3, 2, 0, 0, 0, 0, time.UTC)}
+		}
+		return ms
+	}
+	f := domain.MeasurementFilter{ProjectID: p.ID}
+	count := func(what string, want int64) {
+		t.Helper()
+		n, err := s.CountMeasurements(c, f)
+		must(t, err)
+		all := 0
+		var after int64
+		for {
+			ms, err := s.ListMeasurements(c, f, domain.Page{Limit: domain.MaxLimit, After: after})
+			must(t, err)
+			all += len(ms)
+			if len(ms) < domain.MaxLimit {
+				break
+			}
+			after = ms[len(ms)-1].ID
+		}
+		byDepth, err := s.ListMeasurementsByDepth(c, f, 0, domain.Page{Limit: domain.MaxLimit})
+		must(t, err)
+		if n != want || int64(all) != want || int64(len(byDepth)) != min(want, domain.MaxLimit) {
+			t.Fatalf("%s: count %d, listed %d, by depth %d; want %d", what, n, all, len(byDepth), want)
+		}
+	}
+	one := rows(1, 10)
+	must(t, s.CreateMeasurement(c, &one[0]))
+
+	b, err := s.OpenBatch(c, p.ID)
+	must(t, err)
+	for range 3 {
+		n, err := s.StageMeasurements(c, b, rows(400, 40))
+		must(t, err)
+		if n != 400 {
+			t.Fatalf("staged %d rows, want 400", n)
+		}
+		count("while staging", 1)
+	}
+	// A single write beside the open batch is seen at once.
+	two := rows(1, 20)
+	must(t, s.CreateMeasurement(c, &two[0]))
+	count("a write beside the batch", 2)
+	// A staged row cannot be read, changed or deleted by its id either.
+	staged := rows(1, 50)
+	_, err = s.StageMeasurements(c, b, staged)
+	must(t, err)
+	if staged[0].ID != 0 {
+		_, err := s.GetMeasurement(c, staged[0].ID)
+		wantKind(t, err, domain.NotFound, "get a staged row")
+		if err := s.DeleteMeasurement(c, staged[0].ID, 1); err == nil {
+			t.Fatal("deleted a staged row")
+		}
+	}
+	must(t, s.InTx(c, func(c context.Context, tx domain.Store) error { return tx.CommitBatch(c, b) }))
+	count("after commit", 2+1201)
+	wantKind(t, s.CommitBatch(c, b), domain.NotFound, "commit twice")
+	must(t, s.DropBatch(c, b)) // a committed batch is not dropped
+	count("drop after commit", 2+1201)
+
+	// A dropped batch leaves nothing, and is gone.
+	d, err := s.OpenBatch(c, p.ID)
+	must(t, err)
+	for range 3 {
+		_, err := s.StageMeasurements(c, d, rows(3000, 60))
+		must(t, err)
+	}
+	must(t, s.DropBatch(c, d))
+	count("after drop", 2+1201)
+	_, err = s.StageMeasurements(c, d, rows(1, 60))
+	wantKind(t, err, domain.NotFound, "stage into a dropped batch")
+	wantKind(t, s.CommitBatch(c, d), domain.NotFound, "commit a dropped batch")
+
+	// A failed commit (the import's last transaction rolls back) shows nothing.
+	e, err := s.OpenBatch(c, p.ID)
+	must(t, err)
+	_, err = s.StageMeasurements(c, e, rows(10, 70))
+	must(t, err)
+	failed := errors.New("the import's last step failed")
+	if err := s.InTx(c, func(c context.Context, tx domain.Store) error {
+		if err := tx.CommitBatch(c, e); err != nil {
+			return err
+		}
+		return failed
+	}); !errors.Is(err, failed) {
+		t.Fatalf("rolled back commit: %v", err)
+	}
+	count("after a rolled-back commit", 2+1201)
+	must(t, s.DropBatch(c, e))
+	count("after dropping it", 2+1201)
+}
+
+// The model stamp moves with every change of what a hole model is built
+// from, and with nothing else; another project's stamp stays.
+func testModelStamp(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	p := newProject(t, s, "stamps")
+	other := newProject(t, s, "stamps other")
+	stamp := func(pid int64) int64 {
+		t.Helper()
+		n, err := s.ModelStamp(c, pid)
+		must(t, err)
+		return n
+	}
+	otherAt := stamp(other.ID)
+	last := stamp(p.ID)
+	moved := func(what string, want bool) {
+		t.Helper()
+		now := stamp(p.ID)
+		if (now != last) != want {
+			t.Fatalf("%s: stamp %d -> %d, want moved %t", what, last, now, want)
+		}
+		last = now
+	}
+	h := newHole(t, s, p.ID, "M1")
+	moved("hole created", true)
+	h.Azimuth = 50
+	must(t, s.UpdateHole(c, &h, h.Version))
+	moved("collar changed", true)
+	ss := domain.SurveySet{HoleID: h.ID, AzimuthRef: "true", Stations: []domain.Station{st(0, 45, -60), st(50, 46.5, -59)}}
+	must(t, s.PutSurvey(c, &ss, 0))
+	moved("survey set", true)
+	ks := domain.KindSet{HoleID: h.ID, Kind: "gyro", Instrument: "gyro", AzimuthRef: "true", Stations: []domain.Station{st(0, 44, -60)}}
+	must(t, s.PutKindSet(c, &ks, 0))
+	moved("survey set by kind", true)
+	r := domain.Run{HoleID: h.ID, From: 0, To: 3, Confidence: "good"}
+	must(t, s.CreateRun(c, &r))
+	moved("run", true)
+	m := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: 10, Alpha: 40, Beta: f64(120), TypeCode: "BD", LoggedAt: time.Date(2026, 3, 2, 0, 0, 0, 0, time.UTC)}
+	must(t, s.CreateMeasurement(c, &m))
+	moved("measurement", false)
+	p.RefLine = "top"
+	must(t, s.UpdateProject(c, &p, p.Version))
+	moved("project setting", true)
+	must(t, s.DeleteRun(c, r.ID, r.Version))
+	moved("run deleted", true)
+	must(t, s.DeleteHole(c, h.ID, h.Version))
+	moved("hole deleted", true)
+	if stamp(other.ID) != otherAt {
+		t.Fatal("another project's stamp moved")
+	}
+	_, err := s.ModelStamp(c, 1<<40)
+	wantKind(t, err, domain.NotFound, "stamp of no project")
 }

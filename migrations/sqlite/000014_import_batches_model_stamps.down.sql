@@ -1,0 +1,26 @@
+DROP TRIGGER model_stamp_project_insert;
+DROP TRIGGER model_stamp_project_update;
+DROP TRIGGER model_stamp_project_delete;
+DROP TRIGGER model_stamp_holes_insert;
+DROP TRIGGER model_stamp_holes_update;
+DROP TRIGGER model_stamp_holes_delete;
+DROP TRIGGER model_stamp_survey_sets_insert;
+DROP TRIGGER model_stamp_survey_sets_update;
+DROP TRIGGER model_stamp_survey_sets_delete;
+DROP TRIGGER model_stamp_survey_stations_insert;
+DROP TRIGGER model_stamp_survey_stations_update;
+DROP TRIGGER model_stamp_survey_stations_delete;
+DROP TRIGGER model_stamp_kind_survey_sets_insert;
+DROP TRIGGER model_stamp_kind_survey_sets_update;
+DROP TRIGGER model_stamp_kind_survey_sets_delete;
+DROP TRIGGER model_stamp_kind_survey_stations_insert;
+DROP TRIGGER model_stamp_kind_survey_stations_update;
+DROP TRIGGER model_stamp_kind_survey_stations_delete;
+DROP TRIGGER model_stamp_runs_insert;
+DROP TRIGGER model_stamp_runs_update;
+DROP TRIGGER model_stamp_runs_delete;
+DROP TABLE model_stamps;
+-- Rows of imports that never committed go with their batches.
+DELETE FROM measurements WHERE batch IN (SELECT id FROM import_batches WHERE committed = 0);
+ALTER TABLE measurements DROP COLUMN batch;
+DROP TABLE import_batches;
