@@ -530,3 +530,25 @@ func TestSyncChosenHoles(t *testing.T) {
 		t.Errorf("an unknown hole: %v, want an error naming it", err)
 	}
 }
+
+// An import on the centre long enough to be written in several batches
+// (its rows hidden until the last commits) reaches a laptop whole.
+func TestSyncLongImport(t *testing.T) {
+	c := newCentral(t, true)
+	seedCentral(t, c)
+	l := newLaptop(t, "shed")
+	l.mustSync(t, c)
+	var b strings.Builder
+	b.WriteString("hole_id,depth,alpha,beta,type,comment\n")
+	const n = 12_001
+	for i := range n {
+		fmt.Fprintf(&b, "RB001,%.3f,%d,%d,JN,import %d\n", float64(i)*0.02, 10+i%70, i%360, i)
+	}
+	if _, err := c.svc.Import(admin, c.pid, service.ImportRequest{Kind: "measurements", Body: strings.NewReader(b.String())}); err != nil {
+		t.Fatal(err)
+	}
+	if rep := l.mustSync(t, c); rep.Pulled != n {
+		t.Errorf("pulled %d, want the %d imported", rep.Pulled, n)
+	}
+	sameStores(t, c, l)
+}
