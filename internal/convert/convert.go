@@ -5,7 +5,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"math"
 	"runtime"
 	"strings"
 
@@ -440,11 +439,18 @@ func (cv *converter) convert(b *batch, ms *uncertainty.Measurer) {
 		}
 		var u *uncertainty.Result
 		if !cv.hs.opt.NoUncertainty {
-			if ur, ok := last.Uncertainty(ms, cv.hs.opt.ErrorModel, &res, m.Measurement, "", math.NaN()); ok {
+			if ur, ok := last.Uncertainty(ms, cv.hs.opt.ErrorModel, &res, m.Measurement, row.RunConfidence, row.RunMismatch); ok {
 				u = &ur
 			}
 		}
-		b.tail = WriteResult(cw, &res, last.Hole, cv.thick, Warnings(&res, last.Hole), last.tail, b.tail, u)
+		warn := Warnings(&res, last.Hole)
+		if rw := RunWarning(row.RunConfidence); rw != "" {
+			if warn != "" {
+				warn += "; "
+			}
+			warn += rw
+		}
+		b.tail = WriteResult(cw, &res, last.Hole, cv.thick, warn, last.tail, b.tail, u)
 		cw.Empty() // error
 		cw.EndRow()
 	}
@@ -545,6 +551,19 @@ func writeEstimate(cw *csvio.Writer, e *uncertainty.Estimate) {
 func WriteError(cw *csvio.Writer, thick bool, msg string) {
 	writeEmpty(cw, len(OutputColumns(thick))-1)
 	cw.String(msg)
+}
+
+// RunWarning returns the warning for a measurement in an orientation run
+// rated confidence, "" when the rating needs none: every door that knows
+// the run adds it after [Warnings].
+func RunWarning(confidence string) string {
+	switch confidence {
+	case "none":
+		return "orientation run rated unusable"
+	case "poor":
+		return "orientation run rated poor"
+	}
+	return ""
 }
 
 // Warnings returns the warnings of result r on hole h as one text: the

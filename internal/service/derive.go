@@ -223,7 +223,7 @@ func newHoleModel(c Conventions, h domain.Hole, ss *domain.SurveySet, runs []dom
 
 // perMeasurement holds the normals of uncertainty.PerMeasurement, drawn
 // once; each request forks its own measurer from it.
-var perMeasurement = uncertainty.NewMeasurer(uncertainty.PerMeasurement)
+var perMeasurement = convert.NewMeasurer(false)
 
 // uncertainty returns the 95% regions of the measurement oriented as r (nil
 // when it has none), with the run covering its depth.
@@ -335,11 +335,8 @@ func (m *holeModel) runCovering(depth float64) *domain.Run {
 // when none) and warn with the run's warning added.
 func (m *holeModel) runAt(depth float64, warn []string) (string, []string) {
 	if r := m.runCovering(depth); r != nil {
-		switch r.Confidence {
-		case "none":
-			warn = append(warn, "orientation run rated unusable")
-		case "poor":
-			warn = append(warn, "orientation run rated poor")
+		if w := convert.RunWarning(r.Confidence); w != "" {
+			warn = append(warn, w)
 		}
 		return r.Confidence, warn
 	}
