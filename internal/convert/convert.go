@@ -80,13 +80,14 @@ const (
 	ColLineLong95        = "line_long95"
 	ColLineShort95       = "line_short95"
 	ColLineMethod        = "line_method"
+	ColSurveyInstrument  = "survey_instrument"
 	ColError             = "error"
 )
 
-// UncertaintyColumns are the columns of a measurement's 95% regions (see
-// [WriteResult]).
+// UncertaintyColumns are the columns of a measurement's 95% regions and the
+// survey instrument whose errors they carry (see [WriteResult]).
 var UncertaintyColumns = []string{ColPoleCone95, ColPoleLong95, ColPoleShort95, ColPoleMethod,
-	ColLineCone95, ColLineLong95, ColLineShort95, ColLineMethod}
+	ColLineCone95, ColLineLong95, ColLineShort95, ColLineMethod, ColSurveyInstrument}
 
 // OutputColumns returns the columns Convert appends to the input columns.
 func OutputColumns(thickness bool) []string {
@@ -493,7 +494,8 @@ func writeEmpty(cw *csvio.Writer, n int) {
 // is the hole's formatted correction columns ([AppendCorrections]); u is
 // the measurement's uncertainty (holemodel.Hole.Uncertainty), nil when it
 // has none (a vertical hole): the sizes of the region in use and which
-// method gave it; scratch is reused and returned.
+// method gave it, then the survey instrument ([SurveyInstrument]); scratch
+// is reused and returned.
 func WriteResult(cw *csvio.Writer, r *holemodel.Result, h *holemodel.Hole, thick bool, warn string, tail, scratch []byte, u *uncertainty.Result) []byte {
 	cw.Float(r.HoleAzimuth, angleDecimals)
 	cw.Float(r.HoleDip, angleDecimals)
@@ -529,7 +531,18 @@ func WriteResult(cw *csvio.Writer, r *holemodel.Result, h *holemodel.Hole, thick
 	}
 	writeEstimate(cw, ue)
 	writeEstimate(cw, le)
+	cw.String(string(SurveyInstrument(h)))
 	return scratch
+}
+
+// SurveyInstrument returns the instrument of the survey h is built from,
+// uncertainty.UnknownSurvey when none is given: the survey errors of the
+// uncertainty columns, and of the set statistics that read them back.
+func SurveyInstrument(h *holemodel.Hole) uncertainty.Instrument {
+	if h.In.Instrument == "" {
+		return uncertainty.UnknownSurvey
+	}
+	return h.In.Instrument
 }
 
 // writeEstimate writes the cone, long and short semi-axes of the region in

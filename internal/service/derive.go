@@ -75,6 +75,9 @@ type Derived struct {
 	LineLong95  *float64 `json:"line_long95"`
 	LineShort95 *float64 `json:"line_short95"`
 	LineMethod  string   `json:"line_method"`
+	// SurveyInstrument is the instrument of the survey in use, whose errors
+	// the regions carry: magnetic, gyro or unknown.
+	SurveyInstrument string `json:"survey_instrument"`
 	// Unoriented is true for a measurement without beta: the hole
 	// direction, position and angle to the core axis are known, the dip
 	// direction, strike, pole and line are null (the dip too, except in a
@@ -87,8 +90,13 @@ type Derived struct {
 	// no survey.
 	SurveySet string `json:"survey_set,omitempty"`
 	// RunConfidence is the confidence of the orientation run covering the
-	// depth, "" when no run covers it.
-	RunConfidence string `json:"run_confidence"`
+	// depth, "" when no run covers it; RunMismatch the mismatch logged for
+	// it (null when none) and RunFrom the depth where it starts (null when
+	// no run covers the depth): measurements with the same RunFrom in a
+	// hole share one mark error in the set statistics.
+	RunConfidence string   `json:"run_confidence"`
+	RunMismatch   *float64 `json:"run_mismatch"`
+	RunFrom       *float64 `json:"run_from"`
 	// Warnings are short phrases, e.g. "hole near vertical".
 	Warnings []string `json:"warnings"`
 	// Error explains why nothing could be computed.
@@ -317,7 +325,11 @@ func (m *holeModel) derived(depth float64, r *holemodel.Result, err error, u *un
 			d.LineCone95, d.LineLong95, d.LineShort95, d.LineMethod = &g.Cone95, &g.Long95, &g.Short95, u.Line.Used
 		}
 	}
+	d.SurveyInstrument = string(convert.SurveyInstrument(m.Hole))
 	d.RunConfidence, d.Warnings = m.runAt(depth, d.Warnings)
+	if run := m.runCovering(depth); run != nil {
+		d.RunMismatch, d.RunFrom = run.Mismatch, &run.From
+	}
 	return d
 }
 
