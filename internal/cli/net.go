@@ -12,6 +12,7 @@ import (
 	"corvane/internal/netsvg"
 	"corvane/internal/projection"
 	"corvane/internal/structdomain"
+	"corvane/internal/uncertainty"
 )
 
 func init() {
@@ -90,7 +91,7 @@ func runNet(_ context.Context, env *Env, args []string) int {
 		dom = &d
 	}
 	readOpt := csvio.OrientationOptions{Geotech: dom != nil} // the rock type, read as corvane domains reads it
-	oi, err := loadOrientationsWith(env, c.in, c.typ, readOpt)
+	oi, err := loadOrientationsWith(env, c.in, c.typ, readOpt, uncertainty.Model{})
 	if err != nil {
 		return fail(err)
 	}

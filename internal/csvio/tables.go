@@ -55,6 +55,7 @@ const (
 	ColMismatch        = "mismatch"
 	ColRunConfidence   = "run_confidence"
 	ColRunMismatch     = "run_mismatch"
+	ColRunFrom         = "run_from"
 )
 
 // aliases are other names a header may give a column: the JSON field's
