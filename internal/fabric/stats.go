@@ -284,8 +284,8 @@ type Report struct {
 	// nil when it was not asked for.
 	Uncertainty *UncertaintyNote `json:"measurement_uncertainty,omitempty"`
 	Planes      *Group           `json:"planes,omitempty"`
-	Lines        *Group         `json:"lines,omitempty"`
-	Caution      string         `json:"caution"`
+	Lines       *Group           `json:"lines,omitempty"`
+	Caution     string           `json:"caution"`
 }
 
 // Options are the options of [Stats].
