@@ -269,6 +269,9 @@ func TestStatsNetRoseEqualAtEveryDoor(t *testing.T) {
 		{"net", "", ""},
 		{"net", "--projection equal-angle --show poles,planes,lines,sets --sets type --sets-on both", "projection=equal-angle&show=poles,planes,lines,sets&sets=type&sets_on=both"},
 		{"net", "--sets auto:4 --density kamb --units sigma --grid 80 --weighting terzaghi", "sets=auto:4&density=kamb&units=sigma&grid=80&weighting=terzaghi"},
+		// The uncertainty regions, with the project's error model at both doors.
+		{"net", "--regions all --sets type --show poles,lines,sets --error-model " + model, "regions=all&sets=type&show=poles,lines,sets"},
+		{"net", "--regions cone:12 --show poles --error-model " + model, "regions=cone:12&show=poles"},
 		{"rose", "", ""},
 		{"rose", "--of strike --bin 15 --min-dip 30", "of=strike&bin=15&min_dip=30"},
 		{"rose", "--of trend --weighting terzaghi", "of=trend&weighting=terzaghi"},
@@ -295,6 +298,14 @@ func TestStatsNetRoseEqualAtEveryDoor(t *testing.T) {
 		}
 		if !strings.Contains(sheetText(route), "3 rows left out: "+fabric.SkipNoDipDirection) {
 			t.Errorf("%s %q: the sheet does not count the rows without a dip direction", c.cmd, c.cli)
+		}
+		if strings.Contains(c.cli, "--regions") {
+			if n := bytes.Count(route, []byte("<title>pole ")); n < 20 {
+				t.Errorf("%s %q: %d pole regions drawn", c.cmd, c.cli, n)
+			}
+			if strings.HasPrefix(c.cli, "--regions all") && !bytes.Contains(route, []byte("<title>line ")) {
+				t.Errorf("%s %q: no line regions", c.cmd, c.cli)
+			}
 		}
 	}
 }

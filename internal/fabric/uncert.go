@@ -101,23 +101,38 @@ func (e *Errors) runKey() string {
 }
 
 // member is the uncertainty member of a used row with a plane, ok false
-// when the row lacks a hole direction or errors, or lies in a vertical
-// hole.
+// when it has no reading.
 func member(r Row) (uncertainty.Member, bool) {
-	if r.Errors == nil || !r.HasHole || !r.HasPlane {
+	rd, ok := reading(r, false)
+	if !ok {
 		return uncertainty.Member{}, false
+	}
+	return uncertainty.Member{Reading: rd, Run: r.Errors.runKey(), Survey: r.Errors.HoleID}, true
+}
+
+// reading returns the reading of a used row with a plane (and its line
+// when it has one and withLine), ok false when the row lacks a hole
+// direction or errors, or lies in a vertical hole. The core angles are
+// those the plane (and line) make with the hole, under one fixed
+// convention: the errors act the same whatever convention was logged (a
+// turn about the core axis, a change of the angle to it, a turn on the
+// plane, a turn of the hole), so the figures do not depend on it.
+func reading(r Row, withLine bool) (uncertainty.Reading, bool) {
+	if r.Errors == nil || !r.HasHole || !r.HasPlane {
+		return uncertainty.Reading{}, false
 	}
 	h := r.Hole.Unit()
-	// The core angles the plane makes with the hole, under one fixed
-	// convention: the errors act the same whatever convention was logged
-	// (a turn about the core axis, a change of the angle to it, a turn of
-	// the hole), so the figures do not depend on it.
 	a, b, w := coreangle.Angles(h, r.Plane, coreangle.Convention{})
 	if w.Has(coreangle.Vertical) || math.IsNaN(b) {
-		return uncertainty.Member{}, false
+		return uncertainty.Reading{}, false
 	}
-	return uncertainty.Member{Reading: uncertainty.Reading{Hole: h, Alpha: a, Beta: b, Gamma: math.NaN(), Sigma: r.Errors.Sigma},
-		Run: r.Errors.runKey(), Survey: r.Errors.HoleID}, true
+	rd := uncertainty.Reading{Hole: h, Alpha: a, Beta: b, Gamma: math.NaN(), Sigma: r.Errors.Sigma}
+	if withLine && r.HasLine {
+		if g, err := coreangle.Gamma(h, r.Plane, r.Line, coreangle.Convention{}); err == nil {
+			rd.Gamma = g
+		}
+	}
+	return rd, true
 }
 
 // setUncertainty returns the measurement uncertainty of the poles of the

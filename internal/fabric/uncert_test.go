@@ -1,9 +1,14 @@
 package fabric
 
 import (
+	"errors"
 	"math"
 	"math/rand/v2"
+	"strings"
 	"testing"
+
+	"corvane/internal/netsvg"
+	"corvane/internal/projection"
 
 	"corvane/internal/geom"
 	"corvane/internal/uncertainty"
@@ -98,5 +103,110 @@ func TestSetMeasurementUncertainty(t *testing.T) {
 		if d := geom.AxialAngle(geom.FromTrendPlunge(res.Pole.Trend, res.Pole.Plunge), r.Plane.Normal()); d > 1e-9 {
 			t.Fatalf("row %d: pole off by %g deg", i, d)
 		}
+	}
+}
+
+func TestParseRegions(t *testing.T) {
+	for s, want := range map[string]Regions{"": {}, "none": {}, "all": {All: true}, "type:JN": {Type: "JN"}, "cone:12.5": {Cone: 12.5}} {
+		if got, err := ParseRegions(s); err != nil || got != want {
+			t.Errorf("%q: %+v %v", s, got, err)
+		}
+	}
+	for _, s := range []string{"some", "type:", "cone:0", "cone:95", "cone:x"} {
+		var oe *OptionError
+		if _, err := ParseRegions(s); !errors.As(err, &oe) || oe.Option != "regions" {
+			t.Errorf("%q: %v", s, err)
+		}
+	}
+}
+
+// The net draws the selected measurements' 95% regions: one outline per
+// pole, in its set's colour, enclosing the pole, reaching out to the
+// region's long semi-axis and in to its short one (the figures of the
+// convert output's pole_long95 and pole_short95); a type or cone selection
+// draws only those, and rows without a hole direction are counted.
+func TestNetRegions(t *testing.T) {
+	rows := uncRows(true, "poor")
+	for i := range rows[:10] {
+		rows[i].Type = "BD"
+	}
+	rows[12].HasHole = false
+	net := func(sel string) ([]netsvg.RegionMark, string) {
+		r, err := ParseRegions(sel)
+		if err != nil {
+			t.Fatal(err)
+		}
+		n, err := Net(Input{Rows: rows}, NetOptions{Show: Show{Poles: true, Sets: true}, Sets: Sets{ByType: true}, Regions: r})
+		if err != nil {
+			t.Fatal(err)
+		}
+		return n.Regions, n.RegionsNote
+	}
+	all, note := net("all")
+	if len(all) != 29 || !strings.Contains(note, "29 measurements") || !strings.Contains(note, "1 without a hole direction") {
+		t.Fatalf("all: %d regions, note %q", len(all), note)
+	}
+	ms := uncertainty.NewMeasurer(uncertainty.PerMeasurement)
+	k, closedN := 0, 0
+	for i, r := range rows {
+		if !r.HasHole {
+			continue
+		}
+		reg := all[k]
+		k++
+		if want := map[bool]int{true: 0, false: 1}[i < 10]; reg.Set != want {
+			t.Errorf("row %d: region in set %d, want %d", i, reg.Set, want)
+		}
+		rd, _ := reading(r, false)
+		res, _ := ms.Measure(rd)
+		g := res.Pole.Region()
+		pole := r.Plane.Normal()
+		lo, hi := 180.0, 0.0
+		for _, v := range reg.Outline {
+			d := geom.AxialAngle(v, pole)
+			lo, hi = math.Min(lo, d), math.Max(hi, d)
+		}
+		if math.Abs(hi-g.Long95) > 0.03*g.Long95 || math.Abs(lo-g.Short95) > 0.03*g.Long95 {
+			t.Errorf("row %d: outline from %.2f to %.2f deg of the pole, region %.2f x %.2f", i, lo, hi, g.Long95, g.Short95)
+		}
+		// The pole inside the drawn polygon (even-odd rule on the net),
+		// for a region below the horizontal.
+		parts, closed := projection.EqualArea.Loop(reg.Outline)
+		if !closed {
+			continue
+		}
+		p := projection.EqualArea.Project(pole)
+		in := false
+		poly := parts[0]
+		for a := range poly {
+			b := (a + 1) % len(poly)
+			if (poly[a].Y > p.Y) != (poly[b].Y > p.Y) && p.X < poly[a].X+(p.Y-poly[a].Y)*(poly[b].X-poly[a].X)/(poly[b].Y-poly[a].Y) {
+				in = !in
+			}
+		}
+		if !in {
+			t.Errorf("row %d: the pole lies outside its drawn region", i)
+		}
+		closedN++
+	}
+	if closedN < 20 {
+		t.Errorf("only %d regions below the horizontal", closedN)
+	}
+	if bd, _ := net("type:bd"); len(bd) != 10 {
+		t.Errorf("type:bd: %d regions", len(bd))
+	}
+	if none, note := net("cone:89"); len(none) != 0 || !strings.Contains(note, "0 measurements") {
+		t.Errorf("cone:89: %d regions, %q", len(none), note)
+	}
+	if some, _ := net("cone:1"); len(some) != 29 {
+		t.Errorf("cone:1: %d regions, want every one", len(some))
+	}
+	var b strings.Builder
+	n, _ := Net(Input{Rows: rows}, NetOptions{Show: Show{Poles: true}, Regions: Regions{All: true}})
+	if err := netsvg.WriteNet(&b, n); err != nil {
+		t.Fatal(err)
+	}
+	if g := b.String(); !strings.Contains(g, `<g id="regions"`) || strings.Count(g, "<title>pole ") != 29 {
+		t.Errorf("SVG: %d region paths", strings.Count(g, "<title>pole "))
 	}
 }

@@ -813,7 +813,8 @@ func (s *Server) net(c *gin.Context) {
 		return
 	}
 	q := service.NetQuery{MeasurementQuery: mq, SetQuery: sq, Weighting: c.Query("weighting"), Projection: c.Query("projection"),
-		Show: c.Query("show"), Density: c.Query("density"), Units: c.Query("units"), Title: c.Query("title"), Domain: c.Query("domain")}
+		Show: c.Query("show"), Density: c.Query("density"), Units: c.Query("units"), Title: c.Query("title"), Domain: c.Query("domain"),
+		Regions: c.Query("regions")}
 	if ds := c.QueryArray("domain"); len(ds) > 1 {
 		fail(c, domain.FieldErr("domain", "a net draws one domain; got %d (ask once per domain)", len(ds)))
 		return

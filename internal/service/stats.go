@@ -245,6 +245,9 @@ type NetQuery struct {
 	// the filter, only the domain's drawn. Stored measurements carry no rock
 	// type, so a domain of rock types draws nothing.
 	Domain string
+	// Regions selects the measurements whose 95% uncertainty regions are
+	// drawn (fabric.ParseRegions), with the project's error model.
+	Regions string
 }
 
 // Net writes the SVG net of the measurements passing q to w (read), from
@@ -270,6 +273,9 @@ func (s *Service) Net(ctx context.Context, projectID int64, q NetQuery, w io.Wri
 	}
 	if o.Weighting, err = parseWeighting(q.Weighting); err != nil {
 		return err
+	}
+	if o.Regions, err = fabric.ParseRegions(q.Regions); err != nil {
+		return optionErr(err)
 	}
 	var dom *structdomain.Domain
 	if q.Domain != "" {

@@ -164,14 +164,26 @@ func (e *Estimate) InRegion(v geom.Vec3) bool {
 // Boundary returns n points around the elongated region in use, lower
 // hemisphere, for drawing on a net.
 func (e *Estimate) Boundary(n int) []geom.Line {
+	out := make([]geom.Line, n)
+	for i, v := range e.Outline(n) {
+		out[i] = geom.LineOf(v)
+	}
+	return out
+}
+
+// Outline returns n unit vectors (world frame) around the elongated region
+// in use, continuous around it: a region that crosses the horizontal keeps
+// its points on one side of the measured direction's end instead of
+// folding them to the lower hemisphere (see [Estimate.Boundary]).
+func (e *Estimate) Outline(n int) []geom.Vec3 {
 	r := e.Region()
 	a, b, th := r.axes()
-	out := make([]geom.Line, n)
+	out := make([]geom.Vec3, n)
 	st, ct := math.Sincos(th)
 	for i := range out {
 		s, c := math.Sincos(2 * math.Pi * float64(i) / float64(n))
 		x, y := a*c, b*s
-		out[i] = geom.LineOf(e.cs.world(e.cs.inv(x*ct-y*st, x*st+y*ct)))
+		out[i] = e.cs.world(e.cs.inv(x*ct-y*st, x*st+y*ct))
 	}
 	return out
 }
