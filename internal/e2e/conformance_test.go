@@ -370,6 +370,12 @@ func convertCLI(t *testing.T, dir string, flags []string) []map[string]string {
 // convertJSON sends the programme to POST /v1/convert, built from the same
 // CSV files as the command line reads them.
 func convertJSON(t *testing.T, s *server, pg programme, collars, surveys, structures string) []map[string]string {
+	return convertJSONWith(t, s, pg, collars, surveys, structures, nil)
+}
+
+// convertJSONWith is convertJSON with further top-level fields of the
+// request.
+func convertJSONWith(t *testing.T, s *server, pg programme, collars, surveys, structures string, extra map[string]any) []map[string]string {
 	t.Helper()
 	crows, err := csvio.ReadCollars(strings.NewReader(collars), "collars.csv")
 	if err != nil {
@@ -432,7 +438,11 @@ func convertJSON(t *testing.T, s *server, pg programme, collars, surveys, struct
 			Derived map[string]any `json:"derived"`
 		} `json:"results"`
 	}
-	s.mustJSON(t, 200, "POST", "/v1/convert", map[string]any{"conventions": conv, "collars": cs, "surveys": ss, "measurements": ms}, &resp)
+	body := map[string]any{"conventions": conv, "collars": cs, "surveys": ss, "measurements": ms}
+	for k, v := range extra {
+		body[k] = v
+	}
+	s.mustJSON(t, 200, "POST", "/v1/convert", body, &resp)
 	out := make([]map[string]string, len(resp.Results))
 	for i, r := range resp.Results {
 		out[i] = fromJSON(r.Derived)
@@ -608,6 +618,28 @@ func TestConformanceFiveDoors(t *testing.T) {
 			same(t, "preview route", f, previewRoute(t, lite, f.prog, f.collars, f.surveys, f.structures, f.runs))
 		})
 	}
+	// The Monte Carlo for every row, when asked: the same at both doors
+	// that take the request, and the same figures as by default wherever
+	// the method in use stays first order.
+	t.Run("monte-carlo", func(t *testing.T) {
+		f := fixtures[0]
+		dir := t.TempDir()
+		for name, text := range map[string]string{"collars.csv": f.collars, "surveys.csv": f.surveys, "structures.csv": f.structures} {
+			if err := os.WriteFile(filepath.Join(dir, name), []byte(text), 0o644); err != nil {
+				t.Fatal(err)
+			}
+		}
+		cli := convertCLI(t, dir, append(append([]string{}, f.prog.flags...), "--monte-carlo"))
+		same(t, "POST /v1/convert monte_carlo", fixture{prog: f.prog, rows: f.rows, cli: cli},
+			convertJSONWith(t, lite, f.prog, f.collars, f.surveys, f.structures, map[string]any{"monte_carlo": true}))
+		for i := range cli {
+			for _, c := range []string{convert.ColPoleCone95, convert.ColPoleLong95, convert.ColLineCone95, convert.ColLineLong95} {
+				if cli[i][convert.ColPoleMethod] == "first-order" && cli[i][convert.ColLineMethod] != "monte-carlo" && cli[i][c] != f.cli[i][c] {
+					t.Errorf("row %d: %s %q with --monte-carlo, %q by default", i+1, c, cli[i][c], f.cli[i][c])
+				}
+			}
+		}
+	})
 	t.Run("postgres", func(t *testing.T) {
 		pg := siteServer(t, pgtest.DB(t))
 		for _, f := range fixtures {
