@@ -351,6 +351,7 @@ func setReport(name string, vs []geom.Vec3, ws []float64, planes bool, unc func(
 
 func groupReport(g *group, used []Row, withUnc bool) *Group {
 	planes := g.kind == kindPlanes
+	budget := MaxUncertaintyPoles
 	unc := func(j int) func() *SetUncertainty {
 		if !withUnc || !planes {
 			return nil
@@ -362,7 +363,7 @@ func groupReport(g *group, used []Row, withUnc bool) *Group {
 					idx = append(idx, r)
 				}
 			}
-			return setUncertainty(used, idx)
+			return setUncertainty(used, idx, &budget)
 		}
 	}
 	jg := &Group{Count: len(g.axes)}

@@ -38,10 +38,14 @@ func RowErrors(em uncertainty.Model, holeID, instrument, confidence string, mism
 }
 
 // Set uncertainty settings: the Monte Carlo trials of each set and their
-// seed (fixed, so every door gives the same figures).
+// seed (fixed, so every door gives the same figures), and the poles one
+// report may carry through them in all (sets in report order: all, then
+// each set), which bounds its time to a few seconds of CPU (about a quarter
+// of a microsecond per pole and trial); a set past the budget says so.
 const (
-	SetDraws = 1000
-	SetSeed  = 12
+	SetDraws            = 1000
+	SetSeed             = 12
+	MaxUncertaintyPoles = 20000
 )
 
 // SetUncertaintyMethod describes the measurement uncertainty of the sets.
@@ -136,8 +140,15 @@ func reading(r Row, withLine bool) (uncertainty.Reading, bool) {
 }
 
 // setUncertainty returns the measurement uncertainty of the poles of the
-// used rows idx.
-func setUncertainty(rows []Row, idx []int) *SetUncertainty {
+// used rows idx; budget is the poles the report may still carry, reduced
+// by this set's.
+func setUncertainty(rows []Row, idx []int, budget *int) *SetUncertainty {
+	if len(idx) > *budget {
+		nan := Num(math.NaN())
+		return &SetUncertainty{N: 0, Left: len(idx), Fisher95: nan, Measurement95: nan, Shared95: nan, Combined95: nan,
+			Note: fmt.Sprintf("not computed: a report carries the measurement errors of at most %d poles in all (narrow the selection, or turn the uncertainty off)", MaxUncertaintyPoles)}
+	}
+	*budget -= len(idx)
 	var ms []uncertainty.Member
 	left := 0
 	for _, i := range idx {

@@ -79,6 +79,14 @@ func TestSetMeasurementUncertainty(t *testing.T) {
 	if u := stats(rows, true).Uncertainty; u.N != 28 || u.Left != 2 || u.Note == "" {
 		t.Errorf("two rows without errors: %+v", u)
 	}
+	// A report carries at most MaxUncertaintyPoles poles through the
+	// Monte Carlo in all: a set past that says so (here with a budget
+	// spent by the sets before it).
+	budget := 25
+	first, second := setUncertainty(rows, []int{0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 13, 14, 15, 16, 17, 18, 19, 20}, &budget), setUncertainty(rows, []int{20, 21, 22, 23, 24, 25}, &budget)
+	if first.N != 18 || first.Left != 2 || budget != 5 || second.N != 0 || !strings.Contains(second.Note, "not computed") || !math.IsNaN(float64(second.Measurement95)) {
+		t.Errorf("budget: first %+v, second %+v, left %d", first, second, budget)
+	}
 	// The same figures as uncertainty.SetMean of the members read off the
 	// hole: the pipeline adds no rule of its own to the engine.
 	var ms []uncertainty.Member

@@ -180,6 +180,7 @@ func (s *Service) Convert(ctx context.Context, req ConvertRequest) (ConvertRespo
 				hm.runs = append(hm.runs, run)
 			}
 			r.Derived = hm.derive(dm.Depth, dm.Alpha, dm.Beta, dm.Gamma, dm.ApparentThickness)
+			r.Derived.RunFrom = nil // the request names no run start
 		}
 		resp.Results[i] = r
 	}

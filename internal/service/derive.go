@@ -92,8 +92,9 @@ type Derived struct {
 	// RunConfidence is the confidence of the orientation run covering the
 	// depth, "" when no run covers it; RunMismatch the mismatch logged for
 	// it (null when none) and RunFrom the depth where it starts (null when
-	// no run covers the depth): measurements with the same RunFrom in a
-	// hole share one mark error in the set statistics.
+	// no run covers the depth, and in POST /v1/convert, which names no run
+	// start): measurements with the same RunFrom in a hole share one mark
+	// error in the set statistics.
 	RunConfidence string   `json:"run_confidence"`
 	RunMismatch   *float64 `json:"run_mismatch"`
 	RunFrom       *float64 `json:"run_from"`
