@@ -58,11 +58,12 @@ Weighting:
                                  Goodman 1976). Weighted and unweighted results are shown
                                  side by side. Lines are not weighted.
 
-Measurement uncertainty (--uncertainty on, the default): each set of planes also gets
-"measurement_uncertainty": the 95% cone of its mean pole moved by the measurement errors
-(Monte Carlo, 1,000 seeded trials: alpha and beta readings drawn per measurement, one
-mark error per orientation run and one survey error per hole, shared by their
-measurements) beside the classical Fisher cone, the two combined, and which dominates.
+Measurement uncertainty (--uncertainty on, the default): each set of planes and of lines
+also gets "measurement_uncertainty": the 95% cone of its mean moved by the measurement
+errors (Monte Carlo, 1,000 seeded trials: alpha, beta and, for lines, gamma readings drawn
+per measurement, one mark error per orientation run and one survey error per hole, shared
+by their measurements) beside the classical Fisher cone, the two combined, and which
+dominates; a line needs its plane on the row; at most 20,000 axes per report.
 The errors come from --error-model (defaults of common practice otherwise) and the
 columns corvane convert and the export write or carry: hole_id, hole_azimuth, hole_dip,
 survey_instrument (unknown when absent), run_confidence and run_mismatch (an unrated
@@ -220,7 +221,7 @@ func runStats(_ context.Context, env *Env, args []string) int {
 	var c orientFlags
 	c.register(fs, true)
 	fs.StringVar(&c.of, "of", "both", "planes, lines or both (those present)")
-	uncFlag := fs.String("uncertainty", "on", "on: each set of planes carries the measurement errors into the cone of its mean pole (Monte Carlo, beside the Fisher cone); off: not")
+	uncFlag := fs.String("uncertainty", "on", "on: each set carries the measurement errors into the cone of its mean (Monte Carlo, beside the Fisher cone); off: not")
 	emPath := fs.String("error-model", "", "error model JSON for the measurement uncertainty (fields as in the README; absent fields take the defaults)")
 	fail, code, done := parseOrientArgs(env, fs, "stats", args)
 	if done {

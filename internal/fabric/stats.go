@@ -242,7 +242,7 @@ type Set struct {
 	Unweighted *Summary `json:"unweighted,omitempty"`
 	Weighted   *Summary `json:"weighted,omitempty"`
 	// Uncertainty carries the measurement errors into the cone of the mean
-	// pole, beside the Fisher cone (planes, with the uncertainty option).
+	// pole or line, beside the Fisher cone (with the uncertainty option).
 	Uncertainty *SetUncertainty `json:"measurement_uncertainty,omitempty"`
 	Note        string          `json:"note,omitempty"`
 }
@@ -294,7 +294,7 @@ type Options struct {
 	Sets      Sets
 	Weighting Weighting
 	// Uncertainty carries the rows' measurement errors (Row.Errors, built
-	// with ErrorModel by [RowErrors]) into each set of planes; see
+	// with ErrorModel by [RowErrors]) into each set; see
 	// [ParseUncertainty].
 	Uncertainty bool
 	ErrorModel  uncertainty.Model
@@ -349,11 +349,10 @@ func setReport(name string, vs []geom.Vec3, ws []float64, planes bool, unc func(
 	return js
 }
 
-func groupReport(g *group, used []Row, withUnc bool) *Group {
+func groupReport(g *group, used []Row, withUnc bool, budget *int) *Group {
 	planes := g.kind == kindPlanes
-	budget := MaxUncertaintyPoles
 	unc := func(j int) func() *SetUncertainty {
-		if !withUnc || !planes {
+		if !withUnc {
 			return nil
 		}
 		return func() *SetUncertainty {
@@ -363,7 +362,7 @@ func groupReport(g *group, used []Row, withUnc bool) *Group {
 					idx = append(idx, r)
 				}
 			}
-			return setUncertainty(used, idx, &budget)
+			return setUncertainty(used, idx, !planes, budget)
 		}
 	}
 	jg := &Group{Count: len(g.axes)}
@@ -430,14 +429,15 @@ func Stats(in Input, o Options) (Report, error) {
 	if err != nil {
 		return Report{}, err
 	}
+	budget := MaxUncertaintyPoles
 	if of != kindLines && len(planes.axes) > 0 {
-		rep.Planes = groupReport(planes, used, o.Uncertainty)
-		if o.Uncertainty {
-			rep.Uncertainty = uncertaintyNote(o.ErrorModel)
-		}
+		rep.Planes = groupReport(planes, used, o.Uncertainty, &budget)
 	}
 	if of != kindPlanes && len(lines.axes) > 0 {
-		rep.Lines = groupReport(lines, used, false)
+		rep.Lines = groupReport(lines, used, o.Uncertainty, &budget)
+	}
+	if o.Uncertainty && (rep.Planes != nil || rep.Lines != nil) {
+		rep.Uncertainty = uncertaintyNote(o.ErrorModel)
 	}
 	return rep, nil
 }

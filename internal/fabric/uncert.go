@@ -45,17 +45,18 @@ func RowErrors(em uncertainty.Model, holeID, instrument, confidence string, mism
 const (
 	SetDraws            = 1000
 	SetSeed             = 12
-	MaxUncertaintyPoles = 20000
+	MaxUncertaintyPoles = 20000 // poles and lines
 )
 
 // SetUncertaintyMethod describes the measurement uncertainty of the sets.
-const SetUncertaintyMethod = "Monte Carlo over each set's poles (uncertainty.SetMean): per trial, alpha and beta " +
+const SetUncertaintyMethod = "Monte Carlo over each set's poles or lines (uncertainty.SetMean, SetMeanLines): per trial, alpha and beta " +
 	"readings drawn per measurement, one mark error per orientation run (measurements of a hole with the same " +
 	"run_from) and one survey azimuth and dip error per hole, shared by their measurements; the errors of the " +
 	"error model below, by the row's survey_instrument, run_confidence and run_mismatch. measurement_cone95: the " +
 	"95% cone of the mean moved by the measurement errors; fisher_cone95: the classical exact cone of Fisher (1953) " +
 	"from the scatter; combined_cone95: both, without counting twice what the scatter already shows; dominant says " +
-	"which of fisher_cone95 and measurement_cone95 is larger. Poles of planes only; unweighted"
+	"which of fisher_cone95 and measurement_cone95 is larger. Unweighted; for sets of lines the gamma reading is drawn " +
+	"too, and a line needs its plane (a line logged alone has no core angles to perturb)"
 
 // ParseUncertainty reads the uncertainty option: "" or "on" (the set
 // statistics carry the measurement errors), "off".
@@ -71,8 +72,8 @@ func ParseUncertainty(s string) (bool, error) {
 
 // SetUncertainty is the measurement uncertainty of one set's mean pole.
 type SetUncertainty struct {
-	// N counts the poles with their errors (a hole direction and Errors);
-	// Left those without, left out of it.
+	// N counts the poles (or lines) with their errors (a hole direction and
+	// Errors; a line its plane too); Left those without, left out of it.
 	N             int    `json:"n"`
 	Left          int    `json:"left_out,omitempty"`
 	Fisher95      Num    `json:"fisher_cone95"`
@@ -104,11 +105,11 @@ func (e *Errors) runKey() string {
 	return e.HoleID + "\x00" + strconv.FormatFloat(e.RunFrom, 'g', -1, 64)
 }
 
-// member is the uncertainty member of a used row with a plane, ok false
-// when it has no reading.
-func member(r Row) (uncertainty.Member, bool) {
-	rd, ok := reading(r, false)
-	if !ok {
+// member is the uncertainty member of a used row with a plane (and, for
+// lines, a lineation on it), ok false when it has no reading.
+func member(r Row, lines bool) (uncertainty.Member, bool) {
+	rd, ok := reading(r, lines)
+	if !ok || lines && math.IsNaN(rd.Gamma) {
 		return uncertainty.Member{}, false
 	}
 	return uncertainty.Member{Reading: rd, Run: r.Errors.runKey(), Survey: r.Errors.HoleID}, true
@@ -139,10 +140,10 @@ func reading(r Row, withLine bool) (uncertainty.Reading, bool) {
 	return rd, true
 }
 
-// setUncertainty returns the measurement uncertainty of the poles of the
-// used rows idx; budget is the poles the report may still carry, reduced
-// by this set's.
-func setUncertainty(rows []Row, idx []int, budget *int) *SetUncertainty {
+// setUncertainty returns the measurement uncertainty of the poles (or, with
+// lines, the lineations) of the used rows idx; budget is the axes the
+// report may still carry, reduced by this set's.
+func setUncertainty(rows []Row, idx []int, lines bool, budget *int) *SetUncertainty {
 	if len(idx) > *budget {
 		nan := Num(math.NaN())
 		return &SetUncertainty{N: 0, Left: len(idx), Fisher95: nan, Measurement95: nan, Shared95: nan, Combined95: nan,
@@ -152,7 +153,7 @@ func setUncertainty(rows []Row, idx []int, budget *int) *SetUncertainty {
 	var ms []uncertainty.Member
 	left := 0
 	for _, i := range idx {
-		if m, ok := member(rows[i]); ok {
+		if m, ok := member(rows[i], lines); ok {
 			ms = append(ms, m)
 		} else {
 			left++
@@ -162,16 +163,24 @@ func setUncertainty(rows []Row, idx []int, budget *int) *SetUncertainty {
 	nan := Num(math.NaN())
 	su.Fisher95, su.Measurement95, su.Shared95, su.Combined95 = nan, nan, nan, nan
 	if left > 0 {
-		su.Note = fmt.Sprintf("%d of %d poles without a hole direction or errors left out", left, len(idx))
+		what := "poles without a hole direction or errors"
+		if lines {
+			what = "lines without a plane, a hole direction or errors"
+		}
+		su.Note = fmt.Sprintf("%d of %d %s left out", left, len(idx), what)
 	}
 	if len(ms) < 2 {
 		if su.Note != "" {
 			su.Note += "; "
 		}
-		su.Note += "fewer than 2 poles with their errors"
+		su.Note += "fewer than 2 with their errors"
 		return su
 	}
-	res, err := uncertainty.SetMean(ms, uncertainty.MC{Draws: SetDraws, Seed: SetSeed})
+	mean := uncertainty.SetMean
+	if lines {
+		mean = uncertainty.SetMeanLines
+	}
+	res, err := mean(ms, uncertainty.MC{Draws: SetDraws, Seed: SetSeed})
 	if err != nil {
 		su.Note = err.Error()
 		return su

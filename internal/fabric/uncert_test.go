@@ -83,7 +83,7 @@ func TestSetMeasurementUncertainty(t *testing.T) {
 	// Monte Carlo in all: a set past that says so (here with a budget
 	// spent by the sets before it).
 	budget := 25
-	first, second := setUncertainty(rows, []int{0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 13, 14, 15, 16, 17, 18, 19, 20}, &budget), setUncertainty(rows, []int{20, 21, 22, 23, 24, 25}, &budget)
+	first, second := setUncertainty(rows, []int{0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 13, 14, 15, 16, 17, 18, 19, 20}, false, &budget), setUncertainty(rows, []int{20, 21, 22, 23, 24, 25}, false, &budget)
 	if first.N != 18 || first.Left != 2 || budget != 5 || second.N != 0 || !strings.Contains(second.Note, "not computed") || !math.IsNaN(float64(second.Measurement95)) {
 		t.Errorf("budget: first %+v, second %+v, left %d", first, second, budget)
 	}
@@ -91,7 +91,7 @@ func TestSetMeasurementUncertainty(t *testing.T) {
 	// hole: the pipeline adds no rule of its own to the engine.
 	var ms []uncertainty.Member
 	for _, r := range uncRows(true, "poor") {
-		m, ok := member(r)
+		m, ok := member(r, false)
 		if !ok {
 			t.Fatal("member")
 		}
@@ -216,5 +216,43 @@ func TestNetRegions(t *testing.T) {
 	}
 	if g := b.String(); !strings.Contains(g, `<g id="regions"`) || strings.Count(g, "<title>pole ") != 29 {
 		t.Errorf("SVG: %d region paths", strings.Count(g, "<title>pole "))
+	}
+}
+
+// Sets of lines carry the measurement errors too (gamma drawn besides alpha
+// and beta): the figures of uncertainty.SetMeanLines of the members read
+// off the hole, plane and line; a line logged without its plane is left out
+// and counted.
+func TestLineSetMeasurementUncertainty(t *testing.T) {
+	rows := uncRows(true, "fair")
+	for i := range rows {
+		rows[i].HasLine, rows[i].Line = true, geom.Line{Trend: rows[i].Plane.DipDirection, Plunge: rows[i].Plane.Dip}
+	}
+	rows[3].HasPlane = false // a line alone
+	rep, err := Stats(Input{Rows: rows}, Options{Uncertainty: true})
+	if err != nil {
+		t.Fatal(err)
+	}
+	u := rep.Lines.All.Uncertainty
+	if u == nil || u.N != 29 || u.Left != 1 || !strings.Contains(u.Note, "without a plane") {
+		t.Fatalf("lines: %+v", u)
+	}
+	var ms []uncertainty.Member
+	for i, r := range rows {
+		if i == 3 {
+			continue
+		}
+		m, ok := member(r, true)
+		if !ok {
+			t.Fatalf("row %d: no member", i)
+		}
+		if res, _ := uncertainty.Measure(m.Reading, uncertainty.MC{}); geom.AxialAngle(geom.FromTrendPlunge(res.Line.Trend, res.Line.Plunge), r.Line.Vec()) > 1e-9 {
+			t.Fatalf("row %d: the member's line is not the row's", i)
+		}
+		ms = append(ms, m)
+	}
+	res, err := uncertainty.SetMeanLines(ms, uncertainty.MC{Draws: SetDraws, Seed: SetSeed})
+	if err != nil || Num(res.Combined95) != u.Combined95 || Num(res.Fisher95) != u.Fisher95 || res.Dominant != u.Dominant {
+		t.Errorf("SetMeanLines %+v %v, pipeline %+v", res, err, u)
 	}
 }

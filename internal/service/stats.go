@@ -41,7 +41,7 @@ type StatsQuery struct {
 	SetQuery
 	Of        string // "both" (default), "planes" or "lines"
 	Weighting string // "", "none", "terzaghi" or "terzaghi:CAP"
-	// Uncertainty is "" or "on" (the sets of planes carry the measurement
+	// Uncertainty is "" or "on" (the sets carry the measurement
 	// errors of the project's error model) or "off": fabric.ParseUncertainty.
 	Uncertainty string
 }
