@@ -202,7 +202,7 @@ func TestStatsNetRoseEqualAtEveryDoor(t *testing.T) {
 		// Type codes match without regard to case at both doors (the
 		// demo's vocabulary says "joint").
 		{"--type JOINT --sets auto:2", "type=JOINT&sets=auto:2"},
-		{"--sets type --uncertainty off", "sets=type&uncertainty=off"},
+		{"--sets type --uncertainty=false", "sets=type&uncertainty=false"},
 	}
 	for _, c := range statsCases {
 		args := append([]string{"stats", "--in", in, "--error-model", model}, strings.Fields(c.cli)...)
@@ -231,7 +231,7 @@ func TestStatsNetRoseEqualAtEveryDoor(t *testing.T) {
 		planes, _ := cli["planes"].(map[string]any)
 		all, _ := planes["all"].(map[string]any)
 		mu, has := all["measurement_uncertainty"].(map[string]any)
-		if off := strings.Contains(c.cli, "off"); has == off {
+		if off := strings.Contains(c.cli, "--uncertainty=false"); has == off {
 			t.Errorf("stats %q: measurement_uncertainty %v", c.cli, all["measurement_uncertainty"])
 		} else if !off {
 			if mu["dominant"] != "sampling" && mu["dominant"] != "measurement" {

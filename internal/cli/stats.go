@@ -27,7 +27,7 @@ func init() {
 const statsUsage = `Usage:
   corvane stats --in FILE [--sets auto:N|type | --set NAME:TREND/PLUNGE:CONE ...]
                 [--sets-on planes|lines|both] [--weighting terzaghi[:CAP]] [--type TYPE]
-                [--of planes|lines|both] [--uncertainty on|off] [--error-model M.json]
+                [--of planes|lines|both] [--uncertainty=false] [--error-model M.json]
                 [-o OUT.json]
 
 Reads planes (columns dip, dip_direction) and/or lines (line_trend, line_plunge) from a
@@ -58,7 +58,7 @@ Weighting:
                                  Goodman 1976). Weighted and unweighted results are shown
                                  side by side. Lines are not weighted.
 
-Measurement uncertainty (--uncertainty on, the default): each set of planes and of lines
+Measurement uncertainty (on unless --uncertainty=false): each set of planes and of lines
 also gets "measurement_uncertainty": the 95% cone of its mean moved by the measurement
 errors (Monte Carlo, 1,000 seeded trials: alpha, beta and, for lines, gamma readings drawn
 per measurement, one mark error per orientation run and one survey error per hole, shared
@@ -221,15 +221,11 @@ func runStats(_ context.Context, env *Env, args []string) int {
 	var c orientFlags
 	c.register(fs, true)
 	fs.StringVar(&c.of, "of", "both", "planes, lines or both (those present)")
-	uncFlag := fs.String("uncertainty", "on", "on: each set carries the measurement errors into the cone of its mean (Monte Carlo, beside the Fisher cone); off: not")
+	unc := fs.Bool("uncertainty", true, "each set carries the measurement errors into the cone of its mean (Monte Carlo, beside the Fisher cone); --uncertainty=false: not")
 	emPath := fs.String("error-model", "", "error model JSON for the measurement uncertainty (fields as in the README; absent fields take the defaults)")
 	fail, code, done := parseOrientArgs(env, fs, "stats", args)
 	if done {
 		return code
-	}
-	unc, err := fabric.ParseUncertainty(*uncFlag)
-	if err != nil {
-		return fail(err)
 	}
 	em, err := readErrorModel(*emPath)
 	if err != nil {
@@ -246,7 +242,7 @@ func runStats(_ context.Context, env *Env, args []string) int {
 	if err != nil {
 		return fail(err)
 	}
-	rep, err := fabric.Stats(oi.in, fabric.Options{Of: c.of, Sets: so, Weighting: w, Uncertainty: unc, ErrorModel: em})
+	rep, err := fabric.Stats(oi.in, fabric.Options{Of: c.of, Sets: so, Weighting: w, Uncertainty: *unc, ErrorModel: em})
 	if err != nil {
 		return fail(err)
 	}

@@ -58,16 +58,18 @@ const SetUncertaintyMethod = "Monte Carlo over each set's poles or lines (uncert
 	"which of fisher_cone95 and measurement_cone95 is larger. Unweighted; for sets of lines the gamma reading is drawn " +
 	"too, and a line needs its plane (a line logged alone has no core angles to perturb)"
 
-// ParseUncertainty reads the uncertainty option: "" or "on" (the set
-// statistics carry the measurement errors), "off".
+// ParseUncertainty reads the uncertainty option: "" (the default) or a
+// true value (strconv.ParseBool: the set statistics carry the measurement
+// errors), or a false one.
 func ParseUncertainty(s string) (bool, error) {
-	switch s {
-	case "", "on":
+	if s == "" {
 		return true, nil
-	case "off":
-		return false, nil
 	}
-	return false, optErr("uncertainty", s, "want on or off")
+	b, err := strconv.ParseBool(s)
+	if err != nil {
+		return false, optErr("uncertainty", s, "want true or false")
+	}
+	return b, nil
 }
 
 // SetUncertainty is the measurement uncertainty of one set's mean pole.
@@ -147,7 +149,7 @@ func setUncertainty(rows []Row, idx []int, lines bool, budget *int) *SetUncertai
 	if len(idx) > *budget {
 		nan := Num(math.NaN())
 		return &SetUncertainty{N: 0, Left: len(idx), Fisher95: nan, Measurement95: nan, Shared95: nan, Combined95: nan,
-			Note: fmt.Sprintf("not computed: a report carries the measurement errors of at most %d poles in all (narrow the selection, or turn the uncertainty off)", MaxUncertaintyPoles)}
+			Note: fmt.Sprintf("not computed: a report carries the measurement errors of at most %d poles in all (narrow the selection, or ask for uncertainty=false)", MaxUncertaintyPoles)}
 	}
 	*budget -= len(idx)
 	var ms []uncertainty.Member

@@ -256,3 +256,15 @@ func TestLineSetMeasurementUncertainty(t *testing.T) {
 		t.Errorf("SetMeanLines %+v %v, pipeline %+v", res, err, u)
 	}
 }
+
+func TestParseUncertainty(t *testing.T) {
+	for s, want := range map[string]bool{"": true, "true": true, "1": true, "false": false, "0": false} {
+		if got, err := ParseUncertainty(s); err != nil || got != want {
+			t.Errorf("%q: %v %v", s, got, err)
+		}
+	}
+	var oe *OptionError
+	if _, err := ParseUncertainty("off"); !errors.As(err, &oe) || oe.Option != "uncertainty" {
+		t.Errorf("off: %v", err)
+	}
+}

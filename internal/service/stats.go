@@ -41,8 +41,8 @@ type StatsQuery struct {
 	SetQuery
 	Of        string // "both" (default), "planes" or "lines"
 	Weighting string // "", "none", "terzaghi" or "terzaghi:CAP"
-	// Uncertainty is "" or "on" (the sets carry the measurement
-	// errors of the project's error model) or "off": fabric.ParseUncertainty.
+	// Uncertainty is "" or "true" (the sets carry the measurement errors of
+	// the project's error model) or "false": fabric.ParseUncertainty.
 	Uncertainty string
 }
 
