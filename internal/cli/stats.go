@@ -63,7 +63,7 @@ also gets "measurement_uncertainty": the 95% cone of its mean moved by the measu
 errors (Monte Carlo, 1,000 seeded trials: alpha, beta and, for lines, gamma readings drawn
 per measurement, one mark error per orientation run and one survey error per hole, shared
 by their measurements) beside the classical Fisher cone, the two combined, and which
-dominates; a line needs its plane on the row; at most 20,000 axes per report.
+dominates; a line needs its plane on the row; at most 5,000 axes per report.
 The errors come from --error-model (defaults of common practice otherwise) and the
 columns corvane convert and the export write or carry: hole_id, hole_azimuth, hole_dip,
 survey_instrument (unknown when absent), run_confidence and run_mismatch (an unrated

@@ -45,7 +45,7 @@ func RowErrors(em uncertainty.Model, holeID, instrument, confidence string, mism
 const (
 	SetDraws            = 1000
 	SetSeed             = 12
-	MaxUncertaintyPoles = 20000 // poles and lines
+	MaxUncertaintyPoles = 5000 // poles and lines
 )
 
 // SetUncertaintyMethod describes the measurement uncertainty of the sets.
