@@ -54,16 +54,20 @@ hole_azimuth, hole_dip, easting, northing, elevation, dip, dip_direction, strike
 line_trend, line_plunge, warnings, pole_trend, pole_plunge, [true_thickness],
 azimuth_reference, declination, declination_source, grid_convergence,
 convergence_source, pole_cone95, pole_long95, pole_short95, pole_method,
-line_cone95, line_long95, line_short95, line_method, error.
+line_cone95, line_long95, line_short95, line_method, survey_instrument, error.
 
-The last eight before error are how sure each orientation is: the 95% region of the
-pole and of the lineation (the cone's half-angle and the elongated region's long and
-short semi-axes, degrees) and which method gave it: first-order, or monte-carlo when
-the errors are too large for the first-order figures (1,000 seeded draws, the same at
-every door). The errors come from --error-model (defaults of common practice
-otherwise), the instrument column of the survey set in use, and an unrated orientation mark (the
-structures file carries no runs). The figures depend on the error model and are no
-substitute for the reviewer's judgement or local practice.
+The eight columns from pole_cone95 are how sure each orientation is: the 95% region of
+the pole and of the lineation (the cone's half-angle and the elongated region's long and
+short semi-axes, degrees) and which method gave it: first-order by default, or
+monte-carlo (1,000 seeded draws, the same at every door) where first order is known to
+be unreliable (a direction within 1.5 first-order long semi-axes of the core axis) or
+differs from it by more than 10%; --monte-carlo runs the draws for every row.
+survey_instrument names the survey errors used. The errors come from --error-model
+(defaults of common practice otherwise), the instrument column of the survey set in
+use, and the structures file's optional run_confidence (good, fair, poor, none) and
+run_mismatch (degrees) columns for the orientation mark (without them: an unrated
+mark); a run rated poor or none also adds its warning. The figures depend on the error
+model and are no substitute for the reviewer's judgement or local practice.
 
 --hole-summary FILE.csv also writes one row per hole: hole_id,
 survey_azimuth_reference, output_azimuth_reference, declination,
@@ -207,7 +211,8 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 	apex := fs.String("beta-apex", "downhole", "ellipse apex beta is measured to: downhole or uphole")
 	sense := fs.String("gamma-sense", "clockwise", "sense of gamma looking along the down-hole plane normal: clockwise or anticlockwise")
 	errModel := fs.String("error-model", "", errorModelUsage)
-	fs.BoolVar(&opt.NoUncertainty, "no-uncertainty", false, "leave the uncertainty columns empty (their Monte Carlo is most of the conversion's time)")
+	fs.BoolVar(&opt.NoUncertainty, "no-uncertainty", false, "leave the uncertainty columns empty")
+	fs.BoolVar(&opt.MonteCarlo, "monte-carlo", false, "run the Monte Carlo (1,000 seeded draws) for every measurement's region, not only where first order is unreliable")
 	summary := fs.String("hole-summary", "", "also write one row per hole to this CSV file: azimuth references, corrections and their sources, row counts, caution, error")
 	gridFile := fs.String("local-grid", "", "JSON file declaring a local grid for collars whose crs is \"local\"")
 	paths := addPathFlags(fs, &opt)

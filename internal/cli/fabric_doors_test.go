@@ -24,6 +24,7 @@ import (
 	"corvane/internal/httpapi"
 	"corvane/internal/service"
 	"corvane/internal/store/sqlite"
+	"corvane/internal/uncertainty"
 )
 
 // doorsProgramme is the demo programme on a fresh SQLite store behind the
@@ -34,9 +35,21 @@ import (
 // float64, so both doors start from the very same numbers. (How the
 // orientations are derived is the hole model's part, with its own tests;
 // this test is about the statistics pipeline and its doors.)
-func doorsProgramme(t *testing.T) (srv *httptest.Server, token string, pid int64, csvPath string) {
+func doorsProgramme(t *testing.T) (srv *httptest.Server, token string, pid int64, csvPath, modelPath string) {
 	t.Helper()
 	ctx, svc, p := demoService(t)
+	// An error model of the project's own, which corvane stats is given
+	// as --error-model: the set statistics must carry it at both doors.
+	p.ErrorModel = uncertainty.Model{Beta: 4, MarkPoor: 20, Magnetic: uncertainty.SurveyError{Azimuth: 2}}
+	p, err := svc.UpdateProject(ctx, p.ID, p.Version, p)
+	if err != nil {
+		t.Fatal(err)
+	}
+	mj, _ := json.Marshal(p.ErrorModel)
+	modelPath = filepath.Join(t.TempDir(), "model.json")
+	if err := os.WriteFile(modelPath, mj, 0o644); err != nil {
+		t.Fatal(err)
+	}
 	types, err := svc.ListTypeCodes(ctx, p.ID)
 	if err != nil || len(types) == 0 {
 		t.Fatalf("type codes: %v %v", types, err)
@@ -60,7 +73,8 @@ func doorsProgramme(t *testing.T) (srv *httptest.Server, token string, pid int64
 	srv, token = readerServer(t, ctx, svc, p.ID)
 
 	var b strings.Builder
-	b.WriteString("hole_id,depth,type,dip,dip_direction,line_trend,line_plunge,hole_azimuth,hole_dip,azimuth_reference,error\n")
+	b.WriteString("hole_id,depth,type,dip,dip_direction,line_trend,line_plunge,hole_azimuth,hole_dip,azimuth_reference,error," +
+		"survey_instrument,run_confidence,run_mismatch,run_from\n")
 	num := func(p *float64) string {
 		if p == nil {
 			return ""
@@ -68,7 +82,7 @@ func doorsProgramme(t *testing.T) (srv *httptest.Server, token string, pid int64
 		return strconv.FormatFloat(*p, 'g', -1, 64)
 	}
 	var after int64
-	vertical := 0
+	vertical, inRuns := 0, 0
 	for {
 		page, err := svc.ListMeasurements(ctx, p.ID, service.MeasurementQuery{}, domain.Page{Limit: domain.MaxLimit, After: after})
 		if err != nil {
@@ -79,8 +93,11 @@ func doorsProgramme(t *testing.T) (srv *httptest.Server, token string, pid int64
 			if d.Dip != nil && d.DipDirection == nil {
 				vertical++
 			}
-			fmt.Fprintf(&b, "%s,%s,%s,%s,%s,%s,%s,%s,%s,%s,%q\n", v.Hole, num(&v.Depth), v.TypeCode, num(d.Dip), num(d.DipDirection), num(d.LineTrend), num(d.LinePlunge),
-				num(d.HoleAzimuth), num(d.HoleDip), d.AzimuthRef, d.Error)
+			fmt.Fprintf(&b, "%s,%s,%s,%s,%s,%s,%s,%s,%s,%s,%q,%s,%s,%s,%s\n", v.Hole, num(&v.Depth), v.TypeCode, num(d.Dip), num(d.DipDirection), num(d.LineTrend), num(d.LinePlunge),
+				num(d.HoleAzimuth), num(d.HoleDip), d.AzimuthRef, d.Error, d.SurveyInstrument, d.RunConfidence, num(d.RunMismatch), num(d.RunFrom))
+			if d.RunFrom != nil {
+				inRuns++
+			}
 			after = v.ID
 		}
 		if len(page.Items) < domain.MaxLimit {
@@ -90,11 +107,14 @@ func doorsProgramme(t *testing.T) (srv *httptest.Server, token string, pid int64
 	if vertical != 3 {
 		t.Fatalf("%d measurements without a dip direction, want the vertical hole's 3", vertical)
 	}
+	if inRuns < 100 {
+		t.Fatalf("only %d measurements in orientation runs", inRuns)
+	}
 	csvPath = filepath.Join(t.TempDir(), "doors.csv")
 	if err := os.WriteFile(csvPath, []byte(b.String()), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	return srv, token, p.ID, csvPath
+	return srv, token, p.ID, csvPath, modelPath
 }
 
 // demoService is the demo programme on a fresh SQLite store.
@@ -170,7 +190,7 @@ func decodeJSON(t *testing.T, what string, b []byte) map[string]any {
 // those are compared after putting the route's words in place of the file
 // name.
 func TestStatsNetRoseEqualAtEveryDoor(t *testing.T) {
-	srv, token, pid, in := doorsProgramme(t)
+	srv, token, pid, in, model := doorsProgramme(t)
 	base := fmt.Sprintf("/v1/projects/%d", pid)
 	out := t.TempDir()
 
@@ -182,9 +202,10 @@ func TestStatsNetRoseEqualAtEveryDoor(t *testing.T) {
 		// Type codes match without regard to case at both doors (the
 		// demo's vocabulary says "joint").
 		{"--type JOINT --sets auto:2", "type=JOINT&sets=auto:2"},
+		{"--sets type --uncertainty=false", "sets=type&uncertainty=false"},
 	}
 	for _, c := range statsCases {
-		args := append([]string{"stats", "--in", in}, strings.Fields(c.cli)...)
+		args := append([]string{"stats", "--in", in, "--error-model", model}, strings.Fields(c.cli)...)
 		code, stdout, stderr := runCmd(t, args...)
 		if code != ExitOK {
 			t.Fatalf("stats %s: exit %d: %s", c.cli, code, stderr)
@@ -204,6 +225,22 @@ func TestStatsNetRoseEqualAtEveryDoor(t *testing.T) {
 			cj, _ := json.MarshalIndent(cli, "", " ")
 			rj, _ := json.MarshalIndent(route, "", " ")
 			t.Errorf("stats %q: the CLI and the route differ\nCLI:   %.3000s\nroute: %.3000s", c.cli, cj, rj)
+		}
+		// The sets of planes carry the measurement errors (unless turned
+		// off), with the project's error model.
+		planes, _ := cli["planes"].(map[string]any)
+		all, _ := planes["all"].(map[string]any)
+		mu, has := all["measurement_uncertainty"].(map[string]any)
+		if off := strings.Contains(c.cli, "--uncertainty=false"); has == off {
+			t.Errorf("stats %q: measurement_uncertainty %v", c.cli, all["measurement_uncertainty"])
+		} else if !off {
+			if mu["dominant"] != "sampling" && mu["dominant"] != "measurement" {
+				t.Errorf("stats %q: measurement uncertainty %v", c.cli, mu)
+			}
+			note, _ := json.Marshal(cli["measurement_uncertainty"])
+			if !strings.Contains(string(note), `{"basis":"project setting","name":"beta","value":4}`) {
+				t.Errorf("stats %q: the error model is not the project's: %s", c.cli, note)
+			}
 		}
 		if strings.Contains(c.cli, "--type") {
 			if cli["rows_used"] == float64(0) {
@@ -232,6 +269,9 @@ func TestStatsNetRoseEqualAtEveryDoor(t *testing.T) {
 		{"net", "", ""},
 		{"net", "--projection equal-angle --show poles,planes,lines,sets --sets type --sets-on both", "projection=equal-angle&show=poles,planes,lines,sets&sets=type&sets_on=both"},
 		{"net", "--sets auto:4 --density kamb --units sigma --grid 80 --weighting terzaghi", "sets=auto:4&density=kamb&units=sigma&grid=80&weighting=terzaghi"},
+		// The uncertainty regions, with the project's error model at both doors.
+		{"net", "--regions all --sets type --show poles,lines,sets --error-model " + model, "regions=all&sets=type&show=poles,lines,sets"},
+		{"net", "--regions cone:12 --show poles --error-model " + model, "regions=cone:12&show=poles"},
 		{"rose", "", ""},
 		{"rose", "--of strike --bin 15 --min-dip 30", "of=strike&bin=15&min_dip=30"},
 		{"rose", "--of trend --weighting terzaghi", "of=trend&weighting=terzaghi"},
@@ -258,6 +298,14 @@ func TestStatsNetRoseEqualAtEveryDoor(t *testing.T) {
 		}
 		if !strings.Contains(sheetText(route), "3 rows left out: "+fabric.SkipNoDipDirection) {
 			t.Errorf("%s %q: the sheet does not count the rows without a dip direction", c.cmd, c.cli)
+		}
+		if strings.Contains(c.cli, "--regions") {
+			if n := bytes.Count(route, []byte("<title>pole ")); n < 20 {
+				t.Errorf("%s %q: %d pole regions drawn", c.cmd, c.cli, n)
+			}
+			if strings.HasPrefix(c.cli, "--regions all") && !bytes.Contains(route, []byte("<title>line ")) {
+				t.Errorf("%s %q: no line regions", c.cmd, c.cli)
+			}
 		}
 	}
 }

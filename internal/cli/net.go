@@ -27,6 +27,7 @@ const netUsage = `Usage:
               [--show poles,planes,lines,density,sets] [--sets auto:N|type | --set NAME:TREND/PLUNGE:CONE ...]
               [--density exponential|kamb] [--units mud|sigma] [--weighting terzaghi[:CAP]] [--type TYPE]
               [--domain ` + structdomain.Syntax + `]
+              [--regions all|type:CODE|cone:DEG] [--error-model M.json]
 
 Draws a lower-hemisphere net as SVG from the same CSV as corvane stats: poles to planes
 (filled markers), planes as great circles, lines (open markers), set means with their
@@ -38,6 +39,16 @@ With --domain the net draws one structural domain (as corvane domains defines it
 file needs hole_id and depth, and rock_type for a domain of rock types): only the rows in
 the domain are drawn, while sets are formed on all rows, so each set keeps the name and
 colour it has in corvane stats and corvane domains. Run once per domain for a net each.
+
+Regions: --regions draws the 95% uncertainty region of each selected measurement's pole
+(and of its lineation, with lines shown): all, type:CODE (one type code) or cone:DEG (those
+whose 95% cone is DEG degrees or more: the least sure), at most 500. The region is the
+elongated one of corvane convert's pole_long95 and pole_short95 (first order, Monte Carlo
+where first order is unreliable), bent along the small circle about the core axis; a
+region that crosses the horizontal is drawn on both sides. Its errors come from
+--error-model and the columns corvane stats reads for its measurement uncertainty
+(hole_azimuth, hole_dip, survey_instrument, run_confidence, run_mismatch); rows
+without a hole direction are counted, not drawn.
 
 Density: exponential smoothing (Vollmer 1995, default) or Kamb (1959) counting, in
 multiples of uniform density (default) or sigma units; Terzaghi weights are honoured
@@ -60,6 +71,8 @@ func runNet(_ context.Context, env *Env, args []string) int {
 	grid := fs.Int("grid", fabric.DefaultGrid, fmt.Sprintf("density grid nodes per side (%d to %d)", fabric.MinGrid, fabric.MaxGrid))
 	var domainSpec onceFlag
 	fs.Var(&domainSpec, "domain", "draw only this structural domain "+structdomain.Syntax+" (once; sets still formed on all rows)")
+	regions := fs.String("regions", "none", "draw the 95% uncertainty regions of: none, all, type:CODE or cone:DEG")
+	emPath := fs.String("error-model", "", "error model JSON for the regions (fields as in the README; absent fields take the defaults)")
 	fail, code, done := parseOrientArgs(env, fs, "net", args)
 	if done {
 		return code
@@ -81,6 +94,13 @@ func runNet(_ context.Context, env *Env, args []string) int {
 	if o.Weighting, o.Sets, err = c.options(); err != nil {
 		return fail(err)
 	}
+	if o.Regions, err = fabric.ParseRegions(*regions); err != nil {
+		return fail(err)
+	}
+	em, err := readErrorModel(*emPath)
+	if err != nil {
+		return fail(err)
+	}
 	var dom *structdomain.Domain
 	if domainSpec != "" {
 		d, err := structdomain.ParseOne(string(domainSpec))
@@ -90,7 +110,7 @@ func runNet(_ context.Context, env *Env, args []string) int {
 		dom = &d
 	}
 	readOpt := csvio.OrientationOptions{Geotech: dom != nil} // the rock type, read as corvane domains reads it
-	oi, err := loadOrientationsWith(env, c.in, c.typ, readOpt)
+	oi, err := loadOrientationsWith(env, c.in, c.typ, readOpt, em)
 	if err != nil {
 		return fail(err)
 	}

@@ -8,6 +8,7 @@ import (
 
 	"corvane/internal/fabric"
 	"corvane/internal/netsvg"
+	"corvane/internal/uncertainty"
 )
 
 func init() {
@@ -55,7 +56,7 @@ func runRose(_ context.Context, env *Env, args []string) int {
 	if o.Weighting, _, err = c.options(); err != nil {
 		return fail(err)
 	}
-	oi, err := loadOrientations(env, c.in, c.typ)
+	oi, err := loadOrientations(env, c.in, c.typ, uncertainty.Model{})
 	if err != nil {
 		return fail(err)
 	}

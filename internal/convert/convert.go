@@ -5,7 +5,6 @@ import (
 	"errors"
 	"fmt"
 	"io"
-	"math"
 	"runtime"
 	"strings"
 
@@ -81,13 +80,14 @@ const (
 	ColLineLong95        = "line_long95"
 	ColLineShort95       = "line_short95"
 	ColLineMethod        = "line_method"
+	ColSurveyInstrument  = "survey_instrument"
 	ColError             = "error"
 )
 
-// UncertaintyColumns are the columns of a measurement's 95% regions (see
-// [WriteResult]).
+// UncertaintyColumns are the columns of a measurement's 95% regions and the
+// survey instrument whose errors they carry (see [WriteResult]).
 var UncertaintyColumns = []string{ColPoleCone95, ColPoleLong95, ColPoleShort95, ColPoleMethod,
-	ColLineCone95, ColLineLong95, ColLineShort95, ColLineMethod}
+	ColLineCone95, ColLineLong95, ColLineShort95, ColLineMethod, ColSurveyInstrument}
 
 // OutputColumns returns the columns Convert appends to the input columns.
 func OutputColumns(thickness bool) []string {
@@ -440,11 +440,18 @@ func (cv *converter) convert(b *batch, ms *uncertainty.Measurer) {
 		}
 		var u *uncertainty.Result
 		if !cv.hs.opt.NoUncertainty {
-			if ur, ok := last.Uncertainty(ms, cv.hs.opt.ErrorModel, &res, m.Measurement, "", math.NaN()); ok {
+			if ur, ok := last.Uncertainty(ms, cv.hs.opt.ErrorModel, &res, m.Measurement, row.RunConfidence, row.RunMismatch); ok {
 				u = &ur
 			}
 		}
-		b.tail = WriteResult(cw, &res, last.Hole, cv.thick, Warnings(&res, last.Hole), last.tail, b.tail, u)
+		warn := Warnings(&res, last.Hole)
+		if rw := RunWarning(row.RunConfidence); rw != "" {
+			if warn != "" {
+				warn += "; "
+			}
+			warn += rw
+		}
+		b.tail = WriteResult(cw, &res, last.Hole, cv.thick, warn, last.tail, b.tail, u)
 		cw.Empty() // error
 		cw.EndRow()
 	}
@@ -487,7 +494,8 @@ func writeEmpty(cw *csvio.Writer, n int) {
 // is the hole's formatted correction columns ([AppendCorrections]); u is
 // the measurement's uncertainty (holemodel.Hole.Uncertainty), nil when it
 // has none (a vertical hole): the sizes of the region in use and which
-// method gave it; scratch is reused and returned.
+// method gave it, then the survey instrument ([SurveyInstrument]); scratch
+// is reused and returned.
 func WriteResult(cw *csvio.Writer, r *holemodel.Result, h *holemodel.Hole, thick bool, warn string, tail, scratch []byte, u *uncertainty.Result) []byte {
 	cw.Float(r.HoleAzimuth, angleDecimals)
 	cw.Float(r.HoleDip, angleDecimals)
@@ -523,7 +531,18 @@ func WriteResult(cw *csvio.Writer, r *holemodel.Result, h *holemodel.Hole, thick
 	}
 	writeEstimate(cw, ue)
 	writeEstimate(cw, le)
+	cw.String(string(SurveyInstrument(h)))
 	return scratch
+}
+
+// SurveyInstrument returns the instrument of the survey h is built from,
+// uncertainty.UnknownSurvey when none is given: the survey errors of the
+// uncertainty columns, and of the set statistics that read them back.
+func SurveyInstrument(h *holemodel.Hole) uncertainty.Instrument {
+	if h.In.Instrument == "" {
+		return uncertainty.UnknownSurvey
+	}
+	return h.In.Instrument
 }
 
 // writeEstimate writes the cone, long and short semi-axes of the region in
@@ -545,6 +564,19 @@ func writeEstimate(cw *csvio.Writer, e *uncertainty.Estimate) {
 func WriteError(cw *csvio.Writer, thick bool, msg string) {
 	writeEmpty(cw, len(OutputColumns(thick))-1)
 	cw.String(msg)
+}
+
+// RunWarning returns the warning for a measurement in an orientation run
+// rated confidence, "" when the rating needs none: every door that knows
+// the run adds it after [Warnings].
+func RunWarning(confidence string) string {
+	switch confidence {
+	case "none":
+		return "orientation run rated unusable"
+	case "poor":
+		return "orientation run rated poor"
+	}
+	return ""
 }
 
 // Warnings returns the warnings of result r on hole h as one text: the

@@ -701,3 +701,69 @@ func TestOlderSurveyModelChoice(t *testing.T) {
 		t.Errorf("wmm: error %q", e)
 	}
 }
+
+// The structures file's run columns set the mark's error of the
+// uncertainty columns as the error model says (a good mark narrower than an
+// unrated one, a poor one wider, a logged mismatch m widening a good mark
+// to m/sqrt(2)), add the run's warning for a poor or unusable run, and a
+// bad value is an error on the row naming the column; with --monte-carlo
+// every row runs the draws and a row far from the core axis keeps its
+// first-order region (they agree), while a pole near the axis is Monte
+// Carlo either way.
+func TestRunColumns(t *testing.T) {
+	const structures = "hole_id,depth,alpha,beta,run_confidence,run_mismatch\n" +
+		"H1,50,40,120,,\nH1,50,40,120,good,\nH1,50,40,120,Poor,\nH1,50,40,120,good,40\nH1,50,40,120,none,\n" +
+		"H1,50,40,120,great,\nH1,50,40,120,good,200\nH1,50,88,120,good,\n"
+	hs := load(t, collarsCSV, surveysCSV, Options{})
+	rows, sum := run(t, hs, structures)
+	if sum.BadRows != 2 {
+		t.Fatalf("summary %+v", sum)
+	}
+	long := func(i int) float64 {
+		v, err := strconv.ParseFloat(rows[i][ColPoleLong95], 64)
+		if err != nil {
+			t.Fatalf("row %d: %q", i+1, rows[i][ColPoleLong95])
+		}
+		return v
+	}
+	unrated, good, poor, mismatch, none := long(0), long(1), long(2), long(3), long(4)
+	if !(good < unrated && unrated < poor) || none != unrated {
+		t.Errorf("long semi-axes: good %v, unrated %v, poor %v, none %v", good, unrated, poor, none)
+	}
+	// A mismatch of 40 deg: a mark error of 40/sqrt(2) = 28.3 deg, against
+	// 3 for a good mark (the error model's rule, uncertainty.Model.Mark).
+	if !(mismatch > poor) {
+		t.Errorf("a good run with a 40 deg mismatch: %v, poor %v", mismatch, poor)
+	}
+	if w := rows[2][ColWarnings]; !strings.Contains(w, "orientation run rated poor") {
+		t.Errorf("poor run: warnings %q", w)
+	}
+	if w := rows[4][ColWarnings]; !strings.Contains(w, "orientation run rated unusable") {
+		t.Errorf("unusable run: warnings %q", w)
+	}
+	if e := rows[5][ColError]; !strings.Contains(e, `column "run_confidence"`) {
+		t.Errorf("bad rating: %q", e)
+	}
+	if e := rows[6][ColError]; !strings.Contains(e, `column "run_mismatch"`) {
+		t.Errorf("bad mismatch: %q", e)
+	}
+	if rows[7][ColPoleMethod] != "monte-carlo" || rows[1][ColPoleMethod] != "first-order" {
+		t.Errorf("methods: near the axis %q, far %q", rows[7][ColPoleMethod], rows[1][ColPoleMethod])
+	}
+	// Both sizes only where both ran: by default a pole far from the axis
+	// has its first-order region alone, with --monte-carlo both.
+	rd := uncertainty.Reading{Hole: geom.HoleDirection(0, -60), Alpha: 40, Beta: 120, Gamma: math.NaN(), Sigma: uncertainty.DefaultModel().Sigmas("", "good", math.NaN(), 0)}
+	byDefault, _ := NewMeasurer(false).Measure(rd)
+	always, _ := NewMeasurer(true).Measure(rd)
+	if byDefault.Pole.MonteCarlo != nil || always.Pole.MonteCarlo == nil || always.Pole.Draws != uncertainty.PerMeasurement.Draws {
+		t.Errorf("Monte Carlo by default %v, with --monte-carlo %v", byDefault.Pole.MonteCarlo, always.Pole.MonteCarlo)
+	}
+	all, _ := run(t, load(t, collarsCSV, surveysCSV, Options{MonteCarlo: true}), structures)
+	for _, i := range []int{1, 7} {
+		for _, c := range []string{ColPoleCone95, ColPoleLong95, ColPoleShort95, ColPoleMethod} {
+			if all[i][c] != rows[i][c] {
+				t.Errorf("--monte-carlo row %d: %s %q, default %q", i+1, c, all[i][c], rows[i][c])
+			}
+		}
+	}
+}

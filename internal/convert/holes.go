@@ -99,13 +99,17 @@ type Options struct {
 	// northref; a hole that needs one then has an error.
 	NoCompute bool
 	// ErrorModel is the project's error model for the uncertainty columns
-	// (zero: the defaults of package uncertainty). Structures files carry
-	// no runs, so every measurement's mark takes the error of an unrated
-	// run.
+	// (zero: the defaults of package uncertainty). A measurement's mark
+	// error comes from the structures file's run_confidence and
+	// run_mismatch columns; without them (or with empty cells) it is that
+	// of an unrated run.
 	ErrorModel uncertainty.Model
-	// NoUncertainty leaves the uncertainty columns empty (their Monte Carlo
-	// is most of the conversion's time).
+	// NoUncertainty leaves the uncertainty columns empty.
 	NoUncertainty bool
+	// MonteCarlo runs the Monte Carlo of every measurement's region
+	// (uncertainty.Always); by default it runs only where first order is
+	// known to be unreliable (uncertainty.NeedsMonteCarlo).
+	MonteCarlo bool
 	// File names used in messages.
 	CollarsFile, SurveysFile, StructuresFile string
 	// Workers is the number of goroutines that convert batches of structure
@@ -152,6 +156,16 @@ type Holes struct {
 	order    []*Hole
 }
 
+// NewMeasurer returns the measurer of the per-measurement regions at every
+// door: uncertainty.PerMeasurement, with a Monte Carlo run for every
+// measurement when always is true.
+func NewMeasurer(always bool) *uncertainty.Measurer {
+	if always {
+		return uncertainty.NewMeasurer(uncertainty.Always(uncertainty.PerMeasurement))
+	}
+	return uncertainty.NewMeasurer(uncertainty.PerMeasurement)
+}
+
 // Hole returns the hole with the given id, or nil.
 func (hs *Holes) Hole(id string) *Hole { return hs.holes[id] }
 
@@ -189,7 +203,7 @@ func Load(collars, surveys io.Reader, opt Options) (*Holes, error) {
 // built by package holemodel from the neutral input of [HoleInput].
 func Build(crows []csvio.CollarRow, srows []csvio.SurveyRow, opt Options) (*Holes, error) {
 	cf, sf := nameOr(opt.CollarsFile, "collars"), nameOr(opt.SurveysFile, "surveys")
-	hs := &Holes{opt: opt, holes: make(map[string]*Hole, len(crows)), measurer: uncertainty.NewMeasurer(uncertainty.PerMeasurement)}
+	hs := &Holes{opt: opt, holes: make(map[string]*Hole, len(crows)), measurer: NewMeasurer(opt.MonteCarlo)}
 	byHole := map[string][]csvio.SurveyRow{}
 	var problems []*domain.Error
 	idx := map[string]int{}

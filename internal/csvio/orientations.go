@@ -5,11 +5,13 @@ import (
 	"errors"
 	"io"
 	"math"
+	"slices"
 	"strconv"
 	"strings"
 
 	"corvane/internal/domain"
 	"corvane/internal/geom"
+	"corvane/internal/uncertainty"
 )
 
 // OrientationRow is one measurement read by [ReadOrientations]: a plane, a
@@ -50,6 +52,13 @@ type OrientationRow struct {
 	// uncertainty, degrees, as `corvane convert` writes it), NaN when the
 	// file has none or the cell is empty.
 	PoleCone95 float64
+	// The measurement's error sources, for the set statistics: the
+	// survey_instrument column (unknown when absent or empty) and the
+	// run_confidence, run_mismatch and run_from columns of the orientation
+	// run holding it ("" and NaN when absent or empty).
+	SurveyInstrument     uncertainty.Instrument
+	RunConfidence        string
+	RunMismatch, RunFrom float64
 
 	// Read only with [OrientationOptions].Geotech:
 	Alpha    float64 // alpha column, NaN when absent or empty
@@ -87,6 +96,9 @@ const (
 	// ColPoleCone95 is the half-angle of the 95% cone of the pole's
 	// uncertainty in degrees, as `corvane convert` writes it.
 	ColPoleCone95 = "pole_cone95"
+	// survey_instrument as `corvane convert` writes it (convert's
+	// ColSurveyInstrument).
+	colSurveyInstrument = "survey_instrument"
 )
 
 // ReadOrientations reads planes and lines from a CSV file whose header has
@@ -158,7 +170,7 @@ func ReadOrientationsWith(r io.Reader, name string, opt OrientationOptions) (row
 			return rows, problems, domain.Errorf(domain.Invalid, "reading: %w", rerr).At(domain.Location{File: name})
 		}
 		line, _ := cr.FieldPos(0)
-		row := OrientationRow{Line: line, Depth: math.NaN(), Alpha: math.NaN()}
+		row := OrientationRow{Line: line, Depth: math.NaN(), Alpha: math.NaN(), RunMismatch: math.NaN(), RunFrom: math.NaN()}
 		loc := func(c string) domain.Location { return domain.Location{File: name, Line: line, Column: c} }
 		cell := func(c string) string {
 			i, ok := col[c]
@@ -230,6 +242,26 @@ func ReadOrientationsWith(r io.Reader, name string, opt OrientationOptions) (row
 			}
 		}
 		row.Error = cell(colError)
+		if k, err := uncertainty.ParseInstrument(cell(colSurveyInstrument)); err != nil {
+			if bad == nil {
+				bad = domain.Errorf(domain.Invalid, "%v", err).At(loc(colSurveyInstrument))
+			}
+		} else {
+			row.SurveyInstrument = k
+		}
+		if c := strings.ToLower(cell(ColRunConfidence)); c != "" {
+			if slices.Contains(Confidences, c) {
+				row.RunConfidence = c
+			} else if bad == nil {
+				bad = domain.Errorf(domain.Invalid, "run_confidence %q is not one of %s", cell(ColRunConfidence), strings.Join(Confidences, ", ")).At(loc(ColRunConfidence))
+			}
+		}
+		if v, ok := num(ColRunMismatch, 0, 180); ok {
+			row.RunMismatch = v
+		}
+		if v, ok := num(ColRunFrom, 0, math.MaxFloat64); ok {
+			row.RunFrom = v
+		}
 		if opt.Geotech {
 			if v, ok := num(ColDepth, -math.MaxFloat64, math.MaxFloat64); ok {
 				if v < 0 && bad == nil {

@@ -1,6 +1,7 @@
 package csvio
 
 import (
+	"math"
 	"strings"
 	"testing"
 
@@ -159,5 +160,36 @@ func TestReadOrientationsPositions(t *testing.T) {
 	}
 	if r := rows[1]; r.HasPos || r.Warnings != "below the last survey station" {
 		t.Errorf("row 2: %+v", r)
+	}
+}
+
+// The error sources of the set statistics: survey_instrument and the run
+// columns, as corvane convert and the export write them; absent or empty
+// cells are unknown (NaN, ""), bad values are problems naming the column.
+func TestReadOrientationsErrorSources(t *testing.T) {
+	in := "hole_id,dip,dip_direction,hole_azimuth,hole_dip,survey_instrument,run_confidence,run_mismatch,run_from\n" +
+		"A,30,120,45,-60,Gyro,POOR,12.5,3.2\n" +
+		"A,30,120,45,-60,,,,\n" +
+		"A,30,120,45,-60,laser,,,\n" +
+		"A,30,120,45,-60,,great,,\n" +
+		"A,30,120,45,-60,,,190,\n" +
+		"A,30,120,45,-60,,,,-1\n"
+	rows, problems, err := ReadOrientations(strings.NewReader(in), "o.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(rows) != 2 || len(problems) != 4 {
+		t.Fatalf("%d rows, problems %v", len(rows), problems)
+	}
+	if r := rows[0]; r.SurveyInstrument != "gyro" || r.RunConfidence != "poor" || r.RunMismatch != 12.5 || r.RunFrom != 3.2 {
+		t.Errorf("row 2: %+v", r)
+	}
+	if r := rows[1]; r.SurveyInstrument != "unknown" || r.RunConfidence != "" || !math.IsNaN(r.RunMismatch) || !math.IsNaN(r.RunFrom) {
+		t.Errorf("row 3: %+v", r)
+	}
+	for i, col := range []string{"survey_instrument", "run_confidence", "run_mismatch", "run_from"} {
+		if !strings.Contains(problems[i].Error(), `column "`+col+`"`) {
+			t.Errorf("problem %d: %v, want column %s", i, problems[i], col)
+		}
 	}
 }

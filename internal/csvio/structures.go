@@ -3,6 +3,7 @@ package csvio
 import (
 	"io"
 	"math"
+	"slices"
 	"strings"
 	"unicode"
 	"unicode/utf8"
@@ -36,6 +37,13 @@ type StructureRow struct {
 	// apparent_thickness or thickness column; NaN when absent or empty.
 	Thickness    float64
 	HasThickness bool
+	// RunConfidence and RunMismatch describe the orientation run holding
+	// the measurement, from the optional run_confidence (good, fair, poor or
+	// none, any case; stored lower case) and run_mismatch (0..180 degrees)
+	// columns: "" and NaN when absent or empty. They set the mark's error of
+	// the uncertainty columns.
+	RunConfidence string
+	RunMismatch   float64
 	// Err is the row's first problem (a value that is not a number, out of
 	// range, missing, or a row with the wrong number of fields), nil when the
 	// row is good. A bad row keeps its place in the stream.
@@ -45,14 +53,15 @@ type StructureRow struct {
 // StructureReader streams the rows of a structures file: required columns
 // hole_id, depth (>= 0), alpha (0..90), beta (0..360, or empty for an
 // unoriented measurement), optional gamma
-// (0..360, empty when there is no lineation) and apparent_thickness or
-// thickness (>= 0); any further columns are carried in Record. Memory use
+// (0..360, empty when there is no lineation), apparent_thickness or
+// thickness (>= 0), run_confidence and run_mismatch; any further columns are carried in Record. Memory use
 // does not grow with the number of rows.
 type StructureReader struct {
 	Header                                       *Header
 	cr                                           *recordReader
 	file                                         string
 	iHole, iDepth, iAlpha, iBeta, iGamma, iThick int
+	iRunConf, iRunMismatch                       int
 	row                                          StructureRow
 }
 
@@ -66,7 +75,8 @@ func NewStructureReader(r io.Reader, file string) (*StructureReader, error) {
 	}
 	s := &StructureReader{Header: h, cr: cr, file: file,
 		iHole: h.Index(ColHoleID), iDepth: h.Index(ColDepth), iAlpha: h.Index(ColAlpha),
-		iBeta: h.Index(ColBeta), iGamma: h.Index(ColGamma), iThick: h.Index(ColApparentThick)}
+		iBeta: h.Index(ColBeta), iGamma: h.Index(ColGamma), iThick: h.Index(ColApparentThick),
+		iRunConf: h.Index(ColRunConfidence), iRunMismatch: h.Index(ColRunMismatch)}
 	if s.iThick < 0 {
 		s.iThick = h.Index(ColThickness)
 	}
@@ -134,7 +144,7 @@ func (s *StructureReader) NextUnsplit() (r *StructureRow, unsplit bool, err erro
 // its Line and Record. It is safe to call concurrently on different rows.
 func (s *StructureReader) Parse(r *StructureRow) {
 	rec, line := r.Record, r.Line
-	*r = StructureRow{Line: line, Record: rec, Raw: r.Raw, Gamma: math.NaN(), Thickness: math.NaN()}
+	*r = StructureRow{Line: line, Record: rec, Raw: r.Raw, Gamma: math.NaN(), Thickness: math.NaN(), RunMismatch: math.NaN()}
 	if len(rec) != len(s.Header.Names) {
 		r.Err = invalid(s.file, line, "", "row has %d fields, the header has %d", len(rec), len(s.Header.Names))
 		return
@@ -162,6 +172,21 @@ func (s *StructureReader) Parse(r *StructureRow) {
 	if s.iThick >= 0 {
 		if r.Thickness, r.HasThickness = s.num(r, s.iThick, false); r.HasThickness && r.Thickness < 0 {
 			s.fail(r, s.iThick, "%s %g is negative", s.Header.Names[s.iThick], r.Thickness)
+		}
+	}
+	if s.iRunConf >= 0 {
+		if c := strings.ToLower(strings.TrimSpace(rec[s.iRunConf])); c != "" {
+			if slices.Contains(Confidences, c) {
+				r.RunConfidence = c
+			} else {
+				s.fail(r, s.iRunConf, "run_confidence %q is not one of %s", rec[s.iRunConf], strings.Join(Confidences, ", "))
+			}
+		}
+	}
+	if s.iRunMismatch >= 0 {
+		var ok bool
+		if r.RunMismatch, ok = s.num(r, s.iRunMismatch, false); ok && !(r.RunMismatch >= 0 && r.RunMismatch <= 180) {
+			s.fail(r, s.iRunMismatch, "run_mismatch %g is outside 0..180", r.RunMismatch)
 		}
 	}
 }

@@ -53,6 +53,9 @@ const (
 	ColTo              = "to"
 	ColConfidence      = "confidence"
 	ColMismatch        = "mismatch"
+	ColRunConfidence   = "run_confidence"
+	ColRunMismatch     = "run_mismatch"
+	ColRunFrom         = "run_from"
 )
 
 // aliases are other names a header may give a column: the JSON field's

@@ -192,15 +192,25 @@ type row struct {
 	checkPosition, published bool
 }
 
-// files writes the programme's collars, surveys and structures CSVs and
-// returns their text and the rows with their expectations.
-func (pg programme) files(t *testing.T) (collars, surveys, structures string, rows []row) {
-	var c, s, m strings.Builder
+// files writes the programme's collars, surveys, structures and runs CSVs
+// and returns their text and the rows with their expectations. Every hole
+// has two orientation runs, the upper half rated good, fair or unrated by
+// hole with a logged mismatch, the lower half rated poor; the structures
+// file names each measurement's run in its run_confidence and run_mismatch
+// columns (what `corvane convert` and POST /v1/convert read), the stores
+// get the runs file, so the uncertainty columns and the run's warning must
+// agree at every door.
+func (pg programme) files(t *testing.T) (collars, surveys, structures, runs string, rows []row) {
+	var c, s, m, rn strings.Builder
 	c.WriteString("hole_id,easting,northing,elevation,azimuth,dip,depth,crs,declination,grid_convergence,survey_date\n")
 	s.WriteString("hole_id,depth,azimuth,dip,azimuth_reference,survey_date,instrument\n")
-	m.WriteString("hole_id,depth,alpha,beta,gamma,apparent_thickness,type\n")
+	m.WriteString("hole_id,depth,alpha,beta,gamma,apparent_thickness,type,run_confidence,run_mismatch\n")
+	rn.WriteString("hole_id,from,to,confidence,mismatch\n")
 	f := func(v float64) string { return strconv.FormatFloat(v, 'f', 6, 64) }
-	for _, h := range pg.holes {
+	for hi, h := range pg.holes {
+		upper := []string{"good", "fair", "good"}[hi%3]
+		upperMismatch := []string{"2.5", "", "31"}[hi%3] // 31: a mismatch that widens a good mark's error
+		fmt.Fprintf(&rn, "%s,0,%s,%s,%s\n%s,%s,%s,poor,\n", h.id, f(h.depth/2), upper, upperMismatch, h.id, f(h.depth/2), f(h.depth))
 		decl, conv := h.corrections(t, pg.feet)
 		// The recorded azimuth: true = magnetic + D, grid = true - C.
 		rec := h.trueAz
@@ -246,7 +256,11 @@ func (pg programme) files(t *testing.T) (collars, surveys, structures string, ro
 			if !math.IsNaN(r.beta) {
 				b = f(r.beta)
 			}
-			fmt.Fprintf(&m, "%s,%s,%s,%s,%s,%s,%s\n", h.id, f(r.depth), f(r.alpha), b, g, f(r.thick), typ)
+			conf, mismatch := upper, upperMismatch
+			if r.depth > h.depth/2 {
+				conf, mismatch = "poor", ""
+			}
+			fmt.Fprintf(&m, "%s,%s,%s,%s,%s,%s,%s,%s,%s\n", h.id, f(r.depth), f(r.alpha), b, g, f(r.thick), typ, conf, mismatch)
 		}
 		for _, p := range h.planes {
 			// Forward model: the plane in the output reference, and the
@@ -278,7 +292,7 @@ func (pg programme) files(t *testing.T) (collars, surveys, structures string, ro
 				wantTrend: math.NaN(), wantPlunge: math.NaN(), published: true})
 		}
 	}
-	return c.String(), s.String(), m.String(), rows
+	return c.String(), s.String(), m.String(), rn.String(), rows
 }
 
 // derivedColumns are the columns compared across the doors: what
@@ -356,6 +370,12 @@ func convertCLI(t *testing.T, dir string, flags []string) []map[string]string {
 // convertJSON sends the programme to POST /v1/convert, built from the same
 // CSV files as the command line reads them.
 func convertJSON(t *testing.T, s *server, pg programme, collars, surveys, structures string) []map[string]string {
+	return convertJSONWith(t, s, pg, collars, surveys, structures, nil)
+}
+
+// convertJSONWith is convertJSON with further top-level fields of the
+// request.
+func convertJSONWith(t *testing.T, s *server, pg programme, collars, surveys, structures string, extra map[string]any) []map[string]string {
 	t.Helper()
 	crows, err := csvio.ReadCollars(strings.NewReader(collars), "collars.csv")
 	if err != nil {
@@ -410,6 +430,7 @@ func convertJSON(t *testing.T, s *server, pg programme, collars, surveys, struct
 		if m["gamma"] != "" {
 			mm["gamma"] = atof(t, m["gamma"])
 		}
+		mm["run_confidence"], mm["run_mismatch"] = m["run_confidence"], optAtof(t, m["run_mismatch"])
 		ms = append(ms, mm)
 	}
 	var resp struct {
@@ -417,7 +438,11 @@ func convertJSON(t *testing.T, s *server, pg programme, collars, surveys, struct
 			Derived map[string]any `json:"derived"`
 		} `json:"results"`
 	}
-	s.mustJSON(t, 200, "POST", "/v1/convert", map[string]any{"conventions": conv, "collars": cs, "surveys": ss, "measurements": ms}, &resp)
+	body := map[string]any{"conventions": conv, "collars": cs, "surveys": ss, "measurements": ms}
+	for k, v := range extra {
+		body[k] = v
+	}
+	s.mustJSON(t, 200, "POST", "/v1/convert", body, &resp)
 	out := make([]map[string]string, len(resp.Results))
 	for i, r := range resp.Results {
 		out[i] = fromJSON(r.Derived)
@@ -463,9 +488,13 @@ func importProject(t *testing.T, s *server, prefix string, pg programme, files .
 }
 
 // exportCSV imports the programme into a new project on s and exports it.
-func exportCSV(t *testing.T, s *server, pg programme, collars, surveys, structures string) []map[string]string {
+func exportCSV(t *testing.T, s *server, pg programme, collars, surveys, structures, runs string) []map[string]string {
 	t.Helper()
-	base := importProject(t, s, "Conformance ", pg, [2]string{"collars", collars}, [2]string{"surveys", surveys}, [2]string{"measurements", structures})
+	files := [][2]string{{"collars", collars}, {"surveys", surveys}}
+	if runs != "" {
+		files = append(files, [2]string{"runs", runs})
+	}
+	base := importProject(t, s, "Conformance ", pg, append(files, [2]string{"measurements", structures})...)
 	code, _, b := s.call(t, "GET", base+"/measurements.csv", nil)
 	if code != 200 {
 		t.Fatalf("export: %d %s", code, b)
@@ -492,14 +521,27 @@ func exportCSV(t *testing.T, s *server, pg programme, collars, surveys, structur
 			t.Errorf("hole %s exported as %+v, imported %+v", c.HoleID, o, c)
 		}
 	}
-	return readCSV(t, b)
+	// The export names each measurement's run as the structures file does.
+	got := readCSV(t, b)
+	for i, m := range readCSV(t, []byte(structures)) {
+		if i < len(got) && runs != "" && (got[i]["run_confidence"] != m["run_confidence"] || got[i]["run_mismatch"] != m["run_mismatch"]) {
+			if g, w := got[i]["run_mismatch"], m["run_mismatch"]; got[i]["run_confidence"] != m["run_confidence"] || (g == "") != (w == "") || g != "" && atof(t, g) != atof(t, w) {
+				t.Errorf("export row %d: run %q %q, structures file %q %q", i+1, got[i]["run_confidence"], g, m["run_confidence"], w)
+			}
+		}
+	}
+	return got
 }
 
 // previewRoute imports the programme (holes only need collars and
 // surveys) and asks the preview route for every structure row.
-func previewRoute(t *testing.T, s *server, pg programme, collars, surveys, structures string) []map[string]string {
+func previewRoute(t *testing.T, s *server, pg programme, collars, surveys, structures, runs string) []map[string]string {
 	t.Helper()
-	base := importProject(t, s, "Preview ", pg, [2]string{"collars", collars}, [2]string{"surveys", surveys})
+	files := [][2]string{{"collars", collars}, {"surveys", surveys}}
+	if runs != "" {
+		files = append(files, [2]string{"runs", runs})
+	}
+	base := importProject(t, s, "Preview ", pg, files...)
 	var holes struct {
 		Items []struct {
 			ID   int64  `json:"id"`
@@ -530,15 +572,15 @@ func previewRoute(t *testing.T, s *server, pg programme, collars, surveys, struc
 
 func TestConformanceFiveDoors(t *testing.T) {
 	type fixture struct {
-		prog                         programme
-		collars, surveys, structures string
-		rows                         []row
-		cli                          []map[string]string
+		prog                               programme
+		collars, surveys, structures, runs string
+		rows                               []row
+		cli                                []map[string]string
 	}
 	var fixtures []fixture
 	for _, prog := range programmes() {
 		f := fixture{prog: prog}
-		f.collars, f.surveys, f.structures, f.rows = prog.files(t)
+		f.collars, f.surveys, f.structures, f.runs, f.rows = prog.files(t)
 		dir := t.TempDir()
 		for name, text := range map[string]string{"collars.csv": f.collars, "surveys.csv": f.surveys, "structures.csv": f.structures} {
 			if err := os.WriteFile(filepath.Join(dir, name), []byte(text), 0o644); err != nil {
@@ -572,15 +614,37 @@ func TestConformanceFiveDoors(t *testing.T) {
 		t.Run(f.prog.name, func(t *testing.T) {
 			checkForwardModel(t, f.prog, f.rows, f.cli)
 			same(t, "POST /v1/convert", f, convertJSON(t, lite, f.prog, f.collars, f.surveys, f.structures))
-			same(t, "SQLite import + export", f, exportCSV(t, lite, f.prog, f.collars, f.surveys, f.structures))
-			same(t, "preview route", f, previewRoute(t, lite, f.prog, f.collars, f.surveys, f.structures))
+			same(t, "SQLite import + export", f, exportCSV(t, lite, f.prog, f.collars, f.surveys, f.structures, f.runs))
+			same(t, "preview route", f, previewRoute(t, lite, f.prog, f.collars, f.surveys, f.structures, f.runs))
 		})
 	}
+	// The Monte Carlo for every row, when asked: the same at both doors
+	// that take the request, and the same figures as by default wherever
+	// the method in use stays first order.
+	t.Run("monte-carlo", func(t *testing.T) {
+		f := fixtures[0]
+		dir := t.TempDir()
+		for name, text := range map[string]string{"collars.csv": f.collars, "surveys.csv": f.surveys, "structures.csv": f.structures} {
+			if err := os.WriteFile(filepath.Join(dir, name), []byte(text), 0o644); err != nil {
+				t.Fatal(err)
+			}
+		}
+		cli := convertCLI(t, dir, append(append([]string{}, f.prog.flags...), "--monte-carlo"))
+		same(t, "POST /v1/convert monte_carlo", fixture{prog: f.prog, rows: f.rows, cli: cli},
+			convertJSONWith(t, lite, f.prog, f.collars, f.surveys, f.structures, map[string]any{"monte_carlo": true}))
+		for i := range cli {
+			for _, c := range []string{convert.ColPoleCone95, convert.ColPoleLong95, convert.ColLineCone95, convert.ColLineLong95} {
+				if cli[i][convert.ColPoleMethod] == "first-order" && cli[i][convert.ColLineMethod] != "monte-carlo" && cli[i][c] != f.cli[i][c] {
+					t.Errorf("row %d: %s %q with --monte-carlo, %q by default", i+1, c, cli[i][c], f.cli[i][c])
+				}
+			}
+		}
+	})
 	t.Run("postgres", func(t *testing.T) {
 		pg := siteServer(t, pgtest.DB(t))
 		for _, f := range fixtures {
 			t.Run(f.prog.name, func(t *testing.T) {
-				same(t, "PostgreSQL import + export", f, exportCSV(t, pg, f.prog, f.collars, f.surveys, f.structures))
+				same(t, "PostgreSQL import + export", f, exportCSV(t, pg, f.prog, f.collars, f.surveys, f.structures, f.runs))
 			})
 		}
 	})
@@ -722,9 +786,9 @@ func TestConformanceHoleProblems(t *testing.T) {
 				"POST /v1/convert": convertJSON(t, s, pg, c.collars, c.surveys, structures),
 			}
 			if strings.Contains(c.want, "declination") {
-				doors["import + export"] = exportCSV(t, s, pg, c.collars, c.surveys, structures)
+				doors["import + export"] = exportCSV(t, s, pg, c.collars, c.surveys, structures, "")
 				pg.name += " (preview)"
-				doors["preview route"] = previewRoute(t, s, pg, c.collars, c.surveys, structures)
+				doors["preview route"] = previewRoute(t, s, pg, c.collars, c.surveys, structures, "")
 			} else {
 				// The import refuses the station, located.
 				base := importProject(t, s, "Problems ", pg, [2]string{"collars", c.collars})

@@ -66,6 +66,9 @@ type Row struct {
 	Unoriented bool
 	// Error says why the row could not be oriented; "" when it was.
 	Error string
+	// Errors are the row's measurement errors for the set statistics (see
+	// [RowErrors]); nil when unknown.
+	Errors *Errors
 }
 
 // skipReason returns why r is left out, or "".

@@ -77,6 +77,9 @@ type NetOptions struct {
 	// domains report); the net shows the kept members, their means and
 	// cones, and their density.
 	Part *Part
+	// Regions selects the measurements whose 95% uncertainty regions are
+	// drawn (their rows' Errors; see [ParseRegions]).
+	Regions Regions
 }
 
 // Part is the part of a net's rows that is drawn (see [NetOptions].Part).
@@ -236,6 +239,7 @@ func Net(in Input, o NetOptions) (netsvg.Net, error) {
 			n.Lines = append(n.Lines, netsvg.Mark{Axis: a, Set: markSet(lines, i, 1)})
 		}
 	}
+	n.Regions, n.RegionsNote = regionMarks(used, planes, lines, o.Regions, o.Show, markSet)
 	notes := []string{words.Plural(len(in.Rows), "row")}
 	if o.Part != nil {
 		notes = append(notes, fmt.Sprintf("%s: %d of the %s drawn; sets formed on all rows", o.Part.Name, kept, words.Plural(len(in.Rows), "row")))

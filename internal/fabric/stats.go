@@ -5,6 +5,7 @@ import (
 
 	"corvane/internal/dirstat"
 	"corvane/internal/geom"
+	"corvane/internal/uncertainty"
 )
 
 // SpreadFormula is the definition of the spread reported.
@@ -240,7 +241,10 @@ type Set struct {
 	Count      int      `json:"count"`
 	Unweighted *Summary `json:"unweighted,omitempty"`
 	Weighted   *Summary `json:"weighted,omitempty"`
-	Note       string   `json:"note,omitempty"`
+	// Uncertainty carries the measurement errors into the cone of the mean
+	// pole or line, beside the Fisher cone (with the uncertainty option).
+	Uncertainty *SetUncertainty `json:"measurement_uncertainty,omitempty"`
+	Note        string          `json:"note,omitempty"`
 }
 
 // Group is the statistics of one kind of axes.
@@ -276,9 +280,12 @@ type Report struct {
 	Spread       string         `json:"spread_formula"`
 	Seed         *uint64        `json:"seed,omitempty"`
 	Weighting    *WeightingNote `json:"weighting,omitempty"`
-	Planes       *Group         `json:"planes,omitempty"`
-	Lines        *Group         `json:"lines,omitempty"`
-	Caution      string         `json:"caution"`
+	// Uncertainty says how the sets' measurement uncertainty was found;
+	// nil when it was not asked for.
+	Uncertainty *UncertaintyNote `json:"measurement_uncertainty,omitempty"`
+	Planes      *Group           `json:"planes,omitempty"`
+	Lines       *Group           `json:"lines,omitempty"`
+	Caution     string           `json:"caution"`
 }
 
 // Options are the options of [Stats].
@@ -286,6 +293,11 @@ type Options struct {
 	Of        string // "both" (or ""), "planes" or "lines": see [ParseOf]
 	Sets      Sets
 	Weighting Weighting
+	// Uncertainty carries the rows' measurement errors (Row.Errors, built
+	// with ErrorModel by [RowErrors]) into each set; see
+	// [ParseUncertainty].
+	Uncertainty bool
+	ErrorModel  uncertainty.Model
 }
 
 func summary(vs []geom.Vec3, ws []float64, planes bool) (*Summary, error) {
@@ -319,8 +331,11 @@ func summary(vs []geom.Vec3, ws []float64, planes bool) (*Summary, error) {
 	return s, nil
 }
 
-func setReport(name string, vs []geom.Vec3, ws []float64, planes bool) Set {
+func setReport(name string, vs []geom.Vec3, ws []float64, planes bool, unc func() *SetUncertainty) Set {
 	js := Set{Name: name, Count: len(vs)}
+	if unc != nil {
+		js.Uncertainty = unc()
+	}
 	var err error
 	if js.Unweighted, err = summary(vs, nil, planes); err != nil {
 		js.Note = err.Error()
@@ -334,10 +349,24 @@ func setReport(name string, vs []geom.Vec3, ws []float64, planes bool) Set {
 	return js
 }
 
-func groupReport(g *group) *Group {
+func groupReport(g *group, used []Row, withUnc bool, budget *int) *Group {
 	planes := g.kind == kindPlanes
+	unc := func(j int) func() *SetUncertainty {
+		if !withUnc {
+			return nil
+		}
+		return func() *SetUncertainty {
+			var idx []int
+			for i, r := range g.rows {
+				if j < 0 || g.assign[i] == j {
+					idx = append(idx, r)
+				}
+			}
+			return setUncertainty(used, idx, !planes, budget)
+		}
+	}
 	jg := &Group{Count: len(g.axes)}
-	jg.All = setReport("all", g.axes, g.weights, planes)
+	jg.All = setReport("all", g.axes, g.weights, planes, unc(-1))
 	if g.weights != nil && planes {
 		n := g.noHole
 		jg.NoHole = &n
@@ -346,7 +375,7 @@ func groupReport(g *group) *Group {
 		jg.SetMethod = g.method
 		for j, name := range g.setNames {
 			vs, ws := g.members(j)
-			jg.Sets = append(jg.Sets, setReport(name, vs, ws, planes))
+			jg.Sets = append(jg.Sets, setReport(name, vs, ws, planes, unc(j)))
 		}
 		un := g.unassigned()
 		jg.Unassigned = &un
@@ -400,11 +429,15 @@ func Stats(in Input, o Options) (Report, error) {
 	if err != nil {
 		return Report{}, err
 	}
+	budget := MaxUncertaintyPoles
 	if of != kindLines && len(planes.axes) > 0 {
-		rep.Planes = groupReport(planes)
+		rep.Planes = groupReport(planes, used, o.Uncertainty, &budget)
 	}
 	if of != kindPlanes && len(lines.axes) > 0 {
-		rep.Lines = groupReport(lines)
+		rep.Lines = groupReport(lines, used, o.Uncertainty, &budget)
+	}
+	if o.Uncertainty && (rep.Planes != nil || rep.Lines != nil) {
+		rep.Uncertainty = uncertaintyNote(o.ErrorModel)
 	}
 	return rep, nil
 }

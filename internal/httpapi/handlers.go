@@ -785,7 +785,7 @@ func (s *Server) statistics(c *gin.Context) {
 		fail(c, err)
 		return
 	}
-	q := service.StatsQuery{MeasurementQuery: mq, SetQuery: sq, Of: c.Query("of"), Weighting: c.Query("weighting")}
+	q := service.StatsQuery{MeasurementQuery: mq, SetQuery: sq, Of: c.Query("of"), Weighting: c.Query("weighting"), Uncertainty: c.Query("uncertainty")}
 	res, err := s.opt.Service.Statistics(c.Request.Context(), pid, q)
 	if err != nil {
 		fail(c, err)
@@ -813,7 +813,8 @@ func (s *Server) net(c *gin.Context) {
 		return
 	}
 	q := service.NetQuery{MeasurementQuery: mq, SetQuery: sq, Weighting: c.Query("weighting"), Projection: c.Query("projection"),
-		Show: c.Query("show"), Density: c.Query("density"), Units: c.Query("units"), Title: c.Query("title"), Domain: c.Query("domain")}
+		Show: c.Query("show"), Density: c.Query("density"), Units: c.Query("units"), Title: c.Query("title"), Domain: c.Query("domain"),
+		Regions: c.Query("regions")}
 	if ds := c.QueryArray("domain"); len(ds) > 1 {
 		fail(c, domain.FieldErr("domain", "a net draws one domain; got %d (ask once per domain)", len(ds)))
 		return

@@ -85,6 +85,15 @@ type CircleMark struct {
 	Dashed bool
 }
 
+// RegionMark is the 95% region of one measured direction (a pole or a
+// line): a closed outline of directions, drawn as a thin outline with a
+// light fill in its set's colour (Set -1 for grey). Label is its tooltip.
+type RegionMark struct {
+	Outline []geom.Vec3
+	Set     int
+	Label   string
+}
+
 // Net is everything one net sheet shows.
 type Net struct {
 	Projection projection.Kind
@@ -99,6 +108,10 @@ type Net struct {
 	Circles    []CircleMark // small circles (unoriented measurements, friction circles)
 	// CirclesNote describes the circles in the side panel, "" for none.
 	CirclesNote string
+	// Regions are measurement uncertainty regions; RegionsNote describes
+	// them in the side panel.
+	Regions     []RegionMark
+	RegionsNote string
 	// Face, when set, is a slope or excavation face drawn as a heavy great
 	// circle with a key entry.
 	Face    *geom.Plane
@@ -252,6 +265,27 @@ func WriteNet(w io.Writer, n Net) error {
 			parts, closed := n.Projection.SmallCircle(c.Axis, c.Half, 120)
 			for _, p := range parts {
 				s.printf(`<path d="%s" stroke="%s"%s/>`+"\n", pathOf(p, closed), col, dash)
+			}
+		}
+		s.printf("</g>\n")
+	}
+
+	// Measurement regions: a part of a region that crosses the horizontal
+	// is drawn open on each side, folded to the lower hemisphere.
+	if len(n.Regions) > 0 {
+		s.printf(`<g id="regions" stroke-width="0.9" stroke-linejoin="round">` + "\n")
+		for _, r := range n.Regions {
+			col, _ := setStyle(&n, r.Set)
+			if r.Set < 0 {
+				col = "#6b6b6b"
+			}
+			parts, closed := n.Projection.Loop(r.Outline)
+			fill := "none"
+			if closed {
+				fill = col
+			}
+			for _, p := range parts {
+				s.printf(`<path d="%s" fill="%s" fill-opacity="0.12" stroke="%s"><title>%s</title></path>`+"\n", pathOf(p, closed), fill, col, esc(r.Label))
 			}
 		}
 		s.printf("</g>\n")
@@ -467,6 +501,16 @@ func (s *svgw) panel(n Net) float64 {
 	if n.CirclesNote != "" {
 		s.printf(`<path d="M%.1f %.1fh12" stroke="#6b6b6b" stroke-dasharray="4 3"/>`+"\n", panelX, y-4)
 		s.printf(`<text x="%.1f" y="%.1f" font-size="11">%s</text>`+"\n", panelX+16, y, esc(n.CirclesNote))
+		y += 16
+	}
+	if n.RegionsNote != "" {
+		s.printf(`<path d="M%.1f %.1fq6 -8 12 0" fill="#6b6b6b" fill-opacity="0.12" stroke="#6b6b6b" stroke-width="0.9"/>`+"\n", panelX, y-2)
+		for i, t := range wrapText(n.RegionsNote, panelChars(11)-3) {
+			if i > 0 {
+				y += 13
+			}
+			s.printf(`<text x="%.1f" y="%.1f" font-size="11">%s</text>`+"\n", panelX+16, y, esc(t))
+		}
 		y += 16
 	}
 	if len(n.Zones) > 0 {

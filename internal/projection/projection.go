@@ -165,6 +165,53 @@ func (k Kind) SmallCircle(a geom.Vec3, half float64, n int) (parts [][]Point, cl
 	for i := range pts {
 		pts[i] = at(step * float64(i))
 	}
+	// A crossing of the horizontal between samples i and i+1: bisect on
+	// the circle.
+	cross := func(i int) geom.Vec3 {
+		lo := step * float64(i)
+		hi := lo + step
+		loUp := at(lo).Z > 0
+		for it := 0; it < 60; it++ {
+			mid := (lo + hi) / 2
+			if (at(mid).Z > 0) == loUp {
+				lo = mid
+			} else {
+				hi = mid
+			}
+		}
+		return at((lo + hi) / 2)
+	}
+	return k.loop(pts, cross)
+}
+
+// Loop returns the projection of a closed loop of directions pts (the
+// outline of a region, e.g. the 95% region of a measured pole), as
+// SmallCircle does for a circle: one closed polygon when the loop lies in
+// the lower hemisphere, else its parts in each hemisphere (those above
+// folded to the lower) split where it crosses the horizontal.
+func (k Kind) Loop(pts []geom.Vec3) (parts [][]Point, closed bool) {
+	cross := func(i int) geom.Vec3 {
+		a, b := pts[i%len(pts)], pts[(i+1)%len(pts)]
+		lo, hi := 0.0, 1.0
+		loUp := a.Z > 0
+		for it := 0; it < 60; it++ {
+			mid := (lo + hi) / 2
+			if (a.Scale(1-mid).Add(b.Scale(mid)).Z > 0) == loUp {
+				lo = mid
+			} else {
+				hi = mid
+			}
+		}
+		t := (lo + hi) / 2
+		return a.Scale(1 - t).Add(b.Scale(t)).Unit()
+	}
+	return k.loop(pts, cross)
+}
+
+// loop splits the closed loop pts at the horizontal; cross(i) is the
+// crossing between pts[i] and pts[i+1] (indices modulo len(pts)).
+func (k Kind) loop(pts []geom.Vec3, cross func(i int) geom.Vec3) (parts [][]Point, closed bool) {
+	n := len(pts)
 	allLow := true
 	for _, p := range pts {
 		if p.Z > 0 {
@@ -208,19 +255,8 @@ func (k Kind) SmallCircle(a geom.Vec3, half float64, n int) (parts [][]Point, cl
 		p := pts[(start+m)%n]
 		up := p.Z > 0
 		if m > 0 && up != curUp {
-			// crossing between the previous sample and p: bisect on the circle
-			lo := step * float64(start+m-1)
-			hi := lo + step
-			loUp := !up
-			for it := 0; it < 60; it++ {
-				mid := (lo + hi) / 2
-				if (at(mid).Z > 0) == loUp {
-					lo = mid
-				} else {
-					hi = mid
-				}
-			}
-			x := at((lo + hi) / 2)
+			// crossing between the previous sample and p
+			x := cross(start + m - 1)
 			x.Z = 0
 			cur = append(cur, x)
 			flush()

@@ -164,3 +164,58 @@ func TestSmallCircleParts(t *testing.T) {
 		}
 	}
 }
+
+// Loop splits any closed loop of directions as SmallCircle splits a circle:
+// a small circle sampled as a loop gives the same parts (a loop below the
+// horizontal one closed polygon; one crossing it two open parts ending on
+// the primitive circle), and every point keeps its angle from the axis
+// (the crossings by bisection on the chord, renormalised, lie within the
+// chord's sag of the circle).
+func TestLoop(t *testing.T) {
+	for _, k := range []Kind{EqualArea, EqualAngle} {
+		for _, c := range []struct {
+			axis geom.Vec3
+			half float64
+		}{{geom.FromTrendPlunge(40, 60), 10}, {geom.FromTrendPlunge(75, 4), 12}, {geom.FromTrendPlunge(300, 0), 8}} {
+			const n = 180
+			// the circle about the axis as a loop of directions (the axis's
+			// lower end, as SmallCircle takes it)
+			a := c.axis.Lower()
+			u := a.Cross(geom.Vec3{Y: 1}).Unit()
+			w := a.Cross(u)
+			sh, ch := math.Sincos(geom.Rad(c.half))
+			pts := make([]geom.Vec3, n)
+			for i := range pts {
+				s, co := math.Sincos(2 * math.Pi * float64(i) / n)
+				pts[i] = a.Scale(ch).Add(u.Scale(sh * co)).Add(w.Scale(sh * s))
+			}
+			parts, closed := k.Loop(pts)
+			want, wantClosed := k.SmallCircle(c.axis, c.half, n)
+			if closed != wantClosed || len(parts) != len(want) {
+				t.Fatalf("%v %v: loop closed=%v in %d parts, small circle closed=%v in %d", k, c.axis, closed, len(parts), wantClosed, len(want))
+			}
+			for _, part := range parts {
+				for j, p := range part {
+					if math.Hypot(p.X, p.Y) > 1+1e-9 {
+						t.Fatalf("%v: point outside the primitive circle", k)
+					}
+					v, _ := k.Inverse(p)
+					tol := 1e-9
+					if !closed && (j == 0 || j == len(part)-1) {
+						tol = 0.01 // a crossing on the chord between samples 2 deg apart
+					}
+					if d := geom.AxialAngle(v, c.axis); math.Abs(d-c.half) > tol {
+						t.Fatalf("%v %v: point %d at %v deg from the axis, want %v", k, c.axis, j, d, c.half)
+					}
+				}
+				if !closed {
+					for _, end := range []Point{part[0], part[len(part)-1]} {
+						if r := math.Hypot(end.X, end.Y); math.Abs(r-1) > 1e-9 {
+							t.Errorf("%v: open part ends at radius %v", k, r)
+						}
+					}
+				}
+			}
+		}
+	}
+}

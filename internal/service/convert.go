@@ -4,7 +4,9 @@ import (
 	"context"
 	"fmt"
 	"strconv"
+	"strings"
 
+	"corvane/internal/convert"
 	"corvane/internal/domain"
 )
 
@@ -18,6 +20,10 @@ type ConvertRequest struct {
 	Collars      []ConvertCollar      `json:"collars"`
 	Surveys      []ConvertSurvey      `json:"surveys"`
 	Measurements []ConvertMeasurement `json:"measurements"`
+	// MonteCarlo runs the Monte Carlo of every measurement's region (as
+	// corvane convert --monte-carlo); by default it runs only where first
+	// order is known to be unreliable.
+	MonteCarlo bool `json:"monte_carlo"`
 }
 
 // ConvertCollar is a hole's collar (dip negative down).
@@ -62,6 +68,13 @@ type ConvertMeasurement struct {
 	Gamma             *float64 `json:"gamma"`
 	Type              string   `json:"type"`
 	ApparentThickness *float64 `json:"apparent_thickness"`
+	// RunConfidence and RunMismatch describe the orientation run holding
+	// the measurement (good, fair, poor or none; 0..180 degrees), as the
+	// structures file's run_confidence and run_mismatch columns: they set
+	// the mark's error of the uncertainty and the run's warning. Absent:
+	// no run is known (an unrated mark).
+	RunConfidence string   `json:"run_confidence"`
+	RunMismatch   *float64 `json:"run_mismatch"`
 }
 
 // ConvertResult is one converted measurement, in request order.
@@ -115,6 +128,9 @@ func (s *Service) Convert(ctx context.Context, req ConvertRequest) (ConvertRespo
 	}
 	models := map[string]*holeModel{}
 	ms := perMeasurement.Fork()
+	if req.MonteCarlo {
+		ms = convert.NewMeasurer(true)
+	}
 	for i, cl := range req.Collars {
 		h := domain.Hole{Name: cl.HoleID, East: cl.East, North: cl.North, Elevation: cl.Elevation,
 			Azimuth: cl.Azimuth, AzimuthRef: orDefault(cl.AzimuthRef, c.OutputAzimuthRef), Dip: cl.Dip, FinalDepth: cl.FinalDepth, CRS: cl.CRS,
@@ -150,7 +166,21 @@ func (s *Service) Convert(ctx context.Context, req ConvertRequest) (ConvertRespo
 		case err != nil:
 			r.Derived = Derived{AzimuthRef: c.OutputAzimuthRef, Warnings: []string{}, Error: err.Error()}
 		default:
+			// The run as the request describes it: one run covering the
+			// measurement, so the hole model's run rules apply as at the
+			// store's doors.
+			hm.runs = hm.runs[:0]
+			if m.RunConfidence != "" || m.RunMismatch != nil {
+				run := domain.Run{HoleID: 1, From: dm.Depth, To: dm.Depth + 1, Confidence: strings.ToLower(m.RunConfidence), Mismatch: m.RunMismatch}
+				if err := run.Normalize(); err != nil {
+					r.Derived = Derived{AzimuthRef: c.OutputAzimuthRef, Warnings: []string{}, Error: prefixField(err, "measurements["+strconv.Itoa(i)+"].run_").Error()}
+					break
+				}
+				run.Confidence = strings.ToLower(m.RunConfidence) // a mismatch alone: an unrated run, as in the files
+				hm.runs = append(hm.runs, run)
+			}
 			r.Derived = hm.derive(dm.Depth, dm.Alpha, dm.Beta, dm.Gamma, dm.ApparentThickness)
+			r.Derived.RunFrom = nil // the request names no run start
 		}
 		resp.Results[i] = r
 	}

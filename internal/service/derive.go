@@ -75,6 +75,9 @@ type Derived struct {
 	LineLong95  *float64 `json:"line_long95"`
 	LineShort95 *float64 `json:"line_short95"`
 	LineMethod  string   `json:"line_method"`
+	// SurveyInstrument is the instrument of the survey in use, whose errors
+	// the regions carry: magnetic, gyro or unknown.
+	SurveyInstrument string `json:"survey_instrument"`
 	// Unoriented is true for a measurement without beta: the hole
 	// direction, position and angle to the core axis are known, the dip
 	// direction, strike, pole and line are null (the dip too, except in a
@@ -87,8 +90,14 @@ type Derived struct {
 	// no survey.
 	SurveySet string `json:"survey_set,omitempty"`
 	// RunConfidence is the confidence of the orientation run covering the
-	// depth, "" when no run covers it.
-	RunConfidence string `json:"run_confidence"`
+	// depth, "" when no run covers it; RunMismatch the mismatch logged for
+	// it (null when none) and RunFrom the depth where it starts (null when
+	// no run covers the depth, and in POST /v1/convert, which names no run
+	// start): measurements with the same RunFrom in a hole share one mark
+	// error in the set statistics.
+	RunConfidence string   `json:"run_confidence"`
+	RunMismatch   *float64 `json:"run_mismatch"`
+	RunFrom       *float64 `json:"run_from"`
 	// Warnings are short phrases, e.g. "hole near vertical".
 	Warnings []string `json:"warnings"`
 	// Error explains why nothing could be computed.
@@ -223,7 +232,7 @@ func newHoleModel(c Conventions, h domain.Hole, ss *domain.SurveySet, runs []dom
 
 // perMeasurement holds the normals of uncertainty.PerMeasurement, drawn
 // once; each request forks its own measurer from it.
-var perMeasurement = uncertainty.NewMeasurer(uncertainty.PerMeasurement)
+var perMeasurement = convert.NewMeasurer(false)
 
 // uncertainty returns the 95% regions of the measurement oriented as r (nil
 // when it has none), with the run covering its depth.
@@ -317,7 +326,11 @@ func (m *holeModel) derived(depth float64, r *holemodel.Result, err error, u *un
 			d.LineCone95, d.LineLong95, d.LineShort95, d.LineMethod = &g.Cone95, &g.Long95, &g.Short95, u.Line.Used
 		}
 	}
+	d.SurveyInstrument = string(convert.SurveyInstrument(m.Hole))
 	d.RunConfidence, d.Warnings = m.runAt(depth, d.Warnings)
+	if run := m.runCovering(depth); run != nil {
+		d.RunMismatch, d.RunFrom = run.Mismatch, &run.From
+	}
 	return d
 }
 
@@ -335,11 +348,8 @@ func (m *holeModel) runCovering(depth float64) *domain.Run {
 // when none) and warn with the run's warning added.
 func (m *holeModel) runAt(depth float64, warn []string) (string, []string) {
 	if r := m.runCovering(depth); r != nil {
-		switch r.Confidence {
-		case "none":
-			warn = append(warn, "orientation run rated unusable")
-		case "poor":
-			warn = append(warn, "orientation run rated poor")
+		if w := convert.RunWarning(r.Confidence); w != "" {
+			warn = append(warn, w)
 		}
 		return r.Confidence, warn
 	}

@@ -16,12 +16,15 @@ import (
 )
 
 // ExportColumns are the columns of the measurements export: the stored
-// fields with the converter's input names and the run confidence, then the
+// fields with the converter's input names and the covering run's confidence,
+// mismatch and start depth (the structures file's run columns of `corvane
+// convert` and `corvane stats`, which the measurements import leaves alone:
+// runs import as runs), then the
 // derived values in the columns, order and decimals of `corvane convert`
 // (convert.OutputColumns, written by convert.WriteResult: one writer).
 var ExportColumns = append([]string{
 	"id", "hole_id", "depth", "alpha", "beta", "gamma", "apparent_thickness", "type", "comment", "logged_by", "logged_at",
-	"run_confidence",
+	"run_confidence", "run_mismatch", "run_from",
 }, convert.OutputColumns(true)...)
 
 // exportPage is the number of rows read from the store at a time.
@@ -76,6 +79,8 @@ func (s *Service) exportMeasurements(ctx context.Context, st domain.Store, proje
 			cw.Strings([]string{m.TypeCode, m.Comment, m.LoggedBy, m.LoggedAt.UTC().Format(time.RFC3339)})
 			if oerr != nil {
 				cw.Empty() // run_confidence
+				cw.Empty() // run_mismatch
+				cw.Empty() // run_from
 				convert.WriteError(cw, true, oerr.Error())
 			} else {
 				warn = warn[:0]
@@ -85,6 +90,12 @@ func (s *Service) exportMeasurements(ctx context.Context, st domain.Store, proje
 				var conf string
 				conf, warn = hm.runAt(m.Depth, warn)
 				cw.String(conf)
+				var mismatch, from *float64
+				if run := hm.runCovering(m.Depth); run != nil {
+					mismatch, from = run.Mismatch, &run.From
+				}
+				optFloat(cw, mismatch, 2)
+				optFloat(cw, from, 3)
 				scratch = convert.WriteResult(cw, &r, hm.Hole, true, strings.Join(warn, "; "), nil, scratch, hm.uncertainty(&r, hmm))
 				cw.Empty() // error
 			}

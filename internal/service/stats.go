@@ -8,6 +8,7 @@ import (
 	"math"
 	"strings"
 
+	"corvane/internal/convert"
 	"corvane/internal/dirstat"
 	"corvane/internal/domain"
 	"corvane/internal/fabric"
@@ -16,6 +17,7 @@ import (
 	"corvane/internal/netsvg"
 	"corvane/internal/projection"
 	"corvane/internal/structdomain"
+	"corvane/internal/uncertainty"
 )
 
 // MaxStatsMeasurements bounds the measurements one statistics or net request
@@ -39,6 +41,9 @@ type StatsQuery struct {
 	SetQuery
 	Of        string // "both" (default), "planes" or "lines"
 	Weighting string // "", "none", "terzaghi" or "terzaghi:CAP"
+	// Uncertainty is "" or "true" (the sets carry the measurement errors of
+	// the project's error model) or "false": fabric.ParseUncertainty.
+	Uncertainty string
 }
 
 // optionErr turns a fabric option error into an Invalid error naming the
@@ -133,7 +138,9 @@ func (s *Service) eachRow(ctx context.Context, projectID int64, q MeasurementQue
 				return
 			}
 			r, _, oerr := hm.orient(m.Depth, m.Alpha, m.Beta, m.Gamma, m.ApparentThickness)
-			fn(*m, hm.name, fabricRow(m.TypeCode, &r, oerr))
+			row := fabricRow(m.TypeCode, &r, oerr)
+			row.Errors = hm.rowErrors(p.ErrorModel, m.Depth)
+			fn(*m, hm.name, row)
 			n++
 		}
 		if len(ms) < domain.MaxLimit {
@@ -141,6 +148,22 @@ func (s *Service) eachRow(ctx context.Context, projectID int64, q MeasurementQue
 		}
 		after = ms[len(ms)-1].ID
 	}
+}
+
+// rowErrors is the measurement errors, under the error model em, of the
+// statistics row of a measurement at depth in the hole: its survey
+// instrument and the run covering the depth, as the derived values give
+// them (survey_instrument, run_confidence, run_mismatch, run_from: the
+// columns corvane stats reads).
+func (m *holeModel) rowErrors(em uncertainty.Model, depth float64) *fabric.Errors {
+	conf, mismatch, from := "", math.NaN(), math.NaN()
+	if run := m.runCovering(depth); run != nil {
+		conf, from = run.Confidence, run.From
+		if run.Mismatch != nil {
+			mismatch = *run.Mismatch
+		}
+	}
+	return fabric.RowErrors(em, m.name, string(convert.SurveyInstrument(m.Hole)), conf, mismatch, from)
 }
 
 // fabricRow is the pipeline's row of a measurement of type typ oriented as
@@ -186,6 +209,10 @@ func (s *Service) Statistics(ctx context.Context, projectID int64, q StatsQuery)
 	if _, err := fabric.ParseOf(q.Of); err != nil {
 		return fabric.Report{}, optionErr(err)
 	}
+	unc, err := fabric.ParseUncertainty(q.Uncertainty)
+	if err != nil {
+		return fabric.Report{}, optionErr(err)
+	}
 	p, in, err := s.gather(ctx, projectID, q.MeasurementQuery)
 	if err != nil {
 		return fabric.Report{}, err
@@ -193,7 +220,7 @@ func (s *Service) Statistics(ctx context.Context, projectID int64, q StatsQuery)
 	if err := ctx.Err(); err != nil {
 		return fabric.Report{}, err
 	}
-	rep, err := fabric.Stats(in, fabric.Options{Of: q.Of, Sets: sets, Weighting: w})
+	rep, err := fabric.Stats(in, fabric.Options{Of: q.Of, Sets: sets, Weighting: w, Uncertainty: unc, ErrorModel: p.ErrorModel})
 	if err != nil {
 		return fabric.Report{}, optionErr(err)
 	}
@@ -218,6 +245,9 @@ type NetQuery struct {
 	// the filter, only the domain's drawn. Stored measurements carry no rock
 	// type, so a domain of rock types draws nothing.
 	Domain string
+	// Regions selects the measurements whose 95% uncertainty regions are
+	// drawn (fabric.ParseRegions), with the project's error model.
+	Regions string
 }
 
 // Net writes the SVG net of the measurements passing q to w (read), from
@@ -243,6 +273,9 @@ func (s *Service) Net(ctx context.Context, projectID int64, q NetQuery, w io.Wri
 	}
 	if o.Weighting, err = parseWeighting(q.Weighting); err != nil {
 		return err
+	}
+	if o.Regions, err = fabric.ParseRegions(q.Regions); err != nil {
+		return optionErr(err)
 	}
 	var dom *structdomain.Domain
 	if q.Domain != "" {

@@ -90,3 +90,94 @@ func TestBananaShape(t *testing.T) {
 		}
 	}
 }
+
+// The qualitative results of Stigsson & Munier (2013, Computers &
+// Geosciences 55, "Orientation uncertainty goes bananas"), reproduced where
+// they follow from the geometry. Their figures and tables are not
+// available here (not in the project's shared references, and not
+// remembered reliably), so no number of theirs is asserted. What is from
+// memory: that the paper samples the alpha, beta and borehole errors by
+// Monte Carlo, shows the sampled poles as bent, banana-like clouds along
+// the small circle about the borehole axis, and finds the beta (rotation)
+// error weighing most on planes at a small alpha. Each check below is
+// derived here from the conventions (conventions.md: the pole lies 90 -
+// alpha from the core axis, and beta turns it about the axis), not taken
+// from the paper:
+//
+//  1. With errors in alpha and in the turn about the axis only (no survey
+//     error), the pole moves along the small circle by the turn times
+//     sin(90 - alpha) = cos(alpha) and across it by the alpha error, so the
+//     95% region has semi-axes sqrt(chi2(2, 0.95)) sigma_turn cos(alpha)
+//     along the circle and sqrt(chi2(2, 0.95)) sigma_alpha across it. The
+//     region lies along the small circle (orientation 0) and its
+//     elongation, long/short = cos(alpha) sigma_turn / sigma_alpha, grows
+//     as alpha gets small: the asymmetry of the region between the two
+//     directions grows as alpha falls.
+//  2. The bend: the ends of the region stay on the small circle, 90 -
+//     alpha from the axis, while the straight (great-circle) chord through
+//     the pole in the same direction leaves it; the ends sag toward the
+//     axis: at an arc d from the pole the chord is acos(cos(phi) cos(d))
+//     from the axis, the small circle phi. Relative to the region's length
+//     the bend grows as alpha grows (the small circle tightens), so the
+//     banana is most bent for planes nearly square to the core and
+//     straightest for planes along it.
+//  3. The Monte Carlo draws agree with both: their 95% region has the same
+//     orientation and semi-axes within Monte Carlo error.
+func TestBananaQualitative(t *testing.T) {
+	chi := math.Sqrt(chi2q95)
+	const sa, sb, mark = 2.0, 3.0, 12.0
+	turn := math.Hypot(sb, mark)
+	var lastRatio, lastBend float64
+	for i, alpha := range []float64{75, 60, 45, 30, 15} {
+		rd := Reading{Hole: geom.HoleDirection(120, -60), Alpha: alpha, Beta: 200, Gamma: math.NaN(),
+			Sigma: Sigmas{Alpha: sa, Beta: sb, Mark: mark, Azimuth: 1e-9, Dip: 1e-9}}
+		res, err := Measure(rd, MC{Draws: 4000, Seed: 9})
+		if err != nil {
+			t.Fatal(err)
+		}
+		e := res.Pole
+		fo, mc := e.FirstOrder, *e.MonteCarlo
+		c := math.Cos(geom.Rad(alpha))
+		wantLong, wantShort := chi*turn*c, chi*sa
+		if wantLong < wantShort {
+			wantLong, wantShort = wantShort, wantLong
+		}
+		if math.Abs(fo.Long95-wantLong) > 1e-3*wantLong || math.Abs(fo.Short95-wantShort) > 1e-3*wantShort || fo.Orientation > 0.1 {
+			t.Errorf("alpha %v: first order %.3f x %.3f at %.2f deg, derived %.3f x %.3f along the small circle", alpha, fo.Long95, fo.Short95, fo.Orientation, wantLong, wantShort)
+		}
+		if math.Abs(mc.Long95-wantLong) > 0.05*wantLong || math.Abs(mc.Short95-wantShort) > 0.05*wantLong || mc.Orientation > 3 {
+			t.Errorf("alpha %v: Monte Carlo %.3f x %.3f at %.2f deg, derived %.3f x %.3f", alpha, mc.Long95, mc.Short95, mc.Orientation, wantLong, wantShort)
+		}
+		// The bend: the region's ends against the straight chord. An end
+		// of the long axis (the outline's first point, the region lying
+		// along the circle) keeps the pole's angle from the core axis,
+		// while a great circle through the pole in the same direction
+		// reaches farther from the axis.
+		h := rd.Hole
+		pole := geom.FromTrendPlunge(e.Trend, e.Plunge)
+		if pole.Dot(h) < 0 {
+			pole = pole.Neg()
+		}
+		phi := geom.Angle(pole, h)
+		end := e.Outline(4)[0]
+		if end.Dot(h) < 0 {
+			end = end.Neg()
+		}
+		far := geom.Angle(end, pole)
+		if dphi := math.Abs(geom.Angle(end, h) - phi); dphi > 0.01 {
+			t.Errorf("alpha %v: the region's end is %.3f deg off the small circle", alpha, dphi)
+		}
+		// The great circle through the pole tangent to the small circle
+		// reaches, at the same arc far, an angle from the axis of
+		// acos(cos(phi) cos(far)); the bend is that less phi, per degree
+		// of length.
+		chord := geom.Deg(math.Acos(math.Cos(geom.Rad(phi)) * math.Cos(geom.Rad(far))))
+		bend := (chord - phi) / far
+		ratio := fo.Long95 / fo.Short95
+		t.Logf("alpha %v: pole %.1f deg from the axis, region %.2f x %.2f (elongation %.2f), bend %.4f deg per deg", alpha, phi, fo.Long95, fo.Short95, ratio, bend)
+		if i > 0 && !(ratio > lastRatio && bend < lastBend) {
+			t.Errorf("alpha %v: elongation %.3f (before %.3f) should grow and bend %.4f (before %.4f) fall as alpha falls", alpha, ratio, lastRatio, bend, lastBend)
+		}
+		lastRatio, lastBend = ratio, bend
+	}
+}

@@ -48,9 +48,32 @@ var ErrVertical = errors.New("uncertainty: vertical hole, the measurement has no
 
 // MC sets the Monte Carlo run: Draws per measurement (0 skips Monte Carlo)
 // and the seed; with the same seed the results are the same on every run.
+// With WhenNeeded, a measurement gets its Monte Carlo run only where
+// first-order propagation is known to be unreliable ([NeedsMonteCarlo]);
+// otherwise every measurement gets one.
 type MC struct {
-	Draws int    `json:"draws"`
-	Seed  uint64 `json:"seed"`
+	Draws      int    `json:"draws"`
+	Seed       uint64 `json:"seed"`
+	WhenNeeded bool   `json:"when_needed"`
+}
+
+// NearAxisFactor is the rule of [NeedsMonteCarlo]: first-order
+// propagation is taken as unreliable for a direction lying within
+// NearAxisFactor times its first-order long semi-axis of the core axis. There
+// the region wraps round the axis or crosses it (an alpha near 90 for a
+// pole): the small circle it follows is too tight for a linear
+// approximation. Away from the axis the region coordinates follow the core
+// axis, so even large mark errors stay linear in them. Tested in
+// TestRuleFindsWhereFirstOrderFails: where the rule keeps first order, a
+// Monte Carlo run of 4,000 draws agrees with it within [Agreement] over a
+// sweep of holes, angles and error models (mark errors up to 60 degrees).
+const NearAxisFactor = 1.5
+
+// NeedsMonteCarlo reports whether the first-order region fo of a direction
+// lying phi degrees from the core axis (0..90, either end) is known to be
+// unreliable (see [NearAxisFactor]).
+func NeedsMonteCarlo(phi float64, fo Region) bool {
+	return phi < NearAxisFactor*fo.Long95
 }
 
 // Region is a 95% region around a measured pole or line.
@@ -87,16 +110,27 @@ type Estimate struct {
 	MonteCarlo *Region `json:"monte_carlo,omitempty"`
 	Draws      int     `json:"draws"`
 	// Used is "first-order" when no Monte Carlo was run or the two cones and
-	// both semi-axes agree within [Agreement], else "monte-carlo" (the errors
-	// are too large for the linear approximation).
+	// both semi-axes agree within [Agreement]; "monte-carlo" when they do not
+	// (the errors are too large for the linear approximation) or when
+	// [NeedsMonteCarlo] says first order is unreliable here.
 	Used string `json:"used"`
 
 	cs coords
 }
 
 // Agreement is the relative difference of the first-order and Monte Carlo
-// cones up to which the first-order region is used.
+// regions up to which the first-order region is used (see [Agrees]).
 const Agreement = 0.10
+
+// Agrees reports whether the first-order region fo agrees with the Monte
+// Carlo region mc: cones within Agreement of the Monte Carlo cone, and each
+// semi-axis within Agreement of the Monte Carlo long semi-axis (a short
+// semi-axis of a degree beside a long one of twenty is not held to 10% of
+// itself: its error is a small part of the region's size).
+func Agrees(fo, mc Region) bool {
+	return math.Abs(fo.Cone95-mc.Cone95) <= Agreement*mc.Cone95 && math.Abs(fo.Long95-mc.Long95) <= Agreement*mc.Long95 &&
+		math.Abs(fo.Short95-mc.Short95) <= Agreement*mc.Long95
+}
 
 // Result is the uncertainty of a measurement's pole and, when it has one, of
 // its lineation.
@@ -130,14 +164,26 @@ func (e *Estimate) InRegion(v geom.Vec3) bool {
 // Boundary returns n points around the elongated region in use, lower
 // hemisphere, for drawing on a net.
 func (e *Estimate) Boundary(n int) []geom.Line {
+	out := make([]geom.Line, n)
+	for i, v := range e.Outline(n) {
+		out[i] = geom.LineOf(v)
+	}
+	return out
+}
+
+// Outline returns n unit vectors (world frame) around the elongated region
+// in use, continuous around it: a region that crosses the horizontal keeps
+// its points on one side of the measured direction's end instead of
+// folding them to the lower hemisphere (see [Estimate.Boundary]).
+func (e *Estimate) Outline(n int) []geom.Vec3 {
 	r := e.Region()
 	a, b, th := r.axes()
-	out := make([]geom.Line, n)
+	out := make([]geom.Vec3, n)
 	st, ct := math.Sincos(th)
 	for i := range out {
 		s, c := math.Sincos(2 * math.Pi * float64(i) / float64(n))
 		x, y := a*c, b*s
-		out[i] = geom.LineOf(e.cs.world(e.cs.inv(x*ct-y*st, x*st+y*ct)))
+		out[i] = e.cs.world(e.cs.inv(x*ct-y*st, x*st+y*ct))
 	}
 	return out
 }
@@ -369,7 +415,13 @@ func newCoords(m *model, v0 geom.Vec3) coords {
 }
 
 func (c *coords) frameOf(v geom.Vec3) geom.Vec3 { return c.m.frameOf(v) }
-func (c *coords) world(v geom.Vec3) geom.Vec3   { return c.m.world(v) }
+
+// phi returns the angle, degrees (0..90), of the nominal direction from the
+// core axis.
+func (c *coords) phi() float64 {
+	return geom.Deg(math.Atan2(math.Hypot(c.v0.X, c.v0.Y), c.v0.Z))
+}
+func (c *coords) world(v geom.Vec3) geom.Vec3 { return c.m.world(v) }
 
 // of returns the region coordinates, degrees, of the axis v (frame
 // coordinates, either end).
@@ -480,12 +532,14 @@ func (z normals) table(sig [5]float64, t table) table {
 // scratch holds one worker's Monte Carlo buffers and a cache of tables by
 // standard errors.
 type scratch struct {
-	z      normals
-	u, w   [2][]float64
-	c      [2][]float64 // 1 - |cos| of the angle from the measured direction
-	sel    []float64
-	tables map[[5]float64]table
-	spare  table
+	z normals
+	// whenNeeded: run the Monte Carlo only where NeedsMonteCarlo says so.
+	whenNeeded bool
+	u, w       [2][]float64
+	c          [2][]float64 // 1 - |cos| of the angle from the measured direction
+	sel        []float64
+	tables     map[[5]float64]table
+	spare      table
 }
 
 // maxTables bounds the tables a worker keeps (80 kB each at 1,000 draws).
@@ -512,7 +566,7 @@ func (sc *scratch) tableFor(sig [5]float64) table {
 // Monte Carlo. It returns [ErrVertical] in a vertical hole. Measure gives the
 // same result as [MeasureAll] with the same mc.
 func Measure(r Reading, mc MC) (Result, error) {
-	sc := scratch{}
+	sc := scratch{whenNeeded: mc.WhenNeeded}
 	if mc.Draws > 0 {
 		sc.z = newNormals(mc)
 	}
@@ -534,6 +588,7 @@ func measure(r Reading, sc *scratch) (Result, error) {
 		nd = 2
 	}
 	est := [2]Estimate{}
+	var need [2]bool
 	for i := 0; i < nd; i++ {
 		e := &est[i]
 		e.cs = cs[i]
@@ -545,9 +600,15 @@ func measure(r Reading, sc *scratch) (Result, error) {
 		e.Trend, e.Plunge = ln.Trend, ln.Plunge
 		e.FirstOrder = m.firstOrder(&cs[i], i)
 		e.Used = "first-order"
+		need[i] = NeedsMonteCarlo(cs[i].phi(), e.FirstOrder)
 	}
-	if len(sc.z) > 0 {
+	if len(sc.z) > 0 && (!sc.whenNeeded || need[0] || need[1]) {
 		mcRegions(m, cs[:nd], sc.tableFor(m.sig), sc, est[:nd])
+		for i := 0; i < nd; i++ {
+			if need[i] {
+				est[i].Used = "monte-carlo"
+			}
+		}
 	}
 	res.Pole = est[0]
 	if nd == 2 {
@@ -601,8 +662,7 @@ func mcRegions(m *model, cs []coords, tab table, sc *scratch, est []Estimate) {
 		}
 		r.finish()
 		e.MonteCarlo, e.Draws = r, draws
-		if fo := e.FirstOrder; math.Abs(fo.Cone95-r.Cone95) > Agreement*r.Cone95 || math.Abs(fo.Long95-r.Long95) > Agreement*r.Long95 ||
-			math.Abs(fo.Short95-r.Short95) > Agreement*r.Short95 {
+		if !Agrees(e.FirstOrder, *r) {
 			e.Used = "monte-carlo"
 		}
 	}
@@ -625,7 +685,7 @@ func MeasureAll(rs []Reading, mc MC, workers int) (out []Result, errs []error) {
 		lo, hi := w*chunk, min((w+1)*chunk, len(rs))
 		go func() {
 			defer func() { done <- struct{}{} }()
-			sc := scratch{z: z}
+			sc := scratch{z: z, whenNeeded: mc.WhenNeeded}
 			for i := lo; i < hi; i++ {
 				out[i], errs[i] = measure(rs[i], &sc)
 			}
@@ -640,8 +700,16 @@ func MeasureAll(rs []Reading, mc MC, workers int) (out []Result, errs []error) {
 // PerMeasurement is the Monte Carlo run every door uses for per-measurement
 // regions (convert output, API, export, preview, net): 1,000 draws and a
 // fixed seed, so every door gives the same figures for the same
-// measurement.
-var PerMeasurement = MC{Draws: 1000, Seed: 12}
+// measurement, run only where first order is known to be unreliable
+// ([NeedsMonteCarlo]). [Always] gives the run for every measurement, when
+// asked.
+var PerMeasurement = MC{Draws: 1000, Seed: 12, WhenNeeded: true}
+
+// Always returns mc with a Monte Carlo run for every measurement.
+func Always(mc MC) MC {
+	mc.WhenNeeded = false
+	return mc
+}
 
 // Measurer measures one reading at a time with the normals of one Monte
 // Carlo run, for callers that convert row by row (a CSV stream, a page of
@@ -652,7 +720,7 @@ type Measurer struct{ sc scratch }
 
 // NewMeasurer draws the normals of mc once.
 func NewMeasurer(mc MC) *Measurer {
-	m := &Measurer{}
+	m := &Measurer{sc: scratch{whenNeeded: mc.WhenNeeded}}
 	if mc.Draws > 0 {
 		m.sc.z = newNormals(mc)
 	}
@@ -660,7 +728,9 @@ func NewMeasurer(mc MC) *Measurer {
 }
 
 // Fork returns a Measurer with the same normals and buffers of its own.
-func (m *Measurer) Fork() *Measurer { return &Measurer{sc: scratch{z: m.sc.z}} }
+func (m *Measurer) Fork() *Measurer {
+	return &Measurer{sc: scratch{z: m.sc.z, whenNeeded: m.sc.whenNeeded}}
+}
 
 // Measure is [Measure] for one reading.
 func (m *Measurer) Measure(r Reading) (Result, error) { return measure(r, &m.sc) }

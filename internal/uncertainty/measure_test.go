@@ -285,3 +285,40 @@ func TestExactReading(t *testing.T) {
 		}
 	}
 }
+
+// Outline is the boundary unfolded: the same axes as Boundary, on the
+// region's boundary, and continuous (neighbouring points a few degrees
+// apart) even for a pole near the horizontal whose region crosses it, where
+// Boundary's lower-hemisphere points jump to the antipode.
+func TestOutlineContinuous(t *testing.T) {
+	rd := Reading{Hole: geom.HoleDirection(0, -45), Alpha: 45, Beta: 0, Gamma: math.NaN(),
+		Sigma: Sigmas{Alpha: 2, Beta: 3, Mark: 10, Azimuth: 3, Dip: 0.5}}
+	res, err := Measure(rd, PerMeasurement)
+	if err != nil {
+		t.Fatal(err)
+	}
+	e := res.Pole
+	if e.Plunge > 5 {
+		t.Fatalf("pole plunge %v: the case needs a pole near the horizontal", e.Plunge)
+	}
+	const n = 72
+	out, bnd := e.Outline(n), e.Boundary(n)
+	up, jumps := 0, 0
+	for i, v := range out {
+		if geom.AxialAngle(v, bnd[i].Vec()) > 1e-9 {
+			t.Fatalf("point %d: outline %v, boundary %v", i, v, bnd[i])
+		}
+		if v.Z > 0 {
+			up++
+		}
+		if geom.Angle(v, out[(i+1)%n]) > 5 {
+			t.Errorf("outline points %d and %d are %.1f deg apart", i, i+1, geom.Angle(v, out[(i+1)%n]))
+		}
+		if geom.Angle(bnd[i].Vec(), bnd[(i+1)%n].Vec()) > 90 {
+			jumps++
+		}
+	}
+	if up == 0 || jumps == 0 {
+		t.Errorf("the region does not cross the horizontal (%d points above, %d jumps in the boundary)", up, jumps)
+	}
+}

@@ -60,7 +60,19 @@ type SetResult struct {
 // SetMean returns the uncertainty of the mean pole of the members (see
 // [SetResult]), by Monte Carlo with mc.Draws trials (at least 100) seeded by
 // mc.Seed.
-func SetMean(ms []Member, mc MC) (SetResult, error) {
+func SetMean(ms []Member, mc MC) (SetResult, error) { return setMean(ms, mc, false) }
+
+// SetMeanLines is [SetMean] for the members' lineations (every member needs
+// a gamma): the gamma reading is drawn per member besides alpha and beta.
+func SetMeanLines(ms []Member, mc MC) (SetResult, error) { return setMean(ms, mc, true) }
+
+func setMean(ms []Member, mc MC, lines bool) (SetResult, error) {
+	dir := func(n, l geom.Vec3) geom.Vec3 {
+		if lines {
+			return l
+		}
+		return n
+	}
 	if len(ms) == 0 {
 		return SetResult{}, dirstat.ErrTooFew
 	}
@@ -78,9 +90,11 @@ func SetMean(ms []Member, mc MC) (SetResult, error) {
 		if err != nil {
 			return SetResult{}, err
 		}
+		if lines && !md.hasGamma {
+			return SetResult{}, errors.New("uncertainty: a member of a set of lines has no gamma")
+		}
 		models[i] = md
-		n, _ := md.eval(0, 0, 0, 0, 0)
-		poles[i] = md.world(n)
+		poles[i] = md.world(dir(md.eval(0, 0, 0, 0, 0)))
 		k, ok := runs[m.Run]
 		if !ok || m.Run == "" {
 			k = len(markSig)
@@ -140,18 +154,19 @@ func SetMean(ms []Member, mc MC) (SetResult, error) {
 			sig := ms[i].Sigma
 			// Shared errors only: the mark and the survey interval's.
 			tab := [10]float64{0, 1, mk[0], mk[1], 0, 1, sv[0], sv[1], sv[2], sv[3]}
-			n, _ := md.evalSC(&tab)
-			sumShared = sumShared.Add(md.world(n).Scale(sign[i]))
+			sumShared = sumShared.Add(md.world(dir(md.evalSC(&tab))).Scale(sign[i]))
 			// All errors: the member's readings added to the shared ones
 			// (beta reading and mark add as angles).
 			tab[0], tab[1] = sincos(geom.Rad(sig.Alpha) * r.NormFloat64())
 			sb, cb := sincos(geom.Rad(sig.Beta) * r.NormFloat64())
 			tab[2], tab[3] = sb*mk[1]+cb*mk[0], cb*mk[1]-sb*mk[0]
-			n, _ = md.evalSC(&tab)
-			sumAll = sumAll.Add(md.world(n).Scale(sign[i]))
+			if lines {
+				tab[4], tab[5] = sincos(geom.Rad(sig.Gamma) * r.NormFloat64())
+			}
+			sumAll = sumAll.Add(md.world(dir(md.evalSC(&tab))).Scale(sign[i]))
 			// The shared sources drawn for this member alone.
-			n, _ = md.eval(0, geom.Rad(sig.Mark)*r.NormFloat64(), 0, geom.Rad(sig.Azimuth)*r.NormFloat64(), geom.Rad(sig.Dip)*r.NormFloat64())
-			sumIndep = sumIndep.Add(md.world(n).Scale(sign[i]))
+			v := dir(md.eval(0, geom.Rad(sig.Mark)*r.NormFloat64(), 0, geom.Rad(sig.Azimuth)*r.NormFloat64(), geom.Rad(sig.Dip)*r.NormFloat64()))
+			sumIndep = sumIndep.Add(md.world(v).Scale(sign[i]))
 		}
 		all[t] = geom.Angle(sumAll, mean)
 		sms[t] = sumShared.Unit()

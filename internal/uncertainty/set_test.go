@@ -19,29 +19,41 @@ func tangentScatter(r *rand.Rand, v geom.Vec3, sd float64) geom.Vec3 {
 	return v.Add(t1.Scale(math.Tan(a))).Add(t2.Scale(math.Tan(b))).Unit()
 }
 
-// simulateSet draws a set of poles of one fabric (true mean mu, scatter sd)
-// logged in runs of perRun measurements in holes: each run's mark error and
-// each hole's survey error is drawn once, each reading's errors per member.
-func simulateSet(r *rand.Rand, mu geom.Vec3, sd float64, holes [][2]float64, runs, perRun int, m Model, conf string, k Instrument) []Member {
+// simulateRuns logs perRun measurements in each of runs runs in each of
+// holes (azimuth, dip): each run's mark error and each hole's survey error
+// is drawn once; one(h, mark) returns a member logged with the true hole
+// direction h and the run's mark error, its hole then replaced by the
+// surveyed one and its keys set.
+func simulateRuns(r *rand.Rand, holes [][2]float64, runs, perRun int, sig Sigmas, one func(h geom.Vec3, mark float64) Member) []Member {
 	var out []Member
-	sig := m.Sigmas(k, conf, math.NaN(), 0)
 	for hi, hd := range holes {
 		h := geom.HoleDirection(hd[0], hd[1])
 		mAz, mDip := hd[0]+sig.Azimuth*r.NormFloat64(), hd[1]+sig.Dip*r.NormFloat64()
 		for ru := 0; ru < runs; ru++ {
 			mark := sig.Mark * r.NormFloat64()
 			for j := 0; j < perRun; j++ {
-				p := tangentScatter(r, mu, sd)
-				a, b, _ := coreangle.Angles(h, geom.PlaneOf(p), coreangle.Convention{})
-				a += sig.Alpha * r.NormFloat64()
-				b += sig.Beta*r.NormFloat64() + mark
-				a, b = coreangle.Fold(a, b)
-				out = append(out, Member{Reading: Reading{Hole: geom.HoleDirection(mAz, mDip), Alpha: a, Beta: geom.NormAzimuth(b),
-					Gamma: math.NaN(), Sigma: sig}, Run: fmt.Sprint(hi, "/", ru), Survey: fmt.Sprint(hi)})
+				m := one(h, mark)
+				m.Hole, m.Sigma, m.Run, m.Survey = geom.HoleDirection(mAz, mDip), sig, fmt.Sprint(hi, "/", ru), fmt.Sprint(hi)
+				out = append(out, m)
 			}
 		}
 	}
 	return out
+}
+
+// simulateSet draws a set of poles of one fabric (true mean mu, scatter sd)
+// logged in runs of perRun measurements in holes (simulateRuns), each
+// reading's errors drawn per member.
+func simulateSet(r *rand.Rand, mu geom.Vec3, sd float64, holes [][2]float64, runs, perRun int, m Model, conf string, k Instrument) []Member {
+	sig := m.Sigmas(k, conf, math.NaN(), 0)
+	return simulateRuns(r, holes, runs, perRun, sig, func(h geom.Vec3, mark float64) Member {
+		p := tangentScatter(r, mu, sd)
+		a, b, _ := coreangle.Angles(h, geom.PlaneOf(p), coreangle.Convention{})
+		a += sig.Alpha * r.NormFloat64()
+		b += sig.Beta*r.NormFloat64() + mark
+		a, b = coreangle.Fold(a, b)
+		return Member{Reading: Reading{Alpha: a, Beta: geom.NormAzimuth(b), Gamma: math.NaN()}}
+	})
 }
 
 // Coverage of the set's combined cone: sets simulated with a known fabric
@@ -92,5 +104,71 @@ func TestSetCoverage(t *testing.T) {
 				t.Errorf("Fisher cone alone holds the mean in %.1f%%: the shared errors should show", 100*ff)
 			}
 		})
+	}
+}
+
+// simulateLineSet draws a set of lineations of one fabric (true mean mu,
+// scatter sd), each on a plane through it at a random angle, logged as
+// alpha, beta and gamma in runs of perRun measurements in holes, with the
+// shared and per-member errors of simulateSet and a gamma reading error. A
+// member whose plane lies within 10 degrees of square to the core or of
+// the core axis is drawn again (so that no reading folds past 0 or 90).
+func simulateLineSet(r *rand.Rand, mu geom.Vec3, sd float64, holes [][2]float64, runs, perRun int, m Model, conf string, k Instrument) []Member {
+	sig := m.Sigmas(k, conf, math.NaN(), 0)
+	return simulateRuns(r, holes, runs, perRun, sig, func(h geom.Vec3, mark float64) Member {
+		for {
+			l := tangentScatter(r, mu, sd)
+			t1 := perpendicular(l)
+			t2 := l.Cross(t1)
+			s, c := math.Sincos(2 * math.Pi * r.Float64())
+			pl := geom.PlaneOf(t1.Scale(c).Add(t2.Scale(s)))
+			a, b, _ := coreangle.Angles(h, pl, coreangle.Convention{})
+			g, err := coreangle.Gamma(h, pl, geom.LineOf(l), coreangle.Convention{})
+			if err != nil || a < 10 || a > 80 {
+				continue
+			}
+			a += sig.Alpha * r.NormFloat64()
+			b += sig.Beta*r.NormFloat64() + mark
+			g += sig.Gamma * r.NormFloat64()
+			return Member{Reading: Reading{Alpha: a, Beta: geom.NormAzimuth(b), Gamma: geom.NormAzimuth(g)}}
+		}
+	})
+}
+
+// Coverage of a set of lineations' combined cone (SetMeanLines), as for
+// poles: 93-97% of simulated sets hold the true mean line.
+func TestLineSetCoverage(t *testing.T) {
+	mu := geom.FromTrendPlunge(200, 35)
+	holes := [][2]float64{{300, -60}, {20, -55}}
+	cases := []struct {
+		conf string
+		k    Instrument
+		sd   float64
+	}{{"good", UnknownSurvey, 8}, {"poor", Magnetic, 4}}
+	const trials = 600
+	for ci, c := range cases {
+		t.Run(c.conf, func(t *testing.T) {
+			t.Parallel()
+			r := rand.New(rand.NewPCG(31, uint64(ci)))
+			in := 0
+			for i := 0; i < trials; i++ {
+				ms := simulateLineSet(r, mu, c.sd, holes, 2, 3, Model{}, c.conf, c.k)
+				res, err := SetMeanLines(ms, MC{Draws: 150, Seed: uint64(i)})
+				if err != nil {
+					t.Fatal(err)
+				}
+				if geom.AxialAngle(mu, geom.FromTrendPlunge(res.Trend, res.Plunge)) <= res.Combined95 {
+					in++
+				}
+			}
+			f := float64(in) / trials
+			t.Logf("%s marks: combined cone holds the true mean line in %.1f%%", c.conf, 100*f)
+			if f < 0.93 || f > 0.97 {
+				t.Errorf("combined cone holds the true mean line in %.1f%% of %d sets, want 93-97%%", 100*f, trials)
+			}
+		})
+	}
+	if _, err := SetMeanLines([]Member{{Reading: Reading{Hole: geom.HoleDirection(0, -60), Alpha: 40, Beta: 10, Gamma: math.NaN()}}}, MC{Draws: 100}); err == nil {
+		t.Error("a member without gamma accepted in a set of lines")
 	}
 }
