@@ -47,11 +47,13 @@ func writeHoleSummary(w io.Writer, hs *convert.Holes, srows []csvio.SurveyRow, c
 		}
 		depths[s.HoleID] = append(depths[s.HoleID], s.Station.Depth)
 	}
-	num := func(v float64) string {
+	// The corrections at the derived values' precision (convert.Decimals),
+	// as the hole's corrections in the service's JSON.
+	num := func(v float64, col string) string {
 		if math.IsNaN(v) {
 			return ""
 		}
-		return string(csvio.AppendFloat(nil, v, 3))
+		return csvio.FormatFloat(v, convert.Decimals(col))
 	}
 	cw := csv.NewWriter(w)
 	if err := cw.Write(holeSummaryColumns); err != nil {
@@ -72,7 +74,7 @@ func writeHoleSummary(w io.Writer, hs *convert.Holes, srows []csvio.SurveyRow, c
 			}
 			if !dup {
 				got = append(got, c)
-				vals, srcs = append(vals, num(c.Value)), append(srcs, string(c.Source))
+				vals, srcs = append(vals, num(c.Value, convert.ColDeclination)), append(srcs, string(c.Source))
 			}
 		}
 		c := counts[h.ID]
@@ -84,7 +86,7 @@ func writeHoleSummary(w io.Writer, hs *convert.Holes, srows []csvio.SurveyRow, c
 			msg = h.Err.Error()
 		}
 		if err := cw.Write([]string{h.ID, h.Survey, strings.Join(refs[h.ID], ";"), out,
-			strings.Join(vals, ";"), strings.Join(srcs, ";"), num(h.Convergence.Value), string(h.Convergence.Source),
+			strings.Join(vals, ";"), strings.Join(srcs, ";"), num(h.Convergence.Value, convert.ColGridConvergence), string(h.Convergence.Source),
 			strconv.Itoa(c.rows), strconv.Itoa(c.warn), strconv.Itoa(c.bad), h.Caution(), msg}); err != nil {
 			return err
 		}
