@@ -162,6 +162,8 @@ func TestGeotechEqualAtEveryDoor(t *testing.T) {
 		{"slope check", []string{"slope-check", "--in", in, "--sets", "type", "--face", "65/180", "--friction", "30"}, "/slope-check?sets=type&face=65/180&friction=30"},
 		{"slope check one type, lateral", []string{"slope-check", "--in", in, "--type", "joint", "--sets", "auto:2", "--face", "70/200", "--friction", "25", "--lateral", "30"},
 			"/slope-check?type=joint&sets=auto:2&face=70/200&friction=25&lateral=30"},
+		{"slope check of a domain", []string{"slope-check", "--in", in, "--sets", "auto:3", "--face", "65/180", "--friction", "30", "--domain", doms[1]},
+			"/slope-check?sets=auto:3&face=65/180&friction=30&domain=" + url.QueryEscape(doms[1])},
 	}
 	for _, c := range cases {
 		code, stdout, stderr := runCmd(t, c.cli...)
@@ -185,10 +187,23 @@ func TestGeotechEqualAtEveryDoor(t *testing.T) {
 		}
 	}
 
+	// A domain checks only its measurements: the domain of the whole first
+	// hole counts what the hole filter selects, fewer than all.
+	q := "/slope-check?sets=type&face=65/180&friction=30"
+	whole := decodeJSON(t, "route", getRoute(t, srv, token, base+q))
+	hole := decodeJSON(t, "route", getRoute(t, srv, token, base+q+"&hole="+url.QueryEscape(holes[0])))
+	dom := decodeJSON(t, "route", getRoute(t, srv, token, base+q+"&domain="+url.QueryEscape("D="+holes[0])))
+	if dom["domain"] != "D" || !reflect.DeepEqual(dom["measurements"], hole["measurements"]) || reflect.DeepEqual(dom["measurements"], whole["measurements"]) {
+		t.Errorf("slope check of domain D=%s: %v %v; want the hole's %v, not all %v", holes[0], dom["domain"], dom["measurements"], hole["measurements"], whole["measurements"])
+	}
+
 	// The nets of the slope check, one per check, with the caution.
-	prefix := filepath.Join(t.TempDir(), "slope")
+	prefix, domPrefix := filepath.Join(t.TempDir(), "slope"), filepath.Join(t.TempDir(), "domain")
 	if code, _, stderr := runCmd(t, "slope-check", "--in", in, "--sets", "type", "--face", "65/180", "--friction", "30", "--svg", prefix); code != ExitOK {
 		t.Fatalf("slope-check --svg: exit %d: %s", code, stderr)
+	}
+	if code, _, stderr := runCmd(t, "slope-check", "--in", in, "--sets", "type", "--face", "65/180", "--friction", "30", "--domain", doms[0], "--svg", domPrefix); code != ExitOK {
+		t.Fatalf("slope-check --domain --svg: exit %d: %s", code, stderr)
 	}
 	// The net of the sets and the unoriented measurements' cones.
 	svg := filepath.Join(t.TempDir(), "spacing.svg")
@@ -223,6 +238,16 @@ func TestGeotechEqualAtEveryDoor(t *testing.T) {
 		}
 		if !bytes.Contains(route, []byte("Kinematically possible is not unstable")) {
 			t.Errorf("%s: the route's net has no caution", check)
+		}
+		cli, err = os.ReadFile(domPrefix + "-" + check + ".svg")
+		if err != nil {
+			t.Fatal(err)
+		}
+		cli = bytes.ReplaceAll(cli, []byte(">geo.csv"), []byte(">all measurements"))
+		route = getRoute(t, srv, token, base+"/slope-check/"+check+"?sets=type&face=65/180&friction=30&domain="+url.QueryEscape(doms[0]))
+		if !bytes.Equal(cli, route) || !bytes.Contains(route, []byte("domain "+holes[0])) {
+			t.Errorf("%s of a domain: the CLI's net (%d bytes) and the route's (%d bytes) differ at byte %d, or do not name the domain",
+				check, len(cli), len(route), firstDiff(cli, route))
 		}
 	}
 }

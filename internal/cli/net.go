@@ -101,13 +101,9 @@ func runNet(_ context.Context, env *Env, args []string) int {
 	if err != nil {
 		return fail(err)
 	}
-	var dom *structdomain.Domain
-	if domainSpec != "" {
-		d, err := structdomain.ParseOne(string(domainSpec))
-		if err != nil {
-			return fail(fmt.Errorf("--domain %v", err))
-		}
-		dom = &d
+	dom, err := domainSpec.domain()
+	if err != nil {
+		return fail(err)
 	}
 	readOpt := csvio.OrientationOptions{Geotech: dom != nil} // the rock type, read as corvane domains reads it
 	oi, err := loadOrientationsWith(env, c.in, c.typ, readOpt, em)
@@ -143,15 +139,28 @@ func orientSource(oi *orientInput, typ string) string {
 	return s
 }
 
-// onceFlag is a string flag that may be given once.
+// onceFlag is the --domain of net and slope-check: one structural domain,
+// given once.
 type onceFlag string
 
 func (f *onceFlag) String() string { return string(*f) }
 
 func (f *onceFlag) Set(s string) error {
 	if *f != "" {
-		return errors.New("given twice; a net draws one domain (run once per domain)")
+		return errors.New("given twice; one domain at a time (run once per domain)")
 	}
 	*f = onceFlag(s)
 	return nil
+}
+
+// domain parses the domain given (nil when none).
+func (f onceFlag) domain() (*structdomain.Domain, error) {
+	if f == "" {
+		return nil, nil
+	}
+	d, err := structdomain.ParseOne(string(f))
+	if err != nil {
+		return nil, fmt.Errorf("--domain %v", err)
+	}
+	return &d, nil
 }

@@ -8,6 +8,7 @@ import (
 	"corvane/internal/geotech"
 	"corvane/internal/kinematic"
 	"corvane/internal/projection"
+	"corvane/internal/structdomain"
 )
 
 func init() {
@@ -21,6 +22,7 @@ func init() {
 const slopeCheckUsage = `Usage:
   corvane slope-check --in FILE --face DIP/DIP_DIRECTION --friction PHI [--lateral 20]
                       [--sets auto:N | --set NAME:TREND/PLUNGE:CONE ...] [--type TYPE]
+                      [--domain ` + structdomain.Syntax + `]
                       [--svg PREFIX] [--projection equal-area|equal-angle] [-o OUT.json]
 
 Checks every plane of the input (dip, dip_direction columns, as corvane convert writes)
@@ -46,6 +48,11 @@ pair of set means. With --svg PREFIX, one net per check is written to PREFIX-pla
 PREFIX-wedge.svg, PREFIX-flexural.svg and PREFIX-direct.svg, the critical zones shaded.
 Unoriented measurements (no dip) cannot be checked and are counted as left out.
 
+With --domain only the rows of one structural domain are checked (as corvane domains
+defines it; the file needs hole_id and depth, and rock_type for a domain of rock types).
+Sets are formed on all rows, so each set keeps the name it has in corvane stats, net and
+domains; a set's mean is that of its members in the domain. Run once per domain.
+
 ` + kinematic.Caution + `
 
 Options:
@@ -60,6 +67,8 @@ func runSlopeCheck(_ context.Context, env *Env, args []string) int {
 	lateral := fs.Float64("lateral", kinematic.DefaultLateral, "lateral limit in degrees")
 	svg := fs.String("svg", "", "write one net per check to PREFIX-planar.svg, PREFIX-wedge.svg, PREFIX-flexural.svg, PREFIX-direct.svg")
 	proj := fs.String("projection", "equal-area", "equal-area or equal-angle (for --svg)")
+	var domainSpec onceFlag
+	fs.Var(&domainSpec, "domain", "check only this structural domain "+structdomain.Syntax+" (once; sets still formed on all rows)")
 	fail, code, done := parseOrientArgs(env, fs, "slope-check", args)
 	if done {
 		return code
@@ -79,17 +88,21 @@ func runSlopeCheck(_ context.Context, env *Env, args []string) int {
 	if err != nil {
 		return fail(err)
 	}
+	dom, err := domainSpec.domain()
+	if err != nil {
+		return fail(err)
+	}
 	gi, so, err := loadGeo(env, &c)
 	if err != nil {
 		return fail(err)
 	}
-	rep, err := geotech.Slope(gi.in, p, so)
+	rep, err := geotech.Slope(gi.in, p, so, dom)
 	if err != nil {
 		return fail(fmt.Errorf("%s: %w", gi.file, err))
 	}
 	rep.Input, rep.TypeFilter, rep.Problems = gi.file, c.typ, gi.problems
 	if *svg != "" {
-		nets, err := geotech.SlopeNets(gi.in, p, so, kind, filepath.Base(gi.file))
+		nets, err := geotech.SlopeNets(gi.in, p, so, dom, kind, filepath.Base(gi.file))
 		if err != nil {
 			return fail(err)
 		}

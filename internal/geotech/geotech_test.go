@@ -71,7 +71,7 @@ func TestSpacingReport(t *testing.T) {
 func TestSlopeReport(t *testing.T) {
 	p := kinematic.Params{Face: geom.Plane{Dip: 60, DipDirection: 180}, Friction: 30, Lateral: 20}
 	in := testInput()
-	rep, err := Slope(in, p, flatSet)
+	rep, err := Slope(in, p, flatSet, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -83,18 +83,18 @@ func TestSlopeReport(t *testing.T) {
 			in.Rows[i].Plane = geom.Plane{Dip: 45, DipDirection: 180}
 		}
 	}
-	rep, err = Slope(in, p, fabric.Sets{})
+	rep, err = Slope(in, p, fabric.Sets{}, nil)
 	if err != nil {
 		t.Fatal(err)
 	}
 	if rep.All.Planar.Count != 10 || float64(rep.All.Planar.Percent) != 100 || rep.All.Intersections != 0 {
 		t.Errorf("%+v", rep.All)
 	}
-	nets, err := SlopeNets(in, p, fabric.Sets{}, projection.EqualArea, "x")
+	nets, err := SlopeNets(in, p, fabric.Sets{}, nil, projection.EqualArea, "x")
 	if err != nil || len(nets) != len(SlopeChecks) || len(nets[0].Zones) == 0 || nets[0].Face == nil {
 		t.Errorf("nets: %v", err)
 	}
-	if _, err := Slope(Input{Rows: []Row{{Unoriented: true}}}, p, fabric.Sets{}); err == nil || !strings.Contains(err.Error(), "no planes") {
+	if _, err := Slope(Input{Rows: []Row{{Unoriented: true}}}, p, fabric.Sets{}, nil); err == nil || !strings.Contains(err.Error(), "no planes") {
 		t.Errorf("no planes: %v", err)
 	}
 }
@@ -139,5 +139,49 @@ func TestIntervalsReport(t *testing.T) {
 	rep = Intervals([]IntervalRow{{HoleID: "A", Interval: iv}}, true)
 	if got := float64(rep.All.RQD); math.Abs(got-100*(0.38+0.43)/2) > 1e-6 || rep.LengthUnit != "ft" {
 		t.Errorf("feet: RQD %v", got)
+	}
+}
+
+// TestSlopeReportDomain: with a domain only its rows are checked. Planes of
+// 45/180 above 10 m (planar cases under a 60/180 face, friction 30) and flat
+// below; the domain "top" (0..10 m) counts the five planar cases out of five
+// poles, its set mean is the 45/180 of its members, the set keeps its name,
+// and the unoriented row at 20 m is outside it. The nets draw the domain's
+// poles only and name the domain.
+func TestSlopeReportDomain(t *testing.T) {
+	p := kinematic.Params{Face: geom.Plane{Dip: 60, DipDirection: 180}, Friction: 30, Lateral: 20}
+	in := testInput()
+	for i := range in.Rows {
+		if in.Rows[i].HasPlane && in.Rows[i].Depth < 10 {
+			in.Rows[i].Plane = geom.Plane{Dip: 45, DipDirection: 180}
+		}
+	}
+	sets := fabric.Sets{Windows: []dirstat.Window{{Name: "all", Centre: geom.Vec3{Z: -1}, Cone: 90}}}
+	whole, err := Slope(in, p, sets, nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if whole.All.Poles != 10 || whole.All.Planar.Count != 5 || whole.Unoriented != 1 || whole.Domain != "" {
+		t.Fatalf("whole hole: %+v unoriented %d", whole.All, whole.Unoriented)
+	}
+	top := structdomain.Domain{Name: "top", Parts: []structdomain.Part{{Hole: "H", From: 0, To: 10}}}
+	rep, err := Slope(in, p, sets, &top)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rep.Domain != "top" || rep.All.Poles != 5 || rep.All.Planar.Count != 5 || float64(rep.All.Planar.Percent) != 100 || rep.Unoriented != 0 {
+		t.Errorf("domain top: %q %+v unoriented %d", rep.Domain, rep.All, rep.Unoriented)
+	}
+	if len(rep.Sets) != 1 || rep.Sets[0].Name != "all" || rep.Sets[0].Count != 5 || !rep.Sets[0].Planar ||
+		math.Abs(float64(*rep.Sets[0].Mean.Dip)-45) > 1e-9 || math.Abs(float64(*rep.Sets[0].Mean.DipDirection)-180) > 1e-9 {
+		t.Errorf("domain top: sets %+v", rep.Sets)
+	}
+	nets, err := SlopeNets(in, p, sets, &top, projection.EqualArea, "x")
+	if err != nil || len(nets[0].Poles) != 5 || nets[0].Subtitle != "x, domain top" || nets[0].Sets[0].Count != 5 {
+		t.Errorf("nets of the domain: %v", err)
+	}
+	far := structdomain.Domain{Name: "far", Parts: []structdomain.Part{{Hole: "other", From: 0, To: math.Inf(1)}}}
+	if _, err := Slope(in, p, sets, &far); err == nil || !strings.Contains(err.Error(), "domain far") {
+		t.Errorf("empty domain: %v", err)
 	}
 }

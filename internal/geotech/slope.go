@@ -10,6 +10,7 @@ import (
 	"corvane/internal/kinematic"
 	"corvane/internal/netsvg"
 	"corvane/internal/projection"
+	"corvane/internal/structdomain"
 )
 
 // ZoneCount is a count in a critical zone and its percentage.
@@ -63,9 +64,11 @@ type SlopePair struct {
 }
 
 // SlopeReport is the report of [Slope]. Input, TypeFilter, Problems and SVG
-// are filled in by the door.
+// are filled in by the door. Domain names the structural domain checked,
+// absent when every row is.
 type SlopeReport struct {
 	Source
+	Domain     string      `json:"domain,omitempty"`
 	Face       fabric.Mean `json:"face"`
 	Friction   fabric.Num  `json:"friction_angle"`
 	Lateral    fabric.Num  `json:"lateral_limit"`
@@ -93,19 +96,23 @@ var SlopeMethods = []string{
 // slopeWork is what the report and the nets share.
 type slopeWork struct {
 	g         *sets
-	planes    []geom.Plane // per pole of g
+	poles     []int        // the poles of g checked (all, or the domain's)
+	planes    []geom.Plane // per pole checked
 	setMarks  []netsvg.SetMark
 	pairLines []netsvg.Mark
 }
 
 // Slope checks every plane, every pair of planes, each set's mean plane and
-// each pair of set means against the face in p (sets optional).
-func Slope(in Input, p kinematic.Params, s fabric.Sets) (SlopeReport, error) {
-	rep, _, err := slope(in, p, s)
+// each pair of set means against the face in p (sets optional). With a
+// domain (nil: every row), only the rows in it are checked: the sets are
+// formed on every row, as for the net and the domains report, so each set
+// keeps its name, and a set's mean is that of its members in the domain.
+func Slope(in Input, p kinematic.Params, s fabric.Sets, dom *structdomain.Domain) (SlopeReport, error) {
+	rep, _, err := slope(in, p, s, dom)
 	return rep, err
 }
 
-func slope(in Input, p kinematic.Params, s fabric.Sets) (SlopeReport, *slopeWork, error) {
+func slope(in Input, p kinematic.Params, s fabric.Sets, dom *structdomain.Domain) (SlopeReport, *slopeWork, error) {
 	if err := p.Validate(); err != nil {
 		return SlopeReport{}, nil, err
 	}
@@ -114,15 +121,21 @@ func slope(in Input, p kinematic.Params, s fabric.Sets) (SlopeReport, *slopeWork
 		return SlopeReport{}, nil, err
 	}
 	w := &slopeWork{g: g}
-	for _, ri := range g.rows {
-		w.planes = append(w.planes, in.Rows[ri].Plane)
+	for k, ri := range g.rows {
+		if inDomain(in.Rows[ri], dom) {
+			w.poles = append(w.poles, k)
+			w.planes = append(w.planes, in.Rows[ri].Plane)
+		}
 	}
 	if len(w.planes) == 0 {
+		if dom != nil {
+			return SlopeReport{}, nil, fmt.Errorf("no planes to check in domain %s", dom.Name)
+		}
 		return SlopeReport{}, nil, fmt.Errorf("no planes to check")
 	}
 	unoriented := 0
 	for _, r := range in.Rows {
-		if r.Unoriented {
+		if r.Unoriented && inDomain(r, dom) {
 			unoriented++
 		}
 	}
@@ -130,13 +143,16 @@ func slope(in Input, p kinematic.Params, s fabric.Sets) (SlopeReport, *slopeWork
 		Face:     fabric.Mean{Dip: numPtr(p.Face.Dip), DipDirection: numPtr(p.Face.DipDirection)},
 		Friction: fabric.Num(p.Friction), Lateral: fabric.Num(p.Lateral), Methods: SlopeMethods, Unoriented: unoriented,
 		All: countsOf(p.Count(w.planes)), SetMethod: g.method, Caution: kinematic.Caution}
+	if dom != nil {
+		rep.Domain = dom.Name
+	}
 	var means []geom.Plane
 	for j, name := range g.names {
 		var members []geom.Plane
 		var vs []geom.Vec3
-		for k := range g.rows {
+		for i, k := range w.poles {
 			if g.assign[k] == j {
-				members = append(members, w.planes[k])
+				members = append(members, w.planes[i])
 				vs = append(vs, g.axes[k])
 			}
 		}
@@ -185,16 +201,20 @@ var SlopeChecks = []string{"planar", "wedge", "flexural", "direct"}
 
 // SlopeNets returns one net per check (see [SlopeChecks]) with its critical
 // zones shaded, the face, the friction circle, the poles (or the set means'
-// intersections) and the counts.
-func SlopeNets(in Input, p kinematic.Params, s fabric.Sets, kind projection.Kind, subtitle string) ([]netsvg.Net, error) {
-	rep, w, err := slope(in, p, s)
+// intersections) and the counts; with a domain, of the rows in it (see
+// [Slope]), the domain named after the subtitle.
+func SlopeNets(in Input, p kinematic.Params, s fabric.Sets, dom *structdomain.Domain, kind projection.Kind, subtitle string) ([]netsvg.Net, error) {
+	rep, w, err := slope(in, p, s, dom)
 	if err != nil {
 		return nil, err
 	}
+	if dom != nil {
+		subtitle += ", domain " + dom.Name
+	}
 	all := rep.All
 	var poles []netsvg.Mark
-	for k, v := range w.g.axes {
-		poles = append(poles, netsvg.Mark{Axis: v, Set: w.g.assign[k]})
+	for _, k := range w.poles {
+		poles = append(poles, netsvg.Mark{Axis: w.g.axes[k], Set: w.g.assign[k]})
 	}
 	pct := func(c ZoneCount) string {
 		return strconv.Itoa(c.Count) + " (" + strconv.FormatFloat(float64(c.Percent), 'f', 1, 64) + "%)"

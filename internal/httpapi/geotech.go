@@ -26,13 +26,26 @@ func geoQuery(c *gin.Context) (service.GeoQuery, error) {
 	return service.GeoQuery{MeasurementQuery: mq, SetQuery: sq, Domains: c.QueryArray("domain")}, nil
 }
 
+// oneDomain reads the domain parameter of a net or a slope check: one
+// structural domain at most (as their --domain options), "" when none.
+func oneDomain(c *gin.Context) (string, error) {
+	if ds := c.QueryArray("domain"); len(ds) > 1 {
+		return "", domain.FieldErr("domain", "one domain at a time; got %d (ask once per domain)", len(ds))
+	}
+	return c.Query("domain"), nil
+}
+
 // slopeQuery reads the slope check's options: face, friction, lateral.
 func slopeQuery(c *gin.Context) (service.SlopeQuery, error) {
 	gq, err := geoQuery(c)
 	if err != nil {
 		return service.SlopeQuery{}, err
 	}
+	gq.Domains = nil // one domain, read below as the net reads it
 	q := service.SlopeQuery{GeoQuery: gq, Face: c.Query("face")}
+	if q.Domain, err = oneDomain(c); err != nil {
+		return q, err
+	}
 	f, err := numParam(c, "friction")
 	if err != nil {
 		return q, err

@@ -813,10 +813,10 @@ func (s *Server) net(c *gin.Context) {
 		return
 	}
 	q := service.NetQuery{MeasurementQuery: mq, SetQuery: sq, Weighting: c.Query("weighting"), Projection: c.Query("projection"),
-		Show: c.Query("show"), Density: c.Query("density"), Units: c.Query("units"), Title: c.Query("title"), Domain: c.Query("domain"),
+		Show: c.Query("show"), Density: c.Query("density"), Units: c.Query("units"), Title: c.Query("title"),
 		Regions: c.Query("regions")}
-	if ds := c.QueryArray("domain"); len(ds) > 1 {
-		fail(c, domain.FieldErr("domain", "a net draws one domain; got %d (ask once per domain)", len(ds)))
+	if q.Domain, err = oneDomain(c); err != nil {
+		fail(c, err)
 		return
 	}
 	if v := c.Query("grid"); v != "" {

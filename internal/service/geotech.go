@@ -46,11 +46,17 @@ type SpacingQuery struct {
 
 // SlopeQuery is the slope check's query: the options of corvane
 // slope-check. Face is DIP/DIP_DIRECTION; Lateral nil means the default.
+// Domain, when not "", checks one structural domain (structdomain.Syntax)
+// as corvane slope-check --domain does: sets formed on every measurement
+// passing the filter, only the domain's checked (see geotech.Slope); the
+// GeoQuery's Domains are not used. Stored measurements carry no rock type,
+// so a domain of rock types has nothing to check.
 type SlopeQuery struct {
 	GeoQuery
 	Face     string
 	Friction float64
 	Lateral  *float64
+	Domain   string
 }
 
 // geotechRow is the geotechnical pipeline's row for a derived measurement:
@@ -289,11 +295,15 @@ func (s *Service) SlopeCheck(ctx context.Context, projectID int64, q SlopeQuery)
 	if err != nil {
 		return geotech.SlopeReport{}, err
 	}
+	dom, err := oneDomain(q.Domain)
+	if err != nil {
+		return geotech.SlopeReport{}, err
+	}
 	sets, in, err := s.setsAndInput(ctx, projectID, q.GeoQuery)
 	if err != nil {
 		return geotech.SlopeReport{}, err
 	}
-	rep, err := geotech.Slope(in, p, sets)
+	rep, err := geotech.Slope(in, p, sets, dom)
 	if err != nil {
 		return rep, geoFail(err)
 	}
@@ -335,11 +345,15 @@ func (s *Service) SlopeNet(ctx context.Context, projectID int64, q SlopeQuery, c
 	if err != nil {
 		return err
 	}
+	dom, err := oneDomain(q.Domain)
+	if err != nil {
+		return err
+	}
 	sets, in, err := s.setsAndInput(ctx, projectID, q.GeoQuery)
 	if err != nil {
 		return err
 	}
-	nets, err := geotech.SlopeNets(in, p, sets, kind, describe(q.MeasurementQuery))
+	nets, err := geotech.SlopeNets(in, p, sets, dom, kind, describe(q.MeasurementQuery))
 	if err != nil {
 		return geoFail(err)
 	}

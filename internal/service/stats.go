@@ -277,14 +277,12 @@ func (s *Service) Net(ctx context.Context, projectID int64, q NetQuery, w io.Wri
 	if o.Regions, err = fabric.ParseRegions(q.Regions); err != nil {
 		return optionErr(err)
 	}
-	var dom *structdomain.Domain
-	if q.Domain != "" {
-		d, err := structdomain.ParseOne(q.Domain)
-		if err != nil {
-			return domain.FieldErr("domain", "domain %v", err)
-		}
-		dom = &d
-		o.Part = &fabric.Part{Name: "domain " + d.Name}
+	dom, err := oneDomain(q.Domain)
+	if err != nil {
+		return err
+	}
+	if dom != nil {
+		o.Part = &fabric.Part{Name: "domain " + dom.Name}
 	}
 	in, err := s.sheetWith(ctx, projectID, q.MeasurementQuery, &o.Title, &o.Source, &o.AzimuthRef, func(m domain.Measurement, hole string) {
 		if dom != nil {
@@ -310,6 +308,19 @@ func (s *Service) Net(ctx context.Context, projectID int64, q NetQuery, w io.Wri
 		return err
 	}
 	return netsvg.WriteNet(w, n)
+}
+
+// oneDomain reads the one structural domain of a net or a slope check
+// (structdomain.Syntax; nil for ""), as their --domain options do.
+func oneDomain(s string) (*structdomain.Domain, error) {
+	if s == "" {
+		return nil, nil
+	}
+	d, err := structdomain.ParseOne(s)
+	if err != nil {
+		return nil, domain.FieldErr("domain", "domain %v", err)
+	}
+	return &d, nil
 }
 
 // sheet gathers the measurements of a net or rose sheet and fills in its
