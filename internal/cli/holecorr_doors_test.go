@@ -3,7 +3,6 @@ package cli
 import (
 	"encoding/json"
 	"fmt"
-	"path/filepath"
 	"strconv"
 	"testing"
 )
@@ -17,14 +16,7 @@ import (
 func TestHoleCorrectionsEqualAtEveryDoor(t *testing.T) {
 	ctx, svc, p := demoService(t)
 	srv, token := readerServer(t, ctx, svc, p.ID)
-	dir := t.TempDir()
-	out, sum := filepath.Join(dir, "out.csv"), filepath.Join(dir, "holes.csv")
-	d := "../../testdata/zelvorra/"
-	code, _, stderr := runCLI("convert", "--collars", d+"collars.csv", "--surveys", d+"surveys.csv", "--structures", d+"structures.csv",
-		"-o", out, "--hole-summary", sum)
-	if code != ExitOK {
-		t.Fatalf("exit %d: %s", code, stderr)
-	}
+	_, _, sum, _ := demoHoleSummary(t)
 	csvHoles := map[string]map[string]string{}
 	for _, h := range readCSV(t, sum) {
 		csvHoles[h["hole_id"]] = h

@@ -44,6 +44,22 @@ func atoi(t *testing.T, s string) int {
 	return n
 }
 
+// demoHoleSummary converts the demo programme's files with --hole-summary
+// and returns their directory, the converted file, the hole summary and the
+// command's standard error.
+func demoHoleSummary(t *testing.T) (dir, out, sum, stderr string) {
+	t.Helper()
+	tmp := t.TempDir()
+	out, sum = filepath.Join(tmp, "out.csv"), filepath.Join(tmp, "holes.csv")
+	dir = "../../testdata/zelvorra/"
+	code, _, stderr := runCLI("convert", "--collars", dir+"collars.csv", "--surveys", dir+"surveys.csv", "--structures", dir+"structures.csv",
+		"-o", out, "--hole-summary", sum)
+	if code != ExitOK {
+		t.Fatalf("exit %d: %s", code, stderr)
+	}
+	return dir, out, sum, stderr
+}
+
 // The demo programme's holes are surveyed magnetically on collars in UTM
 // zone 50S: every hole is listed once with computed corrections equal to
 // package northref's for its collar and survey date (northref's own tests
@@ -51,14 +67,7 @@ func atoi(t *testing.T, s string) int {
 // the UTM convergence against the PROJ check points), and the row counts add
 // up to the converted rows.
 func TestConvertHoleSummaryDemo(t *testing.T) {
-	dir := t.TempDir()
-	out, sum := filepath.Join(dir, "out.csv"), filepath.Join(dir, "holes.csv")
-	d := "../../testdata/zelvorra/"
-	code, _, stderr := runCLI("convert", "--collars", d+"collars.csv", "--surveys", d+"surveys.csv", "--structures", d+"structures.csv",
-		"-o", out, "--hole-summary", sum)
-	if code != ExitOK {
-		t.Fatalf("exit %d: %s", code, stderr)
-	}
+	d, out, sum, stderr := demoHoleSummary(t)
 	collars := readCSV(t, d+"collars.csv")
 	surveys := readCSV(t, d+"surveys.csv")
 	rows := readCSV(t, out)
