@@ -16,17 +16,24 @@ import (
 	"corvane/internal/service"
 )
 
+// putSpeedTypes puts the benchmarks' vocabulary: three plane types (bedding,
+// joints, veins) and a line type for the rows with a lineation (gamma).
+func putSpeedTypes(s *service.Service, ctx context.Context, pid int64) {
+	for _, c := range []string{"BD", "JN", "VN"} {
+		mustPut(s.PutTypeCode(ctx, pid, domain.TypeCode{Code: c}))
+	}
+	mustPut(s.PutTypeCode(ctx, pid, domain.TypeCode{Code: "LN", Kind: "line"}))
+}
+
 // storedProgramme loads a programme of holes x perHole measurements into s
 // through the service's CSV imports: holes of 300 m (azimuth and dip varying
 // by hole) with a survey station every 30 m, 3 m orientation runs, and
-// measurements of three types (bedding with a lineation on one row in five,
+// measurements of four types (a lineation on one row in five, bedding,
 // joints, veins) spread down each hole.
 func storedProgramme(b testing.TB, s *service.Service, ctx context.Context, holes, perHole int) domain.Project {
 	b.Helper()
 	p := must(s.CreateProject(ctx, domain.Project{Name: "speed", PersistentFabric: "BD"}))
-	for _, c := range []string{"BD", "JN", "VN"} {
-		mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: c}))
-	}
+	putSpeedTypes(s, ctx, p.ID)
 	var col, sur, run, mea strings.Builder
 	col.WriteString("hole_id,easting,northing,elevation,azimuth,dip,depth\n")
 	sur.WriteString("hole_id,depth,azimuth,dip\n")
@@ -45,11 +52,11 @@ func storedProgramme(b testing.TB, s *service.Service, ctx context.Context, hole
 		}
 		for j := range perHole {
 			k := i*perHole + j
-			gamma := ""
+			gamma, typ := "", types[k%3]
 			if k%5 == 0 {
-				gamma = fmt.Sprint(k % 180)
+				gamma, typ = fmt.Sprint(k%180), "LN"
 			}
-			fmt.Fprintf(&mea, "%s,%.2f,%d,%d,%s,%s,L%d\n", id, 0.5+float64(j)*299/float64(perHole), 10+k%75, (k*37)%360, gamma, types[k%3], k%4)
+			fmt.Fprintf(&mea, "%s,%.2f,%d,%d,%s,%s,L%d\n", id, 0.5+float64(j)*299/float64(perHole), 10+k%75, (k*37)%360, gamma, typ, k%4)
 		}
 	}
 	for _, f := range []struct{ kind, body string }{{"collars", col.String()}, {"surveys", sur.String()}, {"runs", run.String()}, {"measurements", mea.String()}} {
@@ -74,7 +81,7 @@ func benchStoredFabric(b *testing.B, s *service.Service, ctx context.Context, p 
 		b.ReportAllocs()
 		for b.Loop() {
 			rep := must(s.Statistics(ctx, p.ID, service.StatsQuery{SetQuery: service.SetQuery{Sets: "type"}}))
-			if rep.Planes == nil || rep.Planes.Count != 100000 {
+			if rep.RowsUsed != 100000 {
 				b.Fatalf("%d rows used", rep.RowsUsed)
 			}
 		}
@@ -123,9 +130,7 @@ func benchRows(b *testing.B) int {
 // and returns it with a measurements file of rows rows over those holes.
 func importProgramme(b *testing.B, s *service.Service, ctx context.Context, name string, rows int) (domain.Project, string) {
 	p := must(s.CreateProject(ctx, domain.Project{Name: name}))
-	for _, c := range []string{"BD", "JN", "VN"} {
-		mustPut(s.PutTypeCode(ctx, p.ID, domain.TypeCode{Code: c}))
-	}
+	putSpeedTypes(s, ctx, p.ID)
 	var col strings.Builder
 	col.WriteString("hole_id,easting,northing,elevation,azimuth,dip,depth\n")
 	for i := range 100 {
@@ -138,11 +143,11 @@ func importProgramme(b *testing.B, s *service.Service, ctx context.Context, name
 	mea.WriteString("hole_id,depth,alpha,beta,gamma,type,logged_by\n")
 	types := []string{"BD", "JN", "VN"}
 	for k := range rows {
-		gamma := ""
+		gamma, typ := "", types[k%3]
 		if k%5 == 0 {
-			gamma = strconv.Itoa(k % 180)
+			gamma, typ = strconv.Itoa(k%180), "LN"
 		}
-		fmt.Fprintf(&mea, "I%03d,%.3f,%d,%d,%s,%s,L%d\n", k%100, float64(k/100)*0.0009+0.001, 10+k%75, (k*37)%360, gamma, types[k%3], k%4)
+		fmt.Fprintf(&mea, "I%03d,%.3f,%d,%d,%s,%s,L%d\n", k%100, float64(k/100)*0.0009+0.001, 10+k%75, (k*37)%360, gamma, typ, k%4)
 	}
 	return p, mea.String()
 }
