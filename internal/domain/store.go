@@ -92,6 +92,11 @@ type Store interface {
 	// settings, its holes, survey sets, survey sets by kind, runs), by any
 	// writer; NotFound for no such project.
 	ModelStamp(ctx context.Context, projectID int64) (int64, error)
+	// MeasurementStamp returns the project's measurement stamp: a number
+	// that changes whenever the project's visible measurements change (a
+	// measurement inserted, updated or deleted, an import batch committed),
+	// by any writer; 0 for a project whose measurements never changed.
+	MeasurementStamp(ctx context.Context, projectID int64) (int64, error)
 	CreateProject(ctx context.Context, p *Project) error
 	GetProject(ctx context.Context, id int64) (Project, error)
 	GetProjectByName(ctx context.Context, name string) (Project, error)

@@ -48,6 +48,7 @@ func Run(t *testing.T, newStore func(t *testing.T) domain.Store) {
 		{"KindSetLog", testKindSetLog},
 		{"ImportBatches", testImportBatches},
 		{"ModelStamp", testModelStamp},
+		{"MeasurementStamp", testMeasurementStamp},
 	}
 	for _, tc := range tests {
 		t.Run(tc.name, func(t *testing.T) {
@@ -1147,4 +1148,60 @@ func testModelStamp(t *testing.T, s domain.Store) {
 	}
 	_, err := s.ModelStamp(c, 1<<40)
 	wantKind(t, err, domain.NotFound, "stamp of no project")
+}
+
+// The measurement stamp moves with every change of the project's visible
+// measurements (insert, update, delete, an import batch committed) and
+// with nothing else; rows staged in a batch move it only when the batch
+// commits; another project's stamp stays.
+func testMeasurementStamp(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	p := newProject(t, s, "measurement stamps")
+	other := newProject(t, s, "measurement stamps other")
+	stamp := func(pid int64) int64 {
+		t.Helper()
+		n, err := s.MeasurementStamp(c, pid)
+		must(t, err)
+		return n
+	}
+	otherAt := stamp(other.ID)
+	last := stamp(p.ID)
+	moved := func(what string, want bool) {
+		t.Helper()
+		now := stamp(p.ID)
+		if (now != last) != want {
+			t.Fatalf("%s: stamp %d -> %d, want moved %t", what, last, now, want)
+		}
+		last = now
+	}
+	h := newHole(t, s, p.ID, "M1")
+	h2 := newHole(t, s, p.ID, "M2")
+	moved("holes created", false)
+	m := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: 10, Alpha: 40, Beta: f64(120), TypeCode: "BD", LoggedAt: time.Date(2026, 3, 2, 0, 0, 0, 0, time.UTC)}
+	must(t, s.CreateMeasurement(c, &m))
+	moved("measurement created", true)
+	m.Alpha = 41
+	must(t, s.UpdateMeasurement(c, &m, m.Version))
+	moved("measurement updated", true)
+	m.HoleID = h2.ID
+	must(t, s.UpdateMeasurement(c, &m, m.Version))
+	moved("measurement moved to another hole", true)
+	_, err := s.CreateMeasurements(c, []domain.Measurement{{ProjectID: p.ID, HoleID: h.ID, Depth: 11, Alpha: 30, Beta: f64(10), TypeCode: "BD", LoggedAt: m.LoggedAt}})
+	must(t, err)
+	moved("measurements created", true)
+	b, err := s.OpenBatch(c, p.ID)
+	must(t, err)
+	_, err = s.StageMeasurements(c, b, []domain.Measurement{{ProjectID: p.ID, HoleID: h.ID, Depth: 12, Alpha: 30, Beta: f64(10), TypeCode: "BD", LoggedAt: m.LoggedAt}})
+	must(t, err)
+	moved("rows staged, not yet visible", false)
+	must(t, s.CommitBatch(c, b))
+	moved("import batch committed", true)
+	h.Azimuth = 50
+	must(t, s.UpdateHole(c, &h, h.Version))
+	moved("collar changed", false)
+	must(t, s.DeleteMeasurement(c, m.ID, m.Version))
+	moved("measurement deleted", true)
+	if stamp(other.ID) != otherAt {
+		t.Fatal("another project's stamp moved")
+	}
 }
