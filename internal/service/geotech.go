@@ -63,8 +63,8 @@ type SlopeQuery struct {
 // the statistics' row (fabricRow) with hole, depth and alpha. A row with a
 // hole direction and no plane (no beta, or a vertical hole) is unoriented,
 // the rule csvio applies to the files the commands read.
-func geotechRow(m domain.Measurement, hole string, fr fabric.Row) geotech.Row {
-	return geotech.Row{HoleID: hole, Depth: m.Depth, Type: m.TypeCode, HasPlane: fr.HasPlane, Plane: fr.Plane,
+func geotechRow(m *storedRow, fr fabric.Row) geotech.Row {
+	return geotech.Row{HoleID: m.Hole, Depth: m.Depth, Type: m.TypeCode, HasPlane: fr.HasPlane, Plane: fr.Plane,
 		HasHole: fr.HasHole, Hole: fr.Hole, Alpha: m.Alpha, Unoriented: !fr.HasPlane && fr.HasHole,
 		NoAzimuth: fr.NoAzimuth, Error: fr.Error}
 }
@@ -72,8 +72,8 @@ func geotechRow(m domain.Measurement, hole string, fr fabric.Row) geotech.Row {
 // geoInput derives the measurements passing q as the pipeline's input.
 func (s *Service) geoInput(ctx context.Context, projectID int64, q MeasurementQuery) (domain.Project, geotech.Input, error) {
 	var in geotech.Input
-	p, err := s.eachRow(ctx, projectID, q, nil, func(m domain.Measurement, hole string, r fabric.Row) {
-		in.Rows = append(in.Rows, geotechRow(m, hole, r))
+	p, err := s.eachRow(ctx, projectID, q, nil, func(m *storedRow, r fabric.Row) {
+		in.Rows = append(in.Rows, geotechRow(m, r))
 	})
 	return p, in, err
 }

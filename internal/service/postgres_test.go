@@ -29,6 +29,10 @@ func TestOnPostgres(t *testing.T) {
 		s, ctx := open(t)
 		checkImportExport(t, s, ctx)
 	})
+	t.Run("RowCacheNeverStale", func(t *testing.T) {
+		s, ctx := open(t)
+		checkRowCacheNeverStale(t, s, ctx)
+	})
 	t.Run("ImportDuplicates", func(t *testing.T) {
 		s, ctx := open(t)
 		checkImportDuplicates(t, s, ctx)

@@ -3,7 +3,6 @@ package service
 import (
 	"context"
 	"fmt"
-	"math"
 
 	"corvane/internal/domain"
 	"corvane/internal/qa"
@@ -163,6 +162,36 @@ func (s *Service) qaInput(ctx context.Context, p domain.Project, holes []domain.
 				Mismatch: r.Mismatch, ID: r.ID})
 		}
 	}
+	add := func(m *storedRow) error {
+		name, ok := names[m.HoleID]
+		if !ok {
+			// A hole created after the holes were listed: its collar
+			// is not in this run, so its measurements wait for the next.
+			return nil
+		}
+		if len(in.Measurements) >= MaxQAMeasurements {
+			return domain.Errorf(domain.Invalid, "more than %d measurements in project %d: run the QA hole by hole", MaxQAMeasurements, p.ID)
+		}
+		in.Measurements = append(in.Measurements, qa.Measurement{HoleID: name, Depth: m.Depth, Alpha: m.Alpha, Beta: m.Beta,
+			Type: m.TypeCode, Logger: m.LoggedBy, ID: m.ID})
+		return nil
+	}
+	if holeID == 0 {
+		// The whole project: its kept rows (see projectRows).
+		pr, err := s.projectRows(ctx, p)
+		if err != nil {
+			return in, err
+		}
+		if pr != nil {
+			in.Measurements = make([]qa.Measurement, 0, len(pr.rows))
+			for i := range pr.rows {
+				if err := add(&pr.rows[i]); err != nil {
+					return in, err
+				}
+			}
+			return in, nil
+		}
+	}
 	f := domain.MeasurementFilter{ProjectID: p.ID}
 	if holeID != 0 {
 		f.HoleIDs = []int64{holeID}
@@ -173,22 +202,11 @@ func (s *Service) qaInput(ctx context.Context, p domain.Project, holes []domain.
 		if err != nil {
 			return in, err
 		}
-		for _, m := range ms {
-			name, ok := names[m.HoleID]
-			if !ok {
-				// A hole created after the holes were listed: its collar
-				// is not in this run, so its measurements wait for the next.
-				continue
+		for i := range ms {
+			r := storedRowOf(&ms[i], "")
+			if err := add(&r); err != nil {
+				return in, err
 			}
-			if len(in.Measurements) >= MaxQAMeasurements {
-				return in, domain.Errorf(domain.Invalid, "more than %d measurements in project %d: run the QA hole by hole", MaxQAMeasurements, p.ID)
-			}
-			beta := math.NaN() // unoriented
-			if m.Beta != nil {
-				beta = *m.Beta
-			}
-			in.Measurements = append(in.Measurements, qa.Measurement{HoleID: name, Depth: m.Depth, Alpha: m.Alpha, Beta: beta,
-				Type: m.TypeCode, Logger: m.LoggedBy, ID: m.ID})
 		}
 		if len(ms) < domain.MaxLimit {
 			return in, nil

@@ -37,6 +37,9 @@ type Service struct {
 	now   func() time.Time
 	// models keeps hole models between requests (see modelCache).
 	models *modelCache
+	// rows keeps each project's oriented measurements between requests
+	// (see projectRows).
+	rows *rowCache
 }
 
 // New returns a Service over st. A nil log discards.
@@ -44,7 +47,7 @@ func New(st domain.Store, log *slog.Logger) *Service {
 	if log == nil {
 		log = slog.New(slog.DiscardHandler)
 	}
-	return &Service{store: st, log: log, now: time.Now, models: newModelCache()}
+	return &Service{store: st, log: log, now: time.Now, models: newModelCache(), rows: newRowCache()}
 }
 
 // Store returns the underlying store (for the composition root and tests).

@@ -84,21 +84,19 @@ func parseWeighting(s string) (fabric.Weighting, error) {
 // marked so; package fabric decides what to do with them.
 func (s *Service) gather(ctx context.Context, projectID int64, q MeasurementQuery) (p domain.Project, in fabric.Input, err error) {
 	p, err = s.eachRow(ctx, projectID, q, func(n int) { in.Rows = make([]fabric.Row, 0, n) },
-		func(_ domain.Measurement, _ string, r fabric.Row) { in.Rows = append(in.Rows, r) })
+		func(_ *storedRow, r fabric.Row) { in.Rows = append(in.Rows, r) })
 	return p, in, err
 }
 
 // eachRow orients every measurement passing q (read), at most
-// MaxStatsMeasurements, and hands each to fn in id order with its hole's
-// name and its row of the statistics pipeline; reserve, when not nil, is
-// first told how many rows to expect (the store's count, at most
-// MaxStatsMeasurements + 1), so that a caller gathering the rows allocates
-// once. The rows come straight from
-// the hole model's result: the statistics, nets, roses and geotechnical
-// reports need the planes, lines and hole directions only, not the rest of
-// the derived values (the 95% regions of each measurement, a Monte Carlo
-// run each, took most of a request's time).
-func (s *Service) eachRow(ctx context.Context, projectID int64, q MeasurementQuery, reserve func(n int), fn func(m domain.Measurement, hole string, r fabric.Row)) (p domain.Project, err error) {
+// MaxStatsMeasurements, and hands each to fn in id order with its row of
+// the statistics pipeline; reserve, when not nil, is first told how many
+// rows to expect (at most MaxStatsMeasurements + 1), so that a caller
+// gathering the rows allocates once. A query over the whole project (no
+// hole named) takes the project's kept rows (see projectRows), read from
+// the store only when a measurement or anything of its hole models has
+// changed since; a query naming holes reads those holes' rows.
+func (s *Service) eachRow(ctx context.Context, projectID int64, q MeasurementQuery, reserve func(n int), fn func(m *storedRow, r fabric.Row)) (p domain.Project, err error) {
 	p, _, err = s.project(ctx, s.store, projectID, domain.RoleRead)
 	if err != nil {
 		return
@@ -107,6 +105,38 @@ func (s *Service) eachRow(ctx context.Context, projectID int64, q MeasurementQue
 	if err != nil {
 		return
 	}
+	tooMany := domain.Errorf(domain.Invalid, "more than %d measurements match: narrow the filter", MaxStatsMeasurements)
+	if len(f.HoleIDs) == 0 {
+		var pr *projectRows
+		if pr, err = s.projectRows(ctx, p); err != nil {
+			return
+		}
+		if pr != nil {
+			n := 0
+			for i := range pr.rows {
+				if matches(&f, &pr.rows[i]) {
+					n++
+				}
+			}
+			if n > MaxStatsMeasurements {
+				err = tooMany
+				return
+			}
+			if reserve != nil {
+				reserve(n)
+			}
+			for i := range pr.rows {
+				if i%4096 == 0 && ctx.Err() != nil {
+					err = ctx.Err()
+					return
+				}
+				if matches(&f, &pr.rows[i]) {
+					fn(&pr.rows[i], pr.fab[i])
+				}
+			}
+			return
+		}
+	}
 	if reserve != nil {
 		var c int64
 		if c, err = s.store.CountMeasurements(ctx, f); err != nil {
@@ -114,40 +144,17 @@ func (s *Service) eachRow(ctx context.Context, projectID int64, q MeasurementQue
 		}
 		reserve(int(min(c, MaxStatsMeasurements+1)))
 	}
-	d := s.deriver(s.store, p)
-	var after int64
 	n := 0
-	for {
-		var ms []domain.Measurement
-		ms, err = s.store.ListMeasurements(ctx, f, domain.Page{Limit: domain.MaxLimit, After: after})
-		if err != nil {
-			return
+	err = s.orientStored(ctx, p, f, func(m *domain.Measurement, hole string, r fabric.Row) error {
+		if n >= MaxStatsMeasurements {
+			return tooMany
 		}
-		for i := range ms {
-			m := &ms[i]
-			if i%1024 == 0 && ctx.Err() != nil {
-				err = ctx.Err()
-				return
-			}
-			if n >= MaxStatsMeasurements {
-				err = domain.Errorf(domain.Invalid, "more than %d measurements match: narrow the filter", MaxStatsMeasurements)
-				return
-			}
-			var hm *holeModel
-			if hm, err = d.model(ctx, m.HoleID); err != nil {
-				return
-			}
-			r, _, oerr := hm.orient(m.Depth, m.Alpha, m.Beta, m.Gamma, m.ApparentThickness)
-			row := fabricRow(m.TypeCode, &r, oerr)
-			row.Errors = hm.rowErrors(p.ErrorModel, m.Depth)
-			fn(*m, hm.name, row)
-			n++
-		}
-		if len(ms) < domain.MaxLimit {
-			return
-		}
-		after = ms[len(ms)-1].ID
-	}
+		sr := storedRowOf(m, hole)
+		fn(&sr, r)
+		n++
+		return nil
+	})
+	return
 }
 
 // rowErrors is the measurement errors, under the error model em, of the
@@ -284,9 +291,9 @@ func (s *Service) Net(ctx context.Context, projectID int64, q NetQuery, w io.Wri
 	if dom != nil {
 		o.Part = &fabric.Part{Name: "domain " + dom.Name}
 	}
-	in, err := s.sheetWith(ctx, projectID, q.MeasurementQuery, &o.Title, &o.Source, &o.AzimuthRef, func(m domain.Measurement, hole string) {
+	in, err := s.sheetWith(ctx, projectID, q.MeasurementQuery, &o.Title, &o.Source, &o.AzimuthRef, func(m *storedRow) {
 		if dom != nil {
-			o.Part.Keep = append(o.Part.Keep, dom.Contains(hole, m.Depth, ""))
+			o.Part.Keep = append(o.Part.Keep, dom.Contains(m.Hole, m.Depth, ""))
 		}
 	})
 	if err != nil {
@@ -330,15 +337,15 @@ func (s *Service) sheet(ctx context.Context, projectID int64, q MeasurementQuery
 	return s.sheetWith(ctx, projectID, q, title, source, ref, nil)
 }
 
-// sheetWith is sheet that also hands each measurement, with its hole's
-// name, to each (nil: none), in the order of the input's rows.
-func (s *Service) sheetWith(ctx context.Context, projectID int64, q MeasurementQuery, title, source, ref *string, each func(m domain.Measurement, hole string)) (fabric.Input, error) {
+// sheetWith is sheet that also hands each measurement to each (nil:
+// none), in the order of the input's rows.
+func (s *Service) sheetWith(ctx context.Context, projectID int64, q MeasurementQuery, title, source, ref *string, each func(m *storedRow)) (fabric.Input, error) {
 	var in fabric.Input
 	p, err := s.eachRow(ctx, projectID, q, func(n int) { in.Rows = make([]fabric.Row, 0, n) },
-		func(m domain.Measurement, hole string, r fabric.Row) {
+		func(m *storedRow, r fabric.Row) {
 			in.Rows = append(in.Rows, r)
 			if each != nil {
-				each(m, hole)
+				each(m)
 			}
 		})
 	if err != nil {
