@@ -85,7 +85,7 @@ type projectRows struct {
 }
 
 // maxCachedRows bounds the rows the service keeps, over all projects:
-// about 190 bytes a row, so some 95 MB. A project with more rows is read
+// about 220 bytes a row, so some 110 MB. A project with more rows is read
 // from the store on every request; past the bound the projects used least
 // recently are dropped.
 const maxCachedRows = 500000
