@@ -78,8 +78,10 @@ func BenchmarkStoredFabric(b *testing.B) {
 }
 
 func benchStoredFabric(b *testing.B, s *service.Service, ctx context.Context, p domain.Project) {
-	stats := func(b *testing.B) {
-		rep := must(s.Statistics(ctx, p.ID, service.StatsQuery{SetQuery: service.SetQuery{Sets: "type"}}))
+	var statsOf func(b *testing.B, unc string)
+	stats := func(b *testing.B) { statsOf(b, "") }
+	statsOf = func(b *testing.B, unc string) {
+		rep := must(s.Statistics(ctx, p.ID, service.StatsQuery{SetQuery: service.SetQuery{Sets: "type"}, Uncertainty: unc}))
 		if rep.RowsUsed != 100000 {
 			b.Fatalf("%d rows used", rep.RowsUsed)
 		}
@@ -93,6 +95,13 @@ func benchStoredFabric(b *testing.B, s *service.Service, ctx context.Context, p 
 		stats(b)
 		for b.Loop() {
 			stats(b)
+		}
+	})
+	b.Run("stats-without-set-uncertainty", func(b *testing.B) {
+		b.ReportAllocs()
+		statsOf(b, "false")
+		for b.Loop() {
+			statsOf(b, "false")
 		}
 	})
 	b.Run("stats-after-write", func(b *testing.B) {
