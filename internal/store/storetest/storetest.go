@@ -1097,28 +1097,37 @@ func testImportBatches(t *testing.T, s domain.Store) {
 	count("after dropping it", 2+1201)
 }
 
+// stampWatch reads stamps with read: stamp(pid) is a project's stamp now,
+// moved(what, want) fails unless project pid's stamp moved (want) or stayed
+// since the last call (or since stampWatch).
+func stampWatch(t *testing.T, read func(context.Context, int64) (int64, error), pid int64) (stamp func(int64) int64, moved func(what string, want bool)) {
+	c := ctx(t)
+	stamp = func(id int64) int64 {
+		t.Helper()
+		n, err := read(c, id)
+		must(t, err)
+		return n
+	}
+	last := stamp(pid)
+	moved = func(what string, want bool) {
+		t.Helper()
+		now := stamp(pid)
+		if (now != last) != want {
+			t.Fatalf("%s: stamp %d -> %d, want moved %t", what, last, now, want)
+		}
+		last = now
+	}
+	return stamp, moved
+}
+
 // The model stamp moves with every change of what a hole model is built
 // from, and with nothing else; another project's stamp stays.
 func testModelStamp(t *testing.T, s domain.Store) {
 	c := ctx(t)
 	p := newProject(t, s, "stamps")
 	other := newProject(t, s, "stamps other")
-	stamp := func(pid int64) int64 {
-		t.Helper()
-		n, err := s.ModelStamp(c, pid)
-		must(t, err)
-		return n
-	}
+	stamp, moved := stampWatch(t, s.ModelStamp, p.ID)
 	otherAt := stamp(other.ID)
-	last := stamp(p.ID)
-	moved := func(what string, want bool) {
-		t.Helper()
-		now := stamp(p.ID)
-		if (now != last) != want {
-			t.Fatalf("%s: stamp %d -> %d, want moved %t", what, last, now, want)
-		}
-		last = now
-	}
 	h := newHole(t, s, p.ID, "M1")
 	moved("hole created", true)
 	h.Azimuth = 50
@@ -1158,22 +1167,8 @@ func testMeasurementStamp(t *testing.T, s domain.Store) {
 	c := ctx(t)
 	p := newProject(t, s, "measurement stamps")
 	other := newProject(t, s, "measurement stamps other")
-	stamp := func(pid int64) int64 {
-		t.Helper()
-		n, err := s.MeasurementStamp(c, pid)
-		must(t, err)
-		return n
-	}
+	stamp, moved := stampWatch(t, s.MeasurementStamp, p.ID)
 	otherAt := stamp(other.ID)
-	last := stamp(p.ID)
-	moved := func(what string, want bool) {
-		t.Helper()
-		now := stamp(p.ID)
-		if (now != last) != want {
-			t.Fatalf("%s: stamp %d -> %d, want moved %t", what, last, now, want)
-		}
-		last = now
-	}
 	h := newHole(t, s, p.ID, "M1")
 	h2 := newHole(t, s, p.ID, "M2")
 	moved("holes created", false)
