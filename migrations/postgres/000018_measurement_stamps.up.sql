@@ -32,5 +32,9 @@ BEGIN
     RETURN NULL;
 END $$;
 CREATE TRIGGER measurement_stamp_insert AFTER INSERT ON measurements FOR EACH ROW WHEN (NEW.batch IS NULL) EXECUTE FUNCTION measurement_stamp();
-CREATE TRIGGER measurement_stamp AFTER UPDATE OR DELETE ON measurements FOR EACH ROW EXECUTE FUNCTION measurement_stamp();
+-- An update that changes nothing (the commit of an import batch touches its
+-- rows for the change log) moves nothing: the batch's commit moves the
+-- stamp once.
+CREATE TRIGGER measurement_stamp_update AFTER UPDATE ON measurements FOR EACH ROW WHEN (OLD.* IS DISTINCT FROM NEW.*) EXECUTE FUNCTION measurement_stamp();
+CREATE TRIGGER measurement_stamp AFTER DELETE ON measurements FOR EACH ROW EXECUTE FUNCTION measurement_stamp();
 CREATE TRIGGER measurement_stamp AFTER UPDATE OF committed ON import_batches FOR EACH ROW WHEN (NEW.committed IS DISTINCT FROM OLD.committed) EXECUTE FUNCTION measurement_stamp();

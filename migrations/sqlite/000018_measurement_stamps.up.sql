@@ -17,7 +17,15 @@ CREATE TRIGGER measurement_stamp_insert AFTER INSERT ON measurements WHEN NEW.ba
     INSERT INTO measurement_stamps (project_id, hole_id, stamp) VALUES (NEW.project_id, NEW.hole_id, 1)
         ON CONFLICT (project_id, hole_id) DO UPDATE SET stamp = stamp + 1;
 END;
-CREATE TRIGGER measurement_stamp_update AFTER UPDATE ON measurements BEGIN
+-- An update that changes none of the values a report reads (the commit of
+-- an import batch touches its rows for the change log) moves nothing: the
+-- batch's commit moves the stamp once.
+CREATE TRIGGER measurement_stamp_update AFTER UPDATE ON measurements
+WHEN OLD.project_id IS NOT NEW.project_id OR OLD.hole_id IS NOT NEW.hole_id OR OLD.depth IS NOT NEW.depth
+    OR OLD.alpha IS NOT NEW.alpha OR OLD.beta IS NOT NEW.beta OR OLD.gamma IS NOT NEW.gamma
+    OR OLD.type_code IS NOT NEW.type_code OR OLD.apparent_thickness IS NOT NEW.apparent_thickness
+    OR OLD.logged_by IS NOT NEW.logged_by OR OLD.logged_at IS NOT NEW.logged_at OR OLD.batch IS NOT NEW.batch
+    OR OLD.version IS NOT NEW.version BEGIN
     INSERT INTO measurement_stamps (project_id, hole_id, stamp) VALUES (OLD.project_id, OLD.hole_id, 1)
         ON CONFLICT (project_id, hole_id) DO UPDATE SET stamp = stamp + 1;
     INSERT INTO measurement_stamps (project_id, hole_id, stamp) VALUES (NEW.project_id, NEW.hole_id, 1)
