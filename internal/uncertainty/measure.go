@@ -469,10 +469,9 @@ func (m *model) firstOrder(cs *coords, which int) Region {
 		if m.sig[k] == 0 {
 			continue
 		}
-		var dp, dm [5]float64
-		dp[k], dm[k] = fdStep, -fdStep
-		u1, w1 := cs.of(pick(m.eval(dp[0], dp[1], dp[2], dp[3], dp[4]))(which))
-		u0, w0 := cs.of(pick(m.eval(dm[0], dm[1], dm[2], dm[3], dm[4]))(which))
+		plus, minus := m.partial(k, which)
+		u1, w1 := cs.of(plus)
+		u0, w0 := cs.of(minus)
 		ju, jw := (u1-u0)/(2*fdStep)*m.sig[k], (w1-w0)/(2*fdStep)*m.sig[k]
 		r.cuu += ju * ju
 		r.cuv += ju * jw
@@ -482,6 +481,17 @@ func (m *model) firstOrder(cs *coords, which int) Region {
 	r.Cone95 = coneOf(r.cuu, r.cuv, r.cvv, 0.95)
 	r.finish()
 	return r
+}
+
+// partial returns the direction picked by which (0 pole, 1 line), frame
+// coordinates, with the error source k (0 alpha, 1 beta and mark, 2 gamma,
+// 3 survey azimuth, 4 survey dip) moved by +fdStep and by -fdStep radians:
+// the central differences behind every first-order figure, of a measurement
+// (firstOrder) and of a set's mean (setFirstOrder).
+func (m *model) partial(k, which int) (plus, minus geom.Vec3) {
+	var dp, dm [5]float64
+	dp[k], dm[k] = fdStep, -fdStep
+	return pick(m.eval(dp[0], dp[1], dp[2], dp[3], dp[4]))(which), pick(m.eval(dm[0], dm[1], dm[2], dm[3], dm[4]))(which)
 }
 
 func pick(n, l geom.Vec3) func(int) geom.Vec3 {
