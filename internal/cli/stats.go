@@ -7,6 +7,7 @@ import (
 	"flag"
 	"fmt"
 	"io"
+	"strconv"
 	"strings"
 
 	"corvane/internal/csvio"
@@ -221,7 +222,8 @@ func runStats(_ context.Context, env *Env, args []string) int {
 	var c orientFlags
 	c.register(fs, true)
 	fs.StringVar(&c.of, "of", "both", "planes, lines or both (those present)")
-	unc := fs.Bool("uncertainty", true, "each set carries the measurement errors into the cone of its mean (Monte Carlo, beside the Fisher cone); --uncertainty=false: not")
+	unc := fs.Bool("uncertainty", true, "each set carries the measurement errors into the cone of its mean, beside the Fisher cone; --uncertainty=false: not (as --set-uncertainty off)")
+	setUnc := fs.String("set-uncertainty", "", "how the sets' measurement cones are found: first-order (the default), monte-carlo or off")
 	emPath := fs.String("error-model", "", "error model JSON for the measurement uncertainty (fields as in the README; absent fields take the defaults)")
 	fail, code, done := parseOrientArgs(env, fs, "stats", args)
 	if done {
@@ -238,11 +240,15 @@ func runStats(_ context.Context, env *Env, args []string) int {
 	if _, err := fabric.ParseOf(c.of); err != nil {
 		return fail(err)
 	}
+	method, err := fabric.ParseSetUncertainty(*setUnc, strconv.FormatBool(*unc))
+	if err != nil {
+		return fail(err)
+	}
 	oi, err := loadOrientations(env, c.in, c.typ, em)
 	if err != nil {
 		return fail(err)
 	}
-	rep, err := fabric.Stats(oi.in, fabric.Options{Of: c.of, Sets: so, Weighting: w, Uncertainty: *unc, ErrorModel: em})
+	rep, err := fabric.Stats(oi.in, fabric.Options{Of: c.of, Sets: so, Weighting: w, Uncertainty: method != fabric.SetUncertaintyOff, UncertaintyMethod: method, ErrorModel: em})
 	if err != nil {
 		return fail(err)
 	}
