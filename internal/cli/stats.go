@@ -28,7 +28,8 @@ func init() {
 const statsUsage = `Usage:
   corvane stats --in FILE [--sets auto:N|type | --set NAME:TREND/PLUNGE:CONE ...]
                 [--sets-on planes|lines|both] [--weighting terzaghi[:CAP]] [--type TYPE]
-                [--of planes|lines|both] [--uncertainty=false] [--error-model M.json]
+                [--of planes|lines|both] [--set-uncertainty first-order|monte-carlo|off]
+                [--uncertainty=false] [--error-model M.json]
                 [-o OUT.json]
 
 Reads planes (columns dip, dip_direction) and/or lines (line_trend, line_plunge) from a
@@ -59,12 +60,14 @@ Weighting:
                                  Goodman 1976). Weighted and unweighted results are shown
                                  side by side. Lines are not weighted.
 
-Measurement uncertainty (on unless --uncertainty=false): each set of planes and of lines
-also gets "measurement_uncertainty": the 95% cone of its mean moved by the measurement
-errors (Monte Carlo, 1,000 seeded trials: alpha, beta and, for lines, gamma readings drawn
-per measurement, one mark error per orientation run and one survey error per hole, shared
-by their measurements) beside the classical Fisher cone, the two combined, and which
-dominates; a line needs its plane on the row; at most 5,000 axes per report.
+Measurement uncertainty (on unless --uncertainty=false or --set-uncertainty off): each set
+of planes and of lines also gets "measurement_uncertainty": the 95% cone of its mean moved
+by the measurement errors (alpha, beta and, for lines, gamma readings per measurement, one
+mark error per orientation run and one survey error per hole, shared by their
+measurements) beside the classical Fisher cone, the two combined, and which dominates; a
+line needs its plane on the row. --set-uncertainty first-order (the default) propagates
+the errors linearly; monte-carlo draws them (1,000 seeded trials per set, at most 5,000
+axes per report). The report's measurement_uncertainty.used names the method.
 The errors come from --error-model (defaults of common practice otherwise) and the
 columns corvane convert and the export write or carry: hole_id, hole_azimuth, hole_dip,
 survey_instrument (unknown when absent), run_confidence and run_mismatch (an unrated
