@@ -353,18 +353,22 @@ func setReport(name string, vs []geom.Vec3, ws []float64, planes bool, unc func(
 
 func groupReport(g *group, used []Row, withUnc bool, method string, budget *int) *Group {
 	planes := g.kind == kindPlanes
+	var cache *members
 	unc := func(j int) func() *SetUncertainty {
 		if !withUnc {
 			return nil
 		}
+		if cache == nil {
+			cache = newMembers(used, !planes)
+		}
 		return func() *SetUncertainty {
-			var idx []int
+			idx := make([]int, 0, len(g.rows))
 			for i, r := range g.rows {
 				if j < 0 || g.assign[i] == j {
 					idx = append(idx, r)
 				}
 			}
-			return setUncertainty(used, idx, !planes, method, budget)
+			return setUncertainty(cache, used, idx, method, budget)
 		}
 	}
 	jg := &Group{Count: len(g.axes)}

@@ -187,10 +187,33 @@ func reading(r Row, withLine bool) (uncertainty.Reading, bool) {
 	return rd, true
 }
 
-// setUncertainty returns the measurement uncertainty of the poles (or, with
-// lines, the lineations) of the used rows idx; budget is the axes the
+// setUncertainty returns the measurement uncertainty of the poles (or, for
+// members of lines, the lineations) of the used rows idx; budget is the axes the
 // report may still carry, reduced by this set's.
-func setUncertainty(rows []Row, idx []int, lines bool, method string, budget *int) *SetUncertainty {
+// members memoises the uncertainty members of the used rows of a group,
+// so that a row of "all" and of its set is read once.
+type members struct {
+	lines bool
+	ms    []uncertainty.Member
+	state []int8 // 0 not read yet, 1 a member, -1 none
+}
+
+func newMembers(rows []Row, lines bool) *members {
+	return &members{lines: lines, ms: make([]uncertainty.Member, len(rows)), state: make([]int8, len(rows))}
+}
+
+func (c *members) get(rows []Row, i int) (uncertainty.Member, bool) {
+	if c.state[i] == 0 {
+		c.state[i] = -1
+		if m, ok := member(rows[i], c.lines); ok {
+			c.ms[i], c.state[i] = m, 1
+		}
+	}
+	return c.ms[i], c.state[i] == 1
+}
+
+func setUncertainty(c *members, rows []Row, idx []int, method string, budget *int) *SetUncertainty {
+	lines := c.lines
 	mc := method == SetUncertaintyMonteCarlo
 	if mc && len(idx) > *budget {
 		nan := Num(math.NaN())
@@ -200,10 +223,10 @@ func setUncertainty(rows []Row, idx []int, lines bool, method string, budget *in
 	if mc {
 		*budget -= len(idx)
 	}
-	var ms []uncertainty.Member
+	ms := make([]uncertainty.Member, 0, len(idx))
 	left := 0
 	for _, i := range idx {
-		if m, ok := member(rows[i], lines); ok {
+		if m, ok := c.get(rows, i); ok {
 			ms = append(ms, m)
 		} else {
 			left++
