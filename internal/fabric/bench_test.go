@@ -1,6 +1,7 @@
 package fabric
 
 import (
+	"fmt"
 	"math"
 	"math/rand/v2"
 	"strconv"
@@ -32,21 +33,24 @@ func benchRows(n int) []Row {
 	return rows
 }
 
-// The statistics report of 1e5 planes with sets by type, as `corvane stats
+// The statistics report of 1e5 planes (and of 5,000, the most the Monte
+// Carlo method carries per report) with sets by type, as `corvane stats
 // --sets type` and the statistics route make it, by each set_uncertainty
-// method: first-order (the default), monte-carlo (the default before it;
-// 5,000 axes at most per report) and off.
-func BenchmarkStats100k(b *testing.B) {
-	rows := benchRows(100_000)
-	for _, m := range []string{SetUncertaintyFirstOrder, SetUncertaintyMonteCarlo, SetUncertaintyOff} {
-		b.Run("set_uncertainty="+m, func(b *testing.B) {
-			o := Options{Sets: Sets{ByType: true}, Uncertainty: m != SetUncertaintyOff, UncertaintyMethod: m}
-			for b.Loop() {
-				rep, err := Stats(Input{Rows: rows}, o)
-				if err != nil || rep.Planes.All.Uncertainty == nil && m != SetUncertaintyOff {
-					b.Fatal(err)
+// method: first-order (the default), monte-carlo (the default before it)
+// and off.
+func BenchmarkStats(b *testing.B) {
+	for _, n := range []int{5_000, 100_000} {
+		rows := benchRows(n)
+		for _, m := range []string{SetUncertaintyFirstOrder, SetUncertaintyMonteCarlo, SetUncertaintyOff} {
+			b.Run(fmt.Sprintf("rows=%d/set_uncertainty=%s", n, m), func(b *testing.B) {
+				o := Options{Sets: Sets{ByType: true}, Uncertainty: m != SetUncertaintyOff, UncertaintyMethod: m}
+				for b.Loop() {
+					rep, err := Stats(Input{Rows: rows}, o)
+					if err != nil || rep.Planes.All.Uncertainty == nil && m != SetUncertaintyOff {
+						b.Fatal(err)
+					}
 				}
-			}
-		})
+			})
+		}
 	}
 }

@@ -284,12 +284,21 @@ type model struct {
 }
 
 func newModel(r Reading) (*model, error) {
+	m := new(model)
+	if err := m.init(r); err != nil {
+		return nil, err
+	}
+	return m, nil
+}
+
+// init sets m to the model of r (a set's members share one slice of them).
+func (m *model) init(r Reading) error {
 	h := r.Hole.Unit()
 	ref, w := coreangle.Reference(h, r.Conv)
 	if w.Has(coreangle.Vertical) {
-		return nil, ErrVertical
+		return ErrVertical
 	}
-	m := &model{frame: [3]geom.Vec3{ref, h.Cross(ref), h}, apex: 1, hasGamma: !math.IsNaN(r.Gamma)}
+	*m = model{frame: [3]geom.Vec3{ref, h.Cross(ref), h}, apex: 1, hasGamma: !math.IsNaN(r.Gamma)}
 	if r.Conv.BetaApex == coreangle.UpHole {
 		m.apex = -1
 	}
@@ -312,7 +321,7 @@ func newModel(r Reading) (*model, error) {
 	m.kA = m.frameOf(up.Neg())
 	s := r.Sigma
 	m.sig = [5]float64{geom.Rad(s.Alpha), geom.Rad(math.Hypot(s.Beta, s.Mark)), geom.Rad(s.Gamma), geom.Rad(s.Azimuth), geom.Rad(s.Dip)}
-	return m, nil
+	return nil
 }
 
 func (m *model) frameOf(v geom.Vec3) geom.Vec3 {

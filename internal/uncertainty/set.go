@@ -103,6 +103,7 @@ func prepareSet(ms []Member, lines bool) (*setData, error) {
 	if len(ms) == 0 {
 		return nil, dirstat.ErrTooFew
 	}
+	block := make([]model, len(ms))
 	d := &setData{models: make([]*model, len(ms)), poles: make([]geom.Vec3, len(ms)),
 		runOf: make([]int, len(ms)), survOf: make([]int, len(ms))}
 	if lines {
@@ -110,8 +111,8 @@ func prepareSet(ms []Member, lines bool) (*setData, error) {
 	}
 	runs, survs := map[string]int{}, map[string]int{}
 	for i, m := range ms {
-		md, err := newModel(m.Reading)
-		if err != nil {
+		md := &block[i]
+		if err := md.init(m.Reading); err != nil {
 			return nil, err
 		}
 		if lines && !md.hasGamma {
