@@ -30,9 +30,11 @@ type SetResult struct {
 	// (1953) from the scatter of the measured poles: the sampling
 	// uncertainty of the mean (NaN for fewer than two poles).
 	Fisher95 float64 `json:"fisher_95"`
-	// Measurement95 is the 95% cone, by Monte Carlo, of the mean moved by the
-	// measurement errors alone: readings drawn per member, mark errors once
-	// per run and survey errors once per survey interval in each trial.
+	// Measurement95 is the 95% cone of the mean moved by the measurement
+	// errors alone: readings per member, mark errors per run and survey
+	// errors per survey interval (by Monte Carlo: drawn once per trial and
+	// shared; by first order: their derivatives summed over the members
+	// sharing them).
 	Measurement95 float64 `json:"measurement_95"`
 	// Shared95 is the same with the shared errors only (marks and surveys).
 	// Independent reading errors already show in the scatter the Fisher cone
