@@ -203,6 +203,8 @@ func TestStatsNetRoseEqualAtEveryDoor(t *testing.T) {
 		// demo's vocabulary says "joint").
 		{"--type JOINT --sets auto:2", "type=JOINT&sets=auto:2"},
 		{"--sets type --uncertainty=false", "sets=type&uncertainty=false"},
+		{"--sets type --set-uncertainty off", "sets=type&set_uncertainty=off"},
+		{"--sets type --set-uncertainty monte-carlo", "sets=type&set_uncertainty=monte-carlo"},
 	}
 	for _, c := range statsCases {
 		args := append([]string{"stats", "--in", in, "--error-model", model}, strings.Fields(c.cli)...)
@@ -231,13 +233,20 @@ func TestStatsNetRoseEqualAtEveryDoor(t *testing.T) {
 		planes, _ := cli["planes"].(map[string]any)
 		all, _ := planes["all"].(map[string]any)
 		mu, has := all["measurement_uncertainty"].(map[string]any)
-		if off := strings.Contains(c.cli, "--uncertainty=false"); has == off {
+		if off := strings.Contains(c.cli, "--uncertainty=false") || strings.Contains(c.cli, "--set-uncertainty off"); has == off {
 			t.Errorf("stats %q: measurement_uncertainty %v", c.cli, all["measurement_uncertainty"])
 		} else if !off {
 			if mu["dominant"] != "sampling" && mu["dominant"] != "measurement" {
 				t.Errorf("stats %q: measurement uncertainty %v", c.cli, mu)
 			}
 			note, _ := json.Marshal(cli["measurement_uncertainty"])
+			used := `"used":"first-order"`
+			if strings.Contains(c.cli, "monte-carlo") {
+				used = `"used":"monte-carlo"`
+			}
+			if !strings.Contains(string(note), used) {
+				t.Errorf("stats %q: the report does not say %s: %s", c.cli, used, note)
+			}
 			if !strings.Contains(string(note), `{"basis":"project setting","name":"beta","value":4}`) {
 				t.Errorf("stats %q: the error model is not the project's: %s", c.cli, note)
 			}

@@ -7,6 +7,7 @@ import (
 	"flag"
 	"fmt"
 	"io"
+	"strconv"
 	"strings"
 
 	"corvane/internal/csvio"
@@ -27,7 +28,8 @@ func init() {
 const statsUsage = `Usage:
   corvane stats --in FILE [--sets auto:N|type | --set NAME:TREND/PLUNGE:CONE ...]
                 [--sets-on planes|lines|both] [--weighting terzaghi[:CAP]] [--type TYPE]
-                [--of planes|lines|both] [--uncertainty=false] [--error-model M.json]
+                [--of planes|lines|both] [--set-uncertainty first-order|monte-carlo|off]
+                [--uncertainty=false] [--error-model M.json]
                 [-o OUT.json]
 
 Reads planes (columns dip, dip_direction) and/or lines (line_trend, line_plunge) from a
@@ -58,12 +60,14 @@ Weighting:
                                  Goodman 1976). Weighted and unweighted results are shown
                                  side by side. Lines are not weighted.
 
-Measurement uncertainty (on unless --uncertainty=false): each set of planes and of lines
-also gets "measurement_uncertainty": the 95% cone of its mean moved by the measurement
-errors (Monte Carlo, 1,000 seeded trials: alpha, beta and, for lines, gamma readings drawn
-per measurement, one mark error per orientation run and one survey error per hole, shared
-by their measurements) beside the classical Fisher cone, the two combined, and which
-dominates; a line needs its plane on the row; at most 5,000 axes per report.
+Measurement uncertainty (on unless --uncertainty=false or --set-uncertainty off): each set
+of planes and of lines also gets "measurement_uncertainty": the 95% cone of its mean moved
+by the measurement errors (alpha, beta and, for lines, gamma readings per measurement, one
+mark error per orientation run and one survey error per hole, shared by their
+measurements) beside the classical Fisher cone, the two combined, and which dominates; a
+line needs its plane on the row. --set-uncertainty first-order (the default) propagates
+the errors linearly; monte-carlo draws them (1,000 seeded trials per set, at most 5,000
+axes per report). The report's measurement_uncertainty.used names the method.
 The errors come from --error-model (defaults of common practice otherwise) and the
 columns corvane convert and the export write or carry: hole_id, hole_azimuth, hole_dip,
 survey_instrument (unknown when absent), run_confidence and run_mismatch (an unrated
@@ -221,7 +225,8 @@ func runStats(_ context.Context, env *Env, args []string) int {
 	var c orientFlags
 	c.register(fs, true)
 	fs.StringVar(&c.of, "of", "both", "planes, lines or both (those present)")
-	unc := fs.Bool("uncertainty", true, "each set carries the measurement errors into the cone of its mean (Monte Carlo, beside the Fisher cone); --uncertainty=false: not")
+	unc := fs.Bool("uncertainty", true, "each set carries the measurement errors into the cone of its mean, beside the Fisher cone; --uncertainty=false: not (as --set-uncertainty off)")
+	setUnc := fs.String("set-uncertainty", "", "how the sets' measurement cones are found: first-order (the default), monte-carlo or off")
 	emPath := fs.String("error-model", "", "error model JSON for the measurement uncertainty (fields as in the README; absent fields take the defaults)")
 	fail, code, done := parseOrientArgs(env, fs, "stats", args)
 	if done {
@@ -238,11 +243,15 @@ func runStats(_ context.Context, env *Env, args []string) int {
 	if _, err := fabric.ParseOf(c.of); err != nil {
 		return fail(err)
 	}
+	method, err := fabric.ParseSetUncertainty(*setUnc, strconv.FormatBool(*unc))
+	if err != nil {
+		return fail(err)
+	}
 	oi, err := loadOrientations(env, c.in, c.typ, em)
 	if err != nil {
 		return fail(err)
 	}
-	rep, err := fabric.Stats(oi.in, fabric.Options{Of: c.of, Sets: so, Weighting: w, Uncertainty: *unc, ErrorModel: em})
+	rep, err := fabric.Stats(oi.in, fabric.Options{Of: c.of, Sets: so, Weighting: w, Uncertainty: method != fabric.SetUncertaintyOff, UncertaintyMethod: method, ErrorModel: em})
 	if err != nil {
 		return fail(err)
 	}

@@ -294,10 +294,12 @@ type Options struct {
 	Sets      Sets
 	Weighting Weighting
 	// Uncertainty carries the rows' measurement errors (Row.Errors, built
-	// with ErrorModel by [RowErrors]) into each set; see
-	// [ParseUncertainty].
-	Uncertainty bool
-	ErrorModel  uncertainty.Model
+	// with ErrorModel by [RowErrors]) into each set, by UncertaintyMethod
+	// (SetUncertaintyFirstOrder or "" for it, SetUncertaintyMonteCarlo;
+	// SetUncertaintyOff as Uncertainty false); see [ParseSetUncertainty].
+	Uncertainty       bool
+	UncertaintyMethod string
+	ErrorModel        uncertainty.Model
 }
 
 func summary(vs []geom.Vec3, ws []float64, planes bool) (*Summary, error) {
@@ -349,20 +351,24 @@ func setReport(name string, vs []geom.Vec3, ws []float64, planes bool, unc func(
 	return js
 }
 
-func groupReport(g *group, used []Row, withUnc bool, budget *int) *Group {
+func groupReport(g *group, used []Row, withUnc bool, method string, budget *int) *Group {
 	planes := g.kind == kindPlanes
+	var cache *members
 	unc := func(j int) func() *SetUncertainty {
 		if !withUnc {
 			return nil
 		}
+		if cache == nil {
+			cache = newMembers(used, !planes)
+		}
 		return func() *SetUncertainty {
-			var idx []int
+			idx := make([]int, 0, len(g.rows))
 			for i, r := range g.rows {
 				if j < 0 || g.assign[i] == j {
 					idx = append(idx, r)
 				}
 			}
-			return setUncertainty(used, idx, !planes, budget)
+			return setUncertainty(cache, used, idx, method, budget)
 		}
 	}
 	jg := &Group{Count: len(g.axes)}
@@ -430,14 +436,21 @@ func Stats(in Input, o Options) (Report, error) {
 		return Report{}, err
 	}
 	budget := MaxUncertaintyPoles
+	method, err := ParseSetUncertainty(o.UncertaintyMethod, "")
+	if err != nil {
+		return Report{}, err
+	}
+	if method == SetUncertaintyOff {
+		o.Uncertainty = false
+	}
 	if of != kindLines && len(planes.axes) > 0 {
-		rep.Planes = groupReport(planes, used, o.Uncertainty, &budget)
+		rep.Planes = groupReport(planes, used, o.Uncertainty, method, &budget)
 	}
 	if of != kindPlanes && len(lines.axes) > 0 {
-		rep.Lines = groupReport(lines, used, o.Uncertainty, &budget)
+		rep.Lines = groupReport(lines, used, o.Uncertainty, method, &budget)
 	}
 	if o.Uncertainty && (rep.Planes != nil || rep.Lines != nil) {
-		rep.Uncertainty = uncertaintyNote(o.ErrorModel)
+		rep.Uncertainty = uncertaintyNote(o.ErrorModel, method)
 	}
 	return rep, nil
 }

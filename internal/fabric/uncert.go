@@ -37,39 +37,79 @@ func RowErrors(em uncertainty.Model, holeID, instrument, confidence string, mism
 	return &Errors{Sigma: em.Sigmas(k, confidence, mismatch, 0), HoleID: holeID, RunFrom: runFrom}
 }
 
-// Set uncertainty settings: the Monte Carlo trials of each set and their
-// seed (fixed, so every door gives the same figures), and the poles one
-// report may carry through them in all (sets in report order: all, then
-// each set), which bounds its time to a few seconds of CPU (about a quarter
-// of a microsecond per pole and trial); a set past the budget says so.
+// Set uncertainty settings of the Monte Carlo method: the trials of each
+// set and their seed (fixed, so every door gives the same figures), and the
+// poles one report may carry through them in all (sets in report order:
+// all, then each set), which bounds its time to a few seconds of CPU (about
+// a quarter of a microsecond per pole and trial); a set past the budget
+// says so. The first-order method, the default, has no budget: it costs a
+// few microseconds per pole.
 const (
 	SetDraws            = 1000
 	SetSeed             = 12
 	MaxUncertaintyPoles = 5000 // poles and lines
 )
 
-// SetUncertaintyMethod describes the measurement uncertainty of the sets.
-const SetUncertaintyMethod = "Monte Carlo over each set's poles or lines (uncertainty.SetMean, SetMeanLines): per trial, alpha and beta " +
-	"readings drawn per measurement, one mark error per orientation run (measurements of a hole with the same " +
-	"run_from) and one survey azimuth and dip error per hole, shared by their measurements; the errors of the " +
-	"error model below, by the row's survey_instrument, run_confidence and run_mismatch. measurement_cone95: the " +
-	"95% cone of the mean moved by the measurement errors; fisher_cone95: the classical exact cone of Fisher (1953) " +
-	"from the scatter; combined_cone95: both, without counting twice what the scatter already shows; dominant says " +
-	"which of fisher_cone95 and measurement_cone95 is larger. Unweighted; for sets of lines the gamma reading is drawn " +
-	"too, and a line needs its plane (a line logged alone has no core angles to perturb)"
+// Values of the set_uncertainty option: how each set's measurement cones
+// are found, or not at all.
+const (
+	SetUncertaintyFirstOrder = uncertainty.SetFirstOrder // the default
+	SetUncertaintyMonteCarlo = uncertainty.SetMonteCarlo
+	SetUncertaintyOff        = "off"
+)
 
-// ParseUncertainty reads the uncertainty option: "" (the default) or a
-// true value (strconv.ParseBool: the set statistics carry the measurement
-// errors), or a false one.
-func ParseUncertainty(s string) (bool, error) {
-	if s == "" {
-		return true, nil
+// setUncertaintyShared is the part of the method's description both methods
+// share.
+const setUncertaintyShared = "the errors of the error model below, by the row's survey_instrument, run_confidence and " +
+	"run_mismatch: alpha and beta readings per measurement, one mark error per orientation run (measurements of a hole " +
+	"with the same run_from) and one survey azimuth and dip error per hole, shared by their measurements. " +
+	"measurement_cone95: the 95% cone of the mean moved by the measurement errors; shared_cone95: by the shared ones " +
+	"alone; fisher_cone95: the classical exact cone of Fisher (1953) from the scatter; combined_cone95: both, without " +
+	"counting twice what the scatter already shows; dominant says which of fisher_cone95 and measurement_cone95 is " +
+	"larger. Unweighted; for sets of lines the gamma reading is an error too, and a line needs its plane (a line logged " +
+	"alone has no core angles to perturb)"
+
+// SetUncertaintyMethods describes each method of the sets' measurement
+// uncertainty.
+var SetUncertaintyMethods = map[string]string{
+	SetUncertaintyFirstOrder: "first-order propagation over each set's poles or lines (uncertainty.SetMeanFirstOrder, " +
+		"SetMeanLinesFirstOrder): each error source's derivative of the members' directions, summed over the members " +
+		"sharing it, divided by the resultant length and projected on the tangent plane at the mean; covariance the sum " +
+		"of J J^T sigma^2; each cone the circle about the mean holding 95% of that bivariate normal (the combined cone " +
+		"adds the Fisher cone as an isotropic normal with the same 95% circle). " + setUncertaintyShared,
+	SetUncertaintyMonteCarlo: "Monte Carlo over each set's poles or lines (uncertainty.SetMean, SetMeanLines): per trial, " +
+		"every error drawn (shared ones once per run or hole); each cone the 95% quantile of the angle to the mean. " +
+		setUncertaintyShared,
+}
+
+// ParseSetUncertainty reads the set_uncertainty option ("" for the
+// default, first-order; monte-carlo; off) with the older uncertainty option
+// ("" or a true value of strconv.ParseBool: on; a false one: off, which a
+// method other than off contradicts). It returns the method or
+// SetUncertaintyOff.
+func ParseSetUncertainty(method, uncertaintyOpt string) (string, error) {
+	on := true
+	if uncertaintyOpt != "" {
+		b, err := strconv.ParseBool(uncertaintyOpt)
+		if err != nil {
+			return "", optErr("uncertainty", uncertaintyOpt, "want true or false")
+		}
+		on = b
 	}
-	b, err := strconv.ParseBool(s)
-	if err != nil {
-		return false, optErr("uncertainty", s, "want true or false")
+	switch method {
+	case "":
+		if !on {
+			return SetUncertaintyOff, nil
+		}
+		return SetUncertaintyFirstOrder, nil
+	case SetUncertaintyFirstOrder, SetUncertaintyMonteCarlo, SetUncertaintyOff:
+	default:
+		return "", optErr("set_uncertainty", method, "want first-order, monte-carlo or off")
 	}
-	return b, nil
+	if !on && method != SetUncertaintyOff {
+		return "", optErr("set_uncertainty", method, "uncertainty=false leaves the measurement uncertainty out; give set_uncertainty=off or neither")
+	}
+	return method, nil
 }
 
 // SetUncertainty is the measurement uncertainty of one set's mean pole.
@@ -88,9 +128,14 @@ type SetUncertainty struct {
 
 // UncertaintyNote says how the sets' measurement uncertainty was found.
 type UncertaintyNote struct {
-	Method     string               `json:"method"`
-	Draws      int                  `json:"draws"`
-	Seed       uint64               `json:"seed"`
+	// Used is the method of the cones: first-order (the default) or
+	// monte-carlo (set_uncertainty=monte-carlo); Method describes it.
+	Used   string `json:"used"`
+	Method string `json:"method"`
+	// Draws and Seed are the Monte Carlo trials per set and their seed
+	// (absent for first order).
+	Draws      int                  `json:"draws,omitempty"`
+	Seed       uint64               `json:"seed,omitempty"`
 	ErrorModel []uncertainty.Source `json:"error_model"`
 	Caution    string               `json:"caution"`
 }
@@ -142,20 +187,46 @@ func reading(r Row, withLine bool) (uncertainty.Reading, bool) {
 	return rd, true
 }
 
-// setUncertainty returns the measurement uncertainty of the poles (or, with
-// lines, the lineations) of the used rows idx; budget is the axes the
+// setUncertainty returns the measurement uncertainty of the poles (or, for
+// members of lines, the lineations) of the used rows idx; budget is the axes the
 // report may still carry, reduced by this set's.
-func setUncertainty(rows []Row, idx []int, lines bool, budget *int) *SetUncertainty {
-	if len(idx) > *budget {
+// members memoises the uncertainty members of the used rows of a group,
+// so that a row of "all" and of its set is read once.
+type members struct {
+	lines bool
+	ms    []uncertainty.Member
+	state []int8 // 0 not read yet, 1 a member, -1 none
+}
+
+func newMembers(rows []Row, lines bool) *members {
+	return &members{lines: lines, ms: make([]uncertainty.Member, len(rows)), state: make([]int8, len(rows))}
+}
+
+func (c *members) get(rows []Row, i int) (uncertainty.Member, bool) {
+	if c.state[i] == 0 {
+		c.state[i] = -1
+		if m, ok := member(rows[i], c.lines); ok {
+			c.ms[i], c.state[i] = m, 1
+		}
+	}
+	return c.ms[i], c.state[i] == 1
+}
+
+func setUncertainty(c *members, rows []Row, idx []int, method string, budget *int) *SetUncertainty {
+	lines := c.lines
+	mc := method == SetUncertaintyMonteCarlo
+	if mc && len(idx) > *budget {
 		nan := Num(math.NaN())
 		return &SetUncertainty{N: 0, Left: len(idx), Fisher95: nan, Measurement95: nan, Shared95: nan, Combined95: nan,
-			Note: fmt.Sprintf("not computed: a report carries the measurement errors of at most %d poles in all (narrow the selection, or ask for uncertainty=false)", MaxUncertaintyPoles)}
+			Note: fmt.Sprintf("not computed: a report carries the measurement errors of at most %d poles in all by Monte Carlo (narrow the selection, or ask for set_uncertainty=first-order)", MaxUncertaintyPoles)}
 	}
-	*budget -= len(idx)
-	var ms []uncertainty.Member
+	if mc {
+		*budget -= len(idx)
+	}
+	ms := make([]uncertainty.Member, 0, len(idx))
 	left := 0
 	for _, i := range idx {
-		if m, ok := member(rows[i], lines); ok {
+		if m, ok := c.get(rows, i); ok {
 			ms = append(ms, m)
 		} else {
 			left++
@@ -178,11 +249,18 @@ func setUncertainty(rows []Row, idx []int, lines bool, budget *int) *SetUncertai
 		su.Note += "fewer than 2 with their errors"
 		return su
 	}
-	mean := uncertainty.SetMean
-	if lines {
-		mean = uncertainty.SetMeanLines
+	var res uncertainty.SetResult
+	var err error
+	switch {
+	case mc && lines:
+		res, err = uncertainty.SetMeanLines(ms, uncertainty.MC{Draws: SetDraws, Seed: SetSeed})
+	case mc:
+		res, err = uncertainty.SetMean(ms, uncertainty.MC{Draws: SetDraws, Seed: SetSeed})
+	case lines:
+		res, err = uncertainty.SetMeanLinesFirstOrder(ms)
+	default:
+		res, err = uncertainty.SetMeanFirstOrder(ms)
 	}
-	res, err := mean(ms, uncertainty.MC{Draws: SetDraws, Seed: SetSeed})
 	if err != nil {
 		su.Note = err.Error()
 		return su
@@ -192,6 +270,10 @@ func setUncertainty(rows []Row, idx []int, lines bool, budget *int) *SetUncertai
 	return su
 }
 
-func uncertaintyNote(em uncertainty.Model) *UncertaintyNote {
-	return &UncertaintyNote{Method: SetUncertaintyMethod, Draws: SetDraws, Seed: SetSeed, ErrorModel: em.Sources(), Caution: UncertaintyCaution}
+func uncertaintyNote(em uncertainty.Model, method string) *UncertaintyNote {
+	n := &UncertaintyNote{Used: method, Method: SetUncertaintyMethods[method], ErrorModel: em.Sources(), Caution: UncertaintyCaution}
+	if method == SetUncertaintyMonteCarlo {
+		n.Draws, n.Seed = SetDraws, SetSeed
+	}
+	return n
 }

@@ -45,13 +45,22 @@ func uncRows(shared bool, conf string) []Row {
 // good one leaves the sampling cone larger, and rows without a hole
 // direction are left out and counted.
 func TestSetMeasurementUncertainty(t *testing.T) {
+	for _, method := range []string{"", SetUncertaintyMonteCarlo} {
+		t.Run("method "+method, func(t *testing.T) { testSetMeasurementUncertainty(t, method) })
+	}
+}
+
+func testSetMeasurementUncertainty(t *testing.T, method string) {
 	stats := func(rows []Row, unc bool) Set {
-		rep, err := Stats(Input{Rows: rows}, Options{Uncertainty: unc})
+		rep, err := Stats(Input{Rows: rows}, Options{Uncertainty: unc, UncertaintyMethod: method})
 		if err != nil {
 			t.Fatal(err)
 		}
 		if unc != (rep.Uncertainty != nil) {
 			t.Fatalf("report note %v with uncertainty %v", rep.Uncertainty, unc)
+		}
+		if want := map[string]string{"": SetUncertaintyFirstOrder}[method]; unc && rep.Uncertainty.Used != max(want, method) {
+			t.Fatalf("report says %q was used, asked for %q", rep.Uncertainty.Used, method)
 		}
 		return rep.Planes.All
 	}
@@ -81,14 +90,23 @@ func TestSetMeasurementUncertainty(t *testing.T) {
 	}
 	// A report carries at most MaxUncertaintyPoles poles through the
 	// Monte Carlo in all: a set past that says so (here with a budget
-	// spent by the sets before it).
+	// spent by the sets before it). First order spends none.
 	budget := 25
-	first, second := setUncertainty(rows, []int{0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 13, 14, 15, 16, 17, 18, 19, 20}, false, &budget), setUncertainty(rows, []int{20, 21, 22, 23, 24, 25}, false, &budget)
-	if first.N != 18 || first.Left != 2 || budget != 5 || second.N != 0 || !strings.Contains(second.Note, "not computed") || !math.IsNaN(float64(second.Measurement95)) {
-		t.Errorf("budget: first %+v, second %+v, left %d", first, second, budget)
+	idx1, idx2 := []int{0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 13, 14, 15, 16, 17, 18, 19, 20}, []int{20, 21, 22, 23, 24, 25}
+	if method == SetUncertaintyMonteCarlo {
+		first, second := setUncertainty(newMembers(rows, false), rows, idx1, method, &budget), setUncertainty(newMembers(rows, false), rows, idx2, method, &budget)
+		if first.N != 18 || first.Left != 2 || budget != 5 || second.N != 0 || !strings.Contains(second.Note, "not computed") || !math.IsNaN(float64(second.Measurement95)) {
+			t.Errorf("budget: first %+v, second %+v, left %d", first, second, budget)
+		}
+	} else {
+		first, second := setUncertainty(newMembers(rows, false), rows, idx1, SetUncertaintyFirstOrder, &budget), setUncertainty(newMembers(rows, false), rows, idx2, SetUncertaintyFirstOrder, &budget)
+		if first.N != 18 || first.Left != 2 || budget != 25 || second.N != 6 || math.IsNaN(float64(second.Measurement95)) {
+			t.Errorf("first order: first %+v, second %+v, budget %d", first, second, budget)
+		}
 	}
-	// The same figures as uncertainty.SetMean of the members read off the
-	// hole: the pipeline adds no rule of its own to the engine.
+	// The same figures as uncertainty.SetMean (SetMeanFirstOrder by
+	// default) of the members read off the hole: the pipeline adds no rule
+	// of its own to the engine.
 	var ms []uncertainty.Member
 	for _, r := range uncRows(true, "poor") {
 		m, ok := member(r, false)
@@ -97,7 +115,10 @@ func TestSetMeasurementUncertainty(t *testing.T) {
 		}
 		ms = append(ms, m)
 	}
-	res, err := uncertainty.SetMean(ms, uncertainty.MC{Draws: SetDraws, Seed: SetSeed})
+	res, err := uncertainty.SetMeanFirstOrder(ms)
+	if method == SetUncertaintyMonteCarlo {
+		res, err = uncertainty.SetMean(ms, uncertainty.MC{Draws: SetDraws, Seed: SetSeed})
+	}
 	if err != nil || Num(res.Measurement95) != poorShared.Measurement95 || Num(res.Combined95) != poorShared.Combined95 {
 		t.Errorf("SetMean %+v %v, pipeline %+v", res, err, poorShared)
 	}
@@ -219,8 +240,9 @@ func TestNetRegions(t *testing.T) {
 	}
 }
 
-// Sets of lines carry the measurement errors too (gamma drawn besides alpha
-// and beta): the figures of uncertainty.SetMeanLines of the members read
+// Sets of lines carry the measurement errors too (gamma an error besides
+// alpha and beta): the figures of uncertainty.SetMeanLinesFirstOrder (the
+// default; SetMeanLines asked for monte-carlo) of the members read
 // off the hole, plane and line; a line logged without its plane is left out
 // and counted.
 func TestLineSetMeasurementUncertainty(t *testing.T) {
@@ -251,20 +273,44 @@ func TestLineSetMeasurementUncertainty(t *testing.T) {
 		}
 		ms = append(ms, m)
 	}
-	res, err := uncertainty.SetMeanLines(ms, uncertainty.MC{Draws: SetDraws, Seed: SetSeed})
+	res, err := uncertainty.SetMeanLinesFirstOrder(ms)
+	if err != nil || Num(res.Combined95) != u.Combined95 || Num(res.Fisher95) != u.Fisher95 || res.Dominant != u.Dominant {
+		t.Errorf("SetMeanLinesFirstOrder %+v %v, pipeline %+v", res, err, u)
+	}
+	rep, err = Stats(Input{Rows: rows}, Options{Uncertainty: true, UncertaintyMethod: SetUncertaintyMonteCarlo})
+	if err != nil {
+		t.Fatal(err)
+	}
+	u = rep.Lines.All.Uncertainty
+	res, err = uncertainty.SetMeanLines(ms, uncertainty.MC{Draws: SetDraws, Seed: SetSeed})
 	if err != nil || Num(res.Combined95) != u.Combined95 || Num(res.Fisher95) != u.Fisher95 || res.Dominant != u.Dominant {
 		t.Errorf("SetMeanLines %+v %v, pipeline %+v", res, err, u)
 	}
 }
 
-func TestParseUncertainty(t *testing.T) {
-	for s, want := range map[string]bool{"": true, "true": true, "1": true, "false": false, "0": false} {
-		if got, err := ParseUncertainty(s); err != nil || got != want {
-			t.Errorf("%q: %v %v", s, got, err)
+// The set_uncertainty option with the older uncertainty one: first order
+// by default, uncertainty=false is off, and the two must not contradict.
+func TestParseSetUncertainty(t *testing.T) {
+	for in, want := range map[[2]string]string{
+		{"", ""}: SetUncertaintyFirstOrder, {"", "true"}: SetUncertaintyFirstOrder, {"", "1"}: SetUncertaintyFirstOrder,
+		{"", "false"}: SetUncertaintyOff, {"", "0"}: SetUncertaintyOff, {"off", ""}: SetUncertaintyOff, {"off", "false"}: SetUncertaintyOff,
+		{"first-order", ""}: SetUncertaintyFirstOrder, {"monte-carlo", ""}: SetUncertaintyMonteCarlo, {"monte-carlo", "true"}: SetUncertaintyMonteCarlo,
+	} {
+		if got, err := ParseSetUncertainty(in[0], in[1]); err != nil || got != want {
+			t.Errorf("%q: %v %v, want %v", in, got, err, want)
 		}
 	}
-	var oe *OptionError
-	if _, err := ParseUncertainty("off"); !errors.As(err, &oe) || oe.Option != "uncertainty" {
-		t.Errorf("off: %v", err)
+	for in, opt := range map[[2]string]string{{"", "off"}: "uncertainty", {"mc", ""}: "set_uncertainty", {"monte-carlo", "false"}: "set_uncertainty", {"first-order", "false"}: "set_uncertainty"} {
+		var oe *OptionError
+		if _, err := ParseSetUncertainty(in[0], in[1]); !errors.As(err, &oe) || oe.Option != opt {
+			t.Errorf("%q: %v, want an error of %s", in, err, opt)
+		}
+	}
+	if _, err := Stats(Input{Rows: uncRows(true, "good")}, Options{Uncertainty: true, UncertaintyMethod: "exact"}); err == nil {
+		t.Error("Stats took set_uncertainty=exact")
+	}
+	rep, err := Stats(Input{Rows: uncRows(true, "good")}, Options{Uncertainty: true, UncertaintyMethod: SetUncertaintyOff})
+	if err != nil || rep.Uncertainty != nil || rep.Planes.All.Uncertainty != nil {
+		t.Errorf("off: %v %+v", err, rep.Uncertainty)
 	}
 }

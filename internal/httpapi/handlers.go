@@ -785,7 +785,7 @@ func (s *Server) statistics(c *gin.Context) {
 		fail(c, err)
 		return
 	}
-	q := service.StatsQuery{MeasurementQuery: mq, SetQuery: sq, Of: c.Query("of"), Weighting: c.Query("weighting"), Uncertainty: c.Query("uncertainty")}
+	q := service.StatsQuery{MeasurementQuery: mq, SetQuery: sq, Of: c.Query("of"), Weighting: c.Query("weighting"), Uncertainty: c.Query("uncertainty"), SetUncertainty: c.Query("set_uncertainty")}
 	res, err := s.opt.Service.Statistics(c.Request.Context(), pid, q)
 	if err != nil {
 		fail(c, err)

@@ -42,8 +42,10 @@ type StatsQuery struct {
 	Of        string // "both" (default), "planes" or "lines"
 	Weighting string // "", "none", "terzaghi" or "terzaghi:CAP"
 	// Uncertainty is "" or "true" (the sets carry the measurement errors of
-	// the project's error model) or "false": fabric.ParseUncertainty.
-	Uncertainty string
+	// the project's error model) or "false"; SetUncertainty the method
+	// ("", first-order, monte-carlo, off): fabric.ParseSetUncertainty.
+	Uncertainty    string
+	SetUncertainty string
 }
 
 // optionErr turns a fabric option error into an Invalid error naming the
@@ -216,7 +218,7 @@ func (s *Service) Statistics(ctx context.Context, projectID int64, q StatsQuery)
 	if _, err := fabric.ParseOf(q.Of); err != nil {
 		return fabric.Report{}, optionErr(err)
 	}
-	unc, err := fabric.ParseUncertainty(q.Uncertainty)
+	method, err := fabric.ParseSetUncertainty(q.SetUncertainty, q.Uncertainty)
 	if err != nil {
 		return fabric.Report{}, optionErr(err)
 	}
@@ -227,7 +229,7 @@ func (s *Service) Statistics(ctx context.Context, projectID int64, q StatsQuery)
 	if err := ctx.Err(); err != nil {
 		return fabric.Report{}, err
 	}
-	rep, err := fabric.Stats(in, fabric.Options{Of: q.Of, Sets: sets, Weighting: w, Uncertainty: unc, ErrorModel: p.ErrorModel})
+	rep, err := fabric.Stats(in, fabric.Options{Of: q.Of, Sets: sets, Weighting: w, Uncertainty: method != fabric.SetUncertaintyOff, UncertaintyMethod: method, ErrorModel: p.ErrorModel})
 	if err != nil {
 		return fabric.Report{}, optionErr(err)
 	}

@@ -284,12 +284,21 @@ type model struct {
 }
 
 func newModel(r Reading) (*model, error) {
+	m := new(model)
+	if err := m.init(r); err != nil {
+		return nil, err
+	}
+	return m, nil
+}
+
+// init sets m to the model of r (a set's members share one slice of them).
+func (m *model) init(r Reading) error {
 	h := r.Hole.Unit()
 	ref, w := coreangle.Reference(h, r.Conv)
 	if w.Has(coreangle.Vertical) {
-		return nil, ErrVertical
+		return ErrVertical
 	}
-	m := &model{frame: [3]geom.Vec3{ref, h.Cross(ref), h}, apex: 1, hasGamma: !math.IsNaN(r.Gamma)}
+	*m = model{frame: [3]geom.Vec3{ref, h.Cross(ref), h}, apex: 1, hasGamma: !math.IsNaN(r.Gamma)}
 	if r.Conv.BetaApex == coreangle.UpHole {
 		m.apex = -1
 	}
@@ -312,7 +321,7 @@ func newModel(r Reading) (*model, error) {
 	m.kA = m.frameOf(up.Neg())
 	s := r.Sigma
 	m.sig = [5]float64{geom.Rad(s.Alpha), geom.Rad(math.Hypot(s.Beta, s.Mark)), geom.Rad(s.Gamma), geom.Rad(s.Azimuth), geom.Rad(s.Dip)}
-	return m, nil
+	return nil
 }
 
 func (m *model) frameOf(v geom.Vec3) geom.Vec3 {
@@ -469,10 +478,9 @@ func (m *model) firstOrder(cs *coords, which int) Region {
 		if m.sig[k] == 0 {
 			continue
 		}
-		var dp, dm [5]float64
-		dp[k], dm[k] = fdStep, -fdStep
-		u1, w1 := cs.of(pick(m.eval(dp[0], dp[1], dp[2], dp[3], dp[4]))(which))
-		u0, w0 := cs.of(pick(m.eval(dm[0], dm[1], dm[2], dm[3], dm[4]))(which))
+		plus, minus := m.partial(k, which)
+		u1, w1 := cs.of(plus)
+		u0, w0 := cs.of(minus)
 		ju, jw := (u1-u0)/(2*fdStep)*m.sig[k], (w1-w0)/(2*fdStep)*m.sig[k]
 		r.cuu += ju * ju
 		r.cuv += ju * jw
@@ -482,6 +490,17 @@ func (m *model) firstOrder(cs *coords, which int) Region {
 	r.Cone95 = coneOf(r.cuu, r.cuv, r.cvv, 0.95)
 	r.finish()
 	return r
+}
+
+// partial returns the direction picked by which (0 pole, 1 line), frame
+// coordinates, with the error source k (0 alpha, 1 beta and mark, 2 gamma,
+// 3 survey azimuth, 4 survey dip) moved by +fdStep and by -fdStep radians:
+// the central differences behind every first-order figure, of a measurement
+// (firstOrder) and of a set's mean (setFirstOrder).
+func (m *model) partial(k, which int) (plus, minus geom.Vec3) {
+	var dp, dm [5]float64
+	dp[k], dm[k] = fdStep, -fdStep
+	return pick(m.eval(dp[0], dp[1], dp[2], dp[3], dp[4]))(which), pick(m.eval(dm[0], dm[1], dm[2], dm[3], dm[4]))(which)
 }
 
 func pick(n, l geom.Vec3) func(int) geom.Vec3 {

@@ -30,9 +30,11 @@ type SetResult struct {
 	// (1953) from the scatter of the measured poles: the sampling
 	// uncertainty of the mean (NaN for fewer than two poles).
 	Fisher95 float64 `json:"fisher_95"`
-	// Measurement95 is the 95% cone, by Monte Carlo, of the mean moved by the
-	// measurement errors alone: readings drawn per member, mark errors once
-	// per run and survey errors once per survey interval in each trial.
+	// Measurement95 is the 95% cone of the mean moved by the measurement
+	// errors alone: readings per member, mark errors per run and survey
+	// errors per survey interval (by Monte Carlo: drawn once per trial and
+	// shared; by first order: their derivatives summed over the members
+	// sharing them).
 	Measurement95 float64 `json:"measurement_95"`
 	// Shared95 is the same with the shared errors only (marks and surveys).
 	// Independent reading errors already show in the scatter the Fisher cone
@@ -54,8 +56,17 @@ type SetResult struct {
 	// Dominant is "sampling" when the Fisher cone is the larger of Fisher95
 	// and Measurement95, else "measurement".
 	Dominant string `json:"dominant"`
-	Draws    int    `json:"draws"`
+	// Method is SetFirstOrder or SetMonteCarlo; Draws the Monte Carlo
+	// trials (0 for first order).
+	Method string `json:"method"`
+	Draws  int    `json:"draws"`
 }
+
+// Methods of a set's measurement cones ([SetResult].Method).
+const (
+	SetFirstOrder = "first-order"
+	SetMonteCarlo = "monte-carlo"
+)
 
 // SetMean returns the uncertainty of the mean pole of the members (see
 // [SetResult]), by Monte Carlo with mc.Draws trials (at least 100) seeded by
@@ -66,68 +77,198 @@ func SetMean(ms []Member, mc MC) (SetResult, error) { return setMean(ms, mc, fal
 // a gamma): the gamma reading is drawn per member besides alpha and beta.
 func SetMeanLines(ms []Member, mc MC) (SetResult, error) { return setMean(ms, mc, true) }
 
-func setMean(ms []Member, mc MC, lines bool) (SetResult, error) {
-	dir := func(n, l geom.Vec3) geom.Vec3 {
-		if lines {
-			return l
-		}
-		return n
+// SetMeanFirstOrder is [SetMean] by first-order propagation (see
+// setFirstOrder): no draws, the same figures.
+func SetMeanFirstOrder(ms []Member) (SetResult, error) { return setFirstOrder(ms, false) }
+
+// SetMeanLinesFirstOrder is [SetMeanLines] by first-order propagation.
+func SetMeanLinesFirstOrder(ms []Member) (SetResult, error) { return setFirstOrder(ms, true) }
+
+// setData is what both methods need of a set: each member's exact model and
+// direction (world, sign towards the mean), the keys of its shared errors
+// and their standard errors (radians), and the Fisher mean.
+type setData struct {
+	models        []*model
+	poles         []geom.Vec3
+	sign          []float64
+	runOf, survOf []int
+	markSig       []float64
+	survSig       [][2]float64
+	f             dirstat.Fisher
+	which         int // 0 poles, 1 lines
+	res           SetResult
+}
+
+func (d *setData) dir(n, l geom.Vec3) geom.Vec3 { return pick(n, l)(d.which) }
+
+func prepareSet(ms []Member, lines bool) (*setData, error) {
+	if len(ms) == 0 {
+		return nil, dirstat.ErrTooFew
 	}
+	block := make([]model, len(ms))
+	d := &setData{models: make([]*model, len(ms)), poles: make([]geom.Vec3, len(ms)),
+		runOf: make([]int, len(ms)), survOf: make([]int, len(ms))}
+	if lines {
+		d.which = 1
+	}
+	runs, survs := map[string]int{}, map[string]int{}
+	for i, m := range ms {
+		md := &block[i]
+		if err := md.init(m.Reading); err != nil {
+			return nil, err
+		}
+		if lines && !md.hasGamma {
+			return nil, errors.New("uncertainty: a member of a set of lines has no gamma")
+		}
+		d.models[i] = md
+		d.poles[i] = md.world(d.dir(md.eval(0, 0, 0, 0, 0)))
+		k, ok := runs[m.Run]
+		if !ok || m.Run == "" {
+			k = len(d.markSig)
+			d.markSig = append(d.markSig, geom.Rad(m.Sigma.Mark))
+			if m.Run != "" {
+				runs[m.Run] = k
+			}
+		}
+		d.runOf[i] = k
+		k, ok = survs[m.Survey]
+		if !ok || m.Survey == "" {
+			k = len(d.survSig)
+			d.survSig = append(d.survSig, [2]float64{geom.Rad(m.Sigma.Azimuth), geom.Rad(m.Sigma.Dip)})
+			if m.Survey != "" {
+				survs[m.Survey] = k
+			}
+		}
+		d.survOf[i] = k
+	}
+	f, err := dirstat.FisherMean(d.poles, nil, true)
+	if err != nil {
+		return nil, err
+	}
+	d.f = f
+	d.sign = make([]float64, len(ms))
+	for i, p := range d.poles {
+		d.sign[i] = 1
+		if p.Dot(f.Mean) < 0 {
+			d.sign[i] = -1
+		}
+	}
+	l := geom.LineOf(f.Mean)
+	d.res = SetResult{N: len(ms), Trend: l.Trend, Plunge: l.Plunge, Fisher95: f.Cone95}
+	return d, nil
+}
+
+// dominant sets res.Dominant from its cones.
+func (r *SetResult) dominant() {
+	r.Dominant = "measurement"
+	if r.Fisher95 >= r.Measurement95 {
+		r.Dominant = "sampling"
+	}
+}
+
+// setFirstOrder is the first-order (linear) propagation of the members'
+// errors into the mean direction. The mean is S/R with S the sum of the
+// sign-aligned directions and R = |S|, so an error e moves it by
+// (I - m m^T) dS/de / R; its tangent-plane components at the mean m (two
+// perpendicular directions) form J_e, where dS/de sums the derivatives of
+// the directions of the members sharing the source (each measurement's
+// central differences, model.partial): one mark error per run, one survey
+// azimuth and dip error per survey key, alpha, beta (and gamma for lines)
+// per member. The covariance of the mean's deviation is the sum of
+// J_e J_e^T sigma_e^2; a cone is the radius of the circle about the mean
+// that holds 95% of the centred bivariate normal with that covariance
+// (coneOf, the rule of the per-measurement cones), as the Monte Carlo
+// method reports the 95% quantile of the angle to the mean. Combined95 adds
+// to the shared covariance an isotropic one whose 95% circle is the Fisher
+// cone (per-axis variance Fisher95^2 / chi2(2, 0.95)), scaled by 1 -
+// (SharedIndependent95/Fisher95)^2 as in the Monte Carlo method; it equals
+// the Fisher cone without shared errors and the shared cone without
+// scatter, and treats the Fisher distribution of the mean as normal, which
+// narrows its tail for sets of very few members.
+func setFirstOrder(ms []Member, lines bool) (SetResult, error) {
+	d, err := prepareSet(ms, lines)
+	if err != nil {
+		return SetResult{}, err
+	}
+	mean := d.f.Mean
+	t1 := perpendicular(mean)
+	t2 := mean.Cross(t1)
+	type cov struct{ a, b, c float64 }
+	add := func(c *cov, j [2]float64, s float64) {
+		c.a += j[0] * j[0] * s * s
+		c.b += j[0] * j[1] * s * s
+		c.c += j[1] * j[1] * s * s
+	}
+	marks := make([][2]float64, len(d.markSig))
+	survs := make([][2][2]float64, len(d.survSig))
+	var reading, indep cov
+	for i, md := range d.models {
+		var js [5][2]float64
+		for k := 0; k < 5; k++ {
+			if k == 2 && !lines {
+				continue
+			}
+			plus, minus := md.partial(k, d.which)
+			g := md.world(plus.Sub(minus)).Scale(d.sign[i] / (2 * fdStep * d.f.R))
+			js[k] = [2]float64{g.Dot(t1), g.Dot(t2)}
+		}
+		sig := ms[i].Sigma
+		add(&reading, js[0], geom.Rad(sig.Alpha))
+		add(&reading, js[1], geom.Rad(sig.Beta))
+		if lines {
+			add(&reading, js[2], geom.Rad(sig.Gamma))
+		}
+		add(&indep, js[1], geom.Rad(sig.Mark))
+		add(&indep, js[3], geom.Rad(sig.Azimuth))
+		add(&indep, js[4], geom.Rad(sig.Dip))
+		r, s := d.runOf[i], d.survOf[i]
+		for x := 0; x < 2; x++ {
+			marks[r][x] += js[1][x]
+			survs[s][0][x] += js[3][x]
+			survs[s][1][x] += js[4][x]
+		}
+	}
+	var shared cov
+	for r, j := range marks {
+		add(&shared, j, d.markSig[r])
+	}
+	for s, j := range survs {
+		add(&shared, j[0], d.survSig[s][0])
+		add(&shared, j[1], d.survSig[s][1])
+	}
+	deg2 := geom.Deg(1) * geom.Deg(1)
+	cone := func(c cov) float64 { return coneOf(c.a*deg2, c.b*deg2, c.c*deg2, 0.95) }
+	res := d.res
+	res.Method = SetFirstOrder
+	res.Measurement95 = cone(cov{shared.a + reading.a, shared.b + reading.b, shared.c + reading.c})
+	res.Shared95 = cone(shared)
+	res.SharedIndependent95 = cone(indep)
+	res.Combined95 = res.Shared95
+	if d.f.N >= 2 && res.Fisher95 > 0 {
+		v := (1 - math.Pow(res.SharedIndependent95/res.Fisher95, 2)) * res.Fisher95 * res.Fisher95 / chi2q95
+		v = math.Max(0, v) / deg2
+		res.Combined95 = cone(cov{shared.a + v, shared.b, shared.c + v})
+	}
+	res.dominant()
+	return res, nil
+}
+
+func setMean(ms []Member, mc MC, lines bool) (SetResult, error) {
 	if len(ms) == 0 {
 		return SetResult{}, dirstat.ErrTooFew
 	}
 	if mc.Draws < 100 {
 		return SetResult{}, errors.New("uncertainty: a set needs at least 100 Monte Carlo draws")
 	}
-	models := make([]*model, len(ms))
-	poles := make([]geom.Vec3, len(ms))
-	runOf, survOf := make([]int, len(ms)), make([]int, len(ms))
-	runs, survs := map[string]int{}, map[string]int{}
-	var markSig []float64
-	var survSig [][2]float64
-	for i, m := range ms {
-		md, err := newModel(m.Reading)
-		if err != nil {
-			return SetResult{}, err
-		}
-		if lines && !md.hasGamma {
-			return SetResult{}, errors.New("uncertainty: a member of a set of lines has no gamma")
-		}
-		models[i] = md
-		poles[i] = md.world(dir(md.eval(0, 0, 0, 0, 0)))
-		k, ok := runs[m.Run]
-		if !ok || m.Run == "" {
-			k = len(markSig)
-			markSig = append(markSig, geom.Rad(m.Sigma.Mark))
-			if m.Run != "" {
-				runs[m.Run] = k
-			}
-		}
-		runOf[i] = k
-		k, ok = survs[m.Survey]
-		if !ok || m.Survey == "" {
-			k = len(survSig)
-			survSig = append(survSig, [2]float64{geom.Rad(m.Sigma.Azimuth), geom.Rad(m.Sigma.Dip)})
-			if m.Survey != "" {
-				survs[m.Survey] = k
-			}
-		}
-		survOf[i] = k
-	}
-	f, err := dirstat.FisherMean(poles, nil, true)
+	d, err := prepareSet(ms, lines)
 	if err != nil {
 		return SetResult{}, err
 	}
+	dir, models, sign, f := d.dir, d.models, d.sign, d.f
+	runOf, survOf, markSig, survSig := d.runOf, d.survOf, d.markSig, d.survSig
 	mean := f.Mean
-	sign := make([]float64, len(ms))
-	for i, p := range poles {
-		sign[i] = 1
-		if p.Dot(mean) < 0 {
-			sign[i] = -1
-		}
-	}
-	l := geom.LineOf(mean)
-	res := SetResult{N: len(ms), Trend: l.Trend, Plunge: l.Plunge, Fisher95: f.Cone95, Draws: mc.Draws}
+	res := d.res
+	res.Method, res.Draws = SetMonteCarlo, mc.Draws
 
 	r := rand.New(rand.NewPCG(mc.Seed, 0x736574)) // stream: "set"
 	all, shared, indep, comb := make([]float64, mc.Draws), make([]float64, mc.Draws), make([]float64, mc.Draws), make([]float64, mc.Draws)
@@ -200,10 +341,7 @@ func setMean(ms []Member, mc MC, lines bool) (SetResult, error) {
 		comb[t] = geom.Angle(dev, mean)
 	}
 	res.Combined95 = kthLargest(comb, k, math.Inf(-1), &buf)
-	res.Dominant = "measurement"
-	if res.Fisher95 >= res.Measurement95 {
-		res.Dominant = "sampling"
-	}
+	res.dominant()
 	return res, nil
 }
 
