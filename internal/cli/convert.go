@@ -17,7 +17,6 @@ import (
 	"corvane/internal/localgrid"
 	"corvane/internal/northref"
 	"corvane/internal/progress"
-	"corvane/internal/service"
 	"corvane/internal/words"
 )
 
@@ -136,11 +135,19 @@ type pathFlags struct {
 	opt                                *convert.Options
 	outRef, method, magModel, priority *string
 	feet, noCompute                    *bool
+	// local allows --output-reference local (convert, not transfer).
+	local bool
 }
 
-func addPathFlags(fs *flag.FlagSet, opt *convert.Options) *pathFlags {
-	p := &pathFlags{opt: opt}
-	p.outRef = fs.String("output-reference", "grid", "north reference of output azimuths: grid or true")
+// addPathFlags adds the flags; local allows the output reference local
+// (azimuths and coordinates in the local grid).
+func addPathFlags(fs *flag.FlagSet, opt *convert.Options, local bool) *pathFlags {
+	p := &pathFlags{opt: opt, local: local}
+	usage := "north reference of output azimuths: grid or true"
+	if local {
+		usage = "north reference of output azimuths: grid, true or local (the local grid of --local-grid or of the collars' local_grid column: azimuths and coordinates in it)"
+	}
+	p.outRef = fs.String("output-reference", "grid", usage)
 	p.method = fs.String("method", "minimum-curvature", "desurvey method: minimum-curvature, balanced-tangential or tangential")
 	p.feet = fs.Bool("feet", false, "lengths are in feet (collar elevations are converted to metres for the magnetic model)")
 	p.noCompute = fs.Bool("no-computed-corrections", false, "never compute declination or grid convergence; holes that need one get an error")
@@ -154,7 +161,10 @@ func addPathFlags(fs *flag.FlagSet, opt *convert.Options) *pathFlags {
 // apply puts the parsed flags into the options.
 func (p *pathFlags) apply() error {
 	var err error
-	if p.opt.Output, err = convert.ParseReference(*p.outRef); err != nil || p.opt.Output == convert.Magnetic {
+	if p.opt.Output, err = convert.ParseOutput(*p.outRef); err != nil || p.opt.Output == convert.Local && !p.local {
+		if p.local {
+			return fmt.Errorf("--output-reference %q: want grid, true or local", *p.outRef)
+		}
 		return fmt.Errorf("--output-reference %q: want grid or true", *p.outRef)
 	}
 	if p.opt.Method, err = desurvey.ParseMethod(*p.method); err != nil {
@@ -215,7 +225,7 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 	fs.BoolVar(&opt.MonteCarlo, "monte-carlo", false, "run the Monte Carlo (1,000 seeded draws) for every measurement's region, not only where first order is unreliable")
 	summary := fs.String("hole-summary", "", "also write one row per hole to this CSV file: azimuth references, corrections and their sources, row counts, caution, error")
 	gridFile := fs.String("local-grid", "", "JSON file declaring a local grid for collars whose crs is \"local\"")
-	paths := addPathFlags(fs, &opt)
+	paths := addPathFlags(fs, &opt, true)
 	if err := fs.Parse(args); err != nil {
 		if errors.Is(err, flag.ErrHelp) {
 			return ExitOK
@@ -266,7 +276,7 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 	if opt.LocalGrid != nil {
 		n := 0
 		for _, c := range crows {
-			if convert.IsLocal(c.CRS) {
+			if localgrid.IsLocal(c.CRS) && c.LocalGrid == nil {
 				n++
 			}
 		}
@@ -381,24 +391,23 @@ func reportAll(env *Env, cmd string, errs ...error) bool {
 }
 
 // applyLocalGrid reads the local grid declaration in path (the rules of a
-// project's local_grid setting), sets it in opt so the collars labelled
-// "local" are carried into its projected grid (convert.LocalGrid.Apply, as
-// the service does with a project's local grid), and reports the
-// transformation on standard error.
+// project's local_grid setting, localgrid.Parse), sets it in opt as the
+// project's local grid (collars labelled "local" are in it, output local is
+// in it: holemodel.New, as the service does with a project's local grid),
+// and reports the transformation on standard error.
 func applyLocalGrid(env *Env, path string, opt *convert.Options) int {
 	data, err := os.ReadFile(path)
 	if err != nil {
 		fmt.Fprintf(env.Stderr, "corvane convert: --local-grid: %v\n", err)
 		return ExitUsage
 	}
-	spec, err := service.ParseLocalGrid(data)
+	g, fit, err := localgrid.Parse(data)
 	if err != nil {
 		fmt.Fprintf(env.Stderr, "corvane convert: --local-grid %s: %v\n", path, err)
 		return ExitUsage
 	}
-	t, fit, _ := spec.Resolve() // ParseLocalGrid resolved it already
-	opt.LocalGrid = &convert.LocalGrid{Spec: spec, T: t}
-	reportLocalGrid(env.Stderr, spec, t, fit)
+	opt.LocalGrid = g
+	reportLocalGrid(env.Stderr, g.Spec, g.T, fit)
 	return ExitOK
 }
 

@@ -307,13 +307,13 @@ func readQAInput(collars, surveys, structures, runs, picks string, o qaHoles, st
 				Magnetic: h.Magnetic[i], Line: h.In.Stations[i].Line})
 		}
 		// The sets by kind, each in the output reference through the hole
-		// model, for the comparison of magnetic and gyro sets; a set the
-		// model cannot build is left out of it.
+		// model, for the comparison of magnetic and reference (gyro) sets;
+		// a set the model cannot build is left out of it.
 		for _, k := range h.Sets {
 			if k.Hole.Err != nil {
 				continue
 			}
-			qs := qa.SurveySet{HoleID: h.ID, Kind: k.Kind}
+			qs := qa.SurveySet{HoleID: h.ID, Kind: k.Kind, Instrument: string(k.Hole.In.Instrument)}
 			for i, st := range k.Hole.Stations {
 				qs.Stations = append(qs.Stations, qa.Station{HoleID: h.ID, Depth: st.Depth, Azimuth: st.Azimuth, Dip: st.Dip,
 					Magnetic: k.Hole.Magnetic[i], Line: k.Hole.In.Stations[i].Line})

@@ -102,7 +102,7 @@ func runTransfer(ctx context.Context, env *Env, args []string) int {
 	colourBy := fs.String("colour-by", "type", "group and colour the glTF discs by type or by set (set needs the set options)")
 	withUnc := fs.Bool("uncertainty", false, "carry each structure's 95% uncertainty cone (the converted file's pole_cone95): the points' uncertainty column and a cone per disc in glTF")
 	var opt convert.Options
-	paths := addPathFlags(fs, &opt)
+	paths := addPathFlags(fs, &opt, false)
 	fail, code, done := parseOrientArgs(env, fs, "transfer", args)
 	if done {
 		return code

@@ -72,6 +72,7 @@ const (
 	ColDeclinationSource = "declination_source"
 	ColGridConvergence   = "grid_convergence"
 	ColConvergenceSource = "convergence_source"
+	ColSurveySet         = "survey_set"
 	ColPoleCone95        = csvio.ColPoleCone95
 	ColPoleLong95        = "pole_long95"
 	ColPoleShort95       = "pole_short95"
@@ -96,7 +97,7 @@ func OutputColumns(thickness bool) []string {
 	if thickness {
 		cols = append(cols, ColTrueThickness)
 	}
-	cols = append(cols, ColAzimuthReference, ColDeclination, ColDeclinationSource, ColGridConvergence, ColConvergenceSource)
+	cols = append(cols, ColAzimuthReference, ColDeclination, ColDeclinationSource, ColGridConvergence, ColConvergenceSource, ColSurveySet)
 	cols = append(cols, UncertaintyColumns...)
 	return append(cols, ColError)
 }
@@ -525,6 +526,7 @@ func WriteResult(cw *csvio.Writer, r *holemodel.Result, h *holemodel.Hole, thick
 		scratch = AppendCorrections(scratch[:0], h.Output, r.Declination, r.Convergence)
 		cw.Raw(scratch)
 	}
+	cw.String(h.In.SurveySet)
 	var ue, le *uncertainty.Estimate
 	if u != nil {
 		ue, le = &u.Pole, u.Line

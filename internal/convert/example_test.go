@@ -30,9 +30,9 @@ func ExampleHoles_Convert() {
 	sum, err := hs.Convert(context.Background(), strings.NewReader(structures), os.Stdout)
 	fmt.Println(sum.Rows, sum.BadRows, err)
 	// Output:
-	// hole_id,depth,alpha,beta,gamma,type,hole_azimuth,hole_dip,easting,northing,elevation,dip,dip_direction,strike,line_trend,line_plunge,warnings,pole_trend,pole_plunge,azimuth_reference,declination,declination_source,grid_convergence,convergence_source,pole_cone95,pole_long95,pole_short95,pole_method,line_cone95,line_long95,line_short95,line_method,survey_instrument,error
-	// KX01,35.2,45,90,,joint,45.82,-58.83,5012.756,8012.571,389.698,52.77,288.46,198.46,,,,108.46,37.23,grid,2.000,project,0.500,project,14.75,18.22,5.25,first-order,,,,,magnetic,
-	// KX01,120,30,180,40,fault,47.00,-57.00,5045.793,8043.776,318.109,27.00,47.00,317.00,90.28,20.35,extrapolated below last survey station,227.00,63.00,grid,2.000,project,0.500,project,17.89,22.19,4.95,first-order,16.38,20.21,6.13,first-order,magnetic,
+	// hole_id,depth,alpha,beta,gamma,type,hole_azimuth,hole_dip,easting,northing,elevation,dip,dip_direction,strike,line_trend,line_plunge,warnings,pole_trend,pole_plunge,azimuth_reference,declination,declination_source,grid_convergence,convergence_source,survey_set,pole_cone95,pole_long95,pole_short95,pole_method,line_cone95,line_long95,line_short95,line_method,survey_instrument,error
+	// KX01,35.2,45,90,,joint,45.82,-58.83,5012.756,8012.571,389.698,52.77,288.46,198.46,,,,108.46,37.23,grid,2.000,project,0.500,project,survey,14.75,18.22,5.25,first-order,,,,,magnetic,
+	// KX01,120,30,180,40,fault,47.00,-57.00,5045.793,8043.776,318.109,27.00,47.00,317.00,90.28,20.35,extrapolated below last survey station,227.00,63.00,grid,2.000,project,0.500,project,survey,17.89,22.19,4.95,first-order,16.38,20.21,6.13,first-order,magnetic,
 	// 2 0 <nil>
 }
 

@@ -20,10 +20,13 @@
 package convert
 
 import (
-	"corvane/internal/uncertainty"
 	"fmt"
 	"io"
 	"math"
+	"strings"
+
+	"corvane/internal/localgrid"
+	"corvane/internal/uncertainty"
 
 	"corvane/internal/coreangle"
 	"corvane/internal/csvio"
@@ -40,6 +43,7 @@ const (
 	Grid     Reference = iota // grid north of the collar coordinates (default output)
 	True                      // true (geographic) north
 	Magnetic                  // magnetic north (input only)
+	Local                     // the local grid's north (output only; needs a local grid)
 )
 
 func (r Reference) String() string {
@@ -48,8 +52,22 @@ func (r Reference) String() string {
 		return csvio.RefTrue
 	case Magnetic:
 		return csvio.RefMagnetic
+	case Local:
+		return holemodel.Local
 	}
 	return csvio.RefGrid
+}
+
+// ParseOutput parses an output reference: grid, true or local (any case).
+func ParseOutput(s string) (Reference, error) {
+	if strings.EqualFold(strings.TrimSpace(s), holemodel.Local) {
+		return Local, nil
+	}
+	r, err := ParseReference(s)
+	if err != nil || r == Magnetic {
+		return 0, fmt.Errorf("%q is not an output reference (want grid, true or local)", s)
+	}
+	return r, nil
 }
 
 // ParseReference parses true, grid or magnetic (any case).
@@ -80,7 +98,8 @@ type Options struct {
 	Convention coreangle.Convention
 	Method     desurvey.Method
 	Unit       desurvey.Unit
-	// Output is Grid or True.
+	// Output is Grid, True or Local (the local grid's north and
+	// coordinates; a hole without a local grid then has an error).
 	Output Reference
 	// Declination and GridConvergence are the project's defaults: they apply
 	// to every hole whose collar row does not give its own (source
@@ -89,9 +108,10 @@ type Options struct {
 	// MagneticModel chooses the model of computed declinations ("" is
 	// northref.ModelAuto).
 	MagneticModel northref.MagneticModel
-	// LocalGrid, when set, carries holes whose collar crs is "local" from
-	// that local grid into its projected grid (see [LocalGrid.Apply]).
-	LocalGrid *LocalGrid
+	// LocalGrid is the project's local grid, nil when none: holes whose
+	// collar crs is "local" are in it, and output Local is in it (see
+	// holemodel.New); a collar row's own local_grid wins over it.
+	LocalGrid *localgrid.Grid
 	// SurveyPriority orders survey set kinds for holes with sets by kind
 	// (canonical, see domain.ParseSurveyPriority); "" for none.
 	SurveyPriority string
@@ -184,8 +204,8 @@ func (hs *Holes) Options() Options { return hs.opt }
 // cannot have, a station past its final depth) is loaded as that hole's Err,
 // located at the row, and its measurements carry it; other holes convert.
 func Load(collars, surveys io.Reader, opt Options) (*Holes, error) {
-	if opt.Output != Grid && opt.Output != True {
-		return nil, fmt.Errorf("output reference must be grid or true, not %v", opt.Output)
+	if opt.Output != Grid && opt.Output != True && opt.Output != Local {
+		return nil, fmt.Errorf("output reference must be grid, true or local, not %v", opt.Output)
 	}
 	cf, sf := nameOr(opt.CollarsFile, "collars"), nameOr(opt.SurveysFile, "surveys")
 	crows, err := csvio.ReadCollars(collars, cf)
@@ -229,8 +249,12 @@ func Build(crows []csvio.CollarRow, srows []csvio.SurveyRow, opt Options) (*Hole
 		// The hole's rows by set: its survey set (no kind) and its sets by
 		// kind; the survey in use by the one rule of domain.UsedSurvey.
 		bySet := map[string][]csvio.SurveyRow{}
+		preferred := "" // csvio.ReadSurveys allows one preferred set per hole
 		for _, r := range byHole[c.HoleID] {
 			bySet[r.Kind] = append(bySet[r.Kind], r)
+			if r.Preferred {
+				preferred = r.Kind
+			}
 		}
 		var kinds []string
 		for _, k := range domain.SurveyKinds {
@@ -238,20 +262,20 @@ func Build(crows []csvio.CollarRow, srows []csvio.SurveyRow, opt Options) (*Hole
 				kinds = append(kinds, k)
 			}
 		}
-		used := domain.UsedSurvey(kinds, "", opt.SurveyPriority, len(bySet[""]) > 0)
+		used := domain.UsedSurvey(kinds, preferred, opt.SurveyPriority, len(bySet[""]) > 0)
 		key := used
 		if used == domain.SurveyOfHole {
 			key = ""
 		}
-		input := func(rows []csvio.SurveyRow) holemodel.Input {
+		input := func(rows []csvio.SurveyRow, set string) holemodel.Input {
 			in := HoleInput(c, rows)
-			opt.LocalGrid.Apply(&in, p.Output)
+			in.SurveySet = set
 			return in
 		}
-		m := holemodel.New(input(bySet[key]), p)
+		m := holemodel.New(input(bySet[key], used), p)
 		h := &Hole{Hole: m, ID: c.HoleID, Line: c.Line, Survey: used}
 		for _, k := range kinds {
-			h.Sets = append(h.Sets, KindSet{Kind: k, Hole: holemodel.New(input(bySet[k]), p)})
+			h.Sets = append(h.Sets, KindSet{Kind: k, Hole: holemodel.New(input(bySet[k], k), p)})
 		}
 		if m.Err != nil {
 			h.Err = Locate(m.Err, c.Line, cf, sf)
@@ -267,7 +291,8 @@ func Build(crows []csvio.CollarRow, srows []csvio.SurveyRow, opt Options) (*Hole
 // Project returns the holemodel project of the options: the value for all
 // holes is the project's default.
 func (o Options) Project() holemodel.Project {
-	p := holemodel.Project{Convention: o.Convention, Method: o.Method, Unit: o.Unit, Output: o.Output.String(), NoCompute: o.NoCompute, Model: o.MagneticModel}
+	p := holemodel.Project{Convention: o.Convention, Method: o.Method, Unit: o.Unit, Output: o.Output.String(), NoCompute: o.NoCompute, Model: o.MagneticModel,
+		LocalGrid: o.LocalGrid}
 	if o.Declination.Set {
 		v := o.Declination.Value
 		p.Declination = &v
@@ -285,7 +310,7 @@ func (o Options) Project() holemodel.Project {
 // per set).
 func HoleInput(c csvio.CollarRow, st []csvio.SurveyRow) holemodel.Input {
 	in := holemodel.Input{ID: c.HoleID, Collar: c.Collar, CollarRef: c.AzimuthRef, CRS: c.CRS, SurveyDate: c.SurveyDate,
-		Declination: given(c.Declination), GridConvergence: given(c.GridConvergence)}
+		Declination: given(c.Declination), GridConvergence: given(c.GridConvergence), LocalGrid: c.LocalGrid}
 	in.Stations = make([]holemodel.Station, len(st))
 	for i, s := range st {
 		if s.Instrument != "" {

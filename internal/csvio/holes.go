@@ -1,7 +1,6 @@
 package csvio
 
 import (
-	"corvane/internal/uncertainty"
 	"fmt"
 	"io"
 	"math"
@@ -13,6 +12,8 @@ import (
 
 	"corvane/internal/desurvey"
 	"corvane/internal/domain"
+	"corvane/internal/localgrid"
+	"corvane/internal/uncertainty"
 )
 
 // CollarRow is one row of a collars file.
@@ -34,6 +35,9 @@ type CollarRow struct {
 	// YYYY-MM-DD), used for a magnetic collar azimuth and for survey rows
 	// without a date of their own; zero when not given.
 	SurveyDate time.Time
+	// LocalGrid is the hole's own local grid (local_grid column: a JSON
+	// declaration, checked by localgrid.Parse), nil when not given.
+	LocalGrid *localgrid.Grid
 }
 
 // CollarColumns are the required columns of a collars file.
@@ -42,7 +46,8 @@ var CollarColumns = []string{ColHoleID, ColEasting, ColNorthing, ColElevation, C
 // ReadCollars reads a whole collars file: required columns hole_id, easting,
 // northing, elevation, azimuth (0..360), dip (-90..90, negative down) and
 // depth (> 0); optional declination, grid_convergence, azimuth_reference,
-// crs and survey_date. Hole ids must be unique (compared exactly, after trimming spaces).
+// crs, survey_date and local_grid (the hole's own local grid as a JSON
+// declaration, the form of a --local-grid file). Hole ids must be unique (compared exactly, after trimming spaces).
 //
 // file names the file in messages. A missing column or broken CSV is an
 // error at once; bad rows are all reported, one problem each, in one error
@@ -80,6 +85,13 @@ func ReadCollars(r io.Reader, file string) ([]CollarRow, error) {
 		}
 		cw.CRS = rw.cell(ColCRS)
 		cw.SurveyDate = rw.date(ColSurveyDate)
+		if doc := rw.cell(ColLocalGrid); doc != "" {
+			g, _, err := localgrid.Parse([]byte(doc))
+			if err != nil {
+				rw.fail(ColLocalGrid, "%v", err)
+			}
+			cw.LocalGrid = g
+		}
 		if rw.bad == nil {
 			seen[cw.HoleID] = line
 		}
@@ -105,14 +117,22 @@ type SurveyRow struct {
 	// Every row of one set (a hole's survey set, or its set of a kind) that
 	// gives one must give the same.
 	Instrument uncertainty.Instrument
+	// Preferred is true on the rows of the hole's preferred set (preferred
+	// column: yes/no, true/false or 1/0, any case; empty says nothing).
+	// Only a set with a kind can be preferred, at most one per hole, and
+	// every row of a set that says must say the same.
+	Preferred bool
+	// PreferredSaid is true when the row's preferred cell is not empty.
+	PreferredSaid bool
 }
 
 // SurveyColumns are the required columns of a surveys file.
 var SurveyColumns = []string{ColHoleID, ColDepth, ColAzimuth, ColDip}
 
 // ReadSurveys reads a whole surveys file: hole_id, depth (>= 0), azimuth
-// (0..360) and dip (-90..90); optional azimuth_reference, survey_date, kind
-// and instrument (magnetic, gyro or unknown; one per set). The stations of
+// (0..360) and dip (-90..90); optional azimuth_reference, survey_date, kind,
+// instrument (magnetic, gyro or unknown; one per set) and preferred (the
+// hole's preferred set: yes on its rows; at most one set of a kind per hole). The stations of
 // each hole's set (its survey set, or its set of a kind) must come in
 // strictly increasing depth order (the holes and sets may be interleaved).
 // Errors as for [ReadCollars].
@@ -127,6 +147,13 @@ func ReadSurveys(r io.Reader, file string) ([]SurveyRow, error) {
 		line int
 	}
 	inst := map[string]named{} // the first row of each set that names an instrument
+	type said struct {
+		yes  bool
+		line int
+	}
+	pref := map[string]said{}     // the first row of each set that says whether it is preferred
+	prefHole := map[string]said{} // the first row marking a set of each hole preferred, by hole
+	prefKind := map[string]string{}
 	return readRows(r, file, "survey", SurveyColumns, func(rw *row) SurveyRow {
 		line := rw.line
 		s := SurveyRow{Line: line, HoleID: rw.cell(ColHoleID), Kind: strings.ToLower(rw.cell(ColKind))}
@@ -169,6 +196,27 @@ func ReadSurveys(r io.Reader, file string) ([]SurveyRow, error) {
 				inst[key] = named{k, line}
 			}
 			s.Instrument = k
+		}
+		if c := rw.cell(ColPreferred); c != "" {
+			yes, err := ParseYesNo(c)
+			switch p, seen := pref[key]; {
+			case err != nil:
+				rw.fail(ColPreferred, "preferred %v", err)
+			case yes && s.Kind == "":
+				rw.fail(ColPreferred, "the survey set of hole %q has no kind and cannot be preferred: give its rows a kind (gyro, magnetic, planned or other)", s.HoleID)
+			case seen && p.yes != yes:
+				rw.fail(ColPreferred, "preferred %q of %s differs from line %d: a set is preferred or not as a whole", c, setName(s), p.line)
+			case yes && prefHole[s.HoleID].line != 0 && prefKind[s.HoleID] != s.Kind:
+				rw.fail(ColPreferred, "hole %q has two preferred survey sets: the %s set here and the %s set on line %d", s.HoleID, s.Kind, prefKind[s.HoleID], prefHole[s.HoleID].line)
+			default:
+				if !seen {
+					pref[key] = said{yes, line}
+				}
+				if yes && prefHole[s.HoleID].line == 0 {
+					prefHole[s.HoleID], prefKind[s.HoleID] = said{true, line}, s.Kind
+				}
+			}
+			s.Preferred, s.PreferredSaid = yes, true
 		}
 		if rw.bad == nil {
 			prev[key] = last{s.Station.Depth, line}
@@ -346,3 +394,14 @@ const digits2 = "000102030405060708091011121314151617181920212223242526272829303
 	"8081828384858687888990919293949596979899"
 
 var pow10 = [...]float64{1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15}
+
+// ParseYesNo reads yes/no, true/false or 1/0 in any case.
+func ParseYesNo(s string) (bool, error) {
+	switch strings.ToLower(strings.TrimSpace(s)) {
+	case "yes", "true", "1":
+		return true, nil
+	case "no", "false", "0":
+		return false, nil
+	}
+	return false, fmt.Errorf("%q is not yes or no", s)
+}

@@ -44,6 +44,8 @@ const (
 	ColSurveyDate      = "survey_date"
 	ColKind            = "kind"       // surveys: the kind of survey set a row belongs to
 	ColInstrument      = "instrument" // surveys: the instrument of that set
+	ColPreferred       = "preferred"  // surveys: yes on the rows of a hole's preferred set
+	ColLocalGrid       = "local_grid" // collars: the hole's own local grid (JSON declaration)
 	ColAlpha           = "alpha"
 	ColBeta            = "beta"
 	ColGamma           = "gamma"

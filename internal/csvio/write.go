@@ -22,15 +22,19 @@ func num(v float64) string {
 
 // WriteCollars writes rows as a collars file that [ReadCollars] reads back to
 // the same values (Line aside): the required columns, then declination,
-// grid_convergence, azimuth_reference, crs and survey_date.
+// grid_convergence, azimuth_reference, crs, survey_date and local_grid.
 func WriteCollars(w io.Writer, rows []CollarRow) error {
 	cw := NewWriter(w)
-	cw.Strings(append(append([]string{}, CollarColumns...), ColDeclination, ColGridConvergence, ColAzimuthRef, ColCRS, ColSurveyDate))
+	cw.Strings(append(append([]string{}, CollarColumns...), ColDeclination, ColGridConvergence, ColAzimuthRef, ColCRS, ColSurveyDate, ColLocalGrid))
 	cw.EndRow()
 	for _, r := range rows {
 		c := r.Collar
+		var grid string
+		if r.LocalGrid != nil {
+			grid = string(r.LocalGrid.JSON())
+		}
 		cw.Strings([]string{r.HoleID, num(c.East), num(c.North), num(c.Elevation), num(c.Azimuth), num(c.Dip), num(c.Depth),
-			num(r.Declination), num(r.GridConvergence), r.AzimuthRef, r.CRS, date(r.SurveyDate)})
+			num(r.Declination), num(r.GridConvergence), r.AzimuthRef, r.CRS, date(r.SurveyDate), grid})
 		cw.EndRow()
 	}
 	return cw.Flush()
@@ -46,14 +50,18 @@ func date(t time.Time) string {
 
 // WriteSurveys writes rows as a surveys file that [ReadSurveys] reads back:
 // hole_id, depth, azimuth, dip, azimuth_reference, survey_date, kind,
-// instrument.
+// instrument, preferred (yes on the preferred set's rows, empty otherwise).
 func WriteSurveys(w io.Writer, rows []SurveyRow) error {
 	cw := NewWriter(w)
-	cw.Strings(append(append([]string{}, SurveyColumns...), ColAzimuthRef, ColSurveyDate, ColKind, ColInstrument))
+	cw.Strings(append(append([]string{}, SurveyColumns...), ColAzimuthRef, ColSurveyDate, ColKind, ColInstrument, ColPreferred))
 	cw.EndRow()
 	for _, r := range rows {
 		s := r.Station
-		cw.Strings([]string{r.HoleID, num(s.Depth), num(s.Azimuth), num(s.Dip), r.AzimuthRef, date(r.Date), r.Kind, string(r.Instrument)})
+		pref := ""
+		if r.Preferred {
+			pref = "yes"
+		}
+		cw.Strings([]string{r.HoleID, num(s.Depth), num(s.Azimuth), num(s.Dip), r.AzimuthRef, date(r.Date), r.Kind, string(r.Instrument), pref})
 		cw.EndRow()
 	}
 	return cw.Flush()

@@ -140,12 +140,15 @@ type Hole struct {
 	// SurveyDate is the date of the hole's survey (YYYY-MM-DD or empty), for
 	// computing the declination of a magnetic collar azimuth or survey set
 	// without a date of its own.
-	SurveyDate string    `json:"survey_date"`
-	Started    string    `json:"started"`  // YYYY-MM-DD or empty
-	Finished   string    `json:"finished"` // YYYY-MM-DD or empty
-	Version    int64     `json:"version"`
-	CreatedAt  time.Time `json:"created_at"`
-	UpdatedAt  time.Time `json:"updated_at"`
+	SurveyDate string `json:"survey_date"`
+	// LocalGrid declares the hole's own local (mine) grid, null when none:
+	// it wins over the project's local_grid for this hole (same form).
+	LocalGrid json.RawMessage `json:"local_grid"`
+	Started   string          `json:"started"`  // YYYY-MM-DD or empty
+	Finished  string          `json:"finished"` // YYYY-MM-DD or empty
+	Version   int64           `json:"version"`
+	CreatedAt time.Time       `json:"created_at"`
+	UpdatedAt time.Time       `json:"updated_at"`
 }
 
 // Station is one survey station: measured depth along the hole, azimuth, dip.

@@ -283,6 +283,9 @@ func (h *Hole) Normalize() error {
 			return e
 		}
 	}
+	if string(h.LocalGrid) == "null" {
+		h.LocalGrid = nil
+	}
 	if h.Started != "" && h.Finished != "" && h.Finished < h.Started {
 		return FieldErr("finished", "finished %s is before started %s", h.Finished, h.Started)
 	}

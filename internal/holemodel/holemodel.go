@@ -50,15 +50,18 @@ import (
 	"corvane/internal/coreangle"
 	"corvane/internal/desurvey"
 	"corvane/internal/geom"
+	"corvane/internal/localgrid"
 	"corvane/internal/northref"
 	"corvane/internal/uncertainty"
 )
 
-// North references, in the words of the files and the API.
+// North references, in the words of the files and the API. Local is an
+// output reference only: the hole's local grid (see [Input].LocalGrid).
 const (
 	True     = "true"
 	Grid     = "grid"
 	Magnetic = "magnetic"
+	Local    = "local"
 )
 
 // Source says where a correction came from.
@@ -91,6 +94,7 @@ const (
 	FieldDeclination     = "declination"
 	FieldGridConvergence = "grid_convergence"
 	FieldCRS             = "crs"
+	FieldLocalGrid       = "local_grid"
 )
 
 // Station is one survey station as recorded.
@@ -127,6 +131,12 @@ type Input struct {
 	// Instrument is the kind of survey instrument behind the stations, for
 	// the survey's share of each measurement's uncertainty; "" is unknown.
 	Instrument uncertainty.Instrument
+	// SurveySet names the survey the stations come from ("survey" or a
+	// kind, see domain.UsedSurvey), "" when none; reported with the results.
+	SurveySet string
+	// LocalGrid is the hole's own local grid, nil when it has none: it wins
+	// over the project's (see [Project].LocalGrid).
+	LocalGrid *localgrid.Grid
 }
 
 // Project holds the choices every hole of a project shares.
@@ -134,7 +144,8 @@ type Project struct {
 	Convention coreangle.Convention
 	Method     desurvey.Method
 	Unit       desurvey.Unit
-	// Output is Grid or True; "" means Grid.
+	// Output is Grid, True or Local; "" means Grid. Local needs a local
+	// grid, the hole's or the project's.
 	Output string
 	// Declination and GridConvergence are the project's defaults, nil while
 	// nobody has set them.
@@ -145,6 +156,9 @@ type Project struct {
 	// Model chooses the magnetic model of computed declinations ("" is
 	// northref.ModelAuto: WMM2025 for 2025-2030, IGRF-14 before).
 	Model northref.MagneticModel
+	// LocalGrid is the project's local grid, nil when none; a hole's own
+	// wins over it.
+	LocalGrid *localgrid.Grid
 }
 
 // Correction is a declination or grid convergence as applied.
@@ -177,7 +191,8 @@ func errorf(field string, format string, args ...any) *Error {
 type Hole struct {
 	// In is the input the hole was built from.
 	In Input
-	// Output is the north reference of every azimuth out: Grid or True.
+	// Output is the north reference of every azimuth out: Grid, True or
+	// Local (the local grid's north; coordinates out are then local too).
 	Output string
 	// Convergence is the grid convergence applied to the hole's azimuths.
 	Convergence Correction
@@ -190,11 +205,23 @@ type Hole struct {
 	Err  *Error
 	Path *desurvey.Path
 	// Collar and Stations are the path's input: azimuths in the output
-	// reference. Magnetic[i] tells whether Stations[i] was magnetic. When
-	// Err is set, Collar is the recorded one and Stations may be short.
+	// reference (in the projected grid when the output is Local: see
+	// OutputXY and OutputAzimuth). Magnetic[i] tells whether Stations[i]
+	// was magnetic. When Err is set, Collar is the recorded one and
+	// Stations may be short.
 	Collar   desurvey.Collar
 	Stations []desurvey.Station
 	Magnetic []bool
+	// Grid is the local grid in effect for the hole (its own, else the
+	// project's), nil when none.
+	Grid *localgrid.Grid
+
+	// local is true when Output is Local: the path is built in Grid's
+	// projected grid and results are turned into the local grid on the way
+	// out (rotation by -theta, coordinates by the inverse transformation);
+	// sinR, cosR are the sine and cosine of theta.
+	local      bool
+	sinR, cosR float64
 
 	conv coreangle.Convention
 	decl []declAt // declination by depth, sorted; empty when none applied
@@ -299,20 +326,61 @@ func metres(v float64, u desurvey.Unit) float64 {
 // New builds the hole. It always returns a hole; a problem that prevents
 // orienting it is in Hole.Err. Input references are checked with
 // [ParseRef]; an unknown one is an error of the hole.
+//
+// A local grid (the hole's own, else the project's) is used twice. A collar
+// whose crs is "local" is in that grid: its easting and northing become
+// projected coordinates of the grid's grid_crs, and every azimuth referenced
+// to grid (given as grid, or without a reference when the output is grid
+// or local) is a local-grid azimuth, turned by the rotation (grid = local +
+// theta) — so corrections are computed at the true place. And with output
+// Local, the hole is built in the projected grid and every result is
+// brought into the local grid on the way out ([Hole.Orient],
+// [Hole.OutputXY], [Hole.OutputAzimuth]); such a hole's collar must then be
+// "local" or in the grid's grid_crs.
 func New(in Input, p Project) *Hole {
 	out := p.Output
 	if out == "" {
 		out = Grid
 	}
-	h := &Hole{In: in, Output: out, Convergence: none(), Cautions: []string{}, conv: p.Convention, constDecl: true, Collar: in.Collar}
+	g := in.LocalGrid
+	if g == nil {
+		g = p.LocalGrid
+	}
+	h := &Hole{In: in, Output: out, Convergence: none(), Cautions: []string{}, conv: p.Convention, constDecl: true, Collar: in.Collar, Grid: g}
 	fail := func(e *Error) *Hole {
 		if h.Err == nil {
 			h.Err = e
 		}
 		return h
 	}
-	if out != Grid && out != True {
-		return fail(errorf(FieldHoleID, "hole %q: output reference must be grid or true, not %q", in.ID, out))
+	if out != Grid && out != True && out != Local {
+		return fail(errorf(FieldHoleID, "hole %q: output reference must be grid, true or local, not %q", in.ID, out))
+	}
+	if out == Local {
+		if g == nil {
+			return fail(errorf(FieldLocalGrid, "hole %q: output in the local grid needs a local grid: declare one for the hole (local_grid) or the project", in.ID))
+		}
+		if !localgrid.IsLocal(in.CRS) && strings.TrimSpace(in.CRS) != "" {
+			a, errA := northref.ParseCRS(in.CRS)
+			b, errB := northref.ParseCRS(g.Spec.GridCRS)
+			if errA != nil || errB != nil || a.EPSG != b.EPSG {
+				return fail(errorf(FieldCRS, "hole %q: output in the local grid needs the collar in the local grid (crs local) or in its projected grid %s, not in %s", in.ID, g.Spec.GridCRS, in.CRS))
+			}
+		}
+		out = Grid // built in the projected grid, turned on the way out
+		h.local = true
+		h.sinR, h.cosR = math.Sincos(g.T.Rotation * math.Pi / 180)
+	}
+	switch {
+	case g != nil && localgrid.IsLocal(in.CRS):
+		// grid azimuths, and those without a reference when the output is
+		// grid or local, are local-grid azimuths
+		in = fromLocal(in, g, true, func(r string) bool { return r == Grid || r == "" && out == Grid })
+		h.In, h.Collar = in, in.Collar
+	case h.local:
+		// azimuths without a reference are in the output: the local grid
+		in = fromLocal(in, g, false, func(r string) bool { return r == "" })
+		h.In, h.Collar = in, in.Collar
 	}
 	ref := func(s string) string {
 		r, err := ParseRef(s)
@@ -449,6 +517,70 @@ func New(in Input, p Project) *Hole {
 	}
 	h.Path = path
 	return h
+}
+
+// fromLocal carries a hole from local grid g into its projected grid (see
+// [New]): the collar's coordinates when coords (its crs becomes the grid's
+// grid_crs), and the azimuths whose reference isLocal says are local-grid
+// azimuths (they become grid azimuths).
+func fromLocal(in Input, g *localgrid.Grid, coords bool, isLocal func(ref string) bool) Input {
+	isGrid := func(ref string) bool {
+		r, err := ParseRef(ref)
+		return err == nil && isLocal(r)
+	}
+	if coords {
+		in.Collar.East, in.Collar.North = g.T.ToGrid(in.Collar.East, in.Collar.North)
+		in.CRS = g.Spec.GridCRS
+	}
+	if isGrid(in.CollarRef) {
+		in.Collar.Azimuth, in.CollarRef = g.T.LocalToGridAzimuth(in.Collar.Azimuth), Grid
+	}
+	st := make([]Station, len(in.Stations))
+	for i, s := range in.Stations {
+		if isGrid(s.Ref) {
+			s.Azimuth, s.Ref = g.T.LocalToGridAzimuth(s.Azimuth), Grid
+		}
+		st[i] = s
+	}
+	in.Stations = st
+	return in
+}
+
+// OutputXY returns projected coordinates of the hole's path (the collar,
+// Path.At) in the output's coordinates: local-grid coordinates when the
+// output is Local, unchanged otherwise.
+func (h *Hole) OutputXY(e, n float64) (float64, float64) {
+	if !h.local {
+		return e, n
+	}
+	return h.Grid.T.ToLocal(e, n)
+}
+
+// OutputAzimuth returns an azimuth of the hole's path (Collar, Stations,
+// the path's directions), which is in the projected grid when the output is
+// Local, in the output reference: local = grid - theta.
+func (h *Hole) OutputAzimuth(az float64) float64 {
+	if !h.local {
+		return az
+	}
+	return geom.NormAzimuth(az - h.Grid.T.Rotation)
+}
+
+// toLocal turns a result built in the projected grid into the local grid.
+func (h *Hole) toLocal(r *Result) {
+	rot := h.Grid.T.Rotation
+	d := r.Point.Dir
+	if d.X != 0 || d.Y != 0 {
+		r.HoleAzimuth = geom.NormAzimuth(r.HoleAzimuth - rot)
+	}
+	r.Point.Dir.X, r.Point.Dir.Y = d.X*h.cosR-d.Y*h.sinR, d.Y*h.cosR+d.X*h.sinR
+	r.Point.Pos.X, r.Point.Pos.Y = h.Grid.T.ToLocal(r.Point.Pos.X, r.Point.Pos.Y)
+	if !math.IsNaN(r.Plane.DipDirection) {
+		r.Plane.DipDirection = geom.NormAzimuth(r.Plane.DipDirection - rot)
+	}
+	if r.HasLine && !math.IsNaN(r.Line.Trend) {
+		r.Line.Trend = geom.NormAzimuth(r.Line.Trend - rot)
+	}
 }
 
 // Measurement is one core-angle measurement on a hole.
@@ -589,6 +721,9 @@ func (h *Hole) orient(m *Measurement) (Result, error) {
 	if m.HasThickness {
 		r.TrueThickness = coreangle.TrueThickness(m.Thickness, m.Alpha)
 	}
+	if h.local {
+		h.toLocal(&r)
+	}
 	return r, nil
 }
 
@@ -614,6 +749,9 @@ func (h *Hole) CoreAngles(md float64, p geom.Plane) (alpha, beta float64, err er
 	pt, err := h.Path.At(md)
 	if err != nil {
 		return 0, 0, errorf(FieldDepth, "%v", err)
+	}
+	if h.local && !math.IsNaN(p.DipDirection) {
+		p.DipDirection = geom.NormAzimuth(p.DipDirection + h.Grid.T.Rotation)
 	}
 	alpha, beta, w := coreangle.Angles(pt.Dir, p, h.conv)
 	if w.Has(coreangle.Vertical) || math.IsNaN(beta) {

@@ -15,11 +15,13 @@ import (
 // query reads the measurement filter from the query string: hole (hole
 // names, repeated or comma-separated), min_depth, max_depth, type (codes,
 // repeated or comma-separated), from and to (YYYY-MM-DD for whole days, or
-// RFC 3339 instants; both inclusive).
+// RFC 3339 instants; both inclusive), output_reference (grid, true or
+// local: the north of the derived azimuths when not the project's).
 func query(c *gin.Context) (service.MeasurementQuery, error) {
 	var q service.MeasurementQuery
 	q.Holes = splitList(c.QueryArray("hole"))
 	q.Types = splitList(c.QueryArray("type"))
+	q.Output = c.Query("output_reference")
 	switch o := c.Query("order"); o {
 	case "", "id":
 	case "depth":

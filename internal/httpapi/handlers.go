@@ -22,6 +22,9 @@ func (s *Server) convert(c *gin.Context) {
 		fail(c, err)
 		return
 	}
+	if o := c.Query("output_reference"); o != "" { // as --output-reference of corvane convert
+		req.Conventions.OutputAzimuthRef = o
+	}
 	resp, err := s.opt.Service.Convert(c.Request.Context(), req)
 	if err != nil {
 		fail(c, err)

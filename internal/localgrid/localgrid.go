@@ -38,12 +38,15 @@
 package localgrid
 
 import (
+	"bytes"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"math"
 	"strings"
 
 	"corvane/internal/geom"
+	"corvane/internal/northref"
 )
 
 // Transform is a similarity transformation from a local grid to a projected
@@ -264,4 +267,60 @@ func (s Spec) Resolve() (Transform, *Fit, error) {
 		return Transform{}, nil, fmt.Errorf("local grid: %w", err)
 	}
 	return t, nil, nil
+}
+
+// Grid is a declared local grid with its resolved transformation: what a
+// project or a hole carries once its declaration has been checked.
+type Grid struct {
+	Spec Spec
+	T    Transform
+}
+
+// NewGrid resolves a declaration into a Grid, with the fit when it came
+// from control points (nil otherwise).
+func NewGrid(s Spec) (*Grid, *Fit, error) {
+	t, fit, err := s.Resolve()
+	if err != nil {
+		return nil, nil, err
+	}
+	return &Grid{Spec: s, T: t}, fit, nil
+}
+
+// LocalCRS is the crs label of a collar given in a local grid.
+const LocalCRS = "local"
+
+// IsLocal reports whether a collar's crs label says it is in its local grid
+// ("local" in any case).
+func IsLocal(crs string) bool { return strings.EqualFold(strings.TrimSpace(crs), LocalCRS) }
+
+// Parse reads and checks a local grid declaration (JSON, the form of
+// [Spec]): unknown fields are errors, the transformation must resolve
+// (parameters or at least two control points) and grid_crs must be a
+// projected grid corvane can place collars in, so that azimuths can be
+// carried on to true north. A project's setting, a hole's, a collars
+// file's local_grid cell and the CLI's --local-grid file all obey it.
+func Parse(doc []byte) (*Grid, *Fit, error) {
+	var spec Spec
+	dec := json.NewDecoder(bytes.NewReader(doc))
+	dec.DisallowUnknownFields()
+	if err := dec.Decode(&spec); err != nil {
+		return nil, nil, fmt.Errorf("local grid: not a local grid declaration: %v", err)
+	}
+	if dec.More() {
+		return nil, nil, errors.New("local grid: more than one declaration")
+	}
+	g, fit, err := NewGrid(spec)
+	if err != nil {
+		return nil, nil, err
+	}
+	if _, err := northref.ParseCRS(spec.GridCRS); err != nil {
+		return nil, nil, fmt.Errorf("local grid: grid_crs: %v", err)
+	}
+	return g, fit, nil
+}
+
+// JSON returns the declaration in canonical form (as stored and exported).
+func (g *Grid) JSON() []byte {
+	b, _ := json.Marshal(g.Spec) // plain fields: cannot fail
+	return b
 }

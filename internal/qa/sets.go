@@ -9,26 +9,58 @@ import (
 	"corvane/internal/words"
 )
 
-// The kinds of survey set the comparison looks at (the words of the files
-// and the API; the others are not compared).
+// The kinds of survey set and instruments the comparison tells apart (the
+// words of the files and the API).
 const (
 	KindGyro     = "gyro"
 	KindMagnetic = "magnetic"
+	KindPlanned  = "planned"
+	KindOther    = "other"
 )
 
 // SurveySet is one of a hole's several surveys: its kind (gyro, magnetic,
-// planned, other) and its stations, azimuths already in the report's north
-// reference (the caller applies declination and grid convergence first, as
-// for Surveys). Name says which set it is in messages, e.g. "magnetic".
+// planned, other), its instrument (magnetic, gyro, unknown or "") and its
+// stations, azimuths already in the report's north reference (the caller
+// applies declination and grid convergence first, as for Surveys; a
+// station's Magnetic says it was measured against magnetic north). Name
+// says which set it is in messages, e.g. "magnetic".
 type SurveySet struct {
-	HoleID   string    `json:"hole_id"`
-	Kind     string    `json:"kind"`
-	Name     string    `json:"name,omitempty"`
-	Stations []Station `json:"stations"`
+	HoleID     string    `json:"hole_id"`
+	Kind       string    `json:"kind"`
+	Instrument string    `json:"instrument,omitempty"`
+	Name       string    `json:"name,omitempty"`
+	Stations   []Station `json:"stations"`
+}
+
+// IsMagnetic reports whether the set's azimuths come from the Earth's
+// field: a magnetic kind or instrument, or stations measured against
+// magnetic north. A planned set is never measured.
+func (s SurveySet) IsMagnetic() bool {
+	if s.Kind == KindPlanned {
+		return false
+	}
+	if s.Kind == KindMagnetic || s.Instrument == KindMagnetic {
+		return true
+	}
+	for _, st := range s.Stations {
+		if st.Magnetic {
+			return true
+		}
+	}
+	return false
+}
+
+// IsReference reports whether the set can show a magnetic set's
+// interference: a measured set that does not use the Earth's field — a gyro
+// set, or another kind referenced to true or grid north (a gyro by another
+// name, or an optical or inertial survey).
+func (s SurveySet) IsReference() bool {
+	return (s.Kind == KindGyro || s.Kind == KindOther) && !s.IsMagnetic()
 }
 
 // Interference is a depth interval where a magnetic set's azimuths leave
-// a gyro set's by more than the threshold: likely magnetic interference.
+// a reference set's (a gyro's) by more than the threshold: likely magnetic
+// interference.
 type Interference struct {
 	From, To float64 // depths of the first and last station in the interval
 	Stations int     // magnetic stations in the interval
@@ -144,9 +176,10 @@ func gyroAt(g []Station, md float64) geom.Vec3 {
 	return va.Scale(1 - t).Add(vb.Scale(t)).Unit()
 }
 
-// setFindings compares every magnetic set of a hole with every gyro set and
-// reports the interference intervals (flags) and a constant offset above
-// the threshold (a warning: a declination or north reference to check).
+// setFindings compares every magnetic set of a hole with every reference
+// set (see [SurveySet.IsMagnetic], [SurveySet.IsReference]) and reports the
+// interference intervals (flags) and a constant offset above the threshold
+// (a warning: a declination or north reference to check).
 func setFindings(hole string, sets []SurveySet, o Options) []Finding {
 	var out []Finding
 	name := func(s SurveySet) string {
@@ -156,11 +189,11 @@ func setFindings(hole string, sets []SurveySet, o Options) []Finding {
 		return s.Kind
 	}
 	for _, ms := range sets {
-		if ms.Kind != KindMagnetic {
+		if !ms.IsMagnetic() {
 			continue
 		}
 		for _, gs := range sets {
-			if gs.Kind != KindGyro {
+			if !gs.IsReference() {
 				continue
 			}
 			c := CompareSets(ms.Stations, gs.Stations, o.InterferenceThreshold, o.NearVertical)

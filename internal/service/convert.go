@@ -2,6 +2,7 @@ package service
 
 import (
 	"context"
+	"encoding/json"
 	"fmt"
 	"strconv"
 	"strings"
@@ -47,6 +48,10 @@ type ConvertCollar struct {
 	Declination     *float64 `json:"declination"`
 	GridConvergence *float64 `json:"grid_convergence"`
 	SurveyDate      string   `json:"survey_date"`
+	// LocalGrid is the hole's own local grid (the form of
+	// conventions.local_grid), null when none: it wins over the
+	// conventions' for this hole, as a collars file's local_grid column.
+	LocalGrid json.RawMessage `json:"local_grid,omitempty"`
 }
 
 // ConvertSurvey is the survey set of one hole.
@@ -134,17 +139,21 @@ func (s *Service) Convert(ctx context.Context, req ConvertRequest) (ConvertRespo
 	for i, cl := range req.Collars {
 		h := domain.Hole{Name: cl.HoleID, East: cl.East, North: cl.North, Elevation: cl.Elevation,
 			Azimuth: cl.Azimuth, AzimuthRef: orDefault(cl.AzimuthRef, c.OutputAzimuthRef), Dip: cl.Dip, FinalDepth: cl.FinalDepth, CRS: cl.CRS,
-			Declination: cl.Declination, GridConvergence: cl.GridConvergence, SurveyDate: cl.SurveyDate}
+			Declination: cl.Declination, GridConvergence: cl.GridConvergence, SurveyDate: cl.SurveyDate, LocalGrid: cl.LocalGrid}
 		if err := h.Normalize(); err != nil {
+			return resp, prefixField(err, "collars["+strconv.Itoa(i)+"].")
+		}
+		if err := checkHoleLocalGrid(domain.Project{LengthUnit: c.LengthUnit}, &h); err != nil {
 			return resp, prefixField(err, "collars["+strconv.Itoa(i)+"].")
 		}
 		if _, dup := models[h.Name]; dup {
 			return resp, domain.FieldErr("collars["+strconv.Itoa(i)+"].hole_id", "hole %q appears twice", h.Name)
 		}
-		ss := surveys[h.Name]
+		ss, set := surveys[h.Name], ""
 		if ss != nil {
+			set = SetSurvey
 		}
-		models[h.Name] = newHoleModel(c, h, ss, nil)
+		models[h.Name] = newHoleModel(c, h, ss, set, nil)
 		models[h.Name].ms = ms
 	}
 	for id := range surveys {

@@ -2,6 +2,7 @@ package service
 
 import (
 	"context"
+	"encoding/json"
 	"math"
 	"strings"
 	"sync"
@@ -12,6 +13,7 @@ import (
 	"corvane/internal/desurvey"
 	"corvane/internal/domain"
 	"corvane/internal/holemodel"
+	"corvane/internal/localgrid"
 	"corvane/internal/northref"
 	"corvane/internal/uncertainty"
 )
@@ -121,9 +123,13 @@ type Conventions struct {
 	// MagneticModel chooses the model of computed declinations: "auto"
 	// (default), "wmm" or "igrf" (see domain.Project).
 	MagneticModel string `json:"magnetic_model"`
-	// grid is the project's local grid, nil when none: holes whose crs is
-	// "local" are carried into its projected grid.
-	grid *convert.LocalGrid
+	// LocalGrid is the project's local (mine) grid, null when none (package
+	// localgrid's declaration, as the project's local_grid): holes whose crs
+	// is "local" are in it, and output_azimuth_ref "local" gives azimuths
+	// and coordinates in it (a hole's own local grid wins over it).
+	LocalGrid json.RawMessage `json:"local_grid,omitempty"`
+	// grid is LocalGrid resolved, nil when none.
+	grid *localgrid.Grid
 }
 
 // ConventionsOf returns the project's conventions, with its local grid
@@ -133,26 +139,49 @@ type Conventions struct {
 func ConventionsOf(p domain.Project) Conventions {
 	c := Conventions{RefLine: p.RefLine, BetaApex: p.BetaApex, GammaSense: p.GammaSense, LengthUnit: p.LengthUnit,
 		OutputAzimuthRef: p.OutputAzimuthRef, Declination: p.Declination, Convergence: p.Convergence, ErrorModel: p.ErrorModel,
-		MagneticModel: p.MagneticModel}
-	if len(p.LocalGrid) > 0 {
-		if spec, err := ParseLocalGrid(p.LocalGrid); err == nil {
-			t, _, _ := spec.Resolve()
-			c.grid = &convert.LocalGrid{Spec: spec, T: t}
-		}
-	}
+		MagneticModel: p.MagneticModel, LocalGrid: p.LocalGrid}
+	c.grid = storedGrid(p.LocalGrid)
 	return c
 }
 
-// normalize fills defaults and validates c, reusing the project rules.
+// normalize fills defaults and validates c, reusing the project rules; an
+// output reference "local" (azimuths and coordinates in the local grid) is
+// allowed here, as a request's choice.
 func (c *Conventions) normalize() error {
+	out, err := outputOf(c.OutputAzimuthRef)
+	if err != nil {
+		return domain.FieldErr("output_azimuth_ref", "%v", err)
+	}
 	p := domain.Project{Name: "x", RefLine: c.RefLine, BetaApex: c.BetaApex, GammaSense: c.GammaSense, LengthUnit: c.LengthUnit,
-		OutputAzimuthRef: c.OutputAzimuthRef, Declination: c.Declination, Convergence: c.Convergence, ErrorModel: c.ErrorModel,
-		MagneticModel: c.MagneticModel}
+		Declination: c.Declination, Convergence: c.Convergence, ErrorModel: c.ErrorModel,
+		MagneticModel: c.MagneticModel, LocalGrid: c.LocalGrid}
+	if out != holemodel.Local {
+		p.OutputAzimuthRef = out
+	}
 	if err := p.Normalize(); err != nil {
 		return err
 	}
+	if err := checkLocalGrid(&p); err != nil {
+		return err
+	}
+	if out == holemodel.Local {
+		p.OutputAzimuthRef = out
+	}
 	*c = ConventionsOf(p)
 	return nil
+}
+
+// outputOf reads an output reference as a request gives it (grid, true or
+// local, any case; "" is the project's), by convert.ParseOutput's rule.
+func outputOf(s string) (string, error) {
+	if s == "" {
+		return "", nil
+	}
+	r, err := convert.ParseOutput(s)
+	if err != nil {
+		return "", err
+	}
+	return r.String(), nil
 }
 
 func (c Conventions) core() coreangle.Convention {
@@ -173,7 +202,7 @@ func (c Conventions) core() coreangle.Convention {
 // curvature, the project's unit, output reference and defaults.
 func (c Conventions) project() holemodel.Project {
 	p := holemodel.Project{Convention: c.core(), Method: desurvey.MinimumCurvature, Output: c.OutputAzimuthRef,
-		Declination: c.Declination, GridConvergence: c.Convergence, Model: northref.MagneticModel(c.MagneticModel)}
+		Declination: c.Declination, GridConvergence: c.Convergence, Model: northref.MagneticModel(c.MagneticModel), LocalGrid: c.grid}
 	if c.LengthUnit == domain.UnitFoot {
 		p.Unit = desurvey.Feet
 	}
@@ -181,11 +210,11 @@ func (c Conventions) project() holemodel.Project {
 }
 
 // holeInput is the hole model's neutral input for the stored hole h and its
-// survey set ss (nil when none).
-func holeInput(h domain.Hole, ss *domain.SurveySet) holemodel.Input {
+// survey set ss (nil when none), named set (see domain.UsedSurvey).
+func holeInput(h domain.Hole, ss *domain.SurveySet, set string) holemodel.Input {
 	in := holemodel.Input{ID: h.Name, CRS: h.CRS, CollarRef: h.AzimuthRef,
 		Collar:      desurvey.Collar{East: h.East, North: h.North, Elevation: h.Elevation, Azimuth: h.Azimuth, Dip: h.Dip, Depth: h.FinalDepth},
-		Declination: h.Declination, GridConvergence: h.GridConvergence}
+		Declination: h.Declination, GridConvergence: h.GridConvergence, SurveySet: set, LocalGrid: storedGrid(h.LocalGrid)}
 	in.SurveyDate, _ = time.Parse(time.DateOnly, h.SurveyDate)
 	if ss != nil {
 		in.Instrument = uncertainty.Instrument(ss.Instrument)
@@ -222,12 +251,9 @@ type holeModel struct {
 }
 
 // newHoleModel builds the model of the stored hole h with survey set ss (nil
-// when the hole has none) and runs.
-func newHoleModel(c Conventions, h domain.Hole, ss *domain.SurveySet, runs []domain.Run) *holeModel {
-	p := c.project()
-	in := holeInput(h, ss)
-	c.grid.Apply(&in, p.Output)
-	return &holeModel{Hole: holemodel.New(in, p), em: c.ErrorModel, name: h.Name, conv: c, runs: runs, hole: h, survey: ss}
+// when the hole has none), named set, and runs.
+func newHoleModel(c Conventions, h domain.Hole, ss *domain.SurveySet, set string, runs []domain.Run) *holeModel {
+	return &holeModel{Hole: holemodel.New(holeInput(h, ss, set), c.project()), em: c.ErrorModel, name: h.Name, conv: c, runs: runs, hole: h, survey: ss, set: set}
 }
 
 // perMeasurement holds the normals of uncertainty.PerMeasurement, drawn
@@ -425,8 +451,7 @@ func (d *deriver) model(ctx context.Context, holeID int64) (*holeModel, error) {
 	if err != nil {
 		return nil, err
 	}
-	m := newHoleModel(d.conv, h, ss, runs)
-	m.set = set
+	m := newHoleModel(d.conv, h, ss, set, runs)
 	if d.cache != nil && h.ProjectID == d.project.ID {
 		if d.inTx {
 			d.newModel = append(d.newModel, m)

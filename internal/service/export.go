@@ -47,6 +47,9 @@ func (s *Service) exportMeasurements(ctx context.Context, st domain.Store, proje
 	if err != nil {
 		return err
 	}
+	if err := q.withOutput(&p); err != nil {
+		return err
+	}
 	f, err := filter(ctx, st, projectID, q)
 	if err != nil {
 		return err

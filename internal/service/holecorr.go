@@ -83,8 +83,7 @@ func holeViews(ctx context.Context, st domain.Store, p domain.Project, hs []doma
 		if err != nil {
 			return nil, err
 		}
-		m := newHoleModel(c, h, ss, nil)
-		m.set = set
+		m := newHoleModel(c, h, ss, set, nil)
 		out[i] = HoleView{Hole: h, Corrections: m.corrections()}
 	}
 	return out, nil

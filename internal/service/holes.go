@@ -21,6 +21,9 @@ func (s *Service) CreateHole(ctx context.Context, projectID int64, h domain.Hole
 		if err := h.Normalize(); err != nil {
 			return err
 		}
+		if err := checkHoleLocalGrid(p, &h); err != nil {
+			return err
+		}
 		if err := st.CreateHole(ctx, &h); err != nil {
 			if domain.IsKind(err, domain.Conflict) {
 				return domain.Errorf(domain.Conflict, "hole %q already exists in project %d", h.Name, projectID)
@@ -89,6 +92,9 @@ func (s *Service) UpdateHole(ctx context.Context, projectID, holeID, ifVersion i
 		}
 		h.AzimuthRef = orDefault(h.AzimuthRef, p.OutputAzimuthRef)
 		if err := h.Normalize(); err != nil {
+			return err
+		}
+		if err := checkHoleLocalGrid(p, &h); err != nil {
 			return err
 		}
 		before, err := hole(ctx, st, projectID, holeID)

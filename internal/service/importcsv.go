@@ -22,8 +22,8 @@ import (
 // Import kinds: the CSV files the service accepts, with the converter's
 // column names (package csvio).
 const (
-	ImportCollars      = "collars"      // hole_id, easting, northing, elevation, azimuth, dip, depth [, azimuth_reference, crs, declination, grid_convergence, survey_date]
-	ImportSurveys      = "surveys"      // hole_id, depth, azimuth, dip [, azimuth_reference, survey_date]
+	ImportCollars      = "collars"      // hole_id, easting, northing, elevation, azimuth, dip, depth [, azimuth_reference, crs, declination, grid_convergence, survey_date, local_grid]
+	ImportSurveys      = "surveys"      // hole_id, depth, azimuth, dip [, azimuth_reference, survey_date, kind, instrument, preferred]
 	ImportRuns         = "runs"         // hole_id, from, to, confidence [, mismatch]
 	ImportMeasurements = "measurements" // hole_id, depth, alpha, beta (empty: unoriented), type [, gamma, apparent_thickness, comment, logged_by, logged_at]
 )
@@ -295,10 +295,17 @@ func importCollars(ctx context.Context, st domain.Store, p domain.Project, body 
 		if !r.SurveyDate.IsZero() {
 			h.SurveyDate = r.SurveyDate.Format(time.DateOnly)
 		}
+		if r.LocalGrid != nil {
+			h.LocalGrid = r.LocalGrid.JSON()
+		}
 		if err := h.Normalize(); err != nil {
 			var e *domain.Error
 			errors.As(err, &e)
 			ps.add(r.Line, e.Loc.Field, "%s", e.Msg)
+			continue
+		}
+		if err := checkHoleLocalGrid(p, &h); err != nil {
+			ps.add(r.Line, csvio.ColLocalGrid, "%s", msgOf(err))
 			continue
 		}
 		old, err := st.GetHoleByName(ctx, p.ID, h.Name)
@@ -350,6 +357,9 @@ func importSurveys(ctx context.Context, st domain.Store, p domain.Project, body 
 		kind string
 		line int
 		hole domain.Hole
+		// pref is what the file says of the set's preferred flag, nil
+		// when it says nothing (the stored flag is kept).
+		pref *bool
 	}
 	var order []string
 	sets := map[string]*set{}
@@ -392,6 +402,10 @@ func importSurveys(ctx context.Context, st domain.Store, p domain.Project, body 
 		if r.Instrument != "" {
 			s.ss.Instrument = string(r.Instrument) // one per set: csvio.ReadSurveys checks
 		}
+		if r.PreferredSaid {
+			yes := r.Preferred // one per set and hole: csvio.ReadSurveys checks
+			s.pref = &yes
+		}
 		if r.Station.Depth > s.hole.FinalDepth {
 			ps.add(r.Line, csvio.ColDepth, "station depth %v is past the final depth %v of hole %s", r.Station.Depth, s.hole.FinalDepth, r.HoleID)
 			continue
@@ -404,7 +418,7 @@ func importSurveys(ctx context.Context, st domain.Store, p domain.Project, body 
 	for _, key := range order {
 		s := sets[key]
 		if s.kind != "" {
-			if err := putKindSetRows(ctx, st, s.ss, s.kind, res); err != nil {
+			if err := putKindSetRows(ctx, st, s.ss, s.kind, s.pref, res); err != nil {
 				if e, ok := err.(*domain.Error); ok && e.Kind == domain.Invalid {
 					ps.add(s.line, "", "hole %s: %v", s.hole.Name, err)
 					continue
@@ -436,8 +450,9 @@ func importSurveys(ctx context.Context, st domain.Store, p domain.Project, body 
 }
 
 // putKindSetRows stores an imported set of a kind, replacing the hole's set
-// of that kind and keeping its preferred flag.
-func putKindSetRows(ctx context.Context, st domain.Store, ss domain.SurveySet, kind string, res *ImportResult) error {
+// of that kind: preferred as pref says (a preferred set makes the hole's
+// others not preferred), its stored flag kept when pref is nil.
+func putKindSetRows(ctx context.Context, st domain.Store, ss domain.SurveySet, kind string, pref *bool, res *ImportResult) error {
 	k := domain.KindSet{HoleID: ss.HoleID, Kind: kind, Instrument: ss.Instrument, AzimuthRef: ss.AzimuthRef, SurveyDate: ss.SurveyDate, Stations: ss.Stations}
 	if err := k.Normalize(); err != nil {
 		return err
@@ -451,6 +466,9 @@ func putKindSetRows(ctx context.Context, st domain.Store, ss domain.SurveySet, k
 		if c.Kind == kind {
 			v, k.Preferred = c.Version, c.Preferred
 		}
+	}
+	if pref != nil {
+		k.Preferred = *pref
 	}
 	if v == 0 {
 		res.Created++

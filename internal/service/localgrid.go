@@ -1,12 +1,8 @@
 package service
 
 import (
-	"bytes"
-	"encoding/json"
-
 	"corvane/internal/domain"
 	"corvane/internal/localgrid"
-	"corvane/internal/northref"
 )
 
 // checkLocalGrid validates a project's local grid declaration (package
@@ -17,38 +13,55 @@ func checkLocalGrid(p *domain.Project) error {
 	if len(p.LocalGrid) == 0 {
 		return nil
 	}
-	spec, err := ParseLocalGrid(p.LocalGrid)
+	g, _, err := localgrid.Parse(p.LocalGrid)
 	if err != nil {
 		return domain.FieldErr("local_grid", "%v", err)
 	}
 	if p.LengthUnit == domain.UnitFoot {
 		return domain.FieldErr("local_grid", "local grid: a project in feet cannot have one (the local grid is in metres)")
 	}
-	canon, err := json.Marshal(spec)
-	if err != nil {
-		return err
-	}
-	p.LocalGrid = canon
+	p.LocalGrid = g.JSON()
 	return nil
 }
 
-// ParseLocalGrid reads and checks a local grid declaration: unknown fields
-// are errors, the transformation must resolve (parameters or at least two
-// control points) and grid_crs must be a supported projected grid. The CLI
-// reads its --local-grid file with it, so a file and a project setting obey
-// one rule.
-func ParseLocalGrid(doc []byte) (localgrid.Spec, error) {
-	var spec localgrid.Spec
-	dec := json.NewDecoder(bytes.NewReader(doc))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(&spec); err != nil {
-		return spec, domain.Errorf(domain.Invalid, "local grid: not a local grid declaration: %v", err)
+// ParseLocalGrid reads and checks a local grid declaration with
+// localgrid.Parse, as an Invalid error.
+func ParseLocalGrid(doc []byte) (*localgrid.Grid, error) {
+	g, _, err := localgrid.Parse(doc)
+	if err != nil {
+		return nil, domain.Errorf(domain.Invalid, "%v", err)
 	}
-	if _, _, err := spec.Resolve(); err != nil {
-		return spec, domain.Errorf(domain.Invalid, "%v", err)
+	return g, nil
+}
+
+// checkHoleLocalGrid validates a hole's own local grid declaration as the
+// project's (none when empty) and rewrites it in canonical form; the
+// project's length unit rules as for the project's grid.
+func checkHoleLocalGrid(p domain.Project, h *domain.Hole) error {
+	if len(h.LocalGrid) == 0 {
+		return nil
 	}
-	if _, err := northref.ParseCRS(spec.GridCRS); err != nil {
-		return spec, domain.Errorf(domain.Invalid, "local grid: grid_crs: %v", err)
+	g, _, err := localgrid.Parse(h.LocalGrid)
+	if err != nil {
+		return domain.FieldErr("local_grid", "%v", err)
 	}
-	return spec, nil
+	if p.LengthUnit == domain.UnitFoot {
+		return domain.FieldErr("local_grid", "local grid: a hole of a project in feet cannot have one (the local grid is in metres)")
+	}
+	h.LocalGrid = g.JSON()
+	return nil
+}
+
+// storedGrid is the local grid of a stored declaration (checked when it was
+// stored), nil when none or when it no longer reads: holes that need it then
+// have the error of a grid they do not have.
+func storedGrid(doc []byte) *localgrid.Grid {
+	if len(doc) == 0 {
+		return nil
+	}
+	g, _, err := localgrid.Parse(doc)
+	if err != nil {
+		return nil
+	}
+	return g
 }

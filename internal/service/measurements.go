@@ -27,6 +27,23 @@ type MeasurementQuery struct {
 	// ByDepth lists in (depth, id) order; the page's After is still the id
 	// of the last row of the previous page.
 	ByDepth bool
+	// Output is the north reference of the derived azimuths when not the
+	// project's: grid, true or local (azimuths and coordinates in the local
+	// grid, the hole's or the project's); "" is the project's.
+	Output string
+}
+
+// withOutput sets the project's output reference to q's choice, when q
+// makes one (query parameter output_reference).
+func (q MeasurementQuery) withOutput(p *domain.Project) error {
+	out, err := outputOf(q.Output)
+	if err != nil {
+		return domain.FieldErr("output_reference", "output_reference: %v", err)
+	}
+	if out != "" {
+		p.OutputAzimuthRef = out
+	}
+	return nil
 }
 
 // filter resolves q's hole names into the store filter.
@@ -169,6 +186,9 @@ func (s *Service) ListMeasurements(ctx context.Context, projectID int64, q Measu
 	var out List[MeasurementView]
 	p, _, err := s.project(ctx, s.store, projectID, domain.RoleRead)
 	if err != nil {
+		return out, err
+	}
+	if err := q.withOutput(&p); err != nil {
 		return out, err
 	}
 	f, err := filter(ctx, s.store, projectID, q)

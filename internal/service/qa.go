@@ -116,7 +116,7 @@ func (s *Service) qaInput(ctx context.Context, p domain.Project, holes []domain.
 	names := make(map[int64]string, len(holes))
 	for _, h := range holes {
 		names[h.ID] = h.Name
-		ss, _, sets, err := usedSurvey(ctx, s.store, h.ID, p.SurveyPriority)
+		ss, used, sets, err := usedSurvey(ctx, s.store, h.ID, p.SurveyPriority)
 		if err != nil {
 			return in, err
 		}
@@ -125,13 +125,13 @@ func (s *Service) qaInput(ctx context.Context, p domain.Project, holes []domain.
 		// model cannot build is left out of the comparison.
 		for _, k := range sets {
 			ks := k.Survey()
-			km := newHoleModel(conv, h, &ks, nil)
+			km := newHoleModel(conv, h, &ks, k.Kind, nil)
 			if km.Err != nil {
 				continue
 			}
-			qs := qa.SurveySet{HoleID: h.Name, Kind: k.Kind}
-			for _, st := range km.Stations {
-				qs.Stations = append(qs.Stations, qa.Station{HoleID: h.Name, Depth: st.Depth, Azimuth: st.Azimuth, Dip: st.Dip, Magnetic: k.AzimuthRef == domain.AzimuthMagnetic})
+			qs := qa.SurveySet{HoleID: h.Name, Kind: k.Kind, Instrument: k.Instrument}
+			for i, st := range km.Stations {
+				qs.Stations = append(qs.Stations, qa.Station{HoleID: h.Name, Depth: st.Depth, Azimuth: st.Azimuth, Dip: st.Dip, Magnetic: km.Magnetic[i]})
 			}
 			in.SurveySets = append(in.SurveySets, qs)
 		}
@@ -142,7 +142,7 @@ func (s *Service) qaInput(ctx context.Context, p domain.Project, holes []domain.
 		// The QA collar and stations are the hole model's path input, with
 		// the same corrections as the derived values; a hole the model
 		// cannot build is reported once, as in corvane qa.
-		m := newHoleModel(conv, h, ss, runs)
+		m := newHoleModel(conv, h, ss, used, runs)
 		c := m.Collar
 		qc := qa.Collar{HoleID: h.Name, East: c.East, North: c.North, Elevation: c.Elevation, Azimuth: c.Azimuth, Dip: c.Dip, Depth: c.Depth, Path: m.Path, DeclinationSource: m.DeclinationSource()}
 		if m.Err != nil {

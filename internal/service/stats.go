@@ -103,6 +103,9 @@ func (s *Service) eachRow(ctx context.Context, projectID int64, q MeasurementQue
 	if err != nil {
 		return
 	}
+	if err = q.withOutput(&p); err != nil {
+		return
+	}
 	f, err := filter(ctx, s.store, projectID, q)
 	if err != nil {
 		return

@@ -195,6 +195,9 @@ func (q TransferQuery) check() error {
 	if q.TraceStep != 0 && !(q.TraceStep >= MinPathStep && q.TraceStep <= MaxPathStep) {
 		return domain.FieldErr("trace_step", "trace_step %v is out of range; want %v to %v", q.TraceStep, MinPathStep, MaxPathStep)
 	}
+	if q.Output != "" {
+		return domain.FieldErr("output_reference", "output_reference: the transfer files are in the projected grid of the collars (their own north and coordinates); it cannot be chosen")
+	}
 	if q.Origin != nil {
 		for _, v := range q.Origin {
 			if math.IsNaN(v) || math.IsInf(v, 0) {

@@ -11,27 +11,29 @@ import (
 )
 
 const holeCols = `id, project_id, name, easting, northing, elevation, azimuth, azimuth_ref, dip, final_depth,
-	crs, started, finished, declination, grid_convergence, survey_date, version, created_at, updated_at, global_id`
+	crs, started, finished, declination, grid_convergence, survey_date, local_grid, version, created_at, updated_at, global_id`
 
 const (
 	insertHole = `INSERT INTO holes (project_id, name, easting, northing, elevation, azimuth, azimuth_ref, dip,
-	final_depth, crs, started, finished, declination, grid_convergence, survey_date, version, created_at, updated_at, global_id)
-	VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15, 1, $16, $17, $18) RETURNING id`
+	final_depth, crs, started, finished, declination, grid_convergence, survey_date, local_grid, version, created_at, updated_at, global_id)
+	VALUES ($1, $2, $3, $4, $5, $6, $7, $8, $9, $10, $11, $12, $13, $14, $15, $16, 1, $17, $18, $19) RETURNING id`
 	selectHole       = `SELECT ` + holeCols + ` FROM holes WHERE id = $1`
 	selectHoleByName = `SELECT ` + holeCols + ` FROM holes WHERE project_id = $1 AND name = $2`
 	listHoles        = `SELECT ` + holeCols + ` FROM holes WHERE project_id = $1 AND id > $2 ORDER BY id LIMIT $3`
 	updateHole       = `UPDATE holes SET name = $1, easting = $2, northing = $3, elevation = $4, azimuth = $5,
 	azimuth_ref = $6, dip = $7, final_depth = $8, crs = $9, started = $10, finished = $11,
-	declination = $12, grid_convergence = $13, survey_date = $14, version = version + 1, updated_at = $15
-	WHERE id = $16 AND version = $17 RETURNING version`
+	declination = $12, grid_convergence = $13, survey_date = $14, local_grid = $15, version = version + 1, updated_at = $16
+	WHERE id = $17 AND version = $18 RETURNING version`
 	deleteHole = `DELETE FROM holes WHERE id = $1 AND version = $2`
 )
 
 func scanHole(r scanner) (domain.Hole, error) {
 	var h domain.Hole
+	var grid string
 	var c, u time.Time
 	err := r.Scan(&h.ID, &h.ProjectID, &h.Name, &h.East, &h.North, &h.Elevation, &h.Azimuth, &h.AzimuthRef, &h.Dip,
-		&h.FinalDepth, &h.CRS, &h.Started, &h.Finished, &h.Declination, &h.GridConvergence, &h.SurveyDate, &h.Version, &c, &u, &h.GlobalID)
+		&h.FinalDepth, &h.CRS, &h.Started, &h.Finished, &h.Declination, &h.GridConvergence, &h.SurveyDate, &grid, &h.Version, &c, &u, &h.GlobalID)
+	h.LocalGrid = storekit.JSONFromText(grid)
 	h.CreatedAt, h.UpdatedAt = c.UTC(), u.UTC()
 	return h, err
 }
@@ -43,7 +45,7 @@ func (s *Store) CreateHole(ctx context.Context, h *domain.Hole) error {
 	return s.write(ctx, func(q querier) error {
 		err := q.QueryRow(ctx, insertHole, h.ProjectID, h.Name, h.East, h.North, h.Elevation, h.Azimuth,
 			h.AzimuthRef, h.Dip, h.FinalDepth, h.CRS, h.Started, h.Finished,
-			storekit.NullFloat(h.Declination), storekit.NullFloat(h.GridConvergence), h.SurveyDate, t, t, h.GlobalID).Scan(&h.ID)
+			storekit.NullFloat(h.Declination), storekit.NullFloat(h.GridConvergence), h.SurveyDate, storekit.JSONText(h.LocalGrid), t, t, h.GlobalID).Scan(&h.ID)
 		if err != nil {
 			return translate(err)
 		}
@@ -80,7 +82,7 @@ func (s *Store) UpdateHole(ctx context.Context, h *domain.Hole, ifVersion int64)
 	return s.write(ctx, func(q querier) error {
 		err := q.QueryRow(ctx, updateHole, h.Name, h.East, h.North, h.Elevation, h.Azimuth, h.AzimuthRef, h.Dip,
 			h.FinalDepth, h.CRS, h.Started, h.Finished,
-			storekit.NullFloat(h.Declination), storekit.NullFloat(h.GridConvergence), h.SurveyDate, t, h.ID, ifVersion).Scan(&h.Version)
+			storekit.NullFloat(h.Declination), storekit.NullFloat(h.GridConvergence), h.SurveyDate, storekit.JSONText(h.LocalGrid), t, h.ID, ifVersion).Scan(&h.Version)
 		if err == pgx.ErrNoRows {
 			return versionGone(ctx, q, "holes", "hole", h.ID, ifVersion)
 		}

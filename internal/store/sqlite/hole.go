@@ -9,27 +9,29 @@ import (
 )
 
 const holeCols = `id, project_id, name, easting, northing, elevation, azimuth, azimuth_ref, dip, final_depth,
-	crs, started, finished, declination, grid_convergence, survey_date, version, created_at, updated_at, global_id`
+	crs, started, finished, declination, grid_convergence, survey_date, local_grid, version, created_at, updated_at, global_id`
 
 const (
 	insertHole = `INSERT INTO holes (project_id, name, easting, northing, elevation, azimuth, azimuth_ref, dip,
-	final_depth, crs, started, finished, declination, grid_convergence, survey_date, version, created_at, updated_at, global_id)
-	VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1, ?, ?, ?) RETURNING id`
+	final_depth, crs, started, finished, declination, grid_convergence, survey_date, local_grid, version, created_at, updated_at, global_id)
+	VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, ?, 1, ?, ?, ?) RETURNING id`
 	selectHole       = `SELECT ` + holeCols + ` FROM holes WHERE id = ?`
 	selectHoleByName = `SELECT ` + holeCols + ` FROM holes WHERE project_id = ? AND name = ?`
 	listHoles        = `SELECT ` + holeCols + ` FROM holes WHERE project_id = ? AND id > ? ORDER BY id LIMIT ?`
 	updateHole       = `UPDATE holes SET name = ?, easting = ?, northing = ?, elevation = ?, azimuth = ?,
 	azimuth_ref = ?, dip = ?, final_depth = ?, crs = ?, started = ?, finished = ?,
-	declination = ?, grid_convergence = ?, survey_date = ?, version = version + 1, updated_at = ?
+	declination = ?, grid_convergence = ?, survey_date = ?, local_grid = ?, version = version + 1, updated_at = ?
 	WHERE id = ? AND version = ? RETURNING version`
 	deleteHole = `DELETE FROM holes WHERE id = ? AND version = ?`
 )
 
 func scanHole(r scanner) (domain.Hole, error) {
 	var h domain.Hole
+	var grid string
 	var c, u int64
 	err := r.Scan(&h.ID, &h.ProjectID, &h.Name, &h.East, &h.North, &h.Elevation, &h.Azimuth, &h.AzimuthRef, &h.Dip,
-		&h.FinalDepth, &h.CRS, &h.Started, &h.Finished, &h.Declination, &h.GridConvergence, &h.SurveyDate, &h.Version, &c, &u, &h.GlobalID)
+		&h.FinalDepth, &h.CRS, &h.Started, &h.Finished, &h.Declination, &h.GridConvergence, &h.SurveyDate, &grid, &h.Version, &c, &u, &h.GlobalID)
+	h.LocalGrid = storekit.JSONFromText(grid)
 	h.CreatedAt, h.UpdatedAt = fromMicro(c), fromMicro(u)
 	return h, err
 }
@@ -41,7 +43,7 @@ func (s *Store) CreateHole(ctx context.Context, h *domain.Hole) error {
 	return s.write(ctx, func(q querier) error {
 		err := q.QueryRowContext(ctx, insertHole, h.ProjectID, h.Name, h.East, h.North, h.Elevation, h.Azimuth,
 			h.AzimuthRef, h.Dip, h.FinalDepth, h.CRS, h.Started, h.Finished,
-			storekit.NullFloat(h.Declination), storekit.NullFloat(h.GridConvergence), h.SurveyDate, micro(t), micro(t), h.GlobalID).Scan(&h.ID)
+			storekit.NullFloat(h.Declination), storekit.NullFloat(h.GridConvergence), h.SurveyDate, storekit.JSONText(h.LocalGrid), micro(t), micro(t), h.GlobalID).Scan(&h.ID)
 		if err != nil {
 			return translate(err)
 		}
@@ -78,7 +80,7 @@ func (s *Store) UpdateHole(ctx context.Context, h *domain.Hole, ifVersion int64)
 	return s.write(ctx, func(q querier) error {
 		err := q.QueryRowContext(ctx, updateHole, h.Name, h.East, h.North, h.Elevation, h.Azimuth, h.AzimuthRef, h.Dip,
 			h.FinalDepth, h.CRS, h.Started, h.Finished,
-			storekit.NullFloat(h.Declination), storekit.NullFloat(h.GridConvergence), h.SurveyDate, micro(t), h.ID, ifVersion).Scan(&h.Version)
+			storekit.NullFloat(h.Declination), storekit.NullFloat(h.GridConvergence), h.SurveyDate, storekit.JSONText(h.LocalGrid), micro(t), h.ID, ifVersion).Scan(&h.Version)
 		if err == sql.ErrNoRows {
 			return versionGone(ctx, q, "holes", "hole", h.ID, ifVersion)
 		}

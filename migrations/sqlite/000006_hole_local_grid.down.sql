@@ -1,0 +1,1 @@
+ALTER TABLE holes DROP COLUMN local_grid;
