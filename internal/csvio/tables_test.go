@@ -13,6 +13,7 @@ import (
 	"testing"
 
 	"corvane/internal/domain"
+	"corvane/internal/localgrid"
 	"corvane/internal/uncertainty"
 )
 
@@ -462,5 +463,80 @@ func TestHeaderAliases(t *testing.T) {
 	var de *domain.Error
 	if !errors.As(err, &de) || de.Loc.Line != 1 || !strings.Contains(err.Error(), "same column") {
 		t.Errorf("both names of one column: %v", err)
+	}
+}
+
+// testGrid is an invented local grid on GDA2020 / MGA zone 50.
+func testGrid(theta, scale float64) *localgrid.Grid {
+	g, _, err := localgrid.NewGrid(localgrid.Spec{Name: "mine", GridCRS: "EPSG:7850", Rotation: &theta, Scale: &scale,
+		Origin: &localgrid.Origin{X: 5000, Y: 10000, Easting: 391250, Northing: 6465480}})
+	if err != nil {
+		panic(err)
+	}
+	return g
+}
+
+// A collar's own local grid is a JSON declaration in its local_grid cell,
+// read by the one rule of localgrid.Parse; a bad one is refused at its
+// cell.
+func TestReadCollarsLocalGrid(t *testing.T) {
+	in := "hole_id,easting,northing,elevation,azimuth,dip,depth,crs,local_grid\n" +
+		`A,5100,10200,300,45,-60,100,local,"{""grid_crs"": ""EPSG:7850"", ""rotation"": -37.25, ""origin"": {""local_easting"": 5000, ""local_northing"": 10000, ""easting"": 391250, ""northing"": 6465480}}"` + "\n" +
+		"B,391000,6465000,300,45,-60,100,EPSG:7850,\n"
+	rows, err := ReadCollars(strings.NewReader(in), "c.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	if rows[0].LocalGrid == nil || rows[0].LocalGrid.T.Rotation != -37.25 || rows[0].LocalGrid.T.Scale != 1 || rows[1].LocalGrid != nil {
+		t.Fatalf("local grids %+v %+v", rows[0].LocalGrid, rows[1].LocalGrid)
+	}
+	bad := "hole_id,easting,northing,elevation,azimuth,dip,depth,local_grid\n" +
+		`A,5100,10200,300,45,-60,100,"{""grid_crs"": ""EPSG:7850"", ""rotation"": 10}"` + "\n" +
+		`B,5100,10200,300,45,-60,100,"{""grid_crs"": ""EPSG:99999"", ""rotation"": 10, ""origin"": {""local_easting"": 0, ""local_northing"": 0, ""easting"": 0, ""northing"": 0}}"` + "\n" +
+		"C,5100,10200,300,45,-60,100,not json\n"
+	_, err = ReadCollars(strings.NewReader(bad), "c.csv")
+	ps := problems(t, err)
+	if len(ps) != 3 || ps[0].Loc.Line != 2 || ps[0].Loc.Column != "local_grid" || !strings.Contains(ps[0].Msg, "give rotation and origin") ||
+		ps[1].Loc.Line != 3 || !strings.Contains(ps[1].Msg, "grid_crs") || ps[2].Loc.Line != 4 || !strings.Contains(ps[2].Msg, "not a local grid declaration") {
+		t.Fatalf("problems: %v", ps)
+	}
+}
+
+// The preferred set of a hole comes from the preferred column: yes on the
+// rows of one set with a kind. Two preferred sets on one hole, a preferred
+// survey set without a kind, a set that says both, and a word that is not
+// yes or no are each refused at their cell.
+func TestReadSurveysPreferred(t *testing.T) {
+	in := "hole_id,depth,azimuth,dip,kind,preferred\n" +
+		"A,0,45,-60,gyro,\n" +
+		"A,0,45,-60,magnetic,Yes\n" +
+		"A,30,45,-60,magnetic,\n" +
+		"A,30,45,-60,gyro,no\n" +
+		"B,0,45,-60,other,true\n"
+	rows, err := ReadSurveys(strings.NewReader(in), "s.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := []bool{false, true, false, false, true}
+	said := []bool{false, true, false, true, true}
+	for i, r := range rows {
+		if r.Preferred != want[i] || r.PreferredSaid != said[i] {
+			t.Errorf("row %d preferred %v said %v, want %v %v", i+2, r.Preferred, r.PreferredSaid, want[i], said[i])
+		}
+	}
+	bad := "hole_id,depth,azimuth,dip,kind,preferred\n" +
+		"A,0,45,-60,gyro,yes\n" +
+		"A,0,45,-60,magnetic,yes\n" + // a second preferred set on A
+		"B,0,45,-60,,yes\n" + // the survey set has no kind
+		"C,0,45,-60,gyro,yes\n" +
+		"C,30,45,-60,gyro,no\n" + // the gyro set says both
+		"D,0,45,-60,gyro,maybe\n"
+	_, err = ReadSurveys(strings.NewReader(bad), "s.csv")
+	ps := problems(t, err)
+	if len(ps) != 4 || ps[0].Loc.Line != 3 || ps[0].Loc.Column != "preferred" || !strings.Contains(ps[0].Msg, `hole "A" has two preferred survey sets: the magnetic set here and the gyro set on line 2`) ||
+		ps[1].Loc.Line != 4 || !strings.Contains(ps[1].Msg, "has no kind") ||
+		ps[2].Loc.Line != 6 || !strings.Contains(ps[2].Msg, "differs from line 5") ||
+		ps[3].Loc.Line != 7 || !strings.Contains(ps[3].Msg, `"maybe" is not yes or no`) {
+		t.Fatalf("problems: %v", ps)
 	}
 }

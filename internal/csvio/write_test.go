@@ -30,6 +30,9 @@ func TestWriteReadRoundTrip(t *testing.T) {
 			Elevation: r.NormFloat64() * 500, Azimuth: r.Float64() * 360, Dip: -90 + r.Float64()*180, Depth: 1 + r.Float64()*1000},
 			Declination: opt(r.NormFloat64() * 10), GridConvergence: opt(r.NormFloat64()), AzimuthRef: []string{"", "grid", "true", "magnetic"}[r.IntN(4)],
 			CRS: []string{"", "EPSG:32750"}[r.IntN(2)], SurveyDate: []time.Time{{}, time.Date(2027, 4, 9, 0, 0, 0, 0, time.UTC)}[r.IntN(2)]})
+		if r.IntN(3) == 0 {
+			collars[len(collars)-1].LocalGrid = testGrid(r.NormFloat64()*40, 1+r.NormFloat64()*1e-4)
+		}
 		d := 0.0
 		for k := 0; k < 5; k++ {
 			d += r.Float64() * 50
@@ -41,7 +44,7 @@ func TestWriteReadRoundTrip(t *testing.T) {
 				AzimuthRef: []string{"", "magnetic"}[r.IntN(2)], Date: date})
 			// The same depth again in a set by kind of the hole.
 			surveys = append(surveys, SurveyRow{HoleID: id, Station: desurvey.Station{Depth: d, Azimuth: r.Float64() * 360, Dip: -r.Float64() * 90},
-				Kind: "gyro", Instrument: "gyro"})
+				Kind: "gyro", Instrument: "gyro", Preferred: i%2 == 0})
 			runs = append(runs, RunRow{HoleID: id, From: d, To: d + 0.1 + r.Float64()*3, Confidence: Confidences[r.IntN(4)], Mismatch: opt(r.Float64() * 180)})
 		}
 	}
@@ -56,7 +59,8 @@ func TestWriteReadRoundTrip(t *testing.T) {
 	for i, c := range collars {
 		g := gotC[i]
 		if g.HoleID != c.HoleID || g.Collar != c.Collar || !sameFloat(g.Declination, c.Declination) || !sameFloat(g.GridConvergence, c.GridConvergence) ||
-			g.AzimuthRef != c.AzimuthRef || g.CRS != c.CRS || !g.SurveyDate.Equal(c.SurveyDate) {
+			g.AzimuthRef != c.AzimuthRef || g.CRS != c.CRS || !g.SurveyDate.Equal(c.SurveyDate) || (g.LocalGrid == nil) != (c.LocalGrid == nil) ||
+			g.LocalGrid != nil && (g.LocalGrid.T != c.LocalGrid.T || string(g.LocalGrid.JSON()) != string(c.LocalGrid.JSON())) {
 			t.Fatalf("collar %d: %+v, wrote %+v", i, g, c)
 		}
 	}
@@ -70,7 +74,8 @@ func TestWriteReadRoundTrip(t *testing.T) {
 	}
 	for i, s := range surveys {
 		g := gotS[i]
-		if g.HoleID != s.HoleID || g.Station != s.Station || g.AzimuthRef != s.AzimuthRef || !g.Date.Equal(s.Date) || g.Kind != s.Kind || g.Instrument != s.Instrument {
+		if g.HoleID != s.HoleID || g.Station != s.Station || g.AzimuthRef != s.AzimuthRef || !g.Date.Equal(s.Date) || g.Kind != s.Kind || g.Instrument != s.Instrument ||
+			g.Preferred != s.Preferred {
 			t.Fatalf("survey %d: %+v, wrote %+v", i, g, s)
 		}
 	}

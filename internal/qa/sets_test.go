@@ -80,3 +80,59 @@ func TestInterferenceZoneFlaggedAndNothingElse(t *testing.T) {
 		t.Errorf("near-vertical comparison %+v", c)
 	}
 }
+
+// The comparison is not tied to the words gyro and magnetic: any set
+// measured against the Earth's field (a magnetic kind or instrument, or
+// magnetic stations) is set against any measured set that is not (a gyro,
+// or another kind referenced to true or grid north). A planned set is
+// never compared, and two reference sets are not compared with each other.
+func TestSetComparisonByNorthReference(t *testing.T) {
+	az := func(md float64) float64 { return 40 + 12*md/300 }
+	var clean, zone []Station
+	for i := 0; i <= 30; i++ {
+		md := float64(10 * i)
+		clean = append(clean, Station{HoleID: "TW1", Depth: md, Azimuth: az(md), Dip: -60})
+		a := az(md)
+		if md >= 120 && md <= 160 {
+			a += 4
+		}
+		zone = append(zone, Station{HoleID: "TW1", Depth: md, Azimuth: a, Dip: -60})
+	}
+	magnetic := func(st []Station) []Station {
+		out := append([]Station(nil), st...)
+		for i := range out {
+			out[i].Magnetic = true
+		}
+		return out
+	}
+	zones := func(sets ...SurveySet) int {
+		n := 0
+		for _, f := range setFindings("TW1", sets, DefaultOptions()) {
+			if f.Check == CheckInterference {
+				n++
+				if f.Depth != 120 || f.DepthTo != 160 {
+					t.Errorf("zone %g-%g, want 120-160", f.Depth, f.DepthTo)
+				}
+			}
+		}
+		return n
+	}
+	cases := []struct {
+		name string
+		sets []SurveySet
+		want int
+	}{
+		{"magnetic kind against gyro", []SurveySet{{Kind: KindMagnetic, Stations: zone}, {Kind: KindGyro, Stations: clean}}, 1},
+		{"magnetic kind against other in true north", []SurveySet{{Kind: KindMagnetic, Stations: zone}, {Kind: KindOther, Stations: clean}}, 1},
+		{"other by a magnetic instrument against gyro", []SurveySet{{Kind: KindOther, Instrument: "magnetic", Stations: zone}, {Kind: KindGyro, Stations: clean}}, 1},
+		{"other with magnetic stations against gyro", []SurveySet{{Kind: KindOther, Stations: magnetic(zone)}, {Kind: KindGyro, Stations: clean}}, 1},
+		{"magnetic against other with magnetic stations", []SurveySet{{Kind: KindMagnetic, Stations: zone}, {Kind: KindOther, Stations: magnetic(clean)}}, 0},
+		{"magnetic against planned", []SurveySet{{Kind: KindMagnetic, Stations: zone}, {Kind: KindPlanned, Stations: clean}}, 0},
+		{"gyro against other in true north", []SurveySet{{Kind: KindOther, Stations: zone}, {Kind: KindGyro, Stations: clean}}, 0},
+	}
+	for _, c := range cases {
+		if got := zones(c.sets...); got != c.want {
+			t.Errorf("%s: %d interference zones, want %d", c.name, got, c.want)
+		}
+	}
+}

@@ -160,6 +160,7 @@ func (s *Service) exportCollars(ctx context.Context, st domain.Store, projectID 
 				r.GridConvergence = *h.GridConvergence
 			}
 			r.SurveyDate, _ = time.Parse(time.DateOnly, h.SurveyDate)
+			r.LocalGrid = storedGrid(h.LocalGrid)
 			rows = append(rows, r)
 		}
 		if len(hs) < domain.MaxLimit {
@@ -171,15 +172,16 @@ func (s *Service) exportCollars(ctx context.Context, st domain.Store, projectID 
 
 // ExportSurveys writes the project's surveys as a surveys file (read) that
 // the surveys import reads back: each hole's survey set (rows without a
-// kind), then its sets by kind (kind column), each with its instrument, in hole order,
-// from one snapshot.
+// kind), then its sets by kind (kind column), each with its instrument and
+// the preferred set marked (preferred column), in hole order, from one
+// snapshot.
 func (s *Service) ExportSurveys(ctx context.Context, projectID int64, w io.Writer) error {
 	return s.store.Snapshot(ctx, func(ctx context.Context, st domain.Store) error {
 		if _, _, err := s.project(ctx, st, projectID, domain.RoleRead); err != nil {
 			return err
 		}
 		var rows []csvio.SurveyRow
-		add := func(name string, ss domain.SurveySet, kind string) {
+		add := func(name string, ss domain.SurveySet, kind string, preferred bool) {
 			date, _ := time.Parse(time.DateOnly, ss.SurveyDate)
 			// The instrument of the set; unknown, the default, is written
 			// as the absent value it reads back from.
@@ -189,7 +191,7 @@ func (s *Service) ExportSurveys(ctx context.Context, projectID int64, w io.Write
 			}
 			for _, x := range ss.Stations {
 				rows = append(rows, csvio.SurveyRow{HoleID: name, Station: desurvey.Station{Depth: x.Depth, Azimuth: x.Azimuth, Dip: x.Dip},
-					AzimuthRef: ss.AzimuthRef, Date: date, Kind: kind, Instrument: instrument})
+					AzimuthRef: ss.AzimuthRef, Date: date, Kind: kind, Instrument: instrument, Preferred: preferred})
 			}
 		}
 		pg := domain.Page{Limit: domain.MaxLimit}
@@ -202,7 +204,7 @@ func (s *Service) ExportSurveys(ctx context.Context, projectID int64, w io.Write
 				ss, err := st.GetSurvey(ctx, h.ID)
 				switch {
 				case err == nil:
-					add(h.Name, ss, "")
+					add(h.Name, ss, "", false)
 				case !domain.IsKind(err, domain.NotFound):
 					return err
 				}
@@ -211,7 +213,7 @@ func (s *Service) ExportSurveys(ctx context.Context, projectID int64, w io.Write
 					return err
 				}
 				for _, k := range sets {
-					add(h.Name, k.Survey(), k.Kind)
+					add(h.Name, k.Survey(), k.Kind, k.Preferred)
 				}
 			}
 			if len(hs) < domain.MaxLimit {
