@@ -4,11 +4,13 @@ import (
 	"context"
 	"encoding/json"
 	"fmt"
+	"slices"
 	"strconv"
 	"strings"
 
 	"corvane/internal/convert"
 	"corvane/internal/domain"
+	"corvane/internal/holemodel"
 )
 
 // MaxConvertMeasurements bounds one stateless conversion request.
@@ -54,9 +56,16 @@ type ConvertCollar struct {
 	LocalGrid json.RawMessage `json:"local_grid,omitempty"`
 }
 
-// ConvertSurvey is the survey set of one hole.
+// ConvertSurvey is a survey set of one hole: its survey set (no kind), or
+// its set of a kind (gyro, magnetic, planned, other), at most one of each
+// per hole, as the rows of a surveys file with a kind column. The set the
+// hole is built from follows domain.UsedSurvey: the preferred one (at most
+// one per hole), else the first kind of conventions.survey_priority the
+// hole has, else its survey set, else its first kind.
 type ConvertSurvey struct {
 	HoleID      string           `json:"hole_id"`
+	Kind        string           `json:"kind,omitempty"`
+	Preferred   bool             `json:"preferred,omitempty"`
 	AzimuthRef  string           `json:"azimuth_ref"` // true, grid or magnetic; default the output reference
 	Declination *float64         `json:"declination"` // given with the set: wins over the hole's and the conventions' declination
 	SurveyDate  string           `json:"survey_date"` // YYYY-MM-DD; with the collar's crs gives a magnetic survey its declination
@@ -120,16 +129,44 @@ func (s *Service) Convert(ctx context.Context, req ConvertRequest) (ConvertRespo
 		return resp, prefixField(err, "conventions.")
 	}
 	resp.Conventions = c
-	surveys := map[string]*domain.SurveySet{}
+	// A hole's sets by kind ("" for its survey set) and its preferred kind.
+	type holeSets struct {
+		sets      map[string]*domain.SurveySet
+		preferred string
+	}
+	surveys := map[string]*holeSets{}
 	for i, sv := range req.Surveys {
-		ss := domain.SurveySet{AzimuthRef: orDefault(sv.AzimuthRef, c.OutputAzimuthRef), Declination: sv.Declination, SurveyDate: sv.SurveyDate, Instrument: sv.Instrument, Stations: sv.Stations}
+		at := "surveys[" + strconv.Itoa(i) + "]."
+		ss := domain.SurveySet{AzimuthRef: absentRef(sv.AzimuthRef, c.OutputAzimuthRef), Declination: sv.Declination, SurveyDate: sv.SurveyDate, Instrument: sv.Instrument, Stations: sv.Stations}
 		if err := ss.Normalize(); err != nil {
-			return resp, prefixField(err, "surveys["+strconv.Itoa(i)+"].")
+			return resp, prefixField(err, at)
 		}
-		if _, dup := surveys[sv.HoleID]; dup {
-			return resp, domain.FieldErr("surveys["+strconv.Itoa(i)+"].hole_id", "a second survey for hole %q", sv.HoleID)
+		ss.AzimuthRef = localRef(sv.AzimuthRef, ss.AzimuthRef, c.OutputAzimuthRef)
+		kind := strings.ToLower(strings.TrimSpace(sv.Kind))
+		if kind != "" && !slices.Contains(domain.SurveyKinds, kind) {
+			return resp, domain.FieldErr(at+"kind", "kind %q is not one of %s (or empty for the hole's survey set)", sv.Kind, strings.Join(domain.SurveyKinds, ", "))
 		}
-		surveys[sv.HoleID] = &ss
+		hs := surveys[sv.HoleID]
+		if hs == nil {
+			hs = &holeSets{sets: map[string]*domain.SurveySet{}}
+			surveys[sv.HoleID] = hs
+		}
+		if _, dup := hs.sets[kind]; dup {
+			if kind == "" {
+				return resp, domain.FieldErr(at+"hole_id", "a second survey for hole %q", sv.HoleID)
+			}
+			return resp, domain.FieldErr(at+"kind", "a second %s survey set for hole %q", kind, sv.HoleID)
+		}
+		if sv.Preferred {
+			switch {
+			case kind == "":
+				return resp, domain.FieldErr(at+"preferred", "the survey set of hole %q has no kind and cannot be preferred", sv.HoleID)
+			case hs.preferred != "":
+				return resp, domain.FieldErr(at+"preferred", "hole %q has two preferred survey sets: %s and %s", sv.HoleID, hs.preferred, kind)
+			}
+			hs.preferred = kind
+		}
+		hs.sets[kind] = &ss
 	}
 	models := map[string]*holeModel{}
 	ms := perMeasurement.Fork()
@@ -138,7 +175,7 @@ func (s *Service) Convert(ctx context.Context, req ConvertRequest) (ConvertRespo
 	}
 	for i, cl := range req.Collars {
 		h := domain.Hole{Name: cl.HoleID, East: cl.East, North: cl.North, Elevation: cl.Elevation,
-			Azimuth: cl.Azimuth, AzimuthRef: orDefault(cl.AzimuthRef, c.OutputAzimuthRef), Dip: cl.Dip, FinalDepth: cl.FinalDepth, CRS: cl.CRS,
+			Azimuth: cl.Azimuth, AzimuthRef: absentRef(cl.AzimuthRef, c.OutputAzimuthRef), Dip: cl.Dip, FinalDepth: cl.FinalDepth, CRS: cl.CRS,
 			Declination: cl.Declination, GridConvergence: cl.GridConvergence, SurveyDate: cl.SurveyDate, LocalGrid: cl.LocalGrid}
 		if err := h.Normalize(); err != nil {
 			return resp, prefixField(err, "collars["+strconv.Itoa(i)+"].")
@@ -146,12 +183,25 @@ func (s *Service) Convert(ctx context.Context, req ConvertRequest) (ConvertRespo
 		if err := checkHoleLocalGrid(domain.Project{LengthUnit: c.LengthUnit}, &h); err != nil {
 			return resp, prefixField(err, "collars["+strconv.Itoa(i)+"].")
 		}
+		h.AzimuthRef = localRef(cl.AzimuthRef, h.AzimuthRef, c.OutputAzimuthRef)
 		if _, dup := models[h.Name]; dup {
 			return resp, domain.FieldErr("collars["+strconv.Itoa(i)+"].hole_id", "hole %q appears twice", h.Name)
 		}
-		ss, set := surveys[h.Name], ""
-		if ss != nil {
-			set = SetSurvey
+		var ss *domain.SurveySet
+		set := ""
+		if hs := surveys[h.Name]; hs != nil {
+			var kinds []string
+			for _, k := range domain.SurveyKinds {
+				if hs.sets[k] != nil {
+					kinds = append(kinds, k)
+				}
+			}
+			set = domain.UsedSurvey(kinds, hs.preferred, c.SurveyPriority, hs.sets[""] != nil)
+			if set == SetSurvey {
+				ss = hs.sets[""]
+			} else {
+				ss = hs.sets[set]
+			}
 		}
 		models[h.Name] = newHoleModel(c, h, ss, set, nil)
 		models[h.Name].ms = ms
@@ -194,6 +244,26 @@ func (s *Service) Convert(ctx context.Context, req ConvertRequest) (ConvertRespo
 		resp.Results[i] = r
 	}
 	return resp, nil
+}
+
+// absentRef is the reference of a request's azimuth given as ref: an
+// absent one is the output reference, as in the files; with output in the
+// local grid it is checked as grid (see localRef).
+func absentRef(ref, out string) string {
+	if out == holemodel.Local {
+		out = domain.AzimuthGrid
+	}
+	return orDefault(ref, out)
+}
+
+// localRef gives the hole model an azimuth that was given without a
+// reference ("", the output reference) as "" when the output is the local
+// grid: a local-grid azimuth, which no stored hole or set can name.
+func localRef(given, checked, out string) string {
+	if given == "" && out == holemodel.Local {
+		return ""
+	}
+	return checked
 }
 
 // prefixField prefixes the field of an Invalid *domain.Error.

@@ -128,6 +128,10 @@ type Conventions struct {
 	// is "local" are in it, and output_azimuth_ref "local" gives azimuths
 	// and coordinates in it (a hole's own local grid wins over it).
 	LocalGrid json.RawMessage `json:"local_grid,omitempty"`
+	// SurveyPriority orders survey set kinds for holes with sets by kind
+	// (the project's survey_priority, e.g. "gyro,magnetic,planned"); ""
+	// for none.
+	SurveyPriority string `json:"survey_priority,omitempty"`
 	// grid is LocalGrid resolved, nil when none.
 	grid *localgrid.Grid
 }
@@ -139,7 +143,7 @@ type Conventions struct {
 func ConventionsOf(p domain.Project) Conventions {
 	c := Conventions{RefLine: p.RefLine, BetaApex: p.BetaApex, GammaSense: p.GammaSense, LengthUnit: p.LengthUnit,
 		OutputAzimuthRef: p.OutputAzimuthRef, Declination: p.Declination, Convergence: p.Convergence, ErrorModel: p.ErrorModel,
-		MagneticModel: p.MagneticModel, LocalGrid: p.LocalGrid}
+		MagneticModel: p.MagneticModel, LocalGrid: p.LocalGrid, SurveyPriority: p.SurveyPriority}
 	c.grid = storedGrid(p.LocalGrid)
 	return c
 }
@@ -154,7 +158,7 @@ func (c *Conventions) normalize() error {
 	}
 	p := domain.Project{Name: "x", RefLine: c.RefLine, BetaApex: c.BetaApex, GammaSense: c.GammaSense, LengthUnit: c.LengthUnit,
 		Declination: c.Declination, Convergence: c.Convergence, ErrorModel: c.ErrorModel,
-		MagneticModel: c.MagneticModel, LocalGrid: c.LocalGrid}
+		MagneticModel: c.MagneticModel, LocalGrid: c.LocalGrid, SurveyPriority: c.SurveyPriority}
 	if out != holemodel.Local {
 		p.OutputAzimuthRef = out
 	}
