@@ -192,6 +192,17 @@ func TestNorthOptionsAtEveryDoor(t *testing.T) {
 				t.Errorf("list row %d: %v", i+1, got)
 			}
 		}
+		// The path in the local grid starts at L1's collar as typed, in
+		// its direction.
+		var path struct {
+			Items []struct {
+				Easting, Northing, Azimuth, Dip float64
+			} `json:"items"`
+		}
+		s.mustJSON(t, 200, "GET", base+"/holes/L1/path?output_reference=local", nil, &path)
+		if p0 := path.Items[0]; math.Abs(p0.Easting-5100) > 1e-6 || math.Abs(p0.Northing-10200) > 1e-6 || math.Abs(p0.Azimuth-45) > 1e-6 {
+			t.Errorf("L1 path in the local grid starts at %+v, want 5100, 10200, azimuth 45", p0)
+		}
 		// Nothing read is dropped: the holes export gives back L2's grid,
 		// the surveys export the preferred mark.
 		code, _, hb := s.call(t, "GET", base+"/holes.csv", nil)

@@ -11,7 +11,8 @@ import (
 	"corvane/internal/service"
 )
 
-// holePath serves the desurveyed path of a hole at ?step= (default 5).
+// holePath serves the desurveyed path of a hole at ?step= (default 5), in
+// the north of ?output_reference= (default the project's).
 func (s *Server) holePath(c *gin.Context) {
 	pid, hid, err := s.holeIDs(c)
 	if err != nil {
@@ -27,7 +28,7 @@ func (s *Server) holePath(c *gin.Context) {
 		}
 		step = x
 	}
-	pts, corr, err := s.opt.Service.HolePath(c.Request.Context(), pid, hid, step)
+	pts, corr, err := s.opt.Service.HolePath(c.Request.Context(), pid, hid, step, c.Query("output_reference"))
 	if err != nil {
 		fail(c, err)
 		return

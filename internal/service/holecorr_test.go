@@ -106,7 +106,7 @@ func TestHoleCorrectionsComputed(t *testing.T) {
 
 func mustPath(t *testing.T, ctx context.Context, s *service.Service, pid, hid int64) ([]service.PathPoint, service.HoleCorrections) {
 	t.Helper()
-	pts, c, err := s.HolePath(ctx, pid, hid, 10)
+	pts, c, err := s.HolePath(ctx, pid, hid, 10, "")
 	if err != nil {
 		t.Fatal(err)
 	}

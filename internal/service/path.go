@@ -45,16 +45,19 @@ type PathPoint struct {
 // must lie within MinPathStep..MaxPathStep. The path is built from the store's
 // current collar and survey on every call, by the hole model the derived
 // values use, so it is never stale. The hole's corrections come back with it,
-// from the same read of the collar and survey set as the path.
-func (s *Service) HolePath(ctx context.Context, projectID, holeID int64, step float64) ([]PathPoint, HoleCorrections, error) {
-	pts, m, err := s.holePath(ctx, projectID, holeID, step)
+// from the same read of the collar and survey set as the path. output is
+// the north of the path's azimuths and coordinates when not the project's
+// (grid, true or local, as the measurements' output_reference; "" is the
+// project's).
+func (s *Service) HolePath(ctx context.Context, projectID, holeID int64, step float64, output string) ([]PathPoint, HoleCorrections, error) {
+	pts, m, err := s.holePath(ctx, projectID, holeID, step, output)
 	if err != nil {
 		return nil, HoleCorrections{}, err
 	}
 	return pts, m.corrections(), nil
 }
 
-func (s *Service) holePath(ctx context.Context, projectID, holeID int64, step float64) ([]PathPoint, *holeModel, error) {
+func (s *Service) holePath(ctx context.Context, projectID, holeID int64, step float64, output string) ([]PathPoint, *holeModel, error) {
 	if step == 0 {
 		step = DefaultPathStep
 	}
@@ -63,6 +66,9 @@ func (s *Service) holePath(ctx context.Context, projectID, holeID int64, step fl
 	}
 	p, _, err := s.project(ctx, s.store, projectID, domain.RoleRead)
 	if err != nil {
+		return nil, nil, err
+	}
+	if err := (MeasurementQuery{Output: output}).withOutput(&p); err != nil {
 		return nil, nil, err
 	}
 	if _, err := hole(ctx, s.store, projectID, holeID); err != nil {
@@ -106,7 +112,11 @@ func (s *Service) holePath(ctx context.Context, projectID, holeID int64, step fl
 			return nil, nil, domain.Errorf(domain.Invalid, "hole %s at depth %v: %v", m.name, d, err)
 		}
 		az, dip := pt.Dir.AzimuthDip()
-		pp := PathPoint{Depth: d, East: pt.Pos.X, North: pt.Pos.Y, Elevation: pt.Pos.Z, Azimuth: az, Dip: dip, Extrapolated: pt.Extrapolated}
+		if !math.IsNaN(az) {
+			az = m.OutputAzimuth(az) // the path is in the projected grid for output local
+		}
+		e, n := m.OutputXY(pt.Pos.X, pt.Pos.Y)
+		pp := PathPoint{Depth: d, East: e, North: n, Elevation: pt.Pos.Z, Azimuth: az, Dip: dip, Extrapolated: pt.Extrapolated}
 		// The interval a point lies in: the one with From <= d < To; a point
 		// at the last station closes the last interval. Depths ascend, so
 		// the interval index only moves forward.

@@ -19,7 +19,7 @@ func BenchmarkHolePath(b *testing.B) {
 	must(s.PutSurvey(ctx, p.ID, h.ID, 0, ss))
 	b.ReportAllocs()
 	for b.Loop() {
-		pts, _, err := s.HolePath(ctx, p.ID, h.ID, 0.5)
+		pts, _, err := s.HolePath(ctx, p.ID, h.ID, 0.5, "")
 		if err != nil || len(pts) != 3001 {
 			b.Fatalf("%d points, %v", len(pts), err)
 		}
