@@ -3,10 +3,12 @@ package service_test
 import (
 	"errors"
 	"math"
+	"strings"
 	"testing"
 
 	"corvane/internal/domain"
 	"corvane/internal/qa"
+	"corvane/internal/service"
 )
 
 // A hole with a gyro and a magnetic survey set: derived values use the
@@ -130,4 +132,48 @@ func TestSurveySetsByKind(t *testing.T) {
 	if _, err := s.UpdateHole(ctx, p.ID, h.ID, h.Version, h); !domain.IsKind(err, domain.Conflict) {
 		t.Errorf("final depth above the magnetic set's stations: %v", err)
 	}
+}
+
+// The surveys import reads the preferred column: yes makes the set the
+// hole's preferred one (the others stop being preferred), no clears it, an
+// empty cell or no column keeps the stored flag; two preferred sets on one
+// hole are refused at their row and nothing is stored.
+func TestSurveysImportPreferred(t *testing.T) {
+	s, ctx := newService(t)
+	p, _ := programme(t, s, ctx, domain.Project{Name: "preferred"})
+	h := must(s.CreateHole(ctx, p.ID, domain.Hole{Name: "PF1", East: 1000, North: 2000, Elevation: 300, Azimuth: 40, Dip: -60, FinalDepth: 300}))
+	imp := func(body string) (service.ImportResult, error) {
+		return s.Import(ctx, p.ID, service.ImportRequest{Kind: service.ImportSurveys, Body: strings.NewReader(body)})
+	}
+	used := func(want string, preferred string) {
+		t.Helper()
+		ks := must(s.ListKindSets(ctx, p.ID, h.ID))
+		got := ""
+		for _, k := range ks.Sets {
+			if k.Preferred {
+				got += k.Kind
+			}
+		}
+		if ks.Used != want || got != preferred {
+			t.Errorf("in use %q, preferred %q; want %q, %q", ks.Used, got, want, preferred)
+		}
+	}
+	const head = "hole_id,depth,azimuth,dip,azimuth_reference,kind,preferred\n"
+	must(imp(head + "PF1,0,40,-60,grid,gyro,\nPF1,0,41,-60,grid,planned,yes\n"))
+	used("planned", "planned")
+	// No column: the stored flag is kept.
+	must(imp("hole_id,depth,azimuth,dip,azimuth_reference,kind\nPF1,0,42,-60,grid,planned\n"))
+	used("planned", "planned")
+	// Another set marked: it takes the preference.
+	must(imp(head + "PF1,0,40,-60,grid,gyro,yes\n"))
+	used("gyro", "gyro")
+	// no clears it: the kind order decides again.
+	must(imp(head + "PF1,0,40,-60,grid,gyro,no\n"))
+	used("gyro", "")
+	_, err := imp(head + "PF1,0,40,-60,grid,gyro,yes\nPF1,0,41,-60,grid,planned,yes\n")
+	var de *domain.Error
+	if !errors.As(err, &de) || de.Kind != domain.Invalid || !strings.Contains(de.Error(), `surveys.csv:line 3, column "preferred"`) || !strings.Contains(de.Error(), "two preferred survey sets") {
+		t.Fatalf("two preferred sets: %v", err)
+	}
+	used("gyro", "")
 }

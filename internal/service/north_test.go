@@ -12,6 +12,7 @@ import (
 	"corvane/internal/localgrid"
 	"corvane/internal/northref"
 	"corvane/internal/qa"
+	"corvane/internal/service"
 )
 
 // The project's magnetic model choice is stored and chooses the model of
@@ -134,5 +135,57 @@ func TestProjectLocalGridApplied(t *testing.T) {
 	q.LengthUnit = domain.UnitFoot
 	if _, err := s.UpdateProject(ctx, p.ID, p.Version, q); !domain.IsKind(err, domain.Invalid) || !strings.Contains(err.Error(), "feet") {
 		t.Errorf("a local grid in a project in feet: %v", err)
+	}
+}
+
+// A hole may declare its own local grid: checked and stored in canonical
+// form as the project's (a bad one is refused at local_grid and nothing
+// changes), used for that hole over the project's, and cleared with null.
+func TestHoleLocalGrid(t *testing.T) {
+	s, ctx := newService(t)
+	projectGrid := json.RawMessage(`{"name":"mine grid","grid_crs":"EPSG:28350","rotation":-37.25,
+		"origin":{"local_easting":5000,"local_northing":10000,"easting":391250,"northing":6465480}}`)
+	p, _ := programme(t, s, ctx, domain.Project{Name: "hole grids", LocalGrid: projectGrid})
+	own := json.RawMessage(`{"name":"pit grid","grid_crs":"EPSG:28350","rotation":15,
+		"origin":{"local_easting":0,"local_northing":0,"easting":391000,"northing":6465000}}`)
+	h := must(s.CreateHole(ctx, p.ID, domain.Hole{Name: "H1", East: 391100, North: 6465100, Elevation: 300, Azimuth: 90, AzimuthRef: "grid", Dip: -60,
+		FinalDepth: 100, CRS: "EPSG:28350", LocalGrid: own}))
+	var back map[string]any
+	if err := json.Unmarshal(must(s.GetHole(ctx, p.ID, h.ID)).LocalGrid, &back); err != nil || back["rotation"] != 15.0 || back["name"] != "pit grid" {
+		t.Fatalf("stored hole grid %v %v", back, err)
+	}
+	// Output in the local grid: the hole's own grid (rotation 15), not the
+	// project's (-37.25): grid azimuth 90 is local 75 (local = grid - theta,
+	// IOGP 7-2 method 9621).
+	m := must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: 50, Alpha: 60, Beta: f64(200), TypeCode: "BD"}))
+	list := must(s.ListMeasurements(ctx, p.ID, service.MeasurementQuery{Output: "local"}, domain.Page{Limit: 10}))
+	d := list.Items[0].Derived
+	if d.AzimuthRef != "local" || d.HoleAzimuth == nil || math.Abs(*d.HoleAzimuth-75) > 1e-9 {
+		t.Errorf("derived in the hole's grid: %+v", d)
+	}
+	if m.Derived.AzimuthRef != "grid" || math.Abs(*m.Derived.HoleAzimuth-90) > 1e-9 {
+		t.Errorf("the project's output unchanged: %+v", m.Derived)
+	}
+	if _, err := s.ListMeasurements(ctx, p.ID, service.MeasurementQuery{Output: "magnetic"}, domain.Page{Limit: 10}); !domain.IsKind(err, domain.Invalid) || !strings.Contains(err.Error(), "output_reference") {
+		t.Errorf("output_reference=magnetic: %v", err)
+	}
+	h = must(s.GetHole(ctx, p.ID, h.ID))
+	bad := h
+	bad.LocalGrid = json.RawMessage(`{"grid_crs":"EPSG:28350","rotation":10}`)
+	var e *domain.Error
+	if _, err := s.UpdateHole(ctx, p.ID, h.ID, h.Version, bad); !errors.As(err, &e) || e.Loc.Field != "local_grid" || !strings.Contains(err.Error(), "give rotation and origin") {
+		t.Errorf("bad hole grid: %v", err)
+	}
+	if cur := must(s.GetHole(ctx, p.ID, h.ID)); cur.Version != h.Version {
+		t.Errorf("a refused update changed the hole")
+	}
+	h.LocalGrid = json.RawMessage("null")
+	h = must(s.UpdateHole(ctx, p.ID, h.ID, h.Version, h))
+	if h.LocalGrid != nil {
+		t.Errorf("cleared grid %s", h.LocalGrid)
+	}
+	list = must(s.ListMeasurements(ctx, p.ID, service.MeasurementQuery{Output: "local"}, domain.Page{Limit: 10}))
+	if d := list.Items[0].Derived; math.Abs(*d.HoleAzimuth-(90+37.25)) > 1e-9 {
+		t.Errorf("without its own grid the project's applies: hole azimuth %v, want 127.25", *d.HoleAzimuth)
 	}
 }
