@@ -22,66 +22,12 @@ import (
 // gives back every set row; convert --survey-priority and the project's
 // survey_priority choose the same set.
 func TestSurveySetsAtEveryDoor(t *testing.T) {
-	az := func(md float64) float64 { return 40 + 12*md/300 }
-	dip := func(md float64) float64 { return -60 + 5*md/300 }
-	var sb strings.Builder
-	sb.WriteString("hole_id,depth,azimuth,dip,azimuth_reference,survey_date,kind,instrument\n")
-	for i := 0; i <= 30; i++ {
-		md := float64(10 * i)
-		fmt.Fprintf(&sb, "TW1,%g,%.4f,%.4f,true,2024-02-10,gyro,gyro\n", md, az(md)+0.1*math.Sin(float64(i)), dip(md))
-	}
-	for i := 0; i < 30; i++ {
-		md := float64(10*i + 3)
-		a := az(md) + 0.3*math.Sin(float64(i)*1.7)
-		if md >= 120 && md <= 160 {
-			a += 4
-		}
-		fmt.Fprintf(&sb, "TW1,%g,%.4f,%.4f,true,2023-08-01,magnetic,magnetic\n", md, a, dip(md))
-	}
-	surveys := sb.String()
-	collars := "hole_id,easting,northing,elevation,azimuth,dip,depth\nTW1,1000,2000,300,40,-60,300\n"
-	structures := "hole_id,depth,alpha,beta,type\nTW1,140,40,200,BD\n"
-	runs := "hole_id,from,to,confidence\nTW1,0,300,good\n"
-	dir := t.TempDir()
-	p := func(n string) string { return filepath.Join(dir, n) }
-	for n, text := range map[string]string{"collars.csv": collars, "surveys.csv": surveys, "structures.csv": structures, "runs.csv": runs} {
-		if err := os.WriteFile(p(n), []byte(text), 0o644); err != nil {
-			t.Fatal(err)
-		}
-	}
-	cmd := exec.Command(binary, "qa", "--collars", p("collars.csv"), "--surveys", p("surveys.csv"), "--structures", p("structures.csv"),
-		"--runs", p("runs.csv"), "--output-reference", "true")
-	out, err := cmd.Output()
-	if err != nil {
-		t.Fatalf("corvane qa: %v", err)
-	}
-	var cli qa.Report
-	if err := json.Unmarshal(out, &cli); err != nil {
-		t.Fatal(err)
-	}
-
 	s := siteServer(t, filepath.Join(t.TempDir(), "sets.db"))
-	pg := programme{name: "survey sets", project: map[string]any{"output_azimuth_ref": "true"}}
-	base := importProject(t, s, "", pg, [2]string{"collars", collars}, [2]string{"surveys", surveys}, [2]string{"runs", runs}, [2]string{"measurements", structures})
-	var web qa.Report
-	s.mustJSON(t, 200, "GET", base+"/qa", nil, &web)
-
-	sets := func(r qa.Report) []qa.Finding {
-		var out []qa.Finding
-		for _, f := range r.Findings {
-			if f.Check == qa.CheckInterference || f.Check == qa.CheckSetOffset {
-				out = append(out, f)
-			}
-		}
-		return out
-	}
-	c, w := sets(cli), sets(web)
-	if len(c) != 1 || c[0].Check != qa.CheckInterference || c[0].Depth != 123 || c[0].DepthTo != 153 || math.Abs(c[0].Size-4) > 0.7 {
-		t.Errorf("corvane qa: %+v, want one interference zone 123-153 m of about 4 deg", c)
-	}
-	if len(w) != len(c) || len(w) == 1 && (w[0].Depth != c[0].Depth || w[0].DepthTo != c[0].DepthTo || w[0].Size != c[0].Size || w[0].Message != c[0].Message) {
-		t.Errorf("GET qa %+v, corvane qa %+v", w, c)
-	}
+	// The reference set is a gyro, or another kind of set in true north
+	// without a magnetic instrument (an optical or inertial survey, say):
+	// the comparison is by north reference, the same at both doors.
+	checkSetComparison(t, s, "other survey sets", "other", "")
+	p, base, surveys := checkSetComparison(t, s, "survey sets", "gyro", "gyro")
 
 	// The export gives back every row of every set.
 	code, _, b := s.call(t, "GET", base+"/surveys.csv", nil)
@@ -136,4 +82,75 @@ func TestSurveySetsAtEveryDoor(t *testing.T) {
 			t.Errorf("priority %q: hole azimuth %s over HTTP, %s by convert", prio, web, rows[0]["hole_azimuth"])
 		}
 	}
+}
+
+// checkSetComparison writes a two-set hole (a magnetic set with a 4-degree
+// interference zone at 120-160 m, and a clean reference set of kind ref and
+// instrument inst), runs `corvane qa` on the files and GET .../qa on them
+// imported into a new project named name, and checks both give the one
+// zone (123-153 m, the magnetic stations inside it) and nothing else from
+// the comparison. It returns the files' path maker, the project's path and
+// the surveys text.
+func checkSetComparison(t *testing.T, s *server, name, ref, inst string) (func(string) string, string, string) {
+	t.Helper()
+	az := func(md float64) float64 { return 40 + 12*md/300 }
+	dip := func(md float64) float64 { return -60 + 5*md/300 }
+	var sb strings.Builder
+	sb.WriteString("hole_id,depth,azimuth,dip,azimuth_reference,survey_date,kind,instrument\n")
+	for i := 0; i <= 30; i++ {
+		md := float64(10 * i)
+		fmt.Fprintf(&sb, "TW1,%g,%.4f,%.4f,true,2024-02-10,%s,%s\n", md, az(md)+0.1*math.Sin(float64(i)), dip(md), ref, inst)
+	}
+	for i := 0; i < 30; i++ {
+		md := float64(10*i + 3)
+		a := az(md) + 0.3*math.Sin(float64(i)*1.7)
+		if md >= 120 && md <= 160 {
+			a += 4
+		}
+		fmt.Fprintf(&sb, "TW1,%g,%.4f,%.4f,true,2023-08-01,magnetic,magnetic\n", md, a, dip(md))
+	}
+	surveys := sb.String()
+	collars := "hole_id,easting,northing,elevation,azimuth,dip,depth\nTW1,1000,2000,300,40,-60,300\n"
+	structures := "hole_id,depth,alpha,beta,type\nTW1,140,40,200,BD\n"
+	runs := "hole_id,from,to,confidence\nTW1,0,300,good\n"
+	dir := t.TempDir()
+	p := func(n string) string { return filepath.Join(dir, n) }
+	for n, text := range map[string]string{"collars.csv": collars, "surveys.csv": surveys, "structures.csv": structures, "runs.csv": runs} {
+		if err := os.WriteFile(p(n), []byte(text), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	cmd := exec.Command(binary, "qa", "--collars", p("collars.csv"), "--surveys", p("surveys.csv"), "--structures", p("structures.csv"),
+		"--runs", p("runs.csv"), "--output-reference", "true")
+	out, err := cmd.Output()
+	if err != nil {
+		t.Fatalf("corvane qa: %v", err)
+	}
+	var cli qa.Report
+	if err := json.Unmarshal(out, &cli); err != nil {
+		t.Fatal(err)
+	}
+	pg := programme{name: name, project: map[string]any{"output_azimuth_ref": "true"}}
+	base := importProject(t, s, "", pg, [2]string{"collars", collars}, [2]string{"surveys", surveys}, [2]string{"runs", runs}, [2]string{"measurements", structures})
+	var web qa.Report
+	s.mustJSON(t, 200, "GET", base+"/qa", nil, &web)
+
+	sets := func(r qa.Report) []qa.Finding {
+		var out []qa.Finding
+		for _, f := range r.Findings {
+			if f.Check == qa.CheckInterference || f.Check == qa.CheckSetOffset {
+				out = append(out, f)
+			}
+		}
+		return out
+	}
+	c, w := sets(cli), sets(web)
+	if len(c) != 1 || c[0].Check != qa.CheckInterference || c[0].Depth != 123 || c[0].DepthTo != 153 || math.Abs(c[0].Size-4) > 0.7 ||
+		!strings.Contains(c[0].Message, "prefer the "+ref+" set") {
+		t.Errorf("%s: corvane qa: %+v, want one interference zone 123-153 m of about 4 deg against the %s set", name, c, ref)
+	}
+	if len(w) != len(c) || len(w) == 1 && (w[0].Depth != c[0].Depth || w[0].DepthTo != c[0].DepthTo || w[0].Size != c[0].Size || w[0].Message != c[0].Message) {
+		t.Errorf("%s: GET qa %+v, corvane qa %+v", name, w, c)
+	}
+	return p, base, surveys
 }
