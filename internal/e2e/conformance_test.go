@@ -3,6 +3,7 @@ package e2e
 import (
 	"bytes"
 	"encoding/csv"
+	"encoding/json"
 	"fmt"
 	"math"
 	"os"
@@ -55,6 +56,7 @@ type programme struct {
 	name    string
 	flags   []string       // corvane convert options
 	project map[string]any // the same conventions for the service
+	query   string         // the query of the HTTP doors (e.g. "?output_reference=local"), "" for none
 	out     string         // output reference
 	conv    coreangle.Convention
 	feet    bool
@@ -367,8 +369,10 @@ func convertCLI(t *testing.T, dir string, flags []string) []map[string]string {
 	return readCSV(t, stdout.Bytes())
 }
 
-// convertJSON sends the programme to POST /v1/convert, built from the same
-// CSV files as the command line reads them.
+// convertJSON sends the programme to POST /v1/convert (with the
+// programme's query), built from the same CSV files as the command line
+// reads them: a collar's own local grid, and surveys by kind with their
+// preferred flag.
 func convertJSON(t *testing.T, s *server, pg programme, collars, surveys, structures string) []map[string]string {
 	return convertJSONWith(t, s, pg, collars, surveys, structures, nil)
 }
@@ -400,27 +404,40 @@ func convertJSONWith(t *testing.T, s *server, pg programme, collars, surveys, st
 		cm := map[string]any{"hole_id": c.HoleID, "easting": c.Collar.East, "northing": c.Collar.North, "elevation": c.Collar.Elevation,
 			"azimuth": c.Collar.Azimuth, "dip": c.Collar.Dip, "final_depth": c.Collar.Depth, "crs": c.CRS,
 			"declination": num(c.Declination), "grid_convergence": num(c.GridConvergence)}
+		if c.AzimuthRef != "" { // absent: the output reference, as in the file
+			cm["azimuth_ref"] = c.AzimuthRef
+		}
+		if c.LocalGrid != nil {
+			cm["local_grid"] = json.RawMessage(c.LocalGrid.JSON())
+		}
 		if !c.SurveyDate.IsZero() {
 			cm["survey_date"] = c.SurveyDate.Format(time.DateOnly)
 		}
 		cs = append(cs, cm)
 	}
-	byHole := map[string]map[string]any{}
+	bySet := map[string]map[string]any{}
 	for _, r := range srows {
-		sm := byHole[r.HoleID]
+		key := r.HoleID + "\x00" + r.Kind
+		sm := bySet[key]
 		if sm == nil {
 			sm = map[string]any{"hole_id": r.HoleID, "stations": []map[string]float64{}}
+			if r.Kind != "" {
+				sm["kind"] = r.Kind
+			}
 			if r.AzimuthRef != "" { // absent: the output reference, as in the file
 				sm["azimuth_ref"] = r.AzimuthRef
 			}
 			if !r.Date.IsZero() {
 				sm["survey_date"] = r.Date.Format(time.DateOnly)
 			}
-			byHole[r.HoleID] = sm
+			bySet[key] = sm
 			ss = append(ss, sm)
 		}
 		if r.Instrument != "" {
 			sm["instrument"] = string(r.Instrument)
+		}
+		if r.Preferred {
+			sm["preferred"] = true
 		}
 		sm["stations"] = append(sm["stations"].([]map[string]float64), map[string]float64{"depth": r.Station.Depth, "azimuth": r.Station.Azimuth, "dip": r.Station.Dip})
 	}
@@ -442,7 +459,7 @@ func convertJSONWith(t *testing.T, s *server, pg programme, collars, surveys, st
 	for k, v := range extra {
 		body[k] = v
 	}
-	s.mustJSON(t, 200, "POST", "/v1/convert", body, &resp)
+	s.mustJSON(t, 200, "POST", "/v1/convert"+pg.query, body, &resp)
 	out := make([]map[string]string, len(resp.Results))
 	for i, r := range resp.Results {
 		out[i] = fromJSON(r.Derived)

@@ -9,7 +9,6 @@ import (
 	"strconv"
 	"strings"
 	"testing"
-	"time"
 
 	"corvane/internal/convert"
 	"corvane/internal/coreangle"
@@ -170,12 +169,12 @@ func TestNorthOptionsAtEveryDoor(t *testing.T) {
 	}
 
 	lite := siteServer(t, filepath.Join(t.TempDir(), "north.db"))
-	same(t, "POST /v1/convert", northConvertJSON(t, lite, projectGrid, collars.String(), surveys.String(), structures.String()))
-	pg := programme{name: "north options", project: map[string]any{"local_grid": projectGrid}}
+	pg := programme{name: "north options", project: map[string]any{"local_grid": projectGrid}, query: "?output_reference=local"}
+	same(t, "POST /v1/convert", convertJSON(t, lite, pg, collars.String(), surveys.String(), structures.String()))
 	export := func(s *server) []map[string]string {
 		base := importProject(t, s, "", pg, [2]string{"collars", collars.String()}, [2]string{"surveys", surveys.String()},
 			[2]string{"measurements", structures.String()})
-		code, _, b := s.call(t, "GET", base+"/measurements.csv?output_reference=local", nil)
+		code, _, b := s.call(t, "GET", base+"/measurements.csv"+pg.query, nil)
 		if code != 200 {
 			t.Fatalf("export: %d %s", code, b)
 		}
@@ -251,73 +250,6 @@ func TestNorthOptionsAtEveryDoor(t *testing.T) {
 	if code != 422 || !strings.Contains(string(b), "output_reference") {
 		t.Errorf("transfer with output_reference: %d %s", code, b)
 	}
-}
-
-// northConvertJSON sends the files to POST /v1/convert?output_reference=local
-// with the project's grid in the conventions, each collar's own local_grid
-// and the surveys by kind with their preferred flag.
-func northConvertJSON(t *testing.T, s *server, grid map[string]any, collars, surveys, structures string) []map[string]string {
-	t.Helper()
-	crows, err := csvio.ReadCollars(strings.NewReader(collars), "collars.csv")
-	if err != nil {
-		t.Fatal(err)
-	}
-	srows, err := csvio.ReadSurveys(strings.NewReader(surveys), "surveys.csv")
-	if err != nil {
-		t.Fatal(err)
-	}
-	num := func(v float64) any {
-		if math.IsNaN(v) {
-			return nil
-		}
-		return v
-	}
-	var cs, ss, ms []map[string]any
-	for _, c := range crows {
-		cm := map[string]any{"hole_id": c.HoleID, "easting": c.Collar.East, "northing": c.Collar.North, "elevation": c.Collar.Elevation,
-			"azimuth": c.Collar.Azimuth, "dip": c.Collar.Dip, "final_depth": c.Collar.Depth, "crs": c.CRS, "azimuth_ref": c.AzimuthRef,
-			"declination": num(c.Declination), "grid_convergence": num(c.GridConvergence)}
-		if c.LocalGrid != nil {
-			cm["local_grid"] = json.RawMessage(c.LocalGrid.JSON())
-		}
-		if !c.SurveyDate.IsZero() {
-			cm["survey_date"] = c.SurveyDate.Format(time.DateOnly)
-		}
-		cs = append(cs, cm)
-	}
-	sets := map[string]map[string]any{}
-	for _, r := range srows {
-		key := r.HoleID + "/" + r.Kind
-		sm := sets[key]
-		if sm == nil {
-			sm = map[string]any{"hole_id": r.HoleID, "kind": r.Kind, "azimuth_ref": r.AzimuthRef, "stations": []map[string]float64{}}
-			sets[key] = sm
-			ss = append(ss, sm)
-		}
-		if r.Instrument != "" {
-			sm["instrument"] = string(r.Instrument)
-		}
-		if r.Preferred {
-			sm["preferred"] = true
-		}
-		sm["stations"] = append(sm["stations"].([]map[string]float64), map[string]float64{"depth": r.Station.Depth, "azimuth": r.Station.Azimuth, "dip": r.Station.Dip})
-	}
-	for _, m := range readCSV(t, []byte(structures)) {
-		ms = append(ms, map[string]any{"hole_id": m["hole_id"], "depth": atof(t, m["depth"]), "alpha": atof(t, m["alpha"]), "beta": atof(t, m["beta"]),
-			"apparent_thickness": atof(t, m["apparent_thickness"]), "type": m["type"]})
-	}
-	var resp struct {
-		Results []struct {
-			Derived map[string]any `json:"derived"`
-		} `json:"results"`
-	}
-	s.mustJSON(t, 200, "POST", "/v1/convert?output_reference=local", map[string]any{"conventions": map[string]any{"local_grid": grid},
-		"collars": cs, "surveys": ss, "measurements": ms}, &resp)
-	out := make([]map[string]string, len(resp.Results))
-	for i, r := range resp.Results {
-		out[i] = fromJSON(r.Derived)
-	}
-	return out
 }
 
 // csvQuote quotes a cell that holds commas or quotes.
