@@ -57,3 +57,41 @@ func TestConvertLocalGrid(t *testing.T) {
 		t.Errorf("bad grid: exit %d %s", code, errs)
 	}
 }
+
+// --output-reference local needs a local grid: a hole without one (no
+// --local-grid, no local_grid column) has the error on each of its rows
+// (exit 1) while a hole with its own converts; transfer, whose files stay in
+// the projected grid, does not take it; a bad local_grid cell is refused at
+// its line and column.
+func TestConvertOutputLocalNeedsAGrid(t *testing.T) {
+	grid := `"{""name"":""pit"",""grid_crs"":""EPSG:28350"",""rotation"":10,""origin"":{""local_easting"":0,""local_northing"":0,""easting"":391000,""northing"":6465000}}"`
+	dir := convertFiles(t, map[string]string{
+		"c.csv": "hole_id,easting,northing,elevation,azimuth,dip,depth,crs,azimuth_reference,grid_convergence,local_grid\n" +
+			"A,391100,6465100,300,30,-60,200,EPSG:28350,grid,0," + grid + "\n" +
+			"B,391200,6465200,300,30,-60,200,EPSG:28350,grid,0,\n",
+		"s.csv":   "hole_id,depth,azimuth,dip,azimuth_reference\nA,0,30,-60,grid\nB,0,30,-60,grid\n",
+		"m.csv":   "hole_id,depth,alpha,beta\nA,50,40,30\nB,50,40,30\n",
+		"bad.csv": "hole_id,easting,northing,elevation,azimuth,dip,depth,local_grid\nA,1,2,3,30,-60,200,{}\n",
+	})
+	p := func(n string) string { return filepath.Join(dir, n) }
+	out := p("out.csv")
+	code, _, errs := runCLI("convert", "--collars", p("c.csv"), "--surveys", p("s.csv"), "--structures", p("m.csv"), "--output-reference", "local", "-o", out)
+	if code != ExitRows {
+		t.Fatalf("exit %d: %s", code, errs)
+	}
+	rows := e2eReadRows(t, out)
+	if rows[0]["error"] != "" || rows[0]["azimuth_reference"] != "local" || math.Abs(e2eNum(t, rows[0]["hole_azimuth"])-20) > 0.006 {
+		t.Errorf("hole A in its own grid: %v", rows[0])
+	}
+	if !strings.Contains(rows[1]["error"], "needs a local grid") {
+		t.Errorf("hole B without a grid: %v", rows[1])
+	}
+	code, _, errs = runCLI("transfer", "--collars", p("c.csv"), "--surveys", p("s.csv"), "--converted", out, "--output-reference", "local", "--glb", p("x.glb"))
+	if code != ExitUsage || !strings.Contains(errs, "want grid or true") {
+		t.Errorf("transfer --output-reference local: exit %d %s", code, errs)
+	}
+	code, _, errs = runCLI("convert", "--collars", p("bad.csv"), "--surveys", p("s.csv"), "--structures", p("m.csv"))
+	if code != ExitUsage || !strings.Contains(errs, `line 2, column "local_grid"`) {
+		t.Errorf("bad local_grid cell: exit %d %s", code, errs)
+	}
+}
