@@ -258,13 +258,8 @@ func runConvert(ctx context.Context, env *Env, args []string) int {
 	if opt.ErrorModel, err = readErrorModel(*errModel); err != nil {
 		return usageErr("%v", err)
 	}
-	if *gridFile != "" {
-		if opt.Unit == desurvey.Feet {
-			return usageErr("--local-grid cannot be combined with --feet (the local grid is in metres)")
-		}
-		if code := applyLocalGrid(env, *gridFile, &opt); code != ExitOK {
-			return code
-		}
+	if code := applyLocalGrid(env, "convert", *gridFile, &opt); code != ExitOK {
+		return code
 	}
 	opt.CollarsFile, opt.SurveysFile, opt.StructuresFile = *collars, *surveys, *structures
 
@@ -394,16 +389,24 @@ func reportAll(env *Env, cmd string, errs ...error) bool {
 // project's local_grid setting, localgrid.Parse), sets it in opt as the
 // project's local grid (collars labelled "local" are in it, output local is
 // in it: holemodel.New, as the service does with a project's local grid),
-// and reports the transformation on standard error.
-func applyLocalGrid(env *Env, path string, opt *convert.Options) int {
+// and reports the transformation on standard error; cmd names the command
+// in messages. Nothing is done for an empty path. convert and qa share it.
+func applyLocalGrid(env *Env, cmd, path string, opt *convert.Options) int {
+	if path == "" {
+		return ExitOK
+	}
+	if opt.Unit == desurvey.Feet {
+		fmt.Fprintf(env.Stderr, "corvane %s: --local-grid cannot be combined with --feet (the local grid is in metres)\n", cmd)
+		return ExitUsage
+	}
 	data, err := os.ReadFile(path)
 	if err != nil {
-		fmt.Fprintf(env.Stderr, "corvane convert: --local-grid: %v\n", err)
+		fmt.Fprintf(env.Stderr, "corvane %s: --local-grid: %v\n", cmd, err)
 		return ExitUsage
 	}
 	g, fit, err := localgrid.Parse(data)
 	if err != nil {
-		fmt.Fprintf(env.Stderr, "corvane convert: --local-grid %s: %v\n", path, err)
+		fmt.Fprintf(env.Stderr, "corvane %s: --local-grid %s: %v\n", cmd, path, err)
 		return ExitUsage
 	}
 	opt.LocalGrid = g

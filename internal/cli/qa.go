@@ -17,6 +17,7 @@ import (
 	"corvane/internal/csvio"
 	"corvane/internal/desurvey"
 	"corvane/internal/domain"
+	"corvane/internal/localgrid"
 	"corvane/internal/northref"
 	"corvane/internal/progress"
 	"corvane/internal/qa"
@@ -118,6 +119,7 @@ func runQA(_ context.Context, env *Env, args []string) int {
 	feet := fs.Bool("feet", false, "depths in feet: dogleg severity per 100 ft")
 	magModel := fs.String("model", "auto", "magnetic model of computed declinations: auto (WMM2025 for 2025-2030, IGRF-14 before), wmm or igrf")
 	priority := fs.String("survey-priority", "", "survey set kinds by priority for holes with sets by kind (surveys column kind), e.g. gyro,magnetic,planned")
+	gridFile := fs.String("local-grid", "", "JSON file declaring the project's local grid, for collars whose crs is \"local\" (as corvane convert)")
 	var zones zoneFlags
 	fs.Var(&zones, "magnetic-zone", "HOLE:FROM-TO where magnetic surveys are unreliable (repeatable)")
 	o := def
@@ -192,7 +194,15 @@ func runQA(_ context.Context, env *Env, args []string) int {
 		return ExitUsage
 	}
 
-	in, rejected, err := readQAInput(*collars, *surveys, *structures, *runsF, *picks, qaHoles{*outRef, givenOrNaN(decl), givenOrNaN(conv), *feet, model, pr}, env.Stderr)
+	// The local grid as corvane convert reads it (the same options).
+	gridOpt := convert.Options{}
+	if *feet {
+		gridOpt.Unit = desurvey.Feet
+	}
+	if code := applyLocalGrid(env, "qa", *gridFile, &gridOpt); code != ExitOK {
+		return code
+	}
+	in, rejected, err := readQAInput(*collars, *surveys, *structures, *runsF, *picks, qaHoles{*outRef, givenOrNaN(decl), givenOrNaN(conv), *feet, model, pr, gridOpt.LocalGrid}, env.Stderr)
 	if err != nil {
 		reportAll(env, "qa", err)
 		return ExitUsage
@@ -233,13 +243,14 @@ func runQA(_ context.Context, env *Env, args []string) int {
 // rows become findings in the report and are counted in rejected.
 // qaHoles are the options that build the holes, as in corvane convert: the
 // output reference, the values for all holes (NaN when not given), feet, the
-// magnetic model and the survey priority.
+// magnetic model, the survey priority and the local grid.
 type qaHoles struct {
 	outRef     string
 	decl, conv float64
 	feet       bool
 	model      northref.MagneticModel
 	priority   string
+	grid       *localgrid.Grid // the project's local grid, nil when none
 }
 
 func readQAInput(collars, surveys, structures, runs, picks string, o qaHoles, stderr io.Writer) (in qa.Input, rejected int, err error) {
@@ -273,7 +284,7 @@ func readQAInput(collars, surveys, structures, runs, picks string, o qaHoles, st
 	// The holes as corvane convert builds them: one hole model corrects
 	// north (package holemodel). A hole it cannot build is a problem of
 	// that hole, reported once, as in convert.
-	opt := convert.Options{Output: convert.Grid, CollarsFile: collars, SurveysFile: surveys, MagneticModel: o.model, SurveyPriority: o.priority}
+	opt := convert.Options{Output: convert.Grid, CollarsFile: collars, SurveysFile: surveys, MagneticModel: o.model, SurveyPriority: o.priority, LocalGrid: o.grid}
 	if o.outRef == "true" {
 		opt.Output = convert.True
 	}

@@ -159,7 +159,7 @@ func TestQAInputFeetElevation(t *testing.T) {
 	if atM.Declination == atFt.Declination {
 		t.Fatalf("declination %v does not depend on elevation here: the check below could not fail", atM.Declination)
 	}
-	in, _, err := readQAInput(p("collars.csv"), p("surveys.csv"), p("structures.csv"), p("runs.csv"), p("picks.csv"), qaHoles{"true", math.NaN(), math.NaN(), true, northref.ModelAuto, ""}, io.Discard)
+	in, _, err := readQAInput(p("collars.csv"), p("surveys.csv"), p("structures.csv"), p("runs.csv"), p("picks.csv"), qaHoles{"true", math.NaN(), math.NaN(), true, northref.ModelAuto, "", nil}, io.Discard)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -184,7 +184,7 @@ func TestQAHoleProblems(t *testing.T) {
 		"KW1,30,70,-60,grid\nKW1,60,70,-60,grid\nKW2,30,70,-60,grid\nKW2,90,70,-60,grid\nKW3,30,70,-60,magnetic\n"), 0o644); err != nil {
 		t.Fatal(err)
 	}
-	in, _, err := readQAInput(p("collars.csv"), p("surveys.csv"), p("structures.csv"), p("runs.csv"), "", qaHoles{"grid", math.NaN(), 0, false, northref.ModelAuto, ""}, io.Discard) // --grid-convergence 0
+	in, _, err := readQAInput(p("collars.csv"), p("surveys.csv"), p("structures.csv"), p("runs.csv"), "", qaHoles{"grid", math.NaN(), 0, false, northref.ModelAuto, "", nil}, io.Discard) // --grid-convergence 0
 	if err != nil {
 		t.Fatalf("one hole's station refused the whole input: %v", err)
 	}
@@ -285,7 +285,7 @@ func TestQAModel(t *testing.T) {
 			t.Errorf("--model %q: holes %+v", m, rep.Holes)
 		}
 	}
-	in, _, err := readQAInput(p("collars.csv"), p("surveys.csv"), p("structures.csv"), p("runs.csv"), "", qaHoles{"grid", math.NaN(), math.NaN(), false, northref.ModelAuto, ""}, io.Discard)
+	in, _, err := readQAInput(p("collars.csv"), p("surveys.csv"), p("structures.csv"), p("runs.csv"), "", qaHoles{"grid", math.NaN(), math.NaN(), false, northref.ModelAuto, "", nil}, io.Discard)
 	if err != nil {
 		t.Fatal(err)
 	}

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"os"
+	"os/exec"
 	"path/filepath"
 	"strconv"
 	"strings"
@@ -16,6 +17,7 @@ import (
 	"corvane/internal/geom"
 	"corvane/internal/localgrid"
 	"corvane/internal/pgtest"
+	"corvane/internal/qa"
 )
 
 // The north options at every door: a programme in a mine grid, converted
@@ -262,3 +264,54 @@ func csvQuote(s string) string {
 
 // azDelta is a - b wrapped to [-180, 180).
 func azDelta(a, b float64) float64 { return math.Mod(math.Mod(a-b+180, 360)+360, 360) - 180 }
+
+// corvane qa --local-grid and GET .../qa on a project with that local grid
+// check the same stations: a hole typed in the mine grid, its survey in
+// local-grid azimuths, reported in true north as true = local + theta + C
+// (IOGP 7-2 method 9621 for the rotation; the convergence given).
+func TestQALocalGridAtBothDoors(t *testing.T) {
+	const theta, c = -37.25, 0.8
+	grid := map[string]any{"name": "Mine grid", "grid_crs": "EPSG:32750", "rotation": theta,
+		"origin": map[string]any{"local_easting": 5000, "local_northing": 10000, "easting": 401250, "northing": 7401480}}
+	b, err := json.Marshal(grid)
+	if err != nil {
+		t.Fatal(err)
+	}
+	files := map[string]string{
+		"grid.json":      string(b),
+		"collars.csv":    "hole_id,easting,northing,elevation,azimuth,dip,depth,crs,azimuth_reference,grid_convergence\nQ1,5100,10200,300,45,-60,200,local,grid,0.8\n",
+		"surveys.csv":    "hole_id,depth,azimuth,dip,azimuth_reference\nQ1,0,45,-60,grid\nQ1,50,46,-59,grid\nQ1,100,48,-58,grid\nQ1,150,49,-57,grid\n",
+		"structures.csv": "hole_id,depth,alpha,beta,type\nQ1,60,40,200,BD\n",
+		"runs.csv":       "hole_id,from,to,confidence\nQ1,0,200,good\n",
+	}
+	dir := t.TempDir()
+	p := func(n string) string { return filepath.Join(dir, n) }
+	for n, text := range files {
+		if err := os.WriteFile(p(n), []byte(text), 0o644); err != nil {
+			t.Fatal(err)
+		}
+	}
+	out, err := exec.Command(binary, "qa", "--collars", p("collars.csv"), "--surveys", p("surveys.csv"), "--structures", p("structures.csv"),
+		"--runs", p("runs.csv"), "--output-reference", "true", "--local-grid", p("grid.json")).Output()
+	if err != nil {
+		t.Fatalf("corvane qa: %v", err)
+	}
+	var cli, web qa.Report
+	if err := json.Unmarshal(out, &cli); err != nil {
+		t.Fatal(err)
+	}
+	s := siteServer(t, filepath.Join(t.TempDir(), "qa-grid.db"))
+	pg := programme{name: "qa local grid", project: map[string]any{"output_azimuth_ref": "true", "local_grid": grid}}
+	base := importProject(t, s, "", pg, [2]string{"collars", files["collars.csv"]}, [2]string{"surveys", files["surveys.csv"]},
+		[2]string{"runs", files["runs.csv"]}, [2]string{"measurements", files["structures.csv"]})
+	s.mustJSON(t, 200, "GET", base+"/qa", nil, &web)
+	if len(cli.Holes) != 1 || len(web.Holes) != 1 || len(cli.Holes[0].Stations) != 4 || len(web.Holes[0].Stations) != 4 {
+		t.Fatalf("holes: command %+v, route %+v", cli.Holes, web.Holes)
+	}
+	for i, want := range []float64{45, 46, 48, 49} {
+		a, w := cli.Holes[0].Stations[i].Azimuth, web.Holes[0].Stations[i].Azimuth
+		if math.Abs(azDelta(a, want+theta+c)) > 1e-9 || a != w {
+			t.Errorf("station %d: command %.9f, route %.9f, want %.9f", i, a, w, geom.NormAzimuth(want+theta+c))
+		}
+	}
+}
