@@ -480,10 +480,10 @@ func (d *deriver) keep() {
 }
 
 // modelCache keeps hole models between requests, each with the project
-// version and model stamp it was built at (domain.Store.ModelStamp: any
+// version, model stamp and output reference it was built at (domain.Store.ModelStamp: any
 // change of a project's settings, holes, surveys or runs, by any writer,
-// moves the stamp). A model is used only at the same version and stamp, so
-// it is never stale. Models hold no per-request state (their measurer is
+// moves the stamp). A model is used only at the same version, stamp and
+// output reference, so it is never stale nor in another north. Models hold no per-request state (their measurer is
 // set per use). Safe for concurrent use.
 type modelCache struct {
 	mu sync.Mutex
@@ -492,7 +492,10 @@ type modelCache struct {
 
 type cachedModel struct {
 	project, version, stamp int64
-	model                   *holeModel
+	// output is the output reference the model was built for: a request
+	// may ask for another than the project's (output_reference).
+	output string
+	model  *holeModel
 }
 
 // maxCachedModels bounds the cache; past it the cache starts afresh.
@@ -503,7 +506,7 @@ func newModelCache() *modelCache { return &modelCache{m: map[int64]cachedModel{}
 func (c *modelCache) get(holeID int64, p domain.Project, stamp int64) *holeModel {
 	c.mu.Lock()
 	defer c.mu.Unlock()
-	if e, ok := c.m[holeID]; ok && e.project == p.ID && e.version == p.Version && e.stamp == stamp {
+	if e, ok := c.m[holeID]; ok && e.project == p.ID && e.version == p.Version && e.stamp == stamp && e.output == p.OutputAzimuthRef {
 		return e.model
 	}
 	return nil
@@ -515,7 +518,7 @@ func (c *modelCache) put(m *holeModel, p domain.Project, stamp int64) {
 	if len(c.m) >= maxCachedModels {
 		clear(c.m)
 	}
-	c.m[m.hole.ID] = cachedModel{project: p.ID, version: p.Version, stamp: stamp, model: m}
+	c.m[m.hole.ID] = cachedModel{project: p.ID, version: p.Version, stamp: stamp, output: p.OutputAzimuthRef, model: m}
 }
 
 // view returns the measurement with its hole name and derived values.

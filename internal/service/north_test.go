@@ -166,6 +166,12 @@ func TestHoleLocalGrid(t *testing.T) {
 	if m.Derived.AzimuthRef != "grid" || math.Abs(*m.Derived.HoleAzimuth-90) > 1e-9 {
 		t.Errorf("the project's output unchanged: %+v", m.Derived)
 	}
+	// The hole models kept between requests are kept per output reference:
+	// the next request in the project's north does not get the local ones.
+	again := must(s.ListMeasurements(ctx, p.ID, service.MeasurementQuery{}, domain.Page{Limit: 10})).Items[0].Derived
+	if again.AzimuthRef != "grid" || math.Abs(*again.HoleAzimuth-90) > 1e-9 {
+		t.Errorf("after a request in the local grid, the project's north: %s %v", again.AzimuthRef, *again.HoleAzimuth)
+	}
 	if _, err := s.ListMeasurements(ctx, p.ID, service.MeasurementQuery{Output: "magnetic"}, domain.Page{Limit: 10}); !domain.IsKind(err, domain.Invalid) || !strings.Contains(err.Error(), "output_reference") {
 		t.Errorf("output_reference=magnetic: %v", err)
 	}
