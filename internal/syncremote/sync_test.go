@@ -2,6 +2,7 @@ package syncremote_test
 
 import (
 	"context"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"net/http"
@@ -549,6 +550,48 @@ func TestSyncLongImport(t *testing.T) {
 	}
 	if rep := l.mustSync(t, c); rep.Pulled != n {
 		t.Errorf("pulled %d, want the %d imported", rep.Pulled, n)
+	}
+	sameStores(t, c, l)
+}
+
+// A hole's own local grid travels with the hole like its other fields: set
+// on the centre it reaches the laptop, changed on the laptop (admin token)
+// it reaches the centre, and both stores end up equal.
+func TestSyncHoleLocalGrid(t *testing.T) {
+	c := newCentral(t, false)
+	seedCentral(t, c)
+	grid := json.RawMessage(`{"name":"pit grid","grid_crs":"EPSG:28350","rotation":15,
+		"origin":{"local_easting":0,"local_northing":0,"easting":391000,"northing":6465000}}`)
+	_, err := c.svc.CreateHole(admin, c.pid, domain.Hole{Name: "RB003", East: 391100, North: 6465100, Elevation: 300,
+		Azimuth: 90, AzimuthRef: "grid", Dip: -60, FinalDepth: 100, CRS: "EPSG:28350", LocalGrid: grid})
+	must(t, err)
+	rotation := func(st domain.Store, pid int64) any {
+		t.Helper()
+		got, err := st.GetHoleByName(context.Background(), pid, "RB003")
+		must(t, err)
+		var g map[string]any
+		if err := json.Unmarshal(got.LocalGrid, &g); err != nil {
+			t.Fatalf("local_grid %q: %v", got.LocalGrid, err)
+		}
+		return g["rotation"]
+	}
+	l := newLaptop(t, "shed")
+	l.mustSync(t, c)
+	if r := rotation(l.svc.Store(), l.project(t)); r != 15.0 {
+		t.Errorf("the laptop's RB003 has a local grid of rotation %v, want 15 (the centre's)", r)
+	}
+	sameStores(t, c, l)
+
+	lh, err := l.svc.Store().GetHoleByName(context.Background(), l.project(t), "RB003")
+	must(t, err)
+	lh.LocalGrid = json.RawMessage(strings.Replace(string(grid), `"rotation":15`, `"rotation":-12.5`, 1))
+	_, err = l.svc.UpdateHole(admin, l.project(t), lh.ID, lh.Version, lh)
+	must(t, err)
+	if _, err := l.sync(t, c, c.remote(t, c.admin, nil), 0); err != nil {
+		t.Fatal(err)
+	}
+	if r := rotation(c.svc.Store(), c.pid); r != -12.5 {
+		t.Errorf("after the laptop's push the centre's RB003 has rotation %v, want -12.5", r)
 	}
 	sameStores(t, c, l)
 }
