@@ -195,3 +195,36 @@ func TestHoleLocalGrid(t *testing.T) {
 		t.Errorf("without its own grid the project's applies: hole azimuth %v, want 127.25", *d.HoleAzimuth)
 	}
 }
+
+// The project's rows kept for statistics are kept per output reference: a
+// report in the local grid is not the project's north one served from the
+// kept rows, and the project's north after it is as before.
+func TestRowCacheByOutputReference(t *testing.T) {
+	s, ctx := newService(t)
+	grid := json.RawMessage(`{"name":"mine grid","grid_crs":"EPSG:28350","rotation":-37.25,
+		"origin":{"local_easting":5000,"local_northing":10000,"easting":391250,"northing":6465480}}`)
+	p, h := programme(t, s, ctx, domain.Project{Name: "kept rows by north", LocalGrid: grid})
+	for i := range 8 {
+		must(s.CreateMeasurement(ctx, p.ID, domain.Measurement{HoleID: h.ID, Depth: float64(10 + 5*i), Alpha: float64(40 + i), Beta: f64(float64(150 + 7*i)), TypeCode: "BD"}))
+	}
+	report := func(out string) string {
+		t.Helper()
+		rep := must(s.Statistics(ctx, p.ID, service.StatsQuery{MeasurementQuery: service.MeasurementQuery{Output: out}, SetQuery: service.SetQuery{Sets: "type"}}))
+		b, err := json.Marshal(rep.Planes) // the values only, not the report's labels
+		if err != nil {
+			t.Fatal(err)
+		}
+		return string(b)
+	}
+	north := report("")
+	local := report("local")
+	if local == north {
+		t.Fatalf("statistics with output_reference=local equal the project's north ones (kept rows of another north)")
+	}
+	if again := report(""); again != north {
+		t.Errorf("the project's north after a local request differs from before")
+	}
+	if again := report("local"); again != local {
+		t.Errorf("a second local request differs from the first")
+	}
+}

@@ -57,16 +57,19 @@ func matches(f *domain.MeasurementFilter, r *storedRow) bool {
 }
 
 // rowKey is what a project's kept rows were read at: the project's
-// version, its model stamp (the hole models the rows were oriented with)
-// and its measurement stamp (the rows themselves).
+// version, its model stamp (the hole models the rows were oriented with),
+// its measurement stamp (the rows themselves) and the output reference
+// they were oriented in (a request may ask for another than the
+// project's, output_reference).
 type rowKey struct {
 	project, version, model, measurements int64
+	output                                string
 }
 
 // rowKey reads the key of p's rows now; read it before anything the rows
 // are built from, so that rows kept at a key are never older than it.
 func (s *Service) rowKey(ctx context.Context, p domain.Project) (rowKey, error) {
-	k := rowKey{project: p.ID, version: p.Version}
+	k := rowKey{project: p.ID, version: p.Version, output: p.OutputAzimuthRef}
 	var err error
 	if k.model, err = s.store.ModelStamp(ctx, p.ID); err != nil {
 		return k, err
