@@ -12,13 +12,13 @@ import (
 	"gonum.org/v1/gonum/mat"
 )
 
-// The IOGP Geomatics Guidance Note 7-2 gives a worked example for EPSG
-// method 9621 (similarity transformation). Its figures could not be
-// reproduced here from memory, so they are not used: the formula of the
-// method (as set out in the package comment, from the guidance note) is
-// checked instead against PROJ 9.1.1's two-dimensional Helmert
-// (testdata/proj_checks.txt, made by testdata/make_proj_checks.sh with the
-// exact commands on each line), by exact synthetic cases and round trips.
+// The IOGP Geomatics Guidance Note 7-2 worked example for EPSG method 9621
+// (similarity transformation) is TestIOGPWorkedExample9621 (recalled from
+// memory, supported by PROJ). The formula of the method (as set out in the
+// package comment, from the guidance note) is also checked against PROJ
+// 9.1.1's two-dimensional Helmert (testdata/proj_checks.txt, made by
+// testdata/make_proj_checks.sh with the exact commands on each line), by
+// exact synthetic cases and round trips.
 func TestAgainstPROJHelmert(t *testing.T) {
 	fh, err := os.Open("testdata/proj_checks.txt")
 	if err != nil {
@@ -218,5 +218,31 @@ func TestSpec(t *testing.T) {
 		if _, _, err := s.Resolve(); err == nil || !strings.Contains(err.Error(), msg) {
 			t.Errorf("%s: %v, want %q", text, err, msg)
 		}
+	}
+}
+
+// The worked example of EPSG method 9621 in IOGP Geomatics Guidance Note 7-2
+// (ED50 / UTM zone 31N to ETRS89 / UTM zone 31N): XT0 = -129.549 m,
+// YT0 = -208.185 m, M = 1.0000015504, theta = +1.56504 arc-seconds; the
+// source point E 300000.000, N 4500000.000 becomes E 299905.060,
+// N 4499796.515. The parameters and the printed result are recalled from
+// memory, not read from the note here; PROJ 9.1.1 gives the same figures
+// for them (`echo "300000 4500000 0" | cct -d 4 +proj=helmert +x=-129.549
+// +y=-208.185 +s=1.0000015504 +theta=1.56504` -> 299905.0600 4499796.5154),
+// which supports the recollection.
+func TestIOGPWorkedExample9621(t *testing.T) {
+	tr := Transform{E0: -129.549, N0: -208.185, Scale: 1.0000015504, Rotation: 1.56504 / 3600}
+	e, n := tr.ToGrid(300000, 4500000)
+	if math.Abs(e-299905.060) > 0.0005 || math.Abs(n-4499796.515) > 0.0005 {
+		t.Errorf("E %.4f N %.4f, the guidance note prints 299905.060 4499796.515", e, n)
+	}
+	x, y := tr.ToLocal(299905.060, 4499796.515)
+	if math.Abs(x-300000) > 0.001 || math.Abs(y-4500000) > 0.001 {
+		t.Errorf("back: %.4f %.4f, want 300000 4500000", x, y)
+	}
+	// The rotation is 1.56504 arc-seconds clockwise, so an azimuth in the
+	// source grid is that much larger in the target grid.
+	if d := tr.LocalToGridAzimuth(90) - 90; math.Abs(d-1.56504/3600) > 1e-12 {
+		t.Errorf("azimuth change %.9f deg", d)
 	}
 }
