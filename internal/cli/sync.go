@@ -58,6 +58,7 @@ func runSync(ctx context.Context, env *Env, args []string) int {
 	all := fs.Bool("all", false, "with --conflicts: list resolved ones too")
 	resolve := fs.String("resolve", "", "id of a conflict to resolve (with --keep)")
 	keep := fs.String("keep", "", "local or remote (with --resolve)")
+	as := fs.String("as", "", "who syncs or resolves, for this database's audit log (default: the operating-system user)")
 	if code, done := parseFlags(fs, args); done {
 		return code
 	}
@@ -79,7 +80,7 @@ func runSync(ctx context.Context, env *Env, args []string) int {
 		return fail(ExitRows, "%s", store.RedactIn(err.Error(), *db))
 	}
 	defer st.Close()
-	ctx = service.WithActor(ctx, service.Actor{Name: "command line", ProjectID: domain.AllProjects, Role: domain.RoleAdmin})
+	ctx = service.WithActor(ctx, localActor(env, *as))
 	svc := service.New(st, nil)
 	if *conflicts {
 		return listSyncConflicts(ctx, env, svc, *project, *all, fail)

@@ -93,7 +93,7 @@ func runToken(ctx context.Context, env *Env, args []string) int {
 		return code
 	}
 	defer st.Close()
-	ctx = service.WithActor(ctx, service.Actor{Name: "command line", ProjectID: domain.AllProjects, Role: domain.RoleAdmin})
+	ctx = service.WithActor(ctx, localActor(env, ""))
 	svc := service.New(st, nil)
 	pid := domain.AllProjects
 	if *project != "" && *project != "all" {

@@ -136,3 +136,43 @@ func TestDemoTokenReplaced(t *testing.T) {
 		t.Errorf("demo project tokens %+v, want one admin %q", ts, DemoTokenName)
 	}
 }
+
+// Every command that writes to the database directly names its caller the
+// same way (localActor): a token made from the command line is audited under
+// the operating-system user, as an import is, not under a fixed label.
+func TestTokenAuditedUnderLocalUser(t *testing.T) {
+	db := filepath.Join(t.TempDir(), "t.db")
+	env := map[string]string{"CORVANE_DATABASE_URL": db, "USER": "geo7"}
+	runWithEnv(t, env, "migrate", "up")
+	ctx := context.Background()
+	st, err := store.Open(ctx, db)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer st.Close()
+	svc := service.New(st, nil)
+	sys := service.WithActor(ctx, service.System)
+	p, err := svc.CreateProject(sys, domain.Project{Name: "Zelvorra Reach"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if code, _, errs := runWithEnv(t, env, "token", "create", "--project", "Zelvorra Reach", "--role", "log", "--name", "rig 2"); code != ExitOK {
+		t.Fatalf("create: %d %q", code, errs)
+	}
+	al, err := svc.ListAudit(sys, p.ID, domain.Page{Limit: domain.MaxLimit})
+	if err != nil {
+		t.Fatal(err)
+	}
+	n := 0
+	for _, e := range al.Items {
+		if e.Entity == "token" {
+			n++
+			if e.ActorName != "geo7" || e.TokenID != 0 {
+				t.Errorf("audit entry %+v: want actor geo7 without a token", e)
+			}
+		}
+	}
+	if n == 0 {
+		t.Fatalf("no token entry in the audit log: %+v", al.Items)
+	}
+}
