@@ -490,12 +490,25 @@ type modelCache struct {
 	m  map[int64]cachedModel // by hole id
 }
 
-type cachedModel struct {
+// modelKey is everything a hole model is built from, as seen at one
+// moment: the project (its id and version: settings, corrections, output
+// reference), the model stamp (domain.Store.ModelStamp: holes, surveys,
+// survey sets, runs) and the output reference the request asked for (it may
+// differ from the project's, output_reference). Both caches (hole models
+// here and the kept rows, rowcache.go) are keyed by it, so an input added
+// to a model is added to both at once.
+type modelKey struct {
 	project, version, stamp int64
-	// output is the output reference the model was built for: a request
-	// may ask for another than the project's (output_reference).
-	output string
-	model  *holeModel
+	output                  string
+}
+
+func newModelKey(p domain.Project, stamp int64) modelKey {
+	return modelKey{project: p.ID, version: p.Version, stamp: stamp, output: p.OutputAzimuthRef}
+}
+
+type cachedModel struct {
+	key   modelKey
+	model *holeModel
 }
 
 // maxCachedModels bounds the cache; past it the cache starts afresh.
@@ -506,7 +519,7 @@ func newModelCache() *modelCache { return &modelCache{m: map[int64]cachedModel{}
 func (c *modelCache) get(holeID int64, p domain.Project, stamp int64) *holeModel {
 	c.mu.Lock()
 	defer c.mu.Unlock()
-	if e, ok := c.m[holeID]; ok && e.project == p.ID && e.version == p.Version && e.stamp == stamp && e.output == p.OutputAzimuthRef {
+	if e, ok := c.m[holeID]; ok && e.key == newModelKey(p, stamp) {
 		return e.model
 	}
 	return nil
@@ -518,7 +531,7 @@ func (c *modelCache) put(m *holeModel, p domain.Project, stamp int64) {
 	if len(c.m) >= maxCachedModels {
 		clear(c.m)
 	}
-	c.m[m.hole.ID] = cachedModel{project: p.ID, version: p.Version, stamp: stamp, output: p.OutputAzimuthRef, model: m}
+	c.m[m.hole.ID] = cachedModel{key: newModelKey(p, stamp), model: m}
 }
 
 // view returns the measurement with its hole name and derived values.

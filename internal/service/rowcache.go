@@ -56,24 +56,22 @@ func matches(f *domain.MeasurementFilter, r *storedRow) bool {
 	return true
 }
 
-// rowKey is what a project's kept rows were read at: the project's
-// version, its model stamp (the hole models the rows were oriented with),
-// its measurement stamp (the rows themselves) and the output reference
-// they were oriented in (a request may ask for another than the
-// project's, output_reference).
+// rowKey is what a project's kept rows were read at: the key of the hole
+// models they were oriented with (modelKey, shared with the model cache)
+// and the measurement stamp (the rows themselves).
 type rowKey struct {
-	project, version, model, measurements int64
-	output                                string
+	modelKey
+	measurements int64
 }
 
 // rowKey reads the key of p's rows now; read it before anything the rows
 // are built from, so that rows kept at a key are never older than it.
 func (s *Service) rowKey(ctx context.Context, p domain.Project) (rowKey, error) {
-	k := rowKey{project: p.ID, version: p.Version, output: p.OutputAzimuthRef}
-	var err error
-	if k.model, err = s.store.ModelStamp(ctx, p.ID); err != nil {
-		return k, err
+	stamp, err := s.store.ModelStamp(ctx, p.ID)
+	if err != nil {
+		return rowKey{}, err
 	}
+	k := rowKey{modelKey: newModelKey(p, stamp)}
 	k.measurements, err = s.store.MeasurementStamp(ctx, p.ID)
 	return k, err
 }
