@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"math"
 	"net/http"
+	"net/url"
 	"os"
 	"path/filepath"
 	"strings"
@@ -317,22 +318,70 @@ func TestGeotechParts(t *testing.T) {
 	if got := p.text(`#sl-modes tr[data-mode=planar] td:nth-child(2)`); got != fmt.Sprint(sl.Measurements.Planar.Count) {
 		t.Errorf("planar count %q, the route says %d", got, sl.Measurements.Planar.Count)
 	}
-	// Domains named under Domains travel with the tabs; the slope check of
-	// a domain of whole holes counts those holes only.
+	// Domains named under Domains travel with the tabs; the slope check of a
+	// domain shows what both slope routes called with that domain= say.
 	p.do("domains", chromedp.Navigate(fmt.Sprintf("%s/#/p/%d/nets?part=domains&sets=auto:4%s", s.URL, s.Project, domains)))
 	p.waitFor("domains compared", `document.querySelectorAll('#dm-tests tbody tr').length > 0`)
 	p.do("to the slope tab", chromedp.Click(chromedp.CSS(`#nets-parts a[data-part=slope]`)))
 	p.waitFor("slope with domains", `document.querySelector('#sl-domain') !== null && document.querySelector('#sl-modes') !== null`)
 	p.do("choose south", chromedp.SetValue(chromedp.CSS("#sl-domain"), "south"), chromedp.Click(chromedp.CSS(`#sl-form button[type=submit]`)))
 	p.waitFor("south checked", `location.hash.includes('in=south') && document.querySelector('#sl-over') !== null && document.querySelector('#sl-over').textContent.includes('domain south')`)
-	var south struct {
-		Measurements struct {
-			Poles int `json:"poles"`
-		} `json:"measurements"`
+	slopeOf := func(q string) slopeFigures {
+		var r slopeFigures
+		s.getJSON(t, fmt.Sprintf("/v1/projects/%d/slope-check?sets=auto:4&face=65/180&friction=30&lateral=20&%s", s.Project, q), &r)
+		return r
 	}
-	s.getJSON(t, fmt.Sprintf("/v1/projects/%d/slope-check?sets=auto:4&face=65/180&friction=30&lateral=20&hole=%s,%s", s.Project, holes[3].Name, holes[4].Name), &south)
-	if got := p.text(`#sl-modes tr[data-mode=planar] td:nth-child(4)`); got != fmt.Sprintf("%d poles", south.Measurements.Poles) {
-		t.Errorf("domain south: %q, the route says %d poles for its holes", got, south.Measurements.Poles)
+	south := "south=" + holes[3].Name + "," + holes[4].Name
+	comparePageSlope(t, p, "domain south", slopeOf("domain="+url.QueryEscape(south)))
+
+	// A domain with a depth range of its own in each hole: no hole-and-depth
+	// filter can say it, so the page must send it whole. The case is only a
+	// check if the ranges leave out poles the holes have.
+	mixed := fmt.Sprintf("mixed=%s:0..60,%s:40..400", holes[3].Name, holes[4].Name)
+	want := slopeOf("domain=" + url.QueryEscape(mixed))
+	if whole := slopeOf("hole=" + holes[3].Name + "," + holes[4].Name); whole.Measurements.Poles == want.Measurements.Poles {
+		t.Fatalf("domain %s keeps all %d poles of its holes; the case cannot tell a domain from hole filters", mixed, whole.Measurements.Poles)
+	}
+	p.do("open mixed", chromedp.Navigate(fmt.Sprintf("%s/#/p/%d/nets?part=slope&face_dip=65&face_dir=180&friction=30&lateral=20&check=planar&sets=auto:4&in=mixed%s&domain=%s", s.URL, s.Project, domains, url.QueryEscape(mixed))))
+	p.waitFor("mixed checked", `document.querySelector('#sl-over') !== null && document.querySelector('#sl-over').textContent.includes('domain mixed') && document.querySelector('#sl-net svg.served-net') !== null`)
+	if n := eval[int](p, `document.querySelectorAll('#sl-domain option:disabled').length`); n != 0 {
+		t.Errorf("%d domains greyed out in the slope check", n)
+	}
+	comparePageSlope(t, p, "domain mixed", want)
+}
+
+// slopeFigures is the part of the slope-check route's report the page's
+// figures are compared with.
+type slopeFigures struct {
+	Measurements struct {
+		Poles  int `json:"poles"`
+		Planar struct {
+			Count int `json:"count"`
+		} `json:"planar"`
+	} `json:"measurements"`
+	Sets []struct {
+		Name  string `json:"name"`
+		Count int    `json:"count"`
+	} `json:"sets"`
+}
+
+// comparePageSlope checks the slope check on the page against the route's
+// report: the poles, the planar count and each set's count.
+func comparePageSlope(t *testing.T, p *page, what string, want slopeFigures) {
+	t.Helper()
+	if got := p.text(`#sl-modes tr[data-mode=planar] td:nth-child(4)`); got != fmt.Sprintf("%d poles", want.Measurements.Poles) {
+		t.Errorf("%s: %q, the route says %d poles", what, got, want.Measurements.Poles)
+	}
+	if got := p.text(`#sl-modes tr[data-mode=planar] td:nth-child(2)`); got != fmt.Sprint(want.Measurements.Planar.Count) {
+		t.Errorf("%s: planar count %q, the route says %d", what, got, want.Measurements.Planar.Count)
+	}
+	if n := eval[int](p, `document.querySelectorAll('#sl-sets-table tbody tr').length`); n != len(want.Sets) {
+		t.Errorf("%s: %d sets on the page, the route has %d", what, n, len(want.Sets))
+	}
+	for _, st := range want.Sets {
+		if got := p.text(fmt.Sprintf(`#sl-sets-table tr[data-set=%q] td:nth-child(2)`, st.Name)); got != fmt.Sprint(st.Count) {
+			t.Errorf("%s: set %s n=%q, the route says %d", what, st.Name, got, st.Count)
+		}
 	}
 }
 

@@ -29,18 +29,6 @@ export function parseDomain(def) {
   return parts.length ? { name: m[1].trim(), parts, rock: m[2].includes(";") } : null;
 }
 
-// netFilterOf returns the selection that the slope-check routes (which
-// take holes and one depth range, not a domain) can run a domain on: its
-// holes, and its depth range when every hole shares one; null for a domain
-// with different ranges per hole, or by rock type.
-export function netFilterOf(d) {
-  if (!d || d.rock) return null;
-  const ranges = new Set(d.parts.map((x) => `${x.from}..${x.to}`));
-  if (ranges.size !== 1) return null;
-  const r = d.parts[0];
-  return { hole: d.parts.map((x) => x.hole), min_depth: r.from, max_depth: r.to };
-}
-
 // PARTS of the geotechnical half, in the order of the tabs.
 export const PARTS = [
   { code: "intervals", label: "Core intervals" },
@@ -421,11 +409,12 @@ async function slopePart(ctx) {
   };
   const num = (id, value, label, attrs = {}) => [h("label", { for: id }, label), h("input", { id, value, inputmode: "decimal", size: 5, ...attrs })];
   const checkSel = h("select", { id: "sl-check" }, CHECKS.map((c) => h("option", { value: c.code, selected: c.code === v.check }, c.label)));
-  // A domain named under Domains narrows the check to its holes and depth
-  // range, when the route can express it (see netFilterOf).
-  const doms = sel.domain.map(parseDomain).filter(Boolean);
+  // A domain named under Domains is sent to the slope routes as it is
+  // (domain=): the sets are formed on every row and only the domain's
+  // planes are checked, as the CLI's --domain does.
+  const doms = sel.domain.map((def) => ({ def, d: parseDomain(def) })).filter((x) => x.d).map((x) => ({ ...x.d, def: x.def }));
   const inDomain = doms.find((d) => d.name === params.get("in")) || null;
-  const domSel = h("select", { id: "sl-domain" }, h("option", { value: "" }, "all holes"), doms.map((d) => h("option", { value: d.name, selected: d === inDomain, disabled: !netFilterOf(d) }, netFilterOf(d) ? d.name : `${d.name} (per-hole ranges: not with this check)`)));
+  const domSel = h("select", { id: "sl-domain" }, h("option", { value: "" }, "all holes"), doms.map((d) => h("option", { value: d.name, selected: d === inDomain }, d.name)));
   const setsSel = setsSelect("sl-sets", sel.sets);
   const msg = h("span", { class: "field-msg", role: "alert", id: "sl-msg" });
   const form = h("form", { class: "card filters", id: "sl-form", novalidate: true },
@@ -464,8 +453,7 @@ async function slopePart(ctx) {
     say("SVG downloaded.", "ok");
   });
 
-  const df = inDomain ? netFilterOf(inDomain) : null;
-  const q = query({ ...(df || { hole: sel.hole }), sets: sel.sets, face: `${v.dip}/${v.dir}`, friction: v.friction, lateral: v.lateral });
+  const q = query({ ...(inDomain ? { domain: inDomain.def } : { hole: sel.hole }), sets: sel.sets, face: `${v.dip}/${v.dir}`, friction: v.friction, lateral: v.lateral });
   const [rep, net] = await Promise.all([
     get(`/v1/projects/${p.id}/slope-check${q}`).catch((e) => ({ error: e })),
     request("GET", `/v1/projects/${p.id}/slope-check/${v.check}${q}`, { accept: "image/svg+xml" }).then((r) => r.data).catch((e) => ({ error: e })),
@@ -502,7 +490,7 @@ async function slopePart(ctx) {
           return h("tr", { "data-mode": k }, h("th", { scope: "row" }, word), h("td", { class: "num" }, c.count ?? "\u2013"), h("td", { class: "num" }, c.percent == null ? "\u2013" : `${fmt(c.percent, 1)}%`),
             h("td", {}, of === "poles" ? `${mm.poles ?? 0} poles` : `${mm.intersections ?? 0} intersections`));
         })))),
-      h("p", { class: "help", id: "sl-over" }, `Face ${rep.face ? `${fmt(rep.face.dip, 0)} \u2192 ${az(rep.face.dip_direction)}` : ""}, friction ${fmt(rep.friction_angle, 0)}\u00b0, lateral limit \u00b1${fmt(rep.lateral_limit, 0)}\u00b0; ${df ? `domain ${inDomain.name} (${rep.input})` : rep.input}.` +
+      h("p", { class: "help", id: "sl-over" }, `Face ${rep.face ? `${fmt(rep.face.dip, 0)} \u2192 ${az(rep.face.dip_direction)}` : ""}, friction ${fmt(rep.friction_angle, 0)}\u00b0, lateral limit \u00b1${fmt(rep.lateral_limit, 0)}\u00b0; ${inDomain ? `domain ${inDomain.name} (${rep.input})` : rep.input}.` +
         (rep.unoriented_left_out ? ` ${rep.unoriented_left_out} unoriented measurements left out.` : ""))),
     h("section", { class: "card" }, h("h2", {}, "Per set"),
       h("div", { class: "scroll" }, h("table", { class: "data compact wrap-head", id: "sl-sets-table" },
