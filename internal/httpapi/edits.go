@@ -21,6 +21,19 @@ func etag(version int64) string { return `"` + strconv.FormatInt(version, 10) + 
 // setETag sets the ETag header from a row version.
 func setETag(c *gin.Context, version int64) { c.Header("ETag", etag(version)) }
 
+// respondVersioned is [respond] for a stored row: on success it sets the ETag
+// from version before the body. Callers pass v.Version, which Go evaluates
+// before err is looked at, so v must be a value, not a pointer (the service
+// returns rows by value).
+func respondVersioned(c *gin.Context, status int, v any, version int64, err error) {
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	setETag(c, version)
+	c.JSON(status, v)
+}
+
 // ifMatch returns the row version the caller last saw, from If-Match. A
 // missing header is 428; a header that is not one of our ETags is 412, since
 // it cannot match the current version. A weak tag (W/"3") is taken as strong:

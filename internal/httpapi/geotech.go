@@ -70,11 +70,7 @@ func (s *Server) intervalsReport(c *gin.Context) {
 		return
 	}
 	rep, err := s.opt.Service.IntervalsReport(c.Request.Context(), pid, mq.Holes)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	c.JSON(http.StatusOK, rep)
+	respond(c, http.StatusOK, rep, err)
 }
 
 func (s *Server) spacingReport(c *gin.Context) {
@@ -98,11 +94,7 @@ func (s *Server) spacingReport(c *gin.Context) {
 		return
 	}
 	rep, err := s.opt.Service.Spacing(c.Request.Context(), pid, q)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	c.JSON(http.StatusOK, rep)
+	respond(c, http.StatusOK, rep, err)
 }
 
 // projectGeo reads the project and the geotechnical query; false when it
@@ -127,11 +119,7 @@ func (s *Server) domainsReport(c *gin.Context) {
 		return
 	}
 	rep, err := s.opt.Service.Domains(c.Request.Context(), pid, q)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	c.JSON(http.StatusOK, rep)
+	respond(c, http.StatusOK, rep, err)
 }
 
 func (s *Server) slopeCheck(c *gin.Context) {
@@ -146,11 +134,7 @@ func (s *Server) slopeCheck(c *gin.Context) {
 		return
 	}
 	rep, err := s.opt.Service.SlopeCheck(c.Request.Context(), pid, q)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	c.JSON(http.StatusOK, rep)
+	respond(c, http.StatusOK, rep, err)
 }
 
 func (s *Server) slopeNet(c *gin.Context) {

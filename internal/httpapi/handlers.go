@@ -26,11 +26,7 @@ func (s *Server) convert(c *gin.Context) {
 		req.Conventions.OutputAzimuthRef = o
 	}
 	resp, err := s.opt.Service.Convert(c.Request.Context(), req)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	c.JSON(http.StatusOK, resp)
+	respond(c, http.StatusOK, resp, err)
 }
 
 // ---- projects
@@ -72,12 +68,7 @@ func (s *Server) getProject(c *gin.Context) {
 		return
 	}
 	p, err := s.opt.Service.GetProject(c.Request.Context(), id)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	setETag(c, p.Version)
-	c.JSON(http.StatusOK, p)
+	respondVersioned(c, http.StatusOK, p, p.Version, err)
 }
 
 func (s *Server) updateProject(c *gin.Context) {
@@ -97,12 +88,7 @@ func (s *Server) updateProject(c *gin.Context) {
 		return
 	}
 	p, err := s.opt.Service.UpdateProject(c.Request.Context(), id, v, in)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	setETag(c, p.Version)
-	c.JSON(http.StatusOK, p)
+	respondVersioned(c, http.StatusOK, p, p.Version, err)
 }
 
 func (s *Server) deleteProject(c *gin.Context) {
@@ -289,12 +275,7 @@ func (s *Server) getHole(c *gin.Context) {
 		return
 	}
 	h, err := s.opt.Service.GetHoleView(c.Request.Context(), pid, hid)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	setETag(c, h.Version)
-	c.JSON(http.StatusOK, h)
+	respondVersioned(c, http.StatusOK, h, h.Version, err)
 }
 
 func (s *Server) updateHole(c *gin.Context) {
@@ -314,12 +295,7 @@ func (s *Server) updateHole(c *gin.Context) {
 		return
 	}
 	h, err := s.opt.Service.UpdateHole(c.Request.Context(), pid, hid, v, in)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	setETag(c, h.Version)
-	c.JSON(http.StatusOK, h)
+	respondVersioned(c, http.StatusOK, h, h.Version, err)
 }
 
 func (s *Server) deleteHole(c *gin.Context) {
@@ -340,12 +316,7 @@ func (s *Server) getSurvey(c *gin.Context) {
 		return
 	}
 	ss, err := s.opt.Service.GetSurvey(c.Request.Context(), pid, hid)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	setETag(c, ss.Version)
-	c.JSON(http.StatusOK, ss)
+	respondVersioned(c, http.StatusOK, ss, ss.Version, err)
 }
 
 // putVersion is the version a replace-whole PUT expects: 0 with
@@ -376,12 +347,7 @@ func (s *Server) putSurvey(c *gin.Context) {
 		return
 	}
 	ss, err := s.opt.Service.PutSurvey(c.Request.Context(), pid, hid, v, in)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	setETag(c, ss.Version)
-	c.JSON(http.StatusOK, ss)
+	respondVersioned(c, http.StatusOK, ss, ss.Version, err)
 }
 
 // listKindSets lists the hole's survey sets by kind and the set in use.
@@ -392,11 +358,7 @@ func (s *Server) listKindSets(c *gin.Context) {
 		return
 	}
 	ks, err := s.opt.Service.ListKindSets(c.Request.Context(), pid, hid)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	c.JSON(http.StatusOK, ks)
+	respond(c, http.StatusOK, ks, err)
 }
 
 // putKindSet replaces the hole's survey set of a kind, as putSurvey does
@@ -418,12 +380,7 @@ func (s *Server) putKindSet(c *gin.Context) {
 		return
 	}
 	k, err := s.opt.Service.PutKindSet(c.Request.Context(), pid, hid, c.Param("kind"), v, in)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	setETag(c, k.Version)
-	c.JSON(http.StatusOK, k)
+	respondVersioned(c, http.StatusOK, k, k.Version, err)
 }
 
 func (s *Server) deleteKindSet(c *gin.Context) {
@@ -491,12 +448,7 @@ func (s *Server) getRun(c *gin.Context) {
 		return
 	}
 	r, err := s.opt.Service.GetRun(c.Request.Context(), pid, id)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	setETag(c, r.Version)
-	c.JSON(http.StatusOK, r)
+	respondVersioned(c, http.StatusOK, r, r.Version, err)
 }
 
 func (s *Server) updateRun(c *gin.Context) {
@@ -516,12 +468,7 @@ func (s *Server) updateRun(c *gin.Context) {
 		return
 	}
 	r, err := s.opt.Service.UpdateRun(c.Request.Context(), pid, id, v, in)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	setETag(c, r.Version)
-	c.JSON(http.StatusOK, r)
+	respondVersioned(c, http.StatusOK, r, r.Version, err)
 }
 
 func (s *Server) deleteRun(c *gin.Context) {
@@ -624,12 +571,7 @@ func (s *Server) getMeasurement(c *gin.Context) {
 		return
 	}
 	v, err := s.opt.Service.GetMeasurement(c.Request.Context(), pid, id)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	setETag(c, v.Version)
-	c.JSON(http.StatusOK, v)
+	respondVersioned(c, http.StatusOK, v, v.Version, err)
 }
 
 func (s *Server) updateMeasurement(c *gin.Context) {
@@ -649,12 +591,7 @@ func (s *Server) updateMeasurement(c *gin.Context) {
 		return
 	}
 	v, err := s.opt.Service.UpdateMeasurement(c.Request.Context(), pid, id, ver, m)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	setETag(c, v.Version)
-	c.JSON(http.StatusOK, v)
+	respondVersioned(c, http.StatusOK, v, v.Version, err)
 }
 
 func (s *Server) deleteMeasurement(c *gin.Context) {
@@ -790,11 +727,7 @@ func (s *Server) statistics(c *gin.Context) {
 	}
 	q := service.StatsQuery{MeasurementQuery: mq, SetQuery: sq, Of: c.Query("of"), Weighting: c.Query("weighting"), Uncertainty: c.Query("uncertainty"), SetUncertainty: c.Query("set_uncertainty")}
 	res, err := s.opt.Service.Statistics(c.Request.Context(), pid, q)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	c.JSON(http.StatusOK, res)
+	respond(c, http.StatusOK, res, err)
 }
 
 // net serves the net of the measurements selected, as SVG; the options are
@@ -948,11 +881,7 @@ func (s *Server) listIntervals(c *gin.Context) {
 		return
 	}
 	ivs, err := s.opt.Service.CoreIntervals(c.Request.Context(), pid, hid)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	c.JSON(http.StatusOK, gin.H{"items": ivs})
+	respond(c, http.StatusOK, gin.H{"items": ivs}, err)
 }
 
 // intervalsInput is the body that replaces a hole's core intervals:
@@ -982,11 +911,7 @@ func (s *Server) putIntervals(c *gin.Context) {
 		in.Intervals = in.Items
 	}
 	ivs, err := s.opt.Service.PutCoreIntervals(c.Request.Context(), pid, hid, in.Intervals)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	c.JSON(http.StatusOK, gin.H{"items": ivs})
+	respond(c, http.StatusOK, gin.H{"items": ivs}, err)
 }
 
 func (s *Server) exportIntervals(c *gin.Context) {

@@ -29,11 +29,7 @@ func (s *Server) holePath(c *gin.Context) {
 		step = x
 	}
 	pts, corr, err := s.opt.Service.HolePath(c.Request.Context(), pid, hid, step, c.Query("output_reference"))
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	c.JSON(http.StatusOK, gin.H{"items": pts, "corrections": corr})
+	respond(c, http.StatusOK, gin.H{"items": pts, "corrections": corr}, err)
 }
 
 // previewHole orients unsaved angles against the stored hole.
@@ -49,9 +45,5 @@ func (s *Server) previewHole(c *gin.Context) {
 		return
 	}
 	rs, err := s.opt.Service.Preview(c.Request.Context(), pid, hid, req)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	c.JSON(http.StatusOK, gin.H{"results": rs})
+	respond(c, http.StatusOK, gin.H{"results": rs}, err)
 }

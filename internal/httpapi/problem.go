@@ -160,3 +160,13 @@ func fail(c *gin.Context, err error) {
 	_, _ = c.Writer.Write(body)
 	c.Abort()
 }
+
+// respond ends a handler: the problem for err when there is one, else v as
+// JSON with status.
+func respond(c *gin.Context, status int, v any, err error) {
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	c.JSON(status, v)
+}

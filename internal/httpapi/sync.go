@@ -25,11 +25,7 @@ func (s *Server) syncChanges(c *gin.Context) {
 	}
 	page, err := s.opt.Service.SyncChanges(c.Request.Context(), pid, service.ChangesQuery{After: pg.After, Holes: splitList(c.QueryArray("holes")),
 		Limit: pg.Limit, Replica: c.Query("replica")})
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	c.JSON(http.StatusOK, page)
+	respond(c, http.StatusOK, page, err)
 }
 
 func (s *Server) syncPush(c *gin.Context) {
@@ -44,11 +40,7 @@ func (s *Server) syncPush(c *gin.Context) {
 		return
 	}
 	resp, err := s.opt.Service.SyncPush(c.Request.Context(), pid, req)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	c.JSON(http.StatusOK, resp)
+	respond(c, http.StatusOK, resp, err)
 }
 
 func (s *Server) syncRecord(c *gin.Context) {
@@ -58,11 +50,7 @@ func (s *Server) syncRecord(c *gin.Context) {
 		return
 	}
 	rec, err := s.opt.Service.SyncRecordOf(c.Request.Context(), pid, c.Param("table"), c.Param("gid"))
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	c.JSON(http.StatusOK, rec)
+	respond(c, http.StatusOK, rec, err)
 }
 
 func (s *Server) listConflicts(c *gin.Context) {
@@ -72,11 +60,7 @@ func (s *Server) listConflicts(c *gin.Context) {
 		return
 	}
 	cs, err := s.opt.Service.ListConflicts(c.Request.Context(), pid, c.Query("status"))
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	c.JSON(http.StatusOK, listBody[service.ConflictView]{Items: cs})
+	respond(c, http.StatusOK, listBody[service.ConflictView]{Items: cs}, err)
 }
 
 func (s *Server) getConflict(c *gin.Context) {
@@ -86,11 +70,7 @@ func (s *Server) getConflict(c *gin.Context) {
 		return
 	}
 	v, err := s.opt.Service.GetConflict(c.Request.Context(), pid, c.Param("conflict"))
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	c.JSON(http.StatusOK, v)
+	respond(c, http.StatusOK, v, err)
 }
 
 // resolveBody is the choice of a person resolving a conflict.
@@ -110,9 +90,5 @@ func (s *Server) resolveConflict(c *gin.Context) {
 		return
 	}
 	v, err := s.opt.Service.ResolveConflict(c.Request.Context(), pid, c.Param("conflict"), body.Keep)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	c.JSON(http.StatusOK, v)
+	respond(c, http.StatusOK, v, err)
 }
