@@ -3,6 +3,7 @@ package service_test
 import (
 	"context"
 	"errors"
+	"fmt"
 	"strings"
 	"testing"
 
@@ -64,5 +65,72 @@ func checkImportDuplicates(t *testing.T, s *service.Service, ctx context.Context
 	}
 	if _, err := imp(again, "maybe", false); !domain.IsKind(err, domain.Invalid) {
 		t.Errorf("duplicates=maybe: %v, want an Invalid error", err)
+	}
+}
+
+// TestImportDuplicatesAcrossBatches: a file of several write batches, two
+// holes taking turns, with rows repeating stored rows in its first and last
+// batch (the second after the hole was read by depth twice, so read whole),
+// a row repeating an earlier row two batches back, and a bad row just after
+// a duplicate: every duplicate is found, the problems are listed in line
+// order, and skip leaves out exactly the duplicates.
+func TestImportDuplicatesAcrossBatches(t *testing.T) {
+	s, ctx := newService(t)
+	p := must(s.CreateProject(ctx, domain.Project{Name: "dups-batches"}))
+	putImportTypes(s, ctx, p.ID)
+	must(doImport(t, s, ctx, p.ID, "collars", collarsCSV, false, ""))
+	var stored strings.Builder
+	stored.WriteString("hole_id,depth,alpha,beta,type\n")
+	for d := 0.5; d <= 100; d += 0.5 {
+		fmt.Fprintf(&stored, "ZR001,%.1f,30,0,JN\n", d)
+	}
+	must(doImport(t, s, ctx, p.ID, "measurements", stored.String(), false, ""))
+
+	const rows = 16000 // more than three write batches of the import
+	file := func(badType bool) string {
+		lines := make([]string, rows)
+		for i := range lines {
+			hole := []string{"ZR001", "ZR002"}[i%2]
+			lines[i] = fmt.Sprintf("%s,%.2f,%d,%d,BD", hole, float64(i/2)*0.01, 10+i%70, (i*7)%360)
+		}
+		lines[100] = "ZR001,10,30,0,JN"   // stored; line 102
+		lines[12000] = "ZR001,95,30,0,JN" // stored; line 12002
+		lines[7000] = lines[5]            // as line 7; line 7002
+		if badType {
+			lines[102] = "ZR002,3,40,10,XX" // line 104
+		}
+		return "hole_id,depth,alpha,beta,type\n" + strings.Join(lines, "\n") + "\n"
+	}
+	imp := func(body, mode string) (service.ImportResult, error) {
+		return s.Import(ctx, p.ID, service.ImportRequest{Kind: "measurements", Body: strings.NewReader(body), Duplicates: mode})
+	}
+
+	_, err := imp(file(true), "")
+	var e *domain.Error
+	if !errors.As(err, &e) || len(e.Problems) != 3 {
+		t.Fatalf("refused import: %v, want three problems", err)
+	}
+	want := []struct {
+		line int
+		msg  string
+	}{
+		{102, "2 rows: " + domain.DuplicateStoredMsg + " (lines 102, 12002)"},
+		{104, `type "XX" is not in`},
+		{7002, "as line 7;"},
+	}
+	for i, w := range want {
+		if pr := e.Problems[i]; pr.Loc.Line != w.line || !strings.Contains(pr.Msg, w.msg) {
+			t.Errorf("problem %d: line %d %q, want line %d containing %q", i, pr.Loc.Line, pr.Msg, w.line, w.msg)
+		}
+	}
+	if n := must(s.CountMeasurements(ctx, p.ID, service.MeasurementQuery{})); n != 200 {
+		t.Fatalf("%d rows stored after a refused import, want the 200 stored before", n)
+	}
+	res := must(imp(file(false), domain.DuplicatesSkip))
+	if res.Duplicates != 3 || res.Skipped != 3 || res.Created != rows-3 {
+		t.Errorf("skip: %+v; want 3 duplicates skipped, %d created", res, rows-3)
+	}
+	if n := must(s.CountMeasurements(ctx, p.ID, service.MeasurementQuery{})); n != 200+rows-3 {
+		t.Errorf("%d rows stored, want %d", n, 200+rows-3)
 	}
 }

@@ -1,6 +1,7 @@
 package service
 
 import (
+	"cmp"
 	"context"
 	"crypto/sha256"
 	"encoding/hex"
@@ -10,6 +11,7 @@ import (
 	"hash"
 	"io"
 	"math"
+	"slices"
 	"strings"
 	"sync"
 	"time"
@@ -247,6 +249,11 @@ type problems struct {
 	file string
 	pl   domain.ProblemList
 	n    int
+	// holding keeps problems in held until release: the measurement import
+	// checks duplicates of stored rows a batch at a time, after the rows'
+	// other checks, yet lists every problem in line order.
+	holding bool
+	held    []*domain.Error
 }
 
 func (ps *problems) add(line int, column, format string, args ...any) {
@@ -257,7 +264,23 @@ func (ps *problems) add(line int, column, format string, args ...any) {
 
 func (ps *problems) addErr(e *domain.Error) {
 	ps.n++
+	if ps.holding {
+		ps.held = append(ps.held, e)
+		return
+	}
 	ps.pl.Add(e)
+}
+
+// release lists the problems held back since holding was set, in the order
+// of their lines (problems of one line in the order they were found), as
+// though they had been added line by line.
+func (ps *problems) release() {
+	slices.SortStableFunc(ps.held, func(a, b *domain.Error) int { return cmp.Compare(a.Loc.Line, b.Loc.Line) })
+	for _, e := range ps.held {
+		ps.pl.Add(e)
+	}
+	clear(ps.held)
+	ps.held = ps.held[:0]
 }
 
 // err returns the all-or-nothing error, or nil when there were no problems.
@@ -563,9 +586,46 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 	}
 	holes := newHoleNames(st, p.ID)
 	seen := newDuplicates(st, p.ID)
-	ps := &problems{file: res.File}
+	ps := &problems{file: res.File, holding: true}
 	now := s.now()
 	batch := make([]domain.Measurement, 0, importBatch)
+	// Rows that passed their own checks wait in pending until a batch of
+	// them is checked against the stored rows (one read per hole and
+	// batch, of the depths the batch covers); then the duplicate rule
+	// decides, and the rows kept go into the batch.
+	pending := make([]pendingRow, 0, importBatch)
+	decide := func() error {
+		stored, err := seen.storedIn(ctx, pending)
+		if err != nil {
+			return err
+		}
+		for i, pr := range pending {
+			if stored[i] || pr.earlier > 0 {
+				res.Duplicates++
+				switch {
+				case dups == domain.DuplicatesSkip:
+					res.Skipped++
+					continue
+				case dups == domain.DuplicatesKeep:
+				case stored[i]:
+					ps.add(pr.line, "", "%s", domain.DuplicateStoredMsg)
+					continue
+				default:
+					ps.add(pr.line, "", "same hole, depth, type, alpha, beta and gamma as line %d; %s", pr.earlier, domain.DuplicatesHint)
+					continue
+				}
+			}
+			if res.DryRun {
+				res.Created++ // reset to 0 below if any row has a problem
+				continue
+			}
+			batch = append(batch, pr.m)
+		}
+		clear(pending)
+		pending = pending[:0]
+		ps.release()
+		return nil
+	}
 	flush := func() error {
 		if len(batch) == 0 || ps.n > 0 || res.DryRun {
 			batch = batch[:0]
@@ -661,37 +721,18 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 			ps.add(r.Line, csvio.ColDepth, "depth %v is past the final depth %v of hole %s", m.Depth, h.FinalDepth, h.Name)
 			continue
 		}
-		stored, earlier, err := seen.check(ctx, m, r.Line)
-		if err != nil {
-			return err
-		}
-		if stored || earlier > 0 {
-			res.Duplicates++
-			switch {
-			case dups == domain.DuplicatesSkip:
-				res.Skipped++
-				continue
-			case dups == domain.DuplicatesKeep:
-			case stored:
-				ps.add(r.Line, "", "%s", domain.DuplicateStoredMsg)
-				continue
-			default:
-				ps.add(r.Line, "", "same hole, depth, type, alpha, beta and gamma as line %d; %s", earlier, domain.DuplicatesHint)
-				continue
+		pending = append(pending, pendingRow{m: m, line: r.Line, earlier: seen.inFile(m, r.Line)})
+		if len(pending) == importBatch {
+			if err := decide(); err != nil {
+				return err
 			}
-		}
-		if ps.n > 0 || res.DryRun {
-			if res.DryRun && ps.n == 0 {
-				res.Created++
-			}
-			continue
-		}
-		batch = append(batch, m)
-		if len(batch) == importBatch {
 			if err := flush(); err != nil {
 				return err
 			}
 		}
+	}
+	if err := decide(); err != nil {
+		return err
 	}
 	if staged != nil {
 		// The last rows go in with the import's last transaction.
@@ -871,46 +912,103 @@ func orDefault(s, def string) string {
 }
 
 // duplicates finds, for an import, the measurements that repeat a stored row
-// or an earlier row of the file (domain.KeyOf). The stored rows of a hole
-// are read once, when the file first names the hole.
+// or an earlier row of the file (domain.KeyOf). The stored rows are read a
+// batch of the file's rows at a time, per hole only at the depths the batch
+// covers (the index on hole and depth), so an import of a few rows into a
+// long hole reads a few rows; a hole asked about more than twice has all
+// its stored rows read once instead.
 type duplicates struct {
 	st        domain.Store
 	projectID int64
-	stored    map[int64]map[domain.MeasurementKey]bool // by hole id
+	asked     map[int64]int                            // reads by depth, by hole id
+	whole     map[int64]map[domain.MeasurementKey]bool // every stored key, by hole id
 	file      map[domain.MeasurementKey]int            // line of the first row with the key
 }
 
-func newDuplicates(st domain.Store, projectID int64) *duplicates {
-	return &duplicates{st: st, projectID: projectID, stored: map[int64]map[domain.MeasurementKey]bool{}, file: map[domain.MeasurementKey]int{}}
+// pendingRow is a row of a measurement import waiting for the duplicate
+// rule: earlier is the line of the earlier row of the file it repeats (0
+// when none).
+type pendingRow struct {
+	m       domain.Measurement
+	line    int
+	earlier int
 }
 
-// check reports whether m repeats a stored measurement, and the line of the
-// earlier row of the file it repeats (0 when none); the first row with a
-// key is remembered at line.
-func (d *duplicates) check(ctx context.Context, m domain.Measurement, line int) (stored bool, earlier int, err error) {
-	keys, ok := d.stored[m.HoleID]
-	if !ok {
-		keys = map[domain.MeasurementKey]bool{}
-		pg := domain.Page{Limit: domain.MaxLimit}
-		for {
-			ms, err := d.st.ListMeasurements(ctx, domain.MeasurementFilter{ProjectID: d.projectID, HoleIDs: []int64{m.HoleID}}, pg)
-			if err != nil {
-				return false, 0, err
-			}
-			for _, sm := range ms {
-				keys[domain.KeyOf(sm)] = true
-			}
-			if len(ms) < pg.Limit {
-				break
-			}
-			pg.After = ms[len(ms)-1].ID
-		}
-		d.stored[m.HoleID] = keys
-	}
+// wholeAfter is how many reads by depth a hole gets before all its stored
+// rows are read at once.
+const wholeAfter = 2
+
+func newDuplicates(st domain.Store, projectID int64) *duplicates {
+	return &duplicates{st: st, projectID: projectID, asked: map[int64]int{},
+		whole: map[int64]map[domain.MeasurementKey]bool{}, file: map[domain.MeasurementKey]int{}}
+}
+
+// inFile returns the line of the earlier row of the file m repeats (0 when
+// none), remembering the first row with a key at line.
+func (d *duplicates) inFile(m domain.Measurement, line int) int {
 	k := domain.KeyOf(m)
-	earlier = d.file[k]
+	earlier := d.file[k]
 	if earlier == 0 {
 		d.file[k] = line
 	}
-	return keys[k], earlier, nil
+	return earlier
+}
+
+// storedIn reports, for each row, whether it repeats a stored measurement.
+func (d *duplicates) storedIn(ctx context.Context, rows []pendingRow) ([]bool, error) {
+	out := make([]bool, len(rows))
+	type span struct{ lo, hi float64 }
+	spans := map[int64]*span{}
+	for _, r := range rows {
+		if sp := spans[r.m.HoleID]; sp != nil {
+			sp.lo, sp.hi = min(sp.lo, r.m.Depth), max(sp.hi, r.m.Depth)
+		} else {
+			spans[r.m.HoleID] = &span{r.m.Depth, r.m.Depth}
+		}
+	}
+	keys := map[int64]map[domain.MeasurementKey]bool{}
+	for hole, sp := range spans {
+		if k, ok := d.whole[hole]; ok {
+			keys[hole] = k
+			continue
+		}
+		f := domain.MeasurementFilter{ProjectID: d.projectID, HoleIDs: []int64{hole}}
+		if d.asked[hole] < wholeAfter {
+			d.asked[hole]++
+			f.MinDepth, f.MaxDepth = &sp.lo, &sp.hi
+		}
+		k, err := d.read(ctx, f)
+		if err != nil {
+			return nil, err
+		}
+		if f.MinDepth == nil {
+			d.whole[hole] = k
+		}
+		keys[hole] = k
+	}
+	for i, r := range rows {
+		out[i] = keys[r.m.HoleID][domain.KeyOf(r.m)]
+	}
+	return out, nil
+}
+
+// read returns the keys of the stored measurements that pass f.
+func (d *duplicates) read(ctx context.Context, f domain.MeasurementFilter) (map[domain.MeasurementKey]bool, error) {
+	keys := map[domain.MeasurementKey]bool{}
+	pg := domain.Page{Limit: domain.MaxLimit}
+	after := 0.0
+	for {
+		ms, err := d.st.ListMeasurementsByDepth(ctx, f, after, pg)
+		if err != nil {
+			return nil, err
+		}
+		for _, sm := range ms {
+			keys[domain.KeyOf(sm)] = true
+		}
+		if len(ms) < pg.Limit {
+			return keys, nil
+		}
+		last := ms[len(ms)-1]
+		after, pg.After = last.Depth, last.ID
+	}
 }
