@@ -9,6 +9,7 @@ import (
 	"log/slog"
 	"net"
 	"net/http"
+	"net/http/pprof"
 	"strings"
 	"time"
 
@@ -129,6 +130,13 @@ func serve(ctx context.Context, env *Env, cfg config.Config, log *slog.Logger) e
 		return fmt.Errorf("listening on %s: %w", cfg.Addr, err)
 	}
 	defer ln.Close()
+	if cfg.ProfileAddr != "" {
+		stop, err := serveProfiles(cfg.ProfileAddr, log)
+		if err != nil {
+			return err
+		}
+		defer stop()
+	}
 	// Applies pending migrations first; on PostgreSQL under migrate's
 	// advisory lock, so replicas starting together take turns. A schema
 	// newer than this binary stops here with one sentence saying so.
@@ -172,6 +180,27 @@ func serve(ctx context.Context, env *Env, cfg config.Config, log *slog.Logger) e
 			fmt.Fprintln(env.Stdout, demoLine)
 		}
 	})
+}
+
+// serveProfiles serves Go's runtime profiles (net/http/pprof) on a
+// listener of its own at addr, apart from the API and its tokens, so that a
+// server can be profiled where people wait: e.g. under the load generator,
+// go tool pprof http://ADDR/debug/pprof/profile?seconds=10. stop closes it.
+func serveProfiles(addr string, log *slog.Logger) (stop func(), err error) {
+	ln, err := net.Listen("tcp", addr)
+	if err != nil {
+		return nil, fmt.Errorf("listening on %s (profile-addr): %w", addr, err)
+	}
+	mux := http.NewServeMux()
+	mux.HandleFunc("/debug/pprof/", pprof.Index)
+	mux.HandleFunc("/debug/pprof/cmdline", pprof.Cmdline)
+	mux.HandleFunc("/debug/pprof/profile", pprof.Profile)
+	mux.HandleFunc("/debug/pprof/symbol", pprof.Symbol)
+	mux.HandleFunc("/debug/pprof/trace", pprof.Trace)
+	srv := &http.Server{Handler: mux, ReadHeaderTimeout: 10 * time.Second}
+	go func() { _ = srv.Serve(ln) }()
+	log.Info("serving runtime profiles", "url", "http://"+ln.Addr().String()+"/debug/pprof/")
+	return func() { _ = srv.Close() }, nil
 }
 
 // firstTokenHint is what serve prints on a database with no project and no

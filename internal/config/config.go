@@ -59,6 +59,10 @@ type Config struct {
 	// LogFormat is "text" or "json"; LogLevel is debug, info, warn or error.
 	LogFormat string
 	LogLevel  string
+	// ProfileAddr, when set, serves Go's runtime profiles (net/http/pprof:
+	// CPU, heap, goroutines, blocking, locks) on a listener of its own at
+	// this host:port, without tokens: keep it on loopback. Empty: off.
+	ProfileAddr string
 }
 
 // Default returns the configuration used when nothing is set.
@@ -93,6 +97,7 @@ const (
 	EnvShutdownTimeout = "CORVANE_SHUTDOWN_TIMEOUT"
 	EnvLogFormat       = "CORVANE_LOG_FORMAT"
 	EnvLogLevel        = "CORVANE_LOG_LEVEL"
+	EnvProfileAddr     = "CORVANE_PROFILE_ADDR"
 )
 
 // FromEnv returns the defaults overridden by the CORVANE_* variables that getenv
@@ -152,6 +157,7 @@ func FromEnv(getenv func(string) string) (Config, error) {
 	dur(EnvShutdownTimeout, &c.ShutdownTimeout)
 	str(EnvLogFormat, &c.LogFormat)
 	str(EnvLogLevel, &c.LogLevel)
+	str(EnvProfileAddr, &c.ProfileAddr)
 	return c, errors.Join(errs...)
 }
 
@@ -171,6 +177,7 @@ func (c *Config) Bind(fs *flag.FlagSet) {
 	fs.DurationVar(&c.ShutdownTimeout, "shutdown-timeout", c.ShutdownTimeout, "longest wait for in-flight requests at shutdown (env "+EnvShutdownTimeout+")")
 	fs.StringVar(&c.LogFormat, "log-format", c.LogFormat, "text or json (env "+EnvLogFormat+")")
 	fs.StringVar(&c.LogLevel, "log-level", c.LogLevel, "debug, info, warn or error (env "+EnvLogLevel+")")
+	fs.StringVar(&c.ProfileAddr, "profile-addr", c.ProfileAddr, "serve runtime profiles (pprof) on this host:port, no token asked: keep it on loopback; empty: off (env "+EnvProfileAddr+")")
 }
 
 // Validate reports every field that cannot be used, naming each.
@@ -180,6 +187,13 @@ func (c Config) Validate() error {
 		errs = append(errs, errors.New("addr: empty"))
 	} else if _, port, ok := strings.Cut(c.Addr, ":"); !ok || port == "" {
 		errs = append(errs, fmt.Errorf("addr %q: want host:port", c.Addr))
+	}
+	if c.ProfileAddr != "" {
+		if _, port, ok := strings.Cut(c.ProfileAddr, ":"); !ok || port == "" {
+			errs = append(errs, fmt.Errorf("profile-addr %q: want host:port", c.ProfileAddr))
+		} else if c.ProfileAddr == c.Addr {
+			errs = append(errs, fmt.Errorf("profile-addr %q: must differ from addr", c.ProfileAddr))
+		}
 	}
 	if strings.TrimSpace(c.DatabaseURL) == "" {
 		errs = append(errs, errors.New("db: empty"))
@@ -228,9 +242,9 @@ func IsPostgresURL(s string) bool { return dburl.IsPostgres(s) }
 // String describes c with the database password (in the user information or a
 // password= query parameter) replaced by "xxxxx".
 func (c Config) String() string {
-	return fmt.Sprintf("addr=%s db=%s demo=%t max-body-bytes=%d max-import-bytes=%d page-size=%d max-page-size=%d read-timeout=%s write-timeout=%s shutdown-timeout=%s log-format=%s log-level=%s",
+	return fmt.Sprintf("addr=%s db=%s demo=%t max-body-bytes=%d max-import-bytes=%d page-size=%d max-page-size=%d read-timeout=%s write-timeout=%s shutdown-timeout=%s log-format=%s log-level=%s profile-addr=%s",
 		c.Addr, RedactDatabaseURL(c.DatabaseURL), c.Demo, c.MaxBodyBytes, c.MaxImportBytes,
-		c.DefaultPageSize, c.MaxPageSize, c.ReadTimeout, c.WriteTimeout, c.ShutdownTimeout, c.LogFormat, c.LogLevel)
+		c.DefaultPageSize, c.MaxPageSize, c.ReadTimeout, c.WriteTimeout, c.ShutdownTimeout, c.LogFormat, c.LogLevel, c.ProfileAddr)
 }
 
 // RedactDatabaseURL returns s with any password hidden (package dburl).

@@ -34,6 +34,7 @@ func TestEnvThenFlags(t *testing.T) {
 		EnvPageSize:        "20",
 		EnvShutdownTimeout: "5s",
 		EnvDemo:            "true",
+		EnvProfileAddr:     "127.0.0.1:6061",
 	}))
 	if err != nil {
 		t.Fatal(err)
@@ -50,6 +51,7 @@ func TestEnvThenFlags(t *testing.T) {
 	want.DefaultPageSize = 20
 	want.ShutdownTimeout = 5 * time.Second
 	want.Demo = true
+	want.ProfileAddr = "127.0.0.1:6061"
 	if d := cmp.Diff(want, c); d != "" {
 		t.Errorf("config (-want +got):\n%s", d)
 	}
@@ -75,11 +77,12 @@ func TestValidateNamesFields(t *testing.T) {
 	c.Addr = "nowhere"
 	c.DefaultPageSize = 5000
 	c.LogFormat = "xml"
+	c.ProfileAddr = "6060"
 	err := c.Validate()
 	if err == nil {
 		t.Fatal("no error")
 	}
-	for _, s := range []string{"addr", "page-size", "log-format"} {
+	for _, s := range []string{"addr", "page-size", "log-format", "profile-addr"} {
 		if !strings.Contains(err.Error(), s) {
 			t.Errorf("error %q does not name %s", err, s)
 		}

@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"net"
 	"net/http"
 	"os"
 	"os/exec"
@@ -224,12 +225,28 @@ func TestLoad(t *testing.T) {
 			t.Fatalf("CORVANE_LOAD_DURATION=%q: %v", v, err)
 		}
 	}
+	// CORVANE_LOAD_PROFILE=DIR keeps a CPU profile of the server under the
+	// load in DIR/load-<store>.pprof (serve --profile-addr).
+	profDir := os.Getenv("CORVANE_LOAD_PROFILE")
 	stores(t, func(t *testing.T, db string) {
-		s := start(t, db, "--demo", "--log-level", "warn")
+		args := []string{"--demo", "--log-level", "warn"}
+		profAddr := ""
+		if profDir != "" {
+			profAddr = freeAddr(t)
+			args = append(args, "--profile-addr", profAddr)
+		}
+		s := start(t, db, args...)
 		var projects page
 		s.mustJSON(t, 200, "GET", "/v1/projects", nil, &projects)
 		ctx, cancel := context.WithTimeout(context.Background(), 2*time.Minute)
 		defer cancel()
+		profiled := make(chan error, 1)
+		if profAddr != "" {
+			go func() {
+				profiled <- fetchTo(fmt.Sprintf("http://%s/debug/pprof/profile?seconds=%d", profAddr, max(1, int(d.Seconds())-1)),
+					filepath.Join(profDir, "load-"+filepath.Base(t.Name())+".pprof"))
+			}()
+		}
 		res, err := loadtest.Run(ctx, loadtest.Config{
 			BaseURL: s.URL, Token: s.Token, Project: projects.Items[0].ID,
 			Clients: 16, Duration: d, ImportRow: 20, ImportEvery: 8, Seed: 7,
@@ -241,8 +258,69 @@ func TestLoad(t *testing.T) {
 		if res.Logged == 0 || res.Imports == 0 || res.Retries == 0 {
 			t.Errorf("the load did not exercise every path: %+v", res)
 		}
+		if profAddr != "" {
+			if err := <-profiled; err != nil {
+				t.Errorf("CPU profile: %v", err)
+			}
+		}
 		s.stop(t)
 	})
+}
+
+// TestServeProfiles: serve --profile-addr serves the runtime profiles on a
+// listener of its own; the API's address does not.
+func TestServeProfiles(t *testing.T) {
+	addr := freeAddr(t)
+	s := start(t, filepath.Join(t.TempDir(), "corvane.db"), "--profile-addr", addr)
+	resp, err := http.Get("http://" + addr + "/debug/pprof/goroutine?debug=1")
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, _ := io.ReadAll(resp.Body)
+	resp.Body.Close()
+	if resp.StatusCode != 200 || !strings.Contains(string(b), "goroutine profile") {
+		t.Errorf("profile listener: status %d\n%.300s", resp.StatusCode, b)
+	}
+	resp, err = http.Get(s.URL + "/debug/pprof/goroutine?debug=1")
+	if err != nil {
+		t.Fatal(err)
+	}
+	resp.Body.Close()
+	if resp.StatusCode == 200 {
+		t.Errorf("the API's address serves profiles")
+	}
+	s.stop(t)
+}
+
+// freeAddr returns a loopback address with a port free just now.
+func freeAddr(t testing.TB) string {
+	ln, err := net.Listen("tcp", "127.0.0.1:0")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer ln.Close()
+	return ln.Addr().String()
+}
+
+// fetchTo writes the body of a GET of url to the file path.
+func fetchTo(url, path string) error {
+	resp, err := http.Get(url)
+	if err != nil {
+		return err
+	}
+	defer resp.Body.Close()
+	if resp.StatusCode != 200 {
+		return fmt.Errorf("GET %s: status %d", url, resp.StatusCode)
+	}
+	f, err := os.Create(path)
+	if err != nil {
+		return err
+	}
+	if _, err := io.Copy(f, resp.Body); err != nil {
+		f.Close()
+		return err
+	}
+	return f.Close()
 }
 
 // TestServeRefusesBadSettings: a bad flag is a usage error naming it, and an
