@@ -114,12 +114,15 @@ func (s *Service) CreateMeasurement(ctx context.Context, projectID int64, m doma
 		if err != nil {
 			return err
 		}
-		if err := s.addMeasurement(ctx, st, a, projectID, &m, h, vocab); err != nil {
+		// The hole model is read before the row is written: a measurement
+		// does not change it, and on PostgreSQL the write takes the
+		// project's change log lock until the commit, so the less that
+		// follows the write, the shorter other writers wait.
+		d = s.deriver(st, p)
+		if hm, err = d.model(ctx, m.HoleID); err != nil {
 			return err
 		}
-		d = s.deriver(st, p)
-		hm, err = d.model(ctx, m.HoleID)
-		return err
+		return s.addMeasurement(ctx, st, a, projectID, &m, h, vocab)
 	})
 	if err != nil {
 		return MeasurementView{}, err
