@@ -41,16 +41,20 @@ type Config struct {
 
 // Result is what a run did and measured.
 type Result struct {
-	Requests    int           // requests sent (retries included)
-	Logged      int           // measurements created one by one (201)
-	Imports     int           // files imported
-	ImportRows  int           // rows in those files
-	Retries     int           // imports sent a second time with the same key
-	Errors      []string      // unexpected responses, at most 20 kept
-	ErrorCount  int           // all unexpected responses
-	Elapsed     time.Duration // time spent sending
-	P50, P99    time.Duration // request latency percentiles
-	Max         time.Duration
+	Requests   int           // requests sent (retries included)
+	Logged     int           // measurements created one by one (201)
+	Imports    int           // files imported
+	ImportRows int           // rows in those files
+	Retries    int           // imports sent a second time with the same key
+	Errors     []string      // unexpected responses, at most 20 kept
+	ErrorCount int           // all unexpected responses
+	Elapsed    time.Duration // time spent sending
+	P50, P99   time.Duration // request latency percentiles
+	Max        time.Duration
+	// ByKind gives the percentiles of each kind of request: "log" (one
+	// measurement), "import" (a file's first sending) and "import again"
+	// (the same file and key sent again, answered from the first).
+	ByKind      map[string]Latency
 	Expected    int // rows the service must hold
 	Counted     int // rows it does hold
 	Duplicates  int // rows counted twice by id (paging error) — must be 0
@@ -76,6 +80,11 @@ func (r Result) String() string {
 	fmt.Fprintf(&b, "%d requests in %.1f s: %.0f requests/s; latency p50 %s, p99 %s, max %s\n",
 		r.Requests, r.Elapsed.Seconds(), r.RequestsPerSecond(), r.P50.Round(time.Microsecond),
 		r.P99.Round(time.Microsecond), r.Max.Round(time.Microsecond))
+	for _, k := range []string{"log", "import", "import again"} {
+		if l, ok := r.ByKind[k]; ok {
+			fmt.Fprintf(&b, "  %-12s %5d requests: p50 %s, p99 %s, max %s\n", k, l.N, l.P50.Round(time.Microsecond), l.P99.Round(time.Microsecond), l.Max.Round(time.Microsecond))
+		}
+	}
 	fmt.Fprintf(&b, "logged %d measurements one by one; imported %d files (%d rows, %d retried with the same key)\n",
 		r.Logged, r.Imports, r.ImportRows, r.Retries)
 	fmt.Fprintf(&b, "rows expected %d, counted %d, duplicates %d, failed requests %d\n",
@@ -84,6 +93,20 @@ func (r Result) String() string {
 		fmt.Fprintf(&b, "  error: %s\n", e)
 	}
 	return b.String()
+}
+
+// Latency sums up the latencies of one kind of request.
+type Latency struct {
+	N             int
+	P50, P99, Max time.Duration
+}
+
+func latencyOf(lat []time.Duration) Latency {
+	slices.Sort(lat)
+	if len(lat) == 0 {
+		return Latency{}
+	}
+	return Latency{N: len(lat), P50: lat[len(lat)*50/100], P99: lat[min(len(lat)-1, len(lat)*99/100)], Max: lat[len(lat)-1]}
 }
 
 type client struct {
@@ -207,12 +230,14 @@ func Run(ctx context.Context, cfg Config) (Result, error) {
 		mu  sync.Mutex
 		res Result
 		lat []time.Duration
+		by  = map[string][]time.Duration{}
 	)
-	record := func(d time.Duration, msg string) {
+	record := func(kind string, d time.Duration, msg string) {
 		mu.Lock()
 		defer mu.Unlock()
 		res.Requests++
 		lat = append(lat, d)
+		by[kind] = append(by[kind], d)
 		if msg != "" {
 			res.ErrorCount++
 			if len(res.Errors) < 20 {
@@ -252,7 +277,7 @@ func Run(ctx context.Context, cfg Config) (Result, error) {
 						} else if st != 200 && st != 201 {
 							msg = fmt.Sprintf("import: status %d: %.200s", st, b)
 						}
-						record(d, msg)
+						record([]string{"import", "import again"}[attempt], d, msg)
 						if msg != "" {
 							break
 						}
@@ -282,7 +307,7 @@ func Run(ctx context.Context, cfg Config) (Result, error) {
 				} else if st != 201 {
 					msg = fmt.Sprintf("log: status %d: %.200s", st, b)
 				}
-				record(d, msg)
+				record("log", d, msg)
 				if msg == "" {
 					expected[i]++
 					mu.Lock()
@@ -294,11 +319,11 @@ func Run(ctx context.Context, cfg Config) (Result, error) {
 	}
 	wg.Wait()
 	res.Elapsed = time.Since(start)
-	slices.Sort(lat)
-	if len(lat) > 0 {
-		res.P50 = lat[len(lat)*50/100]
-		res.P99 = lat[min(len(lat)-1, len(lat)*99/100)]
-		res.Max = lat[len(lat)-1]
+	all := latencyOf(lat)
+	res.P50, res.P99, res.Max = all.P50, all.P99, all.Max
+	res.ByKind = map[string]Latency{}
+	for k, l := range by {
+		res.ByKind[k] = latencyOf(l)
 	}
 
 	// Count every row, hole by hole, paging through the list.
