@@ -17,9 +17,10 @@
 //     acting as a rotation of the whole hole frame.
 //
 // A measurement's region ([Measure]) is computed two ways: by first-order
-// propagation (the Jacobian of the exact transform, by central differences)
-// and by seeded Monte Carlo through the exact transform. Each is given as a
-// cone (the half-angle around the measured pole holding 95%) and as an
+// propagation (the exact Jacobian of the transform: every error turns the
+// direction about an axis) and by seeded Monte Carlo through the exact
+// transform. Each is given as a cone (the half-angle around the measured
+// pole holding 95%) and as an
 // elongated region: an ellipse in coordinates that follow the core axis
 // (rotation about the axis, angle from the axis), which on a net is a curved
 // "banana" along the small circle the pole sweeps when the core turns, the

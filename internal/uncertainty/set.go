@@ -84,11 +84,13 @@ func SetMeanFirstOrder(ms []Member) (SetResult, error) { return setFirstOrder(ms
 // SetMeanLinesFirstOrder is [SetMeanLines] by first-order propagation.
 func SetMeanLinesFirstOrder(ms []Member) (SetResult, error) { return setFirstOrder(ms, true) }
 
-// setData is what both methods need of a set: each member's exact model and
-// direction (world, sign towards the mean), the keys of its shared errors
-// and their standard errors (radians), and the Fisher mean.
+// setData is what both methods need of a set: each member's direction
+// (world, sign towards the mean), the keys of its shared errors and their
+// standard errors (radians), and the Fisher mean; the Monte Carlo method
+// also keeps each member's exact model (the first-order one rebuilds a
+// member's model when it needs it, which costs less than keeping them).
 type setData struct {
-	models        []*model
+	models        []*model // Monte Carlo only
 	poles         []geom.Vec3
 	sign          []float64
 	runOf, survOf []int
@@ -101,26 +103,33 @@ type setData struct {
 
 func (d *setData) dir(n, l geom.Vec3) geom.Vec3 { return pick(n, l)(d.which) }
 
-func prepareSet(ms []Member, lines bool) (*setData, error) {
+// prepareSet reads the members (see setData); keep keeps their models.
+func prepareSet(ms []Member, lines, keep bool) (*setData, error) {
 	if len(ms) == 0 {
 		return nil, dirstat.ErrTooFew
 	}
-	block := make([]model, len(ms))
-	d := &setData{models: make([]*model, len(ms)), poles: make([]geom.Vec3, len(ms)),
-		runOf: make([]int, len(ms)), survOf: make([]int, len(ms))}
+	var block []model
+	d := &setData{poles: make([]geom.Vec3, len(ms)), runOf: make([]int, len(ms)), survOf: make([]int, len(ms))}
+	if keep {
+		block, d.models = make([]model, len(ms)), make([]*model, len(ms))
+	}
 	if lines {
 		d.which = 1
 	}
 	runs, survs := map[string]int{}, map[string]int{}
+	var one model
 	for i, m := range ms {
-		md := &block[i]
+		md := &one
+		if keep {
+			md = &block[i]
+			d.models[i] = md
+		}
 		if err := md.init(m.Reading); err != nil {
 			return nil, err
 		}
 		if lines && !md.hasGamma {
 			return nil, errors.New("uncertainty: a member of a set of lines has no gamma")
 		}
-		d.models[i] = md
 		d.poles[i] = md.world(d.dir(md.eval(0, 0, 0, 0, 0)))
 		k, ok := runs[m.Run]
 		if !ok || m.Run == "" {
@@ -172,7 +181,7 @@ func (r *SetResult) dominant() {
 // (I - m m^T) dS/de / R; its tangent-plane components at the mean m (two
 // perpendicular directions) form J_e, where dS/de sums the derivatives of
 // the directions of the members sharing the source (each measurement's
-// central differences, model.partial): one mark error per run, one survey
+// exact derivatives, model.partials): one mark error per run, one survey
 // azimuth and dip error per survey key, alpha, beta (and gamma for lines)
 // per member. The covariance of the mean's deviation is the sum of
 // J_e J_e^T sigma_e^2; a cone is the radius of the circle about the mean
@@ -186,7 +195,7 @@ func (r *SetResult) dominant() {
 // scatter, and treats the Fisher distribution of the mean as normal, which
 // narrows its tail for sets of very few members.
 func setFirstOrder(ms []Member, lines bool) (SetResult, error) {
-	d, err := prepareSet(ms, lines)
+	d, err := prepareSet(ms, lines, false)
 	if err != nil {
 		return SetResult{}, err
 	}
@@ -202,15 +211,20 @@ func setFirstOrder(ms []Member, lines bool) (SetResult, error) {
 	marks := make([][2]float64, len(d.markSig))
 	survs := make([][2][2]float64, len(d.survSig))
 	var reading, indep cov
-	for i, md := range d.models {
+	var md model
+	for i := range ms {
+		if err := md.init(ms[i].Reading); err != nil {
+			return SetResult{}, err
+		}
+		// The derivatives of the member's direction (model.partials, frame
+		// coordinates) dotted with the tangent directions at the mean taken
+		// to the member's frame, scaled by sign / R.
+		_, g := md.partials(d.which)
+		sc := d.sign[i] / d.f.R
+		a1, a2 := md.frameOf(t1).Scale(sc), md.frameOf(t2).Scale(sc)
 		var js [5][2]float64
-		for k := 0; k < 5; k++ {
-			if k == 2 && !lines {
-				continue
-			}
-			plus, minus := md.partial(k, d.which)
-			g := md.world(plus.Sub(minus)).Scale(d.sign[i] / (2 * fdStep * d.f.R))
-			js[k] = [2]float64{g.Dot(t1), g.Dot(t2)}
+		for k := range js {
+			js[k] = [2]float64{g[k].Dot(a1), g[k].Dot(a2)}
 		}
 		sig := ms[i].Sigma
 		add(&reading, js[0], geom.Rad(sig.Alpha))
@@ -237,7 +251,7 @@ func setFirstOrder(ms []Member, lines bool) (SetResult, error) {
 		add(&shared, j[1], d.survSig[s][1])
 	}
 	deg2 := geom.Deg(1) * geom.Deg(1)
-	cone := func(c cov) float64 { return coneOf(c.a*deg2, c.b*deg2, c.c*deg2, 0.95) }
+	cone := func(c cov) float64 { return cone95(c.a*deg2, c.b*deg2, c.c*deg2) }
 	res := d.res
 	res.Method = SetFirstOrder
 	res.Measurement95 = cone(cov{shared.a + reading.a, shared.b + reading.b, shared.c + reading.c})
@@ -260,7 +274,7 @@ func setMean(ms []Member, mc MC, lines bool) (SetResult, error) {
 	if mc.Draws < 100 {
 		return SetResult{}, errors.New("uncertainty: a set needs at least 100 Monte Carlo draws")
 	}
-	d, err := prepareSet(ms, lines)
+	d, err := prepareSet(ms, lines, true)
 	if err != nil {
 		return SetResult{}, err
 	}

@@ -1,0 +1,124 @@
+package uncertainty
+
+import (
+	"fmt"
+	"math"
+	"math/rand/v2"
+	"testing"
+
+	"corvane/internal/geom"
+)
+
+// The table behind cone95 gives the exact integral of coneOf within 2e-10
+// relative over a grid of covariance shapes: every ratio of the
+// eigenvalues (dense near the round and the flat ends), several scales and
+// orientations.
+func TestCone95Table(t *testing.T) {
+	worst := 0.0
+	for j := 0; j <= 2000; j++ {
+		k := float64(j) / 2000
+		for _, kk := range []float64{k, k * k * k} {
+			for _, scale := range []float64{1e-6, 0.3, 4, 250} {
+				for _, th := range []float64{0, 0.4, 1.3, 2.9} {
+					s, c := math.Sincos(th)
+					l1, l2 := scale, scale*kk
+					a, b, cc := l1*c*c+l2*s*s, (l1-l2)*s*c, l1*s*s+l2*c*c
+					want, got := coneOf(a, b, cc, 0.95), cone95(a, b, cc)
+					if e := math.Abs(got-want) / want; e > worst {
+						worst = e
+					}
+				}
+			}
+		}
+	}
+	t.Logf("largest relative difference %.2e", worst)
+	if worst > 2e-10 {
+		t.Errorf("cone95 off the exact cone by %.2e relative", worst)
+	}
+	if cone95(0, 0, 0) != 0 || cone95(1e-300, 0, 0) < 0 {
+		t.Error("cone95 of no spread")
+	}
+}
+
+// The exact Jacobian (model.partials read through coords.gradients) and the
+// tabulated cone give the regions of the straightforward computation
+// (central differences of the transform read in the region coordinates,
+// the exact cone integral): over many random readings (holes, angles,
+// conventions, error models from tiny to very large, poles and lines near
+// and far from the core axis) the covariances agree within 1e-7 of their
+// size and the cones, semi-axes and areas within 1e-7 relative, and so does
+// every cone of the set's first-order method over random sets.
+func TestFastPathsMatchReference(t *testing.T) {
+	r := rand.New(rand.NewPCG(71, 72))
+	worst := 0.0 // largest difference, relative to the scale given
+	near := func(got, want, scale float64) bool {
+		d := math.Abs(got - want)
+		if scale > 0 {
+			worst = math.Max(worst, d/scale)
+		}
+		return d <= 1e-7*scale+1e-12
+	}
+	for i := 0; i < 3000; i++ {
+		scale := math.Pow(10, -2+3*r.Float64())
+		sig := Sigmas{Alpha: 2 * scale * r.Float64(), Beta: 3 * scale * r.Float64(), Gamma: 3 * scale * r.Float64(),
+			Mark: 10 * scale * r.Float64(), Azimuth: 3 * r.Float64(), Dip: 0.5 * r.Float64()}
+		alpha := 90 * r.Float64()
+		if i%5 == 0 {
+			alpha = 90 - 3*r.Float64() // near the axis: the ellipse shape
+		}
+		rd := Reading{Hole: geom.HoleDirection(360*r.Float64(), -5-80*r.Float64()), Alpha: alpha, Beta: 360 * r.Float64(),
+			Gamma: 360 * r.Float64(), Conv: conventions[r.IntN(len(conventions))], Sigma: sig}
+		m, err := newModel(rd)
+		if err != nil {
+			t.Fatal(err)
+		}
+		n0, l0 := m.eval(0, 0, 0, 0, 0)
+		for which, v := range []geom.Vec3{n0, l0} {
+			cs := newCoords(m, v)
+			got, want := m.firstOrder(&cs, which), m.refFirstOrder(&cs, which)
+			tr := want.cuu + want.cvv
+			if !near(got.cuu, want.cuu, tr) || !near(got.cuv, want.cuv, tr) || !near(got.cvv, want.cvv, tr) ||
+				!near(got.Cone95, want.Cone95, want.Cone95) || !near(got.Long95, want.Long95, want.Long95) ||
+				!near(got.Short95, want.Short95, want.Long95) || !near(got.Area95, want.Area95, math.Pi*want.Long95*want.Long95) {
+				t.Fatalf("case %d (%+v) direction %d: fast %+v, reference %+v", i, rd, which, got, want)
+			}
+		}
+	}
+	t.Logf("measurements: largest relative difference %.1e", worst)
+	worst = 0
+	for i := 0; i < 300; i++ {
+		lines := i%3 == 0
+		n := 2 + r.IntN(60)
+		ms := make([]Member, n)
+		m := Model{Alpha: 4 * r.Float64(), Beta: 5 * r.Float64(), Gamma: 5 * r.Float64()}
+		mu := geom.FromTrendPlunge(360*r.Float64(), 90*r.Float64())
+		for j := range ms {
+			h := geom.HoleDirection(float64(40*(j%3))+360*r.Float64()*0.1, -30-50*r.Float64())
+			p := tangentScatter(r, mu, 15)
+			alpha := geom.Deg(math.Asin(math.Min(1, math.Abs(p.Dot(h)))))
+			ms[j] = Member{Reading: Reading{Hole: h, Alpha: alpha, Beta: 360 * r.Float64(), Gamma: 360 * r.Float64(),
+				Sigma: m.Sigmas([]Instrument{Magnetic, Gyro, UnknownSurvey}[r.IntN(3)], []string{"good", "fair", "poor"}[r.IntN(3)], math.NaN(), 0)}}
+			if r.IntN(4) > 0 {
+				ms[j].Run = fmt.Sprint(j % 5)
+			}
+			if r.IntN(4) > 0 {
+				ms[j].Survey = fmt.Sprint(j % 3)
+			}
+		}
+		got, err1 := setFirstOrder(ms, lines)
+		want, err2 := refSetFirstOrder(ms, lines)
+		if err1 != nil || err2 != nil {
+			t.Fatal(err1, err2)
+		}
+		for _, p := range [][2]float64{{got.Measurement95, want.Measurement95}, {got.Shared95, want.Shared95},
+			{got.SharedIndependent95, want.SharedIndependent95}, {got.Combined95, want.Combined95}} {
+			if !near(p[0], p[1], p[1]) {
+				t.Fatalf("set %d: fast %+v, reference %+v", i, got, want)
+			}
+		}
+		if got.Trend != want.Trend || got.Plunge != want.Plunge || got.Fisher95 != want.Fisher95 || got.Dominant != want.Dominant {
+			t.Fatalf("set %d: fast %+v, reference %+v", i, got, want)
+		}
+	}
+	t.Logf("sets: largest relative difference %.1e", worst)
+}
