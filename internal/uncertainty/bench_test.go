@@ -4,6 +4,7 @@ import (
 	"math"
 	"math/rand/v2"
 	"runtime"
+	"strconv"
 	"testing"
 
 	"corvane/internal/geom"
@@ -24,6 +25,80 @@ func BenchmarkMeasureAll(b *testing.B) {
 		_, errs := MeasureAll(rs, MC{Draws: 1000, Seed: 1}, runtime.GOMAXPROCS(0))
 		if errs[0] != nil {
 			b.Fatal(errs[0])
+		}
+	}
+}
+
+// BenchmarkMeasure: one measurement through a Measurer with the
+// per-measurement run every door uses (PerMeasurement: first order, Monte
+// Carlo of 1,000 draws only where NeedsMonteCarlo says so), per
+// measurement: first-order (poles 20-70 degrees from the core axis, no
+// Monte Carlo), fallback (poles within 3 degrees of the axis, every one
+// sent to Monte Carlo) and mix (the rows of the convert benchmark: alpha a
+// whole degree 0-90, a lineation on one in four, unrated marks, magnetic
+// surveys; about one in ten sent to Monte Carlo).
+func BenchmarkMeasure(b *testing.B) {
+	m := DefaultModel()
+	kinds := []struct {
+		name  string
+		alpha func(r *rand.Rand) float64
+		gamma func(i int, r *rand.Rand) float64
+		conf  string
+	}{
+		{"first-order", func(r *rand.Rand) float64 { return 20 + 50*r.Float64() }, func(int, *rand.Rand) float64 { return math.NaN() }, "fair"},
+		{"fallback", func(r *rand.Rand) float64 { return 87 + 3*r.Float64() }, func(int, *rand.Rand) float64 { return math.NaN() }, "fair"},
+		{"mix", func(r *rand.Rand) float64 { return float64(r.IntN(91)) }, func(i int, r *rand.Rand) float64 {
+			if i%4 == 0 {
+				return float64(r.IntN(360))
+			}
+			return math.NaN()
+		}, ""},
+	}
+	for _, k := range kinds {
+		r := rand.New(rand.NewPCG(5, 6))
+		rs := make([]Reading, 4096)
+		for i := range rs {
+			rs[i] = Reading{Hole: geom.HoleDirection(360*r.Float64(), -50-30*r.Float64()), Alpha: k.alpha(r),
+				Beta: float64(r.IntN(360)), Gamma: k.gamma(i, r), Sigma: m.Sigmas(Magnetic, k.conf, math.NaN(), 0)}
+		}
+		b.Run(k.name, func(b *testing.B) {
+			ms := NewMeasurer(PerMeasurement)
+			b.ReportAllocs()
+			i := 0
+			for b.Loop() {
+				if _, err := ms.Measure(rs[i%len(rs)]); err != nil {
+					b.Fatal(err)
+				}
+				i++
+			}
+		})
+	}
+}
+
+// BenchmarkSetFirstOrder: the first-order uncertainty of the mean pole of
+// a set of 1e5 members in 200 holes (one survey key each) and runs of 5
+// (one mark key each).
+func BenchmarkSetFirstOrder(b *testing.B) {
+	r := rand.New(rand.NewPCG(7, 8))
+	m := DefaultModel()
+	ms := make([]Member, 100_000)
+	runs, holes := make([]string, len(ms)/5), make([]string, 200)
+	for i := range runs {
+		runs[i] = "r" + strconv.Itoa(i)
+	}
+	for i := range holes {
+		holes[i] = "h" + strconv.Itoa(i)
+	}
+	for i := range ms {
+		h := i / 500
+		ms[i] = Member{Reading: Reading{Hole: geom.HoleDirection(float64(37*h%360), -50-float64(h%30)), Alpha: 30 + 20*r.Float64(),
+			Beta: 100 + 30*r.Float64(), Gamma: math.NaN(), Sigma: m.Sigmas(Magnetic, "fair", math.NaN(), 0)},
+			Run: runs[i/5], Survey: holes[h]}
+	}
+	b.ReportAllocs()
+	for b.Loop() {
+		if _, err := SetMeanFirstOrder(ms); err != nil {
+			b.Fatal(err)
 		}
 	}
 }

@@ -3,8 +3,6 @@ package uncertainty
 import (
 	"math"
 	"slices"
-
-	"corvane/internal/geom"
 )
 
 // sincos returns sin and cos of the angle x in radians. Small angles (the
@@ -22,16 +20,13 @@ func sincos(x float64) (s, c float64) {
 	return math.Sincos(x)
 }
 
-// atan2 is math.Atan2 with a fast path for |y/x| < 0.15 and x > 0 (an error
-// of up to 8.5 degrees): the series of atan to t^9, error below 1e-9 rad.
-func atan2(y, x float64) float64 {
-	if x > 0 {
-		t := y / x
-		if t2 := t * t; t2 < 0.0225 {
-			return t * (1 - t2*(1.0/3-t2*(1.0/5-t2*(1.0/7-t2/9))))
-		}
+// atan is math.Atan with a fast path for |t| < 0.15 (an angle of up to 8.5
+// degrees): the series of atan to t^9, error below 1e-10 rad.
+func atan(t float64) float64 {
+	if t2 := t * t; t2 < 0.0225 {
+		return t * (1 - t2*(1.0/3-t2*(1.0/5-t2*(1.0/7-t2/9))))
 	}
-	return math.Atan2(y, x)
+	return math.Atan(t)
 }
 
 // asin returns asin(s) with a fast path for |s| < 0.15 (the series to s^7,
@@ -41,17 +36,6 @@ func asin(s float64) float64 {
 		return s * (1 + s2*(1.0/6+s2*(3.0/40+s2*(5.0/112))))
 	}
 	return math.Asin(s)
-}
-
-// rotation is a rotation about a fixed unit axis k by an angle given by its
-// sine and cosine (Rodrigues' formula).
-func rotate(v, k geom.Vec3, s, c float64) geom.Vec3 {
-	kv := k.Dot(v) * (1 - c)
-	return geom.Vec3{
-		X: v.X*c + (k.Y*v.Z-k.Z*v.Y)*s + k.X*kv,
-		Y: v.Y*c + (k.Z*v.X-k.X*v.Z)*s + k.Y*kv,
-		Z: v.Z*c + (k.X*v.Y-k.Y*v.X)*s + k.Z*kv,
-	}
 }
 
 // kthLargest returns the k-th largest value of x (1-based). It first keeps

@@ -47,16 +47,18 @@ func TestCone95Table(t *testing.T) {
 // conventions, error models from tiny to very large, poles and lines near
 // and far from the core axis) the covariances agree within 1e-7 of their
 // size and the cones, semi-axes and areas within 1e-7 relative, and so does
-// every cone of the set's first-order method over random sets.
+// every cone of the set's first-order method over random sets. Monte Carlo
+// regions from the same draws agree to rounding (1e-12).
 func TestFastPathsMatchReference(t *testing.T) {
 	r := rand.New(rand.NewPCG(71, 72))
 	worst := 0.0 // largest difference, relative to the scale given
+	tol := 1e-7
 	near := func(got, want, scale float64) bool {
 		d := math.Abs(got - want)
 		if scale > 0 {
 			worst = math.Max(worst, d/scale)
 		}
-		return d <= 1e-7*scale+1e-12
+		return d <= tol*scale+1e-12
 	}
 	for i := 0; i < 3000; i++ {
 		scale := math.Pow(10, -2+3*r.Float64())
@@ -75,7 +77,7 @@ func TestFastPathsMatchReference(t *testing.T) {
 		n0, l0 := m.eval(0, 0, 0, 0, 0)
 		for which, v := range []geom.Vec3{n0, l0} {
 			cs := newCoords(m, v)
-			got, want := m.firstOrder(&cs, which), m.refFirstOrder(&cs, which)
+			got, want := m.firstOrder(n0, l0, &cs, which), m.refFirstOrder(&cs, which)
 			tr := want.cuu + want.cvv
 			if !near(got.cuu, want.cuu, tr) || !near(got.cuv, want.cuv, tr) || !near(got.cvv, want.cvv, tr) ||
 				!near(got.Cone95, want.Cone95, want.Cone95) || !near(got.Long95, want.Long95, want.Long95) ||
@@ -85,6 +87,50 @@ func TestFastPathsMatchReference(t *testing.T) {
 		}
 	}
 	t.Logf("measurements: largest relative difference %.1e", worst)
+	// Monte Carlo: the same draws through the fast transform and region
+	// coordinates as through the plain ones give the same regions, to
+	// rounding.
+	worst, tol = 0, 1e-12
+	z := newNormals(MC{Draws: 1000, Seed: 5})
+	for i := 0; i < 400; i++ {
+		sig := Sigmas{Alpha: 4 * r.Float64(), Beta: 5 * r.Float64(), Gamma: 5 * r.Float64(),
+			Mark: 20 * r.Float64(), Azimuth: 3 * r.Float64(), Dip: 0.5 * r.Float64()}
+		alpha := 90 * r.Float64()
+		if i%2 == 0 {
+			alpha = 90 - 12*r.Float64() // near the axis, where Monte Carlo is used
+		}
+		rd := Reading{Hole: geom.HoleDirection(360*r.Float64(), -5-80*r.Float64()), Alpha: alpha, Beta: 360 * r.Float64(),
+			Gamma: 360 * r.Float64(), Conv: conventions[r.IntN(len(conventions))], Sigma: sig}
+		if i%3 == 0 {
+			rd.Gamma = math.NaN()
+		}
+		sc := scratch{z: z}
+		res, err := measure(rd, &sc)
+		if err != nil {
+			t.Fatal(err)
+		}
+		m, _ := newModel(rd)
+		got := []*Estimate{&res.Pole, res.Line}[:1+btoi(res.Line != nil)]
+		cs, est := make([]coords, len(got)), make([]Estimate, len(got))
+		for k, e := range got {
+			cs[k], est[k] = e.cs, Estimate{FirstOrder: e.FirstOrder, Used: "first-order"}
+		}
+		refMcRegions(m, cs, z.table(m.sig, nil), est)
+		for k := range est {
+			if NeedsMonteCarlo(cs[k].phi(), est[k].FirstOrder) {
+				est[k].Used = "monte-carlo"
+			}
+		}
+		for k, e := range got {
+			g, w := *e.MonteCarlo, *est[k].MonteCarlo
+			if !near(g.Cone95, w.Cone95, w.Long95) || !near(g.Long95, w.Long95, w.Long95) || !near(g.Short95, w.Short95, w.Long95) ||
+				!near(g.Area95, w.Area95, math.Pi*w.Long95*w.Long95) || !near(g.q, w.q, w.q) || e.Used != est[k].Used {
+				t.Fatalf("case %d (%+v) direction %d: fast %+v (%s), reference %+v (%s)", i, rd, k, g, e.Used, w, est[k].Used)
+			}
+		}
+	}
+	t.Logf("Monte Carlo: largest relative difference %.1e", worst)
+	tol = 1e-7
 	worst = 0
 	for i := 0; i < 300; i++ {
 		lines := i%3 == 0
@@ -121,4 +167,11 @@ func TestFastPathsMatchReference(t *testing.T) {
 		}
 	}
 	t.Logf("sets: largest relative difference %.1e", worst)
+}
+
+func btoi(b bool) int {
+	if b {
+		return 1
+	}
+	return 0
 }

@@ -313,17 +313,38 @@ func coneShape(k float64) float64 {
 	return -f*(f-1)*(f-2)/6*p0 + (f+1)*(f-1)*(f-2)/2*p1 - (f+1)*f*(f-2)/2*p2 + (f+1)*f*(f-1)/6*p3
 }
 
+// frame is the frame (e1, e2, e3) = (r, h x r, h) of a measured hole: r
+// the reference line, h the down-hole direction.
+type frame [3]geom.Vec3
+
+// of returns the world vector v in frame coordinates.
+func (f *frame) of(v geom.Vec3) geom.Vec3 {
+	return geom.Vec3{X: v.Dot(f[0]), Y: v.Dot(f[1]), Z: v.Dot(f[2])}
+}
+
+// world returns the frame vector v in world coordinates.
+func (f *frame) world(v geom.Vec3) geom.Vec3 {
+	return geom.Vec3{X: f[0].X*v.X + f[1].X*v.Y + f[2].X*v.Z, Y: f[0].Y*v.X + f[1].Y*v.Y + f[2].Y*v.Z,
+		Z: f[0].Z*v.X + f[1].Z*v.Y + f[2].Z*v.Z}
+}
+
 // model holds a measurement's exact transform from its errors to its pole
-// and line, in the frame (e1, e2, e3) = (r, h x r, h) of the measured hole.
+// and line, in the frame of the measured hole.
 type model struct {
-	frame          [3]geom.Vec3
+	frame          frame
 	sa, ca, sb, cb float64 // nominal alpha and beta
 	apex           float64 // +1: beta to the down-hole apex; -1 up-hole
 	sg, cg         float64 // nominal gamma, sign of the sense applied
 	hasGamma       bool
-	kD, kA         geom.Vec3 // survey rotation axes in frame coordinates
-	sig            [5]float64
+	// The survey rotation axes in frame coordinates: kD = (0, dY, 0) and
+	// kA = (aX, 0, aZ) (see init).
+	dY, aX, aZ float64
+	sig        [5]float64
 }
+
+// kD and kA return the survey rotation axes in frame coordinates.
+func (m *model) kD() geom.Vec3 { return geom.Vec3{Y: m.dY} }
+func (m *model) kA() geom.Vec3 { return geom.Vec3{X: m.aX, Z: m.aZ} }
 
 func newModel(r Reading) (*model, error) {
 	m := new(model)
@@ -340,7 +361,7 @@ func (m *model) init(r Reading) error {
 	if w.Has(coreangle.Vertical) {
 		return ErrVertical
 	}
-	*m = model{frame: [3]geom.Vec3{ref, h.Cross(ref), h}, apex: 1, hasGamma: !math.IsNaN(r.Gamma)}
+	*m = model{frame: frame{ref, h.Cross(ref), h}, apex: 1, hasGamma: !math.IsNaN(r.Gamma)}
 	if r.Conv.BetaApex == coreangle.UpHole {
 		m.apex = -1
 	}
@@ -357,22 +378,22 @@ func (m *model) init(r Reading) error {
 	// axis h x up (a positive turn lifts h: the dip grows). Azimuth error: the
 	// hole turns about the vertical, clockwise seen from above, which is a
 	// negative right-handed turn about up. Both turn the whole frame, since
-	// the reference line is fixed by gravity and h.
+	// the reference line is fixed by gravity and h. The reference line
+	// lies in the vertical plane through h, so h x up is along e2 and up
+	// has no e2 component: the axes are kD = (0, +-1, 0) and kA = (aX, 0,
+	// aZ) in frame coordinates, which evalSC's turns use (they are exactly
+	// so up to rounding, 2e-16).
 	up := geom.Vec3{Z: 1}
-	m.kD = m.frameOf(h.Cross(up).Unit())
-	m.kA = m.frameOf(up.Neg())
+	kD := m.frameOf(h.Cross(up).Unit())
+	kA := m.frameOf(up.Neg())
+	m.dY, m.aX, m.aZ = math.Copysign(1, kD.Y), kA.X, kA.Z
 	s := r.Sigma
 	m.sig = [5]float64{geom.Rad(s.Alpha), geom.Rad(math.Hypot(s.Beta, s.Mark)), geom.Rad(s.Gamma), geom.Rad(s.Azimuth), geom.Rad(s.Dip)}
 	return nil
 }
 
-func (m *model) frameOf(v geom.Vec3) geom.Vec3 {
-	return geom.Vec3{X: v.Dot(m.frame[0]), Y: v.Dot(m.frame[1]), Z: v.Dot(m.frame[2])}
-}
-
-func (m *model) world(v geom.Vec3) geom.Vec3 {
-	return m.frame[0].Scale(v.X).Add(m.frame[1].Scale(v.Y)).Add(m.frame[2].Scale(v.Z))
-}
+func (m *model) frameOf(v geom.Vec3) geom.Vec3 { return m.frame.of(v) }
+func (m *model) world(v geom.Vec3) geom.Vec3   { return m.frame.world(v) }
 
 // eval returns the pole (the normal with a down-hole component for the
 // nominal angles) and the line, in frame coordinates, for the errors in
@@ -407,18 +428,31 @@ func (m *model) evalSC(t *[10]float64) (n, l geom.Vec3) {
 		l = e.Scale(cg).Add(n.Cross(e).Scale(sg))
 	}
 	if s, c = t[8], t[9]; s != 0 {
-		n = rotate(n, m.kD, s, c)
+		n = m.turnD(n, s, c)
 		if m.hasGamma {
-			l = rotate(l, m.kD, s, c)
+			l = m.turnD(l, s, c)
 		}
 	}
 	if s, c = t[6], t[7]; s != 0 {
-		n = rotate(n, m.kA, s, c)
+		n = m.turnA(n, s, c)
 		if m.hasGamma {
-			l = rotate(l, m.kA, s, c)
+			l = m.turnA(l, s, c)
 		}
 	}
 	return n, l
+}
+
+// turnD turns v about kD = (0, dY, 0) by the angle of sine s and cosine c:
+// Rodrigues' formula (rotate) with the zero components left out.
+func (m *model) turnD(v geom.Vec3, s, c float64) geom.Vec3 {
+	s *= m.dY
+	return geom.Vec3{X: v.X*c + v.Z*s, Y: v.Y, Z: v.Z*c - v.X*s}
+}
+
+// turnA turns v about kA = (aX, 0, aZ), as turnD.
+func (m *model) turnA(v geom.Vec3, s, c float64) geom.Vec3 {
+	kv := (m.aX*v.X + m.aZ*v.Z) * (1 - c)
+	return geom.Vec3{X: v.X*c - m.aZ*v.Y*s + m.aX*kv, Y: v.Y*c + (m.aZ*v.X-m.aX*v.Z)*s, Z: v.Z*c + m.aX*v.Y*s + m.aZ*kv}
 }
 
 // coords are the region coordinates around a nominal direction v0 (frame
@@ -427,8 +461,9 @@ func (m *model) evalSC(t *[10]float64) (n, l geom.Vec3) {
 // axis, both degrees of arc at v0; in the ellipse shape the tangent-plane
 // angles along two perpendicular directions.
 type coords struct {
-	m        *model
+	frame    frame // of the measured hole
 	v0       geom.Vec3
+	phiDeg   float64 // angle of v0 from the core axis, degrees (0..90)
 	curved   bool
 	c0, s0   float64 // cos, sin of the angle of v0 from the axis
 	cp, sp   float64 // cos, sin of v0's rotation about the axis
@@ -444,7 +479,7 @@ func newCoords(m *model, v0 geom.Vec3) coords {
 	if v0.Z < 0 {
 		v0 = v0.Neg()
 	}
-	c := coords{m: m, v0: v0}
+	c := coords{frame: m.frame, v0: v0}
 	// Tangent basis, kept for the ellipse shape: t1 along increasing
 	// rotation about the axis where it is defined, any perpendicular
 	// otherwise.
@@ -456,7 +491,8 @@ func newCoords(m *model, v0 geom.Vec3) coords {
 	c.t2 = v0.Cross(c.t1)
 	rho := math.Hypot(v0.X, v0.Y)
 	phi := math.Atan2(rho, v0.Z)
-	if geom.Deg(phi) >= minCurvedAngle {
+	c.phiDeg = geom.Deg(phi)
+	if c.phiDeg >= minCurvedAngle {
 		c.curved = true
 		c.s0, c.c0 = math.Sincos(phi)
 		c.cp, c.sp = v0.X/rho, v0.Y/rho
@@ -465,21 +501,25 @@ func newCoords(m *model, v0 geom.Vec3) coords {
 	return c
 }
 
-func (c *coords) frameOf(v geom.Vec3) geom.Vec3 { return c.m.frameOf(v) }
+func (c *coords) frameOf(v geom.Vec3) geom.Vec3 { return c.frame.of(v) }
 
 // phi returns the angle, degrees (0..90), of the nominal direction from the
 // core axis.
-func (c *coords) phi() float64 {
-	return geom.Deg(math.Atan2(math.Hypot(c.v0.X, c.v0.Y), c.v0.Z))
-}
-func (c *coords) world(v geom.Vec3) geom.Vec3 { return c.m.world(v) }
+func (c *coords) phi() float64                { return c.phiDeg }
+func (c *coords) world(v geom.Vec3) geom.Vec3 { return c.frame.world(v) }
 
 // of returns the region coordinates, degrees, of the axis v (frame
 // coordinates, either end).
 func (c *coords) of(v geom.Vec3) (u, w float64) {
-	if v.Dot(c.v0) < 0 {
-		v = v.Neg()
+	d := v.Dot(c.v0)
+	if d < 0 {
+		v, d = v.Neg(), -d
 	}
+	return c.ofNear(v, d)
+}
+
+// ofNear is of for a unit vector v on v0's side, d = v . v0 >= 0.
+func (c *coords) ofNear(v geom.Vec3, d float64) (u, w float64) {
 	if c.curved {
 		// With rho = sin(phi) and z = cos(phi): X = rho cos dpsi, Y = rho
 		// sin dpsi, and sin dphi, cos dphi by the difference formulas.
@@ -491,8 +531,10 @@ func (c *coords) of(v geom.Vec3) (u, w float64) {
 		}
 		return math.Atan2(y, x) * c.sinPhiDg, geom.Deg(math.Atan2(sd, cd))
 	}
-	d := v.Dot(c.v0)
-	return geom.Deg(atan2(v.Dot(c.t1), d)), geom.Deg(atan2(v.Dot(c.t2), d))
+	// atan2(y, d) = atan(y/d) for d > 0 (d = 0, a draw at right angles to
+	// v0, gives +-90 degrees by either).
+	id := 1 / d
+	return geom.Deg(atan(v.Dot(c.t1) * id)), geom.Deg(atan(v.Dot(c.t2) * id))
 }
 
 // inv is the inverse of of: the unit vector (frame coordinates) at region
@@ -520,10 +562,10 @@ func (c *coords) gradients() (du, dw geom.Vec3) {
 }
 
 // firstOrder returns the first-order region of the direction picked by
-// which (0 pole, 1 line): the derivatives of the direction (partials) read
+// which (0 pole, 1 line) of the nominal pole n and line l: the derivatives of the direction (partials) read
 // in the region coordinates through their gradients at the direction.
-func (m *model) firstOrder(cs *coords, which int) Region {
-	v, g := m.partials(which)
+func (m *model) firstOrder(n, l geom.Vec3, cs *coords, which int) Region {
+	v, g := m.partials(n, l, which)
 	du, dw := cs.gradients()
 	if v.Dot(cs.v0) < 0 { // the region coordinates read the other end
 		du, dw = du.Neg(), dw.Neg()
@@ -541,8 +583,9 @@ func (m *model) firstOrder(cs *coords, which int) Region {
 	return r
 }
 
-// partials returns the direction picked by which (0 pole, 1 line) for the
-// nominal readings, frame coordinates, and its derivatives with respect to
+// partials returns the direction picked by which (0 pole, 1 line) of the
+// nominal pole n and line l (frame coordinates, m.eval of no errors) and its
+// derivatives with respect to
 // each error source in radians (0 alpha, 1 beta and mark, 2 gamma, 3
 // survey azimuth, 4 survey dip): the exact Jacobian behind every
 // first-order figure, of a measurement (firstOrder) and of a set's mean
@@ -552,8 +595,7 @@ func (m *model) firstOrder(cs *coords, which int) Region {
 // core axis, beta and the mark turn both about the core axis h, gamma turns
 // the line about the pole, the survey errors turn the whole hole frame
 // about kA and kD (see init).
-func (m *model) partials(which int) (v geom.Vec3, g [5]geom.Vec3) {
-	n, l := m.eval(0, 0, 0, 0, 0)
+func (m *model) partials(n, l geom.Vec3, which int) (v geom.Vec3, g [5]geom.Vec3) {
 	v = n
 	if which == 1 {
 		v = l
@@ -565,8 +607,8 @@ func (m *model) partials(which int) (v geom.Vec3, g [5]geom.Vec3) {
 	if which == 1 {
 		g[2] = n.Cross(v)
 	}
-	g[3] = m.kA.Cross(v)
-	g[4] = m.kD.Cross(v)
+	g[3] = m.kA().Cross(v)
+	g[4] = m.kD().Cross(v)
 	return v, g
 }
 
@@ -618,6 +660,7 @@ func (z normals) table(sig [5]float64, t table) table {
 // scratch holds one worker's Monte Carlo buffers and a cache of tables by
 // standard errors.
 type scratch struct {
+	m model // the measurement's
 	z normals
 	// whenNeeded: run the Monte Carlo only where NeedsMonteCarlo says so.
 	whenNeeded bool
@@ -660,8 +703,8 @@ func Measure(r Reading, mc MC) (Result, error) {
 }
 
 func measure(r Reading, sc *scratch) (Result, error) {
-	m, err := newModel(r)
-	if err != nil {
+	m := &sc.m
+	if err := m.init(r); err != nil {
 		return Result{}, err
 	}
 	n0, l0 := m.eval(0, 0, 0, 0, 0)
@@ -684,7 +727,7 @@ func measure(r Reading, sc *scratch) (Result, error) {
 		}
 		ln := geom.LineOf(m.world(cs[i].v0))
 		e.Trend, e.Plunge = ln.Trend, ln.Plunge
-		e.FirstOrder = m.firstOrder(&cs[i], i)
+		e.FirstOrder = m.firstOrder(n0, l0, &cs[i], i)
 		e.Used = "first-order"
 		need[i] = NeedsMonteCarlo(cs[i].phi(), e.FirstOrder)
 	}
@@ -722,8 +765,12 @@ func mcRegions(m *model, cs []coords, tab table, sc *scratch, est []Estimate) {
 				v = l
 			}
 			c := &cs[i]
-			sc.c[i][j] = 1 - math.Abs(v.Dot(c.v0))
-			u, w := c.of(v)
+			d := v.Dot(c.v0)
+			if d < 0 {
+				v, d = v.Neg(), -d
+			}
+			sc.c[i][j] = 1 - d
+			u, w := c.ofNear(v, d)
 			sc.u[i][j], sc.w[i][j] = u, w
 			sums[i][0] += u * u
 			sums[i][1] += u * w

@@ -2,6 +2,7 @@ package uncertainty
 
 import (
 	"math"
+	"slices"
 
 	"corvane/internal/geom"
 )
@@ -122,4 +123,105 @@ func refSetFirstOrder(ms []Member, lines bool) (SetResult, error) {
 	}
 	res.dominant()
 	return res, nil
+}
+
+// refEvalSC is evalSC with the survey turns by Rodrigues' formula about
+// the axes as computed, whatever their direction.
+func (m *model) refEvalSC(t *[10]float64) (n, l geom.Vec3) {
+	up := geom.Vec3{Z: 1}
+	kD, kA := m.frameOf(m.frame[2].Cross(up).Unit()), m.frameOf(up.Neg())
+	s, c := t[0], t[1]
+	sa, ca := m.sa*c+m.ca*s, m.ca*c-m.sa*s
+	s, c = t[2], t[3]
+	sb, cb := m.sb*c+m.cb*s, m.cb*c-m.sb*s
+	d := geom.Vec3{X: m.apex * cb, Y: m.apex * sb}
+	n = geom.Vec3{X: -ca * d.X, Y: -ca * d.Y, Z: sa}
+	if m.hasGamma {
+		e := geom.Vec3{X: -sa * n.X, Y: -sa * n.Y, Z: 1 - sa*n.Z}
+		if en := e.Norm(); en < 1e-12 {
+			e = d
+		} else {
+			e = e.Scale(1 / en)
+		}
+		s, c = t[4], t[5]
+		sg, cg := m.sg*c+m.cg*s, m.cg*c-m.sg*s
+		l = e.Scale(cg).Add(n.Cross(e).Scale(sg))
+	}
+	if s, c = t[8], t[9]; s != 0 {
+		n = rotate(n, kD, s, c)
+		if m.hasGamma {
+			l = rotate(l, kD, s, c)
+		}
+	}
+	if s, c = t[6], t[7]; s != 0 {
+		n = rotate(n, kA, s, c)
+		if m.hasGamma {
+			l = rotate(l, kA, s, c)
+		}
+	}
+	return n, l
+}
+
+// refMcRegions is mcRegions draw by draw through refEvalSC and coords.of,
+// each quantile by a full sort.
+func refMcRegions(m *model, cs []coords, tab table, est []Estimate) {
+	nd, draws := len(cs), len(tab)
+	var us, ws, cc [2][]float64
+	for i := 0; i < nd; i++ {
+		us[i], ws[i], cc[i] = make([]float64, draws), make([]float64, draws), make([]float64, draws)
+	}
+	k := quantileRank(draws, 0.95)
+	kth := func(x []float64) float64 {
+		y := slices.Clone(x)
+		slices.Sort(y)
+		return y[len(y)-k]
+	}
+	var sums [2][3]float64
+	for j := range tab {
+		n, l := m.refEvalSC(&tab[j])
+		for i := 0; i < nd; i++ {
+			v := n
+			if i == 1 {
+				v = l
+			}
+			c := &cs[i]
+			cc[i][j] = 1 - math.Abs(v.Dot(c.v0))
+			u, w := c.of(v)
+			us[i][j], ws[i][j] = u, w
+			sums[i][0] += u * u
+			sums[i][1] += u * w
+			sums[i][2] += w * w
+		}
+	}
+	for i := 0; i < nd; i++ {
+		r := &Region{cuu: sums[i][0] / float64(draws), cuv: sums[i][1] / float64(draws), cvv: sums[i][2] / float64(draws)}
+		det := r.cuu*r.cvv - r.cuv*r.cuv
+		e := &est[i]
+		r.Cone95 = geom.Deg(math.Acos(math.Max(-1, math.Min(1, 1-kth(cc[i])))))
+		r.q = chi2q95
+		if det > 0 {
+			d2 := make([]float64, draws)
+			for j := range d2 {
+				u, w := us[i][j], ws[i][j]
+				d2[j] = (r.cvv*u*u - 2*r.cuv*u*w + r.cuu*w*w) / det
+			}
+			r.q = kth(d2)
+		}
+		r.finish()
+		e.MonteCarlo, e.Draws = r, draws
+		if !Agrees(e.FirstOrder, *r) {
+			e.Used = "monte-carlo"
+		}
+	}
+}
+
+// rotate turns v about a fixed unit axis k by an angle given by its
+// sine and cosine (Rodrigues' formula).
+func rotate(v, k geom.Vec3, s, c float64) geom.Vec3 {
+	kv := k.Dot(v) * (1 - c)
+	return geom.Vec3{
+		X: v.X*c + (k.Y*v.Z-k.Z*v.Y)*s + k.X*kv,
+		Y: v.Y*c + (k.Z*v.X-k.X*v.Z)*s + k.Y*kv,
+		Z: v.Z*c + (k.X*v.Y-k.Y*v.X)*s + k.Z*kv,
+	}
 }

@@ -219,7 +219,8 @@ func setFirstOrder(ms []Member, lines bool) (SetResult, error) {
 		// The derivatives of the member's direction (model.partials, frame
 		// coordinates) dotted with the tangent directions at the mean taken
 		// to the member's frame, scaled by sign / R.
-		_, g := md.partials(d.which)
+		n, l := md.eval(0, 0, 0, 0, 0)
+		_, g := md.partials(n, l, d.which)
 		sc := d.sign[i] / d.f.R
 		a1, a2 := md.frameOf(t1).Scale(sc), md.frameOf(t2).Scale(sc)
 		var js [5][2]float64
