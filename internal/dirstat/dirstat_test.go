@@ -201,6 +201,14 @@ func TestAxialFlipInvariance(t *testing.T) {
 		}
 		f1, _ := FisherMean(vs, nil, true)
 		f2, _ := FisherMean(flipped, nil, true)
+		// Without the spread: every other figure the same.
+		f3, _ := FisherMeanNoSpread(flipped, nil, true)
+		if !math.IsNaN(f3.Spread) || math.IsNaN(f2.Spread) {
+			t.Errorf("spreads %v and %v, want NaN and a value", f3.Spread, f2.Spread)
+		}
+		if f3.Spread = f2.Spread; f3 != f2 {
+			t.Errorf("FisherMeanNoSpread %+v, FisherMean %+v", f3, f2)
+		}
 		near(t, "R", f2.R, f1.R, 1e-9)
 		near(t, "k", f2.K, f1.K, 1e-6*f1.K)
 		near(t, "cone", f2.Cone95, f1.Cone95, 1e-7)

@@ -87,6 +87,17 @@ func ConeExact(n, r, p float64) float64 {
 // It returns ErrTooFew for no vectors and an error for a bad weight or a zero
 // resultant (no mean direction).
 func FisherMean(vs []geom.Vec3, w []float64, axial bool) (Fisher, error) {
+	return fisherMean(vs, w, axial, true)
+}
+
+// FisherMeanNoSpread is [FisherMean] without the spread (Spread is NaN),
+// which costs an angle per vector: for callers that need the mean, R, k and
+// the cone only.
+func FisherMeanNoSpread(vs []geom.Vec3, w []float64, axial bool) (Fisher, error) {
+	return fisherMean(vs, w, axial, false)
+}
+
+func fisherMean(vs []geom.Vec3, w []float64, axial, spread bool) (Fisher, error) {
 	n := len(vs)
 	if n == 0 {
 		return Fisher{}, ErrTooFew
@@ -148,7 +159,7 @@ func FisherMean(vs []geom.Vec3, w []float64, axial bool) (Fisher, error) {
 	}
 	f.Cone95 = ConeExact(nf, r, 0.05)
 	f.Theta63 = 81 / math.Sqrt(f.K)
-	if n >= 2 {
+	if n >= 2 && spread {
 		var s float64
 		for i, v := range vs {
 			d := geom.Angle(v, mean)

@@ -362,12 +362,13 @@ func groupReport(g *group, used []Row, withUnc bool, method string, budget *int)
 			cache = newMembers(used, !planes)
 		}
 		return func() *SetUncertainty {
-			idx := make([]int, 0, len(g.rows))
+			idx := cache.idx[:0]
 			for i, r := range g.rows {
 				if j < 0 || g.assign[i] == j {
 					idx = append(idx, r)
 				}
 			}
+			cache.idx = idx
 			return setUncertainty(cache, used, idx, method, budget)
 		}
 	}
@@ -385,6 +386,9 @@ func groupReport(g *group, used []Row, withUnc bool, method string, budget *int)
 		}
 		un := g.unassigned()
 		jg.Unassigned = &un
+	}
+	if cache != nil {
+		cache.done()
 	}
 	return jg
 }

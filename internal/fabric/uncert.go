@@ -3,7 +3,9 @@ package fabric
 import (
 	"fmt"
 	"math"
+	"slices"
 	"strconv"
+	"sync"
 
 	"corvane/internal/coreangle"
 	"corvane/internal/uncertainty"
@@ -22,6 +24,8 @@ type Errors struct {
 	// with the same run start share one; NaN (no run known) is an error of
 	// the row's own.
 	RunFrom float64
+
+	run string // the key of the mark error (runKey), made once by RowErrors
 }
 
 // RowErrors returns a row's errors under the error model em: the survey
@@ -34,7 +38,9 @@ func RowErrors(em uncertainty.Model, holeID, instrument, confidence string, mism
 	if err != nil {
 		k = uncertainty.UnknownSurvey
 	}
-	return &Errors{Sigma: em.Sigmas(k, confidence, mismatch, 0), HoleID: holeID, RunFrom: runFrom}
+	e := &Errors{Sigma: em.Sigmas(k, confidence, mismatch, 0), HoleID: holeID, RunFrom: runFrom}
+	e.run = e.runKey()
+	return e
 }
 
 // Set uncertainty settings of the Monte Carlo method: the trials of each
@@ -159,7 +165,7 @@ func member(r Row, lines bool) (uncertainty.Member, bool) {
 	if !ok || lines && math.IsNaN(rd.Gamma) {
 		return uncertainty.Member{}, false
 	}
-	return uncertainty.Member{Reading: rd, Run: r.Errors.runKey(), Survey: r.Errors.HoleID}, true
+	return uncertainty.Member{Reading: rd, Run: r.Errors.run, Survey: r.Errors.HoleID}, true
 }
 
 // reading returns the reading of a used row with a plane (and its line
@@ -187,19 +193,33 @@ func reading(r Row, withLine bool) (uncertainty.Reading, bool) {
 	return rd, true
 }
 
-// setUncertainty returns the measurement uncertainty of the poles (or, for
-// members of lines, the lineations) of the used rows idx; budget is the axes the
-// report may still carry, reduced by this set's.
 // members memoises the uncertainty members of the used rows of a group,
-// so that a row of "all" and of its set is read once.
+// so that a row of "all" and of its set is read once, and holds the
+// buffers of one set at a time. Its storage is reused from report to report
+// (newMembers, done).
 type members struct {
 	lines bool
 	ms    []uncertainty.Member
 	state []int8 // 0 not read yet, 1 a member, -1 none
+	idx   []int  // the rows of the set at hand
+	set   []uncertainty.Member
 }
 
+var membersPool = sync.Pool{New: func() any { return new(members) }}
+
 func newMembers(rows []Row, lines bool) *members {
-	return &members{lines: lines, ms: make([]uncertainty.Member, len(rows)), state: make([]int8, len(rows))}
+	c := membersPool.Get().(*members)
+	c.lines = lines
+	c.ms, c.state = slices.Grow(c.ms[:0], len(rows))[:len(rows)], slices.Grow(c.state[:0], len(rows))[:len(rows)]
+	clear(c.state)
+	return c
+}
+
+// done gives c's storage back for another report; c is not used after.
+func (c *members) done() {
+	clear(c.ms) // drop the strings the members point to
+	clear(c.set)
+	membersPool.Put(c)
 }
 
 func (c *members) get(rows []Row, i int) (uncertainty.Member, bool) {
@@ -212,6 +232,9 @@ func (c *members) get(rows []Row, i int) (uncertainty.Member, bool) {
 	return c.ms[i], c.state[i] == 1
 }
 
+// setUncertainty returns the measurement uncertainty of the poles (or, for
+// members of lines, the lineations) of the used rows idx; budget is the axes the
+// report may still carry, reduced by this set's.
 func setUncertainty(c *members, rows []Row, idx []int, method string, budget *int) *SetUncertainty {
 	lines := c.lines
 	mc := method == SetUncertaintyMonteCarlo
@@ -223,7 +246,8 @@ func setUncertainty(c *members, rows []Row, idx []int, method string, budget *in
 	if mc {
 		*budget -= len(idx)
 	}
-	ms := make([]uncertainty.Member, 0, len(idx))
+	ms := slices.Grow(c.set[:0], len(idx))
+	defer func() { c.set = ms }()
 	left := 0
 	for _, i := range idx {
 		if m, ok := c.get(rows, i); ok {

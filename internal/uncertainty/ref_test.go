@@ -50,7 +50,7 @@ func (m *model) refFirstOrder(cs *coords, which int) Region {
 // refSetFirstOrder is setFirstOrder with every member's derivatives by
 // central differences and the exact cones.
 func refSetFirstOrder(ms []Member, lines bool) (SetResult, error) {
-	d, err := prepareSet(ms, lines, false)
+	d, err := prepareSet(ms, lines)
 	if err != nil {
 		return SetResult{}, err
 	}

@@ -4,6 +4,8 @@ import (
 	"errors"
 	"math"
 	"math/rand/v2"
+	"slices"
+	"sync"
 
 	"corvane/internal/dirstat"
 	"corvane/internal/geom"
@@ -84,73 +86,102 @@ func SetMeanFirstOrder(ms []Member) (SetResult, error) { return setFirstOrder(ms
 // SetMeanLinesFirstOrder is [SetMeanLines] by first-order propagation.
 func SetMeanLinesFirstOrder(ms []Member) (SetResult, error) { return setFirstOrder(ms, true) }
 
-// setData is what both methods need of a set: each member's direction
-// (world, sign towards the mean), the keys of its shared errors and their
-// standard errors (radians), and the Fisher mean; the Monte Carlo method
-// also keeps each member's exact model (the first-order one rebuilds a
-// member's model when it needs it, which costs less than keeping them).
-type setData struct {
-	models        []*model // Monte Carlo only
-	poles         []geom.Vec3
-	sign          []float64
+// setKeys numbers the shared errors of a set's members: runOf[i] and
+// survOf[i] index member i's mark error and survey error, whose standard
+// errors (radians) are markSig and survSig.
+type setKeys struct {
+	runs, survs   map[string]int
 	runOf, survOf []int
 	markSig       []float64
 	survSig       [][2]float64
-	f             dirstat.Fisher
-	which         int // 0 poles, 1 lines
-	res           SetResult
+	// The keys of the member added last.
+	lastRun, lastSurv string
+}
+
+// reset empties k for n members, keeping its storage.
+func (k *setKeys) reset(n int) {
+	if k.runs == nil {
+		k.runs, k.survs = map[string]int{}, map[string]int{}
+	}
+	clear(k.runs)
+	clear(k.survs)
+	k.runOf, k.survOf = grow(k.runOf, n), grow(k.survOf, n)
+	k.markSig, k.survSig = k.markSig[:0], k.survSig[:0]
+}
+
+// add numbers member i, m. Members of a run or a survey interval usually
+// come one after another, so the previous member's keys are tried first.
+func (k *setKeys) add(i int, m *Member) {
+	if i > 0 && m.Run != "" && m.Run == k.lastRun {
+		k.runOf[i] = k.runOf[i-1]
+	} else {
+		r, ok := k.runs[m.Run]
+		if !ok || m.Run == "" {
+			r = len(k.markSig)
+			k.markSig = append(k.markSig, geom.Rad(m.Sigma.Mark))
+			if m.Run != "" {
+				k.runs[m.Run] = r
+			}
+		}
+		k.runOf[i], k.lastRun = r, m.Run
+	}
+	if i > 0 && m.Survey != "" && m.Survey == k.lastSurv {
+		k.survOf[i] = k.survOf[i-1]
+	} else {
+		s, ok := k.survs[m.Survey]
+		if !ok || m.Survey == "" {
+			s = len(k.survSig)
+			k.survSig = append(k.survSig, [2]float64{geom.Rad(m.Sigma.Azimuth), geom.Rad(m.Sigma.Dip)})
+			if m.Survey != "" {
+				k.survs[m.Survey] = s
+			}
+		}
+		k.survOf[i], k.lastSurv = s, m.Survey
+	}
+}
+
+// setData is what the Monte Carlo method needs of a set: each member's
+// exact model and direction (world, sign towards the mean), the keys of its
+// shared errors, and the Fisher mean.
+type setData struct {
+	setKeys
+	models []*model
+	poles  []geom.Vec3
+	sign   []float64
+	f      dirstat.Fisher
+	which  int // 0 poles, 1 lines
+	res    SetResult
 }
 
 func (d *setData) dir(n, l geom.Vec3) geom.Vec3 { return pick(n, l)(d.which) }
 
-// prepareSet reads the members (see setData); keep keeps their models.
-func prepareSet(ms []Member, lines, keep bool) (*setData, error) {
+// errNoGamma is the error of a set of lines with a member without one.
+var errNoGamma = errors.New("uncertainty: a member of a set of lines has no gamma")
+
+// prepareSet reads the members (see setData).
+func prepareSet(ms []Member, lines bool) (*setData, error) {
 	if len(ms) == 0 {
 		return nil, dirstat.ErrTooFew
 	}
-	var block []model
-	d := &setData{poles: make([]geom.Vec3, len(ms)), runOf: make([]int, len(ms)), survOf: make([]int, len(ms))}
-	if keep {
-		block, d.models = make([]model, len(ms)), make([]*model, len(ms))
-	}
+	block := make([]model, len(ms))
+	d := &setData{models: make([]*model, len(ms)), poles: make([]geom.Vec3, len(ms))}
+	d.reset(len(ms))
 	if lines {
 		d.which = 1
 	}
-	runs, survs := map[string]int{}, map[string]int{}
-	var one model
-	for i, m := range ms {
-		md := &one
-		if keep {
-			md = &block[i]
-			d.models[i] = md
-		}
-		if err := md.init(m.Reading); err != nil {
+	for i := range ms {
+		md := &block[i]
+		if err := md.init(ms[i].Reading); err != nil {
 			return nil, err
 		}
 		if lines && !md.hasGamma {
-			return nil, errors.New("uncertainty: a member of a set of lines has no gamma")
+			return nil, errNoGamma
 		}
+		d.models[i] = md
 		d.poles[i] = md.world(d.dir(md.eval(0, 0, 0, 0, 0)))
-		k, ok := runs[m.Run]
-		if !ok || m.Run == "" {
-			k = len(d.markSig)
-			d.markSig = append(d.markSig, geom.Rad(m.Sigma.Mark))
-			if m.Run != "" {
-				runs[m.Run] = k
-			}
-		}
-		d.runOf[i] = k
-		k, ok = survs[m.Survey]
-		if !ok || m.Survey == "" {
-			k = len(d.survSig)
-			d.survSig = append(d.survSig, [2]float64{geom.Rad(m.Sigma.Azimuth), geom.Rad(m.Sigma.Dip)})
-			if m.Survey != "" {
-				survs[m.Survey] = k
-			}
-		}
-		d.survOf[i] = k
+		d.add(i, &ms[i])
 	}
-	f, err := dirstat.FisherMean(d.poles, nil, true)
+	f, err := dirstat.FisherMeanNoSpread(d.poles, nil, true)
 	if err != nil {
 		return nil, err
 	}
@@ -162,9 +193,15 @@ func prepareSet(ms []Member, lines, keep bool) (*setData, error) {
 			d.sign[i] = -1
 		}
 	}
-	l := geom.LineOf(f.Mean)
-	d.res = SetResult{N: len(ms), Trend: l.Trend, Plunge: l.Plunge, Fisher95: f.Cone95}
+	d.res = setResultOf(len(ms), f)
 	return d, nil
+}
+
+// setResultOf is the part of a set's result both methods share: the mean
+// and its Fisher cone.
+func setResultOf(n int, f dirstat.Fisher) SetResult {
+	l := geom.LineOf(f.Mean)
+	return SetResult{N: n, Trend: l.Trend, Plunge: l.Plunge, Fisher95: f.Cone95}
 }
 
 // dominant sets res.Dominant from its cones.
@@ -195,77 +232,136 @@ func (r *SetResult) dominant() {
 // scatter, and treats the Fisher distribution of the mean as normal, which
 // narrows its tail for sets of very few members.
 func setFirstOrder(ms []Member, lines bool) (SetResult, error) {
-	d, err := prepareSet(ms, lines, false)
+	if len(ms) == 0 {
+		return SetResult{}, dirstat.ErrTooFew
+	}
+	w := setWorkPool.Get().(*setWork)
+	defer setWorkPool.Put(w)
+	w.reset(len(ms))
+	w.dirs, w.shared = grow(w.dirs, len(ms)), grow(w.shared, len(ms))
+	which := 0
+	if lines {
+		which = 1
+	}
+	// First pass: each member's direction and derivatives (world frame,
+	// model.partials). The reading errors, and the shared errors taken per
+	// member, enter as outer products g g^T sigma^2, which depend neither on
+	// the member's sign towards the mean nor on the tangent plane at it; the
+	// derivatives of the shared sources are kept for the second pass.
+	var reading, indep sym3
+	var md model
+	for i := range ms {
+		m := &ms[i]
+		if err := md.init(m.Reading); err != nil {
+			return SetResult{}, err
+		}
+		if lines && !md.hasGamma {
+			return SetResult{}, errNoGamma
+		}
+		n, l := md.eval(0, 0, 0, 0, 0)
+		v, g := md.partials(n, l, which)
+		w.dirs[i] = md.world(v)
+		gb, ga, gd := md.world(g[1]), md.world(g[3]), md.world(g[4])
+		reading.add(md.world(g[0]), geom.Rad(m.Sigma.Alpha))
+		reading.add(gb, geom.Rad(m.Sigma.Beta))
+		if lines {
+			reading.add(md.world(g[2]), geom.Rad(m.Sigma.Gamma))
+		}
+		indep.add(gb, geom.Rad(m.Sigma.Mark))
+		indep.add(ga, geom.Rad(m.Sigma.Azimuth))
+		indep.add(gd, geom.Rad(m.Sigma.Dip))
+		w.shared[i] = [3]geom.Vec3{gb, ga, gd}
+		w.add(i, m)
+	}
+	f, err := dirstat.FisherMeanNoSpread(w.dirs, nil, true)
 	if err != nil {
 		return SetResult{}, err
 	}
-	mean := d.f.Mean
-	t1 := perpendicular(mean)
-	t2 := mean.Cross(t1)
+	// Second pass: the shared sources' derivatives summed over the members
+	// sharing them, each member turned towards the mean.
+	marks, survs := grow(w.marks, len(w.markSig)), grow(w.survs, len(w.survSig))
+	clear(marks)
+	clear(survs)
+	for i, p := range w.dirs {
+		sh := &w.shared[i]
+		if p.Dot(f.Mean) < 0 {
+			sh[0], sh[1], sh[2] = sh[0].Neg(), sh[1].Neg(), sh[2].Neg()
+		}
+		r, s := w.runOf[i], w.survOf[i]
+		marks[r] = marks[r].Add(sh[0])
+		survs[s][0] = survs[s][0].Add(sh[1])
+		survs[s][1] = survs[s][1].Add(sh[2])
+	}
+	w.marks, w.survs = marks, survs
+	// The tangent-plane components at the mean, divided by R.
+	t1 := perpendicular(f.Mean).Scale(1 / f.R)
+	t2 := f.Mean.Cross(perpendicular(f.Mean)).Scale(1 / f.R)
 	type cov struct{ a, b, c float64 }
-	add := func(c *cov, j [2]float64, s float64) {
-		c.a += j[0] * j[0] * s * s
-		c.b += j[0] * j[1] * s * s
-		c.c += j[1] * j[1] * s * s
+	add := func(c *cov, g geom.Vec3, s float64) {
+		j0, j1 := g.Dot(t1), g.Dot(t2)
+		c.a += j0 * j0 * s * s
+		c.b += j0 * j1 * s * s
+		c.c += j1 * j1 * s * s
 	}
-	marks := make([][2]float64, len(d.markSig))
-	survs := make([][2][2]float64, len(d.survSig))
-	var reading, indep cov
-	var md model
-	for i := range ms {
-		if err := md.init(ms[i].Reading); err != nil {
-			return SetResult{}, err
-		}
-		// The derivatives of the member's direction (model.partials, frame
-		// coordinates) dotted with the tangent directions at the mean taken
-		// to the member's frame, scaled by sign / R.
-		n, l := md.eval(0, 0, 0, 0, 0)
-		_, g := md.partials(n, l, d.which)
-		sc := d.sign[i] / d.f.R
-		a1, a2 := md.frameOf(t1).Scale(sc), md.frameOf(t2).Scale(sc)
-		var js [5][2]float64
-		for k := range js {
-			js[k] = [2]float64{g[k].Dot(a1), g[k].Dot(a2)}
-		}
-		sig := ms[i].Sigma
-		add(&reading, js[0], geom.Rad(sig.Alpha))
-		add(&reading, js[1], geom.Rad(sig.Beta))
-		if lines {
-			add(&reading, js[2], geom.Rad(sig.Gamma))
-		}
-		add(&indep, js[1], geom.Rad(sig.Mark))
-		add(&indep, js[3], geom.Rad(sig.Azimuth))
-		add(&indep, js[4], geom.Rad(sig.Dip))
-		r, s := d.runOf[i], d.survOf[i]
-		for x := 0; x < 2; x++ {
-			marks[r][x] += js[1][x]
-			survs[s][0][x] += js[3][x]
-			survs[s][1][x] += js[4][x]
-		}
-	}
+	proj := func(m sym3) cov { return cov{m.quad(t1, t1), m.quad(t1, t2), m.quad(t2, t2)} }
 	var shared cov
-	for r, j := range marks {
-		add(&shared, j, d.markSig[r])
+	for r, g := range marks {
+		add(&shared, g, w.markSig[r])
 	}
-	for s, j := range survs {
-		add(&shared, j[0], d.survSig[s][0])
-		add(&shared, j[1], d.survSig[s][1])
+	for s, g := range survs {
+		add(&shared, g[0], w.survSig[s][0])
+		add(&shared, g[1], w.survSig[s][1])
 	}
+	rd, in := proj(reading), proj(indep)
 	deg2 := geom.Deg(1) * geom.Deg(1)
 	cone := func(c cov) float64 { return cone95(c.a*deg2, c.b*deg2, c.c*deg2) }
-	res := d.res
+	res := setResultOf(len(ms), f)
 	res.Method = SetFirstOrder
-	res.Measurement95 = cone(cov{shared.a + reading.a, shared.b + reading.b, shared.c + reading.c})
+	res.Measurement95 = cone(cov{shared.a + rd.a, shared.b + rd.b, shared.c + rd.c})
 	res.Shared95 = cone(shared)
-	res.SharedIndependent95 = cone(indep)
+	res.SharedIndependent95 = cone(in)
 	res.Combined95 = res.Shared95
-	if d.f.N >= 2 && res.Fisher95 > 0 {
+	if f.N >= 2 && res.Fisher95 > 0 {
 		v := (1 - math.Pow(res.SharedIndependent95/res.Fisher95, 2)) * res.Fisher95 * res.Fisher95 / chi2q95
 		v = math.Max(0, v) / deg2
 		res.Combined95 = cone(cov{shared.a + v, shared.b, shared.c + v})
 	}
 	res.dominant()
 	return res, nil
+}
+
+// setWork is the first-order method's storage, reused from set to set so
+// that a set costs no allocation per member.
+type setWork struct {
+	setKeys
+	dirs   []geom.Vec3
+	shared [][3]geom.Vec3 // derivatives by the mark, survey azimuth and dip
+	marks  []geom.Vec3
+	survs  [][2]geom.Vec3
+}
+
+var setWorkPool = sync.Pool{New: func() any { return new(setWork) }}
+
+// grow returns s resliced to length n, reallocated if its capacity is short.
+func grow[T any](s []T, n int) []T { return slices.Grow(s[:0], n)[:n] }
+
+// sym3 is a symmetric 3x3 matrix: xx, xy, xz, yy, yz, zz.
+type sym3 [6]float64
+
+// add adds s^2 g g^T.
+func (m *sym3) add(g geom.Vec3, s float64) {
+	x, y, z := g.X*s, g.Y*s, g.Z*s
+	m[0] += x * x
+	m[1] += x * y
+	m[2] += x * z
+	m[3] += y * y
+	m[4] += y * z
+	m[5] += z * z
+}
+
+// quad returns a^T m b.
+func (m *sym3) quad(a, b geom.Vec3) float64 {
+	return a.X*(m[0]*b.X+m[1]*b.Y+m[2]*b.Z) + a.Y*(m[1]*b.X+m[3]*b.Y+m[4]*b.Z) + a.Z*(m[2]*b.X+m[4]*b.Y+m[5]*b.Z)
 }
 
 func setMean(ms []Member, mc MC, lines bool) (SetResult, error) {
@@ -275,7 +371,7 @@ func setMean(ms []Member, mc MC, lines bool) (SetResult, error) {
 	if mc.Draws < 100 {
 		return SetResult{}, errors.New("uncertainty: a set needs at least 100 Monte Carlo draws")
 	}
-	d, err := prepareSet(ms, lines, true)
+	d, err := prepareSet(ms, lines)
 	if err != nil {
 		return SetResult{}, err
 	}
