@@ -20,20 +20,36 @@ func sincos(x float64) (s, c float64) {
 	return math.Sincos(x)
 }
 
-// atan is math.Atan with a fast path for |t| < 0.15 (an angle of up to 8.5
-// degrees): the series of atan to t^9, error below 1e-10 rad.
+// small2 is the square of the largest argument, 0.15, of the series of
+// atanSeries and asinSeries.
+const small2 = 0.0225
+
+// atanSeries is atan(t) by its series to t^9 for |t| < 0.15 (an angle of up
+// to 8.5 degrees): error below 1e-10 rad.
+func atanSeries(t float64) float64 {
+	t2 := t * t
+	return t * (1 - t2*(1.0/3-t2*(1.0/5-t2*(1.0/7-t2/9))))
+}
+
+// asinSeries is asin(s) by its series to s^7 for |s| < 0.15: error below
+// 2e-9 rad.
+func asinSeries(s float64) float64 {
+	s2 := s * s
+	return s * (1 + s2*(1.0/6+s2*(3.0/40+s2*(5.0/112))))
+}
+
+// atan is math.Atan with the fast path atanSeries.
 func atan(t float64) float64 {
-	if t2 := t * t; t2 < 0.0225 {
-		return t * (1 - t2*(1.0/3-t2*(1.0/5-t2*(1.0/7-t2/9))))
+	if t*t < small2 {
+		return atanSeries(t)
 	}
 	return math.Atan(t)
 }
 
-// asin returns asin(s) with a fast path for |s| < 0.15 (the series to s^7,
-// error below 2e-9 rad).
+// asin is math.Asin with the fast path asinSeries.
 func asin(s float64) float64 {
-	if s2 := s * s; s2 < 0.0225 {
-		return s * (1 + s2*(1.0/6+s2*(3.0/40+s2*(5.0/112))))
+	if s*s < small2 {
+		return asinSeries(s)
 	}
 	return math.Asin(s)
 }

@@ -527,6 +527,9 @@ func (c *coords) ofNear(v geom.Vec3, d float64) (u, w float64) {
 		x, y := v.X*c.cp+v.Y*c.sp, v.Y*c.cp-v.X*c.sp
 		sd, cd := rho*c.c0-v.Z*c.s0, v.Z*c.c0+rho*c.s0
 		if x > 0 && cd > 0 {
+			if sp := y / rho; sp*sp < small2 && sd*sd < small2 {
+				return asinSeries(sp) * c.sinPhiDg, geom.Deg(asinSeries(sd))
+			}
 			return asin(y/rho) * c.sinPhiDg, geom.Deg(asin(sd))
 		}
 		return math.Atan2(y, x) * c.sinPhiDg, geom.Deg(math.Atan2(sd, cd))
@@ -534,7 +537,11 @@ func (c *coords) ofNear(v geom.Vec3, d float64) (u, w float64) {
 	// atan2(y, d) = atan(y/d) for d > 0 (d = 0, a draw at right angles to
 	// v0, gives +-90 degrees by either).
 	id := 1 / d
-	return geom.Deg(atan(v.Dot(c.t1) * id)), geom.Deg(atan(v.Dot(c.t2) * id))
+	a, b := v.Dot(c.t1)*id, v.Dot(c.t2)*id
+	if a*a < small2 && b*b < small2 {
+		return geom.Deg(atanSeries(a)), geom.Deg(atanSeries(b))
+	}
+	return geom.Deg(atan(a)), geom.Deg(atan(b))
 }
 
 // inv is the inverse of of: the unit vector (frame coordinates) at region
