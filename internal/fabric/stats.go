@@ -359,7 +359,7 @@ func groupReport(g *group, used []Row, withUnc bool, method string, budget *int)
 			return nil
 		}
 		if cache == nil {
-			cache = newMembers(used, !planes)
+			cache = newMembers(used, !planes, len(g.rows))
 		}
 		return func() *SetUncertainty {
 			idx := cache.idx[:0]

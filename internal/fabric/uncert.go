@@ -193,43 +193,56 @@ func reading(r Row, withLine bool) (uncertainty.Reading, bool) {
 	return rd, true
 }
 
-// members memoises the uncertainty members of the used rows of a group,
-// so that a row of "all" and of its set is read once, and holds the
-// buffers of one set at a time. Its storage is reused from report to report
-// (newMembers, done).
+// members reads the uncertainty members of the used rows of a group for
+// its sets: by first order each row once into the group's terms, so that a
+// row of "all" and of its set is read once; by Monte Carlo (at most
+// MaxUncertaintyPoles a report) the members of each set. It holds the
+// buffers of one set at a time, reused from report to report (newMembers,
+// done).
 type members struct {
-	lines bool
-	ms    []uncertainty.Member
-	state []int8 // 0 not read yet, 1 a member, -1 none
-	idx   []int  // the rows of the set at hand
-	set   []uncertainty.Member
+	lines  bool
+	n      int // the rows of the group
+	terms  *uncertainty.FirstOrderTerms
+	termOf []int32 // by used row: 0 not read yet, -1 not a member, k+1 term k
+	idx    []int   // the rows of the set at hand
+	set    []int   // its terms
+	ms     []uncertainty.Member
 }
 
 var membersPool = sync.Pool{New: func() any { return new(members) }}
 
-func newMembers(rows []Row, lines bool) *members {
+// newMembers returns the members of rows for a group of about n of them.
+func newMembers(rows []Row, lines bool, n int) *members {
 	c := membersPool.Get().(*members)
-	c.lines = lines
-	c.ms, c.state = slices.Grow(c.ms[:0], len(rows))[:len(rows)], slices.Grow(c.state[:0], len(rows))[:len(rows)]
-	clear(c.state)
+	c.lines, c.terms, c.n = lines, nil, n
+	c.termOf = slices.Grow(c.termOf[:0], len(rows))[:len(rows)]
+	clear(c.termOf)
 	return c
 }
 
 // done gives c's storage back for another report; c is not used after.
 func (c *members) done() {
+	if c.terms != nil {
+		c.terms.Release()
+	}
 	clear(c.ms) // drop the strings the members point to
-	clear(c.set)
+	c.terms, c.ms = nil, c.ms[:0]
 	membersPool.Put(c)
 }
 
-func (c *members) get(rows []Row, i int) (uncertainty.Member, bool) {
-	if c.state[i] == 0 {
-		c.state[i] = -1
+// term returns the number of used row i's first-order terms, -1 when it is
+// not a member.
+func (c *members) term(rows []Row, i int) int {
+	if c.termOf[i] == 0 {
+		c.termOf[i] = -1
 		if m, ok := member(rows[i], c.lines); ok {
-			c.ms[i], c.state[i] = m, 1
+			if c.terms == nil {
+				c.terms = uncertainty.NewFirstOrderTerms(c.lines, c.n)
+			}
+			c.termOf[i] = int32(c.terms.Add(&m)) + 1
 		}
 	}
-	return c.ms[i], c.state[i] == 1
+	return int(c.termOf[i]) - 1
 }
 
 // setUncertainty returns the measurement uncertainty of the poles (or, for
@@ -246,17 +259,20 @@ func setUncertainty(c *members, rows []Row, idx []int, method string, budget *in
 	if mc {
 		*budget -= len(idx)
 	}
-	ms := slices.Grow(c.set[:0], len(idx))
-	defer func() { c.set = ms }()
-	left := 0
+	ms, set := c.ms[:0], c.set[:0]
 	for _, i := range idx {
-		if m, ok := c.get(rows, i); ok {
-			ms = append(ms, m)
-		} else {
-			left++
+		if mc {
+			if m, ok := member(rows[i], lines); ok {
+				ms = append(ms, m)
+			}
+		} else if k := c.term(rows, i); k >= 0 {
+			set = append(set, k)
 		}
 	}
-	su := &SetUncertainty{N: len(ms), Left: left}
+	c.ms, c.set = ms, set
+	n := len(ms) + len(set)
+	left := len(idx) - n
+	su := &SetUncertainty{N: n, Left: left}
 	nan := Num(math.NaN())
 	su.Fisher95, su.Measurement95, su.Shared95, su.Combined95 = nan, nan, nan, nan
 	if left > 0 {
@@ -266,7 +282,7 @@ func setUncertainty(c *members, rows []Row, idx []int, method string, budget *in
 		}
 		su.Note = fmt.Sprintf("%d of %d %s left out", left, len(idx), what)
 	}
-	if len(ms) < 2 {
+	if n < 2 {
 		if su.Note != "" {
 			su.Note += "; "
 		}
@@ -280,10 +296,8 @@ func setUncertainty(c *members, rows []Row, idx []int, method string, budget *in
 		res, err = uncertainty.SetMeanLines(ms, uncertainty.MC{Draws: SetDraws, Seed: SetSeed})
 	case mc:
 		res, err = uncertainty.SetMean(ms, uncertainty.MC{Draws: SetDraws, Seed: SetSeed})
-	case lines:
-		res, err = uncertainty.SetMeanLinesFirstOrder(ms)
-	default:
-		res, err = uncertainty.SetMeanFirstOrder(ms)
+	default: // uncertainty.SetMeanFirstOrder or SetMeanLinesFirstOrder of the set's members
+		res, err = c.terms.SetMean(set)
 	}
 	if err != nil {
 		su.Note = err.Error()

@@ -94,12 +94,12 @@ func testSetMeasurementUncertainty(t *testing.T, method string) {
 	budget := 25
 	idx1, idx2 := []int{0, 1, 2, 3, 4, 5, 6, 7, 8, 9, 10, 11, 13, 14, 15, 16, 17, 18, 19, 20}, []int{20, 21, 22, 23, 24, 25}
 	if method == SetUncertaintyMonteCarlo {
-		first, second := setUncertainty(newMembers(rows, false), rows, idx1, method, &budget), setUncertainty(newMembers(rows, false), rows, idx2, method, &budget)
+		first, second := setUncertainty(newMembers(rows, false, len(rows)), rows, idx1, method, &budget), setUncertainty(newMembers(rows, false, len(rows)), rows, idx2, method, &budget)
 		if first.N != 18 || first.Left != 2 || budget != 5 || second.N != 0 || !strings.Contains(second.Note, "not computed") || !math.IsNaN(float64(second.Measurement95)) {
 			t.Errorf("budget: first %+v, second %+v, left %d", first, second, budget)
 		}
 	} else {
-		first, second := setUncertainty(newMembers(rows, false), rows, idx1, SetUncertaintyFirstOrder, &budget), setUncertainty(newMembers(rows, false), rows, idx2, SetUncertaintyFirstOrder, &budget)
+		first, second := setUncertainty(newMembers(rows, false, len(rows)), rows, idx1, SetUncertaintyFirstOrder, &budget), setUncertainty(newMembers(rows, false, len(rows)), rows, idx2, SetUncertaintyFirstOrder, &budget)
 		if first.N != 18 || first.Left != 2 || budget != 25 || second.N != 6 || math.IsNaN(float64(second.Measurement95)) {
 			t.Errorf("first order: first %+v, second %+v, budget %d", first, second, budget)
 		}

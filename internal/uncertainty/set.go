@@ -88,55 +88,47 @@ func SetMeanLinesFirstOrder(ms []Member) (SetResult, error) { return setFirstOrd
 
 // setKeys numbers the shared errors of a set's members: runOf[i] and
 // survOf[i] index member i's mark error and survey error, whose standard
-// errors (radians) are markSig and survSig.
+// errors (radians, of the first member sharing them) are markSig and
+// survSig.
 type setKeys struct {
-	runs, survs   map[string]int
-	runOf, survOf []int
-	markSig       []float64
-	survSig       [][2]float64
-	// The keys of the member added last.
+	runs, survs       map[string]int32 // numbered by key
 	lastRun, lastSurv string
+	prevRun, prevSurv int32
+	nRun, nSurv       int32
+	runGroup          []int // the index in markSig of each key's number
+	survGroup         []int
+	runOf, survOf     []int
+	markSig           []float64
+	survSig           [][2]float64
 }
 
-// reset empties k for n members, keeping its storage.
-func (k *setKeys) reset(n int) {
-	if k.runs == nil {
-		k.runs, k.survs = map[string]int{}, map[string]int{}
-	}
-	clear(k.runs)
-	clear(k.survs)
-	k.runOf, k.survOf = grow(k.runOf, n), grow(k.survOf, n)
-	k.markSig, k.survSig = k.markSig[:0], k.survSig[:0]
+func newSetKeys(n int) setKeys {
+	return setKeys{runs: map[string]int32{}, survs: map[string]int32{}, runOf: make([]int, n), survOf: make([]int, n)}
 }
 
-// add numbers member i, m. Members of a run or a survey interval usually
-// come one after another, so the previous member's keys are tried first.
+// add numbers member i, m.
 func (k *setKeys) add(i int, m *Member) {
-	if i > 0 && m.Run != "" && m.Run == k.lastRun {
-		k.runOf[i] = k.runOf[i-1]
-	} else {
-		r, ok := k.runs[m.Run]
-		if !ok || m.Run == "" {
-			r = len(k.markSig)
-			k.markSig = append(k.markSig, geom.Rad(m.Sigma.Mark))
-			if m.Run != "" {
-				k.runs[m.Run] = r
-			}
+	r := key(m.Run, &k.lastRun, k.runs, &k.nRun, k.prevRun)
+	k.prevRun = r
+	if r < 0 || int(r) == len(k.runGroup) { // an error of its own, or a new key
+		if r >= 0 {
+			k.runGroup = append(k.runGroup, len(k.markSig))
 		}
-		k.runOf[i], k.lastRun = r, m.Run
+		k.markSig = append(k.markSig, geom.Rad(m.Sigma.Mark))
+		k.runOf[i] = len(k.markSig) - 1
+	} else {
+		k.runOf[i] = k.runGroup[r]
 	}
-	if i > 0 && m.Survey != "" && m.Survey == k.lastSurv {
-		k.survOf[i] = k.survOf[i-1]
-	} else {
-		s, ok := k.survs[m.Survey]
-		if !ok || m.Survey == "" {
-			s = len(k.survSig)
-			k.survSig = append(k.survSig, [2]float64{geom.Rad(m.Sigma.Azimuth), geom.Rad(m.Sigma.Dip)})
-			if m.Survey != "" {
-				k.survs[m.Survey] = s
-			}
+	s := key(m.Survey, &k.lastSurv, k.survs, &k.nSurv, k.prevSurv)
+	k.prevSurv = s
+	if s < 0 || int(s) == len(k.survGroup) {
+		if s >= 0 {
+			k.survGroup = append(k.survGroup, len(k.survSig))
 		}
-		k.survOf[i], k.lastSurv = s, m.Survey
+		k.survSig = append(k.survSig, [2]float64{geom.Rad(m.Sigma.Azimuth), geom.Rad(m.Sigma.Dip)})
+		k.survOf[i] = len(k.survSig) - 1
+	} else {
+		k.survOf[i] = k.survGroup[s]
 	}
 }
 
@@ -164,8 +156,7 @@ func prepareSet(ms []Member, lines bool) (*setData, error) {
 		return nil, dirstat.ErrTooFew
 	}
 	block := make([]model, len(ms))
-	d := &setData{models: make([]*model, len(ms)), poles: make([]geom.Vec3, len(ms))}
-	d.reset(len(ms))
+	d := &setData{setKeys: newSetKeys(len(ms)), models: make([]*model, len(ms)), poles: make([]geom.Vec3, len(ms))}
 	if lines {
 		d.which = 1
 	}
@@ -232,115 +223,253 @@ func (r *SetResult) dominant() {
 // scatter, and treats the Fisher distribution of the mean as normal, which
 // narrows its tail for sets of very few members.
 func setFirstOrder(ms []Member, lines bool) (SetResult, error) {
-	if len(ms) == 0 {
-		return SetResult{}, dirstat.ErrTooFew
+	t := NewFirstOrderTerms(lines, len(ms))
+	defer t.Release()
+	idx := make([]int, len(ms))
+	for i := range ms {
+		idx[i] = t.Add(&ms[i])
 	}
-	w := setWorkPool.Get().(*setWork)
-	defer setWorkPool.Put(w)
-	w.reset(len(ms))
-	w.dirs, w.shared = grow(w.dirs, len(ms)), grow(w.shared, len(ms))
+	return t.SetMean(idx)
+}
+
+// FirstOrderTerms holds what the first-order method needs of each member of
+// sets drawn from one pool of measurements (a report's "all" and each of its
+// sets): each member is read once ([FirstOrderTerms.Add]) and the cones of
+// any set of them are then sums ([FirstOrderTerms.SetMean]), the same as
+// [SetMeanFirstOrder] of those members (or [SetMeanLinesFirstOrder]). Its
+// storage is reused after [FirstOrderTerms.Release]. Not safe for
+// concurrent use.
+type FirstOrderTerms struct {
+	lines bool
+	terms []term
+	bad   map[int]error // the members that could not be read
+	// Every run and survey key, numbered in the order first added.
+	runs, survs       map[string]int32
+	lastRun, lastSurv string // the keys of the member added last
+	prevRun, prevSurv int32  // and their numbers
+	nRun, nSurv       int32
+	// Buffers of SetMean.
+	dirs           []geom.Vec3
+	marks          []groupSum
+	survs2         []groupSum
+	touchR, touchS []int32
+}
+
+// term is a member's direction and derivatives (world frame, see
+// model.partials), its standard errors (radians: alpha, beta, gamma, mark,
+// survey azimuth and dip) and the numbers of its run and survey keys (-1
+// for an error of its own).
+type term struct {
+	dir       geom.Vec3
+	g         [5]geom.Vec3
+	sig       [6]float64
+	run, surv int32
+}
+
+// groupSum is the sum over a set's members sharing an error of their
+// derivatives by it (two for a survey: azimuth and dip), and the standard
+// error of the first of them; seen says the set has a member in the group.
+type groupSum struct {
+	g    [2]geom.Vec3
+	sig  [2]float64
+	seen bool
+}
+
+var termsPool = sync.Pool{New: func() any { return new(FirstOrderTerms) }}
+
+// NewFirstOrderTerms returns empty terms for sets of poles or, with lines,
+// of lineations, with room for n members.
+func NewFirstOrderTerms(lines bool, n int) *FirstOrderTerms {
+	t := termsPool.Get().(*FirstOrderTerms)
+	t.lines, t.terms, t.bad = lines, slices.Grow(t.terms[:0], n), nil
+	if t.runs == nil {
+		t.runs, t.survs = map[string]int32{}, map[string]int32{}
+	}
+	clear(t.runs)
+	clear(t.survs)
+	t.lastRun, t.lastSurv, t.nRun, t.nSurv = "", "", 0, 0
+	return t
+}
+
+// Release gives t's storage back for reuse; t is not used after.
+func (t *FirstOrderTerms) Release() {
+	t.lastRun, t.lastSurv = "", ""
+	clear(t.runs)
+	clear(t.survs)
+	termsPool.Put(t)
+}
+
+// Add reads member m and returns its number for SetMean. A member that
+// cannot be read (a vertical hole; no gamma in a set of lines) makes every
+// set holding it fail with that error, as SetMeanFirstOrder would.
+func (t *FirstOrderTerms) Add(m *Member) int {
+	i := len(t.terms)
+	t.terms = append(t.terms, term{})
+	tm := &t.terms[i]
+	var md model
+	err := md.init(m.Reading)
+	if err == nil && t.lines && !md.hasGamma {
+		err = errNoGamma
+	}
+	if err != nil {
+		if t.bad == nil {
+			t.bad = map[int]error{}
+		}
+		t.bad[i] = err
+		return i
+	}
 	which := 0
-	if lines {
+	if t.lines {
 		which = 1
 	}
-	// First pass: each member's direction and derivatives (world frame,
-	// model.partials). The reading errors, and the shared errors taken per
-	// member, enter as outer products g g^T sigma^2, which depend neither on
-	// the member's sign towards the mean nor on the tangent plane at it; the
-	// derivatives of the shared sources are kept for the second pass.
-	var reading, indep sym3
-	var md model
-	for i := range ms {
-		m := &ms[i]
-		if err := md.init(m.Reading); err != nil {
-			return SetResult{}, err
+	n, l := md.eval(0, 0, 0, 0, 0)
+	v, g := md.partials(n, l, which)
+	tm.dir = md.world(v)
+	for k := range g {
+		if k != 2 || t.lines {
+			tm.g[k] = md.world(g[k])
 		}
-		if lines && !md.hasGamma {
-			return SetResult{}, errNoGamma
-		}
-		n, l := md.eval(0, 0, 0, 0, 0)
-		v, g := md.partials(n, l, which)
-		w.dirs[i] = md.world(v)
-		gb, ga, gd := md.world(g[1]), md.world(g[3]), md.world(g[4])
-		reading.add(md.world(g[0]), geom.Rad(m.Sigma.Alpha))
-		reading.add(gb, geom.Rad(m.Sigma.Beta))
-		if lines {
-			reading.add(md.world(g[2]), geom.Rad(m.Sigma.Gamma))
-		}
-		indep.add(gb, geom.Rad(m.Sigma.Mark))
-		indep.add(ga, geom.Rad(m.Sigma.Azimuth))
-		indep.add(gd, geom.Rad(m.Sigma.Dip))
-		w.shared[i] = [3]geom.Vec3{gb, ga, gd}
-		w.add(i, m)
 	}
-	f, err := dirstat.FisherMeanNoSpread(w.dirs, nil, true)
+	sg := m.Sigma
+	tm.sig = [6]float64{geom.Rad(sg.Alpha), geom.Rad(sg.Beta), geom.Rad(sg.Gamma), geom.Rad(sg.Mark), geom.Rad(sg.Azimuth), geom.Rad(sg.Dip)}
+	// Keys: members of a run or a survey interval usually come one after
+	// another, so the previous member's are tried first.
+	tm.run = key(m.Run, &t.lastRun, t.runs, &t.nRun, t.prevRun)
+	tm.surv = key(m.Survey, &t.lastSurv, t.survs, &t.nSurv, t.prevSurv)
+	t.prevRun, t.prevSurv = tm.run, tm.surv
+	return i
+}
+
+// key returns the number of key k (-1 for ""), numbering a new one n and
+// counting it; last and prev are the previous member's key and number,
+// tried first, and last becomes k.
+func key(k string, last *string, keys map[string]int32, n *int32, prev int32) int32 {
+	if k == "" {
+		*last = ""
+		return -1
+	}
+	if k == *last {
+		return prev
+	}
+	r, ok := keys[k]
+	if !ok {
+		r = *n
+		*n++
+		keys[k] = r
+	}
+	*last = k
+	return r
+}
+
+// SetMean returns the first-order uncertainty of the mean of the members
+// idx (numbers from Add): see setFirstOrder.
+func (t *FirstOrderTerms) SetMean(idx []int) (SetResult, error) {
+	if len(idx) == 0 {
+		return SetResult{}, dirstat.ErrTooFew
+	}
+	if t.bad != nil {
+		for _, i := range idx {
+			if err := t.bad[i]; err != nil {
+				return SetResult{}, err
+			}
+		}
+	}
+	dirs := grow(t.dirs, len(idx))
+	t.dirs = dirs
+	for j, i := range idx {
+		dirs[j] = t.terms[i].dir
+	}
+	f, err := dirstat.FisherMeanNoSpread(dirs, nil, true)
 	if err != nil {
 		return SetResult{}, err
 	}
-	// Second pass: the shared sources' derivatives summed over the members
-	// sharing them, each member turned towards the mean.
-	marks, survs := grow(w.marks, len(w.markSig)), grow(w.survs, len(w.survSig))
-	clear(marks)
-	clear(survs)
-	for i, p := range w.dirs {
-		sh := &w.shared[i]
-		if p.Dot(f.Mean) < 0 {
-			sh[0], sh[1], sh[2] = sh[0].Neg(), sh[1].Neg(), sh[2].Neg()
+	// The reading errors, and the shared errors taken per member, enter as
+	// outer products g g^T sigma^2, which depend neither on the member's sign
+	// towards the mean nor on the tangent plane at it. The shared sources'
+	// derivatives are summed over the members sharing them, each member
+	// turned towards the mean; an error of a member's own is a group of one.
+	var reading, indep, own sym3
+	if len(t.marks) < int(t.nRun) {
+		t.marks = make([]groupSum, t.nRun)
+	}
+	if len(t.survs2) < int(t.nSurv) {
+		t.survs2 = make([]groupSum, t.nSurv)
+	}
+	marks, survs := t.marks, t.survs2
+	touchR, touchS := t.touchR[:0], t.touchS[:0]
+	for _, i := range idx {
+		tm := &t.terms[i]
+		reading.add(tm.g[0], tm.sig[0])
+		reading.add(tm.g[1], tm.sig[1])
+		if t.lines {
+			reading.add(tm.g[2], tm.sig[2])
 		}
-		r, s := w.runOf[i], w.survOf[i]
-		marks[r] = marks[r].Add(sh[0])
-		survs[s][0] = survs[s][0].Add(sh[1])
-		survs[s][1] = survs[s][1].Add(sh[2])
+		indep.add(tm.g[1], tm.sig[3])
+		indep.add(tm.g[3], tm.sig[4])
+		indep.add(tm.g[4], tm.sig[5])
+		sgn := 1.0
+		if tm.dir.Dot(f.Mean) < 0 {
+			sgn = -1
+		}
+		if r := tm.run; r < 0 {
+			own.add(tm.g[1], tm.sig[3])
+		} else {
+			gs := &marks[r]
+			if !gs.seen {
+				*gs = groupSum{sig: [2]float64{tm.sig[3]}, seen: true}
+				touchR = append(touchR, r)
+			}
+			gs.g[0] = gs.g[0].Add(tm.g[1].Scale(sgn))
+		}
+		if s := tm.surv; s < 0 {
+			own.add(tm.g[3], tm.sig[4])
+			own.add(tm.g[4], tm.sig[5])
+		} else {
+			gs := &survs[s]
+			if !gs.seen {
+				*gs = groupSum{sig: [2]float64{tm.sig[4], tm.sig[5]}, seen: true}
+				touchS = append(touchS, s)
+			}
+			gs.g[0] = gs.g[0].Add(tm.g[3].Scale(sgn))
+			gs.g[1] = gs.g[1].Add(tm.g[4].Scale(sgn))
+		}
 	}
-	w.marks, w.survs = marks, survs
+	var shared sym3
+	for _, r := range touchR {
+		shared.add(marks[r].g[0], marks[r].sig[0])
+		marks[r] = groupSum{}
+	}
+	for _, s := range touchS {
+		shared.add(survs[s].g[0], survs[s].sig[0])
+		shared.add(survs[s].g[1], survs[s].sig[1])
+		survs[s] = groupSum{}
+	}
+	t.touchR, t.touchS = touchR, touchS
+	for k := range shared {
+		shared[k] += own[k]
+	}
 	// The tangent-plane components at the mean, divided by R.
-	t1 := perpendicular(f.Mean).Scale(1 / f.R)
-	t2 := f.Mean.Cross(perpendicular(f.Mean)).Scale(1 / f.R)
-	type cov struct{ a, b, c float64 }
-	add := func(c *cov, g geom.Vec3, s float64) {
-		j0, j1 := g.Dot(t1), g.Dot(t2)
-		c.a += j0 * j0 * s * s
-		c.b += j0 * j1 * s * s
-		c.c += j1 * j1 * s * s
-	}
-	proj := func(m sym3) cov { return cov{m.quad(t1, t1), m.quad(t1, t2), m.quad(t2, t2)} }
-	var shared cov
-	for r, g := range marks {
-		add(&shared, g, w.markSig[r])
-	}
-	for s, g := range survs {
-		add(&shared, g[0], w.survSig[s][0])
-		add(&shared, g[1], w.survSig[s][1])
-	}
-	rd, in := proj(reading), proj(indep)
+	p := perpendicular(f.Mean)
+	t1, t2 := p.Scale(1/f.R), f.Mean.Cross(p).Scale(1/f.R)
 	deg2 := geom.Deg(1) * geom.Deg(1)
+	type cov struct{ a, b, c float64 }
+	proj := func(m *sym3) cov { return cov{m.quad(t1, t1), m.quad(t1, t2), m.quad(t2, t2)} }
 	cone := func(c cov) float64 { return cone95(c.a*deg2, c.b*deg2, c.c*deg2) }
-	res := setResultOf(len(ms), f)
+	sh, rd, in := proj(&shared), proj(&reading), proj(&indep)
+	res := setResultOf(len(idx), f)
 	res.Method = SetFirstOrder
-	res.Measurement95 = cone(cov{shared.a + rd.a, shared.b + rd.b, shared.c + rd.c})
-	res.Shared95 = cone(shared)
+	res.Measurement95 = cone(cov{sh.a + rd.a, sh.b + rd.b, sh.c + rd.c})
+	res.Shared95 = cone(sh)
 	res.SharedIndependent95 = cone(in)
 	res.Combined95 = res.Shared95
 	if f.N >= 2 && res.Fisher95 > 0 {
 		v := (1 - math.Pow(res.SharedIndependent95/res.Fisher95, 2)) * res.Fisher95 * res.Fisher95 / chi2q95
 		v = math.Max(0, v) / deg2
-		res.Combined95 = cone(cov{shared.a + v, shared.b, shared.c + v})
+		res.Combined95 = cone(cov{sh.a + v, sh.b, sh.c + v})
 	}
 	res.dominant()
 	return res, nil
 }
-
-// setWork is the first-order method's storage, reused from set to set so
-// that a set costs no allocation per member.
-type setWork struct {
-	setKeys
-	dirs   []geom.Vec3
-	shared [][3]geom.Vec3 // derivatives by the mark, survey azimuth and dip
-	marks  []geom.Vec3
-	survs  [][2]geom.Vec3
-}
-
-var setWorkPool = sync.Pool{New: func() any { return new(setWork) }}
 
 // grow returns s resliced to length n, reallocated if its capacity is short.
 func grow[T any](s []T, n int) []T { return slices.Grow(s[:0], n)[:n] }
