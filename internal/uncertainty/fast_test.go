@@ -175,3 +175,46 @@ func btoi(b bool) int {
 	}
 	return 0
 }
+
+// FirstOrderTerms read once give, for any set of their members in any
+// order, exactly (NaN as NaN) SetMeanFirstOrder (SetMeanLinesFirstOrder) of those
+// members: the runs' and surveys' standard errors those of the set's first
+// member sharing them, a member that cannot be read failing the sets that
+// hold it.
+func TestFirstOrderTermsSubsets(t *testing.T) {
+	r := rand.New(rand.NewPCG(81, 82))
+	for _, lines := range []bool{false, true} {
+		ms := make([]Member, 300)
+		for j := range ms {
+			ms[j] = Member{Reading: Reading{Hole: geom.HoleDirection(360*r.Float64(), -30-50*r.Float64()), Alpha: 90 * r.Float64(),
+				Beta: 360 * r.Float64(), Gamma: 360 * r.Float64(),
+				Sigma: DefaultModel().Sigmas(Magnetic, []string{"good", "fair", "poor"}[r.IntN(3)], math.NaN(), 0)}}
+			if r.IntN(5) > 0 {
+				ms[j].Run = fmt.Sprint(r.IntN(30))
+			}
+			if r.IntN(5) > 0 {
+				ms[j].Survey = fmt.Sprint(r.IntN(8))
+			}
+		}
+		ms[7].Hole = geom.Vec3{Z: -1} // vertical
+		tm := NewFirstOrderTerms(lines, 0)
+		for j := range ms {
+			if k := tm.Add(&ms[j]); k != j {
+				t.Fatalf("member %d numbered %d", j, k)
+			}
+		}
+		for trial := 0; trial < 100; trial++ {
+			idx := r.Perm(len(ms))[:1+r.IntN(len(ms))]
+			sub := make([]Member, len(idx))
+			for j, i := range idx {
+				sub[j] = ms[i]
+			}
+			got, err1 := tm.SetMean(idx)
+			want, err2 := setFirstOrder(sub, lines)
+			if fmt.Sprint(got) != fmt.Sprint(want) || (err1 == nil) != (err2 == nil) || err1 != nil && err1.Error() != err2.Error() {
+				t.Fatalf("lines %v, set %v: terms %+v (%v), members %+v (%v)", lines, idx, got, err1, want, err2)
+			}
+		}
+		tm.Release()
+	}
+}
