@@ -130,34 +130,14 @@ func refSetFirstOrder(ms []Member, lines bool) (SetResult, error) {
 func (m *model) refEvalSC(t *[10]float64) (n, l geom.Vec3) {
 	up := geom.Vec3{Z: 1}
 	kD, kA := m.frameOf(m.frame[2].Cross(up).Unit()), m.frameOf(up.Neg())
-	s, c := t[0], t[1]
-	sa, ca := m.sa*c+m.ca*s, m.ca*c-m.sa*s
-	s, c = t[2], t[3]
-	sb, cb := m.sb*c+m.cb*s, m.cb*c-m.sb*s
-	d := geom.Vec3{X: m.apex * cb, Y: m.apex * sb}
-	n = geom.Vec3{X: -ca * d.X, Y: -ca * d.Y, Z: sa}
-	if m.hasGamma {
-		e := geom.Vec3{X: -sa * n.X, Y: -sa * n.Y, Z: 1 - sa*n.Z}
-		if en := e.Norm(); en < 1e-12 {
-			e = d
-		} else {
-			e = e.Scale(1 / en)
-		}
-		s, c = t[4], t[5]
-		sg, cg := m.sg*c+m.cg*s, m.cg*c-m.sg*s
-		l = e.Scale(cg).Add(n.Cross(e).Scale(sg))
+	core := *t // the readings' errors alone: evalSC skips the turns of zero sines
+	core[6], core[7], core[8], core[9] = 0, 1, 0, 1
+	n, l = m.evalSC(&core)
+	if s, c := t[8], t[9]; s != 0 {
+		n, l = rotate(n, kD, s, c), rotate(l, kD, s, c)
 	}
-	if s, c = t[8], t[9]; s != 0 {
-		n = rotate(n, kD, s, c)
-		if m.hasGamma {
-			l = rotate(l, kD, s, c)
-		}
-	}
-	if s, c = t[6], t[7]; s != 0 {
-		n = rotate(n, kA, s, c)
-		if m.hasGamma {
-			l = rotate(l, kA, s, c)
-		}
+	if s, c := t[6], t[7]; s != 0 {
+		n, l = rotate(n, kA, s, c), rotate(l, kA, s, c)
 	}
 	return n, l
 }

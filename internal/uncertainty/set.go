@@ -249,10 +249,8 @@ type FirstOrderTerms struct {
 	prevRun, prevSurv int32  // and their numbers
 	nRun, nSurv       int32
 	// Buffers of SetMean.
-	dirs           []geom.Vec3
-	marks          []groupSum
-	survs2         []groupSum
-	touchR, touchS []int32
+	dirs               []geom.Vec3
+	markSums, survSums groups
 }
 
 // term is a member's direction and derivatives (world frame, see
@@ -273,6 +271,49 @@ type groupSum struct {
 	g    [2]geom.Vec3
 	sig  [2]float64
 	seen bool
+}
+
+// groups are the sums of a set's groups of one kind (runs or surveys) by
+// key number, and the numbers in use.
+type groups struct {
+	sums []groupSum
+	used []int32
+}
+
+// size makes room for n key numbers.
+func (gs *groups) size(n int32) {
+	if len(gs.sums) < int(n) {
+		gs.sums = make([]groupSum, n)
+	}
+}
+
+// add adds a member's derivatives g by its errors of standard errors sig,
+// turned by sgn, to the group numbered k; an error of its own (k < 0) goes
+// straight to own as a group of one.
+func (gs *groups) add(k int32, g [2]geom.Vec3, sig [2]float64, sgn float64, own *sym3) {
+	if k < 0 {
+		own.add(g[0], sig[0])
+		own.add(g[1], sig[1])
+		return
+	}
+	s := &gs.sums[k]
+	if !s.seen {
+		*s = groupSum{sig: sig, seen: true}
+		gs.used = append(gs.used, k)
+	}
+	s.g[0] = s.g[0].Add(g[0].Scale(sgn))
+	s.g[1] = s.g[1].Add(g[1].Scale(sgn))
+}
+
+// flush adds each group's outer products to m and empties the groups.
+func (gs *groups) flush(m *sym3) {
+	for _, k := range gs.used {
+		s := &gs.sums[k]
+		m.add(s.g[0], s.sig[0])
+		m.add(s.g[1], s.sig[1])
+		*s = groupSum{}
+	}
+	gs.used = gs.used[:0]
 }
 
 var termsPool = sync.Pool{New: func() any { return new(FirstOrderTerms) }}
@@ -389,14 +430,8 @@ func (t *FirstOrderTerms) SetMean(idx []int) (SetResult, error) {
 	// derivatives are summed over the members sharing them, each member
 	// turned towards the mean; an error of a member's own is a group of one.
 	var reading, indep, own sym3
-	if len(t.marks) < int(t.nRun) {
-		t.marks = make([]groupSum, t.nRun)
-	}
-	if len(t.survs2) < int(t.nSurv) {
-		t.survs2 = make([]groupSum, t.nSurv)
-	}
-	marks, survs := t.marks, t.survs2
-	touchR, touchS := t.touchR[:0], t.touchS[:0]
+	t.markSums.size(t.nRun)
+	t.survSums.size(t.nSurv)
 	for _, i := range idx {
 		tm := &t.terms[i]
 		reading.add(tm.g[0], tm.sig[0])
@@ -411,43 +446,12 @@ func (t *FirstOrderTerms) SetMean(idx []int) (SetResult, error) {
 		if tm.dir.Dot(f.Mean) < 0 {
 			sgn = -1
 		}
-		if r := tm.run; r < 0 {
-			own.add(tm.g[1], tm.sig[3])
-		} else {
-			gs := &marks[r]
-			if !gs.seen {
-				*gs = groupSum{sig: [2]float64{tm.sig[3]}, seen: true}
-				touchR = append(touchR, r)
-			}
-			gs.g[0] = gs.g[0].Add(tm.g[1].Scale(sgn))
-		}
-		if s := tm.surv; s < 0 {
-			own.add(tm.g[3], tm.sig[4])
-			own.add(tm.g[4], tm.sig[5])
-		} else {
-			gs := &survs[s]
-			if !gs.seen {
-				*gs = groupSum{sig: [2]float64{tm.sig[4], tm.sig[5]}, seen: true}
-				touchS = append(touchS, s)
-			}
-			gs.g[0] = gs.g[0].Add(tm.g[3].Scale(sgn))
-			gs.g[1] = gs.g[1].Add(tm.g[4].Scale(sgn))
-		}
+		t.markSums.add(tm.run, [2]geom.Vec3{tm.g[1]}, [2]float64{tm.sig[3]}, sgn, &own)
+		t.survSums.add(tm.surv, [2]geom.Vec3{tm.g[3], tm.g[4]}, [2]float64{tm.sig[4], tm.sig[5]}, sgn, &own)
 	}
-	var shared sym3
-	for _, r := range touchR {
-		shared.add(marks[r].g[0], marks[r].sig[0])
-		marks[r] = groupSum{}
-	}
-	for _, s := range touchS {
-		shared.add(survs[s].g[0], survs[s].sig[0])
-		shared.add(survs[s].g[1], survs[s].sig[1])
-		survs[s] = groupSum{}
-	}
-	t.touchR, t.touchS = touchR, touchS
-	for k := range shared {
-		shared[k] += own[k]
-	}
+	shared := own
+	t.markSums.flush(&shared)
+	t.survSums.flush(&shared)
 	// The tangent-plane components at the mean, divided by R.
 	p := perpendicular(f.Mean)
 	t1, t2 := p.Scale(1/f.R), f.Mean.Cross(p).Scale(1/f.R)
