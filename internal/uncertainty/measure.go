@@ -229,7 +229,8 @@ var chi2q95 = -2 * math.Log(0.05)
 // (1/2pi) * integral over t of (1 - exp(-r^2 / (2 rho^2))) dt (polar
 // integration of the density, then the change of variable). The integrand
 // is smooth and periodic whatever the elongation, so the trapezoid rule on
-// 128 points is accurate to rounding; r is found by bisection.
+// 64 points is accurate to rounding; r is found by Newton's method inside a
+// bisection bracket. It is the exact computation behind cone95's table.
 func coneOf(a, b, c, p float64) float64 {
 	tr, det := a+c, a*c-b*b
 	d := math.Sqrt(math.Max(0, tr*tr/4-det))
@@ -443,7 +444,7 @@ func (m *model) evalSC(t *[10]float64) (n, l geom.Vec3) {
 }
 
 // turnD turns v about kD = (0, dY, 0) by the angle of sine s and cosine c:
-// Rodrigues' formula (rotate) with the zero components left out.
+// Rodrigues' formula with the zero components left out.
 func (m *model) turnD(v geom.Vec3, s, c float64) geom.Vec3 {
 	s *= m.dY
 	return geom.Vec3{X: v.X*c + v.Z*s, Y: v.Y, Z: v.Z*c - v.X*s}
@@ -569,8 +570,9 @@ func (c *coords) gradients() (du, dw geom.Vec3) {
 }
 
 // firstOrder returns the first-order region of the direction picked by
-// which (0 pole, 1 line) of the nominal pole n and line l: the derivatives of the direction (partials) read
-// in the region coordinates through their gradients at the direction.
+// which (0 pole, 1 line) of the nominal pole n and line l: the derivatives
+// of the direction (partials) read in the region coordinates through their
+// gradients at the direction.
 func (m *model) firstOrder(n, l geom.Vec3, cs *coords, which int) Region {
 	v, g := m.partials(n, l, which)
 	du, dw := cs.gradients()
@@ -592,11 +594,10 @@ func (m *model) firstOrder(n, l geom.Vec3, cs *coords, which int) Region {
 
 // partials returns the direction picked by which (0 pole, 1 line) of the
 // nominal pole n and line l (frame coordinates, m.eval of no errors) and its
-// derivatives with respect to
-// each error source in radians (0 alpha, 1 beta and mark, 2 gamma, 3
-// survey azimuth, 4 survey dip): the exact Jacobian behind every
-// first-order figure, of a measurement (firstOrder) and of a set's mean
-// (setFirstOrder). Each source turns the direction about an axis, so each
+// derivatives with respect to each error source in radians (0 alpha, 1 beta
+// and mark, 2 gamma, 3 survey azimuth, 4 survey dip): the exact Jacobian
+// behind every first-order figure, of a measurement (firstOrder) and of a
+// set's mean (FirstOrderTerms). Each source turns the direction about an axis, so each
 // derivative is that axis crossed with the direction: alpha turns the plane
 // (and the line on it) about the line w of the plane perpendicular to the
 // core axis, beta and the mark turn both about the core axis h, gamma turns

@@ -214,7 +214,7 @@ func (r *SetResult) dominant() {
 // per member. The covariance of the mean's deviation is the sum of
 // J_e J_e^T sigma_e^2; a cone is the radius of the circle about the mean
 // that holds 95% of the centred bivariate normal with that covariance
-// (coneOf, the rule of the per-measurement cones), as the Monte Carlo
+// (cone95, the rule of the per-measurement cones), as the Monte Carlo
 // method reports the 95% quantile of the angle to the mean. Combined95 adds
 // to the shared covariance an isotropic one whose 95% circle is the Fisher
 // cone (per-axis variance Fisher95^2 / chi2(2, 0.95)), scaled by 1 -
