@@ -673,7 +673,8 @@ type scratch struct {
 	// whenNeeded: run the Monte Carlo only where NeedsMonteCarlo says so.
 	whenNeeded bool
 	u, w       [2][]float64
-	c          [2][]float64 // 1 - |cos| of the angle from the measured direction
+	dirs       [2][]geom.Vec3 // the draws' poles and lines
+	c          [2][]float64   // 1 - |cos| of the angle from the measured direction
 	sel        []float64
 	tables     map[[5]float64]table
 	spare      table
@@ -764,26 +765,38 @@ func mcRegions(m *model, cs []coords, tab table, sc *scratch, est []Estimate) {
 		sc.u[i], sc.w[i], sc.c[i] = sc.u[i][:draws], sc.w[i][:draws], sc.c[i][:draws]
 	}
 	k := quantileRank(draws, 0.95)
-	var sums [2][3]float64
+	// The draws' directions first, then each direction's region
+	// coordinates in a loop of its own.
+	if cap(sc.dirs[0]) < draws {
+		sc.dirs[0], sc.dirs[1] = make([]geom.Vec3, draws), make([]geom.Vec3, draws)
+	}
+	ns, ls := sc.dirs[0][:draws], sc.dirs[1][:draws]
 	for j := range tab {
-		n, l := m.evalSC(&tab[j])
-		for i := 0; i < nd; i++ {
-			v := n
-			if i == 1 {
-				v = l
-			}
-			c := &cs[i]
-			d := v.Dot(c.v0)
+		ns[j], ls[j] = m.evalSC(&tab[j])
+	}
+	var sums [2][3]float64
+	for i := 0; i < nd; i++ {
+		vs := ns
+		if i == 1 {
+			vs = ls
+		}
+		c := &cs[i]
+		v0 := c.v0
+		us, ws, cc := sc.u[i][:draws], sc.w[i][:draws], sc.c[i][:draws]
+		var suu, suv, svv float64
+		for j, v := range vs {
+			d := v.Dot(v0)
 			if d < 0 {
 				v, d = v.Neg(), -d
 			}
-			sc.c[i][j] = 1 - d
+			cc[j] = 1 - d
 			u, w := c.ofNear(v, d)
-			sc.u[i][j], sc.w[i][j] = u, w
-			sums[i][0] += u * u
-			sums[i][1] += u * w
-			sums[i][2] += w * w
+			us[j], ws[j] = u, w
+			suu += u * u
+			suv += u * w
+			svv += w * w
 		}
+		sums[i] = [3]float64{suu, suv, svv}
 	}
 	for i := 0; i < nd; i++ {
 		r := &Region{cuu: sums[i][0] / float64(draws), cuv: sums[i][1] / float64(draws), cvv: sums[i][2] / float64(draws)}
