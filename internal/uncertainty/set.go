@@ -253,15 +253,18 @@ type FirstOrderTerms struct {
 	markSums, survSums groups
 }
 
-// term is a member's direction and derivatives (world frame, see
-// model.partials), its standard errors (radians: alpha, beta, gamma, mark,
-// survey azimuth and dip) and the numbers of its run and survey keys (-1
-// for an error of its own).
+// term is what SetMean needs of a member: its direction (world frame), the
+// outer products g g^T sigma^2 of its derivatives (model.partials) by its
+// reading errors and by its shared errors taken as its own, its derivatives
+// by the shared errors (mark, survey azimuth and dip) and their standard
+// errors (radians), and the numbers of its run and survey keys (-1 for an
+// error of its own).
 type term struct {
-	dir       geom.Vec3
-	g         [5]geom.Vec3
-	sig       [6]float64
-	run, surv int32
+	dir            geom.Vec3
+	reading, indep sym3
+	g              [3]geom.Vec3
+	sig            [3]float64
+	run, surv      int32
 }
 
 // groupSum is the sum over a set's members sharing an error of their
@@ -366,13 +369,18 @@ func (t *FirstOrderTerms) Add(m *Member) int {
 	n, l := md.eval(0, 0, 0, 0, 0)
 	v, g := md.partials(n, l, which)
 	tm.dir = md.world(v)
-	for k := range g {
-		if k != 2 || t.lines {
-			tm.g[k] = md.world(g[k])
-		}
-	}
 	sg := m.Sigma
-	tm.sig = [6]float64{geom.Rad(sg.Alpha), geom.Rad(sg.Beta), geom.Rad(sg.Gamma), geom.Rad(sg.Mark), geom.Rad(sg.Azimuth), geom.Rad(sg.Dip)}
+	gb := md.world(g[1])
+	tm.reading.add(md.world(g[0]), geom.Rad(sg.Alpha))
+	tm.reading.add(gb, geom.Rad(sg.Beta))
+	if t.lines {
+		tm.reading.add(md.world(g[2]), geom.Rad(sg.Gamma))
+	}
+	tm.g = [3]geom.Vec3{gb, md.world(g[3]), md.world(g[4])}
+	tm.sig = [3]float64{geom.Rad(sg.Mark), geom.Rad(sg.Azimuth), geom.Rad(sg.Dip)}
+	for k := range tm.g {
+		tm.indep.add(tm.g[k], tm.sig[k])
+	}
 	// Keys: members of a run or a survey interval usually come one after
 	// another, so the previous member's are tried first.
 	tm.run = key(m.Run, &t.lastRun, t.runs, &t.nRun, t.prevRun)
@@ -434,20 +442,16 @@ func (t *FirstOrderTerms) SetMean(idx []int) (SetResult, error) {
 	t.survSums.size(t.nSurv)
 	for _, i := range idx {
 		tm := &t.terms[i]
-		reading.add(tm.g[0], tm.sig[0])
-		reading.add(tm.g[1], tm.sig[1])
-		if t.lines {
-			reading.add(tm.g[2], tm.sig[2])
+		for k := range reading {
+			reading[k] += tm.reading[k]
+			indep[k] += tm.indep[k]
 		}
-		indep.add(tm.g[1], tm.sig[3])
-		indep.add(tm.g[3], tm.sig[4])
-		indep.add(tm.g[4], tm.sig[5])
 		sgn := 1.0
 		if tm.dir.Dot(f.Mean) < 0 {
 			sgn = -1
 		}
-		t.markSums.add(tm.run, [2]geom.Vec3{tm.g[1]}, [2]float64{tm.sig[3]}, sgn, &own)
-		t.survSums.add(tm.surv, [2]geom.Vec3{tm.g[3], tm.g[4]}, [2]float64{tm.sig[4], tm.sig[5]}, sgn, &own)
+		t.markSums.add(tm.run, [2]geom.Vec3{tm.g[0]}, [2]float64{tm.sig[0]}, sgn, &own)
+		t.survSums.add(tm.surv, [2]geom.Vec3{tm.g[1], tm.g[2]}, [2]float64{tm.sig[1], tm.sig[2]}, sgn, &own)
 	}
 	shared := own
 	t.markSums.flush(&shared)
