@@ -303,30 +303,49 @@ func FormatFloat(v float64, prec int) string {
 // 10^prec and rounded half away from zero, so values that round to zero
 // are written as unsigned zero; NaN is written as nothing. Values too large
 // for that (|v| 10^prec >= 2^53) and infinities are formatted by strconv.
+//
+// It is the formatter of every number in the converter's output, so it is
+// written for speed: the digits go right to left into a small array, the
+// fraction and the integer part are formatted as two independent chains of
+// divisions by constants.
 func AppendFloat(b []byte, v float64, prec int) []byte {
-	if math.IsNaN(v) {
-		return b
-	}
-	if prec < 0 || prec > 9 {
+	if uint(prec) > 9 {
+		if math.IsNaN(v) {
+			return b
+		}
 		return strconv.AppendFloat(b, v, 'f', prec, 64)
 	}
-	x := math.Abs(v) * pow10[prec]
+	x := v * pow10[prec] // the same magnitude as |v| 10^prec: IEEE products are sign-symmetric
+	neg := x < 0
+	if neg {
+		x = -x
+	}
 	if !(x < 1<<53) {
+		if math.IsNaN(v) {
+			return b
+		}
 		return strconv.AppendFloat(b, v, 'f', prec, 64)
 	}
 	// n = math.Round(x): below 2^53 the fraction x - trunc(x) is exact.
-	n := uint64(x)
-	if x-float64(n) >= 0.5 {
+	t := int64(x)
+	n := uint64(t)
+	if x-float64(t) >= 0.5 {
 		n++
 	}
-	neg := v < 0 && n != 0
-	// Length of the result: sign, integer digits (at least one), point and
-	// prec fraction digits. The digits are written straight into b from the
-	// right, two at a time.
-	l := uint64Len(n)
-	if l <= prec {
-		l = prec + 1 // a zero before the point
+	neg = neg && n != 0
+	// ip is the integer part; the fraction digits are n - ip 10^prec.
+	var ip uint64
+	switch prec {
+	case 2:
+		ip = n / 100
+	case 3:
+		ip = n / 1000
+	default:
+		ip = n / pow10u[prec]
 	}
+	// Length: sign, integer digits, point and prec fraction digits. The
+	// digits are written straight into b from the right, two at a time.
+	l := uint64Len(ip) + prec
 	if prec > 0 {
 		l++
 	}
@@ -343,37 +362,38 @@ func AppendFloat(b []byte, v float64, prec int) []byte {
 		d[0] = '-'
 	}
 	i := l
-	k := prec
-	for ; k >= 2; k -= 2 {
-		q := n / 100
-		r := (n - q*100) * 2
-		i -= 2
-		d[i], d[i+1] = digits2[r], digits2[r+1]
-		n = q
-	}
-	if k == 1 {
-		q := n / 10
-		i--
-		d[i] = byte('0' + n - q*10)
-		n = q
-	}
-	if prec > 0 {
+	switch f := n - ip*pow10u[prec]; prec {
+	case 0:
+	case 2:
+		f *= 2
+		d[i-3], d[i-2], d[i-1] = '.', digits2[f], digits2[f+1]
+		i -= 3
+	case 3:
+		q := f / 100
+		r := (f - q*100) * 2
+		d[i-4], d[i-3], d[i-2], d[i-1] = '.', byte('0'+q), digits2[r], digits2[r+1]
+		i -= 4
+	default:
+		for k := prec; k > 0; k-- {
+			q := f / 10
+			i--
+			d[i] = byte('0' + f - q*10)
+			f = q
+		}
 		i--
 		d[i] = '.'
 	}
-	for n >= 100 {
-		q := n / 100
-		r := (n - q*100) * 2
+	for ip >= 100 {
+		q := ip / 100
+		r := (ip - q*100) * 2
 		i -= 2
 		d[i], d[i+1] = digits2[r], digits2[r+1]
-		n = q
+		ip = q
 	}
-	if n >= 10 {
-		i -= 2
-		d[i], d[i+1] = digits2[2*n], digits2[2*n+1]
+	if ip >= 10 {
+		d[i-2], d[i-1] = digits2[2*ip], digits2[2*ip+1]
 	} else {
-		i--
-		d[i] = byte('0' + n)
+		d[i-1] = byte('0' + ip)
 	}
 	return b
 }
