@@ -96,27 +96,34 @@ const benchHoles, benchRows = 2000, 1_000_000
 
 // BenchmarkConvert converts 1,000,000 structure rows on 2,000 holes end to end:
 // loading collars and surveys, desurveying, converting, writing the output CSV
-// (to io.Discard). Compare with BenchmarkCSVReadWrite.
+// (to io.Discard). Compare with BenchmarkCSVReadWrite. The sub-benchmarks are
+// the default (uncertainty columns, first order) and --no-uncertainty.
 func BenchmarkConvert(b *testing.B) {
 	c, s, m := benchFiles(b, b.TempDir(), benchHoles, benchRows)
-	b.ResetTimer()
-	cpu0 := cpuTime(b)
-	for b.Loop() {
-		cf, sf, mf := open(b, c), open(b, s), open(b, m)
-		hs, err := Load(cf, sf, Options{})
-		if err != nil {
-			b.Fatal(err)
-		}
-		sum, err := hs.Convert(context.Background(), mf, io.Discard)
-		if err != nil || sum.Rows != benchRows || sum.BadRows != 0 {
-			b.Fatal(err, sum)
-		}
-		cf.Close()
-		sf.Close()
-		mf.Close()
+	for _, v := range []struct {
+		name string
+		opt  Options
+	}{{"uncertainty", Options{}}, {"no-uncertainty", Options{NoUncertainty: true}}} {
+		b.Run(v.name, func(b *testing.B) {
+			cpu0 := cpuTime(b)
+			for b.Loop() {
+				cf, sf, mf := open(b, c), open(b, s), open(b, m)
+				hs, err := Load(cf, sf, v.opt)
+				if err != nil {
+					b.Fatal(err)
+				}
+				sum, err := hs.Convert(context.Background(), mf, io.Discard)
+				if err != nil || sum.Rows != benchRows || sum.BadRows != 0 {
+					b.Fatal(err, sum)
+				}
+				cf.Close()
+				sf.Close()
+				mf.Close()
+			}
+			b.ReportMetric(float64(cpuTime(b)-cpu0)/float64(b.N)/benchRows, "cpu-ns/row")
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/benchRows, "ns/row")
+		})
 	}
-	b.ReportMetric(float64(cpuTime(b)-cpu0)/float64(b.N)/benchRows, "cpu-ns/row")
-	b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N)/benchRows, "ns/row")
 }
 
 // BenchmarkCSVReadWrite merely reads the same structures file with
@@ -165,5 +172,22 @@ func BenchmarkOrient(b *testing.B) {
 		if _, err := hs.Orient(m); err != nil {
 			b.Fatal(err)
 		}
+	}
+}
+
+// BenchmarkLoad loads the collars and surveys of BenchmarkConvert (2,000
+// holes, 26,000 stations) and desurveys every hole: the part of Convert's
+// time before the first row.
+func BenchmarkLoad(b *testing.B) {
+	dir := b.TempDir()
+	c, s, _ := benchFiles(b, dir, benchHoles, benchHoles)
+	b.ReportAllocs()
+	for b.Loop() {
+		cf, sf := open(b, c), open(b, s)
+		if _, err := Load(cf, sf, Options{}); err != nil {
+			b.Fatal(err)
+		}
+		cf.Close()
+		sf.Close()
 	}
 }

@@ -7,6 +7,8 @@ import (
 	"io"
 	"runtime"
 	"strings"
+	"sync"
+	"sync/atomic"
 
 	"corvane/internal/csvio"
 	"corvane/internal/domain"
@@ -130,7 +132,7 @@ func Decimals(col string) int {
 type Summary struct {
 	Rows      int // structure rows written
 	BadRows   int // rows written with an error
-	WarnRows  int // rows written with at least one warning
+	WarnRows  int // rows written with at least one warning (a warnings cell)
 	Extrapols int // rows below the last survey station of their hole
 	// PerHole counts the rows of each hole id (the trimmed hole_id cell, ""
 	// when absent), in order of first appearance in the input.
@@ -141,7 +143,7 @@ type Summary struct {
 type HoleRows struct {
 	HoleID   string
 	Rows     int // rows written
-	WarnRows int // rows with a warning or the hole's caution, and no error
+	WarnRows int // rows with a warning, the hole's caution or the run's rating, and no error
 	BadRows  int // rows written with an error
 }
 
@@ -154,9 +156,11 @@ type HoleRows struct {
 // column named like an output column) or when writing fails; ctx is checked
 // between batches of rows.
 //
-// Records are split on one goroutine and batches of 512 rows are parsed,
-// converted and formatted on [Options].Workers goroutines; output order does
-// not depend on them. Memory use is bounded by the batches in flight.
+// [Options].Workers goroutines (the caller's among them) take turns reading
+// batches of 512 records; each parses, converts and formats its own batch,
+// and batches are written in input order by whichever worker finishes the
+// one whose turn it is. Output order does not depend on the workers. Memory
+// use is bounded by the batches in flight (four per worker).
 func (hs *Holes) Convert(ctx context.Context, r io.Reader, w io.Writer) (Summary, error) {
 	var sum Summary
 	file := nameOr(hs.opt.StructuresFile, "structures")
@@ -180,33 +184,19 @@ func (hs *Holes) Convert(ctx context.Context, r io.Reader, w io.Writer) (Summary
 		return sum, fmt.Errorf("writing the output: %w", err)
 	}
 
-	// One goroutine splits the input into records, a batch at a time; workers
-	// parse, convert and format whole batches; this goroutine writes the
-	// batches in input order. A fixed number of batches circulate, so memory
-	// stays bounded however long the input.
+	// Workers take turns reading a batch of records, then each parses,
+	// converts and formats its own batch, and whichever worker finds the
+	// next batch in input order finished writes it (and any finished ones
+	// after it). No goroutine only reads or only writes, so as many
+	// goroutines as cores do all the work without waiting to be scheduled.
+	// A fixed number of batches circulate, so memory stays bounded however
+	// long the input.
 	cv := &converter{hs: hs, sr: sr, file: file, ncols: len(sr.Header.Names), nout: len(outCols), thick: thick,
-		iHole: sr.Header.Index(csvio.ColHoleID)}
-	var perHole []HoleRows
-	index := map[string]int{} // hole id -> position in perHole
-	p := cv.start(hs.opt.Workers)
-	defer p.stop()
-	for b := range p.order {
-		<-b.done
-		if err := ctx.Err(); err != nil {
-			return sum, err
-		}
-		if _, err := w.Write(b.out.Buffered()); err != nil {
-			return sum, fmt.Errorf("writing the output: %w", err)
-		}
-		sum.add(b.sum)
-		perHole = mergeHoleRows(perHole, index, b.sum.PerHole)
-		sum.PerHole = perHole
-		if b.err != nil {
-			return sum, b.err
-		}
-		p.free <- b
+		iHole: sr.Header.Index(csvio.ColHoleID), batchRows: hs.opt.batchRows}
+	if cv.batchRows <= 0 {
+		cv.batchRows = batchRows
 	}
-	return sum, nil
+	return cv.run(ctx, w, hs.opt.Workers)
 }
 
 // add adds the row totals of o to s (not PerHole: see mergeHoleRows).
@@ -243,6 +233,7 @@ type converter struct {
 	ncols, nout int
 	thick       bool
 	iHole       int // the hole_id column
+	batchRows   int // rows in a batch
 }
 
 // batchRows is the number of rows in one batch.
@@ -250,6 +241,7 @@ const batchRows = 512
 
 // batch is a run of rows; Record and Raw slices point into fields and raw.
 type batch struct {
+	seq      int // place of the batch in the input, from 0
 	rows     []csvio.StructureRow
 	fields   []string // fields of the rows with quotes, as read
 	spans    []int    // start of each row's fields in fields, -1 for a row to split
@@ -262,87 +254,157 @@ type batch struct {
 	perHole  []HoleRows // backing array of sum.PerHole, reused
 	// holeIndex maps a hole id to its place in sum.PerHole.
 	holeIndex map[string]int
-	done      chan struct{} // closed when out is ready
 	tail      []byte
 }
 
+// pipeline is the shared state of the workers of one Convert call.
 type pipeline struct {
-	order chan *batch // batches in input order, for the writer
-	work  chan *batch // batches to convert, for the workers
-	free  chan *batch
-	quit  chan struct{}
+	cv  *converter
+	ctx context.Context
+	w   io.Writer
+	// slots holds the free batches: a worker takes one before reading and
+	// the batch goes back once written, so at most cap(slots) batches are
+	// in flight and a worker that runs too far ahead waits.
+	slots chan *batch
+	quit  chan struct{} // closed when the conversion fails
+	stop  atomic.Bool   // set with quit
+
+	readMu sync.Mutex
+	seq    int  // number of the next batch read (under readMu)
+	eof    bool // the input has ended (under readMu)
+
+	writeMu sync.Mutex
+	next    int      // number of the next batch to write (under writeMu)
+	done    []*batch // converted batches waiting for their turn, by seq modulo len (under writeMu)
+	sum     Summary
+	index   map[string]int // hole id -> position in sum.PerHole
+	err     error          // the first error; nothing is written after it
 }
 
-// start launches the reader and the workers (workers <= 0: one per CPU).
-func (cv *converter) start(workers int) *pipeline {
+// run converts the input on workers goroutines, the caller's among them
+// (workers <= 0: one per CPU), and returns the summary of the rows written.
+func (cv *converter) run(ctx context.Context, w io.Writer, workers int) (Summary, error) {
 	if workers <= 0 {
 		workers = runtime.GOMAXPROCS(0)
 	}
-	inFlight := 2*workers + 2
-	p := &pipeline{order: make(chan *batch, inFlight), work: make(chan *batch, inFlight),
-		free: make(chan *batch, inFlight), quit: make(chan struct{})}
+	inFlight := 4 * workers
+	p := &pipeline{cv: cv, ctx: ctx, w: w, slots: make(chan *batch, inFlight), quit: make(chan struct{}),
+		done: make([]*batch, inFlight), index: map[string]int{}}
 	for i := 0; i < inFlight; i++ {
-		p.free <- &batch{out: csvio.NewWriter(nil)}
+		p.slots <- &batch{out: csvio.NewWriter(nil)}
 	}
-	go cv.read(p)
-	for i := 0; i < workers; i++ {
+	var wg sync.WaitGroup
+	for i := 1; i < workers; i++ {
+		wg.Add(1)
 		go func() {
-			ms := cv.hs.measurer.Fork() // the worker's own buffers, the normals shared
-			for b := range p.work {
-				cv.convert(b, ms)
-				close(b.done)
-			}
+			defer wg.Done()
+			p.work()
 		}()
 	}
-	return p
+	p.work()
+	wg.Wait()
+	return p.sum, p.err
 }
 
-// stop ends the reader and, through it, the workers.
-func (p *pipeline) stop() { close(p.quit) }
-
-// read fills batches with raw records and hands each to the writer (in
-// order) and to the workers.
-func (cv *converter) read(p *pipeline) {
-	defer close(p.order)
-	defer close(p.work)
+// work is one worker: read a batch, convert it, hand it to be written,
+// until the input ends or the conversion fails.
+func (p *pipeline) work() {
+	ms := p.cv.hs.measurer.Fork() // the worker's own buffers, the normals shared
 	for {
 		var b *batch
 		select {
-		case b = <-p.free:
+		case b = <-p.slots:
 		case <-p.quit:
 			return
 		}
-		b.rows, b.fields, b.spans, b.raw, b.rawSpans, b.err = b.rows[:0], b.fields[:0], b.spans[:0], b.raw[:0], b.rawSpans[:0], nil
-		b.done = make(chan struct{})
-		end := false
-		for len(b.rows) < batchRows {
-			row, unsplit, err := cv.sr.NextUnsplit()
-			if err == io.EOF {
-				end = true
-				break
-			}
-			if err != nil {
-				b.err, end = err, true
-				break
-			}
-			// A row without quotes is split by the worker (spans -1).
-			if unsplit {
-				b.spans = append(b.spans, -1)
-			} else {
-				b.spans = append(b.spans, len(b.fields))
-				b.fields = append(b.fields, row.Record...)
-			}
-			b.rawSpans = append(b.rawSpans, len(b.raw))
-			b.raw = append(b.raw, row.Raw...)
-			b.rows = append(b.rows, *row)
-		}
-		// Both channels have room for every batch in flight.
-		p.order <- b
-		p.work <- b
-		if end {
+		if !p.read(b) {
+			p.slots <- b
 			return
 		}
+		p.cv.convert(b, ms)
+		p.written(b)
 	}
+}
+
+// read fills b with the next batch of raw records; false when there are
+// none left or the conversion has failed.
+func (p *pipeline) read(b *batch) bool {
+	p.readMu.Lock()
+	defer p.readMu.Unlock()
+	if p.eof || p.stop.Load() {
+		return false
+	}
+	cv := p.cv
+	b.rows, b.fields, b.spans, b.raw, b.rawSpans, b.err = b.rows[:0], b.fields[:0], b.spans[:0], b.raw[:0], b.rawSpans[:0], nil
+	b.seq = p.seq
+	p.seq++
+	for len(b.rows) < cv.batchRows {
+		row, unsplit, err := cv.sr.NextUnsplit()
+		if err == io.EOF {
+			p.eof = true
+			break
+		}
+		if err != nil {
+			b.err, p.eof = err, true
+			break
+		}
+		// A row without quotes is split by the worker (spans -1).
+		if unsplit {
+			b.spans = append(b.spans, -1)
+		} else {
+			b.spans = append(b.spans, len(b.fields))
+			b.fields = append(b.fields, row.Record...)
+		}
+		b.rawSpans = append(b.rawSpans, len(b.raw))
+		b.raw = append(b.raw, row.Raw...)
+		b.rows = append(b.rows, *row)
+	}
+	return true
+}
+
+// written hands over the converted batch b and writes, in input order,
+// every converted batch whose turn has come; ctx is checked before each.
+func (p *pipeline) written(b *batch) {
+	p.writeMu.Lock()
+	defer p.writeMu.Unlock()
+	n := len(p.done)
+	p.done[b.seq%n] = b
+	for {
+		b := p.done[p.next%n]
+		if b == nil || b.seq != p.next {
+			return
+		}
+		p.done[p.next%n] = nil
+		p.next++
+		if p.err == nil {
+			p.write(b)
+		}
+		p.slots <- b // never blocks: it has room for every batch
+	}
+}
+
+// write writes batch b and adds its counts (under writeMu).
+func (p *pipeline) write(b *batch) {
+	if err := p.ctx.Err(); err != nil {
+		p.fail(err)
+		return
+	}
+	if _, err := p.w.Write(b.out.Buffered()); err != nil {
+		p.fail(fmt.Errorf("writing the output: %w", err))
+		return
+	}
+	p.sum.add(b.sum)
+	p.sum.PerHole = mergeHoleRows(p.sum.PerHole, p.index, b.sum.PerHole)
+	if b.err != nil {
+		p.fail(b.err)
+	}
+}
+
+// fail ends the conversion with err (under writeMu).
+func (p *pipeline) fail(err error) {
+	p.err = err
+	p.stop.Store(true)
+	close(p.quit)
 }
 
 // convert parses, converts and formats the rows of b into b.out, measuring
@@ -432,10 +494,6 @@ func (cv *converter) convert(b *batch, ms *uncertainty.Measurer) {
 			cw.EndRow()
 			continue
 		}
-		if res.Warn != 0 || len(last.Cautions) != 0 {
-			sum.WarnRows++
-			hc.WarnRows++
-		}
 		if res.Point.Extrapolated {
 			sum.Extrapols++
 		}
@@ -451,6 +509,10 @@ func (cv *converter) convert(b *batch, ms *uncertainty.Measurer) {
 				warn += "; "
 			}
 			warn += rw
+		}
+		if warn != "" { // the warnings cell: the conversion's, the hole's cautions, the run's rating
+			sum.WarnRows++
+			hc.WarnRows++
 		}
 		b.tail = WriteResult(cw, &res, last.Hole, cv.thick, warn, last.tail, b.tail, u)
 		cw.Empty() // error

@@ -467,44 +467,109 @@ func TestOrient(t *testing.T) {
 	}
 }
 
-// The output does not depend on the number of workers: rows stay in input order,
-// good and bad alike.
+// pipelines are the worker counts and batch sizes the output must not
+// depend on: one row per batch, batches that do not divide the input, the
+// default, more workers than cores.
+var pipelines = []struct{ workers, batch int }{{1, 0}, {1, 1}, {2, 7}, {3, 64}, {2, 0}, {8, 1}, {8, 0}}
+
+// convertWith converts in with the given workers and batch size and returns
+// the output, the summary and the error.
+func convertWith(t *testing.T, hs *Holes, in string, workers, batch int) (string, Summary, error) {
+	t.Helper()
+	h := *hs
+	h.opt.Workers, h.opt.batchRows = workers, batch
+	var out bytes.Buffer
+	sum, err := h.Convert(context.Background(), strings.NewReader(in), &out)
+	return out.String(), sum, err
+}
+
+// The output does not depend on the number of workers or the batch size:
+// rows stay in input order, good and bad alike, byte for byte, with the
+// same errors (file, line, column) and the same summary. The input mixes
+// rows with and without quotes (a quoted field across lines, doubled
+// quotes), CRLF line ends, empty lines, gamma and thickness cells, run
+// ratings, rows of the wrong width, unknown holes and bad numbers.
 func TestConvertWorkersSameOutput(t *testing.T) {
 	var in strings.Builder
-	in.WriteString("hole_id,depth,alpha,beta,gamma,note\n")
+	in.WriteString("hole_id,depth,alpha,beta,gamma,thickness,run_confidence,note\n")
 	r := rand.New(rand.NewPCG(40, 41))
+	rows := 0
 	for i := 0; i < 5000; i++ {
-		switch r.IntN(20) {
+		k := r.IntN(24)
+		if k != 7 {
+			rows++
+		}
+		switch k {
 		case 0:
-			fmt.Fprintf(&in, "G%d,%d,95,10,,bad alpha %d\n", r.IntN(12), r.IntN(200), i)
+			fmt.Fprintf(&in, "G%d,%d,95,10,,,,bad alpha %d\n", r.IntN(12), r.IntN(200), i)
 		case 1:
-			fmt.Fprintf(&in, "NOPE,1,1,1,,%d\n", i)
+			fmt.Fprintf(&in, "NOPE,1,1,1,,,,%d\n", i)
 		case 2:
 			fmt.Fprintf(&in, "G1,1,2\n")
+		case 3:
+			fmt.Fprintf(&in, "G2,1,2,3,4,5,good,x,%d\n", i) // one field too many
+		case 4:
+			fmt.Fprintf(&in, "G3,abc,20,30,,,,%d\n", i)
+		case 5:
+			fmt.Fprintf(&in, "\"G%d\",%.1f,%d,%d,,,fair,\"two\nlines, \"\"quoted\"\" %d\"\n", r.IntN(12), r.Float64()*200, r.IntN(91), r.IntN(360), i)
+		case 6:
+			fmt.Fprintf(&in, "G%d,%.2f,%d,%d,,%.2f,poor,crlf %d\r\n", r.IntN(12), r.Float64()*200, r.IntN(91), r.IntN(360), r.Float64(), i)
+		case 7:
+			in.WriteString("\n")
+		case 8:
+			fmt.Fprintf(&in, "G%d,%.2f,%d,,,,,unoriented %d\n", r.IntN(12), r.Float64()*200, r.IntN(91), i)
+		case 9:
+			fmt.Fprintf(&in, "G%d,%.2f,%d,%d,%d,,bogus,bad rating %d\n", r.IntN(12), r.Float64()*200, r.IntN(91), r.IntN(360), r.IntN(360), i)
 		default:
-			fmt.Fprintf(&in, "G%d,%.2f,%d,%d,%d,\"row, %d\"\n", r.IntN(12), r.Float64()*200, r.IntN(91), r.IntN(360), r.IntN(360), i)
+			fmt.Fprintf(&in, "G%d,%.2f,%d,%d,%d,,,\"row, %d\"\n", r.IntN(12), r.Float64()*200, r.IntN(91), r.IntN(360), r.IntN(360), i)
 		}
 	}
+	hs := genHoles(t, 10)
 	var outs []string
 	var sums []Summary
-	for _, workers := range []int{1, 3, 8} {
-		hs := genHoles(t, 10)
-		hs.opt.Workers = workers
-		var out bytes.Buffer
-		sum, err := hs.Convert(context.Background(), strings.NewReader(in.String()), &out)
+	for _, p := range pipelines {
+		out, sum, err := convertWith(t, hs, in.String(), p.workers, p.batch)
 		if err != nil {
 			t.Fatal(err)
 		}
-		outs = append(outs, out.String())
+		outs = append(outs, out)
 		sums = append(sums, sum)
 	}
 	for i := 1; i < len(outs); i++ {
 		if outs[i] != outs[0] || !reflect.DeepEqual(sums[i], sums[0]) {
-			t.Fatalf("output with %d configurations differs", i)
+			t.Fatalf("output with %+v differs from %+v", pipelines[i], pipelines[0])
 		}
 	}
-	if sums[0].Rows != 5000 || sums[0].BadRows == 0 || strings.Count(outs[0], "\n") != 5001 {
-		t.Fatalf("summary %+v", sums[0])
+	for _, want := range []string{`structures:line `, `column ""depth""`, `column ""hole_id""`, `column ""run_confidence""`,
+		`row has 3 fields`, `row has 9 fields`, `two` + "\n" + `lines, ""quoted""`, `orientation run rated poor`} {
+		if !strings.Contains(outs[0], want) {
+			t.Errorf("output lacks %q", want)
+		}
+	}
+	if sums[0].Rows != rows || sums[0].BadRows == 0 || sums[0].WarnRows == 0 {
+		t.Fatalf("summary %+v, want %d rows", sums[0], rows)
+	}
+
+	// A broken record ends the conversion with the same error and the same
+	// rows written before it, however the work is split.
+	broken := in.String() + "G1,1,\"2\"x,3,,,,\n" + "G1,1,2,3,,,,after\n"
+	var firstOut string
+	var firstErr error
+	for i, p := range pipelines {
+		out, _, err := convertWith(t, hs, broken, p.workers, p.batch)
+		if err == nil || !strings.Contains(err.Error(), "broken CSV") {
+			t.Fatalf("%+v: err = %v", p, err)
+		}
+		if i == 0 {
+			firstOut, firstErr = out, err
+			continue
+		}
+		if out != firstOut || err.Error() != firstErr.Error() {
+			t.Fatalf("%+v: output or error %v differs from %+v's %v", p, err, pipelines[0], firstErr)
+		}
+	}
+	if strings.Contains(firstOut, "after") || !strings.HasSuffix(firstOut, outs[0][strings.LastIndex(outs[0][:len(outs[0])-1], "\n")+1:]) {
+		t.Fatal("the rows before the broken record are not all written, or one after it is")
 	}
 
 	// Summary.PerHole against the written rows themselves, read back with

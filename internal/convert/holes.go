@@ -136,6 +136,9 @@ type Options struct {
 	// rows in Convert; 0 means one per CPU (GOMAXPROCS). Output order never
 	// depends on it.
 	Workers int
+	// batchRows is the number of rows in a batch of Convert, 0 for the
+	// default (tests vary it).
+	batchRows int
 }
 
 // Hole is one hole of a loaded programme: the hole model of package
