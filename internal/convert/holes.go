@@ -23,7 +23,11 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"runtime"
+	"slices"
 	"strings"
+	"sync"
+	"sync/atomic"
 
 	"corvane/internal/localgrid"
 	"corvane/internal/uncertainty"
@@ -227,19 +231,19 @@ func Load(collars, surveys io.Reader, opt Options) (*Holes, error) {
 func Build(crows []csvio.CollarRow, srows []csvio.SurveyRow, opt Options) (*Holes, error) {
 	cf, sf := nameOr(opt.CollarsFile, "collars"), nameOr(opt.SurveysFile, "surveys")
 	hs := &Holes{opt: opt, holes: make(map[string]*Hole, len(crows)), measurer: NewMeasurer(opt.MonteCarlo)}
-	byHole := map[string][]csvio.SurveyRow{}
+	byHole := map[string][]int{} // positions in srows of each hole's rows
 	var problems []*domain.Error
 	idx := map[string]int{}
 	for i, c := range crows {
 		idx[c.HoleID] = i
 	}
-	for _, s := range srows {
+	for i, s := range srows {
 		if _, ok := idx[s.HoleID]; !ok {
 			problems = append(problems, domain.Errorf(domain.Invalid, "survey of hole %q, which is not in the collars file %s", s.HoleID, cf).
 				At(domain.Location{File: sf, Line: s.Line, Column: csvio.ColHoleID}))
 			continue
 		}
-		byHole[s.HoleID] = append(byHole[s.HoleID], s)
+		byHole[s.HoleID] = append(byHole[s.HoleID], i)
 	}
 	if len(problems) == 1 {
 		return nil, problems[0]
@@ -247,48 +251,107 @@ func Build(crows []csvio.CollarRow, srows []csvio.SurveyRow, opt Options) (*Hole
 	if len(problems) > 1 {
 		return nil, &domain.Error{Kind: domain.Invalid, Msg: fmt.Sprintf("%d problems in the collars and surveys, the first at %s: %s", len(problems), problems[0].Loc, problems[0].Msg), Problems: problems}
 	}
+	// Holes are independent: they are built on one goroutine per CPU, each
+	// taking the next collar row in turn, and listed in collar order.
+	hs.order = make([]*Hole, len(crows))
 	p := opt.Project()
-	for _, c := range crows {
-		// The hole's rows by set: its survey set (no kind) and its sets by
-		// kind; the survey in use by the one rule of domain.UsedSurvey.
-		bySet := map[string][]csvio.SurveyRow{}
-		preferred := "" // csvio.ReadSurveys allows one preferred set per hole
-		for _, r := range byHole[c.HoleID] {
-			bySet[r.Kind] = append(bySet[r.Kind], r)
-			if r.Preferred {
-				preferred = r.Kind
+	var next atomic.Int64
+	var wg sync.WaitGroup
+	for range min(runtime.GOMAXPROCS(0), len(crows)) {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for {
+				i := int(next.Add(1)) - 1
+				if i >= len(crows) {
+					return
+				}
+				hs.order[i] = buildHole(crows[i], rowsOf(srows, byHole[crows[i].HoleID]), opt, p, cf, sf)
 			}
-		}
-		var kinds []string
-		for _, k := range domain.SurveyKinds {
-			if len(bySet[k]) > 0 {
-				kinds = append(kinds, k)
-			}
-		}
-		used := domain.UsedSurvey(kinds, preferred, opt.SurveyPriority, len(bySet[""]) > 0)
-		key := used
-		if used == domain.SurveyOfHole {
-			key = ""
-		}
-		input := func(rows []csvio.SurveyRow, set string) holemodel.Input {
-			in := HoleInput(c, rows)
-			in.SurveySet = set
-			return in
-		}
-		m := holemodel.New(input(bySet[key], used), p)
-		h := &Hole{Hole: m, ID: c.HoleID, Line: c.Line, Survey: used}
-		for _, k := range kinds {
-			h.Sets = append(h.Sets, KindSet{Kind: k, Hole: holemodel.New(input(bySet[k], k), p)})
-		}
-		if m.Err != nil {
-			h.Err = Locate(m.Err, c.Line, cf, sf)
-		} else {
-			h.tail = h.formatTail()
-		}
+		}()
+	}
+	wg.Wait()
+	for _, h := range hs.order {
 		hs.holes[h.ID] = h
-		hs.order = append(hs.order, h)
 	}
 	return hs, nil
+}
+
+// rowsOf returns the survey rows at positions at of srows (increasing): a
+// part of srows when they follow each other, as in a file sorted by hole.
+func rowsOf(srows []csvio.SurveyRow, at []int) []csvio.SurveyRow {
+	if len(at) == 0 {
+		return nil
+	}
+	if at[len(at)-1]-at[0] == len(at)-1 {
+		return srows[at[0] : at[0]+len(at) : at[0]+len(at)]
+	}
+	rows := make([]csvio.SurveyRow, len(at))
+	for i, k := range at {
+		rows[i] = srows[k]
+	}
+	return rows
+}
+
+// buildHole builds the hole of collar row c from its survey rows (in file
+// order): its survey set (rows without a kind) and its sets by kind, the
+// survey in use by the one rule of domain.UsedSurvey.
+func buildHole(c csvio.CollarRow, rows []csvio.SurveyRow, opt Options, p holemodel.Project, cf, sf string) *Hole {
+	// The rows of one set, in file order; all of them when they are all of
+	// that set (the common case of one survey set per hole).
+	setRows := func(kind string) []csvio.SurveyRow {
+		n := 0
+		for _, r := range rows {
+			if r.Kind == kind {
+				n++
+			}
+		}
+		if n == len(rows) || n == 0 {
+			return rows[:n]
+		}
+		set := make([]csvio.SurveyRow, 0, n)
+		for _, r := range rows {
+			if r.Kind == kind {
+				set = append(set, r)
+			}
+		}
+		return set
+	}
+	preferred := "" // csvio.ReadSurveys allows one preferred set per hole
+	noKind := false
+	for _, r := range rows {
+		noKind = noKind || r.Kind == ""
+		if r.Preferred {
+			preferred = r.Kind
+		}
+	}
+	var kinds []string
+	for _, k := range domain.SurveyKinds {
+		if slices.ContainsFunc(rows, func(r csvio.SurveyRow) bool { return r.Kind == k }) {
+			kinds = append(kinds, k)
+		}
+	}
+	used := domain.UsedSurvey(kinds, preferred, opt.SurveyPriority, noKind)
+	key := used
+	if used == domain.SurveyOfHole {
+		key = ""
+	}
+	input := func(rows []csvio.SurveyRow, set string) holemodel.Input {
+		in := HoleInput(c, rows)
+		in.SurveySet = set
+		return in
+	}
+	m := holemodel.New(input(setRows(key), used), p)
+	h := &Hole{Hole: m, ID: c.HoleID, Line: c.Line, Survey: used}
+	for _, k := range kinds {
+		h.Sets = append(h.Sets, KindSet{Kind: k, Hole: holemodel.New(input(setRows(k), k), p)})
+	}
+	if m.Err != nil {
+		h.Err = Locate(m.Err, c.Line, cf, sf)
+	} else {
+		h.tail = h.formatTail()
+	}
+	return h
 }
 
 // Project returns the holemodel project of the options: the value for all
