@@ -97,13 +97,13 @@ const benchHoles, benchRows = 2000, 1_000_000
 // BenchmarkConvert converts 1,000,000 structure rows on 2,000 holes end to end:
 // loading collars and surveys, desurveying, converting, writing the output CSV
 // (to io.Discard). Compare with BenchmarkCSVReadWrite. The sub-benchmarks are
-// the default (uncertainty columns, first order) and --no-uncertainty.
+// the default (the uncertainty columns) and --no-uncertainty.
 func BenchmarkConvert(b *testing.B) {
 	c, s, m := benchFiles(b, b.TempDir(), benchHoles, benchRows)
 	for _, v := range []struct {
 		name string
 		opt  Options
-	}{{"uncertainty", Options{}}, {"no-uncertainty", Options{NoUncertainty: true}}} {
+	}{{"default", Options{}}, {"no-uncertainty", Options{NoUncertainty: true}}} {
 		b.Run(v.name, func(b *testing.B) {
 			cpu0 := cpuTime(b)
 			for b.Loop() {

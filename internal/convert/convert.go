@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"runtime"
+	"slices"
 	"strings"
 	"sync"
 	"sync/atomic"
@@ -239,9 +240,12 @@ type converter struct {
 // batchRows is the number of rows in one batch.
 const batchRows = 512
 
-// batch is a run of rows; Record and Raw slices point into fields and raw.
+// batch is a run of rows: the reader fills lines, fields, spans, raw and
+// rawSpans; the worker makes rows from them (Record and Raw point into
+// fields, split and raw) and formats them into out.
 type batch struct {
-	seq      int // place of the batch in the input, from 0
+	seq      int   // place of the batch in the input, from 0
+	lines    []int // line of each row, as read
 	rows     []csvio.StructureRow
 	fields   []string // fields of the rows with quotes, as read
 	spans    []int    // start of each row's fields in fields, -1 for a row to split
@@ -335,10 +339,10 @@ func (p *pipeline) read(b *batch) bool {
 		return false
 	}
 	cv := p.cv
-	b.rows, b.fields, b.spans, b.raw, b.rawSpans, b.err = b.rows[:0], b.fields[:0], b.spans[:0], b.raw[:0], b.rawSpans[:0], nil
+	b.lines, b.fields, b.spans, b.raw, b.rawSpans, b.err = b.lines[:0], b.fields[:0], b.spans[:0], b.raw[:0], b.rawSpans[:0], nil
 	b.seq = p.seq
 	p.seq++
-	for len(b.rows) < cv.batchRows {
+	for len(b.lines) < cv.batchRows {
 		row, unsplit, err := cv.sr.NextUnsplit()
 		if err == io.EOF {
 			p.eof = true
@@ -357,7 +361,7 @@ func (p *pipeline) read(b *batch) bool {
 		}
 		b.rawSpans = append(b.rawSpans, len(b.raw))
 		b.raw = append(b.raw, row.Raw...)
-		b.rows = append(b.rows, *row)
+		b.lines = append(b.lines, row.Line)
 	}
 	return true
 }
@@ -415,12 +419,14 @@ func (cv *converter) convert(b *batch, ms *uncertainty.Measurer) {
 	b.sum = Summary{}
 	b.split = b.split[:0]
 	var text string // the batch's raw rows as one string, for rows to split
+	b.rows = slices.Grow(b.rows[:0], len(b.lines))[:len(b.lines)]
 	for i := range b.rows {
 		to := len(b.raw)
 		if i+1 < len(b.rawSpans) {
 			to = b.rawSpans[i+1]
 		}
 		from := b.rawSpans[i]
+		b.rows[i].Line = b.lines[i] // Parse sets the rest from Line, Record and Raw
 		b.rows[i].Raw = b.raw[from:to:to]
 		if sp := b.spans[i]; sp >= 0 {
 			to = len(b.fields)
