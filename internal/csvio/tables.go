@@ -24,6 +24,7 @@ import (
 	"strconv"
 	"strings"
 	"time"
+	"unicode/utf8"
 
 	"corvane/internal/domain"
 )
@@ -80,26 +81,34 @@ type Header struct {
 	File  string   // file name used in messages
 	Names []string // the names as written (trimmed, byte-order mark removed)
 	idx   map[string]int
+	// keys and at are idx as two lists, for looking up names already in
+	// lower case (the column constants) without hashing: readers look up
+	// several columns on every row.
+	keys []string
+	at   []int
 }
 
 // Index returns the position of the named column (matched without regard
 // to case), or -1.
 func (h *Header) Index(name string) int {
-	if i, ok := h.idx[strings.ToLower(name)]; ok {
-		return i
+	for i, k := range h.keys {
+		if k == name {
+			return h.at[i]
+		}
 	}
-	return -1
+	for i := 0; i < len(name); i++ {
+		if c := name[i]; c >= 'A' && c <= 'Z' || c >= utf8.RuneSelf {
+			if i, ok := h.idx[strings.ToLower(name)]; ok {
+				return i
+			}
+			return -1
+		}
+	}
+	return -1 // in lower case already, and not a key
 }
 
 // Has reports whether the header has the named column.
 func (h *Header) Has(name string) bool { return h.Index(name) >= 0 }
-
-func newReader(r io.Reader) *csv.Reader {
-	cr := csv.NewReader(r)
-	cr.FieldsPerRecord = -1
-	cr.ReuseRecord = true
-	return cr
-}
 
 // readHeader reads and checks the header line: not empty, no duplicate or
 // empty names, all required columns present.
@@ -136,6 +145,10 @@ func readHeader(cr interface{ Read() ([]string, error) }, file string, required 
 			return nil, invalid(file, 1, h.Names[max(i, j)], "columns %q and %q are the same column; keep one", h.Names[j], h.Names[i])
 		}
 		h.idx[col] = i
+	}
+	for k, i := range h.idx {
+		h.keys = append(h.keys, k)
+		h.at = append(h.at, i)
 	}
 	var missing []string
 	for _, c := range required {
@@ -349,7 +362,7 @@ func ParseAzimuthRef(s string) (string, error) {
 // returned. parse may check rw.bad at its end to keep state only for rows
 // that are kept.
 func readRows[T any](r io.Reader, file, what string, required []string, parse func(rw *row) T) ([]T, error) {
-	cr := newReader(r)
+	cr := newRecordReader(r) // encoding/csv's records and errors, faster (see recordReader)
 	h, err := readHeader(cr, file, required...)
 	if err != nil {
 		return nil, err
@@ -364,8 +377,7 @@ func readRows[T any](r io.Reader, file, what string, required []string, parse fu
 		if err != nil {
 			return nil, parseErr(file, err)
 		}
-		line, _ := cr.FieldPos(0)
-		rw := row{file: file, line: line, h: h, rec: rec}
+		rw := row{file: file, line: cr.recLine, h: h, rec: rec}
 		if len(rec) != len(h.Names) {
 			rw.fail("", "row has %d fields, the header has %d", len(rec), len(h.Names))
 			c.add(rw.bad)
