@@ -443,6 +443,53 @@ func TestConvertCancel(t *testing.T) {
 	}
 }
 
+// failAfter is a writer that fails once it has taken n bytes.
+type failAfter struct{ n int }
+
+func (w *failAfter) Write(p []byte) (int, error) {
+	if w.n -= len(p); w.n < 0 {
+		return 0, errors.New("disk full")
+	}
+	return len(p), nil
+}
+
+// cancelAfter is a structure stream that cancels its context once n rows
+// have been read from it, and goes on giving rows.
+type cancelAfter struct {
+	genReader
+	n      int
+	cancel context.CancelFunc
+}
+
+func (c *cancelAfter) Read(p []byte) (int, error) {
+	if c.i > c.n {
+		c.cancel()
+	}
+	return c.genReader.Read(p)
+}
+
+// A failing writer or a cancelled context ends the conversion with its
+// error, whatever the number of workers and the batch size; the workers all
+// stop (the call returns).
+func TestConvertStopsOnWriteErrorAndCancel(t *testing.T) {
+	hs := genHoles(t, 5)
+	for _, p := range pipelines {
+		h := *hs
+		h.opt.Workers, h.opt.batchRows = p.workers, p.batch
+		_, err := h.Convert(context.Background(), &genReader{n: 20000, holes: 5}, &failAfter{n: 100000})
+		if err == nil || !strings.Contains(err.Error(), "writing the output: disk full") {
+			t.Fatalf("%+v: err = %v", p, err)
+		}
+		ctx, cancel := context.WithCancel(context.Background())
+		var out bytes.Buffer
+		sum, err := h.Convert(ctx, &cancelAfter{genReader: genReader{n: 50000, holes: 5}, n: 3000, cancel: cancel}, &out)
+		cancel()
+		if !errors.Is(err, context.Canceled) || sum.Rows >= 50000 || strings.Count(out.String(), "\n") != sum.Rows+1 {
+			t.Fatalf("%+v: err = %v, %d rows counted, %d lines written", p, err, sum.Rows, strings.Count(out.String(), "\n"))
+		}
+	}
+}
+
 func TestOrient(t *testing.T) {
 	hs := load(t, collarsCSV, surveysCSV, Options{})
 	res, err := hs.Orient(Measurement{HoleID: "H1", Measurement: holemodel.Measurement{Depth: 50, Alpha: 20, Beta: 180}})
