@@ -439,12 +439,10 @@ func (cv *converter) convert(b *batch, ms *uncertainty.Measurer) {
 			b.rows[i].Record = b.fields[sp:to:to]
 			continue
 		}
+		b.rows[i].Record = nil // a row without quotes: its fields are its text's
 		if text == "" {
 			text = string(b.raw)
 		}
-		at := len(b.split)
-		b.split = csvio.SplitFields(b.split, text[from:to])
-		b.rows[i].Record = b.split[at:len(b.split):len(b.split)]
 	}
 	sum := &b.sum
 	sum.PerHole = b.perHole[:0]
@@ -457,7 +455,15 @@ func (cv *converter) convert(b *batch, ms *uncertainty.Measurer) {
 	var hc *HoleRows // counts of the row's hole id in sum.PerHole
 	for i := range b.rows {
 		row := &b.rows[i]
-		cv.sr.Parse(row)
+		if row.Record != nil {
+			cv.sr.Parse(row)
+		} else if from := b.rawSpans[i]; !cv.sr.ParseUnquoted(row, text[from:from+len(row.Raw)]) {
+			// A row with a problem, or a form the short path leaves to Parse.
+			at := len(b.split)
+			b.split = csvio.SplitFields(b.split, text[from:from+len(row.Raw)])
+			row.Record = b.split[at:len(b.split):len(b.split)]
+			cv.sr.Parse(row)
+		}
 		sum.Rows++
 		id := row.HoleID
 		if row.Err != nil && id == "" && cv.iHole < len(row.Record) {
@@ -467,7 +473,7 @@ func (cv *converter) convert(b *batch, ms *uncertainty.Measurer) {
 			hc = b.holeRowsOf(id)
 		}
 		hc.Rows++
-		if len(row.Record) == cv.ncols {
+		if row.Record == nil || len(row.Record) == cv.ncols { // nil: taken by ParseUnquoted, as wide as the header
 			cw.Raw(row.Raw) // the input columns exactly as read
 		} else {
 			writeRecord(cw, row.Record, cv.ncols)

@@ -135,13 +135,15 @@ func FuzzStructureReader(f *testing.F) {
 				}
 				return
 			}
+			checkParseUnquoted(t, sr, r)
 			if r.Err != nil {
 				if r.Err.Loc.File != "f.csv" || r.Err.Loc.Line != r.Line || r.Err.Msg == "" {
 					t.Fatalf("row problem not located: %v", r.Err)
 				}
 				continue
 			}
-			if r.HoleID == "" || !(r.Depth >= 0) || !(r.Alpha >= 0 && r.Alpha <= 90) || !(r.Beta >= 0 && r.Beta <= 360) ||
+			if r.HoleID == "" || !(r.Depth >= 0) || !(r.Alpha >= 0 && r.Alpha <= 90) ||
+				(r.HasBeta && !(r.Beta >= 0 && r.Beta <= 360)) || (!r.HasBeta && !math.IsNaN(r.Beta)) ||
 				(r.HasGamma && !(r.Gamma >= 0 && r.Gamma <= 360)) || (r.HasThickness && !(r.Thickness >= 0)) ||
 				(!r.HasGamma && !math.IsNaN(r.Gamma)) || math.IsInf(r.Depth, 0) {
 				t.Fatalf("bad row accepted: %+v", r)

@@ -191,6 +191,96 @@ func (s *StructureReader) Parse(r *StructureRow) {
 	}
 }
 
+// ParseUnquoted is Parse for a row read without quotes (see NextUnsplit),
+// given its text: it fills in r from the text's fields (the text split at
+// every comma) without making a string of each, and returns true, when the
+// row is good and its numbers are plain decimals ([ParseNumber]'s common
+// form) and its run_confidence, if any, is written in lower case. Otherwise
+// it returns false, r keeping its Line and Raw: call Parse with the split
+// fields, which reports the row's problem. Record is set to nil: the fields
+// are the text's. It is safe to call concurrently on different rows.
+func (s *StructureReader) ParseUnquoted(r *StructureRow, text string) bool {
+	const most = 32 // columns; wider files take the general path
+	n := len(s.Header.Names)
+	if n > most {
+		return false
+	}
+	var ends [most]int // end of each field in text
+	k, rest := 0, text
+	for {
+		i := strings.IndexByte(rest, ',')
+		if i < 0 {
+			break
+		}
+		if k == n-1 {
+			return false // more fields than the header
+		}
+		ends[k] = len(text) - len(rest) + i
+		k++
+		rest = rest[i+1:]
+	}
+	if k != n-1 {
+		return false
+	}
+	ends[k] = len(text)
+	cell := func(i int) string {
+		from := 0
+		if i > 0 {
+			from = ends[i-1] + 1
+		}
+		return strings.TrimSpace(text[from:ends[i]])
+	}
+	// num parses an optional number cell: has is false for an empty cell,
+	// ok false for anything but a plain decimal.
+	num := func(i int) (v float64, has, ok bool) {
+		c := cell(i)
+		if c == "" {
+			return math.NaN(), false, true
+		}
+		v, ok = parseSimple(c)
+		return v, ok, ok
+	}
+	*r = StructureRow{Line: r.Line, Raw: r.Raw, Gamma: math.NaN(), Thickness: math.NaN(), RunMismatch: math.NaN()}
+	row := r
+	if row.HoleID = cell(s.iHole); row.HoleID == "" {
+		return false
+	}
+	var has, ok bool
+	if row.Depth, has, ok = num(s.iDepth); !has || !ok || row.Depth < 0 {
+		return false
+	}
+	if row.Alpha, has, ok = num(s.iAlpha); !has || !ok || !(row.Alpha >= 0 && row.Alpha <= 90) {
+		return false
+	}
+	if row.Beta, row.HasBeta, ok = num(s.iBeta); !ok || row.HasBeta && !(row.Beta >= 0 && row.Beta <= 360) {
+		return false
+	}
+	if s.iGamma >= 0 {
+		if row.Gamma, row.HasGamma, ok = num(s.iGamma); !ok || row.HasGamma && !(row.Gamma >= 0 && row.Gamma <= 360) {
+			return false
+		}
+	}
+	if s.iThick >= 0 {
+		if row.Thickness, row.HasThickness, ok = num(s.iThick); !ok || row.HasThickness && row.Thickness < 0 {
+			return false
+		}
+	}
+	if s.iRunConf >= 0 {
+		if c := cell(s.iRunConf); c != "" {
+			if !slices.Contains(Confidences, c) {
+				return false
+			}
+			row.RunConfidence = c
+		}
+	}
+	if s.iRunMismatch >= 0 {
+		if row.RunMismatch, has, ok = num(s.iRunMismatch); !ok || has && !(row.RunMismatch >= 0 && row.RunMismatch <= 180) {
+			return false
+		}
+	}
+	return true
+}
+
 // fail records a problem in column i unless the row already has one.
 func (s *StructureReader) fail(r *StructureRow, i int, format string, args ...any) {
 	if r.Err == nil {

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"encoding/csv"
 	"errors"
+	"fmt"
 	"io"
 	"math"
 	"math/rand/v2"
@@ -538,5 +539,112 @@ func TestReadSurveysPreferred(t *testing.T) {
 		ps[2].Loc.Line != 6 || !strings.Contains(ps[2].Msg, "differs from line 5") ||
 		ps[3].Loc.Line != 7 || !strings.Contains(ps[3].Msg, `"maybe" is not yes or no`) {
 		t.Fatalf("problems: %v", ps)
+	}
+}
+
+// checkParseUnquoted: on the text of a row without quotes, ParseUnquoted
+// either declines, keeping the row's line and text, or gives exactly what
+// Parse gave (r, read by Next), the fields aside.
+func checkParseUnquoted(t *testing.T, sr *StructureReader, r *StructureRow) {
+	t.Helper()
+	if bytes.IndexByte(r.Raw, '"') >= 0 {
+		return
+	}
+	got := StructureRow{Line: r.Line, Raw: r.Raw, HoleID: "stale", Record: []string{"stale"}}
+	if !sr.ParseUnquoted(&got, string(r.Raw)) {
+		if got.Line != r.Line || string(got.Raw) != string(r.Raw) {
+			t.Fatalf("line %d %q: declined and lost the line or text", r.Line, r.Raw)
+		}
+		return
+	}
+	want := *r
+	want.Record = nil
+	if fmt.Sprintf("%#v", got) != fmt.Sprintf("%#v", want) {
+		t.Fatalf("line %d %q: ParseUnquoted %+v, Parse %+v", r.Line, r.Raw, got, want)
+	}
+}
+
+// ParseUnquoted takes the common rows and gives what Parse gives; it
+// declines every row with a problem, and the forms it leaves to Parse.
+func TestParseUnquotedMatchesParse(t *testing.T) {
+	r := rand.New(rand.NewPCG(9, 9))
+	cells := map[string][]string{
+		"num":  {"", " ", "0", "12", "12.5", " 7.25 ", "-3", "+4", "1e2", "abc", "NaN", "Inf", "95", "360", "361", "180", "181", "-0", "0012.50", "1234567890123456"},
+		"id":   {"", " ", "A", " B1 ", "hole 7"},
+		"conf": {"", "good", "Good", " poor ", "none", "bad", "FAIR"},
+		"text": {"", "x", "joint", " a b "},
+	}
+	for _, header := range []string{
+		"hole_id,depth,alpha,beta",
+		"hole_id,depth,alpha,beta,gamma,type,comment",
+		"note,beta,alpha,depth,hole_id,apparent_thickness,run_confidence,run_mismatch,gamma",
+		"Hole_ID,Depth,ALPHA,beta,thickness",
+	} {
+		names := strings.Split(header, ",")
+		kinds := make([]string, len(names))
+		for i, n := range names {
+			switch strings.ToLower(n) {
+			case "hole_id":
+				kinds[i] = "id"
+			case "run_confidence":
+				kinds[i] = "conf"
+			case "type", "comment", "note":
+				kinds[i] = "text"
+			default:
+				kinds[i] = "num"
+			}
+		}
+		var in strings.Builder
+		in.WriteString(header + "\n")
+		for k := 0; k < 20000; k++ {
+			n := len(names)
+			switch r.IntN(30) {
+			case 0:
+				n-- // too few fields
+			case 1:
+				n++ // too many
+			}
+			for i := 0; i < n; i++ {
+				if i > 0 {
+					in.WriteByte(',')
+				}
+				kind := "text"
+				if i < len(kinds) {
+					kind = kinds[i]
+				}
+				vals := cells[kind]
+				if kind == "num" && r.IntN(3) > 0 {
+					in.WriteString(strconv.FormatFloat(r.Float64()*100, 'f', r.IntN(4), 64))
+					continue
+				}
+				in.WriteString(vals[r.IntN(len(vals))])
+			}
+			in.WriteByte('\n')
+		}
+		sr, err := NewStructureReader(strings.NewReader(in.String()), "s.csv")
+		if err != nil {
+			t.Fatal(err)
+		}
+		taken := 0
+		for {
+			row, err := sr.Next()
+			if err == io.EOF {
+				break
+			}
+			if err != nil {
+				t.Fatal(err)
+			}
+			checkParseUnquoted(t, sr, row)
+			got := StructureRow{Line: row.Line, Raw: row.Raw}
+			if sr.ParseUnquoted(&got, string(row.Raw)) {
+				taken++
+				if row.Err != nil {
+					t.Fatalf("%q: taken, but Parse finds %v", row.Raw, row.Err)
+				}
+			}
+		}
+		if taken < 1000 {
+			t.Fatalf("%s: ParseUnquoted took only %d rows", header, taken)
+		}
 	}
 }
