@@ -44,6 +44,7 @@ func Run(t *testing.T, newStore func(t *testing.T) domain.Store) {
 		{"Cascade", testCascade},
 		{"ConcurrentWriters", testConcurrentWriters},
 		{"ChangeLog", testChangeLog},
+		{"ImportBatchChangeLog", testImportBatchChangeLog},
 		{"SyncState", testSyncState},
 		{"KindSetLog", testKindSetLog},
 		{"ImportBatches", testImportBatches},

@@ -4,6 +4,7 @@ import (
 	"context"
 	"encoding/json"
 	"errors"
+	"fmt"
 	"testing"
 	"time"
 
@@ -256,4 +257,77 @@ func testKindSetLog(t *testing.T, s domain.Store) {
 	if hg, kind := domain.SplitKindSetGlobalID(gid); hg != h.GlobalID || kind != domain.SurveyGyro {
 		t.Errorf("split %q: %q %q", gid, hg, kind)
 	}
+}
+
+// testImportBatchChangeLog: rows staged into an import batch are not in the
+// change log (nobody sees them) until the batch commits; then each is
+// logged once, as created, in the order of its id, after the entries of
+// writes that committed while it was staged. A dropped batch leaves no
+// entry. Rows of a committed batch are logged as any other when changed.
+func testImportBatchChangeLog(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	p := newProject(t, s, "batch changes")
+	h := newHole(t, s, p.ID, "L1")
+	gid := func(i int) string { return fmt.Sprintf("0193c0de-0000-7000-8000-%012d", i) }
+	rows := func(from, n int) []domain.Measurement {
+		ms := make([]domain.Measurement, n)
+		for i := range ms {
+			ms[i] = domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: float64(1 + from + i), Alpha: 30, Beta: f64(10),
+				TypeCode: "BD", LoggedAt: time.Date(2026, 3, 2, 0, 0, 0, 0, time.UTC), GlobalID: gid(from + i)}
+		}
+		return ms
+	}
+	start, err := s.LastChangeSeq(c)
+	must(t, err)
+	changes := func() []domain.Change {
+		t.Helper()
+		got, err := s.ListChanges(c, domain.ChangeFilter{ProjectID: p.ID, After: start})
+		must(t, err)
+		return got
+	}
+
+	b, err := s.OpenBatch(c, p.ID)
+	must(t, err)
+	_, err = s.StageMeasurements(c, b, rows(1, 2))
+	must(t, err)
+	_, err = s.StageMeasurements(c, b, rows(3, 1))
+	must(t, err)
+	diff(t, "change log while staging", []op{}, ops(changes()))
+	one := rows(10, 1)[0]
+	must(t, s.CreateMeasurement(c, &one))
+	// A dropped batch is never logged.
+	d, err := s.OpenBatch(c, p.ID)
+	must(t, err)
+	_, err = s.StageMeasurements(c, d, rows(20, 3))
+	must(t, err)
+	must(t, s.DropBatch(c, d))
+	diff(t, "change log after a write beside the batch and a dropped batch", []op{
+		{domain.SyncMeasurements, gid(10), "create", 1, ""},
+	}, ops(changes()))
+
+	must(t, s.InTx(c, func(c ctxT, tx domain.Store) error { return tx.CommitBatch(c, b) }))
+	got := changes()
+	diff(t, "change log after the commit", []op{
+		{domain.SyncMeasurements, gid(10), "create", 1, ""},
+		{domain.SyncMeasurements, gid(1), "create", 1, ""},
+		{domain.SyncMeasurements, gid(2), "create", 1, ""},
+		{domain.SyncMeasurements, gid(3), "create", 1, ""},
+	}, ops(got))
+	if got[1].HoleID != h.ID || got[1].ProjectID != p.ID {
+		t.Errorf("hole and project of a committed row's entry: %+v", got[1])
+	}
+
+	byGID, err := s.MeasurementsByGlobalID(c, []string{gid(2)})
+	must(t, err)
+	if len(byGID) != 1 {
+		t.Fatalf("committed row by global id: %+v", byGID)
+	}
+	m := byGID[0]
+	m.Comment = "checked"
+	must(t, s.UpdateMeasurement(c, &m, 1))
+	must(t, s.DeleteMeasurement(c, m.ID, 2))
+	diff(t, "a committed row changed and deleted", []op{
+		{domain.SyncMeasurements, gid(2), "update", 2, ""},
+		{domain.SyncMeasurements, gid(2), "delete", 2, ""},
+	}, ops(changes()[4:]))
 }

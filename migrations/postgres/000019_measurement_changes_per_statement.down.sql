@@ -1,0 +1,10 @@
+DROP TRIGGER import_batch_log ON import_batches;
+DROP FUNCTION import_batch_log();
+DROP TRIGGER measurements_changed_insert ON measurements;
+DROP TRIGGER measurements_changed_update ON measurements;
+DROP TRIGGER measurements_changed_delete ON measurements;
+DROP FUNCTION measurements_changed();
+CREATE TRIGGER measurements_log AFTER INSERT OR UPDATE OR DELETE ON measurements FOR EACH ROW EXECUTE FUNCTION measurements_log();
+CREATE TRIGGER measurement_stamp_insert AFTER INSERT ON measurements FOR EACH ROW WHEN (NEW.batch IS NULL) EXECUTE FUNCTION measurement_stamp();
+CREATE TRIGGER measurement_stamp_update AFTER UPDATE ON measurements FOR EACH ROW WHEN (OLD.* IS DISTINCT FROM NEW.*) EXECUTE FUNCTION measurement_stamp();
+CREATE TRIGGER measurement_stamp AFTER DELETE ON measurements FOR EACH ROW EXECUTE FUNCTION measurement_stamp();
