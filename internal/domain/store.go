@@ -171,6 +171,10 @@ type Store interface {
 	// with page.After > 0 it starts after the row (afterDepth, page.After).
 	ListMeasurementsByDepth(ctx context.Context, f MeasurementFilter, afterDepth float64, page Page) ([]Measurement, error)
 	CountMeasurements(ctx context.Context, f MeasurementFilter) (int64, error)
+	// MeasurementKeys returns the duplicate keys (KeyOf) of the
+	// measurements that pass f, in no order, in one read of the key's
+	// columns: what an import checks its rows against.
+	MeasurementKeys(ctx context.Context, f MeasurementFilter) ([]MeasurementKey, error)
 	UpdateMeasurement(ctx context.Context, m *Measurement, ifVersion int64) error
 	DeleteMeasurement(ctx context.Context, id, ifVersion int64) error
 

@@ -992,23 +992,16 @@ func (d *duplicates) storedIn(ctx context.Context, rows []pendingRow) ([]bool, e
 	return out, nil
 }
 
-// read returns the keys of the stored measurements that pass f.
+// read returns the keys of the stored measurements that pass f, reading
+// only the key columns.
 func (d *duplicates) read(ctx context.Context, f domain.MeasurementFilter) (map[domain.MeasurementKey]bool, error) {
-	keys := map[domain.MeasurementKey]bool{}
-	pg := domain.Page{Limit: domain.MaxLimit}
-	after := 0.0
-	for {
-		ms, err := d.st.ListMeasurementsByDepth(ctx, f, after, pg)
-		if err != nil {
-			return nil, err
-		}
-		for _, sm := range ms {
-			keys[domain.KeyOf(sm)] = true
-		}
-		if len(ms) < pg.Limit {
-			return keys, nil
-		}
-		last := ms[len(ms)-1]
-		after, pg.After = last.Depth, last.ID
+	stored, err := d.st.MeasurementKeys(ctx, f)
+	if err != nil {
+		return nil, err
 	}
+	keys := make(map[domain.MeasurementKey]bool, len(stored))
+	for _, k := range stored {
+		keys[k] = true
+	}
+	return keys, nil
 }

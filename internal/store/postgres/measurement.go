@@ -188,6 +188,21 @@ func (s *Store) CountMeasurements(ctx context.Context, f domain.MeasurementFilte
 	return n, translate(err)
 }
 
+// MeasurementKeys returns the duplicate keys of the measurements that pass
+// f, reading only the key's columns.
+func (s *Store) MeasurementKeys(ctx context.Context, f domain.MeasurementFilter) ([]domain.MeasurementKey, error) {
+	w, args := where(f)
+	rows, err := s.read().Query(ctx, `SELECT hole_id, depth, alpha, beta, gamma, type_code FROM measurements`+w, args...)
+	if err != nil {
+		return nil, translate(err)
+	}
+	return collect(rows, func(r scanner) (domain.MeasurementKey, error) {
+		var m domain.Measurement
+		err := r.Scan(&m.HoleID, &m.Depth, &m.Alpha, &m.Beta, &m.Gamma, &m.TypeCode)
+		return domain.KeyOf(m), err
+	})
+}
+
 // UpdateMeasurement writes m over the row at version ifVersion.
 func (s *Store) UpdateMeasurement(ctx context.Context, m *domain.Measurement, ifVersion int64) error {
 	t := storekit.Now()

@@ -213,6 +213,23 @@ func (s *Store) MeasurementsByGlobalID(ctx context.Context, globalIDs []string) 
 	return out, nil
 }
 
+// MeasurementKeys returns the duplicate keys of the measurements that pass
+// f, reading only the key's columns.
+func (s *Store) MeasurementKeys(ctx context.Context, f domain.MeasurementFilter) ([]domain.MeasurementKey, error) {
+	w, args := where(f)
+	rows, err := s.read().QueryContext(ctx, `SELECT hole_id, depth, alpha, beta, gamma, type_code FROM measurements`+w, args...)
+	if err != nil {
+		return nil, translate(err)
+	}
+	return collect(rows, func(r scanner) (domain.MeasurementKey, error) {
+		var m domain.Measurement
+		var b, g sql.NullFloat64
+		err := r.Scan(&m.HoleID, &m.Depth, &m.Alpha, &b, &g, &m.TypeCode)
+		m.Beta, m.Gamma = floatPtr(b), floatPtr(g)
+		return domain.KeyOf(m), err
+	})
+}
+
 // GetMeasurement returns the measurement with the given ID.
 func (s *Store) GetMeasurement(ctx context.Context, id int64) (domain.Measurement, error) {
 	m, err := scanMeasurement(s.read().QueryRowContext(ctx, selectMeasurement, id))

@@ -9,6 +9,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"sort"
 	"sync"
 	"sync/atomic"
 	"testing"
@@ -48,6 +49,7 @@ func Run(t *testing.T, newStore func(t *testing.T) domain.Store) {
 		{"SyncState", testSyncState},
 		{"KindSetLog", testKindSetLog},
 		{"ImportBatches", testImportBatches},
+		{"MeasurementKeys", testMeasurementKeys},
 		{"ModelStamp", testModelStamp},
 		{"MeasurementStamp", testMeasurementStamp},
 	}
@@ -992,6 +994,56 @@ func testCoreIntervals(t *testing.T, s domain.Store) {
 	must(t, s.DeleteHole(c, h.ID, hh.Version))
 	if got, err = s.ListCoreIntervals(c, h.ID); err != nil || len(got) != 0 {
 		t.Errorf("intervals of a deleted hole: %+v %v", got, err)
+	}
+}
+
+// testMeasurementKeys: the duplicate keys of the measurements that pass a
+// filter (hole, depths, project) are those of the visible ones (unoriented
+// ones without a beta, gamma where given), not of another hole's or
+// project's, nor of rows staged in an open batch.
+func testMeasurementKeys(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	p := newProject(t, s, "keys")
+	other := newProject(t, s, "keys other")
+	h, h2, h3 := newHole(t, s, p.ID, "K1"), newHole(t, s, p.ID, "K2"), newHole(t, s, other.ID, "K3")
+	at := time.Date(2026, 3, 2, 0, 0, 0, 0, time.UTC)
+	ms := []domain.Measurement{
+		{ProjectID: p.ID, HoleID: h.ID, Depth: 10.25, Alpha: 40, Beta: f64(120), TypeCode: "BD", LoggedAt: at},
+		{ProjectID: p.ID, HoleID: h.ID, Depth: 10.25, Alpha: 40, TypeCode: "BD", LoggedAt: at, Comment: "no mark"},
+		{ProjectID: p.ID, HoleID: h.ID, Depth: 11, Alpha: 35, Beta: f64(0), Gamma: f64(15), TypeCode: "JN", LoggedAt: at},
+		{ProjectID: p.ID, HoleID: h.ID, Depth: 11, Alpha: 35, Beta: f64(0), Gamma: f64(15), TypeCode: "JN", LoggedAt: at, Comment: "again"},
+		{ProjectID: p.ID, HoleID: h2.ID, Depth: 12, Alpha: 30, Beta: f64(10), TypeCode: "BD", LoggedAt: at},
+		{ProjectID: other.ID, HoleID: h3.ID, Depth: 13, Alpha: 30, Beta: f64(10), TypeCode: "BD", LoggedAt: at},
+	}
+	_, err := s.CreateMeasurements(c, ms)
+	must(t, err)
+	b, err := s.OpenBatch(c, p.ID)
+	must(t, err)
+	_, err = s.StageMeasurements(c, b, []domain.Measurement{{ProjectID: p.ID, HoleID: h.ID, Depth: 14, Alpha: 30, Beta: f64(10), TypeCode: "BD", LoggedAt: at}})
+	must(t, err)
+	sorted := func(ks []domain.MeasurementKey) []domain.MeasurementKey {
+		sort.Slice(ks, func(i, j int) bool { return fmt.Sprint(ks[i]) < fmt.Sprint(ks[j]) })
+		return ks
+	}
+	d11 := 11.0
+	for _, tc := range []struct {
+		f    domain.MeasurementFilter
+		want []domain.Measurement
+	}{
+		{domain.MeasurementFilter{ProjectID: p.ID, HoleIDs: []int64{h.ID}}, ms[:4]},
+		{domain.MeasurementFilter{ProjectID: p.ID, HoleIDs: []int64{h.ID}, MinDepth: &d11, MaxDepth: &d11}, ms[2:4]},
+		{domain.MeasurementFilter{ProjectID: p.ID, HoleIDs: []int64{h2.ID}}, ms[4:5]},
+		{domain.MeasurementFilter{ProjectID: p.ID}, ms[:5]},
+		{domain.MeasurementFilter{ProjectID: p.ID, HoleIDs: []int64{h3.ID}}, nil},
+		{domain.MeasurementFilter{ProjectID: other.ID, HoleIDs: []int64{h3.ID}}, ms[5:6]},
+	} {
+		got, err := s.MeasurementKeys(c, tc.f)
+		must(t, err)
+		want := []domain.MeasurementKey{}
+		for _, m := range tc.want {
+			want = append(want, domain.KeyOf(m))
+		}
+		diff(t, fmt.Sprintf("keys of %+v", tc.f), sorted(want), sorted(append([]domain.MeasurementKey{}, got...)))
 	}
 }
 
