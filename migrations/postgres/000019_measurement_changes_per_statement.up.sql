@@ -28,6 +28,10 @@ DECLARE
     v_actor  TEXT := COALESCE(current_setting('corvane.actor', true), '');
 BEGIN
     IF TG_OP = 'INSERT' THEN
+        -- Rows staged by an import: nothing to log, no stamp to move.
+        IF NOT EXISTS (SELECT 1 FROM new_rows WHERE batch IS NULL OR batch IN (SELECT id FROM import_batches WHERE committed)) THEN
+            RETURN NULL;
+        END IF;
         PERFORM pg_advisory_xact_lock(1129467478, (p % 2147483647)::int)
             FROM (SELECT DISTINCT project_id AS p FROM new_rows
                 WHERE batch IS NULL OR batch IN (SELECT id FROM import_batches WHERE committed) ORDER BY 1) ps;
