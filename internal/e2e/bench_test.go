@@ -106,14 +106,17 @@ func BenchmarkImportAPIvsPsqlCopy(b *testing.B) {
 		if resp.StatusCode != 201 {
 			b.Fatalf("import: status %d", resp.StatusCode)
 		}
-		apiTime += time.Since(t0)
+		apiIter := time.Since(t0)
+		apiTime += apiIter
 
 		t0 = time.Now()
 		out, err := exec.Command(psql, "-X", "-q", "-v", "ON_ERROR_STOP=1", "-d", db, "-c", copyCmd).CombinedOutput()
 		if err != nil {
 			b.Fatalf("psql \\copy: %v\n%s", err, out)
 		}
-		copyTime += time.Since(t0)
+		copyIter := time.Since(t0)
+		copyTime += copyIter
+		b.Logf("%d rows: API %v, psql \\copy %v", rows, apiIter.Round(time.Millisecond), copyIter.Round(time.Millisecond))
 	}
 	b.StopTimer()
 	total := float64(rows * b.N)
