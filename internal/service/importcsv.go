@@ -915,8 +915,9 @@ func orDefault(s, def string) string {
 // or an earlier row of the file (domain.KeyOf). The stored rows are read a
 // batch of the file's rows at a time, per hole only at the depths the batch
 // covers (the index on hole and depth), so an import of a few rows into a
-// long hole reads a few rows; a hole asked about more than twice has all
-// its stored rows read once instead.
+// long hole reads a few rows; a hole asked about more than twice, or named
+// in a full batch (a large file: its batches would read most of the hole
+// again and again), has all its stored rows read once instead.
 type duplicates struct {
 	st        domain.Store
 	projectID int64
@@ -973,7 +974,7 @@ func (d *duplicates) storedIn(ctx context.Context, rows []pendingRow) ([]bool, e
 			continue
 		}
 		f := domain.MeasurementFilter{ProjectID: d.projectID, HoleIDs: []int64{hole}}
-		if d.asked[hole] < wholeAfter {
+		if d.asked[hole] < wholeAfter && len(rows) < importBatch {
 			d.asked[hole]++
 			f.MinDepth, f.MaxDepth = &sp.lo, &sp.hi
 		}
