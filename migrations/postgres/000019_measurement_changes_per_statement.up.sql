@@ -24,31 +24,27 @@ DROP TRIGGER measurement_stamp ON measurements;
 
 CREATE FUNCTION measurements_changed() RETURNS trigger LANGUAGE plpgsql AS $$
 DECLARE
-    v_origin TEXT := COALESCE(current_setting('corvane.origin', true), '');
-    v_actor  TEXT := COALESCE(current_setting('corvane.actor', true), '');
+    -- The statement's rows: after an insert or update, before a delete.
+    v_rows TEXT := CASE TG_OP WHEN 'DELETE' THEN 'old_rows' ELSE 'new_rows' END;
+    v_op   TEXT := CASE TG_OP WHEN 'INSERT' THEN 'create' WHEN 'UPDATE' THEN 'update' ELSE 'delete' END;
+    v_visible CONSTANT TEXT := '(batch IS NULL OR batch IN (SELECT id FROM import_batches WHERE committed))';
 BEGIN
     IF TG_OP = 'INSERT' THEN
         -- Rows staged by an import: nothing to log, no stamp to move.
         IF NOT EXISTS (SELECT 1 FROM new_rows WHERE batch IS NULL OR batch IN (SELECT id FROM import_batches WHERE committed)) THEN
             RETURN NULL;
         END IF;
-        PERFORM pg_advisory_xact_lock(1129467478, (p % 2147483647)::int)
-            FROM (SELECT DISTINCT project_id AS p FROM new_rows
-                WHERE batch IS NULL OR batch IN (SELECT id FROM import_batches WHERE committed) ORDER BY 1) ps;
-        INSERT INTO change_log (project_id, hole_id, tbl, global_id, op, version, origin, actor)
-            SELECT project_id, hole_id, 'measurements', global_id, 'create', version, v_origin, v_actor FROM new_rows
-            WHERE global_id IS NOT NULL AND (batch IS NULL OR batch IN (SELECT id FROM import_batches WHERE committed))
-            ORDER BY id;
+    END IF;
+    EXECUTE format('SELECT pg_advisory_xact_lock(1129467478, (p %% 2147483647)::int)
+        FROM (SELECT DISTINCT project_id AS p FROM %I WHERE %s ORDER BY 1) ps', v_rows, v_visible);
+    EXECUTE format('INSERT INTO change_log (project_id, hole_id, tbl, global_id, op, version, origin, actor)
+        SELECT project_id, hole_id, ''measurements'', global_id, $1, version, $2, $3 FROM %I
+        WHERE global_id IS NOT NULL AND %s ORDER BY id', v_rows, v_visible)
+        USING v_op, COALESCE(current_setting('corvane.origin', true), ''), COALESCE(current_setting('corvane.actor', true), '');
+    IF TG_OP = 'INSERT' THEN
         PERFORM measurement_stamp_bump(p, h)
             FROM (SELECT DISTINCT project_id AS p, hole_id AS h FROM new_rows WHERE batch IS NULL ORDER BY 1, 2) ph;
     ELSIF TG_OP = 'UPDATE' THEN
-        PERFORM pg_advisory_xact_lock(1129467478, (p % 2147483647)::int)
-            FROM (SELECT DISTINCT project_id AS p FROM new_rows
-                WHERE batch IS NULL OR batch IN (SELECT id FROM import_batches WHERE committed) ORDER BY 1) ps;
-        INSERT INTO change_log (project_id, hole_id, tbl, global_id, op, version, origin, actor)
-            SELECT project_id, hole_id, 'measurements', global_id, 'update', version, v_origin, v_actor FROM new_rows
-            WHERE global_id IS NOT NULL AND (batch IS NULL OR batch IN (SELECT id FROM import_batches WHERE committed))
-            ORDER BY id;
         PERFORM measurement_stamp_bump(p, h)
             FROM (SELECT DISTINCT p, h FROM (
                 SELECT o.project_id AS p, o.hole_id AS h FROM old_rows o JOIN new_rows n ON n.id = o.id WHERE o IS DISTINCT FROM n
@@ -56,13 +52,6 @@ BEGIN
                 SELECT n.project_id, n.hole_id FROM old_rows o JOIN new_rows n ON n.id = o.id WHERE o IS DISTINCT FROM n
             ) c ORDER BY 1, 2) ph;
     ELSE
-        PERFORM pg_advisory_xact_lock(1129467478, (p % 2147483647)::int)
-            FROM (SELECT DISTINCT project_id AS p FROM old_rows
-                WHERE batch IS NULL OR batch IN (SELECT id FROM import_batches WHERE committed) ORDER BY 1) ps;
-        INSERT INTO change_log (project_id, hole_id, tbl, global_id, op, version, origin, actor)
-            SELECT project_id, hole_id, 'measurements', global_id, 'delete', version, v_origin, v_actor FROM old_rows
-            WHERE global_id IS NOT NULL AND (batch IS NULL OR batch IN (SELECT id FROM import_batches WHERE committed))
-            ORDER BY id;
         PERFORM measurement_stamp_bump(p, h)
             FROM (SELECT DISTINCT project_id AS p, hole_id AS h FROM old_rows ORDER BY 1, 2) ph;
     END IF;
