@@ -108,11 +108,15 @@ func runImport(ctx context.Context, env *Env, args []string) int {
 	}
 	ctx = service.WithActor(ctx, localActor(env, *as))
 	meter := progress.New(env.Stderr, "import "+*kind, size)
-	res, err := service.New(st, nil).Import(ctx, pid, service.ImportRequest{
+	svc := service.New(st, nil)
+	res, err := svc.Import(ctx, pid, service.ImportRequest{
 		Kind: *kind, File: name, Body: meter.Reader(in),
 		DryRun: *dry, Duplicates: *dups, IdempotencyKey: *key,
 	})
 	meter.Done()
+	// The rows' change log entries (for sync) are written after the import
+	// commits; the command ends when they are.
+	svc.WaitLogging()
 	if err != nil {
 		if errors.Is(err, context.Canceled) || errors.Is(ctx.Err(), context.Canceled) {
 			return fail(ExitRows, "%s: interrupted; nothing was imported", name)

@@ -146,6 +146,12 @@ func serve(ctx context.Context, env *Env, cfg config.Config, log *slog.Logger) e
 	}
 	defer st.Close()
 	svc := service.New(st, log)
+	// Change log entries an import still owed when a process stopped.
+	go func() {
+		if err := svc.LogPending(context.WithoutCancel(ctx), 0); err != nil {
+			log.Error("writing the change log still owed by imports (the next reader of the change log finishes it)", "error", err)
+		}
+	}()
 	var demoLine string
 	if cfg.Demo {
 		// Replicas starting together load the demo one at a time: the first

@@ -160,11 +160,18 @@ type Store interface {
 	// sets IDs on ms only when the store can do so cheaply); CommitBatch,
 	// called inside the import's last transaction, shows every staged row at
 	// once (NotFound when the batch is gone); DropBatch removes the batch and
-	// its rows, in short transactions.
+	// its rows, in short transactions. A committed batch's rows reach the
+	// change log afterwards, LogBatch writing the entries of the next rows
+	// (at most rows, one transaction; more reports whether rows are left),
+	// so that no transaction logs a whole file; UnloggedBatches lists the
+	// committed batches of a project (0: of all) not wholly logged yet.
+	// Whoever reads the change log logs them first (see the service).
 	OpenBatch(ctx context.Context, projectID int64) (int64, error)
 	StageMeasurements(ctx context.Context, batch int64, ms []Measurement) (int, error)
 	CommitBatch(ctx context.Context, batch int64) error
 	DropBatch(ctx context.Context, batch int64) error
+	LogBatch(ctx context.Context, batch int64, rows int) (more bool, err error)
+	UnloggedBatches(ctx context.Context, projectID int64) ([]int64, error)
 	GetMeasurement(ctx context.Context, id int64) (Measurement, error)
 	ListMeasurements(ctx context.Context, f MeasurementFilter, page Page) ([]Measurement, error)
 	// ListMeasurementsByDepth lists in (depth, id) order, paged by keyset:

@@ -203,6 +203,9 @@ func (s *Service) Import(ctx context.Context, projectID int64, req ImportRequest
 		})
 		if err == nil && staged != nil {
 			staged.committed = true
+			if staged.batch != 0 {
+				s.logLater(staged.batch)
+			}
 		}
 	}
 	if domain.IsKind(err, domain.PreconditionFailed) {

@@ -33,6 +33,10 @@ func TestOnPostgres(t *testing.T) {
 		s, ctx := open(t)
 		checkRowCacheNeverStale(t, s, ctx)
 	})
+	t.Run("ImportChangeLogComplete", func(t *testing.T) {
+		s, ctx := open(t)
+		checkImportChangeLogComplete(t, s, ctx)
+	})
 	t.Run("ImportDuplicates", func(t *testing.T) {
 		s, ctx := open(t)
 		checkImportDuplicates(t, s, ctx)

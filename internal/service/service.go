@@ -25,6 +25,7 @@ import (
 	"encoding/json"
 	"log/slog"
 	"strconv"
+	"sync"
 	"time"
 
 	"corvane/internal/domain"
@@ -40,6 +41,9 @@ type Service struct {
 	// rows keeps each project's oriented measurements between requests
 	// (see projectRows).
 	rows *rowCache
+	// logging counts the imports' change logs being written in the
+	// background (see logLater).
+	logging sync.WaitGroup
 }
 
 // New returns a Service over st. A nil log discards.

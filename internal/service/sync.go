@@ -385,6 +385,9 @@ func (s *Service) SyncChanges(ctx context.Context, projectID int64, q ChangesQue
 	if after < 0 {
 		return page, domain.FieldErr("after", "after must be 0 or more, not %d", after)
 	}
+	if err := s.LogPending(ctx, projectID); err != nil {
+		return page, err
+	}
 	if limit <= 0 || limit > SyncPageLimit {
 		limit = SyncPageLimit
 	}

@@ -131,6 +131,9 @@ func (c *syncClient) local(ctx context.Context, fn func(ctx context.Context, st 
 
 // push sends the local changes after the push cursor, batch by batch.
 func (c *syncClient) push(ctx context.Context) error {
+	if err := c.s.LogPending(ctx, c.lp.ID); err != nil {
+		return err
+	}
 	for {
 		changes, err := c.s.store.ListChanges(ctx, domain.ChangeFilter{ProjectID: c.lp.ID, After: c.cur.Pushed, LocalOnly: true, Limit: c.opt.Batch})
 		if err != nil {

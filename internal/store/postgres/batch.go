@@ -84,12 +84,11 @@ func batchGone(batch int64) error {
 	return domain.Errorf(domain.NotFound, "import batch %d is gone (dropped, or open too long without a write)", batch)
 }
 
-// CommitBatch shows the batch's rows. A trigger puts them in the change log
-// as the batch commits (migration 000019), so sync carries them; the rows
-// themselves are not written again.
+// CommitBatch shows the batch's rows and leaves all of them to be logged
+// (LogBatch); the rows themselves are not written again.
 func (s *Store) CommitBatch(ctx context.Context, batch int64) error {
 	return s.write(ctx, func(q querier) error {
-		tag, err := q.Exec(ctx, `UPDATE import_batches SET committed = TRUE WHERE id = $1 AND NOT committed`, batch)
+		tag, err := q.Exec(ctx, `UPDATE import_batches SET committed = TRUE, logged_to = lo_id - 1 WHERE id = $1 AND NOT committed`, batch)
 		if err != nil {
 			return translate(err)
 		}
@@ -98,6 +97,28 @@ func (s *Store) CommitBatch(ctx context.Context, batch int64) error {
 		}
 		return nil
 	})
+}
+
+// LogBatch writes the change log entries of the next rows (at most rows)
+// of a committed batch in a transaction of its own (corvane_log_batch,
+// migration 000020) and reports whether rows are left.
+func (s *Store) LogBatch(ctx context.Context, batch int64, rows int) (more bool, err error) {
+	err = s.write(ctx, func(q querier) error {
+		return translate(q.QueryRow(ctx, `SELECT corvane_log_batch($1, $2)`, batch, rows).Scan(&more))
+	})
+	return more, err
+}
+
+// UnloggedBatches lists the committed batches of the project (all projects
+// for 0) whose rows are not all in the change log yet.
+func (s *Store) UnloggedBatches(ctx context.Context, projectID int64) ([]int64, error) {
+	rows, err := s.read().Query(ctx, `SELECT id FROM import_batches WHERE committed AND logged_to IS NOT NULL
+		AND ($1 = 0 OR project_id = $1) ORDER BY id`, projectID)
+	if err != nil {
+		return nil, translate(err)
+	}
+	ids, err := pgx.CollectRows(rows, pgx.RowTo[int64])
+	return ids, translate(err)
 }
 
 // DropBatch deletes the batch's rows (by the primary key over its id

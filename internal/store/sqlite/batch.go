@@ -84,14 +84,74 @@ func batchGone(res sql.Result, err error, batch int64) error {
 	return nil
 }
 
-// CommitBatch shows the batch's rows. A trigger puts them in the change log
-// as the batch commits (migration 000019), so sync carries them; the rows
-// themselves are not written again.
+// CommitBatch shows the batch's rows and leaves all of them to be logged
+// (LogBatch); the rows themselves are not written again.
 func (s *Store) CommitBatch(ctx context.Context, batch int64) error {
 	return s.write(ctx, func(q querier) error {
-		res, err := q.ExecContext(ctx, `UPDATE import_batches SET committed = 1 WHERE id = ? AND committed = 0`, batch)
+		res, err := q.ExecContext(ctx, `UPDATE import_batches SET committed = 1, logged_to = lo_id - 1 WHERE id = ? AND committed = 0`, batch)
 		return batchGone(res, err, batch)
 	})
+}
+
+// LogBatch writes the change log entries of the next rows (at most rows)
+// of a committed batch, in id order, in a transaction of its own, and
+// reports whether rows are left. The writer's turn orders callers on one
+// batch.
+func (s *Store) LogBatch(ctx context.Context, batch int64, rows int) (more bool, err error) {
+	err = s.write(ctx, func(q querier) error {
+		var from, hi sql.NullInt64
+		err := q.QueryRowContext(ctx, `SELECT logged_to, hi_id FROM import_batches WHERE id = ? AND committed = 1`, batch).Scan(&from, &hi)
+		if err == sql.ErrNoRows || (err == nil && !from.Valid) {
+			return nil
+		}
+		if err != nil {
+			return translate(err)
+		}
+		var upto sql.NullInt64
+		if err := q.QueryRowContext(ctx, `SELECT max(id) FROM (SELECT id FROM measurements WHERE id > ? AND id <= ? AND batch = ? ORDER BY id LIMIT ?)`,
+			from.Int64, hi.Int64, batch, rows).Scan(&upto); err != nil {
+			return translate(err)
+		}
+		if upto.Valid {
+			if _, err := q.ExecContext(ctx, logBatchRows, from.Int64, upto.Int64, batch); err != nil {
+				return translate(err)
+			}
+		}
+		more = upto.Valid && upto.Int64 < hi.Int64
+		var next any // NULL: nothing left
+		if more {
+			next = upto.Int64
+		}
+		_, err = q.ExecContext(ctx, `UPDATE import_batches SET logged_to = ? WHERE id = ?`, next, batch)
+		return translate(err)
+	})
+	return more, err
+}
+
+// logBatchRows logs the rows of a batch in an id range, as the trigger on
+// measurements logs an insert (migration 000019).
+const logBatchRows = `INSERT INTO change_log (project_id, hole_id, tbl, global_id, op, version, origin, actor, at)
+	SELECT m.project_id, m.hole_id, 'measurements', m.global_id, 'create', m.version, origin, actor, CAST((julianday('now') - 2440587.5) * 86400000000 AS INTEGER)
+	FROM measurements m, change_source WHERE m.id > ? AND m.id <= ? AND m.batch = ? ORDER BY m.id`
+
+// UnloggedBatches lists the committed batches of the project (all projects
+// for 0) whose rows are not all in the change log yet.
+func (s *Store) UnloggedBatches(ctx context.Context, projectID int64) ([]int64, error) {
+	rows, err := s.read().QueryContext(ctx, `SELECT id FROM import_batches WHERE committed = 1 AND logged_to IS NOT NULL
+		AND (? = 0 OR project_id = ?) ORDER BY id`, projectID, projectID)
+	if err != nil {
+		return nil, translate(err)
+	}
+	var ids []int64
+	for rows.Next() {
+		var id int64
+		if err := rows.Scan(&id); err != nil {
+			rows.Close()
+			return nil, translate(err)
+		}
+		ids = append(ids, id)
+	}
+	return ids, translate(rows.Close())
 }
 
 // DropBatch deletes the batch's rows, dropRows per transaction so that other

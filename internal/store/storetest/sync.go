@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"slices"
 	"testing"
 	"time"
 
@@ -306,13 +307,50 @@ func testImportBatchChangeLog(t *testing.T, s domain.Store) {
 	}, ops(changes()))
 
 	must(t, s.InTx(c, func(c ctxT, tx domain.Store) error { return tx.CommitBatch(c, b) }))
-	got := changes()
+	// The commit shows the rows; their entries are written afterwards, a
+	// chunk of rows per LogBatch, and the batch is listed until then.
 	diff(t, "change log after the commit", []op{
+		{domain.SyncMeasurements, gid(10), "create", 1, ""},
+	}, ops(changes()))
+	unlogged := func(project int64) []int64 {
+		t.Helper()
+		ids, err := s.UnloggedBatches(c, project)
+		must(t, err)
+		return ids
+	}
+	if got := unlogged(p.ID); len(got) != 1 || got[0] != b {
+		t.Errorf("unlogged batches of the project after the commit: %v, want [%d]", got, b)
+	}
+	if got := unlogged(0); !slices.Contains(got, b) {
+		t.Errorf("unlogged batches of all projects after the commit: %v, want %d among them", got, b)
+	}
+	more, err := s.LogBatch(c, b, 2)
+	must(t, err)
+	if !more {
+		t.Error("LogBatch of 2 of 3 rows: nothing left, want more")
+	}
+	diff(t, "change log after the first chunk", []op{
+		{domain.SyncMeasurements, gid(10), "create", 1, ""},
+		{domain.SyncMeasurements, gid(1), "create", 1, ""},
+		{domain.SyncMeasurements, gid(2), "create", 1, ""},
+	}, ops(changes()))
+	for i := range 2 {
+		more, err = s.LogBatch(c, b, 2)
+		must(t, err)
+		if more {
+			t.Errorf("LogBatch %d after the last row: more left", i+2)
+		}
+	}
+	got := changes()
+	diff(t, "change log once logged", []op{
 		{domain.SyncMeasurements, gid(10), "create", 1, ""},
 		{domain.SyncMeasurements, gid(1), "create", 1, ""},
 		{domain.SyncMeasurements, gid(2), "create", 1, ""},
 		{domain.SyncMeasurements, gid(3), "create", 1, ""},
 	}, ops(got))
+	if got := unlogged(p.ID); len(got) != 0 {
+		t.Errorf("unlogged batches once logged: %v", got)
+	}
 	if got[1].HoleID != h.ID || got[1].ProjectID != p.ID {
 		t.Errorf("hole and project of a committed row's entry: %+v", got[1])
 	}
