@@ -140,7 +140,7 @@ func serve(ctx context.Context, env *Env, cfg config.Config, log *slog.Logger) e
 	// Applies pending migrations first; on PostgreSQL under migrate's
 	// advisory lock, so replicas starting together take turns. A schema
 	// newer than this binary stops here with one sentence saying so.
-	st, err := store.OpenMigrated(ctx, cfg.DatabaseURL)
+	st, err := store.OpenMigratedWith(ctx, cfg.DatabaseURL, store.Options{PoolSize: cfg.DBPool})
 	if err != nil {
 		return fmt.Errorf("store: %s", store.RedactIn(err.Error(), cfg.DatabaseURL))
 	}

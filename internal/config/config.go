@@ -40,6 +40,11 @@ type Config struct {
 	DatabaseURL string
 	// Demo loads the fictional demo programme at start when it is not there yet.
 	Demo bool
+	// DBPool is the most PostgreSQL connections the service keeps open; 0
+	// leaves it to the store (postgres.DefaultPoolSize, 16); ignored for
+	// SQLite. Replicas times DBPool must stay under the server's
+	// max_connections.
+	DBPool int
 	// MaxBodyBytes limits JSON request bodies.
 	MaxBodyBytes int64
 	// MaxImportBytes limits CSV import bodies.
@@ -87,6 +92,7 @@ const (
 	EnvAddr            = "CORVANE_ADDR"
 	EnvDatabaseURL     = "CORVANE_DATABASE_URL"
 	EnvDemo            = "CORVANE_DEMO"
+	EnvDBPool          = "CORVANE_DB_POOL"
 	EnvMaxBodyBytes    = "CORVANE_MAX_BODY_BYTES"
 	EnvMaxImportBytes  = "CORVANE_MAX_IMPORT_BYTES"
 	EnvMaxHeavy        = "CORVANE_MAX_HEAVY"
@@ -147,6 +153,7 @@ func FromEnv(getenv func(string) string) (Config, error) {
 		}
 		c.Demo = b
 	}
+	inum(EnvDBPool, &c.DBPool)
 	i64(EnvMaxBodyBytes, &c.MaxBodyBytes)
 	i64(EnvMaxImportBytes, &c.MaxImportBytes)
 	inum(EnvMaxHeavy, &c.MaxHeavy)
@@ -166,6 +173,7 @@ func FromEnv(getenv func(string) string) (Config, error) {
 func (c *Config) Bind(fs *flag.FlagSet) {
 	fs.StringVar(&c.Addr, "addr", c.Addr, "listen address host:port (env "+EnvAddr+")")
 	fs.StringVar(&c.DatabaseURL, "db", c.DatabaseURL, "postgres:// URL or SQLite file path (env "+EnvDatabaseURL+")")
+	fs.IntVar(&c.DBPool, "db-pool", c.DBPool, "most PostgreSQL connections kept open, 0: the store's default (16); replicas times this must stay under the server's max_connections (env "+EnvDBPool+")")
 	fs.BoolVar(&c.Demo, "demo", c.Demo, "load the fictional demo programme if it is not there (env "+EnvDemo+")")
 	fs.Int64Var(&c.MaxBodyBytes, "max-body-bytes", c.MaxBodyBytes, "largest JSON request body (env "+EnvMaxBodyBytes+")")
 	fs.Int64Var(&c.MaxImportBytes, "max-import-bytes", c.MaxImportBytes, "largest CSV import body (env "+EnvMaxImportBytes+")")
@@ -199,6 +207,9 @@ func (c Config) Validate() error {
 		errs = append(errs, errors.New("db: empty"))
 	} else if err := dburl.Check(c.DatabaseURL); err != nil {
 		errs = append(errs, fmt.Errorf("db: %w", err))
+	}
+	if c.DBPool < 0 {
+		errs = append(errs, fmt.Errorf("db-pool %d: must be 0 (the store's default) or positive", c.DBPool))
 	}
 	if c.MaxBodyBytes <= 0 {
 		errs = append(errs, fmt.Errorf("max-body-bytes %d: must be positive", c.MaxBodyBytes))
@@ -242,8 +253,8 @@ func IsPostgresURL(s string) bool { return dburl.IsPostgres(s) }
 // String describes c with the database password (in the user information or a
 // password= query parameter) replaced by "xxxxx".
 func (c Config) String() string {
-	return fmt.Sprintf("addr=%s db=%s demo=%t max-body-bytes=%d max-import-bytes=%d page-size=%d max-page-size=%d read-timeout=%s write-timeout=%s shutdown-timeout=%s log-format=%s log-level=%s profile-addr=%s",
-		c.Addr, RedactDatabaseURL(c.DatabaseURL), c.Demo, c.MaxBodyBytes, c.MaxImportBytes,
+	return fmt.Sprintf("addr=%s db=%s db-pool=%d demo=%t max-body-bytes=%d max-import-bytes=%d page-size=%d max-page-size=%d read-timeout=%s write-timeout=%s shutdown-timeout=%s log-format=%s log-level=%s profile-addr=%s",
+		c.Addr, RedactDatabaseURL(c.DatabaseURL), c.DBPool, c.Demo, c.MaxBodyBytes, c.MaxImportBytes,
 		c.DefaultPageSize, c.MaxPageSize, c.ReadTimeout, c.WriteTimeout, c.ShutdownTimeout, c.LogFormat, c.LogLevel, c.ProfileAddr)
 }
 

@@ -35,6 +35,7 @@ func TestEnvThenFlags(t *testing.T) {
 		EnvShutdownTimeout: "5s",
 		EnvDemo:            "true",
 		EnvProfileAddr:     "127.0.0.1:6061",
+		EnvDBPool:          "24",
 	}))
 	if err != nil {
 		t.Fatal(err)
@@ -52,6 +53,7 @@ func TestEnvThenFlags(t *testing.T) {
 	want.ShutdownTimeout = 5 * time.Second
 	want.Demo = true
 	want.ProfileAddr = "127.0.0.1:6061"
+	want.DBPool = 24
 	if d := cmp.Diff(want, c); d != "" {
 		t.Errorf("config (-want +got):\n%s", d)
 	}
@@ -78,11 +80,12 @@ func TestValidateNamesFields(t *testing.T) {
 	c.DefaultPageSize = 5000
 	c.LogFormat = "xml"
 	c.ProfileAddr = "6060"
+	c.DBPool = -1
 	err := c.Validate()
 	if err == nil {
 		t.Fatal("no error")
 	}
-	for _, s := range []string{"addr", "page-size", "log-format", "profile-addr"} {
+	for _, s := range []string{"addr", "page-size", "log-format", "profile-addr", "db-pool"} {
 		if !strings.Contains(err.Error(), s) {
 			t.Errorf("error %q does not name %s", err, s)
 		}

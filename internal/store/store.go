@@ -14,10 +14,22 @@ import (
 	"corvane/internal/store/sqlite"
 )
 
+// Options tune how a store is opened.
+type Options struct {
+	// PoolSize is the most connections a PostgreSQL store keeps open (0:
+	// postgres.DefaultPoolSize); the SQLite store has its own rule.
+	PoolSize int
+}
+
 // Open opens the store at url. It does not migrate.
 func Open(ctx context.Context, url string) (domain.Store, error) {
+	return OpenWith(ctx, url, Options{})
+}
+
+// OpenWith opens the store at url with o. It does not migrate.
+func OpenWith(ctx context.Context, url string, o Options) (domain.Store, error) {
 	if dburl.IsPostgres(url) {
-		return postgres.Open(ctx, url)
+		return postgres.OpenPool(ctx, url, o.PoolSize)
 	}
 	return sqlite.Open(ctx, url)
 }
@@ -58,10 +70,16 @@ func Version(url string) (uint, bool, error) {
 
 // OpenMigrated migrates the database at url to the latest schema and opens it.
 func OpenMigrated(ctx context.Context, url string) (domain.Store, error) {
+	return OpenMigratedWith(ctx, url, Options{})
+}
+
+// OpenMigratedWith migrates the database at url to the latest schema and
+// opens it with o.
+func OpenMigratedWith(ctx context.Context, url string, o Options) (domain.Store, error) {
 	if err := Migrate(url, 0); err != nil {
 		return nil, err
 	}
-	return Open(ctx, url)
+	return OpenWith(ctx, url, o)
 }
 
 // Redact returns url safe to print: a PostgreSQL password, in the user

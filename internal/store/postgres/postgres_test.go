@@ -79,3 +79,19 @@ func latestMigration() uint {
 	vs := migrations.Versions()
 	return vs[len(vs)-1]
 }
+
+// TestPoolSize: the pool holds DefaultPoolSize connections unless told
+// otherwise (serve --db-pool).
+func TestPoolSize(t *testing.T) {
+	url := pgtest.DB(t)
+	for _, tc := range []struct{ ask, want int }{{0, postgres.DefaultPoolSize}, {3, 3}} {
+		s, err := postgres.OpenPool(t.Context(), url, tc.ask)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if got := postgres.PoolMax(s); got != tc.want {
+			t.Errorf("pool of %d asked: %d connections, want %d", tc.ask, got, tc.want)
+		}
+		s.Close()
+	}
+}
