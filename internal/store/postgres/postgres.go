@@ -59,16 +59,19 @@ func Open(ctx context.Context, addr string) (*Store, error) { return OpenPool(ct
 // TestLoad on two cores).
 const DefaultPoolSize = 16
 
-// OpenPool is [Open] with at most size connections (0: DefaultPoolSize).
+// OpenPool is [Open] with at most size connections; 0 takes the address's
+// pool_max_conns when it has one, else DefaultPoolSize.
 func OpenPool(ctx context.Context, addr string, size int) (*Store, error) {
 	cfg, err := pgxpool.ParseConfig(addr)
 	if err != nil {
 		return nil, fmt.Errorf("database address %s: %s", dburl.Redact(addr), dburl.RedactIn(err.Error(), addr))
 	}
-	if size <= 0 {
-		size = DefaultPoolSize
+	switch {
+	case size > 0:
+		cfg.MaxConns = int32(min(size, math.MaxInt32))
+	case !strings.Contains(addr, "pool_max_conns"):
+		cfg.MaxConns = DefaultPoolSize
 	}
-	cfg.MaxConns = int32(min(size, math.MaxInt32))
 	pool, err := pgxpool.NewWithConfig(ctx, cfg)
 	if err != nil {
 		return nil, fmt.Errorf("connecting to PostgreSQL: %s", dburl.RedactIn(err.Error(), addr))
@@ -88,10 +91,13 @@ func OpenPool(ctx context.Context, addr string, size int) (*Store, error) {
 // while it migrates, so replicas starting together take turns.
 func schema(addr string) storekit.Schema {
 	return storekit.Schema{FS: migrations.Postgres, Dir: "postgres", Open: func() (*migrate.Migrate, error) {
-		cc, err := pgx.ParseConfig(addr)
+		// Parsed as the pool parses it, so that the pool's own settings
+		// (pool_max_conns, ...) are not sent to the server as parameters.
+		pc, err := pgxpool.ParseConfig(addr)
 		if err != nil {
 			return nil, fmt.Errorf("database address %s: %s", dburl.Redact(addr), dburl.RedactIn(err.Error(), addr))
 		}
+		cc := pc.ConnConfig
 		src, err := iofs.New(migrations.Postgres, "postgres")
 		if err != nil {
 			return nil, err

@@ -2,6 +2,7 @@ package postgres_test
 
 import (
 	"os"
+	"strings"
 	"testing"
 
 	"corvane/internal/domain"
@@ -81,16 +82,28 @@ func latestMigration() uint {
 }
 
 // TestPoolSize: the pool holds DefaultPoolSize connections unless told
-// otherwise (serve --db-pool).
+// otherwise, by serve --db-pool or by the address's pool_max_conns (the
+// flag wins); an address with pool settings migrates (they are the pool's,
+// not the server's).
 func TestPoolSize(t *testing.T) {
 	url := pgtest.DB(t)
-	for _, tc := range []struct{ ask, want int }{{0, postgres.DefaultPoolSize}, {3, 3}} {
-		s, err := postgres.OpenPool(t.Context(), url, tc.ask)
+	withPool := url + "&pool_max_conns=5"
+	if !strings.Contains(url, "?") {
+		withPool = url + "?pool_max_conns=5"
+	}
+	if err := postgres.Migrate(withPool, 0); err != nil {
+		t.Fatalf("migrating with pool_max_conns in the address: %v", err)
+	}
+	for _, tc := range []struct {
+		addr      string
+		ask, want int
+	}{{url, 0, postgres.DefaultPoolSize}, {url, 3, 3}, {withPool, 0, 5}, {withPool, 7, 7}} {
+		s, err := postgres.OpenPool(t.Context(), tc.addr, tc.ask)
 		if err != nil {
 			t.Fatal(err)
 		}
 		if got := postgres.PoolMax(s); got != tc.want {
-			t.Errorf("pool of %d asked: %d connections, want %d", tc.ask, got, tc.want)
+			t.Errorf("%s, pool of %d asked: %d connections, want %d", tc.addr, tc.ask, got, tc.want)
 		}
 		s.Close()
 	}
