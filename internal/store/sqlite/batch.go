@@ -18,22 +18,10 @@ const dropRows = 5000
 // OpenBatch starts an import batch for the project, after dropping the
 // batches left open for domain.StaleBatch.
 func (s *Store) OpenBatch(ctx context.Context, projectID int64) (int64, error) {
-	var stale []int64
-	rows, err := s.read().QueryContext(ctx, `SELECT id FROM import_batches WHERE committed = 0 AND touched_at < ?`,
+	stale, err := s.batchIDs(ctx, `SELECT id FROM import_batches WHERE committed = 0 AND touched_at < ?`,
 		micro(storekit.Now().Add(-domain.StaleBatch)))
 	if err != nil {
-		return 0, translate(err)
-	}
-	for rows.Next() {
-		var id int64
-		if err := rows.Scan(&id); err != nil {
-			rows.Close()
-			return 0, translate(err)
-		}
-		stale = append(stale, id)
-	}
-	if err := rows.Close(); err != nil {
-		return 0, translate(err)
+		return 0, err
 	}
 	for _, id := range stale {
 		if err := s.DropBatch(ctx, id); err != nil {
@@ -141,21 +129,17 @@ const logBatchRows = `INSERT INTO change_log (project_id, hole_id, tbl, global_i
 // UnloggedBatches lists the committed batches of the project (all projects
 // for 0) whose rows are not all in the change log yet.
 func (s *Store) UnloggedBatches(ctx context.Context, projectID int64) ([]int64, error) {
-	rows, err := s.read().QueryContext(ctx, `SELECT id FROM import_batches WHERE committed = 1 AND logged_to IS NOT NULL
+	return s.batchIDs(ctx, `SELECT id FROM import_batches WHERE committed = 1 AND logged_to IS NOT NULL
 		AND (? = 0 OR project_id = ?) ORDER BY id`, projectID, projectID)
+}
+
+// batchIDs lists the ids of the import batches query selects.
+func (s *Store) batchIDs(ctx context.Context, query string, args ...any) ([]int64, error) {
+	rows, err := s.read().QueryContext(ctx, query, args...)
 	if err != nil {
 		return nil, translate(err)
 	}
-	var ids []int64
-	for rows.Next() {
-		var id int64
-		if err := rows.Scan(&id); err != nil {
-			rows.Close()
-			return nil, translate(err)
-		}
-		ids = append(ids, id)
-	}
-	return ids, translate(rows.Close())
+	return collect(rows, func(r scanner) (id int64, err error) { return id, r.Scan(&id) })
 }
 
 // DropBatch deletes the batch's rows, dropRows per transaction so that other
