@@ -56,6 +56,25 @@ func IsKeyValue(s string) bool {
 	return strings.HasPrefix(rest, "=") && libpqKeys[strings.ToLower(s[:i])]
 }
 
+// Sets reports whether the PostgreSQL address s sets the parameter key (a
+// URL's query, or a pair of a key=value string).
+func Sets(s, key string) bool {
+	if IsURL(s) {
+		u, err := url.Parse(strings.TrimSpace(s))
+		return err == nil && u.Query().Has(key)
+	}
+	pairs, err := parseKeyValue(s)
+	if err != nil {
+		return false
+	}
+	for _, p := range pairs {
+		if p.key == key {
+			return true
+		}
+	}
+	return false
+}
+
 // IsPostgres reports whether s names a PostgreSQL server (a URL or a
 // key=value string) rather than an SQLite file.
 func IsPostgres(s string) bool { return IsURL(s) || IsKeyValue(s) }

@@ -82,3 +82,22 @@ func TestCheck(t *testing.T) {
 		t.Errorf("good key=value: %v", err)
 	}
 }
+
+// TestSets: a parameter is found in a URL's query or a key=value pair, not
+// in a password or a value that merely contains its name.
+func TestSets(t *testing.T) {
+	for _, tc := range []struct {
+		addr string
+		want bool
+	}{
+		{"postgres://u@h/db?sslmode=disable&pool_max_conns=5", true},
+		{"postgres://u@h/db?sslmode=disable", false},
+		{"postgres://u:pool_max_conns@h/db", false},
+		{"host=h dbname=db pool_max_conns=5", true},
+		{"host=h dbname=db password='pool_max_conns=5'", false},
+	} {
+		if got := Sets(tc.addr, "pool_max_conns"); got != tc.want {
+			t.Errorf("Sets(%q): %t, want %t", tc.addr, got, tc.want)
+		}
+	}
+}

@@ -69,7 +69,7 @@ func OpenPool(ctx context.Context, addr string, size int) (*Store, error) {
 	switch {
 	case size > 0:
 		cfg.MaxConns = int32(min(size, math.MaxInt32))
-	case !strings.Contains(addr, "pool_max_conns"):
+	case !dburl.Sets(addr, "pool_max_conns"):
 		cfg.MaxConns = DefaultPoolSize
 	}
 	pool, err := pgxpool.NewWithConfig(ctx, cfg)
