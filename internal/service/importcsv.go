@@ -618,8 +618,12 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 					continue
 				}
 			}
-			if res.DryRun {
-				res.Created++ // reset to 0 below if any row has a problem
+			if ps.n > 0 || res.DryRun {
+				// A file with a problem writes nothing; a dry run counts
+				// the rows it would write.
+				if res.DryRun && ps.n == 0 {
+					res.Created++
+				}
 				continue
 			}
 			batch = append(batch, pr.m)
