@@ -9,11 +9,16 @@
 -- nothing (rows staged by an import) takes no lock: a logger's single write
 -- does not wait for an import's batches.
 --
--- Only visible rows are logged (no batch, or a committed one): the rows of
--- an import batch are logged when the batch commits, by the trigger on
--- import_batches below (the commit no longer rewrites every row to fire the
--- update trigger), and a staged row deleted with its dropped batch leaves
--- no tombstone, as it was never logged. Stamps move as before: an insert of
+-- Only visible rows are logged (no batch, or a committed one): the commit
+-- of an import batch no longer rewrites every row to fire the update
+-- trigger, and a staged row deleted with its dropped batch leaves no
+-- tombstone, as it was never logged. A committed batch's rows are logged
+-- after its commit, in chunks (corvane_log_batch below), each a short
+-- transaction of its own, so other writers of the project wait for one
+-- chunk (the project's log lock), not for the log of a whole file;
+-- logged_to is the id up to which a committed batch's rows are logged, NULL
+-- when nothing is left. Whoever reads the change log writes what is owed
+-- first. Stamps move as before: an insert of
 -- rows outside a batch, an update that changes a row, any delete, the
 -- commit of a batch.
 
@@ -64,17 +69,36 @@ CREATE TRIGGER measurements_changed_update AFTER UPDATE ON measurements
 CREATE TRIGGER measurements_changed_delete AFTER DELETE ON measurements
     REFERENCING OLD TABLE AS old_rows FOR EACH STATEMENT EXECUTE FUNCTION measurements_changed();
 
--- The commit of an import batch logs its rows (found by the primary key
--- over the batch's id range), in id order, under the project's lock.
-CREATE FUNCTION import_batch_log() RETURNS trigger LANGUAGE plpgsql AS $$
+ALTER TABLE import_batches ADD COLUMN logged_to BIGINT;
+
+-- corvane_log_batch logs the next rows (at most p_rows) of the committed
+-- batch p_batch, under the project's log lock, and returns whether rows are
+-- left. Two callers on one batch take turns on its row.
+CREATE FUNCTION corvane_log_batch(p_batch BIGINT, p_rows INT) RETURNS BOOLEAN LANGUAGE plpgsql AS $$
+DECLARE
+    b import_batches%ROWTYPE;
+    v_upto BIGINT;
 BEGIN
-    PERFORM pg_advisory_xact_lock(1129467478, (NEW.project_id % 2147483647)::int);
+    SELECT * INTO b FROM import_batches WHERE id = p_batch AND committed FOR UPDATE;
+    IF NOT FOUND OR b.logged_to IS NULL THEN
+        RETURN FALSE;
+    END IF;
+    SELECT max(id) INTO v_upto FROM (SELECT id FROM measurements
+        WHERE id > b.logged_to AND id <= b.hi_id AND batch = p_batch ORDER BY id LIMIT p_rows) c;
+    IF v_upto IS NULL THEN
+        UPDATE import_batches SET logged_to = NULL WHERE id = p_batch;
+        RETURN FALSE;
+    END IF;
+    PERFORM pg_advisory_xact_lock(1129467478, (b.project_id % 2147483647)::int);
     INSERT INTO change_log (project_id, hole_id, tbl, global_id, op, version, origin, actor)
         SELECT project_id, hole_id, 'measurements', global_id, 'create', version,
             COALESCE(current_setting('corvane.origin', true), ''), COALESCE(current_setting('corvane.actor', true), '')
-        FROM measurements WHERE batch = NEW.id AND id BETWEEN NEW.lo_id AND NEW.hi_id AND global_id IS NOT NULL
+        FROM measurements WHERE id > b.logged_to AND id <= v_upto AND batch = p_batch AND global_id IS NOT NULL
         ORDER BY id;
-    RETURN NULL;
+    IF v_upto >= b.hi_id THEN
+        UPDATE import_batches SET logged_to = NULL WHERE id = p_batch;
+        RETURN FALSE;
+    END IF;
+    UPDATE import_batches SET logged_to = v_upto WHERE id = p_batch;
+    RETURN TRUE;
 END $$;
-CREATE TRIGGER import_batch_log AFTER UPDATE OF committed ON import_batches
-    FOR EACH ROW WHEN (NEW.committed AND NOT OLD.committed) EXECUTE FUNCTION import_batch_log();

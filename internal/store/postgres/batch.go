@@ -101,7 +101,7 @@ func (s *Store) CommitBatch(ctx context.Context, batch int64) error {
 
 // LogBatch writes the change log entries of the next rows (at most rows)
 // of a committed batch in a transaction of its own (corvane_log_batch,
-// migration 000020) and reports whether rows are left.
+// migration 000019) and reports whether rows are left.
 func (s *Store) LogBatch(ctx context.Context, batch int64, rows int) (more bool, err error) {
 	err = s.write(ctx, func(q querier) error {
 		return translate(q.QueryRow(ctx, `SELECT corvane_log_batch($1, $2)`, batch, rows).Scan(&more))
