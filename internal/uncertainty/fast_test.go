@@ -218,3 +218,178 @@ func TestFirstOrderTermsSubsets(t *testing.T) {
 		tm.Release()
 	}
 }
+
+// Measure (and a Measurer) give the answers of the per-measurement path as
+// it was before its fast paths (oldMeasure in refmeasure_test.go, kept
+// whole), within 1e-9 degrees: every figure of both regions, the measured
+// direction, the shape, the method used and the outline drawn on a net. The
+// readings sweep what the fast paths distinguish: poles and lines near the
+// core axis (the ellipse shape, where the rule sends them to Monte Carlo)
+// and far from it (curved), whole-degree angles (alpha 80 puts a pole 10
+// degrees from the axis, on the shape's border), lineations with gamma,
+// every convention, holes near the vertical and vertical ones (an error
+// either way), mark errors up to 85 degrees, zero and large survey errors,
+// and Monte Carlo runs of several sizes, seeds and rules.
+func TestMeasureMatchesReference(t *testing.T) {
+	r := rand.New(rand.NewPCG(91, 92))
+	const tol = 1e-9 // degrees
+	mcs := []MC{PerMeasurement, Always(PerMeasurement), {Draws: 200, Seed: 3}, {Draws: 4000, Seed: 4, WhenNeeded: true}, {Draws: 7, Seed: 5}, {}}
+	n := 6000
+	if testing.Short() {
+		n = 1500
+	}
+	var measurers []*Measurer
+	var zs []normals
+	for _, mc := range mcs {
+		measurers = append(measurers, NewMeasurer(mc))
+		var z normals
+		if mc.Draws > 0 {
+			z = newNormals(mc)
+		}
+		zs = append(zs, z)
+	}
+	var worst float64
+	var counts [4]int // curved, ellipse, Monte Carlo used, vertical
+	confs := []string{"good", "fair", "poor", "", "none"}
+	insts := []Instrument{Magnetic, Gyro, UnknownSurvey}
+	for i := 0; i < n; i++ {
+		k := i % len(mcs)
+		if i%7 == 6 {
+			k = r.IntN(2) // more of the runs every door uses
+		}
+		rd := randomReading(r, confs, insts)
+		want, werr := oldMeasure(rd, zs[k], mcs[k].WhenNeeded)
+		got, gerr := measurers[k].Measure(rd)
+		if werr != nil || gerr != nil {
+			if werr != gerr {
+				t.Fatalf("case %d (%+v): error %v, reference %v", i, rd, gerr, werr)
+			}
+			counts[3]++
+			continue
+		}
+		if k < 2 { // Measure gives the Measurer's answers
+			one, err := Measure(rd, mcs[k])
+			if err != nil || !sameResult(one, got) {
+				t.Fatalf("case %d: Measure %+v (%v), Measurer %+v", i, one, err, got)
+			}
+		}
+		if (got.Line == nil) != (want.Line == nil) {
+			t.Fatalf("case %d (%+v): line %v, reference %v", i, rd, got.Line, want.Line)
+		}
+		pairs := [][2]*Estimate{{&got.Pole, &want.Pole}}
+		if got.Line != nil {
+			pairs = append(pairs, [2]*Estimate{got.Line, want.Line})
+		}
+		for which, p := range pairs {
+			g, w := p[0], p[1]
+			if g.Shape == "curved" {
+				counts[0]++
+			} else {
+				counts[1]++
+			}
+			if g.Used == "monte-carlo" {
+				counts[2]++
+			}
+			if g.Shape != w.Shape || g.Used != w.Used || g.Draws != w.Draws || (g.MonteCarlo == nil) != (w.MonteCarlo == nil) {
+				t.Fatalf("case %d (%+v) direction %d: %s/%s/%d draws, reference %s/%s/%d", i, rd, which, g.Shape, g.Used, g.Draws, w.Shape, w.Used, w.Draws)
+			}
+			d := math.Max(math.Abs(g.Plunge-w.Plunge), math.Abs(math.Remainder(g.Trend-w.Trend, 360)))
+			regions := [][2]*Region{{&g.FirstOrder, &w.FirstOrder}}
+			if g.MonteCarlo != nil {
+				regions = append(regions, [2]*Region{g.MonteCarlo, w.MonteCarlo})
+			}
+			for _, q := range regions {
+				a, b := q[0], q[1]
+				d = math.Max(d, math.Max(math.Abs(a.Cone95-b.Cone95), math.Max(math.Abs(a.Long95-b.Long95), math.Abs(a.Short95-b.Short95))))
+				// The area in square degrees, and the orientation, whose
+				// error grows as the region rounds (undefined for a circle).
+				d = math.Max(d, math.Abs(a.Area95-b.Area95)/(math.Pi*(1+b.Long95+b.Short95)))
+				if el := b.Long95*b.Long95 - b.Short95*b.Short95; el > 0 {
+					d = math.Max(d, math.Abs(a.Orientation-b.Orientation)*el/(b.Long95*b.Long95+b.Short95*b.Short95))
+				}
+			}
+			if d > tol {
+				t.Fatalf("case %d (%+v) direction %d: off the reference by %.2e deg:\n%+v %+v\n%+v %+v", i, rd, which, d, g.FirstOrder, g.MonteCarlo, w.FirstOrder, w.MonteCarlo)
+			}
+			worst = math.Max(worst, d)
+			// The outline drawn on a net.
+			wo := oldOutline(rd, which, w.Region(), 12)
+			for j, v := range g.Outline(12) {
+				if a := geom.Deg(v.Sub(wo[j]).Norm()); a > tol { // the chord: the angle to rounding
+					t.Fatalf("case %d direction %d: outline point %d off by %.2e deg", i, which, j, a)
+				}
+			}
+		}
+	}
+	t.Logf("largest difference %.1e deg; %d curved, %d ellipse, %d using Monte Carlo, %d vertical", worst, counts[0], counts[1], counts[2], counts[3])
+	if counts[0] == 0 || counts[1] == 0 || counts[2] == 0 || counts[3] == 0 {
+		t.Errorf("the sweep misses a case: %v", counts)
+	}
+}
+
+// randomReading returns a reading for TestMeasureMatchesReference.
+func randomReading(r *rand.Rand, confs []string, insts []Instrument) Reading {
+	m := DefaultModel()
+	if r.IntN(3) == 0 {
+		s := 0.2 + 3*r.Float64()
+		m = Model{Alpha: 2 * s, Beta: 3 * s, Gamma: 3 * s, MarkPoor: 40 * s}
+	}
+	mismatch := math.NaN()
+	if r.IntN(3) == 0 {
+		mismatch = 120 * r.Float64() * r.Float64() // mark errors up to 85 degrees
+	}
+	sig := m.Sigmas(insts[r.IntN(len(insts))], confs[r.IntN(len(confs))], mismatch, RoundingSD(5, r.Float64()))
+	switch r.IntN(8) {
+	case 0:
+		sig.Azimuth, sig.Dip = 0, 0 // no survey error: no turns
+	case 1:
+		sig.Azimuth, sig.Dip = 15*r.Float64(), 5*r.Float64()
+	case 2:
+		sig.Gamma = 0
+	}
+	var alpha, beta float64
+	switch r.IntN(4) {
+	case 0:
+		alpha, beta = float64(r.IntN(91)), float64(r.IntN(360))
+	case 1:
+		alpha, beta = 90-12*r.Float64(), 360*r.Float64() // near the axis
+	case 2:
+		alpha, beta = 90*r.Float64(), 360*r.Float64()
+	default:
+		alpha, beta = []float64{0, 80, 90, 89.5, 10}[r.IntN(5)], float64(r.IntN(360))
+	}
+	dip := -5 - 80*r.Float64()
+	switch r.IntN(12) {
+	case 0:
+		dip = -90 // vertical: an error
+	case 1:
+		dip = -90 + 0.5*r.Float64()
+	case 2:
+		dip = 10 * r.Float64() // up-hole
+	}
+	gamma := math.NaN()
+	if r.IntN(2) == 0 {
+		gamma = float64(r.IntN(360))
+		if r.IntN(2) == 0 {
+			gamma = 180 * r.Float64()
+		}
+	}
+	return Reading{Hole: geom.HoleDirection(360*r.Float64(), dip), Alpha: alpha, Beta: beta, Gamma: gamma,
+		Conv: conventions[r.IntN(len(conventions))], Sigma: sig}
+}
+
+// sameResult reports whether a and b are the same result, figure for
+// figure.
+func sameResult(a, b Result) bool {
+	same := func(x, y *Estimate) bool {
+		if x == nil || y == nil {
+			return x == y
+		}
+		if (x.MonteCarlo == nil) != (y.MonteCarlo == nil) || x.MonteCarlo != nil && *x.MonteCarlo != *y.MonteCarlo {
+			return false
+		}
+		return x.Trend == y.Trend && x.Plunge == y.Plunge && x.Shape == y.Shape && x.FirstOrder == y.FirstOrder &&
+			x.Draws == y.Draws && x.Used == y.Used
+	}
+	return same(&a.Pole, &b.Pole) && same(a.Line, b.Line)
+}
