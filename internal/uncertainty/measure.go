@@ -410,6 +410,25 @@ func (m *model) eval(da, db, dg, dA, dD float64) (n, l geom.Vec3) {
 // evalSC is eval from the sines and cosines of the errors, in the order
 // alpha, beta, gamma, azimuth, dip.
 func (m *model) evalSC(t *[10]float64) (n, l geom.Vec3) {
+	n, l = m.evalCore(t)
+	if s, c := t[8], t[9]; s != 0 {
+		n = m.turnD(n, s, c)
+		if m.hasGamma {
+			l = m.turnD(l, s, c)
+		}
+	}
+	if s, c := t[6], t[7]; s != 0 {
+		n = m.turnA(n, s, c)
+		if m.hasGamma {
+			l = m.turnA(l, s, c)
+		}
+	}
+	return n, l
+}
+
+// evalCore is evalSC without the survey turns: the pole and line in the
+// frame of the hole as surveyed.
+func (m *model) evalCore(t *[10]float64) (n, l geom.Vec3) {
 	s, c := t[0], t[1]
 	sa, ca := m.sa*c+m.ca*s, m.ca*c-m.sa*s
 	s, c = t[2], t[3]
@@ -427,18 +446,6 @@ func (m *model) evalSC(t *[10]float64) (n, l geom.Vec3) {
 		s, c = t[4], t[5]
 		sg, cg := m.sg*c+m.cg*s, m.cg*c-m.sg*s
 		l = e.Scale(cg).Add(n.Cross(e).Scale(sg))
-	}
-	if s, c = t[8], t[9]; s != 0 {
-		n = m.turnD(n, s, c)
-		if m.hasGamma {
-			l = m.turnD(l, s, c)
-		}
-	}
-	if s, c = t[6], t[7]; s != 0 {
-		n = m.turnA(n, s, c)
-		if m.hasGamma {
-			l = m.turnA(l, s, c)
-		}
 	}
 	return n, l
 }
@@ -672,8 +679,8 @@ type scratch struct {
 	z normals
 	// whenNeeded: run the Monte Carlo only where NeedsMonteCarlo says so.
 	whenNeeded bool
-	u, w       [2][]float64
-	dirs       [2][]geom.Vec3 // the draws' poles and lines
+	u, w       [2][]float64   // the draws' region coordinates, radians
+	dirs       [2][]geom.Vec3 // the draws' poles and lines, survey frame
 	c          [2][]float64   // 1 - |cos| of the angle from the measured direction
 	sel        []float64
 	tables     map[[5]float64]table
@@ -756,63 +763,57 @@ func measure(r Reading, sc *scratch) (Result, error) {
 	return res, nil
 }
 
+// mcRegions gives est (the estimates of the directions with region
+// coordinates cs) their Monte Carlo regions from the draws of tab.
+//
+// It works in the survey frame F = (f1, f2, f3) of the hole: f3 up and f2
+// along kD, the horizontal axis of the dip error, both in the hole frame
+// (f1 = f2 x f3). There the survey turns of every draw are turns about
+// the y axis (dip) and the -z axis (azimuth): four products each, where
+// the turn about the sloping kA takes fifteen in the hole frame. Each
+// draw's pole (and line) is taken to F once; whatever is read of it
+// afterwards is a dot product, whose vector is taken to F instead
+// (mcDir). The region coordinates are kept in radians: the Mahalanobis
+// radius does not depend on the unit and the covariance is scaled to
+// degrees at the end.
 func mcRegions(m *model, cs []coords, tab table, sc *scratch, est []Estimate) {
 	nd, draws := len(cs), len(tab)
 	for i := 0; i < nd; i++ {
 		if cap(sc.u[i]) < draws {
-			sc.u[i], sc.w[i], sc.c[i] = make([]float64, draws), make([]float64, draws), make([]float64, draws)
+			sc.u[i], sc.w[i], sc.c[i], sc.dirs[i] = make([]float64, draws), make([]float64, draws), make([]float64, draws), make([]geom.Vec3, draws)
 		}
-		sc.u[i], sc.w[i], sc.c[i] = sc.u[i][:draws], sc.w[i][:draws], sc.c[i][:draws]
+	}
+	if cap(sc.sel) < draws {
+		sc.sel = make([]float64, draws)
 	}
 	k := quantileRank(draws, 0.95)
-	// The draws' directions first, then each direction's region
-	// coordinates in a loop of its own.
-	if cap(sc.dirs[0]) < draws {
-		sc.dirs[0], sc.dirs[1] = make([]geom.Vec3, draws), make([]geom.Vec3, draws)
+	g := m.survey()
+	if nd == 1 {
+		g.poles(m, tab, sc.dirs[0][:draws])
+	} else {
+		g.polesLines(m, tab, sc.dirs[0][:draws], sc.dirs[1][:draws])
 	}
-	ns, ls := sc.dirs[0][:draws], sc.dirs[1][:draws]
-	for j := range tab {
-		ns[j], ls[j] = m.evalSC(&tab[j])
-	}
-	var sums [2][3]float64
+	deg2 := geom.Deg(1) * geom.Deg(1)
 	for i := 0; i < nd; i++ {
-		vs := ns
-		if i == 1 {
-			vs = ls
-		}
-		c := &cs[i]
-		v0 := c.v0
+		e := &est[i]
+		dir := g.dir(&cs[i])
+		dir.coneGuess = 1 - math.Cos(geom.Rad(0.9*e.FirstOrder.Cone95))
 		us, ws, cc := sc.u[i][:draws], sc.w[i][:draws], sc.c[i][:draws]
 		var suu, suv, svv float64
-		for j, v := range vs {
-			d := v.Dot(v0)
-			if d < 0 {
-				v, d = v.Neg(), -d
-			}
-			cc[j] = 1 - d
-			u, w := c.ofNear(v, d)
-			us[j], ws[j] = u, w
-			suu += u * u
-			suv += u * w
-			svv += w * w
+		var ci float64 // the (1-based) k-th largest of cc
+		if cs[i].curved {
+			suu, suv, svv, ci = dir.curved(sc.dirs[i][:draws], us, ws, cc, sc.sel, k)
+		} else {
+			suu, suv, svv, ci = dir.ellipse(sc.dirs[i][:draws], us, ws, cc, sc.sel, k)
 		}
-		sums[i] = [3]float64{suu, suv, svv}
-	}
-	for i := 0; i < nd; i++ {
-		r := &Region{cuu: sums[i][0] / float64(draws), cuv: sums[i][1] / float64(draws), cvv: sums[i][2] / float64(draws)}
-		det := r.cuu*r.cvv - r.cuv*r.cuv
-		d2 := sc.c[i] // reused below once the cone is known
-		e := &est[i]
-		coneGuess := 1 - math.Cos(geom.Rad(0.9*e.FirstOrder.Cone95))
-		r.Cone95 = geom.Deg(math.Acos(math.Max(-1, math.Min(1, 1-kthLargest(sc.c[i], k, coneGuess, &sc.sel)))))
+		// The covariance in rad^2 (cr) for the Mahalanobis radius, and in
+		// deg^2 for the region.
+		cr := [3]float64{suu / float64(draws), suv / float64(draws), svv / float64(draws)}
+		r := &Region{cuu: cr[0] * deg2, cuv: cr[1] * deg2, cvv: cr[2] * deg2}
+		r.Cone95 = geom.Deg(math.Acos(math.Max(-1, math.Min(1, 1-ci))))
 		r.q = chi2q95
-		if det > 0 { // else every draw sits on a line or a point: no spread to scale
-			a, b, c := r.cvv/det, -2*r.cuv/det, r.cuu/det
-			for j := 0; j < draws; j++ {
-				u, w := sc.u[i][j], sc.w[i][j]
-				d2[j] = a*u*u + b*u*w + c*w*w
-			}
-			r.q = kthLargest(d2, k, 0.9*chi2q95, &sc.sel)
+		if det := cr[0]*cr[2] - cr[1]*cr[1]; det > 0 { // else every draw sits on a line or a point: no spread to scale
+			r.q = mahalQuantile(us, ws, cr[2]/det, -2*cr[1]/det, cr[0]/det, k, 0.9*chi2q95, sc.sel, cc)
 		}
 		r.finish()
 		e.MonteCarlo, e.Draws = r, draws
@@ -820,6 +821,186 @@ func mcRegions(m *model, cs []coords, tab table, sc *scratch, est []Estimate) {
 			e.Used = "monte-carlo"
 		}
 	}
+}
+
+// surveyFrame is the survey frame F of a hole (see mcRegions): the rows
+// of the turn from hole-frame to F coordinates, f1 = (x1, 0, z1), f2 =
+// (0, y2, 0), f3 = (x3, 0, z3).
+type surveyFrame struct{ x1, z1, y2, x3, z3 float64 }
+
+// survey returns the survey frame of m's hole. Its y axis is kD = (0, dY,
+// 0) and its -z axis kA = (aX, 0, aZ) (see init), so the survey turns of
+// evalSC are, in F, turns about (0, 1, 0) and (0, 0, -1).
+func (m *model) survey() surveyFrame {
+	return surveyFrame{x1: -m.dY * m.aZ, z1: m.dY * m.aX, y2: m.dY, x3: -m.aX, z3: -m.aZ}
+}
+
+// of returns the hole-frame vector v in F coordinates.
+func (g *surveyFrame) of(v geom.Vec3) geom.Vec3 {
+	return geom.Vec3{X: g.x1*v.X + g.z1*v.Z, Y: g.y2 * v.Y, Z: g.x3*v.X + g.z3*v.Z}
+}
+
+// turn applies a draw's survey turns (the dip error's, then the
+// azimuth's, as evalSC) to v in F coordinates.
+func turn(v geom.Vec3, t *[10]float64) geom.Vec3 {
+	s, c := t[8], t[9]
+	x, z := v.X*c+v.Z*s, v.Z*c-v.X*s
+	s, c = t[6], t[7]
+	return geom.Vec3{X: x*c + v.Y*s, Y: v.Y*c - x*s, Z: z}
+}
+
+// poles writes the pole of each draw of tab, in F coordinates, to ns: the
+// pole of evalSC, (-cos a apex cos b, -cos a apex sin b, sin a) in the
+// hole frame, taken to F with the apex and F's rows folded into the
+// angle sums.
+func (g *surveyFrame) poles(m *model, tab table, ns []geom.Vec3) {
+	// P = -apex cos b, Q = -apex sin b y2 from the angle sums with the
+	// nominal beta.
+	pc, ps := -m.apex*m.cb, m.apex*m.sb
+	qc, qs := -m.apex*m.sb*g.y2, -m.apex*m.cb*g.y2
+	msa, mca := m.sa, m.ca
+	for j := range tab {
+		t := &tab[j]
+		sa, ca := msa*t[1]+mca*t[0], mca*t[1]-msa*t[0]
+		cp := ca * (pc*t[3] + ps*t[2])
+		ns[j] = turn(geom.Vec3{X: g.x1*cp + g.z1*sa, Y: ca * (qc*t[3] + qs*t[2]), Z: g.x3*cp + g.z3*sa}, t)
+	}
+}
+
+// polesLines writes the pole and the line of each draw of tab, in F
+// coordinates, to ns and ls.
+func (g *surveyFrame) polesLines(m *model, tab table, ns, ls []geom.Vec3) {
+	for j := range tab {
+		t := &tab[j]
+		n, l := m.evalCore(t)
+		ns[j], ls[j] = turn(g.of(n), t), turn(g.of(l), t)
+	}
+}
+
+// mcDir reads a direction's draws (F coordinates): its region
+// coordinates through three vectors taken to F.
+type mcDir struct {
+	// ellipse: a, b, c are v0, t1, t2; curved: the directions (cp, sp,
+	// 0), (-sp, cp, 0) and the core axis.
+	a, b, c   geom.Vec3
+	c0, s0    float64 // curved: cos, sin of the angle of v0 from the axis
+	coneGuess float64 // a value a little below the cone's 1 - cos
+}
+
+func (g *surveyFrame) dir(cs *coords) mcDir {
+	if cs.curved {
+		return mcDir{a: g.of(geom.Vec3{X: cs.cp, Y: cs.sp}), b: g.of(geom.Vec3{X: -cs.sp, Y: cs.cp}), c: g.of(geom.Vec3{Z: 1}), c0: cs.c0, s0: cs.s0}
+	}
+	return mcDir{a: g.of(cs.v0), b: g.of(cs.t1), c: g.of(cs.t2)}
+}
+
+// ellipse writes the region coordinates (radians) of the draws vs of an
+// ellipse-shaped direction to us, ws and their 1 - |cos| of the angle from
+// v0 to cc, and returns the sums of their squares and product and the
+// k-th largest of cc. sel is scratch.
+func (d *mcDir) ellipse(vs []geom.Vec3, us, ws, cc, sel []float64, k int) (suu, suv, svv, ck float64) {
+	a, b, c, guess := d.a, d.b, d.c, d.coneGuess
+	us, ws, cc, sel = us[:len(vs)], ws[:len(vs)], cc[:len(vs)], sel[:len(vs)]
+	n := 0
+	for j, v := range vs {
+		dd := v.X*a.X + v.Y*a.Y + v.Z*a.Z
+		id := 1 / dd // either end: the signs cancel
+		p, q := (v.X*b.X+v.Y*b.Y+v.Z*b.Z)*id, (v.X*c.X+v.Y*c.Y+v.Z*c.Z)*id
+		var u, w float64
+		if p*p < small2 && q*q < small2 {
+			u, w = atanSeries(p), atanSeries(q)
+		} else {
+			u, w = atan(p), atan(q)
+		}
+		us[j], ws[j] = u, w
+		suu += u * u
+		suv += u * w
+		svv += w * w
+		x := 1 - math.Abs(dd)
+		cc[j], sel[n] = x, x
+		if x > guess {
+			n++
+		}
+	}
+	return suu, suv, svv, kthOf(cc, sel, n, k)
+}
+
+// curved is ellipse for a curved direction.
+func (d *mcDir) curved(vs []geom.Vec3, us, ws, cc, sel []float64, k int) (suu, suv, svv, ck float64) {
+	a, b, c, c0, s0, guess := d.a, d.b, d.c, d.c0, d.s0, d.coneGuess
+	us, ws, cc, sel = us[:len(vs)], ws[:len(vs)], cc[:len(vs)], sel[:len(vs)]
+	n := 0
+	for j, v := range vs {
+		// x, y: the direction in the plane across the core axis, along
+		// and across v0's; z along the axis.
+		x, y, z := v.X*a.X+v.Y*a.Y+v.Z*a.Z, v.X*b.X+v.Y*b.Y+v.Z*b.Z, v.X*c.X+v.Y*c.Y+v.Z*c.Z
+		dd := s0*x + c0*z // v . v0
+		if dd < 0 {
+			x, y, z, dd = -x, -y, -z, -dd
+		}
+		// With rho = sin(phi) and z = cos(phi): x = rho cos dpsi, y = rho
+		// sin dpsi, and sin dphi, cos dphi by the difference formulas.
+		rho := math.Sqrt(x*x + y*y)
+		sd, cd := rho*c0-z*s0, z*c0+rho*s0
+		var u, w float64
+		if x > 0 && cd > 0 {
+			if sp := y / rho; sp*sp < small2 && sd*sd < small2 {
+				u, w = asinSeries(sp), asinSeries(sd)
+			} else {
+				u, w = asin(sp), asin(sd)
+			}
+		} else {
+			u, w = math.Atan2(y, x), math.Atan2(sd, cd)
+		}
+		u *= s0
+		us[j], ws[j] = u, w
+		suu += u * u
+		suv += u * w
+		svv += w * w
+		x = 1 - dd
+		cc[j], sel[n] = x, x
+		if x > guess {
+			n++
+		}
+	}
+	return suu, suv, svv, kthOf(cc, sel, n, k)
+}
+
+// kthOf returns the k-th largest (1-based) of x given the first n values
+// of sel, those of x above a guess (all of x's values of rank k or above
+// when n >= k); sel is reordered, and overwritten when n < k.
+func kthOf(x, sel []float64, n, k int) float64 {
+	if n >= k {
+		return selectKth(sel[:n], n-k)
+	}
+	sel = sel[:len(x)]
+	copy(sel, x)
+	return selectKth(sel, len(x)-k)
+}
+
+// mahalQuantile returns the k-th largest (1-based) of the squared
+// Mahalanobis radii a u^2 + b u w + c w^2 of the points (us, ws), first
+// keeping those above guess in sel; all is scratch for when fewer than k
+// are.
+func mahalQuantile(us, ws []float64, a, b, c float64, k int, guess float64, sel, all []float64) float64 {
+	ws, sel, all = ws[:len(us)], sel[:len(us)], all[:len(us)]
+	n := 0
+	for j, u := range us {
+		w := ws[j]
+		d2 := a*u*u + b*u*w + c*w*w
+		sel[n] = d2
+		if d2 > guess {
+			n++
+		}
+	}
+	if n >= k {
+		return selectKth(sel[:n], n-k)
+	}
+	for j, u := range us {
+		w := ws[j]
+		all[j] = a*u*u + b*u*w + c*w*w
+	}
+	return selectKth(all, len(us)-k)
 }
 
 // MeasureAll returns [Measure] for every reading, on at most workers
