@@ -25,10 +25,11 @@ func sincos(x float64) (s, c float64) {
 const small2 = 0.0225
 
 // atanSeries is atan(t) by its series to t^9 for |t| < 0.15 (an angle of up
-// to 8.5 degrees): error below 1e-10 rad.
+// to 8.5 degrees): error below 1e-10 rad. Every coefficient is a constant
+// (t2 * (1.0/9), not t2 / 9: a division costs several multiplications).
 func atanSeries(t float64) float64 {
 	t2 := t * t
-	return t * (1 - t2*(1.0/3-t2*(1.0/5-t2*(1.0/7-t2/9))))
+	return t * (1 - t2*(1.0/3-t2*(1.0/5-t2*(1.0/7-t2*(1.0/9)))))
 }
 
 // asinSeries is asin(s) by its series to s^7 for |s| < 0.15: error below
@@ -118,6 +119,47 @@ func selectKth(x []float64, i int) float64 {
 		}
 	}
 	slices.Sort(x[lo : hi+1])
+	return x[i]
+}
+
+// selectSplit returns the value of rank i (0-based, ascending) of x, as
+// selectKth does, for x of a few dozen values or more: each pass writes
+// every value to both ends of tmp and moves on the end its comparison with
+// the pivot picks, with no branch on the comparison (a branch on it is
+// guessed wrong half the time, each time costing more than the pass does
+// per value). x and tmp (at least as long) are overwritten.
+func selectSplit(x, tmp []float64, i int) float64 {
+	for len(x) > 16 {
+		n := len(x)
+		a, b, c := x[0], x[n/2], x[n-1]
+		p := max(min(a, b), min(max(a, b), c)) // the median of the three
+		t := tmp[:n]
+		lo, hi := 0, n-1
+		for _, v := range x {
+			t[lo], t[hi] = v, v
+			var l int
+			if v < p {
+				l = 1
+			}
+			lo += l
+			hi -= 1 - l
+		}
+		if lo == 0 { // p is the least value of x: ties, which the plain selection copes with
+			return selectKth(x, i)
+		}
+		if i < lo {
+			x, tmp = t[:lo], x
+		} else {
+			x, tmp, i = t[lo:], x, i-lo
+		}
+	}
+	for j := 1; j < len(x); j++ { // insertion sort
+		v, k := x[j], j
+		for ; k > 0 && x[k-1] > v; k-- {
+			x[k] = x[k-1]
+		}
+		x[k] = v
+	}
 	return x[i]
 }
 

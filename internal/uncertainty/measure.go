@@ -897,7 +897,8 @@ func (g *surveyFrame) dir(cs *coords) mcDir {
 // ellipse writes the region coordinates (radians) of the draws vs of an
 // ellipse-shaped direction to us, ws and their 1 - |cos| of the angle from
 // v0 to cc, and returns the sums of their squares and product and the
-// k-th largest of cc. sel is scratch.
+// k-th largest of cc (overwriting cc: it is scratch afterwards, as sel
+// is).
 func (d *mcDir) ellipse(vs []geom.Vec3, us, ws, cc, sel []float64, k int) (suu, suv, svv, ck float64) {
 	a, b, c, guess := d.a, d.b, d.c, d.coneGuess
 	us, ws, cc, sel = us[:len(vs)], ws[:len(vs)], cc[:len(vs)], sel[:len(vs)]
@@ -968,14 +969,14 @@ func (d *mcDir) curved(vs []geom.Vec3, us, ws, cc, sel []float64, k int) (suu, s
 
 // kthOf returns the k-th largest (1-based) of x given the first n values
 // of sel, those of x above a guess (all of x's values of rank k or above
-// when n >= k); sel is reordered, and overwritten when n < k.
+// when n >= k). x and sel are overwritten.
 func kthOf(x, sel []float64, n, k int) float64 {
 	if n >= k {
-		return selectKth(sel[:n], n-k)
+		return selectSplit(sel[:n], x, n-k)
 	}
 	sel = sel[:len(x)]
 	copy(sel, x)
-	return selectKth(sel, len(x)-k)
+	return selectSplit(sel, x, len(x)-k)
 }
 
 // mahalQuantile returns the k-th largest (1-based) of the squared
@@ -994,13 +995,13 @@ func mahalQuantile(us, ws []float64, a, b, c float64, k int, guess float64, sel,
 		}
 	}
 	if n >= k {
-		return selectKth(sel[:n], n-k)
+		return selectSplit(sel[:n], all, n-k)
 	}
 	for j, u := range us {
 		w := ws[j]
 		all[j] = a*u*u + b*u*w + c*w*w
 	}
-	return selectKth(all, len(us)-k)
+	return selectSplit(all, sel, len(us)-k)
 }
 
 // MeasureAll returns [Measure] for every reading, on at most workers

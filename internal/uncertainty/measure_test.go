@@ -85,6 +85,17 @@ func TestFastMath(t *testing.T) {
 			if got := selectKth(slices.Clone(x), i); got != sorted[i] {
 				t.Fatalf("n %d: rank %d = %g, want %g", n, i, got, sorted[i])
 			}
+			if got := selectSplit(slices.Clone(x), make([]float64, n), i); got != sorted[i] {
+				t.Fatalf("split, n %d: rank %d = %g, want %g", n, i, got, sorted[i])
+			}
+			y := slices.Clone(x)
+			for j := range y {
+				y[j] += r.Float64() // no ties
+			}
+			want := slices.Sorted(slices.Values(y))[i]
+			if got := selectSplit(y, make([]float64, n), i); got != want {
+				t.Fatalf("split, n %d without ties: rank %d = %g, want %g", n, i, got, want)
+			}
 		}
 	}
 	var buf []float64

@@ -13,8 +13,8 @@ import (
 // the hole frame and the survey turns about the axes as computed, each
 // draw's direction then its region coordinates, every quantile by a full
 // sort. It shares with the package only the small helpers it has always
-// used (sincos, the arcsine and arctangent series, cone95, quantileRank,
-// Agrees, NeedsMonteCarlo): the answers must not move.
+// used and that have not changed (sincos, the arcsine series, cone95,
+// quantileRank, Agrees, NeedsMonteCarlo): the answers must not move.
 
 type oldModel struct {
 	frame          frame
@@ -175,9 +175,9 @@ func (c *oldCoords) of(v geom.Vec3) (u, w float64) {
 	id := 1 / d
 	a, b := v.Dot(c.t1)*id, v.Dot(c.t2)*id
 	if a*a < small2 && b*b < small2 {
-		return geom.Deg(atanSeries(a)), geom.Deg(atanSeries(b))
+		return geom.Deg(oldAtanSeries(a)), geom.Deg(oldAtanSeries(b))
 	}
-	return geom.Deg(atan(a)), geom.Deg(atan(b))
+	return geom.Deg(oldAtan(a)), geom.Deg(oldAtan(b))
 }
 
 func (c *oldCoords) gradients() (du, dw geom.Vec3) {
@@ -352,4 +352,17 @@ func oldOutline(r Reading, which int, g Region, n int) []geom.Vec3 {
 		out[i] = m.frame.world(cs.inv(x*ct-y*st, x*st+y*ct))
 	}
 	return out
+}
+
+// oldAtanSeries and oldAtan are atanSeries and atan as they were.
+func oldAtanSeries(t float64) float64 {
+	t2 := t * t
+	return t * (1 - t2*(1.0/3-t2*(1.0/5-t2*(1.0/7-t2/9))))
+}
+
+func oldAtan(t float64) float64 {
+	if t*t < small2 {
+		return oldAtanSeries(t)
+	}
+	return math.Atan(t)
 }
