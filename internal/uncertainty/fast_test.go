@@ -393,3 +393,31 @@ func sameResult(a, b Result) bool {
 	}
 	return same(&a.Pole, &b.Pole) && same(a.Line, b.Line)
 }
+
+// Model.Sigmas gives the standard errors it gave before (oldSigmas),
+// exactly, for any model (negative and zero fields included), rating,
+// mismatch, instrument and rounding.
+func TestSigmasMatchReference(t *testing.T) {
+	r := rand.New(rand.NewPCG(93, 94))
+	vals := []float64{0, -0.5, 1e-9, 2, 7.5, math.Inf(1), math.NaN()}
+	pickv := func() float64 {
+		if r.IntN(2) == 0 {
+			return vals[r.IntN(len(vals))]
+		}
+		return 20 * r.Float64()
+	}
+	for i := 0; i < 20000; i++ {
+		m := Model{Alpha: pickv(), Beta: pickv(), Gamma: pickv(), MarkGood: pickv(), MarkFair: pickv(), MarkPoor: pickv(), MarkUnrated: pickv(),
+			Magnetic: SurveyError{pickv(), pickv()}, Gyro: SurveyError{pickv(), pickv()}, Unknown: SurveyError{pickv(), pickv()}}
+		k := []Instrument{Magnetic, Gyro, UnknownSurvey, "", "other"}[r.IntN(5)]
+		conf := []string{"good", " Fair", "POOR", "", "none", "x"}[r.IntN(6)]
+		mismatch, rounding := pickv(), 0.0
+		if r.IntN(2) == 0 {
+			rounding = pickv()
+		}
+		got, want := m.Sigmas(k, conf, mismatch, rounding), oldSigmas(m, k, conf, mismatch, rounding)
+		if fmt.Sprint(got) != fmt.Sprint(want) || math.Signbit(got.Alpha) != math.Signbit(want.Alpha) {
+			t.Fatalf("%+v %q %q %v %v: %+v, before %+v", m, k, conf, mismatch, rounding, got, want)
+		}
+	}
+}

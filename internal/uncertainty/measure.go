@@ -26,10 +26,14 @@ type Sigmas struct {
 // rounding standard deviation rounding (see [RoundingSD]; 0 for none).
 func (m Model) Sigmas(k Instrument, confidence string, mismatch, rounding float64) Sigmas {
 	f := m.WithDefaults()
-	sv := f.Survey(k)
-	add := func(s float64) float64 { return math.Hypot(s, rounding) }
-	return Sigmas{Alpha: add(f.Alpha), Beta: add(f.Beta), Gamma: add(f.Gamma),
-		Mark: f.Mark(confidence, mismatch), Azimuth: sv.Azimuth, Dip: sv.Dip}
+	sv := f.survey(k)
+	s := Sigmas{Alpha: f.Alpha, Beta: f.Beta, Gamma: f.Gamma, Mark: f.mark(confidence, mismatch), Azimuth: sv.Azimuth, Dip: sv.Dip}
+	if rounding == 0 { // math.Hypot(x, 0) is |x|
+		s.Alpha, s.Beta, s.Gamma = math.Abs(s.Alpha), math.Abs(s.Beta), math.Abs(s.Gamma)
+	} else {
+		s.Alpha, s.Beta, s.Gamma = math.Hypot(s.Alpha, rounding), math.Hypot(s.Beta, rounding), math.Hypot(s.Gamma, rounding)
+	}
+	return s
 }
 
 // Reading is one measurement as logged on the core, where it lies, and its
@@ -200,15 +204,41 @@ func (r Region) mahal(u, v float64) float64 {
 // axes returns the semi-axes of the 95% ellipse and the angle (radians) of
 // the long one from the u axis.
 func (r Region) axes() (long, short, theta float64) {
-	tr, det := r.cuu+r.cvv, r.cuu*r.cvv-r.cuv*r.cuv
-	d := math.Sqrt(math.Max(0, tr*tr/4-det))
-	l1, l2 := tr/2+d, math.Max(0, tr/2-d)
+	l1, l2 := eigen(r.cuu, r.cuv, r.cvv)
+	return r.axesOf(l1, l2)
+}
+
+// axesOf is axes given the eigenvalues l1 >= l2 of r's covariance.
+func (r Region) axesOf(l1, l2 float64) (long, short, theta float64) {
 	theta = 0.5 * math.Atan2(2*r.cuv, r.cuu-r.cvv)
 	return math.Sqrt(r.q * l1), math.Sqrt(r.q * l2), theta
 }
 
+// eigen returns the eigenvalues l1 >= l2 >= 0 of the covariance (a, b; b,
+// c).
+func eigen(a, b, c float64) (l1, l2 float64) {
+	tr, det := a+c, a*c-b*b
+	d := math.Sqrt(math.Max(0, tr*tr/4-det))
+	return tr/2 + d, math.Max(0, tr/2-d)
+}
+
+// finish sets the elongated region's figures from its covariance and q.
 func (r *Region) finish() {
-	a, b, th := r.axes()
+	l1, l2 := eigen(r.cuu, r.cuv, r.cvv)
+	r.finishOf(l1, l2)
+}
+
+// finishCone sets Cone95 to cone95 of r's covariance and finishes r, with
+// one eigen decomposition for both.
+func (r *Region) finishCone() {
+	l1, l2 := eigen(r.cuu, r.cuv, r.cvv)
+	r.Cone95 = coneOfEigen(l1, l2)
+	r.finishOf(l1, l2)
+}
+
+// finishOf is finish given the eigenvalues of r's covariance.
+func (r *Region) finishOf(l1, l2 float64) {
+	a, b, th := r.axesOf(l1, l2)
 	r.Long95, r.Short95, r.Area95 = a, b, math.Pi*a*b
 	o := math.Abs(geom.Deg(th))
 	if o > 90 {
@@ -232,9 +262,7 @@ var chi2q95 = -2 * math.Log(0.05)
 // 64 points is accurate to rounding; r is found by Newton's method inside a
 // bisection bracket. It is the exact computation behind cone95's table.
 func coneOf(a, b, c, p float64) float64 {
-	tr, det := a+c, a*c-b*b
-	d := math.Sqrt(math.Max(0, tr*tr/4-det))
-	l1, l2 := tr/2+d, math.Max(0, tr/2-d)
+	l1, l2 := eigen(a, b, c)
 	if !(l1 > 0) {
 		return 0
 	}
@@ -280,9 +308,11 @@ func coneOf(a, b, c, p float64) float64 {
 // read by cubic interpolation through the four nearest entries; off the
 // exact integral by less than 2e-10 relative (TestCone95Table).
 func cone95(a, b, c float64) float64 {
-	tr, det := a+c, a*c-b*b
-	d := math.Sqrt(math.Max(0, tr*tr/4-det))
-	l1, l2 := tr/2+d, math.Max(0, tr/2-d)
+	return coneOfEigen(eigen(a, b, c))
+}
+
+// coneOfEigen is cone95 given the eigenvalues l1 >= l2 of the covariance.
+func coneOfEigen(l1, l2 float64) float64 {
 	if !(l1 > 0) {
 		return 0
 	}
@@ -384,13 +414,25 @@ func (m *model) init(r Reading) error {
 	// has no e2 component: the axes are kD = (0, +-1, 0) and kA = (aX, 0,
 	// aZ) in frame coordinates, which evalSC's turns use (they are exactly
 	// so up to rounding, 2e-16).
-	up := geom.Vec3{Z: 1}
-	kD := m.frameOf(h.Cross(up).Unit())
-	kA := m.frameOf(up.Neg())
-	m.dY, m.aX, m.aZ = math.Copysign(1, kD.Y), kA.X, kA.Z
-	s := r.Sigma
-	m.sig = [5]float64{geom.Rad(s.Alpha), geom.Rad(math.Hypot(s.Beta, s.Mark)), geom.Rad(s.Gamma), geom.Rad(s.Azimuth), geom.Rad(s.Dip)}
+	// kD is h x up = (h.Y, -h.X, 0) scaled to unit length, of which only
+	// the sign of the e2 component is kept; kA = -up has the components
+	// -r.Z, -(h x r).Z and -h.Z.
+	m.dY = math.Copysign(1, h.Y*m.frame[1].X-h.X*m.frame[1].Y)
+	m.aX, m.aZ = -ref.Z, -h.Z
+	m.sig = r.Sigma.radians()
 	return nil
+}
+
+// radians returns the standard errors in radians in the order of the
+// model's sources (the beta reading's and the mark's together).
+func (s Sigmas) radians() [5]float64 {
+	return [5]float64{geom.Rad(s.Alpha), geom.Rad(math.Hypot(s.Beta, s.Mark)), geom.Rad(s.Gamma), geom.Rad(s.Azimuth), geom.Rad(s.Dip)}
+}
+
+// nominal returns the pole and line of no errors (eval(0, 0, 0, 0, 0)).
+func (m *model) nominal() (n, l geom.Vec3) {
+	t := [10]float64{1: 1, 3: 1, 5: 1, 7: 1, 9: 1} // the sines and cosines of 0
+	return m.evalSC(&t)
 }
 
 func (m *model) frameOf(v geom.Vec3) geom.Vec3 { return m.frame.of(v) }
@@ -498,11 +540,12 @@ func newCoords(m *model, v0 geom.Vec3) coords {
 	c.t1 = a.Sub(v0.Scale(a.Dot(v0))).Unit()
 	c.t2 = v0.Cross(c.t1)
 	rho := math.Hypot(v0.X, v0.Y)
-	phi := math.Atan2(rho, v0.Z)
-	c.phiDeg = geom.Deg(phi)
+	c.phiDeg = geom.Deg(math.Atan2(rho, v0.Z))
 	if c.phiDeg >= minCurvedAngle {
+		// The sine and cosine of phi are rho and v0.Z: v0 is a unit
+		// vector (to rounding).
 		c.curved = true
-		c.s0, c.c0 = math.Sincos(phi)
+		c.s0, c.c0 = rho, v0.Z
 		c.cp, c.sp = v0.X/rho, v0.Y/rho
 		c.sinPhiDg = geom.Deg(c.s0)
 	}
@@ -594,8 +637,7 @@ func (m *model) firstOrder(n, l geom.Vec3, cs *coords, which int) Region {
 		r.cvv += jw * jw
 	}
 	r.q = chi2q95
-	r.Cone95 = cone95(r.cuu, r.cuv, r.cvv)
-	r.finish()
+	r.finishCone()
 	return r
 }
 
@@ -723,7 +765,7 @@ func measure(r Reading, sc *scratch) (Result, error) {
 	if err := m.init(r); err != nil {
 		return Result{}, err
 	}
-	n0, l0 := m.eval(0, 0, 0, 0, 0)
+	n0, l0 := m.nominal()
 	var res Result
 	var cs [2]coords
 	cs[0] = newCoords(m, n0)

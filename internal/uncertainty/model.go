@@ -194,6 +194,11 @@ func (m Model) Sources() []Source {
 // used, so a logged mismatch can only widen the error.
 func (m Model) Mark(confidence string, mismatch float64) float64 {
 	f := m.WithDefaults()
+	return f.mark(confidence, mismatch)
+}
+
+// mark is Mark of a model with its defaults filled in.
+func (f *Model) mark(confidence string, mismatch float64) float64 {
 	var s float64
 	switch strings.ToLower(strings.TrimSpace(confidence)) {
 	case "good":
@@ -215,6 +220,11 @@ func (m Model) Mark(confidence string, mismatch float64) float64 {
 // other value).
 func (m Model) Survey(k Instrument) SurveyError {
 	f := m.WithDefaults()
+	return f.survey(k)
+}
+
+// survey is Survey of a model with its defaults filled in.
+func (f *Model) survey(k Instrument) SurveyError {
 	switch k {
 	case Magnetic:
 		return f.Magnetic

@@ -366,3 +366,12 @@ func oldAtan(t float64) float64 {
 	}
 	return math.Atan(t)
 }
+
+// oldSigmas is Model.Sigmas as it was.
+func oldSigmas(m Model, k Instrument, confidence string, mismatch, rounding float64) Sigmas {
+	f := m.WithDefaults()
+	sv := f.Survey(k)
+	add := func(s float64) float64 { return math.Hypot(s, rounding) }
+	return Sigmas{Alpha: add(f.Alpha), Beta: add(f.Beta), Gamma: add(f.Gamma),
+		Mark: f.Mark(confidence, mismatch), Azimuth: sv.Azimuth, Dip: sv.Dip}
+}
