@@ -387,6 +387,15 @@ func newModel(r Reading) (*model, error) {
 
 // init sets m to the model of r (a set's members share one slice of them).
 func (m *model) init(r Reading) error {
+	if err := m.initFrame(r); err != nil {
+		return err
+	}
+	m.sig = r.Sigma.radians()
+	return nil
+}
+
+// initFrame is init but for the standard errors.
+func (m *model) initFrame(r Reading) error {
 	h := r.Hole.Unit()
 	ref, w := coreangle.Reference(h, r.Conv)
 	if w.Has(coreangle.Vertical) {
@@ -419,7 +428,20 @@ func (m *model) init(r Reading) error {
 	// -r.Z, -(h x r).Z and -h.Z.
 	m.dY = math.Copysign(1, h.Y*m.frame[1].X-h.X*m.frame[1].Y)
 	m.aX, m.aZ = -ref.Z, -h.Z
-	m.sig = r.Sigma.radians()
+	return nil
+}
+
+// init sets sc.m to the model of r, reusing the standard errors in
+// radians of the reading before when r has the same (a run's, an
+// interval's: most rows of a file).
+func (sc *scratch) init(r Reading) error {
+	if err := sc.m.initFrame(r); err != nil {
+		return err
+	}
+	if !sc.sigOK || r.Sigma != sc.sigOf {
+		sc.sig, sc.sigOf, sc.sigOK = r.Sigma.radians(), r.Sigma, true
+	}
+	sc.m.sig = sc.sig
 	return nil
 }
 
@@ -718,7 +740,11 @@ func (z normals) table(sig [5]float64, t table) table {
 // standard errors.
 type scratch struct {
 	m model // the measurement's
-	z normals
+	// sig is sigOf in radians (sigOK: set), as the model holds them.
+	sig   [5]float64
+	sigOf Sigmas
+	sigOK bool
+	z     normals
 	// whenNeeded: run the Monte Carlo only where NeedsMonteCarlo says so.
 	whenNeeded bool
 	u, w       [2][]float64   // the draws' region coordinates, radians
@@ -762,7 +788,7 @@ func Measure(r Reading, mc MC) (Result, error) {
 
 func measure(r Reading, sc *scratch) (Result, error) {
 	m := &sc.m
-	if err := m.init(r); err != nil {
+	if err := sc.init(r); err != nil {
 		return Result{}, err
 	}
 	n0, l0 := m.nominal()
