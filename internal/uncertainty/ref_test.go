@@ -145,7 +145,19 @@ func (m *model) refEvalSC(t *[10]float64) (n, l geom.Vec3) {
 // refMcRegions is mcRegions draw by draw through refEvalSC and coords.of,
 // each quantile by a full sort.
 func refMcRegions(m *model, cs []coords, tab table, est []Estimate) {
-	nd, draws := len(cs), len(tab)
+	plainMcRegions(len(cs), len(tab), func(j int) (n, l geom.Vec3) { return m.refEvalSC(&tab[j]) },
+		func(i int, v geom.Vec3) (u, w, c float64) {
+			u, w = cs[i].of(v)
+			return u, w, 1 - math.Abs(v.Dot(cs[i].v0))
+		}, (*Region).finish, est)
+}
+
+// plainMcRegions gives est (nd directions: the pole, and the line when 2)
+// their Monte Carlo regions the plain way: draw by draw the directions
+// (dirs), their region coordinates and 1 - |cos| of their angle from the
+// measured direction (read), each quantile by a full sort, each region
+// finished by finish.
+func plainMcRegions(nd, draws int, dirs func(j int) (n, l geom.Vec3), read func(i int, v geom.Vec3) (u, w, c float64), finish func(*Region), est []Estimate) {
 	var us, ws, cc [2][]float64
 	for i := 0; i < nd; i++ {
 		us[i], ws[i], cc[i] = make([]float64, draws), make([]float64, draws), make([]float64, draws)
@@ -157,17 +169,11 @@ func refMcRegions(m *model, cs []coords, tab table, est []Estimate) {
 		return y[len(y)-k]
 	}
 	var sums [2][3]float64
-	for j := range tab {
-		n, l := m.refEvalSC(&tab[j])
+	for j := 0; j < draws; j++ {
+		n, l := dirs(j)
 		for i := 0; i < nd; i++ {
-			v := n
-			if i == 1 {
-				v = l
-			}
-			c := &cs[i]
-			cc[i][j] = 1 - math.Abs(v.Dot(c.v0))
-			u, w := c.of(v)
-			us[i][j], ws[i][j] = u, w
+			u, w, c := read(i, pick(n, l)(i))
+			us[i][j], ws[i][j], cc[i][j] = u, w, c
 			sums[i][0] += u * u
 			sums[i][1] += u * w
 			sums[i][2] += w * w
@@ -180,14 +186,15 @@ func refMcRegions(m *model, cs []coords, tab table, est []Estimate) {
 		r.Cone95 = geom.Deg(math.Acos(math.Max(-1, math.Min(1, 1-kth(cc[i])))))
 		r.q = chi2q95
 		if det > 0 {
+			a, b, c := r.cvv/det, -2*r.cuv/det, r.cuu/det
 			d2 := make([]float64, draws)
 			for j := range d2 {
 				u, w := us[i][j], ws[i][j]
-				d2[j] = (r.cvv*u*u - 2*r.cuv*u*w + r.cuu*w*w) / det
+				d2[j] = a*u*u + b*u*w + c*w*w
 			}
 			r.q = kth(d2)
 		}
-		r.finish()
+		finish(r)
 		e.MonteCarlo, e.Draws = r, draws
 		if !Agrees(e.FirstOrder, *r) {
 			e.Used = "monte-carlo"

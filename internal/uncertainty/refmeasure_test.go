@@ -2,7 +2,6 @@ package uncertainty
 
 import (
 	"math"
-	"slices"
 
 	"corvane/internal/coreangle"
 	"corvane/internal/geom"
@@ -268,55 +267,11 @@ func oldMeasure(r Reading, z normals, whenNeeded bool) (Result, error) {
 }
 
 func oldMcRegions(m *oldModel, cs []oldCoords, tab table, est []Estimate) {
-	nd, draws := len(cs), len(tab)
-	var us, ws, cc [2][]float64
-	for i := 0; i < nd; i++ {
-		us[i], ws[i], cc[i] = make([]float64, draws), make([]float64, draws), make([]float64, draws)
-	}
-	k := quantileRank(draws, 0.95)
-	kth := func(x []float64) float64 {
-		y := slices.Clone(x)
-		slices.Sort(y)
-		return y[len(y)-k]
-	}
-	var sums [2][3]float64
-	for j := range tab {
-		n, l := m.evalSC(&tab[j])
-		for i := 0; i < nd; i++ {
-			v := n
-			if i == 1 {
-				v = l
-			}
-			c := &cs[i]
-			cc[i][j] = 1 - math.Abs(v.Dot(c.v0))
-			u, w := c.of(v)
-			us[i][j], ws[i][j] = u, w
-			sums[i][0] += u * u
-			sums[i][1] += u * w
-			sums[i][2] += w * w
-		}
-	}
-	for i := 0; i < nd; i++ {
-		r := &Region{cuu: sums[i][0] / float64(draws), cuv: sums[i][1] / float64(draws), cvv: sums[i][2] / float64(draws)}
-		det := r.cuu*r.cvv - r.cuv*r.cuv
-		e := &est[i]
-		r.Cone95 = geom.Deg(math.Acos(math.Max(-1, math.Min(1, 1-kth(cc[i])))))
-		r.q = chi2q95
-		if det > 0 {
-			a, b, c := r.cvv/det, -2*r.cuv/det, r.cuu/det
-			d2 := make([]float64, draws)
-			for j := range d2 {
-				u, w := us[i][j], ws[i][j]
-				d2[j] = a*u*u + b*u*w + c*w*w
-			}
-			r.q = kth(d2)
-		}
-		oldFinish(r)
-		e.MonteCarlo, e.Draws = r, draws
-		if !Agrees(e.FirstOrder, *r) {
-			e.Used = "monte-carlo"
-		}
-	}
+	plainMcRegions(len(cs), len(tab), func(j int) (n, l geom.Vec3) { return m.evalSC(&tab[j]) },
+		func(i int, v geom.Vec3) (u, w, c float64) {
+			u, w = cs[i].of(v)
+			return u, w, 1 - math.Abs(v.Dot(cs[i].v0))
+		}, oldFinish, est)
 }
 
 func (c *oldCoords) inv(u, w float64) geom.Vec3 {
