@@ -421,3 +421,46 @@ func TestSigmasMatchReference(t *testing.T) {
 		}
 	}
 }
+
+// The Monte Carlo quantiles do not depend on the guess that filters their
+// candidates: a guess above the answer (every candidate filtered out, the
+// selection starts again from all the values) or below every value gives
+// the figures of a good guess, in both shapes and for the Mahalanobis
+// radius.
+func TestQuantileGuess(t *testing.T) {
+	z := newNormals(PerMeasurement)
+	k := quantileRank(len(z), 0.95)
+	for _, alpha := range []float64{88, 40} {
+		rd := Reading{Hole: geom.HoleDirection(30, -60), Alpha: alpha, Beta: 200, Gamma: math.NaN(), Sigma: DefaultModel().Sigmas(UnknownSurvey, "", math.NaN(), 0)}
+		m, err := newModel(rd)
+		if err != nil {
+			t.Fatal(err)
+		}
+		n0, _ := m.nominal()
+		cs := newCoords(m, n0)
+		g := m.survey()
+		vs := make([]geom.Vec3, len(z))
+		g.poles(m, z.table(m.sig, nil), vs)
+		dir := g.dir(&cs)
+		var first [5]float64
+		for i, guess := range []float64{0.9 * (1 - math.Cos(geom.Rad(5))), math.Inf(-1), 0.5, math.Inf(1)} {
+			dir.coneGuess = guess
+			us, ws, cc, sel := make([]float64, len(z)), make([]float64, len(z)), make([]float64, len(z)), make([]float64, len(z))
+			var got [5]float64
+			if cs.curved {
+				got[0], got[1], got[2], got[3] = dir.curved(vs, us, ws, cc, sel, k)
+			} else {
+				got[0], got[1], got[2], got[3] = dir.ellipse(vs, us, ws, cc, sel, k)
+			}
+			got[4] = mahalQuantile(us, ws, 1, 0.3, 2, k, []float64{5, math.Inf(-1), 1e3, math.Inf(1)}[i], sel, cc)
+			if i == 0 {
+				first = got
+				if cs.curved != (alpha == 40) {
+					t.Fatalf("alpha %v: curved %v", alpha, cs.curved)
+				}
+			} else if got != first {
+				t.Errorf("alpha %v, guess %v: %v, with a good guess %v", alpha, guess, got, first)
+			}
+		}
+	}
+}
