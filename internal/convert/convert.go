@@ -418,7 +418,6 @@ func (cv *converter) convert(b *batch, ms *uncertainty.Measurer) {
 	cw.Reset()
 	b.sum = Summary{}
 	b.split = b.split[:0]
-	var text string // the batch's raw rows as one string, for rows to split
 	b.rows = slices.Grow(b.rows[:0], len(b.lines))[:len(b.lines)]
 	for i := range b.rows {
 		to := len(b.raw)
@@ -440,9 +439,6 @@ func (cv *converter) convert(b *batch, ms *uncertainty.Measurer) {
 			continue
 		}
 		b.rows[i].Record = nil // a row without quotes: its fields are its text's
-		if text == "" {
-			text = string(b.raw)
-		}
 	}
 	sum := &b.sum
 	sum.PerHole = b.perHole[:0]
@@ -451,18 +447,22 @@ func (cv *converter) convert(b *batch, ms *uncertainty.Measurer) {
 	}
 	clear(b.holeIndex)
 	var last *Hole
+	var sameHole string // the hole id of the last row that had one
 	var m Measurement
 	var hc *HoleRows // counts of the row's hole id in sum.PerHole
 	for i := range b.rows {
 		row := &b.rows[i]
 		if row.Record != nil {
 			cv.sr.Parse(row)
-		} else if from := b.rawSpans[i]; !cv.sr.ParseUnquoted(row, text[from:from+len(row.Raw)]) {
+		} else if !cv.sr.ParseUnquoted(row, row.Raw, sameHole) {
 			// A row with a problem, or a form the short path leaves to Parse.
 			at := len(b.split)
-			b.split = csvio.SplitFields(b.split, text[from:from+len(row.Raw)])
+			b.split = csvio.SplitFields(b.split, string(row.Raw))
 			row.Record = b.split[at:len(b.split):len(b.split)]
 			cv.sr.Parse(row)
+		}
+		if row.HoleID != "" {
+			sameHole = row.HoleID // the next row's, most likely
 		}
 		sum.Rows++
 		id := row.HoleID

@@ -1,6 +1,7 @@
 package csvio
 
 import (
+	"encoding/binary"
 	"fmt"
 	"io"
 	"math"
@@ -305,9 +306,10 @@ func FormatFloat(v float64, prec int) string {
 // for that (|v| 10^prec >= 2^53) and infinities are formatted by strconv.
 //
 // It is the formatter of every number in the converter's output, so it is
-// written for speed: the digits go right to left into a small array, the
-// fraction and the integer part are formatted as two independent chains of
-// divisions by constants.
+// written for speed: the rounded integer's decimal digits are made eight at
+// a time in the bytes of a uint64 ([digits8]), the leading zeros are
+// dropped by shifting, and the digits and the point are put in place by a
+// few 8-byte stores into the spare capacity of b.
 func AppendFloat(b []byte, v float64, prec int) []byte {
 	if uint(prec) > 9 {
 		if math.IsNaN(v) {
@@ -332,74 +334,52 @@ func AppendFloat(b []byte, v float64, prec int) []byte {
 	if x-float64(t) >= 0.5 {
 		n++
 	}
-	neg = neg && n != 0
-	// ip is the integer part; the fraction digits are n - ip 10^prec.
-	var ip uint64
-	switch prec {
-	case 2:
-		ip = n / 100
-	case 3:
-		ip = n / 1000
-	default:
-		ip = n / pow10u[prec]
-	}
-	// Length: sign, integer digits, point and prec fraction digits. The
-	// digits are written straight into b from the right, two at a time.
-	l := uint64Len(ip) + prec
-	if prec > 0 {
-		l++
-	}
-	if neg {
-		l++
-	}
+	// At most a sign, 16 digits and the point, written with stores of 8
+	// bytes that may reach 7 bytes past the end: 32 bytes of room.
 	at := len(b)
-	if cap(b)-at < l {
-		b = append(b, make([]byte, l)...)[:at]
+	if cap(b)-at < 32 {
+		b = slices.Grow(b, 32)
 	}
-	b = b[:at+l]
-	d := b[at:]
-	if neg {
+	d := b[at : at+32]
+	i := 0
+	if neg && n != 0 {
 		d[0] = '-'
+		i = 1
 	}
-	i := l
-	switch f := n - ip*pow10u[prec]; prec {
-	case 0:
-	case 2:
-		f *= 2
-		d[i-3], d[i-2], d[i-1] = '.', digits2[f], digits2[f+1]
-		i -= 3
-	case 3:
-		q := f / 100
-		r := (f - q*100) * 2
-		d[i-4], d[i-3], d[i-2], d[i-1] = '.', byte('0'+q), digits2[r], digits2[r+1]
-		i -= 4
-	default:
-		for k := prec; k > 0; k-- {
-			q := f / 10
-			i--
-			d[i] = byte('0' + f - q*10)
-			f = q
+	if prec > 7 {
+		return appendDigitsSlow(b[:at+i], n, prec)
+	}
+	// The number of digits written, at least one before the point, is
+	// counted from n directly, so that the length (and where the next
+	// number goes) does not wait for the digits.
+	nd := max(decimalLen(n), prec+1)
+	const zeros = 0x3030303030303030 // "00000000"
+	if n < 1e8 {
+		// One word of 8 digits, its 8 - nd leading zeros shifted out.
+		w := digits8(n) + zeros
+		binary.LittleEndian.PutUint64(d[i:], w>>(8*(8-nd)))
+		l := i + nd
+		if prec > 0 {
+			binary.LittleEndian.PutUint64(d[l-prec:], '.'|w>>(8*(8-prec))<<8)
+			l++
 		}
-		i--
-		d[i] = '.'
+		return b[:at+l]
 	}
-	for ip >= 100 {
-		q := ip / 100
-		r := (ip - q*100) * 2
-		i -= 2
-		d[i], d[i+1] = digits2[r], digits2[r+1]
-		ip = q
+	// Two words: the first holds nd - 8 digits.
+	hi := n / 1e8
+	wh, wl := digits8(hi)+zeros, digits8(n-hi*1e8)+zeros
+	binary.LittleEndian.PutUint64(d[i:], wh>>(8*(16-nd)))
+	binary.LittleEndian.PutUint64(d[i+nd-8:], wl)
+	l := i + nd
+	if prec > 0 {
+		binary.LittleEndian.PutUint64(d[l-prec:], '.'|wl>>(8*(8-prec))<<8)
+		l++
 	}
-	if ip >= 10 {
-		d[i-2], d[i-1] = digits2[2*ip], digits2[2*ip+1]
-	} else {
-		d[i-1] = byte('0' + ip)
-	}
-	return b
+	return b[:at+l]
 }
 
-// uint64Len returns the number of decimal digits of n (1 for 0).
-func uint64Len(n uint64) int {
+// decimalLen returns the number of decimal digits of n (1 for 0).
+func decimalLen(n uint64) int {
 	t := bits.Len64(n) * 1233 >> 12 // log10(2) ~ 1233/4096: t or t+1 digits
 	if n >= pow10u[t] {
 		t++
@@ -409,9 +389,37 @@ func uint64Len(n uint64) int {
 
 var pow10u = [...]uint64{1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19}
 
-const digits2 = "00010203040506070809101112131415161718192021222324252627282930313233343536373839" +
-	"40414243444546474849505152535455565758596061626364656667686970717273747576777879" +
-	"8081828384858687888990919293949596979899"
+// appendDigitsSlow appends n with prec decimals (8 or 9), its digits made
+// by digits8 as well.
+func appendDigitsSlow(b []byte, n uint64, prec int) []byte {
+	var tmp [16]byte
+	hi := n / 1e8
+	binary.LittleEndian.PutUint64(tmp[:8], digits8(hi)+0x3030303030303030)
+	binary.LittleEndian.PutUint64(tmp[8:], digits8(n-hi*1e8)+0x3030303030303030)
+	s := 0
+	for s < 15-prec && tmp[s] == '0' {
+		s++
+	}
+	b = append(b, tmp[s:16-prec]...)
+	b = append(b, '.')
+	return append(b, tmp[16-prec:]...)
+}
+
+// digits8 returns the 8 decimal digits of n < 1e8, leading zeros included,
+// as byte values 0..9 in the bytes of a uint64, the most significant digit
+// in the lowest byte (first in memory, little endian): n is split into two
+// halves of 4 digits in 32-bit lanes, each into two of 2 digits in 16-bit
+// lanes, each into two digits in bytes, every lane divided at once by a
+// multiplication and a shift that is exact in its range (x/100 =
+// x*5243>>19 for x < 10000, x/10 = x*103>>10 for x < 100).
+func digits8(n uint64) uint64 {
+	hi := n / 10000
+	x := hi | (n-hi*10000)<<32
+	q := x * 5243 >> 19 & 0x0000007f0000007f
+	x = q | (x-q*100)<<16
+	t := x * 103 >> 10 & 0x000f000f000f000f
+	return t | (x-t*10)<<8
+}
 
 var pow10 = [...]float64{1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15}
 

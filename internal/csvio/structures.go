@@ -1,8 +1,11 @@
 package csvio
 
 import (
+	"bytes"
+	"encoding/binary"
 	"io"
 	"math"
+	"math/bits"
 	"slices"
 	"strings"
 	"unicode"
@@ -198,43 +201,60 @@ func (s *StructureReader) Parse(r *StructureRow) {
 // form) and its run_confidence, if any, is written in lower case. Otherwise
 // it returns false, r keeping its Line and Raw: call Parse with the split
 // fields, which reports the row's problem. Record is set to nil: the fields
-// are the text's. It is safe to call concurrently on different rows.
-func (s *StructureReader) ParseUnquoted(r *StructureRow, text string) bool {
+// are the text's. HoleID is a new string, except when it equals sameHole
+// (the hole id of a row parsed before, say): then it is sameHole itself, so
+// that the rows of one hole make no string each. It is safe to call
+// concurrently on different rows.
+func (s *StructureReader) ParseUnquoted(r *StructureRow, text []byte, sameHole string) bool {
 	const most = 32 // columns; wider files take the general path
 	n := len(s.Header.Names)
 	if n > most {
 		return false
 	}
 	var ends [most]int // end of each field in text
-	k, rest := 0, text
-	for {
-		i := strings.IndexByte(rest, ',')
-		if i < 0 {
-			break
+	k := 0
+	// The commas are found eight bytes at a time: m has the high bit of
+	// every byte of w that is a comma (exactly, with no carries between
+	// bytes).
+	const highs, commas = 0x8080808080808080, ',' * 0x0101010101010101
+	i := 0
+	for ; i+8 <= len(text); i += 8 {
+		x := binary.LittleEndian.Uint64(text[i:]) ^ commas // zero bytes at the commas
+		m := ^((x&^highs + ^uint64(highs)) | x | ^uint64(highs))
+		for m != 0 {
+			if k == n-1 {
+				return false // more fields than the header
+			}
+			ends[k] = i + bits.TrailingZeros64(m)>>3
+			k++
+			m &= m - 1
 		}
-		if k == n-1 {
-			return false // more fields than the header
+	}
+	for ; i < len(text); i++ {
+		if text[i] == ',' {
+			if k == n-1 {
+				return false
+			}
+			ends[k] = i
+			k++
 		}
-		ends[k] = len(text) - len(rest) + i
-		k++
-		rest = rest[i+1:]
 	}
 	if k != n-1 {
 		return false
 	}
 	ends[k] = len(text)
-	cell := func(i int) string {
+	cell := func(i int) []byte {
 		from := 0
 		if i > 0 {
 			from = ends[i-1] + 1
 		}
-		return strings.TrimSpace(text[from:ends[i]])
+		return trimSpace(text[from:ends[i]])
 	}
 	// num parses an optional number cell: has is false for an empty cell,
 	// ok false for anything but a plain decimal.
 	num := func(i int) (v float64, has, ok bool) {
 		c := cell(i)
-		if c == "" {
+		if len(c) == 0 {
 			return math.NaN(), false, true
 		}
 		v, ok = parseSimple(c)
@@ -242,8 +262,14 @@ func (s *StructureReader) ParseUnquoted(r *StructureRow, text string) bool {
 	}
 	*r = StructureRow{Line: r.Line, Raw: r.Raw, Gamma: math.NaN(), Thickness: math.NaN(), RunMismatch: math.NaN()}
 	row := r
-	if row.HoleID = cell(s.iHole); row.HoleID == "" {
+	id := cell(s.iHole)
+	if len(id) == 0 {
 		return false
+	}
+	if string(id) == sameHole {
+		row.HoleID = sameHole
+	} else {
+		row.HoleID = string(id)
 	}
 	var has, ok bool
 	if row.Depth, has, ok = num(s.iDepth); !has || !ok || row.Depth < 0 {
@@ -266,11 +292,12 @@ func (s *StructureReader) ParseUnquoted(r *StructureRow, text string) bool {
 		}
 	}
 	if s.iRunConf >= 0 {
-		if c := cell(s.iRunConf); c != "" {
-			if !slices.Contains(Confidences, c) {
+		if c := cell(s.iRunConf); len(c) != 0 {
+			k := slices.Index(Confidences, string(c))
+			if k < 0 {
 				return false
 			}
-			row.RunConfidence = c
+			row.RunConfidence = Confidences[k]
 		}
 	}
 	if s.iRunMismatch >= 0 {
@@ -279,6 +306,15 @@ func (s *StructureReader) ParseUnquoted(r *StructureRow, text string) bool {
 		}
 	}
 	return true
+}
+
+// trimSpace is bytes.TrimSpace, quicker for the common cell that starts
+// and ends with a printable ASCII character.
+func trimSpace(c []byte) []byte {
+	if len(c) == 0 || c[0] > ' ' && c[0] < utf8.RuneSelf && c[len(c)-1] > ' ' && c[len(c)-1] < utf8.RuneSelf {
+		return c
+	}
+	return bytes.TrimSpace(c)
 }
 
 // fail records a problem in column i unless the row already has one.

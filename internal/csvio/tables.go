@@ -308,7 +308,7 @@ func ParseNumber(s string) (v float64, msg string) {
 // digits form an integer m < 2^53 and the value is m / 10^k with k <= 15,
 // one correctly rounded division of two exact numbers (the fast path of
 // Clinger 1990). Anything else returns ok = false.
-func parseSimple(s string) (v float64, ok bool) {
+func parseSimple[S string | []byte](s S) (v float64, ok bool) {
 	i, neg := 0, false
 	if len(s) > 0 && (s[0] == '-' || s[0] == '+') {
 		neg = s[0] == '-'

@@ -12,6 +12,7 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+	"unsafe"
 
 	"corvane/internal/domain"
 	"corvane/internal/localgrid"
@@ -419,30 +420,6 @@ func TestAppendFloatDigitsMatchStrconv(t *testing.T) {
 	}
 }
 
-// uint64Len counts digits as strconv.FormatUint writes them, at every power
-// of ten and its neighbours.
-func TestUint64Len(t *testing.T) {
-	check := func(n uint64) {
-		if got, want := uint64Len(n), len(strconv.FormatUint(n, 10)); got != want {
-			t.Fatalf("uint64Len(%d) = %d, want %d", n, got, want)
-		}
-	}
-	check(0)
-	check(math.MaxUint64)
-	for p := uint64(1); p <= 1e19; p *= 10 {
-		check(p - 1)
-		check(p)
-		check(p + 1)
-		if p == 1e19 {
-			break
-		}
-	}
-	r := rand.New(rand.NewPCG(5, 5))
-	for i := 0; i < 100000; i++ {
-		check(r.Uint64() >> r.IntN(64))
-	}
-}
-
 // TestHeaderAliases: a header may name a column as the JSON field does
 // (hole for hole_id, azimuth_ref for azimuth_reference; one vocabulary),
 // with the same rows as a result; both names of one column are refused.
@@ -550,17 +527,24 @@ func checkParseUnquoted(t *testing.T, sr *StructureReader, r *StructureRow) {
 	if bytes.IndexByte(r.Raw, '"') >= 0 {
 		return
 	}
-	got := StructureRow{Line: r.Line, Raw: r.Raw, HoleID: "stale", Record: []string{"stale"}}
-	if !sr.ParseUnquoted(&got, string(r.Raw)) {
-		if got.Line != r.Line || string(got.Raw) != string(r.Raw) {
-			t.Fatalf("line %d %q: declined and lost the line or text", r.Line, r.Raw)
+	// Without a hole id to share, with this row's (given as another
+	// string), and with another one.
+	for _, same := range []string{"", strings.Clone(r.HoleID), "other"} {
+		got := StructureRow{Line: r.Line, Raw: r.Raw, HoleID: "stale", Record: []string{"stale"}}
+		if !sr.ParseUnquoted(&got, r.Raw, same) {
+			if got.Line != r.Line || string(got.Raw) != string(r.Raw) {
+				t.Fatalf("line %d %q: declined and lost the line or text", r.Line, r.Raw)
+			}
+			return
 		}
-		return
-	}
-	want := *r
-	want.Record = nil
-	if fmt.Sprintf("%#v", got) != fmt.Sprintf("%#v", want) {
-		t.Fatalf("line %d %q: ParseUnquoted %+v, Parse %+v", r.Line, r.Raw, got, want)
+		want := *r
+		want.Record = nil
+		if fmt.Sprintf("%#v", got) != fmt.Sprintf("%#v", want) {
+			t.Fatalf("line %d %q: ParseUnquoted %+v, Parse %+v", r.Line, r.Raw, got, want)
+		}
+		if same == r.HoleID && unsafe.StringData(got.HoleID) != unsafe.StringData(same) {
+			t.Fatalf("line %d %q: hole id %q not shared", r.Line, r.Raw, same)
+		}
 	}
 }
 
@@ -569,8 +553,8 @@ func checkParseUnquoted(t *testing.T, sr *StructureReader, r *StructureRow) {
 func TestParseUnquotedMatchesParse(t *testing.T) {
 	r := rand.New(rand.NewPCG(9, 9))
 	cells := map[string][]string{
-		"num":  {"", " ", "0", "12", "12.5", " 7.25 ", "-3", "+4", "1e2", "abc", "NaN", "Inf", "95", "360", "361", "180", "181", "-0", "0012.50", "1234567890123456"},
-		"id":   {"", " ", "A", " B1 ", "hole 7"},
+		"num":  {"", " ", "0", "12", "12.5", " 7.25 ", "-3", "+4", "1e2", "abc", "NaN", "Inf", "95", "360", "361", "180", "181", "-0", "0012.50", "1234567890123456", "\u00a012", "7.5\t"},
+		"id":   {"", " ", "A", " B1 ", "hole 7", "\u3000C9", "D-1\u00a0"},
 		"conf": {"", "good", "Good", " poor ", "none", "bad", "FAIR"},
 		"text": {"", "x", "joint", " a b "},
 	}
@@ -636,7 +620,7 @@ func TestParseUnquotedMatchesParse(t *testing.T) {
 			}
 			checkParseUnquoted(t, sr, row)
 			got := StructureRow{Line: row.Line, Raw: row.Raw}
-			if sr.ParseUnquoted(&got, string(row.Raw)) {
+			if sr.ParseUnquoted(&got, row.Raw, "") {
 				taken++
 				if row.Err != nil {
 					t.Fatalf("%q: taken, but Parse finds %v", row.Raw, row.Err)
