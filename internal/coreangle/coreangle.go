@@ -288,11 +288,23 @@ func normal(h geom.Vec3, alpha, beta float64, c Convention) (n, d geom.Vec3, w W
 // range give meaningless planes. Plane does not allocate.
 func Plane(h geom.Vec3, alpha, beta float64, c Convention) (geom.Plane, Warn) {
 	n, _, w := normal(h, alpha, beta, c)
+	return planeAt(n, w), w
+}
+
+// planeAt is the plane of normal n with warnings w (see [Plane]).
+func planeAt(n geom.Vec3, w Warn) geom.Plane {
 	p := planeOf(n)
 	if w.Has(Vertical) {
 		p.DipDirection = math.NaN()
 	}
-	return p, w
+	return p
+}
+
+// PlaneAndLine returns what [Plane] (alpha, beta) and [Line] (alpha, beta,
+// gamma) return, with their one normal and warnings computed once.
+func PlaneAndLine(h geom.Vec3, alpha, beta, gamma float64, c Convention) (geom.Plane, geom.Line, Warn) {
+	n, d, w := normal(h, alpha, beta, c)
+	return planeAt(n, w), lineAt(h, n, d, gamma, c, w), w
 }
 
 // planeOf is geom.PlaneOf for a unit normal, without its normalisation steps
@@ -348,6 +360,12 @@ func lineOf(v geom.Vec3) geom.Line {
 // Trend NaN.
 func Line(h geom.Vec3, alpha, beta, gamma float64, c Convention) (geom.Line, Warn) {
 	n, d, w := normal(h, alpha, beta, c)
+	return lineAt(h, n, d, gamma, c, w), w
+}
+
+// lineAt is the line of gamma on the plane of normal n, d the direction to
+// the down-hole apex, w the warnings (see [Line]).
+func lineAt(h, n, d geom.Vec3, gamma float64, c Convention, w Warn) geom.Line {
 	e := h.Sub(n.Scale(h.Dot(n)))
 	if en := e.Norm(); en < 1e-12 {
 		e = d
@@ -362,7 +380,7 @@ func Line(h geom.Vec3, alpha, beta, gamma float64, c Convention) (geom.Line, War
 	if w.Has(Vertical) {
 		l.Trend = math.NaN()
 	}
-	return l, w
+	return l
 }
 
 // ErrVertical is returned when an inverse is asked for in a vertical hole,

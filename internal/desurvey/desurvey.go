@@ -151,6 +151,7 @@ type Path struct {
 	pos   []geom.Vec3
 	dir   []geom.Vec3
 	dl    []float64 // dogleg of interval i (between station i and i+1), radians
+	sdl   []float64 // sin(dl[i]), used by At at every depth in the interval
 	rf    []float64 // ratio factor of interval i (minimum curvature)
 }
 
@@ -198,6 +199,7 @@ func NewWith(c Collar, st []Station, o Options) (*Path, error) {
 		pos:   make([]geom.Vec3, 0, n),
 		dir:   make([]geom.Vec3, 0, n),
 		dl:    make([]float64, 0, n),
+		sdl:   make([]float64, 0, n),
 		rf:    make([]float64, 0, n),
 	}
 	if len(st) == 0 || st[0].Depth != 0 {
@@ -238,6 +240,7 @@ func NewWith(c Collar, st []Station, o Options) (*Path, error) {
 		dl := 2 * math.Atan2(t2.Sub(t1).Norm(), sum)
 		rf := ratioFactor(dl)
 		p.dl = append(p.dl, dl)
+		p.sdl = append(p.sdl, math.Sin(dl))
 		p.rf = append(p.rf, rf)
 		L := p.md[i+1] - p.md[i]
 		var off geom.Vec3
@@ -340,7 +343,7 @@ func (p *Path) At(md float64) (Point, error) {
 		if dl < 1e-12 {
 			t = t1.Scale(1 - f).Add(t2.Scale(f)).Unit()
 		} else {
-			sd := math.Sin(dl)
+			sd := p.sdl[i]
 			t = t1.Scale(math.Sin((1-f)*dl) / sd).Add(t2.Scale(math.Sin(f*dl) / sd))
 		}
 		pt.Dir = t

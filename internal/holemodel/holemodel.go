@@ -700,7 +700,12 @@ func (h *Hole) orient(m *Measurement) (Result, error) {
 	}
 	r := Result{Point: pt, TrueThickness: math.NaN(), Convergence: h.Convergence, Declination: h.Declination(m.Depth)}
 	r.HoleAzimuth, r.HoleDip = azimuthDip(pt.Dir)
-	r.Plane, r.Warn = coreangle.Plane(pt.Dir, m.Alpha, beta, h.conv)
+	if m.HasGamma { // then beta is m.Beta (checked above)
+		r.Plane, r.Line, r.Warn = coreangle.PlaneAndLine(pt.Dir, m.Alpha, beta, m.Gamma, h.conv)
+		r.HasLine = true
+	} else {
+		r.Plane, r.Warn = coreangle.Plane(pt.Dir, m.Alpha, beta, h.conv)
+	}
 	if m.NoBeta {
 		// Without beta only a vertical hole gives the dip (90 - alpha).
 		if !r.Warn.Has(coreangle.Vertical) {
@@ -708,12 +713,6 @@ func (h *Hole) orient(m *Measurement) (Result, error) {
 		}
 		r.Warn = r.Warn&^coreangle.AlphaHigh | coreangle.Unoriented
 		r.Unoriented = true
-	}
-	if m.HasGamma {
-		var lw coreangle.Warn
-		r.Line, lw = coreangle.Line(pt.Dir, m.Alpha, m.Beta, m.Gamma, h.conv)
-		r.Warn |= lw
-		r.HasLine = true
 	}
 	if pt.Extrapolated {
 		r.Warn |= coreangle.Extrapolated
