@@ -526,7 +526,12 @@ func (cv *converter) convert(b *batch, ms *uncertainty.Measurer) {
 			sum.WarnRows++
 			hc.WarnRows++
 		}
-		b.tail = WriteResult(cw, &res, last.Hole, cv.thick, warn, last.tail, b.tail, u)
+		if u == nil && last.rest != nil {
+			writeMeasured(cw, &res, cv.thick, warn)
+			cw.Raw(last.rest)
+		} else {
+			b.tail = WriteResult(cw, &res, last.Hole, cv.thick, warn, last.tail, b.tail, u)
+		}
 		cw.Empty() // error
 		cw.EndRow()
 	}
@@ -572,6 +577,13 @@ func writeEmpty(cw *csvio.Writer, n int) {
 // method gave it, then the survey instrument ([SurveyInstrument]); scratch
 // is reused and returned.
 func WriteResult(cw *csvio.Writer, r *holemodel.Result, h *holemodel.Hole, thick bool, warn string, tail, scratch []byte, u *uncertainty.Result) []byte {
+	writeMeasured(cw, r, thick, warn)
+	return writeHoleColumns(cw, r, h, tail, scratch, u)
+}
+
+// writeMeasured writes the columns of [WriteResult] from hole_azimuth to
+// pole_plunge, and true_thickness when thick.
+func writeMeasured(cw *csvio.Writer, r *holemodel.Result, thick bool, warn string) {
 	cw.Float(r.HoleAzimuth, angleDecimals)
 	cw.Float(r.HoleDip, angleDecimals)
 	cw.Float(r.Point.Pos.X, lengthDecimals)
@@ -594,6 +606,14 @@ func WriteResult(cw *csvio.Writer, r *holemodel.Result, h *holemodel.Hole, thick
 	if thick {
 		cw.Float(r.TrueThickness, lengthDecimals)
 	}
+}
+
+// writeHoleColumns writes the columns of [WriteResult] after those of
+// writeMeasured: the corrections (tail, or formatted from r when nil), the
+// survey set, the uncertainty columns of u and the survey instrument. When
+// u is nil and tail is not, they are the same on every row of the hole
+// (see Hole.rest).
+func writeHoleColumns(cw *csvio.Writer, r *holemodel.Result, h *holemodel.Hole, tail, scratch []byte, u *uncertainty.Result) []byte {
 	if tail != nil {
 		cw.Raw(tail)
 	} else {

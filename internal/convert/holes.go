@@ -159,6 +159,10 @@ type Hole struct {
 	// tail is the formatted reference and correction columns when they are
 	// the same on every row of the hole, nil otherwise.
 	tail []byte
+	// rest is, when tail is not nil, the formatted columns after the pole
+	// (or thickness) of a row without uncertainty: tail, the survey set,
+	// the empty uncertainty columns and the survey instrument.
+	rest []byte
 	// Survey names the survey the hole is built from (domain.UsedSurvey):
 	// "survey" (rows without a kind), a kind, "" when the hole has none.
 	Survey string
@@ -350,6 +354,11 @@ func buildHole(c csvio.CollarRow, rows []csvio.SurveyRow, opt Options, p holemod
 		h.Err = Locate(m.Err, c.Line, cf, sf)
 	} else {
 		h.tail = h.formatTail()
+		if h.tail != nil {
+			w := csvio.NewMemWriter()
+			writeHoleColumns(w, nil, h.Hole, h.tail, nil, nil)
+			h.rest = w.Buffered()
+		}
 	}
 	return h
 }

@@ -362,6 +362,10 @@ func NewWriter(w io.Writer) *Writer {
 	return &Writer{w: w, first: true, buf: make([]byte, 0, writerFlushAt+4096)}
 }
 
+// NewMemWriter returns a Writer that only collects its output in memory
+// (see [Writer.Buffered]), starting small: for a few fields formatted once.
+func NewMemWriter() *Writer { return &Writer{first: true} }
+
 func (w *Writer) sep() {
 	if !w.first {
 		w.buf = append(w.buf, ',')
