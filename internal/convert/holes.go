@@ -219,13 +219,22 @@ func Load(collars, surveys io.Reader, opt Options) (*Holes, error) {
 		return nil, fmt.Errorf("output reference must be grid, true or local, not %v", opt.Output)
 	}
 	cf, sf := nameOr(opt.CollarsFile, "collars"), nameOr(opt.SurveysFile, "surveys")
-	crows, err := csvio.ReadCollars(collars, cf)
-	if err != nil {
-		return nil, err
+	// The two files are read at the same time; a problem of the collars
+	// is reported first, as when they were read one after the other.
+	var crows []csvio.CollarRow
+	var cerr error
+	done := make(chan struct{})
+	go func() {
+		defer close(done)
+		crows, cerr = csvio.ReadCollars(collars, cf)
+	}()
+	srows, serr := csvio.ReadSurveys(surveys, sf)
+	<-done
+	if cerr != nil {
+		return nil, cerr
 	}
-	srows, err := csvio.ReadSurveys(surveys, sf)
-	if err != nil {
-		return nil, err
+	if serr != nil {
+		return nil, serr
 	}
 	return Build(crows, srows, opt)
 }

@@ -367,6 +367,11 @@ func readRows[T any](r io.Reader, file, what string, required []string, parse fu
 	if err != nil {
 		return nil, err
 	}
+	// Past rowChunk rows, rows are kept in chunks of that size and copied
+	// once into a slice of the exact length at the end: growing one slice
+	// of large rows by doubling allocated, zeroed and copied about twice
+	// the final size.
+	var chunks [][]T
 	var rows []T
 	c := collect{file: file}
 	for {
@@ -388,10 +393,28 @@ func readRows[T any](r io.Reader, file, what string, required []string, parse fu
 			c.add(rw.bad)
 			continue
 		}
+		if len(rows) == cap(rows) && cap(rows) >= rowChunk {
+			chunks = append(chunks, rows)
+			rows = make([]T, 0, rowChunk)
+		}
 		rows = append(rows, v)
 	}
 	if err := c.err(what); err != nil {
 		return nil, err
 	}
-	return rows, nil
+	if len(chunks) == 0 {
+		return rows, nil
+	}
+	n := len(rows)
+	for _, ch := range chunks {
+		n += len(ch)
+	}
+	all := make([]T, 0, n)
+	for _, ch := range chunks {
+		all = append(all, ch...)
+	}
+	return append(all, rows...), nil
 }
+
+// rowChunk is the number of rows in a chunk of readRows (beyond the first, which grows to it).
+const rowChunk = 1024
