@@ -29,22 +29,27 @@ type Measurement struct {
 // an angle out of range (alpha, beta, gamma). It does not allocate when it
 // succeeds.
 func (hs *Holes) Orient(m Measurement) (holemodel.Result, error) {
-	return hs.orient(hs.holes[m.HoleID], &m)
+	var r holemodel.Result
+	err := hs.orient(&r, hs.holes[m.HoleID], &m)
+	return r, err
 }
 
-func (hs *Holes) orient(h *Hole, m *Measurement) (holemodel.Result, error) {
+// orient is Orient with hole h of m (nil when unknown), writing the result
+// into r (the zero Result when there is an error).
+func (hs *Holes) orient(r *holemodel.Result, h *Hole, m *Measurement) error {
 	if h == nil {
-		return holemodel.Result{}, fieldErr(csvio.ColHoleID, "unknown hole %q (not in the collars)", m.HoleID)
+		*r = holemodel.Result{}
+		return fieldErr(csvio.ColHoleID, "unknown hole %q (not in the collars)", m.HoleID)
 	}
 	if h.Err != nil {
-		return holemodel.Result{}, fieldErr(csvio.ColHoleID, "%s", h.Err.Error())
+		*r = holemodel.Result{}
+		return fieldErr(csvio.ColHoleID, "%s", h.Err.Error())
 	}
-	r, err := h.Orient(m.Measurement)
-	if err != nil {
+	if err := h.OrientTo(r, &m.Measurement); err != nil {
 		e := err.(*holemodel.Error)
-		return r, fieldErr(e.Field, "%s", e.Msg)
+		return fieldErr(e.Field, "%s", e.Msg)
 	}
-	return r, nil
+	return nil
 }
 
 func fieldErr(col, format string, args ...any) *domain.Error {
@@ -449,6 +454,7 @@ func (cv *converter) convert(b *batch, ms *uncertainty.Measurer) {
 	var last *Hole
 	var sameHole string // the hole id of the last row that had one
 	var m Measurement
+	var res holemodel.Result
 	var hc *HoleRows // counts of the row's hole id in sum.PerHole
 	for i := range b.rows {
 		row := &b.rows[i]
@@ -491,7 +497,7 @@ func (cv *converter) convert(b *batch, ms *uncertainty.Measurer) {
 		}
 		m = Measurement{HoleID: row.HoleID, Measurement: holemodel.Measurement{Depth: row.Depth, Alpha: row.Alpha, Beta: row.Beta, NoBeta: !row.HasBeta,
 			Gamma: row.Gamma, HasGamma: row.HasGamma, Thickness: row.Thickness, HasThickness: row.HasThickness}}
-		res, err := cv.hs.orient(last, &m)
+		err := cv.hs.orient(&res, last, &m)
 		if err != nil {
 			sum.BadRows++
 			hc.BadRows++

@@ -134,6 +134,15 @@ func TestAppendFloatMatchesReference(t *testing.T) {
 				t.Fatalf("AppendFloat(%q with room %d, %v (%#x), %d) = %q, before %q", b, room, v, math.Float64bits(v), prec, got, want)
 			}
 		}
+		// Writer.Float writes the number as the first field, and after a
+		// comma as a later one.
+		w := NewMemWriter()
+		w.Float(v, prec)
+		w.Float(v, prec)
+		one := string(appendFloatRef(nil, v, prec))
+		if got := string(w.Buffered()); got != one+","+one {
+			t.Fatalf("Writer.Float twice %v (%#x), %d: %q, before %q", v, math.Float64bits(v), prec, got, one+","+one)
+		}
 	}
 	edges := []float64{0, math.Copysign(0, -1), math.NaN(), math.Inf(1), math.Inf(-1), math.SmallestNonzeroFloat64, -math.SmallestNonzeroFloat64,
 		0.5, -0.5, 0.05, 0.005, -0.005, 0.0049999999, -0.0049999999, 0.125, -0.125, 0.0625, 1.5, 2.5, -2.5, 359.995, 359.99499999999995, 359.999, 360,

@@ -311,22 +311,22 @@ func FormatFloat(v float64, prec int) string {
 // dropped by shifting, and the digits and the point are put in place by a
 // few 8-byte stores into the spare capacity of b.
 func AppendFloat(b []byte, v float64, prec int) []byte {
-	if uint(prec) > 9 {
-		if math.IsNaN(v) {
-			return b
-		}
-		return strconv.AppendFloat(b, v, 'f', prec, 64)
+	return appendFloat(b, false, v, prec)
+}
+
+// appendFloat is AppendFloat, after a comma when comma is true (the
+// separator of [Writer.Float], written with the number).
+func appendFloat(b []byte, comma bool, v float64, prec int) []byte {
+	if uint(prec) > 7 {
+		return appendFloatWide(b, comma, v, prec)
 	}
-	x := v * pow10[prec] // the same magnitude as |v| 10^prec: IEEE products are sign-symmetric
+	x := v * pow10[prec&7] // the same magnitude as |v| 10^prec: IEEE products are sign-symmetric
 	neg := x < 0
 	if neg {
 		x = -x
 	}
 	if !(x < 1<<53) {
-		if math.IsNaN(v) {
-			return b
-		}
-		return strconv.AppendFloat(b, v, 'f', prec, 64)
+		return appendFloatOther(b, comma, v, prec)
 	}
 	// n = math.Round(x): below 2^53 the fraction x - trunc(x) is exact.
 	t := int64(x)
@@ -334,64 +334,90 @@ func AppendFloat(b []byte, v float64, prec int) []byte {
 	if x-float64(t) >= 0.5 {
 		n++
 	}
-	// At most a sign, 16 digits and the point, written with stores of 8
-	// bytes that may reach 7 bytes past the end: 32 bytes of room.
-	at := len(b)
-	if cap(b)-at < 32 {
-		b = slices.Grow(b, 32)
+	// At most a comma, a sign, 16 digits and the point, written with stores of 8
+	// bytes that may reach 7 bytes past the end: 40 bytes of room keep
+	// every store (at an offset below 32) inside, without bounds checks.
+	if cap(b)-len(b) < 40 {
+		b = growFloat(b)
 	}
-	d := b[at : at+32]
+	at := len(b)
+	d := (*[40]byte)(b[at : at+40])
 	i := 0
-	if neg && n != 0 {
-		d[0] = '-'
+	if comma {
+		d[0] = ','
 		i = 1
 	}
-	if prec > 7 {
-		return appendDigitsSlow(b[:at+i], n, prec)
+	if neg && n != 0 {
+		d[i&1] = '-'
+		i++
 	}
 	// The number of digits written, at least one before the point, is
 	// counted from n directly, so that the length (and where the next
 	// number goes) does not wait for the digits.
 	nd := max(decimalLen(n), prec+1)
 	const zeros = 0x3030303030303030 // "00000000"
+	var w uint64                     // the word holding the last 8 digits
 	if n < 1e8 {
 		// One word of 8 digits, its 8 - nd leading zeros shifted out.
-		w := digits8(n) + zeros
-		binary.LittleEndian.PutUint64(d[i:], w>>(8*(8-nd)))
-		l := i + nd
-		if prec > 0 {
-			binary.LittleEndian.PutUint64(d[l-prec:], '.'|w>>(8*(8-prec))<<8)
-			l++
-		}
-		return b[:at+l]
+		w = digits8(n) + zeros
+		binary.LittleEndian.PutUint64(d[i&31:], w>>((64-8*nd)&63))
+	} else {
+		// Two words: the first holds nd - 8 digits.
+		hi := n / 1e8
+		w = digits8(n-hi*1e8) + zeros
+		binary.LittleEndian.PutUint64(d[i&31:], (digits8(hi)+zeros)>>((128-8*nd)&63))
+		binary.LittleEndian.PutUint64(d[(i+nd-8)&31:], w)
 	}
-	// Two words: the first holds nd - 8 digits.
-	hi := n / 1e8
-	wh, wl := digits8(hi)+zeros, digits8(n-hi*1e8)+zeros
-	binary.LittleEndian.PutUint64(d[i:], wh>>(8*(16-nd)))
-	binary.LittleEndian.PutUint64(d[i+nd-8:], wl)
 	l := i + nd
 	if prec > 0 {
-		binary.LittleEndian.PutUint64(d[l-prec:], '.'|wl>>(8*(8-prec))<<8)
+		binary.LittleEndian.PutUint64(d[(l-prec)&31:], '.'|w>>((64-8*prec)&63)<<8)
 		l++
 	}
 	return b[:at+l]
 }
 
-// decimalLen returns the number of decimal digits of n (1 for 0).
-func decimalLen(n uint64) int {
-	t := bits.Len64(n) * 1233 >> 12 // log10(2) ~ 1233/4096: t or t+1 digits
-	if n >= pow10u[t] {
-		t++
+// growFloat returns b with room for AppendFloat's stores.
+//
+//go:noinline
+func growFloat(b []byte) []byte { return slices.Grow(b, 40) }
+
+// appendFloatOther is AppendFloat for NaN (nothing), the infinities and
+// values of 2^53 and more after scaling (strconv).
+func appendFloatOther(b []byte, comma bool, v float64, prec int) []byte {
+	if comma {
+		b = append(b, ',')
 	}
-	return max(t, 1)
+	if math.IsNaN(v) {
+		return b
+	}
+	return strconv.AppendFloat(b, v, 'f', prec, 64)
 }
 
-var pow10u = [...]uint64{1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19}
-
-// appendDigitsSlow appends n with prec decimals (8 or 9), its digits made
-// by digits8 as well.
-func appendDigitsSlow(b []byte, n uint64, prec int) []byte {
+// appendFloatWide is AppendFloat for 8 and 9 decimals, its digits made by
+// digits8 as well, and for decimals outside 0..9 (strconv).
+func appendFloatWide(b []byte, comma bool, v float64, prec int) []byte {
+	if prec > 9 || prec < 0 {
+		return appendFloatOther(b, comma, v, prec)
+	}
+	x := v * pow10[prec]
+	neg := x < 0
+	if neg {
+		x = -x
+	}
+	if !(x < 1<<53) {
+		return appendFloatOther(b, comma, v, prec)
+	}
+	if comma {
+		b = append(b, ',')
+	}
+	t := int64(x)
+	n := uint64(t)
+	if x-float64(t) >= 0.5 {
+		n++
+	}
+	if neg && n != 0 {
+		b = append(b, '-')
+	}
 	var tmp [16]byte
 	hi := n / 1e8
 	binary.LittleEndian.PutUint64(tmp[:8], digits8(hi)+0x3030303030303030)
@@ -404,6 +430,17 @@ func appendDigitsSlow(b []byte, n uint64, prec int) []byte {
 	b = append(b, '.')
 	return append(b, tmp[16-prec:]...)
 }
+
+// decimalLen returns the number of decimal digits of n (1 for 0).
+func decimalLen(n uint64) int {
+	t := bits.Len64(n) * 1233 >> 12 // log10(2) ~ 1233/4096: t or t+1 digits
+	if n >= pow10u[t] {
+		t++
+	}
+	return max(t, 1)
+}
+
+var pow10u = [...]uint64{1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19}
 
 // digits8 returns the 8 decimal digits of n < 1e8, leading zeros included,
 // as byte values 0..9 in the bytes of a uint64, the most significant digit

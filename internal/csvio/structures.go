@@ -401,8 +401,9 @@ func (w *Writer) Raw(b []byte) {
 // Float writes v with prec decimals, or an empty field for NaN (see
 // [AppendFloat]).
 func (w *Writer) Float(v float64, prec int) {
-	w.sep()
-	w.buf = AppendFloat(w.buf, v, prec)
+	comma := !w.first
+	w.first = false
+	w.buf = appendFloat(w.buf, comma, v, prec)
 }
 
 // Empty writes an empty field.

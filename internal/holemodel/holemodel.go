@@ -669,36 +669,49 @@ func azimuthDip(v geom.Vec3) (az, dip float64) {
 // hole's own problem (hole_id), a depth outside the hole (depth), an angle
 // out of range (alpha, beta, gamma). It does not allocate when it succeeds.
 func (h *Hole) Orient(m Measurement) (Result, error) {
-	return h.orient(&m)
+	var r Result
+	err := h.OrientTo(&r, &m)
+	return r, err
 }
 
-func (h *Hole) orient(m *Measurement) (Result, error) {
+// OrientTo is [Hole.Orient] for callers that convert many measurements:
+// it writes the result into r (the zero Result when there is an error) and
+// copies neither the measurement nor the result.
+func (h *Hole) OrientTo(r *Result, m *Measurement) error {
+	if err := h.orient(r, m); err != nil {
+		*r = Result{}
+		return err
+	}
+	return nil
+}
+
+func (h *Hole) orient(r *Result, m *Measurement) *Error {
 	if h.Err != nil {
-		return Result{}, &Error{Field: FieldHoleID, Station: -1, Msg: h.Err.Msg}
+		return &Error{Field: FieldHoleID, Station: -1, Msg: h.Err.Msg}
 	}
 	beta := m.Beta
 	if m.NoBeta {
 		if m.HasGamma {
-			return Result{}, errorf(FieldGamma, "gamma needs beta: a lineation cannot be placed on an unoriented plane")
+			return errorf(FieldGamma, "gamma needs beta: a lineation cannot be placed on an unoriented plane")
 		}
 		beta = 0
 	}
 	if err := coreangle.CheckAngles(m.Alpha, beta, m.Gamma, m.HasGamma); err != nil {
 		var ae *coreangle.AngleError
 		errors.As(err, &ae)
-		return Result{}, errorf(ae.Field, "%v", err)
+		return errorf(ae.Field, "%v", err)
 	}
 	if math.IsNaN(m.Depth) || math.IsInf(m.Depth, 0) || m.Depth < 0 {
-		return Result{}, errorf(FieldDepth, "depth %g is outside the hole", m.Depth)
+		return errorf(FieldDepth, "depth %g is outside the hole", m.Depth)
 	}
 	if m.Depth > h.Path.Depth() {
-		return Result{}, errorf(FieldDepth, "depth %g is past the final depth %g of hole %q", m.Depth, h.Path.Depth(), h.In.ID)
+		return errorf(FieldDepth, "depth %g is past the final depth %g of hole %q", m.Depth, h.Path.Depth(), h.In.ID)
 	}
 	pt, err := h.Path.At(m.Depth)
 	if err != nil {
-		return Result{}, errorf(FieldDepth, "%v", err)
+		return errorf(FieldDepth, "%v", err)
 	}
-	r := Result{Point: pt, TrueThickness: math.NaN(), Convergence: h.Convergence, Declination: h.Declination(m.Depth)}
+	*r = Result{Point: pt, TrueThickness: math.NaN(), Convergence: h.Convergence, Declination: h.Declination(m.Depth)}
 	r.HoleAzimuth, r.HoleDip = azimuthDip(pt.Dir)
 	if m.HasGamma { // then beta is m.Beta (checked above)
 		r.Plane, r.Line, r.Warn = coreangle.PlaneAndLine(pt.Dir, m.Alpha, beta, m.Gamma, h.conv)
@@ -721,9 +734,9 @@ func (h *Hole) orient(m *Measurement) (Result, error) {
 		r.TrueThickness = coreangle.TrueThickness(m.Thickness, m.Alpha)
 	}
 	if h.local {
-		h.toLocal(&r)
+		h.toLocal(r)
 	}
-	return r, nil
+	return nil
 }
 
 // FieldDipDirection names the dip direction of a plane given to
