@@ -309,7 +309,8 @@ func FormatFloat(v float64, prec int) string {
 // written for speed: the rounded integer's decimal digits are made eight at
 // a time in the bytes of a uint64 ([digits8]), the leading zeros are
 // dropped by shifting, and the digits and the point are put in place by a
-// few 8-byte stores into the spare capacity of b.
+// few 8-byte stores into the spare capacity of b; an angle (2 decimals,
+// below 1000) takes its digits from two small tables instead.
 func AppendFloat(b []byte, v float64, prec int) []byte {
 	return appendFloat(b, false, v, prec)
 }
@@ -350,6 +351,22 @@ func appendFloat(b []byte, comma bool, v float64, prec int) []byte {
 	if neg && n != 0 {
 		d[i&1] = '-'
 		i++
+	}
+	if prec == 2 && n < 1e5 {
+		// An angle: the integer part (below 1000) and the point are one
+		// word of a table, the two decimals another.
+		ip := n / 100
+		f := n - ip*100
+		binary.LittleEndian.PutUint32(d[i&31:], dotted[ip&1023])
+		i++
+		if ip >= 10 {
+			i++
+		}
+		if ip >= 100 {
+			i++
+		}
+		binary.LittleEndian.PutUint16(d[(i+1)&31:], decimals2[f&127])
+		return b[:at+i+3]
 	}
 	// The number of digits written, at least one before the point, is
 	// counted from n directly, so that the length (and where the next
@@ -430,6 +447,21 @@ func appendFloatWide(b []byte, comma bool, v float64, prec int) []byte {
 	b = append(b, '.')
 	return append(b, tmp[16-prec:]...)
 }
+
+// dotted holds, for i below 1000, the digits of i and a point, first in
+// memory first; decimals2 the two digits of i below 100.
+var dotted, decimals2 = func() (dotted [1024]uint32, decimals2 [128]uint16) {
+	for i := range 1000 {
+		s := strconv.Itoa(i) + "."
+		for k := len(s) - 1; k >= 0; k-- {
+			dotted[i] = dotted[i]<<8 | uint32(s[k])
+		}
+	}
+	for i := range 100 {
+		decimals2[i] = uint16('0'+i/10) | uint16('0'+i%10)<<8
+	}
+	return dotted, decimals2
+}()
 
 // decimalLen returns the number of decimal digits of n (1 for 0).
 func decimalLen(n uint64) int {
