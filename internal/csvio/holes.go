@@ -138,21 +138,41 @@ var SurveyColumns = []string{ColHoleID, ColDepth, ColAzimuth, ColDip}
 // strictly increasing depth order (the holes and sets may be interleaved).
 // Errors as for [ReadCollars].
 func ReadSurveys(r io.Reader, file string) ([]SurveyRow, error) {
+	type setKey struct{ hole, kind string } // a hole's survey set
 	type last struct {
 		depth float64
 		line  int
 	}
-	prev := map[string]last{}
+	// prev holds the last good station of each set; the one of the set of
+	// the row before is kept aside (cur) and stored when the set changes,
+	// as rows come set by set.
+	prev := map[setKey]last{}
+	var cur setKey
+	var curLast last
+	haveCur := false
+	lastOf := func(k setKey) (last, bool) {
+		if haveCur && k == cur {
+			return curLast, true
+		}
+		l, ok := prev[k]
+		return l, ok
+	}
+	setLast := func(k setKey, l last) {
+		if haveCur && k != cur {
+			prev[cur] = curLast
+		}
+		cur, curLast, haveCur = k, l, true
+	}
 	type named struct {
 		k    uncertainty.Instrument
 		line int
 	}
-	inst := map[string]named{} // the first row of each set that names an instrument
+	inst := map[setKey]named{} // the first row of each set that names an instrument
 	type said struct {
 		yes  bool
 		line int
 	}
-	pref := map[string]said{}     // the first row of each set that says whether it is preferred
+	pref := map[setKey]said{}     // the first row of each set that says whether it is preferred
 	prefHole := map[string]said{} // the first row marking a set of each hole preferred, by hole
 	prefKind := map[string]string{}
 	return readRows(r, file, "survey", SurveyColumns, func(rw *row) SurveyRow {
@@ -164,13 +184,13 @@ func ReadSurveys(r io.Reader, file string) ([]SurveyRow, error) {
 		if s.Kind != "" && !slices.Contains(domain.SurveyKinds, s.Kind) {
 			rw.fail(ColKind, "kind %q is not one of %s (or empty for the hole's survey set)", rw.cell(ColKind), strings.Join(domain.SurveyKinds, ", "))
 		}
-		key := s.HoleID + "\x00" + s.Kind
+		key := setKey{s.HoleID, s.Kind}
 		var ok bool
 		s.Station.Depth, ok = rw.num(ColDepth, true)
 		if ok && s.Station.Depth < 0 {
 			rw.fail(ColDepth, "depth %g is negative", s.Station.Depth)
 		}
-		if p, seen := prev[key]; ok && seen && rw.bad == nil {
+		if p, seen := lastOf(key); ok && seen && rw.bad == nil {
 			if s.Station.Depth == p.depth {
 				rw.fail(ColDepth, "depth %g of hole %q repeats line %d", s.Station.Depth, s.HoleID, p.line)
 			} else if s.Station.Depth < p.depth {
@@ -220,7 +240,7 @@ func ReadSurveys(r io.Reader, file string) ([]SurveyRow, error) {
 			s.Preferred, s.PreferredSaid = yes, true
 		}
 		if rw.bad == nil {
-			prev[key] = last{s.Station.Depth, line}
+			setLast(key, last{s.Station.Depth, line})
 		}
 		return s
 	})

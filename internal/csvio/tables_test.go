@@ -140,6 +140,35 @@ func TestReadSurveys(t *testing.T) {
 	}
 }
 
+// Station order is checked per survey set, also when the rows of holes and
+// sets are interleaved: each set's last good station is remembered whatever
+// rows come between.
+func TestSurveyOrderInterleavedSets(t *testing.T) {
+	in := "hole_id,depth,azimuth,dip,kind\n" +
+		"A,0,45,-60,\n" + // 2
+		"B,0,45,-60,\n" + // 3
+		"A,10,45,-60,\n" + // 4
+		"A,0,45,-60,gyro\n" + // 5: another set of A
+		"B,5,45,-60,\n" + // 6
+		"A,5,45,-60,\n" + // 7: A's set is at 10 (line 4)
+		"A,10,45,-60,gyro\n" + // 8
+		"B,5,45,-60,\n" + // 9: repeats line 6
+		"A,10,45,-60,gyro\n" + // 10: repeats line 8
+		"A,20,45,-60,\n" + // 11: fine, after line 4
+		"B,abc,45,-60,\n" + // 12: bad, not remembered
+		"B,7,45,-60,\n" // 13: fine, after line 6
+	_, err := ReadSurveys(strings.NewReader(in), "s.csv")
+	ps := problems(t, err)
+	var got []string
+	for _, p := range ps {
+		got = append(got, fmt.Sprintf("%d %s", p.Loc.Line, p.Loc.Column))
+	}
+	if fmt.Sprint(got) != "[7 depth 9 depth 10 depth 12 depth]" ||
+		!strings.Contains(ps[0].Msg, "less than 10 on line 4") || !strings.Contains(ps[1].Msg, "repeats line 6") || !strings.Contains(ps[2].Msg, "repeats line 8") {
+		t.Fatalf("problems: %v", ps)
+	}
+}
+
 // The instrument belongs to a survey set: each set by kind has its own, the
 // hole's survey set (rows without a kind) one, and a second instrument within
 // one set is refused at its row, naming the set and the first row.
