@@ -44,11 +44,11 @@ func appendFloatRef(b []byte, v float64, prec int) []byte {
 	case 3:
 		ip = n / 1000
 	default:
-		ip = n / pow10uRef[prec]
+		ip = n / pow10u[prec]
 	}
 	// Length: sign, integer digits, point and prec fraction digits. The
 	// digits are written straight into b from the right, two at a time.
-	l := uint64LenRef(ip) + prec
+	l := decimalLen(ip) + prec
 	if prec > 0 {
 		l++
 	}
@@ -65,7 +65,7 @@ func appendFloatRef(b []byte, v float64, prec int) []byte {
 		d[0] = '-'
 	}
 	i := l
-	switch f := n - ip*pow10uRef[prec]; prec {
+	switch f := n - ip*pow10u[prec]; prec {
 	case 0:
 	case 2:
 		f *= 2
@@ -100,17 +100,6 @@ func appendFloatRef(b []byte, v float64, prec int) []byte {
 	}
 	return b
 }
-
-// uint64LenRef returns the number of decimal digits of n (1 for 0).
-func uint64LenRef(n uint64) int {
-	t := bits.Len64(n) * 1233 >> 12 // log10(2) ~ 1233/4096: t or t+1 digits
-	if n >= pow10uRef[t] {
-		t++
-	}
-	return max(t, 1)
-}
-
-var pow10uRef = [...]uint64{1, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11, 1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19}
 
 const digits2Ref = "00010203040506070809101112131415161718192021222324252627282930313233343536373839" +
 	"40414243444546474849505152535455565758596061626364656667686970717273747576777879" +
@@ -166,23 +155,15 @@ func TestAppendFloatMatchesReference(t *testing.T) {
 	r := rand.New(rand.NewPCG(17, 19))
 	for i := 0; i < 400000; i++ {
 		prec := r.IntN(10)
-		var v float64
-		switch i % 6 {
-		case 0: // angles
-			v = r.Float64() * 360
-		case 1: // signed angles
-			v = (r.Float64() - 0.5) * 180
-		case 2: // coordinates
-			v = r.Float64() * 1e7
-		case 3: // exact ties: an integer plus one half, scaled down
+		v := sampleFloat(r, i%6, prec)
+		if i%6 == 3 { // exact ties: an integer plus one half, scaled down
 			v = (float64(r.IntN(1<<30)) + 0.5) / math.Pow10(prec)
 			if r.IntN(2) == 0 {
 				v = -v
 			}
-		case 4: // any bits at all
+		}
+		if i%6 == 4 { // any bits at all
 			v = math.Float64frombits(r.Uint64())
-		default: // any magnitude, any sign
-			v = (r.Float64() - 0.5) * math.Pow(10, float64(r.IntN(20)-4))
 		}
 		check(v, prec)
 	}
@@ -215,4 +196,19 @@ func TestDigits8(t *testing.T) {
 	for i := 0; i < 1000000; i++ {
 		check(r.Uint64N(1e8))
 	}
+}
+
+// sampleFloat returns a random value of a kind the converter formats:
+// kind 0 an angle, 1 a signed angle, 2 a coordinate, any other any
+// magnitude and sign.
+func sampleFloat(r *rand.Rand, kind, prec int) float64 {
+	switch kind {
+	case 0:
+		return r.Float64() * 360
+	case 1:
+		return (r.Float64() - 0.5) * 180
+	case 2:
+		return r.Float64() * 1e7
+	}
+	return (r.Float64() - 0.5) * math.Pow(10, float64(r.IntN(16)-4))
 }

@@ -410,17 +410,7 @@ func TestAppendFloatDigitsMatchStrconv(t *testing.T) {
 	r := rand.New(rand.NewPCG(7, 11))
 	prefix := []byte("ab,")
 	for i := 0; i < 300000; i++ {
-		var v float64
-		switch i % 4 {
-		case 0: // angles
-			v = r.Float64() * 360
-		case 1: // signed angles
-			v = (r.Float64() - 0.5) * 180
-		case 2: // coordinates
-			v = r.Float64() * 1e7
-		default: // any magnitude, any sign
-			v = (r.Float64() - 0.5) * math.Pow(10, float64(r.IntN(16)-4))
-		}
+		v := sampleFloat(r, i%4, 0)
 		prec := r.IntN(10)
 		s := math.Round(math.Abs(v) * math.Pow10(prec))
 		if !(s < 1<<53) {
@@ -659,5 +649,29 @@ func TestParseUnquotedMatchesParse(t *testing.T) {
 		if taken < 1000 {
 			t.Fatalf("%s: ParseUnquoted took only %d rows", header, taken)
 		}
+	}
+}
+
+// decimalLen counts digits as strconv.FormatUint writes them, at every
+// power of ten and its neighbours.
+func TestDecimalLen(t *testing.T) {
+	check := func(n uint64) {
+		if got, want := decimalLen(n), len(strconv.FormatUint(n, 10)); got != want {
+			t.Fatalf("decimalLen(%d) = %d, want %d", n, got, want)
+		}
+	}
+	check(0)
+	check(math.MaxUint64)
+	for p := uint64(1); p <= 1e19; p *= 10 {
+		check(p - 1)
+		check(p)
+		check(p + 1)
+		if p == 1e19 {
+			break
+		}
+	}
+	r := rand.New(rand.NewPCG(5, 5))
+	for i := 0; i < 100000; i++ {
+		check(r.Uint64() >> r.IntN(64))
 	}
 }
