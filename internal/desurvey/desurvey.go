@@ -153,6 +153,9 @@ type Path struct {
 	dl    []float64 // dogleg of interval i (between station i and i+1), radians
 	sdl   []float64 // sin(dl[i]), used by At at every depth in the interval
 	rf    []float64 // ratio factor of interval i (minimum curvature)
+	// perDepth is the number of intervals per unit of depth down to the
+	// last station, for At's first guess of the interval of a depth.
+	perDepth float64
 }
 
 // New desurveys a hole from its collar and survey stations with method m, in
@@ -254,6 +257,9 @@ func NewWith(c Collar, st []Station, o Options) (*Path, error) {
 		}
 		p.pos = append(p.pos, p.pos[i].Add(off))
 	}
+	if last := len(p.md) - 1; last > 0 {
+		p.perDepth = float64(last) / p.md[last]
+	}
 	return p, nil
 }
 
@@ -302,8 +308,8 @@ func (p *Path) LastStation() float64 { return p.md[len(p.md)-1] }
 // negative, not a number, or past the final depth is an error (wrapping
 // [ErrPastEnd] in the last case).
 //
-// At does not allocate when it succeeds; it finds the interval by binary
-// search.
+// At does not allocate when it succeeds; it finds the interval where the
+// depth would fall with evenly spaced stations, else by binary search.
 func (p *Path) At(md float64) (Point, error) {
 	if math.IsNaN(md) || md < 0 {
 		return Point{}, fmt.Errorf("depth %g is outside the hole", md)
@@ -320,17 +326,22 @@ func (p *Path) At(md float64) (Point, error) {
 			Extrapolated: md > p.md[last],
 		}, nil
 	}
-	// Largest i with md[i] <= md; md[0] == 0 <= md and md < md[last].
-	lo, hi := 0, last
-	for hi-lo > 1 {
-		m := int(uint(lo+hi) >> 1)
-		if p.md[m] <= md {
-			lo = m
-		} else {
-			hi = m
+	// Largest i with md[i] <= md; md[0] == 0 <= md and md < md[last]. The
+	// first guess is where md would fall with evenly spaced stations (most
+	// surveys are); otherwise a binary search.
+	i := min(int(md*p.perDepth), last-1)
+	if p.md[i] > md || p.md[i+1] <= md {
+		lo, hi := 0, last
+		for hi-lo > 1 {
+			m := int(uint(lo+hi) >> 1)
+			if p.md[m] <= md {
+				lo = m
+			} else {
+				hi = m
+			}
 		}
+		i = lo
 	}
-	i := lo
 	s := md - p.md[i]
 	L := p.md[i+1] - p.md[i]
 	t1, t2 := p.dir[i], p.dir[i+1]

@@ -339,15 +339,22 @@ func atRef(p *Path, md float64) Point {
 }
 
 // At gives, bit for bit, what it gave before, on random minimum-curvature
-// paths (straight intervals, tiny and large doglegs) at random depths, at
-// every station and just around it.
+// paths (straight intervals, tiny and large doglegs; evenly and unevenly
+// spaced stations) at random depths, at every station and just around it.
 func TestAtMatchesReference(t *testing.T) {
 	r := rand.New(rand.NewPCG(31, 37))
 	for k := 0; k < 300; k++ {
 		c := Collar{East: r.Float64() * 1e5, North: r.Float64() * 1e6, Elevation: 300, Azimuth: r.Float64() * 360, Dip: -r.Float64() * 90, Depth: 600}
 		var st []Station
 		az, dip := c.Azimuth, c.Dip
-		for d := 0.0; d < 580; d += 5 + r.Float64()*40 {
+		even := k%2 == 0 // evenly spaced stations, as most surveys are, or not
+		step := func() float64 {
+			if even {
+				return 30
+			}
+			return 5 + r.Float64()*40
+		}
+		for d := 0.0; d < 580; d += step() {
 			switch r.IntN(3) {
 			case 0: // straight on
 			case 1:
