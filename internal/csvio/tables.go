@@ -374,6 +374,7 @@ func readRows[T any](r io.Reader, file, what string, required []string, parse fu
 	var chunks [][]T
 	var rows []T
 	c := collect{file: file}
+	rw := &row{} // one for every record: parse is a function value, so a row given to it lives on the heap
 	for {
 		rec, err := cr.Read()
 		if err == io.EOF {
@@ -382,13 +383,13 @@ func readRows[T any](r io.Reader, file, what string, required []string, parse fu
 		if err != nil {
 			return nil, parseErr(file, err)
 		}
-		rw := row{file: file, line: cr.recLine, h: h, rec: rec}
+		*rw = row{file: file, line: cr.recLine, h: h, rec: rec}
 		if len(rec) != len(h.Names) {
 			rw.fail("", "row has %d fields, the header has %d", len(rec), len(h.Names))
 			c.add(rw.bad)
 			continue
 		}
-		v := parse(&rw)
+		v := parse(rw)
 		if rw.bad != nil {
 			c.add(rw.bad)
 			continue
@@ -411,10 +412,30 @@ func readRows[T any](r io.Reader, file, what string, required []string, parse fu
 	}
 	all := make([]T, 0, n)
 	for _, ch := range chunks {
-		all = append(all, ch...)
+		all = appendRows(all, ch)
 	}
-	return append(all, rows...), nil
+	return appendRows(all, rows), nil
 }
+
+// appendRows appends rows to all (which has room for them) in pieces of
+// rowPiece rows, each copied by a call that is not inlined. A copy of rows
+// that hold pointers cannot be interrupted; the garbage collector, which
+// the large all may well have started, waits for it with signals and spins
+// on the other core until the goroutine reaches a function call. Copied
+// in one go, the chunks cost several times the copy itself.
+func appendRows[T any](all, rows []T) []T {
+	for len(rows) > rowPiece {
+		all = appendPiece(all, rows[:rowPiece])
+		rows = rows[rowPiece:]
+	}
+	return appendPiece(all, rows)
+}
+
+// rowPiece is the number of rows appendRows copies at a time.
+const rowPiece = 128
+
+//go:noinline
+func appendPiece[T any](all, rows []T) []T { return append(all, rows...) }
 
 // rowChunk is the number of rows in a chunk of readRows (beyond the first, which grows to it).
 const rowChunk = 1024

@@ -675,3 +675,34 @@ func TestDecimalLen(t *testing.T) {
 		check(r.Uint64() >> r.IntN(64))
 	}
 }
+
+// TestReadRowsManyChunks reads a surveys file longer than several chunks
+// of readRows, of a length that is not a multiple of a chunk or a piece,
+// with a bad row in the middle and at the end: every good row comes back
+// once, in file order, with its own line and values.
+func TestReadRowsManyChunks(t *testing.T) {
+	for _, n := range []int{rowChunk - 1, rowChunk, rowChunk + 1, 3*rowChunk + rowPiece + 7} {
+		var sb strings.Builder
+		sb.WriteString("hole_id,depth,azimuth,dip\n")
+		for i := 0; i < n; i++ {
+			fmt.Fprintf(&sb, "H%d,%d,%d.5,-60\n", i/10, i%10*3, i%360)
+		}
+		rows, err := ReadSurveys(strings.NewReader(sb.String()), "s.csv")
+		if err != nil {
+			t.Fatal(n, err)
+		}
+		if len(rows) != n {
+			t.Fatalf("%d rows: got %d", n, len(rows))
+		}
+		for i, r := range rows {
+			if r.Line != i+2 || r.HoleID != fmt.Sprintf("H%d", i/10) || r.Station.Depth != float64(i%10*3) || r.Station.Azimuth != float64(i%360)+0.5 {
+				t.Fatalf("%d rows: row %d is %+v", n, i, r)
+			}
+		}
+		// A bad last row fails the whole file and names its line.
+		bad := strings.Replace(sb.String(), fmt.Sprintf("H%d,%d,%d.5", (n-1)/10, (n-1)%10*3, (n-1)%360), "H0,x,1", 1)
+		if _, err := ReadSurveys(strings.NewReader(bad), "s.csv"); err == nil || !strings.Contains(err.Error(), fmt.Sprintf("s.csv:line %d,", n+1)) {
+			t.Fatalf("%d rows, the last bad: %v", n, err)
+		}
+	}
+}
