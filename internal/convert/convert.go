@@ -348,7 +348,7 @@ func (p *pipeline) read(b *batch) bool {
 	b.seq = p.seq
 	p.seq++
 	for len(b.lines) < cv.batchRows {
-		row, unsplit, err := cv.sr.NextUnsplit()
+		line, rec, raw, unsplit, err := cv.sr.NextUnsplit()
 		if err == io.EOF {
 			p.eof = true
 			break
@@ -362,11 +362,11 @@ func (p *pipeline) read(b *batch) bool {
 			b.spans = append(b.spans, -1)
 		} else {
 			b.spans = append(b.spans, len(b.fields))
-			b.fields = append(b.fields, row.Record...)
+			b.fields = append(b.fields, rec...)
 		}
 		b.rawSpans = append(b.rawSpans, len(b.raw))
-		b.raw = append(b.raw, row.Raw...)
-		b.lines = append(b.lines, row.Line)
+		b.raw = append(b.raw, raw...)
+		b.lines = append(b.lines, line)
 	}
 	return true
 }

@@ -126,21 +126,22 @@ func (s *StructureReader) NextRaw() (*StructureRow, error) {
 	return r, nil
 }
 
-// NextUnsplit is NextRaw, except that a row without quotes is not split
-// into fields: its Record is nil and unsplit is true, and its fields are its
-// Raw split at every comma ([SplitFields]). A reader that hands rows to other
-// goroutines can then split them there, from one string per batch of rows.
-func (s *StructureReader) NextUnsplit() (r *StructureRow, unsplit bool, err error) {
-	rec, unsplit, err := s.cr.ReadUnsplit()
+// NextUnsplit reads the next row without interpreting it, as NextRaw,
+// and returns its line, cells and raw text instead of a row. A row without
+// quotes is not split into fields: rec is nil and unsplit is true, and its
+// fields are raw split at every comma ([SplitFields]). A reader that hands
+// rows to other goroutines can then split them there, from one string per
+// batch of rows. raw and rec are valid until the next call. Errors as for
+// Next.
+func (s *StructureReader) NextUnsplit() (line int, rec []string, raw []byte, unsplit bool, err error) {
+	rec, unsplit, err = s.cr.ReadUnsplit()
 	if err == io.EOF {
-		return nil, false, io.EOF
+		return 0, nil, nil, false, io.EOF
 	}
 	if err != nil {
-		return nil, false, parseErr(s.file, err)
+		return 0, nil, nil, false, parseErr(s.file, err)
 	}
-	r = &s.row
-	*r = StructureRow{Line: s.cr.recLine, Record: rec, Raw: s.cr.raw}
-	return r, unsplit, nil
+	return s.cr.recLine, rec, s.cr.raw, unsplit, nil
 }
 
 // Parse fills in the values and the problem of a row read by NextRaw from
