@@ -350,11 +350,14 @@ func appendFloat(b []byte, comma bool, v float64, prec int) []byte {
 		return appendFloatOther(b, comma, v, prec)
 	}
 	// n = math.Round(x): below 2^53 the fraction x - trunc(x) is exact.
+	// The rounding up is a conditional move, not a branch: it goes either
+	// way at random, and a mispredicted branch costs more than a number.
 	t := int64(x)
-	n := uint64(t)
+	var up uint64
 	if x-float64(t) >= 0.5 {
-		n++
+		up = 1
 	}
+	n := uint64(t) + up
 	// At most a comma, a sign, 16 digits and the point, written with stores of 8
 	// bytes that may reach 7 bytes past the end: 40 bytes of room keep
 	// every store (at an offset below 32) inside, without bounds checks.
