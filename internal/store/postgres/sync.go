@@ -60,8 +60,24 @@ func scanChange(r scanner) (domain.Change, error) {
 	return c, err
 }
 
+// ownChanges moves the change log entries the bound transaction still owes
+// into change_log (they are written at its commit, migration 000020), so
+// that a read of the log inside a writing transaction sees its own changes
+// as it did when they were written at once. It then holds its projects'
+// log locks until it ends. Outside a transaction it does nothing.
+func (s *Store) ownChanges(ctx context.Context) error {
+	if s.tx == nil {
+		return nil
+	}
+	_, err := s.tx.Exec(ctx, `SELECT corvane_log_flush()`)
+	return translate(err)
+}
+
 // ListChanges lists the project's change log entries after f.After by seq.
 func (s *Store) ListChanges(ctx context.Context, f domain.ChangeFilter) ([]domain.Change, error) {
+	if err := s.ownChanges(ctx); err != nil {
+		return nil, err
+	}
 	var b strings.Builder
 	args := []any{f.ProjectID, f.After}
 	b.WriteString(`SELECT ` + changeCols + ` FROM change_log WHERE project_id = $1 AND seq > $2`)
@@ -83,6 +99,9 @@ func (s *Store) ListChanges(ctx context.Context, f domain.ChangeFilter) ([]domai
 
 // RecordChanges lists the change log entries of one record.
 func (s *Store) RecordChanges(ctx context.Context, table, globalID string) ([]domain.Change, error) {
+	if err := s.ownChanges(ctx); err != nil {
+		return nil, err
+	}
 	rows, err := s.read().Query(ctx, recordChanges, table, globalID)
 	if err != nil {
 		return nil, translate(err)
@@ -92,6 +111,9 @@ func (s *Store) RecordChanges(ctx context.Context, table, globalID string) ([]do
 
 // LastChangeSeq returns the highest seq of the change log.
 func (s *Store) LastChangeSeq(ctx context.Context) (int64, error) {
+	if err := s.ownChanges(ctx); err != nil {
+		return 0, err
+	}
 	var n int64
 	err := s.read().QueryRow(ctx, lastChangeSeq).Scan(&n)
 	return n, translate(err)

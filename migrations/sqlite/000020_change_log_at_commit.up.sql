@@ -1,0 +1,3 @@
+-- Nothing to do on SQLite: its one writer connection already orders the
+-- change log by commit (version 000020 moves PostgreSQL's change log lock
+-- to the commit).
