@@ -51,6 +51,14 @@ type MeasurementFilter struct {
 	LoggedTo   *time.Time
 }
 
+// LogInputs is what [Store.LogInputs] reads.
+type LogInputs struct {
+	ModelStamp int64
+	Project    Project
+	Hole       Hole
+	Types      []TypeCode
+}
+
 // Store is the persistence contract. Both stores (SQLite and PostgreSQL)
 // implement it and pass the one conformance suite in package storetest.
 //
@@ -97,6 +105,13 @@ type Store interface {
 	// measurement inserted, updated or deleted, an import batch committed),
 	// by any writer; 0 for a project whose measurements never changed.
 	MeasurementStamp(ctx context.Context, projectID int64) (int64, error)
+	// LogInputs reads what logging one measurement into a hole checks: the
+	// project's model stamp (read first, as a hole model needs), the
+	// project, the hole (of any project: the caller checks it is the
+	// project's) and the project's vocabulary. Its errors are those of
+	// GetProject, GetHole, ListTypeCodes and ModelStamp, in that order.
+	// PostgreSQL sends the four reads in one round trip.
+	LogInputs(ctx context.Context, projectID, holeID int64) (LogInputs, error)
 	CreateProject(ctx context.Context, p *Project) error
 	GetProject(ctx context.Context, id int64) (Project, error)
 	GetProjectByName(ctx context.Context, name string) (Project, error)

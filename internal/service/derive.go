@@ -422,6 +422,13 @@ func (s *Service) deriver(st domain.Store, p domain.Project) *deriver {
 	return d
 }
 
+// stampedAt gives d the model stamp the caller read before anything a
+// model is built from, so that model does not read it again.
+func (d *deriver) stampedAt(stamp int64) *deriver {
+	d.stamp, d.stamped = stamp, true
+	return d
+}
+
 func (d *deriver) model(ctx context.Context, holeID int64) (*holeModel, error) {
 	if m, ok := d.models[holeID]; ok {
 		return m, nil

@@ -102,23 +102,25 @@ func (s *Service) CreateMeasurement(ctx context.Context, projectID int64, m doma
 	var hm *holeModel
 	var d *deriver
 	err := s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
-		p, a, err := s.project(ctx, st, projectID, domain.RoleLog)
+		a, err := allow(ctx, projectID, domain.RoleLog)
 		if err != nil {
 			return err
 		}
-		h, err := hole(ctx, st, projectID, m.HoleID)
+		// The project, the hole, the vocabulary and the model stamp in one
+		// read (one round trip on PostgreSQL).
+		in, err := st.LogInputs(ctx, projectID, m.HoleID)
 		if err != nil {
 			return err
 		}
-		vocab, err := st.ListTypeCodes(ctx, projectID)
-		if err != nil {
-			return err
+		h, vocab := in.Hole, in.Types
+		if h.ProjectID != projectID {
+			return holeNotIn(m.HoleID, projectID)
 		}
 		// The hole model is read before the row is written: a measurement
-		// does not change it, and on PostgreSQL the write takes the
-		// project's change log lock until the commit, so the less that
-		// follows the write, the shorter other writers wait.
-		d = s.deriver(st, p)
+		// does not change it, and on PostgreSQL the write locks the hole's
+		// measurement stamp row until the commit, so the less that follows
+		// the write, the shorter other writers of the hole wait.
+		d = s.deriver(st, in.Project).stampedAt(in.ModelStamp)
 		if hm, err = d.model(ctx, m.HoleID); err != nil {
 			return err
 		}

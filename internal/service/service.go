@@ -189,9 +189,14 @@ func hole(ctx context.Context, st domain.Store, projectID, holeID int64) (domain
 		return h, err
 	}
 	if h.ProjectID != projectID {
-		return domain.Hole{}, domain.Errorf(domain.NotFound, "hole %d not found in project %d", holeID, projectID)
+		return domain.Hole{}, holeNotIn(holeID, projectID)
 	}
 	return h, nil
+}
+
+// holeNotIn is the error of a hole of another project: not found.
+func holeNotIn(holeID, projectID int64) error {
+	return domain.Errorf(domain.NotFound, "hole %d not found in project %d", holeID, projectID)
 }
 
 // List is one page of a list. Next is the After value of the next page, 0 on

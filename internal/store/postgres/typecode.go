@@ -3,6 +3,8 @@ package postgres
 import (
 	"context"
 
+	"github.com/jackc/pgx/v5"
+
 	"corvane/internal/domain"
 	"corvane/internal/store/storekit"
 )
@@ -29,6 +31,10 @@ func (s *Store) ListTypeCodes(ctx context.Context, projectID int64) ([]domain.Ty
 	if err != nil {
 		return nil, translate(err)
 	}
+	return collectTypeCodes(rows)
+}
+
+func collectTypeCodes(rows pgx.Rows) ([]domain.TypeCode, error) {
 	return collect(rows, func(r scanner) (domain.TypeCode, error) {
 		var tc domain.TypeCode
 		err := r.Scan(&tc.ProjectID, &tc.Code, &tc.Description, &tc.Kind, &tc.Colour, &tc.Mark, &tc.Version)

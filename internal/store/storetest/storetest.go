@@ -10,6 +10,7 @@ import (
 	"errors"
 	"fmt"
 	"sort"
+	"strings"
 	"sync"
 	"sync/atomic"
 	"testing"
@@ -51,6 +52,7 @@ func Run(t *testing.T, newStore func(t *testing.T) domain.Store) {
 		{"ImportBatches", testImportBatches},
 		{"MeasurementKeys", testMeasurementKeys},
 		{"ModelStamp", testModelStamp},
+		{"LogInputs", testLogInputs},
 		{"MeasurementStamp", testMeasurementStamp},
 	}
 	for _, tc := range tests {
@@ -1210,6 +1212,53 @@ func testModelStamp(t *testing.T, s domain.Store) {
 	}
 	_, err := s.ModelStamp(c, 1<<40)
 	wantKind(t, err, domain.NotFound, "stamp of no project")
+}
+
+// LogInputs reads what the four reads it stands for read, in and outside a
+// transaction, with their errors: a missing project before a missing hole;
+// a hole of another project is returned as it is.
+func testLogInputs(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	p := newProject(t, s, "log inputs")
+	other := newProject(t, s, "log inputs other")
+	h := newHole(t, s, p.ID, "L1")
+	oh := newHole(t, s, other.ID, "L2")
+	check := func(st domain.Store, holeID int64) {
+		t.Helper()
+		got, err := st.LogInputs(c, p.ID, holeID)
+		must(t, err)
+		var want domain.LogInputs
+		want.ModelStamp, err = st.ModelStamp(c, p.ID)
+		must(t, err)
+		want.Project, err = st.GetProject(c, p.ID)
+		must(t, err)
+		want.Hole, err = st.GetHole(c, holeID)
+		must(t, err)
+		want.Types, err = st.ListTypeCodes(c, p.ID)
+		must(t, err)
+		diff(t, "LogInputs", want, got)
+	}
+	check(s, h.ID)
+	check(s, oh.ID)
+	must(t, s.InTx(c, func(_ context.Context, tx domain.Store) error {
+		check(tx, h.ID)
+		return nil
+	}))
+	_, err := s.LogInputs(c, p.ID, h.ID+1000)
+	wantKind(t, err, domain.NotFound, "LogInputs of a missing hole")
+	_, err = s.LogInputs(c, p.ID+1000, h.ID+1000)
+	wantKind(t, err, domain.NotFound, "LogInputs of a missing project")
+	if err == nil || !strings.Contains(err.Error(), "project") {
+		t.Errorf("LogInputs of a missing project and hole names the project first: %v", err)
+	}
+	// A missing hole leaves the transaction usable, as GetHole does.
+	must(t, s.InTx(c, func(ctx context.Context, tx domain.Store) error {
+		if _, err := tx.LogInputs(ctx, p.ID, h.ID+1000); err == nil {
+			t.Error("LogInputs of a missing hole in a transaction: no error")
+		}
+		_, err := tx.GetHole(ctx, h.ID)
+		return err
+	}))
 }
 
 // The measurement stamp moves with every change of the project's visible
