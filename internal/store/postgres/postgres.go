@@ -42,7 +42,7 @@ type querier interface {
 // a transaction (inside [Store.InTx]) is not.
 type Store struct {
 	pool *pgxpool.Pool
-	tx   pgx.Tx
+	tx   querier // the bound transaction: a *lazyTx (InTx) or a pgx.Tx (Snapshot)
 }
 
 var _ domain.Store = (*Store)(nil)
@@ -155,16 +155,97 @@ func (s *Store) InTx(ctx context.Context, fn func(ctx context.Context, tx domain
 	if s.tx != nil {
 		return fn(ctx, s)
 	}
-	tx, err := s.pool.Begin(ctx)
-	if err != nil {
-		return translate(err)
-	}
+	tx := &lazyTx{pool: s.pool}
 	if err := fn(ctx, &Store{pool: s.pool, tx: tx}); err != nil {
-		tx.Rollback(context.WithoutCancel(ctx))
+		tx.rollback(context.WithoutCancel(ctx))
 		return err
 	}
-	return translate(tx.Commit(ctx))
+	return translate(tx.commit(ctx))
 }
+
+// lazyTx is the transaction of InTx. It begins with its first statement,
+// so that a batch sent first carries the BEGIN (pgx's Batch.BeginTx): one
+// round trip fewer (logging one measurement starts with LogInputs). A
+// transaction that ran no statement begins and commits nothing.
+type lazyTx struct {
+	pool *pgxpool.Pool
+	tx   pgx.Tx // nil until the first statement
+}
+
+func (t *lazyTx) begun(ctx context.Context) (pgx.Tx, error) {
+	if t.tx == nil {
+		tx, err := t.pool.Begin(ctx)
+		if err != nil {
+			return nil, err
+		}
+		t.tx = tx
+	}
+	return t.tx, nil
+}
+
+func (t *lazyTx) Exec(ctx context.Context, sql string, args ...any) (pgconn.CommandTag, error) {
+	tx, err := t.begun(ctx)
+	if err != nil {
+		return pgconn.CommandTag{}, err
+	}
+	return tx.Exec(ctx, sql, args...)
+}
+
+func (t *lazyTx) Query(ctx context.Context, sql string, args ...any) (pgx.Rows, error) {
+	tx, err := t.begun(ctx)
+	if err != nil {
+		return nil, err
+	}
+	return tx.Query(ctx, sql, args...)
+}
+
+func (t *lazyTx) QueryRow(ctx context.Context, sql string, args ...any) pgx.Row {
+	tx, err := t.begun(ctx)
+	if err != nil {
+		return errRow{err}
+	}
+	return tx.QueryRow(ctx, sql, args...)
+}
+
+func (t *lazyTx) CopyFrom(ctx context.Context, table pgx.Identifier, cols []string, src pgx.CopyFromSource) (int64, error) {
+	tx, err := t.begun(ctx)
+	if err != nil {
+		return 0, err
+	}
+	return tx.CopyFrom(ctx, table, cols, src)
+}
+
+func (t *lazyTx) SendBatch(ctx context.Context, b *pgx.Batch) pgx.BatchResults {
+	if t.tx != nil {
+		return t.tx.SendBatch(ctx, b)
+	}
+	withBegin := &pgx.Batch{}
+	withBegin.BeginTx(pgx.TxOptions{})
+	withBegin.QueuedQueries = append(withBegin.QueuedQueries, b.QueuedQueries...)
+	br := t.pool.SendBatch(ctx, withBegin)
+	t.tx = br.Tx()
+	// The BEGIN's result; a failure shows in the results that follow too.
+	_, _ = br.Exec()
+	return br
+}
+
+func (t *lazyTx) commit(ctx context.Context) error {
+	if t.tx == nil {
+		return nil
+	}
+	return t.tx.Commit(ctx)
+}
+
+func (t *lazyTx) rollback(ctx context.Context) {
+	if t.tx != nil {
+		t.tx.Rollback(ctx)
+	}
+}
+
+// errRow is a row that reports err.
+type errRow struct{ err error }
+
+func (r errRow) Scan(...any) error { return r.err }
 
 // Snapshot runs fn in one REPEATABLE READ, READ ONLY transaction: every
 // read of fn sees the snapshot taken by its first statement.

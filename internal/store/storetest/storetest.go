@@ -1251,6 +1251,35 @@ func testLogInputs(t *testing.T, s domain.Store) {
 	if err == nil || !strings.Contains(err.Error(), "project") {
 		t.Errorf("LogInputs of a missing project and hole names the project first: %v", err)
 	}
+	// A transaction whose first read is LogInputs is one transaction: what
+	// it writes after goes with its commit or its rollback.
+	logged := func(depth float64, fail bool) int64 {
+		t.Helper()
+		var id int64
+		err := s.InTx(c, func(ctx context.Context, tx domain.Store) error {
+			if _, err := tx.LogInputs(ctx, p.ID, h.ID); err != nil {
+				return err
+			}
+			m := domain.Measurement{ProjectID: p.ID, HoleID: h.ID, Depth: depth, Alpha: 40, Beta: f64(120), TypeCode: "BD", LoggedAt: time.Date(2026, 3, 2, 0, 0, 0, 0, time.UTC)}
+			if err := tx.CreateMeasurement(ctx, &m); err != nil {
+				return err
+			}
+			id = m.ID
+			if fail {
+				return errors.New("undo")
+			}
+			return nil
+		})
+		if (err != nil) != fail {
+			t.Fatalf("transaction after LogInputs: %v", err)
+		}
+		return id
+	}
+	_, err = s.GetMeasurement(c, logged(11, true))
+	wantKind(t, err, domain.NotFound, "a measurement written after LogInputs in a transaction rolled back")
+	_, err = s.GetMeasurement(c, logged(12, false))
+	must(t, err)
+
 	// A missing hole leaves the transaction usable, as GetHole does.
 	must(t, s.InTx(c, func(ctx context.Context, tx domain.Store) error {
 		if _, err := tx.LogInputs(ctx, p.ID, h.ID+1000); err == nil {
