@@ -40,6 +40,12 @@ CREATE INDEX change_log_owed_xact ON change_log_owed (xact, id);
 
 CREATE UNLOGGED TABLE change_log_due (xact xid8 PRIMARY KEY);
 
+-- Every row of both tables is deleted soon after it is written, so their
+-- last pages empty again and again; a vacuum that cut them off the file
+-- would lock the table against every logging transaction while it did.
+ALTER TABLE change_log_owed SET (vacuum_truncate = false);
+ALTER TABLE change_log_due SET (vacuum_truncate = false);
+
 -- corvane_log_flush moves the entries the current transaction owes into
 -- change_log under the lock of each of their projects; it does nothing in
 -- a transaction that owes nothing.
