@@ -41,7 +41,7 @@ type Config struct {
 	// Demo loads the fictional demo programme at start when it is not there yet.
 	Demo bool
 	// DBPool is the most PostgreSQL connections the service keeps open; 0
-	// leaves it to the store (postgres.DefaultPoolSize, 16); ignored for
+	// leaves it to the store (postgres.DefaultPoolSize, 8); ignored for
 	// SQLite. Replicas times DBPool must stay under the server's
 	// max_connections.
 	DBPool int
@@ -173,7 +173,7 @@ func FromEnv(getenv func(string) string) (Config, error) {
 func (c *Config) Bind(fs *flag.FlagSet) {
 	fs.StringVar(&c.Addr, "addr", c.Addr, "listen address host:port (env "+EnvAddr+")")
 	fs.StringVar(&c.DatabaseURL, "db", c.DatabaseURL, "postgres:// URL or SQLite file path (env "+EnvDatabaseURL+")")
-	fs.IntVar(&c.DBPool, "db-pool", c.DBPool, "most PostgreSQL connections kept open, 0: the store's default (16); replicas times this must stay under the server's max_connections (env "+EnvDBPool+")")
+	fs.IntVar(&c.DBPool, "db-pool", c.DBPool, "most PostgreSQL connections kept open, 0: the store's default (8); replicas times this must stay under the server's max_connections (env "+EnvDBPool+")")
 	fs.BoolVar(&c.Demo, "demo", c.Demo, "load the fictional demo programme if it is not there (env "+EnvDemo+")")
 	fs.Int64Var(&c.MaxBodyBytes, "max-body-bytes", c.MaxBodyBytes, "largest JSON request body (env "+EnvMaxBodyBytes+")")
 	fs.Int64Var(&c.MaxImportBytes, "max-import-bytes", c.MaxImportBytes, "largest CSV import body (env "+EnvMaxImportBytes+")")

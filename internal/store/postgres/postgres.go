@@ -52,13 +52,17 @@ var _ domain.Store = (*Store)(nil)
 func Open(ctx context.Context, addr string) (*Store, error) { return OpenPool(ctx, addr, 0) }
 
 // DefaultPoolSize is the most connections a Store keeps open unless told
-// otherwise (serve --db-pool). A writing transaction holds its connection
-// while it waits for its project's change log lock, so a pool as small as
-// the CPUs (the driver's default) left the reads of other requests queueing
-// for a connection behind the writers: 16 clients of one project had a
-// 99th percentile of 57-60 ms with 4 connections, 42-47 ms with 16 (e2e
-// TestLoad on two cores).
-const DefaultPoolSize = 16
+// otherwise (serve --db-pool). While a writing transaction held its
+// project's change log lock from its first logged write, 16 connections
+// beat 4 (the reads of other requests had queued behind the waiting
+// writers; p99 42-47 ms against 57-60 ms, e2e TestLoad on two cores). Since
+// the lock is taken at commit (migration 000020) the service and the
+// database are bound by CPU under that load, and fewer backends contending
+// for it make a shorter tail: p99 lower with 8 than with 16 in 8 of 9
+// interleaved pairs of 10 s runs (medians about 47 and 62 ms on the loaded
+// two-core machine), at the same throughput; an import's median rose from
+// 14-17 to 21-25 ms (it takes a connection several times).
+const DefaultPoolSize = 8
 
 // OpenPool is [Open] with at most size connections; 0 takes the address's
 // pool_max_conns when it has one, else DefaultPoolSize.
