@@ -9,8 +9,6 @@ import (
 	"github.com/jackc/pgx/v5"
 
 	"corvane/internal/domain"
-	"corvane/internal/pgtest"
-	"corvane/internal/store/postgres"
 )
 
 // The project's change log lock is taken when a transaction commits
@@ -18,23 +16,11 @@ import (
 // project both write before either commits, and a reader paging the log by
 // seq still never skips the one that commits last.
 func TestChangeLogLockAtCommit(t *testing.T) {
-	url := pgtest.DB(t)
 	ctx := context.Background()
-	st, err := postgres.Open(ctx, url)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer st.Close()
-	p := domain.Project{Name: "two writers"}
-	must(t, p.Normalize())
-	must(t, st.CreateProject(ctx, &p))
-	must(t, st.PutTypeCode(ctx, domain.TypeCode{ProjectID: p.ID, Code: "BD", Kind: "plane"}))
 	// Two holes: writers of one hole also wait for each other on the
 	// hole's measurement stamp row (migration 000018).
-	h := domain.Hole{AzimuthRef: "true", ProjectID: p.ID, Name: "W1", Azimuth: 45, Dip: -60, FinalDepth: 300}
-	must(t, st.CreateHole(ctx, &h))
-	h2 := domain.Hole{AzimuthRef: "true", ProjectID: p.ID, Name: "W2", Azimuth: 45, Dip: -60, FinalDepth: 300}
-	must(t, st.CreateHole(ctx, &h2))
+	url, st, p, holes := holesDB(t, "two writers", "W1", "W2")
+	h, h2 := holes[0], holes[1]
 	last, err := st.LastChangeSeq(ctx)
 	must(t, err)
 

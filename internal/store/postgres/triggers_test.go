@@ -17,24 +17,8 @@ import (
 // transaction's source; every hole a statement touched moves its stamp; a
 // statement that changes no value logs its rows and moves no stamp.
 func TestMeasurementStatementTriggers(t *testing.T) {
-	url := pgtest.DB(t)
 	ctx := context.Background()
-	st, err := postgres.Open(ctx, url)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer st.Close()
-	p := domain.Project{Name: "straight writes"}
-	if err := p.Normalize(); err != nil {
-		t.Fatal(err)
-	}
-	must(t, st.CreateProject(ctx, &p))
-	must(t, st.PutTypeCode(ctx, domain.TypeCode{ProjectID: p.ID, Code: "BD", Kind: "plane"}))
-	var holes [2]domain.Hole
-	for i, name := range []string{"S1", "S2"} {
-		holes[i] = domain.Hole{AzimuthRef: "true", ProjectID: p.ID, Name: name, Azimuth: 45, Dip: -60, FinalDepth: 300}
-		must(t, st.CreateHole(ctx, &holes[i]))
-	}
+	url, st, p, holes := holesDB(t, "straight writes", "S1", "S2")
 	a, b := holes[0].ID, holes[1].ID
 	c, err := pgx.Connect(ctx, url)
 	if err != nil {
@@ -128,6 +112,29 @@ func TestMeasurementStatementTriggers(t *testing.T) {
 	exec(`DELETE FROM measurements WHERE project_id = $1 AND global_id IN ('g3', 'g4')`, p.ID)
 	logged("delete of two rows", []entry{{"g3", "delete", "", b}, {"g4", "delete", "", a}})
 	moved("delete", before, a, b)
+}
+
+// holesDB opens a store on a fresh database with a project (type code BD,
+// a plane) and the named holes; the store closes when the test ends.
+func holesDB(t *testing.T, project string, holes ...string) (string, *postgres.Store, domain.Project, []domain.Hole) {
+	t.Helper()
+	url := pgtest.DB(t)
+	ctx := context.Background()
+	st, err := postgres.Open(ctx, url)
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { st.Close() })
+	p := domain.Project{Name: project}
+	must(t, p.Normalize())
+	must(t, st.CreateProject(ctx, &p))
+	must(t, st.PutTypeCode(ctx, domain.TypeCode{ProjectID: p.ID, Code: "BD", Kind: "plane"}))
+	hs := make([]domain.Hole, len(holes))
+	for i, name := range holes {
+		hs[i] = domain.Hole{AzimuthRef: "true", ProjectID: p.ID, Name: name, Azimuth: 45, Dip: -60, FinalDepth: 300}
+		must(t, st.CreateHole(ctx, &hs[i]))
+	}
+	return url, st, p, hs
 }
 
 func must(t *testing.T, err error) {
