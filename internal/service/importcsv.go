@@ -122,9 +122,27 @@ func (s *Service) Import(ctx context.Context, projectID int64, req ImportRequest
 	if err != nil {
 		return res, err
 	}
-	p, a, err := s.project(ctx, s.store, projectID, role)
+	a, err := allow(ctx, projectID, role)
 	if err != nil {
 		return res, err
+	}
+	// A key is kept only while its project is (ON DELETE CASCADE), so a key
+	// found also says the project is there: a replay reads nothing else.
+	key := req.IdempotencyKey
+	var prev *domain.Idempotency
+	if key != "" && !req.DryRun {
+		got, err := s.store.GetIdempotency(ctx, projectID, key)
+		if err == nil {
+			prev = &got
+		} else if !domain.IsKind(err, domain.NotFound) {
+			return res, err
+		}
+	}
+	var p domain.Project
+	if prev == nil {
+		if p, err = s.store.GetProject(ctx, projectID); err != nil {
+			return res, err
+		}
 	}
 	if req.Body == nil {
 		return res, domain.Errorf(domain.Invalid, "%s: empty request body", res.File)
@@ -135,16 +153,11 @@ func (s *Service) Import(ctx context.Context, projectID int64, req ImportRequest
 		fmt.Fprintf(h, "duplicates=%s\x00", dups)
 	}
 	body := io.TeeReader(req.Body, h)
-	key := req.IdempotencyKey
-	if key != "" && !req.DryRun {
-		if prev, err := s.store.GetIdempotency(ctx, projectID, key); err == nil {
-			if _, err := io.Copy(io.Discard, body); err != nil {
-				return res, domain.Errorf(domain.Invalid, "%s: reading the body: %w", res.File, err)
-			}
-			return replay(prev, sum(h))
-		} else if !domain.IsKind(err, domain.NotFound) {
-			return res, err
+	if prev != nil {
+		if _, err := io.Copy(io.Discard, body); err != nil {
+			return res, domain.Errorf(domain.Invalid, "%s: reading the body: %w", res.File, err)
 		}
+		return replay(*prev, sum(h))
 	}
 	// A measurements file is checked and written outside the transaction,
 	// in batches of importBatch rows, each a short transaction of its own

@@ -516,3 +516,28 @@ func contains(xs []string, x string) bool {
 	}
 	return false
 }
+
+// An import with a key reads the key first (a replay reads nothing else):
+// a key answers only for its own project while that project is there, and
+// an import without a body is refused whether or not its key is known.
+func TestImportKeyAndProject(t *testing.T) {
+	s, ctx := newService(t)
+	p := must(s.CreateProject(ctx, domain.Project{Name: "keys"}))
+	first := must(doImport(t, s, ctx, p.ID, "collars", collarsCSV, false, "k"))
+	again := must(doImport(t, s, ctx, p.ID, "collars", collarsCSV, false, "k"))
+	if !again.Replayed || again.Created != first.Created {
+		t.Fatalf("replay %+v of %+v", again, first)
+	}
+	_, err := s.Import(ctx, p.ID, service.ImportRequest{Kind: "collars", IdempotencyKey: "k"})
+	wantKind(t, err, domain.Invalid, "a known key without a body")
+	_, err = doImport(t, s, ctx, p.ID+1000, "collars", collarsCSV, false, "k")
+	wantKind(t, err, domain.NotFound, "the key in a project that does not exist")
+	_, err = s.Import(ctx, p.ID+1000, service.ImportRequest{Kind: "collars", IdempotencyKey: "k"})
+	wantKind(t, err, domain.NotFound, "no project and no body")
+	p = must(s.GetProject(ctx, p.ID))
+	if err := s.DeleteProject(ctx, p.ID, p.Version); err != nil {
+		t.Fatal(err)
+	}
+	_, err = doImport(t, s, ctx, p.ID, "collars", collarsCSV, false, "k")
+	wantKind(t, err, domain.NotFound, "the key of a deleted project")
+}
