@@ -5,6 +5,7 @@ import (
 	"encoding/json"
 	"reflect"
 	"strings"
+	"sync"
 
 	"github.com/gin-gonic/gin"
 )
@@ -38,9 +39,23 @@ func (s *Server) decodeEcho(c *gin.Context, in, view any) error {
 	return nil
 }
 
+// namesOf keeps jsonNames' answer per type (a handful of types, asked on
+// every write of a measurement, hole and the like).
+var namesOf sync.Map // reflect.Type -> map[string]bool, never written after
+
 // jsonNames returns the JSON names of the fields of struct type t (or a
-// pointer to one), with those of embedded structs.
+// pointer to one), with those of embedded structs. The map is shared: read
+// it only.
 func jsonNames(t reflect.Type) map[string]bool {
+	if names, ok := namesOf.Load(t); ok {
+		return names.(map[string]bool)
+	}
+	names := fieldNames(t)
+	namesOf.Store(t, names)
+	return names
+}
+
+func fieldNames(t reflect.Type) map[string]bool {
 	for t.Kind() == reflect.Pointer {
 		t = t.Elem()
 	}
