@@ -58,9 +58,10 @@ func Open(ctx context.Context, addr string) (*Store, error) { return OpenPool(ct
 // writers; p99 42-47 ms against 57-60 ms, e2e TestLoad on two cores). Since
 // the lock is taken at commit (migration 000020) the service and the
 // database are bound by CPU under that load, and fewer backends contending
-// for it make a shorter tail: p99 lower with 8 than with 16 in 8 of 9
-// interleaved pairs of 10 s runs (medians about 47 and 62 ms on the loaded
-// two-core machine), at the same throughput; an import's median rose from
+// for it make a shorter tail: p99 lower with 8 than with 16 in 10 of 12
+// interleaved pairs of 10 s runs on the loaded two-core machine (9 of
+// corvane-load, medians about 47 and 62 ms; 3 of e2e TestLoad, 28-45 ms
+// and 31-51 ms), at the same throughput; an import's median rose from
 // 14-17 to 21-25 ms (it takes a connection several times).
 const DefaultPoolSize = 8
 
