@@ -59,6 +59,14 @@ type LogInputs struct {
 	Types      []TypeCode
 }
 
+// ImportInputs is what [Store.ImportInputs] reads. Key is nil when no
+// result is remembered for the key.
+type ImportInputs struct {
+	Key     *Idempotency
+	Project Project
+	Types   []TypeCode
+}
+
 // Store is the persistence contract. Both stores (SQLite and PostgreSQL)
 // implement it and pass the one conformance suite in package storetest.
 //
@@ -112,6 +120,13 @@ type Store interface {
 	// GetProject, GetHole, ListTypeCodes and ModelStamp, in that order.
 	// PostgreSQL sends the four reads in one round trip.
 	LogInputs(ctx context.Context, projectID, holeID int64) (LogInputs, error)
+	// ImportInputs reads what an import checks first: the remembered
+	// result of its idempotency key (none for key "" or a key not
+	// remembered), the project and the project's vocabulary. Its errors
+	// are those of GetIdempotency (but NotFound), GetProject and
+	// ListTypeCodes, in that order. PostgreSQL sends the reads in one round
+	// trip.
+	ImportInputs(ctx context.Context, projectID int64, key string) (ImportInputs, error)
 	CreateProject(ctx context.Context, p *Project) error
 	GetProject(ctx context.Context, id int64) (Project, error)
 	GetProjectByName(ctx context.Context, name string) (Project, error)

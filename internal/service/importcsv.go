@@ -126,24 +126,18 @@ func (s *Service) Import(ctx context.Context, projectID int64, req ImportRequest
 	if err != nil {
 		return res, err
 	}
-	// A key is kept only while its project is (ON DELETE CASCADE), so a key
-	// found also says the project is there: a replay reads nothing else.
+	// The key's remembered result, the project and its vocabulary in one
+	// read (one round trip on PostgreSQL).
 	key := req.IdempotencyKey
-	var prev *domain.Idempotency
-	if key != "" && !req.DryRun {
-		got, err := s.store.GetIdempotency(ctx, projectID, key)
-		if err == nil {
-			prev = &got
-		} else if !domain.IsKind(err, domain.NotFound) {
-			return res, err
-		}
+	remembered := key
+	if req.DryRun {
+		remembered = ""
 	}
-	var p domain.Project
-	if prev == nil {
-		if p, err = s.store.GetProject(ctx, projectID); err != nil {
-			return res, err
-		}
+	in, err := s.store.ImportInputs(ctx, projectID, remembered)
+	if err != nil {
+		return res, err
 	}
+	prev, p := in.Key, in.Project
 	if req.Body == nil {
 		return res, domain.Errorf(domain.Invalid, "%s: empty request body", res.File)
 	}
@@ -176,7 +170,7 @@ func (s *Service) Import(ctx context.Context, projectID int64, req ImportRequest
 				_ = s.store.DropBatch(context.WithoutCancel(ctx), staged.batch)
 			}
 		}()
-		err = s.importMeasurements(ctx, s.store, p, a, body, dups, &res, staged)
+		err = s.importMeasurements(ctx, s.store, p, in.Types, a, body, dups, &res, staged)
 	}
 	if err == nil {
 		err = s.store.InTx(ctx, func(ctx context.Context, st domain.Store) error {
@@ -192,7 +186,7 @@ func (s *Service) Import(ctx context.Context, projectID int64, req ImportRequest
 				if staged != nil {
 					err = staged.commit(ctx, st, &res)
 				} else {
-					err = s.importMeasurements(ctx, st, p, a, body, dups, &res, nil)
+					err = s.importMeasurements(ctx, st, p, nil, a, body, dups, &res, nil)
 				}
 			case ImportDiscontinuities:
 				err = s.importDiscontinuities(ctx, st, p, a, body, &res)
@@ -589,8 +583,9 @@ func parseLoggedAt(s string) (time.Time, bool) {
 // importMeasurements checks every row of a measurements file and writes the
 // good ones while no row is bad: into st in the caller's transaction, or,
 // with staged, into its import batch (each batch of rows a transaction of
-// its own), remembering the holes the rows belong to.
-func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p domain.Project, a Actor, body io.Reader, dups string, res *ImportResult, staged *stagedImport) error {
+// its own), remembering the holes the rows belong to. vocab is the project's
+// vocabulary as the caller read it; nil: read it from st.
+func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p domain.Project, vocab []domain.TypeCode, a Actor, body io.Reader, dups string, res *ImportResult, staged *stagedImport) error {
 	sr, err := csvio.NewStructureReader(body, res.File)
 	if err != nil {
 		return fileErr(res.File, err)
@@ -599,9 +594,10 @@ func (s *Service) importMeasurements(ctx context.Context, st domain.Store, p dom
 	if iType < 0 {
 		return &domain.Error{Kind: domain.Invalid, Msg: `missing column "type" (a code of the project's vocabulary)`, Loc: domain.Location{File: res.File, Line: 1}}
 	}
-	vocab, err := st.ListTypeCodes(ctx, p.ID)
-	if err != nil {
-		return err
+	if vocab == nil {
+		if vocab, err = st.ListTypeCodes(ctx, p.ID); err != nil {
+			return err
+		}
 	}
 	holes := newHoleNames(st, p.ID)
 	seen := newDuplicates(st, p.ID)

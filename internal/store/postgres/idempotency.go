@@ -2,7 +2,10 @@ package postgres
 
 import (
 	"context"
+	"errors"
 	"time"
+
+	"github.com/jackc/pgx/v5"
 
 	"corvane/internal/domain"
 	"corvane/internal/store/storekit"
@@ -24,6 +27,51 @@ func (s *Store) GetIdempotency(ctx context.Context, projectID int64, key string)
 	}
 	r.Result, r.CreatedAt = res, c.UTC()
 	return r, nil
+}
+
+// ImportInputs sends the key, project and vocabulary reads in one batch
+// (one round trip) and reports their errors in the contract's order.
+func (s *Store) ImportInputs(ctx context.Context, projectID int64, key string) (domain.ImportInputs, error) {
+	var in domain.ImportInputs
+	b := &pgx.Batch{}
+	if key != "" {
+		b.Queue(selectIdempotency, projectID, key)
+	}
+	b.Queue(selectProject, projectID)
+	b.Queue(listTypeCodes, projectID)
+	br := s.read().SendBatch(ctx, b)
+	var keyErr, projectErr, typesErr error
+	if key != "" {
+		var r domain.Idempotency
+		var res []byte
+		var c time.Time
+		keyErr = br.QueryRow().Scan(&r.ProjectID, &r.Key, &r.RequestHash, &res, &c)
+		if keyErr == nil {
+			r.Result, r.CreatedAt = res, c.UTC()
+			in.Key = &r
+		} else if errors.Is(keyErr, pgx.ErrNoRows) {
+			keyErr = nil
+		}
+	}
+	in.Project, projectErr = scanProject(br.QueryRow())
+	rows, err := br.Query()
+	if err == nil {
+		in.Types, typesErr = collectTypeCodes(rows)
+	} else {
+		typesErr = translate(err)
+	}
+	closeErr := br.Close()
+	switch {
+	case keyErr != nil:
+		return in, translate(keyErr)
+	case projectErr != nil:
+		return in, one(projectErr, "project", projectID)
+	case typesErr != nil:
+		return in, typesErr
+	case closeErr != nil && !errors.Is(closeErr, pgx.ErrNoRows):
+		return in, translate(closeErr)
+	}
+	return in, nil
 }
 
 // PutIdempotency remembers r; Conflict when the key is taken.

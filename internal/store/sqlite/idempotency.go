@@ -35,3 +35,24 @@ func (s *Store) PutIdempotency(ctx context.Context, r domain.Idempotency) error 
 		return translate(err)
 	})
 }
+
+// ImportInputs reads the key, project and vocabulary one after the other
+// and reports their errors in the contract's order.
+func (s *Store) ImportInputs(ctx context.Context, projectID int64, key string) (domain.ImportInputs, error) {
+	var in domain.ImportInputs
+	if key != "" {
+		r, err := s.GetIdempotency(ctx, projectID, key)
+		switch {
+		case err == nil:
+			in.Key = &r
+		case !domain.IsKind(err, domain.NotFound):
+			return in, err
+		}
+	}
+	var err error
+	if in.Project, err = s.GetProject(ctx, projectID); err != nil {
+		return in, err
+	}
+	in.Types, err = s.ListTypeCodes(ctx, projectID)
+	return in, err
+}

@@ -53,6 +53,7 @@ func Run(t *testing.T, newStore func(t *testing.T) domain.Store) {
 		{"MeasurementKeys", testMeasurementKeys},
 		{"ModelStamp", testModelStamp},
 		{"LogInputs", testLogInputs},
+		{"ImportInputs", testImportInputs},
 		{"MeasurementStamp", testMeasurementStamp},
 	}
 	for _, tc := range tests {
@@ -1288,6 +1289,43 @@ func testLogInputs(t *testing.T, s domain.Store) {
 		_, err := tx.GetHole(ctx, h.ID)
 		return err
 	}))
+}
+
+// ImportInputs reads what GetIdempotency, GetProject and ListTypeCodes
+// read, with no key for "" or a key not remembered; a missing project is
+// NotFound.
+func testImportInputs(t *testing.T, s domain.Store) {
+	c := ctx(t)
+	p := newProject(t, s, "import inputs")
+	must(t, s.PutIdempotency(c, domain.Idempotency{ProjectID: p.ID, Key: "k1", RequestHash: "h", Result: json.RawMessage(`{"created":2}`)}))
+	check := func(st domain.Store, key string, known bool) {
+		t.Helper()
+		got, err := st.ImportInputs(c, p.ID, key)
+		must(t, err)
+		var want domain.ImportInputs
+		if known {
+			r, err := st.GetIdempotency(c, p.ID, key)
+			must(t, err)
+			want.Key = &r
+		}
+		want.Project, err = st.GetProject(c, p.ID)
+		must(t, err)
+		want.Types, err = st.ListTypeCodes(c, p.ID)
+		must(t, err)
+		diff(t, "ImportInputs("+key+")", want, got)
+	}
+	check(s, "k1", true)
+	check(s, "k2", false)
+	check(s, "", false)
+	must(t, s.InTx(c, func(_ context.Context, tx domain.Store) error {
+		check(tx, "k1", true)
+		check(tx, "k2", false)
+		return nil
+	}))
+	_, err := s.ImportInputs(c, p.ID+1000, "k1")
+	wantKind(t, err, domain.NotFound, "ImportInputs of a missing project")
+	_, err = s.ImportInputs(c, p.ID+1000, "")
+	wantKind(t, err, domain.NotFound, "ImportInputs of a missing project, no key")
 }
 
 // The measurement stamp moves with every change of the project's visible
