@@ -517,9 +517,9 @@ func contains(xs []string, x string) bool {
 	return false
 }
 
-// An import with a key reads the key first (a replay reads nothing else):
-// a key answers only for its own project while that project is there, and
-// an import without a body is refused whether or not its key is known.
+// An import reads its key with its project (Store.ImportInputs): a key
+// answers only for its own project while that project is there, and an
+// import without a body is refused whether or not its key is known.
 func TestImportKeyAndProject(t *testing.T) {
 	s, ctx := newService(t)
 	p := must(s.CreateProject(ctx, domain.Project{Name: "keys"}))
