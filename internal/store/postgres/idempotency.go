@@ -54,12 +54,7 @@ func (s *Store) ImportInputs(ctx context.Context, projectID int64, key string) (
 		}
 	}
 	in.Project, projectErr = scanProject(br.QueryRow())
-	rows, err := br.Query()
-	if err == nil {
-		in.Types, typesErr = collectTypeCodes(rows)
-	} else {
-		typesErr = translate(err)
-	}
+	in.Types, typesErr = batchTypeCodes(br)
 	closeErr := br.Close()
 	switch {
 	case keyErr != nil:

@@ -38,12 +38,7 @@ func (s *Store) LogInputs(ctx context.Context, projectID, holeID int64) (domain.
 	var projectErr, holeErr, typesErr error
 	in.Project, projectErr = scanProject(br.QueryRow())
 	in.Hole, holeErr = scanHole(br.QueryRow())
-	rows, err := br.Query()
-	if err == nil {
-		in.Types, typesErr = collectTypeCodes(rows)
-	} else {
-		typesErr = translate(err)
-	}
+	in.Types, typesErr = batchTypeCodes(br)
 	closeErr := br.Close()
 	switch {
 	case projectErr != nil:

@@ -34,6 +34,15 @@ func (s *Store) ListTypeCodes(ctx context.Context, projectID int64) ([]domain.Ty
 	return collectTypeCodes(rows)
 }
 
+// batchTypeCodes reads the vocabulary queued next in a batch (listTypeCodes).
+func batchTypeCodes(br pgx.BatchResults) ([]domain.TypeCode, error) {
+	rows, err := br.Query()
+	if err != nil {
+		return nil, translate(err)
+	}
+	return collectTypeCodes(rows)
+}
+
 func collectTypeCodes(rows pgx.Rows) ([]domain.TypeCode, error) {
 	return collect(rows, func(r scanner) (domain.TypeCode, error) {
 		var tc domain.TypeCode
