@@ -109,11 +109,16 @@ func (s *Store) LogBatch(ctx context.Context, batch int64, rows int) (more bool,
 	return more, err
 }
 
+// unloggedBatchesSQL lists the committed batches of project $1 (all for 0)
+// whose change log is still owed, through the partial index
+// import_batches_unlogged (migration 000021).
+const unloggedBatchesSQL = `SELECT id FROM import_batches WHERE committed AND logged_to IS NOT NULL
+		AND ($1 = 0 OR project_id = $1) ORDER BY id`
+
 // UnloggedBatches lists the committed batches of the project (all projects
 // for 0) whose rows are not all in the change log yet.
 func (s *Store) UnloggedBatches(ctx context.Context, projectID int64) ([]int64, error) {
-	rows, err := s.read().Query(ctx, `SELECT id FROM import_batches WHERE committed AND logged_to IS NOT NULL
-		AND ($1 = 0 OR project_id = $1) ORDER BY id`, projectID)
+	rows, err := s.read().Query(ctx, unloggedBatchesSQL, projectID)
 	if err != nil {
 		return nil, translate(err)
 	}

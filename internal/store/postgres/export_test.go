@@ -5,3 +5,6 @@ var SchemaOf = schema
 
 // PoolMax is the most connections s keeps open.
 func PoolMax(s *Store) int { return int(s.pool.Config().MaxConns) }
+
+// UnloggedBatchesSQL is the query of Store.UnloggedBatches.
+const UnloggedBatchesSQL = unloggedBatchesSQL

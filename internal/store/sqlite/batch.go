@@ -126,11 +126,16 @@ const logBatchRows = `INSERT INTO change_log (project_id, hole_id, tbl, global_i
 		(SELECT origin FROM change_source), (SELECT actor FROM change_source), CAST((julianday('now') - 2440587.5) * 86400000000 AS INTEGER)
 	FROM measurements m WHERE m.id > ? AND m.id <= ? AND +m.batch = ? ORDER BY m.id`
 
+// unloggedBatchesSQL lists the committed batches of a project (all for 0,
+// the project id given twice) whose change log is still owed, through the
+// partial index import_batches_unlogged (migration 000021).
+const unloggedBatchesSQL = `SELECT id FROM import_batches WHERE committed = 1 AND logged_to IS NOT NULL
+		AND (? = 0 OR project_id = ?) ORDER BY id`
+
 // UnloggedBatches lists the committed batches of the project (all projects
 // for 0) whose rows are not all in the change log yet.
 func (s *Store) UnloggedBatches(ctx context.Context, projectID int64) ([]int64, error) {
-	return s.batchIDs(ctx, `SELECT id FROM import_batches WHERE committed = 1 AND logged_to IS NOT NULL
-		AND (? = 0 OR project_id = ?) ORDER BY id`, projectID, projectID)
+	return s.batchIDs(ctx, unloggedBatchesSQL, projectID, projectID)
 }
 
 // batchIDs lists the ids of the import batches query selects.

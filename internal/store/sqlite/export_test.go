@@ -6,3 +6,6 @@ func SetBusyTimeout(ms int) (restore func()) {
 	busyTimeoutMS = ms
 	return func() { busyTimeoutMS = old }
 }
+
+// UnloggedBatchesSQL is the query of Store.UnloggedBatches.
+const UnloggedBatchesSQL = unloggedBatchesSQL

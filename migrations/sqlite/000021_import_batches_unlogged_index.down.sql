@@ -1,0 +1,1 @@
+DROP INDEX import_batches_unlogged;
