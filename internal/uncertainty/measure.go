@@ -753,10 +753,45 @@ type scratch struct {
 	sel        []float64
 	tables     map[[5]float64]table
 	spare      table
+	// shared holds the tables of every Measurer forked from one (nil for
+	// none): a request's fork then finds the tables earlier requests made.
+	shared *sharedTables
 }
 
-// maxTables bounds the tables a worker keeps (80 kB each at 1,000 draws).
+// maxTables bounds the tables a worker keeps, and those its Measurer's
+// forks share (80 kB each at 1,000 draws).
 const maxTables = 64
+
+// sharedTables are tables by standard errors, shared by the forks of a
+// Measurer; a table is never written once stored.
+type sharedTables struct {
+	mu sync.Mutex
+	m  map[[5]float64]table
+}
+
+func (st *sharedTables) get(sig [5]float64) (table, bool) {
+	st.mu.Lock()
+	defer st.mu.Unlock()
+	t, ok := st.m[sig]
+	return t, ok
+}
+
+// put stores t unless the set is full or holds sig already, and returns
+// the table stored for sig (t when none was).
+func (st *sharedTables) put(sig [5]float64, t table) table {
+	st.mu.Lock()
+	defer st.mu.Unlock()
+	if old, ok := st.m[sig]; ok {
+		return old
+	}
+	if len(st.m) < maxTables {
+		if st.m == nil {
+			st.m = map[[5]float64]table{}
+		}
+		st.m[sig] = t
+	}
+	return t
+}
 
 func (sc *scratch) tableFor(sig [5]float64) table {
 	if t, ok := sc.tables[sig]; ok {
@@ -766,7 +801,16 @@ func (sc *scratch) tableFor(sig [5]float64) table {
 		sc.tables = map[[5]float64]table{}
 	}
 	if len(sc.tables) < maxTables {
-		t := sc.z.table(sig, nil)
+		var t table
+		if sc.shared != nil {
+			if st, ok := sc.shared.get(sig); ok {
+				t = st
+			} else {
+				t = sc.shared.put(sig, sc.z.table(sig, nil))
+			}
+		} else {
+			t = sc.z.table(sig, nil)
+		}
 		sc.tables[sig] = t
 		return t
 	}
@@ -1141,16 +1185,18 @@ type Measurer struct{ sc scratch }
 
 // NewMeasurer draws the normals of mc once.
 func NewMeasurer(mc MC) *Measurer {
-	m := &Measurer{sc: scratch{whenNeeded: mc.WhenNeeded}}
+	m := &Measurer{sc: scratch{whenNeeded: mc.WhenNeeded, shared: new(sharedTables)}}
 	if mc.Draws > 0 {
 		m.sc.z = newNormals(mc)
 	}
 	return m
 }
 
-// Fork returns a Measurer with the same normals and buffers of its own.
+// Fork returns a Measurer with the same normals, buffers of its own, and
+// the tables of the sines and cosines of the draws shared with m and its
+// other forks (safe for concurrent use: a table is not written once made).
 func (m *Measurer) Fork() *Measurer {
-	return &Measurer{sc: scratch{z: m.sc.z, whenNeeded: m.sc.whenNeeded}}
+	return &Measurer{sc: scratch{z: m.sc.z, whenNeeded: m.sc.whenNeeded, shared: m.sc.shared}}
 }
 
 // Measure is [Measure] for one reading.

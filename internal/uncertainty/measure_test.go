@@ -333,3 +333,50 @@ func TestOutlineContinuous(t *testing.T) {
 		t.Errorf("the region does not cross the horizontal (%d points above, %d jumps in the boundary)", up, jumps)
 	}
 }
+
+// Forks of one Measurer share the tables of the draws' sines and cosines (a
+// request's fork finds what earlier requests made) and still give Measure's
+// answers, forked and measuring at the same time (run with -race).
+func TestForksShareTables(t *testing.T) {
+	mc := MC{Draws: 500, Seed: 3}
+	ms := NewMeasurer(mc)
+	var rds []Reading
+	for i := 0; i < 8; i++ {
+		rds = append(rds, Reading{Hole: geom.HoleDirection(40*float64(i), -60), Alpha: 20 + 8*float64(i), Beta: 200, Gamma: 30,
+			Sigma: DefaultModel().Sigmas(Gyro, []string{"good", "fair", "poor"}[i%3], math.NaN(), 0)})
+	}
+	want := make([]Result, len(rds))
+	for i, rd := range rds {
+		var err error
+		if want[i], err = Measure(rd, mc); err != nil {
+			t.Fatal(err)
+		}
+	}
+	done := make(chan *Measurer)
+	for g := 0; g < 4; g++ {
+		go func() {
+			f := ms.Fork()
+			for i, rd := range rds {
+				got, err := f.Measure(rd)
+				if err != nil || *got.Pole.MonteCarlo != *want[i].Pole.MonteCarlo || *got.Line.MonteCarlo != *want[i].Line.MonteCarlo {
+					t.Errorf("fork, reading %d: %+v, want %+v (%v)", i, got.Pole.MonteCarlo, want[i].Pole.MonteCarlo, err)
+				}
+			}
+			done <- f
+		}()
+	}
+	var forks []*Measurer
+	for g := 0; g < 4; g++ {
+		forks = append(forks, <-done)
+	}
+	if n := len(ms.sc.shared.m); n != 3 { // one table per rating's standard errors
+		t.Errorf("shared tables: %d, want 3", n)
+	}
+	for sig, tab := range forks[0].sc.tables {
+		for _, f := range forks[1:] {
+			if &f.sc.tables[sig][0] != &tab[0] {
+				t.Errorf("forks hold different tables for %v", sig)
+			}
+		}
+	}
+}
