@@ -144,6 +144,14 @@ func (s *StructureReader) NextUnsplit() (line int, rec []string, raw []byte, uns
 	return s.cr.recLine, rec, s.cr.raw, unsplit, nil
 }
 
+// The ranges of a structure row's numbers: the one rule of Parse, which
+// reports a value outside them, and of ParseUnquoted, which leaves such a
+// row to Parse.
+func nonNegative(v float64) bool { return v >= 0 }             // depth, thickness
+func alphaIn(v float64) bool     { return v >= 0 && v <= 90 }  // alpha
+func turnIn(v float64) bool      { return v >= 0 && v <= 360 } // beta, gamma
+func mismatchIn(v float64) bool  { return v >= 0 && v <= 180 } // run_mismatch
+
 // Parse fills in the values and the problem of a row read by NextRaw from
 // its Line and Record. It is safe to call concurrently on different rows.
 func (s *StructureReader) Parse(r *StructureRow) {
@@ -159,22 +167,22 @@ func (s *StructureReader) Parse(r *StructureRow) {
 		return
 	}
 	var ok bool
-	if r.Depth, ok = s.num(r, s.iDepth, true); ok && r.Depth < 0 {
+	if r.Depth, ok = s.num(r, s.iDepth, true); ok && !nonNegative(r.Depth) {
 		s.fail(r, s.iDepth, "depth %g is negative", r.Depth)
 	}
-	if r.Alpha, ok = s.num(r, s.iAlpha, true); ok && !(r.Alpha >= 0 && r.Alpha <= 90) {
+	if r.Alpha, ok = s.num(r, s.iAlpha, true); ok && !alphaIn(r.Alpha) {
 		s.fail(r, s.iAlpha, "alpha %g is outside 0..90", r.Alpha)
 	}
-	if r.Beta, r.HasBeta = s.num(r, s.iBeta, false); r.HasBeta && !(r.Beta >= 0 && r.Beta <= 360) {
+	if r.Beta, r.HasBeta = s.num(r, s.iBeta, false); r.HasBeta && !turnIn(r.Beta) {
 		s.fail(r, s.iBeta, "beta %g is outside 0..360", r.Beta)
 	}
 	if s.iGamma >= 0 {
-		if r.Gamma, r.HasGamma = s.num(r, s.iGamma, false); r.HasGamma && !(r.Gamma >= 0 && r.Gamma <= 360) {
+		if r.Gamma, r.HasGamma = s.num(r, s.iGamma, false); r.HasGamma && !turnIn(r.Gamma) {
 			s.fail(r, s.iGamma, "gamma %g is outside 0..360", r.Gamma)
 		}
 	}
 	if s.iThick >= 0 {
-		if r.Thickness, r.HasThickness = s.num(r, s.iThick, false); r.HasThickness && r.Thickness < 0 {
+		if r.Thickness, r.HasThickness = s.num(r, s.iThick, false); r.HasThickness && !nonNegative(r.Thickness) {
 			s.fail(r, s.iThick, "%s %g is negative", s.Header.Names[s.iThick], r.Thickness)
 		}
 	}
@@ -189,7 +197,7 @@ func (s *StructureReader) Parse(r *StructureRow) {
 	}
 	if s.iRunMismatch >= 0 {
 		var ok bool
-		if r.RunMismatch, ok = s.num(r, s.iRunMismatch, false); ok && !(r.RunMismatch >= 0 && r.RunMismatch <= 180) {
+		if r.RunMismatch, ok = s.num(r, s.iRunMismatch, false); ok && !mismatchIn(r.RunMismatch) {
 			s.fail(r, s.iRunMismatch, "run_mismatch %g is outside 0..180", r.RunMismatch)
 		}
 	}
@@ -273,22 +281,22 @@ func (s *StructureReader) ParseUnquoted(r *StructureRow, text []byte, sameHole s
 		row.HoleID = string(id)
 	}
 	var has, ok bool
-	if row.Depth, has, ok = num(s.iDepth); !has || !ok || row.Depth < 0 {
+	if row.Depth, has, ok = num(s.iDepth); !has || !ok || !nonNegative(row.Depth) {
 		return false
 	}
-	if row.Alpha, has, ok = num(s.iAlpha); !has || !ok || !(row.Alpha >= 0 && row.Alpha <= 90) {
+	if row.Alpha, has, ok = num(s.iAlpha); !has || !ok || !alphaIn(row.Alpha) {
 		return false
 	}
-	if row.Beta, row.HasBeta, ok = num(s.iBeta); !ok || row.HasBeta && !(row.Beta >= 0 && row.Beta <= 360) {
+	if row.Beta, row.HasBeta, ok = num(s.iBeta); !ok || row.HasBeta && !turnIn(row.Beta) {
 		return false
 	}
 	if s.iGamma >= 0 {
-		if row.Gamma, row.HasGamma, ok = num(s.iGamma); !ok || row.HasGamma && !(row.Gamma >= 0 && row.Gamma <= 360) {
+		if row.Gamma, row.HasGamma, ok = num(s.iGamma); !ok || row.HasGamma && !turnIn(row.Gamma) {
 			return false
 		}
 	}
 	if s.iThick >= 0 {
-		if row.Thickness, row.HasThickness, ok = num(s.iThick); !ok || row.HasThickness && row.Thickness < 0 {
+		if row.Thickness, row.HasThickness, ok = num(s.iThick); !ok || row.HasThickness && !nonNegative(row.Thickness) {
 			return false
 		}
 	}
@@ -302,7 +310,7 @@ func (s *StructureReader) ParseUnquoted(r *StructureRow, text []byte, sameHole s
 		}
 	}
 	if s.iRunMismatch >= 0 {
-		if row.RunMismatch, has, ok = num(s.iRunMismatch); !ok || has && !(row.RunMismatch >= 0 && row.RunMismatch <= 180) {
+		if row.RunMismatch, has, ok = num(s.iRunMismatch); !ok || has && !mismatchIn(row.RunMismatch) {
 			return false
 		}
 	}
