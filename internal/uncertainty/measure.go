@@ -751,71 +751,55 @@ type scratch struct {
 	dirs       [2][]geom.Vec3 // the draws' poles and lines, survey frame
 	c          [2][]float64   // 1 - |cos| of the angle from the measured direction
 	sel        []float64
-	tables     map[[5]float64]table
-	spare      table
-	// shared holds the tables of every Measurer forked from one (nil for
-	// none): a request's fork then finds the tables earlier requests made.
-	shared *sharedTables
+	// tables are the tables of the draws' sines and cosines by standard
+	// errors, shared by every scratch of one run (the forks of a Measurer,
+	// the workers of MeasureAll); spare is this scratch's own for standard
+	// errors past maxTables.
+	tables *tables
+	spare  table
 }
 
-// maxTables bounds the tables a worker keeps, and those its Measurer's
-// forks share (80 kB each at 1,000 draws).
+// maxTables bounds the tables a run keeps (80 kB each at 1,000 draws).
 const maxTables = 64
 
-// sharedTables are tables by standard errors, shared by the forks of a
-// Measurer; a table is never written once stored.
-type sharedTables struct {
+// tables are tables by standard errors, safe for concurrent use; a table
+// is never written once stored.
+type tables struct {
 	mu sync.Mutex
 	m  map[[5]float64]table
 }
 
-func (st *sharedTables) get(sig [5]float64) (table, bool) {
-	st.mu.Lock()
-	defer st.mu.Unlock()
-	t, ok := st.m[sig]
-	return t, ok
-}
-
-// put stores t unless the set is full or holds sig already, and returns
-// the table stored for sig (t when none was).
-func (st *sharedTables) put(sig [5]float64, t table) table {
-	st.mu.Lock()
-	defer st.mu.Unlock()
-	if old, ok := st.m[sig]; ok {
+// tableFor returns the table of the standard errors sig: the stored one,
+// else a new one, stored while there is room (else made in sc.spare).
+func (sc *scratch) tableFor(sig [5]float64) table {
+	if sc.tables == nil {
+		sc.tables = new(tables)
+	}
+	ts := sc.tables
+	ts.mu.Lock()
+	t, ok := ts.m[sig]
+	full := len(ts.m) >= maxTables
+	ts.mu.Unlock()
+	if ok {
+		return t
+	}
+	if full {
+		sc.spare = sc.z.table(sig, sc.spare)
+		return sc.spare
+	}
+	t = sc.z.table(sig, nil) // outside the lock: 5,000 sines and cosines
+	ts.mu.Lock()
+	defer ts.mu.Unlock()
+	if old, ok := ts.m[sig]; ok { // made meanwhile by another scratch
 		return old
 	}
-	if len(st.m) < maxTables {
-		if st.m == nil {
-			st.m = map[[5]float64]table{}
-		}
-		st.m[sig] = t
+	if ts.m == nil {
+		ts.m = map[[5]float64]table{}
+	}
+	if len(ts.m) < maxTables {
+		ts.m[sig] = t
 	}
 	return t
-}
-
-func (sc *scratch) tableFor(sig [5]float64) table {
-	if t, ok := sc.tables[sig]; ok {
-		return t
-	}
-	if sc.tables == nil {
-		sc.tables = map[[5]float64]table{}
-	}
-	if len(sc.tables) < maxTables {
-		var t table
-		if sc.shared != nil {
-			if st, ok := sc.shared.get(sig); ok {
-				t = st
-			} else {
-				t = sc.shared.put(sig, sc.z.table(sig, nil))
-			}
-		} else {
-			t = sc.z.table(sig, nil)
-		}
-		sc.tables[sig] = t
-		return t
-	}
-	sc.spare = sc.z.table(sig, sc.spare)
-	return sc.spare
 }
 
 // Measure returns the uncertainty of the pole and (when r.Gamma is not NaN)
@@ -1146,11 +1130,12 @@ func MeasureAll(rs []Reading, mc MC, workers int) (out []Result, errs []error) {
 	workers = max(1, min(workers, len(rs)))
 	done := make(chan struct{})
 	chunk := (len(rs) + workers - 1) / workers
+	ts := new(tables) // shared by the workers
 	for w := 0; w < workers; w++ {
 		lo, hi := w*chunk, min((w+1)*chunk, len(rs))
 		go func() {
 			defer func() { done <- struct{}{} }()
-			sc := scratch{z: z, whenNeeded: mc.WhenNeeded}
+			sc := scratch{z: z, whenNeeded: mc.WhenNeeded, tables: ts}
 			for i := lo; i < hi; i++ {
 				out[i], errs[i] = measure(rs[i], &sc)
 			}
@@ -1185,7 +1170,7 @@ type Measurer struct{ sc scratch }
 
 // NewMeasurer draws the normals of mc once.
 func NewMeasurer(mc MC) *Measurer {
-	m := &Measurer{sc: scratch{whenNeeded: mc.WhenNeeded, shared: new(sharedTables)}}
+	m := &Measurer{sc: scratch{whenNeeded: mc.WhenNeeded, tables: new(tables)}}
 	if mc.Draws > 0 {
 		m.sc.z = newNormals(mc)
 	}
@@ -1193,10 +1178,10 @@ func NewMeasurer(mc MC) *Measurer {
 }
 
 // Fork returns a Measurer with the same normals, buffers of its own, and
-// the tables of the sines and cosines of the draws shared with m and its
-// other forks (safe for concurrent use: a table is not written once made).
+// the tables of the draws' sines and cosines shared with m and its other
+// forks (safe for concurrent use).
 func (m *Measurer) Fork() *Measurer {
-	return &Measurer{sc: scratch{z: m.sc.z, whenNeeded: m.sc.whenNeeded, shared: m.sc.shared}}
+	return &Measurer{sc: scratch{z: m.sc.z, whenNeeded: m.sc.whenNeeded, tables: m.sc.tables}}
 }
 
 // Measure is [Measure] for one reading.

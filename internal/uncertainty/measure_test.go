@@ -369,14 +369,12 @@ func TestForksShareTables(t *testing.T) {
 	for g := 0; g < 4; g++ {
 		forks = append(forks, <-done)
 	}
-	if n := len(ms.sc.shared.m); n != 3 { // one table per rating's standard errors
+	if n := len(ms.sc.tables.m); n != 3 { // one table per rating's standard errors
 		t.Errorf("shared tables: %d, want 3", n)
 	}
-	for sig, tab := range forks[0].sc.tables {
-		for _, f := range forks[1:] {
-			if &f.sc.tables[sig][0] != &tab[0] {
-				t.Errorf("forks hold different tables for %v", sig)
-			}
+	for _, f := range forks {
+		if f.sc.tables != ms.sc.tables {
+			t.Errorf("a fork keeps tables of its own")
 		}
 	}
 }
