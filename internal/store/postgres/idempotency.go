@@ -18,12 +18,20 @@ const (
 
 // GetIdempotency returns the remembered result for (projectID, key).
 func (s *Store) GetIdempotency(ctx context.Context, projectID int64, key string) (domain.Idempotency, error) {
+	r, err := scanIdempotency(s.read().QueryRow(ctx, selectIdempotency, projectID, key))
+	if err != nil {
+		return r, one(err, "idempotency key", key)
+	}
+	return r, nil
+}
+
+// scanIdempotency scans a row of selectIdempotency.
+func scanIdempotency(row pgx.Row) (domain.Idempotency, error) {
 	var r domain.Idempotency
 	var res []byte
 	var c time.Time
-	err := s.read().QueryRow(ctx, selectIdempotency, projectID, key).Scan(&r.ProjectID, &r.Key, &r.RequestHash, &res, &c)
-	if err != nil {
-		return r, one(err, "idempotency key", key)
+	if err := row.Scan(&r.ProjectID, &r.Key, &r.RequestHash, &res, &c); err != nil {
+		return r, err
 	}
 	r.Result, r.CreatedAt = res, c.UTC()
 	return r, nil
@@ -43,11 +51,7 @@ func (s *Store) ImportInputs(ctx context.Context, projectID int64, key string) (
 	var keyErr, projectErr, typesErr error
 	if key != "" {
 		var r domain.Idempotency
-		var res []byte
-		var c time.Time
-		keyErr = br.QueryRow().Scan(&r.ProjectID, &r.Key, &r.RequestHash, &res, &c)
-		if keyErr == nil {
-			r.Result, r.CreatedAt = res, c.UTC()
+		if r, keyErr = scanIdempotency(br.QueryRow()); keyErr == nil {
 			in.Key = &r
 		} else if errors.Is(keyErr, pgx.ErrNoRows) {
 			keyErr = nil

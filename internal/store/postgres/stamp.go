@@ -9,10 +9,13 @@ import (
 	"corvane/internal/domain"
 )
 
+// selectModelStamp reads a project's model stamp.
+const selectModelStamp = `SELECT stamp FROM model_stamps WHERE project_id = $1`
+
 // ModelStamp returns the project's model stamp (kept by triggers, migration 000014).
 func (s *Store) ModelStamp(ctx context.Context, projectID int64) (int64, error) {
 	var n int64
-	err := s.read().QueryRow(ctx, `SELECT stamp FROM model_stamps WHERE project_id = $1`, projectID).Scan(&n)
+	err := s.read().QueryRow(ctx, selectModelStamp, projectID).Scan(&n)
 	return n, one(err, "project", projectID)
 }
 
@@ -29,7 +32,7 @@ func (s *Store) MeasurementStamp(ctx context.Context, projectID int64) (int64, e
 func (s *Store) LogInputs(ctx context.Context, projectID, holeID int64) (domain.LogInputs, error) {
 	var in domain.LogInputs
 	b := &pgx.Batch{}
-	b.Queue(`SELECT stamp FROM model_stamps WHERE project_id = $1`, projectID)
+	b.Queue(selectModelStamp, projectID)
 	b.Queue(selectProject, projectID)
 	b.Queue(selectHole, holeID)
 	b.Queue(listTypeCodes, projectID)
