@@ -41,7 +41,7 @@ type Config struct {
 	// Demo loads the fictional demo programme at start when it is not there yet.
 	Demo bool
 	// DBPool is the most PostgreSQL connections the service keeps open; 0
-	// leaves it to the store (postgres.DefaultPoolSize, 8); ignored for
+	// leaves it to the store (postgres.DefaultPoolSize); ignored for
 	// SQLite. Replicas times DBPool must stay under the server's
 	// max_connections.
 	DBPool int
