@@ -20,6 +20,18 @@ import (
 	"corvane/internal/store"
 )
 
+// openService opens the migrated database db as a service, closed when the
+// test ends.
+func openService(t *testing.T, db string) *service.Service {
+	t.Helper()
+	st, err := store.Open(context.Background(), db)
+	if err != nil {
+		t.Fatal(err)
+	}
+	t.Cleanup(func() { st.Close() })
+	return service.New(st, nil)
+}
+
 // importDB is a fresh database file with the schema, one project and its
 // vocabulary (three plane types and the line type slickenline), as the
 // README's first hour sets it up; svc works on it.
@@ -30,12 +42,7 @@ func importDB(t *testing.T) (db string, ctx context.Context, svc *service.Servic
 		t.Fatalf("migrate up: %d %s", code, errs)
 	}
 	ctx = service.WithActor(context.Background(), service.System)
-	st, err := store.Open(ctx, db)
-	if err != nil {
-		t.Fatal(err)
-	}
-	t.Cleanup(func() { st.Close() })
-	svc = service.New(st, nil)
+	svc = openService(t, db)
 	p, err := svc.CreateProject(ctx, domain.Project{Name: "Firstlight"})
 	if err != nil {
 		t.Fatal(err)

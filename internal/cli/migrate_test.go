@@ -10,7 +10,6 @@ import (
 
 	"corvane/internal/domain"
 	"corvane/internal/service"
-	"corvane/internal/store"
 	"corvane/migrations"
 )
 
@@ -75,12 +74,7 @@ func TestTokenCommand(t *testing.T) {
 	}
 	secret := strings.TrimSpace(out)
 	ctx := context.Background()
-	st, err := store.Open(ctx, db)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer st.Close()
-	svc := service.New(st, nil)
+	svc := openService(t, db)
 	a, err := svc.Authenticate(ctx, secret)
 	if err != nil || a.Role != domain.RoleAdmin || a.ProjectID != domain.AllProjects || a.Name != "site admin" {
 		t.Fatalf("printed secret authenticates as %+v, %v", a, err)

@@ -25,12 +25,7 @@ func TestTokenListRevoke(t *testing.T) {
 	}
 	runWithEnv(t, env, "migrate", "up")
 	ctx := context.Background()
-	st, err := store.Open(ctx, db)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer st.Close()
-	svc := service.New(st, nil)
+	svc := openService(t, db)
 	sys := service.WithActor(ctx, service.System)
 	p, err := svc.CreateProject(sys, domain.Project{Name: "Zelvorra Reach"})
 	if err != nil {
@@ -145,12 +140,7 @@ func TestTokenAuditedUnderLocalUser(t *testing.T) {
 	env := map[string]string{"CORVANE_DATABASE_URL": db, "USER": "geo7"}
 	runWithEnv(t, env, "migrate", "up")
 	ctx := context.Background()
-	st, err := store.Open(ctx, db)
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer st.Close()
-	svc := service.New(st, nil)
+	svc := openService(t, db)
 	sys := service.WithActor(ctx, service.System)
 	p, err := svc.CreateProject(sys, domain.Project{Name: "Zelvorra Reach"})
 	if err != nil {
